@@ -1,0 +1,283 @@
+package dist
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"sort"
+	"strings"
+)
+
+// AtomMergeTolerance is the relative distance within which two atoms are
+// treated as one point: values a and b merge when
+// |a-b| <= AtomMergeTolerance·max(|a|, |b|). The merged atom sits at the
+// mass-weighted mean of the two.
+const AtomMergeTolerance = 1e-12
+
+// ProbSumTolerance is how far from 1 the probabilities given to NewDiscrete
+// may sum; they are then renormalised exactly.
+const ProbSumTolerance = 1e-12
+
+// Discrete is a finite discrete law: P(X = v_i) = p_i. The point mass is the
+// case of one atom. CDF and Survival are both computed from partial sums
+// taken from their own end, so the survival is accurate in the upper tail.
+type Discrete struct {
+	values []float64 // sorted, distinct beyond AtomMergeTolerance
+	probs  []float64 // > 0
+	below  []float64 // below[i] = Σ_{j<=i} p_j
+	above  []float64 // above[i] = Σ_{j>i} p_j
+}
+
+// NewDiscrete returns the finite discrete law with the given values (in the
+// unit of the variable) and probabilities. The slices must have the same,
+// non-zero length; values must be finite; probabilities finite, >= 0 and
+// summing to 1 within ProbSumTolerance. Values closer than
+// AtomMergeTolerance merge; zero-probability values are dropped. The
+// inputs are copied.
+func NewDiscrete(values, probs []float64) (Discrete, error) {
+	const fn = "NewDiscrete"
+	if len(values) == 0 {
+		return Discrete{}, paramErr(fn, "values", "[]", "must not be empty")
+	}
+	if len(probs) != len(values) {
+		return Discrete{}, paramErr(fn, "probs", fmt.Sprintf("len %d", len(probs)), fmt.Sprintf("must have the length of values (%d)", len(values)))
+	}
+	atoms := make([]Atom, 0, len(values))
+	sum := 0.0
+	for i, v := range values {
+		p := probs[i]
+		if !finite(v) {
+			return Discrete{}, paramErr(fn, fmt.Sprintf("values[%d]", i), v, "must be finite")
+		}
+		if !finite(p) || p < 0 {
+			return Discrete{}, paramErr(fn, fmt.Sprintf("probs[%d]", i), p, "must be finite and >= 0")
+		}
+		sum += p
+		if p > 0 {
+			atoms = append(atoms, Atom{Value: v, Mass: p})
+		}
+	}
+	if math.Abs(sum-1) > ProbSumTolerance {
+		return Discrete{}, paramErr(fn, "probs", fmt.Sprintf("sum %.17g", sum), fmt.Sprintf("must sum to 1 within %g", ProbSumTolerance))
+	}
+	return discreteFromAtoms(atoms), nil
+}
+
+// MustDiscrete is NewDiscrete that panics on bad input; for examples and tests.
+func MustDiscrete(values, probs []float64) Discrete {
+	d, err := NewDiscrete(values, probs)
+	if err != nil {
+		panic(err) // panic-ok: Must form, documented
+	}
+	return d
+}
+
+// NewPointMass returns the law of the constant v: P(X = v) = 1. v must be finite.
+func NewPointMass(v float64) (Discrete, error) {
+	if !finite(v) {
+		return Discrete{}, paramErr("NewPointMass", "v", v, "must be finite")
+	}
+	return discreteFromAtoms([]Atom{{Value: v, Mass: 1}}), nil
+}
+
+// MustPointMass is NewPointMass that panics on bad input; for examples and tests.
+func MustPointMass(v float64) Discrete {
+	d, err := NewPointMass(v)
+	if err != nil {
+		panic(err) // panic-ok: Must form, documented
+	}
+	return d
+}
+
+// discreteFromAtoms sorts, merges within AtomMergeTolerance and normalises
+// atoms with positive, finite masses and finite values. It owns atoms.
+func discreteFromAtoms(atoms []Atom) Discrete {
+	sort.Slice(atoms, func(i, j int) bool { return atoms[i].Value < atoms[j].Value })
+	merged := atoms[:0]
+	for _, a := range atoms {
+		if n := len(merged); n > 0 {
+			last := &merged[n-1]
+			if math.Abs(a.Value-last.Value) <= AtomMergeTolerance*math.Max(math.Abs(a.Value), math.Abs(last.Value)) {
+				m := last.Mass + a.Mass
+				last.Value = (last.Value*last.Mass + a.Value*a.Mass) / m
+				last.Mass = m
+				continue
+			}
+		}
+		merged = append(merged, a)
+	}
+	n := len(merged)
+	d := Discrete{
+		values: make([]float64, n),
+		probs:  make([]float64, n),
+		below:  make([]float64, n),
+		above:  make([]float64, n),
+	}
+	total := 0.0
+	for _, a := range merged {
+		total += a.Mass
+	}
+	for i, a := range merged {
+		d.values[i] = a.Value
+		d.probs[i] = a.Mass / total
+	}
+	s := 0.0
+	for i := 0; i < n; i++ {
+		s += d.probs[i]
+		d.below[i] = math.Min(s, 1)
+	}
+	s = 0
+	for i := n - 1; i >= 0; i-- {
+		d.above[i] = math.Min(s, 1)
+		s += d.probs[i]
+	}
+	return d
+}
+
+// Len returns the number of atoms.
+func (d Discrete) Len() int { return len(d.values) }
+
+// Atoms lists the atoms, sorted by value.
+func (d Discrete) Atoms() []Atom {
+	out := make([]Atom, len(d.values))
+	for i := range d.values {
+		out[i] = Atom{Value: d.values[i], Mass: d.probs[i]}
+	}
+	return out
+}
+
+// index returns the number of values <= x.
+func (d Discrete) index(x float64) int {
+	return sort.Search(len(d.values), func(i int) bool { return d.values[i] > x })
+}
+
+// CDF returns Σ_{v_i <= x} p_i.
+func (d Discrete) CDF(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	i := d.index(x)
+	if i == 0 {
+		return 0
+	}
+	return d.below[i-1]
+}
+
+// Survival returns Σ_{v_i > x} p_i, summed from the top.
+func (d Discrete) Survival(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	i := d.index(x)
+	if i == 0 {
+		return 1
+	}
+	return d.above[i-1]
+}
+
+// Quantile returns the smallest v_i with CDF(v_i) >= p.
+func (d Discrete) Quantile(p float64) float64 {
+	if !isProb(p) {
+		return math.NaN()
+	}
+	i := sort.Search(len(d.values), func(i int) bool { return d.below[i] >= p })
+	if i == len(d.values) {
+		i--
+	}
+	return d.values[i]
+}
+
+// UpperQuantile returns the smallest v_i with Survival(v_i) <= q.
+func (d Discrete) UpperQuantile(q float64) float64 {
+	if !isProb(q) {
+		return math.NaN()
+	}
+	i := sort.Search(len(d.values), func(i int) bool { return d.above[i] <= q })
+	if i == len(d.values) {
+		i--
+	}
+	return d.values[i]
+}
+
+// Mean returns Σ p_i v_i.
+func (d Discrete) Mean() float64 {
+	m := 0.0
+	for i, v := range d.values {
+		m += d.probs[i] * v
+	}
+	return m
+}
+
+// Variance returns Σ p_i (v_i - mean)².
+func (d Discrete) Variance() float64 {
+	m := d.Mean()
+	s := 0.0
+	for i, v := range d.values {
+		s += d.probs[i] * (v - m) * (v - m)
+	}
+	return s
+}
+
+// Support returns [min v_i, max v_i].
+func (d Discrete) Support() (lo, hi float64) { return d.values[0], d.values[len(d.values)-1] }
+
+// Rand draws a value using r by binary search on the cumulative sums
+// (O(log n)); for many draws from a large law prepare an AliasSampler.
+func (d Discrete) Rand(r *rand.Rand) float64 {
+	if len(d.values) == 1 {
+		return d.values[0]
+	}
+	u := r.Float64()
+	i := sort.Search(len(d.values), func(i int) bool { return d.below[i] > u })
+	if i == len(d.values) {
+		i--
+	}
+	return d.values[i]
+}
+
+// CF returns Σ p_k exp(i·t·v_k).
+func (d Discrete) CF(t float64) complex128 {
+	var re, im float64
+	for i, v := range d.values {
+		s, c := math.Sincos(t * v)
+		re += d.probs[i] * c
+		im += d.probs[i] * s
+	}
+	return complex(re, im)
+}
+
+// CGF returns log Σ p_k exp(s·v_k), computed stably.
+func (d Discrete) CGF(s float64) float64 {
+	mx := math.Inf(-1)
+	for _, v := range d.values {
+		mx = math.Max(mx, s*v)
+	}
+	sum := 0.0
+	for i, v := range d.values {
+		sum += d.probs[i] * math.Exp(s*v-mx)
+	}
+	return mx + math.Log(sum)
+}
+
+// String prints the law compactly: "PointMass(v)" for one atom, the atoms for
+// up to four, and the mean, standard deviation and 5–95 % range beyond that.
+func (d Discrete) String() string {
+	switch n := len(d.values); {
+	case n == 1:
+		return fmt.Sprintf("PointMass(%.6g)", d.values[0])
+	case n <= 4:
+		parts := make([]string, n)
+		for i := range d.values {
+			parts[i] = fmt.Sprintf("%.6g:%.4g", d.values[i], d.probs[i])
+		}
+		return "Discrete{" + strings.Join(parts, ", ") + "}"
+	default:
+		return fmt.Sprintf("Discrete(%d atoms, %s)", n, summary(d))
+	}
+}
+
+// summary prints mean, standard deviation and 5–95 % range of any law.
+func summary(l Law) string {
+	return fmt.Sprintf("mean=%.6g, sd=%.4g, 5–95%%=[%.6g, %.6g]",
+		l.Mean(), math.Sqrt(l.Variance()), l.Quantile(0.05), l.UpperQuantile(0.05))
+}

@@ -1,0 +1,3 @@
+module github.com/joulelaw/joulelaw
+
+go 1.26

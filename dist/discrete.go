@@ -92,20 +92,7 @@ func MustPointMass(v float64) Discrete {
 // discreteFromAtoms sorts, merges within AtomMergeTolerance and normalises
 // atoms with positive, finite masses and finite values. It owns atoms.
 func discreteFromAtoms(atoms []Atom) Discrete {
-	sort.Slice(atoms, func(i, j int) bool { return atoms[i].Value < atoms[j].Value })
-	merged := atoms[:0]
-	for _, a := range atoms {
-		if n := len(merged); n > 0 {
-			last := &merged[n-1]
-			if math.Abs(a.Value-last.Value) <= AtomMergeTolerance*math.Max(math.Abs(a.Value), math.Abs(last.Value)) {
-				m := last.Mass + a.Mass
-				last.Value = (last.Value*last.Mass + a.Value*a.Mass) / m
-				last.Mass = m
-				continue
-			}
-		}
-		merged = append(merged, a)
-	}
+	merged := mergeAtoms(atoms)
 	n := len(merged)
 	d := Discrete{
 		values: make([]float64, n),

@@ -1,0 +1,187 @@
+package dist
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+)
+
+// Affine returns the law of scale·X + shift, where X has law l. The result
+// is exact: a positive scale maps CDF to CDF, a negative scale swaps the
+// tails (P(aX+b <= x) = P(X >= (x-b)/a), atoms included), and scale 0 gives
+// the point mass at shift. Affine maps of affine maps collapse into one;
+// normal, uniform, discrete, exponential and gamma laws map to laws of the
+// same family (the last two for positive scale). scale and shift must be
+// finite.
+//
+// The returned law has a Density when l has one, and lists atoms when l does.
+func Affine(l Law, scale, shift float64) (Law, error) {
+	const fn = "Affine"
+	if l == nil {
+		return nil, paramErr(fn, "l", nil, "must not be nil")
+	}
+	if !finite(scale) {
+		return nil, paramErr(fn, "scale", scale, "must be finite")
+	}
+	if !finite(shift) {
+		return nil, paramErr(fn, "shift", shift, "must be finite")
+	}
+	if scale == 0 {
+		return NewPointMass(shift)
+	}
+	if scale == 1 && shift == 0 {
+		return l, nil
+	}
+	switch b := l.(type) {
+	case affineDensity:
+		return Affine(b.base, b.scale*scale, b.shift*scale+shift)
+	case affine:
+		return Affine(b.base, b.scale*scale, b.shift*scale+shift)
+	case Normal:
+		return NewNormal(scale*b.mu+shift, math.Abs(scale)*b.sigma)
+	case Uniform:
+		lo, hi := scale*b.lo+shift, scale*b.hi+shift
+		if lo > hi {
+			lo, hi = hi, lo
+		}
+		if u, err := NewUniform(lo, hi); err == nil {
+			return u, nil
+		}
+	case Discrete:
+		atoms := b.Atoms()
+		for i := range atoms {
+			atoms[i].Value = scale*atoms[i].Value + shift
+			if !finite(atoms[i].Value) {
+				return nil, paramErr(fn, "scale", scale, "maps an atom outside the finite numbers")
+			}
+		}
+		return discreteFromAtoms(atoms), nil
+	case Exponential:
+		if scale > 0 && shift == 0 {
+			return NewExponential(b.rate / scale)
+		}
+	case Gamma:
+		if scale > 0 && shift == 0 {
+			return NewGamma(b.shape, b.rate/scale)
+		}
+	}
+	a := affine{base: l, scale: scale, shift: shift}
+	if _, ok := l.(Densitied); ok {
+		return affineDensity{a}, nil
+	}
+	return a, nil
+}
+
+// affine is scale·base + shift with scale != 0. Fields are read by the
+// characteristic-function and sum code: φ(t) = exp(i·t·shift)·φ_base(scale·t).
+type affine struct {
+	base         Law
+	scale, shift float64
+}
+
+// Parts returns the law X of the map and its scale and shift.
+func (a affine) Parts() (base Law, scale, shift float64) { return a.base, a.scale, a.shift }
+
+func (a affine) inv(x float64) float64 { return (x - a.shift) / a.scale }
+
+// atomMass returns P(X = y) for a law l that lists atoms, else 0.
+func atomMass(l Law, y float64) float64 {
+	al, ok := l.(Atomic)
+	if !ok {
+		return 0
+	}
+	for _, at := range al.Atoms() {
+		if at.Value == y {
+			return at.Mass
+		}
+	}
+	return 0
+}
+
+func (a affine) CDF(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	y := a.inv(x)
+	if a.scale > 0 {
+		return a.base.CDF(y)
+	}
+	return math.Min(1, a.base.Survival(y)+atomMass(a.base, y))
+}
+
+func (a affine) Survival(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	y := a.inv(x)
+	if a.scale > 0 {
+		return a.base.Survival(y)
+	}
+	return math.Max(0, a.base.CDF(y)-atomMass(a.base, y))
+}
+
+func (a affine) Quantile(p float64) float64 {
+	if !isProb(p) {
+		return math.NaN()
+	}
+	if a.scale > 0 {
+		return a.scale*a.base.Quantile(p) + a.shift
+	}
+	return a.scale*a.base.UpperQuantile(p) + a.shift
+}
+
+func (a affine) UpperQuantile(q float64) float64 {
+	if !isProb(q) {
+		return math.NaN()
+	}
+	if a.scale > 0 {
+		return a.scale*a.base.UpperQuantile(q) + a.shift
+	}
+	return a.scale*a.base.Quantile(q) + a.shift
+}
+
+func (a affine) Mean() float64     { return a.scale*a.base.Mean() + a.shift }
+func (a affine) Variance() float64 { return a.scale * a.scale * a.base.Variance() }
+
+func (a affine) Support() (lo, hi float64) {
+	blo, bhi := a.base.Support()
+	lo, hi = a.scale*blo+a.shift, a.scale*bhi+a.shift
+	if lo > hi {
+		lo, hi = hi, lo
+	}
+	return lo, hi
+}
+
+func (a affine) Rand(r *rand.Rand) float64 { return a.scale*a.base.Rand(r) + a.shift }
+
+// Atoms lists the mapped atoms of the base law, if it has any.
+func (a affine) Atoms() []Atom {
+	al, ok := a.base.(Atomic)
+	if !ok {
+		return nil
+	}
+	atoms := al.Atoms()
+	for i := range atoms {
+		atoms[i].Value = a.scale*atoms[i].Value + a.shift
+	}
+	if a.scale < 0 {
+		for i, j := 0, len(atoms)-1; i < j; i, j = i+1, j-1 {
+			atoms[i], atoms[j] = atoms[j], atoms[i]
+		}
+	}
+	return atoms
+}
+
+func (a affine) String() string {
+	return fmt.Sprintf("%.6g·(%v) %+.6g", a.scale, a.base, a.shift)
+}
+
+// affineDensity is an affine map of a law with a density.
+type affineDensity struct{ affine }
+
+func (a affineDensity) Density(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	return a.base.(Densitied).Density(a.inv(x)) / math.Abs(a.scale)
+}

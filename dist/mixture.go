@@ -1,0 +1,210 @@
+package dist
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"sort"
+)
+
+// Mixture returns the law that draws component i with probability
+// weights[i] and then a value from laws[i]:
+//
+//	F(x) = Σ w_i F_i(x),  S(x) = Σ w_i S_i(x)
+//
+// Each tail is summed from its own components, so the survival stays
+// accurate. Weights must be finite, >= 0 and sum to 1 within
+// ProbSumTolerance; zero-weight components are dropped. A mixture of finite
+// discrete laws is a finite discrete law; a mixture of one component is that
+// component. The result lists the components' atoms (merged within
+// AtomMergeTolerance) and has a Density when every component has a density
+// or is purely atomic.
+func Mixture(weights []float64, laws []Law) (Law, error) {
+	const fn = "Mixture"
+	if len(laws) == 0 {
+		return nil, paramErr(fn, "laws", "[]", "must not be empty")
+	}
+	if len(weights) != len(laws) {
+		return nil, paramErr(fn, "weights", fmt.Sprintf("len %d", len(weights)), fmt.Sprintf("must have the length of laws (%d)", len(laws)))
+	}
+	m := mixture{}
+	sum := 0.0
+	allDiscrete, allDensity := true, true
+	for i, w := range weights {
+		if !finite(w) || w < 0 {
+			return nil, paramErr(fn, fmt.Sprintf("weights[%d]", i), w, "must be finite and >= 0")
+		}
+		if laws[i] == nil {
+			return nil, paramErr(fn, fmt.Sprintf("laws[%d]", i), nil, "must not be nil")
+		}
+		sum += w
+		if w == 0 {
+			continue
+		}
+		m.weights = append(m.weights, w)
+		m.laws = append(m.laws, laws[i])
+		if _, ok := laws[i].(Discrete); !ok {
+			allDiscrete = false
+			if _, ok := laws[i].(Densitied); !ok {
+				allDensity = false
+			}
+		}
+	}
+	if math.Abs(sum-1) > ProbSumTolerance {
+		return nil, paramErr(fn, "weights", fmt.Sprintf("sum %.17g", sum), fmt.Sprintf("must sum to 1 within %g", ProbSumTolerance))
+	}
+	for i := range m.weights {
+		m.weights[i] /= sum
+	}
+	if len(m.laws) == 1 {
+		return m.laws[0], nil
+	}
+	if allDiscrete {
+		var atoms []Atom
+		for i, l := range m.laws {
+			for _, a := range l.(Discrete).Atoms() {
+				atoms = append(atoms, Atom{Value: a.Value, Mass: a.Mass * m.weights[i]})
+			}
+		}
+		return discreteFromAtoms(atoms), nil
+	}
+	m.lo, m.hi = math.Inf(1), math.Inf(-1)
+	for _, l := range m.laws {
+		lo, hi := l.Support()
+		m.lo, m.hi = math.Min(m.lo, lo), math.Max(m.hi, hi)
+	}
+	m.cum = make([]float64, len(m.weights))
+	c := 0.0
+	for i, w := range m.weights {
+		c += w
+		m.cum[i] = c
+	}
+	if allDensity {
+		return mixtureDensity{m}, nil
+	}
+	return m, nil
+}
+
+// mixture holds its components with positive weights summing to 1. Fields
+// are read by the characteristic-function and sum code:
+// φ(t) = Σ weights[i]·φ_i(t).
+type mixture struct {
+	weights []float64
+	laws    []Law
+	cum     []float64
+	lo, hi  float64
+}
+
+// Components returns copies of the weights and the component laws.
+func (m mixture) Components() (weights []float64, laws []Law) {
+	return append([]float64(nil), m.weights...), append([]Law(nil), m.laws...)
+}
+
+func (m mixture) CDF(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	s := 0.0
+	for i, l := range m.laws {
+		s += m.weights[i] * l.CDF(x)
+	}
+	return math.Min(s, 1)
+}
+
+func (m mixture) Survival(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	s := 0.0
+	for i, l := range m.laws {
+		s += m.weights[i] * l.Survival(x)
+	}
+	return math.Min(s, 1)
+}
+
+func (m mixture) Quantile(p float64) float64      { return quantileByInversion(m, p) }
+func (m mixture) UpperQuantile(q float64) float64 { return upperQuantileByInversion(m, q) }
+
+func (m mixture) Mean() float64 {
+	s := 0.0
+	for i, l := range m.laws {
+		s += m.weights[i] * l.Mean()
+	}
+	return s
+}
+
+func (m mixture) Variance() float64 {
+	mean := m.Mean()
+	s := 0.0
+	for i, l := range m.laws {
+		d := l.Mean() - mean
+		s += m.weights[i] * (l.Variance() + d*d)
+	}
+	return s
+}
+
+func (m mixture) Support() (lo, hi float64) { return m.lo, m.hi }
+
+func (m mixture) Rand(r *rand.Rand) float64 {
+	u := r.Float64()
+	i := sort.SearchFloat64s(m.cum, u)
+	if i >= len(m.laws) {
+		i = len(m.laws) - 1
+	}
+	return m.laws[i].Rand(r)
+}
+
+// Atoms lists the weighted atoms of the components, merged.
+func (m mixture) Atoms() []Atom {
+	var atoms []Atom
+	for i, l := range m.laws {
+		if al, ok := l.(Atomic); ok {
+			for _, a := range al.Atoms() {
+				atoms = append(atoms, Atom{Value: a.Value, Mass: a.Mass * m.weights[i]})
+			}
+		}
+	}
+	return mergeAtoms(atoms)
+}
+
+func (m mixture) String() string {
+	return fmt.Sprintf("Mixture(%d components, %s)", len(m.laws), summary(m))
+}
+
+// mixtureDensity is a mixture whose components all have densities or are
+// purely atomic.
+type mixtureDensity struct{ mixture }
+
+func (m mixtureDensity) Density(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	s := 0.0
+	for i, l := range m.laws {
+		if d, ok := l.(Densitied); ok {
+			s += m.weights[i] * d.Density(x)
+		}
+	}
+	return s
+}
+
+// mergeAtoms sorts atoms and merges those within AtomMergeTolerance,
+// keeping their masses as given (no renormalisation).
+func mergeAtoms(atoms []Atom) []Atom {
+	if len(atoms) == 0 {
+		return nil
+	}
+	sort.Slice(atoms, func(i, j int) bool { return atoms[i].Value < atoms[j].Value })
+	out := atoms[:1]
+	for _, a := range atoms[1:] {
+		last := &out[len(out)-1]
+		if math.Abs(a.Value-last.Value) <= AtomMergeTolerance*math.Max(math.Abs(a.Value), math.Abs(last.Value)) {
+			m := last.Mass + a.Mass
+			last.Value = (last.Value*last.Mass + a.Value*a.Mass) / m
+			last.Mass = m
+			continue
+		}
+		out = append(out, a)
+	}
+	return out
+}

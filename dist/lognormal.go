@@ -80,20 +80,20 @@ func (l LogNormal) Density(x float64) float64 {
 	return math.Exp(-z*z/2) / (x * l.sigma * math.Sqrt(2*math.Pi))
 }
 
-// Quantile returns exp(μ - σ√2·erfcinv(2p)).
+// Quantile returns exp(μ + σz) with Φ(z) = p.
 func (l LogNormal) Quantile(p float64) float64 {
 	if !isProb(p) {
 		return math.NaN()
 	}
-	return math.Exp(l.mu - l.sigma*math.Sqrt2*math.Erfcinv(2*p))
+	return math.Exp(l.mu + l.sigma*stdNormalQuantile(p))
 }
 
-// UpperQuantile returns exp(μ + σ√2·erfcinv(2q)).
+// UpperQuantile returns exp(μ + σz) with Q(z) = q, accurate for tiny q.
 func (l LogNormal) UpperQuantile(q float64) float64 {
 	if !isProb(q) {
 		return math.NaN()
 	}
-	return math.Exp(l.mu + l.sigma*math.Sqrt2*math.Erfcinv(2*q))
+	return math.Exp(l.mu - l.sigma*stdNormalQuantile(q))
 }
 
 // Mean returns exp(μ + σ²/2).

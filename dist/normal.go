@@ -63,13 +63,13 @@ func (n Normal) Density(x float64) float64 {
 	return math.Exp(-z*z/2) / (n.sigma * math.Sqrt(2*math.Pi))
 }
 
-// Quantile returns μ + σ·√2·erfinv(2p-1), through erfcinv so that it keeps
-// full relative precision for small p.
+// Quantile returns μ + σ·z with Φ(z) = p, accurate relative to the
+// distance from the mean in either tail (see stdNormalUpperZ).
 func (n Normal) Quantile(p float64) float64 {
 	if !isProb(p) {
 		return math.NaN()
 	}
-	return n.mu - n.sigma*math.Sqrt2*math.Erfcinv(2*p)
+	return n.mu + n.sigma*stdNormalQuantile(p)
 }
 
 // UpperQuantile returns the x with Survival(x) = q, accurate for tiny q.
@@ -77,7 +77,47 @@ func (n Normal) UpperQuantile(q float64) float64 {
 	if !isProb(q) {
 		return math.NaN()
 	}
-	return n.mu + n.sigma*math.Sqrt2*math.Erfcinv(2*q)
+	return n.mu - n.sigma*stdNormalQuantile(q)
+}
+
+// stdNormalQuantile returns z with Φ(z) = p for p in [0, 1].
+func stdNormalQuantile(p float64) float64 {
+	switch {
+	case p == 0:
+		return math.Inf(-1)
+	case p == 1:
+		return math.Inf(1)
+	case p <= 0.5:
+		return -stdNormalUpperZ(p)
+	}
+	return stdNormalUpperZ(1 - p)
+}
+
+// stdNormalUpperZ returns z >= 0 with Q(z) = erfc(z/√2)/2 = q, for q in
+// (0, 1/2]. The start is Abramowitz & Stegun 26.2.23 (|error| < 4.5e-4);
+// Newton steps on log Q, with Q from math.Erfc, then give full precision
+// down to q near the smallest normal float64. (math.Erfcinv is not used: it
+// loses accuracy below 1e-10 and returns +Inf below about 1e-16.)
+func stdNormalUpperZ(q float64) float64 {
+	if q >= 0.5 {
+		return 0
+	}
+	t := math.Sqrt(-2 * math.Log(q))
+	z := t - (2.515517+0.802853*t+0.010328*t*t)/(1+1.432788*t+0.189269*t*t+0.001308*t*t*t)
+	lq := math.Log(q)
+	for i := 0; i < 6; i++ {
+		Q := 0.5 * math.Erfc(z/math.Sqrt2)
+		phi := math.Exp(-z*z/2) / math.Sqrt(2*math.Pi)
+		if Q <= 0 || phi <= 0 {
+			break
+		}
+		step := (math.Log(Q) - lq) * Q / phi
+		z += step
+		if math.Abs(step) <= 1e-16*math.Max(1, z) {
+			break
+		}
+	}
+	return math.Max(z, 0)
 }
 
 // Mean returns μ.

@@ -1,0 +1,120 @@
+package dist
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+)
+
+// ContinuousDistuv is what FromDistuv needs of a gonum stat/distuv law
+// (Normal, Gamma, Beta, Weibull, …): a CDF and a quantile. Methods Prob
+// (density), Survival, Mean and Variance are used when present.
+type ContinuousDistuv interface {
+	CDF(x float64) float64
+	Quantile(p float64) float64
+}
+
+// FromDistuv lifts a continuous gonum distuv law into a Law. It is meant for
+// continuous laws only (for a discrete distuv law, whose Prob is a mass
+// function, build a Discrete from its masses instead).
+//
+// Caution: several distuv laws compute Survival as 1 - CDF, or saturate
+// (Normal and LogNormal return 0 beyond about 8.3σ), so the lifted law is
+// only as accurate in its upper tail as its source; prefer this package's
+// own laws where they exist. Rand draws by inversion, Quantile(u), with one
+// uniform from the caller's source. Mean and Variance, when the source lacks
+// them, are computed by quadrature (numericMoments).
+func FromDistuv(d ContinuousDistuv) (Law, error) {
+	if d == nil {
+		return nil, paramErr("FromDistuv", "d", nil, "must not be nil")
+	}
+	lo, hi := d.Quantile(0), d.Quantile(1)
+	if math.IsNaN(lo) || math.IsNaN(hi) || !(lo < hi) {
+		return nil, paramErr("FromDistuv", "d", fmt.Sprintf("%T", d), "must have Quantile(0) < Quantile(1)")
+	}
+	a := distuvLaw{d: d, lo: lo, hi: hi}
+	type meanVar interface {
+		Mean() float64
+		Variance() float64
+	}
+	if mv, ok := d.(meanVar); ok {
+		a.mean, a.variance = mv.Mean(), mv.Variance()
+	} else {
+		a.mean, a.variance = numericMoments(a)
+	}
+	if _, ok := d.(interface{ Prob(float64) float64 }); ok {
+		return distuvDensity{a}, nil
+	}
+	return a, nil
+}
+
+type distuvLaw struct {
+	d              ContinuousDistuv
+	lo, hi         float64
+	mean, variance float64
+}
+
+func (a distuvLaw) CDF(x float64) float64 {
+	switch {
+	case math.IsNaN(x):
+		return x
+	case x < a.lo:
+		return 0
+	case x >= a.hi:
+		return 1
+	}
+	return a.d.CDF(x)
+}
+
+func (a distuvLaw) Survival(x float64) float64 {
+	switch {
+	case math.IsNaN(x):
+		return x
+	case x < a.lo:
+		return 1
+	case x >= a.hi:
+		return 0
+	}
+	if s, ok := a.d.(interface{ Survival(float64) float64 }); ok {
+		return s.Survival(x)
+	}
+	return 1 - a.d.CDF(x)
+}
+
+func (a distuvLaw) Quantile(p float64) float64 {
+	if !isProb(p) {
+		return math.NaN()
+	}
+	return a.d.Quantile(p)
+}
+
+func (a distuvLaw) UpperQuantile(q float64) float64 {
+	if !isProb(q) {
+		return math.NaN()
+	}
+	if q >= 0.5 {
+		return a.d.Quantile(1 - q)
+	}
+	if _, ok := a.d.(interface{ Survival(float64) float64 }); ok {
+		return upperQuantileByInversion(a, q)
+	}
+	return a.d.Quantile(1 - q)
+}
+
+func (a distuvLaw) Mean() float64             { return a.mean }
+func (a distuvLaw) Variance() float64         { return a.variance }
+func (a distuvLaw) Support() (lo, hi float64) { return a.lo, a.hi }
+func (a distuvLaw) Rand(r *rand.Rand) float64 { return a.d.Quantile(r.Float64()) }
+func (a distuvLaw) String() string            { return fmt.Sprintf("%T(%s)", a.d, summary(a)) }
+
+type distuvDensity struct{ distuvLaw }
+
+func (a distuvDensity) Density(x float64) float64 {
+	switch {
+	case math.IsNaN(x):
+		return x
+	case x < a.lo || x > a.hi:
+		return 0
+	}
+	return a.d.(interface{ Prob(float64) float64 }).Prob(x)
+}

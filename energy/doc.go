@@ -1,0 +1,58 @@
+// Package energy turns a description of a battery-powered sensor node into
+// probability laws of the energy it spends: per cycle, over a day, month or
+// year, over a battery's life, and across a fleet.
+//
+// # Describing a node
+//
+// A State is an operating mode: a current law (A) at a supply voltage (V),
+// or a power law (W), for a duration law (s); its energy is power × duration.
+// States are composed into stages:
+//
+//	Sequence(a, b, c)          // one after the other, independent (a sum)
+//	Choice(probs, stages)      // exactly one of them (a mixture)
+//	Repeat(count, stage)       // a random number of runs (a random sum)
+//	Configured(config, build)  // a configuration drawn once per cycle, shared
+//	Nothing()                  // the empty branch
+//
+// A Cycle is a stage run once per period (fixed or a law) above a floor power
+// drawn at all other times; the floor is handled exactly:
+//
+//	E = P_floor·T + Σ_i (P_i − P_floor)·t_i
+//
+// Laws are exact (finite discrete) when every factor is constant or finite
+// discrete, and numerical otherwise, with the accuracy package dist reports.
+// Every Cycle also samples its energy from the structure itself (Cycle.Rand),
+// the independent Monte Carlo path.
+//
+// # What it answers
+//
+//   - Cycle.Energy: the law of the energy per cycle (J); Cycle.Breakdown:
+//     each state's mean, its share of the mean and its share of the variance.
+//   - Cycle.Cycles, Cycle.Over, Cycle.AverageCurrent: horizon laws and the
+//     average current with an interval.
+//   - Battery: usable energy, self-discharge, temperature derating and a
+//     pulse-current check.
+//   - Lifetime: the law of the time until the battery is exhausted (s), exact
+//     through P(N > k) = P(S_k ≤ C), with the renewal central-limit estimate
+//     beside it as a labelled quick estimate.
+//   - Fleet: first failure, time to a failed fraction, number failed by a
+//     date and a replacement plan.
+//
+// Units are SI in float64 (J, s, W, A, V, C); the constants MilliAmp,
+// MicroAmp, Millisecond, MilliAmpHour, MilliJoule, MicroJoule, Day, Year
+// convert from the units practitioners use.
+//
+// # Cautions
+//
+// Primary lithium cells (lithium–thionyl chloride, lithium–manganese
+// dioxide) must not be charged, short-circuited, crushed, opened or heated
+// beyond their rating; follow the cell maker's handling, storage, transport
+// and disposal instructions. The example cells in this package are typical
+// values from memory: use your cell's data sheet. Predicted energies and
+// lifetimes are planning figures, not guarantees: they are only as good as
+// the node description and cell data they are given, and real cells also
+// fail from passivation, temperature, ageing and manufacturing spread. A
+// sensor whose failure can hurt someone (safety-critical sensing, alarms)
+// needs its own margin and the maintenance and inspection rules that apply
+// locally.
+package energy

@@ -22,11 +22,11 @@ func randomSum(count, term dist.Law) (dist.Law, error) { return nil, errNotYet }
 
 // product returns the law of x·y for independent x, y.
 func product(x, y dist.Law) (dist.Law, error) {
-	if d, ok := y.(dist.Discrete); ok && d.Len() == 1 {
-		return dist.Affine(x, d.Atoms()[0].Value, 0)
+	if d, ok := y.(dist.Discrete); ok {
+		return dist.ScaleByDiscrete(x, d)
 	}
-	if d, ok := x.(dist.Discrete); ok && d.Len() == 1 {
-		return dist.Affine(y, d.Atoms()[0].Value, 0)
+	if d, ok := x.(dist.Discrete); ok {
+		return dist.ScaleByDiscrete(y, d)
 	}
 	return nil, errNotYet
 }

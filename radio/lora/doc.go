@@ -1,0 +1,48 @@
+// Package lora supplies the LoRa and LoRaWAN building blocks of the energy
+// model of a class A end device: how long each transmission and receive
+// window lasts, and with what probability each branch of a cycle is taken.
+//
+// # Airtime and framing
+//
+// PHY describes a LoRa frame (SF, bandwidth, coding rate, preamble,
+// header, CRC, low-data-rate optimisation) and PHY.Airtime gives its time
+// on air from the published formula (Semtech SX1276 data sheet §4.1.1.6;
+// Augustin et al., Sensors 16(9):1466, 2016). PHYPayloadBytes adds the
+// LoRaWAN 1.0.3 MAC framing (13 bytes plus FOpts); UplinkPHY and
+// DownlinkPHY give the LoRaWAN frame settings (uplinks carry a payload CRC,
+// downlinks do not).
+//
+// # Regions
+//
+// EU868 and US915 return immutable Region values holding the LoRaWAN
+// Regional Parameters tables (RP002-1.0.3): data rates, payload limits,
+// TXPower steps, the RX1 data-rate mapping, RX2 defaults, class A timing
+// and ADR counters, the US902-928 dwell time and the European duty-cycle
+// sub-bands. CheckInterval tells whether a reporting interval keeps the
+// duty-cycle limit at each data rate.
+//
+// # Links, ADR and collisions
+//
+// Link describes where nodes sit (a law of the distance to the gateway), a
+// log-distance path loss with log-normal shadowing, the gateway's noise
+// figure and an installation margin. SettleADR turns it into the law of the
+// data rate and transmit power that adaptive data rate settles on, and the
+// share of nodes out of reach, by quadrature over distance. Aloha gives the
+// pure-ALOHA success probability exp(−2G) per spreading factor and channel
+// (Abramson 1970).
+//
+// # Cautions
+//
+// The regional tables and duty-cycle limits in this package are for
+// planning, not for certification: they were transcribed by hand, they
+// simplify the rules, and the rules change. Local regulations (in Europe
+// ETSI EN 300 220 and the national implementation of ERC Recommendation
+// 70-03; in the United States FCC Part 15) and the current edition of the
+// LoRaWAN Regional Parameters govern. Example currents are typical values
+// from memory; use your radio's data sheet. Predicted energies are
+// planning figures, not guarantees.
+//
+// All quantities are SI (seconds, hertz, joules, amperes) except radio
+// levels, which keep the trade's units: dBm for powers, dB for gains,
+// losses and margins.
+package lora

@@ -1,0 +1,141 @@
+package lora
+
+// The regional tables below follow LoRaWAN Regional Parameters RP002-1.0.3
+// (LoRa Alliance, 2021), transcribed from memory; check them against the
+// current edition of the document before relying on them. The European
+// duty-cycle sub-bands follow ETSI EN 300 220-2 and ERC Recommendation 70-03
+// Annex 1. They are for planning, not for certification.
+
+// rp002 names the Regional Parameters edition of the tables.
+const rp002 = "LoRaWAN Regional Parameters RP002-1.0.3"
+
+// classATiming is the timing common to EU863-870 and US902-928
+// (RP002-1.0.3, "Default settings" of each region, as used with the
+// LoRaWAN 1.0.3 specification; ACK_TIMEOUT, called RETRANSMIT_TIMEOUT from
+// LoRaWAN 1.0.4 on, is 2 ± 1 s: a random delay between 1 and 3 s).
+func classATiming() Timing {
+	return Timing{
+		ReceiveDelay1: 1, ReceiveDelay2: 2,
+		JoinAcceptDelay1: 5, JoinAcceptDelay2: 6,
+		AckTimeoutMin: 1, AckTimeoutMax: 3,
+		ADRAckLimit: 64, ADRAckDelay: 32,
+	}
+}
+
+// EU868 returns the EU863-870 region (RP002-1.0.3 §2.4, "EU863-870 ISM
+// band"). Data rates DR0 … DR6 are LoRa (SF12 … SF7 at 125 kHz, SF7 at
+// 250 kHz); DR7 (FSK) and DR8 … DR11 (LR-FHSS) are listed but not modelled.
+// Payload limits are those for devices without repeaters. Default maximum
+// EIRP +16 dBm with 2 dB TXPower steps 0 … 7; RX2 at 869.525 MHz, DR0.
+func EU868() Region {
+	// RP002-1.0.3 Table "EU863-870 Data rate and end-device output power
+	// encoding" and "EU863-870 maximum payload size (not repeater
+	// compatible)": M = 59, 59, 59, 123, 250, 250, 250, 250 for DR0 … DR7.
+	drs := []drEntry{
+		{sf: 12, bw: 125e3, up: true, down: true, maxMAC: 59},
+		{sf: 11, bw: 125e3, up: true, down: true, maxMAC: 59},
+		{sf: 10, bw: 125e3, up: true, down: true, maxMAC: 59},
+		{sf: 9, bw: 125e3, up: true, down: true, maxMAC: 123},
+		{sf: 8, bw: 125e3, up: true, down: true, maxMAC: 250},
+		{sf: 7, bw: 125e3, up: true, down: true, maxMAC: 250},
+		{sf: 7, bw: 250e3, up: true, down: true, maxMAC: 250},
+		{kind: "FSK"},
+		{kind: "LR-FHSS"}, {kind: "LR-FHSS"}, {kind: "LR-FHSS"}, {kind: "LR-FHSS"},
+		{kind: "RFU"}, {kind: "RFU"}, {kind: "RFU"}, {kind: "RFU"},
+	}
+	// RP002-1.0.3 Table "EU863-870 downlink RX1 data rate mapping":
+	// RX1 DR = max(upstream DR − RX1DROffset, DR0), offsets 0 … 5.
+	rx1 := make([][]int, 8)
+	for up := range rx1 {
+		rx1[up] = make([]int, 6)
+		for off := range rx1[up] {
+			rx1[up][off] = max(up-off, 0)
+		}
+	}
+	// Default channels (RP002-1.0.3 "EU863-870 default channels"): 868.1,
+	// 868.3 and 868.5 MHz, 125 kHz, DR0 … DR5.
+	ch := []Channel{
+		{Frequency: 868.1e6, Bandwidth: 125e3, MinDR: 0, MaxDR: 5},
+		{Frequency: 868.3e6, Bandwidth: 125e3, MinDR: 0, MaxDR: 5},
+		{Frequency: 868.5e6, Bandwidth: 125e3, MinDR: 0, MaxDR: 5},
+	}
+	// Sub-bands, ERC Recommendation 70-03 Annex 1 (non-specific short range
+	// devices) / ETSI EN 300 220-2. The 868.0–868.6 (1 %), 868.7–869.2
+	// (0.1 %) and 869.4–869.65 MHz (10 %, 500 mW) bands are the ones
+	// LoRaWAN devices use; the others are given from memory.
+	sb := []SubBand{
+		{Low: 863.0e6, High: 865.0e6, DutyCycle: 0.001, MaxERP: 14},
+		{Low: 865.0e6, High: 868.0e6, DutyCycle: 0.01, MaxERP: 14},
+		{Low: 868.0e6, High: 868.6e6, DutyCycle: 0.01, MaxERP: 14},
+		{Low: 868.7e6, High: 869.2e6, DutyCycle: 0.001, MaxERP: 14},
+		{Low: 869.4e6, High: 869.65e6, DutyCycle: 0.1, MaxERP: 27},
+		{Low: 869.7e6, High: 870.0e6, DutyCycle: 0.01, MaxERP: 14},
+	}
+	return Region{t: &regionTable{
+		name: "EU863-870", version: rp002,
+		drs:     drs,
+		maxEIRP: 16, powerSteps: 8, powerStep: 2,
+		rx1:     rx1,
+		rx2Freq: 869.525e6, rx2DR: 0,
+		timing:   classATiming(),
+		channels: ch, subBands: sb,
+		adrDRs: []int{0, 1, 2, 3, 4, 5},
+	}}
+}
+
+// US915 returns the US902-928 region (RP002-1.0.3 §2.5, "US902-928 ISM
+// band"). Uplink data rates DR0 … DR3 (SF10 … SF7 at 125 kHz) and DR4
+// (SF8/500 kHz); downlink data rates DR8 … DR13 (SF12 … SF7 at 500 kHz);
+// DR5 and DR6 (LR-FHSS) are listed but not modelled. The 400 ms dwell-time
+// limit applies to uplinks. TXPower 0 … 14 in 2 dB steps below 30 dBm; RX2
+// at 923.3 MHz, DR8.
+func US915() Region {
+	// RP002-1.0.3 Tables "US902-928 TX Data rate table" and "US902-928
+	// maximum payload size (not repeater compatible)".
+	drs := []drEntry{
+		{sf: 10, bw: 125e3, up: true, maxMAC: 19},
+		{sf: 9, bw: 125e3, up: true, maxMAC: 61},
+		{sf: 8, bw: 125e3, up: true, maxMAC: 133},
+		{sf: 7, bw: 125e3, up: true, maxMAC: 250},
+		{sf: 8, bw: 500e3, up: true, maxMAC: 250},
+		{kind: "LR-FHSS"}, {kind: "LR-FHSS"},
+		{kind: "RFU"},
+		{sf: 12, bw: 500e3, down: true, maxMAC: 61},
+		{sf: 11, bw: 500e3, down: true, maxMAC: 137},
+		{sf: 10, bw: 500e3, down: true, maxMAC: 250},
+		{sf: 9, bw: 500e3, down: true, maxMAC: 250},
+		{sf: 8, bw: 500e3, down: true, maxMAC: 250},
+		{sf: 7, bw: 500e3, down: true, maxMAC: 250},
+		{kind: "RFU"}, {kind: "RFU"},
+	}
+	// RP002-1.0.3 Table "US902-928 downlink RX1 data rate mapping",
+	// upstream DR0 … DR4, RX1DROffset 0 … 3:
+	rx1 := [][]int{
+		{10, 9, 8, 8},
+		{11, 10, 9, 8},
+		{12, 11, 10, 9},
+		{13, 12, 11, 10},
+		{13, 13, 12, 11},
+	}
+	// Channel plan (RP002-1.0.3 "US902-928 Channel Frequencies"): 64
+	// channels of 125 kHz from 902.3 MHz in 200 kHz steps (DR0 … DR3) and 8
+	// of 500 kHz from 903.0 MHz in 1.6 MHz steps (DR4).
+	ch := make([]Channel, 0, 72)
+	for i := 0; i < 64; i++ {
+		ch = append(ch, Channel{Frequency: 902.3e6 + 200e3*float64(i), Bandwidth: 125e3, MinDR: 0, MaxDR: 3})
+	}
+	for i := 0; i < 8; i++ {
+		ch = append(ch, Channel{Frequency: 903.0e6 + 1.6e6*float64(i), Bandwidth: 500e3, MinDR: 4, MaxDR: 4})
+	}
+	return Region{t: &regionTable{
+		name: "US902-928", version: rp002,
+		drs:     drs,
+		maxEIRP: 30, powerSteps: 15, powerStep: 2,
+		rx1:     rx1,
+		rx2Freq: 923.3e6, rx2DR: 8,
+		timing:   classATiming(),
+		dwell:    0.4,
+		channels: ch,
+		adrDRs:   []int{0, 1, 2, 3, 4},
+	}}
+}

@@ -1,0 +1,139 @@
+package testref
+
+import (
+	"math"
+	"slices"
+
+	"gonum.org/v1/gonum/mathext"
+)
+
+// KSStatistic returns the Kolmogorov–Smirnov distance
+// sup_x |F_n(x) - F(x)| between the empirical distribution of samples and
+// the distribution function cdf. It is exact for continuous and for
+// discontinuous cdf alike: at each distinct sample value v it compares
+// F_n(v) with cdf(v) and F_n(v⁻) with cdf just below v (the next float64
+// down), which are where the supremum of a difference of two
+// right-continuous step-and-ramp functions is reached. samples is not
+// modified. NaN samples make the result NaN; an empty slice gives 0.
+func KSStatistic(samples []float64, cdf func(float64) float64) float64 {
+	n := len(samples)
+	if n == 0 {
+		return 0
+	}
+	xs := slices.Clone(samples)
+	for _, x := range xs {
+		if math.IsNaN(x) {
+			return math.NaN()
+		}
+	}
+	slices.Sort(xs)
+	fn := float64(n)
+	d := 0.0
+	for i := 0; i < n; {
+		j := i
+		for j < n && xs[j] == xs[i] {
+			j++
+		}
+		v := xs[i]
+		below := cdf(math.Nextafter(v, math.Inf(-1)))
+		at := cdf(v)
+		d = math.Max(d, math.Abs(float64(i)/fn-below))
+		d = math.Max(d, math.Abs(float64(j)/fn-at))
+		i = j
+	}
+	return d
+}
+
+// KSCritical returns the distance ε for which a sample of size n from F
+// has P(sup_x |F_n(x) - F(x)| > ε) <= level, by the
+// Dvoretzky–Kiefer–Wolfowitz inequality with Massart's constant:
+//
+//	P(sup |F_n - F| > ε) <= 2·exp(-2nε²),  so  ε = sqrt(ln(2/level) / (2n)).
+//
+// Source: P. Massart (1990), "The tight constant in the
+// Dvoretzky–Kiefer–Wolfowitz inequality", Ann. Probab. 18(3):1269–1283. The
+// bound holds for every n (it is not asymptotic) and, being proved for
+// continuous F, is conservative for discontinuous F, whose statistic is
+// stochastically smaller. It returns NaN unless n >= 1 and 0 < level < 1.
+func KSCritical(n int, level float64) float64 {
+	if n < 1 || !(level > 0 && level < 1) {
+		return math.NaN()
+	}
+	return math.Sqrt(math.Log(2/level) / (2 * float64(n)))
+}
+
+// BinomialTails returns P(C <= k) and P(C >= k) for C ~ Binomial(n, p),
+// exactly (to the accuracy of gonum's regularised incomplete beta function,
+// about 1e-14 relative) through
+//
+//	P(C <= k) = I_{1-p}(n-k, k+1),  P(C >= k) = I_p(k, n-k+1)
+//
+// (Abramowitz & Stegun 1964, eq. 26.5.24 — from memory). It returns NaN
+// unless n >= 0 and 0 <= p <= 1.
+func BinomialTails(n, k int, p float64) (atMost, atLeast float64) {
+	if n < 0 || !(p >= 0 && p <= 1) {
+		return math.NaN(), math.NaN()
+	}
+	switch {
+	case k < 0:
+		atMost = 0
+	case k >= n:
+		atMost = 1
+	case p == 0:
+		atMost = 1
+	case p == 1:
+		atMost = 0
+	default:
+		atMost = mathext.RegIncBeta(float64(n-k), float64(k+1), 1-p)
+	}
+	switch {
+	case k <= 0:
+		atLeast = 1
+	case k > n:
+		atLeast = 0
+	case p == 0:
+		atLeast = 0
+	case p == 1:
+		atLeast = 1
+	default:
+		atLeast = mathext.RegIncBeta(float64(k), float64(n-k+1), p)
+	}
+	return atMost, atLeast
+}
+
+// BinomialInterval returns the acceptance interval [lo, hi] for a count
+// C ~ Binomial(n, p) at two-sided level alpha: lo is the largest k with
+// P(C < k) <= alpha/2 and hi the smallest k with P(C > k) <= alpha/2, so
+// that P(C < lo) + P(C > hi) <= alpha. Found by bisection on BinomialTails.
+// It returns (-1, -1) unless n >= 0, 0 <= p <= 1 and 0 < alpha < 1.
+func BinomialInterval(n int, p, alpha float64) (lo, hi int) {
+	if n < 0 || !(p >= 0 && p <= 1) || !(alpha > 0 && alpha < 1) {
+		return -1, -1
+	}
+	half := alpha / 2
+	// lo: largest k in [0, n] with P(C <= k-1) <= half. P(C <= k-1) grows with k.
+	a, b := 0, n // invariant: ok(a) true; find the last true
+	okLo := func(k int) bool { m, _ := BinomialTails(n, k-1, p); return m <= half }
+	for a < b {
+		m := a + (b-a+1)/2
+		if okLo(m) {
+			a = m
+		} else {
+			b = m - 1
+		}
+	}
+	lo = a
+	// hi: smallest k in [0, n] with P(C >= k+1) <= half. P(C >= k+1) falls with k.
+	okHi := func(k int) bool { _, m := BinomialTails(n, k+1, p); return m <= half }
+	a, b = 0, n
+	for a < b {
+		m := a + (b-a)/2
+		if okHi(m) {
+			b = m
+		} else {
+			a = m + 1
+		}
+	}
+	hi = a
+	return lo, hi
+}

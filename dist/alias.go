@@ -1,6 +1,9 @@
 package dist
 
-import "math/rand/v2"
+import (
+	"math"
+	"math/rand/v2"
+)
 
 // AliasSampler draws from a finite discrete law in constant time per draw,
 // by Walker's alias method (Walker 1977, ACM Trans. Math. Softw. 3:253–256;
@@ -49,7 +52,11 @@ func NewAliasSampler(d Discrete) AliasSampler {
 }
 
 // Rand draws one value using r: one integer and one uniform variate.
+// The zero AliasSampler returns NaN.
 func (s AliasSampler) Rand(r *rand.Rand) float64 {
+	if len(s.values) == 0 {
+		return math.NaN()
+	}
 	i := r.IntN(len(s.values))
 	if r.Float64() < s.prob[i] {
 		return s.values[i]

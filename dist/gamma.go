@@ -98,7 +98,10 @@ func (g Gamma) Density(x float64) float64 {
 	return math.Exp(g.shape*math.Log(g.rate) + (g.shape-1)*math.Log(x) - g.rate*x - lg)
 }
 
-// Quantile returns P⁻¹(k, p)/λ.
+// Quantile returns x with P(k, λx) = p. The start is the Wilson–Hilferty
+// approximation (or x^k/Γ(k+1) ≈ p deep in the lower tail), refined by
+// Newton steps on log P in log x; bisection is the fallback. (gonum's
+// mathext.GammaIncRegInv is not used: it panics for p below about 1e-200.)
 func (g Gamma) Quantile(p float64) float64 {
 	switch {
 	case !isProb(p):
@@ -110,10 +113,11 @@ func (g Gamma) Quantile(p float64) float64 {
 	case p > 0.5:
 		return g.UpperQuantile(1 - p)
 	}
-	return g.polish(mathext.GammaIncRegInv(g.shape, p)/g.rate, p, false)
+	return g.solve(p, false)
 }
 
-// UpperQuantile returns Q⁻¹(k, q)/λ, accurate for tiny q.
+// UpperQuantile returns x with Q(k, λx) = q, accurate for tiny q, by the
+// same scheme with Newton steps on log Q in x.
 func (g Gamma) UpperQuantile(q float64) float64 {
 	switch {
 	case !isProb(q):
@@ -122,51 +126,67 @@ func (g Gamma) UpperQuantile(q float64) float64 {
 		return math.Inf(1)
 	case q == 1:
 		return 0
+	case q > 0.5:
+		return g.solve(1-q, false)
 	}
-	return g.polish(mathext.GammaIncRegCompInv(g.shape, q)/g.rate, q, true)
+	return g.solve(q, true)
 }
 
-// polish refines a quantile x0 by Newton steps on log CDF (or log Survival),
-// which keeps relative accuracy in either tail; it falls back to bisection
-// when the first guess is unusable.
-func (g Gamma) polish(x0, target float64, upper bool) float64 {
-	val := func(x float64) float64 {
-		if upper {
-			return g.Survival(x)
-		}
-		return g.CDF(x)
+// solve finds x with CDF(x) = target (upper false) or Survival(x) = target
+// (upper true), target in (0, 1/2].
+func (g Gamma) solve(target float64, upper bool) float64 {
+	k := g.shape
+	z := stdNormalQuantile(target)
+	if upper {
+		z = -z
 	}
-	if !finite(x0) || x0 <= 0 {
-		if upper {
-			return invert(g, func(x float64) bool { return g.Survival(x) <= target })
-		}
-		return invert(g, func(x float64) bool { return g.CDF(x) >= target })
+	c := 1 / (9 * k)
+	w := 1 - c + z*math.Sqrt(c)
+	x := k * w * w * w
+	lg, _ := math.Lgamma(k + 1)
+	if small := math.Exp((math.Log(target) + lg) / k); !upper && (w <= 0 || small < x) {
+		x = small
 	}
-	x := x0
+	if !(x > 0) || !finite(x) {
+		x = k
+	}
 	lt := math.Log(target)
-	for i := 0; i < 8; i++ {
-		v := val(x)
-		d := g.Density(x)
-		if v <= 0 || d <= 0 || !finite(d) {
-			break
-		}
-		// d/dx log F = f/F ; d/dx log S = -f/S
-		slope := d / v
+	std := Gamma{shape: k, rate: 1}
+	for i := 0; i < 60; i++ {
+		var v, step float64
+		d := std.Density(x)
 		if upper {
-			slope = -slope
+			v = std.Survival(x)
+			if !(v > 0) || !(d > 0) {
+				break
+			}
+			step = (math.Log(v) - lt) * v / d // Newton on log Q(k, x) in x
+			if step > 0.5*x+10 {
+				step = 0.5*x + 10
+			}
+			nx := x + step
+			if nx <= 0 {
+				nx = x / 2
+			}
+			x, step = nx, nx-x
+		} else {
+			v = std.CDF(x)
+			if !(v > 0) || !(d > 0) {
+				break
+			}
+			du := (lt - math.Log(v)) * v / (x * d) // Newton on log P(k, x) in log x
+			du = math.Max(-5, math.Min(5, du))
+			nx := x * math.Exp(du)
+			x, step = nx, nx-x
 		}
-		step := (lt - math.Log(v)) / slope
-		nx := x + step
-		if nx <= 0 {
-			nx = x / 2
+		if math.Abs(step) <= 4e-16*x {
+			return x / g.rate
 		}
-		if math.Abs(nx-x) <= 1e-15*x {
-			x = nx
-			break
-		}
-		x = nx
 	}
-	return x
+	if upper {
+		return invert(g, func(y float64) bool { return g.Survival(y) <= target })
+	}
+	return invert(g, func(y float64) bool { return g.CDF(y) >= target })
 }
 
 // Mean returns k/λ.

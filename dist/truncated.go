@@ -75,9 +75,11 @@ func NewTruncated(l Law, lo, hi float64) (Law, error) {
 	if _, ok := l.(Densitied); ok {
 		td := truncatedDensity{t}
 		td.mean, td.variance = numericMoments(td)
+		td.mean = td.clamp(td.mean)
 		return td, nil
 	}
 	t.mean, t.variance = numericMoments(t)
+	t.mean = t.clamp(t.mean)
 	return t, nil
 }
 

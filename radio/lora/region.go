@@ -176,25 +176,25 @@ func (r Region) DataRates() []DataRate {
 // UplinkDataRate returns DataRate(dr) and also fails when dr is not allowed
 // for uplinks.
 func (r Region) UplinkDataRate(dr int) (DataRate, error) {
-	d, err := r.DataRate(dr)
-	if err != nil {
-		return d, err
-	}
-	if !d.Uplink {
-		return DataRate{}, paramErr("Region.UplinkDataRate", "dr", dr, fmt.Sprintf("%s DR%d is for downlinks only", r.t.name, dr))
-	}
-	return d, nil
+	return r.directed("Region.UplinkDataRate", dr, false)
 }
 
 // DownlinkDataRate returns DataRate(dr) and also fails when dr is not
 // allowed for downlinks.
 func (r Region) DownlinkDataRate(dr int) (DataRate, error) {
+	return r.directed("Region.DownlinkDataRate", dr, true)
+}
+
+// directed returns DataRate(dr) if dr is allowed in the given direction.
+func (r Region) directed(fn string, dr int, down bool) (DataRate, error) {
 	d, err := r.DataRate(dr)
-	if err != nil {
+	switch {
+	case err != nil:
 		return d, err
-	}
-	if !d.Downlink {
-		return DataRate{}, paramErr("Region.DownlinkDataRate", "dr", dr, fmt.Sprintf("%s DR%d is for uplinks only", r.t.name, dr))
+	case down && !d.Downlink:
+		return DataRate{}, paramErr(fn, "dr", dr, fmt.Sprintf("%s DR%d is for uplinks only", r.t.name, dr))
+	case !down && !d.Uplink:
+		return DataRate{}, paramErr(fn, "dr", dr, fmt.Sprintf("%s DR%d is for downlinks only", r.t.name, dr))
 	}
 	return d, nil
 }
@@ -241,15 +241,9 @@ func (r Region) CheckPayload(dr, app, fOpts int) error {
 
 // airtime returns the time on air of a data frame at dr, after the payload check.
 func (r Region) airtime(fn string, dr, app, fOpts int, down bool) (float64, error) {
-	d, err := r.DataRate(dr)
+	d, err := r.directed(fn, dr, down)
 	if err != nil {
 		return 0, err
-	}
-	if down && !d.Downlink {
-		return 0, paramErr(fn, "dr", dr, fmt.Sprintf("%s DR%d is for uplinks only", r.t.name, dr))
-	}
-	if !down && !d.Uplink {
-		return 0, paramErr(fn, "dr", dr, fmt.Sprintf("%s DR%d is for downlinks only", r.t.name, dr))
 	}
 	if err := r.CheckPayload(dr, app, fOpts); err != nil {
 		return 0, err

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"sort"
 )
 
 // Affine returns the law of scale·X + shift, where X has law l. The result
@@ -66,6 +67,9 @@ func Affine(l Law, scale, shift float64) (Law, error) {
 		}
 	}
 	a := affine{base: l, scale: scale, shift: shift}
+	if al, ok := l.(Atomic); ok {
+		a.baseAtoms = al.Atoms()
+	}
 	if _, ok := l.(Densitied); ok {
 		return affineDensity{a}, nil
 	}
@@ -77,6 +81,7 @@ func Affine(l Law, scale, shift float64) (Law, error) {
 type affine struct {
 	base         Law
 	scale, shift float64
+	baseAtoms    []Atom // the base's atoms, sorted; nil when it has none
 }
 
 // Parts returns the law X of the map and its scale and shift.
@@ -84,14 +89,37 @@ func (a affine) Parts() (base Law, scale, shift float64) { return a.base, a.scal
 
 func (a affine) inv(x float64) float64 { return (x - a.shift) / a.scale }
 
-// atomMass returns P(X = y) for a law l that lists atoms, else 0.
+// snap maps x back to the base law's scale. When the result lies within
+// AtomMergeTolerance of a base atom it returns that atom exactly, with its
+// mass, so that rounding in (x-shift)/scale never misses a point mass.
+func (a affine) snap(x float64) (y, mass float64) {
+	y = a.inv(x)
+	n := len(a.baseAtoms)
+	if n == 0 {
+		return y, 0
+	}
+	i := sort.Search(n, func(i int) bool { return a.baseAtoms[i].Value >= y })
+	for _, j := range []int{i - 1, i} {
+		if j < 0 || j >= n {
+			continue
+		}
+		v := a.baseAtoms[j].Value
+		if math.Abs(v-y) <= AtomMergeTolerance*math.Max(math.Abs(v), math.Abs(y)) {
+			return v, a.baseAtoms[j].Mass
+		}
+	}
+	return y, 0
+}
+
+// atomMass returns P(X = y) for a law l that lists atoms (matching within
+// AtomMergeTolerance), else 0.
 func atomMass(l Law, y float64) float64 {
 	al, ok := l.(Atomic)
 	if !ok {
 		return 0
 	}
 	for _, at := range al.Atoms() {
-		if at.Value == y {
+		if math.Abs(at.Value-y) <= AtomMergeTolerance*math.Max(math.Abs(at.Value), math.Abs(y)) {
 			return at.Mass
 		}
 	}
@@ -102,22 +130,22 @@ func (a affine) CDF(x float64) float64 {
 	if math.IsNaN(x) {
 		return x
 	}
-	y := a.inv(x)
+	y, m := a.snap(x)
 	if a.scale > 0 {
 		return a.base.CDF(y)
 	}
-	return math.Min(1, a.base.Survival(y)+atomMass(a.base, y))
+	return math.Min(1, a.base.Survival(y)+m)
 }
 
 func (a affine) Survival(x float64) float64 {
 	if math.IsNaN(x) {
 		return x
 	}
-	y := a.inv(x)
+	y, m := a.snap(x)
 	if a.scale > 0 {
 		return a.base.Survival(y)
 	}
-	return math.Max(0, a.base.CDF(y)-atomMass(a.base, y))
+	return math.Max(0, a.base.CDF(y)-m)
 }
 
 func (a affine) Quantile(p float64) float64 {
@@ -156,11 +184,10 @@ func (a affine) Rand(r *rand.Rand) float64 { return a.scale*a.base.Rand(r) + a.s
 
 // Atoms lists the mapped atoms of the base law, if it has any.
 func (a affine) Atoms() []Atom {
-	al, ok := a.base.(Atomic)
-	if !ok {
+	if len(a.baseAtoms) == 0 {
 		return nil
 	}
-	atoms := al.Atoms()
+	atoms := append([]Atom(nil), a.baseAtoms...)
 	for i := range atoms {
 		atoms[i].Value = a.scale*atoms[i].Value + a.shift
 	}

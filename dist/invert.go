@@ -1,0 +1,490 @@
+package dist
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"math/rand/v2"
+)
+
+// The inversion engine. A numerically computed law is held as
+//
+//   - an exact atomic part (a sub-probability list of atoms), and
+//   - the log-transform log E[exp(s·(X-c))] of the whole law, centred on its
+//     mean c, from which the transform of the continuous part,
+//     Mc(s) = M(s) - Σ m_j exp(s·(v_j - c)), is formed.
+//
+// The bulk of the continuous part is recovered by the trapezoidal rule on
+// the Gil-Pelaez integral with step h = 2π/L (the Fourier-series method of
+// Abate & Whitt, Queueing Systems 10, 1992):
+//
+//	F_h(y) = w/2 + (w·y - m_c)/L - (1/π)·Σ_{k>=1} Im(Mc(i·k·h)·exp(-i·k·h·y))/k
+//
+// whose error is exactly Σ_{j>=1} F(y - jL) - Σ_{j>=1} S(y + jL) (aliasing)
+// plus the truncated terms. L is the width of a window [a, b] that holds all
+// but bulkTail of the mass at each end (Chernoff bounds from the transform
+// where it exists, union bounds from the terms' quantiles otherwise), so the
+// window is set by the spread of the law, not by the number of terms. The
+// values Mc(i·k·h) are computed once, when the law is built; each CDF is then
+// one short trigonometric sum.
+//
+// Where the bulk value falls below tiltSwitch, the tail is computed
+// directly by the same trapezoidal rule on the Bromwich integral shifted to
+// Re s = θ (exponential tilting):
+//
+//	S(y) = (1/2π)·∫ Mc(θ+it)·exp(-(θ+it)·y)/(θ+it) dt,  θ > 0,
+//
+// with θ the saddlepoint K'(θ) = y, so the integrand is scaled to the answer
+// and the survival keeps its relative accuracy far into the tail. Its
+// aliasing error is Σ_j exp(θjL)·S(y+jL) + Σ_j exp(-θjL)·S(y-jL); the
+// second sum is removed analytically (S(y-jL) = w below the window) and L is
+// chosen by Chernoff bounds on the tilted law so that both are below 1e-17
+// of the answer. The lower tail is the same computation on the reflected law.
+
+const (
+	bulkTail   = 1e-17 // mass left outside the bulk window at each end
+	tiltSwitch = 1e-5  // below this bulk value a tail is computed by tilting
+	maxTerms   = 1 << 16
+	tiltTol    = 1e-9 // stated relative error of a tilted tail
+)
+
+// numLaw is a numerically inverted law (a sum, k-fold sum or random sum).
+type numLaw struct {
+	kind           string
+	c              float64   // centre (the mean when it is finite)
+	tr             transform // of X - c, atoms included
+	atoms          Discrete  // the atomic part, normalised; valid when atomMass > 0
+	atomMass       float64
+	atomC          []Atom // the atomic part with absolute masses, values centred
+	w              float64
+	mc             float64 // E[(X - c); continuous part]
+	mean, variance float64
+	supLo, supHi   float64
+	a, b           float64 // centred bulk window
+	L, h           float64
+	pr, pi         []float64 // Mc(i·k·h)/k, k = 1..N
+	acc            Accuracy
+	sample         func(r *rand.Rand) float64
+	parts          []Law // the terms of a Sum, for flattening nested sums
+}
+
+// numSpec is what a builder hands to newNumLaw.
+type numSpec struct {
+	kind           string
+	tr             transform // of X - c, atoms included
+	c              float64
+	mean, variance float64
+	atoms          []Atom // absolute values and masses (sub-probability); may be nil
+	supLo, supHi   float64
+	fallback       func(eps float64) (a, b float64) // centred union bounds, for sides without tilting
+	sample         func(r *rand.Rand) float64
+	parts          []Law
+	extraErr       float64 // CDF error already incurred (truncated count, lattice, …)
+}
+
+func newNumLaw(sp numSpec) (*numLaw, error) {
+	if !finite(sp.variance) || sp.variance < 0 {
+		return nil, fmt.Errorf("dist.%s: variance %v: %w (the inversion window is sized by the standard deviation)", sp.kind, sp.variance, ErrMoment)
+	}
+	if !finite(sp.mean) {
+		return nil, fmt.Errorf("dist.%s: mean %v: %w", sp.kind, sp.mean, ErrMoment)
+	}
+	l := &numLaw{kind: sp.kind, c: sp.c, tr: sp.tr, mean: sp.mean, variance: sp.variance,
+		supLo: sp.supLo, supHi: sp.supHi, sample: sp.sample, parts: sp.parts}
+	if len(sp.atoms) > 0 {
+		l.atoms = discreteFromAtoms(append([]Atom(nil), sp.atoms...))
+		for _, a := range l.atoms.Atoms() {
+			l.atomMass += a.Mass
+		}
+		var total float64
+		for _, a := range sp.atoms {
+			total += a.Mass
+		}
+		l.atomMass = total
+		for _, a := range l.atoms.Atoms() {
+			l.atomC = append(l.atomC, Atom{Value: a.Value - l.c, Mass: a.Mass * total})
+			l.mc -= a.Mass * total * (a.Value - l.c)
+		}
+	}
+	l.w = 1 - l.atomMass
+	l.mc += (l.mean - l.c)
+	sd := math.Sqrt(l.variance)
+	if sd == 0 {
+		sd = math.Max(1e-300, math.Abs(l.c)*1e-16)
+	}
+	// bulk window
+	var fa, fb float64
+	if sp.fallback != nil && (!(l.tr.lo < 0) || !(l.tr.hi > 0)) {
+		fa, fb = sp.fallback(bulkTail)
+	}
+	if l.tr.hi > 0 {
+		l.b = chernoffEnd(l.tr.logm, l.tr.hi, sd, bulkTail)
+	} else {
+		l.b = fb
+	}
+	if l.tr.lo < 0 {
+		l.a = -chernoffEnd(func(s complex128) complex128 { return l.tr.logm(-s) }, -l.tr.lo, sd, bulkTail)
+	} else {
+		l.a = fa
+	}
+	l.a = math.Max(l.a, l.supLo-l.c)
+	l.b = math.Min(l.b, l.supHi-l.c)
+	if !(l.b > l.a) || !finite(l.b-l.a) {
+		return nil, fmt.Errorf("dist.%s: window [%v, %v] around the mean %v: %w (cannot size the inversion window)", sp.kind, l.a+l.c, l.b+l.c, l.c, ErrMoment)
+	}
+	l.L = (l.b - l.a) * 1.01
+	l.h = 2 * math.Pi / l.L
+	var trunc, absSum float64
+	quiet := 0
+	for k := 1; k <= maxTerms; k++ {
+		s := complex(0, float64(k)*l.h)
+		mc := l.contM(s, 0, 0)
+		p := mc / complex(float64(k), 0)
+		l.pr = append(l.pr, real(p))
+		l.pi = append(l.pi, imag(p))
+		m := cmplx.Abs(mc)
+		absSum += cmplx.Abs(p)
+		if m <= 1e-13 {
+			quiet++
+		} else {
+			quiet = 0
+			trunc = m
+		}
+		if quiet >= 8+k/16 {
+			trunc = math.Max(trunc*1e-2, m) // decayed through the quiet stretch
+			break
+		}
+		if math.IsNaN(m) {
+			return nil, fmt.Errorf("dist.%s: transform is NaN at t = %v: %w", sp.kind, imag(s), ErrParam)
+		}
+	}
+	n := len(l.pr)
+	l.pr, l.pi = l.pr[:n:n], l.pi[:n:n]
+	cdfAbs := 2*bulkTail + trunc/math.Pi + 4e-16*(absSum+1) + l.tr.err*(math.Log(float64(n))+1) + sp.extraErr
+	method := fmt.Sprintf("Fourier-series inversion, %d terms", n)
+	floor := cdfAbs / 1e-6
+	rel := math.Max(1e-6, cdfAbs/tiltSwitch)
+	if l.tr.hi > 0 {
+		method += ", tilted upper tail"
+		floor = 1e-30
+		rel = math.Max(tiltTol, cdfAbs/tiltSwitch)
+	}
+	if l.tr.lo < 0 {
+		method += ", tilted lower tail"
+	}
+	if sp.extraErr > 0 && floor < sp.extraErr*1e6 {
+		floor = sp.extraErr * 1e6
+	}
+	l.acc = Accuracy{CDFAbs: cdfAbs, SurvivalRel: rel, TailFloor: floor, Method: method}
+	return l, nil
+}
+
+// contM returns Mc(s)·exp(-s·y - k0), the continuous part's transform at the
+// centred point y, scaled by exp(-k0); refl reflects the law (s -> -s).
+func (l *numLaw) contM(s complex128, y, k0 float64) complex128 {
+	v := cmplx.Exp(l.tr.logm(s) - s*complex(y, 0) - complex(k0, 0))
+	for _, a := range l.atomC {
+		v -= complex(a.Mass, 0) * cmplx.Exp(s*complex(a.Value-y, 0)-complex(k0, 0))
+	}
+	return v
+}
+
+// chernoffEnd returns min over 0 < θ < hi of (K(θ) + log(1/eps))/θ, the
+// Chernoff bound on the eps upper quantile of a centred law with
+// log-transform logm and standard deviation sd (golden-section search on
+// log θ; the function is unimodal because K is convex).
+func chernoffEnd(logm func(complex128) complex128, hi, sd, eps float64) float64 {
+	c := -math.Log(eps)
+	g := func(u float64) float64 {
+		th := math.Exp(u)
+		k := real(logm(complex(th, 0)))
+		if math.IsNaN(k) {
+			k = math.Inf(1)
+		}
+		return (k + c) / th
+	}
+	top := 1e4 / sd
+	if finite(hi) {
+		top = math.Min(top, hi*(1-1e-9))
+	}
+	x0, x1 := math.Log(1e-6/sd), math.Log(top)
+	if x0 >= x1 {
+		x0 = x1 - 20
+	}
+	const r = 0.6180339887498949
+	a, b := x0, x1
+	c1, c2 := b-r*(b-a), a+r*(b-a)
+	g1, g2 := g(c1), g(c2)
+	for i := 0; i < 100 && b-a > 1e-10; i++ {
+		if g1 < g2 {
+			b, c2, g2 = c2, c1, g1
+			c1 = b - r*(b-a)
+			g1 = g(c1)
+		} else {
+			a, c1, g1 = c1, c2, g2
+			c2 = a + r*(b-a)
+			g2 = g(c2)
+		}
+	}
+	return math.Min(g1, g2)
+}
+
+// bulkCDF returns the Fourier-series value of F_c at centred y.
+func (l *numLaw) bulkCDF(y float64) float64 {
+	th := l.h * y
+	s1, c1 := math.Sincos(-th)
+	var acc float64
+	n := len(l.pr)
+	for k0 := 0; k0 < n; k0 += 64 {
+		zi, zr := math.Sincos(-float64(k0+1) * th)
+		end := min(k0+64, n)
+		pr, pi := l.pr[k0:end], l.pi[k0:end]
+		for j := range pr {
+			acc += pr[j]*zi + pi[j]*zr
+			zr, zi = zr*c1-zi*s1, zr*s1+zi*c1
+		}
+	}
+	return l.w/2 + (l.w*y-l.mc)/l.L - acc/math.Pi
+}
+
+// cont returns F_c(y) and S_c(y) of the continuous part at centred y.
+func (l *numLaw) cont(y float64) (f, s float64) {
+	if l.w <= 0 {
+		return 0, 0
+	}
+	up, down := l.tr.hi > 0, l.tr.lo < 0
+	switch {
+	case y >= l.b:
+		if up {
+			s = l.tilted(y, false)
+		}
+		return math.Max(0, l.w-s), s
+	case y <= l.a:
+		if down {
+			f = l.tilted(y, true)
+		}
+		return f, math.Max(0, l.w-f)
+	}
+	f = math.Min(l.w, math.Max(0, l.bulkCDF(y)))
+	s = l.w - f
+	if f < tiltSwitch && down {
+		f = l.tilted(y, true)
+		s = math.Max(0, l.w-f)
+	} else if s < tiltSwitch && up {
+		s = l.tilted(y, false)
+		f = math.Max(0, l.w-s)
+	}
+	return f, s
+}
+
+// tilted returns S_c(y) (or F_c(y) when refl) by the shifted Bromwich
+// integral described at the top of this file.
+func (l *numLaw) tilted(y float64, refl bool) float64 {
+	sg := 1.0
+	hiDom, lowEnd, supTop := l.tr.hi, l.a, l.supHi-l.c
+	if refl {
+		sg = -1
+		hiDom, lowEnd, supTop = -l.tr.lo, -l.b, -(l.supLo - l.c)
+	}
+	yy := sg * y
+	if yy >= supTop {
+		return 0
+	}
+	lm := func(s complex128) complex128 { return l.tr.logm(complex(sg, 0) * s) }
+	K := func(th float64) float64 { return real(lm(complex(th, 0))) }
+	dK := func(th float64) float64 {
+		const eta = 1e-20
+		d := imag(lm(complex(th, eta*math.Max(1, th)))) / (eta * math.Max(1, th))
+		if math.IsNaN(d) || math.IsInf(d, 0) {
+			e := 1e-6 * math.Max(th, 1e-3/math.Sqrt(l.variance))
+			d = (K(th+e) - K(th-e)) / (2 * e)
+		}
+		return d
+	}
+	sd := math.Sqrt(l.variance)
+	theta := saddle(dK, yy, hiDom, sd)
+	floor := 30 / (l.b - l.a)
+	if finite(hiDom) {
+		floor = math.Min(floor, hiDom/2)
+	}
+	theta = math.Max(theta, floor)
+	k0 := K(theta) - theta*yy
+	e := 1e-4 * theta
+	var sdT float64
+	if theta+e < hiDom {
+		sdT = math.Sqrt(math.Max(0, (dK(theta+e)-dK(theta-e))/(2*e)))
+	}
+	if !(sdT > 0) || !finite(sdT) {
+		sdT = sd
+	}
+	// period L: lower alias (below the window and exp(-θL) small), upper
+	// alias (Chernoff bound on the tilted law beyond y + L)
+	L := math.Max(yy-lowEnd, (40-k0)/theta)
+	L = math.Max(L, 8*sdT)
+	L2 := math.Inf(1)
+	for _, u := range []float64{theta, 1 / sdT, 4 / sdT, 16 / sdT} {
+		if theta+u < hiDom {
+			if lu := (K(theta+u) - K(theta) - u*yy + 40) / u; lu > 0 {
+				L2 = math.Min(L2, lu)
+			}
+		}
+	}
+	if math.IsInf(L2, 1) {
+		L2 = 40 * sdT
+	}
+	if supTop-yy < L2 {
+		L2 = supTop - yy
+	}
+	L = math.Max(L, L2)
+	h := 2 * math.Pi / L
+	var sum, absSum, t0 float64
+	quiet := 0
+	for k := 0; k <= maxTerms; k++ {
+		s := complex(theta, float64(k)*h)
+		v := cmplx.Exp(lm(s) - s*complex(yy, 0) - complex(k0, 0))
+		for _, a := range l.atomC {
+			v -= complex(a.Mass, 0) * cmplx.Exp(s*complex(sg*a.Value-yy, 0)-complex(k0, 0))
+		}
+		term := real(v / s)
+		if k == 0 {
+			t0 = math.Abs(term)
+			sum += term
+		} else {
+			sum += 2 * term
+		}
+		absSum += math.Abs(term)
+		if math.Abs(term) <= 1e-17*t0 {
+			quiet++
+			if quiet >= 4 {
+				break
+			}
+		} else {
+			quiet = 0
+		}
+	}
+	res := math.Exp(k0)*sum/L - l.w*math.Exp(-theta*L)/(-math.Expm1(-theta*L))
+	return math.Max(0, res)
+}
+
+// saddle solves K'(θ) = y for θ > 0 below hi by doubling and bisection.
+func saddle(dK func(float64) float64, y, hi, sd float64) float64 {
+	if y <= 0 {
+		return 0
+	}
+	lo, th := 0.0, 1/sd
+	if finite(hi) && th >= hi {
+		th = hi / 2
+	}
+	for i := 0; i < 200 && dK(th) < y; i++ {
+		lo = th
+		if finite(hi) {
+			th = th + (hi-th)/2
+			if hi-th < 1e-12*hi {
+				return th
+			}
+		} else {
+			th *= 2
+			if th > 1e300 {
+				return th
+			}
+		}
+	}
+	hiB := th
+	for i := 0; i < 80 && hiB-lo > 1e-12*hiB; i++ {
+		m := lo/2 + hiB/2
+		if dK(m) < y {
+			lo = m
+		} else {
+			hiB = m
+		}
+	}
+	return hiB
+}
+
+// CDF returns P(X <= x): exact atoms plus the inverted continuous part.
+// NaN for NaN.
+func (l *numLaw) CDF(x float64) float64 {
+	switch {
+	case math.IsNaN(x):
+		return x
+	case x < l.supLo:
+		return 0
+	case x >= l.supHi:
+		return 1
+	}
+	f, _ := l.cont(x - l.c)
+	if l.atomMass > 0 {
+		f += l.atomMass * l.atoms.CDF(x)
+	}
+	return math.Min(1, f)
+}
+
+// Survival returns P(X > x), computed directly (tilted in the upper tail).
+func (l *numLaw) Survival(x float64) float64 {
+	switch {
+	case math.IsNaN(x):
+		return x
+	case x < l.supLo:
+		return 1
+	case x >= l.supHi:
+		return 0
+	}
+	_, s := l.cont(x - l.c)
+	if l.atomMass > 0 {
+		s += l.atomMass * l.atoms.Survival(x)
+	}
+	return math.Min(1, s)
+}
+
+// Quantile inverts CDF (or Survival above the median) by bisection.
+func (l *numLaw) Quantile(p float64) float64 { return quantileByInversion(l, p) }
+
+// UpperQuantile inverts Survival by bisection; accurate for tiny q.
+func (l *numLaw) UpperQuantile(q float64) float64 { return upperQuantileByInversion(l, q) }
+
+// Mean returns the exact mean (the sum of the terms' means).
+func (l *numLaw) Mean() float64 { return l.mean }
+
+// Variance returns the exact variance (from the terms' variances).
+func (l *numLaw) Variance() float64 { return l.variance }
+
+// Support returns the support implied by the terms' supports.
+func (l *numLaw) Support() (lo, hi float64) { return l.supLo, l.supHi }
+
+// Rand draws from the structure of the law (the terms' own samplers).
+func (l *numLaw) Rand(r *rand.Rand) float64 { return l.sample(r) }
+
+// Accuracy reports the error estimate of CDF and Survival.
+func (l *numLaw) Accuracy() Accuracy { return l.acc }
+
+// Atoms lists the exact atoms of the law (none when a term is continuous).
+func (l *numLaw) Atoms() []Atom {
+	if l.atomMass <= 0 {
+		return nil
+	}
+	out := l.atoms.Atoms()
+	for i := range out {
+		out[i].Mass *= l.atomMass
+	}
+	return out
+}
+
+// CF returns the characteristic function E[exp(i·t·X)].
+func (l *numLaw) CF(t float64) complex128 {
+	if math.IsNaN(t) {
+		return complex(math.NaN(), math.NaN())
+	}
+	s := complex(0, t)
+	return cmplx.Exp(l.tr.logm(s) + s*complex(l.c, 0))
+}
+
+// transform returns the uncentred log-transform, for nesting.
+func (l *numLaw) transform() transform {
+	tr := l.tr
+	c := complex(l.c, 0)
+	return transform{logm: func(s complex128) complex128 { return tr.logm(s) + s*c }, lo: tr.lo, hi: tr.hi, err: tr.err + l.acc.CDFAbs*0}
+}
+
+// String prints the law compactly: its kind, mean, standard deviation and
+// 5–95 % range.
+func (l *numLaw) String() string { return fmt.Sprintf("%s(%s)", l.kind, summary(l)) }

@@ -1,0 +1,241 @@
+package dist
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"math/rand/v2"
+)
+
+// countTail is the count mass RandomSum may leave out when the count law has
+// infinite support: it stops at the first n with P(N > n) <= countTail.
+const countTail = 1e-24
+
+// maxCount is the largest count value RandomSum will expand.
+const maxCount = 1 << 20
+
+// RandomSum returns the law of X_1 + … + X_N, where N has the law count on
+// {0, 1, 2, …} and the X_i are independent copies of term, independent of
+// N (the energy of a frame sent until acknowledged, say). N = 0 gives the
+// empty sum 0.
+//
+// The transform is the count's generating function composed with the
+// term's, G(M_X(s)) = Σ_n P(N = n)·exp(n·log M_X(s)), inverted as in Sum;
+// an exact Discrete results when term is a finite discrete law and count is
+// finite. A count with infinite support is expanded up to the first n with
+// P(N > n) <= 1e-24 (that mass is the stated extra error). Atoms: P(N = 0)
+// at 0, plus the exact atoms of the term's powers when the term has atoms.
+// Mean = E[N]·E[X], Variance = E[N]·Var X + Var N·(E X)². Rand draws N and
+// then N terms.
+//
+// count may be a Discrete, any law listing its atoms (Atomic), or any law
+// whose CDF steps only at the non-negative integers (probed at n - 1/2 and
+// just below n). Errors wrap ErrParam: nil laws, a count with mass off the
+// non-negative integers, a count needing more than 2^20 terms; ErrMoment for
+// a term or count without finite mean and variance.
+func RandomSum(count, term Law) (Law, error) {
+	const fn = "RandomSum"
+	if count == nil {
+		return nil, paramErr(fn, "count", nil, "must not be nil")
+	}
+	if term == nil {
+		return nil, paramErr(fn, "term", nil, "must not be nil")
+	}
+	ns, ps, tail, err := countMasses(count)
+	if err != nil {
+		return nil, err
+	}
+	if len(ns) == 1 {
+		if ns[0] == 0 {
+			return NewPointMass(0)
+		}
+		return SumIID(term, ns[0])
+	}
+	en, vn := count.Mean(), count.Variance()
+	mx, vx := term.Mean(), term.Variance()
+	if !finite(en) || !finite(vn) || !finite(mx) || !finite(vx) {
+		return nil, fmt.Errorf("dist.RandomSum: count mean %v and variance %v, term mean %v and variance %v: %w", en, vn, mx, vx, ErrMoment)
+	}
+	nmax := ns[len(ns)-1]
+	if d, ok := term.(Discrete); ok && tail == 0 {
+		var atoms []Atom
+		pow := []Atom{{Value: 0, Mass: 1}}
+		j := 0
+		for n := 0; n <= nmax; n++ {
+			if n > 0 {
+				if pow, err = convolveAtoms(fn, pow, d.Atoms()); err != nil {
+					return nil, err
+				}
+			}
+			if ns[j] == n {
+				for _, a := range pow {
+					atoms = append(atoms, Atom{Value: a.Value, Mass: a.Mass * ps[j]})
+				}
+				j++
+			}
+		}
+		atoms = mergeAtoms(atoms)
+		if len(atoms) > MaxSumAtoms {
+			return nil, paramErr(fn, "term", fmt.Sprintf("%d atoms", len(atoms)), fmt.Sprintf("an exact discrete random sum may have at most %d atoms", MaxSumAtoms))
+		}
+		return discreteFromAtoms(atoms), nil
+	}
+	t, ok := transformOf(term)
+	if !ok {
+		return nil, fmt.Errorf("dist.RandomSum: term %v has no known characteristic function: %w", term, ErrParam)
+	}
+	// exact atomic part: Σ_n p_n·(atoms of the term)^{*n}
+	var atoms []Atom
+	termAtoms := []Atom(nil)
+	aMass := 0.0
+	if al, ok := term.(Atomic); ok {
+		termAtoms = al.Atoms()
+		for _, a := range termAtoms {
+			aMass += a.Mass
+		}
+	}
+	pow := []Atom{{Value: 0, Mass: 1}}
+	for j, n := range ns {
+		if j > 0 {
+			if len(termAtoms) == 0 || float64(n)*math.Log(aMass) < math.Log(1e-30) {
+				break
+			}
+			for m := ns[j-1]; m < n; m++ {
+				if pow, err = convolveAtoms(fn, pow, termAtoms); err != nil {
+					return nil, err
+				}
+			}
+		}
+		if n == 0 || len(termAtoms) > 0 {
+			for _, a := range pow {
+				atoms = append(atoms, Atom{Value: a.Value, Mass: a.Mass * ps[j]})
+			}
+		}
+	}
+	atoms = mergeAtoms(atoms)
+	c := en * mx
+	cc := complex(c, 0)
+	fns := make([]float64, len(ns))
+	for i, n := range ns {
+		fns[i] = float64(n)
+	}
+	tr := transform{
+		logm: func(s complex128) complex128 {
+			u := t.logm(s)
+			if cmplx.Abs(u)*float64(nmax) < 0.5 {
+				var sum complex128
+				for i, n := range fns {
+					sum += complex(ps[i], 0) * cexpm1(complex(n, 0)*u)
+				}
+				return clog1p(sum) - s*cc
+			}
+			m := math.Inf(-1)
+			for i, n := range fns {
+				m = math.Max(m, math.Log(ps[i])+n*real(u))
+			}
+			var sum complex128
+			for i, n := range fns {
+				sum += cmplx.Exp(complex(math.Log(ps[i])-m, 0) + complex(n, 0)*u)
+			}
+			return cmplx.Log(sum) + complex(m, 0) - s*cc
+		},
+		lo: t.lo, hi: t.hi, err: float64(nmax) * t.err,
+	}
+	tlo, thi := term.Support()
+	nmin, nTop := float64(ns[0]), float64(nmax)
+	if tail > 0 {
+		nTop = math.Inf(1)
+	}
+	supLo := math.Min(prodInf(nmin, tlo), prodInf(nTop, tlo))
+	supHi := math.Max(prodInf(nmin, thi), prodInf(nTop, thi))
+	sp := numSpec{
+		kind: "RandomSum", tr: tr, c: c, mean: c, variance: en*vx + vn*mx*mx, atoms: atoms,
+		supLo: supLo, supHi: supHi, extraErr: tail,
+		fallback: func(eps float64) (a, b float64) {
+			e := eps / float64(nmax)
+			ql, qh := term.Quantile(e), term.UpperQuantile(e)
+			a = math.Min(0, float64(nmax)*ql) - c
+			b = math.Max(0, float64(nmax)*qh) - c
+			return a, b
+		},
+		sample: func(r *rand.Rand) float64 {
+			n := int(math.Round(count.Rand(r)))
+			x := 0.0
+			for i := 0; i < n; i++ {
+				x += term.Rand(r)
+			}
+			return x
+		},
+	}
+	return newNumLaw(sp)
+}
+
+// prodInf returns n·x with 0·Inf = 0.
+func prodInf(n, x float64) float64 {
+	if n == 0 {
+		return 0
+	}
+	return n * x
+}
+
+// countMasses returns the values n (sorted, distinct) and masses of a count
+// law on the non-negative integers, and the mass left out beyond the last.
+func countMasses(count Law) (ns []int, ps []float64, tail float64, err error) {
+	const fn = "RandomSum"
+	isInt := func(v float64) (int, bool) {
+		r := math.Round(v)
+		return int(r), v >= -0.0 && math.Abs(v-r) <= 1e-9*math.Max(1, math.Abs(v)) && r <= maxCount
+	}
+	if al, ok := count.(Atomic); ok {
+		atoms := al.Atoms()
+		total := 0.0
+		for _, a := range atoms {
+			total += a.Mass
+		}
+		if len(atoms) > 0 && math.Abs(total-1) <= 1e-9 {
+			for _, a := range atoms {
+				n, ok := isInt(a.Value)
+				if !ok {
+					return nil, nil, 0, paramErr(fn, "count", fmt.Sprintf("atom at %v", a.Value), "must have its mass on the non-negative integers")
+				}
+				if len(ns) > 0 && ns[len(ns)-1] == n {
+					ps[len(ps)-1] += a.Mass
+					continue
+				}
+				ns, ps = append(ns, n), append(ps, a.Mass)
+			}
+			return ns, ps, 0, nil
+		}
+	}
+	lo, _ := count.Support()
+	if !(lo >= 0) {
+		return nil, nil, 0, paramErr(fn, "count", fmt.Sprintf("support from %v", lo), "must have its mass on the non-negative integers")
+	}
+	prevF := 0.0
+	for n := 0; n <= maxCount; n++ {
+		x := float64(n)
+		fHalf := count.CDF(x - 0.5)
+		fNear := count.CDF(x - 1e-6)
+		if math.Abs(fHalf-prevF) > 1e-12 || math.Abs(fNear-prevF) > 1e-12 {
+			return nil, nil, 0, paramErr(fn, "count", fmt.Sprintf("CDF(%v) - CDF(%v) = %v", x-1e-6, x-1, fNear-prevF), "must have its mass on the non-negative integers")
+		}
+		f, s := count.CDF(x), count.Survival(x)
+		var p float64
+		if f <= 0.5 {
+			p = f - prevF
+		} else {
+			p = count.Survival(x-1) - s
+			if n == 0 {
+				p = 1 - s
+			}
+		}
+		if p > 0 {
+			ns, ps = append(ns, n), append(ps, p)
+		}
+		prevF = f
+		if s <= countTail {
+			return ns, ps, s, nil
+		}
+	}
+	return nil, nil, 0, paramErr(fn, "count", count, fmt.Sprintf("needs more than %d terms to reach tail mass %g", maxCount, countTail))
+}

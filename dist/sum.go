@@ -1,0 +1,367 @@
+package dist
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+)
+
+// MaxSumAtoms is the largest number of atoms an exact discrete sum may
+// have (after merging within AtomMergeTolerance); beyond it Sum, SumIID and
+// RandomSum return an error wrapping ErrParam.
+const MaxSumAtoms = 1 << 20
+
+// Sum returns the law of X_1 + … + X_n for independent X_i with the given
+// laws (in one unit). The result is exact where it can be and numerical,
+// with a stated error, where it cannot:
+//
+//   - finite discrete laws add exactly: the result is a Discrete, atoms
+//     merged within AtomMergeTolerance (at most MaxSumAtoms atoms);
+//   - normals add to a normal, gammas (and exponentials) with one rate to a
+//     gamma;
+//   - a finite discrete law plus one continuous law is the exact mixture of
+//     shifted copies, Σ p_i·P(C <= x - v_i) (a point mass gives a shift);
+//   - anything else is inverted from the product of the characteristic
+//     functions (Fourier-series method of Abate & Whitt 1992, tails by
+//     exponential tilting; see invert.go). Such a law implements Estimated,
+//     CharFunc and Atomic (its atoms are the exact convolution of the terms'
+//     atoms when every term has atoms), and its error estimate is tested to
+//     bound the true error: CDF absolute error about 1e-12 and survival
+//     relative error about 1e-9 down to 1e-30 for light-tailed terms.
+//
+// Mean and Variance of the result are the sums of the terms' means and
+// variances. Rand draws each term from its own sampler and adds, so Monte
+// Carlo over the result is an independent check of the inversion. A sum that
+// contains a sum is flattened. Errors: no laws, a nil law, a term without
+// finite variance when the sum must be inverted (wraps ErrMoment), or an
+// exact discrete sum with more than MaxSumAtoms atoms.
+func Sum(laws ...Law) (Law, error) {
+	if len(laws) == 0 {
+		return nil, paramErr("Sum", "laws", "[]", "must not be empty")
+	}
+	for i, l := range laws {
+		if l == nil {
+			return nil, paramErr("Sum", fmt.Sprintf("laws[%d]", i), nil, "must not be nil")
+		}
+	}
+	var terms []Law
+	for _, l := range laws {
+		terms = appendFlat(terms, l)
+	}
+	return sumTerms(terms)
+}
+
+// MustSum is Sum that panics on error; for examples and tests.
+func MustSum(laws ...Law) Law {
+	s, err := Sum(laws...)
+	if err != nil {
+		panic(err) // panic-ok: Must form, documented
+	}
+	return s
+}
+
+// appendFlat appends l, or the terms of l when it is itself a sum.
+func appendFlat(terms []Law, l Law) []Law {
+	switch b := l.(type) {
+	case *numLaw:
+		if b.kind == "Sum" && len(b.parts) > 0 {
+			return append(terms, b.parts...)
+		}
+	case shiftMixture:
+		return append(terms, b.d, b.c)
+	case shiftMixtureDensity:
+		return append(terms, b.d, b.c)
+	}
+	return append(terms, l)
+}
+
+func sumTerms(terms []Law) (Law, error) {
+	if len(terms) == 1 {
+		return terms[0], nil
+	}
+	var (
+		disc      []Discrete
+		normMu    float64
+		normVar   float64
+		nNormal   int
+		gammaRate []float64
+		gammaK    []float64
+		gammaN    []int
+		rest      []Law
+	)
+	addGamma := func(k, rate float64) {
+		for i, r := range gammaRate {
+			if r == rate {
+				gammaK[i] += k
+				gammaN[i]++
+				return
+			}
+		}
+		gammaRate, gammaK, gammaN = append(gammaRate, rate), append(gammaK, k), append(gammaN, 1)
+	}
+	for _, t := range terms {
+		switch b := t.(type) {
+		case Discrete:
+			disc = append(disc, b)
+		case Normal:
+			normMu += b.mu
+			normVar += b.sigma * b.sigma
+			nNormal++
+		case Exponential:
+			addGamma(1, b.rate)
+		case Gamma:
+			addGamma(b.shape, b.rate)
+		default:
+			rest = append(rest, t)
+		}
+	}
+	var cont []Law
+	if nNormal > 0 {
+		n, err := NewNormal(normMu, math.Sqrt(normVar))
+		if err != nil {
+			return nil, err
+		}
+		cont = append(cont, n)
+	}
+	for i, r := range gammaRate {
+		if gammaN[i] == 1 && gammaK[i] == 1 {
+			cont = append(cont, Exponential{rate: r})
+			continue
+		}
+		g, err := NewGamma(gammaK[i], r)
+		if err != nil {
+			return nil, err
+		}
+		cont = append(cont, g)
+	}
+	cont = append(cont, rest...)
+	var d Discrete
+	if len(disc) > 0 {
+		atoms := disc[0].Atoms()
+		for _, x := range disc[1:] {
+			var err error
+			if atoms, err = convolveAtoms("Sum", atoms, x.Atoms()); err != nil {
+				return nil, err
+			}
+		}
+		d = discreteFromAtoms(atoms)
+	}
+	if len(cont) == 0 {
+		return d, nil
+	}
+	if len(cont) == 1 && !hasAtoms(cont[0]) {
+		switch {
+		case len(disc) == 0:
+			return cont[0], nil
+		case d.Len() == 1:
+			return Affine(cont[0], 1, d.values[0])
+		}
+		return newShiftMixture(d, cont[0]), nil
+	}
+	parts := cont
+	if len(disc) > 0 {
+		parts = append([]Law{d}, cont...)
+	}
+	return numericSum(terms, parts)
+}
+
+// hasAtoms reports whether l lists at least one atom.
+func hasAtoms(l Law) bool {
+	al, ok := l.(Atomic)
+	return ok && len(al.Atoms()) > 0
+}
+
+// convolveAtoms returns the atoms of the sum of two independent atomic
+// parts (masses multiply), merged.
+func convolveAtoms(fn string, a, b []Atom) ([]Atom, error) {
+	if len(a)*len(b) > 16*MaxSumAtoms {
+		return nil, paramErr(fn, "laws", fmt.Sprintf("%d×%d atoms", len(a), len(b)), fmt.Sprintf("an exact discrete sum may have at most %d atoms", MaxSumAtoms))
+	}
+	out := make([]Atom, 0, len(a)*len(b))
+	for _, x := range a {
+		for _, y := range b {
+			out = append(out, Atom{Value: x.Value + y.Value, Mass: x.Mass * y.Mass})
+		}
+	}
+	out = mergeAtoms(out)
+	if len(out) > MaxSumAtoms {
+		return nil, paramErr(fn, "laws", fmt.Sprintf("%d atoms", len(out)), fmt.Sprintf("an exact discrete sum may have at most %d atoms", MaxSumAtoms))
+	}
+	return out, nil
+}
+
+// numericSum builds the inverted law of the sum of parts (grouped terms);
+// terms are the original, flattened terms (for moments and sampling).
+func numericSum(terms, parts []Law) (Law, error) {
+	trs := make([]transform, len(parts))
+	lo, hi := math.Inf(-1), math.Inf(1)
+	var errSum float64
+	for i, p := range parts {
+		t, ok := transformOf(p)
+		if !ok {
+			return latticeSum(terms)
+		}
+		trs[i] = t
+		lo, hi = math.Max(lo, t.lo), math.Min(hi, t.hi)
+		errSum += t.err
+	}
+	var mean, variance, supLo, supHi float64
+	for _, t := range terms {
+		mean += t.Mean()
+		variance += t.Variance()
+		a, b := t.Support()
+		supLo += a
+		supHi += b
+	}
+	if math.IsNaN(supLo) {
+		supLo = math.Inf(-1)
+	}
+	if math.IsNaN(supHi) {
+		supHi = math.Inf(1)
+	}
+	// exact atomic part: present only when every part has atoms
+	var atoms []Atom
+	all := true
+	for _, p := range parts {
+		if !hasAtoms(p) {
+			all = false
+			break
+		}
+	}
+	if all {
+		atoms = []Atom{{Value: 0, Mass: 1}}
+		for _, p := range parts {
+			var err error
+			if atoms, err = convolveAtoms("Sum", atoms, p.(Atomic).Atoms()); err != nil {
+				return nil, err
+			}
+		}
+	}
+	c := mean
+	cc := complex(c, 0)
+	tr := transform{
+		logm: func(s complex128) complex128 {
+			v := -s * cc
+			for _, t := range trs {
+				v += t.logm(s)
+			}
+			return v
+		},
+		lo: lo, hi: hi, err: errSum,
+	}
+	ts := append([]Law(nil), terms...)
+	sp := numSpec{
+		kind: "Sum", tr: tr, c: c, mean: mean, variance: variance, atoms: atoms,
+		supLo: supLo, supHi: supHi, parts: ts,
+		fallback: func(eps float64) (a, b float64) {
+			e := eps / float64(len(ts))
+			for _, t := range ts {
+				a += t.Quantile(e)
+				b += t.UpperQuantile(e)
+			}
+			return a - c, b - c
+		},
+		sample: func(r *rand.Rand) float64 {
+			x := 0.0
+			for _, t := range ts {
+				x += t.Rand(r)
+			}
+			return x
+		},
+	}
+	return newNumLaw(sp)
+}
+
+// shiftMixture is D + C for a finite discrete D and a law C without atoms:
+//
+//	F(x) = Σ p_i·F_C(x - v_i),  S(x) = Σ p_i·S_C(x - v_i)
+//
+// exact to rounding, each tail summed from its own terms.
+type shiftMixture struct {
+	d Discrete
+	c Law
+}
+
+func newShiftMixture(d Discrete, c Law) Law {
+	m := shiftMixture{d: d, c: c}
+	if _, ok := c.(Densitied); ok {
+		return shiftMixtureDensity{m}
+	}
+	return m
+}
+
+func (m shiftMixture) CDF(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	s := 0.0
+	for i, v := range m.d.values {
+		s += m.d.probs[i] * m.c.CDF(x-v)
+	}
+	return math.Min(1, s)
+}
+
+func (m shiftMixture) Survival(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	s := 0.0
+	for i, v := range m.d.values {
+		s += m.d.probs[i] * m.c.Survival(x-v)
+	}
+	return math.Min(1, s)
+}
+
+func (m shiftMixture) Quantile(p float64) float64      { return quantileByInversion(m, p) }
+func (m shiftMixture) UpperQuantile(q float64) float64 { return upperQuantileByInversion(m, q) }
+func (m shiftMixture) Mean() float64                   { return m.d.Mean() + m.c.Mean() }
+func (m shiftMixture) Variance() float64               { return m.d.Variance() + m.c.Variance() }
+
+func (m shiftMixture) Support() (lo, hi float64) {
+	a, b := m.c.Support()
+	dl, dh := m.d.Support()
+	return a + dl, b + dh
+}
+
+func (m shiftMixture) Rand(r *rand.Rand) float64 { return m.d.Rand(r) + m.c.Rand(r) }
+
+// CF returns φ_D(t)·φ_C(t) when C's transform is known, else NaN.
+func (m shiftMixture) CF(t float64) complex128 {
+	tr, ok := m.transform()
+	if !ok || math.IsNaN(t) {
+		return complex(math.NaN(), math.NaN())
+	}
+	return cexpm1(tr.logm(complex(0, t))) + 1
+}
+
+func (m shiftMixture) transform() (transform, bool) {
+	tc, ok := transformOf(m.c)
+	if !ok {
+		return transform{}, false
+	}
+	td := atomsTransform(m.d.Atoms())
+	return transform{
+		logm: func(s complex128) complex128 { return td.logm(s) + tc.logm(s) },
+		lo:   tc.lo, hi: tc.hi, err: tc.err,
+	}, true
+}
+
+func (m shiftMixture) String() string {
+	return fmt.Sprintf("Sum(%d-atom discrete + %v: %s)", m.d.Len(), m.c, summary(m))
+}
+
+// shiftMixtureDensity is a shiftMixture whose continuous term has a density.
+type shiftMixtureDensity struct{ shiftMixture }
+
+// Density returns Σ p_i·f_C(x - v_i).
+func (m shiftMixtureDensity) Density(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	f := m.c.(Densitied)
+	s := 0.0
+	for i, v := range m.d.values {
+		s += m.d.probs[i] * f.Density(x-v)
+	}
+	return s
+}

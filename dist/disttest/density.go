@@ -1,0 +1,264 @@
+package disttest
+
+import (
+	"fmt"
+	"math"
+	"slices"
+)
+
+// integrationLevels are the probabilities whose quantiles (from both ends)
+// split the support into pieces for quadrature: decades from 1e-12, then
+// steps of 0.02 to the median.
+func integrationLevels() []float64 {
+	var ps []float64
+	for p := 1e-12; p < 0.015; p *= 10 {
+		ps = append(ps, p)
+	}
+	for k := 1; k <= 25; k++ {
+		ps = append(ps, 0.02*float64(k))
+	}
+	return ps
+}
+
+// maxBreakAtoms caps the atoms used as quadrature breakpoints.
+const maxBreakAtoms = 2048
+
+// breakpoints returns the sorted, distinct pieces' ends for quadrature: the
+// finite support ends, quantiles at integrationLevels from both ends, the
+// median, and each atom v with the float below it, so that an atom sits at
+// the right end of a piece of zero width. With extend, unbounded tails are
+// followed further, by decades down to 1e-30 (but not below the law's
+// reported tail floor), for the moment integrals.
+func (c *checker) breakpoints(extend bool) []float64 {
+	l := c.law
+	pts := []float64{c.median}
+	if finite(c.lo) {
+		pts = append(pts, c.lo)
+	}
+	if finite(c.hi) {
+		pts = append(pts, c.hi)
+	}
+	for _, p := range integrationLevels() {
+		pts = append(pts, l.Quantile(p), l.UpperQuantile(p))
+	}
+	if extend {
+		floor := math.Max(1e-30, c.cfg.tailFloor)
+		for p := 1e-13; p >= floor; p /= 10 {
+			if math.IsInf(c.lo, -1) {
+				if x := l.Quantile(p); finite(x) && math.Abs(x) < 1e300 {
+					pts = append(pts, x)
+				}
+			}
+			if math.IsInf(c.hi, 1) {
+				if x := l.UpperQuantile(p); finite(x) && math.Abs(x) < 1e300 {
+					pts = append(pts, x)
+				}
+			}
+		}
+	}
+	atoms := c.atoms
+	if len(atoms) > maxBreakAtoms {
+		atoms = c.sampled
+	}
+	for _, a := range atoms {
+		pts = append(pts, a.Value, down(a.Value))
+	}
+	out := pts[:0]
+	for _, x := range pts {
+		if finite(x) && x >= c.lo && x <= c.hi {
+			out = append(out, x)
+		}
+	}
+	slices.Sort(out)
+	return slices.Compact(out)
+}
+
+// continuousOutside returns the probability of the continuous part below
+// a and above b: CDF(a) and Survival(b) less the atoms there.
+func (c *checker) continuousOutside(a, b float64) float64 {
+	m := c.law.CDF(a) + c.law.Survival(b)
+	for _, at := range c.atoms {
+		if at.Value <= a || at.Value > b {
+			m -= at.Mass
+		}
+	}
+	return math.Max(m, 0)
+}
+
+// pieceTolerance is the tolerance of a comparison of P(a < X <= b) (value
+// p, from values of magnitude mag) with an integral: the density
+// tolerance, rounding of the subtraction, and the CDF and survival
+// tolerances of the two values.
+func (c *checker) pieceTolerance(a, b, p, mag float64) float64 {
+	t := c.cfg.densityRel*math.Abs(p) + 8*eps*mag + 2*c.cfg.cdfAbs
+	if b > c.median {
+		t += 2 * c.cfg.survivalRel * mag
+	}
+	return t
+}
+
+// checkMass: Σ atom masses + ∫ Density = 1. For a Densitied law the
+// integral is taken piece by piece over breakpoints and the continuous mass
+// beyond the outer breakpoints (about 1e-12 on each unbounded side) is
+// taken from CDF and Survival. A law that is Atomic but not Densitied must
+// have masses summing to 1 unless it has a continuous part, which this
+// check cannot then see.
+func (c *checker) checkMass() {
+	atomSum := 0.0
+	for _, a := range c.atoms {
+		atomSum += a.Mass
+	}
+	if c.density == nil {
+		return
+	}
+	br := c.breakpoints(false)
+	if len(br) < 2 {
+		if math.Abs(atomSum-1) > 1e-12 {
+			c.fail(CheckMass, "the atoms (support of one point)", "masses summing to 1", g(atomSum))
+		}
+		return
+	}
+	in := newIntegrator(20000)
+	total, errSum := atomSum, 0.0
+	for i := 0; i+1 < len(br); i++ {
+		a, b := br[i], br[i+1]
+		v, e, _ := in.integrate(1, scalar(c.density), a, b, 1e-13, 1e-300)
+		total += v[0]
+		errSum += e
+		p, mag := c.massBetween(a, b)
+		tol := c.pieceTolerance(a, b, p, mag) + 2*e
+		got := v[0] + c.atomsIn(a, b)
+		if !(math.Abs(got-p) <= tol) {
+			c.fail(CheckDensity, fmt.Sprintf("(%s, %s]", g(a), g(b)),
+				fmt.Sprintf("∫Density + atoms = P(a < X <= b) = %s within %.3g", g(p), tol), g(got))
+		}
+	}
+	total += c.continuousOutside(br[0], br[len(br)-1])
+	tol := 1e-11 + 2*c.cfg.densityRel + 4*c.cfg.cdfAbs + 2*errSum
+	if !(math.Abs(total-1) <= tol) {
+		c.fail(CheckMass, fmt.Sprintf("[%s, %s] and the tails beyond", g(br[0]), g(br[len(br)-1])),
+			fmt.Sprintf("Σ atoms + ∫Density = 1 within %.3g", tol), g(total))
+	}
+}
+
+// checkDensity, for a Densitied law: Density is >= 0 (not NaN) on the
+// grid and 0 outside a finite support; and at interior quantiles away from
+// atoms it matches the derivative of the CDF, taken as a central
+// difference (of CDF below the median, of Survival above), extrapolated
+// from steps h and h/2, where the CDF is smooth at that scale. (The
+// piecewise integral comparison is made by checkMass.)
+func (c *checker) checkDensity() {
+	if c.density == nil {
+		return
+	}
+	for _, x := range c.grid {
+		if d := c.density(x); !(d >= 0) {
+			c.fail(CheckDensity, "x = "+g(x), "Density >= 0", g(d))
+		}
+	}
+	for _, x := range []float64{c.lo - c.spread, c.hi + c.spread} {
+		if finite(x) && (x < c.lo || x > c.hi) {
+			if d := c.density(x); d != 0 {
+				c.fail(CheckDensity, fmt.Sprintf("x = %s (outside the support)", g(x)), "0", g(d))
+			}
+		}
+	}
+	l := c.law
+	var xs []float64
+	for _, p := range []float64{1e-6, 0.01, 0.05, 0.1, 0.25, 0.5} {
+		xs = append(xs, l.Quantile(p), l.UpperQuantile(p))
+	}
+	for _, x := range sortedFinite(xs) {
+		if !(x > c.lo && x < c.hi) {
+			continue
+		}
+		h := 1e-4 * math.Min(c.spread, math.Min(x-c.lo, c.hi-x))
+		if !(h > 0) || c.nearAtom(x, 2*h) {
+			continue
+		}
+		f := c.density(x)
+		diff := func(h float64) (d, mag float64) {
+			p, m := c.massBetween(x-h, x+h)
+			return (p - c.atomsIn(x-h, x+h)) / (2 * h), m
+		}
+		d1, mag := diff(h)
+		d2, _ := diff(h / 2)
+		trunc := math.Abs(d1 - d2)
+		if !(trunc <= 0.01*math.Max(f, math.Abs(d2))) {
+			continue // not smooth at this scale (a kink or a jump nearby)
+		}
+		est := (4*d2 - d1) / 3
+		tol := math.Max(1e-6, c.cfg.densityRel)*f + trunc +
+			(1e3*eps*mag+2*c.cfg.cdfAbs+2*c.cfg.survivalRel*mag)/h
+		if !(math.Abs(est-f) <= tol) {
+			c.fail(CheckDensity, fmt.Sprintf("x = %s (step %s)", g(x), g(h)),
+				fmt.Sprintf("Density = dCDF/dx = %s within %.3g", g(est), tol), g(f))
+		}
+	}
+}
+
+// checkMoments: a finite Mean equals c + ∫_c^∞ S(x) dx - ∫_{-∞}^c F(x) dx
+// and a finite Variance equals 2∫_c^∞ (x-c)·S(x) dx + 2∫_{-∞}^c (c-x)·F(x) dx
+// - (Mean - c)², with c the median (for a law on [0, ∞) and c = 0 these are
+// the familiar E[X] = ∫ S and E[X²] = 2∫ x·S). The integrals run over
+// breakpoints extended into the tails down to probability 1e-30.
+func (c *checker) checkMoments() {
+	l := c.law
+	m, v := l.Mean(), l.Variance()
+	if !finite(m) {
+		return
+	}
+	c0 := c.median
+	if !finite(c0) {
+		c0 = m
+	}
+	br := sortedFinite(append(c.breakpoints(true), c0))
+	if len(br) < 2 {
+		if len(br) == 1 && (m != br[0] || (finite(v) && v != 0)) {
+			c.fail(CheckMoments, "a one-point law at "+g(br[0]), fmt.Sprintf("mean %s, variance 0", g(br[0])),
+				fmt.Sprintf("mean %s, variance %s", g(m), g(v)))
+		}
+		return
+	}
+	in := newIntegrator(20000)
+	var e1, e2, err1, err2 float64
+	for i := 0; i+1 < len(br); i++ {
+		a, b := br[i], br[i+1]
+		var f func(float64, []float64)
+		sign := 1.0
+		if b <= c0 {
+			sign = -1
+			f = func(x float64, out []float64) { F := l.CDF(x); out[0], out[1] = F, (c0-x)*F }
+		} else {
+			f = func(x float64, out []float64) { S := l.Survival(x); out[0], out[1] = S, (x-c0)*S }
+		}
+		val, e, _ := in.integrate(2, f, a, b, 1e-13, 1e-300)
+		e1 += sign * val[0]
+		e2 += 2 * val[1]
+		err1 += e
+		err2 += 2 * e * math.Max(math.Abs(a-c0), math.Abs(b-c0))
+	}
+	width := br[len(br)-1] - br[0]
+	sd := math.Sqrt(v)
+	if !finite(sd) || sd == 0 {
+		sd = c.spread
+	}
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		sd = c.spread
+	}
+	mean := c0 + e1
+	tolM := c.cfg.momentRel*(math.Abs(m-c0)+sd) + c.cfg.cdfAbs*width + 2*err1 + 1e-14*math.Abs(m)
+	if !(math.Abs(mean-m) <= tolM) {
+		c.fail(CheckMoments, fmt.Sprintf("∫ over [%s, %s], split at %s", g(br[0]), g(br[len(br)-1]), g(c0)),
+			fmt.Sprintf("Mean() = %s = c + ∫S - ∫F within %.3g", g(m), tolM), g(mean))
+	}
+	if !finite(v) {
+		return
+	}
+	variance := e2 - e1*e1
+	tolV := c.cfg.momentRel*(v+(m-c0)*(m-c0)) + c.cfg.cdfAbs*width*width + 2*err2 + 2*math.Abs(e1)*tolM
+	if !(math.Abs(variance-v) <= tolV) {
+		c.fail(CheckMoments, fmt.Sprintf("∫ over [%s, %s], split at %s", g(br[0]), g(br[len(br)-1]), g(c0)),
+			fmt.Sprintf("Variance() = %s = 2∫(x-c)S + 2∫(c-x)F - (mean-c)² within %.3g", g(v), tolV), g(variance))
+	}
+}

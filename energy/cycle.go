@@ -193,7 +193,7 @@ func (c Cycle) States() []State {
 // configurations, powers and durations. It is the independent Monte Carlo
 // path against which the law is checked.
 func (c Cycle) Rand(r *rand.Rand) float64 {
-	e, _ := c.active.sample(r, c.floor)
+	e, _ := c.active.sample(r, c.floor, nil)
 	return c.floor*c.period.Rand(r) + e
 }
 

@@ -32,8 +32,9 @@ type Stage interface {
 	fmt.Stringer
 	isStage()
 	// sample draws the energy above the floor power floor (J) and the
-	// active time (s) of one run, from the structure.
-	sample(r *rand.Rand, floor float64) (excess, active float64)
+	// active time (s) of one run, from the structure; rec, if not nil, is
+	// told each state's energy above the floor.
+	sample(r *rand.Rand, floor float64, rec recorder) (excess, active float64)
 	// laws returns the laws of the energy above floor (J) and of the active
 	// time (s) of one run.
 	laws(floor float64) (excess, active dist.Law, err error)
@@ -43,6 +44,10 @@ type Stage interface {
 	// visit calls f on every state the stage can run.
 	visit(f func(State))
 }
+
+// recorder is told the energy above the floor (J) of each state run while
+// sampling; tests use it to check the breakdown.
+type recorder func(state string, excess float64)
 
 // moments holds exact moments of a stage's energy above the floor X and
 // active time T, and, per state name, the parts that make the breakdown.
@@ -79,9 +84,9 @@ type nothing struct{}
 // floor: the "nothing happens" branch of a Choice.
 func Nothing() Stage { return nothing{} }
 
-func (nothing) isStage()                                  {}
-func (nothing) String() string                            { return "nothing" }
-func (nothing) sample(*rand.Rand, float64) (e, t float64) { return 0, 0 }
+func (nothing) isStage()                                            {}
+func (nothing) String() string                                      { return "nothing" }
+func (nothing) sample(*rand.Rand, float64, recorder) (e, t float64) { return 0, 0 }
 func (nothing) laws(float64) (excess, active dist.Law, err error) {
 	z := dist.MustPointMass(0)
 	return z, z, nil
@@ -130,9 +135,9 @@ func (q sequence) String() string {
 	return "sequence(" + strings.Join(parts, "; ") + ")"
 }
 
-func (q sequence) sample(r *rand.Rand, floor float64) (e, t float64) {
+func (q sequence) sample(r *rand.Rand, floor float64, rec recorder) (e, t float64) {
 	for _, s := range q.stages {
-		de, dt := s.sample(r, floor)
+		de, dt := s.sample(r, floor, rec)
 		e += de
 		t += dt
 	}
@@ -275,8 +280,8 @@ func (c choice) pick(r *rand.Rand) int {
 	return len(c.probs) - 1
 }
 
-func (c choice) sample(r *rand.Rand, floor float64) (e, t float64) {
-	return c.stages[c.pick(r)].sample(r, floor)
+func (c choice) sample(r *rand.Rand, floor float64, rec recorder) (e, t float64) {
+	return c.stages[c.pick(r)].sample(r, floor, rec)
 }
 
 func (c choice) laws(floor float64) (excess, active dist.Law, err error) {
@@ -406,10 +411,10 @@ func (repeat) isStage() {}
 
 func (p repeat) String() string { return fmt.Sprintf("repeat(%v × %v)", p.count, p.stage) }
 
-func (p repeat) sample(r *rand.Rand, floor float64) (e, t float64) {
+func (p repeat) sample(r *rand.Rand, floor float64, rec recorder) (e, t float64) {
 	n := int(math.Round(p.count.Rand(r)))
 	for range n {
-		de, dt := p.stage.sample(r, floor)
+		de, dt := p.stage.sample(r, floor, rec)
 		e += de
 		t += dt
 	}
@@ -503,16 +508,16 @@ func (c configured) String() string {
 	return "configured(" + strings.Join(parts, " | ") + ")"
 }
 
-func (c configured) sample(r *rand.Rand, floor float64) (e, t float64) {
+func (c configured) sample(r *rand.Rand, floor float64, rec recorder) (e, t float64) {
 	u := r.Float64()
 	acc := 0.0
 	for i, p := range c.probs {
 		acc += p
 		if u < acc {
-			return c.stages[i].sample(r, floor)
+			return c.stages[i].sample(r, floor, rec)
 		}
 	}
-	return c.stages[len(c.stages)-1].sample(r, floor)
+	return c.stages[len(c.stages)-1].sample(r, floor, rec)
 }
 
 func (c configured) laws(floor float64) (excess, active dist.Law, err error) {

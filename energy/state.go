@@ -193,9 +193,13 @@ func (s State) String() string {
 
 func (s State) isStage() {}
 
-func (s State) sample(r *rand.Rand, floor float64) (excess, active float64) {
+func (s State) sample(r *rand.Rand, floor float64, rec recorder) (excess, active float64) {
 	p, t := s.power.Rand(r), s.duration.Rand(r)
-	return (p - floor) * t, t
+	e := (p - floor) * t
+	if rec != nil {
+		rec(s.name, e)
+	}
+	return e, t
 }
 
 func (s State) laws(floor float64) (excess, active dist.Law, err error) {

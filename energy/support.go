@@ -14,11 +14,11 @@ func sum(ls ...dist.Law) (dist.Law, error) {
 	if len(ls) == 1 {
 		return ls[0], nil
 	}
-	return nil, errNotYet
+	return dist.Sum(ls...)
 }
 
 // randomSum returns the law of Σ_{k<=N} Y_k.
-func randomSum(count, term dist.Law) (dist.Law, error) { return nil, errNotYet }
+func randomSum(count, term dist.Law) (dist.Law, error) { return dist.RandomSum(count, term) }
 
 // product returns the law of x·y for independent x, y.
 func product(x, y dist.Law) (dist.Law, error) {
@@ -29,4 +29,12 @@ func product(x, y dist.Law) (dist.Law, error) {
 		return dist.ScaleByDiscrete(y, d)
 	}
 	return nil, errNotYet
+}
+
+// sumIID returns the law of the sum of k independent copies of l.
+func sumIID(l dist.Law, k int64) (dist.Law, error) {
+	if k > int64(^uint(0)>>1) {
+		return nil, paramErr("sumIID", "k", k, "too large")
+	}
+	return dist.SumIID(l, int(k))
 }

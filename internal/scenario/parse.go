@@ -1,0 +1,375 @@
+package scenario
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strings"
+
+	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/radio/lora"
+)
+
+const (
+	maxNodes    = 100000
+	maxGateways = 8
+	maxGroups   = 64
+	maxWork     = 16
+)
+
+// Parse reads a scenario file (see the package doc for the format) and
+// checks every field. It returns all problems found, joined, each a
+// *FieldError wrapping ErrInvalid; a scenario with any problem is rejected
+// whole.
+func Parse(data []byte) (Scenario, error) {
+	root, err := decode(data)
+	if err != nil {
+		return Scenario{}, err
+	}
+	c := &checker{}
+	top := c.object("", root, "format", "site", "description", "region", "radio_environment", "node", "cell", "gateways", "groups", "plan")
+	var s Scenario
+	if f := top.str("format", true); top.ok && f != "" && f != FormatVersion {
+		c.fail("format", f, fmt.Sprintf("must be %q (the only version this program reads)", FormatVersion))
+	}
+	s.Site = top.str("site", true)
+	s.Description = top.str("description", false)
+	regionOK := false
+	if name := top.str("region", true); name != "" {
+		if eu := lora.EU868(); name == eu.Name() {
+			s.Region, regionOK = eu, true
+		} else {
+			c.fail("region", name, fmt.Sprintf("must be %q (the only region modelled so far)", eu.Name()))
+		}
+	}
+	env, _ := top.get("radio_environment")
+	s.Environment = readEnvironment(c, env)
+	node, _ := top.get("node")
+	s.Node = readNode(c, node, s.Region, regionOK)
+	cell, _ := top.get("cell")
+	s.Cell = readCell(c, cell)
+	s.Gateways = readGateways(c, top.array("gateways", 1, maxGateways))
+	s.Groups = readGroups(c, top.array("groups", 1, maxGroups), s, regionOK)
+	plan, _ := top.get("plan")
+	s.Plan = readPlan(c, plan)
+	checkCurrents(c, s)
+	checkOverlap(c, s)
+	if err := c.err(); err != nil {
+		return Scenario{}, err
+	}
+	return s, nil
+}
+
+func readEnvironment(c *checker, v any) Environment {
+	if v == nil {
+		return Environment{} // missing: reported by the caller's get
+	}
+	const p = "radio_environment"
+	o := c.object(p, v, "reference_distance_m", "reference_loss_db", "loss_exponent", "shadowing_sd_db", "gateway_noise_figure_db", "installation_margin_db")
+	var e Environment
+	e.ReferenceDistance, _ = o.number("reference_distance_m", openLow(0, 10000))
+	e.ReferenceLoss, _ = o.number("reference_loss_db", closed(0, 200))
+	e.LossExponent, _ = o.number("loss_exponent", closed(1, 8))
+	e.ShadowingSD, _ = o.number("shadowing_sd_db", closed(0, 20))
+	e.NoiseFigure, _ = o.number("gateway_noise_figure_db", closed(0, 20))
+	e.InstallationMargin, _ = o.number("installation_margin_db", closed(0, 40))
+	return e
+}
+
+func readNode(c *checker, v any, region lora.Region, regionOK bool) Node {
+	if v == nil {
+		return Node{}
+	}
+	const p = "node"
+	o := c.object(p, v, "supply_voltage_v", "sleep_current_ua", "wait_current_ma", "receive_current_ma", "receive_window_symbols", "receive_window_margin_ms", "transmit_current_ma")
+	var n Node
+	n.Voltage, _ = o.number("supply_voltage_v", openLow(0, 60))
+	ua, _ := o.number("sleep_current_ua", closed(0, 1e6))
+	n.Sleep = ua * energy.MicroAmp
+	ma, _ := o.number("wait_current_ma", closed(0, 1000))
+	n.Wait = ma * energy.MilliAmp
+	ma, _ = o.number("receive_current_ma", closed(0, 1000))
+	n.Receive = ma * energy.MilliAmp
+	n.WindowSymbols, _ = o.integer("receive_window_symbols", 4, 64)
+	ms, _ := o.number("receive_window_margin_ms", closed(0, 1000))
+	n.WindowMargin = ms * energy.Millisecond
+
+	levels := o.array("transmit_current_ma", 1, 32)
+	if levels == nil {
+		return n
+	}
+	var want []float64
+	if regionOK {
+		want = region.TXPowers()
+	}
+	var seen []float64
+	for i, lv := range levels {
+		lp := index(p+".transmit_current_ma", i)
+		lo := c.object(lp, lv, "eirp_dbm", "current_ma")
+		eirp, okE := lo.number("eirp_dbm", closed(-30, 40))
+		cur, okC := lo.number("current_ma", openLow(0, 1000))
+		if !okE {
+			continue
+		}
+		if regionOK && !slices.ContainsFunc(want, func(w float64) bool { return math.Abs(w-eirp) < 1e-9 }) {
+			c.fail(lp+".eirp_dbm", eirp, fmt.Sprintf("is not a TXPower level of %s (%s dBm)", region.Name(), list(want)))
+			continue
+		}
+		if slices.ContainsFunc(seen, func(w float64) bool { return math.Abs(w-eirp) < 1e-9 }) {
+			c.fail(lp+".eirp_dbm", eirp, "is listed twice")
+			continue
+		}
+		seen = append(seen, eirp)
+		if okC {
+			n.Transmit = append(n.Transmit, TransmitLevel{EIRP: eirp, Current: cur * energy.MilliAmp})
+		}
+	}
+	if regionOK {
+		var missing []float64
+		for _, w := range want {
+			if !slices.ContainsFunc(seen, func(x float64) bool { return math.Abs(w-x) < 1e-9 }) {
+				missing = append(missing, w)
+			}
+		}
+		if len(missing) > 0 {
+			c.fail(p+".transmit_current_ma", note(fmt.Sprintf("%d levels", len(levels))), fmt.Sprintf("must give a current for every TXPower level of %s (%s dBm); missing %s dBm", region.Name(), list(want), list(missing)))
+		}
+		// Order by TXPower index (EIRP falling).
+		slices.SortFunc(n.Transmit, func(a, b TransmitLevel) int {
+			switch {
+			case a.EIRP > b.EIRP:
+				return -1
+			case a.EIRP < b.EIRP:
+				return 1
+			}
+			return 0
+		})
+	}
+	return n
+}
+
+func list(xs []float64) string {
+	s := make([]string, len(xs))
+	for i, x := range xs {
+		s[i] = fmt.Sprintf("%g", x)
+	}
+	return strings.Join(s, ", ")
+}
+
+func readCell(c *checker, v any) energy.BatterySpec {
+	if v == nil {
+		return energy.BatterySpec{}
+	}
+	const p = "cell"
+	o := c.object(p, v, "name", "chemistry", "capacity_mah", "nominal_voltage_v", "cutoff_voltage_v", "usable_fraction", "self_discharge_percent_per_year", "temperature_derating", "pulse_current_ma")
+	var b energy.BatterySpec
+	b.Name = o.str("name", true)
+	b.Chemistry = o.str("chemistry", false)
+	mah, okCap := o.number("capacity_mah", openLow(0, 1e7))
+	b.Charge = mah * energy.MilliAmpHour
+	var okV bool
+	b.NominalVoltage, okV = o.number("nominal_voltage_v", openLow(0, 60))
+	cut, okCut := o.number("cutoff_voltage_v", closed(0, 60))
+	if okV && okCut && cut >= b.NominalVoltage {
+		c.fail(p+".cutoff_voltage_v", cut, fmt.Sprintf("must be below nominal_voltage_v (%g V)", b.NominalVoltage))
+		okCut = false
+	}
+	b.CutoffVoltage = cut
+	var okU, okS, okT, okP bool
+	b.UsableFraction, okU = o.number("usable_fraction", openLow(0, 1))
+	pct, okS := o.number("self_discharge_percent_per_year", openHigh(0, 100))
+	b.SelfDischargePerYear = pct / 100
+	b.TemperatureDerating, okT = o.number("temperature_derating", openLow(0, 1))
+	ma, okP := o.number("pulse_current_ma", closed(0, 1e5))
+	b.PulseCurrent = ma * energy.MilliAmp
+	if okCap && okV && okCut && okU && okS && okT && okP {
+		if _, err := energy.NewBattery(b); err != nil {
+			c.fail(p, b.Name, "rejected by the battery model: "+err.Error())
+		}
+	}
+	return b
+}
+
+func readGateways(c *checker, items []any) []Gateway {
+	var gws []Gateway
+	for i, it := range items {
+		p := index("gateways", i)
+		o := c.object(p, it, "name", "x_m", "y_m")
+		var g Gateway
+		g.Name = o.str("name", true)
+		g.X, _ = o.number("x_m", closed(-1e6, 1e6))
+		g.Y, _ = o.number("y_m", closed(-1e6, 1e6))
+		if g.Name != "" && slices.ContainsFunc(gws, func(h Gateway) bool { return h.Name == g.Name }) {
+			c.fail(p+".name", g.Name, "gateway names must be unique")
+		}
+		gws = append(gws, g)
+	}
+	return gws
+}
+
+func readGroups(c *checker, items []any, s Scenario, regionOK bool) []Group {
+	var groups []Group
+	for i, it := range items {
+		groups = append(groups, readGroup(c, index("groups", i), it, s, regionOK, groups))
+	}
+	return groups
+}
+
+func readGroup(c *checker, p string, v any, s Scenario, regionOK bool, before []Group) Group {
+	o := c.object(p, v, "name", "nodes", "gateway", "inner_radius_m", "outer_radius_m", "payload_bytes", "report_interval_s", "interval_jitter_s", "confirmed", "max_transmissions", "answer_share", "rx1_share", "downlink_payload_bytes", "downlink_loss_probability", "work")
+	var g Group
+	g.Name = o.str("name", true)
+	if g.Name != "" && slices.ContainsFunc(before, func(h Group) bool { return h.Name == g.Name }) {
+		c.fail(p+".name", g.Name, "group names must be unique")
+	}
+	g.Nodes, _ = o.integer("nodes", 1, maxNodes)
+	g.Gateway = -1
+	if name := o.str("gateway", true); name != "" {
+		g.Gateway = slices.IndexFunc(s.Gateways, func(gw Gateway) bool { return gw.Name == name })
+		if g.Gateway < 0 {
+			names := make([]string, len(s.Gateways))
+			for j, gw := range s.Gateways {
+				names[j] = fmt.Sprintf("%q", gw.Name)
+			}
+			c.fail(p+".gateway", name, "must name one of the gateways ("+strings.Join(names, ", ")+")")
+		}
+	}
+	inner, okI := o.number("inner_radius_m", closed(0, 50000))
+	outer, okO := o.number("outer_radius_m", openLow(0, 50000))
+	if okI && okO && outer <= inner {
+		c.fail(p+".outer_radius_m", outer, fmt.Sprintf("must be greater than inner_radius_m (%g m)", inner))
+	}
+	g.InnerRadius, g.OuterRadius = inner, outer
+
+	if regionOK {
+		limit, dr := smallestPayloadLimit(s.Region)
+		g.Payload, _ = o.integer("payload_bytes", 0, limit, fmt.Sprintf("the application payload of DR%d, the slowest data rate ADR may choose in %s", dr, s.Region.Name()))
+		_, rx2 := s.Region.RX2()
+		dlLimit, err := s.Region.MaxAppPayload(rx2, 0)
+		if err != nil {
+			dlLimit = 0
+		}
+		g.DownlinkPayload, _ = o.integer("downlink_payload_bytes", 0, dlLimit, fmt.Sprintf("the application payload of RX2's data rate DR%d", rx2))
+	} else {
+		g.Payload, _ = o.integer("payload_bytes", 0, lora.MaxPHYPayload)
+		g.DownlinkPayload, _ = o.integer("downlink_payload_bytes", 0, lora.MaxPHYPayload)
+	}
+
+	interval, okInt := o.number("report_interval_s", closed(10, 31*86400))
+	g.Interval = interval
+	jitter, okJ := o.number("interval_jitter_s", closed(0, 31*86400))
+	if okInt && okJ && jitter >= interval/2 {
+		c.fail(p+".interval_jitter_s", jitter, fmt.Sprintf("must be less than half of report_interval_s (%g s)", interval/2))
+	}
+	g.Jitter = jitter
+
+	g.Confirmed = o.boolean("confirmed")
+	_, hasConf := o.m["confirmed"]
+	nb, okNb := o.integer("max_transmissions", 1, 15)
+	if okNb && hasConf && !g.Confirmed && nb != 1 {
+		c.fail(p+".max_transmissions", nb, "must be 1 for unconfirmed uplinks (this model sends each unconfirmed frame once)")
+	}
+	g.MaxTransmissions = nb
+	ans, okA := o.number("answer_share", closed(0, 1))
+	if okA && hasConf && g.Confirmed && ans != 1 {
+		c.fail(p+".answer_share", ans, "must be 1 for confirmed uplinks: the network acknowledges every one it receives")
+	}
+	g.AnswerShare = ans
+	g.RX1Share, _ = o.number("rx1_share", closed(0, 1))
+	g.DownlinkLoss, _ = o.number("downlink_loss_probability", openHigh(0, 1))
+
+	for j, w := range o.array("work", 0, maxWork) {
+		wp := index(p+".work", j)
+		wo := c.object(wp, w, "name", "current_ma", "duration_ms", "duration_spread_ms")
+		var st Step
+		st.Name = wo.str("name", true)
+		if st.Name != "" && slices.ContainsFunc(g.Work, func(h Step) bool { return h.Name == st.Name }) {
+			c.fail(wp+".name", st.Name, "work step names must be unique within a group")
+		}
+		for _, reserved := range reservedStates {
+			if st.Name == reserved {
+				c.fail(wp+".name", st.Name, "is the name of a radio state; choose another ("+strings.Join(reservedStates, ", ")+" are taken)")
+			}
+		}
+		ma, _ := wo.number("current_ma", closed(0, 1000))
+		st.Current = ma * energy.MilliAmp
+		ms, okD := wo.number("duration_ms", openLow(0, 600000))
+		sp, okS := wo.number("duration_spread_ms", closed(0, 600000))
+		if okD && okS && sp >= ms {
+			c.fail(wp+".duration_spread_ms", sp, fmt.Sprintf("must be less than duration_ms (%g ms)", ms))
+		}
+		st.Duration, st.Spread = ms*energy.Millisecond, sp*energy.Millisecond
+		g.Work = append(g.Work, st)
+	}
+	return g
+}
+
+// reservedStates are the state names the radio part of a cycle uses.
+var reservedStates = []string{"uplink", "wait", "rx1", "rx2", "ack wait", "sleep"}
+
+// smallestPayloadLimit returns the smallest application payload limit among
+// the data rates ADR may choose, and that data rate.
+func smallestPayloadLimit(r lora.Region) (int, int) {
+	best, bestDR := lora.MaxPHYPayload, -1
+	for _, dr := range r.ADRDataRates() {
+		n, err := r.MaxAppPayload(dr, 0)
+		if err == nil && n < best {
+			best, bestDR = n, dr
+		}
+	}
+	return best, bestDR
+}
+
+func readPlan(c *checker, v any) Plan {
+	if v == nil {
+		return Plan{}
+	}
+	o := c.object("plan", v, "replacement_after_years", "acceptable_risk")
+	years, _ := o.number("replacement_after_years", openLow(0, 50))
+	risk, _ := o.number("acceptable_risk", open(0, 1))
+	return Plan{ReplaceAfter: years * energy.Year, AcceptableRisk: risk}
+}
+
+// checkCurrents: every state must draw at least the floor current.
+func checkCurrents(c *checker, s Scenario) {
+	sleep := s.Node.Sleep
+	if sleep == 0 {
+		return
+	}
+	below := func(field string, a float64) {
+		if a < sleep {
+			c.fail(field, a/energy.MilliAmp, fmt.Sprintf("must be at least the sleep current (%g µA = %g mA)", sleep/energy.MicroAmp, sleep/energy.MilliAmp))
+		}
+	}
+	below("node.wait_current_ma", s.Node.Wait)
+	below("node.receive_current_ma", s.Node.Receive)
+	for i, t := range s.Node.Transmit {
+		below(fmt.Sprintf("node.transmit_current_ma (%g dBm, entry %d by power)", t.EIRP, i), t.Current)
+	}
+	for i, g := range s.Groups {
+		for j, w := range g.Work {
+			below(fmt.Sprintf("groups[%d].work[%d].current_ma", i, j), w.Current)
+		}
+	}
+}
+
+// checkOverlap: service disks of different gateways must not overlap, since
+// collisions are counted per gateway.
+func checkOverlap(c *checker, s Scenario) {
+	reach := make([]float64, len(s.Gateways))
+	for _, g := range s.Groups {
+		if g.Gateway >= 0 && g.Gateway < len(reach) {
+			reach[g.Gateway] = math.Max(reach[g.Gateway], g.OuterRadius)
+		}
+	}
+	for i := range s.Gateways {
+		for j := i + 1; j < len(s.Gateways); j++ {
+			a, b := s.Gateways[i], s.Gateways[j]
+			d := math.Hypot(a.X-b.X, a.Y-b.Y)
+			if reach[i] > 0 && reach[j] > 0 && reach[i]+reach[j] > d {
+				c.fail(fmt.Sprintf("gateways[%d], gateways[%d]", i, j), note(fmt.Sprintf("%q and %q %.0f m apart", a.Name, b.Name, d)),
+					fmt.Sprintf("their groups reach %.0f m and %.0f m, so the service areas overlap; this model counts collisions per gateway and needs them apart", reach[i], reach[j]))
+			}
+		}
+	}
+}

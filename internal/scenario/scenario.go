@@ -1,0 +1,203 @@
+package scenario
+
+import (
+	_ "embed"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+
+	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/radio/lora"
+)
+
+// FormatVersion is the value of the "format" field this package reads.
+const FormatVersion = "joulelaw-scenario/1"
+
+// ErrInvalid is wrapped by every error that reports a bad scenario file.
+var ErrInvalid = errors.New("scenario: invalid")
+
+// FieldError is one problem in a scenario file: the field (a path such as
+// groups[2].payload_bytes), the value found (nil when the field is missing)
+// and the rule it breaks. It wraps ErrInvalid.
+type FieldError struct {
+	Field string
+	Value any
+	Rule  string
+}
+
+// Error implements error.
+func (e *FieldError) Error() string {
+	if e.Value == nil {
+		return fmt.Sprintf("scenario: %s: %s", e.Field, e.Rule)
+	}
+	return fmt.Sprintf("scenario: %s = %s: %s", e.Field, show(e.Value), e.Rule)
+}
+
+// Unwrap returns ErrInvalid.
+func (e *FieldError) Unwrap() error { return ErrInvalid }
+
+// note is a description of a value (such as "7 levels"), shown unquoted.
+type note string
+
+func show(v any) string {
+	switch x := v.(type) {
+	case string:
+		return fmt.Sprintf("%q", x)
+	case float64:
+		return fmt.Sprintf("%g", x)
+	default:
+		return fmt.Sprint(x)
+	}
+}
+
+// Scenario is a checked fleet description, in SI units (A, V, s, m, C) except
+// radio levels (dB, dBm). Parse returns a fresh value each time; treat its
+// slices as read-only (WithCounts returns a modified copy).
+type Scenario struct {
+	Site        string
+	Description string
+	Region      lora.Region
+	Environment Environment
+	Node        Node
+	Cell        energy.BatterySpec // checked with energy.NewBattery
+	Gateways    []Gateway
+	Groups      []Group
+	Plan        Plan
+}
+
+// Environment is the site's path-loss model:
+//
+//	PL(d) = ReferenceLoss + 10·LossExponent·log10(d/ReferenceDistance) + X,  X ~ Normal(0, ShadowingSD)
+type Environment struct {
+	ReferenceDistance  float64 // d0, m
+	ReferenceLoss      float64 // PL(d0), dB
+	LossExponent       float64 // n, dimensionless
+	ShadowingSD        float64 // dB
+	NoiseFigure        float64 // gateway receiver noise figure, dB
+	InstallationMargin float64 // margin kept above the demodulation floor, dB
+}
+
+// Node is the electrical description shared by all nodes.
+type Node struct {
+	Voltage       float64         // supply voltage, V
+	Sleep         float64         // floor current between cycles, A
+	Wait          float64         // current while waiting for the receive windows, A
+	Receive       float64         // current while listening or receiving, A
+	WindowSymbols int             // preamble symbols listened for in an empty window
+	WindowMargin  float64         // extra listening time per empty window for clock error, s
+	Transmit      []TransmitLevel // one per TXPower index of the region, by index
+}
+
+// TransmitLevel is the supply current at one transmit power.
+type TransmitLevel struct {
+	EIRP    float64 // dBm
+	Current float64 // A
+}
+
+// TransmitCurrent returns the current (A) drawn while transmitting at the
+// given EIRP (dBm), and false when the scenario lists no such level.
+func (n Node) TransmitCurrent(eirp float64) (float64, bool) {
+	for _, t := range n.Transmit {
+		if math.Abs(t.EIRP-eirp) < 1e-9 {
+			return t.Current, true
+		}
+	}
+	return 0, false
+}
+
+// Gateway is a gateway's name and position (m, on a local flat grid).
+type Gateway struct {
+	Name string
+	X, Y float64
+}
+
+// Group is a set of identical nodes placed uniformly over an annulus around
+// their gateway.
+type Group struct {
+	Name             string
+	Nodes            int
+	Gateway          int     // index into Scenario.Gateways
+	InnerRadius      float64 // m
+	OuterRadius      float64 // m
+	Payload          int     // application payload, bytes
+	Interval         float64 // mean reporting period, s
+	Jitter           float64 // half-width of the uniform period jitter, s
+	Confirmed        bool
+	MaxTransmissions int     // NbTrans for confirmed uplinks; 1 for unconfirmed
+	AnswerShare      float64 // share of received uplinks the network answers
+	RX1Share         float64 // share of answers sent in RX1
+	DownlinkPayload  int     // application payload of an answer, bytes
+	DownlinkLoss     float64 // probability a sent answer is not received
+	Work             []Step  // done before each uplink, in order
+}
+
+// Step is one piece of work before the uplink: a constant current for a
+// duration uniform in Duration ± Spread.
+type Step struct {
+	Name     string
+	Current  float64 // A
+	Duration float64 // mean, s
+	Spread   float64 // half-width, s
+}
+
+// Plan is the replacement plan to evaluate.
+type Plan struct {
+	ReplaceAfter   float64 // s
+	AcceptableRisk float64 // probability of any failure before ReplaceAfter
+}
+
+// TotalNodes returns the number of nodes over all groups.
+func (s Scenario) TotalNodes() int {
+	n := 0
+	for _, g := range s.Groups {
+		n += g.Nodes
+	}
+	return n
+}
+
+// WithCounts returns a copy of s whose groups have the given node counts
+// (one per group, each >= 1).
+func (s Scenario) WithCounts(counts []int) (Scenario, error) {
+	if len(counts) != len(s.Groups) {
+		return Scenario{}, &FieldError{Field: "counts", Value: len(counts), Rule: fmt.Sprintf("need one count per group (%d)", len(s.Groups))}
+	}
+	c := s
+	c.Gateways = append([]Gateway(nil), s.Gateways...)
+	c.Groups = make([]Group, len(s.Groups))
+	for i, g := range s.Groups {
+		if counts[i] < 1 || counts[i] > maxNodes {
+			return Scenario{}, &FieldError{Field: fmt.Sprintf("counts[%d]", i), Value: counts[i], Rule: fmt.Sprintf("must be an integer in [1, %d]", maxNodes)}
+		}
+		g.Work = append([]Step(nil), g.Work...)
+		g.Nodes = counts[i]
+		c.Groups[i] = g
+	}
+	c.Node.Transmit = append([]TransmitLevel(nil), s.Node.Transmit...)
+	return c, nil
+}
+
+//go:embed demo.json
+var demoJSON []byte
+
+// DemoJSON returns a copy of the built-in demo scenario file.
+func DemoJSON() []byte { return append([]byte(nil), demoJSON...) }
+
+// Demo returns the built-in demo scenario (see the package doc). It panics
+// only if the embedded file is broken, which the tests rule out.
+func Demo() Scenario {
+	s, err := Parse(demoJSON)
+	if err != nil {
+		panic("scenario: embedded demo is invalid: " + err.Error()) // panic-ok: the tests parse the embedded file
+	}
+	return s
+}
+
+// Load reads and parses the scenario file at path.
+func Load(path string) (Scenario, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return Scenario{}, fmt.Errorf("scenario: %w", err)
+	}
+	return Parse(data)
+}

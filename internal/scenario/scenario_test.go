@@ -1,0 +1,252 @@
+package scenario_test
+
+import (
+	"encoding/json"
+	"errors"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/scenario"
+)
+
+func TestDemoParses(t *testing.T) {
+	s := scenario.Demo()
+	assert.Equal(t, "EU863-870", s.Region.Name())
+	assert.Len(t, s.Gateways, 2)
+	assert.Len(t, s.Groups, 4)
+	assert.Equal(t, 304, s.TotalNodes())
+	// Units are converted to SI on reading.
+	assert.InDelta(t, 2.5e-6, s.Node.Sleep, 1e-18)
+	assert.InDelta(t, 0.0115, s.Node.Receive, 1e-15)
+	assert.InDelta(t, 0.010, s.Node.WindowMargin, 1e-15)
+	assert.InDelta(t, 2400*3.6, s.Cell.Charge, 1e-9)
+	assert.InDelta(t, 0.01, s.Cell.SelfDischargePerYear, 1e-15)
+	assert.InDelta(t, 8*energy.Year, s.Plan.ReplaceAfter, 1e-6)
+	g := s.Groups[1]
+	assert.Equal(t, "field soil probes", g.Name)
+	assert.Equal(t, 0, g.Gateway)
+	assert.InDelta(t, 0.35, g.Work[0].Duration, 1e-15)
+	assert.InDelta(t, 0.08, g.Work[0].Spread, 1e-15)
+	// Transmit levels are ordered by TXPower index (EIRP falling) and cover the region.
+	require.Len(t, s.Node.Transmit, len(s.Region.TXPowers()))
+	for i, p := range s.Region.TXPowers() {
+		assert.Equal(t, p, s.Node.Transmit[i].EIRP)
+	}
+	cur, ok := s.Node.TransmitCurrent(14)
+	assert.True(t, ok)
+	assert.InDelta(t, 0.044, cur, 1e-15)
+	_, err := energy.NewBattery(s.Cell)
+	require.NoError(t, err)
+}
+
+func TestDemoJSONIsACopy(t *testing.T) {
+	a := scenario.DemoJSON()
+	a[0] = 'x'
+	b := scenario.DemoJSON()
+	assert.Equal(t, byte('{'), b[0])
+	s, err := scenario.Parse(b)
+	require.NoError(t, err)
+	assert.Equal(t, scenario.Demo().TotalNodes(), s.TotalNodes())
+}
+
+func TestLoad(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "s.json")
+	require.NoError(t, os.WriteFile(path, scenario.DemoJSON(), 0o600))
+	s, err := scenario.Load(path)
+	require.NoError(t, err)
+	assert.Equal(t, 304, s.TotalNodes())
+	_, err = scenario.Load(filepath.Join(dir, "absent.json"))
+	require.Error(t, err)
+}
+
+// mutate returns the demo file with edit applied to its decoded tree.
+func mutate(t *testing.T, edit func(m map[string]any)) []byte {
+	t.Helper()
+	var m map[string]any
+	require.NoError(t, json.Unmarshal(scenario.DemoJSON(), &m))
+	edit(m)
+	out, err := json.Marshal(m)
+	require.NoError(t, err)
+	return out
+}
+
+func obj(v any) map[string]any { return v.(map[string]any) }
+func group(m map[string]any, i int) map[string]any {
+	return obj(m["groups"].([]any)[i])
+}
+
+func TestMalformedRejected(t *testing.T) {
+	cases := []struct {
+		name  string
+		file  func(t *testing.T) []byte
+		field string // the field the message must name
+		value string // the value it must show ("" when missing)
+		rule  string // a piece of the rule it must state
+	}{
+		{"missing field", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { delete(group(m, 1), "payload_bytes") })
+		}, "groups[1].payload_bytes", "", "missing"},
+		{"unknown field", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { group(m, 0)["payload"] = 10 })
+		}, "groups[0].payload", "10", "unknown field"},
+		{"misspelt top-level field", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { m["plans"] = m["plan"]; delete(m, "plan") })
+		}, "plans", "an object", "unknown field"},
+		{"wrong type", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { group(m, 0)["nodes"] = "sixty" })
+		}, "groups[0].nodes", `"sixty"`, "whole number"},
+		{"fractional count", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { group(m, 2)["nodes"] = 12.5 })
+		}, "groups[2].nodes", "12.5", "whole number in [1, 100000]"},
+		{"zero nodes", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { group(m, 2)["nodes"] = 0 })
+		}, "groups[2].nodes", "0", "whole number in [1, 100000]"},
+		{"out of range", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { obj(m["radio_environment"])["loss_exponent"] = -2 })
+		}, "radio_environment.loss_exponent", "-2", "in [1, 8]"},
+		{"payload too large for DR0", func(t *testing.T) []byte {
+			// EU863-870 DR0 carries at most 51 application bytes (RP002-1.0.3, table "EU863-870 maximum payload size").
+			return mutate(t, func(m map[string]any) { group(m, 3)["payload_bytes"] = 52 })
+		}, "groups[3].payload_bytes", "52", "[0, 51] (the application payload of DR0"},
+		{"jitter too large", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { group(m, 1)["interval_jitter_s"] = 450 })
+		}, "groups[1].interval_jitter_s", "450", "less than half of report_interval_s (450 s)"},
+		{"retransmitting unconfirmed", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { group(m, 0)["max_transmissions"] = 3 })
+		}, "groups[0].max_transmissions", "3", "must be 1 for unconfirmed"},
+		{"confirmed not always answered", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { group(m, 2)["answer_share"] = 0.5 })
+		}, "groups[2].answer_share", "0.5", "must be 1 for confirmed"},
+		{"unknown gateway", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { group(m, 3)["gateway"] = "church spire" })
+		}, "groups[3].gateway", `"church spire"`, `"pumping station", "sluice tower"`},
+		{"duplicate group name", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { group(m, 1)["name"] = "dyke piezometers" })
+		}, "groups[1].name", `"dyke piezometers"`, "unique"},
+		{"transmit level missing", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) {
+				n := obj(m["node"])
+				n["transmit_current_ma"] = n["transmit_current_ma"].([]any)[1:]
+			})
+		}, "node.transmit_current_ma", "7 levels", "missing 16 dBm"},
+		{"transmit level not in the region", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) {
+				obj(obj(m["node"])["transmit_current_ma"].([]any)[0])["eirp_dbm"] = 15
+			})
+		}, "node.transmit_current_ma[0].eirp_dbm", "15", "not a TXPower level of EU863-870"},
+		{"cut-off above nominal", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { obj(m["cell"])["cutoff_voltage_v"] = 3.6 })
+		}, "cell.cutoff_voltage_v", "3.6", "below nominal_voltage_v (3.6 V)"},
+		{"self-discharge of 100 %", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { obj(m["cell"])["self_discharge_percent_per_year"] = 100 })
+		}, "cell.self_discharge_percent_per_year", "100", "in [0, 100)"},
+		{"zero capacity", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { obj(m["cell"])["capacity_mah"] = 0 })
+		}, "cell.capacity_mah", "0", "in (0, 1e+07]"},
+		{"wrong format version", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { m["format"] = "joulelaw-scenario/2" })
+		}, "format", `"joulelaw-scenario/2"`, `must be "joulelaw-scenario/1"`},
+		{"region not modelled", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { m["region"] = "US902-928" })
+		}, "region", `"US902-928"`, `must be "EU863-870"`},
+		{"overlapping service areas", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) {
+				obj(m["gateways"].([]any)[1])["x_m"] = 5000
+				obj(m["gateways"].([]any)[1])["y_m"] = 0
+			})
+		}, "gateways[0], gateways[1]", `"pumping station" and "sluice tower" 5000 m apart`, "overlap"},
+		{"current below the floor", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { obj(m["node"])["wait_current_ma"] = 0.001 })
+		}, "node.wait_current_ma", "0.001", "at least the sleep current (2.5 µA"},
+		{"work named like a radio state", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { obj(group(m, 0)["work"].([]any)[0])["name"] = "rx1" })
+		}, "groups[0].work[0].name", `"rx1"`, "name of a radio state"},
+		{"spread as large as the duration", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { obj(group(m, 0)["work"].([]any)[0])["duration_spread_ms"] = 180 })
+		}, "groups[0].work[0].duration_spread_ms", "180", "less than duration_ms (180 ms)"},
+		{"no groups", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { m["groups"] = []any{} })
+		}, "groups", "0 entries", "1 to 64 entries"},
+		{"null value", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { obj(m["plan"])["acceptable_risk"] = nil })
+		}, "plan.acceptable_risk", "null", "must be a number in (0, 1)"},
+		{"risk of one", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { obj(m["plan"])["acceptable_risk"] = 1 })
+		}, "plan.acceptable_risk", "1", "in (0, 1)"},
+		{"not an object", func(t *testing.T) []byte { return []byte(`[1, 2]`) }, "(file)", "an array", "JSON object"},
+		{"syntax error", func(t *testing.T) []byte {
+			return []byte("{\n  \"format\": \"joulelaw-scenario/1\",\n  \"site\": oops\n}")
+		}, "(file)", "line 3", "not valid JSON"},
+		{"trailing data", func(t *testing.T) []byte { return append(scenario.DemoJSON(), []byte(` {}`)...) }, "(file)", "line", "nothing after it"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			s, err := scenario.Parse(tc.file(t))
+			require.Error(t, err)
+			assert.Zero(t, s.TotalNodes(), "nothing is half-read")
+			require.ErrorIs(t, err, scenario.ErrInvalid)
+			var found *scenario.FieldError
+			for _, e := range flatten(err) {
+				var fe *scenario.FieldError
+				if errors.As(e, &fe) && fe.Field == tc.field {
+					found = fe
+					break
+				}
+			}
+			require.NotNil(t, found, "no error names %s; got:\n%v", tc.field, err)
+			msg := found.Error()
+			assert.Contains(t, msg, tc.field)
+			if tc.value == "" {
+				assert.Nil(t, found.Value)
+			} else {
+				assert.Contains(t, msg, tc.value)
+			}
+			assert.Contains(t, msg, tc.rule)
+		})
+	}
+}
+
+// flatten returns the errors joined in err (or err itself).
+func flatten(err error) []error {
+	if j, ok := err.(interface{ Unwrap() []error }); ok {
+		return j.Unwrap()
+	}
+	return []error{err}
+}
+
+func TestEveryProblemReported(t *testing.T) {
+	file := mutate(t, func(m map[string]any) {
+		group(m, 0)["nodes"] = -1
+		group(m, 1)["report_interval_s"] = "900"
+		delete(obj(m["cell"]), "usable_fraction")
+	})
+	_, err := scenario.Parse(file)
+	require.Error(t, err)
+	msg := err.Error()
+	for _, f := range []string{"groups[0].nodes", "groups[1].report_interval_s", "cell.usable_fraction"} {
+		assert.Contains(t, msg, f)
+	}
+	assert.Len(t, flatten(err), 3, msg)
+	assert.Equal(t, 3, strings.Count(msg, "scenario: "))
+}
+
+func TestWithCounts(t *testing.T) {
+	s := scenario.Demo()
+	c, err := s.WithCounts([]int{1, 2, 3, 4})
+	require.NoError(t, err)
+	assert.Equal(t, 10, c.TotalNodes())
+	assert.Equal(t, 304, s.TotalNodes(), "the original is untouched")
+	c.Groups[0].Work[0].Name = "changed"
+	assert.Equal(t, "piezometer read", s.Groups[0].Work[0].Name)
+	_, err = s.WithCounts([]int{1, 2})
+	require.ErrorIs(t, err, scenario.ErrInvalid)
+	_, err = s.WithCounts([]int{1, 0, 3, 4})
+	require.ErrorIs(t, err, scenario.ErrInvalid)
+}

@@ -27,11 +27,11 @@ type continuous interface {
 // brokenCont is a continuous law with some methods replaced. Nil fields
 // fall through to base.
 type brokenCont struct {
-	base                  continuous
+	base                   continuous
 	cdf, surv, dens, q, uq func(float64) float64
-	mean, variance        func() float64
-	rnd                   func(*rand.Rand) float64
-	cf                    func(float64) complex128
+	mean, variance         func() float64
+	rnd                    func(*rand.Rand) float64
+	cf                     func(float64) complex128
 }
 
 func or(f func(float64) float64, g func(float64) float64, x float64) float64 {
@@ -439,7 +439,7 @@ func TestCheckEstimatedSurvivalClaim(t *testing.T) {
 			}
 			return nrm.Survival(x) * (1 + 1e-9*math.Min(x*x, 100))
 		}},
-		acc:        dist.Accuracy{CDFAbs: 1e-9, SurvivalRel: 1e-12, TailFloor: 1e-300, Method: "test"},
+		acc: dist.Accuracy{CDFAbs: 1e-9, SurvivalRel: 1e-12, TailFloor: 1e-300, Method: "test"},
 	}
 	xs := []float64{5, 8}
 	err := disttest.Check(law, disttest.WithReference(nrm.Survival, xs, 1e-6))

@@ -162,10 +162,15 @@ func (d Discrete) Survival(x float64) float64 {
 	return d.above[i-1]
 }
 
-// Quantile returns the smallest v_i with CDF(v_i) >= p.
+// Quantile returns the smallest v_i with CDF(v_i) >= p, and the largest
+// value for p = 1 (even when atoms too light to move the partial sums
+// off 1 lie above the first sum that rounds to 1).
 func (d Discrete) Quantile(p float64) float64 {
 	if !isProb(p) {
 		return math.NaN()
+	}
+	if p == 1 {
+		return d.values[len(d.values)-1]
 	}
 	i := sort.Search(len(d.values), func(i int) bool { return d.below[i] >= p })
 	if i == len(d.values) {

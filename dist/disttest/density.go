@@ -180,8 +180,9 @@ func (c *checker) checkDensity() {
 		}
 		f := c.density(x)
 		diff := func(h float64) (d, mag float64) {
-			p, m := c.massBetween(x-h, x+h)
-			return (p - c.atomsIn(x-h, x+h)) / (2 * h), m
+			lo, hi := x-h, x+h // divide by the step as rounded
+			p, m := c.massBetween(lo, hi)
+			return (p - c.atomsIn(lo, hi)) / (hi - lo), m
 		}
 		d1, mag := diff(h)
 		d2, _ := diff(h / 2)

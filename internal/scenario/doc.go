@@ -22,6 +22,7 @@
 //	    "reference_loss_db": 40,             PL(d0), 0 … 200
 //	    "loss_exponent": 3.0,                n, 1 … 8:  PL(d) = PL(d0) + 10·n·log10(d/d0) + X
 //	    "shadowing_sd_db": 6,                sd of the log-normal shadowing X, 0 … 20
+//	    "gateway_gain_db": 3,                gateway antenna gain less cable losses, −20 … 30
 //	    "gateway_noise_figure_db": 6,        0 … 20
 //	    "installation_margin_db": 10         kept above the demodulation floor, 0 … 40
 //	  },

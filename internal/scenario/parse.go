@@ -65,12 +65,13 @@ func readEnvironment(c *checker, v any) Environment {
 		return Environment{} // missing: reported by the caller's get
 	}
 	const p = "radio_environment"
-	o := c.object(p, v, "reference_distance_m", "reference_loss_db", "loss_exponent", "shadowing_sd_db", "gateway_noise_figure_db", "installation_margin_db")
+	o := c.object(p, v, "reference_distance_m", "reference_loss_db", "loss_exponent", "shadowing_sd_db", "gateway_gain_db", "gateway_noise_figure_db", "installation_margin_db")
 	var e Environment
 	e.ReferenceDistance, _ = o.number("reference_distance_m", openLow(0, 10000))
 	e.ReferenceLoss, _ = o.number("reference_loss_db", closed(0, 200))
 	e.LossExponent, _ = o.number("loss_exponent", closed(1, 8))
 	e.ShadowingSD, _ = o.number("shadowing_sd_db", closed(0, 20))
+	e.GatewayGain, _ = o.number("gateway_gain_db", closed(-20, 30))
 	e.NoiseFigure, _ = o.number("gateway_noise_figure_db", closed(0, 20))
 	e.InstallationMargin, _ = o.number("installation_margin_db", closed(0, 40))
 	return e

@@ -74,6 +74,7 @@ type Environment struct {
 	ReferenceLoss      float64 // PL(d0), dB
 	LossExponent       float64 // n, dimensionless
 	ShadowingSD        float64 // dB
+	GatewayGain        float64 // gateway antenna gain less cable losses, dB
 	NoiseFigure        float64 // gateway receiver noise figure, dB
 	InstallationMargin float64 // margin kept above the demodulation floor, dB
 }

@@ -1,8 +1,10 @@
 package scenario
 
 import (
+	"errors"
 	"fmt"
 	"math"
+	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
@@ -30,9 +32,12 @@ type GroupModel struct {
 	Settings   []lora.Setting
 	OutOfReach float64
 	PerDR      []DRModel // one per data rate with positive probability, by DR
-	ClassA     lora.ClassA
-	Period     dist.Law // law of the reporting period, s
-	Cycle      energy.Cycle
+	// ClassA describes the group's reports over all its settings; its
+	// Cycle method gives the per-cycle law of a node drawn at random (the
+	// setting drawn once per cycle). SettingCycle gives the cycle of a node
+	// at one setting.
+	ClassA lora.ClassA
+	Period dist.Law // law of the reporting period, s
 }
 
 // DRModel is what happens to the uplinks of a group's nodes at one data rate.
@@ -101,9 +106,14 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 			return Model{}, fmt.Errorf("group %q: %w", g.Name, err)
 		}
 		gm.OutOfReach = gm.Settled.OutOfReach()
-		gm.Settings, err = gm.Settled.Reachable()
+		reach, err := gm.Settled.Reachable()
 		if err != nil {
 			return Model{}, fmt.Errorf("group %q: no node in reach: %w", g.Name, err)
+		}
+		for _, st := range reach {
+			if st.Prob > 0 {
+				gm.Settings = append(gm.Settings, st)
+			}
 		}
 		share := map[int]float64{}
 		for _, st := range gm.Settings {
@@ -127,8 +137,7 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 	}
 	for i := range m.Groups {
 		gm := &m.Groups[i]
-		say("building the class A cycle of group %q", gm.Group.Name)
-		if err := gm.buildCycle(s); err != nil {
+		if err := gm.describe(s); err != nil {
 			return Model{}, fmt.Errorf("group %q: %w", gm.Group.Name, err)
 		}
 	}
@@ -219,8 +228,8 @@ func (g *GroupModel) drModel(dr int) (DRModel, bool) {
 	return DRModel{}, false
 }
 
-// buildCycle fills ClassA, Period and Cycle.
-func (g *GroupModel) buildCycle(s Scenario) error {
+// describe fills ClassA and Period.
+func (g *GroupModel) describe(s Scenario) error {
 	gr := g.Group
 	cur := lora.Currents{Voltage: s.Node.Voltage, RX: s.Node.Receive, Wait: s.Node.Wait, Floor: s.Node.Sleep}
 	for _, t := range s.Node.Transmit {
@@ -257,11 +266,110 @@ func (g *GroupModel) buildCycle(s Scenario) error {
 		Before:          before,
 	}
 	g.Period, err = PeriodLaw(gr.Interval, gr.Jitter)
-	if err != nil {
-		return err
-	}
-	g.Cycle, err = g.ClassA.Cycle(g.Period)
 	return err
+}
+
+// Cycle returns the class A cycle of a node drawn at random from the group:
+// its setting drawn once per cycle from Settings.
+func (g GroupModel) Cycle() (energy.Cycle, error) {
+	return g.ClassA.Cycle(g.Period)
+}
+
+// SettingCycle returns the class A cycle of a node of the group that uses
+// Settings[i] (its data rate and power stay, as ADR left them).
+func (g GroupModel) SettingCycle(i int) (energy.Cycle, error) {
+	if i < 0 || i >= len(g.Settings) {
+		return energy.Cycle{}, &FieldError{Field: "setting", Value: i, Rule: fmt.Sprintf("must index the group's %d settings", len(g.Settings))}
+	}
+	c := g.ClassA
+	one := g.Settings[i]
+	one.Prob = 1
+	c.Settings = []lora.Setting{one}
+	return c.Cycle(g.Period)
+}
+
+// Job names one (group, setting) pair of a model.
+type Job struct{ Group, Setting int }
+
+// Jobs lists every (group, setting) pair of m, group by group.
+func (m Model) Jobs() []Job {
+	var jobs []Job
+	for gi, g := range m.Groups {
+		for si := range g.Settings {
+			jobs = append(jobs, Job{gi, si})
+		}
+	}
+	return jobs
+}
+
+// SettingCycles builds the cycle of every (group, setting) pair of m on
+// workers goroutines (at least 1), calling done (if not nil, from one
+// goroutine at a time) after each. The result is indexed [group][setting].
+func (m Model) SettingCycles(workers int, done func(j Job, finished, total int)) ([][]energy.Cycle, error) {
+	out := make([][]energy.Cycle, len(m.Groups))
+	for gi, g := range m.Groups {
+		out[gi] = make([]energy.Cycle, len(g.Settings))
+	}
+	jobs := m.Jobs()
+	err := Parallel(len(jobs), workers, func(k int) error {
+		j := jobs[k]
+		c, err := m.Groups[j.Group].SettingCycle(j.Setting)
+		if err != nil {
+			return fmt.Errorf("group %q, setting %v: %w", m.Groups[j.Group].Group.Name, m.Groups[j.Group].Settings[j.Setting], err)
+		}
+		out[j.Group][j.Setting] = c
+		return nil
+	}, func(k, finished int) {
+		if done != nil {
+			done(jobs[k], finished, len(jobs))
+		}
+	})
+	return out, err
+}
+
+// Parallel runs work(0 … n−1) on workers goroutines and returns their
+// errors joined (nil when none failed). after, if not nil, is called under
+// a lock after each item with the number finished so far.
+func Parallel(n, workers int, work func(i int) error, after func(i, finished int)) error {
+	if workers < 1 {
+		workers = 1
+	}
+	errs := make([]error, n)
+	next := make(chan int)
+	var mu sync.Mutex
+	finished := 0
+	var wg sync.WaitGroup
+	for range min(workers, n) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range next {
+				errs[i] = work(i)
+				mu.Lock()
+				finished++
+				if after != nil {
+					after(i, finished)
+				}
+				mu.Unlock()
+			}
+		}()
+	}
+	for i := range n {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+	return errors.Join(errs...)
+}
+
+// Weights returns the probabilities of the group's settings, as the weights
+// of a mixture.
+func (g GroupModel) Weights() []float64 {
+	w := make([]float64, len(g.Settings))
+	for i, s := range g.Settings {
+		w[i] = s.Prob
+	}
+	return w
 }
 
 // PeriodLaw returns the law of a reporting period: uniform over interval ±
@@ -305,4 +413,83 @@ func WorkStage(voltage float64, work []Step) (energy.Stage, error) {
 		stages[i] = st
 	}
 	return energy.Sequence(stages...)
+}
+
+// MixEnergy returns the per-cycle energy law (J) of a node drawn at random
+// from the group: the mixture, with the settings' probabilities, of the
+// per-setting laws (cycles indexed like Settings).
+func (g GroupModel) MixEnergy(cycles []energy.Cycle) (dist.Law, error) {
+	laws := make([]dist.Law, len(cycles))
+	for i, c := range cycles {
+		laws[i] = c.Energy()
+	}
+	return dist.Mixture(g.Weights(), laws)
+}
+
+// MixBreakdown returns the per-state breakdown of the mixture of the
+// per-setting cycles with the given weights: means add with the weights, and
+// each row's covariance with the total follows the law of total covariance
+//
+//	Cov(C, E) = Σ_s w_s·[Cov_s(C, E) + (m_s − m)(μ_s − μ)]
+//
+// (any probability text), with Cov_s(C, E) = VarianceShare_s·Var_s[E], m_s
+// the row's mean part and μ_s the mean energy under setting s. Rows appear in
+// order of first appearance, the floor row last.
+func MixBreakdown(weights []float64, cycles []energy.Cycle) []energy.Share {
+	type acc struct {
+		share energy.Share
+		parts []float64 // MeanAboveFloor per setting
+		covs  []float64 // Cov_s(C, E) per setting
+	}
+	var rows []*acc
+	find := func(r energy.Share) *acc {
+		for _, a := range rows {
+			if a.share.Name == r.Name && a.share.Floor == r.Floor {
+				return a
+			}
+		}
+		a := &acc{share: energy.Share{Name: r.Name, Floor: r.Floor}, parts: make([]float64, len(cycles)), covs: make([]float64, len(cycles))}
+		rows = append(rows, a)
+		return a
+	}
+	mu, means, vars := 0.0, make([]float64, len(cycles)), make([]float64, len(cycles))
+	for s, c := range cycles {
+		means[s], vars[s] = c.MeanEnergy(), c.EnergyVariance()
+		mu += weights[s] * means[s]
+		for _, r := range c.Breakdown() {
+			a := find(r)
+			w := weights[s]
+			a.share.Runs += w * r.Runs
+			a.share.MeanEnergy += w * r.MeanEnergy
+			a.share.MeanAboveFloor += w * r.MeanAboveFloor
+			a.parts[s] = r.MeanAboveFloor
+			if vars[s] > 0 && !math.IsNaN(r.VarianceShare) {
+				a.covs[s] = r.VarianceShare * vars[s]
+			}
+		}
+	}
+	total := 0.0
+	for s := range cycles {
+		d := means[s] - mu
+		total += weights[s] * (vars[s] + d*d)
+	}
+	out := make([]energy.Share, 0, len(rows))
+	var floor []energy.Share
+	for _, a := range rows {
+		cov := 0.0
+		for s := range cycles {
+			cov += weights[s] * (a.covs[s] + (a.parts[s]-a.share.MeanAboveFloor)*(means[s]-mu))
+		}
+		a.share.MeanShare = a.share.MeanAboveFloor / mu
+		a.share.VarianceShare = math.NaN()
+		if total > 0 {
+			a.share.VarianceShare = cov / total
+		}
+		if a.share.Floor {
+			floor = append(floor, a.share)
+		} else {
+			out = append(out, a.share)
+		}
+	}
+	return append(out, floor...)
 }

@@ -1,0 +1,145 @@
+package scenario_test
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/internal/scenario"
+	"github.com/joulelaw/joulelaw/radio/lora"
+)
+
+// oneGroup returns the demo reduced to its first group with n nodes.
+func oneGroup(t *testing.T, n int) scenario.Scenario {
+	t.Helper()
+	s, err := scenario.Demo().WithCounts([]int{n, 1, 1, 1})
+	require.NoError(t, err)
+	s.Groups = s.Groups[:1]
+	return s
+}
+
+func TestBuildSettingsAndReach(t *testing.T) {
+	m, err := scenario.Build(scenario.Demo(), nil)
+	require.NoError(t, err)
+	require.Len(t, m.Groups, 4)
+	for _, g := range m.Groups {
+		sum, drSum := 0.0, 0.0
+		for _, s := range g.Settings {
+			assert.Greater(t, s.Prob, 0.0)
+			sum += s.Prob
+		}
+		for _, d := range g.PerDR {
+			drSum += d.Share
+			assert.Greater(t, d.UplinkSuccess, 0.9, "demo loads are light")
+			assert.LessOrEqual(t, d.UplinkSuccess, 1.0)
+		}
+		assert.InDelta(t, 1, sum, 1e-12)
+		assert.InDelta(t, 1, drSum, 1e-12)
+		assert.InDelta(t, g.Settled.OutOfReach(), g.OutOfReach, 0)
+	}
+	// Confirmed uplinks retransmit: more than one frame per report on average.
+	assert.Greater(t, m.Groups[2].PerDR[0].Frames, 1.0)
+	assert.Equal(t, 1.0, m.Groups[0].PerDR[0].Frames)
+}
+
+// With one group of identical frames, the assembled load is lora's own
+// pure-ALOHA load of the other n−1 nodes (UplinkCollisions, which implements
+// G = n·airtime/(T·channels) per data rate, Abramson 1970).
+func TestCollisionsMatchLoraForOneGroup(t *testing.T) {
+	s := oneGroup(t, 400)
+	m, err := scenario.Build(s, nil)
+	require.NoError(t, err)
+	g := m.Groups[0]
+	want, err := lora.UplinkCollisions(s.Region, g.Settings, lora.Traffic{
+		Nodes: float64(s.Groups[0].Nodes - 1), Interval: s.Groups[0].Interval,
+		Channels: len(s.Region.UplinkChannels()), App: s.Groups[0].Payload,
+	})
+	require.NoError(t, err)
+	require.Len(t, want, len(g.PerDR))
+	for i, w := range want {
+		d := g.PerDR[i]
+		assert.Equal(t, w.DR, d.DR)
+		assert.InDelta(t, w.Load, d.Vulnerable, 1e-15*math.Max(1, w.Load))
+		assert.InDelta(t, w.Success, d.UplinkSuccess, 1e-14)
+		// All nodes' load is n/(n−1) times the others' load.
+		assert.InDelta(t, w.Load*400/399, d.Load, 1e-14)
+	}
+}
+
+// Two groups of different frame lengths on one gateway: a frame of length a
+// is safe when no frame of length b starts in the a + b before its end, so
+// the success is exp(−Σ λ(a + b)) for Poisson arrivals (pure ALOHA with
+// unequal lengths; the equal-length case is Abramson 1970). Checked by hand
+// at one data rate with both groups forced onto it.
+func TestCollisionsMixedLengths(t *testing.T) {
+	s, err := scenario.Demo().WithCounts([]int{50, 70, 1, 1})
+	require.NoError(t, err)
+	s.Groups = s.Groups[:2]
+	s.Environment.InstallationMargin = 0
+	s.Groups[0].InnerRadius, s.Groups[0].OuterRadius = 10, 11 // all at DR5 and low power
+	s.Groups[1].InnerRadius, s.Groups[1].OuterRadius = 10, 11
+	s.Environment.ShadowingSD = 0
+	m, err := scenario.Build(s, nil)
+	require.NoError(t, err)
+	require.Len(t, m.Groups[0].PerDR, 1)
+	require.Len(t, m.Groups[1].PerDR, 1)
+	a := m.Groups[0].PerDR[0].Airtime
+	b := m.Groups[1].PerDR[0].Airtime
+	c := float64(len(s.Region.UplinkChannels()))
+	la := 1 / (s.Groups[0].Interval * c) // per node, per channel
+	lb := 1 / (s.Groups[1].Interval * c)
+	wantA := math.Exp(-(49*la*(a+a) + 70*lb*(a+b)))
+	wantB := math.Exp(-(50*la*(b+a) + 69*lb*(b+b)))
+	assert.InDelta(t, wantA, m.Groups[0].PerDR[0].UplinkSuccess, 1e-14)
+	assert.InDelta(t, wantB, m.Groups[1].PerDR[0].UplinkSuccess, 1e-14)
+}
+
+// The mixture of per-setting cycles is the group's cycle: its mean and
+// variance, and the breakdown by the law of total covariance, agree with the
+// class A cycle that draws the setting once per cycle (energy.Configured).
+func TestMixtureOfSettingsIsTheGroupCycle(t *testing.T) {
+	m, err := scenario.Build(oneGroup(t, 60), nil)
+	require.NoError(t, err)
+	g := m.Groups[0]
+	cycles, err := m.SettingCycles(2, nil)
+	require.NoError(t, err)
+	mix, err := g.MixEnergy(cycles[0])
+	require.NoError(t, err)
+	whole, err := g.Cycle()
+	require.NoError(t, err)
+	assert.InDelta(t, whole.MeanEnergy(), mix.Mean(), 1e-12*whole.MeanEnergy())
+	assert.InDelta(t, whole.EnergyVariance(), mix.Variance(), 1e-9*whole.EnergyVariance())
+	got := scenario.MixBreakdown(g.Weights(), cycles[0])
+	want := whole.Breakdown()
+	require.Len(t, got, len(want))
+	for i := range want {
+		assert.Equal(t, want[i].Name, got[i].Name)
+		assert.Equal(t, want[i].Floor, got[i].Floor)
+		assert.InDelta(t, want[i].Runs, got[i].Runs, 1e-12)
+		assert.InDelta(t, want[i].MeanEnergy, got[i].MeanEnergy, 1e-12*whole.MeanEnergy())
+		assert.InDelta(t, want[i].MeanShare, got[i].MeanShare, 1e-10)
+		assert.InDelta(t, want[i].VarianceShare, got[i].VarianceShare, 1e-8, want[i].Name)
+	}
+	for _, x := range []float64{0.036, 0.04, 0.06, 0.2, 0.5} {
+		assert.InDelta(t, whole.Energy().CDF(x), mix.CDF(x), 1e-6, "CDF at %g J", x)
+	}
+	_, err = g.SettingCycle(len(g.Settings))
+	require.ErrorIs(t, err, scenario.ErrInvalid)
+}
+
+func TestParallelJoinsErrors(t *testing.T) {
+	seen := make([]bool, 10)
+	err := scenario.Parallel(10, 3, func(i int) error {
+		seen[i] = true
+		if i == 7 {
+			return assert.AnError
+		}
+		return nil
+	}, nil)
+	require.ErrorIs(t, err, assert.AnError)
+	for i, s := range seen {
+		assert.True(t, s, "item %d", i)
+	}
+}

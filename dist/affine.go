@@ -89,26 +89,28 @@ func (a affine) Parts() (base Law, scale, shift float64) { return a.base, a.scal
 
 func (a affine) inv(x float64) float64 { return (x - a.shift) / a.scale }
 
-// snap maps x back to the base law's scale. When the result lies within
-// AtomMergeTolerance of a base atom it returns that atom exactly, with its
-// mass, so that rounding in (x-shift)/scale never misses a point mass.
-func (a affine) snap(x float64) (y, mass float64) {
+// near maps x back to the base law's scale, y = (x-shift)/scale. When y lies
+// within AtomMergeTolerance of a base atom v, it reports the atom: its value
+// v, its mass m, and whether x is at or beyond the mapped atom
+// w = scale·v + shift (computed as Atoms reports it), so that CDF and
+// Survival jump exactly at w whatever the rounding of y.
+func (a affine) near(x float64) (y, v, m float64, atOrAbove, ok bool) {
 	y = a.inv(x)
 	n := len(a.baseAtoms)
-	if n == 0 {
-		return y, 0
+	if n == 0 || !finite(y) {
+		return y, 0, 0, false, false
 	}
 	i := sort.Search(n, func(i int) bool { return a.baseAtoms[i].Value >= y })
 	for _, j := range []int{i - 1, i} {
 		if j < 0 || j >= n {
 			continue
 		}
-		v := a.baseAtoms[j].Value
+		v = a.baseAtoms[j].Value
 		if math.Abs(v-y) <= AtomMergeTolerance*math.Max(math.Abs(v), math.Abs(y)) {
-			return v, a.baseAtoms[j].Mass
+			return y, v, a.baseAtoms[j].Mass, x >= a.scale*v+a.shift, true
 		}
 	}
-	return y, 0
+	return y, 0, 0, false, false
 }
 
 // atomMass returns P(X = y) for a law l that lists atoms (matching within
@@ -130,22 +132,40 @@ func (a affine) CDF(x float64) float64 {
 	if math.IsNaN(x) {
 		return x
 	}
-	y, m := a.snap(x)
-	if a.scale > 0 {
+	y, v, m, in, ok := a.near(x)
+	switch {
+	case ok && a.scale > 0 && in: // P(X <= v)
+		return a.base.CDF(v)
+	case ok && a.scale > 0: // P(X < v)
+		return math.Max(0, a.base.CDF(v)-m)
+	case ok && in: // P(X >= v)
+		return math.Min(1, a.base.Survival(v)+m)
+	case ok: // P(X > v)
+		return a.base.Survival(v)
+	case a.scale > 0:
 		return a.base.CDF(y)
 	}
-	return math.Min(1, a.base.Survival(y)+m)
+	return a.base.Survival(y)
 }
 
 func (a affine) Survival(x float64) float64 {
 	if math.IsNaN(x) {
 		return x
 	}
-	y, m := a.snap(x)
-	if a.scale > 0 {
+	y, v, m, in, ok := a.near(x)
+	switch {
+	case ok && a.scale > 0 && in: // P(X > v)
+		return a.base.Survival(v)
+	case ok && a.scale > 0: // P(X >= v)
+		return math.Min(1, a.base.Survival(v)+m)
+	case ok && in: // P(X < v)
+		return math.Max(0, a.base.CDF(v)-m)
+	case ok: // P(X <= v)
+		return a.base.CDF(v)
+	case a.scale > 0:
 		return a.base.Survival(y)
 	}
-	return math.Max(0, a.base.CDF(y)-m)
+	return a.base.CDF(y)
 }
 
 func (a affine) Quantile(p float64) float64 {

@@ -113,7 +113,7 @@ func (a distuvDensity) Density(x float64) float64 {
 	switch {
 	case math.IsNaN(x):
 		return x
-	case x < a.lo || x > a.hi:
+	case x < a.lo || x > a.hi || math.IsInf(x, 0):
 		return 0
 	}
 	return a.d.(interface{ Prob(float64) float64 }).Prob(x)

@@ -72,6 +72,16 @@ func NewTruncated(l Law, lo, hi float64) (Law, error) {
 	if t.lo == t.hi {
 		return NewPointMass(t.lo)
 	}
+	if al, ok := l.(Atomic); ok {
+		for _, a := range al.Atoms() {
+			if a.Value >= t.lo && a.Value <= t.hi {
+				t.atoms = append(t.atoms, a)
+			}
+		}
+	}
+	if _, ok := l.(Densitied); ok {
+		t.glx, t.glw = legendreRule(20)
+	}
 	if _, ok := l.(Densitied); ok {
 		td := truncatedDensity{t}
 		td.mean, td.variance = numericMoments(td)
@@ -99,26 +109,60 @@ type truncated struct {
 	lo, hi               float64
 	fLo, sLo, fHi, sHi   float64
 	mass, mean, variance float64
+	atoms                []Atom    // the parent's atoms in [lo, hi], unnormalised
+	glx, glw             []float64 // Gauss–Legendre rule for short pieces (parents with a density)
 }
 
 // Parts returns the parent law and the interval it is conditioned on.
 func (t truncated) Parts() (base Law, lo, hi float64) { return t.base, t.lo, t.hi }
 
-// below returns P(lo <= X <= x) and above P(x < X <= hi), each from the
-// nearer parent tail.
+// split returns below = P(lo <= X <= x) and above = P(x < X <= hi), each
+// from the nearer parent tail. When the difference of parent values cancels
+// (it keeps less than a thousandth of the values subtracted, as it does for x
+// close to lo or hi) and the parent has a density, the piece is integrated
+// instead: 20-point Gauss–Legendre over the short piece plus its atoms, which
+// keeps the truncated law's own tails accurate relative to their size.
 func (t truncated) split(x float64) (below, above float64) {
 	f, s := t.base.CDF(x), t.base.Survival(x)
+	var refB, refA float64
 	if f <= 0.5 {
-		below = f - t.fLo
+		below, refB = f-t.fLo, f
 	} else {
-		below = t.sLo - s
+		below, refB = t.sLo-s, t.sLo
 	}
 	if s <= 0.5 {
-		above = s - t.sHi
+		above, refA = s-t.sHi, s
 	} else {
-		above = t.fHi - f
+		above, refA = t.fHi-f, t.fHi
+	}
+	if t.glx != nil {
+		if below < 1e-3*refB {
+			below = t.piece(t.lo, x, true)
+		}
+		if above < 1e-3*refA {
+			above = t.piece(x, t.hi, false)
+		}
 	}
 	return math.Max(0, below), math.Max(0, above)
+}
+
+// piece returns the parent's probability of [a, b] (closedLo) or (a, b] by
+// quadrature of its density plus its atoms there.
+func (t truncated) piece(a, b float64, closedLo bool) float64 {
+	d := t.base.(Densitied)
+	h := (b - a) / 2
+	c := a + h
+	sum := 0.0
+	for i, z := range t.glx {
+		sum += t.glw[i] * d.Density(c+h*z)
+	}
+	sum *= h
+	for _, at := range t.atoms {
+		if (at.Value > a || (closedLo && at.Value == a)) && at.Value <= b {
+			sum += at.Mass
+		}
+	}
+	return sum
 }
 
 func (t truncated) CDF(x float64) float64 {
@@ -194,15 +238,12 @@ func (t truncated) Rand(r *rand.Rand) float64 {
 
 // Atoms lists the parent's atoms inside [lo, hi], renormalised.
 func (t truncated) Atoms() []Atom {
-	al, ok := t.base.(Atomic)
-	if !ok {
+	if len(t.atoms) == 0 {
 		return nil
 	}
-	var out []Atom
-	for _, a := range al.Atoms() {
-		if a.Value >= t.lo && a.Value <= t.hi {
-			out = append(out, Atom{Value: a.Value, Mass: a.Mass / t.mass})
-		}
+	out := make([]Atom, len(t.atoms))
+	for i, a := range t.atoms {
+		out[i] = Atom{Value: a.Value, Mass: a.Mass / t.mass}
 	}
 	return out
 }

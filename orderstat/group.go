@@ -1,0 +1,171 @@
+package orderstat
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"github.com/joulelaw/joulelaw/dist"
+)
+
+// MaxCount is the largest number of copies (in one group or in all groups
+// together) that this package accepts: 10^15. Counts are held exactly in
+// float64 up to 2^53 ≈ 9·10^15, so sums of counts stay exact.
+const MaxCount = int64(1e15)
+
+// Group is a number of independent nodes that share one law: Count
+// independent copies of Law. A slice of groups describes a fleet of
+// non-identical nodes, for example one group per spreading factor.
+type Group struct {
+	Law   dist.Law // the law of each node's value, in the value's unit
+	Count int64    // how many independent nodes follow Law, >= 1
+}
+
+// group is a validated Group with the values this package needs of its law.
+type group struct {
+	law        dist.Law
+	n          int64
+	nf         float64
+	median     float64 // law.Quantile(0.5): the switch between CDF and Survival
+	lo, hi     float64
+	atoms      []dist.Atom
+	atomMass   float64
+	dens       dist.Densitied // nil when the law has no Density method
+	pureAtomic bool
+}
+
+// point is a law's CDF and survival at one x; the smaller of the two was
+// computed directly by the law and the other is its complement.
+type point struct {
+	f, s   float64
+	direct bool // true: f was computed (x below the median); false: s was
+}
+
+// logF returns log F(x), accurate relative to F.
+func (p point) logF() float64 {
+	if p.direct {
+		return math.Log(p.f)
+	}
+	return math.Log1p(-p.s)
+}
+
+// logS returns log S(x), accurate relative to S.
+func (p point) logS() float64 {
+	if p.direct {
+		return math.Log1p(-p.f)
+	}
+	return math.Log(p.s)
+}
+
+// eval returns the law's CDF and survival at x with one call to the law.
+func (g *group) eval(x float64) point {
+	if x < g.median {
+		f := clamp01(g.law.CDF(x))
+		return point{f: f, s: 1 - f, direct: true}
+	}
+	s := clamp01(g.law.Survival(x))
+	return point{f: 1 - s, s: s}
+}
+
+// evalLeft returns P(X < x) and P(X >= x), as the values just below x (the
+// next float64 down): exact for atoms of a discrete law, and off by at most
+// the continuous mass in one unit in the last place otherwise.
+func (g *group) evalLeft(x float64) point {
+	return g.eval(math.Nextafter(x, math.Inf(-1)))
+}
+
+// levelQuantile returns inf{x : F(x) >= u} = inf{x : S(x) <= v} for u + v = 1,
+// using the law's Quantile or UpperQuantile, whichever level is the smaller
+// (and so the one known to full relative precision).
+func (g *group) levelQuantile(u, v float64) float64 {
+	if u <= 0.5 {
+		return g.law.Quantile(u)
+	}
+	return g.law.UpperQuantile(v)
+}
+
+func clamp01(p float64) float64 {
+	switch {
+	case p < 0:
+		return 0
+	case p > 1:
+		return 1
+	}
+	return p
+}
+
+func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+
+// newGroups validates groups and prepares them. fn names the caller.
+func newGroups(fn string, in []Group) ([]group, int64, error) {
+	if len(in) == 0 {
+		return nil, 0, paramErr(fn, "groups", "[]", "must not be empty")
+	}
+	out := make([]group, len(in))
+	var total int64
+	for i, gr := range in {
+		g, err := newGroup(fn, fmt.Sprintf("groups[%d]", i), gr.Law, gr.Count)
+		if err != nil {
+			return nil, 0, err
+		}
+		if total > MaxCount-g.n {
+			return nil, 0, paramErr(fn, "groups", fmt.Sprintf("total count > %d", MaxCount), fmt.Sprintf("the counts must sum to at most %d", MaxCount))
+		}
+		total += g.n
+		out[i] = g
+	}
+	return out, total, nil
+}
+
+// newGroup validates one law and count.
+func newGroup(fn, name string, l dist.Law, n int64) (group, error) {
+	if l == nil {
+		return group{}, paramErr(fn, name+".Law", nil, "must not be nil")
+	}
+	if n < 1 || n > MaxCount {
+		return group{}, paramErr(fn, name+".Count", n, fmt.Sprintf("must be in [1, %d]", MaxCount))
+	}
+	lo, hi := l.Support()
+	if math.IsNaN(lo) || math.IsNaN(hi) || !(lo <= hi) {
+		return group{}, paramErr(fn, name+".Law", fmt.Sprintf("support [%v, %v]", lo, hi), "must have an ordered, non-NaN support")
+	}
+	med := l.Quantile(0.5)
+	if !finite(med) {
+		return group{}, paramErr(fn, name+".Law", fmt.Sprintf("median %v", med), "must have a finite median")
+	}
+	g := group{law: l, n: n, nf: float64(n), median: med, lo: lo, hi: hi}
+	if a, ok := l.(dist.Atomic); ok {
+		g.atoms = a.Atoms()
+		for _, at := range g.atoms {
+			if !finite(at.Value) || !(at.Mass > 0 && at.Mass <= 1) {
+				return group{}, paramErr(fn, name+".Law", fmt.Sprintf("atom %v", at), "atoms must have finite values and masses in (0, 1]")
+			}
+			g.atomMass += at.Mass
+		}
+		g.pureAtomic = math.Abs(g.atomMass-1) <= 1e-12
+	}
+	if d, ok := l.(dist.Densitied); ok {
+		g.dens = d
+	}
+	return g, nil
+}
+
+// unionAtoms lists the distinct atom values of all groups, sorted; values
+// within dist.AtomMergeTolerance (relative) count as one.
+func unionAtoms(gs []group) []float64 {
+	var vs []float64
+	for _, g := range gs {
+		for _, a := range g.atoms {
+			vs = append(vs, a.Value)
+		}
+	}
+	sort.Float64s(vs)
+	out := vs[:0]
+	for _, v := range vs {
+		if n := len(out); n > 0 && math.Abs(v-out[n-1]) <= dist.AtomMergeTolerance*math.Max(math.Abs(v), math.Abs(out[n-1])) {
+			continue
+		}
+		out = append(out, v)
+	}
+	return out
+}

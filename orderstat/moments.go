@@ -69,8 +69,8 @@ func (c *core) computeMoments() moments {
 // few quantiles, by adaptive composite 12-point Gauss–Legendre quadrature
 // (each panel accepted when it agrees with the sum over its halves).
 func (c *core) quadMoments() moments {
-	q := func(p float64) float64 { return c.quantile(p, 1-p) }
-	uq := func(v float64) float64 { return c.quantile(1-v, v) }
+	q := func(p float64) float64 { return c.quantile(p, 1-p, false) }
+	uq := func(v float64) float64 { return c.quantile(1-v, v, true) }
 	xlo, xhi := q(momentTail), uq(momentTail)
 	lo, hi := c.lo, c.hi
 	if xlo < lo {

@@ -352,7 +352,7 @@ func (s Statistic) Quantile(p float64) float64 {
 	case p == 1:
 		return s.c.hi
 	}
-	return s.c.quantile(p, 1-p)
+	return s.c.quantile(p, 1-p, false)
 }
 
 // UpperQuantile returns inf{x : Survival(x) <= q}, accurate for tiny q;
@@ -366,7 +366,7 @@ func (s Statistic) UpperQuantile(q float64) float64 {
 	case q == 0:
 		return s.c.hi
 	}
-	return s.c.quantile(1-q, q)
+	return s.c.quantile(1-q, q, true)
 }
 
 // Support returns the smallest closed interval holding all the mass: for
@@ -394,29 +394,34 @@ func (s Statistic) Groups() []Group {
 	return out
 }
 
-// quantile returns inf{x : CDF(x) >= p} for p + q = 1, 0 < p < 1.
-func (c *core) quantile(p, q float64) float64 {
-	if len(c.groups) == 1 {
-		g := &c.groups[0]
-		switch c.kind {
-		case kindMax:
-			l := log1mp(q, p) / g.nf // log of the parent's CDF level
-			return g.levelQuantile(math.Exp(l), -math.Expm1(l))
-		case kindMin:
-			l := log1mp(p, q) / g.nf // log of the parent's survival level
-			return g.levelQuantile(-math.Expm1(l), math.Exp(l))
-		}
-		u, w := c.beta.quantile(p, q)
-		return g.levelQuantile(u, w)
-	}
-	a, b := c.bracket(p, q)
+// quantile returns inf{x : CDF(x) >= p} for p + q = 1, 0 < p < 1, or with
+// upper inf{x : Survival(x) <= q}: the same point, but the condition is
+// tested on the probability the caller gave exactly.
+func (c *core) quantile(p, q float64, upper bool) float64 {
 	h := func(x float64) float64 {
 		cdf, sf := c.eval(x, false)
-		if p <= 0.5 {
+		if !upper {
 			return math.Log(cdf) - math.Log(p)
 		}
 		return math.Log(q) - math.Log(sf)
 	}
+	if len(c.groups) == 1 {
+		g := &c.groups[0]
+		var x float64
+		switch c.kind {
+		case kindMax:
+			l := log1mp(q, p) / g.nf // log of the parent's CDF level
+			x = g.levelQuantile(math.Exp(l), -math.Expm1(l))
+		case kindMin:
+			l := log1mp(p, q) / g.nf // log of the parent's survival level
+			x = g.levelQuantile(-math.Expm1(l), math.Exp(l))
+		default:
+			u, w := c.beta.quantile(p, q)
+			x = g.levelQuantile(u, w)
+		}
+		return c.atomFix(x, h)
+	}
+	a, b := c.bracket(p, q)
 	a, b, ha, hb := widen(h, a, b)
 	var x float64
 	switch {
@@ -428,6 +433,40 @@ func (c *core) quantile(p, q float64) float64 {
 		x = solve(h, a, b, ha, hb)
 	}
 	return c.snap(x, h)
+}
+
+// atomFix corrects a quantile found through the parent's quantile at a
+// transformed level, which rounding can move across an atom: it steps to the
+// neighbouring atom when the condition h >= 0 says the answer lies there.
+func (c *core) atomFix(x float64, h func(float64) float64) float64 {
+	if len(c.atoms) == 0 || !finite(x) {
+		return x
+	}
+	i := sort.Search(len(c.atoms), func(i int) bool { return c.atoms[i].Value >= x })
+	if h(x) < 0 {
+		// Too low: the answer is the next atom up if no mass lies between
+		// (otherwise x is within rounding of the answer).
+		if i < len(c.atoms) && c.atoms[i].Value == x {
+			i++
+		}
+		if i < len(c.atoms) {
+			v := c.atoms[i].Value
+			cdf, _ := c.eval(x, false)
+			cdfL, _ := c.eval(v, true)
+			if cdfL-cdf <= 1e-14*cdf && h(v) >= 0 {
+				return v
+			}
+		}
+		return x
+	}
+	for j := i - 1; j >= 0; j-- {
+		v := c.atoms[j].Value
+		if h(v) < 0 {
+			break
+		}
+		x = v
+	}
+	return x
 }
 
 // snap returns the atom just at or below x if the condition holds there
@@ -573,7 +612,7 @@ func (c *core) randMerge(r *rand.Rand) float64 {
 	}
 	if need > maxMergeDraws {
 		u := openUniform(r)
-		return c.quantile(u, 1-u)
+		return c.quantile(u, 1-u, false)
 	}
 	type head struct {
 		x    float64
@@ -637,39 +676,38 @@ func (s Statistic) MomentError() (mean, variance float64) {
 	return m.meanErr, m.varErr
 }
 
-// Accuracy reports the error of CDF and Survival: for the maximum and
-// minimum the parents' error (their own Accuracy, or a few units in the last
-// place for closed forms) carried through the log-space formulas; for the
-// k-th of one law also the quadrature of the Beta law, whose conditioning
-// grows like √n; for the k-th of groups the Fourier inversion of the count.
+// Accuracy reports the error of CDF and Survival. With r the parents'
+// relative error (their own Accuracy, or 64 units in the last place for
+// closed forms), the log-space formulas carry it as an error of about
+// r·|log P| in the logarithm of each probability, which is at most 700·r
+// where the probability exceeds 1e-300; the k-th of one law adds the
+// quadrature of the Beta law (about 1e-12, growing like √n·1e-15 for large
+// n), and the k-th of groups the Fourier inversion of the count (about
+// 1e-11). A parent's absolute CDF error a is carried as n·a.
 func (s Statistic) Accuracy() dist.Accuracy {
 	c := s.c
-	cdfAbs, survRel, floor := 0.0, 0.0, math.SmallestNonzeroFloat64
+	r, abs, floor := 64*epsilon, 0.0, 1e-300
 	for _, g := range c.groups {
-		a := 8 * epsilon
-		r := 8 * epsilon
 		if e, ok := g.law.(dist.Estimated); ok {
 			acc := e.Accuracy()
-			a = math.Max(a, acc.CDFAbs)
 			r = math.Max(r, acc.SurvivalRel)
+			abs += math.Min(1, g.nf*acc.CDFAbs)
 			floor = math.Max(floor, acc.TailFloor)
 		}
-		cdfAbs += a * g.nf
-		survRel = math.Max(survRel, r)
 	}
+	cdfAbs := abs + r
+	survRel := 700 * r
 	method := "exact in log space from the parents' CDF and Survival"
 	switch {
 	case c.kind == kindKth && len(c.groups) == 1:
 		cond := 1e-15 * math.Sqrt(float64(c.n))
-		cdfAbs = math.Min(cdfAbs, 1) + 1e-13 + cond
-		survRel = survRel*float64(c.k) + 1e-12 + 40*cond
+		cdfAbs += 1e-13 + cond
+		survRel += 1e-12 + 40*cond
 		method = "Beta(k, n-k+1) of the parent's CDF, by Gauss–Legendre quadrature of Loader's binomial density"
 	case c.kind == kindKth:
-		cdfAbs = math.Min(cdfAbs, 1) + 1e-12
-		survRel = survRel*float64(c.k) + 1e-10
+		cdfAbs += 1e-12
+		survRel += 1e-11
 		method = "count of nodes below x by tilted discrete Fourier inversion of its characteristic function (Hong 2013)"
-	default:
-		survRel = survRel + 64*epsilon
 	}
 	return dist.Accuracy{CDFAbs: math.Min(cdfAbs, 1), SurvivalRel: survRel, TailFloor: floor, Method: method}
 }

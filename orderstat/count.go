@@ -153,6 +153,7 @@ const maxWindow = 1 << 26
 type countWindow struct {
 	theta float64
 	lo    float64
+	sd    float64 // standard deviation of the tilted law
 	pmf   []float64 // P(C = lo + r), relative to the (untilted) law
 	tpmf  []float64 // the tilted probabilities, for judging accuracy
 }
@@ -215,7 +216,7 @@ func (cm countModel) window(target float64) countWindow {
 		coeff[l] = complex(mag*c, -mag*s)
 	}
 	seq := fourier.NewFFT(m).Sequence(nil, coeff)
-	w := countWindow{theta: theta, lo: lo, pmf: make([]float64, m), tpmf: seq}
+	w := countWindow{theta: theta, lo: lo, sd: math.Sqrt(v), pmf: make([]float64, m), tpmf: seq}
 	for r, p := range seq {
 		if p <= 0 {
 			continue

@@ -114,7 +114,7 @@ func (c *core) quadMoments() moments {
 	if c.kind == kindKth {
 		tol = 1e-11
 	}
-	in := &integrator{c: c, med: med, width: xhi - xlo, tol0: tol * scale, tol1: tol * scale * scale, r: gl12()}
+	in := &integrator{eval: func(x float64) (float64, float64) { return c.eval(x, false) }, med: med, width: xhi - xlo, tol0: tol * scale, tol1: tol * scale * scale, r: gl12()}
 	var i0, i1, e0, e1 float64
 	for i := 0; i+1 < len(pts); i++ {
 		a, b := pts[i], pts[i+1]
@@ -151,7 +151,7 @@ func (c *core) quadMoments() moments {
 }
 
 type integrator struct {
-	c          *core
+	eval       func(x float64) (cdf, sf float64)
 	med, width float64
 	tol0, tol1 float64
 	r          glRule
@@ -164,7 +164,7 @@ func (in *integrator) panel(a, b float64) (v0, v1 float64) {
 	above := mid >= in.med
 	for i := 0; i < glOrder; i++ {
 		x := mid + half*in.r.x[i]
-		cdf, sf := in.c.eval(x, false)
+		cdf, sf := in.eval(x)
 		if above {
 			v0 += in.r.w[i] * sf
 			v1 += in.r.w[i] * 2 * (x - in.med) * sf

@@ -411,4 +411,3 @@ func randGamma(r *rand.Rand, shape float64) float64 {
 func openUniform(r *rand.Rand) float64 {
 	return (float64(r.Uint64()>>11) + 0.5) / (1 << 53)
 }
-

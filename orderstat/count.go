@@ -153,7 +153,7 @@ const maxWindow = 1 << 26
 type countWindow struct {
 	theta float64
 	lo    float64
-	sd    float64 // standard deviation of the tilted law
+	sd    float64   // standard deviation of the tilted law
 	pmf   []float64 // P(C = lo + r), relative to the (untilted) law
 	tpmf  []float64 // the tilted probabilities, for judging accuracy
 }

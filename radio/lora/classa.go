@@ -1,0 +1,501 @@
+package lora
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/energy"
+)
+
+// TXCurrent is the supply current a node draws while transmitting at one
+// power.
+type TXCurrent struct {
+	EIRP    float64 // transmit power, dBm EIRP
+	Current float64 // supply current, A
+}
+
+// Currents are a node's supply currents in the states of a class A cycle,
+// at one supply voltage. Every current must be finite and at least Floor.
+type Currents struct {
+	Voltage float64     // supply voltage, V, > 0
+	TX      []TXCurrent // current while transmitting, per transmit power used
+	RX      float64     // current while a receive window is open, A
+	Wait    float64     // current between the uplink and the windows and between attempts, A
+	Floor   float64     // current between cycles (sleep), A
+}
+
+// TypicalCurrents returns an example set for an SX1276-class radio with a
+// low-power microcontroller at 3.3 V, for the EU863-870 transmit powers
+// (16 … 2 dBm). Typical values, from memory; use your radio's data sheet:
+// transmit 90 mA at 16 dBm falling to 20 mA at 2 dBm, receive 12 mA, wait
+// and floor 2 µA (microcontroller asleep with its timer running, radio
+// asleep).
+func TypicalCurrents() Currents {
+	return Currents{
+		Voltage: 3.3,
+		TX: []TXCurrent{
+			{EIRP: 16, Current: 90e-3}, {EIRP: 14, Current: 45e-3}, {EIRP: 12, Current: 38e-3},
+			{EIRP: 10, Current: 32e-3}, {EIRP: 8, Current: 28e-3}, {EIRP: 6, Current: 25e-3},
+			{EIRP: 4, Current: 22e-3}, {EIRP: 2, Current: 20e-3},
+		},
+		RX:    12e-3,
+		Wait:  2e-6,
+		Floor: 2e-6,
+	}
+}
+
+// txCurrent returns the transmit current at eirp (dBm).
+func (c Currents) txCurrent(eirp float64) (float64, error) {
+	for _, t := range c.TX {
+		if math.Abs(t.EIRP-eirp) <= 1e-9 {
+			return t.Current, nil
+		}
+	}
+	return 0, paramErr("ClassA", "Currents.TX", fmt.Sprintf("%d entries", len(c.TX)), fmt.Sprintf("has no current for %g dBm", eirp))
+}
+
+func (c Currents) validate() error {
+	const fn = "ClassA"
+	if !finite(c.Voltage) || c.Voltage <= 0 {
+		return paramErr(fn, "Currents.Voltage", c.Voltage, "must be finite and > 0 V")
+	}
+	if !finite(c.Floor) || c.Floor < 0 {
+		return paramErr(fn, "Currents.Floor", c.Floor, "must be finite and >= 0 A")
+	}
+	for _, f := range []struct {
+		name string
+		v    float64
+	}{{"RX", c.RX}, {"Wait", c.Wait}} {
+		if !finite(f.v) || f.v < c.Floor {
+			return paramErr(fn, "Currents."+f.name, f.v, fmt.Sprintf("must be finite and >= Floor (%g A)", c.Floor))
+		}
+	}
+	for i, t := range c.TX {
+		if !finite(t.Current) || t.Current < c.Floor || !finite(t.EIRP) {
+			return paramErr(fn, fmt.Sprintf("Currents.TX[%d]", i), t, fmt.Sprintf("needs a finite EIRP and a current >= Floor (%g A)", c.Floor))
+		}
+	}
+	return nil
+}
+
+// Windows gives, for one attempt, the probabilities that the node receives
+// a downlink in RX1 and in RX2. A network sends at most one downlink per
+// uplink, so RX1 + RX2 ≤ 1; with probability 1 − RX1 − RX2 both windows
+// stay empty.
+type Windows struct {
+	RX1 float64 // P(a downlink is received in RX1)
+	RX2 float64 // P(a downlink is received in RX2)
+}
+
+// DownlinkWindows derives Windows from the chain of events of one attempt:
+// the uplink is received (upReceived), the network answers (answers), it
+// answers in RX1 with probability inRX1 and otherwise in RX2, and the
+// answer reaches the node with probability rx1Received or rx2Received:
+//
+//	RX1 = up·answers·inRX1·rx1Received,  RX2 = up·answers·(1 − inRX1)·rx2Received
+//
+// (each a DownlinkProbability). Every argument must be in [0, 1].
+func DownlinkWindows(upReceived, answers, inRX1, rx1Received, rx2Received float64) (Windows, error) {
+	if !(inRX1 >= 0 && inRX1 <= 1) {
+		return Windows{}, paramErr("DownlinkWindows", "inRX1", inRX1, "must be a probability in [0, 1]")
+	}
+	p1, err := DownlinkProbability(upReceived, answers, rx1Received)
+	if err != nil {
+		return Windows{}, fmt.Errorf("lora.DownlinkWindows: %w", err)
+	}
+	p2, err := DownlinkProbability(upReceived, answers, rx2Received)
+	if err != nil {
+		return Windows{}, fmt.Errorf("lora.DownlinkWindows: %w", err)
+	}
+	return Windows{RX1: p1 * inRX1, RX2: p2 * (1 - inRX1)}, nil
+}
+
+// TruncatedGeometric returns the law of the number of transmissions of a
+// frame that is repeated until it succeeds (probability q per attempt,
+// independently) or m attempts are spent:
+//
+//	P(N = k) = (1 − q)^(k−1)·q  for k < m,   P(N = m) = (1 − q)^(m−1)
+//
+// with mean (1 − (1 − q)^m)/q. q must be in [0, 1] and m ≥ 1.
+func TruncatedGeometric(q float64, m int) (dist.Discrete, error) {
+	if !(q >= 0 && q <= 1) {
+		return dist.Discrete{}, paramErr("TruncatedGeometric", "q", q, "must be a probability in [0, 1]")
+	}
+	if m < 1 {
+		return dist.Discrete{}, paramErr("TruncatedGeometric", "m", m, "must be >= 1")
+	}
+	vals := make([]float64, m)
+	probs := make([]float64, m)
+	l := math.Log1p(-q) // log(1 − q); −Inf at q = 1
+	for k := 1; k <= m; k++ {
+		vals[k-1] = float64(k)
+		pk := math.Exp(float64(k-1) * l) // (1 − q)^(k−1)
+		if k-1 == 0 {
+			pk = 1
+		}
+		if k < m {
+			pk *= q
+		}
+		probs[k-1] = pk
+	}
+	return dist.NewDiscrete(vals, probs)
+}
+
+// ClassA describes a LoRaWAN class A node's reports: the cycle is
+//
+//	Before → uplink at the drawn data rate and power → wait RECEIVE_DELAY1 →
+//	RX1: a downlink (receive it) or none (listen for a preamble) →
+//	if RX1 was empty: wait until RECEIVE_DELAY2 → RX2, likewise →
+//	if no downlink and attempts remain: wait RetryGap, transmit again →
+//	After → floor until the next cycle.
+//
+// A downlink in either window ends the attempts: for a confirmed uplink it
+// carries the acknowledgement (LoRaWAN 1.0.3: a confirmed frame is
+// retransmitted, after ACK_TIMEOUT, until acknowledged or NbTrans attempts
+// are spent); the model applies the same rule to repetitions of unconfirmed
+// frames. The number of transmissions then follows TruncatedGeometric with
+// q = RX1 + RX2 and m = NbTrans.
+//
+// The (data rate, power) setting is drawn once per cycle and shared by every
+// state that depends on it: the uplink airtime and current, the RX1 data
+// rate and so both windows' durations.
+//
+// Waits drawn at the floor current (Currents.Wait == Currents.Floor, the
+// usual case of a sleeping microcontroller) cost exactly the floor energy
+// that the cycle charges for all time outside states, so they are left to
+// the floor rather than made states: the energy law is the same, the
+// cycle's active time then excludes them, and a random retry gap keeps the
+// law exact (finite discrete).
+//
+// Receive windows open ClockMargin early. An empty window listens for
+// ClockMargin + PreambleSymbols symbols at its data rate; a window that
+// receives a downlink is open for ClockMargin + the downlink's airtime.
+type ClassA struct {
+	Region   Region   // regional parameters
+	Currents Currents // supply currents per state
+	App      int      // uplink application payload, bytes
+	FOpts    int      // uplink FOpts, bytes
+	// Settings is the law of the (data rate, TXPower) the node transmits
+	// at: probabilities summing to 1, for example Settled.Reachable().
+	Settings  []Setting
+	Confirmed bool // confirmed uplinks (acknowledged), else unconfirmed
+	// NbTrans is the largest number of transmissions per report, 1 … 15;
+	// 0 means 1.
+	NbTrans     int
+	RX1DROffset int // RX1DROffset, as the network configured it
+	// DownlinkBytes is the PHY payload of a downlink, bytes; 0 means
+	// EmptyFrameBytes (a bare acknowledgement).
+	DownlinkBytes int
+	// Downlink gives the window probabilities per attempt at every data
+	// rate; DownlinkByDR overrides them for the data rates it lists (for
+	// example collision-dependent success per data rate).
+	Downlink     Windows
+	DownlinkByDR map[int]Windows
+	// PreambleSymbols is how many symbols an empty window listens for a
+	// preamble before it closes; 0 means 6 (common practice in LoRaWAN
+	// stacks, from memory).
+	PreambleSymbols int
+	// ClockMargin is the time each window opens early to absorb clock error,
+	// s, >= 0.
+	ClockMargin float64
+	// RetryGap is the law of the wait between a failed attempt's RX2 and the
+	// next transmission, s; nil means uniform over the region's ACK_TIMEOUT
+	// range (1 … 3 s).
+	RetryGap dist.Law
+	// Before and After are the node's own stages (wake, sense, process); nil
+	// means nothing.
+	Before, After energy.Stage
+}
+
+// Timeline is the plain-data class A timeline of one setting: the duration
+// of each state and the branch probabilities.
+type Timeline struct {
+	Setting    Setting
+	Uplink     float64      // uplink airtime, s
+	RX1DR      int          // data rate of RX1
+	RX2DR      int          // data rate of RX2
+	WaitRX1    float64      // end of uplink to RX1 opening, s
+	RX1Listen  float64      // RX1 open and empty, s
+	RX1Receive float64      // RX1 open, receiving a downlink, s
+	WaitRX2    float64      // RX1 closing (empty) to RX2 opening, s
+	RX2Listen  float64      // RX2 open and empty, s
+	RX2Receive float64      // RX2 open, receiving a downlink, s
+	Windows    Windows      // downlink probabilities per attempt
+	Attempts   dist.Discrete // law of the number of transmissions per report
+}
+
+func (c ClassA) nbTrans() int {
+	if c.NbTrans == 0 {
+		return 1
+	}
+	return c.NbTrans
+}
+
+func (c ClassA) windows(dr int) Windows {
+	if w, ok := c.DownlinkByDR[dr]; ok {
+		return w
+	}
+	return c.Downlink
+}
+
+func checkWindows(param string, w Windows) error {
+	if !(w.RX1 >= 0 && w.RX1 <= 1) || !(w.RX2 >= 0 && w.RX2 <= 1) || w.RX1+w.RX2 > 1+1e-12 {
+		return paramErr("ClassA", param, w, "needs RX1, RX2 in [0, 1] with RX1 + RX2 <= 1")
+	}
+	return nil
+}
+
+// validate checks everything but the settings' data rates.
+func (c ClassA) validate() error {
+	const fn = "ClassA"
+	if c.Region.t == nil {
+		return errZeroRegion
+	}
+	if err := c.Currents.validate(); err != nil {
+		return err
+	}
+	if n := c.nbTrans(); n < 1 || n > 15 {
+		return paramErr(fn, "NbTrans", c.NbTrans, "must be 1 … 15 (0 means 1)")
+	}
+	if len(c.Settings) == 0 {
+		return paramErr(fn, "Settings", "[]", "must not be empty")
+	}
+	sum := 0.0
+	for i, s := range c.Settings {
+		if !(s.Prob >= 0 && s.Prob <= 1) {
+			return paramErr(fn, fmt.Sprintf("Settings[%d].Prob", i), s.Prob, "must be in [0, 1]")
+		}
+		sum += s.Prob
+	}
+	if math.Abs(sum-1) > 1e-9 {
+		return paramErr(fn, "Settings", fmt.Sprintf("sum %.17g", sum), "probabilities must sum to 1 within 1e-9 (use Settled.Reachable)")
+	}
+	if err := checkWindows("Downlink", c.Downlink); err != nil {
+		return err
+	}
+	for dr, w := range c.DownlinkByDR {
+		if err := checkWindows(fmt.Sprintf("DownlinkByDR[%d]", dr), w); err != nil {
+			return err
+		}
+	}
+	if c.PreambleSymbols < 0 {
+		return paramErr(fn, "PreambleSymbols", c.PreambleSymbols, "must be >= 0 (0 means 6)")
+	}
+	if !finite(c.ClockMargin) || c.ClockMargin < 0 {
+		return paramErr(fn, "ClockMargin", c.ClockMargin, "must be finite and >= 0 s")
+	}
+	if c.RetryGap != nil {
+		if lo, hi := c.RetryGap.Support(); !(lo >= 0) || !finite(c.RetryGap.Variance()) || math.IsNaN(hi) {
+			return paramErr(fn, "RetryGap", c.RetryGap, "must have support in [0, ∞) s and a finite variance")
+		}
+	}
+	return nil
+}
+
+// Timelines returns the timeline of every setting with positive
+// probability, in the order of Settings. It fails, wrapping ErrParam, on
+// any bad field: a data rate the region lacks, a payload too large for a
+// data rate, a transmit power without a current, probabilities out of
+// range, windows that overlap.
+func (c ClassA) Timelines() ([]Timeline, error) {
+	if err := c.validate(); err != nil {
+		return nil, err
+	}
+	var out []Timeline
+	for i, s := range c.Settings {
+		if s.Prob == 0 {
+			continue
+		}
+		tl, err := c.timeline(s)
+		if err != nil {
+			return nil, fmt.Errorf("lora.ClassA: Settings[%d] (DR%d, TXPower %d): %w", i, s.DR, s.TXPower, err)
+		}
+		out = append(out, tl)
+	}
+	return out, nil
+}
+
+func (c ClassA) timeline(s Setting) (Timeline, error) {
+	reg := c.Region
+	up, err := reg.UplinkAirtime(s.DR, c.App, c.FOpts)
+	if err != nil {
+		return Timeline{}, err
+	}
+	eirp, err := reg.TXPower(s.TXPower)
+	if err != nil {
+		return Timeline{}, err
+	}
+	if math.Abs(eirp-s.EIRP) > 1e-9 && s.EIRP != 0 {
+		return Timeline{}, paramErr("ClassA", "Setting.EIRP", s.EIRP, fmt.Sprintf("TXPower %d is %g dBm in %s", s.TXPower, eirp, reg.Name()))
+	}
+	s.EIRP = eirp
+	rx1, err := reg.RX1DataRate(s.DR, c.RX1DROffset)
+	if err != nil {
+		return Timeline{}, err
+	}
+	_, rx2 := reg.RX2()
+	dlBytes := c.DownlinkBytes
+	if dlBytes == 0 {
+		dlBytes = EmptyFrameBytes
+	}
+	nsym := c.PreambleSymbols
+	if nsym == 0 {
+		nsym = 6
+	}
+	win := func(dr int) (listen, receive float64, err error) {
+		d, err := reg.DownlinkDataRate(dr)
+		if err != nil {
+			return 0, 0, err
+		}
+		if dlBytes-5 > d.MaxMACPayload { // PHYPayload = MHDR + MACPayload + MIC
+			return 0, 0, paramErr("ClassA", "DownlinkBytes", dlBytes, fmt.Sprintf("exceeds the PHY payload DR%d carries", dr))
+		}
+		p := d.DownlinkPHY()
+		a, err := p.Airtime(dlBytes)
+		if err != nil {
+			return 0, 0, err
+		}
+		return c.ClockMargin + float64(nsym)*p.SymbolTime(), c.ClockMargin + a, nil
+	}
+	tl := Timeline{Setting: s, Uplink: up, RX1DR: rx1, RX2DR: rx2, Windows: c.windows(s.DR)}
+	if tl.RX1Listen, tl.RX1Receive, err = win(rx1); err != nil {
+		return Timeline{}, err
+	}
+	if tl.RX2Listen, tl.RX2Receive, err = win(rx2); err != nil {
+		return Timeline{}, err
+	}
+	tm := reg.Timing()
+	tl.WaitRX1 = tm.ReceiveDelay1 - c.ClockMargin
+	tl.WaitRX2 = (tm.ReceiveDelay2 - c.ClockMargin) - (tl.WaitRX1 + tl.RX1Listen)
+	if tl.WaitRX1 < 0 || tl.WaitRX2 < 0 {
+		return Timeline{}, paramErr("ClassA", "ClockMargin", c.ClockMargin,
+			fmt.Sprintf("windows overlap: RX1 at DR%d listens %.4g s, RECEIVE_DELAY2 − RECEIVE_DELAY1 = %g s", rx1, tl.RX1Listen, tm.ReceiveDelay2-tm.ReceiveDelay1))
+	}
+	if tl.Attempts, err = TruncatedGeometric(math.Min(tl.Windows.RX1+tl.Windows.RX2, 1), c.nbTrans()); err != nil {
+		return Timeline{}, err
+	}
+	return tl, nil
+}
+
+// Stage returns the class A report as an energy stage: the setting drawn
+// once (energy.Configured), then the attempts as described on ClassA.
+func (c ClassA) Stage() (energy.Stage, error) {
+	tls, err := c.Timelines()
+	if err != nil {
+		return nil, err
+	}
+	gap := c.RetryGap
+	if gap == nil {
+		tm := c.Region.Timing()
+		u, err := dist.NewUniform(tm.AckTimeoutMin, tm.AckTimeoutMax)
+		if err != nil {
+			return nil, err
+		}
+		gap = u
+	}
+	vals := make([]float64, len(tls))
+	probs := make([]float64, len(tls))
+	for i, tl := range tls {
+		vals[i], probs[i] = float64(i), tl.Setting.Prob
+	}
+	config, err := dist.NewDiscrete(vals, probs)
+	if err != nil {
+		return nil, fmt.Errorf("lora.ClassA: settings: %w", err)
+	}
+	attempts, err := energy.Configured(config, func(v float64) (energy.Stage, error) {
+		return c.attemptsStage(tls[int(v)], gap)
+	})
+	if err != nil {
+		return nil, fmt.Errorf("lora.ClassA: %w", err)
+	}
+	parts := []energy.Stage{}
+	if c.Before != nil {
+		parts = append(parts, c.Before)
+	}
+	parts = append(parts, attempts)
+	if c.After != nil {
+		parts = append(parts, c.After)
+	}
+	return energy.Sequence(parts...)
+}
+
+// Cycle returns the energy cycle of one report every period (law of the
+// reporting interval, s), with the floor current between cycles.
+func (c ClassA) Cycle(period dist.Law) (energy.Cycle, error) {
+	st, err := c.Stage()
+	if err != nil {
+		return energy.Cycle{}, err
+	}
+	return energy.NewCycle(st, period, c.Currents.Floor*c.Currents.Voltage)
+}
+
+// attemptsStage builds the attempts of one setting.
+func (c ClassA) attemptsStage(tl Timeline, gap dist.Law) (energy.Stage, error) {
+	cur := c.Currents
+	v := cur.Voltage
+	itx, err := cur.txCurrent(tl.Setting.EIRP)
+	if err != nil {
+		return nil, err
+	}
+	fixed := func(name string, i, d float64) energy.Stage {
+		return energy.MustFixedState(name, i, v, d) // inputs validated above
+	}
+	// seq drops the waits left to the floor (nil entries).
+	seq := func(st ...energy.Stage) energy.Stage {
+		var keep []energy.Stage
+		for _, s := range st {
+			if s != nil {
+				keep = append(keep, s)
+			}
+		}
+		return energy.MustSequence(keep...)
+	}
+	tx := fixed(fmt.Sprintf("uplink %g dBm", tl.Setting.EIRP), itx, tl.Uplink)
+	var wait1, wait2, retry energy.Stage
+	if cur.Wait > cur.Floor {
+		wait1 = fixed("wait RX1", cur.Wait, tl.WaitRX1)
+		wait2 = fixed("wait RX2", cur.Wait, tl.WaitRX2)
+		st, err := energy.NewState("retry wait", dist.MustPointMass(cur.Wait), v, gap)
+		if err != nil {
+			return nil, err
+		}
+		retry = st
+	}
+	l1 := fixed("RX1 listen", cur.RX, tl.RX1Listen)
+	r1 := fixed("RX1 downlink", cur.RX, tl.RX1Receive)
+	l2 := fixed("RX2 listen", cur.RX, tl.RX2Listen)
+	r2 := fixed("RX2 downlink", cur.RX, tl.RX2Receive)
+	fail := seq(tx, wait1, l1, wait2, l2)
+	m := c.nbTrans()
+	p1, p2 := tl.Windows.RX1, tl.Windows.RX2
+	q := math.Min(p1+p2, 1)
+	if m == 1 || q == 1 {
+		// One transmission: its windows decide.
+		return energy.Choice([]float64{p1, p2, math.Max(1-p1-p2, 0)},
+			[]energy.Stage{seq(tx, wait1, r1), seq(tx, wait1, l1, wait2, r2), fail})
+	}
+	failGap := seq(fail, retry)
+	allFail := seq(energy.MustRepeat(dist.MustPointMass(float64(m-1)), failGap), fail)
+	if q == 0 {
+		return allFail, nil
+	}
+	ok := energy.MustChoice([]float64{p1 / q, p2 / q},
+		[]energy.Stage{seq(tx, wait1, r1), seq(tx, wait1, l1, wait2, r2)})
+	// Failures before the successful attempt: P(F = j) ∝ (1 − q)^j, j < m.
+	lq := math.Log1p(-q)
+	fv := make([]float64, m)
+	fp := make([]float64, m)
+	norm := -math.Expm1(float64(m) * lq) // 1 − (1 − q)^m
+	for j := range fv {
+		fv[j] = float64(j)
+		fp[j] = math.Exp(float64(j)*lq) * q / norm
+	}
+	failures, err := dist.NewDiscrete(fv, fp)
+	if err != nil {
+		return nil, err
+	}
+	okBranch := seq(energy.MustRepeat(failures, failGap), ok)
+	pAllFail := math.Exp(float64(m) * lq)
+	return energy.Choice([]float64{norm, pAllFail}, []energy.Stage{okBranch, allFail})
+}

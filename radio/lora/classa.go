@@ -212,16 +212,16 @@ type ClassA struct {
 // of each state and the branch probabilities.
 type Timeline struct {
 	Setting    Setting
-	Uplink     float64      // uplink airtime, s
-	RX1DR      int          // data rate of RX1
-	RX2DR      int          // data rate of RX2
-	WaitRX1    float64      // end of uplink to RX1 opening, s
-	RX1Listen  float64      // RX1 open and empty, s
-	RX1Receive float64      // RX1 open, receiving a downlink, s
-	WaitRX2    float64      // RX1 closing (empty) to RX2 opening, s
-	RX2Listen  float64      // RX2 open and empty, s
-	RX2Receive float64      // RX2 open, receiving a downlink, s
-	Windows    Windows      // downlink probabilities per attempt
+	Uplink     float64       // uplink airtime, s
+	RX1DR      int           // data rate of RX1
+	RX2DR      int           // data rate of RX2
+	WaitRX1    float64       // end of uplink to RX1 opening, s
+	RX1Listen  float64       // RX1 open and empty, s
+	RX1Receive float64       // RX1 open, receiving a downlink, s
+	WaitRX2    float64       // RX1 closing (empty) to RX2 opening, s
+	RX2Listen  float64       // RX2 open and empty, s
+	RX2Receive float64       // RX2 open, receiving a downlink, s
+	Windows    Windows       // downlink probabilities per attempt
 	Attempts   dist.Discrete // law of the number of transmissions per report
 }
 

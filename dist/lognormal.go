@@ -76,8 +76,9 @@ func (l LogNormal) Density(x float64) float64 {
 	if x <= 0 || math.IsInf(x, 1) {
 		return 0
 	}
-	z := (math.Log(x) - l.mu) / l.sigma
-	return math.Exp(-z*z/2) / (x * l.sigma * math.Sqrt(2*math.Pi))
+	lx := math.Log(x)
+	z := (lx - l.mu) / l.sigma
+	return math.Exp(-z*z/2 - lx - math.Log(l.sigma*math.Sqrt(2*math.Pi)))
 }
 
 // Quantile returns exp(μ + σz) with Φ(z) = p.

@@ -403,21 +403,25 @@ func (c ClassA) Stage() (energy.Stage, error) {
 	if err != nil {
 		return nil, fmt.Errorf("lora.ClassA: settings: %w", err)
 	}
+	parts := map[int]windowParts{}
+	for _, tl := range tls {
+		if _, ok := parts[tl.Setting.DR]; ok {
+			continue
+		}
+		w, err := c.windowParts(tl, gap)
+		if err != nil {
+			return nil, fmt.Errorf("lora.ClassA: DR%d: %w", tl.Setting.DR, err)
+		}
+		parts[tl.Setting.DR] = w
+	}
 	attempts, err := energy.Configured(config, func(v float64) (energy.Stage, error) {
-		return c.attemptsStage(tls[int(v)], gap)
+		tl := tls[int(v)]
+		return c.attemptsStage(tl, parts[tl.Setting.DR])
 	})
 	if err != nil {
 		return nil, fmt.Errorf("lora.ClassA: %w", err)
 	}
-	parts := []energy.Stage{}
-	if c.Before != nil {
-		parts = append(parts, c.Before)
-	}
-	parts = append(parts, attempts)
-	if c.After != nil {
-		parts = append(parts, c.After)
-	}
-	return energy.Sequence(parts...)
+	return seq(c.Before, attempts, c.After), nil
 }
 
 // Cycle returns the energy cycle of one report every period (law of the
@@ -430,72 +434,99 @@ func (c ClassA) Cycle(period dist.Law) (energy.Cycle, error) {
 	return energy.NewCycle(st, period, c.Currents.Floor*c.Currents.Voltage)
 }
 
-// attemptsStage builds the attempts of one setting.
-func (c ClassA) attemptsStage(tl Timeline, gap dist.Law) (energy.Stage, error) {
+// windowParts are the stages of one data rate that do not depend on the
+// transmit power: everything after the uplink, and the attempt law.
+type windowParts struct {
+	ok, fail, retry energy.Stage  // after the uplink: a downlink in RX1 or RX2; none; the retry gap (nil: floor)
+	failures        dist.Discrete // failed attempts before the successful one
+	pOK, pAllFail   float64       // P(some attempt gets a downlink), P(none does)
+	single          bool          // one transmission decides (NbTrans = 1 or q = 1)
+	p1, p2          float64       // window probabilities per attempt
+	r1Tail, r2Tail  energy.Stage  // after the uplink: downlink in RX1, in RX2
+}
+
+// seq is energy.Sequence without the waits left to the floor (nil entries).
+func seq(st ...energy.Stage) energy.Stage {
+	keep := make([]energy.Stage, 0, len(st))
+	for _, s := range st {
+		if s != nil {
+			keep = append(keep, s)
+		}
+	}
+	return energy.MustSequence(keep...) // never empty: an uplink or a window is always there
+}
+
+// windowParts builds the power-independent stages of tl's data rate.
+func (c ClassA) windowParts(tl Timeline, gap dist.Law) (windowParts, error) {
 	cur := c.Currents
 	v := cur.Voltage
-	itx, err := cur.txCurrent(tl.Setting.EIRP)
-	if err != nil {
-		return nil, err
-	}
 	fixed := func(name string, i, d float64) energy.Stage {
-		return energy.MustFixedState(name, i, v, d) // inputs validated above
+		return energy.MustFixedState(name, i, v, d) // inputs validated by Timelines
 	}
-	// seq drops the waits left to the floor (nil entries).
-	seq := func(st ...energy.Stage) energy.Stage {
-		var keep []energy.Stage
-		for _, s := range st {
-			if s != nil {
-				keep = append(keep, s)
-			}
-		}
-		return energy.MustSequence(keep...)
-	}
-	tx := fixed(fmt.Sprintf("uplink %g dBm", tl.Setting.EIRP), itx, tl.Uplink)
-	var wait1, wait2, retry energy.Stage
+	var w windowParts
+	var wait1, wait2 energy.Stage
 	if cur.Wait > cur.Floor {
 		wait1 = fixed("wait RX1", cur.Wait, tl.WaitRX1)
 		wait2 = fixed("wait RX2", cur.Wait, tl.WaitRX2)
 		st, err := energy.NewState("retry wait", dist.MustPointMass(cur.Wait), v, gap)
 		if err != nil {
-			return nil, err
+			return w, err
 		}
-		retry = st
+		w.retry = st
 	}
 	l1 := fixed("RX1 listen", cur.RX, tl.RX1Listen)
 	r1 := fixed("RX1 downlink", cur.RX, tl.RX1Receive)
 	l2 := fixed("RX2 listen", cur.RX, tl.RX2Listen)
 	r2 := fixed("RX2 downlink", cur.RX, tl.RX2Receive)
-	fail := seq(tx, wait1, l1, wait2, l2)
+	w.fail = seq(wait1, l1, wait2, l2)
+	w.r1Tail = seq(wait1, r1)
+	w.r2Tail = seq(wait1, l1, wait2, r2)
 	m := c.nbTrans()
-	p1, p2 := tl.Windows.RX1, tl.Windows.RX2
-	q := math.Min(p1+p2, 1)
+	w.p1, w.p2 = tl.Windows.RX1, tl.Windows.RX2
+	q := math.Min(w.p1+w.p2, 1)
 	if m == 1 || q == 1 {
-		// One transmission: its windows decide.
-		return energy.Choice([]float64{p1, p2, math.Max(1-p1-p2, 0)},
-			[]energy.Stage{seq(tx, wait1, r1), seq(tx, wait1, l1, wait2, r2), fail})
+		w.single = true
+		return w, nil
 	}
-	failGap := seq(fail, retry)
-	allFail := seq(energy.MustRepeat(dist.MustPointMass(float64(m-1)), failGap), fail)
 	if q == 0 {
-		return allFail, nil
+		w.pAllFail = 1
+		return w, nil
 	}
-	ok := energy.MustChoice([]float64{p1 / q, p2 / q},
-		[]energy.Stage{seq(tx, wait1, r1), seq(tx, wait1, l1, wait2, r2)})
+	w.ok = energy.MustChoice([]float64{w.p1 / q, w.p2 / q}, []energy.Stage{w.r1Tail, w.r2Tail})
 	// Failures before the successful attempt: P(F = j) ∝ (1 − q)^j, j < m.
 	lq := math.Log1p(-q)
 	fv := make([]float64, m)
 	fp := make([]float64, m)
-	norm := -math.Expm1(float64(m) * lq) // 1 − (1 − q)^m
+	w.pOK = -math.Expm1(float64(m) * lq) // 1 − (1 − q)^m
+	w.pAllFail = math.Exp(float64(m) * lq)
 	for j := range fv {
 		fv[j] = float64(j)
-		fp[j] = math.Exp(float64(j)*lq) * q / norm
+		fp[j] = math.Exp(float64(j)*lq) * q / w.pOK
 	}
-	failures, err := dist.NewDiscrete(fv, fp)
+	var err error
+	w.failures, err = dist.NewDiscrete(fv, fp)
+	return w, err
+}
+
+// attemptsStage builds the attempts of one setting from its data rate's
+// window parts.
+func (c ClassA) attemptsStage(tl Timeline, w windowParts) (energy.Stage, error) {
+	itx, err := c.Currents.txCurrent(tl.Setting.EIRP)
 	if err != nil {
 		return nil, err
 	}
-	okBranch := seq(energy.MustRepeat(failures, failGap), ok)
-	pAllFail := math.Exp(float64(m) * lq)
-	return energy.Choice([]float64{norm, pAllFail}, []energy.Stage{okBranch, allFail})
+	tx := energy.MustFixedState(fmt.Sprintf("uplink %g dBm", tl.Setting.EIRP), itx, c.Currents.Voltage, tl.Uplink)
+	fail := seq(tx, w.fail)
+	if w.single {
+		// One transmission: its windows decide.
+		return energy.Choice([]float64{w.p1, w.p2, math.Max(1-w.p1-w.p2, 0)},
+			[]energy.Stage{seq(tx, w.r1Tail), seq(tx, w.r2Tail), fail})
+	}
+	failGap := seq(fail, w.retry)
+	allFail := seq(energy.MustRepeat(dist.MustPointMass(float64(c.nbTrans()-1)), failGap), fail)
+	if w.pAllFail == 1 {
+		return allFail, nil
+	}
+	okBranch := seq(energy.MustRepeat(w.failures, failGap), tx, w.ok)
+	return energy.Choice([]float64{w.pOK, w.pAllFail}, []energy.Stage{okBranch, allFail})
 }

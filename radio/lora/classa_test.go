@@ -52,6 +52,19 @@ func TestDownlinkWindows(t *testing.T) {
 	assert.ErrorIs(t, err, lora.ErrParam)
 }
 
+// testBenchLink is testLink's scenario (6 dB shadowing) for any testing.TB.
+func testBenchLink(t testing.TB) lora.Link {
+	disk, err := lora.NewDisk(3500)
+	require.NoError(t, err)
+	return lora.Link{Distance: disk, PathLoss: lora.PathLoss{Reference: 128.95, RefDistance: 1000, Exponent: 3.5, Shadowing: 6},
+		GatewayGain: 3, NoiseFigure: 6, Margin: 10}
+}
+
+// settle is SettleADR in EU863-870 with 4 power levels.
+func settle(link lora.Link) (lora.Settled, error) {
+	return lora.SettleADR(lora.EU868(), link, lora.ADRConfig{PowerSteps: 4})
+}
+
 // sense is the node's own stage in the tests: 5 mA for 50 ms at 3.3 V.
 func sense() energy.Stage { return energy.MustFixedState("sense", 5e-3, 3.3, 0.05) }
 
@@ -61,10 +74,7 @@ func sense() energy.Stage { return energy.MustFixedState("sense", 5e-3, 3.3, 0.0
 // rate.
 func testNode(t testing.TB, nodes float64) lora.ClassA {
 	eu := lora.EU868()
-	disk, _ := lora.NewDisk(3500)
-	link := lora.Link{Distance: disk, PathLoss: lora.PathLoss{Reference: 128.95, RefDistance: 1000, Exponent: 3.5, Shadowing: 6},
-		GatewayGain: 3, NoiseFigure: 6, Margin: 10}
-	s, err := lora.SettleADR(eu, link, lora.ADRConfig{PowerSteps: 4})
+	s, err := settle(testBenchLink(t))
 	require.NoError(t, err)
 	set, err := s.Reachable()
 	require.NoError(t, err)

@@ -10,6 +10,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/dist/disttest"
 	"github.com/joulelaw/joulelaw/energy"
 	"github.com/joulelaw/joulelaw/radio/lora"
 )
@@ -416,4 +417,21 @@ func TestClassAContinuous(t *testing.T) {
 		xs[i] = cy.Rand(r)
 	}
 	assert.Less(t, ksGridDistance(law, xs, 400), ksBound(law, n), "against Cycle.Rand")
+}
+
+// TestLawsConformance runs the shared law checker on the other laws this
+// package returns: the attempt law, the data-rate law of ADR and the exact
+// cycle-energy law of the test node.
+func TestLawsConformance(t *testing.T) {
+	g, err := lora.TruncatedGeometric(0.35, 8)
+	require.NoError(t, err)
+	assert.NoError(t, disttest.Check(g, disttest.WithSeed(1)))
+	s, err := settle(testBenchLink(t))
+	require.NoError(t, err)
+	drl, err := s.DataRateLaw()
+	require.NoError(t, err)
+	assert.NoError(t, disttest.Check(drl, disttest.WithSeed(2)))
+	cy, err := testNode(t, 3000).Cycle(dist.MustPointMass(600))
+	require.NoError(t, err)
+	assert.NoError(t, disttest.Check(cy.Energy(), disttest.WithSeed(3)))
 }

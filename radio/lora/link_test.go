@@ -2,6 +2,7 @@ package lora_test
 
 import (
 	"math"
+	"math/big"
 	"math/rand/v2"
 	"testing"
 
@@ -9,6 +10,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/dist/disttest"
 	"github.com/joulelaw/joulelaw/radio/lora"
 )
 
@@ -325,4 +327,24 @@ func TestAnnulus(t *testing.T) {
 	assert.ErrorIs(t, err, lora.ErrParam)
 	_, err = lora.NewDisk(0)
 	assert.ErrorIs(t, err, lora.ErrParam)
+}
+
+// TestAnnulusConformance runs the shared law checker on the distance laws,
+// with the closed-form survival (R² − r²)/(R² − a²) as reference, evaluated
+// in 200-bit arithmetic (math/big) so that the thin annulus keeps its
+// digits.
+func TestAnnulusConformance(t *testing.T) {
+	for _, tc := range []struct{ inner, outer float64 }{{0, 3500}, {300, 2500}, {999, 1000}} {
+		a := must(lora.NewAnnulus(tc.inner, tc.outer))
+		ref := func(r float64) float64 {
+			f := func(x float64) *big.Float { return new(big.Float).SetPrec(200).SetFloat64(x) }
+			sq := func(x float64) *big.Float { return new(big.Float).SetPrec(200).Mul(f(x), f(x)) }
+			num := new(big.Float).SetPrec(200).Sub(sq(tc.outer), sq(r))
+			den := new(big.Float).SetPrec(200).Sub(sq(tc.outer), sq(tc.inner))
+			v, _ := new(big.Float).SetPrec(200).Quo(num, den).Float64()
+			return v
+		}
+		xs := []float64{tc.inner + (tc.outer-tc.inner)*0.1, (tc.inner + tc.outer) / 2, tc.outer - (tc.outer-tc.inner)*1e-6}
+		assert.NoError(t, disttest.Check(a, disttest.WithSeed(6), disttest.WithReference(ref, xs, 1e-9)), "%v", a)
+	}
 }

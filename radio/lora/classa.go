@@ -150,12 +150,15 @@ func TruncatedGeometric(q float64, m int) (dist.Discrete, error) {
 //	if no downlink and attempts remain: wait RetryGap, transmit again →
 //	After → floor until the next cycle.
 //
-// A downlink in either window ends the attempts: for a confirmed uplink it
-// carries the acknowledgement (LoRaWAN 1.0.3: a confirmed frame is
-// retransmitted, after ACK_TIMEOUT, until acknowledged or NbTrans attempts
-// are spent); the model applies the same rule to repetitions of unconfirmed
-// frames. The number of transmissions then follows TruncatedGeometric with
-// q = RX1 + RX2 and m = NbTrans.
+// A downlink in either window ends the attempts. For a confirmed uplink it
+// carries the acknowledgement, and a frame left unacknowledged is sent
+// again ACK_TIMEOUT (2 ± 1 s) after RX2, until acknowledged or NbTrans
+// attempts are spent (LoRaWAN 1.0.3). An unconfirmed uplink is repeated
+// NbTrans times, each repetition right after the previous one's windows
+// (LoRaWAN 1.0.3, LinkADRReq), and the model stops the repetitions at the
+// first downlink as LoRaWAN 1.0.4 prescribes. Either way the number of
+// transmissions follows TruncatedGeometric with q = RX1 + RX2 and
+// m = NbTrans; Confirmed chooses the default RetryGap.
 //
 // The (data rate, power) setting is drawn once per cycle and shared by every
 // state that depends on it: the uplink airtime and current, the RX1 data
@@ -201,7 +204,8 @@ type ClassA struct {
 	ClockMargin float64
 	// RetryGap is the law of the wait between a failed attempt's RX2 and the
 	// next transmission, s; nil means uniform over the region's ACK_TIMEOUT
-	// range (1 … 3 s).
+	// range (1 … 3 s) for confirmed uplinks and no wait for unconfirmed
+	// repetitions.
 	RetryGap dist.Law
 	// Before and After are the node's own stages (wake, sense, process); nil
 	// means nothing.
@@ -386,13 +390,16 @@ func (c ClassA) Stage() (energy.Stage, error) {
 		return nil, err
 	}
 	gap := c.RetryGap
-	if gap == nil {
+	switch {
+	case gap == nil && c.Confirmed:
 		tm := c.Region.Timing()
 		u, err := dist.NewUniform(tm.AckTimeoutMin, tm.AckTimeoutMax)
 		if err != nil {
 			return nil, err
 		}
 		gap = u
+	case gap == nil:
+		gap = dist.MustPointMass(0)
 	}
 	vals := make([]float64, len(tls))
 	probs := make([]float64, len(tls))
@@ -468,11 +475,13 @@ func (c ClassA) windowParts(tl Timeline, gap dist.Law) (windowParts, error) {
 	if cur.Wait > cur.Floor {
 		wait1 = fixed("wait RX1", cur.Wait, tl.WaitRX1)
 		wait2 = fixed("wait RX2", cur.Wait, tl.WaitRX2)
-		st, err := energy.NewState("retry wait", dist.MustPointMass(cur.Wait), v, gap)
-		if err != nil {
-			return w, err
+		if _, hi := gap.Support(); hi > 0 {
+			st, err := energy.NewState("retry wait", dist.MustPointMass(cur.Wait), v, gap)
+			if err != nil {
+				return w, err
+			}
+			w.retry = st
 		}
-		w.retry = st
 	}
 	l1 := fixed("RX1 listen", cur.RX, tl.RX1Listen)
 	r1 := fixed("RX1 downlink", cur.RX, tl.RX1Receive)

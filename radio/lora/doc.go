@@ -27,9 +27,22 @@
 // log-distance path loss with log-normal shadowing, the gateway's noise
 // figure and an installation margin. SettleADR turns it into the law of the
 // data rate and transmit power that adaptive data rate settles on, and the
-// share of nodes out of reach, by quadrature over distance. Aloha gives the
-// pure-ALOHA success probability exp(−2G) per spreading factor and channel
-// (Abramson 1970).
+// share of nodes out of reach, by quadrature over distance. AlohaSuccess
+// gives the pure-ALOHA success probability exp(−2G) (Abramson 1970) and
+// UplinkCollisions applies it per data rate and channel.
+//
+// # The class A cycle
+//
+// ClassA describes a node's reports: currents per state (TypicalCurrents is
+// an example set: typical values, from memory; use your radio's data sheet),
+// payload, region, the law of (data rate, power), confirmed or not,
+// NbTrans and the downlink windows' probabilities (given, or derived with
+// UplinkCollisions and DownlinkWindows). ClassA.Cycle returns the energy
+// cycle (package energy): the setting drawn once per cycle and shared by
+// every stage, the uplink, RX1 and RX2 (a downlink received, or a preamble
+// listen), retransmissions after the ACK_TIMEOUT gap until a downlink
+// arrives or NbTrans is spent (TruncatedGeometric attempts), then the
+// floor. ClassA.Timelines gives the same timeline as plain data.
 //
 // # Cautions
 //

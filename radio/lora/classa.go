@@ -180,7 +180,9 @@ type ClassA struct {
 	App      int      // uplink application payload, bytes
 	FOpts    int      // uplink FOpts, bytes
 	// Settings is the law of the (data rate, TXPower) the node transmits
-	// at: probabilities summing to 1, for example Settled.Reachable().
+	// at: probabilities summing to 1, for example Settled.Reachable(). An
+	// EIRP of 0 is filled in from the region; any other must match the
+	// TXPower index.
 	Settings  []Setting
 	Confirmed bool // confirmed uplinks (acknowledged), else unconfirmed
 	// NbTrans is the largest number of transmissions per report, 1 … 15;

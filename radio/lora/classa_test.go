@@ -435,3 +435,32 @@ func TestLawsConformance(t *testing.T) {
 	require.NoError(t, err)
 	assert.NoError(t, disttest.Check(cy.Energy(), disttest.WithSeed(3)))
 }
+
+// TestRetryGapDefault checks the default gap between attempts: ACK_TIMEOUT
+// (uniform 1 … 3 s, RP002-1.0.3) after a confirmed frame, none between
+// unconfirmed repetitions; with waits above the floor the confirmed cycle's
+// mean grows by E[N − 1]·(I_wait − I_floor)·V·2 s (Wald's identity).
+func TestRetryGapDefault(t *testing.T) {
+	c := lora.ClassA{Region: lora.EU868(), Currents: lora.TypicalCurrents(), App: 10,
+		Settings: []lora.Setting{{DR: 3, TXPower: 0, Prob: 1}}, NbTrans: 4, ClockMargin: 5e-3,
+		Downlink: lora.Windows{RX1: 0.4, RX2: 0.1}}
+	c.Currents.Wait = 1e-3
+	names := func(cy energy.Cycle) map[string]bool {
+		out := map[string]bool{}
+		for _, s := range cy.States() {
+			out[s.Name()] = true
+		}
+		return out
+	}
+	un, err := c.Cycle(dist.MustPointMass(300))
+	require.NoError(t, err)
+	assert.False(t, names(un)["retry wait"])
+	c.Confirmed = true
+	co, err := c.Cycle(dist.MustPointMass(300))
+	require.NoError(t, err)
+	assert.True(t, names(co)["retry wait"])
+	g, err := lora.TruncatedGeometric(0.5, 4)
+	require.NoError(t, err)
+	extra := (g.Mean() - 1) * (1e-3 - 2e-6) * 3.3 * 2
+	assert.InEpsilon(t, extra, co.MeanEnergy()-un.MeanEnergy(), 1e-9)
+}

@@ -206,12 +206,13 @@ func (cm countModel) pmfAll() (lo float64, pmf []float64, method string, rel flo
 	if width > maxCountSupport {
 		return 0, nil, "", 0, fmt.Errorf("about %.3g probabilities exceed %d", width, maxCountSupport)
 	}
-	// Cost estimates in multiply-adds: a transform point costs about 30.
+	// Cost estimates in multiply-adds: one term at one transform point
+	// (a log1p, an atan2) costs about 150, and about 20 windows are needed.
 	m := 64.0
 	for m < 2*(9*sd+12) {
 		m *= 2
 	}
-	dftCost := 30 * 20 * float64(len(cm.terms)) * (m/2 + 1)
+	dftCost := 150 * 20 * float64(len(cm.terms)) * (m/2 + 1)
 	convCost := 0.0
 	for _, t := range cm.terms {
 		convCost += width * math.Min(t.n+1, 80*math.Sqrt(t.n*t.p*t.q)+40)

@@ -65,13 +65,24 @@ func (c *core) computeMoments() moments {
 //	E[X] − c   = ∫_c^∞ S(x) dx − ∫_{−∞}^c F(x) dx
 //	E[(X−c)²]  = 2∫_c^∞ (x−c) S(x) dx + 2∫_{−∞}^c (c−x) F(x) dx
 //
-// with c the median, over [Q(1e-20), UQ(1e-20)] split at the atoms and at a
+// with c the median (for groups a point between its brackets), over
+// [Q(1e-20), UQ(1e-20)] (for groups, their brackets) split at the atoms and at a
 // few quantiles, by adaptive composite 12-point Gauss–Legendre quadrature
 // (each panel accepted when it agrees with the sum over its halves).
 func (c *core) quadMoments() moments {
 	q := func(p float64) float64 { return c.quantile(p, 1-p, false) }
 	uq := func(v float64) float64 { return c.quantile(1-v, v, true) }
-	xlo, xhi := q(momentTail), uq(momentTail)
+	var xlo, xhi, med float64
+	if len(c.groups) > 1 && c.kind != kindKth {
+		// The brackets of the quantiles (one parent quantile per group
+		// each) bound the region well enough and cost less than solving.
+		xlo, _ = c.bracket(momentTail, 1-momentTail)
+		_, xhi = c.bracket(1-momentTail, momentTail)
+		a, b := c.bracket(0.5, 0.5)
+		med = a + (b-a)/2
+	} else {
+		xlo, xhi, med = q(momentTail), uq(momentTail), q(0.5)
+	}
 	lo, hi := c.lo, c.hi
 	if xlo < lo {
 		xlo = lo
@@ -79,15 +90,16 @@ func (c *core) quadMoments() moments {
 	if xhi > hi {
 		xhi = hi
 	}
-	med := q(0.5)
 	if !finite(xlo) || !finite(xhi) || !finite(med) {
 		return moments{mean: math.NaN(), variance: math.NaN(), meanErr: math.Inf(1), varErr: math.Inf(1)}
 	}
 	breaks := []float64{xlo, med, xhi}
-	if len(c.groups) == 1 && c.kind != kindKth {
+	levels := []float64{1e-15, 1e-10, 1e-6, 1e-3, 0.05, 0.25}
+	switch {
+	case len(c.groups) == 1 && c.kind != kindKth:
 		// Quantiles are cheap (one parent quantile each): use them as
 		// panel edges so that the integrand changes smoothly on each.
-		for _, p := range []float64{1e-15, 1e-10, 1e-6, 1e-3, 0.05, 0.25} {
+		for _, p := range levels {
 			breaks = append(breaks, q(p), uq(p))
 		}
 	}
@@ -106,11 +118,14 @@ func (c *core) quadMoments() moments {
 			pts = append(pts, b)
 		}
 	}
-	scale := math.Max(xhi-xlo, math.Abs(med))
+	scale := xhi - xlo
 	if scale == 0 {
 		return moments{mean: med}
 	}
 	tol := 1e-14
+	if len(c.groups) > 1 {
+		tol = 1e-12 // each evaluation costs one parent call per group
+	}
 	if c.kind == kindKth {
 		tol = 1e-11
 	}
@@ -127,6 +142,10 @@ func (c *core) quadMoments() moments {
 	}
 	// Bounds on what lies beyond [xlo, xhi]: the tail probability times the
 	// tail's decay length (estimated from the quantile at 100 × the level).
+	if len(c.groups) > 1 && c.kind != kindKth {
+		q = func(p float64) float64 { a, _ := c.bracket(p, 1-p); return a }
+		uq = func(v float64) float64 { _, b := c.bracket(1-v, v); return b }
+	}
 	if xhi < hi {
 		l := math.Abs(xhi - uq(100*momentTail))
 		e0 += momentTail * l

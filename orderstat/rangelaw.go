@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"sort"
 	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
@@ -90,14 +91,28 @@ func discreteRange(fn string, atoms []dist.Atom, n float64) (dist.Law, error) {
 			inner += pj
 		}
 	}
+	// Equal differences (a_j − a_i = a_l − a_k) are one atom: merge them
+	// here, keeping the value exact.
+	idx := make([]int, len(vals))
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.Slice(idx, func(a, b int) bool { return vals[idx[a]] < vals[idx[b]] })
+	var mv, mp []float64
 	total := 0.0
-	for _, p := range probs {
+	for _, i := range idx {
+		v, p := vals[i], probs[i]
 		total += p
+		if k := len(mv); k > 0 && math.Abs(v-mv[k-1]) <= dist.AtomMergeTolerance*math.Max(math.Abs(v), math.Abs(mv[k-1])) {
+			mp[k-1] += p
+			continue
+		}
+		mv, mp = append(mv, v), append(mp, p)
 	}
-	for i := range probs {
-		probs[i] /= total
+	for i := range mp {
+		mp[i] /= total
 	}
-	d, err := dist.NewDiscrete(vals, probs)
+	d, err := dist.NewDiscrete(mv, mp)
 	if err != nil {
 		return nil, fmt.Errorf("orderstat.%s: %w", fn, err)
 	}

@@ -40,9 +40,17 @@ func (e *ParamError) Unwrap() []error {
 }
 
 func paramErr(fn, param string, value any, rule string) error {
-	return &ParamError{Func: fn, Param: param, Value: value, Rule: rule}
+	return &ParamError{Func: fn, Param: param, Value: brief(value), Rule: rule}
 }
 
 func causeErr(fn, param string, value any, rule string, cause error) error {
-	return &ParamError{Func: fn, Param: param, Value: value, Rule: rule, Cause: cause}
+	return &ParamError{Func: fn, Param: param, Value: brief(value), Rule: rule, Cause: cause}
+}
+
+// brief shortens long descriptions (of nested stages) to 200 bytes.
+func brief(v any) any {
+	if s, ok := v.(string); ok && len(s) > 200 {
+		return s[:200] + "…"
+	}
+	return v
 }

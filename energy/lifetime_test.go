@@ -228,5 +228,5 @@ func TestLifetimeAgainstSimulation(t *testing.T) {
 	s2 := l.CycleEnergy().Variance()
 	want := b.UsableEnergy()/mu + (s2-mu*mu)/(2*mu*mu)
 	t.Logf("E[M] = %.6f, renewal expansion %.6f", l.Mean()/l.Step(), want)
-	assert.InDelta(t, want, l.Mean()/l.Step(), 0.05, "renewal expansion of the mean")
+	assert.InDelta(t, want, l.Mean()/l.Step(), 1e-3, "renewal expansion of the mean")
 }

@@ -285,10 +285,12 @@ func (c choice) sample(r *rand.Rand, floor float64, rec recorder) (e, t float64)
 }
 
 func (c choice) laws(floor float64) (excess, active dist.Law, err error) {
-	return mixLaws("choice", c.String(), c.probs, c.stages, floor)
+	return mixLaws("choice", c, c.probs, c.stages, floor)
 }
 
-func mixLaws(what, desc string, probs []float64, stages []Stage, floor float64) (excess, active dist.Law, err error) {
+// mixLaws returns the mixtures of the stages' laws; self describes the
+// stage in an error (formatted only then).
+func mixLaws(what string, self fmt.Stringer, probs []float64, stages []Stage, floor float64) (excess, active dist.Law, err error) {
 	es := make([]dist.Law, len(stages))
 	ts := make([]dist.Law, len(stages))
 	for i, s := range stages {
@@ -297,10 +299,10 @@ func mixLaws(what, desc string, probs []float64, stages []Stage, floor float64) 
 		}
 	}
 	if excess, err = dist.Mixture(probs, es); err != nil {
-		return nil, nil, causeErr("NewCycle", what, desc, "energy law", err)
+		return nil, nil, causeErr("NewCycle", what, self.String(), "energy law", err)
 	}
 	if active, err = dist.Mixture(probs, ts); err != nil {
-		return nil, nil, causeErr("NewCycle", what, desc, "active-time law", err)
+		return nil, nil, causeErr("NewCycle", what, self.String(), "active-time law", err)
 	}
 	return excess, active, nil
 }
@@ -521,7 +523,7 @@ func (c configured) sample(r *rand.Rand, floor float64, rec recorder) (e, t floa
 }
 
 func (c configured) laws(floor float64) (excess, active dist.Law, err error) {
-	return mixLaws("configured", c.String(), c.probs, c.stages, floor)
+	return mixLaws("configured", c, c.probs, c.stages, floor)
 }
 
 func (c configured) moments(floor float64) moments { return mixMoments(c.probs, c.stages, floor) }

@@ -85,7 +85,7 @@ type Collisions struct {
 func UplinkCollisions(reg Region, settings []Setting, traffic Traffic) ([]Collisions, error) {
 	const fn = "UplinkCollisions"
 	if reg.t == nil {
-		return nil, errZeroRegion
+		return nil, errZeroRegion()
 	}
 	frames := traffic.Frames
 	if frames == 0 {

@@ -256,7 +256,7 @@ func checkWindows(param string, w Windows) error {
 func (c ClassA) validate() error {
 	const fn = "ClassA"
 	if c.Region.t == nil {
-		return errZeroRegion
+		return errZeroRegion()
 	}
 	if err := c.Currents.validate(); err != nil {
 		return err

@@ -218,7 +218,7 @@ type adrCell struct {
 func SettleADR(reg Region, link Link, cfg ADRConfig) (Settled, error) {
 	const fn = "SettleADR"
 	if reg.t == nil {
-		return Settled{}, errZeroRegion
+		return Settled{}, errZeroRegion()
 	}
 	if link.Distance == nil {
 		return Settled{}, paramErr(fn, "link.Distance", nil, "must be a distance law (m)")

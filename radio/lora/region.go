@@ -114,7 +114,10 @@ type regionTable struct {
 // the current LoRaWAN Regional Parameters govern.
 type Region struct{ t *regionTable }
 
-var errZeroRegion = paramErr("Region", "Region", "zero value", "use EU868() or US915()")
+// errZeroRegion returns a fresh error for a method called on the zero Region.
+func errZeroRegion() error {
+	return paramErr("Region", "Region", "zero value", "use EU868() or US915()")
+}
 
 // Name returns the region's name, e.g. "EU863-870".
 func (r Region) Name() string {
@@ -141,7 +144,7 @@ func (r Region) String() string { return r.Name() }
 // data rate (FSK and LR-FHSS are not modelled).
 func (r Region) DataRate(dr int) (DataRate, error) {
 	if r.t == nil {
-		return DataRate{}, errZeroRegion
+		return DataRate{}, errZeroRegion()
 	}
 	const fn = "Region.DataRate"
 	if dr < 0 || dr >= len(r.t.drs) {
@@ -292,7 +295,7 @@ func (r Region) MaxEIRP() float64 {
 // TXPower returns the EIRP of TXPower index i, in dBm: MaxEIRP − 2·i dB.
 func (r Region) TXPower(i int) (float64, error) {
 	if r.t == nil {
-		return 0, errZeroRegion
+		return 0, errZeroRegion()
 	}
 	if i < 0 || i >= r.t.powerSteps {
 		return 0, paramErr("Region.TXPower", "i", i, fmt.Sprintf("%s TXPower index must be 0 … %d", r.t.name, r.t.powerSteps-1))
@@ -400,7 +403,7 @@ func (r Region) SubBands() []SubBand {
 // region (or the region has none).
 func (r Region) SubBandAt(freq float64) (SubBand, error) {
 	if r.t == nil {
-		return SubBand{}, errZeroRegion
+		return SubBand{}, errZeroRegion()
 	}
 	for _, s := range r.t.subBands {
 		if s.Contains(freq) {

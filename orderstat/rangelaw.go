@@ -173,14 +173,20 @@ func (rl *rangeLaw) integrate(kink float64, h func(x float64, px point) (float64
 	// Lower half: u = P(X₁ <= x) on decades [10^-(d+1), 10^-d], then the
 	// upper half in v = P(X₁ > x) likewise; in t = ln u, du = u dt.
 	for side := 0; side < 2; side++ {
-		for d := 0; d < rangeDecades; d++ {
-			a, b := -float64(d+1)*math.Ln10, -float64(d)*math.Ln10
+		for d := 0; d < rangeDecades; {
+			// Panels of one decade (four sub-panels in the bulk, three
+			// decades at a time in the far tail, where the integrand is
+			// smooth in log scale).
+			step, sub := 1, 1
+			switch {
+			case d < 4:
+				sub = 4
+			case d >= 15:
+				step = 3
+			}
+			a, b := -float64(d+step)*math.Ln10, -float64(d)*math.Ln10
 			if d == 0 {
 				b = math.Log(0.5)
-			}
-			sub := 1
-			if d < 4 {
-				sub = 4 // the bulk of the minimum's law: finer panels
 			}
 			for k := 0; k < sub; k++ {
 				pa, pb := a+(b-a)*float64(k)/float64(sub), a+(b-a)*float64(k+1)/float64(sub)
@@ -191,6 +197,7 @@ func (rl *rangeLaw) integrate(kink float64, h func(x float64, px point) (float64
 				}
 				panel(side, pa, pb)
 			}
+			d += step
 		}
 	}
 	return sum, sum2

@@ -2,6 +2,7 @@ package orderstat
 
 import (
 	"fmt"
+	"math"
 
 	"github.com/joulelaw/joulelaw/dist"
 )
@@ -13,8 +14,9 @@ type Flag struct {
 	High      bool    // true: above the maximum's threshold; false: below the minimum's
 	Threshold float64 // the threshold it crossed, in the laws' unit
 	// FleetProb is the probability, under the laws, that some node of the
-	// fleet is at least this extreme: P(max > Value) when High, else
-	// P(min <= Value). It is below p for every flag.
+	// fleet is at least as extreme on its own law's scale: with one law for
+	// all, P(max > Value) when High, else P(min <= Value). It is below p
+	// for every flag.
 	FleetProb float64
 	// NodeProb is the same probability for this node alone:
 	// P(X_i > Value) or P(X_i <= Value).
@@ -22,14 +24,22 @@ type Flag struct {
 }
 
 // Screen flags the nodes whose observed values are unlikely under their
-// laws, all nodes taken together: a node is flagged high when its value
-// exceeds the upper p-quantile of the fleet's maximum, and low when it is
-// below the lower p-quantile of the fleet's minimum. So under the laws,
-// with probability at least 1 - 2p no node is flagged at all.
+// laws, all n nodes taken together. Each value is first put on its own
+// law's probability scale, U_i = F_i(x_i), uniform under the laws; a node
+// is flagged high when U_i exceeds the upper p-quantile of the largest of n
+// uniforms, i.e. when
+//
+//	P(max over the fleet of the U's > U_i) = -expm1(n·log1p(-S_i(x_i))) < p
+//
+// and low when it is below the lower p-quantile of the smallest. With one
+// law for every node this is exactly "above Max(law, n).UpperQuantile(p)"
+// (or below Min(law, n).Quantile(p)). Under the laws, with probability at
+// least 1 - 2p no node is flagged at all.
 //
 // laws holds one law per value, or a single law for every node. values
 // must be non-empty and finite, p in (0, 1). The flags are returned in node
-// order, each with the probability behind it.
+// order, each with the probability behind it and the node's threshold (the
+// value of its own law at that level).
 func Screen(values []float64, laws []dist.Law, p float64) ([]Flag, error) {
 	const fn = "Screen"
 	if len(values) == 0 {
@@ -46,42 +56,32 @@ func Screen(values []float64, laws []dist.Law, p float64) ([]Flag, error) {
 			return nil, paramErr(fn, fmt.Sprintf("values[%d]", i), v, "must be finite")
 		}
 	}
-	var mx, mn dist.Law
-	var err error
-	if len(laws) == 1 {
-		if laws[0] == nil {
-			return nil, paramErr(fn, "laws[0]", nil, "must not be nil")
-		}
-		n := int64(len(values))
-		if mx, err = Max(laws[0], n); err != nil {
+	gs := make([]group, len(laws))
+	for i, l := range laws {
+		g, err := newGroup(fn, fmt.Sprintf("laws[%d]", i), l, 1)
+		if err != nil {
 			return nil, err
 		}
-		mn, _ = Min(laws[0], n)
-	} else {
-		gs := make([]Group, len(laws))
-		for i, l := range laws {
-			if l == nil {
-				return nil, paramErr(fn, fmt.Sprintf("laws[%d]", i), nil, "must not be nil")
-			}
-			gs[i] = Group{Law: l, Count: 1}
-		}
-		if mx, err = MaxOfGroups(gs); err != nil {
-			return nil, err
-		}
-		mn, _ = MinOfGroups(gs)
+		gs[i] = g
 	}
-	hi, lo := mx.UpperQuantile(p), mn.Quantile(p)
+	n := float64(len(values))
+	// The per-node tail level at which the fleet-wide probability is p.
+	lv := math.Log1p(-p) / n
+	level := -math.Expm1(lv)
 	var flags []Flag
 	for i, v := range values {
-		l := laws[0]
-		if len(laws) > 1 {
-			l = laws[i]
+		g := &gs[0]
+		if len(gs) > 1 {
+			g = &gs[i]
 		}
-		switch {
-		case v > hi:
-			flags = append(flags, Flag{Node: i, Value: v, High: true, Threshold: hi, FleetProb: mx.Survival(v), NodeProb: l.Survival(v)})
-		case v < lo:
-			flags = append(flags, Flag{Node: i, Value: v, Threshold: lo, FleetProb: mn.CDF(v), NodeProb: l.CDF(v)})
+		pt := g.eval(v)
+		if fleet := -math.Expm1(n * pt.logF()); pt.s < level && fleet < p {
+			flags = append(flags, Flag{Node: i, Value: v, High: true, Threshold: g.levelQuantile(math.Exp(lv), level), FleetProb: fleet, NodeProb: pt.s})
+			continue
+		}
+		// Low: P(min over the fleet of the U's <= U_i) = 1 - (1 - F_i)^n.
+		if fleet := -math.Expm1(n * pt.logS()); pt.f < level && fleet < p {
+			flags = append(flags, Flag{Node: i, Value: v, Threshold: g.levelQuantile(level, math.Exp(lv)), FleetProb: fleet, NodeProb: pt.f})
 		}
 	}
 	return flags, nil

@@ -401,7 +401,7 @@ func (c ClassA) Stage() (energy.Stage, error) {
 		}
 		gap = u
 	case gap == nil:
-		gap = dist.MustPointMass(0)
+		gap, _ = dist.NewPointMass(0)
 	}
 	vals := make([]float64, len(tls))
 	probs := make([]float64, len(tls))
@@ -430,7 +430,9 @@ func (c ClassA) Stage() (energy.Stage, error) {
 	if err != nil {
 		return nil, fmt.Errorf("lora.ClassA: %w", err)
 	}
-	return seq(c.Before, attempts, c.After), nil
+	b := &builder{}
+	st := b.seq(c.Before, attempts, c.After)
+	return st, b.err
 }
 
 // Cycle returns the energy cycle of one report every period (law of the
@@ -454,56 +456,86 @@ type windowParts struct {
 	r1Tail, r2Tail  energy.Stage  // after the uplink: downlink in RX1, in RX2
 }
 
+// builder makes energy stages and keeps the first error, so that stage
+// construction reads as a formula and never panics.
+type builder struct {
+	voltage float64
+	err     error
+}
+
+func (b *builder) keep(s energy.Stage, err error) energy.Stage {
+	if err != nil && b.err == nil {
+		b.err = err
+	}
+	if s == nil {
+		return energy.Nothing()
+	}
+	return s
+}
+
+// fixed is a state at a constant current (A) for a constant duration (s).
+func (b *builder) fixed(name string, current, duration float64) energy.Stage {
+	return b.keep(energy.NewFixedState(name, current, b.voltage, duration))
+}
+
 // seq is energy.Sequence without the waits left to the floor (nil entries).
-func seq(st ...energy.Stage) energy.Stage {
+func (b *builder) seq(st ...energy.Stage) energy.Stage {
 	keep := make([]energy.Stage, 0, len(st))
 	for _, s := range st {
 		if s != nil {
 			keep = append(keep, s)
 		}
 	}
-	return energy.MustSequence(keep...) // never empty: an uplink or a window is always there
+	if len(keep) == 0 {
+		return energy.Nothing()
+	}
+	return b.keep(energy.Sequence(keep...))
+}
+
+func (b *builder) choice(probs []float64, st ...energy.Stage) energy.Stage {
+	return b.keep(energy.Choice(probs, st))
+}
+
+func (b *builder) repeat(count dist.Law, st energy.Stage) energy.Stage {
+	return b.keep(energy.Repeat(count, st))
 }
 
 // windowParts builds the power-independent stages of tl's data rate.
 func (c ClassA) windowParts(tl Timeline, gap dist.Law) (windowParts, error) {
 	cur := c.Currents
-	v := cur.Voltage
-	fixed := func(name string, i, d float64) energy.Stage {
-		return energy.MustFixedState(name, i, v, d) // inputs validated by Timelines
-	}
+	b := &builder{voltage: cur.Voltage}
 	var w windowParts
 	var wait1, wait2 energy.Stage
 	if cur.Wait > cur.Floor {
-		wait1 = fixed("wait RX1", cur.Wait, tl.WaitRX1)
-		wait2 = fixed("wait RX2", cur.Wait, tl.WaitRX2)
+		wait1 = b.fixed("wait RX1", cur.Wait, tl.WaitRX1)
+		wait2 = b.fixed("wait RX2", cur.Wait, tl.WaitRX2)
 		if _, hi := gap.Support(); hi > 0 {
-			st, err := energy.NewState("retry wait", dist.MustPointMass(cur.Wait), v, gap)
+			at, err := dist.NewPointMass(cur.Wait)
 			if err != nil {
 				return w, err
 			}
-			w.retry = st
+			w.retry = b.keep(energy.NewState("retry wait", at, cur.Voltage, gap))
 		}
 	}
-	l1 := fixed("RX1 listen", cur.RX, tl.RX1Listen)
-	r1 := fixed("RX1 downlink", cur.RX, tl.RX1Receive)
-	l2 := fixed("RX2 listen", cur.RX, tl.RX2Listen)
-	r2 := fixed("RX2 downlink", cur.RX, tl.RX2Receive)
-	w.fail = seq(wait1, l1, wait2, l2)
-	w.r1Tail = seq(wait1, r1)
-	w.r2Tail = seq(wait1, l1, wait2, r2)
+	l1 := b.fixed("RX1 listen", cur.RX, tl.RX1Listen)
+	r1 := b.fixed("RX1 downlink", cur.RX, tl.RX1Receive)
+	l2 := b.fixed("RX2 listen", cur.RX, tl.RX2Listen)
+	r2 := b.fixed("RX2 downlink", cur.RX, tl.RX2Receive)
+	w.fail = b.seq(wait1, l1, wait2, l2)
+	w.r1Tail = b.seq(wait1, r1)
+	w.r2Tail = b.seq(wait1, l1, wait2, r2)
 	m := c.nbTrans()
 	w.p1, w.p2 = tl.Windows.RX1, tl.Windows.RX2
 	q := math.Min(w.p1+w.p2, 1)
-	if m == 1 || q == 1 {
+	switch {
+	case m == 1 || q == 1:
 		w.single = true
-		return w, nil
-	}
-	if q == 0 {
+		return w, b.err
+	case q == 0:
 		w.pAllFail = 1
-		return w, nil
+		return w, b.err
 	}
-	w.ok = energy.MustChoice([]float64{w.p1 / q, w.p2 / q}, []energy.Stage{w.r1Tail, w.r2Tail})
+	w.ok = b.choice([]float64{w.p1 / q, w.p2 / q}, w.r1Tail, w.r2Tail)
 	// Failures before the successful attempt: P(F = j) ∝ (1 − q)^j, j < m.
 	lq := math.Log1p(-q)
 	fv := make([]float64, m)
@@ -515,8 +547,10 @@ func (c ClassA) windowParts(tl Timeline, gap dist.Law) (windowParts, error) {
 		fp[j] = math.Exp(float64(j)*lq) * q / w.pOK
 	}
 	var err error
-	w.failures, err = dist.NewDiscrete(fv, fp)
-	return w, err
+	if w.failures, err = dist.NewDiscrete(fv, fp); err != nil {
+		return w, err
+	}
+	return w, b.err
 }
 
 // attemptsStage builds the attempts of one setting from its data rate's
@@ -526,18 +560,23 @@ func (c ClassA) attemptsStage(tl Timeline, w windowParts) (energy.Stage, error) 
 	if err != nil {
 		return nil, err
 	}
-	tx := energy.MustFixedState(fmt.Sprintf("uplink %g dBm", tl.Setting.EIRP), itx, c.Currents.Voltage, tl.Uplink)
-	fail := seq(tx, w.fail)
+	b := &builder{voltage: c.Currents.Voltage}
+	tx := b.fixed(fmt.Sprintf("uplink %g dBm", tl.Setting.EIRP), itx, tl.Uplink)
+	fail := b.seq(tx, w.fail)
 	if w.single {
 		// One transmission: its windows decide.
-		return energy.Choice([]float64{w.p1, w.p2, math.Max(1-w.p1-w.p2, 0)},
-			[]energy.Stage{seq(tx, w.r1Tail), seq(tx, w.r2Tail), fail})
+		st := b.choice([]float64{w.p1, w.p2, math.Max(1-w.p1-w.p2, 0)}, b.seq(tx, w.r1Tail), b.seq(tx, w.r2Tail), fail)
+		return st, b.err
 	}
-	failGap := seq(fail, w.retry)
-	allFail := seq(energy.MustRepeat(dist.MustPointMass(float64(c.nbTrans()-1)), failGap), fail)
+	failGap := b.seq(fail, w.retry)
+	before, err := dist.NewPointMass(float64(c.nbTrans() - 1))
+	if err != nil {
+		return nil, err
+	}
+	allFail := b.seq(b.repeat(before, failGap), fail)
 	if w.pAllFail == 1 {
-		return allFail, nil
+		return allFail, b.err
 	}
-	okBranch := seq(energy.MustRepeat(w.failures, failGap), tx, w.ok)
-	return energy.Choice([]float64{w.pOK, w.pAllFail}, []energy.Stage{okBranch, allFail})
+	okBranch := b.seq(b.repeat(w.failures, failGap), tx, w.ok)
+	return b.choice([]float64{w.pOK, w.pAllFail}, okBranch, allFail), b.err
 }

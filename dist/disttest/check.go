@@ -59,7 +59,7 @@ func Check(l dist.Law, opts ...Option) error {
 	for _, o := range opts {
 		o(&cfg)
 	}
-	c := &checker{law: l, cfg: cfg}
+	c := &checker{law: l, cfg: cfg, qCache: map[float64]float64{}, uqCache: map[float64]float64{}}
 	for _, b := range cfg.bad {
 		c.fail(CheckOptions, "options", "valid options", b)
 	}
@@ -126,7 +126,33 @@ type checker struct {
 	atomic  bool
 	density func(float64) float64 // nil unless Densitied
 	grid    []float64             // sorted, finite evaluation points
+	gridF   []float64             // CDF on grid
+	gridS   []float64             // Survival on grid
 	sampled []dist.Atom           // atoms examined one by one (at most maxAtoms)
+
+	// Quantiles already computed, by level: a numerically computed law may
+	// take milliseconds for one, and several checks use the same levels.
+	qCache, uqCache map[float64]float64
+}
+
+// quantile returns l.Quantile(p), computed once per level.
+func (c *checker) quantile(p float64) float64 {
+	if x, ok := c.qCache[p]; ok {
+		return x
+	}
+	x := c.law.Quantile(p)
+	c.qCache[p] = x
+	return x
+}
+
+// upperQuantile returns l.UpperQuantile(q), computed once per level.
+func (c *checker) upperQuantile(q float64) float64 {
+	if x, ok := c.uqCache[q]; ok {
+		return x
+	}
+	x := c.law.UpperQuantile(q)
+	c.uqCache[q] = x
+	return x
 }
 
 // maxAtoms caps the atoms examined one at a time; beyond it an evenly
@@ -186,26 +212,31 @@ func (c *checker) prepare() (ok bool) {
 		if d, isD := l.(dist.Densitied); isD {
 			c.density = d.Density
 		}
-		c.median = l.Quantile(0.5)
-		c.spread = positiveScale(l, c.median)
+		c.median = c.quantile(0.5)
+		c.spread = c.positiveScale()
 		c.sampled = sampleAtoms(c.atoms)
 		c.grid = c.buildGrid()
+		c.gridF = make([]float64, len(c.grid))
+		c.gridS = make([]float64, len(c.grid))
+		for i, x := range c.grid {
+			c.gridF[i], c.gridS[i] = l.CDF(x), l.Survival(x)
+		}
 		ok = true
 	})
 	return ok
 }
 
-// positiveScale returns a positive, finite length scale of l: its
+// positiveScale returns a positive, finite length scale of the law: its
 // interquartile range, else its standard deviation, else max(|median|, 1).
-func positiveScale(l dist.Law, median float64) float64 {
-	if s := l.UpperQuantile(0.25) - l.Quantile(0.25); s > 0 && finite(s) {
+func (c *checker) positiveScale() float64 {
+	if s := c.upperQuantile(0.25) - c.quantile(0.25); s > 0 && finite(s) {
 		return s
 	}
-	if s := math.Sqrt(l.Variance()); s > 0 && finite(s) {
+	if s := math.Sqrt(c.law.Variance()); s > 0 && finite(s) {
 		return s
 	}
-	if finite(median) {
-		return math.Max(math.Abs(median), 1)
+	if finite(c.median) {
+		return math.Max(math.Abs(c.median), 1)
 	}
 	return 1
 }
@@ -237,7 +268,7 @@ func sampleAtoms(atoms []dist.Atom) []dist.Atom {
 
 // tailLevels are the probabilities at which quantiles are taken to build
 // grids: from 1e-300 into the bulk. Mirrored through UpperQuantile.
-var tailLevels = [...]float64{1e-300, 1e-100, 1e-30, 1e-16, 1e-12, 1e-9, 1e-6, 1e-4, 1e-3, 0.01, 0.025, 0.05, 0.1, 0.2, 0.3, 0.4, 0.5}
+var tailLevels = [...]float64{1e-300, 1e-100, 1e-30, 1e-16, 1e-12, 1e-9, 1e-6, 1e-4, 1e-3, 0.01, 0.025, 0.05, 0.1, 0.2, 0.25, 0.3, 0.4, 0.5}
 
 // buildGrid returns the sorted, distinct, finite points at which CDF and
 // Survival are examined: quantiles at tailLevels from both ends, the
@@ -245,11 +276,10 @@ var tailLevels = [...]float64{1e-300, 1e-100, 1e-30, 1e-16, 1e-12, 1e-9, 1e-6, 1
 // points outside the support, and every examined atom with its
 // neighbours.
 func (c *checker) buildGrid() []float64 {
-	l := c.law
 	var pts []float64
 	var qs []float64
 	for _, p := range tailLevels {
-		qs = append(qs, l.Quantile(p), l.UpperQuantile(p))
+		qs = append(qs, c.quantile(p), c.upperQuantile(p))
 	}
 	qs = sortedFinite(qs)
 	for i, x := range qs {

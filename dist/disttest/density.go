@@ -6,31 +6,17 @@ import (
 	"slices"
 )
 
-// integrationLevels are the probabilities whose quantiles (from both ends)
-// split the support into pieces for quadrature: decades from 1e-12, then
-// steps of 0.02 to the median.
-func integrationLevels() []float64 {
-	var ps []float64
-	for p := 1e-12; p < 0.015; p *= 10 {
-		ps = append(ps, p)
-	}
-	for k := 1; k <= 25; k++ {
-		ps = append(ps, 0.02*float64(k))
-	}
-	return ps
-}
-
 // maxBreakAtoms caps the atoms used as quadrature breakpoints.
 const maxBreakAtoms = 2048
 
 // breakpoints returns the sorted, distinct pieces' ends for quadrature: the
-// finite support ends, quantiles at integrationLevels from both ends, the
-// median, and each atom v with the float below it, so that an atom sits at
-// the right end of a piece of zero width. With extend, unbounded tails are
-// followed further, by decades down to 1e-30 (but not below the law's
+// finite support ends, quantiles from both ends at the levels of
+// tailLevels from 1e-12 to 1/2 (the quadrature adapts within each piece),
+// the median, and each atom v with the float below it, so that an atom
+// sits at the right end of a piece of zero width. With extend, unbounded
+// tails are followed to the 1e-16 and 1e-30 quantiles (not below the law's
 // reported tail floor), for the moment integrals.
 func (c *checker) breakpoints(extend bool) []float64 {
-	l := c.law
 	pts := []float64{c.median}
 	if finite(c.lo) {
 		pts = append(pts, c.lo)
@@ -38,22 +24,19 @@ func (c *checker) breakpoints(extend bool) []float64 {
 	if finite(c.hi) {
 		pts = append(pts, c.hi)
 	}
-	for _, p := range integrationLevels() {
-		pts = append(pts, l.Quantile(p), l.UpperQuantile(p))
-	}
+	floor := 1e-12
 	if extend {
-		floor := math.Max(1e-30, c.cfg.tailFloor)
-		for p := 1e-13; p >= floor; p /= 10 {
-			if math.IsInf(c.lo, -1) {
-				if x := l.Quantile(p); finite(x) && math.Abs(x) < 1e300 {
-					pts = append(pts, x)
-				}
-			}
-			if math.IsInf(c.hi, 1) {
-				if x := l.UpperQuantile(p); finite(x) && math.Abs(x) < 1e300 {
-					pts = append(pts, x)
-				}
-			}
+		floor = math.Max(1e-30, c.cfg.tailFloor)
+	}
+	for _, p := range tailLevels {
+		if p < floor {
+			continue
+		}
+		if p >= 1e-12 || math.IsInf(c.lo, -1) {
+			pts = append(pts, c.quantile(p))
+		}
+		if p >= 1e-12 || math.IsInf(c.hi, 1) {
+			pts = append(pts, c.upperQuantile(p))
 		}
 	}
 	atoms := c.atoms
@@ -65,7 +48,7 @@ func (c *checker) breakpoints(extend bool) []float64 {
 	}
 	out := pts[:0]
 	for _, x := range pts {
-		if finite(x) && x >= c.lo && x <= c.hi {
+		if finite(x) && math.Abs(x) < 1e300 && x >= c.lo && x <= c.hi {
 			out = append(out, x)
 		}
 	}
@@ -118,14 +101,15 @@ func (c *checker) checkMass() {
 		}
 		return
 	}
-	in := newIntegrator(20000)
+	in := newIntegrator(integrationBudget)
+	rel := c.integrationRel(c.cfg.densityRel)
 	total, errSum := atomSum, 0.0
 	for i := 0; i+1 < len(br); i++ {
 		a, b := br[i], br[i+1]
 		p, mag := c.massBetween(a, b)
 		base := c.pieceTolerance(a, b, p, mag)
 		atoms := c.atomsIn(a, b)
-		v, e := in.closest(scalar(c.density), a, b, p-atoms, func(e float64) float64 { return base + 2*e })
+		v, e := in.closest(scalar(c.density), a, b, p-atoms, rel, func(e float64) float64 { return base + 2*e })
 		total += v
 		errSum += e
 		tol := base + 2*e
@@ -165,10 +149,9 @@ func (c *checker) checkDensity() {
 			}
 		}
 	}
-	l := c.law
 	var xs []float64
 	for _, p := range []float64{1e-6, 0.01, 0.05, 0.1, 0.25, 0.5} {
-		xs = append(xs, l.Quantile(p), l.UpperQuantile(p))
+		xs = append(xs, c.quantile(p), c.upperQuantile(p))
 	}
 	for _, x := range sortedFinite(xs) {
 		if !(x > c.lo && x < c.hi) {
@@ -225,8 +208,41 @@ func (c *checker) checkMoments() {
 		}
 		return
 	}
-	in := newIntegrator(20000)
-	var e1, e2, err1, err2 float64
+	width := br[len(br)-1] - br[0]
+	sd := math.Sqrt(v)
+	if !finite(sd) || sd == 0 {
+		sd = c.spread
+	}
+	// A kink of the CDF near a piece's end can fool the adaptive
+	// quadrature; before reporting, integrate again on finer splits.
+	var mean, variance, tolM, tolV float64
+	for _, n := range append([]int{1}, splits[:]...) {
+		e1, e2, err1, err2 := c.momentIntegrals(refine(br, n), c0)
+		mean = c0 + e1
+		tolM = c.cfg.momentRel*(math.Abs(m-c0)+sd) + c.cfg.cdfAbs*width + 2*err1 + 1e-14*math.Abs(m)
+		variance = e2 - e1*e1
+		tolV = c.cfg.momentRel*(v+(m-c0)*(m-c0)) + c.cfg.cdfAbs*width*width + 2*err2 + 2*math.Abs(e1)*tolM
+		if math.Abs(mean-m) <= tolM && (!finite(v) || math.Abs(variance-v) <= tolV) {
+			return
+		}
+	}
+	at := fmt.Sprintf("∫ over [%s, %s], split at %s", g(br[0]), g(br[len(br)-1]), g(c0))
+	if !(math.Abs(mean-m) <= tolM) {
+		c.fail(CheckMoments, at, fmt.Sprintf("Mean() = %s = c + ∫S - ∫F within %.3g", g(m), tolM), g(mean))
+	}
+	if finite(v) && !(math.Abs(variance-v) <= tolV) {
+		c.fail(CheckMoments, at,
+			fmt.Sprintf("Variance() = %s = 2∫(x-c)S + 2∫(c-x)F - (mean-c)² within %.3g", g(v), tolV), g(variance))
+	}
+}
+
+// momentIntegrals returns e1 = ∫_c^∞ S - ∫_{-∞}^c F and
+// e2 = 2∫_c^∞ (x-c)S + 2∫_{-∞}^c (c-x)F over the pieces of br (c among
+// them), with error estimates of each.
+func (c *checker) momentIntegrals(br []float64, c0 float64) (e1, e2, err1, err2 float64) {
+	l := c.law
+	in := newIntegrator(integrationBudget)
+	rel := c.integrationRel(c.cfg.momentRel)
 	for i := 0; i+1 < len(br); i++ {
 		a, b := br[i], br[i+1]
 		var f func(float64, []float64)
@@ -237,33 +253,12 @@ func (c *checker) checkMoments() {
 		} else {
 			f = func(x float64, out []float64) { S := l.Survival(x); out[0], out[1] = S, (x-c0)*S }
 		}
-		val, e, _ := in.integrate(2, f, a, b, 1e-13, 1e-300)
+		// The integrand is known to cdfAbs at best: no finer target.
+		val, e, _ := in.integrate(2, f, a, b, rel, math.Max(c.cfg.cdfAbs*(b-a), 1e-300))
 		e1 += sign * val[0]
 		e2 += 2 * val[1]
 		err1 += e
 		err2 += 2 * e * math.Max(math.Abs(a-c0), math.Abs(b-c0))
 	}
-	width := br[len(br)-1] - br[0]
-	sd := math.Sqrt(v)
-	if !finite(sd) || sd == 0 {
-		sd = c.spread
-	}
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		sd = c.spread
-	}
-	mean := c0 + e1
-	tolM := c.cfg.momentRel*(math.Abs(m-c0)+sd) + c.cfg.cdfAbs*width + 2*err1 + 1e-14*math.Abs(m)
-	if !(math.Abs(mean-m) <= tolM) {
-		c.fail(CheckMoments, fmt.Sprintf("∫ over [%s, %s], split at %s", g(br[0]), g(br[len(br)-1]), g(c0)),
-			fmt.Sprintf("Mean() = %s = c + ∫S - ∫F within %.3g", g(m), tolM), g(mean))
-	}
-	if !finite(v) {
-		return
-	}
-	variance := e2 - e1*e1
-	tolV := c.cfg.momentRel*(v+(m-c0)*(m-c0)) + c.cfg.cdfAbs*width*width + 2*err2 + 2*math.Abs(e1)*tolM
-	if !(math.Abs(variance-v) <= tolV) {
-		c.fail(CheckMoments, fmt.Sprintf("∫ over [%s, %s], split at %s", g(br[0]), g(br[len(br)-1]), g(c0)),
-			fmt.Sprintf("Variance() = %s = 2∫(x-c)S + 2∫(c-x)F - (mean-c)² within %.3g", g(v), tolV), g(variance))
-	}
+	return e1, e2, err1, err2
 }

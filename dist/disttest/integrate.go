@@ -99,13 +99,14 @@ func scalar(f func(float64) float64) func(float64, []float64) {
 // convergence of the adaptive scheme (two estimates agreeing by chance
 // across a jump of the integrand): primes, so that the parts' ends fall on
 // other points than the dyadic ones.
-var splits = [...]int{7, 61}
+var splits = [...]int{7, 31}
 
-// closest integrates f (k = 1) over [a, b] adaptively and, if the result
-// is farther than tol(err) from want, again over each of splits equal
-// parts, returning the value (and its error estimate) closest to want.
-func (in *integrator) closest(f func(float64, []float64), a, b, want float64, tol func(err float64) float64) (val, errEst float64) {
-	v, e, _ := in.integrate(1, f, a, b, 1e-13, 1e-300)
+// closest integrates f (k = 1) over [a, b] adaptively to relative
+// accuracy rel and, if the result is farther than tol(err) from want, again
+// over each of splits equal parts, returning the value (and its error
+// estimate) closest to want.
+func (in *integrator) closest(f func(float64, []float64), a, b, want, rel float64, tol func(err float64) float64) (val, errEst float64) {
+	v, e, _ := in.integrate(1, f, a, b, rel, 1e-300)
 	val, errEst = v[0], e
 	if math.Abs(val-want) <= tol(errEst) {
 		return val, errEst
@@ -118,7 +119,7 @@ func (in *integrator) closest(f func(float64, []float64), a, b, want float64, to
 			if i == n-1 {
 				x1 = b
 			}
-			v, e, _ := in.integrate(1, f, x0, x1, 1e-13, 1e-300)
+			v, e, _ := in.integrate(1, f, x0, x1, rel, 1e-300)
 			s += v[0]
 			se += e
 		}
@@ -127,4 +128,29 @@ func (in *integrator) closest(f func(float64, []float64), a, b, want float64, to
 		}
 	}
 	return val, errEst
+}
+
+// integrationBudget caps the integrand evaluations of one adaptive
+// integral; an unresolved piece then counts in full as error.
+const integrationBudget = 4000
+
+// integrationRel returns the relative accuracy to aim at for quadrature
+// whose result is compared at relative tolerance tol: a hundredth of it,
+// but no finer than 1e-13.
+func (c *checker) integrationRel(tol float64) float64 { return math.Max(tol/100, 1e-13) }
+
+// refine returns the sorted breakpoints br with every piece cut into n
+// equal parts (br itself for n = 1).
+func refine(br []float64, n int) []float64 {
+	if n <= 1 || len(br) < 2 {
+		return br
+	}
+	out := make([]float64, 0, (len(br)-1)*n+1)
+	for i := 0; i+1 < len(br); i++ {
+		a, b := br[i], br[i+1]
+		for k := 0; k < n; k++ {
+			out = append(out, a+(b-a)*float64(k)/float64(n))
+		}
+	}
+	return append(out, br[len(br)-1])
 }

@@ -71,11 +71,11 @@ func (c *checker) checkUpperQuantile() { c.checkInversion(true) }
 func (c *checker) checkInversion(upper bool) {
 	l := c.law
 	check, name, sym, fname := CheckQuantile, "Quantile", "p", "CDF"
-	inv, fn, slack := l.Quantile, l.CDF, c.probSlack
+	inv, fn, slack := c.quantile, l.CDF, c.probSlack
 	prev, dir := math.Inf(-1), "non-decreasing"
 	if upper {
 		check, name, sym, fname = CheckUpper, "UpperQuantile", "q", "Survival"
-		inv, fn, slack = l.UpperQuantile, l.Survival, c.survSlack
+		inv, fn, slack = c.upperQuantile, l.Survival, c.survSlack
 		prev, dir = math.Inf(1), "non-increasing"
 	}
 	for _, p := range c.quantileLevels(upper) {

@@ -85,10 +85,9 @@ func (c *checker) checkSpecial() {
 // support CDF = 0 and Survival = 1, at and above its upper end CDF = 1 and
 // Survival = 0 (within the CDF tolerance).
 func (c *checker) checkRange() {
-	l := c.law
 	tol := c.cfg.cdfAbs
-	for _, x := range c.grid {
-		F, S := l.CDF(x), l.Survival(x)
+	for i, x := range c.grid {
+		F, S := c.gridF[i], c.gridS[i]
 		at := "x = " + g(x)
 		if !(F >= 0 && F <= 1) {
 			c.fail(CheckRange, at, "CDF in [0, 1]", g(F))
@@ -108,11 +107,10 @@ func (c *checker) checkRange() {
 // checkMonotone: along the sorted grid CDF never decreases and Survival
 // never increases, by more than the CDF tolerance.
 func (c *checker) checkMonotone() {
-	l := c.law
 	tol := c.cfg.cdfAbs
 	prevF, prevS, prevX := 0.0, 1.0, math.Inf(-1)
-	for _, x := range c.grid {
-		F, S := l.CDF(x), l.Survival(x)
+	for i, x := range c.grid {
+		F, S := c.gridF[i], c.gridS[i]
 		if F < prevF-tol {
 			c.fail(CheckMonotone, fmt.Sprintf("x = %s after x = %s", g(x), g(prevX)),
 				fmt.Sprintf("CDF >= %s", g(prevF)), g(F))
@@ -133,10 +131,9 @@ func (c *checker) checkMonotone() {
 
 // checkComplement: |CDF(x) + Survival(x) - 1| <= max(1e-12, 2·tolerance).
 func (c *checker) checkComplement() {
-	l := c.law
 	tol := math.Max(1e-12, 2*c.cfg.cdfAbs)
-	for _, x := range c.grid {
-		F, S := l.CDF(x), l.Survival(x)
+	for i, x := range c.grid {
+		F, S := c.gridF[i], c.gridS[i]
 		if d := F + S - 1; !(math.Abs(d) <= tol) {
 			c.fail(CheckComplement, "x = "+g(x), fmt.Sprintf("CDF + Survival = 1 within %s", g(tol)),
 				fmt.Sprintf("CDF %s + Survival %s - 1 = %s", g(F), g(S), g(d)))

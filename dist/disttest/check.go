@@ -136,22 +136,18 @@ type checker struct {
 }
 
 // quantile returns l.Quantile(p), computed once per level.
-func (c *checker) quantile(p float64) float64 {
-	if x, ok := c.qCache[p]; ok {
-		return x
-	}
-	x := c.law.Quantile(p)
-	c.qCache[p] = x
-	return x
-}
+func (c *checker) quantile(p float64) float64 { return cached(c.qCache, p, c.law.Quantile) }
 
 // upperQuantile returns l.UpperQuantile(q), computed once per level.
-func (c *checker) upperQuantile(q float64) float64 {
-	if x, ok := c.uqCache[q]; ok {
+func (c *checker) upperQuantile(q float64) float64 { return cached(c.uqCache, q, c.law.UpperQuantile) }
+
+// cached returns f(p), from m when it has been computed before.
+func cached(m map[float64]float64, p float64, f func(float64) float64) float64 {
+	if x, ok := m[p]; ok {
 		return x
 	}
-	x := c.law.UpperQuantile(q)
-	c.uqCache[q] = x
+	x := f(p)
+	m[p] = x
 	return x
 }
 

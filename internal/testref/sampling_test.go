@@ -62,13 +62,13 @@ func TestKSCritical(t *testing.T) {
 	assert.True(t, math.IsNaN(KSCritical(10, 1)))
 }
 
-// binomialTailsExact sums the binomial probabilities in exact rational
-// arithmetic (the pmf C(n,k)·p^k·(1-p)^(n-k) with p a dyadic rational),
-// an oracle independent of the incomplete beta function.
-func binomialTailsExact(n, k int, p float64) (atMost, atLeast float64) {
+// binomialPMFExact returns the binomial probabilities C(n,j)·p^j·(1-p)^(n-j)
+// in exact rational arithmetic (p is a dyadic rational), an oracle
+// independent of the incomplete beta function.
+func binomialPMFExact(n int, p float64) []*big.Rat {
 	pr := new(big.Rat).SetFloat64(p)
 	qr := new(big.Rat).Sub(big.NewRat(1, 1), pr)
-	le, ge := new(big.Rat), new(big.Rat)
+	pmf := make([]*big.Rat, n+1)
 	for j := 0; j <= n; j++ {
 		c := new(big.Rat).SetInt(new(big.Int).Binomial(int64(n), int64(j)))
 		for i := 0; i < j; i++ {
@@ -77,6 +77,15 @@ func binomialTailsExact(n, k int, p float64) (atMost, atLeast float64) {
 		for i := 0; i < n-j; i++ {
 			c.Mul(c, qr)
 		}
+		pmf[j] = c
+	}
+	return pmf
+}
+
+// tailsExact returns P(C <= k) and P(C >= k) from exact probabilities.
+func tailsExact(pmf []*big.Rat, k int) (atMost, atLeast float64) {
+	le, ge := new(big.Rat), new(big.Rat)
+	for j, c := range pmf {
 		if j <= k {
 			le.Add(le, c)
 		}
@@ -92,9 +101,10 @@ func binomialTailsExact(n, k int, p float64) (atMost, atLeast float64) {
 func TestBinomialTails(t *testing.T) {
 	for _, n := range []int{1, 7, 40} {
 		for _, p := range []float64{0.03125, 0.3, 0.5, 0.9} {
+			pmf := binomialPMFExact(n, p)
 			for k := -1; k <= n+1; k++ {
 				le, ge := BinomialTails(n, k, p)
-				wle, wge := binomialTailsExact(n, k, p)
+				wle, wge := tailsExact(pmf, k)
 				assert.LessOrEqual(t, RelErr(le, wle), 1e-12, "P(C<=%d), n=%d p=%v", k, n, p)
 				assert.LessOrEqual(t, RelErr(ge, wge), 1e-12, "P(C>=%d), n=%d p=%v", k, n, p)
 			}

@@ -51,12 +51,14 @@ type Lifetime struct {
 type kfold struct {
 	law      dist.Law
 	sums     dist.IIDSums
-	closed   bool // SumIID has a closed form or exact discrete result for law
+	closed   bool        // SumIID has a closed form for law
+	atomic   *atomicSums // law is a finite discrete law of two or more atoms
 	capacity float64
 
-	mu    sync.Mutex
-	cache map[int64][2]float64
-	acc   dist.Accuracy // reported by the K-fold law at the median
+	mu     sync.Mutex
+	cache  map[int64][2]float64
+	acc    dist.Accuracy // reported by the K-fold law at the median
+	saddle bool          // the saddlepoint approximation is in use
 
 	once        sync.Once
 	mean, vari  float64
@@ -78,7 +80,10 @@ func (f *kfold) at(k int64) [2]float64 {
 	if k > int64(^uint(0)>>1) {
 		return [2]float64{math.NaN(), math.NaN()}
 	}
-	if f.closed {
+	if f.atomic != nil {
+		b, a, _ := f.atomic.eval(k, f.capacity)
+		v = [2]float64{b, a}
+	} else if f.closed {
 		l, err := dist.SumIID(f.law, int(k))
 		if err != nil {
 			return [2]float64{math.NaN(), math.NaN()}
@@ -143,9 +148,16 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 		return Lifetime{}, causeErr(fn, "c", c.String(), "K-fold sums of the cycle energy", err)
 	}
 	l.ev = &kfold{law: l.energy, sums: sums, capacity: l.capacity, cache: map[int64][2]float64{}}
-	switch l.energy.(type) {
-	case dist.Normal, dist.Exponential, dist.Gamma, dist.Discrete:
+	switch e := l.energy.(type) {
+	case dist.Normal, dist.Exponential, dist.Gamma:
 		l.ev.closed = true
+	case dist.Discrete:
+		if e.Len() == 1 {
+			l.ev.closed = true
+		} else {
+			a := newAtomicSums(e)
+			l.ev.atomic = &a
+		}
 	}
 	med := l.kQuantile(0.5, false)
 	if v := l.ev.at(med + 1); math.IsNaN(v[0]) {
@@ -154,7 +166,14 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	}
 	// The accuracy of the K-fold law at the median stands for all k: the
 	// inversion window scales with √k, so its error bound hardly moves.
-	if !l.ev.closed {
+	switch {
+	case l.ev.atomic != nil:
+		if _, _, exact := l.ev.atomic.eval(med+1, l.capacity); !exact {
+			l.ev.acc = dist.Accuracy{CDFAbs: l.ev.atomic.errorBound(med+1, l.capacity),
+				Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) for a purely discrete cycle law whose k-fold atoms are too many to list; the bound adds the largest k-fold atom for incommensurate energies"}
+			l.ev.saddle = true
+		}
+	case !l.ev.closed:
 		kl, err := sumIID(l.energy, med+1)
 		if err != nil {
 			return Lifetime{}, causeErr(fn, "c", c.String(), fmt.Sprintf("K-fold law of %d cycles", med+1), err)
@@ -463,8 +482,12 @@ func (l Lifetime) Simulate(r *rand.Rand) float64 {
 // which stand for every k.
 func (l Lifetime) Accuracy() dist.Accuracy {
 	a := l.ev.acc
+	if l.ev.saddle {
+		a.Method = "renewal identity P(M >= k) = P(S_k <= C); " + a.Method
+		return a
+	}
 	a.Method = "renewal identity P(M >= k) = P(S_k <= C) on the K-fold sum law"
-	if a.CDFAbs == 0 && !l.ev.closed {
+	if a.CDFAbs == 0 && !l.ev.closed && l.ev.atomic == nil {
 		a.Method += " (no error estimate reported by dist)"
 	}
 	return a

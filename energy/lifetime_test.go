@@ -230,3 +230,54 @@ func TestLifetimeAgainstSimulation(t *testing.T) {
 	t.Logf("E[M] = %.6f, renewal expansion %.6f", l.Mean()/l.Step(), want)
 	assert.InDelta(t, want, l.Mean()/l.Step(), 1e-3, "renewal expansion of the mean")
 }
+
+// TestLifetimeDiscreteCycle: a purely discrete cycle (every state fixed, the
+// period fixed), as an exact class A description gives. With two cycle
+// energies e0 < e1 (downlink or not), S_k = k·e0 + N·(e1 − e0) with
+// N ~ Binomial(k, p), so P(S_k <= C) = P(N <= (C − k·e0)/(e1 − e0)) exactly
+// (testref.BinomialTails, from gonum's incomplete beta), checked here at
+// about 10^6 cycles; and a six-energy cycle, computed by the saddlepoint,
+// against walking the cycles (Simulate) at about 400 cycles.
+func TestLifetimeDiscreteCycle(t *testing.T) {
+	up := energy.MustFixedState("uplink", 40*energy.MilliAmp, 3.6, 0.06)
+	down := energy.MustFixedState("rx", 11*energy.MilliAmp, 3.6, 0.03)
+	st := energy.MustSequence(up, energy.MustChoice([]float64{0.2, 0.8}, []energy.Stage{down, energy.Nothing()}))
+	c := energy.MustCycle(st, dist.MustPointMass(600), 1.5*energy.MicroAmp*3.6)
+	at := c.Energy().(dist.Atomic).Atoms()
+	require.Len(t, at, 2)
+	k := 1_000_000.0
+	b := energy.MustBattery(energy.BatterySpec{Energy: k * c.MeanEnergy(), NominalVoltage: 3.6, UsableFraction: 1})
+	l := energy.MustLifetime(c, b)
+	e0, e1 := at[0].Value, at[1].Value
+	for _, dk := range []int64{-3000, -1000, 0, 1000, 3000} {
+		kk := int64(k) + dk
+		j := int(math.Floor((b.UsableEnergy() - float64(kk)*e0) / (e1 - e0)))
+		want, _ := testref.BinomialTails(int(kk), j, at[1].Mass)
+		got, _ := l.Cycles(kk)
+		assert.InDelta(t, want, got, 1e-12+1e-9*want, "k=%d", kk)
+	}
+
+	// Six energies: configuration 7/9/12 × downlink or not.
+	cfg := dist.MustDiscrete([]float64{7, 9, 12}, []float64{0.5, 0.3, 0.2})
+	radio, err := energy.Configured(cfg, func(sf float64) (energy.Stage, error) {
+		air := 0.05 * math.Pow(2, sf-7)
+		tx := energy.MustFixedState("tx", 40*energy.MilliAmp, 3.6, air)
+		rx := energy.MustFixedState("rx", 11*energy.MilliAmp, 3.6, air/2)
+		return energy.Sequence(tx, energy.MustChoice([]float64{0.3, 0.7}, []energy.Stage{rx, energy.Nothing()}))
+	})
+	require.NoError(t, err)
+	c6 := energy.MustCycle(radio, dist.MustPointMass(600), 1.5*energy.MicroAmp*3.6)
+	b6 := energy.MustBattery(energy.BatterySpec{Energy: 400 * c6.MeanEnergy(), NominalVoltage: 3.6, UsableFraction: 1})
+	l6 := energy.MustLifetime(c6, b6)
+	assert.Contains(t, l6.Accuracy().Method, "saddlepoint")
+	r := rand.New(rand.NewPCG(31, 32))
+	const n = 5000
+	xs := make([]float64, n)
+	for i := range xs {
+		xs[i] = l6.Simulate(r)
+	}
+	assert.Less(t, gridKS(xs, l6.CDF, 100), testref.KSCritical(n, 1e-6)+l6.Accuracy().CDFAbs)
+	// At a year of 10-minute cycles the reported bound is small.
+	b6y := energy.MustBattery(energy.BatterySpec{Energy: 52596 * c6.MeanEnergy(), NominalVoltage: 3.6, UsableFraction: 1})
+	assert.Less(t, energy.MustLifetime(c6, b6y).Accuracy().CDFAbs, 1e-5)
+}

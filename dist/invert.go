@@ -45,6 +45,7 @@ const (
 	bulkTail   = 1e-17 // mass left outside the bulk window at each end
 	tiltSwitch = 1e-5  // below this bulk value a tail is computed by tilting
 	maxTerms   = 1 << 16
+	maxTilted  = 1 << 12 // terms of one tilted tail evaluation
 	tiltTol    = 1e-9 // stated relative error of a tilted tail
 )
 
@@ -160,14 +161,25 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	}
 	n := len(l.pr)
 	l.pr, l.pi = l.pr[:n:n], l.pi[:n:n]
-	cdfAbs := 2*bulkTail + trunc/math.Pi + 4e-16*(absSum+1) + l.tr.err*(math.Log(float64(n))+1) + sp.extraErr
+	// rounding: 1e-14, the terms' magnitude, and the phase s·c of a window
+	// centred far from 0 (SumIID with large k: c/sd grows as √k)
+	cdfAbs := 2*bulkTail + trunc/math.Pi + 1e-14*(1+math.Abs(l.c)/sd) + 4e-16*absSum + l.tr.err*(math.Log(float64(n))+1) + sp.extraErr
+	// probe the tilted tails where they take over, and where they are far
+	var probe float64
+	for _, y := range []float64{l.b, l.b + (l.b - l.a), l.a, l.a - (l.b - l.a)} {
+		if (y > 0 && l.tr.hi > 0) || (y < 0 && l.tr.lo < 0) {
+			_, e := l.tiltedErr(y, y < 0)
+			probe = math.Max(probe, e)
+		}
+	}
+	cdfAbs += math.Min(1, probe) * tiltSwitch
 	method := fmt.Sprintf("Fourier-series inversion, %d terms", n)
 	floor := cdfAbs / 1e-6
 	rel := math.Max(1e-6, cdfAbs/tiltSwitch)
 	if l.tr.hi > 0 {
 		method += ", tilted upper tail"
 		floor = 1e-30
-		rel = math.Max(tiltTol, cdfAbs/tiltSwitch)
+		rel = math.Max(math.Max(tiltTol, 10*probe), cdfAbs/tiltSwitch)
 	}
 	if l.tr.lo < 0 {
 		method += ", tilted lower tail"
@@ -280,6 +292,14 @@ func (l *numLaw) cont(y float64) (f, s float64) {
 // tilted returns S_c(y) (or F_c(y) when refl) by the shifted Bromwich
 // integral described at the top of this file.
 func (l *numLaw) tilted(y float64, refl bool) float64 {
+	v, _ := l.tiltedErr(y, refl)
+	return v
+}
+
+// tiltedErr is tilted with an estimate of its relative error (the size of
+// the last terms times their count, when the sum had to be cut at
+// maxTilted terms).
+func (l *numLaw) tiltedErr(y float64, refl bool) (float64, float64) {
 	sg := 1.0
 	hiDom, lowEnd, supTop := l.tr.hi, l.a, l.supHi-l.c
 	if refl {
@@ -288,7 +308,7 @@ func (l *numLaw) tilted(y float64, refl bool) float64 {
 	}
 	yy := sg * y
 	if yy >= supTop {
-		return 0
+		return 0, 0
 	}
 	lm := func(s complex128) complex128 { return l.tr.logm(complex(sg, 0) * s) }
 	K := func(th float64) float64 { return real(lm(complex(th, 0))) }
@@ -319,8 +339,10 @@ func (l *numLaw) tilted(y float64, refl bool) float64 {
 	}
 	// period L: lower alias (below the window and exp(-θL) small), upper
 	// alias (Chernoff bound on the tilted law beyond y + L)
-	L := math.Max(yy-lowEnd, (40-k0)/theta)
-	L = math.Max(L, 8*sdT)
+	// lower alias: exp(-θjL)·S(y-jL) is removed as w·exp(-θjL) in closed form;
+	// what is left is at most exp(-θL), so θL >= 40 - k0 suffices
+	_ = lowEnd
+	L := math.Max((40-k0)/theta, 8*sdT)
 	L2 := math.Inf(1)
 	for _, u := range []float64{theta, 1 / sdT, 4 / sdT, 16 / sdT} {
 		if theta+u < hiDom {
@@ -337,15 +359,17 @@ func (l *numLaw) tilted(y float64, refl bool) float64 {
 	}
 	L = math.Max(L, L2)
 	h := 2 * math.Pi / L
-	var sum, absSum, t0 float64
-	quiet := 0
-	for k := 0; k <= maxTerms; k++ {
+	var sum, absSum, t0, last float64
+	quiet, kEnd := 0, 0
+	for k := 0; k <= maxTilted; k++ {
+		kEnd = k
 		s := complex(theta, float64(k)*h)
 		v := cmplx.Exp(lm(s) - s*complex(yy, 0) - complex(k0, 0))
 		for _, a := range l.atomC {
 			v -= complex(a.Mass, 0) * cmplx.Exp(s*complex(sg*a.Value-yy, 0)-complex(k0, 0))
 		}
 		term := real(v / s)
+		last = math.Max(math.Abs(term), last*0.5)
 		if k == 0 {
 			t0 = math.Abs(term)
 			sum += term
@@ -353,7 +377,7 @@ func (l *numLaw) tilted(y float64, refl bool) float64 {
 			sum += 2 * term
 		}
 		absSum += math.Abs(term)
-		if math.Abs(term) <= 1e-17*t0 {
+		if math.Abs(term)*float64(k) <= 1e-13*math.Max(t0, math.Abs(sum)) {
 			quiet++
 			if quiet >= 4 {
 				break
@@ -363,7 +387,11 @@ func (l *numLaw) tilted(y float64, refl bool) float64 {
 		}
 	}
 	res := math.Exp(k0)*sum/L - l.w*math.Exp(-theta*L)/(-math.Expm1(-theta*L))
-	return math.Max(0, res)
+	rel := 1e-14 + 4e-16*absSum/math.Max(math.Abs(sum), 1e-300)
+	if kEnd >= maxTilted {
+		rel += 2 * last * float64(kEnd) / math.Max(math.Abs(sum), 1e-300)
+	}
+	return math.Max(0, res), rel
 }
 
 // saddle solves K'(θ) = y for θ > 0 below hi by doubling and bisection.

@@ -46,7 +46,7 @@ const (
 	tiltSwitch = 1e-5  // below this bulk value a tail is computed by tilting
 	maxTerms   = 1 << 16
 	maxTilted  = 1 << 12 // terms of one tilted tail evaluation
-	tiltTol    = 1e-9 // stated relative error of a tilted tail
+	tiltTol    = 1e-9    // stated relative error of a tilted tail
 )
 
 // numLaw is a numerically inverted law (a sum, k-fold sum or random sum).

@@ -19,12 +19,18 @@ type countModel struct {
 	mean, variance float64 // of the whole count
 }
 
+// tinyProb is the probability below which a node counts as never (or, for
+// its complement, always) hit: 1e-290. The tilted transforms need the
+// probabilities as normal (not subnormal) float64 numbers; the change to
+// the law is below n·1e-290.
+const tinyProb = 1e-290
+
 func newCountModel(ts []binom) countModel {
 	cm := countModel{}
 	for _, t := range ts {
 		switch {
-		case t.n == 0 || t.p <= 0:
-		case t.q <= 0:
+		case t.n == 0 || t.p <= tinyProb:
+		case t.q <= tinyProb:
 			cm.shift += t.n
 			cm.mean += t.n
 		default:
@@ -54,10 +60,10 @@ func (cm countModel) split(m float64) (le, gt float64) {
 	}
 	w := cm.window(m + 0.5)
 	if w.theta >= 0 {
-		gt = w.sum(m+1, w.lo+float64(len(w.pmf))-1)
+		gt = clamp01(w.sum(m+1, w.lo+float64(len(w.pmf))-1))
 		return 1 - gt, gt
 	}
-	le = w.sum(w.lo, m)
+	le = clamp01(w.sum(w.lo, m))
 	return le, 1 - le
 }
 

@@ -175,6 +175,8 @@ func TestCheckPassesGoodLaws(t *testing.T) {
 		{"discrete", threeAtom, nil},
 		{"point mass", dist.MustPointMass(-2.5), nil},
 		{"wrapped normal (all methods pass through)", brokenCont{base: stdNormal}, nil},
+		{"Cauchy (no moments, tails to 1e300)", cauchy{}, nil},
+		{"zero-inflated exponential (atom at the support's end)", zeroInflated{}, nil},
 		{"other seed and size", stdNormal, []disttest.Option{disttest.WithSeed(7), disttest.WithSamples(5000)}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {

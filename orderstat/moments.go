@@ -124,7 +124,7 @@ func (c *core) quadMoments() moments {
 	}
 	tol := 1e-14
 	if len(c.groups) > 1 {
-		tol = 1e-12 // each evaluation costs one parent call per group
+		tol = 1e-11 // each evaluation costs one parent call per group
 	}
 	if c.kind == kindKth {
 		tol = 1e-11
@@ -143,8 +143,10 @@ func (c *core) quadMoments() moments {
 	// Bounds on what lies beyond [xlo, xhi]: the tail probability times the
 	// tail's decay length (estimated from the quantile at 100 × the level).
 	if len(c.groups) > 1 && c.kind != kindKth {
-		q = func(p float64) float64 { a, _ := c.bracket(p, 1-p); return a }
-		uq = func(v float64) float64 { _, b := c.bracket(1-v, v); return b }
+		// For groups, skip the two extra quantiles: bound each tail's
+		// decay length by the width of the region.
+		q = func(float64) float64 { return xlo - (xhi - xlo) }
+		uq = func(float64) float64 { return xhi + (xhi - xlo) }
 	}
 	if xhi < hi {
 		l := math.Abs(xhi - uq(100*momentTail))

@@ -191,6 +191,9 @@ func (c Count) String() string {
 // pmfAll returns P(C - shift = lo + i) for the i where it does not
 // underflow, the method used and its relative error.
 func (cm countModel) pmfAll() (lo float64, pmf []float64, method string, rel float64, err error) {
+	if w := 80*math.Sqrt(cm.variance) + 200; w > maxCountSupport {
+		return 0, nil, "", 0, fmt.Errorf("about %.3g probabilities exceed %d", w, maxCountSupport)
+	}
 	switch len(cm.terms) {
 	case 0:
 		return 0, []float64{1}, "exact (no random terms)", 0, nil

@@ -112,3 +112,21 @@ func TestSpecialValues(t *testing.T) {
 	assert.True(t, math.IsInf(l.Quantile(1), 1))
 	assert.True(t, math.IsInf(l.UpperQuantile(1), -1))
 }
+
+// AsStatistic unwraps the laws of this package and reports the rank and
+// count; it refuses other laws.
+func TestAsStatistic(t *testing.T) {
+	l, err := orderstat.Kth(dist.MustNormal(0, 1), 3, 10)
+	require.NoError(t, err)
+	s, ok := orderstat.AsStatistic(l)
+	require.True(t, ok)
+	assert.Equal(t, int64(3), s.Rank())
+	assert.Equal(t, int64(10), s.Count())
+	assert.Len(t, s.Groups(), 1)
+	_, ok = orderstat.AsStatistic(dist.MustNormal(0, 1))
+	assert.False(t, ok)
+	d, _ := orderstat.Max(dist.MustDiscrete([]float64{1, 2}, []float64{0.5, 0.5}), 3)
+	s, ok = orderstat.AsStatistic(d)
+	require.True(t, ok)
+	assert.InDelta(t, 0.125, s.Atoms()[0].Mass, 1e-15) // P(max = 1) = 0.5^3
+}

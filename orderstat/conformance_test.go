@@ -1,12 +1,14 @@
 package orderstat_test
 
 import (
+	"math"
 	"testing"
 
 	"github.com/stretchr/testify/require"
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/dist/disttest"
+	"github.com/joulelaw/joulelaw/internal/testref"
 	"github.com/joulelaw/joulelaw/orderstat"
 )
 
@@ -61,4 +63,45 @@ func TestConformance(t *testing.T) {
 			require.NoError(t, disttest.Check(l))
 		})
 	}
+}
+
+// The checker with reference tails: far-tail values from closed forms
+// independent of this package, and (through Accuracy) that the reported
+// SurvivalRel bounds the error there.
+func TestConformanceWithReferences(t *testing.T) {
+	ex := dist.MustExponential(2)
+	const n = 1_000_000
+	mn, err := orderstat.Min(ex, n)
+	require.NoError(t, err)
+	// Min of n Exp(λ) is Exp(nλ): S(x) = exp(-nλx) (common practice).
+	xs := []float64{1e-9, 1e-7, 1e-6, 1e-5, 1e-4, 3e-4}
+	require.NoError(t, disttest.Check(mn,
+		disttest.WithReference(func(x float64) float64 { return math.Exp(-2 * n * x) }, xs, 1e-12),
+		disttest.WithCDFReference(func(x float64) float64 { return -math.Expm1(-2 * n * x) }, xs[:3], 1e-12)))
+
+	// The 2nd smallest of 10^9 Exp(1): P(X_(2) > x) = e^{-nx} + n(1-e^{-x})e^{-(n-1)x}
+	// (David & Nagaraja §2.5, Rényi's representation).
+	const m = 1e9
+	k2, err := orderstat.Kth(dist.MustExponential(1), 2, m)
+	require.NoError(t, err)
+	xs2 := []float64{1e-11, 1e-10, 1e-9, 1e-8, 2e-8, 4e-8}
+	require.NoError(t, disttest.Check(k2,
+		disttest.WithReference(func(x float64) float64 {
+			return math.Exp(-m*x) + m*-math.Expm1(-x)*math.Exp(-(m-1)*x)
+		}, xs2, 1e-9)))
+
+	// The max of 1000 standard normals: S(x) = -expm1(1000·log1p(-Q(x)))
+	// with Q from the internal/testref table (1600-bit values).
+	mx, err := orderstat.Max(dist.MustNormal(0, 1), 1000)
+	require.NoError(t, err)
+	var zs []float64
+	qz := map[float64]float64{}
+	for _, pt := range testref.NormalUpperTail {
+		if pt.Z >= 3 {
+			zs = append(zs, pt.Z)
+			qz[pt.Z] = pt.Q
+		}
+	}
+	require.NoError(t, disttest.Check(mx,
+		disttest.WithReference(func(x float64) float64 { return -math.Expm1(1000 * math.Log1p(-qz[x])) }, zs, 1e-11)))
 }

@@ -816,3 +816,16 @@ func (s statisticDensity) Density(x float64) float64 {
 	}
 	return d
 }
+
+// AsStatistic returns the Statistic behind a law returned by Max, Min, Kth
+// or the group forms (whose concrete type may add a Density method), and
+// whether l is one.
+func AsStatistic(l dist.Law) (Statistic, bool) {
+	switch s := l.(type) {
+	case Statistic:
+		return s, true
+	case statisticDensity:
+		return s.Statistic, true
+	}
+	return Statistic{}, false
+}

@@ -29,7 +29,7 @@
 //	  "node": {                              the electrical description shared by all nodes
 //	    "supply_voltage_v": 3.6,             0 < V <= 60
 //	    "sleep_current_ua": 2.5,             the floor between cycles, >= 0
-//	    "wait_current_ma": 1.2,              radio idle between the uplink and the windows
+//	    "wait_current_ua": 2.5,              between the uplink and the windows and between attempts
 //	    "receive_current_ma": 11,            radio listening or receiving
 //	    "receive_window_symbols": 8,         preamble symbols listened for before giving up, 4 … 64
 //	    "receive_window_margin_ms": 10,      extra listening for clock error, 0 … 1000

@@ -82,14 +82,14 @@ func readNode(c *checker, v any, region lora.Region, regionOK bool) Node {
 		return Node{}
 	}
 	const p = "node"
-	o := c.object(p, v, "supply_voltage_v", "sleep_current_ua", "wait_current_ma", "receive_current_ma", "receive_window_symbols", "receive_window_margin_ms", "transmit_current_ma")
+	o := c.object(p, v, "supply_voltage_v", "sleep_current_ua", "wait_current_ua", "receive_current_ma", "receive_window_symbols", "receive_window_margin_ms", "transmit_current_ma")
 	var n Node
 	n.Voltage, _ = o.number("supply_voltage_v", openLow(0, 60))
 	ua, _ := o.number("sleep_current_ua", closed(0, 1e6))
 	n.Sleep = ua * energy.MicroAmp
-	ma, _ := o.number("wait_current_ma", closed(0, 1000))
-	n.Wait = ma * energy.MilliAmp
-	ma, _ = o.number("receive_current_ma", closed(0, 1000))
+	ua, _ = o.number("wait_current_ua", closed(0, 1e6))
+	n.Wait = ua * energy.MicroAmp
+	ma, _ := o.number("receive_current_ma", closed(0, 1000))
 	n.Receive = ma * energy.MilliAmp
 	n.WindowSymbols, _ = o.integer("receive_window_symbols", 4, 64)
 	ms, _ := o.number("receive_window_margin_ms", closed(0, 1000))
@@ -337,19 +337,20 @@ func checkCurrents(c *checker, s Scenario) {
 	if sleep == 0 {
 		return
 	}
-	below := func(field string, a float64) {
+	rule := fmt.Sprintf("must be at least the sleep current (%g µA = %g mA)", sleep/energy.MicroAmp, sleep/energy.MilliAmp)
+	below := func(field string, a, unit float64) {
 		if a < sleep {
-			c.fail(field, a/energy.MilliAmp, fmt.Sprintf("must be at least the sleep current (%g µA = %g mA)", sleep/energy.MicroAmp, sleep/energy.MilliAmp))
+			c.fail(field, a/unit, rule)
 		}
 	}
-	below("node.wait_current_ma", s.Node.Wait)
-	below("node.receive_current_ma", s.Node.Receive)
+	below("node.wait_current_ua", s.Node.Wait, energy.MicroAmp)
+	below("node.receive_current_ma", s.Node.Receive, energy.MilliAmp)
 	for i, t := range s.Node.Transmit {
-		below(fmt.Sprintf("node.transmit_current_ma (%g dBm, entry %d by power)", t.EIRP, i), t.Current)
+		below(fmt.Sprintf("node.transmit_current_ma (%g dBm, entry %d by power)", t.EIRP, i), t.Current, energy.MilliAmp)
 	}
 	for i, g := range s.Groups {
 		for j, w := range g.Work {
-			below(fmt.Sprintf("groups[%d].work[%d].current_ma", i, j), w.Current)
+			below(fmt.Sprintf("groups[%d].work[%d].current_ma", i, j), w.Current, energy.MilliAmp)
 		}
 	}
 }

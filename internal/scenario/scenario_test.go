@@ -27,12 +27,12 @@ func TestDemoParses(t *testing.T) {
 	assert.InDelta(t, 0.010, s.Node.WindowMargin, 1e-15)
 	assert.InDelta(t, 2400*3.6, s.Cell.Charge, 1e-9)
 	assert.InDelta(t, 0.01, s.Cell.SelfDischargePerYear, 1e-15)
-	assert.InDelta(t, 8*energy.Year, s.Plan.ReplaceAfter, 1e-6)
+	assert.InDelta(t, 5*energy.Year, s.Plan.ReplaceAfter, 1e-6)
 	g := s.Groups[1]
 	assert.Equal(t, "field soil probes", g.Name)
 	assert.Equal(t, 0, g.Gateway)
 	assert.InDelta(t, 0.35, g.Work[0].Duration, 1e-15)
-	assert.InDelta(t, 0.08, g.Work[0].Spread, 1e-15)
+	assert.Zero(t, g.Work[0].Spread)
 	// Transmit levels are ordered by TXPower index (EIRP falling) and cover the region.
 	require.Len(t, s.Node.Transmit, len(s.Region.TXPowers()))
 	for i, p := range s.Region.TXPowers() {
@@ -116,8 +116,8 @@ func TestMalformedRejected(t *testing.T) {
 			return mutate(t, func(m map[string]any) { group(m, 3)["payload_bytes"] = 52 })
 		}, "groups[3].payload_bytes", "52", "[0, 51] (the application payload of DR0"},
 		{"jitter too large", func(t *testing.T) []byte {
-			return mutate(t, func(m map[string]any) { group(m, 1)["interval_jitter_s"] = 450 })
-		}, "groups[1].interval_jitter_s", "450", "less than half of report_interval_s (450 s)"},
+			return mutate(t, func(m map[string]any) { group(m, 1)["interval_jitter_s"] = 900 })
+		}, "groups[1].interval_jitter_s", "900", "less than half of report_interval_s (900 s)"},
 		{"retransmitting unconfirmed", func(t *testing.T) []byte {
 			return mutate(t, func(m map[string]any) { group(m, 0)["max_transmissions"] = 3 })
 		}, "groups[0].max_transmissions", "3", "must be 1 for unconfirmed"},
@@ -163,8 +163,8 @@ func TestMalformedRejected(t *testing.T) {
 			})
 		}, "gateways[0], gateways[1]", `"pumping station" and "sluice tower" 5000 m apart`, "overlap"},
 		{"current below the floor", func(t *testing.T) []byte {
-			return mutate(t, func(m map[string]any) { obj(m["node"])["wait_current_ma"] = 0.001 })
-		}, "node.wait_current_ma", "0.001", "at least the sleep current (2.5 µA"},
+			return mutate(t, func(m map[string]any) { obj(m["node"])["wait_current_ua"] = 1 })
+		}, "node.wait_current_ua", "1", "at least the sleep current (2.5 µA"},
 		{"work named like a radio state", func(t *testing.T) []byte {
 			return mutate(t, func(m map[string]any) { obj(group(m, 0)["work"].([]any)[0])["name"] = "rx1" })
 		}, "groups[0].work[0].name", `"rx1"`, "name of a radio state"},

@@ -1,0 +1,245 @@
+package main
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+	"os"
+	"path/filepath"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+
+	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/orderstat"
+)
+
+// The program's own palette.
+var palette = []color.RGBA{
+	{R: 0, G: 105, B: 125, A: 255},   // deep teal
+	{R: 214, G: 110, B: 24, A: 255},  // burnt orange
+	{R: 112, G: 58, B: 148, A: 255},  // plum
+	{R: 96, G: 130, B: 30, A: 255},   // moss
+	{R: 170, G: 40, B: 60, A: 255},   // brick
+	{R: 40, G: 70, B: 160, A: 255},   // ink blue
+	{R: 120, G: 120, B: 120, A: 255}, // slate
+}
+
+var bandFill = color.NRGBA{R: 120, G: 175, B: 190, A: 140}
+
+func colour(i int) color.RGBA { return palette[i%len(palette)] }
+
+// writeFigures writes the three figures as PNG and SVG into dir and returns
+// the files written.
+func writeFigures(p *Plan, dir string) ([]string, error) {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return nil, err
+	}
+	figs := []struct {
+		name string
+		make func(*Plan) (*plot.Plot, error)
+	}{
+		{"energy-per-cycle", energyFigure},
+		{"lifetime-survival", survivalFigure},
+		{"failed-nodes", failedFigure},
+	}
+	var written []string
+	for _, f := range figs {
+		pl, err := f.make(p)
+		if err != nil {
+			return written, fmt.Errorf("%s: %w", f.name, err)
+		}
+		for _, ext := range []string{".png", ".svg"} {
+			path := filepath.Join(dir, f.name+ext)
+			if err := pl.Save(18*vg.Centimeter, 11*vg.Centimeter, path); err != nil {
+				return written, fmt.Errorf("%s: %w", path, err)
+			}
+			written = append(written, path)
+		}
+	}
+	return written, nil
+}
+
+func style(pl *plot.Plot, title, x, y string) {
+	pl.Title.Text = title
+	pl.Title.TextStyle.Font.Size = vg.Points(11)
+	pl.X.Label.Text = x
+	pl.Y.Label.Text = y
+	pl.Legend.Top = true
+	pl.Legend.TextStyle.Font.Size = vg.Points(8)
+	pl.Add(plotter.NewGrid())
+}
+
+// binned returns the probability per mJ of l over the bins [edges[i],
+// edges[i+1]) given in J, as a step curve (x in mJ), floored at floor for a
+// logarithmic axis.
+func binned(l dist.Law, edges []float64, floor float64) plotter.XYs {
+	var pts plotter.XYs
+	prev := l.CDF(edges[0])
+	for i := 0; i+1 < len(edges); i++ {
+		next := l.CDF(edges[i+1])
+		d := (next - prev) / ((edges[i+1] - edges[i]) * 1e3)
+		prev = next
+		d = math.Max(d, floor)
+		pts = append(pts, plotter.XY{X: edges[i] * 1e3, Y: d}, plotter.XY{X: edges[i+1] * 1e3, Y: d})
+	}
+	return pts
+}
+
+func energyFigure(p *Plan) (*plot.Plot, error) {
+	pl := plot.New()
+	style(pl, fmt.Sprintf("Energy per cycle: a node of the fleet, and the largest and smallest of %d nodes", p.Nodes),
+		"energy per cycle (mJ)", "probability per mJ (log scale)")
+	l := p.laws
+	lo, _ := l.minEnergy.Support()
+	hi := l.maxEnergy.UpperQuantile(1e-6)
+	lo = math.Min(lo, l.fleetEnergy.Quantile(1e-6))
+	span := hi - lo
+	lo, hi = math.Max(0, lo-0.03*span), hi+0.03*span
+	const bins = 240
+	edges := make([]float64, bins+1)
+	for i := range edges {
+		edges[i] = lo + (hi-lo)*float64(i)/bins
+	}
+	const floor = 1e-7
+	pl.Y.Scale = plot.LogScale{}
+	pl.Y.Tick.Marker = plot.LogTicks{Prec: 1}
+	curves := []struct {
+		name string
+		law  dist.Law
+		c    color.RGBA
+	}{
+		{"any node's cycle", l.fleetEnergy, colour(0)},
+		{fmt.Sprintf("largest of %d", p.Nodes), l.maxEnergy, colour(4)},
+		{fmt.Sprintf("smallest of %d", p.Nodes), l.minEnergy, colour(3)},
+	}
+	for _, c := range curves {
+		line, err := plotter.NewLine(binned(c.law, edges, floor))
+		if err != nil {
+			return nil, err
+		}
+		line.Color = c.c
+		line.Width = vg.Points(1.3)
+		pl.Add(line)
+		pl.Legend.Add(c.name, line)
+	}
+	pl.Y.Min, pl.Y.Max = floor, math.Max(pl.Y.Max, 1)
+	if err := markX(pl, p.Fleet.OutlierJ*1e3, colour(6), "outlier threshold"); err != nil {
+		return nil, err
+	}
+	return pl, nil
+}
+
+// markX draws a dashed vertical line at x across the plot's y range.
+func markX(pl *plot.Plot, x float64, c color.RGBA, name string) error {
+	ymin, ymax := pl.Y.Min, pl.Y.Max
+	line, err := plotter.NewLine(plotter.XYs{{X: x, Y: ymin}, {X: x, Y: ymax}})
+	if err != nil {
+		return err
+	}
+	line.Color = c
+	line.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
+	pl.Add(line)
+	pl.Legend.Add(name, line)
+	return nil
+}
+
+// horizon returns the end (years) of the time axis of the lifetime figures:
+// just past the date by which 99.9 % of every group's nodes are flat, at
+// most 40 years.
+func horizon(p *Plan) float64 {
+	end := 0.0
+	for _, l := range p.laws.groupLife {
+		end = math.Max(end, l.Quantile(0.999)/energy.Year)
+	}
+	end = math.Max(end, p.laws.replaceAfter/energy.Year)
+	return math.Min(40, 1.05*end)
+}
+
+func survivalFigure(p *Plan) (*plot.Plot, error) {
+	pl := plot.New()
+	style(pl, "Battery lifetime: share of each group's nodes still running", "time since deployment (years)", "share of nodes still running")
+	end := horizon(p)
+	const n = 300
+	for gi, l := range p.laws.groupLife {
+		pts := make(plotter.XYs, n+1)
+		for i := range pts {
+			t := end * float64(i) / n
+			pts[i] = plotter.XY{X: t, Y: l.Survival(t * energy.Year)}
+		}
+		line, err := plotter.NewLine(pts)
+		if err != nil {
+			return nil, err
+		}
+		line.Color = colour(gi)
+		line.Width = vg.Points(1.4)
+		pl.Add(line)
+		pl.Legend.Add(fmt.Sprintf("%s (%d nodes)", p.Groups[gi].Name, p.Groups[gi].Nodes), line)
+	}
+	pl.Y.Min, pl.Y.Max = 0, 1.02
+	pl.X.Min, pl.X.Max = 0, end
+	pl.Legend.Left = true
+	pl.Legend.Top = false
+	if err := markX(pl, p.laws.replaceAfter/energy.Year, colour(6), "planned replacement"); err != nil {
+		return nil, err
+	}
+	return pl, nil
+}
+
+func failedFigure(p *Plan) (*plot.Plot, error) {
+	pl := plot.New()
+	style(pl, fmt.Sprintf("Flat batteries over time in the fleet of %d nodes, with the 90 %% band", p.Nodes),
+		"time since deployment (years)", "number of nodes with a flat battery")
+	end := horizon(p)
+	groups := p.laws.lifeGroups
+	laws := make([]dist.Law, len(groups))
+	for i, g := range groups {
+		laws[i] = g.Law
+	}
+	const n = 120
+	var mean, lower, upper plotter.XYs
+	for i := 0; i <= n; i++ {
+		t := end * float64(i) / n
+		c, err := orderstat.AtOrBelow(laws, p.laws.counts, t*energy.Year)
+		if err != nil {
+			return nil, err
+		}
+		lo, hi, err := dist.EqualTailed(c, 0.9)
+		if err != nil {
+			return nil, err
+		}
+		mean = append(mean, plotter.XY{X: t, Y: c.Mean()})
+		lower = append(lower, plotter.XY{X: t, Y: lo})
+		upper = append(upper, plotter.XY{X: t, Y: hi})
+	}
+	ring := append(plotter.XYs{}, lower...)
+	for i := len(upper) - 1; i >= 0; i-- {
+		ring = append(ring, upper[i])
+	}
+	band, err := plotter.NewPolygon(ring)
+	if err != nil {
+		return nil, err
+	}
+	band.Color = bandFill
+	band.LineStyle.Width = 0
+	pl.Add(band)
+	pl.Legend.Add("90 % band", band)
+	line, err := plotter.NewLine(mean)
+	if err != nil {
+		return nil, err
+	}
+	line.Color = colour(0)
+	line.Width = vg.Points(1.5)
+	pl.Add(line)
+	pl.Legend.Add("expected number", line)
+	pl.X.Min, pl.X.Max = 0, end
+	pl.Y.Min, pl.Y.Max = 0, float64(p.Nodes)*1.02
+	pl.Legend.Left = true
+	if err := markX(pl, p.laws.replaceAfter/energy.Year, colour(6), "planned replacement"); err != nil {
+		return nil, err
+	}
+	pl.Legend.ThumbnailWidth = vg.Points(18)
+	return pl, nil
+}

@@ -1,0 +1,122 @@
+// Command fleetplan is joulelaw's main job: it turns a fleet scenario —
+// groups of LoRaWAN class A sensor nodes, their gateways, radio environment,
+// currents and cell — into an energy and battery-replacement plan with
+// intervals, from the library's probability laws.
+//
+// Usage:
+//
+//	go run ./examples/fleetplan                      # the built-in, invented demo
+//	go run ./examples/fleetplan -scenario site.json  # your own scenario
+//	go run ./examples/fleetplan -json                # the same results as JSON
+//	go run ./examples/fleetplan -figures DIR         # also write PNG and SVG figures
+//	go run ./examples/fleetplan -print-demo          # print the demo scenario file
+//
+// The scenario format is documented in internal/scenario (see its package
+// doc, or start from -print-demo). A bad file is rejected with every problem
+// named by field, value and rule; nothing is defaulted. Progress goes to
+// stderr; the report or JSON goes to stdout.
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"time"
+
+	"github.com/joulelaw/joulelaw/internal/scenario"
+)
+
+func main() {
+	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
+}
+
+// run is the program; it returns the exit status (0 ok, 1 failure, 2 usage).
+func run(args []string, stdout, stderr io.Writer) int {
+	fs := flag.NewFlagSet("fleetplan", flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	file := fs.String("scenario", "", "read the scenario from this JSON `file` (default: the built-in demo)")
+	asJSON := fs.Bool("json", false, "print the results as JSON instead of the report")
+	figures := fs.String("figures", "", "write PNG and SVG figures into this `directory` (created if missing)")
+	printDemo := fs.Bool("print-demo", false, "print the built-in demo scenario file and exit")
+	quiet := fs.Bool("quiet", false, "print no progress on stderr")
+	fs.Usage = func() {
+		fmt.Fprintln(stderr, "usage: fleetplan [-scenario file] [-json] [-figures dir] [-print-demo] [-quiet]")
+		fs.PrintDefaults()
+	}
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return 0
+		}
+		return 2
+	}
+	if fs.NArg() > 0 {
+		fmt.Fprintf(stderr, "fleetplan: unexpected argument %q\n", fs.Arg(0))
+		fs.Usage()
+		return 2
+	}
+	if *printDemo {
+		_, _ = stdout.Write(scenario.DemoJSON())
+		return 0
+	}
+	start := time.Now()
+	say := func(format string, args ...any) {
+		if !*quiet {
+			fmt.Fprintf(stderr, "fleetplan [%5.1f s] %s\n", time.Since(start).Seconds(), fmt.Sprintf(format, args...))
+		}
+	}
+
+	var s scenario.Scenario
+	source := "built-in demo (invented; run with -scenario FILE for your own, -print-demo for its file)"
+	if *file == "" {
+		s = scenario.Demo()
+	} else {
+		var err error
+		if s, err = scenario.Load(*file); err != nil {
+			fmt.Fprintf(stderr, "fleetplan: %s is not a usable scenario:\n", *file)
+			for _, e := range flatten(err) {
+				fmt.Fprintf(stderr, "  %v\n", e)
+			}
+			return 1
+		}
+		source = *file
+	}
+	p, err := buildPlan(s, source, say)
+	if err != nil {
+		fmt.Fprintf(stderr, "fleetplan: %v\n", err)
+		return 1
+	}
+	if *figures != "" {
+		say("writing figures to %s", *figures)
+		names, err := writeFigures(p, *figures)
+		if err != nil {
+			fmt.Fprintf(stderr, "fleetplan: figures: %v\n", err)
+			return 1
+		}
+		for _, n := range names {
+			say("  wrote %s", n)
+		}
+	}
+	say("done")
+	if *asJSON {
+		enc := json.NewEncoder(stdout)
+		enc.SetIndent("", "  ")
+		if err := enc.Encode(p); err != nil {
+			fmt.Fprintf(stderr, "fleetplan: %v\n", err)
+			return 1
+		}
+		return 0
+	}
+	writeReport(stdout, p)
+	return 0
+}
+
+// flatten returns the errors joined in err, or err itself.
+func flatten(err error) []error {
+	if j, ok := err.(interface{ Unwrap() []error }); ok {
+		return j.Unwrap()
+	}
+	return []error{err}
+}

@@ -1,0 +1,506 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"runtime"
+	"slices"
+
+	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/scenario"
+	"github.com/joulelaw/joulelaw/orderstat"
+)
+
+// Plan is everything the report, the JSON output and the figures show. Field
+// names carry their units (_j joules, _s seconds, _years Julian years, _a
+// amperes); shares and probabilities are in [0, 1].
+type Plan struct {
+	Site         string      `json:"site"`
+	Source       string      `json:"scenario_source"`
+	Region       string      `json:"region"`
+	RegionTables string      `json:"region_tables"`
+	Nodes        int         `json:"nodes"`
+	Gateways     []string    `json:"gateways"`
+	Cell         CellPlan    `json:"cell"`
+	Groups       []GroupPlan `json:"groups"`
+	Fleet        FleetPlan   `json:"fleet"`
+	Warnings     []string    `json:"warnings"`
+	Cautions     []string    `json:"cautions"`
+
+	laws planLaws // for the figures; not in the JSON
+}
+
+// CellPlan summarises the battery every node carries.
+type CellPlan struct {
+	Name            string  `json:"name"`
+	Chemistry       string  `json:"chemistry"`
+	NominalEnergyJ  float64 `json:"nominal_energy_j"`
+	UsableEnergyJ   float64 `json:"usable_energy_j"`
+	SelfDischargeW  float64 `json:"self_discharge_w"`
+	PulseCurrentA   float64 `json:"pulse_current_a"`
+	NominalVoltageV float64 `json:"nominal_voltage_v"`
+}
+
+// Summary is a law's mean, standard deviation, median and central 90 % and
+// 99 % intervals (equal-tailed), in the unit of the field holding it.
+type Summary struct {
+	Mean   float64    `json:"mean"`
+	SD     float64    `json:"sd"`
+	Median float64    `json:"median"`
+	In90   [2]float64 `json:"interval_90"`
+	In99   [2]float64 `json:"interval_99"`
+}
+
+// GroupPlan is the plan of one group.
+type GroupPlan struct {
+	Name            string  `json:"name"`
+	Nodes           int     `json:"nodes"`
+	Gateway         string  `json:"gateway"`
+	InnerRadiusM    float64 `json:"inner_radius_m"`
+	OuterRadiusM    float64 `json:"outer_radius_m"`
+	PayloadBytes    int     `json:"payload_bytes"`
+	IntervalS       float64 `json:"report_interval_s"`
+	JitterS         float64 `json:"interval_jitter_s"`
+	Confirmed       bool    `json:"confirmed"`
+	MaxTransmission int     `json:"max_transmissions"`
+
+	EnergyPerCycle Summary     `json:"energy_per_cycle_j"`
+	EnergyPerDay   float64     `json:"mean_energy_per_day_j"`
+	Current        CurrentPlan `json:"average_current_a"`
+	Breakdown      []StatePlan `json:"breakdown"`
+	DataRates      []DRPlan    `json:"data_rates"`
+	OutOfReach     float64     `json:"out_of_reach_share"`
+	DutyCycle      DutyPlan    `json:"duty_cycle"`
+	PulseWarnings  []string    `json:"pulse_warnings"`
+
+	Lifetime      Summary `json:"lifetime_years"`
+	Lifetime1     float64 `json:"lifetime_1_percent_years"`
+	FirstFailure  Summary `json:"first_failure_years"`
+	ReplaceByRisk float64 `json:"replace_by_for_risk_years"`
+}
+
+// CurrentPlan is the long-run average current of a node of the group: its
+// mean over the group and the range of the nodes' own averages (which differ
+// with the data rate and power each node settled on).
+type CurrentPlan struct {
+	Mean float64    `json:"mean"`
+	In90 [2]float64 `json:"nodes_90"`
+}
+
+// StatePlan is one row of the per-state breakdown.
+type StatePlan struct {
+	State         string  `json:"state"`
+	RunsPerCycle  float64 `json:"runs_per_cycle"`
+	MeanEnergyJ   float64 `json:"mean_energy_j"`
+	ShareMean     float64 `json:"share_of_mean"`
+	ShareVariance float64 `json:"share_of_variance"`
+}
+
+// DRPlan is the data-rate mix and what happens to uplinks at one data rate.
+type DRPlan struct {
+	DR            int     `json:"dr"`
+	Name          string  `json:"name"`
+	Share         float64 `json:"share"`
+	AirtimeS      float64 `json:"airtime_s"`
+	Load          float64 `json:"offered_load"`
+	UplinkSuccess float64 `json:"uplink_success"`
+	Frames        float64 `json:"transmissions_per_report"`
+	DownlinkRX1   float64 `json:"downlink_rx1"`
+	DownlinkRX2   float64 `json:"downlink_rx2"`
+}
+
+// DutyPlan is the duty-cycle verdict for the group's reporting interval.
+type DutyPlan struct {
+	SubBand  string    `json:"sub_band"`
+	Attempts int       `json:"attempts_checked"`
+	Rows     []DutyRow `json:"rows"`
+	Feasible bool      `json:"feasible_at_every_used_dr"`
+}
+
+// DutyRow is the verdict at one data rate.
+type DutyRow struct {
+	DR           int     `json:"dr"`
+	Used         bool    `json:"used"`
+	Feasible     bool    `json:"feasible"`
+	MinIntervalS float64 `json:"min_interval_s"`
+	Warning      string  `json:"warning,omitempty"`
+}
+
+// FleetPlan is the fleet-wide part.
+type FleetPlan struct {
+	EnergyPerCycle   Summary     `json:"energy_per_cycle_j"`
+	MaxPerCycle      Summary     `json:"max_energy_per_cycle_j"`
+	MinPerCycle      Summary     `json:"min_energy_per_cycle_j"`
+	OutlierLevel     float64     `json:"outlier_level"`
+	OutlierJ         float64     `json:"outlier_threshold_j"`
+	FirstFailure     Summary     `json:"first_failure_years"`
+	FlatBy           []FlatBy    `json:"flat_by"`
+	Replacement      Replacement `json:"planned_replacement"`
+	Risk             float64     `json:"acceptable_risk"`
+	ReplaceByRisk    float64     `json:"replace_by_for_risk_years"`
+	LifetimeAccuracy float64     `json:"lifetime_cdf_error_bound"`
+}
+
+// FlatBy is the date by which a fraction of the fleet's batteries are flat.
+type FlatBy struct {
+	Fraction float64    `json:"fraction"`
+	Count    int64      `json:"count"`
+	Median   float64    `json:"median_years"`
+	In90     [2]float64 `json:"interval_90_years"`
+}
+
+// Replacement is what happens by the planned replacement date.
+type Replacement struct {
+	AfterYears       float64    `json:"after_years"`
+	ExpectedFailures float64    `json:"expected_failures"`
+	Failures90       [2]int64   `json:"failures_90"`
+	NoFailure        float64    `json:"probability_no_failure"`
+	PerGroupExpected []float64  `json:"expected_failures_per_group"`
+	In90Fraction     [2]float64 `json:"failed_fraction_90"`
+}
+
+// planLaws keeps the laws the figures draw.
+type planLaws struct {
+	groupEnergy  []dist.Law // per-cycle energy of a node of each group, J
+	groupLife    []dist.Law // lifetime of a node of each group, s
+	fleetEnergy  dist.Law   // per-cycle energy of a node drawn from the fleet, J
+	maxEnergy    dist.Law
+	minEnergy    dist.Law
+	lifeGroups   []orderstat.Group
+	counts       []int64
+	replaceAfter float64 // s
+}
+
+// progress reports slow steps on stderr.
+type progress func(format string, args ...any)
+
+func summarise(l dist.Law, scale float64) (Summary, error) {
+	s := Summary{Mean: l.Mean() / scale, SD: math.Sqrt(l.Variance()) / scale, Median: l.Quantile(0.5) / scale}
+	lo, hi, err := dist.EqualTailed(l, 0.90)
+	if err != nil {
+		return s, err
+	}
+	s.In90 = [2]float64{lo / scale, hi / scale}
+	lo, hi, err = dist.EqualTailed(l, 0.99)
+	if err != nil {
+		return s, err
+	}
+	s.In99 = [2]float64{lo / scale, hi / scale}
+	for _, x := range []float64{s.Mean, s.SD, s.Median, s.In90[0], s.In90[1], s.In99[0], s.In99[1]} {
+		if math.IsNaN(x) {
+			return s, fmt.Errorf("law %v: a summary value is NaN", l)
+		}
+	}
+	return s, nil
+}
+
+// setting holds the laws of one (group, setting) pair.
+type setting struct {
+	cycle energy.Cycle
+	life  energy.Lifetime
+}
+
+// buildPlan computes the plan of a checked scenario.
+func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) {
+	say("assembling the model: ADR settlement, collisions, retransmissions")
+	m, err := scenario.Build(s, nil)
+	if err != nil {
+		return nil, err
+	}
+	jobs := m.Jobs()
+	sets := make([][]setting, len(m.Groups))
+	for gi, g := range m.Groups {
+		sets[gi] = make([]setting, len(g.Settings))
+	}
+	say("per-cycle and lifetime laws for %d (group, data rate, power) settings on %d cores", len(jobs), runtime.GOMAXPROCS(0))
+	last := 0
+	err = scenario.Parallel(len(jobs), runtime.GOMAXPROCS(0), func(k int) error {
+		j := jobs[k]
+		g := m.Groups[j.Group]
+		c, err := g.SettingCycle(j.Setting)
+		if err != nil {
+			return fmt.Errorf("group %q, %v: %w", g.Group.Name, g.Settings[j.Setting], err)
+		}
+		l, err := energy.NewLifetime(c, m.Battery)
+		if err != nil {
+			return fmt.Errorf("group %q, %v: lifetime: %w", g.Group.Name, g.Settings[j.Setting], err)
+		}
+		sets[j.Group][j.Setting] = setting{cycle: c, life: l}
+		return nil
+	}, func(_, finished int) {
+		if finished*10/len(jobs) > last*10/len(jobs) || finished == len(jobs) {
+			say("  %d of %d settings done", finished, len(jobs))
+			last = finished
+		}
+	})
+	if err != nil {
+		return nil, err
+	}
+
+	p := &Plan{
+		Site: s.Site, Source: source, Region: s.Region.Name(), RegionTables: s.Region.Version(),
+		Nodes: s.TotalNodes(),
+	}
+	for _, gw := range s.Gateways {
+		p.Gateways = append(p.Gateways, gw.Name)
+	}
+	b := m.Battery
+	p.Cell = CellPlan{Name: s.Cell.Name, Chemistry: s.Cell.Chemistry, NominalEnergyJ: b.NominalEnergy(), UsableEnergyJ: b.UsableEnergy(),
+		SelfDischargeW: b.SelfDischargePower(), PulseCurrentA: s.Cell.PulseCurrent, NominalVoltageV: s.Cell.NominalVoltage}
+	p.laws.replaceAfter = s.Plan.ReplaceAfter
+
+	say("summarising the groups")
+	var energyGroups []orderstat.Group
+	lifeAcc := 0.0
+	for gi, g := range m.Groups {
+		gp, eLaw, lLaw, acc, err := groupPlan(s, g, sets[gi], b)
+		if err != nil {
+			return nil, fmt.Errorf("group %q: %w", g.Group.Name, err)
+		}
+		lifeAcc = math.Max(lifeAcc, acc)
+		p.Groups = append(p.Groups, gp)
+		p.laws.groupEnergy = append(p.laws.groupEnergy, eLaw)
+		p.laws.groupLife = append(p.laws.groupLife, lLaw)
+		n := int64(g.Group.Nodes)
+		energyGroups = append(energyGroups, orderstat.Group{Law: eLaw, Count: n})
+		p.laws.lifeGroups = append(p.laws.lifeGroups, orderstat.Group{Law: lLaw, Count: n})
+		p.laws.counts = append(p.laws.counts, n)
+		if g.OutOfReach > 0.01 {
+			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: %.1f %% of placements miss the %.0f dB margin even at DR0 and full power; the plan covers the nodes in reach only: move those nodes or add a gateway",
+				g.Group.Name, 100*g.OutOfReach, s.Environment.InstallationMargin))
+		}
+		if !gp.DutyCycle.Feasible {
+			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: the %.0f s reporting interval breaks the %s duty cycle at some data rate its nodes use (see its duty-cycle line)", g.Group.Name, g.Group.Interval, gp.DutyCycle.SubBand))
+		}
+		for _, w := range gp.PulseWarnings {
+			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: %s", g.Group.Name, w))
+		}
+	}
+	p.Fleet.LifetimeAccuracy = lifeAcc
+
+	say("fleet extremes of the per-cycle energy")
+	if err := fleetEnergy(p, energyGroups); err != nil {
+		return nil, err
+	}
+	say("fleet lifetimes: first failure, flat dates, replacement")
+	if err := fleetLife(p, s); err != nil {
+		return nil, err
+	}
+	p.Cautions = cautions()
+	return p, nil
+}
+
+func groupPlan(s scenario.Scenario, g scenario.GroupModel, sets []setting, b energy.Battery) (GroupPlan, dist.Law, dist.Law, float64, error) {
+	gr := g.Group
+	gp := GroupPlan{Name: gr.Name, Nodes: gr.Nodes, Gateway: s.Gateways[gr.Gateway].Name, InnerRadiusM: gr.InnerRadius, OuterRadiusM: gr.OuterRadius,
+		PayloadBytes: gr.Payload, IntervalS: gr.Interval, JitterS: gr.Jitter, Confirmed: gr.Confirmed, MaxTransmission: gr.MaxTransmissions,
+		OutOfReach: g.OutOfReach}
+	w := g.Weights()
+	cycles := make([]energy.Cycle, len(sets))
+	energies := make([]dist.Law, len(sets))
+	lives := make([]dist.Law, len(sets))
+	currents := make([]float64, len(sets))
+	acc := 0.0
+	for i, st := range sets {
+		cycles[i] = st.cycle
+		energies[i] = st.cycle.Energy()
+		lives[i] = st.life
+		currents[i] = st.cycle.MeanCurrent(s.Node.Voltage)
+	}
+	eLaw, err := dist.Mixture(w, energies)
+	if err != nil {
+		return gp, nil, nil, 0, err
+	}
+	if gp.EnergyPerCycle, err = summarise(eLaw, 1); err != nil {
+		return gp, nil, nil, 0, err
+	}
+	gp.EnergyPerDay = eLaw.Mean() / g.Period.Mean() * energy.Day
+
+	cur, err := dist.NewDiscrete(currents, w)
+	if err != nil {
+		return gp, nil, nil, 0, err
+	}
+	lo, hi, err := dist.EqualTailed(cur, 0.9)
+	if err != nil {
+		return gp, nil, nil, 0, err
+	}
+	gp.Current = CurrentPlan{Mean: cur.Mean(), In90: [2]float64{lo, hi}}
+
+	for _, r := range scenario.MixBreakdown(w, cycles) {
+		name := r.Name
+		if r.Floor {
+			name = "sleep (floor)"
+		}
+		gp.Breakdown = append(gp.Breakdown, StatePlan{State: name, RunsPerCycle: r.Runs, MeanEnergyJ: r.MeanAboveFloor, ShareMean: r.MeanShare, ShareVariance: r.VarianceShare})
+	}
+
+	for _, d := range g.PerDR {
+		dr, err := s.Region.DataRate(d.DR)
+		if err != nil {
+			return gp, nil, nil, 0, err
+		}
+		gp.DataRates = append(gp.DataRates, DRPlan{DR: d.DR, Name: dr.String(), Share: d.Share, AirtimeS: d.Airtime, Load: d.Load,
+			UplinkSuccess: d.UplinkSuccess, Frames: d.Frames, DownlinkRX1: d.Windows.RX1, DownlinkRX2: d.Windows.RX2})
+	}
+
+	// Duty cycle: every attempt counts against the sub-band's budget, so the
+	// check takes the most a report can send.
+	freq := s.Region.UplinkChannels()[0].Frequency
+	band, err := s.Region.SubBandAt(freq)
+	if err != nil {
+		return gp, nil, nil, 0, err
+	}
+	checks, err := s.Region.CheckInterval(freq, gr.Payload, 0, gr.MaxTransmissions, gr.Interval)
+	if err != nil {
+		return gp, nil, nil, 0, err
+	}
+	gp.DutyCycle = DutyPlan{SubBand: band.String(), Attempts: gr.MaxTransmissions, Feasible: true}
+	for _, c := range checks {
+		used := slices.ContainsFunc(g.PerDR, func(d scenario.DRModel) bool { return d.DR == c.DR })
+		if !used && !slices.Contains(s.Region.ADRDataRates(), c.DR) {
+			continue
+		}
+		gp.DutyCycle.Rows = append(gp.DutyCycle.Rows, DutyRow{DR: c.DR, Used: used, Feasible: c.Feasible, MinIntervalS: c.MinInterval, Warning: c.Warning})
+		if used && !c.Feasible {
+			gp.DutyCycle.Feasible = false
+		}
+	}
+
+	seen := map[string]bool{}
+	for _, st := range sets {
+		for _, pw := range b.PulseCheck(st.cycle) {
+			if txt := pw.String(); !seen[txt] {
+				seen[txt] = true
+				gp.PulseWarnings = append(gp.PulseWarnings, txt)
+			}
+		}
+	}
+
+	lLaw, err := dist.Mixture(w, lives)
+	if err != nil {
+		return gp, nil, nil, 0, err
+	}
+	if gp.Lifetime, err = summarise(lLaw, energy.Year); err != nil {
+		return gp, nil, nil, 0, err
+	}
+	gp.Lifetime1 = lLaw.Quantile(0.01) / energy.Year
+	first, err := orderstat.Min(lLaw, int64(gr.Nodes))
+	if err != nil {
+		return gp, nil, nil, 0, err
+	}
+	if gp.FirstFailure, err = summarise(first, energy.Year); err != nil {
+		return gp, nil, nil, 0, err
+	}
+	gp.ReplaceByRisk = first.Quantile(s.Plan.AcceptableRisk) / energy.Year
+	for _, st := range sets {
+		acc = math.Max(acc, st.life.Accuracy().CDFAbs)
+	}
+	return gp, eLaw, lLaw, acc, nil
+}
+
+// outlierLevel is the probability that the fleet's largest per-cycle energy
+// exceeds the outlier threshold in a cycle.
+const outlierLevel = 0.01
+
+func fleetEnergy(p *Plan, groups []orderstat.Group) error {
+	weights := make([]float64, len(groups))
+	laws := make([]dist.Law, len(groups))
+	for i, g := range groups {
+		weights[i] = float64(g.Count) / float64(p.Nodes)
+		laws[i] = g.Law
+	}
+	all, err := dist.Mixture(weights, laws)
+	if err != nil {
+		return err
+	}
+	p.laws.fleetEnergy = all
+	if p.Fleet.EnergyPerCycle, err = summarise(all, 1); err != nil {
+		return err
+	}
+	mx, err := orderstat.MaxOfGroups(groups)
+	if err != nil {
+		return err
+	}
+	mn, err := orderstat.MinOfGroups(groups)
+	if err != nil {
+		return err
+	}
+	p.laws.maxEnergy, p.laws.minEnergy = mx, mn
+	if p.Fleet.MaxPerCycle, err = summarise(mx, 1); err != nil {
+		return err
+	}
+	if p.Fleet.MinPerCycle, err = summarise(mn, 1); err != nil {
+		return err
+	}
+	p.Fleet.OutlierLevel = outlierLevel
+	p.Fleet.OutlierJ = mx.UpperQuantile(outlierLevel)
+	return nil
+}
+
+func fleetLife(p *Plan, s scenario.Scenario) error {
+	groups := p.laws.lifeGroups
+	first, err := orderstat.MinOfGroups(groups)
+	if err != nil {
+		return err
+	}
+	if p.Fleet.FirstFailure, err = summarise(first, energy.Year); err != nil {
+		return err
+	}
+	p.Fleet.Risk = s.Plan.AcceptableRisk
+	p.Fleet.ReplaceByRisk = first.Quantile(s.Plan.AcceptableRisk) / energy.Year
+	n := int64(p.Nodes)
+	for _, f := range []float64{0.01, 0.10, 0.50} {
+		k := max(1, int64(math.Ceil(f*float64(n))))
+		kth, err := orderstat.KthOfGroups(groups, k)
+		if err != nil {
+			return err
+		}
+		lo, hi, err := dist.EqualTailed(kth, 0.9)
+		if err != nil {
+			return err
+		}
+		p.Fleet.FlatBy = append(p.Fleet.FlatBy, FlatBy{Fraction: f, Count: k, Median: kth.Quantile(0.5) / energy.Year,
+			In90: [2]float64{lo / energy.Year, hi / energy.Year}})
+	}
+	t := s.Plan.ReplaceAfter
+	r := Replacement{AfterYears: t / energy.Year, NoFailure: first.Survival(t)}
+	for _, g := range groups {
+		e := float64(g.Count) * g.Law.CDF(t)
+		r.PerGroupExpected = append(r.PerGroupExpected, e)
+		r.ExpectedFailures += e
+	}
+	lo, hi, err := failedBand(groups, t, 0.9)
+	if err != nil {
+		return err
+	}
+	r.Failures90 = [2]int64{int64(lo), int64(hi)}
+	r.In90Fraction = [2]float64{float64(lo) / float64(n), float64(hi) / float64(n)}
+	p.Fleet.Replacement = r
+	return nil
+}
+
+// failedBand returns the equal-tailed interval of probability level of the
+// number of nodes whose battery is flat by t (s): a Poisson-binomial count
+// (orderstat.AtOrBelow on the lifetime laws).
+func failedBand(groups []orderstat.Group, t, level float64) (lo, hi float64, err error) {
+	laws := make([]dist.Law, len(groups))
+	counts := make([]int64, len(groups))
+	for i, g := range groups {
+		laws[i], counts[i] = g.Law, g.Count
+	}
+	c, err := orderstat.AtOrBelow(laws, counts, t)
+	if err != nil {
+		return 0, 0, err
+	}
+	return dist.EqualTailed(c, level)
+}
+
+func cautions() []string {
+	return []string{
+		"Battery handling: primary lithium cells (lithium-thionyl chloride, lithium-manganese dioxide) must not be charged, short-circuited, crushed, opened or heated beyond their rating; follow the cell maker's handling, storage, transport and disposal instructions and the rules for lithium batteries that apply where you work.",
+		"Radio regulation: the regional tables and duty-cycle limits used here are for planning, not certification. Local regulations (in Europe ETSI EN 300 220 and the national implementation of ERC Recommendation 70-03) and the current LoRaWAN Regional Parameters govern.",
+		"Planning figures are not guarantees: they hold only as far as the scenario's currents, cell data, radio environment and traffic hold. Real cells also fail from passivation, temperature, ageing and manufacturing spread; gateways fail and interference changes. A sensor whose failure can hurt someone needs its own margin and the maintenance and inspection rules that apply locally.",
+		"Model limits: collisions are pure ALOHA per gateway, data rate and channel with no capture and no interference between spreading factors or from other networks; out-of-reach nodes are left out; downlink duty cycle and gateway transmit time are not modelled.",
+	}
+}

@@ -1,0 +1,243 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"strings"
+)
+
+// joules formats an energy in J, mJ or µJ.
+func joules(x float64) string {
+	a := math.Abs(x)
+	switch {
+	case a >= 1:
+		return fmt.Sprintf("%.3g J", x)
+	case a >= 1e-3:
+		return fmt.Sprintf("%.3g mJ", x*1e3)
+	default:
+		return fmt.Sprintf("%.3g µJ", x*1e6)
+	}
+}
+
+// joulePair formats an interval of energies in one unit.
+func joulePair(v [2]float64) string {
+	unit, f := "J", 1.0
+	switch a := math.Abs(v[1]); {
+	case a < 1e-3:
+		unit, f = "µJ", 1e6
+	case a < 1:
+		unit, f = "mJ", 1e3
+	}
+	return fmt.Sprintf("[%.3g, %.3g] %s", v[0]*f, v[1]*f, unit)
+}
+
+// amps formats a current in mA or µA.
+func amps(x float64) string {
+	if math.Abs(x) >= 1e-3 {
+		return fmt.Sprintf("%.3g mA", x*1e3)
+	}
+	return fmt.Sprintf("%.3g µA", x*1e6)
+}
+
+// years formats a duration in years (or days when under a year).
+func years(y float64) string {
+	if math.IsInf(y, 1) {
+		return "never"
+	}
+	if y < 1 {
+		return fmt.Sprintf("%.0f days", y*365.25)
+	}
+	return fmt.Sprintf("%.2f years", y)
+}
+
+func yearPair(v [2]float64) string {
+	if v[0] < 1 {
+		return fmt.Sprintf("[%.0f, %.0f] days", v[0]*365.25, v[1]*365.25)
+	}
+	return fmt.Sprintf("[%.2f, %.2f] years", v[0], v[1])
+}
+
+func pct(x float64) string {
+	switch {
+	case math.IsNaN(x):
+		return "–"
+	case x != 0 && math.Abs(x) < 0.001:
+		return fmt.Sprintf("%.2g %%", 100*x)
+	}
+	return fmt.Sprintf("%.1f %%", 100*x)
+}
+
+func seconds(x float64) string {
+	if x < 1 {
+		return fmt.Sprintf("%.1f ms", x*1e3)
+	}
+	return fmt.Sprintf("%.3g s", x)
+}
+
+// writeReport prints the plan in the program's plain layout.
+func writeReport(w io.Writer, p *Plan) {
+	title := "Fleet energy plan: " + p.Site
+	fmt.Fprintln(w, title)
+	fmt.Fprintln(w, strings.Repeat("=", len([]rune(title))))
+	row := func(label, format string, args ...any) {
+		fmt.Fprintf(w, "  %-20s %s\n", label, fmt.Sprintf(format, args...))
+	}
+	more := func(format string, args ...any) {
+		fmt.Fprintf(w, "  %-20s %s\n", "", fmt.Sprintf(format, args...))
+	}
+	row("scenario", "%s", p.Source)
+	row("region", "%s (tables: %s)", p.Region, p.RegionTables)
+	row("fleet", "%d nodes in %d groups; gateways %s", p.Nodes, len(p.Groups), quoteAll(p.Gateways))
+	c := p.Cell
+	row("cell", "%s", c.Name)
+	more("%s; %s nominal, %s usable; self-discharge drain %s", c.Chemistry, joules(c.NominalEnergyJ), joules(c.UsableEnergyJ), watts(c.SelfDischargeW))
+	fmt.Fprintln(w)
+
+	for i, g := range p.Groups {
+		head := fmt.Sprintf("Group %d of %d: %s", i+1, len(p.Groups), g.Name)
+		fmt.Fprintln(w, head)
+		fmt.Fprintln(w, strings.Repeat("-", len([]rune(head))))
+		kind := "unconfirmed"
+		if g.Confirmed {
+			kind = fmt.Sprintf("confirmed, up to %d transmissions", g.MaxTransmission)
+		}
+		row("nodes", "%d around %q, %.0f–%.0f m", g.Nodes, g.Gateway, g.InnerRadiusM, g.OuterRadiusM)
+		row("traffic", "%d-byte uplinks every %.0f s ± %.0f s, %s", g.PayloadBytes, g.IntervalS, g.JitterS, kind)
+		e := g.EnergyPerCycle
+		row("energy per cycle", "mean %s, sd %s", joules(e.Mean), joules(e.SD))
+		more("90 %% of cycles in %s, 99 %% in %s", joulePair(e.In90), joulePair(e.In99))
+		row("energy per day", "%s on average", joules(g.EnergyPerDay))
+		row("average current", "%s over the group; 90 %% of nodes between %s and %s", amps(g.Current.Mean), amps(g.Current.In90[0]), amps(g.Current.In90[1]))
+		row("where it goes", "%-26s %8s %10s %9s %12s", "state", "runs", "mean", "of mean", "of variance")
+		for _, s := range g.Breakdown {
+			more("%-26s %8.3g %10s %9s %12s", s.State, s.RunsPerCycle, joules(s.MeanEnergyJ), pct(s.ShareMean), pct(s.ShareVariance))
+		}
+		row("data rates", "%-18s %7s %9s %8s %9s %8s %8s %8s", "", "nodes", "airtime", "load", "uplink ok", "tx/rep", "dl RX1", "dl RX2")
+		for _, d := range g.DataRates {
+			more("%-18s %7s %9s %8.4f %9s %8.3f %8s %8s", d.Name, pct(d.Share), seconds(d.AirtimeS), d.Load, pct(d.UplinkSuccess), d.Frames, pct(d.DownlinkRX1), pct(d.DownlinkRX2))
+		}
+		more("out of reach at the installation margin: %s of placements (left out of the plan)", pct(g.OutOfReach))
+		dc := g.DutyCycle
+		verdict := "keeps the limit at every data rate its nodes use"
+		if !dc.Feasible {
+			verdict = "BREAKS the limit at a data rate its nodes use"
+		}
+		row("duty cycle", "%s, %d transmission(s) per report: %s", dc.SubBand, dc.Attempts, verdict)
+		var mins []string
+		for _, r := range dc.Rows {
+			if r.Used {
+				mark := ""
+				if !r.Feasible {
+					mark = " (!)"
+				}
+				mins = append(mins, fmt.Sprintf("DR%d %s%s", r.DR, seconds(r.MinIntervalS), mark))
+			}
+		}
+		more("shortest interval allowed: %s", strings.Join(mins, ", "))
+		switch {
+		case p.Cell.PulseCurrentA == 0:
+			row("cell pulse", "not checked (the scenario gives no pulse rating)")
+		case len(g.PulseWarnings) == 0:
+			row("cell pulse", "every state within the cell's %s rating", amps(p.Cell.PulseCurrentA))
+		default:
+			for _, pw := range g.PulseWarnings {
+				row("cell pulse", "WARNING %s", pw)
+			}
+		}
+		l := g.Lifetime
+		row("battery lifetime", "median %s; 90 %% of nodes in %s", years(l.Median), yearPair(l.In90))
+		more("1 %% of this group's nodes are flat by %s", years(g.Lifetime1))
+		f := g.FirstFailure
+		row("first failure", "in this group: median %s, 90 %% in %s", years(f.Median), yearPair(f.In90))
+		fmt.Fprintln(w)
+	}
+
+	fl := p.Fleet
+	fmt.Fprintln(w, "Fleet: energy per cycle")
+	fmt.Fprintln(w, "-----------------------")
+	row("a node's cycle", "mean %s, 90 %% in %s", joules(fl.EnergyPerCycle.Mean), joulePair(fl.EnergyPerCycle.In90))
+	row(fmt.Sprintf("largest of %d", p.Nodes), "mean %s, 90 %% in %s", joules(fl.MaxPerCycle.Mean), joulePair(fl.MaxPerCycle.In90))
+	row(fmt.Sprintf("smallest of %d", p.Nodes), "mean %s, 90 %% in %s", joules(fl.MinPerCycle.Mean), joulePair(fl.MinPerCycle.In90))
+	row("outlier threshold", "%s: the fleet's largest cycle exceeds it in %s of cycles", joules(fl.OutlierJ), pct(fl.OutlierLevel))
+	more("a node above it more often is worth a look (stuck retransmissions, a failing sensor)")
+	fmt.Fprintln(w)
+
+	fmt.Fprintln(w, "Fleet: batteries and replacement")
+	fmt.Fprintln(w, "--------------------------------")
+	row("first failure", "median %s, 90 %% in %s", years(fl.FirstFailure.Median), yearPair(fl.FirstFailure.In90))
+	for _, f := range fl.FlatBy {
+		row(fmt.Sprintf("%.0f %% flat (%d)", 100*f.Fraction, f.Count), "median %s, 90 %% in %s", years(f.Median), yearPair(f.In90))
+	}
+	r := fl.Replacement
+	row("planned replacement", "after %s:", years(r.AfterYears))
+	more("expected failures before it: %.1f of %d (90 %%: %d to %d nodes)", r.ExpectedFailures, p.Nodes, r.Failures90[0], r.Failures90[1])
+	more("probability that no battery is flat before it: %s", probability(r.NoFailure))
+	var per []string
+	for i, g := range p.Groups {
+		per = append(per, fmt.Sprintf("%s %.1f", g.Name, r.PerGroupExpected[i]))
+	}
+	more("expected by group: %s", strings.Join(per, "; "))
+	row("replace by", "%s keeps the risk of any flat battery at %s", years(fl.ReplaceByRisk), pct(fl.Risk))
+	for _, g := range p.Groups {
+		more("%s alone: %s", g.Name, years(g.ReplaceByRisk))
+	}
+	more("(lifetime laws exact to a CDF error of %.1g)", fl.LifetimeAccuracy)
+	fmt.Fprintln(w)
+
+	if len(p.Warnings) > 0 {
+		fmt.Fprintln(w, "Warnings")
+		fmt.Fprintln(w, "--------")
+		for _, x := range p.Warnings {
+			wrap(w, "  - ", x)
+		}
+		fmt.Fprintln(w)
+	}
+	fmt.Fprintln(w, "Cautions")
+	fmt.Fprintln(w, "--------")
+	for _, x := range p.Cautions {
+		wrap(w, "  - ", x)
+	}
+}
+
+func watts(x float64) string {
+	switch a := math.Abs(x); {
+	case a >= 1e-3:
+		return fmt.Sprintf("%.3g mW", x*1e3)
+	default:
+		return fmt.Sprintf("%.3g µW", x*1e6)
+	}
+}
+
+func probability(x float64) string {
+	if x != 0 && x < 1e-3 {
+		return fmt.Sprintf("%.2g", x)
+	}
+	return fmt.Sprintf("%.3f", x)
+}
+
+func quoteAll(xs []string) string {
+	q := make([]string, len(xs))
+	for i, x := range xs {
+		q[i] = fmt.Sprintf("%q", x)
+	}
+	return strings.Join(q, ", ")
+}
+
+// wrap prints text after prefix, wrapped at 100 columns.
+func wrap(w io.Writer, prefix, text string) {
+	indent := strings.Repeat(" ", len([]rune(prefix)))
+	line := prefix
+	for _, word := range strings.Fields(text) {
+		if len([]rune(line))+1+len([]rune(word)) > 100 && strings.TrimSpace(line) != strings.TrimSpace(prefix) {
+			fmt.Fprintln(w, line)
+			line = indent
+		}
+		if line == prefix || line == indent {
+			line += word
+		} else {
+			line += " " + word
+		}
+	}
+	fmt.Fprintln(w, line)
+}

@@ -27,6 +27,9 @@ import (
 // sd(T)/(E[T]·√M), far below the spread of M for the cycle counts of real
 // nodes.
 //
+// Probabilities that Hoeffding's inequality puts below 1e-300 are returned
+// as 0 (an absolute error below 1e-300).
+//
 // Lifetime implements dist.Law in seconds. CDF, Survival, Quantile and
 // UpperQuantile each cost a few K-fold evaluations, cached (safely for
 // concurrent use) inside the value; Mean and Variance are computed on first
@@ -49,16 +52,19 @@ type Lifetime struct {
 
 // kfold evaluates P(S_k <= C) and P(S_k > C) for integer k, with a cache.
 type kfold struct {
-	law      dist.Law
-	sums     dist.IIDSums
-	closed   bool        // SumIID has a closed form for law
-	atomic   *atomicSums // law is a finite discrete law of two or more atoms
-	capacity float64
+	law             dist.Law
+	sums            dist.IIDSums
+	emean, elo, ehi float64     // mean and support of law (J)
+	closed          bool        // SumIID has a closed form for law
+	atomic          *atomicSums // law is a finite discrete law of two or more atoms
+	capacity        float64
 
-	mu     sync.Mutex
-	cache  map[int64][2]float64
-	acc    dist.Accuracy // reported by the K-fold law at the median
-	saddle bool          // the saddlepoint approximation is in use
+	mu      sync.Mutex
+	cache   map[int64][2]float64
+	accOnce sync.Once
+	acc     dist.Accuracy // reported by the K-fold law at the median
+	med     int64         // the median number of cycles + 1
+	saddle  bool          // the saddlepoint approximation is in use
 
 	once        sync.Once
 	mean, vari  float64
@@ -79,6 +85,19 @@ func (f *kfold) at(k int64) [2]float64 {
 	}
 	if k > int64(^uint(0)>>1) {
 		return [2]float64{math.NaN(), math.NaN()}
+	}
+	// Hoeffding's inequality for a law on [lo, hi] (Hoeffding 1963, J. Amer.
+	// Statist. Assoc. 58:13–30, Thm 2): P(S_k − kμ >= d) <= exp(−2d²/(k(hi−lo)²)),
+	// and the same below. Where it puts a tail under 1e-300 the tail is
+	// returned as 0, sparing an inversion far from the lifetime's bulk.
+	if w := f.ehi - f.elo; w > 0 && !math.IsInf(w, 0) {
+		d := f.capacity - float64(k)*f.emean
+		if 2*d*d/(float64(k)*w*w) > 300*math.Ln10 {
+			if d > 0 {
+				return [2]float64{1, 0}
+			}
+			return [2]float64{0, 1}
+		}
 	}
 	if f.atomic != nil {
 		b, a, _ := f.atomic.eval(k, f.capacity)
@@ -147,7 +166,7 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	if err != nil {
 		return Lifetime{}, causeErr(fn, "c", c.String(), "K-fold sums of the cycle energy", err)
 	}
-	l.ev = &kfold{law: l.energy, sums: sums, capacity: l.capacity, cache: map[int64][2]float64{}}
+	l.ev = &kfold{law: l.energy, sums: sums, capacity: l.capacity, cache: map[int64][2]float64{}, emean: l.mu, elo: lo, ehi: hi}
 	switch e := l.energy.(type) {
 	case dist.Normal, dist.Exponential, dist.Gamma:
 		l.ev.closed = true
@@ -159,28 +178,21 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 			l.ev.atomic = &a
 		}
 	}
-	med := l.kQuantile(0.5, false)
+	// One evaluation at the renewal estimate of the median checks that the
+	// K-fold law can be computed; the search for the exact median is left to
+	// the first question that needs it.
+	mk, _ := l.cltK()
+	med := int64(math.Max(float64(l.kmin), math.Min(math.Round(mk), math.Min(float64(l.kmax), 1<<62))))
 	if v := l.ev.at(med + 1); math.IsNaN(v[0]) {
 		_, err := sumIID(l.energy, med+1)
 		return Lifetime{}, causeErr(fn, "c", c.String(), fmt.Sprintf("K-fold law of %d cycles", med+1), err)
 	}
-	// The accuracy of the K-fold law at the median stands for all k: the
-	// inversion window scales with √k, so its error bound hardly moves.
-	switch {
-	case l.ev.atomic != nil:
-		if _, _, exact := l.ev.atomic.eval(med+1, l.capacity); !exact {
-			l.ev.acc = dist.Accuracy{CDFAbs: l.ev.atomic.errorBound(med+1, l.capacity),
-				Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) for a purely discrete cycle law whose k-fold atoms are too many to list; the bound adds the largest k-fold atom for incommensurate energies"}
-			l.ev.saddle = true
-		}
-	case !l.ev.closed:
-		kl, err := sumIID(l.energy, med+1)
-		if err != nil {
-			return Lifetime{}, causeErr(fn, "c", c.String(), fmt.Sprintf("K-fold law of %d cycles", med+1), err)
-		}
-		if e, ok := kl.(dist.Estimated); ok {
-			l.ev.acc = e.Accuracy()
-		}
+	// The accuracy of the K-fold law at about the median stands for all k:
+	// the inversion window scales with √k, so its error bound hardly moves.
+	l.ev.med = med + 1
+	if l.ev.atomic != nil {
+		_, _, exact := l.ev.atomic.eval(med+1, l.capacity)
+		l.ev.saddle = !exact
 	}
 	return l, nil
 }
@@ -212,14 +224,94 @@ func (l Lifetime) kQuantile(p float64, upper bool) int64 {
 		return v[1] >= p
 	}
 	m, sd := l.cltK()
-	z := dist.MustNormal(0, 1)
-	var g float64
+	std := dist.MustNormal(0, 1)
+	var zt float64 // the probit of the target level of P(M <= k)
 	if upper {
-		g = m + sd*z.UpperQuantile(p)
+		zt = std.UpperQuantile(p)
 	} else {
-		g = m + sd*z.Quantile(p)
+		zt = std.Quantile(p)
 	}
-	return searchK(pred, g, math.Max(1, sd), l.kmin, l.kmax)
+	guess := l.secantK(zt, m+sd*zt, math.Max(1, sd))
+	step := 2.0
+	if math.IsNaN(guess) {
+		guess, step = m+sd*zt, math.Max(1, sd)
+	}
+	return searchK(pred, guess, step, l.kmin, l.kmax)
+}
+
+// anchors returns the two cached k (as M = k) whose probits z(k) lie
+// closest to zt from below and from above, with their probits; NaN when the
+// cache holds no such pair.
+func (l Lifetime) anchors(zt float64) (k0, k1, z0, z1 float64) {
+	std := dist.MustNormal(0, 1)
+	below, above := math.Inf(-1), math.Inf(1)
+	k0, k1 = math.NaN(), math.NaN()
+	f := l.ev
+	f.mu.Lock()
+	defer f.mu.Unlock()
+	for k, v := range f.cache {
+		var z float64
+		if v[1] <= 0.5 {
+			z = std.Quantile(v[1])
+		} else {
+			z = std.UpperQuantile(v[0])
+		}
+		if math.IsInf(z, 0) || math.IsNaN(z) {
+			continue
+		}
+		if z <= zt && z > below {
+			below, k0 = z, float64(k-1)
+		}
+		if z > zt && z < above {
+			above, k1 = z, float64(k-1)
+		}
+	}
+	if math.IsNaN(k0) || math.IsNaN(k1) {
+		return math.NaN(), math.NaN(), 0, 0
+	}
+	return k0, k1, below, above
+}
+
+// secantK returns a k near the solution of z(k) = zt, where z(k) is the
+// probit of P(M <= k) (taken from the smaller tail, so that it stays exact
+// far out): nearly linear in k by the renewal central limit theorem, so a
+// few secant steps from the guess g land within a cycle or two. NaN when a
+// probability underflows.
+func (l Lifetime) secantK(zt, g, step float64) float64 {
+	std := dist.MustNormal(0, 1)
+	lo, hi := float64(l.kmin), float64(l.kmax)
+	clamp := func(x float64) float64 { return math.Round(math.Min(math.Max(x, lo), math.Min(hi, 1<<62))) }
+	z := func(k float64) float64 {
+		v := l.ev.at(int64(k) + 1)
+		if v[1] <= 0.5 {
+			return std.Quantile(v[1])
+		}
+		return std.UpperQuantile(v[0])
+	}
+	// Start from the two evaluated k (cached) whose probits bracket zt most
+	// closely, or from the guess and one step beside it.
+	k0, k1, z0, z1 := l.anchors(zt)
+	if math.IsNaN(k0) {
+		k0 = clamp(g)
+		z0 = z(k0)
+		k1 = clamp(k0 + math.Copysign(step, zt-z0))
+		if k1 == k0 {
+			k1 = clamp(k0 - math.Copysign(step, zt-z0))
+		}
+		z1 = z(k1)
+	}
+	for range 12 {
+		if math.IsInf(z0, 0) || math.IsInf(z1, 0) || math.IsNaN(z0+z1) || z1 == z0 || k1 == k0 {
+			return math.NaN()
+		}
+		k2 := clamp(k1 + (zt-z1)*(k1-k0)/(z1-z0))
+		if math.Abs(k2-k1) <= 1 {
+			return k2
+		}
+		k0, z0 = k1, z1
+		k1, z1 = k2, z(k2)
+	}
+	return k1
 }
 
 // searchK returns the smallest k in [lo, hi] with pred(k), pred monotone
@@ -476,12 +568,26 @@ func (l Lifetime) Simulate(r *rand.Rand) float64 {
 	}
 }
 
-// Accuracy reports the error bounds of the K-fold law of the median number
-// of cycles (package dist's estimate, which its tests check against
+// Accuracy reports the error bounds of the K-fold law of about the median
+// number of cycles (package dist's estimate, which its tests check against
 // independent oracles; zero for closed forms and exact discrete laws),
 // which stand for every k.
 func (l Lifetime) Accuracy() dist.Accuracy {
-	a := l.ev.acc
+	f := l.ev
+	f.accOnce.Do(func() {
+		switch {
+		case f.saddle:
+			f.acc = dist.Accuracy{CDFAbs: f.atomic.errorBound(f.med, f.capacity),
+				Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) for a purely discrete cycle law whose k-fold atoms are too many to list; the bound adds the largest k-fold atom for incommensurate energies"}
+		case !f.closed && f.atomic == nil:
+			if kl, err := sumIID(f.law, f.med); err == nil {
+				if e, ok := kl.(dist.Estimated); ok {
+					f.acc = e.Accuracy()
+				}
+			}
+		}
+	})
+	a := f.acc
 	if l.ev.saddle {
 		a.Method = "renewal identity P(M >= k) = P(S_k <= C); " + a.Method
 		return a

@@ -209,8 +209,10 @@ func (a atomicSums) errorBound(k int64, x float64) float64 {
 func (a atomicSums) correction(k int64, x float64) float64 {
 	n := float64(k)
 	xb := x / n
-	if d := 0.1 * a.sd / math.Sqrt(n); math.Abs(xb-a.mu) < d {
-		xb = a.mu + d // the saddlepoint is replaced by Edgeworth there
+	if d := a.sd / math.Sqrt(n); math.Abs(xb-a.mu) < d {
+		// Within one sd the terms cancel among themselves (and within 0.1 sd
+		// Edgeworth takes over): take their size one sd out.
+		xb = a.mu + math.Copysign(d, xb-a.mu)
 	}
 	sign := 1.0
 	if xb < a.mu {

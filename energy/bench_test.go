@@ -1,7 +1,6 @@
 package energy_test
 
 import (
-	"math"
 	"math/rand/v2"
 	"sort"
 	"testing"
@@ -82,17 +81,7 @@ func BenchmarkLifetimeGamma1e6(b *testing.B) {
 // BenchmarkLifetimeDiscrete1e6: a purely discrete cycle (six energies) on
 // the saddlepoint path, 10^6 cycles.
 func BenchmarkLifetimeDiscrete1e6(b *testing.B) {
-	cfg := dist.MustDiscrete([]float64{7, 9, 12}, []float64{0.5, 0.3, 0.2})
-	radio, err := energy.Configured(cfg, func(sf float64) (energy.Stage, error) {
-		air := 0.05 * math.Pow(2, sf-7)
-		tx := energy.MustFixedState("tx", 40*energy.MilliAmp, 3.6, air)
-		rx := energy.MustFixedState("rx", 11*energy.MilliAmp, 3.6, air/2)
-		return energy.Sequence(tx, energy.MustChoice([]float64{0.3, 0.7}, []energy.Stage{rx, energy.Nothing()}))
-	})
-	if err != nil {
-		b.Fatal(err)
-	}
-	c := energy.MustCycle(radio, dist.MustPointMass(600), 1.5*energy.MicroAmp*3.6)
+	c := sixEnergyCycle(b)
 	cell := energy.MustBattery(energy.BatterySpec{Energy: 1e6 * c.MeanEnergy(), NominalVoltage: 3.6, UsableFraction: 1})
 	for b.Loop() {
 		lifetimeWork(b, c, cell)

@@ -257,16 +257,7 @@ func TestLifetimeDiscreteCycle(t *testing.T) {
 		assert.InDelta(t, want, got, 1e-12+1e-9*want, "k=%d", kk)
 	}
 
-	// Six energies: configuration 7/9/12 × downlink or not.
-	cfg := dist.MustDiscrete([]float64{7, 9, 12}, []float64{0.5, 0.3, 0.2})
-	radio, err := energy.Configured(cfg, func(sf float64) (energy.Stage, error) {
-		air := 0.05 * math.Pow(2, sf-7)
-		tx := energy.MustFixedState("tx", 40*energy.MilliAmp, 3.6, air)
-		rx := energy.MustFixedState("rx", 11*energy.MilliAmp, 3.6, air/2)
-		return energy.Sequence(tx, energy.MustChoice([]float64{0.3, 0.7}, []energy.Stage{rx, energy.Nothing()}))
-	})
-	require.NoError(t, err)
-	c6 := energy.MustCycle(radio, dist.MustPointMass(600), 1.5*energy.MicroAmp*3.6)
+	c6 := sixEnergyCycle(t)
 	b6 := energy.MustBattery(energy.BatterySpec{Energy: 400 * c6.MeanEnergy(), NominalVoltage: 3.6, UsableFraction: 1})
 	l6 := energy.MustLifetime(c6, b6)
 	assert.Contains(t, l6.Accuracy().Method, "saddlepoint")
@@ -280,4 +271,20 @@ func TestLifetimeDiscreteCycle(t *testing.T) {
 	// At a year of 10-minute cycles the reported bound is small.
 	b6y := energy.MustBattery(energy.BatterySpec{Energy: 52596 * c6.MeanEnergy(), NominalVoltage: 3.6, UsableFraction: 1})
 	assert.Less(t, energy.MustLifetime(c6, b6y).Accuracy().CDFAbs, 1e-5)
+}
+
+// sixEnergyCycle is an invented purely discrete node: configuration 7, 9 or
+// 12 (shared by uplink and window) × downlink or not, every state fixed,
+// period 600 s: six cycle energies.
+func sixEnergyCycle(t testing.TB) energy.Cycle {
+	t.Helper()
+	cfg := dist.MustDiscrete([]float64{7, 9, 12}, []float64{0.5, 0.3, 0.2})
+	radio, err := energy.Configured(cfg, func(sf float64) (energy.Stage, error) {
+		air := 0.05 * math.Pow(2, sf-7)
+		tx := energy.MustFixedState("tx", 40*energy.MilliAmp, 3.6, air)
+		rx := energy.MustFixedState("rx", 11*energy.MilliAmp, 3.6, air/2)
+		return energy.Sequence(tx, energy.MustChoice([]float64{0.3, 0.7}, []energy.Stage{rx, energy.Nothing()}))
+	})
+	require.NoError(t, err)
+	return energy.MustCycle(radio, dist.MustPointMass(600), 1.5*energy.MicroAmp*3.6)
 }

@@ -23,8 +23,8 @@ type Count struct {
 }
 
 // maxCountSupport bounds the number of probabilities a Count holds (those
-// that do not underflow): 2^24.
-const maxCountSupport = 1 << 24
+// that do not underflow): 2^20, about 32 MB.
+const maxCountSupport = 1 << 20
 
 // PoissonBinomial returns the law of Σ_i Bin(counts[i], probs[i]) over
 // independent terms: how many of the nodes are "hit" when node group i has
@@ -32,7 +32,7 @@ const maxCountSupport = 1 << 24
 // (one node each); otherwise it must have the length of probs, with
 // entries >= 1. Probabilities must lie in [0, 1]; the total count must not
 // exceed MaxCount, and the probabilities that do not underflow must fit in
-// 2^24 values (ErrRange otherwise).
+// 2^20 values (ErrRange otherwise).
 //
 // The law is computed by the discrete Fourier transform of its
 // characteristic function (Hong 2013, Computational Statistics & Data
@@ -216,9 +216,14 @@ func (cm countModel) pmfAll() (lo float64, pmf []float64, method string, rel flo
 		m *= 2
 	}
 	dftCost := 150 * 20 * float64(len(cm.terms)) * (m/2 + 1)
-	convCost := 0.0
+	// Convolving the narrowest terms first, each step costs the width so
+	// far times the new term's width.
+	sort.Slice(cm.terms, func(i, j int) bool { return termWidth(cm.terms[i]) < termWidth(cm.terms[j]) })
+	convCost, acc := 0.0, 1.0
 	for _, t := range cm.terms {
-		convCost += width * math.Min(t.n+1, 80*math.Sqrt(t.n*t.p*t.q)+40)
+		w := termWidth(t)
+		convCost += math.Min(acc, width) * w
+		acc += w
 	}
 	if convCost < dftCost {
 		lo, pmf = cm.convolve()
@@ -227,6 +232,10 @@ func (cm countModel) pmfAll() (lo float64, pmf []float64, method string, rel flo
 	lo, pmf = cm.march()
 	return lo, pmf, "tilted discrete Fourier inversion of the characteristic function (Hong 2013)", 1e-11, nil
 }
+
+// termWidth is about the number of probabilities of Bin(n, p) that do not
+// underflow.
+func termWidth(t binom) float64 { return math.Min(t.n+1, 80*math.Sqrt(t.n*t.p*t.q)+40) }
 
 // binomPMF returns the probabilities of Bin(n, p) that do not underflow,
 // from lo on, each by Loader's expansion.

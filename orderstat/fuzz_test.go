@@ -69,3 +69,39 @@ func FuzzGroups(f *testing.F) {
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+
+// FuzzPoissonBinomial builds counts from fuzzed probabilities and counts
+// and checks that the constructor never panics and that a returned law has
+// masses summing to 1, the exact mean Σ n·p, and tails that add to 1.
+func FuzzPoissonBinomial(f *testing.F) {
+	f.Add(0.3, 0.7, 0.01, int64(3), int64(5), int64(100))
+	f.Add(0.0, 1.0, 1e-300, int64(1), int64(1), int64(1e12))
+	f.Add(-0.1, 2.0, math.NaN(), int64(0), int64(-1), int64(7))
+	f.Add(0.5, 0.5, 0.5, int64(100000), int64(1), int64(1))
+	f.Fuzz(func(t *testing.T, p1, p2, p3 float64, n1, n2, n3 int64) {
+		probs := []float64{p1, p2, p3}
+		counts := []int64{n1, n2, n3}
+		c, err := orderstat.PoissonBinomial(probs, counts)
+		if err != nil {
+			if !errors.Is(err, orderstat.ErrParam) && !errors.Is(err, orderstat.ErrRange) {
+				t.Fatalf("error wraps neither sentinel: %v", err)
+			}
+			return
+		}
+		total := 0.0
+		for _, a := range c.Atoms() {
+			total += a.Mass
+		}
+		if math.Abs(total-1) > 1e-9 {
+			t.Fatalf("masses sum to %v", total)
+		}
+		mean := float64(n1)*p1 + float64(n2)*p2 + float64(n3)*p3
+		if math.Abs(c.Mean()-mean) > 1e-12*math.Max(1, mean) {
+			t.Fatalf("mean %v, want %v", c.Mean(), mean)
+		}
+		x := math.Floor(mean)
+		if s := c.CDF(x) + c.Survival(x); math.Abs(s-1) > 1e-12 {
+			t.Fatalf("CDF + Survival = %v at %v", s, x)
+		}
+	})
+}

@@ -1,0 +1,151 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"image/png"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/internal/scenario"
+)
+
+func runArgs(t *testing.T, args ...string) (code int, stdout, stderr string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code = run(args, &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+func TestDefaultReport(t *testing.T) {
+	code, out, errs := runArgs(t)
+	require.Equal(t, 0, code, errs)
+	for _, want := range []string{
+		"Fleet energy plan: Lower Quillmoor polder district (fictional)",
+		"Group 1 of 4: dyke piezometers", "Group 4 of 4: weather masts",
+		"energy per cycle", "where it goes", "of variance", "data rates", "DR5 (SF7/125 kHz)",
+		"duty cycle", "battery lifetime", "Fleet: energy per cycle", "largest of 304", "smallest of 304",
+		"outlier threshold", "first failure", "1 % flat", "10 % flat", "50 % flat", "planned replacement",
+		"expected failures before it", "replace by",
+	} {
+		assert.Contains(t, out, want)
+	}
+	// Units are printed with the figures.
+	for _, unit := range []string{" mJ", " µA", " years", " s "} {
+		assert.Contains(t, out, unit)
+	}
+	// The report ends with the cautions, battery handling and radio regulation among them.
+	i := strings.LastIndex(out, "Cautions\n--------")
+	require.Positive(t, i)
+	tail := out[i:]
+	assert.Contains(t, tail, "Battery handling")
+	assert.Contains(t, tail, "Radio regulation")
+	assert.Contains(t, tail, "not guarantees")
+	assert.Contains(t, errs, "fleetplan [", "progress goes to stderr")
+	assert.NotContains(t, out, "fleetplan [")
+	assert.NotContains(t, out, "NaN")
+}
+
+func TestJSON(t *testing.T) {
+	code, out, errs := runArgs(t, "-json", "-quiet")
+	require.Equal(t, 0, code, errs)
+	assert.Empty(t, errs)
+	var p Plan
+	require.NoError(t, json.Unmarshal([]byte(out), &p))
+	assert.Equal(t, 304, p.Nodes)
+	require.Len(t, p.Groups, 4)
+	g := p.Groups[1]
+	assert.Equal(t, "field soil probes", g.Name)
+	assert.Less(t, g.EnergyPerCycle.In90[0], g.EnergyPerCycle.Median)
+	assert.Less(t, g.EnergyPerCycle.Median, g.EnergyPerCycle.In90[1])
+	assert.LessOrEqual(t, g.EnergyPerCycle.In99[0], g.EnergyPerCycle.In90[0])
+	sum := 0.0
+	for _, s := range g.Breakdown {
+		sum += s.ShareMean
+	}
+	assert.InDelta(t, 1, sum, 1e-9, "shares of the mean add to 1")
+	share := 0.0
+	for _, d := range g.DataRates {
+		share += d.Share
+	}
+	assert.InDelta(t, 1, share, 1e-9)
+	f := p.Fleet
+	assert.Greater(t, f.MaxPerCycle.Mean, f.EnergyPerCycle.Mean)
+	assert.Less(t, f.MinPerCycle.Mean, f.EnergyPerCycle.Mean)
+	assert.GreaterOrEqual(t, f.OutlierJ, f.MaxPerCycle.Median)
+	require.Len(t, f.FlatBy, 3)
+	assert.LessOrEqual(t, f.FirstFailure.Median, f.FlatBy[0].Median)
+	assert.Less(t, f.FlatBy[0].Median, f.FlatBy[2].Median)
+	assert.InDelta(t, 5, f.Replacement.AfterYears, 1e-12)
+	assert.LessOrEqual(t, float64(f.Replacement.Failures90[0]), f.Replacement.ExpectedFailures)
+	assert.GreaterOrEqual(t, float64(f.Replacement.Failures90[1]), f.Replacement.ExpectedFailures)
+	// The replacement date for the acceptable risk is the risk quantile of
+	// the first failure: no later than the first failure's median.
+	assert.LessOrEqual(t, f.ReplaceByRisk, f.FirstFailure.Median)
+	assert.NotEmpty(t, p.Cautions)
+}
+
+func TestBadScenarioRejected(t *testing.T) {
+	var m map[string]any
+	require.NoError(t, json.Unmarshal(scenario.DemoJSON(), &m))
+	g := m["groups"].([]any)[2].(map[string]any)
+	g["max_transmissions"] = 40
+	delete(m["cell"].(map[string]any), "capacity_mah")
+	data, err := json.Marshal(m)
+	require.NoError(t, err)
+	path := filepath.Join(t.TempDir(), "bad.json")
+	require.NoError(t, os.WriteFile(path, data, 0o600))
+
+	code, out, errs := runArgs(t, "-scenario", path)
+	assert.Equal(t, 1, code)
+	assert.Empty(t, out, "nothing is half-computed")
+	assert.Contains(t, errs, "is not a usable scenario")
+	assert.Contains(t, errs, "groups[2].max_transmissions = 40: must be a whole number in [1, 15]")
+	assert.Contains(t, errs, "cell.capacity_mah: missing")
+
+	code, _, errs = runArgs(t, "-scenario", filepath.Join(t.TempDir(), "absent.json"))
+	assert.Equal(t, 1, code)
+	assert.Contains(t, errs, "no such file")
+
+	code, _, _ = runArgs(t, "-no-such-flag")
+	assert.Equal(t, 2, code)
+	code, _, _ = runArgs(t, "extra")
+	assert.Equal(t, 2, code)
+}
+
+func TestOwnScenarioFile(t *testing.T) {
+	code, demo, _ := runArgs(t, "-print-demo")
+	require.Equal(t, 0, code)
+	path := filepath.Join(t.TempDir(), "site.json")
+	require.NoError(t, os.WriteFile(path, []byte(demo), 0o600))
+	code, out, errs := runArgs(t, "-scenario", path, "-quiet")
+	require.Equal(t, 0, code, errs)
+	assert.Contains(t, out, "scenario             "+path)
+}
+
+func TestFigures(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "figs")
+	code, _, errs := runArgs(t, "-figures", dir, "-quiet")
+	require.Equal(t, 0, code, errs)
+	for _, name := range []string{"energy-per-cycle", "lifetime-survival", "failed-nodes"} {
+		f, err := os.Open(filepath.Join(dir, name+".png"))
+		require.NoError(t, err)
+		img, err := png.Decode(f)
+		require.NoError(t, f.Close())
+		require.NoError(t, err, name)
+		assert.Greater(t, img.Bounds().Dx(), 400)
+		svg, err := os.ReadFile(filepath.Join(dir, name+".svg"))
+		require.NoError(t, err)
+		assert.Contains(t, string(svg), "<svg")
+	}
+	svg, err := os.ReadFile(filepath.Join(dir, "lifetime-survival.svg"))
+	require.NoError(t, err)
+	for _, label := range []string{"time since deployment (years)", "share of nodes still running", "planned replacement"} {
+		assert.Contains(t, string(svg), label)
+	}
+}

@@ -1,13 +1,8 @@
 package energy
 
 import (
-	"errors"
-
 	"github.com/joulelaw/joulelaw/dist"
 )
-
-// errNotYet marks law operations whose dist implementation has not landed.
-var errNotYet = errors.New("energy: law operation not available yet")
 
 // sum returns the law of the sum of independent laws.
 func sum(ls ...dist.Law) (dist.Law, error) {
@@ -20,7 +15,9 @@ func sum(ls ...dist.Law) (dist.Law, error) {
 // randomSum returns the law of Σ_{k<=N} Y_k.
 func randomSum(count, term dist.Law) (dist.Law, error) { return dist.RandomSum(count, term) }
 
-// product returns the law of x·y for independent x, y.
+// product returns the law of x·y for independent x, y >= 0: exact when
+// either is finite discrete (dist.ScaleByDiscrete), numerical otherwise
+// (newProduct).
 func product(x, y dist.Law) (dist.Law, error) {
 	if d, ok := y.(dist.Discrete); ok {
 		return dist.ScaleByDiscrete(x, d)
@@ -28,7 +25,7 @@ func product(x, y dist.Law) (dist.Law, error) {
 	if d, ok := x.(dist.Discrete); ok {
 		return dist.ScaleByDiscrete(y, d)
 	}
-	return nil, errNotYet
+	return newProduct(x, y)
 }
 
 // sumIID returns the law of the sum of k independent copies of l.

@@ -6,6 +6,23 @@
 // values the fleet's law makes unlikely. Every answer is a dist.Law, so it
 // has quantiles, intervals and samples of its own.
 //
+// # What is here
+//
+//   - Max, Min, Kth: the largest, smallest and k-th smallest of n
+//     independent copies of one law (n up to MaxCount = 10^15).
+//   - MaxOfGroups, MinOfGroups, KthOfGroups: the same over groups of nodes
+//     with different laws (Group{Law, Count}).
+//   - Range: the sample range max − min of n copies.
+//   - PoissonBinomial, Exceedances, AtOrBelow: the number of nodes beyond
+//     (or at or below) a threshold, as a Count law with its exact mean.
+//   - Screen: flags observed nodes whose values are unlikely for the fleet.
+//   - GumbelMax, GumbelMin, WeibullMax, WeibullMin: labelled extreme-value
+//     approximations that carry their error against the exact law.
+//
+// The order-statistic constructors return a dist.Law whose concrete value
+// is a Statistic (AsStatistic unwraps it, for Rank, Count, Groups and
+// MomentError).
+//
 // # Numerical policy
 //
 // Everything is computed in log space from the parents' CDF and Survival:

@@ -265,3 +265,19 @@ func TestMeanMaxOfGroupsAccuracy(t *testing.T) {
 	assert.LessOrEqual(t, testref.RelErr(l.Mean(), want), 1e-10)
 	t.Logf("mean %.17g, independent %.17g, relative difference %.2g", l.Mean(), want, testref.RelErr(l.Mean(), want))
 }
+
+// For a normal parent the quantile-based Gumbel constants approach the
+// classical ones, b_n = √(2 ln n) − (ln ln n + ln 4π)/(2√(2 ln n)) and
+// a_n = 1/√(2 ln n) (Cramér 1946 via David & Nagaraja §10.5 — from memory).
+func TestGumbelNormingConstantsNormal(t *testing.T) {
+	for _, n := range []int64{1_000_000, 1_000_000_000_000} {
+		g, err := orderstat.GumbelMax(dist.MustNormal(0, 1), n)
+		require.NoError(t, err)
+		loc, scale, _ := g.Params()
+		ln := math.Log(float64(n))
+		s := math.Sqrt(2 * ln)
+		b := s - (math.Log(ln)+math.Log(4*math.Pi))/(2*s)
+		assert.InDelta(t, b, loc, 0.02, "b_n n=%d", n)
+		assert.InDelta(t, 1, scale*s, 0.1, "a_n n=%d", n)
+	}
+}

@@ -20,9 +20,24 @@
 //	E = P_floor·T + Σ_i (P_i − P_floor)·t_i
 //
 // Laws are exact (finite discrete) when every factor is constant or finite
-// discrete, and numerical otherwise, with the accuracy package dist reports.
-// Every Cycle also samples its energy from the structure itself (Cycle.Rand),
-// the independent Monte Carlo path.
+// discrete, and numerical otherwise, with the accuracy package dist reports
+// (dist.Estimated). A state whose power and duration are both continuous
+// gets a numerical product law (Gauss–Legendre on one factor's quantile
+// scale, error estimated and reported). Every Cycle also samples its energy
+// from the structure itself (Cycle.Rand), the independent Monte Carlo path.
+//
+// # Numerical methods of the lifetime
+//
+// NewLifetime evaluates P(M >= k) = P(S_k <= C) for the k it needs, cached:
+// with dist.IIDSums (tilted Fourier-series inversion whose work does not
+// grow with k) for continuous or mixed cycle laws; in closed form for
+// normal, exponential and gamma cycle laws; and for a purely discrete cycle
+// law (every state fixed or finite discrete and the period fixed) exactly
+// while the k-fold law is small, exactly as a binomial count for two
+// energies, and otherwise by the second-order saddlepoint of Lugannani &
+// Rice (1980) with Daniels' (1987) terms, reported with its error bound.
+// Tails that Hoeffding's inequality puts below 1e-300 are returned as 0.
+// Quantiles search k by secant steps on the probit of P(M <= k).
 //
 // # What it answers
 //

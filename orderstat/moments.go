@@ -73,7 +73,7 @@ func (c *core) quadMoments() moments {
 	q := func(p float64) float64 { return c.quantile(p, 1-p, false) }
 	uq := func(v float64) float64 { return c.quantile(1-v, v, true) }
 	var xlo, xhi, med float64
-	if len(c.groups) > 1 && c.kind != kindKth {
+	if len(c.groups) > 1 && c.kind != kindKth && !c.costly {
 		// The brackets of the quantiles (one parent quantile per group
 		// each) bound the region well enough and cost less than solving.
 		xlo, _ = c.bracket(momentTail, 1-momentTail)

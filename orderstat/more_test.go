@@ -3,6 +3,7 @@ package orderstat_test
 import (
 	"math"
 	"math/rand/v2"
+	"sync/atomic"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -279,5 +280,54 @@ func TestGumbelNormingConstantsNormal(t *testing.T) {
 		b := s - (math.Log(ln)+math.Log(4*math.Pi))/(2*s)
 		assert.InDelta(t, b, loc, 0.02, "b_n n=%d", n)
 		assert.InDelta(t, 1, scale*s, 0.1, "a_n n=%d", n)
+	}
+}
+
+// counted wraps a law, reports itself as numerically computed (so the
+// package spares its quantiles) and counts the calls made to it.
+type counted struct {
+	dist.Normal
+	cdf, quant *atomic.Int64
+}
+
+func (c counted) CDF(x float64) float64 { c.cdf.Add(1); return c.Normal.CDF(x) }
+func (c counted) Survival(x float64) float64 {
+	c.cdf.Add(1)
+	return c.Normal.Survival(x)
+}
+func (c counted) Quantile(p float64) float64 { c.quant.Add(1); return c.Normal.Quantile(p) }
+func (c counted) UpperQuantile(q float64) float64 {
+	c.quant.Add(1)
+	return c.Normal.UpperQuantile(q)
+}
+func (c counted) Accuracy() dist.Accuracy {
+	return dist.Accuracy{CDFAbs: 1e-16, SurvivalRel: 1e-15, TailFloor: 1e-300, Method: "closed form, counted"}
+}
+
+// With numerically computed parents, group quantiles start from one parent
+// quantile and refine with CDF calls: the same answers, few parent calls.
+func TestCostlyParentsFewCalls(t *testing.T) {
+	var cdf, quant atomic.Int64
+	plain := hundredGroups()[:60]
+	wrapped := make([]orderstat.Group, len(plain))
+	for i, g := range plain {
+		wrapped[i] = orderstat.Group{Law: counted{Normal: g.Law.(dist.Normal), cdf: &cdf, quant: &quant}, Count: g.Count}
+	}
+	for _, build := range []func([]orderstat.Group) (dist.Law, error){orderstat.MaxOfGroups, orderstat.MinOfGroups} {
+		ref, err := build(plain)
+		require.NoError(t, err)
+		l, err := build(wrapped)
+		require.NoError(t, err)
+		for _, p := range []float64{1e-9, 0.01, 0.5, 0.99} {
+			cdf.Store(0)
+			quant.Store(0)
+			x := l.Quantile(p)
+			assert.LessOrEqual(t, testref.RelErr(x, ref.Quantile(p)), 1e-13, "p=%g", p)
+			assert.LessOrEqual(t, quant.Load(), int64(1), "parent quantile calls, p=%g", p)
+			assert.LessOrEqual(t, cdf.Load(), int64(40*len(plain)), "parent CDF calls, p=%g", p)
+			t.Logf("p=%g: %d parent quantile calls, %d CDF/Survival calls (%d groups)", p, quant.Load(), cdf.Load(), len(plain))
+		}
+		assert.LessOrEqual(t, testref.RelErr(l.Mean(), ref.Mean()), 1e-10)
+		require.NoError(t, disttest.Check(l))
 	}
 }

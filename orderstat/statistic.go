@@ -50,6 +50,7 @@ type core struct {
 	atoms   []dist.Atom
 	pure    bool // all the mass is on atoms
 	hasDens bool
+	costly  bool // some parent is numerical (dist.Estimated): spare its quantiles
 
 	once sync.Once
 	mom  moments
@@ -179,6 +180,9 @@ func build(fn string, in []Group, kd kind, k int64, checkK bool) (dist.Law, erro
 	c.findAtoms()
 	c.hasDens = true
 	for _, g := range gs {
+		if _, ok := g.law.(dist.Estimated); ok {
+			c.costly = true
+		}
 		if g.dens == nil && !g.pureAtomic {
 			c.hasDens = false
 		}
@@ -421,7 +425,12 @@ func (c *core) quantile(p, q float64, upper bool) float64 {
 		}
 		return c.atomFix(x, h)
 	}
-	a, b := c.bracket(p, q)
+	var a, b float64
+	if c.costly && c.kind != kindKth {
+		a, b = c.cheapBracket(p, q)
+	} else {
+		a, b = c.bracket(p, q)
+	}
 	a, b, ha, hb := widen(h, a, b)
 	var x float64
 	switch {
@@ -523,6 +532,40 @@ func (c *core) bracket(p, q float64) (a, b float64) {
 		return minAt(N), minAt(0)
 	}
 	return minAt(N), maxAt(N)
+}
+
+// cheapBracket returns a starting interval from one parent quantile: the
+// quantile of the extreme of its own n_i copies for the group whose median
+// is most extreme — a bound on the answer (lower for the maximum, upper for
+// the minimum) — and a step of the distance to that group's median. widen
+// then grows it with evaluations of the law (one parent CDF call per group
+// each) instead of one parent quantile per group, which is cheaper when the
+// parents' quantiles are themselves numerical inversions.
+func (c *core) cheapBracket(p, q float64) (a, b float64) {
+	best := 0
+	for i := range c.groups {
+		m, mb := c.groups[i].median, c.groups[best].median
+		if (c.kind == kindMax && m > mb) || (c.kind == kindMin && m < mb) {
+			best = i
+		}
+	}
+	g := &c.groups[best]
+	var x float64
+	if c.kind == kindMax {
+		l := log1mp(q, p) / g.nf
+		x = g.levelQuantile(math.Exp(l), -math.Expm1(l))
+	} else {
+		l := log1mp(p, q) / g.nf
+		x = g.levelQuantile(-math.Expm1(l), math.Exp(l))
+	}
+	step := math.Max(math.Abs(x-g.median), 1e-6*math.Abs(x)+1e-300)
+	if !finite(x) {
+		return x, x
+	}
+	if c.kind == kindMax {
+		return x, x + step
+	}
+	return x - step, x
 }
 
 // widen makes [a, b] finite and checks it, stepping outwards from a finite

@@ -49,6 +49,9 @@ func conformanceCases() []lawCase {
 		{"kth of groups", func() (dist.Law, error) {
 			return orderstat.KthOfGroups([]orderstat.Group{{Law: nrm, Count: 30}, {Law: nrm2, Count: 20}}, 7)
 		}},
+		{"kth of groups, middle rank", func() (dist.Law, error) {
+			return orderstat.KthOfGroups([]orderstat.Group{{Law: nrm, Count: 100}, {Law: nrm2, Count: 150}, {Law: ex, Count: 50}}, 150)
+		}},
 		{"kth of groups with atoms", func() (dist.Law, error) {
 			return orderstat.KthOfGroups([]orderstat.Group{{Law: disc, Count: 3}, {Law: ex, Count: 4}}, 2)
 		}},

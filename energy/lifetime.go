@@ -240,12 +240,15 @@ func (l Lifetime) kQuantile(p float64, upper bool) int64 {
 }
 
 // anchors returns the two cached k (as M = k) whose probits z(k) lie
-// closest to zt from below and from above, with their probits; NaN when the
-// cache holds no such pair.
+// closest to zt from below and from above, or else the two nearest to zt,
+// with their probits; NaN when the cache holds fewer than two usable points.
 func (l Lifetime) anchors(zt float64) (k0, k1, z0, z1 float64) {
 	std := dist.MustNormal(0, 1)
 	below, above := math.Inf(-1), math.Inf(1)
 	k0, k1 = math.NaN(), math.NaN()
+	// Failing a bracketing pair, the two points nearest to zt.
+	n0, n1, d0, d1 := math.NaN(), math.NaN(), math.Inf(1), math.Inf(1)
+	var y0, y1 float64
 	f := l.ev
 	f.mu.Lock()
 	defer f.mu.Unlock()
@@ -259,17 +262,28 @@ func (l Lifetime) anchors(zt float64) (k0, k1, z0, z1 float64) {
 		if math.IsInf(z, 0) || math.IsNaN(z) {
 			continue
 		}
+		kk := float64(k - 1)
 		if z <= zt && z > below {
-			below, k0 = z, float64(k-1)
+			below, k0 = z, kk
 		}
 		if z > zt && z < above {
-			above, k1 = z, float64(k-1)
+			above, k1 = z, kk
+		}
+		switch d := math.Abs(z - zt); {
+		case d < d0:
+			n1, d1, y1 = n0, d0, y0
+			n0, d0, y0 = kk, d, z
+		case d < d1:
+			n1, d1, y1 = kk, d, z
 		}
 	}
-	if math.IsNaN(k0) || math.IsNaN(k1) {
-		return math.NaN(), math.NaN(), 0, 0
+	if !math.IsNaN(k0) && !math.IsNaN(k1) {
+		return k0, k1, below, above
 	}
-	return k0, k1, below, above
+	if !math.IsNaN(n1) && y0 != y1 {
+		return n1, n0, y1, y0
+	}
+	return math.NaN(), math.NaN(), 0, 0
 }
 
 // secantK returns a k near the solution of z(k) = zt, where z(k) is the

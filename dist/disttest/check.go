@@ -266,6 +266,21 @@ func sampleAtoms(atoms []dist.Atom) []dist.Atom {
 // grids: from 1e-300 into the bulk. Mirrored through UpperQuantile.
 var tailLevels = [...]float64{1e-300, 1e-100, 1e-30, 1e-16, 1e-12, 1e-9, 1e-6, 1e-4, 1e-3, 0.01, 0.025, 0.05, 0.1, 0.2, 0.25, 0.3, 0.4, 0.5}
 
+// levels returns the tailLevels at or above the law's tail floor (all of
+// them unless a floor is set by WithSurvivalTolerance or reported by an
+// Estimated law): below its floor a numerically computed law's tail is
+// not accurate, so its quantiles there can be checked only trivially, and
+// they are often the slowest to compute.
+func (c *checker) levels() []float64 {
+	out := make([]float64, 0, len(tailLevels))
+	for _, p := range tailLevels {
+		if p >= c.cfg.tailFloor || p >= 0.5 {
+			out = append(out, p)
+		}
+	}
+	return out
+}
+
 // buildGrid returns the sorted, distinct, finite points at which CDF and
 // Survival are examined: quantiles at tailLevels from both ends, the
 // midpoints between them, the finite support ends and their neighbours,
@@ -274,7 +289,7 @@ var tailLevels = [...]float64{1e-300, 1e-100, 1e-30, 1e-16, 1e-12, 1e-9, 1e-6, 1
 func (c *checker) buildGrid() []float64 {
 	var pts []float64
 	var qs []float64
-	for _, p := range tailLevels {
+	for _, p := range c.levels() {
 		qs = append(qs, c.quantile(p), c.upperQuantile(p))
 	}
 	qs = sortedFinite(qs)

@@ -78,11 +78,15 @@
 //     1990). The seed is fixed, so the result is reproducible; the level
 //     makes a spurious failure for a correct law a one-in-a-million event
 //     for any seed, while a sampler off by a few per cent is caught.
-//   - concurrency: CDF, Survival, Quantile, UpperQuantile and Rand called
-//     from four goroutines at once give the serial results.
+//   - concurrency: CDF, Survival, Quantile and Rand called from three
+//     goroutines at once give the serial results.
 //
 // A method that panics is reported as a failure of the check that called
 // it; the remaining checks still run.
+//
+// Levels. Quantiles are taken at levels down to 1e-300 from both ends,
+// except below a tail floor (WithSurvivalTolerance, or an Estimated law's
+// TailFloor), where a numerically computed law is not accurate.
 //
 // Tolerances. Exact laws are held to rounding error: monotonicity is
 // strict, CDF + Survival = 1 to 1e-12, quantile round trips to a few units

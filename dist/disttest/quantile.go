@@ -9,11 +9,11 @@ import (
 )
 
 // quantileLevels returns the probabilities at which Quantile and
-// UpperQuantile are inverted: tailLevels, their complements, and for every
+// UpperQuantile are inverted: levels(), their complements, and for every
 // examined atom the cumulative masses at both ends of its jump.
 func (c *checker) quantileLevels(upper bool) []float64 {
 	var ps []float64
-	for _, p := range tailLevels {
+	for _, p := range c.levels() {
 		ps = append(ps, p)
 		if p >= 1e-16 {
 			ps = append(ps, 1-p)

@@ -111,8 +111,8 @@ func (c *checker) checkBins(xs []float64) {
 	}
 }
 
-// checkConcurrency evaluates CDF, Survival, Quantile, UpperQuantile and Rand
-// from four goroutines at once and requires the serial results: the law
+// checkConcurrency evaluates CDF, Survival, Quantile and Rand from three
+// goroutines at once and requires the serial results: the law
 // holds no mutable state that calls could disturb (run tests with -race to
 // also catch unsynchronised access).
 func (c *checker) checkConcurrency() {
@@ -131,7 +131,7 @@ func (c *checker) checkConcurrency() {
 		for _, x := range xs {
 			out = append(out, l.CDF(x), l.Survival(x))
 		}
-		out = append(out, l.Quantile(0.1), l.UpperQuantile(1e-9)) // few: they may be slow
+		out = append(out, l.Quantile(0.5)) // one: it may be slow
 		r := c.newSource()
 		for i := 0; i < 16; i++ {
 			out = append(out, l.Rand(r))
@@ -139,7 +139,7 @@ func (c *checker) checkConcurrency() {
 		return out, ""
 	}
 	want, _ := eval()
-	const workers = 4
+	const workers = 3
 	results := make([][]float64, workers)
 	panics := make([]string, workers)
 	var wg sync.WaitGroup

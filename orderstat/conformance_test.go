@@ -24,6 +24,8 @@ func conformanceCases() []lawCase {
 	ex := dist.MustExponential(2)
 	un := dist.MustUniform(1, 3)
 	disc := dist.MustDiscrete([]float64{1, 2, 4, 7}, []float64{0.1, 0.4, 0.3, 0.2})
+	ln := dist.MustLogNormal(0, 1)
+	g5 := dist.MustGamma(0.5, 1) // density infinite at 0
 	mixed, _ := dist.Mixture([]float64{0.3, 0.7}, []dist.Law{dist.MustPointMass(1), dist.MustExponential(1)})
 	return []lawCase{
 		{"max normal n=1", func() (dist.Law, error) { return orderstat.Max(nrm, 1) }},
@@ -40,6 +42,12 @@ func conformanceCases() []lawCase {
 		{"kth discrete 3 of 7", func() (dist.Law, error) { return orderstat.Kth(disc, 3, 7) }},
 		{"min mixed n=3", func() (dist.Law, error) { return orderstat.Min(mixed, 3) }},
 		{"max mixed n=4", func() (dist.Law, error) { return orderstat.Max(mixed, 4) }},
+		{"max lognormal n=1e6", func() (dist.Law, error) { return orderstat.Max(ln, 1_000_000) }},
+		{"min gamma(0.5) n=100", func() (dist.Law, error) { return orderstat.Min(g5, 100) }},
+		{"kth lognormal 50 of 100", func() (dist.Law, error) { return orderstat.Kth(ln, 50, 100) }},
+		{"min of gamma and lognormal groups", func() (dist.Law, error) {
+			return orderstat.MinOfGroups([]orderstat.Group{{Law: g5, Count: 10}, {Law: ln, Count: 20}})
+		}},
 		{"max of groups", func() (dist.Law, error) {
 			return orderstat.MaxOfGroups([]orderstat.Group{{Law: nrm, Count: 100}, {Law: nrm2, Count: 10}, {Law: ex, Count: 1000}})
 		}},

@@ -2,7 +2,9 @@ package energy_test
 
 import (
 	"errors"
+	"fmt"
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -113,4 +115,36 @@ func TestFleetBadInput(t *testing.T) {
 	assert.True(t, errors.Is(err, energy.ErrParam))
 	_, err = f.FractionFailed(0)
 	assert.True(t, errors.Is(err, energy.ErrParam))
+}
+
+// TestFleetAgainstSimulation: the first-failure law of three small groups
+// whose lifetimes come from the numerical K-fold path (demoCycle, jittered
+// period, about 150 to 300 cycles per cell) against simulated fleets, each
+// node's cycles walked one by one (Lifetime.Simulate); KS at level 1e-6 on
+// 100 sample quantiles.
+func TestFleetAgainstSimulation(t *testing.T) {
+	c := demoCycle(t, dist.MustUniform(880, 920))
+	var gs []energy.FleetGroup
+	for i, cycles := range []float64{150, 200, 300} {
+		b := energy.MustBattery(energy.BatterySpec{Name: fmt.Sprint(i), Energy: cycles * c.MeanEnergy(), NominalVoltage: 3.3, UsableFraction: 1})
+		gs = append(gs, energy.FleetGroup{Cycle: c, Battery: b, Count: int64(4 - i)})
+	}
+	f, err := energy.NewFleet(gs)
+	require.NoError(t, err)
+	ff, err := f.FirstFailure()
+	require.NoError(t, err)
+	r := rand.New(rand.NewPCG(51, 52))
+	const n = 3000
+	xs := make([]float64, n)
+	for i := range xs {
+		first := math.Inf(1)
+		for g := range f.Groups() {
+			l, _ := f.Lifetime(g)
+			for range gs[g].Count {
+				first = math.Min(first, l.Simulate(r))
+			}
+		}
+		xs[i] = first
+	}
+	assert.Less(t, gridKS(xs, ff.CDF, 100), testref.KSCritical(n, 1e-6))
 }

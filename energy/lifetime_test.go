@@ -91,13 +91,23 @@ func TestLifetimePoisson(t *testing.T) {
 		assert.InDelta(t, m*60, l.Mean(), 1e-6*m*60+1e-9, "λC=%g mean = λC periods", m)
 		assert.InDelta(t, m*3600, l.Variance(), 1e-4*m*3600, "λC=%g variance = λC periods²", m)
 		// Quantiles in cycles are Poisson quantiles.
-		for _, p := range []float64{0.01, 0.5, 0.99} {
+		for _, q := range []float64{1e-12, 1e-6, 0.01, 0.3} {
+			// UpperQuantile(q) is the smallest k with P(M > k) <= q.
+			k := int64(l.UpperQuantile(q) / 60)
+			above, _ := poissonTails(m, k+1) // P(M > k)
+			assert.LessOrEqual(t, above, q*(1+1e-6), "λC=%g q=%g", m, q)
+			if k > 0 {
+				prev, _ := poissonTails(m, k) // P(M > k-1)
+				assert.Greater(t, prev, q*(1-1e-6), "λC=%g q=%g", m, q)
+			}
+		}
+		for _, p := range []float64{1e-12, 1e-6, 0.01, 0.5, 0.99} {
 			k := int64(l.Quantile(p) / 60)
 			_, le := poissonTails(m, k+1) // P(M <= k)
-			assert.GreaterOrEqual(t, le, p-1e-9, "λC=%g p=%g", m, p)
+			assert.GreaterOrEqual(t, le, p*(1-2e-5)-1e-12, "λC=%g p=%g", m, p)
 			if k > 0 {
 				_, lt := poissonTails(m, k) // P(M < k)
-				assert.Less(t, lt, p+1e-9, "λC=%g p=%g", m, p)
+				assert.Less(t, lt, p*(1+2e-5)+1e-12, "λC=%g p=%g", m, p)
 			}
 		}
 	}

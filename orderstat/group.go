@@ -67,11 +67,43 @@ func (g *group) eval(x float64) point {
 	return point{f: 1 - s, s: s}
 }
 
-// evalLeft returns P(X < x) and P(X >= x), as the values just below x (the
-// next float64 down): exact for atoms of a discrete law, and off by at most
-// the continuous mass in one unit in the last place otherwise.
+// evalLeft returns P(X < x) and P(X >= x) from the law's atoms: where the
+// law has no atom at x they equal the values at x; where it has one of mass
+// m, S(x-) = S(x) + m (a sum, exact) or F(x-) = F(x) - m when that keeps at
+// least half of F(x). Only where the difference would cancel are the values
+// taken just below x (the next float64 down), which is exact for a discrete
+// law and off by the continuous mass in one unit in the last place
+// otherwise.
 func (g *group) evalLeft(x float64) point {
+	p := g.eval(x)
+	m := g.atomAt(x)
+	if m == 0 {
+		return p
+	}
+	if p.direct {
+		if fl := p.f - m; fl >= 0.5*p.f {
+			return point{f: fl, s: 1 - fl, direct: true}
+		}
+	} else if sl := p.s + m; sl <= 0.5 {
+		return point{f: 1 - sl, s: sl}
+	}
 	return g.eval(math.Nextafter(x, math.Inf(-1)))
+}
+
+// atomAt returns the mass of the law's atom at x (matched within
+// dist.AtomMergeTolerance), or 0.
+func (g *group) atomAt(x float64) float64 {
+	i := sort.Search(len(g.atoms), func(i int) bool { return g.atoms[i].Value >= x*(1-dist.AtomMergeTolerance) || g.atoms[i].Value >= x })
+	for ; i < len(g.atoms); i++ {
+		v := g.atoms[i].Value
+		if math.Abs(v-x) <= dist.AtomMergeTolerance*math.Max(math.Abs(v), math.Abs(x)) {
+			return g.atoms[i].Mass
+		}
+		if v > x {
+			break
+		}
+	}
+	return 0
 }
 
 // levelQuantile returns inf{x : F(x) >= u} = inf{x : S(x) <= v} for u + v = 1,

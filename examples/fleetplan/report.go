@@ -11,6 +11,8 @@ import (
 func joules(x float64) string {
 	a := math.Abs(x)
 	switch {
+	case a >= 1e4:
+		return fmt.Sprintf("%.3g kJ", x/1e3)
 	case a >= 1:
 		return fmt.Sprintf("%.3g J", x)
 	case a >= 1e-3:
@@ -62,7 +64,9 @@ func pct(x float64) string {
 	switch {
 	case math.IsNaN(x):
 		return "–"
-	case x != 0 && math.Abs(x) < 0.001:
+	case math.Abs(x) < 5e-7:
+		return "0.0 %"
+	case math.Abs(x) < 0.001:
 		return fmt.Sprintf("%.2g %%", 100*x)
 	}
 	return fmt.Sprintf("%.1f %%", 100*x)
@@ -103,7 +107,11 @@ func writeReport(w io.Writer, p *Plan) {
 			kind = fmt.Sprintf("confirmed, up to %d transmissions", g.MaxTransmission)
 		}
 		row("nodes", "%d around %q, %.0f–%.0f m", g.Nodes, g.Gateway, g.InnerRadiusM, g.OuterRadiusM)
-		row("traffic", "%d-byte uplinks every %.0f s ± %.0f s, %s", g.PayloadBytes, g.IntervalS, g.JitterS, kind)
+		every := fmt.Sprintf("every %.0f s ± %.0f s", g.IntervalS, g.JitterS)
+		if g.JitterS == 0 {
+			every = fmt.Sprintf("every %.0f s on a fixed schedule", g.IntervalS)
+		}
+		row("traffic", "%d-byte uplinks %s, %s", g.PayloadBytes, every, kind)
 		e := g.EnergyPerCycle
 		row("energy per cycle", "mean %s, sd %s", joules(e.Mean), joules(e.SD))
 		more("90 %% of cycles in %s, 99 %% in %s", joulePair(e.In90), joulePair(e.In99))

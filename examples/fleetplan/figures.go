@@ -97,6 +97,9 @@ func energyFigure(p *Plan) (*plot.Plot, error) {
 	hi := l.maxEnergy.UpperQuantile(1e-6)
 	lo = math.Min(lo, l.fleetEnergy.Quantile(1e-6))
 	span := hi - lo
+	if !(span > 1e-6*hi) { // a (nearly) constant energy: show 10 % around it
+		span = 0.1 * hi
+	}
 	lo, hi = math.Max(0, lo-0.03*span), hi+0.03*span
 	const bins = 240
 	edges := make([]float64, bins+1)

@@ -149,3 +149,34 @@ func TestFigures(t *testing.T) {
 		assert.Contains(t, string(svg), label)
 	}
 }
+
+// A degenerate but valid site: one node that always sends at DR5 and the
+// lowest power, is never answered and keeps a fixed schedule, so its
+// per-cycle energy is a single value. The plan still prints, with no NaN.
+func TestConstantEnergyScenario(t *testing.T) {
+	var m map[string]any
+	require.NoError(t, json.Unmarshal(scenario.DemoJSON(), &m))
+	groups := m["groups"].([]any)
+	g := groups[0].(map[string]any)
+	g["nodes"] = 1
+	g["inner_radius_m"], g["outer_radius_m"] = 10, 11
+	g["answer_share"] = 0
+	m["groups"] = []any{g}
+	m["gateways"] = m["gateways"].([]any)[:1]
+	m["radio_environment"].(map[string]any)["shadowing_sd_db"] = 0
+	data, err := json.Marshal(m)
+	require.NoError(t, err)
+	path := filepath.Join(t.TempDir(), "one.json")
+	require.NoError(t, os.WriteFile(path, data, 0o600))
+	code, out, errs := runArgs(t, "-scenario", path, "-quiet", "-figures", filepath.Join(t.TempDir(), "figs"))
+	require.Equal(t, 0, code, errs)
+	assert.NotContains(t, out, "NaN")
+	assert.Contains(t, out, "largest of 1")
+	code, js, errs := runArgs(t, "-scenario", path, "-quiet", "-json")
+	require.Equal(t, 0, code, errs)
+	var p Plan
+	require.NoError(t, json.Unmarshal([]byte(js), &p))
+	require.Len(t, p.Groups, 1)
+	assert.Zero(t, p.Groups[0].EnergyPerCycle.SD)
+	assert.Nil(t, p.Groups[0].Breakdown[0].ShareVariance)
+}

@@ -94,7 +94,7 @@ type StatePlan struct {
 	RunsPerCycle  float64 `json:"runs_per_cycle"`
 	MeanEnergyJ   float64 `json:"mean_energy_j"`
 	ShareMean     float64 `json:"share_of_mean"`
-	ShareVariance float64 `json:"share_of_variance"`
+	ShareVariance *float64 `json:"share_of_variance"` // null when the energy per cycle does not vary
 }
 
 // DRPlan is the data-rate mix and what happens to uplinks at one data rate.
@@ -254,6 +254,7 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 	var energyGroups []orderstat.Group
 	lifeAcc := 0.0
 	for gi, g := range m.Groups {
+		say("  group %q: energy and lifetime laws, intervals, first failure", g.Group.Name)
 		gp, eLaw, lLaw, acc, err := groupPlan(s, g, sets[gi], b)
 		if err != nil {
 			return nil, fmt.Errorf("group %q: %w", g.Group.Name, err)
@@ -332,7 +333,12 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, sets []setting, b ene
 		if r.Floor {
 			name = "sleep (floor)"
 		}
-		gp.Breakdown = append(gp.Breakdown, StatePlan{State: name, RunsPerCycle: r.Runs, MeanEnergyJ: r.MeanAboveFloor, ShareMean: r.MeanShare, ShareVariance: r.VarianceShare})
+		var vs *float64
+		if !math.IsNaN(r.VarianceShare) {
+			v := r.VarianceShare
+			vs = &v
+		}
+		gp.Breakdown = append(gp.Breakdown, StatePlan{State: name, RunsPerCycle: r.Runs, MeanEnergyJ: r.MeanAboveFloor, ShareMean: r.MeanShare, ShareVariance: vs})
 	}
 
 	for _, d := range g.PerDR {

@@ -119,7 +119,11 @@ func writeReport(w io.Writer, p *Plan) {
 		row("average current", "%s over the group; 90 %% of nodes between %s and %s", amps(g.Current.Mean), amps(g.Current.In90[0]), amps(g.Current.In90[1]))
 		row("where it goes", "%-26s %8s %10s %9s %12s", "state", "runs", "mean", "of mean", "of variance")
 		for _, s := range g.Breakdown {
-			more("%-26s %8.3g %10s %9s %12s", s.State, s.RunsPerCycle, joules(s.MeanEnergyJ), pct(s.ShareMean), pct(s.ShareVariance))
+			vs := math.NaN()
+			if s.ShareVariance != nil {
+				vs = *s.ShareVariance
+			}
+			more("%-26s %8.3g %10s %9s %12s", s.State, s.RunsPerCycle, joules(s.MeanEnergyJ), pct(s.ShareMean), pct(vs))
 		}
 		row("data rates", "%-18s %7s %9s %8s %9s %8s %8s %8s", "", "nodes", "airtime", "load", "uplink ok", "tx/rep", "dl RX1", "dl RX2")
 		for _, d := range g.DataRates {

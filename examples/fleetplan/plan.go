@@ -90,10 +90,10 @@ type CurrentPlan struct {
 
 // StatePlan is one row of the per-state breakdown.
 type StatePlan struct {
-	State         string  `json:"state"`
-	RunsPerCycle  float64 `json:"runs_per_cycle"`
-	MeanEnergyJ   float64 `json:"mean_energy_j"`
-	ShareMean     float64 `json:"share_of_mean"`
+	State         string   `json:"state"`
+	RunsPerCycle  float64  `json:"runs_per_cycle"`
+	MeanEnergyJ   float64  `json:"mean_energy_j"`
+	ShareMean     float64  `json:"share_of_mean"`
 	ShareVariance *float64 `json:"share_of_variance"` // null when the energy per cycle does not vary
 }
 

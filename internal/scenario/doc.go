@@ -79,6 +79,16 @@
 // not overlap (the check enforces it). Every current except the sleep current
 // must be at least the sleep current.
 //
+// # Speed
+//
+// With a fixed schedule (jitter 0), work of fixed length (spread 0) and a
+// wait current equal to the sleep current, every per-cycle law is finite
+// discrete and exact, and the plan takes well under a second. A jitter, a
+// spread or a wait current above the floor makes the laws partly continuous:
+// package dist then computes them numerically, at a stated accuracy, and the
+// plan takes from seconds to minutes (a confirmed group whose retry gaps
+// draw more than the floor is the slowest).
+//
 // # Errors
 //
 // Parse reports every problem it finds, each as a *FieldError that names the

@@ -10,7 +10,7 @@ import (
 // purely discrete cycle law (every state constant or finite discrete and the
 // period fixed), for which package dist lists the k-fold atoms exactly but
 // only up to dist.MaxSumAtoms of them. It is exact while the k-fold law surely fits
-// (at most C(k+d−1, d−1) <= 4096 atoms for d atoms), exact for d = 2 (a
+// (at most C(k+d−1, d−1) <= 1024 atoms for d atoms), exact for d = 2 (a
 // binomial count, summed term by term) and otherwise the second-order
 // saddlepoint approximation of Lugannani & Rice (1980) with the correction
 // terms of Daniels (1987, Int. Statist. Rev. 55:37–48, eq. 4.6; Butler,
@@ -40,14 +40,14 @@ func newAtomicSums(d dist.Discrete) atomicSums {
 
 // exactFits reports whether package dist's exact k-fold sum (repeated
 // squaring, whose convolutions are limited to 16·2^20 atom pairs) surely
-// fits: at most C(k+d−1, d−1) <= 4096 atoms for d atoms.
+// fits cheaply: at most C(k+d−1, d−1) <= 1024 atoms for d atoms.
 func (a atomicSums) exactFits(k int64) bool {
 	d := int64(len(a.v))
 	// C(k+d−1, d−1), stopping once it passes the limit.
 	c := 1.0
 	for i := int64(1); i < d; i++ {
 		c *= float64(k+i) / float64(i)
-		if c > 4096 {
+		if c > 1024 {
 			return false
 		}
 	}
@@ -65,16 +65,16 @@ func (a atomicSums) eval(k int64, x float64) (below, above float64, exact bool) 
 		return 1, 0, true
 	case len(a.v) == 1:
 		return 1, 0, true
-	case a.exactFits(k):
-		l, err := dist.SumIID(a.d, int(k))
-		if err == nil {
-			return l.CDF(x), l.Survival(x), true
-		}
 	case len(a.v) == 2:
 		// S_k = k·v0 + N·(v1 − v0), N ~ Binomial(k, p1).
 		j := math.Floor((x - n*a.v[0]) / (a.v[1] - a.v[0]))
 		b, c := binomialTails(k, int64(j), a.p[1])
 		return b, c, true
+	case a.exactFits(k):
+		l, err := dist.SumIID(a.d, int(k))
+		if err == nil {
+			return l.CDF(x), l.Survival(x), true
+		}
 	}
 	below, above = a.saddle(n, x)
 	return below, above, false

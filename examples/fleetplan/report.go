@@ -125,9 +125,9 @@ func writeReport(w io.Writer, p *Plan) {
 			}
 			more("%-26s %8.3g %10s %9s %12s", s.State, s.RunsPerCycle, joules(s.MeanEnergyJ), pct(s.ShareMean), pct(vs))
 		}
-		row("data rates", "%-18s %7s %9s %8s %9s %8s %8s %8s", "", "nodes", "airtime", "load", "uplink ok", "tx/rep", "dl RX1", "dl RX2")
+		row("data rates", "%-18s %8s %9s %8s %9s %8s %8s %8s", "", "of nodes", "airtime", "load", "uplink ok", "tx/rep", "dl RX1", "dl RX2")
 		for _, d := range g.DataRates {
-			more("%-18s %7s %9s %8.4f %9s %8.3f %8s %8s", d.Name, pct(d.Share), seconds(d.AirtimeS), d.Load, pct(d.UplinkSuccess), d.Frames, pct(d.DownlinkRX1), pct(d.DownlinkRX2))
+			more("%-18s %8s %9s %8.4f %9s %8.3f %8s %8s", d.Name, pct(d.Share), seconds(d.AirtimeS), d.Load, pct(d.UplinkSuccess), d.Frames, pct(d.DownlinkRX1), pct(d.DownlinkRX2))
 		}
 		more("out of reach at the installation margin: %s of placements (left out of the plan)", pct(g.OutOfReach))
 		dc := g.DutyCycle
@@ -194,7 +194,7 @@ func writeReport(w io.Writer, p *Plan) {
 	for _, g := range p.Groups {
 		more("%s alone: %s", g.Name, years(g.ReplaceByRisk))
 	}
-	more("(lifetime laws exact to a CDF error of %.1g)", fl.LifetimeAccuracy)
+	more("(lifetime laws computed to a CDF error bound of %.1g)", fl.LifetimeAccuracy)
 	fmt.Fprintln(w)
 
 	if len(p.Warnings) > 0 {

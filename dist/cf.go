@@ -327,43 +327,18 @@ func (g Gamma) CF(t float64) complex128 {
 // between the parent's quantiles quadTail and 1-quadTail. Stated error
 // 1e-14 relative to M(Re s), plus the mass left out.
 func truncatedTransform(t truncated) (transform, bool) {
+	if m, ok := mixtureOf(t.base); ok {
+		return truncatedMixtureTransform(t, m)
+	}
 	if al, ok := Law(t).(Atomic); ok && len(al.Atoms()) > 0 {
 		return transform{}, false
 	}
 	switch b := t.base.(type) {
 	case Normal:
+		lz := math.Log(t.mass)
 		return transform{
-			logm: func(s complex128) complex128 {
-				th := real(s)
-				mu := b.mu + th*b.sigma*b.sigma
-				logScale := th*b.mu + th*th*b.sigma*b.sigma/2 - math.Log(t.mass)
-				x1, x2 := math.Max(t.lo, mu-9.5*b.sigma), math.Min(t.hi, mu+9.5*b.sigma)
-				if x1 >= x2 {
-					// the tilted mass sits beyond an end: integrate next to that end
-					if mu >= t.hi {
-						x2 = t.hi
-						x1 = math.Max(t.lo, t.hi-40*b.sigma*b.sigma/math.Max(mu-t.hi, b.sigma))
-					} else {
-						x1 = t.lo
-						x2 = math.Min(t.hi, t.lo+40*b.sigma*b.sigma/math.Max(t.lo-mu, b.sigma))
-					}
-				}
-				dens := func(x float64) float64 { return -(x - mu) * (x - mu) / (2 * b.sigma * b.sigma) }
-				// reference log-density at the point of [x1, x2] nearest mu
-				ref := dens(math.Min(x2, math.Max(x1, mu)))
-				var I complex128
-				if tt := imag(s); math.Abs(tt)*b.sigma > 20 {
-					// high frequency: the Gaussian part has decayed below
-					// exp(-200); what is left are the two ends, by repeated
-					// integration by parts (an asymptotic series in
-					// 1/(σt) with Hermite coefficients, error below 1e-15)
-					I = normalEnds(t.lo, t.hi, mu, b.sigma, tt, ref)
-				} else {
-					I = oscQuad(x1, x2, tt, 2*b.sigma, func(x float64) float64 { return math.Exp(dens(x) - ref) })
-				}
-				return cmplx.Log(I) + complex(logScale+ref-math.Log(b.sigma*math.Sqrt(2*math.Pi)), 0)
-			},
-			lo: math.Inf(-1), hi: math.Inf(1), err: 1e-14 + 2*quadTail,
+			logm: func(s complex128) complex128 { return truncNormalLogM(s, b.mu, b.sigma, t.lo, t.hi, lz) },
+			lo:   math.Inf(-1), hi: math.Inf(1), err: 1e-13,
 		}, true
 	case Exponential:
 		return truncGammaTransform(t, 1, b.rate), true
@@ -384,6 +359,53 @@ func truncatedTransform(t truncated) (transform, bool) {
 		}, true
 	}
 	return transform{}, false
+}
+
+// mixtureOf returns l as a mixture, if it is one.
+func mixtureOf(l Law) (mixture, bool) {
+	switch b := l.(type) {
+	case mixture:
+		return b, true
+	case mixtureDensity:
+		return b.mixture, true
+	}
+	return mixture{}, false
+}
+
+// truncatedMixtureTransform: a mixture Σ w_i·P_i conditioned on [lo, hi] is
+// the mixture of the conditioned components with weights
+// w_i·P_i([lo, hi])/P([lo, hi]) (components with no mass there dropped), so
+// its transform is that mixture's: atoms stay exact, continuous components
+// use their own (closed-form or quadrature) truncated transforms.
+func truncatedMixtureTransform(t truncated, m mixture) (transform, bool) {
+	var ws []float64
+	var ls []Law
+	for i, c := range m.laws {
+		tc, err := NewTruncated(c, t.lo, t.hi)
+		if err != nil {
+			continue // no mass in [lo, hi]
+		}
+		am := atomMass(c, t.lo)
+		p := c.Survival(t.lo) + am - c.Survival(t.hi) // P(lo <= X <= hi), upper tails
+		if c.Survival(t.lo)+am > 0.5 {
+			p = c.CDF(t.hi) - c.CDF(t.lo) + am // lower tails
+		}
+		if !(p > 0) {
+			continue
+		}
+		ws, ls = append(ws, m.weights[i]*p), append(ls, tc)
+	}
+	if len(ls) == 0 {
+		return transform{}, false
+	}
+	total := 0.0
+	for _, w := range ws {
+		total += w
+	}
+	for i := range ws {
+		ws[i] /= total
+	}
+	return mixtureTransform(mixture{weights: ws, laws: ls})
 }
 
 // truncGammaTransform: exp(θx)·x^(k-1)·exp(-λx) is a gamma density with rate

@@ -113,6 +113,9 @@ func discreteFromAtoms(atoms []Atom) Discrete {
 		s += d.probs[i]
 		d.below[i] = math.Min(s, 1)
 	}
+	if n > 0 {
+		d.below[n-1] = 1 // the masses are normalised: no rounding short of 1 at the top
+	}
 	s = 0
 	for i := n - 1; i >= 0; i-- {
 		d.above[i] = math.Min(s, 1)

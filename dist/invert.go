@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
+	"sync"
 )
 
 // The inversion engine. A numerically computed law is held as
@@ -64,7 +65,10 @@ type numLaw struct {
 	a, b           float64 // centred bulk window
 	L, h           float64
 	pr, pi         []float64 // Mc(i·k·h)/k, k = 1..N
-	acc            Accuracy
+	accBase        float64   // CDF error of the bulk series
+	extraErr       float64
+	accOnce        *sync.Once
+	acc            Accuracy // set by accOnce
 	sample         func(r *rand.Rand) float64
 	parts          []Law // the terms of a Sum, for flattening nested sums
 }
@@ -164,6 +168,16 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	// rounding: 1e-14, the terms' magnitude, and the phase s·c of a window
 	// centred far from 0 (SumIID with large k: c/sd grows as √k)
 	cdfAbs := 2*bulkTail + trunc/math.Pi + 1e-14*(1+math.Abs(l.c)/sd) + 4e-16*absSum + l.tr.err*(math.Log(float64(n))+1) + sp.extraErr
+	l.accBase, l.extraErr = cdfAbs, sp.extraErr
+	l.accOnce = new(sync.Once)
+	return l, nil
+}
+
+// accuracy computes the error estimate (once, on the first call of
+// Accuracy: the tail probes cost several tilted inversions, which a law used
+// only for its values need not pay).
+func (l *numLaw) accuracy() Accuracy {
+	cdfAbs := l.accBase
 	// probe the tilted tails where they take over, and where they are far
 	var probe float64
 	for _, y := range []float64{l.b, l.b + (l.b - l.a), l.a, l.a - (l.b - l.a)} {
@@ -173,7 +187,7 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 		}
 	}
 	cdfAbs += math.Min(1, probe) * tiltSwitch
-	method := fmt.Sprintf("Fourier-series inversion, %d terms", n)
+	method := fmt.Sprintf("Fourier-series inversion, %d terms", len(l.pr))
 	floor := cdfAbs / 1e-6
 	rel := math.Max(1e-6, cdfAbs/tiltSwitch)
 	if l.tr.hi > 0 {
@@ -184,11 +198,10 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	if l.tr.lo < 0 {
 		method += ", tilted lower tail"
 	}
-	if sp.extraErr > 0 && floor < sp.extraErr*1e6 {
-		floor = sp.extraErr * 1e6
+	if l.extraErr > 0 && floor < l.extraErr*1e6 {
+		floor = l.extraErr * 1e6
 	}
-	l.acc = Accuracy{CDFAbs: cdfAbs, SurvivalRel: rel, TailFloor: floor, Method: method}
-	return l, nil
+	return Accuracy{CDFAbs: cdfAbs, SurvivalRel: rel, TailFloor: floor, Method: method}
 }
 
 // contM returns Mc(s)·exp(-s·y - k0), the continuous part's transform at the
@@ -483,7 +496,10 @@ func (l *numLaw) Support() (lo, hi float64) { return l.supLo, l.supHi }
 func (l *numLaw) Rand(r *rand.Rand) float64 { return l.sample(r) }
 
 // Accuracy reports the error estimate of CDF and Survival.
-func (l *numLaw) Accuracy() Accuracy { return l.acc }
+func (l *numLaw) Accuracy() Accuracy {
+	l.accOnce.Do(func() { l.acc = l.accuracy() })
+	return l.acc
+}
 
 // Atoms lists the exact atoms of the law (none when a term is continuous).
 func (l *numLaw) Atoms() []Atom {
@@ -510,7 +526,7 @@ func (l *numLaw) CF(t float64) complex128 {
 func (l *numLaw) transform() transform {
 	tr := l.tr
 	c := complex(l.c, 0)
-	return transform{logm: func(s complex128) complex128 { return tr.logm(s) + s*c }, lo: tr.lo, hi: tr.hi, err: tr.err + l.acc.CDFAbs*0}
+	return transform{logm: func(s complex128) complex128 { return tr.logm(s) + s*c }, lo: tr.lo, hi: tr.hi, err: tr.err}
 }
 
 // String prints the law compactly: its kind, mean, standard deviation and

@@ -170,9 +170,9 @@ func RandomSum(count, term Law) (Law, error) {
 	return newNumLaw(sp)
 }
 
-// prodInf returns n·x with 0·Inf = 0.
+// prodInf returns n·x with 0·Inf = 0 (either way round).
 func prodInf(n, x float64) float64 {
-	if n == 0 {
+	if n == 0 || x == 0 {
 		return 0
 	}
 	return n * x

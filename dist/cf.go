@@ -172,6 +172,8 @@ func transformOf(l Law) (transform, bool) {
 		return mixtureTransform(b.mixture)
 	case *numLaw:
 		return b.transform(), true
+	case hypoExp:
+		return b.transform(), true
 	case shiftMixture:
 		return b.transform()
 	case shiftMixtureDensity:

@@ -71,6 +71,11 @@ func appendFlat(terms []Law, l Law) []Law {
 		return append(terms, b.d, b.c)
 	case shiftMixtureDensity:
 		return append(terms, b.d, b.c)
+	case hypoExp:
+		for _, r := range b.rates {
+			terms = append(terms, Exponential{rate: r})
+		}
+		return terms
 	}
 	return append(terms, l)
 }
@@ -135,6 +140,20 @@ func sumTerms(terms []Law) (Law, error) {
 		cont = append(cont, g)
 	}
 	cont = append(cont, rest...)
+	if len(cont) >= 2 && len(cont) == len(gammaRate) {
+		// only exponentials with distinct rates: the hypoexponential closed form
+		rates := make([]float64, 0, len(cont))
+		for _, c := range cont {
+			if e, ok := c.(Exponential); ok {
+				rates = append(rates, e.rate)
+			}
+		}
+		if len(rates) == len(cont) {
+			if h, ok := newHypoExp(rates); ok {
+				cont = []Law{h}
+			}
+		}
+	}
 	var d Discrete
 	if len(disc) > 0 {
 		atoms := disc[0].Atoms()

@@ -145,14 +145,29 @@ func TestSumIrwinHall(t *testing.T) {
 }
 
 func TestSumHypoexponentialTails(t *testing.T) {
-	// Exp(1) + Exp(3): no closed form in the family, so the inversion path;
-	// oracle the hypoexponential closed form, down to 1e-30.
+	// Exp(1) + Exp(3), and with a point mass and a two-atom law added (the
+	// exact mixture of shifted copies); oracle the two-rate hypoexponential
+	// closed form written out here, down to 1e-30.
 	l, err := dist.Sum(dist.MustExponential(1), dist.MustExponential(3))
 	require.NoError(t, err)
-	xs := append(grid(0.001, 10, 100), 20, 30, 40, 50, 60, 69)
+	xs := append(grid(0.001, 10, 100), 1e-6, 1e-3, 20, 30, 40, 50, 60, 69)
 	wa, wr := checkAccuracy(t, l, xs, func(x float64) float64 { return hypoExpCDF(1, 3, x) },
 		func(x float64) float64 { return hypoExpSurvival(1, 3, x) }, 1e-30)
 	t.Logf("Exp(1)+Exp(3): worst CDF abs %.2e, worst survival rel %.2e down to 1e-30; %+v", wa, wr, l.(dist.Estimated).Accuracy())
+	assert.LessOrEqual(t, wa, testref.TolCDF)
+	assert.LessOrEqual(t, wr, testref.TolTailRel)
+	// lower tail relative to its value: F(x) ≈ a·b·x²/2 for small x
+	assert.InEpsilon(t, hypoExpCDF(1, 3, 1e-6), l.CDF(1e-6), 1e-9)
+	require.NoError(t, disttest.Check(l))
+	d := dist.MustDiscrete([]float64{0, 2}, []float64{0.4, 0.6})
+	l2, err := dist.Sum(d, dist.MustExponential(3), dist.MustPointMass(0.5), dist.MustExponential(1))
+	require.NoError(t, err)
+	surv := func(x float64) float64 { return 0.4*hypoExpSurvival(1, 3, x-0.5) + 0.6*hypoExpSurvival(1, 3, x-2.5) }
+	for _, x := range append(grid(0.3, 12, 50), 40, 60) {
+		assert.InEpsilon(t, surv(x), l2.Survival(x), testref.TolTailRel, "x=%g", x)
+		assert.InDelta(t, 1-surv(x), l2.CDF(x), testref.TolCDF, "x=%g", x)
+	}
+	require.NoError(t, disttest.Check(l2))
 }
 
 func TestSumBernoulliIsBinomial(t *testing.T) {

@@ -1,7 +1,9 @@
 package energy
 
 import (
+	"fmt"
 	"math"
+	"math/rand/v2"
 
 	"github.com/joulelaw/joulelaw/dist"
 )
@@ -191,18 +193,64 @@ func (a atomicSums) upperTerms(n, xb float64, sign float64) (q, corr float64) {
 
 // errorBound returns the error bound reported for the saddlepoint at x:
 // the size of its second-order terms (the smooth part's error left after
-// them is far smaller, O(k⁻²) against O(k⁻¹)) plus the largest atom of S_k
-// when distinct count vectors give distinct sums, the multinomial mode
-// (2πk)^{−(d−1)/2}·(Π p_i)^{−1/2} (local limit theorem), three times over, which bounds the
-// fine structure a smooth formula misses. Commensurate energies merge atoms
-// and can make the fine structure larger than this.
+// them is far smaller, O(k⁻²) against O(k⁻¹)) plus three times the
+// estimated largest atom of S_k (largestAtom), the fine structure a smooth
+// formula cannot follow.
 func (a atomicSums) errorBound(k int64, x float64) float64 {
+	return a.correction(k, x) + math.Min(1, 3*a.largestAtom(k))
+}
+
+// largestAtom estimates the largest atom of S_k. When distinct count vectors
+// give distinct sums it is about the multinomial mode
+// (2πk)^{−(d−1)/2}·(Π p_i)^{−1/2} (local limit theorem). Commensurate
+// energies (LoRa airtimes are whole numbers of symbol quarters, so class A
+// cycle energies often are) merge atoms and make it larger: the largest
+// atoms of the exact k-fold laws at two small k1 < k2 (listed by package
+// dist, merged within its tolerance) give the decay rate m ∝ k^{−r/2}, r
+// taken in [1, d−1], which is extrapolated to k. The larger of the two
+// estimates is returned.
+func (a atomicSums) largestAtom(k int64) float64 {
+	d := len(a.p)
 	lp := 0.0
 	for _, p := range a.p {
 		lp += math.Log(p)
 	}
-	mode := math.Exp(-0.5*float64(len(a.p)-1)*math.Log(2*math.Pi*float64(k)) - 0.5*lp)
-	return a.correction(k, x) + math.Min(1, 3*mode)
+	mode := math.Exp(-0.5*float64(d-1)*math.Log(2*math.Pi*float64(k)) - 0.5*lp)
+	// k2: the largest k with at most 2000 k-fold atoms in the worst case.
+	k2 := int64(1)
+	for {
+		c := 1.0
+		for i := 1; i < d; i++ {
+			c *= float64(k2+1+int64(i)) / float64(i)
+		}
+		if c > 2000 || k2 >= k {
+			break
+		}
+		k2++
+	}
+	k1 := k2 / 2
+	if k1 < 1 || k2 >= k {
+		return mode
+	}
+	maxAtom := func(n int64) float64 {
+		l, err := dist.SumIID(a.d, int(n))
+		if err != nil {
+			return math.NaN()
+		}
+		m := 0.0
+		for _, at := range l.(dist.Atomic).Atoms() {
+			m = math.Max(m, at.Mass)
+		}
+		return m
+	}
+	m1, m2 := maxAtom(k1), maxAtom(k2)
+	if !(m1 > 0 && m2 > 0) {
+		return mode
+	}
+	r := 2 * math.Log(m1/m2) / math.Log(float64(k2)/float64(k1))
+	r = math.Min(math.Max(r, 1), float64(d-1))
+	est := m2 * math.Pow(float64(k)/float64(k2), -r/2)
+	return math.Max(mode, est)
 }
 
 // correction returns the size of the second-order saddlepoint terms at x.
@@ -276,4 +324,68 @@ func stirlerr(x float64) float64 {
 // bd0 returns x·log(x/m) + m − x without cancellation.
 func bd0(x, m float64) float64 {
 	return x*math.Log1p((x-m)/m) - (x - m)
+}
+
+// atomicSumLaw is the law of S_k for a purely discrete cycle law whose k-fold
+// atoms are too many for package dist to list: its CDF and Survival come
+// from atomicSums (exact for two energies, the second-order saddlepoint
+// otherwise, with the error bound it reports), its moments are exact, and
+// Rand adds k draws of the cycle law.
+type atomicSumLaw struct {
+	a     atomicSums
+	k     int64
+	exact bool
+	acc   dist.Accuracy
+}
+
+func newAtomicSumLaw(d dist.Discrete, k int64) atomicSumLaw {
+	a := newAtomicSums(d)
+	l := atomicSumLaw{a: a, k: k, exact: len(a.v) == 2}
+	if l.exact {
+		l.acc = dist.Accuracy{CDFAbs: 1e-13, SurvivalRel: 1e-12, TailFloor: 1e-300,
+			Method: "exact binomial count of the two cycle energies (Loader 2000 terms)"}
+	} else {
+		l.acc = dist.Accuracy{CDFAbs: a.errorBound(k, a.mu*float64(k)),
+			Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) of a k-fold discrete sum; the bound adds the largest k-fold atom for incommensurate energies"}
+	}
+	return l
+}
+
+func (l atomicSumLaw) CDF(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	b, _, _ := l.a.eval(l.k, x)
+	return b
+}
+
+func (l atomicSumLaw) Survival(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	_, s, _ := l.a.eval(l.k, x)
+	return s
+}
+
+func (l atomicSumLaw) Quantile(p float64) float64      { return invertLaw(l, p, false) }
+func (l atomicSumLaw) UpperQuantile(q float64) float64 { return invertLaw(l, q, true) }
+func (l atomicSumLaw) Mean() float64                   { return float64(l.k) * l.a.mu }
+func (l atomicSumLaw) Variance() float64               { return float64(l.k) * l.a.sd * l.a.sd }
+func (l atomicSumLaw) Accuracy() dist.Accuracy         { return l.acc }
+
+func (l atomicSumLaw) Support() (lo, hi float64) {
+	n := float64(l.k)
+	return n * l.a.v[0], n * l.a.v[len(l.a.v)-1]
+}
+
+func (l atomicSumLaw) Rand(r *rand.Rand) float64 {
+	s := 0.0
+	for range l.k {
+		s += l.a.d.Rand(r)
+	}
+	return s
+}
+
+func (l atomicSumLaw) String() string {
+	return fmt.Sprintf("DiscreteSum(k=%d, mean=%.6g, sd=%.4g)", l.k, l.Mean(), math.Sqrt(l.Variance()))
 }

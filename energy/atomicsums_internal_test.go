@@ -83,3 +83,43 @@ func TestBinomialTails(t *testing.T) {
 		assert.InDelta(t, wc, c, 1e-11*wc+1e-300, "%+v", tc)
 	}
 }
+
+// TestSaddlepointCommensurate: energies 1, 2 and 3 (in units of e) put S_k
+// on a lattice whose atoms are far larger than the multinomial mode; the
+// reported bound must still cover the saddlepoint's error against the exact
+// k-fold law, k = 1000, here convolved directly on the lattice (k steps of
+// a three-point probability vector: the pmf on {k, …, 3k}·e).
+func TestSaddlepointCommensurate(t *testing.T) {
+	const e = 0.0137
+	ps := []float64{0.5, 0.3, 0.2}
+	d := dist.MustDiscrete([]float64{e, 2 * e, 3 * e}, ps)
+	a := newAtomicSums(d)
+	const k = 1000
+	pmf := []float64{1} // pmf[j] = P(S = (j + n)·e) after n steps
+	for range k {
+		next := make([]float64, len(pmf)+2)
+		for j, q := range pmf {
+			for i, p := range ps {
+				next[j+i] += q * p
+			}
+		}
+		pmf = next
+	}
+	cdf := func(x float64) float64 { // P(S_k <= x)
+		top := int(math.Floor(x/e+1e-9)) - k
+		s := 0.0
+		for j := 0; j <= top && j < len(pmf); j++ {
+			s += pmf[j]
+		}
+		return s
+	}
+	m, s := a.mu*k, a.sd*math.Sqrt(k)
+	worst := 0.0
+	for z := -3.0; z <= 3; z += 0.1 {
+		x := m + z*s
+		b, _ := a.saddle(k, x)
+		worst = math.Max(worst, math.Abs(b-cdf(x))/a.errorBound(k, x))
+	}
+	t.Logf("largest error / bound: %.3g (largest atom estimate %.3g)", worst, a.largestAtom(k))
+	assert.Less(t, worst, 1.0)
+}

@@ -8,12 +8,20 @@ import (
 )
 
 // Cycles returns the law of the energy (J) of k consecutive cycles: the
-// K-fold sum of the per-cycle law through package dist (exact for finite
-// discrete cycle laws, numerical with its reported accuracy otherwise).
-// k must be >= 1.
+// K-fold sum of the per-cycle law through package dist (numerical with its
+// reported accuracy for continuous or mixed laws). For a purely discrete
+// cycle law it is the exact discrete law while that has few atoms, the
+// exact binomial law for two energies, and otherwise the second-order
+// saddlepoint law with its reported bound (dist.Estimated), as for
+// Lifetime. k must be >= 1.
 func (c Cycle) Cycles(k int64) (dist.Law, error) {
 	if k < 1 {
 		return nil, paramErr("Cycle.Cycles", "k", k, "must be >= 1")
+	}
+	if d, ok := c.energy.(dist.Discrete); ok && d.Len() > 1 {
+		if a := newAtomicSums(d); len(a.v) == 2 || !a.exactFits(k) {
+			return newAtomicSumLaw(d, k), nil
+		}
 	}
 	l, err := sumIID(c.energy, k)
 	if err != nil {

@@ -9,6 +9,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/dist/disttest"
 	"github.com/joulelaw/joulelaw/energy"
 	"github.com/joulelaw/joulelaw/internal/testref"
 )
@@ -90,4 +91,36 @@ func TestPulseCheck(t *testing.T) {
 	w = er.PulseCheck(energy.MustCycle(p, dist.MustPointMass(600), 0))
 	require.Len(t, w, 1)
 	assert.InDelta(t, 0.5/3.6, w[0].Peak, 1e-15)
+}
+
+// TestHorizonDiscrete: day and year laws of a purely discrete cycle (six
+// energies, far too many k-fold atoms to list): exact moments, the
+// conformance checker on the day law, and the day law against summed
+// simulated days (KS at level 1e-6 on 100 sample quantiles, plus the
+// reported bound).
+func TestHorizonDiscrete(t *testing.T) {
+	c := sixEnergyCycle(t)
+	d, err := c.Day()
+	require.NoError(t, err)
+	assert.EqualValues(t, 144, d.Cycles)
+	assert.InDelta(t, 144*c.MeanEnergy(), d.Energy.Mean(), 1e-12*d.Energy.Mean())
+	assert.InDelta(t, 144*c.EnergyVariance(), d.Energy.Variance(), 1e-9*d.Energy.Variance())
+	acc := d.Energy.(dist.Estimated).Accuracy()
+	r := rand.New(rand.NewPCG(61, 62))
+	const n = 5000
+	xs := make([]float64, n)
+	for i := range xs {
+		for range 144 {
+			xs[i] += c.Rand(r)
+		}
+	}
+	assert.Less(t, gridKS(xs, d.Energy.CDF, 100), testref.KSCritical(n, 1e-6)+acc.CDFAbs)
+	y, err := c.Year()
+	require.NoError(t, err)
+	assert.Less(t, y.Energy.(dist.Estimated).Accuracy().CDFAbs, 1e-5)
+	ci, err := c.AverageCurrent(energy.Year, 3.6, 0.95)
+	require.NoError(t, err)
+	assert.Less(t, ci.Lo, ci.Mean)
+	assert.Greater(t, ci.Hi, ci.Mean)
+	require.NoError(t, disttest.Check(d.Energy, disttest.WithSeed(4)))
 }

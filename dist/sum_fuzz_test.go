@@ -1,0 +1,114 @@
+package dist_test
+
+import (
+	"errors"
+	"math"
+	"testing"
+
+	"github.com/joulelaw/joulelaw/dist"
+)
+
+// fuzzTerm builds one small term from a kind byte and two parameters, each
+// folded into a modest range so that the fuzzer explores shapes, not
+// overflow: a two-atom law, a uniform, an exponential, a normal, a gamma or a
+// normal truncated to [0, ∞).
+func fuzzTerm(kind uint8, a, b float64) (dist.Law, error) {
+	fold := func(x, lo, hi float64) float64 {
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return lo
+		}
+		return lo + math.Mod(math.Abs(x), hi-lo)
+	}
+	switch kind % 6 {
+	case 0:
+		p := fold(b, 0.01, 0.99)
+		return dist.NewDiscrete([]float64{fold(a, -5, 5), fold(a, -5, 5) + fold(b, 0.1, 4)}, []float64{p, 1 - p})
+	case 1:
+		lo := fold(a, -5, 5)
+		return dist.NewUniform(lo, lo+fold(b, 0.05, 5))
+	case 2:
+		return dist.NewExponential(fold(a, 0.2, 5))
+	case 3:
+		return dist.NewNormal(fold(a, -5, 5), fold(b, 0.1, 3))
+	case 4:
+		return dist.NewGamma(fold(a, 0.5, 6), fold(b, 0.2, 5))
+	default:
+		n, err := dist.NewNormal(fold(a, -2, 5), fold(b, 0.2, 3))
+		if err != nil {
+			return nil, err
+		}
+		return dist.NewTruncated(n, 0, math.Inf(1))
+	}
+}
+
+// FuzzSum sums up to three random small terms and checks what must hold
+// whatever the terms: no panic; errors wrap ErrParam or ErrMoment; the mean
+// and variance are the sums of the terms' (1e-12 relative); CDF + Survival
+// = 1; the CDF is non-decreasing; and the mass sits where Chebyshev's
+// inequality puts it, P(|X - μ| >= kσ) <= 1/k² (a standard result), so no
+// mass is lost or created by the inversion.
+func FuzzSum(f *testing.F) {
+	f.Add(uint8(0), 1.0, 2.0, uint8(1), 0.0, 1.0, uint8(2), 1.0, 0.0, uint8(3))
+	f.Add(uint8(5), 3.0, 1.5, uint8(4), 2.5, 1.2, uint8(2), 0.8, 0.0, uint8(2))
+	f.Add(uint8(2), 1.0, 0.0, uint8(2), 3.0, 0.0, uint8(0), 0.0, 0.5, uint8(3))
+	f.Add(uint8(1), 0.0, 1.0, uint8(1), 0.0, 1.0, uint8(1), 0.0, 1.0, uint8(3))
+	f.Add(uint8(0), -1.0, 0.3, uint8(0), 2.0, 0.7, uint8(5), 0.0, 0.2, uint8(2))
+	f.Fuzz(func(t *testing.T, k1 uint8, a1, b1 float64, k2 uint8, a2, b2 float64, k3 uint8, a3, b3 float64, n uint8) {
+		specs := []struct {
+			k    uint8
+			a, b float64
+		}{{k1, a1, b1}, {k2, a2, b2}, {k3, a3, b3}}
+		var terms []dist.Law
+		for _, s := range specs[:1+int(n%3)] {
+			l, err := fuzzTerm(s.k, s.a, s.b)
+			if err != nil {
+				if !errors.Is(err, dist.ErrParam) {
+					t.Fatalf("term error does not wrap ErrParam: %v", err)
+				}
+				return
+			}
+			terms = append(terms, l)
+		}
+		l, err := dist.Sum(terms...)
+		if err != nil {
+			if !errors.Is(err, dist.ErrParam) && !errors.Is(err, dist.ErrMoment) {
+				t.Fatalf("Sum error wraps neither sentinel: %v", err)
+			}
+			return
+		}
+		var mean, variance float64
+		for _, tm := range terms {
+			mean += tm.Mean()
+			variance += tm.Variance()
+		}
+		if math.Abs(l.Mean()-mean) > 1e-12*math.Max(1, math.Abs(mean)) {
+			t.Fatalf("mean %v, want %v", l.Mean(), mean)
+		}
+		if math.Abs(l.Variance()-variance) > 1e-12*variance {
+			t.Fatalf("variance %v, want %v", l.Variance(), variance)
+		}
+		sd := math.Sqrt(variance)
+		slack := 1e-9
+		if e, ok := l.(dist.Estimated); ok {
+			slack += e.Accuracy().CDFAbs
+		}
+		prev := 0.0
+		for _, z := range []float64{-10, -4, -2, -1, -0.5, 0, 0.5, 1, 2, 4, 10} {
+			x := mean + z*sd
+			c, s := l.CDF(x), l.Survival(x)
+			if !(c >= 0 && c <= 1 && s >= 0 && s <= 1) || math.Abs(c+s-1) > slack {
+				t.Fatalf("at %v: CDF %v, Survival %v", x, c, s)
+			}
+			if c < prev-slack {
+				t.Fatalf("CDF decreases at %v: %v after %v", x, c, prev)
+			}
+			prev = c
+			if z <= -2 && c > 1/(z*z)+slack {
+				t.Fatalf("CDF(μ%+gσ) = %v exceeds Chebyshev's 1/k² = %v", z, c, 1/(z*z))
+			}
+			if z >= 2 && s > 1/(z*z)+slack {
+				t.Fatalf("Survival(μ%+gσ) = %v exceeds Chebyshev's 1/k² = %v", z, s, 1/(z*z))
+			}
+		}
+	})
+}

@@ -346,7 +346,7 @@ func newAtomicSumLaw(d dist.Discrete, k int64) atomicSumLaw {
 			Method: "exact binomial count of the two cycle energies (Loader 2000 terms)"}
 	} else {
 		l.acc = dist.Accuracy{CDFAbs: a.errorBound(k, a.mu*float64(k)),
-			Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) of a k-fold discrete sum; the bound adds the largest k-fold atom for incommensurate energies"}
+			Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) of a k-fold discrete sum; the bound adds three times the estimated largest atom of S_k"}
 	}
 	return l
 }

@@ -592,7 +592,7 @@ func (l Lifetime) Accuracy() dist.Accuracy {
 		switch {
 		case f.saddle:
 			f.acc = dist.Accuracy{CDFAbs: f.atomic.errorBound(f.med, f.capacity),
-				Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) for a purely discrete cycle law whose k-fold atoms are too many to list; the bound adds the largest k-fold atom for incommensurate energies"}
+				Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) for a purely discrete cycle law whose k-fold atoms are too many to list; the bound adds three times the estimated largest atom of S_k"}
 		case !f.closed && f.atomic == nil:
 			if kl, err := sumIID(f.law, f.med); err == nil {
 				if e, ok := kl.(dist.Estimated); ok {

@@ -67,8 +67,13 @@ func NewFleet(groups []FleetGroup) (Fleet, error) {
 func (f Fleet) Size() int64 { return f.total }
 
 // Lifetime returns the lifetime law of group i (in the order given to
-// NewFleet) and its name.
-func (f Fleet) Lifetime(i int) (Lifetime, string) { return f.lifetimes[i], f.names[i] }
+// NewFleet) and its name; ok is false when i is not in [0, Groups()).
+func (f Fleet) Lifetime(i int) (l Lifetime, name string, ok bool) {
+	if i < 0 || i >= len(f.lifetimes) {
+		return Lifetime{}, "", false
+	}
+	return f.lifetimes[i], f.names[i], true
+}
 
 // Groups returns the number of groups.
 func (f Fleet) Groups() int { return len(f.lifetimes) }

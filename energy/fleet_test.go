@@ -115,6 +115,8 @@ func TestFleetBadInput(t *testing.T) {
 	assert.True(t, errors.Is(err, energy.ErrParam))
 	_, err = f.FractionFailed(0)
 	assert.True(t, errors.Is(err, energy.ErrParam))
+	_, _, ok := f.Lifetime(1)
+	assert.False(t, ok)
 }
 
 // TestFleetAgainstSimulation: the first-failure law of three small groups
@@ -139,7 +141,8 @@ func TestFleetAgainstSimulation(t *testing.T) {
 	for i := range xs {
 		first := math.Inf(1)
 		for g := range f.Groups() {
-			l, _ := f.Lifetime(g)
+			l, _, ok := f.Lifetime(g)
+			require.True(t, ok)
 			for range gs[g].Count {
 				first = math.Min(first, l.Simulate(r))
 			}

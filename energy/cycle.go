@@ -21,7 +21,8 @@ import (
 // active stage; if the active time can exceed the period the model still
 // uses the formula above and OverrunProbability reports P(Σ t_i > T).
 //
-// A Cycle is an immutable value, safe for concurrent use.
+// A Cycle is an immutable value, safe for concurrent use. A zero Cycle is
+// not valid (build one with NewCycle): its laws are nil and Rand returns NaN.
 type Cycle struct {
 	active  Stage
 	period  dist.Law
@@ -147,17 +148,30 @@ func (c Cycle) Active() Stage { return c.active }
 
 // MeanEnergy returns E[E] = P_floor·E[T] + E[Σ (P_i − P_floor)·t_i] (J),
 // exact from the structure.
-func (c Cycle) MeanEnergy() float64 { return c.floor*c.period.Mean() + c.mom.meanX }
+func (c Cycle) MeanEnergy() float64 {
+	if c.period == nil {
+		return math.NaN()
+	}
+	return c.floor*c.period.Mean() + c.mom.meanX
+}
 
 // EnergyVariance returns Var[E] = P_floor²·Var[T] + Var[Σ (P_i − P_floor)·t_i]
 // (J²), exact from the structure.
 func (c Cycle) EnergyVariance() float64 {
+	if c.period == nil {
+		return math.NaN()
+	}
 	return c.floor*c.floor*c.period.Variance() + c.mom.varX
 }
 
 // MeanPower returns the long-run average power E[E]/E[T] (W) (the
 // renewal-reward theorem; Ross, Stochastic Processes, 2nd ed., §3.6).
-func (c Cycle) MeanPower() float64 { return c.MeanEnergy() / c.period.Mean() }
+func (c Cycle) MeanPower() float64 {
+	if c.period == nil {
+		return math.NaN()
+	}
+	return c.MeanEnergy() / c.period.Mean()
+}
 
 // MeanCurrent returns the long-run average current MeanPower()/voltage (A)
 // drawn from a supply at voltage (V); NaN if voltage is not > 0.
@@ -178,6 +192,9 @@ func (c Cycle) OverrunProbability() float64 { return c.overrun }
 // appearance) that the cycle can run.
 func (c Cycle) States() []State {
 	var out []State
+	if c.active == nil {
+		return nil
+	}
 	seen := map[string]bool{}
 	c.active.visit(func(s State) {
 		if !seen[s.name] {
@@ -193,6 +210,9 @@ func (c Cycle) States() []State {
 // configurations, powers and durations. It is the independent Monte Carlo
 // path against which the law is checked.
 func (c Cycle) Rand(r *rand.Rand) float64 {
+	if c.active == nil {
+		return math.NaN()
+	}
 	e, _ := c.active.sample(r, c.floor, nil)
 	return c.floor*c.period.Rand(r) + e
 }
@@ -226,6 +246,9 @@ type Share struct {
 // structure: one row per distinct state name, in order of first appearance,
 // then the floor row.
 func (c Cycle) Breakdown() []Share {
+	if c.period == nil {
+		return nil
+	}
 	mean, vr := c.MeanEnergy(), c.EnergyVariance()
 	out := make([]Share, 0, len(c.mom.parts)+1)
 	for _, p := range c.mom.parts {
@@ -251,6 +274,9 @@ func ratio(a, b float64) float64 {
 
 // String summarises the cycle: mean energy, mean power and the period.
 func (c Cycle) String() string {
+	if c.period == nil {
+		return "Cycle(zero: not built by NewCycle)"
+	}
 	return fmt.Sprintf("Cycle(mean %.6g J per cycle, sd %.4g J, mean power %.6g W, period %v s, floor %.4g W)",
 		c.MeanEnergy(), math.Sqrt(c.EnergyVariance()), c.MeanPower(), c.period, c.floor)
 }

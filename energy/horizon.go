@@ -18,6 +18,9 @@ func (c Cycle) Cycles(k int64) (dist.Law, error) {
 	if k < 1 {
 		return nil, paramErr("Cycle.Cycles", "k", k, "must be >= 1")
 	}
+	if c.energy == nil {
+		return nil, paramErr("Cycle.Cycles", "c", "zero Cycle", "must be built by NewCycle")
+	}
 	if d, ok := c.energy.(dist.Discrete); ok && d.Len() > 1 {
 		if a := newAtomicSums(d); len(a.v) == 2 || !a.exactFits(k) {
 			return newAtomicSumLaw(d, k), nil
@@ -44,6 +47,9 @@ type Horizon struct {
 func (c Cycle) Over(d float64) (Horizon, error) {
 	if !finite(d) || d <= 0 {
 		return Horizon{}, paramErr("Cycle.Over", "d", d, "must be finite and > 0 (s)")
+	}
+	if c.period == nil {
+		return Horizon{}, paramErr("Cycle.Over", "c", "zero Cycle", "must be built by NewCycle")
 	}
 	k := int64(math.Max(1, math.Round(d/c.period.Mean())))
 	l, err := c.Cycles(k)

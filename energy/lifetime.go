@@ -30,7 +30,8 @@ import (
 // Probabilities that Hoeffding's inequality puts below 1e-300 are returned
 // as 0 (an absolute error below 1e-300).
 //
-// Lifetime implements dist.Law in seconds. CDF, Survival, Quantile and
+// A zero Lifetime is not valid (its methods return NaN); build one with
+// NewLifetime. Lifetime implements dist.Law in seconds. CDF, Survival, Quantile and
 // UpperQuantile each cost a few K-fold evaluations, cached (safely for
 // concurrent use) inside the value; Mean and Variance are computed on first
 // use by summing P(M >= k) over the k where it moves from 1 to 0 (see
@@ -74,6 +75,9 @@ type kfold struct {
 // at returns {P(S_k <= C), P(S_k > C)}; NaN, NaN when the K-fold law cannot
 // be computed.
 func (f *kfold) at(k int64) [2]float64 {
+	if f == nil {
+		return [2]float64{math.NaN(), math.NaN()}
+	}
 	if k <= 0 {
 		return [2]float64{1, 0}
 	}
@@ -250,6 +254,9 @@ func (l Lifetime) anchors(zt float64) (k0, k1, z0, z1 float64) {
 	n0, n1, d0, d1 := math.NaN(), math.NaN(), math.Inf(1), math.Inf(1)
 	var y0, y1 float64
 	f := l.ev
+	if f == nil {
+		return math.NaN(), math.NaN(), 0, 0
+	}
 	f.mu.Lock()
 	defer f.mu.Unlock()
 	for k, v := range f.cache {
@@ -390,7 +397,10 @@ func (l Lifetime) Cycles(k int64) (atLeast, fewer float64) {
 // s); 0 for t < 0. NaN for NaN t or when the K-fold law fails.
 func (l Lifetime) CDF(t float64) float64 {
 	switch {
-	case math.IsNaN(t):
+	case math.IsNaN(t) || l.ev == nil:
+		if l.ev == nil {
+			return math.NaN()
+		}
 		return t
 	case t < 0:
 		return 0
@@ -408,7 +418,10 @@ func (l Lifetime) CDF(t float64) float64 {
 // computed directly (t in s); 1 for t < 0.
 func (l Lifetime) Survival(t float64) float64 {
 	switch {
-	case math.IsNaN(t):
+	case math.IsNaN(t) || l.ev == nil:
+		if l.ev == nil {
+			return math.NaN()
+		}
 		return t
 	case t < 0:
 		return 1
@@ -426,7 +439,7 @@ func (l Lifetime) Survival(t float64) float64 {
 // searched over k on the K-fold law; NaN for p outside [0, 1].
 func (l Lifetime) Quantile(p float64) float64 {
 	switch {
-	case !(p >= 0 && p <= 1):
+	case !(p >= 0 && p <= 1) || l.ev == nil:
 		return math.NaN()
 	case p == 0:
 		lo, _ := l.Support()
@@ -444,7 +457,7 @@ func (l Lifetime) Quantile(p float64) float64 {
 // Survival(t) <= q; accurate for tiny q. NaN for q outside [0, 1].
 func (l Lifetime) UpperQuantile(q float64) float64 {
 	switch {
-	case !(q >= 0 && q <= 1):
+	case !(q >= 0 && q <= 1) || l.ev == nil:
 		return math.NaN()
 	case q == 1:
 		lo, _ := l.Support()
@@ -479,6 +492,9 @@ func (l Lifetime) Support() (lo, hi float64) {
 // comparison with step 2h.
 func (l Lifetime) moments() (mean, vari, errMean float64) {
 	f := l.ev
+	if f == nil {
+		return math.NaN(), math.NaN(), math.NaN()
+	}
 	f.once.Do(func() {
 		const eps = 1e-17
 		a := l.kQuantile(eps, false) + 1 // about the first k with P(S_k > C) >= eps
@@ -564,11 +580,15 @@ func (l Lifetime) Rand(r *rand.Rand) float64 {
 	return l.UpperQuantile(1 - u)
 }
 
-// Simulate draws one lifetime (s) from the structure: cycle energies drawn
+// Simulate draws one lifetime (s) from the structure (NaN for a zero
+// Lifetime): cycle energies drawn
 // with Cycle.Rand (plus the self-discharge drain) are added until they
 // exceed the usable energy; it returns the number of complete cycles times
 // T. Its cost is proportional to the number of cycles.
 func (l Lifetime) Simulate(r *rand.Rand) float64 {
+	if l.ev == nil {
+		return math.NaN()
+	}
 	s := 0.0
 	var k int64
 	for {
@@ -588,6 +608,9 @@ func (l Lifetime) Simulate(r *rand.Rand) float64 {
 // which stand for every k.
 func (l Lifetime) Accuracy() dist.Accuracy {
 	f := l.ev
+	if f == nil {
+		return dist.Accuracy{Method: "zero Lifetime: not built by NewLifetime"}
+	}
 	f.accOnce.Do(func() {
 		switch {
 		case f.saddle:

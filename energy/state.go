@@ -129,13 +129,21 @@ func (s State) Current() (current dist.Law, voltage float64, ok bool) {
 }
 
 // MeanEnergy returns E[P·t] = E[P]·E[t] (J).
-func (s State) MeanEnergy() float64 { return s.power.Mean() * s.duration.Mean() }
+func (s State) MeanEnergy() float64 {
+	if s.power == nil {
+		return math.NaN()
+	}
+	return s.power.Mean() * s.duration.Mean()
+}
 
 // Energy returns the law of the state's energy P·t (J). It is exact when the
 // power or the duration is a finite discrete law (a constant included);
 // otherwise it is the numerical product of package dist, whose
 // dist.Estimated accuracy it reports.
 func (s State) Energy() (dist.Law, error) {
+	if s.power == nil {
+		return nil, paramErr("State.Energy", "s", "zero State", "must be built by NewState, NewPowerState or NewFixedState")
+	}
 	l, err := product(s.power, s.duration)
 	if err != nil {
 		return nil, causeErr("State.Energy", fmt.Sprintf("state %q", s.name), s.String(), "energy law", err)

@@ -11,7 +11,9 @@ import (
 //
 //   - Exact when either factor is a finite discrete law (a constant is a
 //     point mass): the mixture of scaled copies, as ScaleByDiscrete.
+//
 //   - Exact for two log-normals: log X + log Y is normal.
+//
 //   - Numerical for two continuous factors on [0, ∞) without atoms:
 //
 //     F(z) = ∫_0^1 F_X(z/Q_Y(u)) du,  S(z) = ∫_0^1 S_X(z/Q_Y(u)) du,

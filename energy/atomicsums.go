@@ -16,7 +16,9 @@ import (
 // binomial count, summed term by term) and otherwise the second-order
 // saddlepoint approximation of Lugannani & Rice (1980) with the correction
 // terms of Daniels (1987, Int. Statist. Rev. 55:37–48, eq. 4.6; Butler,
-// Saddlepoint Approximations with Applications, 2007, §2.3.2):
+// Saddlepoint Approximations with Applications, 2007, §2.3.2; equation and
+// section numbers from memory; the formula is checked numerically in the
+// tests):
 //
 //	P(S_k >= x) ≈ 1 − Φ(w) + φ(w)·{1/u − 1/w + (1/u)(λ4/8 − 5λ3²/24) − λ3/(2u²) − 1/u³ + 1/w³}
 //
@@ -85,7 +87,7 @@ func (a atomicSums) eval(k int64, x float64) (below, above float64, exact bool) 
 // saddle returns the second-order saddlepoint P(S <= x) and P(S > x), each
 // tail from its own side. Within 0.1 sd of the mean, where w and u vanish
 // and the formula cancels, it uses the Edgeworth expansion to second order
-// instead (error O(k^{-3/2}), Feller Vol. II §XVI.4):
+// instead (error O(k^{-3/2}), Feller Vol. II §XVI.4, section from memory):
 //
 //	F ≈ Φ(z) − φ(z)·[λ3/6·He2(z) + λ4/24·He3(z) + λ3²/72·He5(z)]
 func (a atomicSums) saddle(n, x float64) (below, above float64) {

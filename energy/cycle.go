@@ -165,7 +165,7 @@ func (c Cycle) EnergyVariance() float64 {
 }
 
 // MeanPower returns the long-run average power E[E]/E[T] (W) (the
-// renewal-reward theorem; Ross, Stochastic Processes, 2nd ed., §3.6).
+// renewal-reward theorem; Ross, Stochastic Processes, 2nd ed., §3.6, section from memory).
 func (c Cycle) MeanPower() float64 {
 	if c.period == nil {
 		return math.NaN()

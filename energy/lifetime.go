@@ -91,7 +91,7 @@ func (f *kfold) at(k int64) [2]float64 {
 		return [2]float64{math.NaN(), math.NaN()}
 	}
 	// Hoeffding's inequality for a law on [lo, hi] (Hoeffding 1963, J. Amer.
-	// Statist. Assoc. 58:13–30, Thm 2): P(S_k − kμ >= d) <= exp(−2d²/(k(hi−lo)²)),
+	// Statist. Assoc. 58:13–30, Thm 2, from memory): P(S_k − kμ >= d) <= exp(−2d²/(k(hi−lo)²)),
 	// and the same below. Where it puts a tail under 1e-300 the tail is
 	// returned as 0, sparing an inversion far from the lifetime's bulk.
 	if w := f.ehi - f.elo; w > 0 && !math.IsInf(w, 0) {
@@ -664,7 +664,7 @@ func (l Lifetime) String() string {
 
 // RenewalEstimate is the renewal central-limit quick estimate of a lifetime
 // (Cox, Renewal Theory, 1962, §6.3; Ross, Stochastic Processes, 2nd ed.,
-// Theorem 3.3.5): the number of cycles is approximately
+// Theorem 3.3.5; section numbers from memory): the number of cycles is approximately
 //
 //	M ≈ Normal(C/μ, C·σ²/μ³)
 //

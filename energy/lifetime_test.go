@@ -23,7 +23,7 @@ import (
 //	log p_j = −(j·log(j/m) + m − j) − ½·log(2πj) − δ(j)
 //
 // with the Stirling series δ(j) = 1/(12j) − 1/(360j³) + 1/(1260j⁵) − 1/(1680j⁷)
-// (Abramowitz & Stegun 6.1.41), whose terms stay small, so a term near the
+// (Abramowitz & Stegun 6.1.41, from memory), whose terms stay small, so a term near the
 // mode of Poisson(10^6) keeps about 1e-14 relative accuracy (the plain
 // j·log m − m − lgamma(j+1) loses 1e-9 to cancellation).
 func poissonTails(m float64, k int64) (atLeast, fewer float64) {
@@ -68,7 +68,7 @@ func exponentialLifetime(t *testing.T, lambda, c float64) energy.Lifetime {
 // of complete cycles before a capacity C is exhausted is exactly
 // Poisson(λC) (the cycle energies are the gaps of a Poisson process of rate
 // λ on the energy axis; any probability text, e.g. Ross, Stochastic
-// Processes, §2.2). Checked for λC from 1 to 10^6.
+// Processes, §2.2, section from memory). Checked for λC from 1 to 10^6.
 func TestLifetimePoisson(t *testing.T) {
 	for _, m := range []float64{1, 10, 1e3, 1e6} {
 		l := exponentialLifetime(t, 2, m/2)
@@ -198,7 +198,7 @@ func TestLifetimeNumeric(t *testing.T) {
 // TestRenewalEstimate: the renewal central-limit estimate
 // N ≈ Normal(C/μ, C·σ²/μ³) (Cox, Renewal Theory, 1962; Ross, Stochastic
 // Processes) converges to the exact law as C grows, its CDF error like
-// 1/√(C/μ) (Berry–Esseen rate for renewal counts; Feller, Vol. II, §XI):
+// 1/√(C/μ) (Berry–Esseen rate for renewal counts; Feller, Vol. II, §XI, from memory):
 // each hundredfold capacity divides the error by about ten.
 func TestRenewalEstimate(t *testing.T) {
 	var errs []float64
@@ -220,7 +220,7 @@ func TestRenewalEstimate(t *testing.T) {
 // lifetime (about 300 cycles) against walking the cycles one by one from
 // the structure (Simulate), KS at level 1e-6 on a grid of 200 sample
 // quantiles; and the mean against the renewal expansion
-// E[M] = C/μ + (σ² − μ²)/(2μ²) + o(1) (Smith's theorem; Cox 1962, §4.5) for
+// E[M] = C/μ + (σ² − μ²)/(2μ²) + o(1) (Smith's theorem; Cox 1962, §4.5, from memory) for
 // a non-lattice cycle.
 func TestLifetimeAgainstSimulation(t *testing.T) {
 	c := demoCycle(t, dist.MustUniform(880, 920))

@@ -188,9 +188,17 @@ func (m mixtureDensity) Density(x float64) float64 {
 	return s
 }
 
-// mergeAtoms sorts atoms and merges those within AtomMergeTolerance,
-// keeping their masses as given (no renormalisation).
+// mergeAtoms drops atoms without positive mass (masses that underflowed
+// to 0 in a product, say), sorts the rest and merges those within
+// AtomMergeTolerance, keeping their masses as given (no renormalisation).
 func mergeAtoms(atoms []Atom) []Atom {
+	kept := atoms[:0]
+	for _, a := range atoms {
+		if a.Mass > 0 {
+			kept = append(kept, a)
+		}
+	}
+	atoms = kept
 	if len(atoms) == 0 {
 		return nil
 	}
@@ -200,7 +208,7 @@ func mergeAtoms(atoms []Atom) []Atom {
 		last := &out[len(out)-1]
 		if math.Abs(a.Value-last.Value) <= AtomMergeTolerance*math.Max(math.Abs(a.Value), math.Abs(last.Value)) {
 			m := last.Mass + a.Mass
-			last.Value = (last.Value*last.Mass + a.Value*a.Mass) / m
+			last.Value += (a.Value - last.Value) * (a.Mass / m) // stable for tiny masses
 			last.Mass = m
 			continue
 		}

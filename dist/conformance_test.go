@@ -60,6 +60,7 @@ var conformanceLaws = []struct {
 	{"Truncated(Normal(2e-3, 1e-4), [1.9e-3, 2.3e-3])", dist.MustTruncated(dist.MustNormal(2e-3, 1e-4), 1.9e-3, 2.3e-3), nil},
 	{"Truncated(Normal(0, 1), [10, 11])", dist.MustTruncated(dist.MustNormal(0, 1), 10, 11), nil},
 	{"Truncated(Gamma(2, 1), [0.5, 3])", dist.MustTruncated(dist.MustGamma(2, 1), 0.5, 3), nil},
+	{"Truncated(Mixture(atoms, Normal), [1, 4])", dist.MustTruncated(mustLaw(dist.Mixture([]float64{0.3, 0.7}, []dist.Law{dist.MustDiscrete([]float64{1, 2, 3}, []float64{0.2, 0.3, 0.5}), dist.MustNormal(2, 1)})), 1, 4), nil},
 	{"Truncated(Discrete, [2, 5])", dist.MustTruncated(dist.MustDiscrete([]float64{1, 2, 5, 7}, []float64{0.1, 0.2, 0.3, 0.4}), 2, 5), nil},
 
 	// Exact transforms.

@@ -170,6 +170,10 @@ func transformOf(l Law) (transform, bool) {
 		return mixtureTransform(b)
 	case mixtureDensity:
 		return mixtureTransform(b.mixture)
+	case statedMixture:
+		return mixtureTransform(b.mixture)
+	case statedMixtureDensity:
+		return mixtureTransform(b.mixture)
 	case *numLaw:
 		return b.transform(), true
 	case hypoExp:

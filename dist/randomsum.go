@@ -19,7 +19,14 @@ const maxCount = 1 << 20
 // N (the energy of a frame sent until acknowledged, say). N = 0 gives the
 // empty sum 0.
 //
-// The transform is the count's generating function composed with the
+// When the term is a normal, an exponential or a gamma and the count takes
+// at most 4096 values, the result is exact: the mixture Σ_n P(N = n)·law(S_n)
+// of the closed-form n-fold sums (P(N = 0) a point mass at 0), reporting
+// Accuracy (rounding, 1e-14 in the CDF, 1e-9 relative in the survival down to
+// 1e9 times the count mass cut off; a density that jumps at 0, as for a
+// geometric count of exponentials, costs nothing here).
+//
+// Otherwise the transform is the count's generating function composed with the
 // term's, G(M_X(s)) = Σ_n P(N = n)·exp(n·log M_X(s)), inverted as in Sum;
 // an exact Discrete results when term is a finite discrete law and count is
 // finite. A count with infinite support is expanded up to the first n with
@@ -79,6 +86,9 @@ func RandomSum(count, term Law) (Law, error) {
 			return nil, paramErr(fn, "term", fmt.Sprintf("%d atoms", len(atoms)), fmt.Sprintf("an exact discrete random sum may have at most %d atoms", MaxSumAtoms))
 		}
 		return discreteFromAtoms(atoms), nil
+	}
+	if l, ok, err := closedRandomSum(ns, ps, tail, en*mx, en*vx+vn*mx*mx, term); err != nil || ok {
+		return l, err
 	}
 	t, ok := transformOf(term)
 	if !ok {

@@ -21,6 +21,12 @@ const MaxSumAtoms = 1 << 20
 //     gamma;
 //   - a finite discrete law plus one continuous law is the exact mixture of
 //     shifted copies, Σ p_i·P(C <= x - v_i) (a point mass gives a shift);
+//   - terms that are mixtures (a point mass mixed with an exponential, say)
+//     are expanded over their components when there are at most 256
+//     combinations and each combination's sum has one of the closed forms
+//     above: the result is the exact mixture of those sums (it reports
+//     Accuracy: rounding, about 1e-14 in the CDF and 1e-12 relative in the
+//     survival, plus the components' own bounds);
 //   - anything else is inverted from the product of the characteristic
 //     functions (Fourier-series method of Abate & Whitt 1992, tails by
 //     exponential tilting; see invert.go). Such a law implements Estimated,
@@ -29,8 +35,8 @@ const MaxSumAtoms = 1 << 20
 //     bound the true error: CDF absolute error about 1e-12 and survival
 //     relative error about 1e-9 down to 1e-30 for light-tailed terms whose
 //     sum has a smooth density. Where the continuous part's density jumps
-//     (a term mixing a point mass with an exponential, say) its transform
-//     decays like 1/t, the series is cut at 65536 terms and the CDF error
+//     (a mixture term the expansion above does not cover, or more than 256
+//     combinations of components) its transform decays like 1/t, the series is cut at 65536 terms and the CDF error
 //     grows to about 1e-5; Accuracy reports it.
 //
 // Mean and Variance of the result are the sums of the terms' means and
@@ -87,6 +93,9 @@ func appendFlat(terms []Law, l Law) []Law {
 func sumTerms(terms []Law) (Law, error) {
 	if len(terms) == 1 {
 		return terms[0], nil
+	}
+	if m, ok, err := expandMixtures(terms); err != nil || ok {
+		return m, err
 	}
 	var (
 		disc      []Discrete

@@ -217,15 +217,7 @@ func TestSumAtomsAndContinuousTwelveTerms(t *testing.T) {
 	require.NoError(t, err)
 	pm := make([]float64, nb+1)
 	for j := 0; j <= nb; j++ {
-		ge := 1.0
-		if j > 0 {
-			ge = mathext.RegIncBeta(float64(j), float64(nb-j+1), p)
-		}
-		gt := 0.0
-		if j < nb {
-			gt = mathext.RegIncBeta(float64(j+1), float64(nb-j), p)
-		}
-		pm[j] = ge - gt
+		pm[j] = binomPMF(nb, j, p)
 	}
 	cdf := func(x float64) float64 {
 		s := 0.0
@@ -276,8 +268,14 @@ func TestSumMixedTermsKeepAtoms(t *testing.T) {
 	}
 	cdf := func(x float64) float64 { return 1 - surv(x) }
 	xs := append(grid(0.01, 8, 120), 1, 15, 25, 30)
-	wa, wr := checkAccuracy(t, l, xs, cdf, surv, 1e-12)
-	t.Logf("mixed terms: worst CDF abs %.2e, survival rel %.2e", wa, wr)
+	wa, wr := checkAccuracy(t, l, xs, cdf, surv, 1e-14)
+	t.Logf("mixed terms: worst CDF abs %.2e, survival rel %.2e; %+v", wa, wr, l.(dist.Estimated).Accuracy())
+	// issue targets: CDF absolute error <= 1e-10, survival relative error
+	// <= 1e-6 down to 1e-14 (met by the exact expansion over components)
+	assert.LessOrEqual(t, wa, testref.TolCDF)
+	assert.LessOrEqual(t, wr, testref.TolTailRel)
+	assert.InEpsilon(t, m1.Mean()+m2.Mean(), l.Mean(), 1e-12)
+	assert.InEpsilon(t, m1.Variance()+m2.Variance(), l.Variance(), 1e-12)
 	require.NoError(t, disttest.Check(l))
 }
 
@@ -292,11 +290,11 @@ func TestRandomSumGeometricExponential(t *testing.T) {
 	xs := append(grid(0.01, 30, 100), 40, 60, 80, 100, 120)
 	wa, wr := checkAccuracy(t, l, xs, want.CDF, want.Survival, 1e-14)
 	t.Logf("geometric random sum: worst CDF abs %.2e, survival rel %.2e; %+v", wa, wr, l.(dist.Estimated).Accuracy())
-	// The density jumps at 0 (the N = 1 term), so the transform decays like
-	// 1/t and the series is cut at its term limit: the CDF misses the 1e-10
-	// target (about 6e-8 here) and the tail its 1e-6 target; the stated
-	// bounds hold (checked above). Known gap, see the issue.
-	assert.LessOrEqual(t, wa, 1e-6)
+	// exact mixture of gammas Σ P(N = n)·Gamma(n, λ): issue targets CDF
+	// absolute error <= 1e-10, survival relative error <= 1e-6 down to 1e-14
+	assert.LessOrEqual(t, wa, testref.TolCDF)
+	assert.LessOrEqual(t, wr, testref.TolTailRel)
+	require.NoError(t, disttest.Check(l))
 	assert.InEpsilon(t, 1/(p*lambda), l.Mean(), 1e-12)
 	assert.InEpsilon(t, 1/(p*lambda*p*lambda), l.Variance(), 1e-12)
 }
@@ -372,4 +370,112 @@ func sixTermSum(tb testing.TB) dist.Law {
 	l, err := dist.Sum(sixTerms(tb)...)
 	require.NoError(tb, err)
 	return l
+}
+
+func TestSumTwelveTermsAtomsAndExponentials(t *testing.T) {
+	// 4 terms 0.5·δ1 + 0.5·Exp(2) and 8 Bernoulli(0.3): 12 terms mixing atoms
+	// and laws whose densities jump. With J ~ Binomial(4, 1/2) exponentials
+	// and B ~ Binomial(8, 0.3), the sum is (4 - J) + B + Gamma(J, 2), so
+	// F(x) = Σ_j Σ_b P(J=j)·P(B=b)·G_j(x - 4 + j - b), G_j the Gamma(j, 2)
+	// CDF from gonum distuv.Gamma (upper tail mathext.GammaIncRegComp; G_0 a
+	// point mass at 0). Binomial masses from mathext.RegIncBeta.
+	m, err := dist.Mixture([]float64{0.5, 0.5}, []dist.Law{dist.MustPointMass(1), dist.MustExponential(2)})
+	require.NoError(t, err)
+	b := dist.MustDiscrete([]float64{0, 1}, []float64{0.7, 0.3})
+	var terms []dist.Law
+	for i := 0; i < 4; i++ {
+		terms = append(terms, m, b)
+	}
+	for i := 0; i < 4; i++ {
+		terms = append(terms, b)
+	}
+	l, err := dist.Sum(terms...)
+	require.NoError(t, err)
+	cdfSurv := func(x float64) (f, s float64) {
+		for j := 0; j <= 4; j++ {
+			for k := 0; k <= 8; k++ {
+				w := binomPMF(4, j, 0.5) * binomPMF(8, k, 0.3)
+				y := x - float64(4-j) - float64(k)
+				switch {
+				case j == 0 && y >= 0:
+					f += w
+				case j == 0:
+					s += w
+				case y <= 0:
+					s += w
+				default:
+					f += w * distuv.Gamma{Alpha: float64(j), Beta: 2}.CDF(y)
+					s += w * mathext.GammaIncRegComp(float64(j), 2*y)
+				}
+			}
+		}
+		return f, s
+	}
+	cdf := func(x float64) float64 { f, _ := cdfSurv(x); return f }
+	surv := func(x float64) float64 { _, s := cdfSurv(x); return s }
+	xs := append(grid(0.013, 14, 250), 16, 18, 20, 22)
+	wa, wr := checkAccuracy(t, l, xs, cdf, surv, 1e-14)
+	t.Logf("4 atom+exponential mixtures + 8 Bernoulli: worst CDF abs %.2e, survival rel %.2e; %+v", wa, wr, l.(dist.Estimated).Accuracy())
+	assert.LessOrEqual(t, wa, testref.TolCDF)
+	assert.LessOrEqual(t, wr, testref.TolTailRel)
+	assert.InEpsilon(t, 4*0.75+8*0.3, l.Mean(), 1e-12)
+	assert.InEpsilon(t, 4*m.Variance()+8*0.21, l.Variance(), 1e-12)
+	require.NoError(t, disttest.Check(l, disttest.WithSamples(20000)))
+}
+
+func TestRandomSumGeometricFromZeroExponential(t *testing.T) {
+	// A geometric count on {0, 1, …} (P(N = n) = p(1-p)^n) of Exp(λ) terms is
+	// p·δ0 + (1-p)·Exp(pλ) (a standard result; Feller vol. II — from memory).
+	const p, lambda = 0.4, 3.0
+	l, err := dist.RandomSum(shifted{geometric{p: p}}, dist.MustExponential(lambda))
+	require.NoError(t, err)
+	e := dist.MustExponential(p * lambda)
+	surv := func(x float64) float64 {
+		if x < 0 {
+			return 1
+		}
+		return (1 - p) * e.Survival(x)
+	}
+	cdf := func(x float64) float64 {
+		if x < 0 {
+			return 0
+		}
+		return p + (1-p)*e.CDF(x)
+	}
+	xs := append(grid(0.01, 20, 100), 25, 30)
+	wa, wr := checkAccuracy(t, l, xs, cdf, surv, 1e-14)
+	t.Logf("geometric from 0: worst CDF abs %.2e, survival rel %.2e; %+v", wa, wr, l.(dist.Estimated).Accuracy())
+	assert.LessOrEqual(t, wa, testref.TolCDF)
+	assert.LessOrEqual(t, wr, testref.TolTailRel)
+	al, ok := l.(dist.Atomic)
+	require.True(t, ok)
+	require.Len(t, al.Atoms(), 1)
+	assert.InDelta(t, p, al.Atoms()[0].Mass, 1e-15)
+	require.NoError(t, disttest.Check(l, disttest.WithSamples(20000)))
+}
+
+// shifted is a count law moved down by one (geometric on {0, 1, …}).
+type shifted struct{ g geometric }
+
+func (s shifted) CDF(x float64) float64           { return s.g.CDF(x + 1) }
+func (s shifted) Survival(x float64) float64      { return s.g.Survival(x + 1) }
+func (s shifted) Quantile(p float64) float64      { return s.g.Quantile(p) - 1 }
+func (s shifted) UpperQuantile(q float64) float64 { return s.g.UpperQuantile(q) - 1 }
+func (s shifted) Mean() float64                   { return s.g.Mean() - 1 }
+func (s shifted) Variance() float64               { return s.g.Variance() }
+func (s shifted) Support() (lo, hi float64)       { return 0, math.Inf(1) }
+func (s shifted) Rand(r *rand.Rand) float64       { return s.g.Rand(r) - 1 }
+
+// binomPMF is P(B = k) for B ~ Binomial(n, p), as P(B >= k) - P(B >= k+1)
+// with P(B >= k) = I_p(k, n-k+1) from gonum mathext.RegIncBeta.
+func binomPMF(n, k int, p float64) float64 {
+	ge := 1.0
+	if k > 0 {
+		ge = mathext.RegIncBeta(float64(k), float64(n-k+1), p)
+	}
+	gt := 0.0
+	if k < n {
+		gt = mathext.RegIncBeta(float64(k+1), float64(n-k), p)
+	}
+	return ge - gt
 }

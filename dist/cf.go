@@ -156,6 +156,8 @@ func transformOf(l Law) (transform, bool) {
 		return uniformTransform(b.lo, b.hi), true
 	case Discrete:
 		return atomsTransform(b.Atoms()), true
+	case latticeDiscrete:
+		return atomsTransform(b.Atoms()), true
 	case LogNormal:
 		return logNormalTransform(b.mu, b.sigma), true
 	case truncated:

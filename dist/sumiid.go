@@ -15,7 +15,14 @@ const maxStructuralDraws = 4096
 //
 // Closed forms first: a normal gives a normal, an exponential or gamma a
 // gamma, a finite discrete law the exact Discrete of k-fold sums (by
-// repeated squaring, at most MaxSumAtoms atoms). Otherwise the transform is
+// repeated squaring, at most MaxSumAtoms atoms). A finite discrete law whose
+// atoms lie on a common lattice v0 + m·δ (energies of commensurate airtimes,
+// say) and whose k-fold sum spans more than 65536 lattice points is summed
+// by a lattice FFT instead (see lattice.go): a finite discrete law of the
+// window holding all but 2e-17 of the mass, with exact Mean and Variance,
+// reporting Accuracy (CDF absolute error about 1e-13 for k up to 10^6,
+// tested against the binomial law; survival relative error 1e-6 down to
+// 10^6 times that). Otherwise the transform is
 // raised as exp(k·(log M(s) - s·μ)) — log M from log1p of M - 1 evaluated
 // directly, never by repeated multiplication or a complex power — and
 // inverted on a window centred on k·μ whose width is set by the standard
@@ -45,6 +52,9 @@ func SumIID(l Law, k int) (Law, error) {
 	case Gamma:
 		return NewGamma(fk*b.shape, b.rate)
 	case Discrete:
+		if lat, ok, err := latticeSumIID(b, k, latticeMinAtoms); err != nil || ok {
+			return lat, err
+		}
 		atoms, err := atomPower("SumIID", b.Atoms(), k)
 		if err != nil {
 			return nil, err

@@ -1,0 +1,105 @@
+package dist_test
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/dist/disttest"
+	"github.com/joulelaw/joulelaw/internal/testref"
+)
+
+// binomialByRatios returns the CDF and survival of Binomial(n, p) on the
+// integers j in [lo, hi] (all but about 1e-300 of the mass), from the mass
+// ratios P(j+1)/P(j) = (n-j)/(j+1)·p/(1-p) taken outward from the mode and
+// normalised by their sum (the textbook recursion; no incomplete beta
+// function, whose gonum implementation loses accuracy at n of 10^6 and
+// more). Rounding grows with the number of steps: about 1e-12 here.
+func binomialByRatios(n int, p float64) (lo int, cdf, surv []float64) {
+	mode := int(math.Floor(float64(n+1) * p))
+	sd := math.Sqrt(float64(n) * p * (1 - p))
+	w := int(40*sd) + 10
+	lo, hi := max(0, mode-w), min(n, mode+w)
+	r := make([]float64, hi-lo+1)
+	r[mode-lo] = 1
+	odds := p / (1 - p)
+	for j := mode; j < hi; j++ {
+		r[j+1-lo] = r[j-lo] * float64(n-j) / float64(j+1) * odds
+	}
+	for j := mode; j > lo; j-- {
+		r[j-1-lo] = r[j-lo] * float64(j) / (float64(n-j+1) * odds)
+	}
+	total := 0.0
+	for _, v := range r {
+		total += v
+	}
+	cdf, surv = make([]float64, len(r)), make([]float64, len(r))
+	s := 0.0
+	for i, v := range r {
+		s += v / total
+		cdf[i] = s
+	}
+	s = 0
+	for i := len(r) - 1; i >= 0; i-- {
+		surv[i] = s // P(C > lo+i)
+		s += r[i] / total
+	}
+	return lo, cdf, surv
+}
+
+func TestSumIIDLatticeFFTIsBinomial(t *testing.T) {
+	// k-fold sums of a law on a lattice v0 + m·δ far beyond the exact
+	// convolution's atom limit. The term (1-p)²·δ0 + 2p(1-p)·δ1 + p²·δ2 (the
+	// sum of two Bernoulli(p)) and Binomial(40, p) itself: their k-fold sums
+	// are Binomial(2k, p) and Binomial(40k, p) on the lattice (a standard
+	// result), the oracle computed by mass ratios (binomialByRatios).
+	const p, v0, step = 0.3, 1.2, 0.37e-3
+	three := dist.MustDiscrete([]float64{v0, v0 + step, v0 + 2*step}, []float64{(1 - p) * (1 - p), 2 * p * (1 - p), p * p})
+	vs, ps := make([]float64, 41), make([]float64, 41)
+	for j := range vs {
+		vs[j] = float64(j)
+		ps[j] = binomPMF(40, j, p)
+	}
+	forty := dist.MustDiscrete(vs, ps)
+	cases := []struct {
+		name     string
+		term     dist.Law
+		m, k     int // the k-fold sum is Binomial(m·k, p) on v0k + step·j
+		v0, step float64
+	}{
+		{"three atoms k=1e5", three, 2, 100000, v0, step},
+		{"three atoms k=1e6", three, 2, 1000000, v0, step},
+		{"41 atoms k=1e5", forty, 40, 100000, 0, 1},
+	}
+	for _, c := range cases {
+		l, err := dist.SumIID(c.term, c.k)
+		require.NoError(t, err, c.name)
+		acc := l.(dist.Estimated).Accuracy()
+		n := c.m * c.k
+		lo, cdf, surv := binomialByRatios(n, p)
+		sd := math.Sqrt(float64(n) * p * (1 - p))
+		var worstAbs, worstRel float64
+		for z := -9.0; z <= 9; z += 0.05 {
+			j := int(math.Floor(float64(n)*p + z*sd))
+			x := float64(c.k)*c.v0 + c.step*(float64(j)+0.5)
+			got, gotS := l.CDF(x), l.Survival(x)
+			worstAbs = math.Max(worstAbs, math.Abs(got-cdf[j-lo]))
+			assert.LessOrEqual(t, math.Abs(got-cdf[j-lo]), acc.CDFAbs, "%s: CDF at j=%d", c.name, j)
+			if s := surv[j-lo]; s >= acc.TailFloor {
+				r := testref.RelErr(gotS, s)
+				worstRel = math.Max(worstRel, r)
+				assert.LessOrEqual(t, r, acc.SurvivalRel, "%s: survival at j=%d", c.name, j)
+			}
+		}
+		t.Logf("%s: worst CDF abs %.2e, survival rel %.2e; %+v", c.name, worstAbs, worstRel, acc)
+		assert.LessOrEqual(t, worstAbs, testref.TolCDF, c.name)
+		assert.InEpsilon(t, float64(c.k)*c.term.Mean(), l.Mean(), 1e-12)
+		assert.InEpsilon(t, float64(c.k)*c.term.Variance(), l.Variance(), 1e-12)
+	}
+	l, err := dist.SumIID(three, 1000000)
+	require.NoError(t, err)
+	require.NoError(t, disttest.Check(l, disttest.WithSamples(5000)))
+}

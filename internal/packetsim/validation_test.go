@@ -35,32 +35,6 @@ const samplesPerGroupPerPlay = 10
 // within a few units in the last place of it.
 const ksSlack = 1e-9
 
-// ksWithSlack returns a lower bound on the Kolmogorov–Smirnov distance of
-// the samples to cdf that forgives a relative rounding slack rel:
-//
-//	max_v max( F_n(v) − F(v(1+rel)),  F(v(1−rel)) − F_n(v⁻) )
-//
-// Each term is at most the true distance sup|F_n − F| (F is non-decreasing),
-// so the DKW–Massart bound for the true distance also bounds this one
-// (testref.KSCritical; Massart 1990). It assumes positive samples.
-func ksWithSlack(samples []float64, cdf func(float64) float64, rel float64) float64 {
-	xs := slices.Clone(samples)
-	slices.Sort(xs)
-	n := float64(len(xs))
-	d := 0.0
-	for i := 0; i < len(xs); {
-		j := i
-		for j < len(xs) && xs[j] == xs[i] {
-			j++
-		}
-		v := xs[i]
-		d = math.Max(d, float64(j)/n-cdf(v*(1+rel)))
-		d = math.Max(d, cdf(v*(1-rel))-float64(i)/n)
-		i = j
-	}
-	return d
-}
-
 // couplingBound bounds the probability that the recorded cycles of two given
 // nodes of one gateway interact (one's frame overlaps the other's on the same
 // channel): at most frames·(a + a_max)/(channels·T_min) for the largest
@@ -191,11 +165,11 @@ func validateFleet(t *testing.T, s scenario.Scenario, fc fleetCase) validationRo
 		k := math.Min(samplesPerGroupPerPlay, float64(g.Group.Nodes))
 		nEff := int(float64(len(kept[gi])) / (1 + (k-1)*coupling))
 		crit := testref.KSCritical(nEff, testref.KSLevel)
-		d := ksWithSlack(kept[gi], laws[gi].CDF, ksSlack)
+		d := testref.KSWithSlack(kept[gi], laws[gi].CDF, ksSlack)
 		assert.LessOrEqual(t, d, crit, "group %q: KS distance of %d sampled cycles", g.Group.Name, len(kept[gi]))
 		if len(kept[gi]) >= 4000 {
 			// The check has power: the same samples reject a law 3 % off.
-			off := ksWithSlack(kept[gi], func(x float64) float64 { return laws[gi].CDF(x / 1.03) }, ksSlack)
+			off := testref.KSWithSlack(kept[gi], func(x float64) float64 { return laws[gi].CDF(x / 1.03) }, ksSlack)
 			assert.Greater(t, off, crit, "group %q: a law 3 %% off passes", g.Group.Name)
 		}
 		if d > row.ks {

@@ -137,3 +137,31 @@ func BinomialInterval(n int, p, alpha float64) (lo, hi int) {
 	hi = a
 	return lo, hi
 }
+
+// KSWithSlack returns a Kolmogorov–Smirnov distance that forgives rounding
+// between two computations of the same atom (a sample value and the law's
+// atom reached along different arithmetic paths):
+//
+//	max_v max( F_n(v) − F(v(1+rel)),  F(v(1−rel)) − F_n(v⁻) )
+//
+// over the distinct positive sample values v. Each term is at most the true
+// distance sup|F_n − F| (F is non-decreasing), so the DKW–Massart bound
+// (KSCritical) for the true distance bounds this one as well. It assumes
+// positive samples; samples is not modified.
+func KSWithSlack(samples []float64, cdf func(float64) float64, rel float64) float64 {
+	xs := slices.Clone(samples)
+	slices.Sort(xs)
+	n := float64(len(xs))
+	d := 0.0
+	for i := 0; i < len(xs); {
+		j := i
+		for j < len(xs) && xs[j] == xs[i] {
+			j++
+		}
+		v := xs[i]
+		d = math.Max(d, float64(j)/n-cdf(v*(1+rel)))
+		d = math.Max(d, cdf(v*(1-rel))-float64(i)/n)
+		i = j
+	}
+	return d
+}

@@ -144,3 +144,16 @@ func TestBinomialInterval(t *testing.T) {
 	lo, hi = BinomialInterval(10, 2, 0.1)
 	assert.Equal(t, [2]int{-1, -1}, [2]int{lo, hi})
 }
+
+// KSWithSlack never exceeds the exact KS distance, and it still sees a law
+// moved by 10 %.
+func TestKSWithSlack(t *testing.T) {
+	samples := []float64{1, 1, 2, 2, 2, 3, 5, 5, 8, 13}
+	cdf := func(x float64) float64 { return 1 - math.Exp(-x/4) }
+	exact := KSStatistic(samples, cdf)
+	slack := KSWithSlack(samples, cdf, 1e-9)
+	assert.LessOrEqual(t, slack, exact)
+	assert.InDelta(t, exact, slack, 1e-8)
+	moved := KSWithSlack(samples, func(x float64) float64 { return cdf(x / 1.1) }, 1e-9)
+	assert.Greater(t, moved, 0.0)
+}

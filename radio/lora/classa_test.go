@@ -12,6 +12,7 @@ import (
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/dist/disttest"
 	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/testref"
 	"github.com/joulelaw/joulelaw/radio/lora"
 )
 
@@ -229,27 +230,6 @@ func simulate(r *rand.Rand, c lora.ClassA, tls []lora.Timeline, period float64, 
 	}
 }
 
-// ksDistance returns sup |F_n − F| over the samples, checking both sides of
-// every jump. Atoms of the law and sample values computed along different
-// paths can differ by rounding, so F is read a relative 1e-9 beyond each
-// side (far below the spacing of distinct atoms here).
-func ksDistance(l dist.Law, xs []float64) float64 {
-	sort.Float64s(xs)
-	n := float64(len(xs))
-	d := 0.0
-	for i := 0; i < len(xs); {
-		j := i
-		for j < len(xs) && xs[j] == xs[i] {
-			j++
-		}
-		x := xs[i]
-		d = math.Max(d, math.Abs(float64(j)/n-l.CDF(x+1e-9*math.Abs(x))))
-		d = math.Max(d, math.Abs(float64(i)/n-l.CDF(x-1e-9*math.Abs(x))))
-		i = j
-	}
-	return d
-}
-
 // ksGridDistance returns max |F_n − F| over every step-th order statistic
 // (both sides): a lower bound of the KS distance, so the same DKW bound
 // applies, for laws whose CDF is costly.
@@ -300,7 +280,7 @@ func TestClassACycle(t *testing.T) {
 	for i := range xs {
 		xs[i] = cy.Rand(r)
 	}
-	assert.Less(t, ksDistance(law, xs), ksBound(law, n), "against Cycle.Rand")
+	assert.Less(t, testref.KSWithSlack(xs, law.CDF, 1e-9), ksBound(law, n), "against Cycle.Rand")
 
 	tls, err := c.Timelines()
 	require.NoError(t, err)
@@ -309,7 +289,7 @@ func TestClassACycle(t *testing.T) {
 	for i := range xs {
 		xs[i] = simulate(r, c, tls, period, gap)
 	}
-	assert.Less(t, ksDistance(law, xs), ksBound(law, n), "against the protocol simulation")
+	assert.Less(t, testref.KSWithSlack(xs, law.CDF, 1e-9), ksBound(law, n), "against the protocol simulation")
 }
 
 // TestClassAExact checks the exact (finite discrete) law against an

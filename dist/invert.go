@@ -6,6 +6,7 @@ import (
 	"math/cmplx"
 	"math/rand/v2"
 	"sync"
+	"sync/atomic"
 )
 
 // The inversion engine. A numerically computed law is held as
@@ -69,6 +70,9 @@ type numLaw struct {
 	extraErr       float64
 	accOnce        *sync.Once
 	acc            Accuracy // set by accOnce
+	gridOnce       *sync.Once
+	grid           *cdfGrid // set by gridOnce (nil: no grid)
+	calls          *atomic.Int64
 	sample         func(r *rand.Rand) float64
 	parts          []Law // the terms of a Sum, for flattening nested sums
 }
@@ -170,6 +174,8 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	cdfAbs := 2*bulkTail + trunc/math.Pi + 1e-14*(1+math.Abs(l.c)/sd) + 4e-16*absSum + l.tr.err*(math.Log(float64(n))+1) + sp.extraErr
 	l.accBase, l.extraErr = cdfAbs, sp.extraErr
 	l.accOnce = new(sync.Once)
+	l.gridOnce = new(sync.Once)
+	l.calls = new(atomic.Int64)
 	return l, nil
 }
 
@@ -187,7 +193,16 @@ func (l *numLaw) accuracy() Accuracy {
 		}
 	}
 	cdfAbs += math.Min(1, probe) * tiltSwitch
+	if l.gridOnce != nil {
+		l.gridOnce.Do(func() { l.grid = l.buildGrid() })
+		if l.grid != nil {
+			cdfAbs += 2*l.grid.err + 1e-15
+		}
+	}
 	method := fmt.Sprintf("Fourier-series inversion, %d terms", len(l.pr))
+	if l.grid != nil {
+		method += fmt.Sprintf(" (bulk interpolated on a %d-point grid after %d values)", len(l.grid.F), gridAfter)
+	}
 	floor := cdfAbs / 1e-6
 	rel := math.Max(1e-6, cdfAbs/tiltSwitch)
 	if l.tr.hi > 0 {
@@ -290,7 +305,7 @@ func (l *numLaw) cont(y float64) (f, s float64) {
 		}
 		return f, math.Max(0, l.w-f)
 	}
-	f = math.Min(l.w, math.Max(0, l.bulkCDF(y)))
+	f = math.Min(l.w, math.Max(0, l.bulk(y)))
 	s = l.w - f
 	if f < tiltSwitch && down {
 		f = l.tilted(y, true)

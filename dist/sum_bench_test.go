@@ -59,3 +59,18 @@ func BenchmarkSumIIDMillion(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkSixTermSumManyValues builds the six-term sum and evaluates its
+// CDF at 10^5 points (beyond 2048 bulk values the law answers from a grid).
+func BenchmarkSixTermSumManyValues(b *testing.B) {
+	terms := sixTerms(b)
+	for b.Loop() {
+		l, err := dist.Sum(terms...)
+		if err != nil {
+			b.Fatal(err)
+		}
+		for i := 0; i < 100000; i++ {
+			l.CDF(20 + 0.0004*float64(i))
+		}
+	}
+}

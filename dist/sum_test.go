@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"sort"
+	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -478,4 +479,106 @@ func binomPMF(n, k int, p float64) float64 {
 		gt = mathext.RegIncBeta(float64(k+1), float64(n-k), p)
 	}
 	return ge - gt
+}
+
+func TestSumGridInterpolationBound(t *testing.T) {
+	// After many values a numerical sum answers from a grid (cubic Hermite
+	// interpolation of the series); its stated bound must still hold.
+	// Oracles: Irwin–Hall (closed form above); Exp(1) + Uniform(0,1), whose
+	// CDF is x - (1 - e^{-x}) on [0, 1] and 1 - (e^{-(x-1)} - e^{-x}) beyond
+	// (the convolution integral ∫_0^1 F_E(x - u) du, worked out here);
+	// 8 Bernoulli(0.4) + 4 Uniform(0,1) (binomial mixture of Irwin–Hall).
+	u := dist.MustUniform(0, 1)
+	eu, err := dist.Sum(dist.MustExponential(1), u)
+	require.NoError(t, err)
+	euCDF := func(x float64) float64 {
+		switch {
+		case x <= 0:
+			return 0
+		case x <= 1:
+			return x + math.Expm1(-x)
+		}
+		return 1 - math.Exp(-x)*math.Expm1(1)
+	}
+	euSurv := func(x float64) float64 {
+		switch {
+		case x <= 0:
+			return 1
+		case x <= 1:
+			return 1 - x - math.Expm1(-x)
+		}
+		return math.Exp(-x) * math.Expm1(1)
+	}
+	ih12 := dist.MustSum(u, u, u, u, u, u, u, u, u, u, u, u)
+	b := dist.MustDiscrete([]float64{0, 1}, []float64{0.6, 0.4})
+	mixed := dist.MustSum(b, b, b, b, b, b, b, b, u, u, u, u)
+	mixedCDF := func(x float64) float64 {
+		s := 0.0
+		for j := 0; j <= 8; j++ {
+			s += binomPMF(8, j, 0.4) * irwinHallCDF(4, x-float64(j))
+		}
+		return s
+	}
+	mixedSurv := func(x float64) float64 {
+		s := 0.0
+		for j := 0; j <= 8; j++ {
+			s += binomPMF(8, j, 0.4) * irwinHallSurvival(4, x-float64(j))
+		}
+		return s
+	}
+	cases := []struct {
+		name      string
+		l         dist.Law
+		lo, hi    float64
+		cdf, surv func(float64) float64
+	}{
+		{"Exp(1)+U(0,1)", eu, 0.01, 12, euCDF, euSurv},
+		{"Irwin–Hall 12", ih12, 0.5, 11.5, func(x float64) float64 { return irwinHallCDF(12, x) }, func(x float64) float64 { return irwinHallSurvival(12, x) }},
+		{"8 Bernoulli + 4 uniform", mixed, 0.01, 11.99, mixedCDF, mixedSurv},
+	}
+	gridUsed := 0
+	for _, c := range cases {
+		mid := c.l.Quantile(0.5)
+		for _, x := range grid(mid-0.5, mid+0.5, 2100) { // more than the 2048 values after which the grid is built
+			c.l.CDF(x)
+		}
+		wa, wr := checkAccuracy(t, c.l, grid(c.lo, c.hi, 301), c.cdf, c.surv, 1e-14)
+		acc := c.l.(dist.Estimated).Accuracy()
+		if strings.Contains(acc.Method, "grid") {
+			gridUsed++
+		}
+		t.Logf("%s: worst CDF abs %.2e, survival rel %.2e; %+v", c.name, wa, wr, acc)
+		assert.LessOrEqual(t, wa, testref.TolCDF, c.name)
+	}
+	assert.Positive(t, gridUsed, "at least one law must answer from its grid")
+}
+
+func TestSumGridConcurrent(t *testing.T) {
+	// Values from several goroutines across the point where the grid is
+	// built agree with the series values computed before it (run with -race).
+	l := dist.MustSum(dist.MustUniform(0, 1), dist.MustUniform(0, 2), dist.MustExponential(1), dist.MustNormal(0, 0.1))
+	xs := grid(-0.5, 6, 64)
+	want := make([]float64, len(xs))
+	for i, x := range xs {
+		want[i] = l.CDF(x)
+	}
+	acc := l.(dist.Estimated).Accuracy()
+	done := make(chan []float64)
+	for g := 0; g < 4; g++ {
+		go func() {
+			var got []float64
+			for rep := 0; rep < 20; rep++ {
+				for _, x := range xs {
+					got = append(got, l.CDF(x))
+				}
+			}
+			done <- got
+		}()
+	}
+	for g := 0; g < 4; g++ {
+		got := <-done
+		for i, v := range got {
+			assert.InDelta(t, want[i%len(xs)], v, 2*acc.CDFAbs)
+		}
+	}
 }

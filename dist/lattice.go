@@ -19,9 +19,15 @@ import (
 //
 //	P(M = m_0 + r) = (1/N)·Σ_j φ(θ_j)^k·exp(-iθ_j·(m_0 + r))
 //
-// (mass outside the window wraps round, at most 2·bulkTail in all: the
-// damping against wrap-around of Embrechts & Frei 2009 reduces to choosing
-// the window this wide). φ(θ_j) is first taken for every j from one FFT of
+// (mass outside the window wraps round, at most 2e-60 in all). The far
+// masses, which this computes only to about 1e-16 of the largest, are
+// computed again from tilted laws P_α(m) ∝ P(m)·exp(α·m) (exponential
+// damping, as in Embrechts & Frei 2009), the transform taken at θ - iα, with
+// α at the saddlepoints where the Chernoff bound is 1e-8 and 1e-15 on
+// each side; each mass comes from the estimate with the smallest
+// error bound (rounding of its transform values and FFT, and the tilted
+// law's wrapped mass by Chernoff bounds), so survival values keep relative
+// precision far into the tail. φ(θ_j) is first taken for every j from one FFT of
 // the masses folded modulo N; where |φ|^k could exceed exp(-45) it is
 // recomputed directly as exp(k·log φ_c(θ_j)) of the law centred on its
 // mean, with φ_c - 1 evaluated directly (never a complex power), and the
@@ -32,6 +38,9 @@ const (
 	latticeMinAtoms = 1 << 16 // below this many lattice points the exact convolution is used
 	latticeMaxN     = 1 << 22 // largest FFT
 	latticeTol      = 1e-9    // relative tolerance of lattice membership
+	// mass left outside the window at each end: the window reaches some 9
+	// standard deviations of the tilted laws beyond the farthest tilt
+	latticeWindowTail = 1e-60
 )
 
 // latticeOf returns v0, δ and the integer offsets of the atoms' values when
@@ -111,8 +120,8 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 	ck := complex(fk, 0)
 	logm := func(s complex128) complex128 { return ck * tr.logm(s) }
 	sd := math.Sqrt(fk * v)
-	hiEnd := chernoffEnd(logm, math.Inf(1), sd, bulkTail)
-	loEnd := chernoffEnd(func(s complex128) complex128 { return logm(-s) }, math.Inf(1), sd, bulkTail)
+	hiEnd := chernoffEnd(logm, math.Inf(1), sd, latticeWindowTail)
+	loEnd := loEndAt(logm, sd, latticeWindowTail)
 	mean := fk * mu
 	mlo := math.Max(0, math.Floor(mean-loEnd))
 	mhi := math.Min(fk*float64(top), math.Ceil(mean+hiEnd))
@@ -124,44 +133,124 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 	m0 := int64(mlo)
 	mc := int64(math.Round(mean))
 	frac := mean - float64(mc) // the centre's offset from the integer mc
-	// φ on the grid from one FFT of the masses folded modulo n
-	buf := make([]complex128, n)
-	for i, nn := range ns {
-		buf[nn%int64(n)] += complex(d.probs[i], 0)
-	}
 	fft := fourier.NewCmplxFFT(n)
-	fft.Sequence(buf, buf) // buf[j] = Σ p·exp(+2πi·j·n/N) = φ(θ_j)
-	var absSum, relErr float64
-	direct := 0
-	for j := 0; j < n; j++ {
-		a := cmplx.Abs(buf[j])
-		if a == 0 || fk*math.Log(a) < -45 {
-			buf[j] = 0
-			continue
+	buf := make([]complex128, n)
+	eps := 0x1p-52
+	K := func(al float64) float64 { return real(logm(complex(al, 0))) }
+	// tilted computes q_r = P_α(M = m0 + r), the law tilted by exp(α·(m - kμ)),
+	// into buf, and returns the bound on each q_r's error and K(α).
+	var sig []int // grid indices where |φ(θ_j)|^k >= exp(-60)
+	tilted := func(al float64) (qErr, kAl float64, direct int) {
+		kAl = K(al)
+		if al == 0 {
+			for i, nn := range ns {
+				buf[nn%int64(n)] += complex(d.probs[i], 0)
+			}
+			fft.Sequence(buf, buf) // buf[j] = φ(θ_j)
+			for j := 0; j < n; j++ {
+				if a := cmplx.Abs(buf[j]); a > 0 && fk*math.Log(a) >= -60 {
+					sig = append(sig, j)
+				}
+			}
 		}
-		direct++
-		jj := j
-		if j > n/2 {
-			jj = j - n
+		// the tilted transform is taken where the untilted one matters: for
+		// the small tilts used here |φ_α(θ)|^k differs from |φ(θ)|^k by a
+		// factor near 1, and the threshold is 1e-7 of the one used for the
+		// error (exp(-45))
+		clear(buf)
+		var absSum, relErr float64
+		for _, j := range sig {
+			direct++
+			jj := j
+			if j > n/2 {
+				jj = j - n
+			}
+			th := 2 * math.Pi * float64(jj) / float64(n)
+			lg := logm(complex(al, th)) - complex(kAl, 0) // k·log φ_c(θ - iα) - K(α)
+			// exp(iθ·(kμ - m0)) with the integer phase reduced modulo n
+			ph := ((int64(jj)*(mc-m0))%int64(n) + int64(n)) % int64(n)
+			phase := 2*math.Pi*float64(ph)/float64(n) + th*frac
+			c := cmplx.Exp(lg + complex(0, phase))
+			if real(lg) < -45 {
+				continue
+			}
+			buf[j] = c
+			absSum += cmplx.Abs(c)
+			e := 50.0
+			if cmplx.Abs(complex(al, th))*vmax >= 0.5 { // log of the sum itself: k·ε absolute
+				e += fk
+			}
+			relErr = math.Max(relErr, e)
 		}
-		th := 2 * math.Pi * float64(jj) / float64(n)
-		lg := logm(complex(0, th)) // k·log φ_c(θ)
-		// exp(iθ·(mc - m0)) with the integer phase reduced modulo n
-		ph := ((int64(jj)*(mc-m0))%int64(n) + int64(n)) % int64(n)
-		phase := 2*math.Pi*float64(ph)/float64(n) + th*frac
-		c := cmplx.Exp(lg + complex(0, phase))
-		buf[j] = c
-		absSum += cmplx.Abs(c)
-		e := 50.0
-		if math.Abs(th)*vmax >= 0.5 { // log of the sum itself: k·ε absolute
-			e += fk
+		fft.Coefficients(buf, buf) // Σ_j c_j·exp(-2πi·j·r/N)
+		// wrapped mass of the tilted law (Chernoff bounds with a further
+		// tilt α, and back to 0)
+		alias := 0.0
+		for _, side := range []float64{1, -1} {
+			end := mhi
+			if side < 0 {
+				end = mlo
+			}
+			if (side > 0 && end >= fk*float64(top)) || (side < 0 && end <= 0) {
+				continue // the window reaches the support's end: nothing beyond
+			}
+			// P_α(side·(M - end) > 0) <= exp(K(α + side·u) - K(α) - side·u·(end - kμ))
+			best := math.Inf(1)
+			for _, u := range []float64{math.Abs(al) / 4, math.Abs(al) / 2, math.Abs(al), 2 * math.Abs(al), 1 / sd, 2 / sd, 4 / sd, 8 / sd, 16 / sd} {
+				if u > 0 {
+					best = math.Min(best, K(al+side*u)-kAl-side*u*(end-mean))
+				}
+			}
+			alias += math.Exp(best)
 		}
-		relErr = math.Max(relErr, e)
+		// the transform values' rounding (relErr ulps each) and the FFT's
+		// (3·log2 N ulps), times 4 for safety, plus the wrapped mass
+		qErr = 4*absSum/float64(n)*(relErr+3*math.Log2(float64(n)))*eps + alias
+		return qErr, kAl, direct
 	}
-	fft.Coefficients(buf, buf) // Σ_j c_j·exp(-2πi·j·r/N)
+	pm := make([]float64, width)
+	pe := make([]float64, width)
+	qErr, _, direct := tilted(0)
+	for r := range pm {
+		pm[r], pe[r] = real(buf[r])/float64(n), qErr
+	}
+	// tails: tilts whose saddlepoints sit where the Chernoff bound is 1e-8
+	// and 1e-15; each mass is taken from the estimate with the
+	// smallest error bound, so the far masses keep relative precision
+	dK := func(al float64) float64 {
+		const eta = 1e-20
+		h := eta * math.Max(1, math.Abs(al))
+		return imag(logm(complex(al, h))) / h
+	}
+	for _, side := range []float64{1, -1} {
+		for _, e := range []float64{1e-8, 1e-15} {
+			var al float64
+			if side > 0 {
+				al = saddle(dK, chernoffEnd(logm, math.Inf(1), sd, e), math.Inf(1), sd)
+			} else {
+				neg := func(a float64) float64 { return -dK(-a) }
+				al = -saddle(neg, loEndAt(logm, sd, e), math.Inf(1), sd)
+			}
+			if !(al != 0) || !finite(al) {
+				continue
+			}
+			qe, kAl, dn := tilted(al)
+			direct += dn
+			for r := range pm {
+				f := kAl - al*(float64(m0+int64(r))-mean)
+				if f > 700 {
+					continue
+				}
+				if er := qe * math.Exp(f); er < pe[r] {
+					pm[r], pe[r] = real(buf[r])/float64(n)*math.Exp(f), er
+				}
+			}
+		}
+	}
 	atoms := make([]Atom, 0, width)
-	for r := 0; r < width; r++ {
-		p := real(buf[r]) / float64(n)
+	var cdfAbs float64
+	for r, p := range pm {
+		cdfAbs += pe[r]
 		if p > 0 {
 			atoms = append(atoms, Atom{Value: fk*v0 + delta*float64(m0+int64(r)), Mass: p})
 		}
@@ -169,17 +258,33 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 	if len(atoms) == 0 {
 		return nil, true, fmt.Errorf("dist.SumIID: lattice sum of %v with k = %d has no mass: %w", d, k, ErrParam)
 	}
-	eps := 0x1p-52
-	// per atom: the transform values' rounding (relErr ulps each) and the
-	// FFT's (3·log2 N ulps), times 4 for safety, plus the wrapped mass
-	atomErr := 4*absSum/float64(n)*(relErr+3*math.Log2(float64(n)))*eps + 2*bulkTail
-	cdfAbs := float64(width)*atomErr + 2*bulkTail
+	// plus the wrapped mass and the rounding of the running sums of up to
+	// width masses that the discrete law's CDF and survival are
+	cdfAbs += 2*latticeWindowTail + float64(width)*eps
+	// survival relative error: the errors of the masses above each point
+	// against the survival there; the floor is the largest survival at which
+	// they exceed 1e-6 of it (the window's end, beyond which S <= 1e-17)
+	floor := 0.0
+	var sAbove, eAbove float64
+	for r := width - 1; r >= 0; r-- {
+		if sAbove > 0 && eAbove > 1e-6*sAbove {
+			floor = math.Max(floor, sAbove)
+		}
+		sAbove += math.Max(pm[r], 0)
+		eAbove += pe[r]
+	}
 	dd := discreteFromAtoms(atoms)
 	acc := Accuracy{
-		CDFAbs: cdfAbs, SurvivalRel: 1e-6, TailFloor: cdfAbs * 1e6,
-		Method: fmt.Sprintf("lattice FFT of %d points (%d transform values), step %g", n, direct, delta),
+		CDFAbs: cdfAbs, SurvivalRel: 1e-6, TailFloor: floor,
+		Method: fmt.Sprintf("lattice FFT of %d points, 4 tilts (%d transform values), step %g", n, direct, delta),
 	}
 	return latticeDiscrete{Discrete: dd, acc: acc, mean: fk * d.Mean(), variance: fk * d.Variance()}, true, nil
+}
+
+// loEndAt is the Chernoff bound on the eps lower quantile of the centred
+// law with log-transform logm (a positive distance below the mean).
+func loEndAt(logm func(complex128) complex128, sd, eps float64) float64 {
+	return chernoffEnd(func(s complex128) complex128 { return logm(-s) }, math.Inf(1), sd, eps)
 }
 
 // fftSize returns the smallest 2^a, 3·2^a or 5·2^a that is at least n.

@@ -100,8 +100,8 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 	}
 	fk := float64(k)
 	top := ns[len(ns)-1]
-	if fk*float64(top)+1 <= minPoints {
-		return nil, false, nil
+	if fk*float64(top)+1 <= minPoints || multichoose(len(ns), k) <= minPoints {
+		return nil, false, nil // the exact convolution has few atoms
 	}
 	// integer law: atoms at n_i - μ (centred), masses p_i
 	var mu float64
@@ -128,7 +128,7 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 	width := int(mhi-mlo) + 1
 	n := fftSize(width)
 	if n > latticeMaxN {
-		return nil, true, paramErr("SumIID", "k", k, fmt.Sprintf("the lattice sum needs %d points (at most %d)", n, latticeMaxN))
+		return nil, false, nil // a sparse lattice: left to the exact convolution
 	}
 	m0 := int64(mlo)
 	mc := int64(math.Round(mean))
@@ -285,6 +285,20 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 // law with log-transform logm (a positive distance below the mean).
 func loEndAt(logm func(complex128) complex128, sd, eps float64) float64 {
 	return chernoffEnd(func(s complex128) complex128 { return logm(-s) }, math.Inf(1), sd, eps)
+}
+
+// multichoose returns C(a+k-1, k), the number of multisets of size k from
+// a values (a bound on the atoms of a k-fold sum of an a-atom law), capped
+// at 1e18.
+func multichoose(a, k int) float64 {
+	c := 1.0
+	for i := 1; i <= min(k, a-1); i++ {
+		c *= float64(k+i) / float64(i)
+		if c > 1e18 {
+			return 1e18
+		}
+	}
+	return c
 }
 
 // fftSize returns the smallest 2^a, 3·2^a or 5·2^a that is at least n.

@@ -82,7 +82,7 @@ func TestSumIIDLatticeFFTIsBinomial(t *testing.T) {
 		lo, cdf, surv := binomialByRatios(n, p)
 		sd := math.Sqrt(float64(n) * p * (1 - p))
 		var worstAbs, worstRel float64
-		for z := -9.0; z <= 9; z += 0.05 {
+		for z := -12.0; z <= 12; z += 0.05 {
 			j := int(math.Floor(float64(n)*p + z*sd))
 			x := float64(c.k)*c.v0 + c.step*(float64(j)+0.5)
 			got, gotS := l.CDF(x), l.Survival(x)
@@ -106,4 +106,19 @@ func TestSumIIDLatticeFFTIsBinomial(t *testing.T) {
 	l, err := dist.SumIID(three, 1000000)
 	require.NoError(t, err)
 	require.NoError(t, disttest.Check(l, disttest.WithSamples(5000)))
+}
+
+func TestSumIIDSparseLatticeStaysExact(t *testing.T) {
+	// Atoms on a fine lattice (step 1e-7 of the span) whose k-fold sum has
+	// few atoms: the exact convolution is used. Oracle: the multinomial
+	// masses of two draws, written out.
+	d := dist.MustDiscrete([]float64{0, 1e-7, 1}, []float64{0.5, 0.3, 0.2})
+	l, err := dist.SumIID(d, 2)
+	require.NoError(t, err)
+	dd, ok := l.(dist.Discrete)
+	require.True(t, ok, "got %T", l)
+	require.Equal(t, 6, dd.Len())
+	assert.InDelta(t, 0.25, dd.CDF(0), 1e-15)             // 0+0
+	assert.InDelta(t, 0.25+0.3+0.09, dd.CDF(3e-7), 1e-15) // + (0,ε) twice and (ε,ε)
+	assert.InDelta(t, 0.04, dd.Survival(1.5), 1e-15)      // 1+1
 }

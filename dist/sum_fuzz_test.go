@@ -19,7 +19,10 @@ func fuzzTerm(kind uint8, a, b float64) (dist.Law, error) {
 		}
 		return lo + math.Mod(math.Abs(x), hi-lo)
 	}
-	switch kind % 6 {
+	switch kind % 7 {
+	case 6: // an atom mixed with an exponential (exact expansion path)
+		p := fold(b, 0.05, 0.95)
+		return dist.Mixture([]float64{p, 1 - p}, []dist.Law{dist.MustPointMass(fold(a, -3, 3)), dist.MustExponential(fold(b, 0.3, 4))})
 	case 0:
 		p := fold(b, 0.01, 0.99)
 		return dist.NewDiscrete([]float64{fold(a, -5, 5), fold(a, -5, 5) + fold(b, 0.1, 4)}, []float64{p, 1 - p})

@@ -121,3 +121,109 @@ func expandMixtures(terms []Law) (l Law, ok bool, err error) {
 	}
 	return m, true, nil
 }
+
+// maxIIDExpansion is the largest number of component counts SumIID expands
+// exactly for a mixture term.
+const maxIIDExpansion = 512
+
+// expandMixtureIID writes the k-fold sum of a mixture Σ w_i·C_i as the
+// exact multinomial mixture
+//
+//	Σ_{j_1+…+j_c = k} k!/(j_1!…j_c!)·Π w_i^{j_i} · law(Σ_i S_{i,j_i}),
+//
+// S_{i,j} the j-fold sum of C_i, when there are at most maxIIDExpansion
+// count vectors and each combination has a closed form (a point mass and an
+// exponential give shifted gammas, say). The multinomial weights come from
+// log-gamma functions with relative error about 4ε·(log k! + k·max|log w|),
+// which is added to the stated bound. ok is false when it does not apply.
+func expandMixtureIID(l Law, k int) (Law, bool, error) {
+	ws, cs, isMix := mixtureParts(l)
+	if !isMix || multichoose(len(cs), k) > maxIIDExpansion {
+		return nil, false, nil
+	}
+	c := len(cs)
+	lgk, _ := math.Lgamma(float64(k + 1))
+	maxLog := 0.0
+	for _, w := range ws {
+		maxLog = math.Max(maxLog, math.Abs(math.Log(w)))
+	}
+	wErr := 4 * 0x1p-52 * (lgk + float64(k)*maxLog + 1)
+	cdfAbs, rel, floor := 1e-14+wErr, 1e-12+wErr, 0.0
+	var weights []float64
+	var laws []Law
+	js := make([]int, c)
+	var rec func(i, left int) error
+	bail := false
+	rec = func(i, left int) error {
+		if bail {
+			return nil
+		}
+		if i == c-1 {
+			js[i] = left
+			lw := lgk
+			var terms []Law
+			for q, j := range js {
+				lj, _ := math.Lgamma(float64(j + 1))
+				lw += float64(j)*math.Log(ws[q]) - lj
+				if j > 0 {
+					s, err := SumIID(cs[q], j)
+					if err != nil {
+						return err
+					}
+					terms = appendFlat(terms, s)
+				}
+			}
+			w := math.Exp(lw)
+			if w == 0 {
+				return nil
+			}
+			s, err := sumTerms(terms)
+			if err != nil {
+				return err
+			}
+			if _, numeric := s.(*numLaw); numeric {
+				bail = true
+				return nil
+			}
+			if e, est := s.(Estimated); est {
+				a := e.Accuracy()
+				cdfAbs += w * a.CDFAbs
+				rel, floor = math.Max(rel, a.SurvivalRel), math.Max(floor, a.TailFloor)
+			}
+			weights, laws = append(weights, w), append(laws, s)
+			return nil
+		}
+		for j := 0; j <= left; j++ {
+			js[i] = j
+			if err := rec(i+1, left-j); err != nil {
+				return err
+			}
+		}
+		return nil
+	}
+	if err := rec(0, k); err != nil || bail {
+		return nil, false, err
+	}
+	total := 0.0
+	for _, w := range weights {
+		total += w
+	}
+	for i := range weights {
+		weights[i] /= total
+	}
+	m, err := Mixture(weights, laws)
+	if err != nil {
+		return nil, false, fmt.Errorf("dist.SumIID: expanding a mixture: %w", err)
+	}
+	acc := Accuracy{CDFAbs: cdfAbs, SurvivalRel: rel, TailFloor: floor,
+		Method: fmt.Sprintf("exact multinomial mixture of %d closed forms", len(laws))}
+	fk := float64(k)
+	mean, variance := fk*l.Mean(), fk*l.Variance()
+	switch b := m.(type) {
+	case mixture:
+		return statedMixture{mixture: b, acc: acc, mean: mean, variance: variance, kind: "SumIID"}, true, nil
+	case mixtureDensity:
+		return statedMixtureDensity{statedMixture{mixture: b.mixture, acc: acc, mean: mean, variance: variance, kind: "SumIID"}}, true, nil
+	}
+	return m, true, nil
+}

@@ -397,17 +397,8 @@ func TestSumTwelveTermsAtomsAndExponentials(t *testing.T) {
 			for k := 0; k <= 8; k++ {
 				w := binomPMF(4, j, 0.5) * binomPMF(8, k, 0.3)
 				y := x - float64(4-j) - float64(k)
-				switch {
-				case j == 0 && y >= 0:
-					f += w
-				case j == 0:
-					s += w
-				case y <= 0:
-					s += w
-				default:
-					f += w * distuv.Gamma{Alpha: float64(j), Beta: 2}.CDF(y)
-					s += w * mathext.GammaIncRegComp(float64(j), 2*y)
-				}
+				df, ds := gammaCDFSurv(j, 2, y)
+				f, s = f+w*df, s+w*ds
 			}
 		}
 		return f, s
@@ -581,4 +572,53 @@ func TestSumGridConcurrent(t *testing.T) {
 			assert.InDelta(t, want[i%len(xs)], v, 2*acc.CDFAbs)
 		}
 	}
+}
+
+func TestSumIIDAtomExponentialMixture(t *testing.T) {
+	// k draws of 0.3·δ_{0.5} + 0.7·Exp(2) (a quick failure or an
+	// exponentially long attempt): with J ~ Binomial(k, 0.7) exponential
+	// draws the sum is (k - J)·0.5 + Gamma(J, 2). Oracle: binomial masses
+	// from mathext.RegIncBeta (binomPMF), gonum distuv.Gamma for the CDF and
+	// mathext.GammaIncRegComp for the upper tail.
+	m, err := dist.Mixture([]float64{0.3, 0.7}, []dist.Law{dist.MustPointMass(0.5), dist.MustExponential(2)})
+	require.NoError(t, err)
+	for _, k := range []int{2, 12, 100} {
+		l, err := dist.SumIID(m, k)
+		require.NoError(t, err)
+		cdfSurv := func(x float64) (f, s float64) {
+			for j := 0; j <= k; j++ {
+				w := binomPMF(k, j, 0.7)
+				y := x - 0.5*float64(k-j)
+				df, ds := gammaCDFSurv(j, 2, y)
+				f, s = f+w*df, s+w*ds
+			}
+			return f, s
+		}
+		cdf := func(x float64) float64 { f, _ := cdfSurv(x); return f }
+		surv := func(x float64) float64 { _, s := cdfSurv(x); return s }
+		mean, sd := l.Mean(), math.Sqrt(l.Variance())
+		xs := append(grid(math.Max(0.01, mean-6*sd), mean+8*sd, 200), mean+15*sd, mean+20*sd)
+		wa, wr := checkAccuracy(t, l, xs, cdf, surv, 1e-14)
+		t.Logf("k=%d: worst CDF abs %.2e, survival rel %.2e; %+v", k, wa, wr, l.(dist.Estimated).Accuracy())
+		assert.LessOrEqual(t, wa, testref.TolCDF)
+		assert.LessOrEqual(t, wr, testref.TolTailRel)
+		assert.InEpsilon(t, float64(k)*m.Mean(), l.Mean(), 1e-12)
+		assert.InEpsilon(t, float64(k)*m.Variance(), l.Variance(), 1e-12)
+	}
+	l, err := dist.SumIID(m, 12)
+	require.NoError(t, err)
+	require.NoError(t, disttest.Check(l, disttest.WithSamples(20000)))
+}
+
+// gammaCDFSurv is P(G <= y) and P(G > y) for G ~ Gamma(j, rate) (G = 0 for
+// j = 0): gonum distuv.Gamma for the CDF, mathext.GammaIncRegComp for the
+// upper tail.
+func gammaCDFSurv(j int, rate, y float64) (f, s float64) {
+	switch {
+	case j == 0 && y >= 0:
+		return 1, 0
+	case y <= 0:
+		return 0, 1
+	}
+	return distuv.Gamma{Alpha: float64(j), Beta: rate}.CDF(y), mathext.GammaIncRegComp(float64(j), rate*y)
 }

@@ -30,6 +30,11 @@ const maxStructuralDraws = 4096
 // and its accuracy). Atoms of l survive only while their total mass a keeps
 // a^k above 1e-30.
 //
+// A mixture whose k-fold sum has at most 512 count vectors (k <= 511 for
+// two components) and whose combinations have closed forms is expanded
+// exactly into the multinomial mixture of those closed forms (an atom mixed
+// with an exponential gives shifted gammas), reporting Accuracy.
+//
 // Rand adds k draws of l when k <= 4096 and inverts the computed CDF beyond.
 // Errors: nil l, k < 1, a term without finite mean and variance (wraps
 // ErrMoment).
@@ -60,6 +65,9 @@ func SumIID(l Law, k int) (Law, error) {
 			return nil, err
 		}
 		return discreteFromAtoms(atoms), nil
+	}
+	if m, ok, err := expandMixtureIID(l, k); err != nil || ok {
+		return m, err
 	}
 	return iidNumeric(l, k)
 }

@@ -20,7 +20,9 @@ const maxCount = 1 << 20
 // empty sum 0.
 //
 // When the term is a normal, an exponential or a gamma and the count takes
-// at most 4096 values, the result is exact: the mixture Σ_n P(N = n)·law(S_n)
+// at most 4096 values (or the term is a mixture whose n-fold sums SumIID
+// expands exactly, an atom mixed with an exponential say, and the count
+// takes at most 64 values), the result is exact: the mixture Σ_n P(N = n)·law(S_n)
 // of the closed-form n-fold sums (P(N = 0) a point mass at 0), reporting
 // Accuracy (rounding, 1e-14 in the CDF, 1e-9 relative in the survival down to
 // 1e9 times the count mass cut off; a density that jumps at 0, as for a

@@ -1,6 +1,9 @@
 package dist
 
-import "fmt"
+import (
+	"fmt"
+	"math"
+)
 
 // maxExactCount is the largest number of count values for which RandomSum
 // writes the random sum of a closed-form term as an exact mixture.
@@ -65,7 +68,8 @@ func (m statedMixtureDensity) Density(x float64) float64 {
 }
 
 // closedRandomSum returns Σ_n P(N = n)·law(X_1 + … + X_n) when the term's
-// k-fold sums have closed forms (normal, exponential, gamma):
+// k-fold sums have closed forms (normal, exponential, gamma; or a mixture
+// whose k-fold sums SumIID expands exactly, for at most 64 count values):
 // P(N = 0) is a point mass at 0 and each k-fold sum is exact (a normal or a
 // gamma). The count mass beyond the last n (tail) is left out; it is at most
 // tail in the CDF, and at most tail in the survival, so the survival is
@@ -74,12 +78,24 @@ func (m statedMixtureDensity) Density(x float64) float64 {
 func closedRandomSum(ns []int, ps []float64, tail, mean, variance float64, term Law) (Law, bool, error) {
 	switch term.(type) {
 	case Normal, Exponential, Gamma:
+		if len(ns) > maxExactCount {
+			return nil, false, nil
+		}
 	default:
-		return nil, false, nil
+		// a mixture whose n-fold sums expand exactly: bounded total size
+		_, cs, isMix := mixtureParts(term)
+		if !isMix || len(ns) > 64 {
+			return nil, false, nil
+		}
+		size := 0.0
+		for _, n := range ns {
+			size += multichoose(len(cs), n)
+		}
+		if size > 4*maxIIDExpansion {
+			return nil, false, nil
+		}
 	}
-	if len(ns) > maxExactCount {
-		return nil, false, nil
-	}
+	cdfAbs, rel, floor := tail+1e-14, 1e-9, max(tail*1e9, 1e-300)
 	laws := make([]Law, len(ns))
 	for i, n := range ns {
 		var err error
@@ -90,6 +106,14 @@ func closedRandomSum(ns []int, ps []float64, tail, mean, variance float64, term 
 		}
 		if err != nil {
 			return nil, false, err
+		}
+		if _, numeric := laws[i].(*numLaw); numeric {
+			return nil, false, nil
+		}
+		if e, ok := laws[i].(Estimated); ok {
+			a := e.Accuracy()
+			cdfAbs += ps[i] * a.CDFAbs
+			rel, floor = math.Max(rel, a.SurvivalRel), math.Max(floor, a.TailFloor)
 		}
 	}
 	m, err := Mixture(ps, laws)
@@ -109,10 +133,10 @@ func closedRandomSum(ns []int, ps []float64, tail, mean, variance float64, term 
 	// components: normal and gamma laws, CDF to a few ulps, survival to about
 	// 1e-13 relative (their own tests); the cut count mass adds tail
 	acc := Accuracy{
-		CDFAbs:      tail + 1e-14,
-		SurvivalRel: 1e-9,
-		TailFloor:   max(tail*1e9, 1e-300),
-		Method:      fmt.Sprintf("exact mixture of %d closed-form k-fold sums (count mass %.1e cut)", len(ns), tail),
+		CDFAbs:      cdfAbs,
+		SurvivalRel: rel,
+		TailFloor:   floor,
+		Method:      fmt.Sprintf("exact mixture of %d k-fold sums (count mass %.1e cut)", len(ns), tail),
 	}
 	sm := statedMixture{mixture: base, acc: acc, mean: mean, variance: variance, kind: "RandomSum"}
 	if dens {

@@ -622,3 +622,38 @@ func gammaCDFSurv(j int, rate, y float64) (f, s float64) {
 	}
 	return distuv.Gamma{Alpha: float64(j), Beta: rate}.CDF(y), mathext.GammaIncRegComp(float64(j), rate*y)
 }
+
+func TestRandomSumOfAtomExponentialMixture(t *testing.T) {
+	// Up to four attempts (N on {1, 2, 3, 4}), each 0.3·δ_{0.5} +
+	// 0.7·Exp(2). Given N = n, J ~ Binomial(n, 0.7) attempts are
+	// exponential: the sum is (n - J)·0.5 + Gamma(J, 2). Oracle: binomial
+	// masses by mathext.RegIncBeta (binomPMF) and gammaCDFSurv (gonum).
+	m, err := dist.Mixture([]float64{0.3, 0.7}, []dist.Law{dist.MustPointMass(0.5), dist.MustExponential(2)})
+	require.NoError(t, err)
+	pn := []float64{0.4, 0.3, 0.2, 0.1}
+	count := dist.MustDiscrete([]float64{1, 2, 3, 4}, pn)
+	l, err := dist.RandomSum(count, m)
+	require.NoError(t, err)
+	cdfSurv := func(x float64) (f, s float64) {
+		for i, q := range pn {
+			n := i + 1
+			for j := 0; j <= n; j++ {
+				w := q * binomPMF(n, j, 0.7)
+				df, ds := gammaCDFSurv(j, 2, x-0.5*float64(n-j))
+				f, s = f+w*df, s+w*ds
+			}
+		}
+		return f, s
+	}
+	cdf := func(x float64) float64 { f, _ := cdfSurv(x); return f }
+	surv := func(x float64) float64 { _, s := cdfSurv(x); return s }
+	xs := append(grid(0.01, 8, 200), 10, 12, 15, 18)
+	wa, wr := checkAccuracy(t, l, xs, cdf, surv, 1e-14)
+	t.Logf("random sum of atom+exponential attempts: worst CDF abs %.2e, survival rel %.2e; %+v", wa, wr, l.(dist.Estimated).Accuracy())
+	assert.LessOrEqual(t, wa, testref.TolCDF)
+	assert.LessOrEqual(t, wr, testref.TolTailRel)
+	en, vn := count.Mean(), count.Variance()
+	assert.InEpsilon(t, en*m.Mean(), l.Mean(), 1e-12)
+	assert.InEpsilon(t, en*m.Variance()+vn*m.Mean()*m.Mean(), l.Variance(), 1e-12)
+	require.NoError(t, disttest.Check(l, disttest.WithSamples(20000)))
+}

@@ -53,6 +53,16 @@ func (m statedMixture) Quantile(p float64) float64 { return quantileByInversion(
 // UpperQuantile inverts Survival; accurate for tiny q.
 func (m statedMixture) UpperQuantile(q float64) float64 { return upperQuantileByInversion(m, q) }
 
+// CF returns the characteristic function Σ w_i·φ_i(t) (NaN when a
+// component's transform is unknown, or for NaN t).
+func (m statedMixture) CF(t float64) complex128 {
+	tr, ok := mixtureTransform(m.mixture)
+	if !ok || math.IsNaN(t) {
+		return complex(math.NaN(), math.NaN())
+	}
+	return cexpm1(tr.logm(complex(0, t))) + 1
+}
+
 // Accuracy reports the error bound of the mixture.
 func (m statedMixture) Accuracy() Accuracy { return m.acc }
 

@@ -657,3 +657,21 @@ func TestRandomSumOfAtomExponentialMixture(t *testing.T) {
 	assert.InEpsilon(t, en*m.Variance()+vn*m.Mean()*m.Mean(), l.Variance(), 1e-12)
 	require.NoError(t, disttest.Check(l, disttest.WithSamples(20000)))
 }
+
+func TestSumExpandedMixtureCharFunc(t *testing.T) {
+	// The expanded sum keeps a characteristic function: that of
+	// (0.3·δ0 + 0.7·Exp(1)) + Exp(3) is (0.3 + 0.7/(1 - it))/(1 - it/3)
+	// (the exponential's transform, a standard result).
+	m, err := dist.Mixture([]float64{0.3, 0.7}, []dist.Law{dist.MustPointMass(0), dist.MustExponential(1)})
+	require.NoError(t, err)
+	l, err := dist.Sum(m, dist.MustExponential(3))
+	require.NoError(t, err)
+	c, ok := l.(dist.CharFunc)
+	require.True(t, ok, "%T", l)
+	for _, u := range []float64{0, 0.3, 1, 5, 40} {
+		want := (0.3 + 0.7/complex(1, -u)) / complex(1, -u/3)
+		got := c.CF(u)
+		assert.InDelta(t, real(want), real(got), 1e-14, "t=%g", u)
+		assert.InDelta(t, imag(want), imag(got), 1e-14, "t=%g", u)
+	}
+}

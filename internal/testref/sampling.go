@@ -3,8 +3,6 @@ package testref
 import (
 	"math"
 	"slices"
-
-	"gonum.org/v1/gonum/mathext"
 )
 
 // KSStatistic returns the Kolmogorov–Smirnov distance
@@ -60,45 +58,6 @@ func KSCritical(n int, level float64) float64 {
 		return math.NaN()
 	}
 	return math.Sqrt(math.Log(2/level) / (2 * float64(n)))
-}
-
-// BinomialTails returns P(C <= k) and P(C >= k) for C ~ Binomial(n, p),
-// exactly (to the accuracy of gonum's regularised incomplete beta function,
-// about 1e-14 relative) through
-//
-//	P(C <= k) = I_{1-p}(n-k, k+1),  P(C >= k) = I_p(k, n-k+1)
-//
-// (Abramowitz & Stegun 1964, eq. 26.5.24 — from memory). It returns NaN
-// unless n >= 0 and 0 <= p <= 1.
-func BinomialTails(n, k int, p float64) (atMost, atLeast float64) {
-	if n < 0 || !(p >= 0 && p <= 1) {
-		return math.NaN(), math.NaN()
-	}
-	switch {
-	case k < 0:
-		atMost = 0
-	case k >= n:
-		atMost = 1
-	case p == 0:
-		atMost = 1
-	case p == 1:
-		atMost = 0
-	default:
-		atMost = mathext.RegIncBeta(float64(n-k), float64(k+1), 1-p)
-	}
-	switch {
-	case k <= 0:
-		atLeast = 1
-	case k > n:
-		atLeast = 0
-	case p == 0:
-		atLeast = 0
-	case p == 1:
-		atLeast = 1
-	default:
-		atLeast = mathext.RegIncBeta(float64(k), float64(n-k+1), p)
-	}
-	return atMost, atLeast
 }
 
 // BinomialInterval returns the acceptance interval [lo, hi] for a count

@@ -1,0 +1,97 @@
+package dist
+
+import (
+	"math"
+	"math/cmplx"
+	"math/rand/v2"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+	"gonum.org/v1/gonum/dsp/fourier"
+)
+
+func TestFFT2AgainstGonum(t *testing.T) {
+	// oracle: gonum dsp/fourier CmplxFFT.Coefficients (the same DFT sign
+	// convention, Σ x_j·exp(-2πi·jr/N))
+	r := rand.New(rand.NewPCG(3, 4))
+	for _, n := range []int{2, 8, 1024, 8192} {
+		x := make([]complex128, n)
+		for i := range x {
+			x[i] = complex(r.NormFloat64(), r.NormFloat64())
+		}
+		want := fourier.NewCmplxFFT(n).Coefficients(nil, x)
+		got := append([]complex128(nil), x...)
+		fft2(got, twiddles(n))
+		tol := 1e-15 * math.Sqrt(float64(n)) * math.Log2(float64(n)) * 4
+		for i := range got {
+			require.LessOrEqual(t, cmplx.Abs(got[i]-want[i]), tol, "n=%d i=%d", n, i)
+		}
+	}
+}
+
+func TestDiscreteAxisWithinStatedError(t *testing.T) {
+	// oracle: the transform Σ p·exp(i·t·v) summed directly with
+	// math.Sincos per atom and point (the definition)
+	d := MustDiscrete([]float64{10, 12, 15, 21, 30, 44, 0.3, 57.25}, []float64{0.2, 0.2, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1})
+	add, vmax := discreteAxis(d)
+	for _, h := range []float64{0.0627, 0.9, 3.1} {
+		for _, k0 := range []int{1, 33, 2049} {
+			out := make([]complex128, axisBlock)
+			add(h, k0, out)
+			for j, lm := range out {
+				var want complex128
+				for i, v := range d.values {
+					s, c := math.Sincos(float64(k0+j) * h * v)
+					want += complex(d.probs[i]*c, d.probs[i]*s)
+				}
+				// stated bound, plus the oracle's own argument rounding
+				// (2^-53·|t·v| twice)
+				tt := float64(k0+j) * h
+				tol := axisErr + axisPhase*tt*vmax + 2.3e-16*tt*vmax
+				assert.LessOrEqual(t, cmplx.Abs(cmplx.Exp(lm)-want), tol, "h=%v k=%d", h, k0+j)
+			}
+		}
+	}
+}
+
+func TestQuinticHermiteReproducesQuintics(t *testing.T) {
+	// a quintic Hermite interpolant is exact for polynomials of degree <= 5
+	// (the defining property of the basis)
+	p := func(x float64) (float64, float64, float64) {
+		return 1 + x - 2*x*x + 0.5*x*x*x - 0.1*x*x*x*x + 0.03*x*x*x*x*x,
+			1 - 4*x + 1.5*x*x - 0.4*x*x*x + 0.15*x*x*x*x,
+			-4 + 3*x - 1.2*x*x + 0.6*x*x*x
+	}
+	g := &cdfGrid{y0: -1, dy: 0.5}
+	for r := 0; r < 6; r++ {
+		v, d, d2 := p(-1 + 0.5*float64(r))
+		g.F, g.f, g.f1 = append(g.F, v), append(g.f, d), append(g.f1, d2)
+	}
+	for _, x := range []float64{-1, -0.9, -0.26, 0.1, 0.77, 1.3, 1.49} {
+		want, _, _ := p(x)
+		assert.InDelta(t, want, g.at(x), 1e-13, "x=%v", x)
+	}
+}
+
+func TestSixTermGridWithinBound(t *testing.T) {
+	// the grid of the six-term sum against its own series at points off the
+	// grid: the measured midpoint error (in Accuracy) must bound it
+	d6 := MustDiscrete([]float64{10, 12, 15, 21, 30, 44}, []float64{0.3, 0.25, 0.2, 0.12, 0.08, 0.05})
+	d3 := MustDiscrete([]float64{0, 4.5, 9}, []float64{0.7, 0.2, 0.1})
+	tn, err := NewTruncated(MustNormal(3, 1.5), 0, math.Inf(1))
+	require.NoError(t, err)
+	l, err := Sum(d6, d3, tn, MustUniform(1, 2.5), MustGamma(2.5, 1.2), MustExponential(0.8))
+	require.NoError(t, err)
+	nl := l.(*numLaw)
+	g := nl.buildGrid()
+	require.NotNil(t, g)
+	require.LessOrEqual(t, g.err, gridMaxErr)
+	r := rand.New(rand.NewPCG(5, 6))
+	var worst float64
+	for i := 0; i < 2000; i++ {
+		y := nl.a + r.Float64()*(nl.b-nl.a)
+		worst = math.Max(worst, math.Abs(g.at(y)-nl.bulkCDF(y)))
+	}
+	assert.LessOrEqual(t, worst, 2*g.err+g.round+1e-15)
+}

@@ -20,6 +20,10 @@ func binomialTailsBig(n int, p float64) (atMost, atLeast []float64) {
 	const bits = 60
 	a := new(big.Int).SetUint64(uint64(math.Ldexp(mant, bits)))
 	s := uint(bits - exp) // p = a / 2^s exactly
+	for a.Bit(0) == 0 {   // lowest terms, so that dyadic p stay short
+		a.Rsh(a, 1)
+		s--
+	}
 	one := new(big.Int).Lsh(big.NewInt(1), s)
 	b := new(big.Int).Sub(one, a)
 	terms := make([]*big.Int, n+1)
@@ -129,6 +133,29 @@ func TestBinomialMedianHalf(t *testing.T) {
 	}
 	le, _ := BinomialTails(2e7, 1e7, 0.5)
 	assert.InDelta(t, 0.5000892, le, 1e-7)
+}
+
+// Far tails at n = 20000 (down to about 1e-300) against exact
+// big-integer sums (the binomial theorem, binomialTailsBig), at short
+// dyadic p so that the exact integers stay small.
+func TestBinomialTailsFarExact(t *testing.T) {
+	const n = 20000
+	for _, p := range []float64{0.5, 0.03125, 0.75} {
+		le, ge := binomialTailsBig(n, p)
+		worst := 0.0
+		for k := 0; k <= n; k += 7 {
+			gle, gge := BinomialTails(n, k, p)
+			for _, c := range [][2]float64{{gle, le[k]}, {gge, ge[k]}} {
+				if c[1] < 1e-300 {
+					require.Less(t, c[0], 2e-300, "p=%v k=%d", p, k)
+					continue
+				}
+				worst = math.Max(worst, RelErr(c[0], c[1]))
+			}
+		}
+		assert.LessOrEqual(t, worst, binomialRelTol, "p=%v", p)
+		t.Logf("n=%d p=%v worst rel err %.2g", n, p, worst)
+	}
 }
 
 // Symmetry of Binomial(n, 1/2): P(C <= k) = P(C >= n−k) (the law of C is

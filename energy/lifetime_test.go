@@ -245,7 +245,7 @@ func TestLifetimeAgainstSimulation(t *testing.T) {
 // period fixed), as an exact class A description gives. With two cycle
 // energies e0 < e1 (downlink or not), S_k = k·e0 + N·(e1 − e0) with
 // N ~ Binomial(k, p), so P(S_k <= C) = P(N <= (C − k·e0)/(e1 − e0)) exactly
-// (testref.BinomialTails, from gonum's incomplete beta), checked here at
+// (testref.BinomialTails: Loader 2000 masses summed outward), checked here at
 // about 10^6 cycles; and a six-energy cycle, computed by the saddlepoint,
 // against walking the cycles (Simulate) at about 400 cycles.
 func TestLifetimeDiscreteCycle(t *testing.T) {

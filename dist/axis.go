@@ -66,3 +66,58 @@ func logmAdder(tr transform) axisAdder {
 		}
 	}
 }
+
+// axisAdderOf returns the axis adder of a non-discrete part of a Sum: real
+// closed forms on the axis for the uniform, gamma, exponential and normal
+// laws (the same closed forms as cf.go, written for s = i·t, to rounding),
+// tr.logm point by point otherwise.
+//
+//	uniform on m ± w:  log M(it) = i·t·m + log(sin(t·w)/(t·w))
+//	gamma(k, λ):       log M(it) = -k/2·log1p((t/λ)²) + i·k·atan(t/λ)
+//	normal(μ, σ):      log M(it) = i·μ·t - σ²·t²/2
+//
+// (the logarithm of a negative sinc is taken as log|sinc| + iπ: only
+// exp(log M) is used, so the branch does not matter).
+func axisAdderOf(p Law, tr transform) axisAdder {
+	switch b := p.(type) {
+	case Uniform:
+		w := (b.hi - b.lo) / 2
+		m := b.lo + w
+		return func(h float64, k0 int, out []complex128) {
+			for j := range out {
+				t := float64(k0+j) * h
+				x := t * w
+				sc := 1.0
+				if x != 0 {
+					sc = math.Sin(x) / x
+				}
+				im := t * m
+				if sc < 0 {
+					im += math.Pi
+				}
+				out[j] += complex(math.Log(math.Abs(sc)), im)
+			}
+		}
+	case Gamma:
+		return gammaAxis(b.shape, b.rate)
+	case Exponential:
+		return gammaAxis(1, b.rate)
+	case Normal:
+		return func(h float64, k0 int, out []complex128) {
+			for j := range out {
+				t := float64(k0+j) * h
+				out[j] += complex(-0.5*b.sigma*b.sigma*t*t, b.mu*t)
+			}
+		}
+	}
+	return logmAdder(tr)
+}
+
+func gammaAxis(k, rate float64) axisAdder {
+	return func(h float64, k0 int, out []complex128) {
+		for j := range out {
+			u := float64(k0+j) * h / rate
+			out[j] += complex(-0.5*k*math.Log1p(u*u), k*math.Atan(u))
+		}
+	}
+}

@@ -31,7 +31,8 @@ const (
 	gridMaxErr  = 1e-13 // largest accepted midpoint interpolation error
 	gridMaxSize = 1 << 18
 	gridMinSize = 1 << 10
-	gridPerTerm = 2 // grid points per series term (N >= gridPerTerm·n, a power of 2)
+	gridDropTol = 3e-15 // sum of the magnitudes of the series terms the grid may leave out
+	gridPerTerm = 1     // grid points per series term (N >= gridPerTerm·n, a power of 2)
 )
 
 // cdfGrid holds F, f and f' of the continuous part at y0 + r·dy.
@@ -44,7 +45,18 @@ type cdfGrid struct {
 
 // buildGrid returns the grid, or nil when it is too large or not accurate.
 func (l *numLaw) buildGrid() *cdfGrid {
+	// terms beyond n whose magnitudes sum below gridDropTol are left out
+	// (their sum, over π, is added to the stated bound)
 	n := len(l.pr)
+	var drop float64
+	for n > 1 {
+		d := math.Hypot(l.pr[n-1], l.pi[n-1])
+		if drop+d > gridDropTol {
+			break
+		}
+		drop += d
+		n--
+	}
 	N := gridMinSize
 	for N < gridPerTerm*n || N < 2*n+2 {
 		N *= 2
@@ -101,7 +113,7 @@ func (l *numLaw) buildGrid() *cdfGrid {
 		got := gr.at(y)
 		gr.err = math.Max(gr.err, math.Abs(got-want))
 	}
-	gr.round = float64(bits.Len(uint(N))) * 1e-16 * absSum / math.Pi
+	gr.round = float64(bits.Len(uint(N)))*1e-16*absSum/math.Pi + drop/math.Pi
 	if !(gr.err <= gridMaxErr) {
 		return nil
 	}

@@ -95,3 +95,31 @@ func TestSixTermGridWithinBound(t *testing.T) {
 	}
 	assert.LessOrEqual(t, worst, 2*g.err+g.round+1e-15)
 }
+
+func TestAxisAddersAgainstTransforms(t *testing.T) {
+	// oracle: the complex closed forms of cf.go (exp of transformOf's logm),
+	// which are tested against gonum's laws elsewhere; relative agreement
+	tn, err := NewTruncated(MustNormal(3, 1.5), 0, math.Inf(1))
+	require.NoError(t, err)
+	laws := []Law{MustUniform(1, 2.5), MustUniform(-3, 7), MustGamma(2.5, 1.2), MustExponential(0.8), MustNormal(-2, 0.7), tn}
+	for _, l := range laws {
+		tr, ok := transformOf(l)
+		require.True(t, ok)
+		add := axisAdderOf(l, tr)
+		for _, h := range []float64{0.0627, 0.9} {
+			for _, k0 := range []int{1, 65, 1025} {
+				out := make([]complex128, axisBlock)
+				add(h, k0, out)
+				for j, lm := range out {
+					want := cmplx.Exp(tr.logm(complex(0, float64(k0+j)*h)))
+					got := cmplx.Exp(lm)
+					// relative 1e-14, plus the argument rounding both sides
+					// carry at large t (sin(x)/x off by a few 2^-53·|x|/|x|
+					// absolute; the oracle forms exp(x + log(…) - log x),
+					// so 9·2^-53 ≈ 1e-15 for the two)
+					assert.LessOrEqual(t, cmplx.Abs(got-want), 1e-14*cmplx.Abs(want)+1e-15, "%v h=%v k=%d", l, h, k0+j)
+				}
+			}
+		}
+	}
+}

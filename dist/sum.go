@@ -296,7 +296,7 @@ func numericSum(terms, parts []Law) (Law, error) {
 			disc = append(disc, a)
 			vsum += vmax
 		} else {
-			other = append(other, logmAdder(trs[i]))
+			other = append(other, axisAdderOf(p, trs[i]))
 		}
 	}
 	ts := append([]Law(nil), terms...)

@@ -151,6 +151,7 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	l.h = 2 * math.Pi / l.L
 	var trunc, absSum float64
 	quiet := 0
+	l.pr, l.pi = make([]float64, 0, 1024), make([]float64, 0, 1024)
 	var blk [axisBlock]complex128
 	var blkErr [axisBlock]float64
 	var axisSum float64
@@ -167,7 +168,7 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 		} else {
 			mc = l.contM(s, 0, 0)
 		}
-		p := mc / complex(float64(k), 0)
+		p := complex(real(mc)/float64(k), imag(mc)/float64(k))
 		l.pr = append(l.pr, real(p))
 		l.pi = append(l.pi, imag(p))
 		m := cmplx.Abs(mc)

@@ -27,7 +27,7 @@ import (
 // check fails and the series is summed for each value as before.
 
 const (
-	gridAfter   = 64    // bulk evaluations before the grid is built (about the cost of building it)
+	gridAfter   = 32    // bulk evaluations before the grid is built (about the cost of building it)
 	gridMaxErr  = 1e-13 // largest accepted midpoint interpolation error
 	gridMaxSize = 1 << 18
 	gridMinSize = 1 << 10

@@ -40,7 +40,7 @@ const MaxSumAtoms = 1 << 20
 //     series is cut at 65536 terms and the CDF error grows to about 1e-5;
 //     where it only has kinks (an exponential plus a uniform) the CDF stays
 //     near 1e-10 but the stated tail bound is loose. Accuracy reports it.
-//     A law evaluated more than 64 times answers from a grid of the
+//     A law evaluated more than 32 times answers from a grid of the
 //     series (see invert_grid.go), its measured interpolation error added
 //     to Accuracy.
 //

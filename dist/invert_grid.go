@@ -27,9 +27,9 @@ import (
 // check fails and the series is summed for each value as before.
 
 const (
-	gridAfter   = 32    // bulk evaluations before the grid is built (about the cost of building it)
-	gridMaxErr  = 1e-13 // largest accepted midpoint interpolation error
-	gridMaxSize = 1 << 18
+	gridAfter   = 32      // bulk evaluations before the grid is built (about the cost of building it)
+	gridMaxErr  = 1e-13   // largest accepted midpoint interpolation error
+	gridMaxSize = 1 << 17 // (laws at the series cap, 2^16 terms, have jumps and skip the grid)
 	gridMinSize = 1 << 10
 	gridDropTol = 3e-15 // sum of the magnitudes of the series terms the grid may leave out
 	gridPerTerm = 1     // grid points per series term (N >= gridPerTerm·n, a power of 2)

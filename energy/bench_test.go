@@ -1,28 +1,16 @@
 package energy_test
 
 import (
-	"math/rand/v2"
-	"sort"
 	"testing"
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/testref"
 )
 
-// BenchmarkBaselineSort sorts 10 000 pseudo-random float64 values: the
-// baseline the other figures are divided by (as in BENCHMARKS.md).
-func BenchmarkBaselineSort(b *testing.B) {
-	r := rand.New(rand.NewPCG(1, 2))
-	src := make([]float64, 10000)
-	for i := range src {
-		src[i] = r.Float64()
-	}
-	xs := make([]float64, len(src))
-	for b.Loop() {
-		copy(xs, src)
-		sort.Float64s(xs)
-	}
-}
+// BenchmarkBaselineSort is the machine-speed reference that BENCHMARKS.md
+// divides by: sorting 10 000 pseudo-random float64 values (testref.SortBaseline).
+func BenchmarkBaselineSort(b *testing.B) { testref.SortBaseline(b) }
 
 func benchSoil(b *testing.B, sf []float64) energy.Cycle {
 	b.Helper()

@@ -1,27 +1,15 @@
 package lora_test
 
 import (
-	"math/rand/v2"
-	"sort"
 	"testing"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/testref"
 )
 
 // BenchmarkBaselineSort is the machine-speed reference that BENCHMARKS.md
-// divides by: sorting 10 000 pseudo-random float64 values.
-func BenchmarkBaselineSort(b *testing.B) {
-	r := rand.New(rand.NewPCG(1, 2))
-	src := make([]float64, 10000)
-	for i := range src {
-		src[i] = r.Float64()
-	}
-	xs := make([]float64, len(src))
-	for b.Loop() {
-		copy(xs, src)
-		sort.Float64s(xs)
-	}
-}
+// divides by: sorting 10 000 pseudo-random float64 values (testref.SortBaseline).
+func BenchmarkBaselineSort(b *testing.B) { testref.SortBaseline(b) }
 
 // BenchmarkClassACycle builds the per-cycle energy law of a confirmed class
 // A node over 6 data rates × 4 power levels with NbTrans = 8 (issue 6

@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
+	"sort"
 )
 
 // countTail is the count mass RandomSum may leave out when the count law has
@@ -96,6 +97,122 @@ func RandomSum(count, term Law) (Law, error) {
 	if !ok {
 		return nil, fmt.Errorf("dist.RandomSum: term %v has no known characteristic function: %w", term, ErrParam)
 	}
+	if ns[0] <= 2 && ns[len(ns)-1] > 0 {
+		return peelRandomSum(ns, ps, tail, en*mx, en*vx+vn*mx*mx, term, t)
+	}
+	return randomSumNumeric(ns, ps, tail, en*mx, en*vx+vn*mx*mx, term, t, count.Rand)
+}
+
+// maxPeel is the largest count RandomSum writes as a law of its own before
+// inverting the rest.
+const maxPeel = 2
+
+// peelRandomSum writes the random sum as the mixture
+//
+//	P(N = 0)·δ_0 + P(N = 1)·law(X) + P(N = 2)·law(X_1 + X_2) + P(N >= 3)·law(S_N | N >= 3)
+//
+// The term's own law is exact, the two-fold sum is a Sum, and only the rest
+// is inverted from G(M_X) restricted to n >= 3. A term whose density jumps
+// (a uniform or a truncated law) has a transform decaying like 1/t, and
+// the series for the whole random sum would meet that decay through the
+// P(N = 1) part (CDF error near 1e-5); the n-fold sums with n >= 3 have two
+// continuous derivatives less to lose and converge at the usual accuracy.
+func peelRandomSum(ns []int, ps []float64, tail, mean, variance float64, term Law, t transform) (Law, error) {
+	k := 0
+	for k < len(ns) && ns[k] <= maxPeel {
+		k++
+	}
+	var weights []float64
+	var laws []Law
+	for i := 0; i < k; i++ {
+		var l Law
+		var err error
+		switch ns[i] {
+		case 0:
+			l, err = NewPointMass(0)
+		case 1:
+			l = term
+		default:
+			l, err = SumIID(term, ns[i])
+		}
+		if err != nil {
+			return nil, err
+		}
+		weights, laws = append(weights, ps[i]), append(laws, l)
+	}
+	if k < len(ns) {
+		restMass := 0.0
+		for _, p := range ps[k:] {
+			restMass += p
+		}
+		rns := ns[k:]
+		rps := make([]float64, len(rns))
+		cum := make([]float64, len(rns))
+		var en, en2 float64
+		for i, p := range ps[k:] {
+			rps[i] = p / restMass
+			n := float64(rns[i])
+			en += rps[i] * n
+			en2 += rps[i] * n * n
+		}
+		c := 0.0
+		for i, p := range rps {
+			c += p
+			cum[i] = c
+		}
+		mx, vx := term.Mean(), term.Variance()
+		draw := func(r *rand.Rand) float64 {
+			u := r.Float64() * c
+			return float64(rns[sort.SearchFloat64s(cum, u)%len(rns)])
+		}
+		rest, err := randomSumNumeric(rns, rps, tail/restMass, en*mx, en*vx+(en2-en*en)*mx*mx, term, t, draw)
+		if err != nil {
+			return nil, err
+		}
+		weights, laws = append(weights, restMass), append(laws, rest)
+	}
+	m, err := Mixture(weights, laws)
+	if err != nil {
+		return nil, fmt.Errorf("dist.RandomSum: %w", err)
+	}
+	cdfAbs, rel, floor := 1e-14, 1e-12, 0.0
+	for i, l := range laws {
+		if e, ok := l.(Estimated); ok {
+			a := e.Accuracy()
+			cdfAbs += weights[i] * a.CDFAbs
+			rel, floor = math.Max(rel, a.SurvivalRel), math.Max(floor, a.TailFloor)
+		}
+	}
+	acc := Accuracy{CDFAbs: cdfAbs, SurvivalRel: rel, TailFloor: floor,
+		Method: fmt.Sprintf("mixture over the counts 0…%d, the rest (mass %.3g) inverted numerically", maxPeel, 1-sumOf(weights[:min(k, len(weights))]))}
+	sm := statedMixture{acc: acc, mean: mean, variance: variance, kind: "RandomSum", numeric: true}
+	switch b := m.(type) {
+	case mixture:
+		sm.mixture = b
+		return sm, nil
+	case mixtureDensity:
+		sm.mixture = b.mixture
+		return statedMixtureDensity{sm}, nil
+	}
+	return m, nil
+}
+
+// sumOf returns the sum of xs.
+func sumOf(xs []float64) float64 {
+	s := 0.0
+	for _, x := range xs {
+		s += x
+	}
+	return s
+}
+
+// randomSumNumeric inverts G(M_X(s)) = Σ_n P(N = n)·exp(n·log M_X(s)) for
+// the count masses ps at the values ns (tail: count mass left out, an extra
+// stated error); draw samples the count.
+func randomSumNumeric(ns []int, ps []float64, tail, mean, variance float64, term Law, t transform, draw func(*rand.Rand) float64) (Law, error) {
+	const fn = "RandomSum"
+	nmax := ns[len(ns)-1]
+	var err error
 	// exact atomic part: Σ_n p_n·(atoms of the term)^{*n}
 	var atoms []Atom
 	termAtoms := []Atom(nil)
@@ -107,25 +224,25 @@ func RandomSum(count, term Law) (Law, error) {
 		}
 	}
 	pow := []Atom{{Value: 0, Mass: 1}}
+	prev := 0
 	for j, n := range ns {
-		if j > 0 {
+		if n > 0 {
 			if len(termAtoms) == 0 || float64(n)*math.Log(aMass) < math.Log(1e-30) {
 				break
 			}
-			for m := ns[j-1]; m < n; m++ {
+			for m := prev; m < n; m++ {
 				if pow, err = convolveAtoms(fn, pow, termAtoms); err != nil {
 					return nil, err
 				}
 			}
+			prev = n
 		}
-		if n == 0 || len(termAtoms) > 0 {
-			for _, a := range pow {
-				atoms = append(atoms, Atom{Value: a.Value, Mass: a.Mass * ps[j]})
-			}
+		for _, a := range pow {
+			atoms = append(atoms, Atom{Value: a.Value, Mass: a.Mass * ps[j]})
 		}
 	}
 	atoms = mergeAtoms(atoms)
-	c := en * mx
+	c := mean
 	cc := complex(c, 0)
 	fns := make([]float64, len(ns))
 	for i, n := range ns {
@@ -161,7 +278,7 @@ func RandomSum(count, term Law) (Law, error) {
 	supLo := math.Min(prodInf(nmin, tlo), prodInf(nTop, tlo))
 	supHi := math.Max(prodInf(nmin, thi), prodInf(nTop, thi))
 	sp := numSpec{
-		kind: "RandomSum", tr: tr, c: c, mean: c, variance: en*vx + vn*mx*mx, atoms: atoms,
+		kind: "RandomSum", tr: tr, c: c, mean: c, variance: variance, atoms: atoms,
 		supLo: supLo, supHi: supHi, extraErr: tail,
 		fallback: func(eps float64) (a, b float64) {
 			e := eps / float64(nmax)
@@ -171,7 +288,7 @@ func RandomSum(count, term Law) (Law, error) {
 			return a, b
 		},
 		sample: func(r *rand.Rand) float64 {
-			n := int(math.Round(count.Rand(r)))
+			n := int(math.Round(draw(r)))
 			x := 0.0
 			for i := 0; i < n; i++ {
 				x += term.Rand(r)

@@ -17,6 +17,7 @@ type statedMixture struct {
 	acc            Accuracy
 	mean, variance float64
 	kind           string // "Sum" or "RandomSum"
+	numeric        bool   // some component is a numerical inversion
 }
 
 // Mean returns the exact mean E[N]·E[X] (not that of the cut count).
@@ -67,7 +68,11 @@ func (m statedMixture) CF(t float64) complex128 {
 func (m statedMixture) Accuracy() Accuracy { return m.acc }
 
 func (m statedMixture) String() string {
-	return fmt.Sprintf("%s(mixture of %d closed forms, %s)", m.kind, len(m.laws), summary(m))
+	what := "closed forms"
+	if m.numeric {
+		what = "laws"
+	}
+	return fmt.Sprintf("%s(mixture of %d %s, %s)", m.kind, len(m.laws), what, summary(m))
 }
 
 // statedMixtureDensity is a statedMixture with a density.
@@ -117,7 +122,7 @@ func closedRandomSum(ns []int, ps []float64, tail, mean, variance float64, term 
 		if err != nil {
 			return nil, false, err
 		}
-		if _, numeric := laws[i].(*numLaw); numeric {
+		if isNumeric(laws[i]) {
 			return nil, false, nil
 		}
 		if e, ok := laws[i].(Estimated); ok {

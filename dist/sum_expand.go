@@ -9,6 +9,11 @@ import (
 // expands exactly when some terms are mixtures.
 const maxMixtureExpansion = 256
 
+// maxNumericCombos is the largest number of component combinations without
+// a closed form that the expansion inverts one by one (each is its own
+// Fourier-series inversion); beyond it the whole sum is inverted at once.
+const maxNumericCombos = 8
+
 // mixtureParts returns the weights and components of a mixture term.
 func mixtureParts(l Law) ([]float64, []Law, bool) {
 	switch b := l.(type) {
@@ -30,14 +35,17 @@ func mixtureParts(l Law) ([]float64, []Law, bool) {
 //	Σ_i X_i = Σ_{j_1…j_n} (Π w_{i,j_i})·law(Σ_i C_{i,j_i}),
 //
 // and returns it when there are at most maxMixtureExpansion combinations and
-// every combination's sum has a closed form (no numerical inversion). A
-// mixture of a point mass and an exponential, say, has a density that jumps
-// at the atom; inverting the whole sum would meet a transform that decays
-// only like 1/t, while each combination is exact (a shifted hypoexponential,
-// gamma or discrete law). The result reports Accuracy: the components'
-// rounding (1e-14 absolute in the CDF, 1e-12 relative in the survival) and
-// the weighted errors of the components that report their own. ok is false
-// when the expansion does not apply.
+// at most maxNumericCombos of them need a numerical inversion (the others
+// have closed forms). A mixture of a point mass and an exponential, say, has
+// a density that jumps at the atom; inverting the whole sum would meet a
+// transform that decays only like 1/t and a CDF error near 1e-5, while each
+// combination is exact (a shifted hypoexponential, gamma or discrete law) or
+// is inverted on its own, where the jump of one combination no longer spoils
+// the others (point mass or uniform + exponential: the exponential alone is
+// exact, the uniform + exponential has a continuous density). The result
+// reports Accuracy: the components' rounding (1e-14 absolute in the CDF,
+// 1e-12 relative in the survival) and the weighted errors of the components
+// that report their own. ok is false when the expansion does not apply.
 func expandMixtures(terms []Law) (l Law, ok bool, err error) {
 	combos := 1
 	any := false
@@ -59,6 +67,7 @@ func expandMixtures(terms []Law) (l Law, ok bool, err error) {
 	// error of the components that report one (a hypoexponential, say);
 	// the others are exact to rounding
 	cdfAbs, rel, floor := 1e-14, 1e-12, 0.0
+	numeric := 0
 	for {
 		w := 1.0
 		combo := make([]Law, 0, len(terms))
@@ -75,8 +84,10 @@ func expandMixtures(terms []Law) (l Law, ok bool, err error) {
 			if err != nil {
 				return nil, false, err
 			}
-			if _, numeric := s.(*numLaw); numeric {
-				return nil, false, nil
+			if isNumeric(s) {
+				if numeric++; numeric > maxNumericCombos {
+					return nil, false, nil
+				}
 			}
 			if e, est := s.(Estimated); est {
 				a := e.Accuracy()
@@ -106,8 +117,11 @@ func expandMixtures(terms []Law) (l Law, ok bool, err error) {
 	if err != nil {
 		return nil, false, fmt.Errorf("dist.Sum: expanding mixtures: %w", err)
 	}
-	acc := Accuracy{CDFAbs: cdfAbs, SurvivalRel: rel, TailFloor: floor,
-		Method: fmt.Sprintf("exact mixture of the sums of %d component combinations", len(laws))}
+	method := fmt.Sprintf("exact mixture of the sums of %d component combinations", len(laws))
+	if numeric > 0 {
+		method = fmt.Sprintf("mixture of the sums of %d component combinations, %d of them inverted numerically", len(laws), numeric)
+	}
+	acc := Accuracy{CDFAbs: cdfAbs, SurvivalRel: rel, TailFloor: floor, Method: method}
 	var mean, variance float64
 	for _, t := range terms {
 		mean += t.Mean()
@@ -115,9 +129,9 @@ func expandMixtures(terms []Law) (l Law, ok bool, err error) {
 	}
 	switch b := m.(type) {
 	case mixture:
-		return statedMixture{mixture: b, acc: acc, mean: mean, variance: variance, kind: "Sum"}, true, nil
+		return statedMixture{mixture: b, acc: acc, mean: mean, variance: variance, kind: "Sum", numeric: numeric > 0}, true, nil
 	case mixtureDensity:
-		return statedMixtureDensity{statedMixture{mixture: b.mixture, acc: acc, mean: mean, variance: variance, kind: "Sum"}}, true, nil
+		return statedMixtureDensity{statedMixture{mixture: b.mixture, acc: acc, mean: mean, variance: variance, kind: "Sum", numeric: numeric > 0}}, true, nil
 	}
 	return m, true, nil
 }
@@ -181,7 +195,7 @@ func expandMixtureIID(l Law, k int) (Law, bool, error) {
 			if err != nil {
 				return err
 			}
-			if _, numeric := s.(*numLaw); numeric {
+			if isNumeric(s) {
 				bail = true
 				return nil
 			}
@@ -226,4 +240,18 @@ func expandMixtureIID(l Law, k int) (Law, bool, error) {
 		return statedMixtureDensity{statedMixture{mixture: b.mixture, acc: acc, mean: mean, variance: variance, kind: "SumIID"}}, true, nil
 	}
 	return m, true, nil
+}
+
+// isNumeric reports whether l is computed by a numerical inversion (a
+// Fourier-series or lattice law, or a mixture holding one).
+func isNumeric(l Law) bool {
+	switch b := l.(type) {
+	case *numLaw, *latticeLaw:
+		return true
+	case statedMixture:
+		return b.numeric
+	case statedMixtureDensity:
+		return b.numeric
+	}
+	return false
 }

@@ -109,6 +109,10 @@ func axisAdderOf(p Law, tr transform) axisAdder {
 				out[j] += complex(-0.5*b.sigma*b.sigma*t*t, b.mu*t)
 			}
 		}
+	case truncatedDensity:
+		if nb, ok := b.base.(Normal); ok {
+			return truncNormalAxis(nb.mu, nb.sigma, b.lo, b.hi, b.mass)
+		}
 	}
 	return logmAdder(tr)
 }
@@ -120,4 +124,146 @@ func gammaAxis(k, rate float64) axisAdder {
 			out[j] += complex(-0.5*k*math.Log1p(u*u), k*math.Atan(u))
 		}
 	}
+}
+
+// logOf is cmplx.Log without the hypotenuse: ½·log(x² + y²) + i·atan2(y, x)
+// (the squared modulus rounds to 2^-53 relative, so the real part is off by
+// at most 1.2e-16 more than cmplx.Log's); cmplx.Log where the square would
+// underflow or overflow.
+func logOf(z complex128) complex128 {
+	x, y := real(z), imag(z)
+	n2 := x*x + y*y
+	if !(n2 > 1e-300 && n2 < 1e300) {
+		return cmplx.Log(z)
+	}
+	return complex(0.5*math.Log(n2), math.Atan2(y, x))
+}
+
+// Truncated normal on the axis. For X normal (μ, σ) conditioned on
+// [lo, hi] (mass Z under the parent, density f/Z there), integration by
+// parts n times gives
+//
+//	Z·M(it) = Σ_{m<n} [exp(itx)·f(x)·He_m(z)/(σ^m·(it)^(m+1))]_lo^hi + R_n,
+//	|R_n| <= |t|^-n·∫|f^(n)| dx <= √(n!)·q^n,  q = 1/(σ|t|),  z = (x - μ)/σ,
+//
+// from f^(m)(x) = (-1/σ)^m·He_m(z)·f(x) (He the probabilists' Hermite
+// polynomials) and ∫|He_n(z)|·φ(z) dz <= √(E He_n(Z)²) = √(n!) (Cauchy–
+// Schwarz). With A + iB = Σ_m He_m(z)·(-iq)^m an end contributes
+// exp(itx)·f(x)·(B - iA)/t. The expansion is used where n <= truncEndTerms
+// terms bring √(n!)·q^n below truncEndTol·Z and the rounding of the sum
+// (4e-16·(n+2) times the sum of the terms' magnitudes) below truncEndRound:
+// absolute error in M at most 1e-16 + 1e-14, inside the 1e-13 stated for
+// the transform (and counted in the Sum's bound through it). Near t = 0 (σ|t| below about 12 for these limits) the Faddeeva
+// closed form truncNormalLogM is used, as everywhere else.
+
+const (
+	truncEndTerms = 64    // most terms of the expansion
+	truncEndMinSt = 8.5   // smallest σ|t| tried (64 terms reach 1e-16 from about 9)
+	truncEndTol   = 1e-16 // remainder bound, absolute in M
+	truncEndRound = 1e-14 // rounding bound, absolute in M
+)
+
+// truncEnd is one finite end x of a truncated normal: ±f(x) (+ at hi, - at
+// lo) and He_m(u)·(-i)^m folded into real coefficients (he[m] = ±He_m(u):
+// even m go into A with sign (-1)^(m/2), odd m into B with sign
+// -(-1)^((m-1)/2)).
+type truncEnd struct {
+	x, g      float64
+	he, heAbs [truncEndTerms]float64
+}
+
+// truncNormalAxis returns the axis adder of a normal (μ, σ) truncated to
+// [lo, hi] with parent mass z.
+func truncNormalAxis(mu, sigma, lo, hi, z float64) axisAdder {
+	ends := truncEndsOf(mu, sigma, lo, hi)
+	lz := math.Log(z)
+	return func(h float64, k0 int, out []complex128) {
+		for j := range out {
+			t := float64(k0+j) * h
+			if v, _, ok := truncNormalEnds(ends, t, sigma, z); ok {
+				out[j] += logOf(v)
+				continue
+			}
+			out[j] += truncNormalLogM(complex(0, t), mu, sigma, lo, hi, lz)
+		}
+	}
+}
+
+// truncEndsOf returns the finite ends of a normal (μ, σ) truncated to
+// [lo, hi] whose density there does not underflow.
+func truncEndsOf(mu, sigma, lo, hi float64) []truncEnd {
+	var ends []truncEnd
+	for i, x := range [2]float64{lo, hi} {
+		if math.IsInf(x, 0) {
+			continue
+		}
+		u := (x - mu) / sigma
+		g := math.Exp(-u*u/2) / (sigma * math.Sqrt(2*math.Pi))
+		if g == 0 {
+			continue
+		}
+		e := truncEnd{x: x, g: g}
+		if i == 0 {
+			e.g = -g
+		}
+		hp, hc := 0.0, 1.0
+		for m := 0; m < truncEndTerms; m++ {
+			sg := 1.0
+			if m%4 == 1 || m%4 == 2 {
+				sg = -1
+			}
+			e.he[m], e.heAbs[m] = sg*hc, math.Abs(hc)
+			hp, hc = hc, u*hc-float64(m)*hp
+		}
+		ends = append(ends, e)
+	}
+	return ends
+}
+
+// truncNormalEnds returns M(it) by the end expansion above, t > 0, with a
+// bound on its absolute error (remainder and rounding), and whether it
+// could be used: remainder at most truncEndTol, rounding at most
+// truncEndRound.
+func truncNormalEnds(ends []truncEnd, t, sigma, z float64) (complex128, float64, bool) {
+	q := 1 / (sigma * t)
+	if !(q < 1/truncEndMinSt) {
+		return 0, 0, false
+	}
+	// n: the first with √(n!)·q^n <= tol·Z (checked squared)
+	q2 := q * q
+	tol2 := truncEndTol * z * truncEndTol * z
+	b2, n := 1.0, 0
+	for b2 > tol2 {
+		n++
+		if n > truncEndTerms || float64(n)*q2 >= 1 {
+			return 0, 0, false
+		}
+		b2 *= float64(n) * q2
+	}
+	var sum complex128
+	var mag float64
+	for i := range ends {
+		e := &ends[i]
+		// A = Σ even he[m]·q^m, B = Σ odd he[m]·q^m (Horner in q²)
+		var a, b, abs float64
+		for m := n - 1; m >= 0; m-- {
+			if m%2 == 0 {
+				a = a*q2 + e.he[m]
+			} else {
+				b = b*q2 + e.he[m]
+			}
+			abs = abs*q + e.heAbs[m]
+		}
+		b *= q
+		sn, cs := math.Sincos(t * e.x)
+		gt := e.g / t
+		// exp(itx)·g·(B - iA)/t
+		sum += complex(gt*(cs*b+sn*a), gt*(sn*b-cs*a))
+		mag += math.Abs(gt) * abs
+	}
+	round := 4e-16 * float64(n+2) * mag / z
+	if round > truncEndRound {
+		return 0, 0, false
+	}
+	return sum / complex(z, 0), math.Sqrt(b2)/z + round, true
 }

@@ -89,3 +89,60 @@ func TestTruncatedNormalTransform(t *testing.T) {
 		}
 	}
 }
+
+func TestTruncNormalEndExpansion(t *testing.T) {
+	// oracle: the transform by quadrature of the truncated density
+	// (oscQuad, 16-point Gauss–Legendre on short panels, over the interval
+	// cut at 12 σ, in x - μ so that its phases are short, times exp(itμ));
+	// the expansion must agree within its stated absolute error bound plus
+	// the quadrature's rounding (1e-15) and the rounding of the phases t·μ
+	// and t·x (2^-53 relative each: on |M| for t·μ, on the end terms, at most
+	// 4·f(x)/(|t|·Z) each here, for t·x)
+	// (used: the least number of the 10 points the expansion must answer;
+	// a truncation far in the tail has a tiny mass Z, and the remainder bound
+	// is relative to the whole parent, so it needs larger σ|t|)
+	cases := []struct {
+		mu, sigma, lo, hi float64
+		used              int
+	}{
+		{3, 1.5, 0, math.Inf(1), 8}, {0, 1, -1, 2, 8}, {0, 1, 2, math.Inf(1), 7}, {5, 2, math.Inf(-1), 4, 8},
+		{0, 1, 6, 9, 3}, {10, 0.1, 9.9, 10.3, 8}, {0, 3, -20, 1, 8},
+	}
+	for _, c := range cases {
+		tl, err := NewTruncated(MustNormal(c.mu, c.sigma), c.lo, c.hi)
+		if !assert.NoError(t, err) {
+			continue
+		}
+		td := tl.(truncatedDensity)
+		add := truncNormalAxis(c.mu, c.sigma, td.lo, td.hi, td.mass)
+		lo, hi := math.Max(c.lo, c.mu-12*c.sigma), math.Min(c.hi, c.mu+12*c.sigma)
+		used := 0
+		for _, st := range []float64{7, 9, 10, 11, 12, 15, 20, 40, 100, 300} {
+			tt := st / c.sigma
+			out := make([]complex128, 1)
+			add(tt, 1, out)
+			got := cmplx.Exp(out[0])
+			q := oscQuad(lo-c.mu, hi-c.mu, tt, c.sigma/4, func(y float64) float64 { return td.Density(y + c.mu) })
+			sn, cs := math.Sincos(tt * c.mu)
+			q *= complex(cs, sn)
+			phase := 2.3e-16 * tt * math.Abs(c.mu) * cmplx.Abs(q)
+			for _, x := range []float64{td.lo, td.hi} {
+				if !math.IsInf(x, 0) {
+					u := (x - c.mu) / c.sigma
+					phase += 2.3e-16 * math.Abs(x) * 4 * math.Exp(-u*u/2) / (c.sigma * math.Sqrt(2*math.Pi) * td.mass)
+				}
+			}
+			v, est, ok := truncNormalEnds(truncEndsOf(c.mu, c.sigma, td.lo, td.hi), tt, c.sigma, td.mass)
+			if ok {
+				used++
+				assert.LessOrEqual(t, est, truncEndTol+truncEndRound)
+				assert.LessOrEqual(t, cmplx.Abs(v-got), 1e-15*cmplx.Abs(v)) // the adder answered by it (exp∘log)
+			} else {
+				est = 1e-13 * cmplx.Abs(got) // the Faddeeva form's relative error
+			}
+			assert.LessOrEqual(t, cmplx.Abs(got-q), est+phase+1e-15, "%+v σt=%g", c, st)
+		}
+		// the expansion, not the Faddeeva form, answered
+		assert.GreaterOrEqual(t, used, c.used, "%+v", c)
+	}
+}

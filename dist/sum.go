@@ -23,10 +23,13 @@ const MaxSumAtoms = 1 << 20
 //     shifted copies, Σ p_i·P(C <= x - v_i) (a point mass gives a shift);
 //   - terms that are mixtures (a point mass mixed with an exponential, say)
 //     are expanded over their components when there are at most 256
-//     combinations and each combination's sum has one of the closed forms
-//     above: the result is the exact mixture of those sums (it reports
-//     Accuracy: rounding, about 1e-14 in the CDF and 1e-12 relative in the
-//     survival, plus the components' own bounds);
+//     combinations and at most 8 of them lack one of the closed forms
+//     above: the result is the mixture of those sums, each closed form
+//     exact and each other combination inverted on its own (so the jump
+//     that one combination's density has, an exponential's at 0, no longer
+//     costs the others their accuracy). It reports Accuracy: rounding, about
+//     1e-14 in the CDF and 1e-12 relative in the survival, plus the
+//     components' own bounds, weighted;
 //   - anything else is inverted from the product of the characteristic
 //     functions (Fourier-series method of Abate & Whitt 1992, tails by
 //     exponential tilting; see invert.go). Such a law implements Estimated,
@@ -35,8 +38,9 @@ const MaxSumAtoms = 1 << 20
 //     bound the true error: CDF absolute error about 1e-12 and survival
 //     relative error about 1e-9 down to 1e-30 for light-tailed terms whose
 //     sum has a smooth density. Where the continuous part's density jumps
-//     (a mixture term the expansion above does not cover, or more than 256
-//     combinations of components) its transform decays like 1/t, the
+//     (a mixture term the expansion above does not cover: more than 256
+//     combinations of components, or more than 8 without a closed form) its
+//     transform decays like 1/t, the
 //     series is cut at 65536 terms and the CDF error grows to about 1e-5;
 //     where it only has kinks (an exponential plus a uniform) the CDF stays
 //     near 1e-10 but the stated tail bound is loose. Accuracy reports it.

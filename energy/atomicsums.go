@@ -13,7 +13,9 @@ import (
 // period fixed), for which package dist lists the k-fold atoms exactly but
 // only up to dist.MaxSumAtoms of them. It is exact while the k-fold law surely fits
 // (at most C(k+d−1, d−1) <= 1024 atoms for d atoms), exact for d = 2 (a
-// binomial count, summed term by term) and otherwise the second-order
+// binomial count, summed term by term), exact for d = 3 (binomial tails
+// summed over the count of the least likely energy, atomicthree.go) and
+// otherwise the second-order
 // saddlepoint approximation of Lugannani & Rice (1980) with the correction
 // terms of Daniels (1987, Int. Statist. Rev. 55:37–48, eq. 4.6; Butler,
 // Saddlepoint Approximations with Applications, 2007, §2.3.2; equation and
@@ -74,6 +76,9 @@ func (a atomicSums) eval(k int64, x float64) (below, above float64, exact bool) 
 		j := math.Floor((x - n*a.v[0]) / (a.v[1] - a.v[0]))
 		b, c := binomialTails(k, int64(j), a.p[1])
 		return b, c, true
+	case len(a.v) == 3:
+		below, above = a.three(k, x)
+		return below, above, true
 	case a.exactFits(k):
 		l, err := dist.SumIID(a.d, int(k))
 		if err == nil {
@@ -193,6 +198,24 @@ func (a atomicSums) upperTerms(n, xb float64, sign float64) (q, corr float64) {
 	return math.Min(1, math.Max(0, q)), corr
 }
 
+// accuracy returns the error bounds of eval's values for the k-fold sums
+// near x.
+func (a atomicSums) accuracy(k int64, x float64) dist.Accuracy {
+	switch {
+	case len(a.v) == 2:
+		return dist.Accuracy{CDFAbs: 1e-13, SurvivalRel: 1e-12, TailFloor: 1e-300,
+			Method: "exact binomial count of the two cycle energies (Loader 2000 terms)"}
+	case len(a.v) == 3:
+		return dist.Accuracy{CDFAbs: threeCDFAbs, SurvivalRel: threeSurvivalRel, TailFloor: threeTailFloor,
+			Method: "exact: binomial tails of two cycle energies summed over the count of the third (Loader 2000 terms)"}
+	case a.exactFits(k):
+		return dist.Accuracy{CDFAbs: 1e-13, SurvivalRel: 1e-12, TailFloor: 1e-300,
+			Method: "exact k-fold atoms (package dist)"}
+	}
+	return dist.Accuracy{CDFAbs: a.errorBound(k, x),
+		Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) of a k-fold discrete sum; the bound adds three times the estimated largest atom of S_k"}
+}
+
 // errorBound returns the error bound reported for the saddlepoint at x:
 // the size of its second-order terms (the smooth part's error left after
 // them is far smaller, O(k⁻²) against O(k⁻¹)) plus three times the
@@ -272,9 +295,8 @@ func (a atomicSums) correction(k int64, x float64) float64 {
 	return math.Abs(c)
 }
 
-// binomialTails returns P(N <= j) and P(N > j) for N ~ Binomial(n, p), each
-// summed from its own side with the probabilities in the deviance form of
-// Loader (2000), accurate to about 1e-14 relative per term.
+// binomialTails returns P(N <= j) and P(N > j) for N ~ Binomial(n, p), the
+// tail on j's side of the mode summed outward (binomialSideTails).
 func binomialTails(n, j int64, p float64) (atMost, above float64) {
 	if j < 0 {
 		return 0, 1
@@ -282,20 +304,7 @@ func binomialTails(n, j int64, p float64) (atMost, above float64) {
 	if j >= n {
 		return 1, 0
 	}
-	nf := float64(n)
-	mode := math.Floor((nf + 1) * p)
-	sd := math.Sqrt(nf * p * (1 - p))
-	span := 40*sd + 40
-	if float64(j) < mode {
-		for i := float64(j); i >= 0 && i >= float64(j)-span; i-- {
-			atMost += math.Exp(logBinom(nf, i, p))
-		}
-		return atMost, 1 - atMost
-	}
-	for i := float64(j) + 1; i <= nf && i <= float64(j)+1+span; i++ {
-		above += math.Exp(logBinom(nf, i, p))
-	}
-	return 1 - above, above
+	return binomialSideTails(n, j, p)
 }
 
 // logBinom returns log P(N = i), N ~ Binomial(n, p), in Loader's (2000)
@@ -330,8 +339,8 @@ func bd0(x, m float64) float64 {
 
 // atomicSumLaw is the law of S_k for a purely discrete cycle law whose k-fold
 // atoms are too many for package dist to list: its CDF and Survival come
-// from atomicSums (exact for two energies, the second-order saddlepoint
-// otherwise, with the error bound it reports), its moments are exact, and
+// from atomicSums (exact for two or three energies, the second-order
+// saddlepoint otherwise, with the error bound it reports), its moments are exact, and
 // Rand adds k draws of the cycle law.
 type atomicSumLaw struct {
 	a     atomicSums
@@ -342,15 +351,7 @@ type atomicSumLaw struct {
 
 func newAtomicSumLaw(d dist.Discrete, k int64) atomicSumLaw {
 	a := newAtomicSums(d)
-	l := atomicSumLaw{a: a, k: k, exact: len(a.v) == 2}
-	if l.exact {
-		l.acc = dist.Accuracy{CDFAbs: 1e-13, SurvivalRel: 1e-12, TailFloor: 1e-300,
-			Method: "exact binomial count of the two cycle energies (Loader 2000 terms)"}
-	} else {
-		l.acc = dist.Accuracy{CDFAbs: a.errorBound(k, a.mu*float64(k)),
-			Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) of a k-fold discrete sum; the bound adds three times the estimated largest atom of S_k"}
-	}
-	return l
+	return atomicSumLaw{a: a, k: k, exact: len(a.v) <= 3, acc: a.accuracy(k, a.mu*float64(k))}
 }
 
 func (l atomicSumLaw) CDF(x float64) float64 {

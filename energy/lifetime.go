@@ -65,7 +65,6 @@ type kfold struct {
 	accOnce sync.Once
 	acc     dist.Accuracy // reported by the K-fold law at the median
 	med     int64         // the median number of cycles + 1
-	saddle  bool          // the saddlepoint approximation is in use
 
 	once        sync.Once
 	mean, vari  float64
@@ -194,10 +193,6 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	// The accuracy of the K-fold law at about the median stands for all k:
 	// the inversion window scales with √k, so its error bound hardly moves.
 	l.ev.med = med + 1
-	if l.ev.atomic != nil {
-		_, _, exact := l.ev.atomic.eval(med+1, l.capacity)
-		l.ev.saddle = !exact
-	}
 	return l, nil
 }
 
@@ -604,8 +599,9 @@ func (l Lifetime) Simulate(r *rand.Rand) float64 {
 
 // Accuracy reports the error bounds of the K-fold law of about the median
 // number of cycles (package dist's estimate, which its tests check against
-// independent oracles; zero for closed forms and exact discrete laws),
-// which stand for every k.
+// independent oracles; zero for closed forms), which stand for every k. For
+// a purely discrete cycle law they are those of its own k-fold sums (see
+// atomicSums): rounding only for two or three energies, which are exact.
 func (l Lifetime) Accuracy() dist.Accuracy {
 	f := l.ev
 	if f == nil {
@@ -613,10 +609,9 @@ func (l Lifetime) Accuracy() dist.Accuracy {
 	}
 	f.accOnce.Do(func() {
 		switch {
-		case f.saddle:
-			f.acc = dist.Accuracy{CDFAbs: f.atomic.errorBound(f.med, f.capacity),
-				Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) for a purely discrete cycle law whose k-fold atoms are too many to list; the bound adds three times the estimated largest atom of S_k"}
-		case !f.closed && f.atomic == nil:
+		case f.atomic != nil:
+			f.acc = f.atomic.accuracy(f.med, f.capacity)
+		case !f.closed:
 			if kl, err := sumIID(f.law, f.med); err == nil {
 				if e, ok := kl.(dist.Estimated); ok {
 					f.acc = e.Accuracy()
@@ -625,12 +620,12 @@ func (l Lifetime) Accuracy() dist.Accuracy {
 		}
 	})
 	a := f.acc
-	if l.ev.saddle {
+	if l.ev.atomic != nil {
 		a.Method = "renewal identity P(M >= k) = P(S_k <= C); " + a.Method
 		return a
 	}
 	a.Method = "renewal identity P(M >= k) = P(S_k <= C) on the K-fold sum law"
-	if a.CDFAbs == 0 && !l.ev.closed && l.ev.atomic == nil {
+	if a.CDFAbs == 0 && !l.ev.closed {
 		a.Method += " (no error estimate reported by dist)"
 	}
 	return a

@@ -1,0 +1,219 @@
+package energy
+
+import "math"
+
+// Exact k-fold sums of a three-energy cycle law by conditioning.
+//
+// With cycle energies v_a < v_b and v_c (probabilities p_a, p_b, p_c) and
+// counts N_a + N_b + N_c = k, the count N_c of the least likely energy is
+// Binomial(k, p_c), and given N_c = n the count N_b is Binomial(k − n, q)
+// with q = p_b/(p_a + p_b). So
+//
+//	P(S_k <= x) = Σ_n P(N_c = n) · P(N_b <= J(n) | N_c = n),
+//	J(n) = ⌊(x − n·v_c − (k − n)·v_a)/(v_b − v_a)⌋,
+//
+// a sum of binomial tails, and P(S_k > x) the same with the upper tails.
+// Every term is exact but for rounding; the sums are cut where the masses
+// left (bounded by a geometric series, the mass ratios falling away from the
+// mode) are below 1e-17 of the smaller tail, so both tails keep their
+// relative precision. The cost is about 8·sd(N_c) conditional tails of about
+// 8·sd(N_b) masses each, independent of k's size otherwise.
+//
+// Ties: an atom of S_k within rounding (about 1e-15 relative) of x may be
+// counted on either side; its mass is below the reported bound unless x was
+// chosen on an atom, which the lifetime's capacity is not.
+
+// Stated bounds of the three-energy path, from the tests against
+// multinomial enumeration, binomial laws and package dist's exact k-fold
+// law (worst measured about 1e-14 absolute and 1e-12 relative; see
+// atomicthree_internal_test.go).
+const (
+	threeCDFAbs      = 1e-12
+	threeSurvivalRel = 1e-10
+	threeTailFloor   = 1e-290
+)
+
+// three returns P(S_k <= x) and P(S_k > x) for a three-atom law by the
+// conditioning above.
+func (a atomicSums) three(k int64, x float64) (below, above float64) {
+	c := 0
+	for i := range a.p {
+		if a.p[i] < a.p[c] {
+			c = i
+		}
+	}
+	ia, ib := (c+1)%3, (c+2)%3
+	if a.v[ia] > a.v[ib] {
+		ia, ib = ib, ia
+	}
+	u, w, vc := a.v[ia], a.v[ib]-a.v[ia], a.v[c]
+	q := a.p[ib] / (a.p[ia] + a.p[ib])
+	pc := a.p[c]
+	// J(n) as a real: y(n) = (x − n·v_c − (k − n)·v_a)/(v_b − v_a)
+	yOf := func(n int64) float64 { return (x - float64(n)*vc - float64(k-n)*u) / w }
+	nm := int64(math.Floor(float64(k+1) * pc))
+	if nm > k {
+		nm = k
+	}
+	rp := pc / (1 - pc)
+	// upward from the mode, then downward; each direction stops once the
+	// masses left are below 1e-17 of the smaller tail found so far (or
+	// below 1e-300).
+	for _, dir := range []int64{1, -1} {
+		n := nm
+		if dir < 0 {
+			n = nm - 1
+		}
+		var pm float64
+		var ct condTails
+		for step := 0; n >= 0 && n <= k; step, n = step+1, n+dir {
+			if step%64 == 0 { // re-anchor the recurrence on Loader's mass
+				pm = math.Exp(logBinom(float64(k), float64(n), pc))
+			} else if dir > 0 {
+				pm *= float64(k-n+1) / float64(n) * rp
+			} else {
+				pm *= float64(n+1) / float64(k-n) / rp
+			}
+			ct.move(k-n, yOf(n), q)
+			b, s := ct.lo, ct.hi
+			below += pm * b
+			above += pm * s
+			// ratio of the next mass to this one (falling away from the mode)
+			var r float64
+			if dir > 0 {
+				r = float64(k-n) / float64(n+1) * rp
+			} else {
+				r = float64(n) / float64(k-n+1) / rp
+			}
+			if r < 1 {
+				rest := pm * r / (1 - r)
+				if rest < 1e-300 || rest < 1e-17*math.Min(below, above) {
+					break
+				}
+			}
+		}
+	}
+	return below, above
+}
+
+// condTails holds P(N <= j) (lo) and P(N > j) (hi) for N ~ Binomial(m, q)
+// and moves them to a neighbouring m (m ± 1) and j by Pascal's rule
+//
+//	P(Bin(m, q) <= j) = P(Bin(m−1, q) <= j) − q·P(Bin(m−1, q) = j)
+//
+// and by adding the masses between the old and the new j, each tail
+// updated on its own (so the smaller keeps its relative precision). They are
+// computed afresh (binomialSideTails) every 32 moves, after a tail was
+// clamped to 0 or 1, and when the smaller tail has fallen below 1/8 of its
+// value when last computed, so rounding cannot build up.
+type condTails struct {
+	m, j   int64
+	lo, hi float64
+	moves  int     // since last computed afresh; -1: compute afresh
+	anchor float64 // the smaller tail when last computed afresh
+	valid  bool
+}
+
+// move sets the tails to m and j = ⌊y⌋ (clamped to [−1, m]).
+func (c *condTails) move(m int64, y, q float64) {
+	var j int64
+	switch {
+	case y < 0:
+		*c = condTails{m: m, j: -1, lo: 0, hi: 1}
+		return
+	case y >= float64(m):
+		*c = condTails{m: m, j: m, lo: 1, hi: 0}
+		return
+	}
+	j = int64(y)
+	if !c.valid || c.moves >= 32 || (c.m != m+1 && c.m != m-1) || c.j < 0 || c.j >= c.m ||
+		math.Min(c.lo, c.hi) < c.anchor/8 {
+		c.lo, c.hi = binomialSideTails(m, j, q)
+		*c = condTails{m: m, j: j, lo: c.lo, hi: c.hi, anchor: math.Min(c.lo, c.hi), valid: true}
+		return
+	}
+	mf := float64(m)
+	// Pascal's rule to m at the old j
+	if m == c.m-1 {
+		d := q * math.Exp(logBinom(mf, float64(c.j), q)) // q·P(Bin(m) = j)
+		c.lo += d
+		c.hi -= d
+	} else {
+		d := q * math.Exp(logBinom(float64(c.m), float64(c.j), q)) // q·P(Bin(m−1) = j)
+		c.lo -= d
+		c.hi += d
+	}
+	// the masses of Bin(m) between the old and the new j
+	a, b := c.j+1, j // add masses a..b
+	sign := 1.0
+	if j < c.j {
+		a, b, sign = j+1, c.j, -1
+	}
+	if a <= b {
+		t := math.Exp(logBinom(mf, float64(a), q))
+		var s float64
+		for i := a; ; i++ {
+			s += t
+			if i == b {
+				break
+			}
+			t *= (mf - float64(i)) / float64(i+1) * q / (1 - q)
+		}
+		c.lo += sign * s
+		c.hi -= sign * s
+	}
+	c.m, c.j = m, j
+	c.moves++
+	if c.lo < 0 || c.hi < 0 {
+		c.valid = false
+		c.move(m, y, q)
+	}
+}
+
+// binomialSideTails returns P(N <= j) and P(N > j) for N ~ Binomial(n, p),
+// 0 <= j < n: the tail on j's side of the mode is summed outward from j
+// (its masses fall away from the mode) by the mass ratio recurrence from
+// Loader's (2000) mass at j, cut where the geometric bound on the rest is
+// below 1e-17 of the sum; the other tail is its complement (at least about
+// 1/2, so it keeps its relative precision).
+func binomialSideTails(n, j int64, p float64) (atMost, above float64) {
+	nf := float64(n)
+	mode := math.Floor((nf + 1) * p)
+	rp := p / (1 - p)
+	if float64(j) < mode {
+		i := j
+		t := math.Exp(logBinom(nf, float64(i), p))
+		s := t
+		for step := 1; i > 0 && t > 0; step++ {
+			r := float64(i) / float64(n-i+1) / rp // P(i−1)/P(i)
+			if r < 1 && t*r/(1-r) < 1e-17*s {
+				break
+			}
+			i--
+			if step%64 == 0 {
+				t = math.Exp(logBinom(nf, float64(i), p))
+			} else {
+				t *= r
+			}
+			s += t
+		}
+		return s, 1 - s
+	}
+	i := j + 1
+	t := math.Exp(logBinom(nf, float64(i), p))
+	s := t
+	for step := 1; i < n && t > 0; step++ {
+		r := float64(n-i) / float64(i+1) * rp // P(i+1)/P(i)
+		if r < 1 && t*r/(1-r) < 1e-17*s {
+			break
+		}
+		i++
+		if step%64 == 0 {
+			t = math.Exp(logBinom(nf, float64(i), p))
+		} else {
+			t *= r
+		}
+		s += t
+	}
+	return 1 - s, s
+}

@@ -41,19 +41,37 @@ func discreteAxis(d Discrete) (axisAdder, float64) {
 		vmax = math.Max(vmax, math.Abs(v))
 	}
 	return func(h float64, k0 int, out []complex128) {
-		var m [axisBlock]complex128
+		var mr, mi [axisBlock]float64
 		n := min(len(out), axisBlock)
-		for i, v := range vs {
+		// atoms two at a time: two independent rotations per step
+		i := 0
+		for ; i+1 < len(vs); i += 2 {
+			v, w := vs[i], vs[i+1]
+			ai, ar := math.Sincos(float64(k0) * h * v)
+			as, ac := math.Sincos(h * v)
+			bi, br := math.Sincos(float64(k0) * h * w)
+			bs, bc := math.Sincos(h * w)
+			p, q := ps[i], ps[i+1]
+			for j := 0; j < n; j++ {
+				mr[j] += p*ar + q*br
+				mi[j] += p*ai + q*bi
+				ar, ai = ar*ac-ai*as, ar*as+ai*ac
+				br, bi = br*bc-bi*bs, br*bs+bi*bc
+			}
+		}
+		if i < len(vs) {
+			v := vs[i]
 			zi, zr := math.Sincos(float64(k0) * h * v)
 			s1, c1 := math.Sincos(h * v)
 			p := ps[i]
 			for j := 0; j < n; j++ {
-				m[j] += complex(p*zr, p*zi)
+				mr[j] += p * zr
+				mi[j] += p * zi
 				zr, zi = zr*c1-zi*s1, zr*s1+zi*c1
 			}
 		}
 		for j := 0; j < n; j++ {
-			out[j] += cmplx.Log(m[j])
+			out[j] += logOf(complex(mr[j], mi[j]))
 		}
 	}, vmax
 }
@@ -153,8 +171,10 @@ func logOf(z complex128) complex128 {
 // terms bring √(n!)·q^n below truncEndTol·Z and the rounding of the sum
 // (4e-16·(n+2) times the sum of the terms' magnitudes) below truncEndRound:
 // absolute error in M at most 1e-16 + 1e-14, inside the 1e-13 stated for
-// the transform (and counted in the Sum's bound through it). Near t = 0 (σ|t| below about 12 for these limits) the Faddeeva
-// closed form truncNormalLogM is used, as everywhere else.
+// the transform (and counted in the Sum's bound through it). Nearer t = 0
+// (σ|t| below about 9 for an end within a few σ of μ; larger when the mass
+// Z is small) the Faddeeva closed form truncNormalLogM is used, as
+// everywhere else.
 
 const (
 	truncEndTerms = 64    // most terms of the expansion
@@ -172,27 +192,17 @@ type truncEnd struct {
 	he, heAbs [truncEndTerms]float64
 }
 
-// truncNormalAxis returns the axis adder of a normal (μ, σ) truncated to
-// [lo, hi] with parent mass z.
-func truncNormalAxis(mu, sigma, lo, hi, z float64) axisAdder {
-	ends := truncEndsOf(mu, sigma, lo, hi)
-	lz := math.Log(z)
-	return func(h float64, k0 int, out []complex128) {
-		for j := range out {
-			t := float64(k0+j) * h
-			if v, _, ok := truncNormalEnds(ends, t, sigma, z); ok {
-				out[j] += logOf(v)
-				continue
-			}
-			out[j] += truncNormalLogM(complex(0, t), mu, sigma, lo, hi, lz)
-		}
-	}
+// truncSeries is the end expansion of one truncated normal: its finite ends
+// (those whose density does not underflow) and, for each number of terms n,
+// the largest q for which √(n!)·q^n <= truncEndTol·Z.
+type truncSeries struct {
+	sigma, z float64
+	ends     []truncEnd
+	qmax     [truncEndTerms + 1]float64
 }
 
-// truncEndsOf returns the finite ends of a normal (μ, σ) truncated to
-// [lo, hi] whose density there does not underflow.
-func truncEndsOf(mu, sigma, lo, hi float64) []truncEnd {
-	var ends []truncEnd
+func newTruncSeries(mu, sigma, lo, hi, z float64) *truncSeries {
+	ts := &truncSeries{sigma: sigma, z: z}
 	for i, x := range [2]float64{lo, hi} {
 		if math.IsInf(x, 0) {
 			continue
@@ -215,55 +225,80 @@ func truncEndsOf(mu, sigma, lo, hi float64) []truncEnd {
 			e.he[m], e.heAbs[m] = sg*hc, math.Abs(hc)
 			hp, hc = hc, u*hc-float64(m)*hp
 		}
-		ends = append(ends, e)
+		ts.ends = append(ts.ends, e)
 	}
-	return ends
+	// q^n <= tol·Z/√(n!), in logarithms, shrunk by 1e-12 against their
+	// rounding
+	lt := math.Log(truncEndTol * z)
+	var lf float64 // log n!
+	for n := 1; n <= truncEndTerms; n++ {
+		lf += math.Log(float64(n))
+		ts.qmax[n] = math.Exp((lt-lf/2)/float64(n)) * (1 - 1e-12)
+	}
+	return ts
 }
 
-// truncNormalEnds returns M(it) by the end expansion above, t > 0, with a
-// bound on its absolute error (remainder and rounding), and whether it
-// could be used: remainder at most truncEndTol, rounding at most
-// truncEndRound.
-func truncNormalEnds(ends []truncEnd, t, sigma, z float64) (complex128, float64, bool) {
-	q := 1 / (sigma * t)
+// truncNormalAxis returns the axis adder of a normal (μ, σ) truncated to
+// [lo, hi] with parent mass z.
+func truncNormalAxis(mu, sigma, lo, hi, z float64) axisAdder {
+	ts := newTruncSeries(mu, sigma, lo, hi, z)
+	lz := math.Log(z)
+	return func(h float64, k0 int, out []complex128) {
+		for j := range out {
+			t := float64(k0+j) * h
+			if v, _, ok := ts.at(t); ok {
+				out[j] += logOf(v)
+				continue
+			}
+			out[j] += truncNormalLogM(complex(0, t), mu, sigma, lo, hi, lz)
+		}
+	}
+}
+
+// at returns M(it) by the end expansion above, t > 0, with a bound on its
+// absolute error (remainder and rounding), and whether it could be used:
+// remainder at most truncEndTol, rounding at most truncEndRound.
+func (ts *truncSeries) at(t float64) (complex128, float64, bool) {
+	q := 1 / (ts.sigma * t)
 	if !(q < 1/truncEndMinSt) {
 		return 0, 0, false
 	}
-	// n: the first with √(n!)·q^n <= tol·Z (checked squared)
-	q2 := q * q
-	tol2 := truncEndTol * z * truncEndTol * z
-	b2, n := 1.0, 0
-	for b2 > tol2 {
+	n := 1
+	for n <= truncEndTerms && q > ts.qmax[n] {
 		n++
-		if n > truncEndTerms || float64(n)*q2 >= 1 {
-			return 0, 0, false
-		}
-		b2 *= float64(n) * q2
 	}
+	if n > truncEndTerms {
+		return 0, 0, false
+	}
+	q2 := q * q
 	var sum complex128
 	var mag float64
-	for i := range ends {
-		e := &ends[i]
-		// A = Σ even he[m]·q^m, B = Σ odd he[m]·q^m (Horner in q²)
-		var a, b, abs float64
-		for m := n - 1; m >= 0; m-- {
-			if m%2 == 0 {
-				a = a*q2 + e.he[m]
-			} else {
-				b = b*q2 + e.he[m]
-			}
-			abs = abs*q + e.heAbs[m]
+	for i := range ts.ends {
+		e := &ts.ends[i]
+		// A = Σ even he[m]·q^m, B = Σ odd he[m]·q^m, and the magnitudes, by
+		// Horner in q² over the pairs (2j, 2j+1), m < n
+		var a, b, ea, eb float64
+		top := (n - 1) / 2
+		if n%2 == 1 {
+			a, ea = e.he[n-1], e.heAbs[n-1]
+			top--
+		}
+		for j := top; j >= 0; j-- {
+			a = a*q2 + e.he[2*j]
+			b = b*q2 + e.he[2*j+1]
+			ea = ea*q2 + e.heAbs[2*j]
+			eb = eb*q2 + e.heAbs[2*j+1]
 		}
 		b *= q
 		sn, cs := math.Sincos(t * e.x)
 		gt := e.g / t
 		// exp(itx)·g·(B - iA)/t
 		sum += complex(gt*(cs*b+sn*a), gt*(sn*b-cs*a))
-		mag += math.Abs(gt) * abs
+		mag += math.Abs(gt) * (ea + q*eb)
 	}
-	round := 4e-16 * float64(n+2) * mag / z
+	round := 4e-16 * float64(n+2) * mag / ts.z
 	if round > truncEndRound {
 		return 0, 0, false
 	}
-	return sum / complex(z, 0), math.Sqrt(b2)/z + round, true
+	return sum / complex(ts.z, 0), truncEndTol + round, true
 }

@@ -132,7 +132,7 @@ func TestTruncNormalEndExpansion(t *testing.T) {
 					phase += 2.3e-16 * math.Abs(x) * 4 * math.Exp(-u*u/2) / (c.sigma * math.Sqrt(2*math.Pi) * td.mass)
 				}
 			}
-			v, est, ok := truncNormalEnds(truncEndsOf(c.mu, c.sigma, td.lo, td.hi), tt, c.sigma, td.mass)
+			v, est, ok := newTruncSeries(c.mu, c.sigma, td.lo, td.hi, td.mass).at(tt)
 			if ok {
 				used++
 				assert.LessOrEqual(t, est, truncEndTol+truncEndRound)

@@ -35,13 +35,18 @@ const (
 	gridPerTerm = 1     // grid points per series term (N >= gridPerTerm·n, a power of 2)
 )
 
-// cdfGrid holds F, f and f' of the continuous part at y0 + r·dy.
+// cdfGrid holds F, f and f' of the continuous part at y0 + r·dy, scaled for
+// the interpolation: v[r] = (F, f·dy), w[r] = (f'·dy², the midpoint value
+// the check used).
 type cdfGrid struct {
-	y0, dy   float64
-	F, f, f1 []float64
-	err      float64 // worst midpoint error
-	round    float64 // FFT rounding bound
+	y0, dy float64
+	v, w   []complex128
+	err    float64 // worst midpoint error
+	round  float64 // FFT rounding bound
 }
+
+// size returns the number of grid points.
+func (g *cdfGrid) size() int { return len(g.v) }
 
 // buildGrid returns the grid, or nil when it is too large or not accurate.
 func (l *numLaw) buildGrid() *cdfGrid {
@@ -65,8 +70,8 @@ func (l *numLaw) buildGrid() *cdfGrid {
 		return nil
 	}
 	a := l.a
-	x1 := make([]complex128, N)
-	x2 := make([]complex128, N)
+	buf := make([]complex128, 2*N)
+	x1, x2 := buf[:N:N], buf[N:]
 	dy := l.L / float64(N)
 	var absSum float64
 	// v_k = Mc(ikh)/k·exp(-ikh·a), by rotation resynchronised every 64 terms
@@ -78,40 +83,49 @@ func (l *numLaw) buildGrid() *cdfGrid {
 			zi, zr = math.Sincos(-float64(k) * l.h * a)
 			mi, mr = math.Sincos(-float64(k) * l.h * dy / 2)
 		}
-		v := complex(l.pr[k-1], l.pi[k-1]) * complex(zr, zi)
-		vm := v * complex(mr, mi)
+		pr, pi := l.pr[k-1], l.pi[k-1]
+		vr, vi := pr*zr-pi*zi, pr*zi+pi*zr
+		vmr, vmi := vr*mr-vi*mi, vr*mi+vi*mr
 		zr, zi = zr*ca-zi*sa, zr*sa+zi*ca
 		mr, mi = mr*cm-mi*sm, mr*sm+mi*cm
 		fk := float64(k)
-		absSum += fk * fk * math.Hypot(real(v), imag(v))
-		// FFT 1: real part Re Σ(-i·v)… = Im Σ v…, imaginary part Re Σ k·v…
-		a1, b1 := complex(imag(v), -real(v)), v*complex(fk, 0)
-		// FFT 2: real part Im Σ k²·v…, imaginary part Im Σ v_mid…
-		a2, b2 := complex(fk*fk*imag(v), -fk*fk*real(v)), complex(imag(vm), -real(vm))
-		x1[k] = (a1 + complex(0, 1)*b1) / 2
-		x1[N-k] = (conj(a1) + complex(0, 1)*conj(b1)) / 2
-		x2[k] = (a2 + complex(0, 1)*b2) / 2
-		x2[N-k] = (conj(a2) + complex(0, 1)*conj(b2)) / 2
+		k2 := fk * fk
+		absSum += k2 * math.Sqrt(pr*pr+pi*pi)
+		// FFT 1: a1 = -i·v (real part Im Σ v…), b1 = k·v (imaginary part
+		// Re Σ k·v…); FFT 2: a2 = -i·k²·v (real part Im Σ k²·v…), b2 =
+		// -i·v_mid (imaginary part Im Σ v_mid…); x[k] = (a + i·b)/2,
+		// x[N-k] = (conj(a) + i·conj(b))/2
+		a1r, a1i, b1r, b1i := vi, -vr, fk*vr, fk*vi
+		a2r, a2i, b2r, b2i := k2*vi, -k2*vr, vmi, -vmr
+		x1[k] = complex((a1r-b1i)/2, (a1i+b1r)/2)
+		x1[N-k] = complex((a1r+b1i)/2, (b1r-a1i)/2)
+		x2[k] = complex((a2r-b2i)/2, (a2i+b2r)/2)
+		x2[N-k] = complex((a2r+b2i)/2, (b2r-a2i)/2)
 	}
 	tw := twiddles(N)
 	fft2(x1, tw)
 	fft2(x2, tw)
-	gr := &cdfGrid{y0: a, dy: dy, F: make([]float64, N), f: make([]float64, N), f1: make([]float64, N)}
+	gr := &cdfGrid{y0: a, dy: dy, v: x1, w: x2}
 	h2 := l.h * l.h
+	c0, c1 := l.w/2-l.mc/l.L, l.w/l.L
 	for r := 0; r < N; r++ {
 		y := a + float64(r)*dy
-		gr.F[r] = l.w/2 + (l.w*y-l.mc)/l.L - real(x1[r])/math.Pi
-		gr.f[r] = l.w/l.L + l.h/math.Pi*imag(x1[r])
-		gr.f1[r] = h2 / math.Pi * real(x2[r])
+		F := c0 + c1*y - real(x1[r])/math.Pi
+		f := c1 + l.h/math.Pi*imag(x1[r])
+		f1 := h2 / math.Pi * real(x2[r])
+		Fm := c0 + c1*(y+dy/2) - imag(x2[r])/math.Pi
+		x1[r] = complex(F, f*dy)
+		x2[r] = complex(f1*dy*dy, Fm)
 	}
+	// the interpolant at t = 1/2: h0 = h5 = 1/2, h1 = -h4 = 5/32,
+	// h2 = h3 = 1/64 (the basis of at)
 	for r := 0; r+1 < N; r++ {
-		y := a + (float64(r)+0.5)*dy
-		if y > l.b {
+		if a+(float64(r)+0.5)*dy > l.b {
 			break
 		}
-		want := l.w/2 + (l.w*y-l.mc)/l.L - imag(x2[r])/math.Pi
-		got := gr.at(y)
-		gr.err = math.Max(gr.err, math.Abs(got-want))
+		p, q := x1[r], x1[r+1]
+		got := 0.5*(real(p)+real(q)) + 5.0/32*(imag(p)-imag(q)) + (real(x2[r])+real(x2[r+1]))/64
+		gr.err = math.Max(gr.err, math.Abs(got-imag(x2[r])))
 	}
 	gr.round = float64(bits.Len(uint(N)))*1e-16*absSum/math.Pi + drop/math.Pi
 	if !(gr.err <= gridMaxErr) {
@@ -120,23 +134,44 @@ func (l *numLaw) buildGrid() *cdfGrid {
 	return gr
 }
 
-func conj(z complex128) complex128 { return complex(real(z), -imag(z)) }
-
-// twiddles returns exp(-2πi·j/N) for j < N/2 (N a power of 2).
+// twiddles returns exp(-2πi·j/N) for j < 3N/4 (N a power of 2): Sincos up
+// to N/8, the rest by the exact symmetries cos(π/2 - x) = sin x,
+// exp(-i·(x + π/2)) = -i·exp(-i·x) and exp(-i·(x + π)) = -exp(-i·x).
 func twiddles(N int) []complex128 {
-	tw := make([]complex128, N/2)
-	for j := range tw {
+	tw := make([]complex128, 3*N/4)
+	if N < 8 {
+		for j := range tw {
+			s, c := math.Sincos(-2 * math.Pi * float64(j) / float64(N))
+			tw[j] = complex(c, s)
+		}
+		return tw
+	}
+	q := N / 4
+	for j := 0; j <= N/8; j++ {
 		s, c := math.Sincos(-2 * math.Pi * float64(j) / float64(N))
 		tw[j] = complex(c, s)
+	}
+	for j := N/8 + 1; j < q; j++ {
+		t := tw[q-j]
+		tw[j] = complex(-imag(t), -real(t))
+	}
+	for j := q; j < 3*q; j++ {
+		t := tw[j-q]
+		tw[j] = complex(imag(t), -real(t))
 	}
 	return tw
 }
 
-// fft2 replaces x by its DFT Σ_j x_j·exp(-2πi·jr/N), in place, by the
-// iterative radix-2 Cooley–Tukey algorithm (len(x) a power of 2, tw from
-// twiddles).
+// fft2 replaces x by its DFT Σ_j x_j·exp(-2πi·jr/N), in place (len(x) a
+// power of 2, tw from twiddles): bit-reversal permutation, then
+// decimation-in-time stages, two radix-2 stages at a time as one radix-4
+// butterfly (three twiddle products per four points instead of four, half
+// the passes over x), with one radix-2 stage first when log2 N is odd.
 func fft2(x []complex128, tw []complex128) {
 	N := len(x)
+	if N < 2 {
+		return
+	}
 	shift := 64 - uint(bits.Len(uint(N))-1)
 	for i := 0; i < N; i++ {
 		j := int(bits.Reverse64(uint64(i)) >> shift)
@@ -144,13 +179,34 @@ func fft2(x []complex128, tw []complex128) {
 			x[i], x[j] = x[j], x[i]
 		}
 	}
-	for size := 2; size <= N; size *= 2 {
-		half, step := size/2, N/size
-		for start := 0; start < N; start += size {
-			for k := 0; k < half; k++ {
-				w := tw[k*step]
-				u, v := x[start+k], x[start+k+half]*w
-				x[start+k], x[start+k+half] = u+v, u-v
+	L := 1
+	if bits.TrailingZeros(uint(N))%2 == 1 {
+		for s := 0; s < N; s += 2 {
+			u, v := x[s], x[s+1]
+			x[s], x[s+1] = u+v, u-v
+		}
+		L = 2
+	}
+	// a block of 4L holds the length-L DFTs A, B, C, D of the indices ≡ 0,
+	// 2, 1, 3 (mod 4) of its sequence; with W = exp(-2πi/4L),
+	// b = W^2k·B, c = W^k·C, d = W^3k·D:
+	// X[k] = A+b+c+d, X[k+L] = A-b-i(c-d), X[k+2L] = A+b-c-d, X[k+3L] = A-b+i(c-d)
+	for ; 4*L <= N; L *= 4 {
+		step := N / (4 * L)
+		for s := 0; s < N; s += 4 * L {
+			blk := x[s : s+4*L : s+4*L]
+			q0, q1, q2, q3 := blk[:L:L], blk[L:2*L:2*L], blk[2*L:3*L:3*L], blk[3*L:]
+			for k := range q0 {
+				a := q0[k]
+				b, c, d := q1[k], q2[k], q3[k]
+				if k > 0 {
+					b *= tw[2*k*step]
+					c *= tw[k*step]
+					d *= tw[3*k*step]
+				}
+				apb, amb, cpd, cmd := a+b, a-b, c+d, c-d
+				icmd := complex(-imag(cmd), real(cmd)) // i·(c-d)
+				q0[k], q1[k], q2[k], q3[k] = apb+cpd, amb-icmd, apb-cpd, amb+icmd
 			}
 		}
 	}
@@ -163,8 +219,8 @@ func (g *cdfGrid) at(y float64) float64 {
 	if r < 0 {
 		r = 0
 	}
-	if r >= len(g.F)-1 {
-		r = len(g.F) - 2
+	if r >= len(g.v)-1 {
+		r = len(g.v) - 2
 	}
 	t := u - float64(r)
 	t2 := t * t
@@ -176,8 +232,8 @@ func (g *cdfGrid) at(y float64) float64 {
 	h3 := 0.5 * (t3 - 2*t4 + t5)
 	h4 := -4*t3 + 7*t4 - 3*t5
 	h5 := 10*t3 - 15*t4 + 6*t5
-	d, d2 := g.dy, g.dy*g.dy
-	return h0*g.F[r] + h1*d*g.f[r] + h2*d2*g.f1[r] + h3*d2*g.f1[r+1] + h4*d*g.f[r+1] + h5*g.F[r+1]
+	p, q := g.v[r], g.v[r+1]
+	return h0*real(p) + h1*imag(p) + h2*real(g.w[r]) + h3*real(g.w[r+1]) + h4*imag(q) + h5*real(q)
 }
 
 // bulk returns the bulk CDF value at centred y, from the grid once it is

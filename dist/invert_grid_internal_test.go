@@ -15,7 +15,7 @@ func TestFFT2AgainstGonum(t *testing.T) {
 	// oracle: gonum dsp/fourier CmplxFFT.Coefficients (the same DFT sign
 	// convention, Σ x_j·exp(-2πi·jr/N))
 	r := rand.New(rand.NewPCG(3, 4))
-	for _, n := range []int{2, 8, 1024, 8192} {
+	for _, n := range []int{2, 4, 8, 32, 1024, 2048, 4096, 8192} {
 		x := make([]complex128, n)
 		for i := range x {
 			x[i] = complex(r.NormFloat64(), r.NormFloat64())
@@ -66,7 +66,7 @@ func TestQuinticHermiteReproducesQuintics(t *testing.T) {
 	g := &cdfGrid{y0: -1, dy: 0.5}
 	for r := 0; r < 6; r++ {
 		v, d, d2 := p(-1 + 0.5*float64(r))
-		g.F, g.f, g.f1 = append(g.F, v), append(g.f, d), append(g.f1, d2)
+		g.v, g.w = append(g.v, complex(v, d*g.dy)), append(g.w, complex(d2*g.dy*g.dy, 0))
 	}
 	for _, x := range []float64{-1, -0.9, -0.26, 0.1, 0.77, 1.3, 1.49} {
 		want, _, _ := p(x)

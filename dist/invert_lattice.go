@@ -3,202 +3,741 @@ package dist
 import (
 	"fmt"
 	"math"
+	"math/cmplx"
 	"math/rand/v2"
+	"sort"
 
 	"gonum.org/v1/gonum/dsp/fourier"
+	"gonum.org/v1/gonum/floats"
 )
 
-// The lattice fallback of Sum for terms without a known transform (a
-// dist.FromDistuv law, say). Every term X_i is rounded to the lattice δ·Z:
-// the mass of the cell ((k-½)δ, (k+½)δ] is put at kδ, computed from CDF
-// differences below the term's median and Survival differences above it,
-// over the term's range [Q_i(ε), Q_i(1-ε)] with ε = latticeCut/n (the end
-// cells take the mass beyond). The lattice laws are convolved by FFT (gonum
-// dsp/fourier, a size 2^a·3^b·5^c at least the length of the sum's lattice,
-// so nothing wraps round: the supports are finite once the ends are cut,
-// which replaces the exponential damping of Embrechts & Frei 2009). The CDF
-// is the lattice sum's cumulative mass at the cell edges, interpolated
-// linearly between them (a histogram of the sum).
+// The lattice fallback of Sum (and of SumIID for small k) for terms without
+// a known transform (a dist.FromDistuv law, say).
 //
-// Error: the rounding error of the CDF is O(δ²) for smooth densities (the
-// rounding of each term is symmetric about its lattice point) and O(δ)
-// where a density jumps. It is estimated by repeating the computation with
-// step 2δ and taking the largest difference of the two CDFs at the coarse
-// cell edges, which is (for a δ² error) three times the error of the fine
-// result and (for a δ error) equal to it; to this are added the cut mass,
-// 2·latticeCut, and the FFT's rounding, 1e-15·log2 N per unit of mass;
-// the stated bound is twice that estimate. Survival is summed from the top,
-// and the rounding error of a light tail is local, so it keeps relative
-// precision: its stated relative error is twice the largest relative
-// difference of the two survivals where the fine one is at least the tail
-// floor 1e6·(FFT rounding + cut mass), plus 1e-6 for that absolute error.
-// Mean and Variance are the terms' (exact); Rand draws each term from its
-// own sampler.
+// Atoms stay exact. Every term is split into its atoms and a continuous
+// part (a mixture by its components, any other law by subtracting its
+// atoms); the sum is then the exact mixture, over which terms contribute
+// their atoms and which their continuous part, of
+//
+//	Σ_v p_v·F_L(x - v),
+//
+// the atoms v of the discrete terms and of the chosen atomic parts
+// convolved exactly (masses p_v), L the sum of the remaining continuous
+// parts: L is the one continuous law itself when there is one, and a lattice
+// law when there are several (at most maxLatticeCombos such combinations
+// and maxLatticeShifts atoms over all of them, else an error).
+//
+// The lattice law. Every continuous term X_i is rounded to its lattice
+// o_i + δ·Z, o_i the lower end of its support when finite (so that a density
+// that jumps there jumps at a lattice point at every step): the mass of the
+// cell (p - δ/2, p + δ/2] is put at p, from CDF differences below the term's
+// median and Survival differences above it, over the term's range
+// [Q_i(ε), Q_i(1-ε)] (ε = latticeCut/n; the end cells take the mass beyond).
+// The lattice laws are convolved by FFT (gonum dsp/fourier, a size 2^a·3^b·5^c
+// at least the length of the sum's lattice, so nothing wraps round: the
+// supports are finite once the ends are cut, which replaces the exponential
+// damping of Embrechts & Frei 2009; a k-fold term is raised to the power k as
+// exp(k·log z)). This is done at the steps δ, 2δ and 4δ. At a lattice point
+// the value half-way up the jump of the lattice CDF has an error
+// c(x)·δ² + O(δ³) with the same c(x) at every step (Euler–Maclaurin: the
+// rounding of each term is symmetric about its lattice point, and the
+// sum's lattice points at step 2δ are every second one at step δ), so
+// Richardson extrapolation, (4·F_δ - F_2δ)/3 on the points of step 2δ,
+// removes it; CDF and Survival (summed from the top) are extrapolated
+// alike and interpolated between those points by cubic Lagrange polynomials
+// (one-sided at finite ends of the support).
+//
+// Error: the extrapolation error is estimated by the same extrapolation one
+// step coarser, (4·F_2δ - F_4δ)/3, whose largest difference from the fine one
+// is (for an O(δ⁴) remainder) fifteen times the fine error, and (for an O(δ)
+// or O(δ^1.5) remainder, a misplaced jump or a singular density) about once
+// or twice it; the interpolation error by the largest difference between the
+// cubic and a quintic interpolant at the midpoints. The stated CDF bound is
+// twice both estimates plus the cut mass, 2·latticeCut, and the FFT's
+// rounding, 2e-15·log2 N. Survival keeps relative precision where it is at
+// least the tail floor 1e6·(rounding + cut mass): its stated relative error
+// is twice the largest relative differences of the two estimates there,
+// plus 1e-6 for the absolute error. Mean and Variance are the terms'
+// (exact); Rand draws each term from its own sampler.
 
 const (
-	latticeCells = 1 << 15 // cells of the sum's lattice (the fine step)
-	latticeCut   = 1e-15   // mass cut from the ends, over all terms
+	latticeCells     = 1 << 16 // cells of the sum's lattice at the fine step
+	latticeCut       = 1e-24   // mass cut from the ends, over all terms
+	maxLatticeCombos = 64      // atomic/continuous combinations of the mixed terms
+	maxLatticeShifts = 4096    // atoms over all combinations
+	latticeRoundErr  = 2e-15   // FFT rounding per unit of mass and factor of 2 of the size
 )
 
-// latticeSum is the fallback for terms without a known transform.
-func latticeSum(terms []Law) (Law, error) {
-	for _, t := range terms {
-		if hasAtoms(t) {
-			return nil, fmt.Errorf("dist.Sum: a term has no known characteristic function and %v has atoms (the lattice fallback takes laws without atoms only): %w", t, ErrParam)
-		}
+// latTerm is one continuous law to be rounded to the lattice, count times.
+type latTerm struct {
+	law     Law
+	count   int
+	lo, hi  float64 // the range rounded, [Q(ε), Q(1-ε)] (lo the support's end when aligned)
+	aligned bool    // lo is the finite lower end of the support, a cell edge at every step
+}
+
+// newLatTerms sizes the lattice terms; span is the range of their sum.
+func newLatTerms(fn string, laws []Law, counts []int, cut float64) ([]latTerm, float64, error) {
+	n := 0
+	for _, c := range counts {
+		n += c
 	}
-	n := len(terms)
-	eps := latticeCut / float64(n)
-	los, his := make([]float64, n), make([]float64, n)
+	eps := cut / float64(n)
+	out := make([]latTerm, len(laws))
 	var span float64
-	for i, t := range terms {
-		los[i], his[i] = t.Quantile(eps), t.UpperQuantile(eps)
-		if !finite(los[i]) || !finite(his[i]) || !(his[i] > los[i]) {
-			return nil, fmt.Errorf("dist.Sum: lattice fallback: term %v has range [%v, %v] at the %v quantiles: %w", t, los[i], his[i], eps, ErrParam)
+	for i, l := range laws {
+		lo, hi := l.Quantile(eps), l.UpperQuantile(eps)
+		if !finite(lo) || !finite(hi) || !(hi > lo) {
+			return nil, 0, fmt.Errorf("dist.%s: lattice fallback: term %v has range [%v, %v] at the %v quantiles: %w", fn, l, lo, hi, eps, ErrParam)
 		}
-		span += his[i] - los[i]
+		t := latTerm{law: l, count: counts[i], lo: lo, hi: hi}
+		// a density that starts (or jumps) at a finite lower end starts at a
+		// cell edge at every step; a law whose mass starts far above its
+		// support's end (a gamma of large shape) is smooth where it is cut
+		if a, _ := l.Support(); finite(a) && lo-a <= 1e-6*(hi-a) {
+			t.lo, t.aligned = a, true
+		}
+		out[i] = t
+		span += float64(counts[i]) * (hi - t.lo)
 	}
-	delta := span / latticeCells
-	fine, err := latticeConvolve(terms, los, his, delta)
-	if err != nil {
-		return nil, err
+	return out, span, nil
+}
+
+// latLevel is the lattice law of a sum at one step: masses q[m] at the
+// points org + m·step.
+type latLevel struct {
+	step   float64
+	org    float64
+	q      []float64
+	fc, sc []float64 // mass up to and including m, mass above m
+	fErr   float64   // rounding bound of fc (largest)
+	sErr   []float64 // rounding bound of sc[m]
+	cut    float64   // mass the end cells took from beyond the ranges
+	n      int       // FFT size
+}
+
+// at returns the lattice CDF and survival at org + (w/2)·step, half-way up
+// the jump at a lattice point (w even) or at a cell edge (w odd), and the
+// rounding bound of the survival.
+func (l *latLevel) at(w int) (f, s, se float64) {
+	if w%2 == 0 {
+		K := w / 2
+		switch {
+		case K < 0:
+			return 0, 1, 0
+		case K >= len(l.q):
+			return 1, 0, 0
+		case K == 0:
+			return l.q[0] / 2, l.sc[0] + l.q[0]/2, l.sErr[0]
+		}
+		return l.fc[K-1] + l.q[K]/2, l.sc[K] + l.q[K]/2, l.sErr[K-1]
 	}
-	coarse, err := latticeConvolve(terms, los, his, 2*delta)
-	if err != nil {
-		return nil, err
+	K := (w - 1) / 2
+	switch {
+	case K < 0:
+		return 0, 1, 0
+	case K >= len(l.q):
+		return 1, 0, 0
 	}
-	rnd := 1e-15 * math.Log2(float64(fine.n))
-	floor := 1e6 * (rnd + 2*latticeCut)
-	var diff, relDiff float64
-	for m := range coarse.q {
-		for _, o := range []float64{0, 0.25, 0.5, 0.75} {
-			x := coarse.delta * (float64(coarse.k0+m) + o)
-			diff = math.Max(diff, math.Abs(fine.cdfLattice(x)-coarse.cdfLattice(x)))
-			if sf := fine.survLattice(x); sf >= floor {
-				relDiff = math.Max(relDiff, math.Abs(coarse.survLattice(x)/sf-1))
+	return l.fc[K], l.sc[K], l.sErr[K]
+}
+
+// latticeLevel rounds each term to the lattice of the given step and
+// convolves: an aligned term has cells [lo + j·step, lo + (j+1)·step] with
+// points at their centres, any other term points lo + j·step with cells
+// centred on them. The sum's points are org + m·step, org = Σ count·lo +
+// (aligned count)·step/2.
+//
+// The FFT computes each mass to about 1e-16 of the largest, which would
+// cap the survival's relative precision near 1e-8; the upper tail is
+// therefore computed again from tilted lattice laws q_m·exp(θ·m·step)
+// (exponential damping, Embrechts & Frei 2009; the tilt of a convolution is
+// the convolution of the tilts), θ the decay rate of the survival between
+// 1e-5 and 1e-9 and then, from the tilted result, between 1e-9 and 1e-13.
+// The rounding of each pass is measured on the FFT's zero padding (its
+// largest residue), scaled back by exp(-θ·m·step); each mass comes from
+// the pass with the smallest bound.
+func latticeLevel(fn string, terms []latTerm, step float64) (*latLevel, error) {
+	lens := make([]int, len(terms))
+	total := 1
+	out := &latLevel{step: step}
+	for i, t := range terms {
+		c := (t.hi - t.lo) / step
+		if !(c < 1e7) {
+			return nil, fmt.Errorf("dist.%s: lattice fallback: %v cells for one term: %w", fn, c, ErrParam)
+		}
+		if t.aligned {
+			lens[i] = max(1, int(math.Ceil(c)))
+			out.org += float64(t.count) * (t.lo + step/2)
+		} else {
+			lens[i] = int(math.Floor(c+0.5)) + 1
+			out.org += float64(t.count) * t.lo
+		}
+		total += t.count * (lens[i] - 1)
+	}
+	N := fftSize(total + 64) // the padding measures the rounding
+	if N > latticeMaxN {
+		return nil, fmt.Errorf("dist.%s: lattice fallback: %d lattice points: %w", fn, total, ErrParam)
+	}
+	masses := make([][]float64, len(terms))
+	for i, t := range terms {
+		med := t.law.Quantile(0.5)
+		edge := t.lo + step/2 // upper edge of cell 0
+		if t.aligned {
+			edge = t.lo + step
+		} else {
+			out.cut += float64(t.count) * t.law.CDF(t.lo-step/2)
+		}
+		// mass of each cell from F below the median and S above it
+		ms := make([]float64, lens[i])
+		var pf, ps float64 = 0, 1
+		for j := range ms {
+			if j == len(ms)-1 {
+				ms[j] = ps
+				out.cut += float64(t.count) * t.law.Survival(edge+float64(j)*step)
+				continue
+			}
+			x := edge + float64(j)*step
+			if x <= med {
+				f := t.law.CDF(x)
+				ms[j] = f - pf
+				pf, ps = f, 1-f
+			} else {
+				s := t.law.Survival(x)
+				ms[j] = ps - s
+				pf, ps = 1-s, s
 			}
 		}
-	}
-	var mean, variance, supLo, supHi float64
-	for _, t := range terms {
-		mean += t.Mean()
-		variance += t.Variance()
-		a, b := t.Support()
-		supLo += a
-		supHi += b
-	}
-	fine.mean, fine.variance, fine.supLo, fine.supHi = mean, variance, supLo, supHi
-	fine.terms = append([]Law(nil), terms...)
-	cdfAbs := 2*diff + 2*latticeCut + rnd
-	fine.acc = Accuracy{CDFAbs: cdfAbs, SurvivalRel: 2*relDiff + (rnd+2*latticeCut)/floor, TailFloor: floor,
-		Method: fmt.Sprintf("lattice FFT of %d terms, step %.3g, %d-point FFT, error from a step-2δ repeat", n, delta, fine.n)}
-	return fine, nil
-}
-
-// latticeLaw is a sum computed on a lattice by latticeSum.
-type latticeLaw struct {
-	delta          float64
-	k0             int       // lattice index of q[0]
-	q              []float64 // masses at (k0 + m)·δ
-	fc, sc         []float64 // cumulative masses up to and beyond cell m
-	n              int       // FFT size
-	mean, variance float64
-	supLo, supHi   float64
-	terms          []Law
-	acc            Accuracy
-}
-
-// latticeConvolve rounds each term to the lattice δ·Z and convolves.
-func latticeConvolve(terms []Law, los, his []float64, delta float64) (*latticeLaw, error) {
-	k0s, lens := make([]int, len(terms)), make([]int, len(terms))
-	k0, total := 0, 1
-	for i := range terms {
-		a, b := math.Floor(los[i]/delta+0.5), math.Floor(his[i]/delta+0.5)
-		if !(b-a < 1e7) {
-			return nil, fmt.Errorf("dist.Sum: lattice fallback: %v cells for one term: %w", b-a+1, ErrParam)
-		}
-		k0s[i], lens[i] = int(a), int(b-a)+1
-		k0 += k0s[i]
-		total += lens[i] - 1
-	}
-	N := fftSize(total)
-	if N > latticeMaxN {
-		return nil, fmt.Errorf("dist.Sum: lattice fallback: %d lattice points: %w", total, ErrParam)
+		masses[i] = ms
 	}
 	fft := fourier.NewCmplxFFT(N)
 	prod := make([]complex128, N)
 	buf := make([]complex128, N)
-	for i, t := range terms {
-		med := t.Quantile(0.5)
-		edge := func(k int) (f, s float64) { // F and S at the upper edge of cell k
-			x := (float64(k) + 0.5) * delta
-			if x <= med {
-				f = t.CDF(x)
-				return f, 1 - f
+	// pass returns the masses of the sum tilted by exp(θ·m·step) and the
+	// largest residue in the padding
+	pass := func(th float64) ([]float64, float64) {
+		for i, t := range terms {
+			for j := range buf {
+				buf[j] = 0
 			}
-			s = t.Survival(x)
-			return 1 - s, s
-		}
-		for j := range buf {
-			buf[j] = 0
-		}
-		var pf, ps float64 = 0, 1
-		for j := 0; j < lens[i]; j++ {
-			var m float64
-			if j == lens[i]-1 {
-				m = ps
-			} else {
-				f, s := edge(k0s[i] + j)
-				if (float64(k0s[i]+j)+0.5)*delta <= med {
-					m = f - pf
-				} else {
-					m = ps - s
+			for j, m := range masses[i] {
+				buf[j] = complex(m*math.Exp(th*float64(j)*step), 0)
+			}
+			fft.Coefficients(buf, buf)
+			if t.count > 1 {
+				ck := complex(float64(t.count), 0)
+				for j, z := range buf {
+					buf[j] = cmplx.Exp(ck * cmplx.Log(z))
 				}
-				pf, ps = f, s
 			}
-			buf[j] = complex(m, 0)
-		}
-		fft.Coefficients(buf, buf)
-		if i == 0 {
-			copy(prod, buf)
-		} else {
-			for j := range prod {
-				prod[j] *= buf[j]
+			if i == 0 {
+				copy(prod, buf)
+			} else {
+				for j := range prod {
+					prod[j] *= buf[j]
+				}
 			}
 		}
+		fft.Sequence(prod, prod)
+		r := make([]float64, total)
+		for m := range r {
+			r[m] = real(prod[m]) / float64(N)
+		}
+		var noise float64
+		for m := total; m < N; m++ {
+			noise = math.Max(noise, cmplx.Abs(prod[m])/float64(N))
+		}
+		return r, noise
 	}
-	fft.Sequence(prod, prod)
-	l := &latticeLaw{delta: delta, k0: k0, n: N, q: make([]float64, total), fc: make([]float64, total), sc: make([]float64, total)}
-	for m := range l.q {
-		l.q[m] = real(prod[m]) / float64(N)
+	q, noise := pass(0)
+	errs := make([]float64, total)
+	for m := range errs {
+		errs[m] = 10*noise + 1e-300
 	}
-	var acc float64
-	for m := range l.q {
-		acc += l.q[m]
-		l.fc[m] = math.Max(0, acc)
+	span := float64(total) * step
+	// decay rate of the survival between levels a > b of the current masses
+	rate := func(a, b float64) float64 {
+		var acc float64
+		ma, mb := -1, -1
+		for m := total - 1; m >= 0; m-- {
+			acc += q[m]
+			if mb < 0 && acc >= b && acc >= 1e6*errs[m] {
+				mb = m
+			}
+			if acc >= a {
+				ma = m
+				break
+			}
+		}
+		if ma < 0 || mb <= ma {
+			return 0
+		}
+		var sa, sb float64
+		for m := ma; m < total; m++ {
+			sa += q[m]
+			if m >= mb {
+				sb += q[m]
+			}
+		}
+		return math.Log(sa/sb) / (float64(mb-ma) * step)
 	}
-	acc = 0
+	prev := 0.0
+	for _, lv := range [][2]float64{{1e-5, 1e-9}, {1e-9, 1e-13}} {
+		th := math.Min(rate(lv[0], lv[1]), 650/span)
+		if !(th > 1.2*prev) {
+			continue
+		}
+		prev = th
+		r, nz := pass(th)
+		for m := range q {
+			back := math.Exp(-th * float64(m) * step)
+			if e := 10 * nz * back; e < errs[m] {
+				q[m], errs[m] = r[m]*back, e
+			}
+		}
+	}
+	out.n = N
+	out.q, out.fc, out.sc, out.sErr = q, make([]float64, total), make([]float64, total), make([]float64, total)
+	var acc, e2 float64
+	for m := range q {
+		acc += q[m]
+		e2 += errs[m] * errs[m]
+		out.fc[m] = math.Max(0, acc)
+	}
+	// the sums' rounding: a random walk of the masses' bounds (times ten)
+	// and 1e-16 per unit per √(cells) of the running sum
+	out.fErr = 10*math.Sqrt(e2) + 1e-16*math.Sqrt(float64(total))
+	acc, e2 = 0, 0
 	for m := total - 1; m >= 0; m-- {
-		l.sc[m] = math.Max(0, acc)
-		acc += l.q[m]
+		out.sc[m] = math.Max(0, acc)
+		out.sErr[m] = 10*math.Sqrt(e2) + 1e-16*acc*math.Sqrt(float64(total-m))
+		acc += q[m]
+		e2 += errs[m] * errs[m]
 	}
-	return l, nil
+	return out, nil
 }
 
-// pos returns the cell m holding x and the fraction of it below x.
-func (l *latticeLaw) pos(x float64) (int, float64) {
-	u := x/l.delta - float64(l.k0) + 0.5 // cell m spans [m, m+1) in u
-	if u < 0 {
-		return -1, 0
-	}
-	if u >= float64(len(l.q)) {
-		return len(l.q), 0
-	}
-	m := int(u)
-	return m, u - float64(m)
+// latGrid is the extrapolated CDF and survival of a lattice sum on the
+// points x0 + j·h (h = 2δ), with their error estimates.
+type latGrid struct {
+	x0, h      float64
+	f, s       []float64
+	jmin, jmax int // stencils stay in [jmin, jmax] (the support)
+	cdfErr     float64
+	survRel    float64
+	floor      float64
+	n          int // fine FFT size
+	delta      float64
 }
 
-// CDF returns P(X <= x) from the lattice histogram. NaN for NaN.
+// newLatGrid computes the lattice sum of terms at steps δ, 2δ, 4δ and
+// extrapolates; supLo, supHi is the support of the sum. With A = Σ count·lo
+// and n_a the aligned count, level ℓ has its points at A + (n_a/2 + m)·2^ℓ·δ;
+// the grid is x = A + P·δ for even P, where every level has a lattice point
+// (n_a even) or a cell edge (n_a odd): the same kind of value at every step.
+func newLatGrid(fn string, terms []latTerm, delta, supLo, supHi float64) (*latGrid, error) {
+	var lv [3]*latLevel
+	var A float64
+	na := 0
+	for _, t := range terms {
+		A += float64(t.count) * t.lo
+		if t.aligned {
+			na += t.count
+		}
+	}
+	for i := range lv {
+		var err error
+		if lv[i], err = latticeLevel(fn, terms, delta*float64(int(1)<<i)); err != nil {
+			return nil, err
+		}
+	}
+	fine, coarse, quad := lv[0], lv[1], lv[2]
+	// level ℓ at x = A + P·δ: w = P·2^(1-ℓ) - n_a (twice the lattice position)
+	p0 := (na - 16) / 2
+	p0 -= ((p0 % 4) + 4) % 4
+	p1 := (2*len(fine.q) + na + 16) / 2
+	n := (p1-p0)/2 + 1
+	g := &latGrid{x0: A + float64(p0)*delta, h: 2 * delta, f: make([]float64, n), s: make([]float64, n),
+		n: fine.n, delta: delta}
+	var rnd, cut float64
+	for _, l := range lv {
+		rnd = math.Max(rnd, l.fErr)
+		cut = math.Max(cut, l.cut)
+	}
+	rnd *= 2 // the extrapolation's weights, 4/3 + 1/3
+	srnd := make([]float64, n)
+	var rich, richRel float64
+	for j := range g.f {
+		P := p0 + 2*j
+		ff, fs, fe := fine.at(2*P - na)
+		cf, cs, ce := coarse.at(P - na)
+		g.f[j] = (4*ff - cf) / 3
+		g.s[j] = (4*fs - cs) / 3
+		srnd[j] = (4*fe + ce) / 3
+	}
+	// the tail floor: below it the survival's rounding or the cut mass
+	// would exceed 1e-7 of its value
+	g.floor = 1e7 * 2 * cut
+	for j := n - 1; j >= 0; j-- {
+		if 1e7*srnd[j] > g.s[j] {
+			g.floor = math.Max(g.floor, g.s[j])
+		}
+	}
+	g.floor = math.Max(g.floor, 1e-300)
+	for j := range g.f {
+		P := p0 + 2*j
+		if P%4 == 0 {
+			cf, cs, _ := coarse.at(P - na)
+			qf, qs, _ := quad.at(P/2 - na)
+			f2, s2 := (4*cf-qf)/3, (4*cs-qs)/3
+			rich = math.Max(rich, math.Abs(g.f[j]-f2))
+			rich = math.Max(rich, math.Abs(g.s[j]-s2))
+			if g.s[j] > g.floor {
+				richRel = math.Max(richRel, math.Abs(s2/g.s[j]-1))
+			}
+		}
+	}
+	g.jmin, g.jmax = 0, n-1
+	for g.jmin < n-1 && g.x0+float64(g.jmin)*g.h < supLo-1e-9*g.h {
+		g.jmin++
+	}
+	for g.jmax > 0 && g.x0+float64(g.jmax)*g.h > supHi+1e-9*g.h {
+		g.jmax--
+	}
+	if g.jmax-g.jmin < 6 {
+		return nil, fmt.Errorf("dist.%s: lattice fallback: %d grid points inside the support: %w", fn, g.jmax-g.jmin+1, ErrParam)
+	}
+	// interpolation: cubic against quintic at the midpoints
+	var ip, ipRel float64
+	for j := g.jmin; j < g.jmax; j++ {
+		p := float64(j) + 0.5
+		f4, f6 := g.interp(g.f, p, 4), g.interp(g.f, p, 6)
+		s4, s6 := g.interp(g.s, p, 4), g.interp(g.s, p, 6)
+		ip = math.Max(ip, math.Max(math.Abs(f4-f6), math.Abs(s4-s6)))
+		if s6 > g.floor {
+			ipRel = math.Max(ipRel, math.Abs(s4/s6-1))
+		}
+	}
+	g.cdfErr = 2*rich + 2*ip + 2*cut + rnd
+	g.survRel = 2*richRel + 2*ipRel + 1e-7
+	return g, nil
+}
+
+// interp evaluates the m-point Lagrange interpolant of v (equispaced, unit
+// spacing) at the grid position p, its stencil kept inside [jmin, jmax].
+func (g *latGrid) interp(v []float64, p float64, m int) float64 {
+	st := int(math.Floor(p)) - (m/2 - 1)
+	st = max(g.jmin, min(st, g.jmax-(m-1)))
+	u := p - float64(st)
+	var sum float64
+	for i := 0; i < m; i++ {
+		w := 1.0
+		for k := 0; k < m; k++ {
+			if k != i {
+				w *= (u - float64(k)) / float64(i-k)
+			}
+		}
+		sum += w * v[st+i]
+	}
+	return sum
+}
+
+// value returns the interpolated CDF of the lattice sum at x, or its
+// survival when upper.
+func (g *latGrid) value(x float64, upper bool) float64 {
+	p := (x - g.x0) / g.h
+	v := g.f
+	if upper {
+		v = g.s
+	}
+	switch {
+	case p < float64(g.jmin):
+		return b2f(upper)
+	case p > float64(g.jmax):
+		return b2f(!upper)
+	}
+	return math.Min(1, math.Max(0, g.interp(v, p, 4)))
+}
+
+// b2f returns 1 for true, 0 for false.
+func b2f(b bool) float64 {
+	if b {
+		return 1
+	}
+	return 0
+}
+
+// latComp is one combination of a lattice sum: the atoms vals (with
+// probabilities probs summing to one) shifting either the lattice law grid,
+// the one continuous law cont, or nothing (a purely atomic combination).
+type latComp struct {
+	w           float64
+	vals, probs []float64
+	grid        *latGrid
+	cont        Law
+}
+
+// value returns the combination's CDF at x, or its survival when upper.
+func (c latComp) value(x float64, upper bool) float64 {
+	var s float64
+	for i, v := range c.vals {
+		switch {
+		case c.grid != nil:
+			s += c.probs[i] * c.grid.value(x-v, upper)
+		case c.cont != nil && upper:
+			s += c.probs[i] * c.cont.Survival(x-v)
+		case c.cont != nil:
+			s += c.probs[i] * c.cont.CDF(x-v)
+		case (x < v) == upper:
+			s += c.probs[i]
+		}
+	}
+	return s
+}
+
+// latticeLaw is a sum computed by latticeSum (or a k-fold sum by
+// latticePower).
+type latticeLaw struct {
+	comps          []latComp
+	atoms          []Atom // of the purely atomic combinations, absolute masses
+	mean, variance float64
+	supLo, supHi   float64
+	terms          []Law
+	k              int // SumIID: terms[0] k times
+	self           *latticeLaw
+	acc            Accuracy
+}
+
+// splitAtoms writes l as its atoms (absolute masses) and a continuous part
+// (nil when l is purely atomic): a mixture by its components, another law
+// with atoms by subtracting them (atomFree).
+func splitAtoms(l Law) ([]Atom, Law, error) {
+	switch b := l.(type) {
+	case Discrete:
+		return b.Atoms(), nil, nil
+	case latticeDiscrete:
+		return b.Atoms(), nil, nil
+	}
+	if !hasAtoms(l) {
+		return nil, l, nil
+	}
+	if ws, cs, ok := mixtureParts(l); ok {
+		var atoms []Atom
+		var cw []float64
+		var cl []Law
+		for i, c := range cs {
+			a, cc, err := splitAtoms(c)
+			if err != nil {
+				return nil, nil, err
+			}
+			am := 0.0
+			for _, x := range a {
+				atoms = append(atoms, Atom{Value: x.Value, Mass: x.Mass * ws[i]})
+				am += x.Mass
+			}
+			if cc != nil && 1-am > 0 {
+				cw, cl = append(cw, ws[i]*(1-am)), append(cl, cc)
+			}
+		}
+		if len(cl) == 0 {
+			return mergeAtoms(atoms), nil, nil
+		}
+		floats.Scale(1/floats.Sum(cw), cw)
+		c, err := Mixture(cw, cl)
+		if err != nil {
+			return nil, nil, err
+		}
+		return mergeAtoms(atoms), c, nil
+	}
+	atoms := l.(Atomic).Atoms()
+	am := 0.0
+	for _, a := range atoms {
+		am += a.Mass
+	}
+	if am >= 1-1e-15 {
+		return atoms, nil, nil
+	}
+	return atoms, newAtomFree(l, atoms, 1-am), nil
+}
+
+// latticeSum is the fallback of Sum for terms without a known transform.
+func latticeSum(laws []Law) (Law, error) {
+	var terms []Law
+	for _, t := range laws {
+		if b, ok := t.(*latticeLaw); ok && b.k == 0 {
+			terms = append(terms, b.terms...)
+			continue
+		}
+		terms = append(terms, t)
+	}
+	disc := []Atom{{Value: 0, Mass: 1}}
+	var cont []Law
+	type mixed struct {
+		atoms []Atom // normalised
+		a     float64
+		c     Law
+	}
+	var mix []mixed
+	for _, t := range terms {
+		atoms, c, err := splitAtoms(t)
+		if err != nil {
+			return nil, err
+		}
+		am := 0.0
+		for _, a := range atoms {
+			am += a.Mass
+		}
+		switch {
+		case c == nil:
+			if disc, err = convolveAtoms("Sum", disc, atoms); err != nil {
+				return nil, err
+			}
+		case len(atoms) == 0:
+			cont = append(cont, c)
+		default:
+			norm := make([]Atom, len(atoms))
+			for i, a := range atoms {
+				norm[i] = Atom{Value: a.Value, Mass: a.Mass / am}
+			}
+			mix = append(mix, mixed{atoms: norm, a: am, c: c})
+		}
+	}
+	if len(mix) > 0 && 1<<len(mix) > maxLatticeCombos {
+		return nil, fmt.Errorf("dist.Sum: lattice fallback: %d terms with atoms and a continuous part (%d combinations, at most %d): %w", len(mix), 1<<len(mix), maxLatticeCombos, ErrParam)
+	}
+	// the lattice step, from the sum of every continuous part
+	all := append([]Law(nil), cont...)
+	for _, m := range mix {
+		all = append(all, m.c)
+	}
+	var delta float64
+	if len(all) >= 2 {
+		ones := make([]int, len(all))
+		for i := range ones {
+			ones[i] = 1
+		}
+		_, span, err := newLatTerms("Sum", all, ones, latticeCut)
+		if err != nil {
+			return nil, err
+		}
+		delta = span / latticeCells
+	}
+	var comps []latComp
+	shifts := 0
+	var grids int
+	for sub := 0; sub < 1<<len(mix); sub++ {
+		w := 1.0
+		atoms := disc
+		cs := append([]Law(nil), cont...)
+		for i, m := range mix {
+			if sub&(1<<i) != 0 {
+				w *= m.a
+				var err error
+				if atoms, err = convolveAtoms("Sum", atoms, m.atoms); err != nil {
+					return nil, err
+				}
+			} else {
+				w *= 1 - m.a
+				cs = append(cs, m.c)
+			}
+		}
+		if !(w > 0) {
+			continue
+		}
+		if shifts += len(atoms); shifts > maxLatticeShifts {
+			return nil, fmt.Errorf("dist.Sum: lattice fallback: more than %d atoms shift the lattice sums: %w", maxLatticeShifts, ErrParam)
+		}
+		c := latComp{w: w, vals: make([]float64, len(atoms)), probs: make([]float64, len(atoms))}
+		tot := 0.0
+		for _, a := range atoms {
+			tot += a.Mass
+		}
+		for i, a := range atoms {
+			c.vals[i], c.probs[i] = a.Value, a.Mass/tot
+		}
+		switch len(cs) {
+		case 0:
+		case 1:
+			c.cont = cs[0]
+		default:
+			ones := make([]int, len(cs))
+			lo, hi := 0.0, 0.0
+			for i, l := range cs {
+				ones[i] = 1
+				a, b := l.Support()
+				lo, hi = lo+a, hi+b
+			}
+			lts, _, err := newLatTerms("Sum", cs, ones, latticeCut)
+			if err != nil {
+				return nil, err
+			}
+			if c.grid, err = newLatGrid("Sum", lts, delta, nanTo(lo, math.Inf(-1)), nanTo(hi, math.Inf(1))); err != nil {
+				return nil, err
+			}
+			grids++
+		}
+		comps = append(comps, c)
+	}
+	out := newLatticeLaw(comps, terms, 0)
+	out.acc.Method = fmt.Sprintf("exact atoms shifting %d lattice sums (Richardson-extrapolated lattice FFT, step %.3g, error from a step-2δ repeat) over %d combinations", grids, delta, len(comps))
+	return out, nil
+}
+
+// nanTo returns x, or d when x is NaN.
+func nanTo(x, d float64) float64 {
+	if math.IsNaN(x) {
+		return d
+	}
+	return x
+}
+
+// newLatticeLaw assembles the law and its accuracy from its combinations;
+// k > 0 marks the k-fold sum of terms[0].
+func newLatticeLaw(comps []latComp, terms []Law, k int) *latticeLaw {
+	l := &latticeLaw{comps: comps, terms: terms, k: k}
+	l.self = l
+	for _, t := range terms {
+		l.mean += t.Mean()
+		l.variance += t.Variance()
+		a, b := t.Support()
+		l.supLo += a
+		l.supHi += b
+	}
+	if k > 0 {
+		fk := float64(k)
+		l.mean, l.variance, l.supLo, l.supHi = fk*l.mean, fk*l.variance, fk*l.supLo, fk*l.supHi
+	}
+	l.supLo, l.supHi = nanTo(l.supLo, math.Inf(-1)), nanTo(l.supHi, math.Inf(1))
+	cdfAbs, rel, floor := 1e-15, 1e-15, 0.0
+	for _, c := range comps {
+		switch {
+		case c.grid != nil:
+			cdfAbs += c.w * c.grid.cdfErr
+			rel = math.Max(rel, c.grid.survRel)
+			floor = math.Max(floor, c.grid.floor)
+		case c.cont == nil:
+			for i, v := range c.vals {
+				l.atoms = append(l.atoms, Atom{Value: v, Mass: c.w * c.probs[i]})
+			}
+		}
+	}
+	// below its floor a combination's survival has absolute error at
+	// most rel·floor (its errors shrink into the tail)
+	var tailAbs float64
+	for _, c := range comps {
+		if c.grid != nil {
+			tailAbs += c.w * c.grid.survRel * c.grid.floor
+		}
+	}
+	if floor > 0 {
+		rel += tailAbs / floor
+	}
+	l.atoms = mergeAtoms(l.atoms)
+	l.acc = Accuracy{CDFAbs: cdfAbs, SurvivalRel: rel, TailFloor: floor}
+	return l
+}
+
+// CDF returns P(X <= x). NaN for NaN.
 func (l *latticeLaw) CDF(x float64) float64 {
 	switch {
 	case math.IsNaN(x):
@@ -208,28 +747,11 @@ func (l *latticeLaw) CDF(x float64) float64 {
 	case x >= l.supHi:
 		return 1
 	}
-	return l.cdfLattice(x)
+	return l.value(x, false)
 }
 
-// cdfLattice is CDF without the support checks (mean and support are set
-// after the error estimate).
-func (l *latticeLaw) cdfLattice(x float64) float64 {
-	m, fr := l.pos(x)
-	switch {
-	case m < 0:
-		return 0
-	case m >= len(l.q):
-		return 1
-	}
-	below := 0.0
-	if m > 0 {
-		below = l.fc[m-1]
-	}
-	return math.Min(1, math.Max(0, below+fr*l.q[m]))
-}
-
-// Survival returns P(X > x) from the lattice histogram, summed from the
-// top. NaN for NaN.
+// Survival returns P(X > x), each combination's from its own upper tail.
+// NaN for NaN.
 func (l *latticeLaw) Survival(x float64) float64 {
 	switch {
 	case math.IsNaN(x):
@@ -239,19 +761,16 @@ func (l *latticeLaw) Survival(x float64) float64 {
 	case x >= l.supHi:
 		return 0
 	}
-	return l.survLattice(x)
+	return l.value(x, true)
 }
 
-// survLattice is Survival without the support checks.
-func (l *latticeLaw) survLattice(x float64) float64 {
-	m, fr := l.pos(x)
-	switch {
-	case m < 0:
-		return 1
-	case m >= len(l.q):
-		return 0
+// value sums the combinations' CDFs (or survivals when upper).
+func (l *latticeLaw) value(x float64, upper bool) float64 {
+	var s float64
+	for _, c := range l.comps {
+		s += c.w * c.value(x, upper)
 	}
-	return math.Min(1, math.Max(0, l.sc[m]+(1-fr)*l.q[m]))
+	return math.Min(1, math.Max(0, s))
 }
 
 // Quantile inverts CDF (or Survival above the median) by bisection.
@@ -269,11 +788,22 @@ func (l *latticeLaw) Variance() float64 { return l.variance }
 // Support returns the support implied by the terms' supports.
 func (l *latticeLaw) Support() (lo, hi float64) { return l.supLo, l.supHi }
 
-// Rand draws each term from its own sampler and adds.
+// Atoms lists the exact atoms (those of the combinations in which every
+// term contributes an atom); none when a continuous term is present.
+func (l *latticeLaw) Atoms() []Atom { return append([]Atom(nil), l.atoms...) }
+
+// Rand draws each term from its own sampler and adds (a k-fold sum with
+// k > maxStructuralDraws inverts its own CDF instead).
 func (l *latticeLaw) Rand(r *rand.Rand) float64 {
+	if l.k > maxStructuralDraws {
+		return l.self.Quantile(r.Float64())
+	}
 	x := 0.0
-	for _, t := range l.terms {
-		x += t.Rand(r)
+	n := max(l.k, 1)
+	for i := 0; i < n; i++ {
+		for _, t := range l.terms {
+			x += t.Rand(r)
+		}
 	}
 	return x
 }
@@ -284,7 +814,112 @@ func (l *latticeLaw) Accuracy() Accuracy { return l.acc }
 // String prints the law compactly.
 func (l *latticeLaw) String() string { return fmt.Sprintf("Sum(lattice: %s)", summary(l)) }
 
-// latticeIID is the fallback of SumIID for a law without a known transform.
-func latticeIID(l Law, k int) (Law, error) {
-	return nil, fmt.Errorf("dist.SumIID: %v has no known characteristic function: %w", l, ErrParam)
+// atomFree is the continuous part of a law with atoms, F_c = (F - A)/w and
+// S_c = (S - Σ_{v > x} m_v)/w, w the continuous mass.
+type atomFree struct {
+	l      Law
+	vals   []float64
+	below  []float64 // atom mass at or below vals[i]
+	above  []float64 // atom mass above vals[i]
+	total  float64
+	w      float64
+	mu, v2 float64
 }
+
+func newAtomFree(l Law, atoms []Atom, w float64) atomFree {
+	a := atomFree{l: l, w: w}
+	var s, m1, m2 float64
+	for _, x := range atoms {
+		s += x.Mass
+		a.vals = append(a.vals, x.Value)
+		a.below = append(a.below, s)
+		m1 += x.Mass * x.Value
+		m2 += x.Mass * x.Value * x.Value
+	}
+	a.total = s
+	for i := range a.vals {
+		a.above = append(a.above, s-a.below[i])
+	}
+	mu := l.Mean()
+	a.mu = (mu - m1) / w
+	a.v2 = (l.Variance()+mu*mu-m2)/w - a.mu*a.mu
+	return a
+}
+
+// atomsAt returns the atom mass at or below x and above x.
+func (a atomFree) atomsAt(x float64) (below, above float64) {
+	i := sort.SearchFloat64s(a.vals, x) // first value >= x
+	if i < len(a.vals) && a.vals[i] == x {
+		i++
+	}
+	if i == 0 {
+		return 0, a.total
+	}
+	return a.below[i-1], a.above[i-1]
+}
+
+func (a atomFree) CDF(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	b, _ := a.atomsAt(x)
+	return math.Min(1, math.Max(0, (a.l.CDF(x)-b)/a.w))
+}
+
+func (a atomFree) Survival(x float64) float64 {
+	if math.IsNaN(x) {
+		return x
+	}
+	_, up := a.atomsAt(x)
+	return math.Min(1, math.Max(0, (a.l.Survival(x)-up)/a.w))
+}
+
+func (a atomFree) Quantile(p float64) float64      { return quantileByInversion(a, p) }
+func (a atomFree) UpperQuantile(q float64) float64 { return upperQuantileByInversion(a, q) }
+func (a atomFree) Mean() float64                   { return a.mu }
+func (a atomFree) Variance() float64               { return math.Max(0, a.v2) }
+func (a atomFree) Support() (lo, hi float64)       { return a.l.Support() }
+
+// Rand draws from l until the draw is not one of its atoms (1/w draws on
+// average; after 10^4 atoms in a row it inverts its own CDF).
+func (a atomFree) Rand(r *rand.Rand) float64 {
+	for i := 0; i < 10000; i++ {
+		x := a.l.Rand(r)
+		j := sort.SearchFloat64s(a.vals, x)
+		if j == len(a.vals) || a.vals[j] != x {
+			return x
+		}
+	}
+	return a.Quantile(r.Float64())
+}
+
+func (a atomFree) String() string { return fmt.Sprintf("continuous part of %v", a.l) }
+
+// latticePower is the k-fold sum of a law without a known transform on the
+// lattice (SumIID for small k).
+func latticePower(l Law, k int) (Law, error) {
+	atoms, c, err := splitAtoms(l)
+	if err != nil {
+		return nil, err
+	}
+	if len(atoms) > 0 || c == nil {
+		return nil, fmt.Errorf("dist.SumIID: %v has atoms and no known characteristic function (the lattice fallback takes laws without atoms): %w", l, ErrParam)
+	}
+	lts, span, err := newLatTerms("SumIID", []Law{l}, []int{k}, latticeCut)
+	if err != nil {
+		return nil, err
+	}
+	delta := span / latticeCells
+	lo, hi := l.Support()
+	fk := float64(k)
+	g, err := newLatGrid("SumIID", lts, delta, nanTo(fk*lo, math.Inf(-1)), nanTo(fk*hi, math.Inf(1)))
+	if err != nil {
+		return nil, err
+	}
+	out := newLatticeLaw([]latComp{{w: 1, vals: []float64{0}, probs: []float64{1}, grid: g}}, []Law{l}, k)
+	out.acc.Method = fmt.Sprintf("%d-fold lattice FFT power (Richardson-extrapolated, step %.3g, %d-point FFT)", k, delta, g.n)
+	return out, nil
+}
+
+// latticeIID is the fallback of SumIID for a law without a known transform.
+func latticeIID(l Law, k int) (Law, error) { return latticePower(l, k) }

@@ -184,6 +184,10 @@ func transformOf(l Law) (transform, bool) {
 		return b.transform()
 	case shiftMixtureDensity:
 		return b.transform()
+	case productLaw:
+		return b.transform()
+	case productLawDensity:
+		return b.transform()
 	case CharFunc:
 		return transform{
 			logm: func(s complex128) complex128 { return cmplx.Log(b.CF(imag(s))) },

@@ -3,7 +3,9 @@ package dist
 import (
 	"fmt"
 	"math"
+	"math/cmplx"
 	"math/rand/v2"
+	"sync"
 )
 
 // Product returns the law of X·Y for independent X and Y with the given
@@ -29,6 +31,12 @@ import (
 //     the difference to a rule of half the order on the same panels, times
 //     ten, plus the mass left out (tested against the closed forms for
 //     uniforms and log-normals).
+//
+//     When one factor has a known transform, the product has one too,
+//     φ(t) = ∫_0^1 φ_X(t·Q_Y(u)) du on the same nodes (so a product can be a
+//     term of Sum), with its error estimated the same way at a few t across
+//     the scale of X·Y and stated to Sum; when one has a density, so has
+//     the product, ∫_0^1 f_X(z/Q_Y(u))/Q_Y(u) du.
 //
 // Mean = E[X]·E[Y]; Variance = E[X²]·E[Y²] - (E[X]·E[Y])². Rand multiplies
 // one draw of each. Errors wrap ErrParam: a nil law, or two factors neither
@@ -64,7 +72,16 @@ func Product(x, y Law) (Law, error) {
 			return nil, paramErr(fn, f.name, f.l, "must be discrete or without atoms for a numerical product")
 		}
 	}
-	return newProductLaw(x, y), nil
+	if _, ok := transformOf(x); !ok {
+		if _, ok := transformOf(y); ok {
+			x, y = y, x // the transform is integrated over the other factor
+		}
+	}
+	p := newProductLaw(x, y)
+	if _, ok := x.(Densitied); ok {
+		return productLawDensity{p}, nil
+	}
+	return p, nil
 }
 
 // productTail is the probability of Y left out at each end by the
@@ -77,6 +94,16 @@ type productLaw struct {
 	ys, ws         []float64 // quantiles of Y and the quadrature weights in u
 	mean, variance float64
 	acc            Accuracy
+	cf             *productCF // stated error of the transform, computed on first use
+}
+
+// productCF holds the error estimate of a product's transform, computed
+// once (it costs some 20 000 transform values of the first factor, which a
+// product used only for its CDF need not pay).
+type productCF struct {
+	once sync.Once
+	c    productLaw // the 10-point rule
+	err  float64
 }
 
 // productNodes returns the nodes u and weights of composite n-point
@@ -138,6 +165,7 @@ func newProductLaw(x, y Law) productLaw {
 			}
 		}
 	}
+	p.cf = &productCF{c: c}
 	p.acc = Accuracy{
 		CDFAbs:      10*dAbs + 4*productTail + 1e-14,
 		SurvivalRel: 10*dRel + 1e-12,
@@ -208,6 +236,87 @@ func (p productLaw) Rand(r *rand.Rand) float64 { return p.x.Rand(r) * p.y.Rand(r
 
 // Accuracy reports the error estimate described at Product.
 func (p productLaw) Accuracy() Accuracy { return p.acc }
+
+// CF returns φ(t) = Σ_i w_i·φ_X(t·y_i) over the quadrature nodes of Product
+// (NaN when neither factor has a known transform, or for NaN t).
+func (p productLaw) CF(t float64) complex128 {
+	tr, ok := p.transform()
+	if !ok || math.IsNaN(t) {
+		return complex(math.NaN(), math.NaN())
+	}
+	return cexpm1(tr.logm(complex(0, t))) + 1
+}
+
+// transform returns the log-transform of the product on the imaginary axis
+// (Re s = 0 only): log(1 + Σ_i w_i·(M_X(s·y_i) - 1)), the mass the nodes
+// leave out counted at M = 1, with the error p.cfErr.
+func (p productLaw) transform() (transform, bool) {
+	tx, ok := transformOf(p.x)
+	if !ok {
+		return transform{}, false
+	}
+	tr := p.rawTransform(tx)
+	if p.cf != nil {
+		p.cf.once.Do(func() { p.cf.err = p.cfError(tr, p.cf.c.rawTransform(tx)) })
+		tr.err = p.cf.err
+	}
+	return tr, true
+}
+
+// rawTransform is the transform of the product on the nodes of p, without
+// its error.
+func (p productLaw) rawTransform(tx transform) transform {
+	ys, ws := p.ys, p.ws
+	return transform{
+		logm: func(s complex128) complex128 {
+			var sum complex128
+			for i, y := range ys {
+				sum += complex(ws[i], 0) * cexpm1(tx.logm(s*complex(y, 0)))
+			}
+			return clog1p(sum)
+		},
+	}
+}
+
+// cfError estimates the error of the product's characteristic function tp:
+// ten times the largest difference to the 10-point rule tc at t across the
+// scale of X·Y (t·sd from 1/8 to 64), plus the mass left out.
+func (p productLaw) cfError(tp, tc transform) float64 {
+	sd := math.Sqrt(p.variance)
+	if !(sd > 0) || !finite(sd) {
+		return 0
+	}
+	d := 0.0
+	for ts := 0.125; ts <= 64; ts *= 2 {
+		s := complex(0, ts/sd)
+		a, b := cexpm1(tp.logm(s)), cexpm1(tc.logm(s))
+		d = math.Max(d, cmplx.Abs(a-b))
+	}
+	return 10*d + 4*productTail + 1e-14
+}
+
+// productLawDensity is a productLaw whose first factor has a density.
+type productLawDensity struct{ productLaw }
+
+// Density returns Σ_i w_i·f_X(z/y_i)/y_i, the density of the continuous
+// product at z (NaN for NaN z).
+func (p productLawDensity) Density(z float64) float64 {
+	if math.IsNaN(z) {
+		return z
+	}
+	lo, hi := p.Support()
+	if z < lo || z > hi {
+		return 0
+	}
+	f := p.x.(Densitied)
+	s := 0.0
+	for i, y := range p.ys {
+		if y > 0 {
+			s += p.ws[i] * f.Density(z/y) / y
+		}
+	}
+	return s
+}
 
 func (p productLaw) String() string {
 	return fmt.Sprintf("Product(%v × %v: %s)", p.x, p.y, summary(p))

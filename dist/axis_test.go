@@ -1,0 +1,134 @@
+package dist_test
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/dist"
+)
+
+// truncNormalPlusExp returns the CDF and survival of X + E, X a normal
+// (μ, σ) truncated to [0, ∞) and E ~ Exp(λ) independent. From the
+// convolution F(x) = F_X(x) - exp(-λx)·∫_0^x f_X(u)·exp(λu) du and the
+// tilted normal (exp(λu)·φ_σ(u - μ) = exp(λμ + λ²σ²/2)·φ_σ(u - μ - λσ²)),
+// worked out here:
+//
+//	F(x) = F_X(x) - exp(-λx + λμ + λ²σ²/2)·[Φ((x-μ-λσ²)/σ) - Φ((-μ-λσ²)/σ)]/Z
+//	S(x) = S_X(x) + exp(-λx + λμ + λ²σ²/2)·[Φ((x-μ-λσ²)/σ) - Φ((-μ-λσ²)/σ)]/Z
+//
+// Z = Φ(μ/σ); Φ from math.Erfc (each difference from the tail where it
+// does not cancel).
+func truncNormalPlusExp(mu, sigma, lam float64) (cdf, surv func(float64) float64) {
+	phi := func(x float64) float64 { return math.Erfc(-x/math.Sqrt2) / 2 } // Φ
+	phic := func(x float64) float64 { return math.Erfc(x/math.Sqrt2) / 2 } // 1 - Φ
+	diff := func(a, b float64) float64 { // Φ(b) - Φ(a), a < b
+		if a > 0 {
+			return phic(a) - phic(b)
+		}
+		return phi(b) - phi(a)
+	}
+	z := phic(-mu / sigma)
+	a0 := -mu/sigma - lam*sigma
+	tilt := func(x float64) float64 {
+		if x <= 0 {
+			return 0
+		}
+		return math.Exp(-lam*x+lam*mu+lam*lam*sigma*sigma/2) * diff(a0, (x-mu)/sigma-lam*sigma) / z
+	}
+	cdf = func(x float64) float64 {
+		if x <= 0 {
+			return 0
+		}
+		return diff(-mu/sigma, (x-mu)/sigma)/z - tilt(x)
+	}
+	surv = func(x float64) float64 {
+		if x <= 0 {
+			return 1
+		}
+		return phic((x-mu)/sigma)/z + tilt(x)
+	}
+	return cdf, surv
+}
+
+// hypoWeights returns the weights c_i = Π_{j≠i} λ_j/(λ_j - λ_i) with which
+// the CDF of a sum of exponentials of distinct rates is Σ c_i·(1 - exp(-λ_i·x))
+// (the hypoexponential law; common practice).
+func hypoWeights(rates []float64) []float64 {
+	c := make([]float64, len(rates))
+	for i, li := range rates {
+		c[i] = 1
+		for j, lj := range rates {
+			if j != i {
+				c[i] *= lj / (lj - li)
+			}
+		}
+	}
+	return c
+}
+
+func TestSumTruncatedNormalClosedForm(t *testing.T) {
+	// sums with a truncated normal, whose series values come from its end
+	// expansion (the Faddeeva form near t = 0): the stated bounds must hold
+	// against closed forms, on the series and on the grid (more than 32
+	// values). X + E from truncNormalPlusExp; X + E_1 + … + E_5 (distinct
+	// rates) is Σ c_i·(law of X + E_i) with the hypoexponential weights, since
+	// the hypoexponential CDF is Σ c_i times exponential CDFs; atoms shift it
+	// (oracle Σ p_j·F(x - v_j)).
+	const mu, sigma = 3, 1.5
+	tn, err := dist.NewTruncated(dist.MustNormal(mu, sigma), 0, math.Inf(1))
+	require.NoError(t, err)
+	rates := []float64{0.8, 1.3, 2, 3, 4.5}
+	c := hypoWeights(rates)
+	var cdfs, survs []func(float64) float64
+	terms := []dist.Law{tn}
+	for _, r := range rates {
+		f, s := truncNormalPlusExp(mu, sigma, r)
+		cdfs, survs = append(cdfs, f), append(survs, s)
+		terms = append(terms, dist.MustExponential(r))
+	}
+	comb := func(fs []func(float64) float64) func(float64) float64 {
+		return func(x float64) float64 {
+			s := 0.0
+			for i, f := range fs {
+				s += c[i] * f(x)
+			}
+			return s
+		}
+	}
+	d := dist.MustDiscrete([]float64{0, 4.5, 9}, []float64{0.7, 0.2, 0.1})
+	shift := func(f func(float64) float64) func(float64) float64 {
+		return func(x float64) float64 {
+			s := 0.0
+			for _, a := range d.Atoms() {
+				s += a.Mass * f(x-a.Value)
+			}
+			return s
+		}
+	}
+	cases := []struct {
+		name      string
+		terms     []dist.Law
+		cdf, surv func(float64) float64
+		hi        float64
+		n         int
+		grid      bool
+	}{
+		// density kinked at 0: 2^16 series terms, no grid
+		{"TN + Exp", terms[:2], cdfs[0], survs[0], 40, 100, false},
+		{"TN + 5 Exp", terms, comb(cdfs), comb(survs), 45, 400, true},
+		{"atoms + TN + 5 Exp", append([]dist.Law{d}, terms...), shift(comb(cdfs)), shift(comb(survs)), 55, 400, true},
+	}
+	for _, c := range cases {
+		l, err := dist.Sum(c.terms...)
+		require.NoError(t, err)
+		wa, wr := checkAccuracy(t, l, grid(0.01, c.hi, c.n), c.cdf, c.surv, 1e-14)
+		acc := l.(dist.Estimated).Accuracy()
+		t.Logf("%s: worst CDF abs %.2e, survival rel %.2e; %+v", c.name, wa, wr, acc)
+		if c.grid {
+			assert.Contains(t, acc.Method, "grid", c.name)
+		}
+	}
+}

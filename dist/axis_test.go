@@ -24,7 +24,8 @@ import (
 func truncNormalPlusExp(mu, sigma, lam float64) (cdf, surv func(float64) float64) {
 	phi := func(x float64) float64 { return math.Erfc(-x/math.Sqrt2) / 2 } // Φ
 	phic := func(x float64) float64 { return math.Erfc(x/math.Sqrt2) / 2 } // 1 - Φ
-	diff := func(a, b float64) float64 {                                   // Φ(b) - Φ(a), a < b
+	// Φ(b) - Φ(a) for a < b
+	diff := func(a, b float64) float64 {
 		if a > 0 {
 			return phic(a) - phic(b)
 		}

@@ -70,7 +70,7 @@ func TestRandomSumUniformTermIsIrwinHallMixture(t *testing.T) {
 	// IH_n the Irwin–Hall law (irwinHallCDF; Johnson, Kotz & Balakrishnan —
 	// from memory), IH_0 the point mass at 0. The term's density jumps, so the
 	// whole generating function inverted at once met a CDF error of about
-	// 1e-6; the counts 0, 1, 2 are now laws of their own.
+	// 1e-6; the low counts are now laws of their own.
 	ps := []float64{0.1, 0.3, 0.25, 0.15, 0.12, 0.08}
 	count := dist.MustDiscrete([]float64{0, 1, 2, 3, 4, 5}, ps)
 	l, err := dist.RandomSum(count, dist.MustUniform(0, 1))
@@ -122,15 +122,15 @@ func TestRandomSumGeometricUniformMonteCarlo(t *testing.T) {
 	// A geometric count on {1, 2, …} (infinite support) of Uniform(2, 5)
 	// terms has no closed form: sampling from the structure (draw N, then N
 	// terms) is the independent path, Kolmogorov–Smirnov at level 1e-6
-	// (testref.KSCritical, DKW/Massart), fixed seed. The wide window of a
-	// geometric count and the kinks of the two-fold and three-fold uniform
-	// sums keep this law at the series cap: its stated CDF bound is a few
-	// 1e-6, and it must bound what sampling sees.
+	// (testref.KSCritical, DKW/Massart), fixed seed. Inverted at once, the
+	// wide window of a geometric count and the jumps and kinks of the low
+	// counts' sums kept this law at the series cap (CDF error 2e-5); with
+	// the counts up to 6 written as their own sums the 1e-10 holds.
 	g := geometric{p: 0.6}
 	l, err := dist.RandomSum(g, dist.MustUniform(2, 5))
 	require.NoError(t, err)
 	acc := l.(dist.Estimated).Accuracy()
-	assert.LessOrEqual(t, acc.CDFAbs, 1e-4, "%+v", acc)
+	assert.LessOrEqual(t, acc.CDFAbs, testref.TolCDF, "%+v", acc)
 	r := rand.New(rand.NewPCG(41, 43))
 	const n = 10000
 	xs := make([]float64, n)

@@ -90,27 +90,25 @@ func (a atomicSums) eval(k int64, x float64) (below, above float64, exact bool) 
 }
 
 // saddle returns the second-order saddlepoint P(S <= x) and P(S > x), each
-// tail from its own side. Within 0.1 sd of the mean, where w and u vanish
-// and the formula cancels, it uses the Edgeworth expansion to second order
+// tail from its own side. Within 1 sd of the mean, where w and u vanish
+// and the formula's terms (1/u³ − 1/w³ among them) cancel (at 0.1 sd they
+// lost 5e-6 to rounding), it uses the Edgeworth expansion to second order
 // instead (error O(k^{-3/2}), Feller Vol. II §XVI.4, section from memory):
 //
 //	F ≈ Φ(z) − φ(z)·[λ3/6·He2(z) + λ4/24·He3(z) + λ3²/72·He5(z)]
 func (a atomicSums) saddle(n, x float64) (below, above float64) {
 	s := a.sd * math.Sqrt(n)
 	z := (x - a.mu*n) / s
-	if math.Abs(z) >= 0.1 {
+	if math.Abs(z) >= 1 {
 		return a.saddleOff(n, x)
 	}
-	var k3, k4 float64
-	for i, v := range a.v {
-		d := v - a.mu
-		k3 += a.p[i] * d * d * d
-		k4 += a.p[i] * d * d * d * d
-	}
-	v2 := a.sd * a.sd
-	k4 -= 3 * v2 * v2
-	l3 := k3 / (v2 * a.sd * math.Sqrt(n))
-	l4 := k4 / (v2 * v2 * n)
+	return a.edgeworth(n, z)
+}
+
+// edgeworth returns the second-order Edgeworth P(Z <= z) and P(Z > z) of
+// the standardised n-fold sum.
+func (a atomicSums) edgeworth(n, z float64) (below, above float64) {
+	l3, l4 := a.edgeworthLambdas(n)
 	z2 := z * z
 	phi := math.Exp(-z2/2) / math.Sqrt(2*math.Pi)
 	c := phi * (l3/6*(z2-1) + l4/24*(z2-3)*z + l3*l3/72*((z2-10)*z2+15)*z)
@@ -198,9 +196,8 @@ func (a atomicSums) upperTerms(n, xb float64, sign float64) (q, corr float64) {
 	return math.Min(1, math.Max(0, q)), corr
 }
 
-// accuracy returns the error bounds of eval's values for the k-fold sums
-// near x.
-func (a atomicSums) accuracy(k int64, x float64) dist.Accuracy {
+// accuracy returns the error bounds of eval's values for the k-fold sums.
+func (a atomicSums) accuracy(k int64) dist.Accuracy {
 	switch {
 	case len(a.v) == 2:
 		return dist.Accuracy{CDFAbs: 1e-13, SurvivalRel: 1e-12, TailFloor: 1e-300,
@@ -212,87 +209,8 @@ func (a atomicSums) accuracy(k int64, x float64) dist.Accuracy {
 		return dist.Accuracy{CDFAbs: 1e-13, SurvivalRel: 1e-12, TailFloor: 1e-300,
 			Method: "exact k-fold atoms (package dist)"}
 	}
-	return dist.Accuracy{CDFAbs: a.errorBound(k, x),
-		Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) of a k-fold discrete sum; the bound adds three times the estimated largest atom of S_k"}
-}
-
-// errorBound returns the error bound reported for the saddlepoint at x:
-// the size of its second-order terms (the smooth part's error left after
-// them is far smaller, O(k⁻²) against O(k⁻¹)) plus three times the
-// estimated largest atom of S_k (largestAtom), the fine structure a smooth
-// formula cannot follow.
-func (a atomicSums) errorBound(k int64, x float64) float64 {
-	return a.correction(k, x) + math.Min(1, 3*a.largestAtom(k))
-}
-
-// largestAtom estimates the largest atom of S_k. When distinct count vectors
-// give distinct sums it is about the multinomial mode
-// (2πk)^{−(d−1)/2}·(Π p_i)^{−1/2} (local limit theorem). Commensurate
-// energies (LoRa airtimes are whole numbers of symbol quarters, so class A
-// cycle energies often are) merge atoms and make it larger: the largest
-// atoms of the exact k-fold laws at two small k1 < k2 (listed by package
-// dist, merged within its tolerance) give the decay rate m ∝ k^{−r/2}, r
-// taken in [1, d−1], which is extrapolated to k. The larger of the two
-// estimates is returned.
-func (a atomicSums) largestAtom(k int64) float64 {
-	d := len(a.p)
-	lp := 0.0
-	for _, p := range a.p {
-		lp += math.Log(p)
-	}
-	mode := math.Exp(-0.5*float64(d-1)*math.Log(2*math.Pi*float64(k)) - 0.5*lp)
-	// k2: the largest k with at most 2000 k-fold atoms in the worst case.
-	k2 := int64(1)
-	for {
-		c := 1.0
-		for i := 1; i < d; i++ {
-			c *= float64(k2+1+int64(i)) / float64(i)
-		}
-		if c > 2000 || k2 >= k {
-			break
-		}
-		k2++
-	}
-	k1 := k2 / 2
-	if k1 < 1 || k2 >= k {
-		return mode
-	}
-	maxAtom := func(n int64) float64 {
-		l, err := dist.SumIID(a.d, int(n))
-		if err != nil {
-			return math.NaN()
-		}
-		m := 0.0
-		for _, at := range l.(dist.Atomic).Atoms() {
-			m = math.Max(m, at.Mass)
-		}
-		return m
-	}
-	m1, m2 := maxAtom(k1), maxAtom(k2)
-	if !(m1 > 0 && m2 > 0) {
-		return mode
-	}
-	r := 2 * math.Log(m1/m2) / math.Log(float64(k2)/float64(k1))
-	r = math.Min(math.Max(r, 1), float64(d-1))
-	est := m2 * math.Pow(float64(k)/float64(k2), -r/2)
-	return math.Max(mode, est)
-}
-
-// correction returns the size of the second-order saddlepoint terms at x.
-func (a atomicSums) correction(k int64, x float64) float64 {
-	n := float64(k)
-	xb := x / n
-	if d := a.sd / math.Sqrt(n); math.Abs(xb-a.mu) < d {
-		// Within one sd the terms cancel among themselves (and within 0.1 sd
-		// Edgeworth takes over): take their size one sd out.
-		xb = a.mu + math.Copysign(d, xb-a.mu)
-	}
-	sign := 1.0
-	if xb < a.mu {
-		sign = -1
-	}
-	_, c := a.upperTerms(n, xb, sign)
-	return math.Abs(c)
+	return dist.Accuracy{CDFAbs: a.edgeworthBound(k),
+		Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) of a k-fold discrete sum, bounded by Esseen's smoothing inequality against the Edgeworth law (the characteristic function's peaks bounded by branch and bound)"}
 }
 
 // binomialTails returns P(N <= j) and P(N > j) for N ~ Binomial(n, p), the
@@ -351,7 +269,7 @@ type atomicSumLaw struct {
 
 func newAtomicSumLaw(d dist.Discrete, k int64) atomicSumLaw {
 	a := newAtomicSums(d)
-	return atomicSumLaw{a: a, k: k, exact: len(a.v) <= 3, acc: a.accuracy(k, a.mu*float64(k))}
+	return atomicSumLaw{a: a, k: k, exact: len(a.v) <= 3, acc: a.accuracy(k)}
 }
 
 func (l atomicSumLaw) CDF(x float64) float64 {

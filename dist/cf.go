@@ -184,6 +184,8 @@ func transformOf(l Law) (transform, bool) {
 		return b.transform()
 	case shiftMixtureDensity:
 		return b.transform()
+	case uniformPair:
+		return b.transform(), true
 	case productLaw:
 		return b.transform()
 	case productLawDensity:

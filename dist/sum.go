@@ -18,7 +18,7 @@ const MaxSumAtoms = 1 << 20
 //   - finite discrete laws add exactly: the result is a Discrete, atoms
 //     merged within AtomMergeTolerance (at most MaxSumAtoms atoms);
 //   - normals add to a normal, gammas (and exponentials) with one rate to a
-//     gamma;
+//     gamma, two uniforms to their trapezoid;
 //   - a finite discrete law plus one continuous law is the exact mixture of
 //     shifted copies, Σ p_i·P(C <= x - v_i) (a point mass gives a shift);
 //   - terms that are mixtures (a point mass mixed with an exponential, say)
@@ -106,6 +106,8 @@ func appendFlat(terms []Law, l Law) []Law {
 			terms = append(terms, Exponential{rate: r})
 		}
 		return terms
+	case uniformPair:
+		return append(terms, b.u, b.v)
 	}
 	return append(terms, l)
 }
@@ -184,6 +186,14 @@ func sumTerms(terms []Law) (Law, error) {
 		if len(rates) == len(cont) {
 			if h, ok := newHypoExp(rates); ok {
 				cont = []Law{h}
+			}
+		}
+	}
+	if len(cont) == 2 {
+		// two uniforms: the trapezoid in closed form
+		if a, ok := cont[0].(Uniform); ok {
+			if b, ok := cont[1].(Uniform); ok {
+				cont = []Law{newUniformPair(a, b)}
 			}
 		}
 	}

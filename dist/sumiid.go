@@ -56,6 +56,10 @@ func SumIID(l Law, k int) (Law, error) {
 		return NewGamma(fk, b.rate)
 	case Gamma:
 		return NewGamma(fk*b.shape, b.rate)
+	case Uniform:
+		if k == 2 {
+			return newUniformPair(b, b), nil
+		}
 	case Discrete:
 		if lat, ok, err := latticeSumIID(b, k, latticeMinAtoms); err != nil || ok {
 			return lat, err

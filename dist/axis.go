@@ -199,6 +199,7 @@ type truncSeries struct {
 	sigma, z float64
 	ends     []truncEnd
 	qmax     [truncEndTerms + 1]float64
+	nTop     int // qmax increases up to nTop (√(n!)·q^n is smallest near n = 1/q²)
 }
 
 func newTruncSeries(mu, sigma, lo, hi, z float64) *truncSeries {
@@ -234,6 +235,9 @@ func newTruncSeries(mu, sigma, lo, hi, z float64) *truncSeries {
 	for n := 1; n <= truncEndTerms; n++ {
 		lf += math.Log(float64(n))
 		ts.qmax[n] = math.Exp((lt-lf/2)/float64(n)) * (1 - 1e-12)
+		if ts.nTop == n-1 && (n == 1 || ts.qmax[n] > ts.qmax[n-1]) {
+			ts.nTop = n
+		}
 	}
 	return ts
 }
@@ -260,15 +264,18 @@ func truncNormalAxis(mu, sigma, lo, hi, z float64) axisAdder {
 // remainder at most truncEndTol, rounding at most truncEndRound.
 func (ts *truncSeries) at(t float64) (complex128, float64, bool) {
 	q := 1 / (ts.sigma * t)
-	if !(q < 1/truncEndMinSt) {
+	if !(q < 1/truncEndMinSt) || q > ts.qmax[ts.nTop] {
 		return 0, 0, false
 	}
-	n := 1
-	for n <= truncEndTerms && q > ts.qmax[n] {
-		n++
-	}
-	if n > truncEndTerms {
-		return 0, 0, false
+	// the smallest n with q <= qmax[n], by bisection on the increasing part
+	lo, n := 0, ts.nTop // q > qmax[lo] (qmax[0] = 0), q <= qmax[n]
+	for n-lo > 1 {
+		m := (lo + n) / 2
+		if q <= ts.qmax[m] {
+			n = m
+		} else {
+			lo = m
+		}
 	}
 	q2 := q * q
 	var sum complex128
@@ -291,14 +298,15 @@ func (ts *truncSeries) at(t float64) (complex128, float64, bool) {
 		}
 		b *= q
 		sn, cs := math.Sincos(t * e.x)
-		gt := e.g / t
+		gt := e.g * q * ts.sigma // g/t
 		// exp(itx)·g·(B - iA)/t
 		sum += complex(gt*(cs*b+sn*a), gt*(sn*b-cs*a))
 		mag += math.Abs(gt) * (ea + q*eb)
 	}
-	round := 4e-16 * float64(n+2) * mag / ts.z
+	iz := 1 / ts.z
+	round := 4e-16 * float64(n+2) * mag * iz
 	if round > truncEndRound {
 		return 0, 0, false
 	}
-	return sum / complex(ts.z, 0), truncEndTol + round, true
+	return complex(real(sum)*iz, imag(sum)*iz), truncEndTol + round, true
 }

@@ -62,13 +62,11 @@ func (l *numLaw) buildGrid() *cdfGrid {
 		drop += d
 		n--
 	}
-	N := gridMinSize
-	for N < gridPerTerm*n || N < 2*n+2 {
-		N *= 2
-	}
+	N := gridFFTSize(max(gridMinSize, gridPerTerm*n, 2*n+2))
 	if N > gridMaxSize {
 		return nil
 	}
+	plan := newFFTPlan(N)
 	a := l.a
 	buf := make([]complex128, 2*N)
 	x1, x2 := buf[:N:N], buf[N:]
@@ -97,25 +95,27 @@ func (l *numLaw) buildGrid() *cdfGrid {
 		// x[N-k] = (conj(a) + i·conj(b))/2
 		a1r, a1i, b1r, b1i := vi, -vr, fk*vr, fk*vi
 		a2r, a2i, b2r, b2i := k2*vi, -k2*vr, vmi, -vmr
-		x1[k] = complex((a1r-b1i)/2, (a1i+b1r)/2)
-		x1[N-k] = complex((a1r+b1i)/2, (b1r-a1i)/2)
-		x2[k] = complex((a2r-b2i)/2, (a2i+b2r)/2)
-		x2[N-k] = complex((a2r+b2i)/2, (b2r-a2i)/2)
+		// (written at their places in the FFT's permutation)
+		p, q := plan.pos(k), plan.pos(N-k)
+		x1[p] = complex((a1r-b1i)/2, (a1i+b1r)/2)
+		x1[q] = complex((a1r+b1i)/2, (b1r-a1i)/2)
+		x2[p] = complex((a2r-b2i)/2, (a2i+b2r)/2)
+		x2[q] = complex((a2r+b2i)/2, (b2r-a2i)/2)
 	}
 	tw := twiddles(N)
-	fft2(x1, tw)
-	fft2(x2, tw)
+	plan.run(x1, tw)
+	plan.run(x2, tw)
 	gr := &cdfGrid{y0: a, dy: dy, v: x1, w: x2}
-	h2 := l.h * l.h
+	const invPi = 1 / math.Pi
 	c0, c1 := l.w/2-l.mc/l.L, l.w/l.L
+	cf, cf1 := l.h*invPi*dy, l.h*l.h*invPi*dy*dy
 	for r := 0; r < N; r++ {
 		y := a + float64(r)*dy
-		F := c0 + c1*y - real(x1[r])/math.Pi
-		f := c1 + l.h/math.Pi*imag(x1[r])
-		f1 := h2 / math.Pi * real(x2[r])
-		Fm := c0 + c1*(y+dy/2) - imag(x2[r])/math.Pi
-		x1[r] = complex(F, f*dy)
-		x2[r] = complex(f1*dy*dy, Fm)
+		F := c0 + c1*y - real(x1[r])*invPi
+		fdy := c1*dy + cf*imag(x1[r])
+		Fm := c0 + c1*(y+dy/2) - imag(x2[r])*invPi
+		x1[r] = complex(F, fdy)
+		x2[r] = complex(cf1*real(x2[r]), Fm)
 	}
 	// the interpolant at t = 1/2: h0 = h5 = 1/2, h1 = -h4 = 5/32,
 	// h2 = h3 = 1/64 (the basis of at)
@@ -139,7 +139,7 @@ func (l *numLaw) buildGrid() *cdfGrid {
 // exp(-i·(x + π/2)) = -i·exp(-i·x) and exp(-i·(x + π)) = -exp(-i·x).
 func twiddles(N int) []complex128 {
 	tw := make([]complex128, 3*N/4)
-	if N < 8 {
+	if N%8 != 0 {
 		for j := range tw {
 			s, c := math.Sincos(-2 * math.Pi * float64(j) / float64(N))
 			tw[j] = complex(c, s)
@@ -162,22 +162,94 @@ func twiddles(N int) []complex128 {
 	return tw
 }
 
+// fftPlan is a DFT of length N = 2^m, or N = 3·2^m (three sub-DFTs of
+// length M = N/3 combined by one radix-3 stage), by decimation in time.
+type fftPlan struct {
+	N, M  int
+	three bool
+	shift uint // 64 - log2 M
+}
+
+// gridFFTSize returns the smallest N = 2^m or 3·2^m, N >= 8, with N >= n.
+func gridFFTSize(n int) int {
+	N := 8
+	for N < n {
+		if 3*N/2 >= n {
+			return 3 * N / 2
+		}
+		N *= 2
+	}
+	return N
+}
+
+func newFFTPlan(N int) fftPlan {
+	p := fftPlan{N: N, M: N}
+	if N%3 == 0 {
+		p.three, p.M = true, N/3
+	}
+	p.shift = 64 - uint(bits.Len(uint(p.M))-1)
+	return p
+}
+
+// pos returns where input i goes before run: its bit reversal within M
+// (within its third, i mod 3, for N = 3·2^m).
+func (p fftPlan) pos(i int) int {
+	if !p.three {
+		return int(bits.Reverse64(uint64(i)) >> p.shift)
+	}
+	return (i%3)*p.M + int(bits.Reverse64(uint64(i/3))>>p.shift)
+}
+
+// run replaces the permuted x by its DFT Σ_j x_j·exp(-2πi·jr/N) (tw from
+// twiddles(N)). The radix-3 stage: with ω = exp(-2πi/3), a, b·W^r, c·W^2r
+// the three sub-DFTs at r < M (W = exp(-2πi/N)), s = b + c, d = b - c:
+// X[r] = a + s, X[r+M] = a - s/2 - i·(√3/2)·d, X[r+2M] = a - s/2 + i·(√3/2)·d.
+func (p fftPlan) run(x, tw []complex128) {
+	if !p.three {
+		fftStages(x, tw, 1)
+		return
+	}
+	M := p.M
+	x0, x1, x2 := x[:M:M], x[M:2*M:2*M], x[2*M:3*M:3*M]
+	fftStages(x0, tw, 3)
+	fftStages(x1, tw, 3)
+	fftStages(x2, tw, 3)
+	const h3 = 0.8660254037844386 // √3/2
+	for r := range x0 {
+		a, b, c := x0[r], x1[r], x2[r]
+		if r > 0 {
+			b *= tw[r]
+			c *= tw[2*r]
+		}
+		sm, d := b+c, b-c
+		t := a - sm/2
+		id := complex(-h3*imag(d), h3*real(d)) // i·(√3/2)·d
+		x0[r], x1[r], x2[r] = a+sm, t-id, t+id
+	}
+}
+
 // fft2 replaces x by its DFT Σ_j x_j·exp(-2πi·jr/N), in place (len(x) a
-// power of 2, tw from twiddles): bit-reversal permutation, then
-// decimation-in-time stages, two radix-2 stages at a time as one radix-4
-// butterfly (three twiddle products per four points instead of four, half
-// the passes over x), with one radix-2 stage first when log2 N is odd.
+// power of 2, or 3 times one, at least 8; tw from twiddles): the
+// permutation of fftPlan, then its stages.
 func fft2(x []complex128, tw []complex128) {
+	p := newFFTPlan(len(x))
+	y := make([]complex128, len(x))
+	for i, v := range x {
+		y[p.pos(i)] = v
+	}
+	p.run(y, tw)
+	copy(x, y)
+}
+
+// fftStages is the DFT of length N = len(x), a power of 2, of x held in
+// bit-reversed order, in place: decimation-in-time stages, two radix-2
+// stages at a time as one radix-4 butterfly (three twiddle products per
+// four points instead of four, half the passes over x), with one radix-2
+// stage first when log2 N is odd. Its twiddle exp(-2πi·j/N) is tw[j·stride].
+func fftStages(x []complex128, tw []complex128, stride int) {
 	N := len(x)
 	if N < 2 {
 		return
-	}
-	shift := 64 - uint(bits.Len(uint(N))-1)
-	for i := 0; i < N; i++ {
-		j := int(bits.Reverse64(uint64(i)) >> shift)
-		if j > i {
-			x[i], x[j] = x[j], x[i]
-		}
 	}
 	L := 1
 	if bits.TrailingZeros(uint(N))%2 == 1 {
@@ -192,7 +264,7 @@ func fft2(x []complex128, tw []complex128) {
 	// b = W^2k·B, c = W^k·C, d = W^3k·D:
 	// X[k] = A+b+c+d, X[k+L] = A-b-i(c-d), X[k+2L] = A+b-c-d, X[k+3L] = A-b+i(c-d)
 	for ; 4*L <= N; L *= 4 {
-		step := N / (4 * L)
+		step := stride * N / (4 * L)
 		for s := 0; s < N; s += 4 * L {
 			blk := x[s : s+4*L : s+4*L]
 			q0, q1, q2, q3 := blk[:L:L], blk[L:2*L:2*L], blk[2*L:3*L:3*L], blk[3*L:]

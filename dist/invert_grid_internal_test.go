@@ -15,7 +15,7 @@ func TestFFT2AgainstGonum(t *testing.T) {
 	// oracle: gonum dsp/fourier CmplxFFT.Coefficients (the same DFT sign
 	// convention, Σ x_j·exp(-2πi·jr/N))
 	r := rand.New(rand.NewPCG(3, 4))
-	for _, n := range []int{2, 4, 8, 32, 1024, 2048, 4096, 8192} {
+	for _, n := range []int{8, 12, 24, 32, 48, 96, 1024, 2048, 3072, 4096, 6144, 8192} {
 		x := make([]complex128, n)
 		for i := range x {
 			x[i] = complex(r.NormFloat64(), r.NormFloat64())

@@ -186,6 +186,8 @@ func transformOf(l Law) (transform, bool) {
 		return b.transform()
 	case uniformPair:
 		return b.transform(), true
+	case *expTailLaw:
+		return b.numLaw.transform(), true
 	case productLaw:
 		return b.transform()
 	case productLawDensity:

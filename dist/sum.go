@@ -108,6 +108,8 @@ func appendFlat(terms []Law, l Law) []Law {
 		return terms
 	case uniformPair:
 		return append(terms, b.u, b.v)
+	case *expTailLaw:
+		return appendFlat(terms, b.numLaw)
 	}
 	return append(terms, l)
 }
@@ -224,7 +226,11 @@ func sumTerms(terms []Law) (Law, error) {
 	if len(disc) > 0 {
 		parts = append([]Law{d}, cont...)
 	}
-	return numericSum(terms, parts)
+	l, err := numericSum(terms, parts)
+	if err != nil {
+		return nil, err
+	}
+	return withExpTail(l, terms), nil
 }
 
 // hasAtoms reports whether l lists at least one atom.

@@ -246,7 +246,7 @@ func expandMixtureIID(l Law, k int) (Law, bool, error) {
 // Fourier-series or lattice law, or a mixture holding one).
 func isNumeric(l Law) bool {
 	switch b := l.(type) {
-	case *numLaw, *latticeLaw:
+	case *numLaw, *latticeLaw, *expTailLaw:
 		return true
 	case statedMixture:
 		return b.numeric

@@ -43,26 +43,30 @@ func discreteAxis(d Discrete) (axisAdder, float64) {
 	return func(h float64, k0 int, out []complex128) {
 		var mr, mi [axisBlock]float64
 		n := min(len(out), axisBlock)
-		// atoms two at a time: two independent rotations per step
+		k0h := float64(k0) * h
+		// atoms four at a time: four independent rotations per step
 		i := 0
-		for ; i+1 < len(vs); i += 2 {
-			v, w := vs[i], vs[i+1]
-			ai, ar := math.Sincos(float64(k0) * h * v)
-			as, ac := math.Sincos(h * v)
-			bi, br := math.Sincos(float64(k0) * h * w)
-			bs, bc := math.Sincos(h * w)
-			p, q := ps[i], ps[i+1]
+		for ; i+3 < len(vs); i += 4 {
+			var zr, zi, cr, ci [4]float64
+			for a := range 4 {
+				zi[a], zr[a] = math.Sincos(k0h * vs[i+a])
+				ci[a], cr[a] = math.Sincos(h * vs[i+a])
+			}
+			p0, p1, p2, p3 := ps[i], ps[i+1], ps[i+2], ps[i+3]
+			ar, ai, br, bi := zr[0], zi[0], zr[1], zi[1]
+			er, ei, fr, fi := zr[2], zi[2], zr[3], zi[3]
 			for j := 0; j < n; j++ {
-				mr[j] += p*ar + q*br
-				mi[j] += p*ai + q*bi
-				ar, ai = ar*ac-ai*as, ar*as+ai*ac
-				br, bi = br*bc-bi*bs, br*bs+bi*bc
+				mr[j] += (p0*ar + p1*br) + (p2*er + p3*fr)
+				mi[j] += (p0*ai + p1*bi) + (p2*ei + p3*fi)
+				ar, ai = ar*cr[0]-ai*ci[0], ar*ci[0]+ai*cr[0]
+				br, bi = br*cr[1]-bi*ci[1], br*ci[1]+bi*cr[1]
+				er, ei = er*cr[2]-ei*ci[2], er*ci[2]+ei*cr[2]
+				fr, fi = fr*cr[3]-fi*ci[3], fr*ci[3]+fi*cr[3]
 			}
 		}
-		if i < len(vs) {
-			v := vs[i]
-			zi, zr := math.Sincos(float64(k0) * h * v)
-			s1, c1 := math.Sincos(h * v)
+		for ; i < len(vs); i++ {
+			zi, zr := math.Sincos(k0h * vs[i])
+			s1, c1 := math.Sincos(h * vs[i])
 			p := ps[i]
 			for j := 0; j < n; j++ {
 				mr[j] += p * zr

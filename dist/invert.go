@@ -164,23 +164,23 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	for k := 1; k <= maxTerms; k++ {
 		s := complex(0, float64(k)*l.h)
 		var mc complex128
+		ik := 1 / float64(k)
 		if sp.axis != nil {
 			j := (k - 1) % axisBlock
 			if j == 0 {
 				sp.axis(l.h, k, blk[:], blkErr[:])
 			}
 			mc = l.contMLog(blk[j], s, 0, 0)
-			axisSum += blkErr[j] / float64(k)
+			axisSum += blkErr[j] * ik
 		} else {
 			mc = l.contM(s, 0, 0)
 		}
-		fk := float64(k)
-		l.pr = append(l.pr, real(mc)/fk)
-		l.pi = append(l.pi, imag(mc)/fk)
+		l.pr = append(l.pr, real(mc)*ik)
+		l.pi = append(l.pi, imag(mc)*ik)
 		// |Mc| <= 1 plus rounding, so the square neither overflows nor
 		// (above 1e-150, far below the 1e-13 that matters) underflows
 		m := math.Sqrt(real(mc)*real(mc) + imag(mc)*imag(mc))
-		absSum += m / fk
+		absSum += m * ik
 		if m <= quietTol {
 			quiet++
 		} else {

@@ -44,7 +44,7 @@ import (
 // of the answer. The lower tail is the same computation on the reflected law.
 
 const (
-	bulkTail   = 1e-14 // mass left outside the bulk window at each end
+	bulkTail   = 1e-14 // mass left outside the bulk window at each end (2·bulkTail is in the bound, far below the 1e-12 aimed at)
 	tiltSwitch = 1e-5  // below this bulk value a tail is computed by tilting
 	maxTerms   = 1 << 16
 	maxTilted  = 1 << 12 // terms of one tilted tail evaluation

@@ -6,17 +6,20 @@ import (
 )
 
 // The bulk CDF on a grid. A law evaluated more than gridAfter times computes
-// the Fourier series once on an equispaced grid of N = 2^m >= 2n + 2 points
-// over its window (n series terms) — the CDF F, the density f and its
+// the Fourier series once on an equispaced grid of N >= 2n + 2 points (N a
+// power of 2 or 3 times one) over its window (n series terms) — the CDF F,
+// the density f and its
 // derivative f', all three from the series differentiated term by term —
 // and then answers by quintic Hermite interpolation between grid points
 // instead of summing the series. The values come from two complex FFTs of
 // length N, each packing two real results (a real series Re Σ A_k·w^{kr}
 // is the DFT of the Hermitian sequence A_k/2, conj(A_k)/2 at N - k, so one
 // complex FFT of x + i·y gives the two real series of x and y): (F, f) and
-// (f', F at the midpoints). The FFT is a radix-2 one of this file (its
-// agreement with gonum dsp/fourier is tested), chosen for speed: the grid
-// must cost less than a few hundred series values to pay off at 1000 values.
+// (f', F at the midpoints). The FFT is the radix-4 (with a radix-2 or
+// radix-3 stage) one of this file (its agreement with gonum dsp/fourier is
+// tested), chosen for speed: the grid must cost less than a few hundred
+// series values to pay off at 1000 values; the terms are written straight
+// into the FFT's input order.
 //
 // The interpolation error is measured, not assumed: F at every midpoint in
 // the window, where a Hermite interpolant's error is largest for a smooth
@@ -32,7 +35,7 @@ const (
 	gridMaxSize = 1 << 17 // (laws at the series cap, 2^16 terms, have jumps and skip the grid)
 	gridMinSize = 1 << 10
 	gridDropTol = 3e-15 // sum of the magnitudes of the series terms the grid may leave out
-	gridPerTerm = 1     // grid points per series term (N >= gridPerTerm·n, a power of 2)
+	gridPerTerm = 1     // grid points per series term (N >= gridPerTerm·n)
 )
 
 // cdfGrid holds F, f and f' of the continuous part at y0 + r·dy, scaled for

@@ -32,7 +32,7 @@ import (
 // |φ_c”| <= σ² (cfBound), so the cell contributes at most
 // min(1, U)^k·log(b/a); cells are halved until that is within 25 % of
 // the midpoint value or below 1e-13·log(b/a). T is doubled from 12 while
-// the work allows (2·10⁶ transform values) and 24m/(πT) is above a tenth of
+// the work allows (2·10⁵ transform values) and 24m/(πT) is above a tenth of
 // the rest; the smallest bound over the T tried is kept (each is a bound).
 //
 // The estimate the code returns is the saddlepoint value (saddle), not G, so
@@ -42,7 +42,7 @@ import (
 // exact).
 
 // esseenMaxWork caps the transform values spent on the far integral.
-const esseenMaxWork = 2_000_000
+const esseenMaxWork = 200_000
 
 // logCF returns log φ_c(t), φ_c the characteristic function of X − μ, with
 // φ_c − 1 summed directly (no cancellation near t = 0).

@@ -34,8 +34,11 @@
 // normal, exponential and gamma cycle laws; and for a purely discrete cycle
 // law (every state fixed or finite discrete and the period fixed) exactly
 // while the k-fold law is small, exactly as a binomial count for two
-// energies, and otherwise by the second-order saddlepoint of Lugannani &
-// Rice (1980) with Daniels' (1987) terms, reported with its error bound.
+// energies, exactly as binomial tails summed over the rarest energy's count
+// for three, and otherwise by the second-order saddlepoint of Lugannani &
+// Rice (1980) with Daniels' (1987) terms, reported with a proven error bound
+// (Esseen's smoothing inequality against the Edgeworth law, which meets the
+// fine structure of nearly commensurate energies).
 // Tails that Hoeffding's inequality puts below 1e-300 are returned as 0.
 // Quantiles search k by secant steps on the probit of P(M <= k).
 //

@@ -60,6 +60,46 @@ func (a atomicSums) exactFits(k int64) bool {
 	return true
 }
 
+// atomValue2 returns the atom k·v0 + j·(v1 − v0) of a two-energy k-fold
+// sum, each product rounded on its own: the float eval compares and Rand
+// returns.
+func (a atomicSums) atomValue2(k, j int64) float64 {
+	return float64(float64(k)*a.v[0]) + float64(float64(j)*(a.v[1]-a.v[0]))
+}
+
+// randSum draws S_k from the structure: k cycle energies drawn from their
+// probabilities, returned (for two or three energies) as the atom of their
+// counts, the same float the CDF counts, and otherwise summed.
+func (a atomicSums) randSum(k int64, r *rand.Rand) float64 {
+	switch len(a.v) {
+	case 2:
+		var j int64
+		for range k {
+			if r.Float64() < a.p[1] {
+				j++
+			}
+		}
+		return a.atomValue2(k, j)
+	case 3:
+		c, ia, ib := a.threeRoles()
+		var n, j int64
+		for range k {
+			switch u := r.Float64(); {
+			case u < a.p[c]:
+				n++
+			case u < a.p[c]+a.p[ib]:
+				j++
+			}
+		}
+		return a.atomValue3(k, n, j, c, ia, ib)
+	}
+	s := 0.0
+	for range k {
+		s += a.d.Rand(r)
+	}
+	return s
+}
+
 // eval returns P(S_k <= x), P(S_k > x) and whether the values are exact.
 func (a atomicSums) eval(k int64, x float64) (below, above float64, exact bool) {
 	n := float64(k)
@@ -72,9 +112,16 @@ func (a atomicSums) eval(k int64, x float64) (below, above float64, exact bool) 
 	case len(a.v) == 1:
 		return 1, 0, true
 	case len(a.v) == 2:
-		// S_k = k·v0 + N·(v1 − v0), N ~ Binomial(k, p1).
-		j := math.Floor((x - n*a.v[0]) / (a.v[1] - a.v[0]))
-		b, c := binomialTails(k, int64(j), a.p[1])
+		// S_k = k·v0 + N·(v1 − v0), N ~ Binomial(k, p1); j the largest count
+		// whose atom (atomValue2) is <= x.
+		j := int64(math.Max(-1, math.Min(n, math.Floor((x-n*a.v[0])/(a.v[1]-a.v[0])))))
+		for j < k && a.atomValue2(k, j+1) <= x {
+			j++
+		}
+		for j >= 0 && a.atomValue2(k, j) > x {
+			j--
+		}
+		b, c := binomialTails(k, j, a.p[1])
 		return b, c, true
 	case len(a.v) == 3:
 		below, above = a.three(k, x)
@@ -258,8 +305,8 @@ func bd0(x, m float64) float64 {
 // atomicSumLaw is the law of S_k for a purely discrete cycle law whose k-fold
 // atoms are too many for package dist to list: its CDF and Survival come
 // from atomicSums (exact for two or three energies, the second-order
-// saddlepoint otherwise, with the error bound it reports), its moments are exact, and
-// Rand adds k draws of the cycle law.
+// saddlepoint otherwise, with the error bound it reports), its moments are
+// exact, and Rand draws k cycle energies (randSum).
 type atomicSumLaw struct {
 	a     atomicSums
 	k     int64
@@ -299,13 +346,7 @@ func (l atomicSumLaw) Support() (lo, hi float64) {
 	return n * l.a.v[0], n * l.a.v[len(l.a.v)-1]
 }
 
-func (l atomicSumLaw) Rand(r *rand.Rand) float64 {
-	s := 0.0
-	for range l.k {
-		s += l.a.d.Rand(r)
-	}
-	return s
-}
+func (l atomicSumLaw) Rand(r *rand.Rand) float64 { return l.a.randSum(l.k, r) }
 
 func (l atomicSumLaw) String() string {
 	return fmt.Sprintf("DiscreteSum(k=%d, mean=%.6g, sd=%.4g)", l.k, l.Mean(), math.Sqrt(l.Variance()))

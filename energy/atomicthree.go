@@ -19,9 +19,8 @@ import "math"
 // relative precision. The cost is about 8·sd(N_c) conditional tails of about
 // 8·sd(N_b) masses each, independent of k's size otherwise.
 //
-// Ties: an atom of S_k within rounding (about 1e-15 relative) of x may be
-// counted on either side; its mass is below the reported bound unless x was
-// chosen on an atom, which the lifetime's capacity is not.
+// Ties: an atom counts as <= x when its value as atomValue3 rounds it is;
+// Rand returns those same values, so samples and CDF agree on every atom.
 
 // Stated bounds of the three-energy path, from the tests against
 // multinomial enumeration, binomial laws and package dist's exact k-fold
@@ -33,24 +32,52 @@ const (
 	threeTailFloor   = 1e-290
 )
 
-// three returns P(S_k <= x) and P(S_k > x) for a three-atom law by the
-// conditioning above.
-func (a atomicSums) three(k int64, x float64) (below, above float64) {
-	c := 0
+// threeRoles returns the index c of the least likely of three energies and
+// the indices ia, ib of the other two, v[ia] < v[ib].
+func (a atomicSums) threeRoles() (c, ia, ib int) {
 	for i := range a.p {
 		if a.p[i] < a.p[c] {
 			c = i
 		}
 	}
-	ia, ib := (c+1)%3, (c+2)%3
+	ia, ib = (c+1)%3, (c+2)%3
 	if a.v[ia] > a.v[ib] {
 		ia, ib = ib, ia
 	}
+	return c, ia, ib
+}
+
+// atomValue3 returns the atom of S_k with n energies c, j energies ib and
+// the rest ia: n·v_c + (k − n)·v_a + j·(v_b − v_a), each product rounded on
+// its own (the conversions forbid a fused multiply-add). It is the one float
+// that eval compares with x and that Rand returns, so that samples fall on
+// the atoms the CDF counts.
+func (a atomicSums) atomValue3(k, n, j int64, c, ia, ib int) float64 {
+	return float64(float64(n)*a.v[c]) + float64(float64(k-n)*a.v[ia]) + float64(float64(j)*(a.v[ib]-a.v[ia]))
+}
+
+// three returns P(S_k <= x) and P(S_k > x) for a three-atom law by the
+// conditioning above.
+func (a atomicSums) three(k int64, x float64) (below, above float64) {
+	c, ia, ib := a.threeRoles()
 	u, w, vc := a.v[ia], a.v[ib]-a.v[ia], a.v[c]
 	q := a.p[ib] / (a.p[ia] + a.p[ib])
 	pc := a.p[c]
-	// J(n) as a real: y(n) = (x − n·v_c − (k − n)·v_a)/(v_b − v_a)
-	yOf := func(n int64) float64 { return (x - float64(n)*vc - float64(k-n)*u) / w }
+	// jOf(n) = the largest j with atomValue3(n, j) <= x (−1 if none),
+	// from y(n) = (x − n·v_c − (k − n)·v_a)/(v_b − v_a) put right against
+	// the atoms' own values
+	jOf := func(n int64) int64 {
+		m := k - n
+		y := (x - float64(n)*vc - float64(m)*u) / w
+		j := int64(math.Max(-1, math.Min(float64(m), math.Floor(y))))
+		for j < m && a.atomValue3(k, n, j+1, c, ia, ib) <= x {
+			j++
+		}
+		for j >= 0 && a.atomValue3(k, n, j, c, ia, ib) > x {
+			j--
+		}
+		return j
+	}
 	nm := int64(math.Floor(float64(k+1) * pc))
 	if nm > k {
 		nm = k
@@ -74,7 +101,7 @@ func (a atomicSums) three(k int64, x float64) (below, above float64) {
 			} else {
 				pm *= float64(n+1) / float64(k-n) / rp
 			}
-			ct.move(k-n, yOf(n), q)
+			ct.move(k-n, float64(jOf(n))+0.5, q)
 			b, s := ct.lo, ct.hi
 			below += pm * b
 			above += pm * s

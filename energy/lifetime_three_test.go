@@ -5,8 +5,10 @@ import (
 	"testing"
 
 	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/dist/disttest"
 	"github.com/joulelaw/joulelaw/energy"
 	"github.com/joulelaw/joulelaw/internal/testref"
 )
@@ -45,4 +47,23 @@ func TestLifetimeThreeEnergies(t *testing.T) {
 		xs[i] = l.Simulate(r)
 	}
 	assert.Less(t, gridKS(xs, l.CDF, 200), testref.KSCritical(n, 1e-6)+acc.CDFAbs)
+}
+
+// TestCyclesExactEnergies: the law of a week (1008 cycles) of a three-energy
+// cycle and of a two-energy one (uplink, downlink or not), both on the exact
+// paths with atoms as large as 0.03 (samples land on them exactly), pass the
+// shared conformance checker and report bounds at the rounding level.
+func TestCyclesExactEnergies(t *testing.T) {
+	up := energy.MustFixedState("uplink", 40*energy.MilliAmp, 3.6, 0.06)
+	down := energy.MustFixedState("rx", 11*energy.MilliAmp, 3.6, 0.03)
+	two := energy.MustCycle(energy.MustSequence(up, energy.MustChoice([]float64{0.2, 0.8}, []energy.Stage{down, energy.Nothing()})),
+		dist.MustPointMass(600), 1.5*energy.MicroAmp*3.6)
+	for i, c := range []energy.Cycle{threeEnergyCycle(t), two} {
+		w, err := c.Cycles(1008)
+		require.NoError(t, err)
+		acc := w.(dist.Estimated).Accuracy()
+		assert.Contains(t, acc.Method, "exact")
+		assert.LessOrEqual(t, acc.CDFAbs, 1e-12)
+		require.NoError(t, disttest.Check(w, disttest.WithSeed(8+uint64(i))), "%d energies", 3-i)
+	}
 }

@@ -895,31 +895,120 @@ func (a atomFree) Rand(r *rand.Rand) float64 {
 
 func (a atomFree) String() string { return fmt.Sprintf("continuous part of %v", a.l) }
 
+// maxLatticePowerMixed is the largest k for which latticePower expands a
+// law with atoms and a continuous part binomially.
+const maxLatticePowerMixed = 32
+
 // latticePower is the k-fold sum of a law without a known transform on the
-// lattice (SumIID for small k).
+// lattice (SumIID for small k). A law with atoms (mass a, normalised atomic
+// part D) and a continuous part C is expanded binomially, for k up to
+// maxLatticePowerMixed:
+//
+//	Σ_j C(k, j)·a^j·(1-a)^(k-j)·law(D^{*j} + C^{*(k-j)}),
+//
+// D^{*j} exact, C^{*m} a lattice power (C itself for m = 1).
 func latticePower(l Law, k int) (Law, error) {
 	atoms, c, err := splitAtoms(l)
 	if err != nil {
 		return nil, err
 	}
-	if len(atoms) > 0 || c == nil {
-		return nil, fmt.Errorf("dist.SumIID: %v has atoms and no known characteristic function (the lattice fallback takes laws without atoms): %w", l, ErrParam)
+	if c == nil {
+		at, err := atomPower("SumIID", atoms, k)
+		if err != nil {
+			return nil, err
+		}
+		return discreteFromAtoms(at), nil
 	}
-	lts, span, err := newLatTerms("SumIID", []Law{l}, []int{k}, latticeCut)
+	if len(atoms) == 0 {
+		g, err := latticePowerGrid(c, k)
+		if err != nil {
+			return nil, err
+		}
+		out := newLatticeLaw([]latComp{{w: 1, vals: []float64{0}, probs: []float64{1}, grid: g}}, []Law{l}, k)
+		out.acc.Method = fmt.Sprintf("%d-fold lattice FFT power (Richardson-extrapolated, step %.3g, %d-point FFT)", k, g.delta, g.n)
+		return out, nil
+	}
+	if k > maxLatticePowerMixed {
+		return nil, fmt.Errorf("dist.SumIID: %v has atoms and no known characteristic function; its %d-fold sum keeps too much mass near the atoms' sums for the quadrature transform and is expanded on the lattice only for k <= %d: %w", l, k, maxLatticePowerMixed, ErrParam)
+	}
+	a := 0.0
+	for _, x := range atoms {
+		a += x.Mass
+	}
+	d := make([]Atom, len(atoms))
+	for i, x := range atoms {
+		d[i] = Atom{Value: x.Value, Mass: x.Mass / a}
+	}
+	var comps []latComp
+	shifts := 0
+	lk, _ := math.Lgamma(float64(k + 1))
+	for j := 0; j <= k; j++ {
+		m := k - j
+		lj, _ := math.Lgamma(float64(j + 1))
+		lm, _ := math.Lgamma(float64(m + 1))
+		w := math.Exp(lk - lj - lm + float64(j)*math.Log(a) + float64(m)*math.Log1p(-a))
+		if !(w > 0) {
+			continue
+		}
+		dj := []Atom{{Value: 0, Mass: 1}}
+		if j > 0 {
+			if dj, err = atomPower("SumIID", d, j); err != nil {
+				return nil, err
+			}
+		}
+		if shifts += len(dj); shifts > maxLatticeShifts {
+			return nil, fmt.Errorf("dist.SumIID: lattice fallback: more than %d atoms shift the lattice sums: %w", maxLatticeShifts, ErrParam)
+		}
+		cp := latComp{w: w}
+		tot := 0.0
+		for _, x := range dj {
+			tot += x.Mass
+		}
+		for _, x := range dj {
+			cp.vals, cp.probs = append(cp.vals, x.Value), append(cp.probs, x.Mass/tot)
+		}
+		switch m {
+		case 0:
+		case 1:
+			cp.cont = c
+		default:
+			if cp.grid, err = latticePowerGrid(c, m); err != nil {
+				return nil, err
+			}
+		}
+		comps = append(comps, cp)
+	}
+	out := newLatticeLaw(comps, []Law{l}, k)
+	// the binomial weights' rounding (log-gamma), relative
+	out.acc.CDFAbs += 4 * 0x1p-52 * (lk + float64(k)*math.Abs(math.Log(a*(1-a))) + 1)
+	out.acc.Method = fmt.Sprintf("binomial mixture over the atoms of %d-fold lattice FFT powers of the continuous part (Richardson-extrapolated)", k)
+	return out, nil
+}
+
+// latticePowerGrid is the extrapolated lattice grid of the k-fold sum of
+// the continuous law c.
+func latticePowerGrid(c Law, k int) (*latGrid, error) {
+	lts, span, err := newLatTerms("SumIID", []Law{c}, []int{k}, latticeCut)
 	if err != nil {
 		return nil, err
 	}
 	delta := span / latticeCells
-	lo, hi := l.Support()
-	fk := float64(k)
-	g, err := newLatGrid("SumIID", lts, delta, nanTo(fk*lo, math.Inf(-1)), nanTo(fk*hi, math.Inf(1)))
-	if err != nil {
-		return nil, err
+	if sd := math.Sqrt(c.Variance()); !(delta <= sd/8) {
+		return nil, fmt.Errorf("dist.SumIID: lattice fallback: step %.3g of the %d-fold sum is coarser than 1/8 of the term's standard deviation %.3g (and its transform by quadrature decays too slowly): %w", delta, k, sd, ErrParam)
 	}
-	out := newLatticeLaw([]latComp{{w: 1, vals: []float64{0}, probs: []float64{1}, grid: g}}, []Law{l}, k)
-	out.acc.Method = fmt.Sprintf("%d-fold lattice FFT power (Richardson-extrapolated, step %.3g, %d-point FFT)", k, delta, g.n)
-	return out, nil
+	lo, hi := c.Support()
+	fk := float64(k)
+	return newLatGrid("SumIID", lts, delta, nanTo(fk*lo, math.Inf(-1)), nanTo(fk*hi, math.Inf(1)))
 }
 
-// latticeIID is the fallback of SumIID for a law without a known transform.
-func latticeIID(l Law, k int) (Law, error) { return latticePower(l, k) }
+// latticeIID is the fallback of SumIID for a law without a known
+// transform: the quadrature transform (cf_quad.go) for k >= quadIIDMinK when
+// the k-fold transform decays fast enough, else the lattice power.
+func latticeIID(l Law, k int) (Law, error) {
+	if k >= quadIIDMinK {
+		if q, ok, err := quadIID(l, k); err != nil || ok {
+			return q, err
+		}
+	}
+	return latticePower(l, k)
+}

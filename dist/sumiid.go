@@ -35,6 +35,21 @@ const maxStructuralDraws = 4096
 // exactly into the multinomial mixture of those closed forms (an atom mixed
 // with an exponential gives shifted gammas), reporting Accuracy.
 //
+// A law without a known transform (a FromDistuv law, say) is summed
+// numerically too. For k >= 8, when its k-fold transform decays fast enough
+// and its atoms are negligible (k·a^(k-1) < 1e-14 for atom mass a), its
+// transform is integrated from its CDF and Survival by adaptive
+// Gauss–Legendre quadrature (see cf_quad.go) and raised to the power k as
+// above, the window sized by Chernoff bounds of the term cut at its
+// 1e-17/(2k) quantiles: measured CDF error about 1e-14 for k up to 10^4,
+// 4e-13 at 10^6 and 2e-12 at 10^7 (stated bounds up to 1.2e-10; no tilted
+// tails, so the survival is relative only down to about 10^6 times the CDF
+// bound). Otherwise (small k) it is the lattice power of invert_lattice.go
+// (Richardson-extrapolated; CDF error about 1e-11 to 1e-10, stated up to a
+// few 1e-9), a law with atoms and a continuous part expanded binomially over
+// the atoms for k <= 32; a law whose atoms keep too much mass for either is
+// an error (ErrParam).
+//
 // Rand adds k draws of l when k <= 4096 and inverts the computed CDF beyond.
 // Errors: nil l, k < 1, a term without finite mean and variance (wraps
 // ErrMoment).
@@ -146,16 +161,7 @@ func iidNumeric(l Law, k int) (Law, error) {
 			e := eps / fk
 			return fk * (l.Quantile(e) - mu), fk * (l.UpperQuantile(e) - mu)
 		},
-		sample: func(r *rand.Rand) float64 {
-			if k <= maxStructuralDraws {
-				x := 0.0
-				for i := 0; i < k; i++ {
-					x += l.Rand(r)
-				}
-				return x
-			}
-			return self.Quantile(r.Float64())
-		},
+		sample: iidSample(l, k, &self),
 	}
 	if math.IsNaN(sp.supLo) {
 		sp.supLo = math.Inf(-1)
@@ -169,6 +175,22 @@ func iidNumeric(l Law, k int) (Law, error) {
 	}
 	self = n
 	return n, nil
+}
+
+// iidSample draws the k-fold sum of l: k draws of l added when k <=
+// maxStructuralDraws, else by inverting the CDF of *self (set once the law
+// is built).
+func iidSample(l Law, k int, self **numLaw) func(r *rand.Rand) float64 {
+	return func(r *rand.Rand) float64 {
+		if k <= maxStructuralDraws {
+			x := 0.0
+			for i := 0; i < k; i++ {
+				x += l.Rand(r)
+			}
+			return x
+		}
+		return (*self).Quantile(r.Float64())
+	}
 }
 
 // IIDSums evaluates the laws of the k-fold sums S_k = X_1 + … + X_k of one

@@ -1,0 +1,237 @@
+package dist_test
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+	"gonum.org/v1/gonum/mathext"
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/dist/disttest"
+	"github.com/joulelaw/joulelaw/internal/testref"
+)
+
+// poissonMass returns P(N = j) for N ~ Poisson(λ), j >= 1, in Loader's
+// saddle-point form exp(-stirlerr(j) - bd0(j, λ))/√(2πj) (C. Loader, "Fast
+// and accurate computation of binomial probabilities", 2000; from memory),
+// which keeps relative precision for j and λ up to 1e8 and beyond.
+func poissonMass(j int, lambda float64) float64 {
+	x := float64(j)
+	return math.Exp(-stirlerr(x)-bd0(x, lambda)) / math.Sqrt(2*math.Pi*x)
+}
+
+// stirlerr returns log(n!) - (n + 1/2)·log(n) + n - log√(2π) (Stirling's
+// series to n^-7 for n >= 16, log-gamma below).
+func stirlerr(n float64) float64 {
+	if n < 16 {
+		lg, _ := math.Lgamma(n + 1)
+		return lg - (n+0.5)*math.Log(n) + n - 0.5*math.Log(2*math.Pi)
+	}
+	n2 := n * n
+	return (1.0/12 - (1.0/360-(1.0/1260-(1.0/1680)/n2)/n2)/n2) / n
+}
+
+// bd0 returns x·log(x/m) + m - x without cancellation (series in
+// v = (x-m)/(x+m) near x = m).
+func bd0(x, m float64) float64 {
+	if math.Abs(x-m) < 0.1*(x+m) {
+		v := (x - m) / (x + m)
+		s := (x - m) * v
+		ej := 2 * x * v
+		for i := 1; i < 1000; i++ {
+			ej *= v * v
+			s1 := s + ej/float64(2*i+1)
+			if s1 == s {
+				break
+			}
+			s = s1
+		}
+		return s
+	}
+	return x*math.Log(x/m) + m - x
+}
+
+// erlangTails returns P(Gamma(k, 1) <= x) and P(Gamma(k, 1) > x) by the
+// Poisson–gamma relation P(Gamma(k, 1) <= x) = P(Poisson(x) >= k) (any
+// probability text), the smaller tail summed from k outward so that it
+// keeps relative precision, the other as its complement.
+func erlangTails(k int, x float64) (cdf, surv float64) {
+	if x <= 0 {
+		return 0, 1
+	}
+	var s float64
+	if x < float64(k) {
+		for j := k; ; j++ {
+			p := poissonMass(j, x)
+			s += p
+			if p < 1e-20*s || p == 0 {
+				break
+			}
+		}
+		return s, 1 - s
+	}
+	for j := k - 1; j >= 0; j-- {
+		p := math.Exp(-x) // P(N = 0)
+		if j > 0 {
+			p = poissonMass(j, x)
+		}
+		s += p
+		if p < 1e-20*s {
+			break
+		}
+	}
+	return 1 - s, s
+}
+
+// TestErlangTailsOracle checks the test oracle against gonum's regularised
+// incomplete gamma (mathext.GammaIncReg, GammaIncRegComp) where gonum is
+// accurate (moderate shapes; for shapes near 1e7 gonum's lower function is
+// off by about 1e-7 at 4.5 standard deviations below the mean, which is why
+// the oracle is needed).
+func TestErlangTailsOracle(t *testing.T) {
+	for _, k := range []int{20, 50, 1000} {
+		fk := float64(k)
+		for z := -7.0; z <= 9; z += 0.25 {
+			x := fk + z*math.Sqrt(fk)
+			if x <= 0 {
+				continue
+			}
+			f, s := erlangTails(k, x)
+			assert.InDelta(t, mathext.GammaIncReg(fk, x), f, 1e-14, "CDF k=%d x=%v", k, x)
+			want := mathext.GammaIncRegComp(fk, x)
+			assert.InDelta(t, 0, s/want-1, 1e-12, "survival k=%d x=%v", k, x)
+		}
+	}
+}
+
+// iidCheckOptions are the disttest options for these k-fold sums: the
+// survival is checked (within the stated absolute CDF error, and the
+// stated relative error) down to 1e-13, below the floor of the untilted
+// inversion, so that the moment integrals reach far enough into the tail.
+func iidCheckOptions(l dist.Law) []disttest.Option {
+	rel := math.Max(1e-6, l.(dist.Estimated).Accuracy().SurvivalRel)
+	return []disttest.Option{disttest.WithQuantileTolerance(1e-6), disttest.WithSurvivalTolerance(rel, 1e-13)}
+}
+
+// TestSumIIDTransformLess checks the k-fold sum of Exp(1) through a
+// transform-less Weibull(K=1) wrapper against Gamma(k, 1) (the Poisson–gamma
+// oracle above): the lattice power for small k, the quadrature transform
+// for large k, up to k = 10^7.
+func TestSumIIDTransformLess(t *testing.T) {
+	w := weibullExp(1)
+	for _, c := range []struct {
+		k      int
+		maxAbs float64 // what the stated bound must stay below
+		check  bool    // run disttest.Check
+	}{
+		{2, 1e-10, true}, {5, 1e-9, false}, {7, 1e-8, true}, {12, 1e-11, false},
+		{100, 1e-11, true}, {10000, 1e-11, false}, {1000000, 1e-10, false}, {10000000, 1e-9, true},
+	} {
+		l, err := dist.SumIID(w, c.k)
+		require.NoError(t, err, "k=%d", c.k)
+		acc := l.(dist.Estimated).Accuracy()
+		fk := float64(c.k)
+		var worst, worstRel float64
+		for z := -9.0; z <= 14; z += 0.0173 {
+			x := fk + z*math.Sqrt(fk)
+			if x <= 0 {
+				continue
+			}
+			f, s := erlangTails(c.k, x)
+			worst = math.Max(worst, math.Max(math.Abs(l.CDF(x)-f), math.Abs(l.Survival(x)-s)))
+			if s >= acc.TailFloor {
+				worstRel = math.Max(worstRel, math.Abs(l.Survival(x)/s-1))
+			}
+		}
+		t.Logf("k=%d: worst abs %.2e, survival rel %.2e; %+v", c.k, worst, worstRel, acc)
+		assert.LessOrEqual(t, worst, acc.CDFAbs, "k=%d stated CDF bound", c.k)
+		assert.LessOrEqual(t, worstRel, acc.SurvivalRel, "k=%d stated survival bound", c.k)
+		assert.Less(t, acc.CDFAbs, c.maxAbs, "k=%d", c.k)
+		assert.InDelta(t, fk, l.Mean(), 1e-12*fk)
+		assert.InDelta(t, fk, l.Variance(), 1e-12*fk)
+		if c.check {
+			require.NoError(t, disttest.Check(l, iidCheckOptions(l)...), "k=%d", c.k)
+		}
+	}
+}
+
+// TestSumIIDTransformLessWithAtom checks the k-fold sum of a term with an
+// atom, 0.3 at 0.5 and 0.7 spread as Exp(1) through the Weibull wrapper,
+// against the exact binomial mixture Σ_j C(k,j)·0.3^j·0.7^(k-j)·Gamma(k-j, 1)
+// shifted by 0.5·j (gonum distuv.Gamma, mathext.GammaIncRegComp): the
+// lattice expansion for small k, the quadrature transform once k·0.3^(k-1)
+// is negligible.
+func TestSumIIDTransformLessWithAtom(t *testing.T) {
+	term := mustLaw(dist.Mixture([]float64{0.3, 0.7}, []dist.Law{dist.MustPointMass(0.5), weibullExp(1)}))
+	for _, k := range []int{3, 6, 40} {
+		l, err := dist.SumIID(term, k)
+		require.NoError(t, err, "k=%d", k)
+		est, ok := l.(dist.Estimated)
+		require.True(t, ok)
+		acc := est.Accuracy()
+		oracle := func(x float64) (f, s float64) {
+			lk, _ := math.Lgamma(float64(k + 1))
+			for j := 0; j <= k; j++ {
+				lj, _ := math.Lgamma(float64(j + 1))
+				lm, _ := math.Lgamma(float64(k - j + 1))
+				w := math.Exp(lk - lj - lm + float64(j)*math.Log(0.3) + float64(k-j)*math.Log(0.7))
+				y := x - 0.5*float64(j)
+				switch {
+				case j == k && y >= 0:
+					f += w
+				case j == k:
+					s += w
+				case y <= 0:
+					s += w
+				default:
+					f += w * distuv.Gamma{Alpha: float64(k - j), Beta: 1}.CDF(y)
+					s += w * mathext.GammaIncRegComp(float64(k-j), y)
+				}
+			}
+			return f, s
+		}
+		var worst, worstRel float64
+		m, sd := l.Mean(), math.Sqrt(l.Variance())
+		for x := math.Max(0, m-8*sd); x < m+14*sd; x += sd / 97 {
+			f, s := oracle(x)
+			worst = math.Max(worst, math.Max(math.Abs(l.CDF(x)-f), math.Abs(l.Survival(x)-s)))
+			if s >= acc.TailFloor {
+				worstRel = math.Max(worstRel, math.Abs(l.Survival(x)/s-1))
+			}
+		}
+		t.Logf("k=%d (%T): worst abs %.2e, survival rel %.2e; %+v", k, l, worst, worstRel, acc)
+		assert.LessOrEqual(t, worst, acc.CDFAbs, "k=%d", k)
+		assert.LessOrEqual(t, worstRel, acc.SurvivalRel, "k=%d", k)
+		assert.Less(t, acc.CDFAbs, 1e-8, "k=%d", k)
+		assert.InDelta(t, float64(k)*term.Mean(), m, 1e-12*m)
+	}
+}
+
+// TestSumIIDTransformLessMonteCarlo compares the k-fold sum of a Weibull law
+// (shape 1.5, no closed form for the sum) with sums of k draws, by the
+// Kolmogorov–Smirnov distance at level 1e-6 (testref.KSCritical), fixed
+// seed; for the quadrature route and the lattice route.
+func TestSumIIDTransformLessMonteCarlo(t *testing.T) {
+	w := mustLaw(dist.FromDistuv(distuv.Weibull{K: 1.5, Lambda: 2}))
+	for _, k := range []int{4, 60} {
+		l, err := dist.SumIID(w, k)
+		require.NoError(t, err)
+		r := rand.New(rand.NewPCG(3, uint64(k)))
+		const n = 100000
+		xs := make([]float64, n)
+		for i := range xs {
+			for j := 0; j < k; j++ {
+				xs[i] += w.Rand(r)
+			}
+		}
+		d := testref.KSStatistic(xs, l.CDF)
+		crit := testref.KSCritical(n, 1e-6)
+		t.Logf("k=%d (%T): KS %.4g, critical %.4g; %+v", k, l, d, crit, l.(dist.Estimated).Accuracy())
+		assert.Less(t, d, crit, "k=%d", k)
+		require.NoError(t, disttest.Check(l, iidCheckOptions(l)...), "k=%d", k)
+	}
+}

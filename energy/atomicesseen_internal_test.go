@@ -1,8 +1,10 @@
 package energy
 
 import (
+	"cmp"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -129,4 +131,50 @@ func TestEsseenBoundMonteCarlo(t *testing.T) {
 	}
 	cdf := func(x float64) float64 { b, _, _ := a.eval(k, x); return b }
 	assert.Less(t, testref.KSStatistic(xs, cdf), testref.KSCritical(n, 1e-6)+acc.CDFAbs)
+}
+
+// TestEsseenBoundExactAtoms: the saddlepoint of four- and five-energy sums
+// at 24 to 60 cycles (just past the cut where the exact atoms are listed)
+// against package dist's exact k-fold atoms (repeated squaring), on a grid
+// of x over ±6 sd and just below and at the largest atoms: the error must be
+// within the bound, which is large here (the atoms are large) and shrinks
+// with k.
+func TestEsseenBoundExactAtoms(t *testing.T) {
+	for _, tc := range []struct {
+		v, p []float64
+		ks   []int
+	}{
+		{[]float64{0.0134, 0.0521 * math.Sqrt2, 0.2467 * math.Pi / 3, 0.31 * math.E / 2}, []float64{0.5, 0.3, 0.15, 0.05}, []int{24, 40}},
+		{[]float64{0.522, 0.5333, 0.958, 0.9693, 1.394}, []float64{0.8, 0.14, 0.04, 0.015, 0.005}, []int{30, 60}},
+	} {
+		d := dist.MustDiscrete(tc.v, tc.p)
+		a := newAtomicSums(d)
+		prev := math.Inf(1)
+		for _, k := range tc.ks {
+			require.False(t, a.exactFits(int64(k)))
+			exact, err := dist.SumIID(d, k)
+			require.NoError(t, err)
+			atoms := exact.(dist.Atomic).Atoms()
+			bound := a.accuracy(int64(k)).CDFAbs
+			m, s := a.mu*float64(k), a.sd*math.Sqrt(float64(k))
+			xs := []float64{}
+			for z := -6.0; z <= 6; z += 0.01 {
+				xs = append(xs, m+z*s)
+			}
+			slices.SortFunc(atoms, func(x, y dist.Atom) int { return cmp.Compare(y.Mass, x.Mass) })
+			for _, at := range atoms[:min(50, len(atoms))] {
+				xs = append(xs, at.Value, math.Nextafter(at.Value, math.Inf(-1)))
+			}
+			worst := 0.0
+			for _, x := range xs {
+				b, _, _ := a.eval(int64(k), x)
+				e := math.Abs(b - exact.CDF(x))
+				worst = math.Max(worst, e)
+				assert.LessOrEqual(t, e, bound, "k=%d x=%g", k, x)
+			}
+			t.Logf("%d energies, k = %d (%d atoms): largest error %.3g, bound %.3g (ratio %.2f)", len(tc.v), k, len(atoms), worst, bound, worst/bound)
+			assert.Less(t, bound, prev)
+			prev = bound
+		}
+	}
 }

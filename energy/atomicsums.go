@@ -239,7 +239,14 @@ func (a atomicSums) upperTerms(n, xb float64, sign float64) (q, corr float64) {
 	l4 := k4 / (k2 * k2 * n)
 	phi := math.Exp(-w*w/2) / math.Sqrt(2*math.Pi)
 	corr = phi * ((1/u)*(l4/8-5*l3*l3/24) - l3/(2*u*u) - 1/(u*u*u) + 1/(w*w*w))
-	q = 0.5*math.Erfc(w/math.Sqrt2) + phi*(1/u-1/w) + corr
+	first := phi * (1/u - 1/w)
+	if !(math.Abs(corr) <= 0.5*math.Abs(first)) {
+		// the tilted law is too discrete (a few cycles, near the support's
+		// end) for the expansion: its second-order terms are no longer
+		// small, and only the first-order formula is kept
+		corr = 0
+	}
+	q = 0.5*math.Erfc(w/math.Sqrt2) + first + corr
 	return math.Min(1, math.Max(0, q)), corr
 }
 

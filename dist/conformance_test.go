@@ -75,6 +75,12 @@ var conformanceLaws = []struct {
 	// gonum's Weibull CDF loses relative accuracy below 1e-16: the adapter is
 	// only as accurate as its source (documented), so quantiles get slack there.
 	{"FromDistuv(Weibull(1.5, 2))", mustLaw(dist.FromDistuv(distuv.Weibull{K: 1.5, Lambda: 2})), []disttest.Option{disttest.WithQuantileTolerance(1e-3)}},
+
+	// Sums with closed forms or closed-form pieces.
+	{"Sum(Uniform(30, 30.001), Uniform(0.2, 0.5)) (trapezoid)", dist.MustSum(dist.MustUniform(30, 30.001), dist.MustUniform(0.2, 0.5)), nil},
+	{"Sum(atoms, Uniform, Uniform) (shifted trapezoids)", dist.MustSum(dist.MustDiscrete([]float64{0, 10}, []float64{0.7, 0.3}), dist.MustUniform(0, 2), dist.MustUniform(1, 1.5)), nil},
+	{"Sum(Exp(1), Exp(3), Uniform(0, 2)) (closed-form upper tail)", dist.MustSum(dist.MustExponential(1), dist.MustExponential(3), dist.MustUniform(0, 2)), nil},
+	{"RandomSum({0..5}, Uniform(0, 1)) (low counts exact)", mustLaw(dist.RandomSum(dist.MustDiscrete([]float64{0, 1, 2, 3, 4, 5}, []float64{0.1, 0.3, 0.25, 0.15, 0.12, 0.08}), dist.MustUniform(0, 1))), nil},
 }
 
 // mustLaw unwraps a (law, error) pair built from valid literals.

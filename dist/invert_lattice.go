@@ -407,15 +407,20 @@ func newLatGrid(fn string, terms []latTerm, delta, supLo, supHi float64) (*latGr
 	if g.jmax-g.jmin < 6 {
 		return nil, fmt.Errorf("dist.%s: lattice fallback: %d grid points inside the support: %w", fn, g.jmax-g.jmin+1, ErrParam)
 	}
-	// interpolation: cubic against quintic at the midpoints
+	// interpolation: at each midpoint the centred cubic against the
+	// quintic and against the cubics shifted one point either way (one of
+	// which stays on one side of a kink at a grid point)
 	var ip, ipRel float64
 	for j := g.jmin; j < g.jmax; j++ {
 		p := float64(j) + 0.5
-		f4, f6 := g.interp(g.f, p, 4), g.interp(g.f, p, 6)
-		s4, s6 := g.interp(g.s, p, 4), g.interp(g.s, p, 6)
-		ip = math.Max(ip, math.Max(math.Abs(f4-f6), math.Abs(s4-s6)))
-		if s6 > g.floor {
-			ipRel = math.Max(ipRel, math.Abs(s4/s6-1))
+		for _, v := range [][]float64{g.f, g.s} {
+			c := g.interp(v, p, 4)
+			for _, o := range []float64{g.interp(v, p, 6), g.interpAt(v, p, j-2), g.interpAt(v, p, j)} {
+				ip = math.Max(ip, math.Abs(c-o))
+				if &v[0] == &g.s[0] && o > g.floor {
+					ipRel = math.Max(ipRel, math.Abs(c/o-1))
+				}
+			}
 		}
 	}
 	g.cdfErr = 2*rich + 2*ip + 2*cut + rnd
@@ -424,10 +429,22 @@ func newLatGrid(fn string, terms []latTerm, delta, supLo, supHi float64) (*latGr
 }
 
 // interp evaluates the m-point Lagrange interpolant of v (equispaced, unit
-// spacing) at the grid position p, its stencil kept inside [jmin, jmax].
+// spacing) at the grid position p, its stencil centred and kept inside
+// [jmin, jmax].
 func (g *latGrid) interp(v []float64, p float64, m int) float64 {
 	st := int(math.Floor(p)) - (m/2 - 1)
-	st = max(g.jmin, min(st, g.jmax-(m-1)))
+	return g.lagrange(v, p, max(g.jmin, min(st, g.jmax-(m-1))), m)
+}
+
+// interpAt is the cubic interpolant on the points st..st+3 (kept inside
+// [jmin, jmax]).
+func (g *latGrid) interpAt(v []float64, p float64, st int) float64 {
+	return g.lagrange(v, p, max(g.jmin, min(st, g.jmax-3)), 4)
+}
+
+// lagrange evaluates the m-point Lagrange interpolant through v[st..st+m-1]
+// at the grid position p.
+func (g *latGrid) lagrange(v []float64, p float64, st, m int) float64 {
 	u := p - float64(st)
 	var sum float64
 	for i := 0; i < m; i++ {

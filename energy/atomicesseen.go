@@ -38,8 +38,10 @@ import (
 // The estimate the code returns is the saddlepoint value (saddle), not G, so
 // the bound reported is the one above plus sup |G − saddle| (taken on a grid
 // of z in [−12, 12] every 0.01 inside the support, times 1.1 for the grid's
-// step; beyond it both tails are below 1e-30, and outside the support eval is
-// exact).
+// step; outside the support eval is exact). Beyond |z| = 12 F and the
+// saddlepoint both lie between 0 and their tails at ±12 (F's within the
+// bound of G's), so the larger of G's and the saddlepoint's tails there is
+// added too (about 1e-33 for long lifetimes; more for a few skewed cycles).
 
 // esseenMaxWork caps the transform values spent on the far integral.
 const esseenMaxWork = 200_000
@@ -97,6 +99,7 @@ type esseenParts struct {
 	central, far, smooth float64 // the integral to 12, beyond, and 24m/(πT) at the best T
 	T                    float64 // the best T
 	gs                   float64 // sup |G − saddle| on the grid
+	tails                float64 // the larger of G's and the saddlepoint's tails at z = ±12
 	work                 int     // transform values spent on the far part
 }
 
@@ -105,7 +108,7 @@ type esseenParts struct {
 func (a atomicSums) edgeworthBound(k int64) float64 {
 	p := a.esseen(k)
 	// 1.1·gs for the grid's step; 1e-30 for |γ| beyond τ = 12
-	return math.Min(1, p.central+p.far+p.smooth+1.1*p.gs+1e-30)
+	return math.Min(1, p.central+p.far+p.smooth+1.1*p.gs+p.tails+1e-30)
 }
 
 // esseen returns the terms of edgeworthBound.
@@ -212,5 +215,20 @@ func (a atomicSums) esseen(k int64) (p esseenParts) {
 		gs = math.Max(gs, math.Abs(g-b))
 	}
 	p.gs = gs
+	// beyond |z| = 12 both F and the saddlepoint lie in [0, their value at
+	// ±12] on the tail's side, and F's is within the bound of G's there
+	for _, z := range []float64{-12, 12} {
+		x := mu + z*s
+		if x <= n*a.v[0] || x >= n*a.v[len(a.v)-1] {
+			continue
+		}
+		gb, ga := a.edgeworth(n, z)
+		sb, sa := a.saddle(n, x)
+		if z < 0 {
+			p.tails = math.Max(p.tails, math.Max(math.Abs(gb), sb))
+		} else {
+			p.tails = math.Max(p.tails, math.Max(math.Abs(ga), sa))
+		}
+	}
 	return p
 }

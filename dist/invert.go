@@ -49,6 +49,7 @@ const (
 	maxTerms   = 1 << 16
 	maxTilted  = 1 << 12 // terms of one tilted tail evaluation
 	tiltTol    = 1e-9    // stated relative error of a tilted tail
+	quietShare = 0.2     // share of the carried error the series truncation may add
 )
 
 // numLaw is a numerically inverted law (a sum, k-fold sum or random sum).
@@ -149,12 +150,21 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	}
 	l.L = (l.b - l.a) * 1.01
 	l.h = 2 * math.Pi / l.L
-	// the series stops where |Mc| has stayed below quietTol: 1e-13, or up
-	// to a fifth of the error the law carries anyway (the transform's
-	// stated error over the series, rounding of the phase, error already
-	// incurred), at most 1e-12; what is cut is added to the bound as trunc/π
+	// The series stops where |Mc| has stayed below quietTol over a stretch
+	// of 8 + k/16 terms: 1e-13, or up to quietShare of the error the law
+	// carries anyway (the transform's stated error over the series,
+	// rounding of the phase, error already incurred), at most 1e-12. The
+	// terms cut then sum to at most quietTol/π·Σ_{k>n} (n/k)^p/k <=
+	// quietTol/π for a transform decaying at least as 1/t from there (a
+	// density of bounded variation); that is added to the bound. For a Sum
+	// with finite discrete terms, |Mc| <= |C| with C the product of the
+	// transforms of its atom-free terms, and a discrete factor can keep |Mc|
+	// small over a long stretch and then return to 1 (a lattice law at
+	// t = 2π/span): there the series stops only where |C| is below quietTol
+	// too (its largest modulus at four points across the stretch).
 	carried := l.tr.err*(math.Log(1000)+1) + 1e-14*(1+math.Abs(l.c)/sd) + sp.extraErr
-	quietTol := math.Min(1e-12, math.Max(1e-13, 0.2*math.Pi*carried))
+	quietTol := math.Min(1e-12, math.Max(1e-13, quietShare*math.Pi*carried))
+	env := envelopeOf(sp.parts)
 	var trunc, absSum float64
 	quiet := 0
 	l.pr, l.pi = make([]float64, 0, 1024), make([]float64, 0, 1024)
@@ -187,12 +197,16 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 			quiet = 0
 			trunc = m
 		}
-		if quiet >= 8+k/16 {
-			trunc = math.Max(trunc*1e-2, m) // decayed through the quiet stretch
-			break
-		}
 		if math.IsNaN(m) {
 			return nil, fmt.Errorf("dist.%s: transform is NaN at t = %v: %w", sp.kind, imag(s), ErrParam)
+		}
+		if quiet >= 8+k/16 {
+			if env != nil && env.largest(l.h, k, quiet) > quietTol {
+				quiet = 0 // small only through a discrete factor
+				continue
+			}
+			trunc = quietTol
+			break
 		}
 	}
 	n := len(l.pr)
@@ -205,6 +219,47 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	l.gridOnce = new(sync.Once)
 	l.calls = new(atomic.Int64)
 	return l, nil
+}
+
+// sumEnvelope is the atom-free terms of a Sum that also has terms with
+// atoms: the product C of their transforms bounds |Mc| on the axis.
+type sumEnvelope []transform
+
+// envelopeOf returns the envelope of a Sum's terms, or nil when it does not
+// apply (no terms with atoms, none without, or a term without a transform).
+func envelopeOf(parts []Law) sumEnvelope {
+	var env sumEnvelope
+	disc := false
+	for _, p := range parts {
+		if hasAtoms(p) {
+			disc = true
+			continue
+		}
+		tr, ok := transformOf(p)
+		if !ok {
+			return nil
+		}
+		env = append(env, tr)
+	}
+	if !disc || len(env) == 0 {
+		return nil
+	}
+	return env
+}
+
+// largest returns the largest |C(i·t)| at four points spread over the
+// stretch of the last `quiet` terms up to term k (step h).
+func (e sumEnvelope) largest(h float64, k, quiet int) float64 {
+	var top float64
+	for j := 0; j < 4; j++ {
+		t := h * float64(k-j*quiet/4)
+		var lg float64
+		for _, tr := range e {
+			lg += real(tr.logm(complex(0, t)))
+		}
+		top = math.Max(top, math.Exp(lg))
+	}
+	return top
 }
 
 // accuracy computes the error estimate (once, on the first call of

@@ -34,7 +34,7 @@ const (
 	gridMaxErr  = 1e-13   // largest accepted midpoint interpolation error
 	gridMaxSize = 1 << 17 // (laws at the series cap, 2^16 terms, have jumps and skip the grid)
 	gridMinSize = 1 << 10
-	gridDropTol = 3e-15 // sum of the magnitudes of the series terms the grid may leave out
+	gridDropTol = 3e-14 // sum of the magnitudes of the series terms the grid may leave out
 	gridPerTerm = 1     // grid points per series term (N >= gridPerTerm·n)
 )
 

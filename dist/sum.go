@@ -52,9 +52,11 @@ const MaxSumAtoms = 1 << 20
 //     else ErrParam). The continuous parts are rounded to a common lattice,
 //     convolved by FFT at steps δ, 2δ and 4δ and Richardson-extrapolated,
 //     the upper tail again from exponentially tilted lattices: CDF error
-//     about 1e-11 for smooth densities (stated bound a few 1e-11 to 1e-10,
-//     from the extrapolation one step coarser), survival relative error
-//     bound 2e-7 down to about 1e-17; larger where a density is singular.
+//     about 1e-13 for smooth densities, with or without atoms (stated bound
+//     about 1e-11, from the extrapolation one step coarser and a check of
+//     the interpolation), 1e-10 at a kink, survival relative error bound
+//     2e-7 down to about 1e-17; larger where a density is singular (8e-5
+//     for x^(-1/2) at 0, stated 2e-4).
 //     A law evaluated more than 32 times answers from a grid of the
 //     series (see invert_grid.go), its measured interpolation error added
 //     to Accuracy.

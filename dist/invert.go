@@ -49,7 +49,9 @@ const (
 	maxTerms   = 1 << 16
 	maxTilted  = 1 << 12 // terms of one tilted tail evaluation
 	tiltTol    = 1e-9    // stated relative error of a tilted tail
-	quietShare = 0.2     // share of the carried error the series truncation may add
+	quietShare = 0.1     // share of the carried error the series truncation may add
+	dropTol    = 3e-14   // sum of the magnitudes of the trailing series terms left out
+	envRatio   = 4       // a Sum with discrete terms stops where |C| <= envRatio·quietTol
 )
 
 // numLaw is a numerically inverted law (a sum, k-fold sum or random sum).
@@ -160,8 +162,10 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	// with finite discrete terms, |Mc| <= |C| with C the product of the
 	// transforms of its atom-free terms, and a discrete factor can keep |Mc|
 	// small over a long stretch and then return to 1 (a lattice law at
-	// t = 2π/span): there the series stops only where |C| is below quietTol
-	// too (its largest modulus at four points across the stretch).
+	// t = 2π/span): there the series stops only where |C| (its largest
+	// modulus at four points across the stretch) is below envRatio·quietTol
+	// too, and the cut terms are bounded by max(|C|, quietTol)/π instead
+	// (|Mc| <= |C|, and C decays at least as 1/t from there).
 	carried := l.tr.err*(math.Log(1000)+1) + 1e-14*(1+math.Abs(l.c)/sd) + sp.extraErr
 	quietTol := math.Min(1e-12, math.Max(1e-13, quietShare*math.Pi*carried))
 	env := envelopeOf(sp.parts)
@@ -201,19 +205,35 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 			return nil, fmt.Errorf("dist.%s: transform is NaN at t = %v: %w", sp.kind, imag(s), ErrParam)
 		}
 		if quiet >= 8+k/16 {
-			if env != nil && env.largest(l.h, k, quiet) > quietTol {
-				quiet = 0 // small only through a discrete factor
-				continue
-			}
 			trunc = quietTol
+			if env != nil {
+				c := env.largest(l.h, k, quiet)
+				if c > envRatio*quietTol {
+					quiet = 0 // small only through a discrete factor
+					continue
+				}
+				trunc = math.Max(trunc, c)
+			}
 			break
 		}
 	}
+	// trailing terms whose magnitudes sum below dropTol are left out of
+	// the values (the stopping rule needed them, the sums do not); their
+	// sum over π is added to the bound
 	n := len(l.pr)
+	var drop float64
+	for n > 1 {
+		d := math.Hypot(l.pr[n-1], l.pi[n-1])
+		if drop+d > dropTol {
+			break
+		}
+		drop += d
+		n--
+	}
 	l.pr, l.pi = l.pr[:n:n], l.pi[:n:n]
 	// rounding: 1e-14, the terms' magnitude, and the phase s·c of a window
 	// centred far from 0 (SumIID with large k: c/sd grows as √k)
-	cdfAbs := 2*bulkTail + trunc/math.Pi + 1e-14*(1+math.Abs(l.c)/sd) + 4e-16*absSum + l.tr.err*(math.Log(float64(n))+1) + axisSum/math.Pi + sp.extraErr
+	cdfAbs := 2*bulkTail + (trunc+drop)/math.Pi + 1e-14*(1+math.Abs(l.c)/sd) + 4e-16*absSum + l.tr.err*(math.Log(float64(n))+1) + axisSum/math.Pi + sp.extraErr
 	l.accBase, l.extraErr = cdfAbs, sp.extraErr
 	l.accOnce = new(sync.Once)
 	l.gridOnce = new(sync.Once)

@@ -34,8 +34,7 @@ const (
 	gridMaxErr  = 1e-13   // largest accepted midpoint interpolation error
 	gridMaxSize = 1 << 17 // (laws at the series cap, 2^16 terms, have jumps and skip the grid)
 	gridMinSize = 1 << 10
-	gridDropTol = 3e-14 // sum of the magnitudes of the series terms the grid may leave out
-	gridPerTerm = 1     // grid points per series term (N >= gridPerTerm·n)
+	gridPerTerm = 1 // grid points per series term (N >= gridPerTerm·n)
 )
 
 // cdfGrid holds F, f and f' of the continuous part at y0 + r·dy, scaled for
@@ -53,18 +52,7 @@ func (g *cdfGrid) size() int { return len(g.v) }
 
 // buildGrid returns the grid, or nil when it is too large or not accurate.
 func (l *numLaw) buildGrid() *cdfGrid {
-	// terms beyond n whose magnitudes sum below gridDropTol are left out
-	// (their sum, over π, is added to the stated bound)
 	n := len(l.pr)
-	var drop float64
-	for n > 1 {
-		d := math.Hypot(l.pr[n-1], l.pi[n-1])
-		if drop+d > gridDropTol {
-			break
-		}
-		drop += d
-		n--
-	}
 	N := gridFFTSize(max(gridMinSize, gridPerTerm*n, 2*n+2))
 	if N > gridMaxSize {
 		return nil
@@ -130,7 +118,7 @@ func (l *numLaw) buildGrid() *cdfGrid {
 		got := 0.5*(real(p)+real(q)) + 5.0/32*(imag(p)-imag(q)) + (real(x2[r])+real(x2[r+1]))/64
 		gr.err = math.Max(gr.err, math.Abs(got-imag(x2[r])))
 	}
-	gr.round = float64(bits.Len(uint(N)))*1e-16*absSum/math.Pi + drop/math.Pi
+	gr.round = float64(bits.Len(uint(N))) * 1e-16 * absSum / math.Pi
 	if !(gr.err <= gridMaxErr) {
 		return nil
 	}

@@ -149,7 +149,9 @@ func (a atomicSums) saddle(n, x float64) (below, above float64) {
 	if math.Abs(z) >= 1 {
 		return a.saddleOff(n, x)
 	}
-	return a.edgeworth(n, z)
+	below, above = a.edgeworth(n, z)
+	// a few very skewed cycles can put the expansion outside [0, 1]
+	return math.Min(1, math.Max(0, below)), math.Min(1, math.Max(0, above))
 }
 
 // edgeworth returns the second-order Edgeworth P(Z <= z) and P(Z > z) of

@@ -56,28 +56,29 @@ func (a atomicSums) atomValue3(k, n, j int64, c, ia, ib int) float64 {
 	return float64(float64(n)*a.v[c]) + float64(float64(k-n)*a.v[ia]) + float64(float64(j)*(a.v[ib]-a.v[ia]))
 }
 
+// atomJ returns the largest j with atomValue3(k, n, j) <= x (−1 if none,
+// at most k − n): y = (x − n·v_c − (k − n)·v_a)/(v_b − v_a) put right
+// against the atoms' own values.
+func (a atomicSums) atomJ(k, n int64, x float64, c, ia, ib int) int64 {
+	m := k - n
+	y := (x - float64(n)*a.v[c] - float64(m)*a.v[ia]) / (a.v[ib] - a.v[ia])
+	j := int64(math.Max(-1, math.Min(float64(m), math.Floor(y))))
+	for j < m && a.atomValue3(k, n, j+1, c, ia, ib) <= x {
+		j++
+	}
+	for j >= 0 && a.atomValue3(k, n, j, c, ia, ib) > x {
+		j--
+	}
+	return j
+}
+
 // three returns P(S_k <= x) and P(S_k > x) for a three-atom law by the
 // conditioning above.
 func (a atomicSums) three(k int64, x float64) (below, above float64) {
 	c, ia, ib := a.threeRoles()
-	u, w, vc := a.v[ia], a.v[ib]-a.v[ia], a.v[c]
 	q := a.p[ib] / (a.p[ia] + a.p[ib])
 	pc := a.p[c]
-	// jOf(n) = the largest j with atomValue3(n, j) <= x (−1 if none),
-	// from y(n) = (x − n·v_c − (k − n)·v_a)/(v_b − v_a) put right against
-	// the atoms' own values
-	jOf := func(n int64) int64 {
-		m := k - n
-		y := (x - float64(n)*vc - float64(m)*u) / w
-		j := int64(math.Max(-1, math.Min(float64(m), math.Floor(y))))
-		for j < m && a.atomValue3(k, n, j+1, c, ia, ib) <= x {
-			j++
-		}
-		for j >= 0 && a.atomValue3(k, n, j, c, ia, ib) > x {
-			j--
-		}
-		return j
-	}
+	jOf := func(n int64) int64 { return a.atomJ(k, n, x, c, ia, ib) }
 	nm := int64(math.Floor(float64(k+1) * pc))
 	if nm > k {
 		nm = k
@@ -120,7 +121,7 @@ func (a atomicSums) three(k int64, x float64) (below, above float64) {
 			}
 		}
 	}
-	return below, above
+	return math.Min(1, below), math.Min(1, above) // sums of masses may round past 1
 }
 
 // condTails holds P(N <= j) (lo) and P(N > j) (hi) for N ~ Binomial(m, q)
@@ -128,16 +129,17 @@ func (a atomicSums) three(k int64, x float64) (below, above float64) {
 //
 //	P(Bin(m, q) <= j) = P(Bin(m−1, q) <= j) − q·P(Bin(m−1, q) = j)
 //
-// and by adding the masses between the old and the new j, each tail
-// updated on its own (so the smaller keeps its relative precision). They are
-// computed afresh (binomialSideTails) every 32 moves, after a tail was
-// clamped to 0 or 1, and when the smaller tail has fallen below 1/8 of its
-// value when last computed, so rounding cannot build up.
+// and by adding the masses between the old and the new j (binomialRun),
+// each tail updated on its own. They are computed afresh
+// (binomialSideTails) every 32 moves, after a tail was clamped to 0 or 1,
+// and whenever the rounding the updates may have brought (tracked) passes
+// 1e-13 of the smaller tail, as when a long run of masses is taken from a
+// tail near 1, so each tail keeps its relative precision.
 type condTails struct {
 	m, j   int64
 	lo, hi float64
-	moves  int     // since last computed afresh; -1: compute afresh
-	anchor float64 // the smaller tail when last computed afresh
+	moves  int     // since last computed afresh
+	err    float64 // bound on the rounding both tails took on since then
 	valid  bool
 }
 
@@ -153,22 +155,17 @@ func (c *condTails) move(m int64, y, q float64) {
 		return
 	}
 	j = int64(y)
-	if !c.valid || c.moves >= 32 || (c.m != m+1 && c.m != m-1) || c.j < 0 || c.j >= c.m ||
-		math.Min(c.lo, c.hi) < c.anchor/8 {
-		c.lo, c.hi = binomialSideTails(m, j, q)
-		*c = condTails{m: m, j: j, lo: c.lo, hi: c.hi, anchor: math.Min(c.lo, c.hi), valid: true}
+	if !c.valid || c.moves >= 32 || (c.m != m+1 && c.m != m-1) || c.j < 0 || c.j >= c.m {
+		c.fresh(m, j, q)
 		return
 	}
 	mf := float64(m)
 	// Pascal's rule to m at the old j
+	var d float64
 	if m == c.m-1 {
-		d := q * math.Exp(logBinom(mf, float64(c.j), q)) // q·P(Bin(m) = j)
-		c.lo += d
-		c.hi -= d
+		d = q * math.Exp(logBinom(mf, float64(c.j), q)) // q·P(Bin(m) = j)
 	} else {
-		d := q * math.Exp(logBinom(float64(c.m), float64(c.j), q)) // q·P(Bin(m−1) = j)
-		c.lo -= d
-		c.hi += d
+		d = -q * math.Exp(logBinom(float64(c.m), float64(c.j), q)) // −q·P(Bin(m−1) = j)
 	}
 	// the masses of Bin(m) between the old and the new j
 	a, b := c.j+1, j // add masses a..b
@@ -176,25 +173,59 @@ func (c *condTails) move(m int64, y, q float64) {
 	if j < c.j {
 		a, b, sign = j+1, c.j, -1
 	}
-	if a <= b {
-		t := math.Exp(logBinom(mf, float64(a), q))
-		var s float64
-		for i := a; ; i++ {
-			s += t
-			if i == b {
-				break
-			}
-			t *= (mf - float64(i)) / float64(i+1) * q / (1 - q)
-		}
-		c.lo += sign * s
-		c.hi -= sign * s
-	}
+	s := binomialRun(m, a, b, q)
+	c.lo += d + sign*s
+	c.hi -= d + sign*s
 	c.m, c.j = m, j
 	c.moves++
-	if c.lo < 0 || c.hi < 0 {
-		c.valid = false
-		c.move(m, y, q)
+	// each mass is good to about 1e-14 of itself (Loader's terms and at
+	// most 64 ratio steps), the sums to rounding
+	c.err += 1e-14*(math.Abs(d)+s) + 0x1p-52*(c.lo+c.hi)
+	if !(c.err <= 1e-13*math.Min(c.lo, c.hi)) {
+		// the smaller tail is no longer known to 1e-13 of itself (or it
+		// went negative, or a tail is empty): compute afresh
+		c.fresh(m, j, q)
 	}
+}
+
+// fresh computes the tails at m, j directly.
+func (c *condTails) fresh(m, j int64, q float64) {
+	lo, hi := binomialSideTails(m, j, q)
+	*c = condTails{m: m, j: j, lo: lo, hi: hi, valid: true}
+}
+
+// binomialRun returns P(a <= N <= b) for N ~ Binomial(m, q) (0 for a > b),
+// summed outward from the index in [a, b] nearest the mode by the mass
+// ratios, so that masses too small to represent at one end do not hide the
+// rest; re-anchored on Loader's mass every 64 steps.
+func binomialRun(m, a, b int64, q float64) float64 {
+	if a > b {
+		return 0
+	}
+	mf := float64(m)
+	i0 := min(b, max(a, int64(math.Floor((mf+1)*q))))
+	rq := q / (1 - q)
+	t0 := math.Exp(logBinom(mf, float64(i0), q))
+	s := t0
+	t := t0
+	for i := i0; i < b && t > 0; {
+		t *= (mf - float64(i)) / float64(i+1) * rq
+		i++
+		if (i-i0)%64 == 0 {
+			t = math.Exp(logBinom(mf, float64(i), q))
+		}
+		s += t
+	}
+	t = t0
+	for i := i0; i > a && t > 0; {
+		t *= float64(i) / (mf - float64(i) + 1) / rq
+		i--
+		if (i0-i)%64 == 0 {
+			t = math.Exp(logBinom(mf, float64(i), q))
+		}
+		s += t
+	}
+	return s
 }
 
 // binomialSideTails returns P(N <= j) and P(N > j) for N ~ Binomial(n, p),

@@ -198,3 +198,78 @@ func TestCondTails(t *testing.T) {
 		}
 	}
 }
+
+// TestThreeRandomLaws: the three-energy path on 15 random laws (energies
+// spread over three decades, probabilities over twelve, k up to 5·10⁴),
+// x over ±8 sd, against the conditioning sum done plainly: P(N_c = n) and
+// the tails of N_b taken for every n from testref.BinomialTails (Loader 2000
+// masses), so a bad move of the conditional tails shows (one such, a run of
+// 2000 masses starting below the float range, was found this way). Each tail
+// relative to its own size within 1e-9 where above 1e-250.
+func TestThreeRandomLaws(t *testing.T) {
+	type law struct {
+		v, p []float64
+		k    int
+		zs   []float64
+	}
+	// the law that showed the bad move: the rare energy 500 times the
+	// others, so each step of its count moves j by some 2000 masses
+	laws := []law{{[]float64{0.0025245490662644935, 1.2511952257262984, 0.0019385923777572886},
+		[]float64{0.0030702707596533666, 0.0013145053558177378, 0.9956152238845289}, 361702, []float64{-5.5, -5, -4.5}}}
+	r := rand.New(rand.NewPCG(3, 4))
+	for range 15 {
+		v := make([]float64, 3)
+		p := make([]float64, 3)
+		tot := 0.0
+		for i := range v {
+			v[i] = math.Exp(r.NormFloat64()*2 - 3)
+			p[i] = math.Exp(r.NormFloat64() * 3)
+			tot += p[i]
+		}
+		for i := range p {
+			p[i] /= tot
+		}
+		laws = append(laws, law{v, p, int(math.Exp(r.Float64() * math.Log(5e4))), []float64{-8, -6, -4, -2, 0, 2, 4, 6, 8}})
+	}
+	for _, l := range laws {
+		v, p, k := l.v, l.p, l.k
+		d, err := dist.NewDiscrete(v, p)
+		if err != nil || d.Len() != 3 {
+			continue
+		}
+		a := newAtomicSums(d)
+		c, ia, ib := a.threeRoles()
+		q := a.p[ib] / (a.p[ia] + a.p[ib])
+		mc, sc := float64(k)*a.p[c], math.Sqrt(float64(k)*a.p[c]*(1-a.p[c]))
+		nlo, nhi := max(0, int(mc-40*sc-40)), min(k, int(mc+40*sc+40))
+		pm := make([]float64, nhi-nlo+1)
+		for n := nlo; n <= nhi; n++ {
+			_, ge := testref.BinomialTails(k, n, a.p[c])
+			_, gt := testref.BinomialTails(k, n+1, a.p[c])
+			pm[n-nlo] = ge - gt
+			if n < int(mc) { // the lower side from the lower tails
+				le, _ := testref.BinomialTails(k, n, a.p[c])
+				lt, _ := testref.BinomialTails(k, n-1, a.p[c])
+				pm[n-nlo] = le - lt
+			}
+		}
+		m, s := a.mu*float64(k), a.sd*math.Sqrt(float64(k))
+		for _, z := range l.zs {
+			x := m + z*s
+			var wb, wa float64
+			for n := nlo; n <= nhi; n++ {
+				j := a.atomJ(int64(k), int64(n), x, c, ia, ib)
+				lo, _ := testref.BinomialTails(k-n, int(j), q)
+				_, hi := testref.BinomialTails(k-n, int(j)+1, q)
+				wb += pm[n-nlo] * lo
+				wa += pm[n-nlo] * hi
+			}
+			b, ab := a.three(int64(k), x)
+			for _, pr := range [][2]float64{{b, wb}, {ab, wa}} {
+				if pr[1] > 1e-250 {
+					assert.InDelta(t, pr[1], pr[0], 1e-9*pr[1], "v=%v p=%v k=%d z=%g", v, p, k, z)
+				}
+			}
+		}
+	}
+}

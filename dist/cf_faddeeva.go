@@ -71,6 +71,11 @@ func faddeevaUpper(z complex128) complex128 {
 // 1e-13 (that of w), more only where the two ends' terms cancel (a
 // truncation interval much narrower than σ far from μ).
 func truncNormalLogM(s complex128, mu, sigma, lo, hi, logZ float64) complex128 {
+	if imag(s) == 0 {
+		if v, ok := truncNormalLogMReal(real(s), mu, sigma, lo, hi, logZ); ok {
+			return complex(v, 0)
+		}
+	}
 	type term struct{ lg, f complex128 }
 	var ts [3]term
 	n := 0
@@ -117,4 +122,34 @@ func truncNormalLogM(s complex128, mu, sigma, lo, hi, logZ float64) complex128 {
 		sum += t.f * cmplx.Exp(t.lg-complex(r, 0))
 	}
 	return cmplx.Log(sum) + complex(r-logZ, 0)
+}
+
+// truncNormalLogMReal is truncNormalLogM for real s = θ by math.Erfc:
+//
+//	log M(θ) = μθ + σ²θ²/2 + log[Φ(β - σθ) - Φ(α - σθ)] - log Z,
+//
+// the difference taken from the tail where it does not cancel (1 - Φ(b)
+// and 1 - Φ(a) when both arguments are positive, Φ when both are negative);
+// relative error a few 1e-16, more only where the two ends cancel (as for
+// the Faddeeva form). It declines (false) where Erfc would underflow (an
+// argument beyond 36) or θ is not a number.
+func truncNormalLogMReal(th, mu, sigma, lo, hi, logZ float64) (float64, bool) {
+	a, b := (lo-mu)/sigma-sigma*th, (hi-mu)/sigma-sigma*th
+	if math.IsNaN(a) || math.IsNaN(b) || a > 36 || b < -36 {
+		return 0, false
+	}
+	const r = 1 / math.Sqrt2
+	var p float64
+	switch {
+	case a >= 0:
+		p = (math.Erfc(a*r) - math.Erfc(b*r)) / 2
+	case b <= 0:
+		p = (math.Erfc(-b*r) - math.Erfc(-a*r)) / 2
+	default:
+		p = 1 - (math.Erfc(b*r)+math.Erfc(-a*r))/2
+	}
+	if !(p > 0) {
+		return 0, false
+	}
+	return mu*th + sigma*sigma*th*th/2 + math.Log(p) - logZ, true
 }

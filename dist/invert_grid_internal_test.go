@@ -123,3 +123,36 @@ func TestAxisAddersAgainstTransforms(t *testing.T) {
 		}
 	}
 }
+
+func TestChernoffEndNormalAndGamma(t *testing.T) {
+	// closed forms: a centred normal has K(θ) = σ²θ²/2, whose Chernoff
+	// bound min (K + c)/θ is σ·√(2c) (at θ = √(2c)/σ); a centred
+	// exponential of rate λ has K(θ) = -log(1 - θ/λ) - θ/λ, minimised
+	// numerically here on a fine grid of θ (an independent brute force).
+	// The search must return a bound (never below the minimum) within 1e-6
+	// of it.
+	for _, sigma := range []float64{1e-3, 1, 7, 1e4} {
+		for _, eps := range []float64{1e-5, 1e-14, 1e-60} {
+			c := -math.Log(eps)
+			want := sigma * math.Sqrt(2*c)
+			logm := func(s complex128) complex128 { return complex(sigma*sigma/2, 0) * s * s }
+			got := chernoffEnd(logm, math.Inf(1), sigma, eps)
+			assert.GreaterOrEqual(t, got, want*(1-1e-15), "σ=%g eps=%g", sigma, eps)
+			assert.LessOrEqual(t, got, want*(1+1e-6), "σ=%g eps=%g", sigma, eps)
+		}
+	}
+	for _, rate := range []float64{0.8, 5} {
+		eps := 1e-14
+		c := -math.Log(eps)
+		K := func(th float64) float64 { return -math.Log1p(-th/rate) - th/rate }
+		want := math.Inf(1)
+		for i := 1; i < 2000000; i++ {
+			th := rate * float64(i) / 2000000
+			want = math.Min(want, (K(th)+c)/th)
+		}
+		logm := func(s complex128) complex128 { return -cmplx.Log(1-s/complex(rate, 0)) - s/complex(rate, 0) }
+		got := chernoffEnd(logm, rate, 1/rate, eps)
+		assert.InEpsilon(t, want, got, 1e-6, "rate %g", rate)
+		assert.GreaterOrEqual(t, got, want*(1-1e-12), "rate %g", rate)
+	}
+}

@@ -132,14 +132,15 @@ func (a atomicSums) three(k int64, x float64) (below, above float64) {
 // and by adding the masses between the old and the new j (binomialRun),
 // each tail updated on its own. They are computed afresh
 // (binomialSideTails) every 32 moves, after a tail was clamped to 0 or 1,
-// and whenever the rounding the updates may have brought (tracked) passes
-// 1e-13 of the smaller tail, as when a long run of masses is taken from a
-// tail near 1, so each tail keeps its relative precision.
+// and whenever the rounding the updates may have brought to a tail
+// (tracked for each) passes 1e-13 of it, as when a long run of masses is
+// taken from a tail near 1, so each tail keeps its relative precision.
 type condTails struct {
 	m, j   int64
 	lo, hi float64
 	moves  int     // since last computed afresh
-	err    float64 // bound on the rounding both tails took on since then
+	errLo  float64 // bounds on the rounding each tail took on since then
+	errHi  float64
 	valid  bool
 }
 
@@ -179,11 +180,13 @@ func (c *condTails) move(m int64, y, q float64) {
 	c.m, c.j = m, j
 	c.moves++
 	// each mass is good to about 1e-14 of itself (Loader's terms and at
-	// most 64 ratio steps), the sums to rounding
-	c.err += 1e-14*(math.Abs(d)+s) + 0x1p-52*(c.lo+c.hi)
-	if !(c.err <= 1e-13*math.Min(c.lo, c.hi)) {
-		// the smaller tail is no longer known to 1e-13 of itself (or it
-		// went negative, or a tail is empty): compute afresh
+	// most 64 ratio steps), each sum to its rounding
+	upd := 1e-14 * (math.Abs(d) + s)
+	c.errLo += upd + 0x1p-52*c.lo
+	c.errHi += upd + 0x1p-52*c.hi
+	if !(c.errLo <= 1e-13*c.lo && c.errHi <= 1e-13*c.hi) {
+		// a tail is no longer known to 1e-13 of itself (or went negative,
+		// or is empty): compute afresh
 		c.fresh(m, j, q)
 	}
 }

@@ -252,10 +252,12 @@ func truncNormalAxis(mu, sigma, lo, hi, z float64) axisAdder {
 	ts := newTruncSeries(mu, sigma, lo, hi, z)
 	lz := math.Log(z)
 	return func(h float64, k0 int, out []complex128) {
+		n := 0 // the term count at the previous point: a hint, t grows along the block
 		for j := range out {
 			t := float64(k0+j) * h
-			if v, _, ok := ts.at(t); ok {
+			if v, _, m, ok := ts.atHint(t, n); ok {
 				out[j] += logOf(v)
+				n = m
 				continue
 			}
 			out[j] += truncNormalLogM(complex(0, t), mu, sigma, lo, hi, lz)
@@ -267,18 +269,34 @@ func truncNormalAxis(mu, sigma, lo, hi, z float64) axisAdder {
 // absolute error (remainder and rounding), and whether it could be used:
 // remainder at most truncEndTol, rounding at most truncEndRound.
 func (ts *truncSeries) at(t float64) (complex128, float64, bool) {
+	v, e, _, ok := ts.atHint(t, 0)
+	return v, e, ok
+}
+
+// atHint is at with a guess of the term count (0: none); it also returns
+// the count used.
+func (ts *truncSeries) atHint(t float64, hint int) (complex128, float64, int, bool) {
 	q := 1 / (ts.sigma * t)
 	if !(q < 1/truncEndMinSt) || q > ts.qmax[ts.nTop] {
-		return 0, 0, false
+		return 0, 0, 0, false
 	}
-	// the smallest n with q <= qmax[n], by bisection on the increasing part
-	lo, n := 0, ts.nTop // q > qmax[lo] (qmax[0] = 0), q <= qmax[n]
-	for n-lo > 1 {
-		m := (lo + n) / 2
-		if q <= ts.qmax[m] {
-			n = m
-		} else {
-			lo = m
+	// the smallest n <= nTop with q <= qmax[n] (qmax increases up to nTop)
+	var n int
+	if hint >= 1 && hint <= ts.nTop && q <= ts.qmax[hint] {
+		n = hint
+		for n > 1 && q <= ts.qmax[n-1] {
+			n--
+		}
+	} else {
+		lo := 0 // q > qmax[lo] (qmax[0] = 0), q <= qmax[n]
+		n = ts.nTop
+		for n-lo > 1 {
+			m := (lo + n) / 2
+			if q <= ts.qmax[m] {
+				n = m
+			} else {
+				lo = m
+			}
 		}
 	}
 	q2 := q * q
@@ -310,7 +328,7 @@ func (ts *truncSeries) at(t float64) (complex128, float64, bool) {
 	iz := 1 / ts.z
 	round := 4e-16 * float64(n+2) * mag * iz
 	if round > truncEndRound {
-		return 0, 0, false
+		return 0, 0, 0, false
 	}
-	return complex(real(sum)*iz, imag(sum)*iz), truncEndTol + round, true
+	return complex(real(sum)*iz, imag(sum)*iz), truncEndTol + round, n, true
 }

@@ -32,8 +32,20 @@ func TestFFT2AgainstGonum(t *testing.T) {
 
 func TestDiscreteAxisWithinStatedError(t *testing.T) {
 	// oracle: the transform Σ p·exp(i·t·v) summed directly with
-	// math.Sincos per atom and point (the definition)
-	d := MustDiscrete([]float64{10, 12, 15, 21, 30, 44, 0.3, 57.25}, []float64{0.2, 0.2, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1})
+	// math.Sincos per atom and point (the definition); atom counts that
+	// are and are not multiples of the four taken at a time
+	laws := []Discrete{
+		MustDiscrete([]float64{10, 12, 15, 21, 30, 44, 0.3, 57.25}, []float64{0.2, 0.2, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1}),
+		MustDiscrete([]float64{-3, 0.5, 2, 7.75, 11, 19, 23}, []float64{0.1, 0.2, 0.1, 0.2, 0.1, 0.2, 0.1}),
+		MustDiscrete([]float64{4.5}, []float64{1}),
+	}
+	for _, d := range laws {
+		checkDiscreteAxis(t, d)
+	}
+}
+
+func checkDiscreteAxis(t *testing.T, d Discrete) {
+	t.Helper()
 	add, vmax := discreteAxis(d)
 	for _, h := range []float64{0.0627, 0.9, 3.1} {
 		for _, k0 := range []int{1, 33, 2049} {
@@ -49,7 +61,7 @@ func TestDiscreteAxisWithinStatedError(t *testing.T) {
 				// (2^-53·|t·v| twice)
 				tt := float64(k0+j) * h
 				tol := axisErr + axisPhase*tt*vmax + 2.3e-16*tt*vmax
-				assert.LessOrEqual(t, cmplx.Abs(cmplx.Exp(lm)-want), tol, "h=%v k=%d", h, k0+j)
+				assert.LessOrEqual(t, cmplx.Abs(cmplx.Exp(lm)-want), tol, "%d atoms h=%v k=%d", d.Len(), h, k0+j)
 			}
 		}
 	}
@@ -154,5 +166,16 @@ func TestChernoffEndNormalAndGamma(t *testing.T) {
 		got := chernoffEnd(logm, rate, 1/rate, eps)
 		assert.InEpsilon(t, want, got, 1e-6, "rate %g", rate)
 		assert.GreaterOrEqual(t, got, want*(1-1e-12), "rate %g", rate)
+	}
+}
+
+func TestLogOfAgainstCmplxLog(t *testing.T) {
+	// oracle: math/cmplx.Log (the hypotenuse form); logOf may differ by
+	// the rounding of the squared modulus, 1.2e-16 in the real part
+	for _, z := range []complex128{1, -1, complex(0, 1), complex(0.3, -0.4), complex(-2e-5, 3e-7),
+		complex(1e-160, 1e-161), complex(1e200, -3e199), complex(-0.999999, 1e-9), complex(0, -1e-300)} {
+		got, want := logOf(z), cmplx.Log(z)
+		assert.InDelta(t, real(want), real(got), 2.3e-16*math.Max(1, math.Abs(real(want))), "%v", z)
+		assert.InDelta(t, imag(want), imag(got), 4.5e-16*math.Max(1, math.Abs(imag(want))), "%v", z)
 	}
 }

@@ -188,6 +188,8 @@ func transformOf(l Law) (transform, bool) {
 		return b.transform(), true
 	case *expTailLaw:
 		return b.numLaw.transform(), true
+	case expSmoothedDensity:
+		return b.transform()
 	case productLaw:
 		return b.transform()
 	case productLawDensity:

@@ -18,7 +18,10 @@ const MaxSumAtoms = 1 << 20
 //   - finite discrete laws add exactly: the result is a Discrete, atoms
 //     merged within AtomMergeTolerance (at most MaxSumAtoms atoms);
 //   - normals add to a normal, gammas (and exponentials) with one rate to a
-//     gamma, two uniforms to their trapezoid;
+//     gamma, two uniforms to their trapezoid; one or more exponentials
+//     (distinct rates) plus one uniform, normal, truncated normal or gamma,
+//     with or without finite discrete terms, have a closed form by
+//     conditioning (see expSmoothed: both tails to rounding);
 //   - a finite discrete law plus one continuous law is the exact mixture of
 //     shifted copies, Σ p_i·P(C <= x - v_i) (a point mass gives a shift);
 //   - terms that are mixtures (a point mass mixed with an exponential, say)
@@ -112,6 +115,8 @@ func appendFlat(terms []Law, l Law) []Law {
 		return append(terms, b.u, b.v)
 	case *expTailLaw:
 		return appendFlat(terms, b.numLaw)
+	case expSmoothedDensity:
+		return append(terms, b.terms...)
 	}
 	return append(terms, l)
 }
@@ -214,6 +219,16 @@ func sumTerms(terms []Law) (Law, error) {
 	}
 	if len(cont) == 0 {
 		return d, nil
+	}
+	if len(cont) >= 2 {
+		// exponentials over one uniform, normal, truncated normal or gamma
+		var dp *Discrete
+		if len(disc) > 0 {
+			dp = &d
+		}
+		if l, ok := newExpSmoothed(dp, cont, terms); ok {
+			return l, nil
+		}
 	}
 	if len(cont) == 1 && !hasAtoms(cont[0]) {
 		switch {

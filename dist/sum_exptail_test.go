@@ -16,7 +16,13 @@ import (
 func TestSumExponentialOverBoundedRestTail(t *testing.T) {
 	// Sums of exponentials and terms bounded above: far upper tails against
 	// oracles computed independently of the code's closed form.
-	tn := dist.MustTruncated(dist.MustNormal(1, 0.3), 0, 2)
+	// trapezoid density of Uniform(0, 1) + Uniform(0, w): the length of
+	// [0, 1] ∩ [r - w, r] over w (convolution of two boxes, by hand)
+	trap := func(w float64) func(float64) float64 {
+		return func(r float64) float64 {
+			return math.Max(0, math.Min(1, r)-math.Max(0, r-w)) / w
+		}
+	}
 	tests := []struct {
 		name  string
 		terms []dist.Law
@@ -24,35 +30,26 @@ func TestSumExponentialOverBoundedRestTail(t *testing.T) {
 		xs    []float64
 	}{
 		{
-			// E + U: the convolution integral in closed form (expUniformSurvival)
-			name:  "Exp(1) + Uniform(0, 1)",
-			terms: []dist.Law{dist.MustExponential(1), dist.MustUniform(0, 1)},
-			surv:  expUniformSurvival,
-			xs:    []float64{0.5, 1, 1.5, 3, 10, 30, 100, 300, 650},
+			// E + U + V: beyond 1.5, ∫_0^1.5 e^{-(x-r)}·f_{U+V}(r) dr by gonum's
+			// Gauss–Legendre rule on the pieces between the trapezoid's kinks
+			name:  "Exp(1) + Uniform(0, 1) + Uniform(0, 0.5)",
+			terms: []dist.Law{dist.MustExponential(1), dist.MustUniform(0, 1), dist.MustUniform(0, 0.5)},
+			surv: func(x float64) float64 {
+				f := func(r float64) float64 { return math.Exp(-(x - r)) * trap(0.5)(r) }
+				return quad.Fixed(f, 0, 0.5, 20, nil, 0) + quad.Fixed(f, 0.5, 1, 20, nil, 0) + quad.Fixed(f, 1, 1.5, 20, nil, 0)
+			},
+			xs: []float64{1.5, 2, 4, 10, 30, 100, 300, 650},
 		},
 		{
-			// Exp(1) + Exp(3) + Uniform(0, 2) + 0.5: ∫_0^2 S_H(x - 0.5 - u) du/2
-			// with S_H the hypoexponential survival (Ross §5.2.4, from
-			// memory), by gonum's Gauss–Legendre rule (smooth integrand on
-			// [0, 2] once x >= 2.5)
-			name:  "Exp(1) + Exp(3) + Uniform(0, 2) + 0.5",
-			terms: []dist.Law{dist.MustExponential(1), dist.MustExponential(3), dist.MustUniform(0, 2), dist.MustPointMass(0.5)},
+			// Exp(1) + Exp(3) + U + V + 0.5: the hypoexponential survival
+			// (Ross §5.2.4, from memory) integrated against the trapezoid
+			name:  "Exp(1) + Exp(3) + Uniform(0, 1) + Uniform(0, 0.25) + 0.5",
+			terms: []dist.Law{dist.MustExponential(1), dist.MustExponential(3), dist.MustUniform(0, 1), dist.MustUniform(0, 0.25), dist.MustPointMass(0.5)},
 			surv: func(x float64) float64 {
-				return quad.Fixed(func(u float64) float64 { return hypoExpSurvival(1, 3, x-0.5-u) }, 0, 2, 40, nil, 0) / 2
+				f := func(r float64) float64 { return hypoExpSurvival(1, 3, x-0.5-r) * trap(0.25)(r) }
+				return quad.Fixed(f, 0, 0.25, 20, nil, 0) + quad.Fixed(f, 0.25, 1, 20, nil, 0) + quad.Fixed(f, 1, 1.25, 20, nil, 0)
 			},
-			xs: []float64{2.5, 3, 5, 10, 20, 35},
-		},
-		{
-			// Exp(2) + a normal truncated to [0, 2]: ∫ e^{-2(x-r)}·f_R(r) dr over
-			// [0, 2] by gonum's Gauss–Legendre rule, f_R the normal density
-			// renormalised by its mass on [0, 2] (gonum distuv.Normal)
-			name:  "Exp(2) + TruncNormal(1, 0.3; [0, 2])",
-			terms: []dist.Law{dist.MustExponential(2), tn},
-			surv: func(x float64) float64 {
-				z := tn.(dist.Densitied)
-				return quad.Fixed(func(r float64) float64 { return math.Exp(-2*(x-r)) * z.Density(r) }, 0, 2, 60, nil, 0)
-			},
-			xs: []float64{2, 2.5, 4, 8, 15},
+			xs: []float64{1.75, 2, 3, 5, 10, 20, 35},
 		},
 	}
 	for _, tc := range tests {

@@ -11,8 +11,9 @@ import (
 // K-fold sum of the per-cycle law through package dist (numerical with its
 // reported accuracy for continuous or mixed laws). For a purely discrete
 // cycle law it is the exact discrete law while that has few atoms, the
-// exact binomial law for two energies, and otherwise the second-order
-// saddlepoint law with its reported bound (dist.Estimated), as for
+// exact binomial law for two energies, the exact sum of conditional binomial
+// tails for three, and otherwise the second-order saddlepoint law with its
+// reported bound (Esseen's smoothing inequality; dist.Estimated), as for
 // Lifetime. k must be >= 1.
 func (c Cycle) Cycles(k int64) (dist.Law, error) {
 	if k < 1 {

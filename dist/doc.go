@@ -35,6 +35,32 @@
 // HighestDensity. Large discrete laws sample in constant time with an
 // AliasSampler.
 //
+// # Sums, random sums and products
+//
+// Sum (independent terms), SumIID (the k-fold sum, k up to 10^7; NewIIDSums
+// for many k at once), RandomSum (a random number of terms, count finite or
+// not) and Product (independent factors) return laws that are exact where
+// they can be and state their error where they cannot:
+//
+//   - exact: discrete laws (atoms merged within AtomMergeTolerance),
+//     normals, gammas of one rate, two uniforms (their trapezoid),
+//     distinct-rate exponentials (hypoexponential), exponentials over one
+//     uniform, normal, truncated normal or gamma law, any of these shifted
+//     by discrete terms, mixtures expanded over their components, random
+//     sums of normal, exponential and gamma terms;
+//   - numerical: the product of the terms' transforms inverted by a Fourier
+//     series (Abate & Whitt 1992) on a window sized by Chernoff bounds, far
+//     tails by exponential tilting, a bulk grid after 32 values; a lattice
+//     FFT for terms without a known transform. These laws implement
+//     Estimated, and the tests check the stated bound against closed forms
+//     (CDF errors 1e-15 to 1e-11 measured; survival relative errors below
+//     1e-6 down to 1e-14 and, for the closed forms, to 1e-300).
+//
+// Characteristic functions (CharFunc) are known for every basic law:
+// closed forms, the truncated normal through the Faddeeva function and its
+// end expansion, the log-normal and other truncations by Gauss–Legendre
+// quadrature with a stated error.
+//
 // # Bad input and special values
 //
 // Constructors validate their parameters and return an error wrapping

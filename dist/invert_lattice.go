@@ -63,9 +63,10 @@ import (
 // padding per cell, summed as a random walk, times ten, and 1e-16 per unit
 // per √cells of the running sums). Survival keeps relative precision down to the tail
 // floor, below which its rounding or the cut mass would exceed 1e-7 of it
-// (about 1e-17 for light tails): its stated relative error is twice the
-// largest relative difference of the first estimate and four times that of
-// the second above the floor, plus 1e-7. Measured: CDF error about 1e-13
+// (about 1e-17 for light tails) or, where a bounded support ends, either
+// relative estimate would exceed 1e-4: its stated relative error is twice
+// the largest relative difference of the first estimate and four times that
+// of the second above the floor, plus 1e-7. Measured: CDF error about 1e-13
 // for sums of exponential and gamma laws with or without atoms (stated 6e-12
 // to 4e-11), 1.5e-10 at the kink of two uniforms (stated 3e-10), 8e-5 for
 // densities singular like x^(-1/2) (stated 2e-4). Mean and Variance are
@@ -377,7 +378,10 @@ func newLatGrid(fn string, terms []latTerm, delta, supLo, supHi float64) (*latGr
 	}
 	rnd *= 2 // the extrapolation's weights, 4/3 + 1/3
 	srnd := make([]float64, n)
-	var rich, richRel float64
+	var rich float64
+	// relative estimates of the survival, with the values they belong to
+	type relPt struct{ s, e float64 }
+	var rel []relPt
 	for j := range g.f {
 		P := p0 + 2*j
 		ff, fs, fe := fine.at(2*P - na)
@@ -404,7 +408,7 @@ func newLatGrid(fn string, terms []latTerm, delta, supLo, supHi float64) (*latGr
 			rich = math.Max(rich, math.Abs(g.f[j]-f2))
 			rich = math.Max(rich, math.Abs(g.s[j]-s2))
 			if g.s[j] > g.floor {
-				richRel = math.Max(richRel, math.Abs(s2/g.s[j]-1))
+				rel = append(rel, relPt{g.s[j], 2 * math.Abs(s2/g.s[j]-1)})
 			}
 		}
 	}
@@ -421,7 +425,7 @@ func newLatGrid(fn string, terms []latTerm, delta, supLo, supHi float64) (*latGr
 	// interpolation: at each midpoint the centred quintic against the
 	// septic and against the quintics shifted one point either way (one of
 	// which stays on one side of a kink at a grid point)
-	var ip, ipRel float64
+	var ip float64
 	for j := g.jmin; j < g.jmax; j++ {
 		p := float64(j) + 0.5
 		for _, v := range [][]float64{g.f, g.s} {
@@ -429,13 +433,27 @@ func newLatGrid(fn string, terms []latTerm, delta, supLo, supHi float64) (*latGr
 			for _, o := range []float64{g.interp(v, p, latInterp+2), g.interpAt(v, p, j-latInterp/2), g.interpAt(v, p, j-latInterp/2+2)} {
 				ip = math.Max(ip, math.Abs(c-o))
 				if &v[0] == &g.s[0] && o > g.floor {
-					ipRel = math.Max(ipRel, math.Abs(c/o-1))
+					rel = append(rel, relPt{o, 4 * math.Abs(c/o-1)})
 				}
 			}
 		}
 	}
 	g.cdfErr = 2*rich + 4*ip + 2*cut + rnd
-	g.survRel = 2*richRel + 4*ipRel + 1e-7
+	// where a bounded support ends, the survival falls to 0 and its
+	// relative error grows: the floor rises above the tail values (below
+	// 1e-3) whose estimate exceeds 1e-4
+	for _, r := range rel {
+		if r.e > 1e-4 && r.s < 1e-3 {
+			g.floor = math.Max(g.floor, r.s)
+		}
+	}
+	var worst float64
+	for _, r := range rel {
+		if r.s > g.floor {
+			worst = math.Max(worst, r.e)
+		}
+	}
+	g.survRel = worst + 1e-7
 	return g, nil
 }
 

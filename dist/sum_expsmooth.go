@@ -95,6 +95,10 @@ func tiltSmoother(c Law, rates []float64) (func(lambda, y float64) float64, bool
 		return func(lambda, y float64) float64 {
 			return math.Exp(-lambda*(y-mu) + lambda*lambda*s*s/2 + logPhi((y-mu)/s-lambda*s))
 		}, true
+	case affine:
+		return affineSmoother(b, rates)
+	case affineDensity:
+		return affineSmoother(b.affine, rates)
 	case truncated:
 		return truncNormalSmoother(b)
 	case truncatedDensity:
@@ -117,6 +121,25 @@ func tiltSmoother(c Law, rates []float64) (func(lambda, y float64) float64, bool
 		}, true
 	}
 	return nil, false
+}
+
+// affineSmoother is tiltSmoother for a·C + b with a > 0 (a scaled state
+// energy, say): E[e^{-λ(y - aC - b)}; aC + b <= y] is the base's g at rate
+// λ·a and point (y - b)/a.
+func affineSmoother(m affine, rates []float64) (func(lambda, y float64) float64, bool) {
+	if !(m.scale > 0) || len(m.baseAtoms) > 0 {
+		return nil, false
+	}
+	scaled := make([]float64, len(rates))
+	for i, r := range rates {
+		scaled[i] = r * m.scale
+	}
+	g, ok := tiltSmoother(m.base, scaled)
+	if !ok {
+		return nil, false
+	}
+	a, b := m.scale, m.shift
+	return func(lambda, y float64) float64 { return g(lambda*a, (y-b)/a) }, true
 }
 
 // truncNormalSmoother is tiltSmoother for a normal parent truncated to

@@ -123,3 +123,32 @@ func TestSumExponentialsOverOneLawClosedForm(t *testing.T) {
 		})
 	}
 }
+
+func TestSumExponentialOverScaledTruncatedNormal(t *testing.T) {
+	// a state energy 3.3 V·I·t with a truncated-normal current, plus an
+	// exponential: the scaled truncation is recognised (affine of the
+	// truncated normal); oracle the conditioning integral by quadrature over
+	// the truncated normal's density (gonum distuv.Normal, renormalised by
+	// its mass on [0, 2] from math.Erfc).
+	tn := dist.MustTruncated(dist.MustNormal(1, 0.2), 0, 2)
+	st, err := dist.Affine(tn, 3, 0.5)
+	require.NoError(t, err)
+	l, err := dist.Sum(st, dist.MustExponential(2))
+	require.NoError(t, err)
+	assert.Contains(t, l.(dist.Estimated).Accuracy().Method, "closed form")
+	nrm := distuv.Normal{Mu: 1, Sigma: 0.2}
+	mass := 0.5*math.Erfc(-1/(0.2*math.Sqrt2)) - 0.5*math.Erfc(1/(0.2*math.Sqrt2))
+	for _, x := range []float64{2, 3.5, 5, 7, 12, 40, 200} {
+		// X = 3C + 0.5 + E: S(x) = ∫ P(E > x - 3c - 0.5)·f_C(c) dc over [0, 2]
+		want := panelQuad(func(c float64) float64 {
+			y := x - 3*c - 0.5
+			s := 1.0
+			if y > 0 {
+				s = math.Exp(-2 * y)
+			}
+			return s * nrm.Prob(c) / mass
+		}, 0, 2, 200)
+		assert.LessOrEqual(t, testref.RelErr(l.Survival(x), want), 1e-9, "Survival(%g) = %g, want %g", x, l.Survival(x), want)
+	}
+	require.NoError(t, disttest.Check(l))
+}

@@ -867,7 +867,12 @@ func (l *latticeLaw) Rand(r *rand.Rand) float64 {
 func (l *latticeLaw) Accuracy() Accuracy { return l.acc }
 
 // String prints the law compactly.
-func (l *latticeLaw) String() string { return fmt.Sprintf("Sum(lattice: %s)", summary(l)) }
+func (l *latticeLaw) String() string {
+	if l.k > 0 {
+		return fmt.Sprintf("SumIID(lattice, k=%d: %s)", l.k, summary(l))
+	}
+	return fmt.Sprintf("Sum(lattice: %s)", summary(l))
+}
 
 // atomFree is the continuous part of a law with atoms, F_c = (F - A)/w and
 // S_c = (S - Σ_{v > x} m_v)/w, w the continuous mass.

@@ -84,6 +84,11 @@ func expandMixtures(terms []Law) (l Law, ok bool, err error) {
 			if err != nil {
 				return nil, false, err
 			}
+			if noTransform(s) {
+				// a lattice sum: the mixture could not offer a transform;
+				// latticeSum takes the whole sum, atoms exact
+				return nil, false, nil
+			}
 			if isNumeric(s) {
 				if numeric++; numeric > maxNumericCombos {
 					return nil, false, nil

@@ -214,7 +214,7 @@ const quadIIDMinK = 8
 
 // quadIID returns the k-fold sum of l from its quadrature transform
 // (exp(k·log M), inverted by the Fourier-series engine on a window sized
-// by Chernoff bounds of the term cut at its 1e-17/(2k) quantiles), or ok =
+// by Chernoff bounds of the term cut at its bulkTail/(2k) quantiles), or ok =
 // false when the k-fold transform does not decay fast enough (a density
 // jump and small k) or the atoms are not negligible (k·a^(k-1) >= 1e-14
 // for atom mass a).

@@ -12,7 +12,7 @@ import (
 // common lattice v_i = v_0 + n_i·δ (integers n_i with greatest common divisor
 // 1; LoRa airtimes at one spreading factor are such a law). The k-fold sum is
 // k·v_0 + δ·M with M = Σ n-values, an integer law. Its masses on a window
-// [m_0, m_0 + N) holding all but 2·bulkTail of the mass (Chernoff bounds from
+// [m_0, m_0 + N) holding all but 2·latticeWindowTail of the mass (Chernoff bounds from
 // the exact transform, so the window is set by the standard deviation √k·σ
 // and not by k) are the inverse discrete Fourier transform of the
 // characteristic function on the grid θ_j = 2πj/N:
@@ -263,7 +263,7 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 	cdfAbs += 2*latticeWindowTail + float64(width)*eps
 	// survival relative error: the errors of the masses above each point
 	// against the survival there; the floor is the largest survival at which
-	// they exceed 1e-6 of it (the window's end, beyond which S <= 1e-17)
+	// they exceed 1e-6 of it (the window's end, beyond which S <= latticeWindowTail)
 	floor := 0.0
 	var sAbove, eAbove float64
 	for r := width - 1; r >= 0; r-- {

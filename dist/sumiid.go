@@ -19,7 +19,7 @@ const maxStructuralDraws = 4096
 // atoms lie on a common lattice v0 + m·δ (energies of commensurate airtimes,
 // say) and whose k-fold sum spans more than 65536 lattice points is summed
 // by a lattice FFT instead (see lattice.go): a finite discrete law of the
-// window holding all but 2e-17 of the mass, with exact Mean and Variance,
+// window holding all but 2e-60 of the mass, with exact Mean and Variance,
 // reporting Accuracy (CDF absolute error a few 1e-12 for k up to 10^6,
 // survival relative error about 1e-10 down to 1e-40 by tilted transforms;
 // tested against the binomial law). Otherwise the transform is
@@ -41,7 +41,7 @@ const maxStructuralDraws = 4096
 // transform is integrated from its CDF and Survival by adaptive
 // Gauss–Legendre quadrature (see cf_quad.go) and raised to the power k as
 // above, the window sized by Chernoff bounds of the term cut at its
-// 1e-17/(2k) quantiles: measured CDF error about 1e-14 for k up to 10^4,
+// bulkTail/(2k) quantiles: measured CDF error about 1e-14 for k up to 10^4,
 // 4e-13 at 10^6 and 2e-12 at 10^7 (stated bounds up to 1.2e-10; no tilted
 // tails, so the survival is relative only down to about 10^6 times the CDF
 // bound). Otherwise (small k) it is the lattice power of invert_lattice.go

@@ -92,3 +92,22 @@ func BenchmarkSumIIDLatticeMillion(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkCycleClosedForm builds the law of a cycle energy with a discrete
+// radio part, an exponential warm-up and a uniform wait (the closed form by
+// conditioning) and evaluates its CDF at 1000 points and its survival at
+// 1000 points of the upper tail.
+func BenchmarkCycleClosedForm(b *testing.B) {
+	radio := dist.MustDiscrete([]float64{12e-3, 30e-3}, []float64{0.8, 0.2})
+	terms := []dist.Law{radio, dist.MustExponential(1 / 4e-3), dist.MustUniform(0, 3e-3)}
+	for b.Loop() {
+		l, err := dist.Sum(terms...)
+		if err != nil {
+			b.Fatal(err)
+		}
+		for i := 0; i < 1000; i++ {
+			l.CDF(10e-3 + 40e-6*float64(i))
+			l.Survival(40e-3 + 200e-6*float64(i))
+		}
+	}
+}

@@ -184,6 +184,10 @@ func transformOf(l Law) (transform, bool) {
 		return b.transform()
 	case shiftMixtureDensity:
 		return b.transform()
+	case shiftMixtureEst:
+		return b.transform()
+	case shiftMixtureEstDensity:
+		return b.transform()
 	case uniformPair:
 		return b.transform(), true
 	case *expTailLaw:

@@ -111,6 +111,10 @@ func appendFlat(terms []Law, l Law) []Law {
 		return append(terms, b.d, b.c)
 	case shiftMixtureDensity:
 		return append(terms, b.d, b.c)
+	case shiftMixtureEst:
+		return append(terms, b.d, b.c)
+	case shiftMixtureEstDensity:
+		return append(terms, b.d, b.c)
 	case hypoExp:
 		for _, r := range b.rates {
 			terms = append(terms, Exponential{rate: r})
@@ -403,10 +407,37 @@ type shiftMixture struct {
 
 func newShiftMixture(d Discrete, c Law) Law {
 	m := shiftMixture{d: d, c: c}
+	_, est := c.(Estimated)
 	if _, ok := c.(Densitied); ok {
+		if est {
+			return shiftMixtureEstDensity{shiftMixtureDensity{m}}
+		}
 		return shiftMixtureDensity{m}
 	}
+	if est {
+		return shiftMixtureEst{m}
+	}
 	return m
+}
+
+// shiftMixtureEst is a shiftMixture whose continuous term is computed
+// numerically: it reports that term's error (a mixture of shifted copies
+// keeps the CDF bound and the relative survival bound of its component).
+type shiftMixtureEst struct{ shiftMixture }
+
+// Accuracy returns the continuous term's bounds.
+func (m shiftMixtureEst) Accuracy() Accuracy { return shiftAccuracy(m.shiftMixture) }
+
+// shiftMixtureEstDensity is a shiftMixtureEst with a density.
+type shiftMixtureEstDensity struct{ shiftMixtureDensity }
+
+// Accuracy returns the continuous term's bounds.
+func (m shiftMixtureEstDensity) Accuracy() Accuracy { return shiftAccuracy(m.shiftMixture) }
+
+func shiftAccuracy(m shiftMixture) Accuracy {
+	a := m.c.(Estimated).Accuracy()
+	a.Method = fmt.Sprintf("%d discrete shifts of: %s", m.d.Len(), a.Method)
+	return a
 }
 
 func (m shiftMixture) CDF(x float64) float64 {

@@ -146,3 +146,52 @@ func TestRandomSumGeometricUniformMonteCarlo(t *testing.T) {
 	assert.InEpsilon(t, (1/0.6)*0.75+(0.4/0.36)*3.5*3.5, l.Variance(), 1e-12)
 	require.NoError(t, disttest.Check(l))
 }
+
+func TestSumIIDOfDiscretePlusUniform(t *testing.T) {
+	// (D + U)^{*k} = D^{*k} + U^{*k}: for D on {0, 3} (0.6, 0.4) and
+	// U ~ Uniform(0, 1) the oracle is Σ_m P(D^{*k} = 3m)·IH_k(x - 3m), the
+	// binomial masses times the Irwin–Hall law (irwinHallCDF; Johnson, Kotz
+	// & Balakrishnan — from memory). Inverted as one law, D + U has jumps
+	// (k = 2 stated 4e-9 and 4e-4 relative in the survival).
+	d := dist.MustDiscrete([]float64{0, 3}, []float64{0.6, 0.4})
+	l1 := dist.MustSum(d, dist.MustUniform(0, 1))
+	for _, k := range []int{2, 3, 5} {
+		l, err := dist.SumIID(l1, k)
+		require.NoError(t, err)
+		binom := func(j int) float64 {
+			c := 1.0
+			for i := 0; i < j; i++ {
+				c = c * float64(k-i) / float64(i+1)
+			}
+			return c * math.Pow(0.4, float64(j)) * math.Pow(0.6, float64(k-j))
+		}
+		cdf := func(x float64) float64 {
+			s := 0.0
+			for j := 0; j <= k; j++ {
+				s += binom(j) * irwinHallCDF(k, x-3*float64(j))
+			}
+			return s
+		}
+		surv := func(x float64) float64 {
+			s := 0.0
+			for j := 0; j <= k; j++ {
+				s += binom(j) * irwinHallSurvival(k, x-3*float64(j))
+			}
+			return s
+		}
+		xs := grid(0.01, 4*float64(k)-0.01, 301)
+		if k == 2 {
+			// closed form (shifted trapezoids): exact to rounding
+			for _, x := range xs {
+				assert.InDelta(t, cdf(x), l.CDF(x), 1e-14, "k=2 CDF(%g)", x)
+			}
+		} else {
+			wa, wr := checkAccuracy(t, l, xs, cdf, surv, 1e-14)
+			t.Logf("k=%d: worst CDF abs %.2e, survival rel %.2e; %+v", k, wa, wr, l.(dist.Estimated).Accuracy())
+			assert.LessOrEqual(t, wa, testref.TolCDF)
+		}
+		assert.InEpsilon(t, float64(k)*l1.Mean(), l.Mean(), 1e-12)
+		assert.InEpsilon(t, float64(k)*l1.Variance(), l.Variance(), 1e-12)
+		require.NoError(t, disttest.Check(l))
+	}
+}

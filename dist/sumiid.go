@@ -89,6 +89,11 @@ func SumIID(l Law, k int) (Law, error) {
 	if m, ok, err := expandMixtureIID(l, k); err != nil || ok {
 		return m, err
 	}
+	if sm, ok := shiftMixtureOf(l); ok {
+		if s, ok, err := shiftMixtureIID(sm, k); err != nil || ok {
+			return s, err
+		}
+	}
 	return iidNumeric(l, k)
 }
 
@@ -274,4 +279,48 @@ func (p IIDSums) eval(k int, x float64) (f, s float64) {
 	}
 	s = n.tilted(y, false)
 	return math.Max(0, 1-s), s
+}
+
+// maxShiftIIDAtoms is the most atoms the k-fold discrete part of a
+// discrete-plus-continuous law may have for SumIID to split it.
+const maxShiftIIDAtoms = 4096
+
+// shiftMixtureOf returns l as a discrete law plus one continuous law, if it
+// is one.
+func shiftMixtureOf(l Law) (shiftMixture, bool) {
+	switch b := l.(type) {
+	case shiftMixture:
+		return b, true
+	case shiftMixtureDensity:
+		return b.shiftMixture, true
+	case shiftMixtureEst:
+		return b.shiftMixture, true
+	case shiftMixtureEstDensity:
+		return b.shiftMixture, true
+	}
+	return shiftMixture{}, false
+}
+
+// shiftMixtureIID returns the k-fold sum of D + C as D^{*k} + C^{*k} (the
+// k-fold sums of independent parts add), when D^{*k} has at most
+// maxShiftIIDAtoms atoms: the jumps that D + C has at C's ends stay in the
+// closed forms or in C's own k-fold sum, instead of slowing the series of
+// the whole (SumIID(D + Uniform, 2) is then shifted trapezoids, exact).
+func shiftMixtureIID(m shiftMixture, k int) (Law, bool, error) {
+	if float64(k)*math.Log(float64(m.d.Len())) > math.Log(64*maxShiftIIDAtoms) {
+		return nil, false, nil
+	}
+	dk, err := SumIID(m.d, k)
+	if err != nil {
+		return nil, false, nil
+	}
+	if al, ok := dk.(Atomic); !ok || len(al.Atoms()) > maxShiftIIDAtoms {
+		return nil, false, nil
+	}
+	ck, err := SumIID(m.c, k)
+	if err != nil {
+		return nil, false, err
+	}
+	s, err := Sum(dk, ck)
+	return s, err == nil, err
 }

@@ -95,6 +95,7 @@ func withExpTail(l Law, terms []Law) Law {
 	e.rel = 8*0x1p-52*(abs/s0+float64(len(rates))) + 2*trErr
 	e.s0 = s0
 	e.acc = new(lazyAccuracy)
+	nl.upperClosed, nl.closedAbove = true, x0-nl.c // nl is fresh and not yet asked for its Accuracy
 	return e
 }
 

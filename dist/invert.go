@@ -577,9 +577,9 @@ func (l *numLaw) tilted(y float64, refl bool) float64 {
 	return v
 }
 
-// tiltedErr is tilted with an estimate of its relative error (the size of
-// the last terms times their count, when the sum had to be cut at
-// maxTilted terms).
+// tiltedErr is tilted with an estimate of its relative error: rounding,
+// and, when the sum had to be cut at maxTilted terms, the remainder bound
+// of tailBound from the ranges of the partial sums over the last octaves.
 func (l *numLaw) tiltedErr(y float64, refl bool) (float64, float64) {
 	return l.tiltedCap(y, refl, maxTilted)
 }

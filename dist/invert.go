@@ -292,15 +292,16 @@ func (e sumEnvelope) largest(h float64, k, quiet int) float64 {
 // only for its values need not pay).
 func (l *numLaw) accuracy() Accuracy {
 	cdfAbs := l.accBase
-	// the tilted tails: the CDF error they add and their relative error
+	// the tilted tails: the CDF error they add, and the upper one's
+	// relative error (where the lower tail is tilted the survival is near
+	// 1 and its error is the CDF's)
 	var probe, tiltAbs float64
 	if l.tr.hi > 0 {
-		a, p := l.tailProbe(false)
-		tiltAbs, probe = math.Max(tiltAbs, a), math.Max(probe, p)
+		tiltAbs, probe = l.tailProbe(false)
 	}
 	if l.tr.lo < 0 {
-		a, p := l.tailProbe(true)
-		tiltAbs, probe = math.Max(tiltAbs, a), math.Max(probe, p)
+		a, _ := l.tailProbe(true)
+		tiltAbs = math.Max(tiltAbs, a)
 	}
 	cdfAbs += tiltAbs
 	if l.gridOnce != nil {
@@ -330,8 +331,12 @@ func (l *numLaw) accuracy() Accuracy {
 }
 
 // tailProbes is the number of probes of a tilted tail between the window's
-// end and the centre.
-const tailProbes = 8
+// end and the centre, tailSplits the most probes added where the bound is
+// largest.
+const (
+	tailProbes = 8
+	tailSplits = 6
+)
 
 // tailProbe bounds the CDF error a tilted tail adds (the upper tail, or the
 // lower one when refl) and returns its largest relative error over the
@@ -341,11 +346,15 @@ const tailProbes = 8
 // towards the centre, downwards until S >= tiltSwitch (where the bulk takes
 // over). Between neighbouring probes y' < y” the error is bounded by
 // max(rel(y'), rel(y”))·min(tiltSwitch, 2·S(y')) (S decreases outwards and
-// the relative error grows outwards, the partial sums of the tilted series
-// settling more slowly as the tilt nears the edge of the transform's strip),
-// and beyond the farthest probe by min(1, 10·rel)·2·S there. The upper tail
-// is left out where a closed form replaces it (upperClosed, from
-// closedAbove on; it is not probed when that is below the switch).
+// the relative error is taken to vary monotonically between probes), none
+// where S(y”) >= 1.01·tiltSwitch (the bulk is used there; bulk and tilted
+// values agree far better than 1 %), and beyond the farthest probe by
+// min(1, 10·rel)·2·S there. The interval with the largest bound is then
+// halved, up to tailSplits times (the relative error peaks near a point
+// where a component of the law starts, a bound kinked density, and a
+// coarse interval would charge that peak to the whole switch value). The
+// upper tail is left out from closedAbove on where a closed form replaces
+// it (upperClosed).
 func (l *numLaw) tailProbe(refl bool) (abs, rel float64) {
 	end, sg := l.b, 1.0
 	if refl {
@@ -357,37 +366,49 @@ func (l *numLaw) tailProbe(refl bool) (abs, rel float64) {
 	}
 	width := l.b - l.a
 	type pt struct{ y, s, rel float64 }
-	var pts []pt // ascending in y after the reversal below
-	add := func(y float64) pt {
+	probe := func(y float64) pt {
 		v, e := l.tiltedErr(sg*y, refl)
-		p := pt{y, v, e}
-		pts = append(pts, p)
 		rel = math.Max(rel, e)
-		return p
+		return pt{y, v, e}
 	}
-	add(end + width)
-	add(end)
+	pts := []pt{probe(end + width), probe(end)} // descending in y until reversed
 	step := end / tailProbes
 	for i := 1; i < tailProbes && step > 0; i++ {
-		if p := add(end - float64(i)*step); p.s >= tiltSwitch {
+		p := probe(end - float64(i)*step)
+		pts = append(pts, p)
+		if p.s >= tiltSwitch {
 			break
 		}
 	}
 	for i, j := 0, len(pts)-1; i < j; i, j = i+1, j-1 {
 		pts[i], pts[j] = pts[j], pts[i]
 	}
+	// bounds of the intervals [pts[j-1], pts[j]] and beyond the last
+	bound := func(j int) float64 {
+		lo, hi := pts[j-1], pts[j]
+		if lo.y >= top || hi.s >= 1.01*tiltSwitch {
+			return 0
+		}
+		return math.Min(1, math.Max(lo.rel, hi.rel)) * math.Min(tiltSwitch, 2*lo.s)
+	}
+	for n := 0; ; n++ {
+		worst, jw := 0.0, 0
+		for j := 1; j < len(pts); j++ {
+			if b := bound(j); b > worst {
+				worst, jw = b, j
+			}
+		}
+		if n == tailSplits || worst <= 1e-15 {
+			abs = worst
+			break
+		}
+		mid := probe((pts[jw-1].y + pts[jw].y) / 2)
+		pts = append(pts[:jw], append([]pt{mid}, pts[jw:]...)...)
+	}
 	if pts[0].s < tiltSwitch {
 		// the switch lies below the lowest probe: the region below it is
 		// covered by that probe's error at tiltSwitch
-		abs = math.Min(1, pts[0].rel) * tiltSwitch
-	}
-	for j := 1; j < len(pts); j++ {
-		lo, hi := pts[j-1], pts[j]
-		if lo.y >= top {
-			return abs, rel
-		}
-		w := math.Min(tiltSwitch, 2*lo.s)
-		abs = math.Max(abs, math.Min(1, math.Max(lo.rel, hi.rel))*w)
+		abs = math.Max(abs, math.Min(1, pts[0].rel)*tiltSwitch)
 	}
 	if far := pts[len(pts)-1]; far.y < top {
 		abs = math.Max(abs, math.Min(1, 10*far.rel)*2*far.s)

@@ -198,6 +198,25 @@ func TestSumKinkedDensityStatedBound(t *testing.T) {
 			maxCDFAbs:  1e-10,
 			maxSurvRel: 1e-6,
 		},
+		{
+			// a small atom puts a whole copy of the kinked density in the
+			// lower tilted tail; oracle: Σ_i p_i·F_(G+U)(x - v_i) with the
+			// closed form of the second case
+			name:  "{0: 1e-6, 3: 1-1e-6} + Gamma(2.5, 1) + Uniform(0, 1)",
+			terms: []dist.Law{dist.MustDiscrete([]float64{0, 3}, []float64{1e-6, 1 - 1e-6}), dist.MustGamma(2.5, 1), dist.MustUniform(0, 1)},
+			cdf: func(x float64) float64 {
+				f := func(u float64) float64 { return gammaCDFInt(2.5, 1, u) - gammaCDFInt(2.5, 1, u-1) }
+				return 1e-6*f(x) + (1-1e-6)*f(x-3)
+			},
+			surv: func(x float64) float64 {
+				f := func(u float64) float64 { return gammaSurvInt(2.5, 1, u-1) - gammaSurvInt(2.5, 1, u) }
+				return 1e-6*f(x) + (1-1e-6)*f(x-3)
+			},
+			xs:         append(grid(0, 5, 101), 0.02, 0.3, 7, 10, 15, 20, 30, 40),
+			minS:       1e-20,
+			maxCDFAbs:  1e-10,
+			maxSurvRel: 1e-6,
+		},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {

@@ -175,7 +175,7 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	quietTol := math.Min(1e-12, math.Max(1e-13, quietShare*math.Pi*carried))
 	env := envelopeOf(sp.parts)
 	var trunc, absSum float64
-	quiet := 0
+	quiet, stopped := 0, false
 	l.pr, l.pi = make([]float64, 0, 1024), make([]float64, 0, 1024)
 	var blk [axisBlock]complex128
 	var blkErr [axisBlock]float64
@@ -219,8 +219,14 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 				}
 				trunc = math.Max(trunc, c)
 			}
+			stopped = true
 			break
 		}
+	}
+	if !stopped {
+		// cut at maxTerms: the last term's |Mc| may sit near a zero of an
+		// oscillating factor, so the envelope bounds the terms cut
+		trunc = math.Max(trunc, capEnvelope(l.pr, l.pi))
 	}
 	// trailing terms whose magnitudes sum below dropTol are left out of
 	// the values (the stopping rule needed them, the sums do not); their
@@ -244,6 +250,33 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	l.gridOnce = new(sync.Once)
 	l.calls = new(atomic.Int64)
 	return l, nil
+}
+
+// capEnvelope bounds the sum over k > n of |Mc(i·k·h)|/k for a series
+// cut at n terms (pr, pi hold Mc/k): with E(m) the largest |Mc| over the
+// last n/64 terms up to m, the decay rate p = log2(E(n/2)/E(n)) is taken
+// to hold beyond n, so |Mc| <= E(n)·(n/k)^p there and the sum is at most
+// E(n)/p; p is taken as at most 1 (the 1/t decay of a density of bounded
+// variation; faster decay only makes the sum smaller) and at least 1/4.
+func capEnvelope(pr, pi []float64) float64 {
+	n := len(pr)
+	w := max(1, n/64)
+	top := func(m int) float64 {
+		var e float64
+		for k := max(1, m-w+1); k <= m; k++ {
+			e = math.Max(e, float64(k)*math.Hypot(pr[k-1], pi[k-1]))
+		}
+		return e
+	}
+	end, half := top(n), top(n/2)
+	if !(end > 0) {
+		return 0
+	}
+	p := 1.0
+	if half > 0 {
+		p = math.Min(1, math.Max(0.25, math.Log2(half/end)))
+	}
+	return end / p
 }
 
 // sumEnvelope is the atom-free terms of a Sum that also has terms with

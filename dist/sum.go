@@ -48,7 +48,7 @@ const MaxSumAtoms = 1 << 20
 //     series is cut at 65536 terms and the CDF error grows to about 1e-5;
 //     where it only has kinks (a gamma or exponentials with two uniforms,
 //     say) the CDF error is 1e-15 to 2e-13 and the stated bound 1e-13 to
-//     1e-12, the survival's relative error about 1e-9 with a stated bound
+//     4e-12, the survival's relative error about 1e-9 with a stated bound
 //     below 1e-6. Accuracy reports it. When some terms are exponentials
 //     and all the others are bounded above, the upper tail beyond the
 //     others' top is in closed form, Σ_j c_j·exp(-λ_j·x)·M_rest(λ_j)

@@ -377,10 +377,11 @@ const (
 // and beyond the window's end e, and its error there is rel(y)·S(y). The
 // tail is probed at e + (b - a), at e, and at tailProbes equal steps from e
 // towards the centre, downwards until S >= tiltSwitch (where the bulk takes
-// over). Between neighbouring probes y' < y” the error is bounded by
-// max(rel(y'), rel(y”))·min(tiltSwitch, 2·S(y')) (S decreases outwards and
-// the relative error is taken to vary monotonically between probes), none
-// where S(y”) >= 1.01·tiltSwitch (the bulk is used there; bulk and tilted
+// over). Between neighbouring probes y1 < y2 the error is bounded by
+// max(rel(y1), rel(y2))·min(tiltSwitch, 2·S(y1)) (S decreases outwards,
+// the factor 2 covers the probe's own error while that is below 1, and the
+// relative error is taken to vary monotonically between probes), by none
+// where S(y2) >= 1.01·tiltSwitch (the bulk is used there; bulk and tilted
 // values agree far better than 1 %), and beyond the farthest probe by
 // min(1, 10·rel)·2·S there. The interval with the largest bound is then
 // halved, up to tailSplits times (the relative error peaks near a point
@@ -399,6 +400,14 @@ func (l *numLaw) tailProbe(refl bool) (abs, rel float64) {
 	}
 	width := l.b - l.a
 	type pt struct{ y, s, rel float64 }
+	// sBound bounds S at a probe by the switch value and, where the
+	// probe's relative error is below 1, twice its value
+	sBound := func(p pt) float64 {
+		if p.rel < 1 {
+			return math.Min(tiltSwitch, 2*p.s)
+		}
+		return tiltSwitch
+	}
 	probe := func(y float64) pt {
 		v, e := l.tiltedErr(sg*y, refl)
 		rel = math.Max(rel, e)
@@ -422,7 +431,7 @@ func (l *numLaw) tailProbe(refl bool) (abs, rel float64) {
 		if lo.y >= top || hi.s >= 1.01*tiltSwitch {
 			return 0
 		}
-		return math.Min(1, math.Max(lo.rel, hi.rel)) * math.Min(tiltSwitch, 2*lo.s)
+		return math.Min(1, math.Max(lo.rel, hi.rel)) * sBound(lo)
 	}
 	for n := 0; ; n++ {
 		worst, jw := 0.0, 0
@@ -444,7 +453,7 @@ func (l *numLaw) tailProbe(refl bool) (abs, rel float64) {
 		abs = math.Max(abs, math.Min(1, pts[0].rel)*tiltSwitch)
 	}
 	if far := pts[len(pts)-1]; far.y < top {
-		abs = math.Max(abs, math.Min(1, 10*far.rel)*2*far.s)
+		abs = math.Max(abs, math.Min(1, 10*far.rel)*sBound(far))
 	}
 	return abs, rel
 }

@@ -2,7 +2,6 @@ package dist_test
 
 import (
 	"math"
-	"math/rand/v2"
 	"sort"
 	"testing"
 
@@ -265,14 +264,8 @@ func TestSumKinkedDensityMonteCarlo(t *testing.T) {
 	l, err := dist.Sum(terms...)
 	require.NoError(t, err)
 	acc := l.(dist.Estimated).Accuracy()
-	r := rand.New(rand.NewPCG(3, 17))
 	const n = 200000
-	xs := make([]float64, n)
-	for i := range xs {
-		for _, t := range terms {
-			xs[i] += t.Rand(r)
-		}
-	}
+	xs := structuralSamples(terms, n, 3, 17)
 	d := testref.KSStatistic(xs, l.CDF)
 	crit := testref.KSCritical(n, 1e-6)
 	t.Logf("KS distance %.4g, critical %.4g; %+v", d, crit, acc)

@@ -2,7 +2,6 @@ package dist_test
 
 import (
 	"math"
-	"math/rand/v2"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -253,14 +252,8 @@ func TestSumLatticeMonteCarlo(t *testing.T) {
 	}
 	l, err := dist.Sum(terms...)
 	require.NoError(t, err)
-	r := rand.New(rand.NewPCG(7, 11))
 	const n = 200000
-	xs := make([]float64, n)
-	for i := range xs {
-		for _, t := range terms {
-			xs[i] += t.Rand(r)
-		}
-	}
+	xs := structuralSamples(terms, n, 7, 11)
 	d := testref.KSStatistic(xs, l.CDF)
 	crit := testref.KSCritical(n, 1e-6)
 	t.Logf("KS distance %.4g, critical %.4g; %+v", d, crit, l.(dist.Estimated).Accuracy())

@@ -2,7 +2,6 @@ package dist_test
 
 import (
 	"math"
-	"math/rand/v2"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -105,14 +104,8 @@ func TestSumTrapezoidInLargerSums(t *testing.T) {
 		}
 		l, err := dist.Sum(terms...)
 		require.NoError(t, err)
-		r := rand.New(rand.NewPCG(3, 4))
 		const n = 50000
-		xs := make([]float64, n)
-		for i := range xs {
-			for _, tm := range terms {
-				xs[i] += tm.Rand(r)
-			}
-		}
+		xs := structuralSamples(terms, n, 3, 4)
 		slack := 0.0
 		if e, ok := l.(dist.Estimated); ok {
 			slack = e.Accuracy().CDFAbs

@@ -174,3 +174,40 @@ func ExampleFleet_ReplacementPlan() {
 	// P(no flat cell by then) = 0.899; a month earlier 1.000
 	// flat cells after 10.6 years: 378.1 expected, 90 % interval 370 to 385
 }
+
+// A fleet given by lifetime laws (invented): 200 cellar meters whose nodes
+// settle on one of two radio settings, so that their lifetime is the
+// mixture of two laws, and 50 roof meters with one law.
+func ExampleNewFleetOfLaws() {
+	year := energy.Year
+	near := dist.MustNormal(9*year, 0.4*year)
+	far := dist.MustNormal(5*year, 0.3*year)
+	cellar, err := dist.Mixture([]float64{0.7, 0.3}, []dist.Law{
+		dist.MustTruncated(near, 0, math.Inf(1)), dist.MustTruncated(far, 0, math.Inf(1))})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	roof := dist.MustTruncated(dist.MustNormal(7*year, 0.5*year), 0, math.Inf(1))
+	f, err := energy.NewFleetOfLaws([]energy.FleetLawGroup{
+		{Name: "cellar", Lifetime: cellar, Count: 200},
+		{Name: "roof", Lifetime: roof, Count: 50},
+	})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	plan, err := f.ReplacementPlan(0.05)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, g := range plan.Groups {
+		fmt.Printf("%s: replace by %.2f years\n", g.Name, g.ReplaceBy/year)
+	}
+	fmt.Printf("whole fleet: replace by %.2f years\n", plan.FleetReplaceBy/year)
+	// Output:
+	// cellar: replace by 4.06 years
+	// roof: replace by 5.46 years
+	// whole fleet: replace by 4.06 years
+}

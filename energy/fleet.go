@@ -17,11 +17,24 @@ type FleetGroup struct {
 	Count   int64   // how many nodes, >= 1
 }
 
+// FleetLawGroup is a number of nodes given by the law of their battery
+// lifetime directly: a law of the time (s) until the battery is flat, on
+// [0, ∞). Use it when one Cycle does not describe the group — nodes that
+// settle on different data rates and powers have a lifetime law that is the
+// mixture of the per-setting lifetimes (dist.Mixture of NewLifetime laws),
+// or a back-end has estimated the law from what it observes.
+type FleetLawGroup struct {
+	Name     string   // the group's name
+	Lifetime dist.Law // time (s) to a flat battery, support in [0, ∞)
+	Count    int64    // how many nodes, >= 1
+}
+
 // Fleet is a set of groups of independent nodes; dates are times (s) since
 // deployment. A Fleet is an immutable value, safe for concurrent use.
 type Fleet struct {
 	names     []string
-	lifetimes []Lifetime
+	lifetimes []Lifetime // per group; the zero Lifetime for law groups
+	laws      []dist.Law // the lifetime law of every group
 	counts    []int64
 	total     int64
 	groups    []orderstat.Group
@@ -36,6 +49,48 @@ func NewFleet(groups []FleetGroup) (Fleet, error) {
 	if len(groups) == 0 {
 		return Fleet{}, paramErr(fn, "groups", "[]", "must not be empty")
 	}
+	lg := make([]FleetLawGroup, len(groups))
+	lts := make([]Lifetime, len(groups))
+	for i, g := range groups {
+		name := g.Name
+		if name == "" {
+			name = fmt.Sprintf("group %d", i)
+		}
+		l, err := NewLifetime(g.Cycle, g.Battery)
+		if err != nil {
+			return Fleet{}, causeErr(fn, fmt.Sprintf("group %q", name), name, "lifetime", err)
+		}
+		lg[i], lts[i] = FleetLawGroup{Name: name, Lifetime: l, Count: g.Count}, l
+	}
+	f, err := newFleet(fn, lg)
+	if err != nil {
+		return Fleet{}, err
+	}
+	f.lifetimes = lts
+	return f, nil
+}
+
+// NewFleetOfLaws returns the fleet of groups given by their lifetime laws.
+// groups must not be empty; every law must be non-nil with support in
+// [0, ∞); every Count must be >= 1 and the total at most
+// orderstat.MaxCount; names must be distinct (empty names are replaced by
+// "group i"). Fleet.Lifetime reports ok = false for such groups; Fleet.Law
+// returns their laws.
+func NewFleetOfLaws(groups []FleetLawGroup) (Fleet, error) {
+	const fn = "NewFleetOfLaws"
+	if len(groups) == 0 {
+		return Fleet{}, paramErr(fn, "groups", "[]", "must not be empty")
+	}
+	f, err := newFleet(fn, groups)
+	if err != nil {
+		return Fleet{}, err
+	}
+	f.lifetimes = make([]Lifetime, len(groups))
+	return f, nil
+}
+
+// newFleet validates the groups and builds the fleet.
+func newFleet(fn string, groups []FleetLawGroup) (Fleet, error) {
 	f := Fleet{}
 	seen := map[string]bool{}
 	for i, g := range groups {
@@ -50,14 +105,16 @@ func NewFleet(groups []FleetGroup) (Fleet, error) {
 		if g.Count < 1 || g.Count > orderstat.MaxCount-f.total {
 			return Fleet{}, paramErr(fn, fmt.Sprintf("group %q: Count", name), g.Count, fmt.Sprintf("must be >= 1, the total at most %d", orderstat.MaxCount))
 		}
-		l, err := NewLifetime(g.Cycle, g.Battery)
-		if err != nil {
-			return Fleet{}, causeErr(fn, fmt.Sprintf("group %q", name), name, "lifetime", err)
+		if g.Lifetime == nil {
+			return Fleet{}, paramErr(fn, fmt.Sprintf("group %q: Lifetime", name), nil, "must not be nil")
+		}
+		if lo, _ := g.Lifetime.Support(); !(lo >= 0) {
+			return Fleet{}, paramErr(fn, fmt.Sprintf("group %q: Lifetime", name), g.Lifetime, "must be a law of a time: support in [0, ∞)")
 		}
 		f.names = append(f.names, name)
-		f.lifetimes = append(f.lifetimes, l)
+		f.laws = append(f.laws, g.Lifetime)
 		f.counts = append(f.counts, g.Count)
-		f.groups = append(f.groups, orderstat.Group{Law: l, Count: g.Count})
+		f.groups = append(f.groups, orderstat.Group{Law: g.Lifetime, Count: g.Count})
 		f.total += g.Count
 	}
 	return f, nil
@@ -67,16 +124,26 @@ func NewFleet(groups []FleetGroup) (Fleet, error) {
 func (f Fleet) Size() int64 { return f.total }
 
 // Lifetime returns the lifetime law of group i (in the order given to
-// NewFleet) and its name; ok is false when i is not in [0, Groups()).
+// NewFleet) and its name; ok is false when i is not in [0, Groups()) or the
+// fleet was built by NewFleetOfLaws (use Law).
 func (f Fleet) Lifetime(i int) (l Lifetime, name string, ok bool) {
-	if i < 0 || i >= len(f.lifetimes) {
+	if i < 0 || i >= len(f.lifetimes) || f.lifetimes[i].energy == nil {
 		return Lifetime{}, "", false
 	}
 	return f.lifetimes[i], f.names[i], true
 }
 
+// Law returns the lifetime law (time in s) of group i and its name, for
+// fleets built either way; ok is false when i is not in [0, Groups()).
+func (f Fleet) Law(i int) (l dist.Law, name string, ok bool) {
+	if i < 0 || i >= len(f.laws) {
+		return nil, "", false
+	}
+	return f.laws[i], f.names[i], true
+}
+
 // Groups returns the number of groups.
-func (f Fleet) Groups() int { return len(f.lifetimes) }
+func (f Fleet) Groups() int { return len(f.laws) }
 
 // FirstFailure returns the law of the time (s) to the first flat battery in
 // the fleet, the minimum over non-identical lifetimes (orderstat.MinOfGroups):
@@ -118,7 +185,7 @@ func (f Fleet) NoFailureBefore(t float64) float64 {
 		return t
 	}
 	s := 0.0
-	for i, l := range f.lifetimes {
+	for i, l := range f.laws {
 		var ls float64
 		if c := l.CDF(t); c < 0.5 {
 			ls = math.Log1p(-c)
@@ -134,11 +201,7 @@ func (f Fleet) NoFailureBefore(t float64) float64 {
 // (s): a Poisson-binomial count with group probabilities F_g(t)
 // (orderstat.AtOrBelow).
 func (f Fleet) FailedBy(t float64) (orderstat.Count, error) {
-	laws := make([]dist.Law, len(f.lifetimes))
-	for i, l := range f.lifetimes {
-		laws[i] = l
-	}
-	c, err := orderstat.AtOrBelow(laws, f.counts, t)
+	c, err := orderstat.AtOrBelow(f.laws, f.counts, t)
 	if err != nil {
 		return orderstat.Count{}, causeErr("Fleet.FailedBy", "t", t, "count of failed nodes", err)
 	}
@@ -182,7 +245,7 @@ func (f Fleet) ReplacementPlan(risk float64) (Plan, error) {
 		return Plan{}, paramErr(fn, "risk", risk, "must be in (0, 1)")
 	}
 	p := Plan{Risk: risk}
-	for i, l := range f.lifetimes {
+	for i, l := range f.laws {
 		n := float64(f.counts[i])
 		pg := -math.Expm1(math.Log1p(-risk) / n) // 1 − (1 − risk)^{1/n}
 		t := l.Quantile(pg)

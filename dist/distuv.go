@@ -55,25 +55,15 @@ type distuvLaw struct {
 }
 
 func (a distuvLaw) CDF(x float64) float64 {
-	switch {
-	case math.IsNaN(x):
-		return x
-	case x < a.lo:
-		return 0
-	case x >= a.hi:
-		return 1
+	if v, ok := edgeCDF(x, a.lo, a.hi); ok {
+		return v
 	}
 	return a.d.CDF(x)
 }
 
 func (a distuvLaw) Survival(x float64) float64 {
-	switch {
-	case math.IsNaN(x):
-		return x
-	case x < a.lo:
-		return 1
-	case x >= a.hi:
-		return 0
+	if v, ok := edgeSurvival(x, a.lo, a.hi); ok {
+		return v
 	}
 	if s, ok := a.d.(interface{ Survival(float64) float64 }); ok {
 		return s.Survival(x)

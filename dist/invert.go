@@ -846,13 +846,8 @@ func saddle(dK func(float64) float64, y, hi, sd float64) float64 {
 // CDF returns P(X <= x): exact atoms plus the inverted continuous part.
 // NaN for NaN.
 func (l *numLaw) CDF(x float64) float64 {
-	switch {
-	case math.IsNaN(x):
-		return x
-	case x < l.supLo:
-		return 0
-	case x >= l.supHi:
-		return 1
+	if v, ok := edgeCDF(x, l.supLo, l.supHi); ok {
+		return v
 	}
 	f, _ := l.cont(x - l.c)
 	if l.atomMass > 0 {
@@ -863,13 +858,8 @@ func (l *numLaw) CDF(x float64) float64 {
 
 // Survival returns P(X > x), computed directly (tilted in the upper tail).
 func (l *numLaw) Survival(x float64) float64 {
-	switch {
-	case math.IsNaN(x):
-		return x
-	case x < l.supLo:
-		return 1
-	case x >= l.supHi:
-		return 0
+	if v, ok := edgeSurvival(x, l.supLo, l.supHi); ok {
+		return v
 	}
 	_, s := l.cont(x - l.c)
 	if l.atomMass > 0 {

@@ -794,13 +794,8 @@ func newLatticeLaw(comps []latComp, terms []Law, k int) *latticeLaw {
 
 // CDF returns P(X <= x). NaN for NaN.
 func (l *latticeLaw) CDF(x float64) float64 {
-	switch {
-	case math.IsNaN(x):
-		return x
-	case x < l.supLo:
-		return 0
-	case x >= l.supHi:
-		return 1
+	if v, ok := edgeCDF(x, l.supLo, l.supHi); ok {
+		return v
 	}
 	return l.value(x, false)
 }
@@ -808,13 +803,8 @@ func (l *latticeLaw) CDF(x float64) float64 {
 // Survival returns P(X > x), each combination's from its own upper tail.
 // NaN for NaN.
 func (l *latticeLaw) Survival(x float64) float64 {
-	switch {
-	case math.IsNaN(x):
-		return x
-	case x < l.supLo:
-		return 1
-	case x >= l.supHi:
-		return 0
+	if v, ok := edgeSurvival(x, l.supLo, l.supHi); ok {
+		return v
 	}
 	return l.value(x, true)
 }

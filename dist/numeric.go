@@ -8,6 +8,35 @@ func isProb(p float64) bool { return p >= 0 && p <= 1 }
 // finite reports whether x is neither NaN nor ±Inf.
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
+// edgeCDF returns the CDF value that x alone fixes for a law with support
+// [lo, hi]: NaN for NaN x, 0 below lo, 1 at or above hi; ok is false when x
+// lies in [lo, hi) and the law must compute it.
+func edgeCDF(x, lo, hi float64) (v float64, ok bool) {
+	switch {
+	case math.IsNaN(x):
+		return x, true
+	case x < lo:
+		return 0, true
+	case x >= hi:
+		return 1, true
+	}
+	return 0, false
+}
+
+// edgeSurvival is edgeCDF for the survival: NaN, 1 below lo, 0 at or above
+// hi.
+func edgeSurvival(x, lo, hi float64) (v float64, ok bool) {
+	switch {
+	case math.IsNaN(x):
+		return x, true
+	case x < lo:
+		return 1, true
+	case x >= hi:
+		return 0, true
+	}
+	return 0, false
+}
+
 // bracketStart returns a starting point and a scale for a root search on l.
 func bracketStart(l Law) (x0, step float64) {
 	lo, hi := l.Support()

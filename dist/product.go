@@ -177,15 +177,9 @@ func newProductLaw(x, y Law) productLaw {
 
 // CDF returns P(XY <= z); NaN for NaN.
 func (p productLaw) CDF(z float64) float64 {
-	if math.IsNaN(z) {
-		return z
-	}
 	lo, hi := p.Support()
-	if z < lo {
-		return 0
-	}
-	if z >= hi {
-		return 1
+	if v, ok := edgeCDF(z, lo, hi); ok {
+		return v
 	}
 	s := 0.0
 	for i, y := range p.ys {
@@ -200,15 +194,9 @@ func (p productLaw) CDF(z float64) float64 {
 
 // Survival returns P(XY > z), summed directly.
 func (p productLaw) Survival(z float64) float64 {
-	if math.IsNaN(z) {
-		return z
-	}
 	lo, hi := p.Support()
-	if z < lo {
-		return 1
-	}
-	if z >= hi {
-		return 0
+	if v, ok := edgeSurvival(z, lo, hi); ok {
+		return v
 	}
 	s := 0.0
 	for i, y := range p.ys {

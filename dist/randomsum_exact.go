@@ -28,22 +28,16 @@ func (m statedMixture) Variance() float64 { return m.variance }
 
 // CDF returns Σ w_i·F_i(x); exactly 0 below the support and 1 at its top.
 func (m statedMixture) CDF(x float64) float64 {
-	switch {
-	case x < m.lo:
-		return 0
-	case x >= m.hi:
-		return 1
+	if v, ok := edgeCDF(x, m.lo, m.hi); ok {
+		return v
 	}
 	return m.mixture.CDF(x)
 }
 
 // Survival returns Σ w_i·S_i(x); exactly 1 below the support, 0 at its top.
 func (m statedMixture) Survival(x float64) float64 {
-	switch {
-	case x < m.lo:
-		return 1
-	case x >= m.hi:
-		return 0
+	if v, ok := edgeSurvival(x, m.lo, m.hi); ok {
+		return v
 	}
 	return m.mixture.Survival(x)
 }

@@ -214,13 +214,8 @@ func (l expSmoothed) smooth(y float64) (s, abs float64) {
 // CDF returns P(X <= x) (NaN for NaN x).
 func (l expSmoothed) CDF(x float64) float64 {
 	lo, hi := l.Support()
-	switch {
-	case math.IsNaN(x):
-		return x
-	case x < lo:
-		return 0
-	case x >= hi:
-		return 1
+	if v, ok := edgeCDF(x, lo, hi); ok {
+		return v
 	}
 	f := 0.0
 	for i, v := range l.d.values {
@@ -234,13 +229,8 @@ func (l expSmoothed) CDF(x float64) float64 {
 // Survival returns P(X > x), summed from positive terms (NaN for NaN x).
 func (l expSmoothed) Survival(x float64) float64 {
 	lo, hi := l.Support()
-	switch {
-	case math.IsNaN(x):
-		return x
-	case x < lo:
-		return 1
-	case x >= hi:
-		return 0
+	if v, ok := edgeSurvival(x, lo, hi); ok {
+		return v
 	}
 	sv := 0.0
 	for i, v := range l.d.values {

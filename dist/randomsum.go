@@ -48,10 +48,15 @@ const maxCount = 1 << 20
 // Mean = E[N]·E[X], Variance = E[N]·Var X + Var N·(E X)². Rand draws N and
 // then N terms.
 //
+// A term without a known transform (a FromDistuv law, say) is taken when
+// the count has at most 16 values and finite support: the mixture of the
+// counts' SumIIDs (lattice or quadrature fallbacks, their bounds weighted).
+//
 // count may be a Discrete, any law listing its atoms (Atomic), or any law
 // whose CDF steps only at the non-negative integers (probed at n - 1/2 and
 // just below n). Errors wrap ErrParam: nil laws, a count with mass off the
-// non-negative integers, a count needing more than 2^20 terms; ErrMoment for
+// non-negative integers, a count needing more than 2^20 terms, a term
+// without a known transform with a count beyond those limits; ErrMoment for
 // a term or count without finite mean and variance.
 func RandomSum(count, term Law) (Law, error) {
 	const fn = "RandomSum"
@@ -105,9 +110,13 @@ func RandomSum(count, term Law) (Law, error) {
 	}
 	t, ok := transformOf(term)
 	if !ok {
-		return nil, fmt.Errorf("dist.RandomSum: term %v has no known characteristic function: %w", term, ErrParam)
+		if tail == 0 && len(ns) <= maxTransformlessCounts {
+			// every count's k-fold sum by SumIID's own fallbacks
+			return peelRandomSum(ns, ps, 0, en*mx, en*vx+vn*mx*mx, term, transform{})
+		}
+		return nil, fmt.Errorf("dist.RandomSum: term %v has no known characteristic function and the count has %d values (at most %d, and finitely many, for such a term): %w", term, len(ns), maxTransformlessCounts, ErrParam)
 	}
-	if ns[0] <= 2 && ns[len(ns)-1] > 0 {
+	if ns[0] <= maxPeel && ns[len(ns)-1] > 0 {
 		return peelRandomSum(ns, ps, tail, en*mx, en*vx+vn*mx*mx, term, t)
 	}
 	return randomSumNumeric(ns, ps, tail, en*mx, en*vx+vn*mx*mx, term, t, count.Rand)
@@ -116,6 +125,10 @@ func RandomSum(count, term Law) (Law, error) {
 // maxPeel is the largest count RandomSum writes as a law of its own before
 // inverting the rest.
 const maxPeel = 6
+
+// maxTransformlessCounts is the most count values RandomSum takes for a
+// term without a known transform (each count's sum is its own SumIID).
+const maxTransformlessCounts = 16
 
 // peelRandomSum writes the random sum as the mixture
 //
@@ -130,7 +143,7 @@ const maxPeel = 6
 // count.
 func peelRandomSum(ns []int, ps []float64, tail, mean, variance float64, term Law, t transform) (Law, error) {
 	k := 0
-	for k < len(ns) && ns[k] <= maxPeel {
+	for k < len(ns) && (ns[k] <= maxPeel || t.logm == nil) {
 		k++
 	}
 	var weights []float64

@@ -7,6 +7,8 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+	"gonum.org/v1/gonum/mathext"
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/dist/disttest"
@@ -194,4 +196,53 @@ func TestSumIIDOfDiscretePlusUniform(t *testing.T) {
 		assert.InEpsilon(t, float64(k)*l1.Variance(), l.Variance(), 1e-12)
 		require.NoError(t, disttest.Check(l))
 	}
+}
+
+func TestRandomSumOfTermWithoutTransform(t *testing.T) {
+	// An Exp(2) term given as a Weibull with K = 1 through FromDistuv (no
+	// known transform), count on {0, 1, 3, 5}: the law is
+	// P(N = 0)·δ_0 + Σ_n P(N = n)·Gamma(n, 2), the Erlang laws from gonum's
+	// distuv.Gamma (CDF) and mathext.GammaIncRegComp (survival).
+	ns := []float64{0, 1, 3, 5}
+	ps := []float64{0.1, 0.4, 0.3, 0.2}
+	l, err := dist.RandomSum(dist.MustDiscrete(ns, ps), weibullExp(2))
+	require.NoError(t, err)
+	cdf := func(x float64) float64 {
+		s := 0.0
+		for i, n := range ns {
+			if n == 0 {
+				if x >= 0 {
+					s += ps[i]
+				}
+				continue
+			}
+			s += ps[i] * distuv.Gamma{Alpha: n, Beta: 2}.CDF(x)
+		}
+		return s
+	}
+	surv := func(x float64) float64 {
+		s := 0.0
+		for i, n := range ns {
+			if n == 0 {
+				if x < 0 {
+					s += ps[i]
+				}
+				continue
+			}
+			if x <= 0 {
+				s += ps[i]
+				continue
+			}
+			s += ps[i] * mathext.GammaIncRegComp(n, 2*x)
+		}
+		return s
+	}
+	wa, wr := checkAccuracy(t, l, grid(0.01, 12, 120), cdf, surv, 1e-9)
+	t.Logf("random sum of a transform-less term: worst CDF abs %.2e, survival rel %.2e; %+v", wa, wr, l.(dist.Estimated).Accuracy())
+	assert.LessOrEqual(t, wa, testref.TolCDF)
+	assert.InEpsilon(t, (0.4+0.9+1.0)*0.5, l.Mean(), 1e-9)
+	// an unbounded count with such a term is refused, naming the count
+	_, err = dist.RandomSum(geometric{p: 0.5}, weibullExp(2))
+	require.Error(t, err)
+	assert.ErrorIs(t, err, dist.ErrParam)
 }

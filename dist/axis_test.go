@@ -23,34 +23,42 @@ import (
 // Z = Φ(μ/σ); Φ from math.Erfc (each difference from the tail where it
 // does not cancel).
 func truncNormalPlusExp(mu, sigma, lam float64) (cdf, surv func(float64) float64) {
-	phi := func(x float64) float64 { return math.Erfc(-x/math.Sqrt2) / 2 } // Φ
-	phic := func(x float64) float64 { return math.Erfc(x/math.Sqrt2) / 2 } // 1 - Φ
-	// Φ(b) - Φ(a) for a < b
-	diff := func(a, b float64) float64 {
-		if a > 0 {
-			return phic(a) - phic(b)
-		}
-		return phi(b) - phi(a)
-	}
-	z := phic(-mu / sigma)
+	z := stdPhic(-mu / sigma)
 	a0 := -mu/sigma - lam*sigma
-	tilt := func(x float64) float64 {
-		if x <= 0 {
-			return 0
-		}
-		return math.Exp(-lam*x+lam*mu+lam*lam*sigma*sigma/2) * diff(a0, (x-mu)/sigma-lam*sigma) / z
+	return truncNormalPlus(mu, sigma, func(x float64) float64 {
+		return math.Exp(-lam*x+lam*mu+lam*lam*sigma*sigma/2) * stdPhiDiff(a0, (x-mu)/sigma-lam*sigma) / z
+	})
+}
+
+// stdPhi and stdPhic are the standard normal CDF and survival from
+// math.Erfc; stdPhiDiff is Φ(b) - Φ(a) for a < b, from the tail where it
+// does not cancel.
+func stdPhi(x float64) float64  { return math.Erfc(-x/math.Sqrt2) / 2 }
+func stdPhic(x float64) float64 { return math.Erfc(x/math.Sqrt2) / 2 }
+func stdPhiDiff(a, b float64) float64 {
+	if a > 0 {
+		return stdPhic(a) - stdPhic(b)
 	}
+	return stdPhi(b) - stdPhi(a)
+}
+
+// truncNormalPlus returns the CDF and survival of X + Y for X a normal
+// (μ, σ) truncated to [0, ∞) and Y >= 0 independent, given
+// tail(x) = E[S_Y(x - X); X <= x] for x > 0: F(x) = F_X(x) - tail(x),
+// S(x) = S_X(x) + tail(x).
+func truncNormalPlus(mu, sigma float64, tail func(x float64) float64) (cdf, surv func(float64) float64) {
+	z := stdPhic(-mu / sigma)
 	cdf = func(x float64) float64 {
 		if x <= 0 {
 			return 0
 		}
-		return diff(-mu/sigma, (x-mu)/sigma)/z - tilt(x)
+		return stdPhiDiff(-mu/sigma, (x-mu)/sigma)/z - tail(x)
 	}
 	surv = func(x float64) float64 {
 		if x <= 0 {
 			return 1
 		}
-		return phic((x-mu)/sigma)/z + tilt(x)
+		return stdPhic((x-mu)/sigma)/z + tail(x)
 	}
 	return cdf, surv
 }
@@ -185,37 +193,15 @@ func TestSumNearLatticeStatedBound(t *testing.T) {
 //
 // and F(x) = F_X(x) - that, S(x) = S_X(x) + that.
 func truncNormalPlusErlang2(mu, sigma, lam float64) (cdf, surv func(float64) float64) {
-	phi := func(x float64) float64 { return math.Erfc(-x/math.Sqrt2) / 2 } // Φ
-	phic := func(x float64) float64 { return math.Erfc(x/math.Sqrt2) / 2 } // 1 - Φ
 	pdf := func(x float64) float64 { return math.Exp(-x*x/2) / math.Sqrt(2*math.Pi) }
-	// Φ(b) - Φ(a) for a < b
-	diff := func(a, b float64) float64 {
-		if a > 0 {
-			return phic(a) - phic(b)
-		}
-		return phi(b) - phi(a)
-	}
-	z := phic(-mu / sigma)
+	z := stdPhic(-mu / sigma)
 	m := mu + lam*sigma*sigma
 	a := -m / sigma
-	tail := func(x float64) float64 {
+	return truncNormalPlus(mu, sigma, func(x float64) float64 {
 		b := (x - m) / sigma
 		k := math.Exp(-lam*x+lam*mu+lam*lam*sigma*sigma/2) / z
-		return k * (diff(a, b)*(1+lam*(x-m)) - lam*sigma*(pdf(a)-pdf(b)))
-	}
-	cdf = func(x float64) float64 {
-		if x <= 0 {
-			return 0
-		}
-		return diff(-mu/sigma, (x-mu)/sigma)/z - tail(x)
-	}
-	surv = func(x float64) float64 {
-		if x <= 0 {
-			return 1
-		}
-		return phic((x-mu)/sigma)/z + tail(x)
-	}
-	return cdf, surv
+		return k * (stdPhiDiff(a, b)*(1+lam*(x-m)) - lam*sigma*(pdf(a)-pdf(b)))
+	})
 }
 
 func TestSumTruncatedNormalErlangInverted(t *testing.T) {

@@ -1,0 +1,47 @@
+// Package quad is joulelaw's one adaptive quadrature: a globally adaptive
+// bisection driver in the manner of QUADPACK's DQAG/DQAGP/DQAGI (Piessens,
+// de Doncker-Kapenga, Überhuber and Kahaner, "QUADPACK", Springer 1983),
+// with the Gauss–Kronrod 7–15 rule plugged in, for scalar and
+// vector-valued integrands, finite and infinite intervals, and intervals
+// with breakpoints.
+//
+// The driver keeps the panels of the interval in a heap ordered by their
+// error estimate and bisects the worst one until the summed estimate
+// meets the tolerance:
+//
+//	Error = Σ_panels max_j |K15_j − G7_j| <= max(AbsTol, RelTol·max_j |Value_j|)
+//
+// where K15 and G7 are the Kronrod and Gauss estimates of a panel (for a
+// vector integrand, the largest component's difference). Error is the
+// plain Gauss–Kronrod difference, without QUADPACK's heuristic rescaling
+// (200·|K − G|/resasc)^1.5: it is an estimate of the error of the 7-point
+// Gauss rule, so for smooth integrands it overstates the error of the
+// 15-point Kronrod value returned by orders of magnitude; the tests check
+// that it bounds the true error on closed forms, square-root and log
+// singularities and infinite intervals.
+//
+// Infinite ends are mapped to (0, 1] as in DQAGI: on [p, ∞)
+//
+//	∫_p^∞ f(x) dx = ∫_0^1 f(p + (1−t)/t) / t² dt,
+//
+// and on (−∞, p] with x = p − (1−t)/t. The rule never evaluates a panel's
+// ends, so t = 0 is never used. An integral over (−∞, ∞) is split at 0.
+//
+// Caps: Options.MaxEvals at most 1<<20 integrand evaluations (so at most
+// 69 905 panels, 15 evaluations each); at most 1<<12 breakpoints; at most
+// 1<<16 components of a vector integrand. The workspace of one call is a
+// panel slice (32 bytes a panel, plus 8 bytes a component for vector
+// integrands) and a heap of panel indices, allocated once per call and
+// grown by doubling; nothing is kept between calls, so every function is
+// safe for concurrent use and deterministic: the same call gives the same
+// bits whatever ran before.
+//
+// Bad input (a > b, a NaN end, a negative or NaN tolerance, a budget above
+// the cap, unsorted breakpoints) returns an error wrapping ErrParam; an
+// integrand that returns NaN or ±Inf stops the integration with an error
+// wrapping ErrParam naming x. Running out of evaluations returns the best
+// Result so far with an error wrapping ErrBudget; panels that can no
+// longer be bisected in float64 before the tolerance is met give an error
+// wrapping ErrResolution (the Result is still returned, and its Error
+// still counts the unresolved panels).
+package quad

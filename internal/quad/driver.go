@@ -1,0 +1,336 @@
+package quad
+
+import (
+	"fmt"
+	"math"
+)
+
+// Panel maps: a panel's coordinate t is x itself (mapIdentity) or, on an
+// infinite end anchored at p, t ∈ (0, 1] with x = p + (1−t)/t (mapRight)
+// or x = p − (1−t)/t (mapLeft).
+const (
+	mapIdentity = iota
+	mapRight
+	mapLeft
+)
+
+// panel is one piece of the interval, in its own coordinate t ∈ [a, b].
+type panel struct {
+	a, b   float64
+	err    float64 // max over components of |K15 − G7|
+	anchor float64 // the finite end an infinite piece is mapped from
+	kind   int8    // mapIdentity, mapRight, mapLeft
+	final  bool    // too narrow to bisect
+}
+
+// driver is the workspace of one integration; it lives for one call.
+type driver struct {
+	f      func(float64) float64
+	fv     func(float64, []float64)
+	dim    int
+	pans   []panel
+	vals   []float64 // dim values per panel
+	heap   []int32   // indices of bisectable panels, largest err first
+	y      []float64 // integrand output (vector)
+	kacc   []float64 // Kronrod accumulator
+	gacc   []float64 // Gauss accumulator
+	evals  int
+	badX   float64
+	badSet bool
+	// the rule (see gk15)
+	nodes, wk [8]float64
+	wg        [4]float64
+}
+
+// point returns x at t on a panel with the given map (the Jacobian of the
+// infinite maps, 1/t², is applied by eval).
+func point(kind int8, anchor, t float64) float64 {
+	switch kind {
+	case mapRight:
+		return anchor + (1-t)/t
+	case mapLeft:
+		return anchor - (1-t)/t
+	}
+	return t
+}
+
+// eval fills d.y with f at t (times the Jacobian) and reports whether all
+// values are finite.
+func (d *driver) eval(kind int8, anchor, t float64) bool {
+	x := point(kind, anchor, t)
+	d.evals++
+	ok := true
+	if d.f != nil {
+		v := d.f(x)
+		if kind != mapIdentity {
+			v = v / t / t // not v·jac: 0·Inf where t² underflows
+		}
+		d.y[0] = v
+		ok = !math.IsNaN(v) && !math.IsInf(v, 0)
+	} else {
+		d.fv(x, d.y)
+		for j, v := range d.y {
+			if kind != mapIdentity {
+				v = v / t / t
+				d.y[j] = v
+			}
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				ok = false
+			}
+		}
+	}
+	if !ok && !d.badSet {
+		d.badX, d.badSet = x, true
+	}
+	return ok
+}
+
+// apply evaluates the 7–15 rule on p, writing its Kronrod values into
+// val and setting p.err; it reports whether every value was finite.
+func (d *driver) apply(p *panel, val []float64) bool {
+	c, h := p.a+(p.b-p.a)/2, (p.b-p.a)/2
+	for j := range d.kacc {
+		d.kacc[j], d.gacc[j] = 0, 0
+	}
+	ok := true
+	for i := 0; i < 8; i++ {
+		for s := -1.0; s <= 1; s += 2 {
+			if i == 7 && s > 0 {
+				break // the centre once
+			}
+			if !d.eval(p.kind, p.anchor, c+s*h*d.nodes[i]) {
+				ok = false
+			}
+			for j, v := range d.y {
+				d.kacc[j] += d.wk[i] * v
+				if i%2 == 1 {
+					d.gacc[j] += d.wg[i/2] * v
+				}
+			}
+		}
+	}
+	e := 0.0
+	for j := range val {
+		val[j] = d.kacc[j] * h
+		e = math.Max(e, math.Abs(d.kacc[j]-d.gacc[j])*h)
+	}
+	p.err = e
+	// bisectable only if the midpoint lies strictly inside
+	p.final = !(c > p.a && c < p.b)
+	return ok
+}
+
+// heap operations on d.heap (max-heap on pans[i].err; ties by index, so
+// the order, and so the result, is deterministic).
+func (d *driver) less(i, j int32) bool {
+	ei, ej := d.pans[i].err, d.pans[j].err
+	if ei != ej {
+		return ei > ej
+	}
+	return i < j
+}
+
+func (d *driver) push(i int32) {
+	d.heap = append(d.heap, i)
+	k := len(d.heap) - 1
+	for k > 0 {
+		p := (k - 1) / 2
+		if !d.less(d.heap[k], d.heap[p]) {
+			break
+		}
+		d.heap[k], d.heap[p] = d.heap[p], d.heap[k]
+		k = p
+	}
+}
+
+func (d *driver) pop() int32 {
+	top := d.heap[0]
+	n := len(d.heap) - 1
+	d.heap[0] = d.heap[n]
+	d.heap = d.heap[:n]
+	k := 0
+	for {
+		l, r, m := 2*k+1, 2*k+2, k
+		if l < n && d.less(d.heap[l], d.heap[m]) {
+			m = l
+		}
+		if r < n && d.less(d.heap[r], d.heap[m]) {
+			m = r
+		}
+		if m == k {
+			break
+		}
+		d.heap[k], d.heap[m] = d.heap[m], d.heap[k]
+		k = m
+	}
+	return top
+}
+
+// add appends a panel, evaluates it and files it; it reports whether the
+// integrand stayed finite.
+func (d *driver) add(p panel) bool {
+	d.pans = append(d.pans, p)
+	for j := 0; j < d.dim; j++ {
+		d.vals = append(d.vals, 0)
+	}
+	i := int32(len(d.pans) - 1)
+	ok := d.apply(&d.pans[i], d.vals[int(i)*d.dim:int(i+1)*d.dim])
+	if !d.pans[i].final {
+		d.push(i)
+	}
+	return ok
+}
+
+// totals sums the panels' values into dst and returns the summed error,
+// in panel order (deterministic).
+func (d *driver) totals(dst []float64) float64 {
+	for j := range dst {
+		dst[j] = 0
+	}
+	e := 0.0
+	for i := range d.pans {
+		v := d.vals[i*d.dim : (i+1)*d.dim]
+		for j := range dst {
+			dst[j] += v[j]
+		}
+		e += d.pans[i].err
+	}
+	return e
+}
+
+func target(opt Options, dst []float64) float64 {
+	m := 0.0
+	for _, v := range dst {
+		m = math.Max(m, math.Abs(v))
+	}
+	return math.Max(opt.AbsTol, opt.RelTol*m)
+}
+
+// run integrates over the pieces between pts into dst (len(dst) = dim).
+func (d *driver) run(fn string, dst []float64, pts []float64, opt Options) (VecResult, error) {
+	res := VecResult{Value: dst}
+	switch {
+	case math.IsNaN(opt.AbsTol) || opt.AbsTol < 0 || math.IsInf(opt.AbsTol, 0):
+		return res, paramErr(fn, "AbsTol", opt.AbsTol, "must be finite and >= 0")
+	case math.IsNaN(opt.RelTol) || opt.RelTol < 0 || math.IsInf(opt.RelTol, 0):
+		return res, paramErr(fn, "RelTol", opt.RelTol, "must be finite and >= 0")
+	case opt.MaxEvals < 0 || opt.MaxEvals > MaxEvalsCap:
+		return res, paramErr(fn, "MaxEvals", opt.MaxEvals, fmt.Sprintf("must be in [0, %d]", MaxEvalsCap))
+	case len(dst) < 1 || len(dst) > MaxDim:
+		return res, paramErr(fn, "len(dst)", len(dst), fmt.Sprintf("must be in [1, %d]", MaxDim))
+	case len(pts) < 2 || len(pts) > MaxBreaks:
+		return res, paramErr(fn, "len(pts)", len(pts), fmt.Sprintf("must be in [2, %d]", MaxBreaks))
+	case d.f == nil && d.fv == nil:
+		return res, paramErr(fn, "f", nil, "must not be nil")
+	}
+	for i, p := range pts {
+		switch {
+		case math.IsNaN(p):
+			return res, paramErr(fn, fmt.Sprintf("pts[%d]", i), p, "must not be NaN")
+		case math.IsInf(p, -1) && i != 0, math.IsInf(p, 1) && i != len(pts)-1:
+			return res, paramErr(fn, fmt.Sprintf("pts[%d]", i), p, "only the first point may be −Inf and the last +Inf")
+		case i > 0 && p < pts[i-1]:
+			return res, paramErr(fn, fmt.Sprintf("pts[%d]", i), p, fmt.Sprintf("must be >= pts[%d] = %v (sorted)", i-1, pts[i-1]))
+		}
+	}
+	if opt.AbsTol == 0 && opt.RelTol == 0 {
+		opt.RelTol = DefaultRelTol
+	}
+	if opt.MaxEvals == 0 {
+		opt.MaxEvals = DefaultMaxEvals
+	}
+	d.dim = len(dst)
+	d.nodes, d.wk, d.wg = gk15()
+	n := 64
+	if c := opt.MaxEvals/15 + len(pts); c < n {
+		n = c
+	}
+	d.pans = make([]panel, 0, n)
+	d.vals = make([]float64, 0, n*d.dim)
+	d.heap = make([]int32, 0, n)
+	scratch := make([]float64, 3*d.dim)
+	d.y, d.kacc, d.gacc = scratch[:d.dim], scratch[d.dim:2*d.dim], scratch[2*d.dim:]
+
+	finite := true
+	for i := 0; i+1 < len(pts); i++ {
+		a, b := pts[i], pts[i+1]
+		if !(b > a) {
+			continue
+		}
+		var p panel
+		switch {
+		case math.IsInf(a, -1) && math.IsInf(b, 1):
+			// only from a two-point call; Infinite splits at 0
+			if !d.add(panel{a: 0, b: 1, kind: mapLeft}) || !d.add(panel{a: 0, b: 1, kind: mapRight}) {
+				finite = false
+			}
+			continue
+		case math.IsInf(a, -1):
+			p = panel{a: 0, b: 1, anchor: b, kind: mapLeft}
+		case math.IsInf(b, 1):
+			p = panel{a: 0, b: 1, anchor: a, kind: mapRight}
+		default:
+			p = panel{a: a, b: b}
+		}
+		if !d.add(p) {
+			finite = false
+		}
+	}
+	total := d.totals(dst)
+	errSum := total
+	for finite {
+		if errSum <= target(opt, dst) {
+			// recompute exactly: the running sums drift
+			if errSum = d.totals(dst); errSum <= target(opt, dst) {
+				break
+			}
+		}
+		if len(d.heap) == 0 {
+			errSum = d.totals(dst)
+			res.Error, res.Evals = errSum, d.evals
+			return res, fmt.Errorf("quad.%s: error %.3g above the target %.3g: %w", fn, errSum, target(opt, dst), ErrResolution)
+		}
+		if d.evals+30 > opt.MaxEvals {
+			errSum = d.totals(dst)
+			res.Error, res.Evals = errSum, d.evals
+			return res, fmt.Errorf("quad.%s: %d evaluations, error %.3g above the target %.3g: %w", fn, d.evals, errSum, target(opt, dst), ErrBudget)
+		}
+		i := d.pop()
+		p := d.pans[i]
+		m := p.a + (p.b-p.a)/2
+		old := d.vals[int(i)*d.dim : int(i+1)*d.dim]
+		for j := range dst {
+			dst[j] -= old[j]
+		}
+		errSum -= p.err
+		// the left half replaces the panel in place, the right is appended
+		left := panel{a: p.a, b: m, anchor: p.anchor, kind: p.kind}
+		d.pans[i] = left
+		if !d.apply(&d.pans[i], old) {
+			finite = false
+		}
+		if !d.pans[i].final {
+			d.push(i)
+		}
+		if !d.add(panel{a: m, b: p.b, anchor: p.anchor, kind: p.kind}) {
+			finite = false
+		}
+		k := len(d.pans) - 1
+		nv := d.vals[k*d.dim : (k+1)*d.dim]
+		old = d.vals[int(i)*d.dim : int(i+1)*d.dim] // vals may have moved
+		for j := range dst {
+			dst[j] += old[j] + nv[j]
+		}
+		errSum += d.pans[i].err + d.pans[k].err
+	}
+	errSum = d.totals(dst)
+	res.Error, res.Evals = errSum, d.evals
+	if !finite {
+		for j := range dst {
+			dst[j] = math.NaN()
+		}
+		res.Error = math.NaN()
+		return res, paramErr(fn, "f(x)", d.badX, "the integrand must be finite (x is the first point where it was not)")
+	}
+	return res, nil
+}

@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/mathext"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/testref"
 )
 
 const bigPrec = 320
@@ -81,4 +82,33 @@ func TestGammaLowerTailLargeShape(t *testing.T) {
 	// Below 50 the CDF is gonum's; agree with it in the body.
 	g := dist.MustGamma(30, 2)
 	assert.InDelta(t, mathext.GammaIncReg(30, 20), g.CDF(10), 1e-15)
+}
+
+// TestGammaSurvivalBelowMeanLargeShape: issue 13. Below the mean at shapes
+// of 10^6 and more the survival was gonum's GammaIncRegComp, which is 1
+// minus gonum's own lower function there: CDF + Survival - 1 reached
+// 1.6e-11 at k = 10^7 and 2.8e-10 at 10^8 six standard deviations below the
+// mean, and UpperQuantile round trips and lifetimes past the median
+// inherited it. Oracle: testref.ErlangTails (the Poisson–gamma relation,
+// summed outward from k; any probability text) for integer shapes, and
+// CDF + Survival = 1 for every shape.
+func TestGammaSurvivalBelowMeanLargeShape(t *testing.T) {
+	for _, k := range []float64{1e6, 1e7, 1e7 + 0.5, 1e8} {
+		g := dist.MustGamma(k, 2)
+		for _, z := range []float64{-8, -6, -3, -1, -0.3, -1e-3} {
+			x := (k + z*math.Sqrt(k)) / 2
+			f, s := g.CDF(x), g.Survival(x)
+			assert.InDelta(t, 1, f+s, 4e-16, "k=%g z=%g: CDF + Survival", k, z)
+			if k == math.Trunc(k) {
+				// relative 1e-12: the oracle's own complement and the
+				// rounding of x (ulp(x)·density ≈ 6e-13 of s at k = 1e8)
+				_, want := testref.ErlangTails(int(k), 2*x)
+				assert.LessOrEqual(t, relErr(s, want), 1e-12, "k=%g z=%g: survival %v, oracle %v", k, z, s, want)
+			}
+			if z >= -1 {
+				// well conditioned: dx = dq/f(x), f(x)·σ >= 0.24
+				assert.InDelta(t, x, g.UpperQuantile(s), 1e-12*x, "k=%g z=%g: UpperQuantile(Survival(x))", k, z)
+			}
+		}
+	}
 }

@@ -608,6 +608,9 @@ func splitAtoms(l Law) ([]Atom, Law, error) {
 
 // latticeSum is the fallback of Sum for terms without a known transform.
 func latticeSum(laws []Law) (Law, error) {
+	if err := termMoments("Sum", laws); err != nil {
+		return nil, err
+	}
 	var terms []Law
 	for _, t := range laws {
 		if b, ok := t.(*latticeLaw); ok && b.k == 0 {
@@ -727,6 +730,21 @@ func latticeSum(laws []Law) (Law, error) {
 	out := newLatticeLaw(comps, terms, 0)
 	out.acc.Method = fmt.Sprintf("exact atoms shifting %d lattice sums (Richardson-extrapolated lattice FFT, step %.3g, error from a step-2δ repeat) over %d combinations", grids, delta, len(comps))
 	return out, nil
+}
+
+// termMoments returns an error wrapping ErrMoment when a term lacks a
+// finite mean or variance (a Cauchy or Pareto(1.5) law through FromDistuv):
+// the lattice of a sum is sized from the terms' far quantiles, which such a
+// term puts so far out that no lattice of latticeCells cells resolves the
+// sum, and the result's Mean and Variance would be NaN or infinite.
+func termMoments(fn string, terms []Law) error {
+	for i, t := range terms {
+		m, v := t.Mean(), t.Variance()
+		if !finite(m) || !finite(v) || v < 0 {
+			return fmt.Errorf("dist.%s: term %d (%v) has mean %v and variance %v, a sum inverted numerically needs both finite: %w", fn, i, t, m, v, ErrMoment)
+		}
+	}
+	return nil
 }
 
 // noTransform reports whether l has no known transform (a lattice sum, say):

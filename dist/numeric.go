@@ -227,13 +227,20 @@ func momentBreaks(l Law) []float64 {
 }
 
 // numericMoments returns the mean and variance of l by composite 20-point
-// Gauss–Legendre quadrature of the survival function over momentBreaks:
+// Gauss–Legendre quadrature over momentBreaks, about the breakpoint c
+// nearest the median:
 //
-//	E[X] = a + ∫_a^b S(x) dx,  E[(X-a)²] = ∫_a^b 2(x-a) S(x) dx
+//	E[X - c]   = ∫_c^b S(x) dx - ∫_a^c F(x) dx,
+//	E[(X-c)²]  = ∫_c^b 2(x-c)·S(x) dx + ∫_a^c 2(c-x)·F(x) dx,
+//	Var X      = E[(X-c)²] - E[X - c]²
 //
-// with a the lowest breakpoint. Mass below the 1e-16 quantile or above the
+// with a and b the lowest and highest breakpoints. Centring at the median
+// keeps both integrals of the size of the spread, so a finite support end
+// far from the mass (a normal truncated to [-1e10, 1e10], say) costs no
+// precision, where integrating the survival from the lower end would lose
+// it all to cancellation. Mass below the 1e-16 quantile or above the
 // 1-1e-16 quantile is ignored, so the error is about 1e-15 of the spread for
-// light tails. Atoms are breakpoints, so S is smooth on every piece.
+// light tails. Atoms are breakpoints, so F and S are smooth on every piece.
 func numericMoments(l Law) (mean, variance float64) {
 	pts := momentBreaks(l)
 	if len(pts) < 2 {
@@ -242,21 +249,36 @@ func numericMoments(l Law) (mean, variance float64) {
 		}
 		return math.NaN(), math.NaN()
 	}
+	// the centre: the breakpoint nearest the median
+	med := l.Quantile(0.5)
+	ci := 0
+	for i, x := range pts {
+		if math.Abs(x-med) < math.Abs(pts[ci]-med) {
+			ci = i
+		}
+	}
+	c := pts[ci]
 	xs, ws := legendreRule(20)
-	a := pts[0]
 	var m1, m2 float64
 	for i := 0; i+1 < len(pts); i++ {
 		x0, x1 := pts[i], pts[i+1]
 		h := (x1 - x0) / 2
-		c := x0 + h
+		mid := x0 + h
 		for k, t := range xs {
-			x := c + h*t
-			s := l.Survival(x)
-			m1 += ws[k] * h * s
-			m2 += ws[k] * h * 2 * (x - a) * s
+			x := mid + h*t
+			// weight first: a zero tail value times a huge interval is 0, not NaN
+			if i >= ci {
+				w := ws[k] * h * l.Survival(x)
+				m1 += w
+				m2 += w * 2 * (x - c)
+			} else {
+				w := ws[k] * h * l.CDF(x)
+				m1 -= w
+				m2 += w * 2 * (c - x)
+			}
 		}
 	}
-	mean = a + m1
+	mean = c + m1
 	variance = math.Max(0, m2-m1*m1)
 	return mean, variance
 }

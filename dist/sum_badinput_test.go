@@ -18,6 +18,14 @@ func TestSumsBadInput(t *testing.T) {
 	heavy, err := dist.FromDistuv(distuv.StudentsT{Mu: 0, Sigma: 1, Nu: 1.5})
 	require.NoError(t, err)
 	require.True(t, math.IsInf(heavy.Variance(), 1))
+	// Student's t with one degree of freedom is the Cauchy law (no mean:
+	// gonum reports NaN); Pareto with α = 1.5 has a mean but no variance
+	// (gonum reports +Inf). Standard facts.
+	cauchy, err := dist.FromDistuv(distuv.StudentsT{Mu: 0, Sigma: 1, Nu: 1})
+	require.NoError(t, err)
+	pareto, err := dist.FromDistuv(distuv.Pareto{Xm: 1, Alpha: 1.5})
+	require.NoError(t, err)
+	require.True(t, math.IsInf(pareto.Variance(), 1))
 	n := dist.MustNormal(0, 1)
 	coin := dist.MustDiscrete([]float64{1, 2}, []float64{0.5, 0.5})
 	tests := []struct {
@@ -46,6 +54,11 @@ func TestSumsBadInput(t *testing.T) {
 			_, e := dist.RandomSum(dist.MustExponential(1), n)
 			return e
 		}},
+		// issue 13: Sum inverted Cauchy + N(0,1) to a median of 6.7e7
+		{"sum of a Cauchy term and a normal", dist.ErrMoment, "", func() error { _, e := dist.Sum(cauchy, n); return e }},
+		{"sum of a Pareto(1.5) term and a normal", dist.ErrMoment, "", func() error { _, e := dist.Sum(pareto, n); return e }},
+		{"sum of two terms without variance", dist.ErrMoment, "", func() error { _, e := dist.Sum(heavy, heavy); return e }},
+		{"sum of a term without variance, a normal and a coin", dist.ErrMoment, "", func() error { _, e := dist.Sum(heavy, n, coin); return e }},
 		{"k-fold sum of a term without variance", dist.ErrMoment, "", func() error { _, e := dist.SumIID(heavy, 10); return e }},
 		{"random sum of a term without variance", dist.ErrMoment, "", func() error { _, e := dist.RandomSum(coin, heavy); return e }},
 	}

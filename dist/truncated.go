@@ -16,7 +16,9 @@ import (
 // nearer to x (F differences below the parent's median, S differences above
 // it), so both stay accurate even for a truncation deep in a tail. The mean
 // and variance are computed once, by composite Gauss–Legendre quadrature of
-// the survival (relative error about 1e-14 for laws with light tails).
+// the CDF below the median and the survival above it (numericMoments;
+// relative error about 1e-14 for laws with light tails, whatever the
+// distance of a finite bound from the mass).
 // A truncated finite discrete law is a finite discrete law; a truncated
 // uniform is a uniform.
 func NewTruncated(l Law, lo, hi float64) (Law, error) {

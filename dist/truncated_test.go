@@ -46,7 +46,7 @@ func TestTruncatedMomentsFarBounds(t *testing.T) {
 		{0, 1, 0, math.MaxFloat64, 0, 1e-13},
 		{0, 1, -1e300, 1e300, math.Inf(-1), 1e-13},
 		{5, 1, 0, 1e12, 0, 1e-13},
-		{0, 1, 10, 1e10, 10, 1e-9}, // the closed form's 1 + αλ - λ² cancels about 4 digits
+		{0, 1, 10, 1e10, 10, 1e-9},                // the closed form's 1 + αλ - λ² cancels about 4 digits
 		{1e6, 1, -1e12, 1e12, math.Inf(-1), 1e-9}, // points near 1e6 are rounded to 1.2e-10 σ
 	}
 	for _, tc := range tests {

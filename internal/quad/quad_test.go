@@ -91,6 +91,12 @@ func closedCases() []closedCase {
 		{"kink", func(x float64) float64 { return math.Abs(x - 1.0/3) }, 0, 1, 5.0 / 18, Options{}, 2000},
 		// ∫_{−3}^{3} x³ dx = 0: absolute target
 		{"odd", func(x float64) float64 { return x * x * x }, -3, 3, 0, Options{AbsTol: 1e-13}, 15},
+		// (1/200)·∫_{−60}^{140} erfc(u) du = 2·60/200 = 0.6 (∫ erfc over a
+		// symmetric range is its length; the far tail beyond 140 is below
+		// 1e-300): a smoothed step
+		{"step-like", func(x float64) float64 { return math.Erfc(200 * (x - 0.3)) }, 0, 1, 0.6, Options{}, 3000},
+		// ∫_0^1 dx/(1e-4 + (x − 1/2)²) = 2·arctan(50)/1e-2: a sharp peak
+		{"peak", func(x float64) float64 { return 1 / (1e-4 + (x-0.5)*(x-0.5)) }, 0, 1, 2 * math.Atan(50) / 1e-2, Options{}, 3000},
 		// a == b
 		{"empty", math.Exp, 2, 2, 0, Options{}, 0},
 	}

@@ -1,11 +1,13 @@
 package lora
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"sort"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/quad"
 )
 
 // ThermalNoise is the thermal noise density at 290 K, in dBm/Hz (−174
@@ -285,8 +287,12 @@ func SettleADR(reg Region, link Link, cfg ADRConfig) (Settled, error) {
 		} else {
 			F := link.Distance
 			f := func(u float64, dst []float64) { eval(F.Quantile(u), dst) }
-			probs, bound = integrate(f, 0, 1, len(probs), 1e-10, 4000)
-			bound += 1e-15
+			r, err := quad.AdaptiveVec(probs, f, 0, 1, quad.Options{AbsTol: 1e-10, MaxEvals: 60000})
+			if errors.Is(err, quad.ErrParam) { // the distance law or the path loss gave NaN or ±Inf
+				return Settled{}, fmt.Errorf("lora.%s: quadrature over the distance quantile: %w", fn, err)
+			}
+			// a spent budget keeps the result with its (larger) bound
+			bound = r.Error + 1e-15
 			method = "adaptive Gauss–Kronrod 7/15 over the distance quantile"
 		}
 	}

@@ -50,7 +50,7 @@
 //     sums of normal, exponential and gamma terms;
 //   - numerical: the product of the terms' transforms inverted by a Fourier
 //     series (Abate & Whitt 1992) on a window sized by Chernoff bounds, far
-//     tails by exponential tilting, a bulk grid after 32 values; a lattice
+//     tails by exponential tilting, a bulk grid built on first use; a lattice
 //     FFT for terms without a known transform. These laws implement
 //     Estimated, and the tests check the stated bound against closed forms
 //     (CDF errors 1e-15 to 1e-11 measured; survival relative errors below

@@ -6,7 +6,6 @@ import (
 	"math/cmplx"
 	"math/rand/v2"
 	"sync"
-	"sync/atomic"
 )
 
 // The inversion engine. A numerically computed law is held as
@@ -75,7 +74,6 @@ type numLaw struct {
 	acc            Accuracy // set by accOnce
 	gridOnce       *sync.Once
 	grid           *cdfGrid // set by gridOnce (nil: no grid)
-	calls          *atomic.Int64
 	// upperClosed is set (by withExpTail, before the law is returned) when
 	// the upper tail from the centred point closedAbove on is answered by a
 	// closed form, so this law's tilted upper tail is not asked for there
@@ -248,7 +246,6 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	l.accBase, l.extraErr = cdfAbs, sp.extraErr
 	l.accOnce = new(sync.Once)
 	l.gridOnce = new(sync.Once)
-	l.calls = new(atomic.Int64)
 	return l, nil
 }
 
@@ -345,7 +342,7 @@ func (l *numLaw) accuracy() Accuracy {
 	}
 	method := fmt.Sprintf("Fourier-series inversion, %d terms", len(l.pr))
 	if l.grid != nil {
-		method += fmt.Sprintf(" (bulk interpolated on a %d-point grid after %d values)", l.grid.size(), gridAfter)
+		method += fmt.Sprintf(" (bulk interpolated on a %d-point grid)", l.grid.size())
 	}
 	floor := cdfAbs / 1e-6
 	rel := math.Max(1e-6, cdfAbs/tiltSwitch)

@@ -238,56 +238,6 @@ func (l Lifetime) kQuantile(p float64, upper bool) int64 {
 	return searchK(pred, guess, step, l.kmin, l.kmax)
 }
 
-// anchors returns the two cached k (as M = k) whose probits z(k) lie
-// closest to zt from below and from above, or else the two nearest to zt,
-// with their probits; NaN when the cache holds fewer than two usable points.
-func (l Lifetime) anchors(zt float64) (k0, k1, z0, z1 float64) {
-	std := dist.MustNormal(0, 1)
-	below, above := math.Inf(-1), math.Inf(1)
-	k0, k1 = math.NaN(), math.NaN()
-	// Failing a bracketing pair, the two points nearest to zt.
-	n0, n1, d0, d1 := math.NaN(), math.NaN(), math.Inf(1), math.Inf(1)
-	var y0, y1 float64
-	f := l.ev
-	if f == nil {
-		return math.NaN(), math.NaN(), 0, 0
-	}
-	f.mu.Lock()
-	defer f.mu.Unlock()
-	for k, v := range f.cache {
-		var z float64
-		if v[1] <= 0.5 {
-			z = std.Quantile(v[1])
-		} else {
-			z = std.UpperQuantile(v[0])
-		}
-		if math.IsInf(z, 0) || math.IsNaN(z) {
-			continue
-		}
-		kk := float64(k - 1)
-		if z <= zt && z > below {
-			below, k0 = z, kk
-		}
-		if z > zt && z < above {
-			above, k1 = z, kk
-		}
-		switch d := math.Abs(z - zt); {
-		case d < d0:
-			n1, d1, y1 = n0, d0, y0
-			n0, d0, y0 = kk, d, z
-		case d < d1:
-			n1, d1, y1 = kk, d, z
-		}
-	}
-	if !math.IsNaN(k0) && !math.IsNaN(k1) {
-		return k0, k1, below, above
-	}
-	if !math.IsNaN(n1) && y0 != y1 {
-		return n1, n0, y1, y0
-	}
-	return math.NaN(), math.NaN(), 0, 0
-}
-
 // secantK returns a k near the solution of z(k) = zt, where z(k) is the
 // probit of P(M <= k) (taken from the smaller tail, so that it stays exact
 // far out): nearly linear in k by the renewal central limit theorem, so a
@@ -304,18 +254,17 @@ func (l Lifetime) secantK(zt, g, step float64) float64 {
 		}
 		return std.UpperQuantile(v[0])
 	}
-	// Start from the two evaluated k (cached) whose probits bracket zt most
-	// closely, or from the guess and one step beside it.
-	k0, k1, z0, z1 := l.anchors(zt)
-	if math.IsNaN(k0) {
-		k0 = clamp(g)
-		z0 = z(k0)
-		k1 = clamp(k0 + math.Copysign(step, zt-z0))
-		if k1 == k0 {
-			k1 = clamp(k0 - math.Copysign(step, zt-z0))
-		}
-		z1 = z(k1)
+	// Start from the guess and one step beside it: never from points
+	// evaluated earlier (a cache's content depends on what was asked
+	// before, and the search's end point, hence the answer's rounding,
+	// would follow it).
+	k0 := clamp(g)
+	z0 := z(k0)
+	k1 := clamp(k0 + math.Copysign(step, zt-z0))
+	if k1 == k0 {
+		k1 = clamp(k0 - math.Copysign(step, zt-z0))
 	}
+	z1 := z(k1)
 	for range 12 {
 		if math.IsInf(z0, 0) || math.IsInf(z1, 0) || math.IsNaN(z0+z1) || z1 == z0 || k1 == k0 {
 			return math.NaN()

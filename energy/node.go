@@ -1,0 +1,451 @@
+package energy
+
+import (
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/integrate/quad"
+
+	"github.com/joulelaw/joulelaw/dist"
+)
+
+// glNodes is the order of the fixed Gauss–Legendre rule on each piece of
+// the floor factor's integral.
+const glNodes = 16
+
+// MaxNodeSettings caps the radio settings (cycles) of one NodeSpec.
+const MaxNodeSettings = 1024
+
+// NodeSetting is one of the cycles a group's nodes run, with the share of
+// nodes that run it (for example one per data rate and transmit power that
+// adaptive data rate leaves nodes at). A node keeps its setting for life.
+type NodeSetting struct {
+	Weight float64 // share of the group's nodes, > 0; the weights must sum to 1
+	Cycle  Cycle   // the cycle those nodes run; state currents at the supply's rail voltage
+}
+
+// NodeSpec describes the nodes of one group: their cycles, their cell, the
+// supply path between them, how cell and board respond to temperature, the
+// per-node spreads and the cell's calendar.
+type NodeSpec struct {
+	Name     string        // free text, used in messages
+	Settings []NodeSetting // at least one, at most MaxNodeSettings
+	Battery  Battery       // the cell; its SelfDischargePerYear is taken at Thermal.ReferenceTemperature
+
+	// Supply is the path from the cell to the node's rail; the zero value
+	// is DirectSupply (the node runs on the cell).
+	Supply Supply
+	// Thermal is how the cell and the board follow temperature; nil means
+	// they do not (the climate is then ignored).
+	Thermal *Thermal
+	// Voltage, when given, sets the usable share of the capacity: the depth
+	// of discharge at which the cell's voltage under the node's largest
+	// current pulse falls to Brownout, at the coldest temperature of the
+	// year (VoltageCurve.UsableFraction). It replaces
+	// BatterySpec.UsableFraction. nil keeps BatterySpec.UsableFraction.
+	Voltage  *VoltageCurve
+	Brownout float64 // V: the node's brown-out (minimum supply) voltage; required with Voltage
+
+	Spread NodeSpread // per-node spreads; the zero value means none
+
+	// CalendarLife is the cell's rated service (calendar) life (s) counted
+	// from manufacture; 0 means no limit. A node's life ends at the earlier
+	// of its energy running out and CalendarLife − StorageTime.
+	CalendarLife float64
+	// StorageTime is the time (s) between the cell's manufacture and the
+	// node's deployment, spent at the reference temperature: it takes
+	// self-discharge from the capacity and from the calendar life.
+	StorageTime float64
+	// StartMonth is the calendar month of deployment, 0 (January) to 11.
+	StartMonth int
+}
+
+// Environment is what a node's law is conditional on: the site's climate
+// and one realisation of the shared factors.
+type Environment struct {
+	// Climate is the year of operating temperature; nil means the
+	// reference temperature all year (used only with NodeSpec.Thermal).
+	Climate *Climate
+	Conditions
+}
+
+// node is the precomputed model of one group's nodes in one environment.
+type node struct {
+	name      string
+	settings  []nodeSetting
+	spread    NodeSpread
+	nominal   float64 // J nominal energy of the cell, times the batch factor
+	batch     float64
+	quiescent float64 // W drawn by the supply regardless of load
+	sdRate    float64 // fraction of the nominal capacity per s at the reference temperature
+	storage   float64 // fraction of the nominal capacity lost in storage
+	calendar  float64 // s after deployment; +Inf for none
+	floorCum  [13]float64
+	sdCum     [13]float64
+	floorRate [12]float64 // factor on the floor power in the i-th month after deployment
+	sdFactor  [12]float64 // factor on the self-discharge rate, same months
+	warnings  []string
+	glx, glw  []float64 // Gauss–Legendre nodes and weights on [−1, 1]
+}
+
+// nodeSetting is one setting's share of the model.
+type nodeSetting struct {
+	w       float64
+	rate    float64 // cycles per s: 1/E[T]
+	floorP  float64 // W at the cell, at the reference temperature (supply scale included)
+	usable  float64 // J usable at batch and node factor 1, before self-discharge
+	mu, k2  float64 // mean (J) and variance (J²) of one cycle's active energy at the cell
+	l3, l4  float64 // its standardized third and fourth cumulants
+	l5      float64 // and fifth
+	excess  dist.Law
+	sums    *dist.IIDSums // exact k-fold path when the node has no spread
+	scale   float64       // supply energy scale
+	usableF float64       // usable fraction of the nominal capacity
+}
+
+// newNode precomputes the model of spec in env.
+func newNode(fn string, spec NodeSpec, env Environment) (*node, error) {
+	pre := "spec."
+	if spec.Name != "" {
+		pre = fmt.Sprintf("spec %q: ", spec.Name)
+	}
+	if err := env.Conditions.check(fn); err != nil {
+		return nil, err
+	}
+	if err := spec.Spread.check(fn, pre); err != nil {
+		return nil, err
+	}
+	b := spec.Battery
+	if b.spec.NominalVoltage == 0 {
+		return nil, paramErr(fn, pre+"Battery", "zero Battery", "must be built by NewBattery")
+	}
+	switch {
+	case len(spec.Settings) == 0 || len(spec.Settings) > MaxNodeSettings:
+		return nil, paramErr(fn, pre+"Settings", len(spec.Settings), fmt.Sprintf("must hold 1 to %d settings", MaxNodeSettings))
+	case !(spec.CalendarLife >= 0) || math.IsInf(spec.CalendarLife, 0):
+		return nil, paramErr(fn, pre+"CalendarLife", spec.CalendarLife, "must be finite and >= 0 (s; 0 for no limit)")
+	case !(spec.StorageTime >= 0) || math.IsInf(spec.StorageTime, 0):
+		return nil, paramErr(fn, pre+"StorageTime", spec.StorageTime, "must be finite and >= 0 (s)")
+	case spec.CalendarLife > 0 && spec.StorageTime >= spec.CalendarLife:
+		return nil, paramErr(fn, pre+"StorageTime", spec.StorageTime, fmt.Sprintf("must be below CalendarLife %g s: the cell is past its calendar life before deployment", spec.CalendarLife))
+	case spec.StartMonth < 0 || spec.StartMonth > 11:
+		return nil, paramErr(fn, pre+"StartMonth", spec.StartMonth, "must be in 0..11 (January is 0)")
+	case spec.Voltage != nil && !(spec.Brownout > 0 && spec.Brownout < b.spec.NominalVoltage*2):
+		return nil, paramErr(fn, pre+"Brownout", spec.Brownout, "must be > 0 V (the node's minimum supply voltage) when Voltage is given")
+	}
+	wsum := 0.0
+	for i, s := range spec.Settings {
+		if !(s.Weight > 0 && s.Weight <= 1) {
+			return nil, paramErr(fn, fmt.Sprintf("%sSettings[%d].Weight", pre, i), s.Weight, "must be in (0, 1]")
+		}
+		if s.Cycle.energy == nil {
+			return nil, paramErr(fn, fmt.Sprintf("%sSettings[%d].Cycle", pre, i), "zero Cycle", "must be built by NewCycle")
+		}
+		wsum += s.Weight
+	}
+	if math.Abs(wsum-1) > 1e-9 {
+		return nil, paramErr(fn, pre+"Settings", wsum, "weights must sum to 1 (within 1e-9)")
+	}
+
+	n := &node{name: spec.Name, spread: spec.Spread, batch: env.batch(), calendar: math.Inf(1)}
+	n.glx, n.glw = make([]float64, glNodes), make([]float64, glNodes)
+	quad.Legendre{}.FixedLocations(n.glx, n.glw, -1, 1)
+	if spec.CalendarLife > 0 {
+		n.calendar = spec.CalendarLife - spec.StorageTime
+	}
+	v := b.spec.NominalVoltage
+	if err := spec.Supply.Check(v); err != nil {
+		return nil, causeErr(fn, pre+"Supply", spec.Supply.String(), "cannot run from the cell's nominal voltage", err)
+	}
+	scale, quiescent := spec.Supply.EnergyScale(v), spec.Supply.QuiescentPower(v)
+	n.quiescent = quiescent
+	n.nominal = b.NominalEnergy() * n.batch
+	n.sdRate = b.spec.SelfDischargePerYear / Year
+	n.storage = n.sdRate * spec.StorageTime
+
+	// The year month by month from deployment: floor factor, self-discharge
+	// factor and capacity derating at each month's temperature.
+	derate := 1.0
+	coldest := math.Inf(1)
+	for i := range 12 {
+		n.floorRate[i], n.sdFactor[i] = 1, 1
+	}
+	if th := spec.Thermal; th != nil {
+		clim := env.Climate
+		if clim == nil {
+			c, err := ConstantClimate(th.ReferenceTemperature)
+			if err != nil {
+				return nil, causeErr(fn, "env.Climate", nil, "reference climate", err)
+			}
+			clim = &c
+		}
+		shifted := clim.Shift(env.TemperatureOffset)
+		n.warnings = append(n.warnings, th.RangeWarnings(shifted)...)
+		sw := shifted.DailySwing()
+		sum := 0.0
+		for i := range 12 {
+			t := shifted.Month((spec.StartMonth + i) % 12)
+			n.floorRate[i] = th.FloorFactor(t, sw)
+			n.sdFactor[i] = th.SelfDischargeFactor(t, sw)
+			d, err := th.CapacityFactor(t)
+			if err != nil {
+				return nil, causeErr(fn, pre+"Thermal.Derating", t, fmt.Sprintf("derating at the month %d's temperature", (spec.StartMonth+i)%12), err)
+			}
+			sum += d
+			coldest = math.Min(coldest, t-sw/2)
+		}
+		derate = sum / 12
+	}
+	for i := range 12 {
+		n.floorCum[i+1] = n.floorCum[i] + Month*n.floorRate[i]
+		n.sdCum[i+1] = n.sdCum[i] + Month*n.sdFactor[i]
+	}
+
+	usableF := b.spec.UsableFraction
+	for i, s := range spec.Settings {
+		c := s.Cycle
+		st := nodeSetting{w: s.Weight, rate: 1 / c.period.Mean(), floorP: scale * c.floor, scale: scale, excess: c.excess}
+		uf := usableF
+		if spec.Voltage != nil {
+			peak := 0.0
+			for _, state := range c.States() {
+				peak = math.Max(peak, state.peakCurrent(v))
+			}
+			// Cell current under the peak: node power scaled through the
+			// supply, plus its own draw, at the cell's voltage.
+			ipk := (peak*v*scale + quiescent) / v
+			tc := 20.0
+			if spec.Thermal != nil {
+				tc = spec.Thermal.ReferenceTemperature
+				if !math.IsInf(coldest, 0) {
+					tc = coldest
+				}
+			}
+			f, err := spec.Voltage.UsableFraction(ipk, tc, spec.Brownout)
+			if err != nil {
+				return nil, causeErr(fn, fmt.Sprintf("%sSettings[%d]", pre, i), ipk, "usable fraction under the largest pulse", err)
+			}
+			uf = f
+		}
+		st.usableF = uf
+		st.usable = b.NominalEnergy() * uf * derate
+		mom, err := centralMoments(c.excess)
+		if err != nil {
+			return nil, causeErr(fn, fmt.Sprintf("%sSettings[%d].Cycle", pre, i), c.String(), "moments of the active energy", err)
+		}
+		st.mu = scale * mom[0]
+		k2 := mom[1]
+		k3 := mom[2]
+		k4 := mom[3] - 3*mom[1]*mom[1]
+		k5 := mom[4] - 10*mom[2]*mom[1]
+		st.k2 = scale * scale * k2
+		if k2 > 0 {
+			st.l3 = k3 / math.Pow(k2, 1.5)
+			st.l4 = k4 / (k2 * k2)
+			st.l5 = k5 / math.Pow(k2, 2.5)
+		}
+		if spec.Spread.Capacity == 0 && spec.Spread.Active == 0 && spec.Spread.Floor == 0 {
+			sums, err := dist.NewIIDSums(c.excess)
+			if err != nil {
+				return nil, causeErr(fn, fmt.Sprintf("%sSettings[%d].Cycle", pre, i), c.String(), "k-fold sums of the active energy", err)
+			}
+			st.sums = &sums
+		}
+		n.settings = append(n.settings, st)
+	}
+	return n, nil
+}
+
+// centralMoments returns the mean and the central moments of orders 2 to 5
+// of l: exact sums for a finite discrete law, otherwise by quadrature of
+// the quantile function, ∫_0^1 (Q(u) − μ)^r du.
+func centralMoments(l dist.Law) ([5]float64, error) {
+	var m [5]float64
+	mu := l.Mean()
+	m[0] = mu
+	if a, ok := l.(dist.Atomic); ok {
+		atoms := a.Atoms()
+		tot := 0.0
+		for _, at := range atoms {
+			tot += at.Mass
+		}
+		if math.Abs(tot-1) < 1e-12 {
+			for _, at := range atoms {
+				d := at.Value - mu
+				p := at.Mass
+				m[1] += p * d * d
+				m[2] += p * d * d * d
+				m[3] += p * d * d * d * d
+				m[4] += p * d * d * d * d * d
+			}
+			return m, nil
+		}
+	}
+	m[1] = l.Variance()
+	for r := 3; r <= 5; r++ {
+		res, err := integrate(func(u float64) float64 {
+			return math.Pow(l.Quantile(u)-mu, float64(r))
+		}, 0, 1, 1e-13, 1e-8)
+		if err != nil {
+			return m, err
+		}
+		m[r-1] = res
+	}
+	return m, nil
+}
+
+// cum returns the integral over [0, t] (t in s after deployment) of the
+// monthly factors tabulated as cumulative sums c.
+func (n *node) cum(c *[13]float64, rate *[12]float64, t float64) float64 {
+	y := math.Floor(t / Year)
+	r := t - y*Year
+	i := int(r / Month)
+	if i > 11 {
+		i = 11
+	}
+	return y*c[12] + c[i] + (r-float64(i)*Month)*rate[i]
+}
+
+// settingAt returns P(a node of setting j still has energy at t) and
+// P(it has run out), each computed directly, and an error estimate, for
+// t in s after deployment (the calendar limit is not applied here).
+//
+// With c, a and f the node's capacity, active and floor factors, b the
+// batch factor, A(t) the active energy of the t·rate cycles run by t (at
+// the cell), Φ(t) the floor power's integral and D(t) the self-discharge
+// taken so far (fraction of the nominal capacity), the node has energy
+// left while
+//
+//	c·b·(U − N·D(t)) − a·A(t) − f·Φ(t) − P_q·t >= 0.
+//
+// Given A and f, c·b·(U − N·D) − a·A is normal; A is replaced by a normal
+// of its exact mean and variance (its higher cumulants are tiny beside
+// the node spreads; newNodeLifetime measures what they move with a
+// three-node moment rule); the lognormal f is integrated by adaptive
+// quadrature.
+func (n *node) settingAt(j int, t float64) (alive, dead, errEst float64) {
+	s := &n.settings[j]
+	capLeft := n.batch*s.usable - n.nominal*(n.storage+n.sdRate*n.cum(&n.sdCum, &n.sdFactor, t))
+	if !(capLeft > 0) {
+		return 0, 1, 0
+	}
+	k := t * s.rate
+	floorE := s.floorP * n.cum(&n.floorCum, &n.floorRate, t)
+	h := n.quiescent * t
+	mean := k * s.mu
+	if s.sums != nil {
+		// No per-node spread: the exact k-fold law of the active energy
+		// over the cycles begun by t.
+		kk := math.Floor(k) + 1
+		if kk > math.MaxInt32 {
+			return math.NaN(), math.NaN(), math.NaN()
+		}
+		x := (capLeft - floorE - h) / s.scale
+		return s.sums.CDF(int(kk), x), s.sums.Survival(int(kk), x), 0
+	}
+	return n.normalPart(capLeft, mean, k*s.k2, floorE, h, 0)
+}
+
+// normalPart returns P(c·C − a·v − f·L >= h) and its complement, with c
+// normal (1, σ_c), a normal (1, σ_a), v normal (mean, vv) and f lognormal
+// (median 1, log-sd σ_f), all independent; and the quadrature's error
+// estimate. extra is added to the variance.
+func (n *node) normalPart(capLeft, mean, vv, floorE, h, extra float64) (alive, dead, errEst float64) {
+	sc, sa, sf := n.spread.Capacity, n.spread.Active, n.spread.Floor
+	m := capLeft - mean
+	// Var(a·v) = σ_a²·(mean² + vv) + vv for independent a and v.
+	varY := sc*sc*capLeft*capLeft + sa*sa*(mean*mean+vv) + vv + extra
+	sd := math.Sqrt(varY)
+	if sf == 0 || floorE == 0 {
+		if sd == 0 {
+			if m-floorE >= h {
+				return 1, 0, 0
+			}
+			return 0, 1, 0
+		}
+		z := (floorE + h - m) / sd
+		return normSurv(z), normSurv(-z), 0
+	}
+	if sd == 0 {
+		// Only the floor varies: alive iff f <= (m − h)/floorE.
+		if !(m > h) {
+			return 0, 1, 0
+		}
+		z := math.Log((m-h)/floorE) / sf
+		return normSurv(-z), normSurv(z), 0
+	}
+	// ∫ φ(z)·Φ̄((L·e^{σ_f z} + h − m)/sd) dz over z in [−zMax, zMax]
+	// (the normal mass outside is 2·Φ̄(zMax) < 1e-20).
+	const zMax = 9.3
+	g := func(z float64) float64 { return (floorE*math.Exp(sf*z) + h - m) / sd }
+	// The integrand turns from 1 to 0 around z* where L·e^{σ_f z*} = m − h.
+	var brk []float64
+	if m > h {
+		zs := math.Log((m-h)/floorE) / sf
+		w := sd / ((m - h) * sf) // width of the turn in z
+		for _, x := range []float64{zs - 4*w, zs, zs + 4*w} {
+			if x > -zMax && x < zMax {
+				brk = append(brk, x)
+			}
+		}
+	}
+	// Integrate the smaller side only (the other is its complement, exact
+	// to rounding): which side is smaller is read off the median floor.
+	aliveSide := g(0) > 0
+	pts := []float64{-zMax}
+	pts = append(pts, brk...)
+	pts = append(pts, zMax)
+	v := n.fixedPieces(pts, g, aliveSide)
+	if v > 0.5 {
+		aliveSide = !aliveSide
+		v = n.fixedPieces(pts, g, aliveSide)
+	}
+	if aliveSide {
+		return v, 1 - v, 0
+	}
+	return 1 - v, v, 0
+}
+
+// fixedPieces integrates φ(z)·Φ̄(±g(z)) over the pieces between pts with
+// the node's fixed Gauss–Legendre rule on each piece (the pieces are cut
+// where the integrand turns, so each is smooth on its own scale; the
+// rule's error is measured against adaptive quadrature in accuracyAt).
+func (n *node) fixedPieces(pts []float64, g func(float64) float64, alive bool) float64 {
+	sum := 0.0
+	for i := 0; i+1 < len(pts); i++ {
+		a, b := pts[i], pts[i+1]
+		h, c := (b-a)/2, (a+b)/2
+		part := 0.0
+		for k, x := range n.glx {
+			z := c + h*x
+			gz := g(z)
+			if !alive {
+				gz = -gz
+			}
+			part += n.glw[k] * normPDF(z) * normSurv(gz)
+		}
+		sum += h * part
+	}
+	return sum
+}
+
+// adaptivePart is normalPart's floor integral by adaptive quadrature, for
+// measuring the fixed rule's error.
+func (n *node) adaptivePart(capLeft, mean, floorE, h float64) (alive, errEst float64) {
+	sc, sa, sf := n.spread.Capacity, n.spread.Active, n.spread.Floor
+	m := capLeft - mean
+	sd := math.Sqrt(sc*sc*capLeft*capLeft + sa*sa*mean*mean)
+	if sf == 0 || floorE == 0 || sd == 0 {
+		a, _, _ := n.normalPart(capLeft, mean, 0, floorE, h, 0)
+		return a, 0
+	}
+	g := func(z float64) float64 { return (floorE*math.Exp(sf*z) + h - m) / sd }
+	return integratePiecesTol(func(z float64) float64 { return normPDF(z) * normSurv(g(z)) }, -9.3, 9.3, nil, 1e-12)
+}
+
+// normSurv is the standard normal survival Φ̄(z) = erfc(z/√2)/2, accurate
+// in the upper tail.
+func normSurv(z float64) float64 { return 0.5 * math.Erfc(z/math.Sqrt2) }
+
+// normPDF is the standard normal density.
+func normPDF(z float64) float64 { return math.Exp(-0.5*z*z) / math.Sqrt(2*math.Pi) }

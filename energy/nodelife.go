@@ -1,0 +1,447 @@
+package energy
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"sync"
+
+	"github.com/joulelaw/joulelaw/dist"
+)
+
+// NodeLifetime is the law of the time (s, from deployment) until a node of
+// a group is at the end of its life, in one Environment (a climate and one
+// realisation of the shared factors): the mixture over the node's setting
+// and its per-node factors (NodeSpread) of the time its energy runs out,
+// capped at the cell's calendar limit CalendarLife − StorageTime.
+//
+// Tiers: the per-cycle noise is that of the settings' cycles (the active
+// energy over t of them, exact mean and variance); the per-node factors are
+// mixed over exactly (normal capacity and active factors in closed form, the
+// lognormal floor factor by adaptive quadrature); the setting is a finite
+// mixture. The environment is fixed: for a fleet, Site mixes over it.
+//
+// The cell over the calendar: month by month from StartMonth, the floor
+// power follows Thermal.FloorFactor and self-discharge
+// Thermal.SelfDischargeFactor at the month's temperature (with the climate's
+// daily swing and the shared offset); the usable capacity is derated by the
+// year's mean of Thermal.CapacityFactor; the supply path scales the node's
+// energy and adds its quiescent draw. Active currents are taken as
+// independent of temperature (common practice for planning: they move a few
+// per cent over a cell's range, from memory).
+//
+// Time is continuous: by t the node has run t/E[T] cycles, counted by their
+// cumulants, so the law has a density below the calendar limit; with no
+// per-node spread it is the exact k-fold law of the cycles begun by t and
+// moves in steps of one period. The lifetime is then known to within one
+// period, as for Lifetime.
+//
+// If the calendar limit binds for some nodes, the law has an atom there
+// (Atoms). NodeLifetime implements dist.Law, dist.Atomic and dist.Estimated;
+// it is an immutable value, safe for concurrent use. A zero NodeLifetime is
+// not valid: its methods return NaN.
+type NodeLifetime struct {
+	n  *node
+	lz *nodeLazy
+}
+
+type nodeLazy struct {
+	once       sync.Once
+	mean, vari float64
+	momErr     float64
+	accOnce    sync.Once
+	acc        dist.Accuracy
+}
+
+// NewNodeLifetime returns the lifetime law of spec's nodes in env. Errors
+// name the field, its value and the rule (wrapping ErrParam).
+func NewNodeLifetime(spec NodeSpec, env Environment) (NodeLifetime, error) {
+	const fn = "NewNodeLifetime"
+	n, err := newNode(fn, spec, env)
+	if err != nil {
+		return NodeLifetime{}, err
+	}
+	return NodeLifetime{n: n, lz: &nodeLazy{}}, nil
+}
+
+// energyAt returns P(energy left at t), P(run out by t) and the summed
+// error estimate, without the calendar limit.
+func (l NodeLifetime) energyAt(t float64) (alive, dead, errEst float64) {
+	for j := range l.n.settings {
+		a, d, e := l.n.settingAt(j, t)
+		w := l.n.settings[j].w
+		alive += w * a
+		dead += w * d
+		errEst += w * e
+	}
+	return alive, dead, errEst
+}
+
+// accuracyAt probes the law at the times ts and compares, setting by
+// setting, the normal stand-in for the per-cycle sum with a three-node
+// Gaussian rule built from its first five cumulants; the largest
+// difference plus the quadrature estimates is the stated CDF error.
+func (l NodeLifetime) accuracyAt(ts []float64) dist.Accuracy {
+	n := l.n
+	acc := dist.Accuracy{TailFloor: 1e-14, Method: "mixture over settings and per-node factors (closed form in the normal factors, adaptive quadrature in the floor factor); per-cycle sum by its exact mean and variance"}
+	if n.spread.IsZero() {
+		acc.Method = "mixture over settings of exact k-fold laws of the active energy"
+		for j := range n.settings {
+			if law, err := n.settings[j].sums.Law(2); err == nil {
+				if e, ok := law.(dist.Estimated); ok {
+					acc.CDFAbs = math.Max(acc.CDFAbs, e.Accuracy().CDFAbs)
+				}
+			}
+		}
+		acc.SurvivalRel = acc.CDFAbs / acc.TailFloor
+		return acc
+	}
+	worst, rel := 0.0, 0.0
+	for _, t := range ts {
+		if !(t > 0) || math.IsInf(t, 0) {
+			continue
+		}
+		for j := range n.settings {
+			s := &n.settings[j]
+			a0, _, e0 := n.settingAt(j, t)
+			k := t * s.rate
+			capLeft := n.batch*s.usable - n.nominal*(n.storage+n.sdRate*n.cum(&n.sdCum, &n.sdFactor, t))
+			if !(capLeft > 0) {
+				continue
+			}
+			floorE := s.floorP * n.cum(&n.floorCum, &n.floorRate, t)
+			h := n.quiescent * t
+			kk2 := k * s.k2
+			// Standardized cumulants of the k-cycle sum: l_r / k^{r/2−1}.
+			rule := newMomentRule(3, k*s.mu, kk2, s.l3/math.Sqrt(k), s.l4/k, s.l5/math.Pow(k, 1.5))
+			a3 := 0.0
+			for i := range rule.n {
+				ai, _, ei := n.normalPart(capLeft, rule.x[i], 0, floorE, h, 0)
+				a3 += rule.w[i] * ai
+				e0 += rule.w[i] * ei
+			}
+			// The fixed floor rule against adaptive quadrature, at the mean.
+			aq, eq := n.adaptivePart(capLeft, k*s.mu, floorE, h)
+			af, _, _ := n.normalPart(capLeft, k*s.mu, 0, floorE, h, 0)
+			diff := math.Abs(a3-a0) + math.Abs(aq-af) + eq + e0
+			worst = math.Max(worst, s.w*diff)
+			if a0 >= acc.TailFloor {
+				rel = math.Max(rel, diff/a0)
+			}
+		}
+	}
+	acc.CDFAbs = worst * float64(len(n.settings))
+	acc.SurvivalRel = rel
+	return acc
+}
+
+// Accuracy reports the stated error: CDFAbs bounds |CDF error| as measured
+// at the law's 1e-6, 0.5 and 1 − 1e-6 quantiles (the per-cycle sum's
+// normal stand-in against a five-cumulant Gaussian rule, plus the
+// quadrature's estimates).
+func (l NodeLifetime) Accuracy() dist.Accuracy {
+	if l.n == nil {
+		return dist.Accuracy{CDFAbs: math.NaN(), SurvivalRel: math.NaN(), TailFloor: math.NaN()}
+	}
+	l.lz.accOnce.Do(func() {
+		var ts []float64
+		for _, p := range []float64{1e-6, 0.5, 1 - 1e-6} {
+			ts = append(ts, l.energyQuantile(p, false))
+		}
+		l.lz.acc = l.accuracyAt(ts)
+	})
+	return l.lz.acc
+}
+
+// Calendar returns the calendar limit (s after deployment): CalendarLife −
+// StorageTime, +Inf when none was given.
+func (l NodeLifetime) Calendar() float64 {
+	if l.n == nil {
+		return math.NaN()
+	}
+	return l.n.calendar
+}
+
+// EnergyBinds returns the probability that the node's energy runs out
+// before its calendar limit (1 without a limit): the share of nodes whose
+// life the energy, not the calendar, ends.
+func (l NodeLifetime) EnergyBinds() float64 {
+	if l.n == nil {
+		return math.NaN()
+	}
+	if math.IsInf(l.n.calendar, 1) {
+		return 1
+	}
+	_, d, _ := l.energyAt(l.n.calendar)
+	return d
+}
+
+// Warnings returns the environment's warnings (temperatures outside the
+// cell's rated range), one line each.
+func (l NodeLifetime) Warnings() []string {
+	if l.n == nil {
+		return nil
+	}
+	return append([]string(nil), l.n.warnings...)
+}
+
+// CDF returns P(lifetime <= t), t in s; 0 for t < 0, 1 from the calendar
+// limit on; NaN for NaN t.
+func (l NodeLifetime) CDF(t float64) float64 {
+	switch {
+	case l.n == nil || math.IsNaN(t):
+		return math.NaN()
+	case t <= 0:
+		return 0
+	case t >= l.n.calendar:
+		return 1
+	}
+	_, d, _ := l.energyAt(t)
+	return math.Min(1, math.Max(0, d))
+}
+
+// Survival returns P(lifetime > t), computed directly; 1 for t <= 0, 0 from
+// the calendar limit on.
+func (l NodeLifetime) Survival(t float64) float64 {
+	switch {
+	case l.n == nil || math.IsNaN(t):
+		return math.NaN()
+	case t <= 0:
+		return 1
+	case t >= l.n.calendar:
+		return 0
+	}
+	a, _, _ := l.energyAt(t)
+	return math.Min(1, math.Max(0, a))
+}
+
+// Quantile returns inf{t : CDF(t) >= p}; the calendar limit when p is
+// above the energy's share before it. NaN outside [0, 1].
+func (l NodeLifetime) Quantile(p float64) float64 {
+	switch {
+	case l.n == nil || !(p >= 0 && p <= 1):
+		return math.NaN()
+	case p == 0:
+		return 0
+	case p == 1:
+		return l.n.calendar
+	}
+	if !math.IsInf(l.n.calendar, 1) && p > l.CDFBeforeCalendar() {
+		return l.n.calendar
+	}
+	return l.energyQuantile(p, false)
+}
+
+// UpperQuantile returns inf{t : Survival(t) <= q}, accurate for tiny q.
+func (l NodeLifetime) UpperQuantile(q float64) float64 {
+	switch {
+	case l.n == nil || !(q >= 0 && q <= 1):
+		return math.NaN()
+	case q == 1:
+		return 0
+	case q == 0:
+		return l.n.calendar
+	}
+	if !math.IsInf(l.n.calendar, 1) && q < l.survivalAtCalendar() {
+		return l.n.calendar
+	}
+	return l.energyQuantile(q, true)
+}
+
+// CDFBeforeCalendar returns P(the energy runs out before the calendar
+// limit), the CDF just below it.
+func (l NodeLifetime) CDFBeforeCalendar() float64 { return l.EnergyBinds() }
+
+func (l NodeLifetime) survivalAtCalendar() float64 {
+	a, _, _ := l.energyAt(l.n.calendar)
+	return a
+}
+
+// energyQuantile solves P(run out by t) = p (upper: P(energy left at t) =
+// p) for t, ignoring the calendar: bracketing by doubling from the nominal
+// lifetime, then bisection with secant steps on the probit of the smaller
+// tail, to a relative precision of 1e-12 in t.
+func (l NodeLifetime) energyQuantile(p float64, upper bool) float64 {
+	return l.energyQuantileTol(p, upper, 1e-12)
+}
+
+// energyQuantileTol is energyQuantile to the relative precision tol in t.
+func (l NodeLifetime) energyQuantileTol(p float64, upper bool, tol float64) float64 {
+	std := dist.MustNormal(0, 1)
+	target := std.Quantile(p)
+	if upper {
+		target = std.UpperQuantile(p)
+	}
+	// z(t): probit of P(run out by t), from the smaller tail.
+	z := func(t float64) float64 {
+		a, d, _ := l.energyAt(t)
+		if d <= 0.5 {
+			return std.Quantile(math.Max(0, d))
+		}
+		return std.UpperQuantile(math.Max(0, a))
+	}
+	guess := l.nominalLife()
+	if !(guess > 0) || math.IsInf(guess, 0) {
+		guess = Year
+	}
+	lo, hi := guess, guess
+	zlo, zhi := z(lo), z(hi)
+	for i := 0; zlo > target && i < 200; i++ {
+		hi, zhi = lo, zlo
+		lo /= 2
+		zlo = z(lo)
+	}
+	for i := 0; zhi < target && i < 200; i++ {
+		lo, zlo = hi, zhi
+		hi *= 2
+		zhi = z(hi)
+	}
+	if !(zlo <= target && zhi >= target) {
+		if zhi < target {
+			return math.Inf(1)
+		}
+		return lo
+	}
+	for range 200 {
+		if hi-lo <= tol*hi {
+			break
+		}
+		mid := 0.5 * (lo + hi)
+		if !math.IsInf(zlo, 0) && !math.IsInf(zhi, 0) && zhi > zlo {
+			s := lo + (target-zlo)*(hi-lo)/(zhi-zlo)
+			// Keep the secant point well inside the bracket.
+			if s > lo+0.01*(hi-lo) && s < hi-0.01*(hi-lo) {
+				mid = s
+			}
+		}
+		zm := z(mid)
+		if zm >= target {
+			hi, zhi = mid, zm
+		} else {
+			lo, zlo = mid, zm
+		}
+	}
+	return hi
+}
+
+// nominalLife returns the lifetime of the mean node of the heaviest-weight
+// setting, from the mean energy rates (s): a starting point for searches.
+func (l NodeLifetime) nominalLife() float64 {
+	n := l.n
+	best := 0
+	for j := range n.settings {
+		if n.settings[j].w > n.settings[best].w {
+			best = j
+		}
+	}
+	s := n.settings[best]
+	load := s.rate*s.mu + s.floorP + n.quiescent + n.nominal*n.sdRate
+	return (n.batch*s.usable - n.nominal*n.storage) / load
+}
+
+// Mean returns the mean lifetime (s): ∫ Survival over [0, calendar limit)
+// by adaptive quadrature, computed on first use.
+func (l NodeLifetime) Mean() float64 {
+	if l.n == nil {
+		return math.NaN()
+	}
+	l.moments()
+	return l.lz.mean
+}
+
+// Variance returns the variance of the lifetime (s²): 2∫ t·Survival(t) dt
+// − Mean², computed on first use.
+func (l NodeLifetime) Variance() float64 {
+	if l.n == nil {
+		return math.NaN()
+	}
+	l.moments()
+	return l.lz.vari
+}
+
+func (l NodeLifetime) moments() {
+	l.lz.once.Do(func() {
+		hi := l.n.calendar
+		if math.IsInf(hi, 1) {
+			hi = l.energyQuantile(1e-17, true)
+		}
+		lo := l.energyQuantile(1e-17, false)
+		if !(lo < hi) {
+			lo = 0
+		}
+		brk := []float64{}
+		for _, p := range []float64{1e-6, 0.01, 0.1, 0.5, 0.9, 0.99, 1 - 1e-6} {
+			if t := l.Quantile(p); t > lo && t < hi {
+				brk = append(brk, t)
+			}
+		}
+		brk = sortedUnique(brk)
+		m, em := integratePiecesTol(func(t float64) float64 { return l.Survival(t) }, lo, hi, brk, 1e-11)
+		m += lo
+		s2, es := integratePiecesTol(func(t float64) float64 { return 2 * t * l.Survival(t) }, lo, hi, brk, 1e-11)
+		s2 += lo * lo
+		l.lz.mean = m
+		l.lz.vari = math.Max(0, s2-m*m)
+		l.lz.momErr = em + es/(2*math.Max(m, 1))
+	})
+}
+
+// Support returns [0, calendar limit] (the upper end +Inf without one).
+func (l NodeLifetime) Support() (lo, hi float64) {
+	if l.n == nil {
+		return math.NaN(), math.NaN()
+	}
+	return 0, l.n.calendar
+}
+
+// Atoms returns the atom at the calendar limit (the share of nodes whose
+// energy outlasts it), or none.
+func (l NodeLifetime) Atoms() []dist.Atom {
+	if l.n == nil || math.IsInf(l.n.calendar, 1) {
+		return nil
+	}
+	if m := l.survivalAtCalendar(); m > 0 {
+		return []dist.Atom{{Value: l.n.calendar, Mass: m}}
+	}
+	return nil
+}
+
+// Rand draws a lifetime by inverting a uniform from r.
+func (l NodeLifetime) Rand(r *rand.Rand) float64 {
+	if l.n == nil {
+		return math.NaN()
+	}
+	u := r.Float64()
+	if u < 0.5 {
+		return l.Quantile(u)
+	}
+	return l.UpperQuantile(1 - u)
+}
+
+// String summarises the law in years.
+func (l NodeLifetime) String() string {
+	if l.n == nil {
+		return "NodeLifetime(invalid)"
+	}
+	cal := "none"
+	if !math.IsInf(l.n.calendar, 1) {
+		cal = fmt.Sprintf("%.4g y", Years(l.n.calendar))
+	}
+	return fmt.Sprintf("NodeLifetime(median=%.4g y, 5–95%%=[%.4g, %.4g] y, calendar limit %s)",
+		Years(l.Quantile(0.5)), Years(l.Quantile(0.05)), Years(l.Quantile(0.95)), cal)
+}
+
+func sortedUnique(x []float64) []float64 {
+	for i := 1; i < len(x); i++ {
+		for j := i; j > 0 && x[j] < x[j-1]; j-- {
+			x[j], x[j-1] = x[j-1], x[j]
+		}
+	}
+	out := x[:0]
+	for i, v := range x {
+		if i == 0 || v > out[len(out)-1] {
+			out = append(out, v)
+		}
+	}
+	return out
+}

@@ -1,0 +1,324 @@
+package energy
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"sort"
+
+	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/quad"
+)
+
+// Tables of node laws: the probit z(t) of P(run out by t), taken from the
+// smaller tail so that it keeps its precision far out, is smooth and nearly
+// linear in t where a law is near normal; it is tabulated on a grid refined
+// by bisection until a midpoint's monotone cubic (Fritsch and Carlson, SIAM
+// J. Numer. Anal. 17 (1980) 238–246) interpolant is within tabZTol of the
+// law, between the times where the law is 1e-14 and 1 − 1e-14.
+const (
+	tabZTol      = 1e-3 // probit tolerance of a table (relative probability error about |z|·tabZTol)
+	tabMaxPoints = 4096 // cap on a table's points
+	tabInitial   = 9    // points of the first grid
+	tabTail      = 1e-14
+)
+
+// tabulated is a NodeLifetime read from a table; it implements dist.Law,
+// dist.Atomic and dist.Estimated.
+type tabulated struct {
+	src        NodeLifetime
+	t, z, d    []float64 // grid, probit, PCHIP slopes
+	cal        float64   // calendar limit (+Inf for none)
+	atom       float64   // mass at the calendar limit
+	acc        dist.Accuracy
+	mean, vari float64
+}
+
+// tabulate builds the table of l.
+func tabulate(l NodeLifetime) tabulated {
+	std := dist.MustNormal(0, 1)
+	probit := func(t float64) float64 {
+		a, d, _ := l.energyAt(t)
+		if d <= 0.5 {
+			return std.Quantile(math.Max(d, 0))
+		}
+		return std.UpperQuantile(math.Max(a, 0))
+	}
+	tb := tabulated{src: l, cal: l.n.calendar}
+	lo := l.energyQuantileTol(tabTail, false, 1e-4)
+	hi := l.energyQuantileTol(tabTail, true, 1e-4)
+	if hi > tb.cal {
+		hi = tb.cal
+		tb.atom = l.survivalAtCalendar()
+	}
+	if !(lo < hi) {
+		lo = math.Max(0, hi*(1-1e-9))
+	}
+	minWidth := 0.0
+	if l.n.spread.IsZero() {
+		// Exact k-fold laws move in steps of a period: refine no finer.
+		for _, s := range l.n.settings {
+			minWidth = math.Max(minWidth, 2/s.rate)
+		}
+	}
+	ts := make([]float64, tabInitial)
+	zs := make([]float64, tabInitial)
+	for i := range ts {
+		ts[i] = lo + (hi-lo)*float64(i)/float64(tabInitial-1)
+		zs[i] = probit(ts[i])
+	}
+	worst := 0.0
+	done := make([]bool, len(ts)-1) // interval i checked and within tolerance
+	for pass := 0; pass < 40; pass++ {
+		d := pchipSlopes(ts, zs)
+		nt := []float64{ts[0]}
+		nz := []float64{zs[0]}
+		var nd []bool
+		refined := false
+		for i := 0; i+1 < len(ts); i++ {
+			w := ts[i+1] - ts[i]
+			full := len(nt)+2*(len(ts)-i) > tabMaxPoints
+			if done[i] || full || w <= minWidth || (math.IsInf(zs[i], 0) && zs[i] == zs[i+1]) {
+				nt = append(nt, ts[i+1])
+				nz = append(nz, zs[i+1])
+				nd = append(nd, true)
+				continue
+			}
+			m := ts[i] + w/2
+			zm := probit(m)
+			zi := hermite(ts[i], ts[i+1], zs[i], zs[i+1], d[i], d[i+1], m)
+			e := math.Abs(zi - zm)
+			if math.IsInf(zm, 0) || math.IsInf(zs[i], 0) || math.IsInf(zs[i+1], 0) {
+				e = math.Inf(1)
+			}
+			ok := e <= tabZTol
+			if ok {
+				worst = math.Max(worst, e)
+			} else {
+				refined = true
+			}
+			nt = append(nt, m, ts[i+1])
+			nz = append(nz, zm, zs[i+1])
+			nd = append(nd, ok, ok)
+		}
+		ts, zs, done = nt, nz, nd
+		if !refined {
+			break
+		}
+	}
+	tb.t, tb.z = ts, zs
+	tb.d = pchipSlopes(ts, zs)
+	// The model's own error, measured at three of the table's times (the
+	// law's 1e-14 ends and its middle).
+	src := l.accuracyAt([]float64{ts[0], ts[len(ts)/2], ts[len(ts)-1]})
+	// A probit error δ moves a probability p by about φ(z)·δ <= 0.4·δ, and
+	// the smaller tail p by about p·|z|·δ (Mills' ratio): |z| <= 7.7 down to
+	// 1e-14.
+	tb.acc = dist.Accuracy{
+		CDFAbs:      src.CDFAbs + 0.4*worst,
+		SurvivalRel: src.SurvivalRel + 7.7*worst,
+		TailFloor:   math.Max(src.TailFloor, tabTail),
+		Method:      fmt.Sprintf("%s; tabulated on %d times (probit interpolation)", src.Method, len(ts)),
+	}
+	tb.moments()
+	return tb
+}
+
+// pchipSlopes returns Fritsch–Carlson monotone slopes; infinite values
+// (probits of 0 or 1) get slope 0 beside them.
+func pchipSlopes(t, z []float64) []float64 {
+	n := len(t)
+	d := make([]float64, n)
+	if n < 2 {
+		return d
+	}
+	del := make([]float64, n-1)
+	for i := range del {
+		del[i] = (z[i+1] - z[i]) / (t[i+1] - t[i])
+		if math.IsNaN(del[i]) || math.IsInf(del[i], 0) {
+			del[i] = 0
+		}
+	}
+	d[0], d[n-1] = del[0], del[n-2]
+	for i := 1; i < n-1; i++ {
+		if del[i-1]*del[i] <= 0 {
+			continue
+		}
+		h0, h1 := t[i]-t[i-1], t[i+1]-t[i]
+		w1, w2 := 2*h1+h0, h1+2*h0
+		d[i] = (w1 + w2) / (w1/del[i-1] + w2/del[i])
+	}
+	return d
+}
+
+// hermite evaluates the cubic Hermite interpolant on [t0, t1] at x.
+func hermite(t0, t1, z0, z1, d0, d1, x float64) float64 {
+	if math.IsInf(z0, 0) || math.IsInf(z1, 0) {
+		if x-t0 < t1-x {
+			return z0
+		}
+		return z1
+	}
+	h := t1 - t0
+	s := (x - t0) / h
+	h00 := (1 + 2*s) * (1 - s) * (1 - s)
+	h10 := s * (1 - s) * (1 - s)
+	h01 := s * s * (3 - 2*s)
+	h11 := s * s * (s - 1)
+	return h00*z0 + h10*h*d0 + h01*z1 + h11*h*d1
+}
+
+// zAt returns the interpolated probit at t inside the table.
+func (tb tabulated) zAt(t float64) float64 {
+	i := sort.SearchFloat64s(tb.t, t)
+	switch {
+	case i == 0:
+		return tb.z[0]
+	case i >= len(tb.t):
+		return tb.z[len(tb.z)-1]
+	}
+	return hermite(tb.t[i-1], tb.t[i], tb.z[i-1], tb.z[i], tb.d[i-1], tb.d[i], t)
+}
+
+// CDF returns P(lifetime <= t).
+func (tb tabulated) CDF(t float64) float64 {
+	switch {
+	case math.IsNaN(t) || tb.t == nil:
+		return math.NaN()
+	case t >= tb.cal:
+		return 1
+	case t < tb.t[0] || t > tb.t[len(tb.t)-1]:
+		return tb.src.CDF(t)
+	}
+	return normSurv(-tb.zAt(t))
+}
+
+// Survival returns P(lifetime > t), directly.
+func (tb tabulated) Survival(t float64) float64 {
+	switch {
+	case math.IsNaN(t) || tb.t == nil:
+		return math.NaN()
+	case t >= tb.cal:
+		return 0
+	case t < tb.t[0] || t > tb.t[len(tb.t)-1]:
+		return tb.src.Survival(t)
+	}
+	return normSurv(tb.zAt(t))
+}
+
+// invert returns the t with interpolated probit zt (inside the table).
+func (tb tabulated) invert(zt float64) float64 {
+	n := len(tb.z)
+	if zt <= tb.z[0] {
+		return tb.t[0]
+	}
+	if zt >= tb.z[n-1] {
+		return tb.t[n-1]
+	}
+	i := sort.SearchFloat64s(tb.z, zt) // z[i-1] < zt <= z[i]
+	if i == 0 {
+		return tb.t[0]
+	}
+	a, b := tb.t[i-1], tb.t[i]
+	for range 100 {
+		m := 0.5 * (a + b)
+		if m == a || m == b {
+			break
+		}
+		if hermite(tb.t[i-1], tb.t[i], tb.z[i-1], tb.z[i], tb.d[i-1], tb.d[i], m) >= zt {
+			b = m
+		} else {
+			a = m
+		}
+	}
+	return b
+}
+
+// Quantile returns inf{t : CDF(t) >= p}.
+func (tb tabulated) Quantile(p float64) float64 {
+	switch {
+	case tb.t == nil || !(p >= 0 && p <= 1):
+		return math.NaN()
+	case p == 0:
+		return 0
+	case p == 1:
+		return tb.cal
+	case p > 1-tb.atom:
+		return tb.cal
+	}
+	zt := dist.MustNormal(0, 1).Quantile(p)
+	if zt < tb.z[0] || (tb.atom == 0 && zt > tb.z[len(tb.z)-1]) {
+		return tb.src.Quantile(p)
+	}
+	return tb.invert(zt)
+}
+
+// UpperQuantile returns inf{t : Survival(t) <= q}.
+func (tb tabulated) UpperQuantile(q float64) float64 {
+	switch {
+	case tb.t == nil || !(q >= 0 && q <= 1):
+		return math.NaN()
+	case q == 1:
+		return 0
+	case q == 0:
+		return tb.cal
+	case q < tb.atom:
+		return tb.cal
+	}
+	zt := dist.MustNormal(0, 1).UpperQuantile(q)
+	if zt < tb.z[0] || (tb.atom == 0 && zt > tb.z[len(tb.z)-1]) {
+		return tb.src.UpperQuantile(q)
+	}
+	return tb.invert(zt)
+}
+
+func (tb *tabulated) moments() {
+	lo, hi := tb.t[0], tb.t[len(tb.t)-1]
+	// ∫_0^lo S = lo (to 1e-14); ∫_lo^hi S by quadrature of the table; the
+	// atom at the calendar limit adds its mass times the limit.
+	opt := quad.Options{RelTol: 1e-12, MaxEvals: 1 << 16}
+	m, _ := quad.Breaks(func(t float64) float64 { return tb.Survival(t) }, tb.t, opt)
+	s2, _ := quad.Breaks(func(t float64) float64 { return 2 * t * tb.Survival(t) }, tb.t, opt)
+	mean := lo + m.Value
+	second := lo*lo + s2.Value
+	if tb.atom > 0 {
+		_ = hi // the table ends at the limit: S jumps to 0 there
+	}
+	tb.mean = mean
+	tb.vari = math.Max(0, second-mean*mean)
+}
+
+// Mean returns the mean lifetime (s).
+func (tb tabulated) Mean() float64 { return tb.mean }
+
+// Variance returns the variance of the lifetime (s²).
+func (tb tabulated) Variance() float64 { return tb.vari }
+
+// Support returns that of the node law.
+func (tb tabulated) Support() (lo, hi float64) { return tb.src.Support() }
+
+// Atoms returns the atom at the calendar limit, if any.
+func (tb tabulated) Atoms() []dist.Atom {
+	if tb.atom > 0 {
+		return []dist.Atom{{Value: tb.cal, Mass: tb.atom}}
+	}
+	return nil
+}
+
+// Rand draws by inverting a uniform.
+func (tb tabulated) Rand(r *rand.Rand) float64 {
+	u := r.Float64()
+	if u < 0.5 {
+		return tb.Quantile(u)
+	}
+	return tb.UpperQuantile(1 - u)
+}
+
+// Accuracy reports the node law's stated error plus the table's.
+func (tb tabulated) Accuracy() dist.Accuracy { return tb.acc }
+
+// String summarises the law in years.
+func (tb tabulated) String() string {
+	return fmt.Sprintf("NodeLifetime(median=%.4g y, 5–95%%=[%.4g, %.4g] y; %d-point table)",
+		Years(tb.Quantile(0.5)), Years(tb.Quantile(0.05)), Years(tb.Quantile(0.95)), len(tb.t))
+}

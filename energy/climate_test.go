@@ -111,9 +111,16 @@ func TestClimateErrors(t *testing.T) {
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			_, err := tc.build()
-			require.Error(t, err)
-			assert.True(t, errors.Is(err, energy.ErrParam))
-			assert.Contains(t, err.Error(), tc.field)
+			requireParamErr(t, err, tc.field)
 		})
 	}
+}
+
+// requireParamErr checks that err is an error wrapping ErrParam whose
+// message names field.
+func requireParamErr(t *testing.T, err error, field string) {
+	t.Helper()
+	require.Error(t, err)
+	assert.True(t, errors.Is(err, energy.ErrParam), "%v", err)
+	assert.Contains(t, err.Error(), field)
 }

@@ -96,9 +96,7 @@ func TestSupplyErrors(t *testing.T) {
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			_, err := tc.build()
-			require.Error(t, err)
-			assert.True(t, errors.Is(err, energy.ErrParam))
-			assert.Contains(t, err.Error(), tc.field)
+			requireParamErr(t, err, tc.field)
 		})
 	}
 }

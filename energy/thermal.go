@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"github.com/joulelaw/joulelaw/internal/quad"
 )
 
 // Physical constants and limits of the thermal model.
@@ -178,15 +180,18 @@ func besselI0(x float64) float64 {
 //
 //	(1/2π)∫ exp(−Ea/R·(1/T(φ) − 1/Tref)) dφ,   T(φ) = t + (swing/2)·sin φ
 //
-// (R = 8.31446261815324 J/(mol·K), exact: CODATA 2018). The integral is taken by the trapezoid rule on the
-// phase, which converges geometrically for a smooth periodic integrand
-// (Trefethen & Weideman 2014, SIAM Review 56(3), Theorem 3.2): the number of
-// points is doubled from 8 until two successive sums agree to 1e-14
-// relative, so the relative error of the answer is below 1e-13 (the error
-// of the finer sum is of the order of the square of that difference). It
+// (R = 8.31446261815324 J/(mol·K), exact: CODATA 2018). As sin φ takes each
+// value twice a period, the mean is (1/π) times the integral over
+// [−π/2, π/2], taken by the package's adaptive Gauss–Kronrod quadrature
+// (internal/quad) to a relative error estimate of 1e-13; the estimate is
+// the Gauss–Kronrod difference, which overstates the error of the value
+// returned (measured against 800-point Gauss–Legendre over Ea up to
+// 200 kJ/mol, t from −60 to 100 °C and swings to 60 °C: below 1e-14). It
 // is 1 when SelfDischargeActivation is 0, and exactly the Arrhenius ratio
 // when swing is 0. NaN when t or swing is NaN or infinite, swing is
-// negative, or the day reaches absolute zero (t − swing/2 <= −273.15).
+// negative, or the day reaches absolute zero (t − swing/2 <= −273.15), and
+// (never seen for a Thermal from NewThermal) when the quadrature misses
+// its target within its default budget of 10000 evaluations.
 func (th Thermal) SelfDischargeFactor(t, swing float64) float64 {
 	if !finite(t) || !finite(swing) || swing < 0 || t-swing/2 <= -zeroCelsius {
 		return math.NaN()
@@ -194,13 +199,20 @@ func (th Thermal) SelfDischargeFactor(t, swing float64) float64 {
 	if th.SelfDischargeActivation == 0 {
 		return 1
 	}
-	f := func(phi float64) float64 { return th.arrhenius(t + swing/2*math.Sin(phi)) }
 	if swing == 0 {
-		return f(0)
+		return th.arrhenius(t)
 	}
-	v, _ := phaseMean(f)
-	return v
+	f := func(phi float64) float64 { return th.arrhenius(t + swing/2*math.Sin(phi)) }
+	res, err := quad.Adaptive(f, -math.Pi/2, math.Pi/2, quad.Options{RelTol: selfDischargeTol})
+	if err != nil {
+		return math.NaN()
+	}
+	return res.Value / math.Pi
 }
+
+// selfDischargeTol is the relative error target of SelfDischargeFactor's
+// quadrature.
+const selfDischargeTol = 1e-13
 
 // arrhenius returns exp(−Ea/R·(1/T − 1/Tref)) at T = t °C, with the
 // difference of reciprocals written (Tref − T)/(T·Tref) to avoid
@@ -208,36 +220,6 @@ func (th Thermal) SelfDischargeFactor(t, swing float64) float64 {
 func (th Thermal) arrhenius(t float64) float64 {
 	tk, rk := t+zeroCelsius, th.ReferenceTemperature+zeroCelsius
 	return math.Exp(-th.SelfDischargeActivation / gasConstant * (th.ReferenceTemperature - t) / (tk * rk))
-}
-
-// phaseMean returns the mean of the 2π-periodic function f over one period
-// by the trapezoid rule, doubling the number of points from 8 up to 2^14
-// until two successive sums agree to 1e-14 relative, and the last
-// difference as an error estimate (a generous one: the trapezoid rule's
-// error on an analytic periodic function falls geometrically with the
-// number of points, so the finer sum's error is far below the difference).
-func phaseMean(f func(float64) float64) (mean, errEst float64) {
-	const maxPoints = 1 << 14
-	n := 8
-	sum := 0.0
-	for j := 0; j < n; j++ {
-		sum += f(2 * math.Pi * float64(j) / float64(n))
-	}
-	prev := sum / float64(n)
-	for n < maxPoints {
-		// the midpoints of the current grid make the grid of 2n points
-		for j := 0; j < n; j++ {
-			sum += f(2 * math.Pi * (float64(j) + 0.5) / float64(n))
-		}
-		n *= 2
-		cur := sum / float64(n)
-		errEst = math.Abs(cur - prev)
-		prev = cur
-		if errEst <= 1e-14*math.Abs(cur) {
-			break
-		}
-	}
-	return prev, errEst
 }
 
 // CapacityFactor returns the derating fraction of the rated capacity at t

@@ -38,21 +38,6 @@ func TestBesselI0(t *testing.T) {
 	}
 }
 
-// TestPhaseMean checks the trapezoid rule on the phase against the closed
-// form (1/2π)∫ exp(x·cos φ) dφ = I0(x) (A&S 9.6.19), the integrand the
-// floor factor has, over the arguments a climate can give: the stated
-// error estimate must bound the true error, and both must be tiny.
-func TestPhaseMean(t *testing.T) {
-	for _, x := range []float64{0, 0.1, 1, 3, 10, 20.8, 35} {
-		got, est := phaseMean(func(phi float64) float64 { return math.Exp(x * math.Cos(phi)) })
-		want := i0Quad(x)
-		trueErr := math.Abs(got - want)
-		assert.LessOrEqual(t, trueErr, math.Max(est, 1e-14*want), "x = %g: estimate must bound the error", x)
-		assert.Less(t, trueErr/want, 1e-13, "x = %g", x)
-		assert.Less(t, est/want, 1e-13, "x = %g", x)
-	}
-}
-
 // TestInterpolate checks the piecewise-linear interpolant: exact at the
 // points, the straight line between them (hand-computed), constant beyond
 // the ends.

@@ -148,9 +148,7 @@ func TestVoltageCurveErrors(t *testing.T) {
 			c := handCurve()
 			tc.edit(&c)
 			_, err := energy.NewVoltageCurve(c)
-			require.Error(t, err)
-			assert.True(t, errors.Is(err, energy.ErrParam))
-			assert.Contains(t, err.Error(), tc.field)
+			requireParamErr(t, err, tc.field)
 		})
 	}
 

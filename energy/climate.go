@@ -144,7 +144,8 @@ func (c Climate) Months() []float64 {
 func (c Climate) DailySwing() float64 { return c.swing }
 
 // At returns the temperature (°C) in month m (mod 12) at the daily phase
-// φ (radians): Month(m) + (DailySwing/2)·sin φ.
+// φ (radians): Month(m) + (DailySwing/2)·sin φ. NaN when phase is NaN or
+// infinite.
 func (c Climate) At(m int, phase float64) float64 {
 	return c.Month(m) + c.swing/2*math.Sin(phase)
 }

@@ -283,3 +283,9 @@ func (th Thermal) RangeWarnings(c Climate) []string {
 	}
 	return out
 }
+
+// String summarises the thermal description in one line.
+func (th Thermal) String() string {
+	return fmt.Sprintf("Thermal(reference %g °C, Ea %.4g kJ/mol, floor doubling every %g °C, %d derating points, rated %g to %g °C)",
+		th.ReferenceTemperature, th.SelfDischargeActivation/1e3, th.FloorDoublingInterval, len(th.Derating), th.MinTemperature, th.MaxTemperature)
+}

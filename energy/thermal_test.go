@@ -174,6 +174,7 @@ func TestNewThermal(t *testing.T) {
 	got, err := energy.NewThermal(typ)
 	require.NoError(t, err)
 	assert.Equal(t, typ, got)
+	assert.Equal(t, "Thermal(reference 20 °C, Ea 50 kJ/mol, floor doubling every 10 °C, 7 derating points, rated -55 to 85 °C)", got.String())
 	typ.Derating[0].Fraction = 0.01
 	assert.Equal(t, 0.40, got.Derating[0].Fraction)
 

@@ -218,3 +218,19 @@ func (v VoltageCurve) UsableFraction(pulseCurrent, temperature, brownout float64
 	}
 	return 1, nil
 }
+
+// String summarises the curve in one line: its open-circuit voltage and
+// internal resistance fresh and at the end of the table, and the
+// resistance multiplier at the table's coldest temperature.
+func (v VoltageCurve) String() string {
+	n := len(v.DepthOfDischarge)
+	if n == 0 || len(v.OpenCircuit) != n || len(v.Resistance) != n {
+		return "VoltageCurve(empty)"
+	}
+	s := fmt.Sprintf("VoltageCurve(%d points: %.4g V, %.4g Ω fresh; %.4g V, %.4g Ω at the end; at %g °C",
+		n, v.OpenCircuit[0], v.Resistance[0], v.OpenCircuit[n-1], v.Resistance[n-1], v.ReferenceTemperature)
+	if len(v.ColdTemperatures) > 0 && len(v.ColdMultipliers) == len(v.ColdTemperatures) {
+		s += fmt.Sprintf(", resistance ×%.3g at %g °C", v.ColdMultipliers[0], v.ColdTemperatures[0])
+	}
+	return s + ")"
+}

@@ -3,6 +3,7 @@ package energy_test
 import (
 	"errors"
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -89,6 +90,44 @@ func TestUsableFractionScan(t *testing.T) {
 			}
 		}
 	}
+}
+
+// TestUsableFractionRandom checks the crossing on seeded random tables
+// against its definition: the loaded voltage at the answer equals the
+// brown-out (within the stated rounding), and every table point before it
+// is above the brown-out (so it is the first crossing); an answer of 1
+// means every point stays above, 0 that the fresh cell is at or below.
+func TestUsableFractionRandom(t *testing.T) {
+	r := rand.New(rand.NewPCG(11, 12))
+	for trial := range 300 {
+		n := 2 + r.IntN(12)
+		c := energy.VoltageCurve{ReferenceTemperature: 20}
+		for i := range n {
+			c.DepthOfDischarge = append(c.DepthOfDischarge, float64(i)/float64(n-1))
+			c.OpenCircuit = append(c.OpenCircuit, 2+2*r.Float64())
+			c.Resistance = append(c.Resistance, 50*r.Float64())
+		}
+		v, err := energy.NewVoltageCurve(c)
+		require.NoError(t, err)
+		i, b := 0.05*r.Float64(), 1.5+2*r.Float64()
+		u, err := v.UsableFraction(i, 20, b)
+		require.NoError(t, err)
+		require.True(t, u >= 0 && u <= 1, "trial %d: %g", trial, u)
+		for k, d := range v.DepthOfDischarge {
+			if d < u {
+				assert.Greater(t, v.LoadedVoltage(d, i, 20), b, "trial %d, point %d before the crossing", trial, k)
+			}
+		}
+		switch {
+		case u == 0:
+			assert.LessOrEqual(t, v.LoadedVoltage(0, i, 20), b, "trial %d", trial)
+		case u == 1:
+			assert.Greater(t, v.LoadedVoltage(1, i, 20), b, "trial %d", trial)
+		default:
+			assert.InDelta(t, b, v.LoadedVoltage(u, i, 20), 1e-12, "trial %d", trial)
+		}
+	}
+	assert.Contains(t, energy.TypicalBobbinCurve().String(), "8 points: 3.67 V, 5 Ω fresh")
 }
 
 // TestTypicalBobbinCurve checks the figures its doc states, computed by

@@ -276,3 +276,25 @@ func TestSiteDeterministic(t *testing.T) {
 		assert.Equal(t, want, got[g])
 	}
 }
+
+// The variance split: with a deterministic cycle and only the capacity and
+// batch factors spread, the lifetime is c·b·C/P, so the first-order
+// variance shares are σc²/(σc² + σb²) and σb²/(σc² + σb²) exactly, and the
+// first-order sd is C/P·sqrt(σc² + σb²) (closed form).
+func TestVarianceSharesClosedForm(t *testing.T) {
+	c := fixedCycle(t)
+	b := cellNoLeak(t)
+	const sc, sb = 0.04, 0.03
+	site, err := energy.NewSite(energy.SiteSpec{Shared: energy.SharedSpread{Batch: sb}, Groups: []energy.SiteGroup{
+		{Name: "a", Count: 10, Node: energy.NodeSpec{Settings: []energy.NodeSetting{{Weight: 1, Cycle: c}}, Battery: b,
+			Spread: energy.NodeSpread{Capacity: sc}}}}})
+	require.NoError(t, err)
+	v, err := site.VarianceShares(0)
+	require.NoError(t, err)
+	assert.InDelta(t, sc*sc/(sc*sc+sb*sb), v.Capacity, 1e-9)
+	assert.InDelta(t, sb*sb/(sc*sc+sb*sb), v.Batch, 1e-9)
+	assert.InDelta(t, b.UsableEnergy()/c.MeanPower()*math.Hypot(sc, sb), v.SD, 1e-6*v.SD)
+	assert.Zero(t, v.PerCycle+v.Floor+v.Active+v.Temperature+v.Setting)
+	_, err = site.VarianceShares(1)
+	assert.True(t, errors.Is(err, energy.ErrParam))
+}

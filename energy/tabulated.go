@@ -168,14 +168,17 @@ func hermite(t0, t1, z0, z1, d0, d1, x float64) float64 {
 	return h00*z0 + h10*h*d0 + h01*z1 + h11*h*d1
 }
 
-// zAt returns the interpolated probit at t inside the table.
+// zAt returns the interpolated probit at t; beyond the table (where the
+// law is below 1e-14 or above 1 − 1e-14) the probit goes on along the end
+// slopes, so the far tails decay like a normal's.
 func (tb tabulated) zAt(t float64) float64 {
 	i := sort.SearchFloat64s(tb.t, t)
+	n := len(tb.t)
 	switch {
 	case i == 0:
-		return tb.z[0]
-	case i >= len(tb.t):
-		return tb.z[len(tb.z)-1]
+		return tb.z[0] - math.Max(tb.d[0], 0)*(tb.t[0]-t)
+	case i >= n:
+		return tb.z[n-1] + math.Max(tb.d[n-1], 0)*(t-tb.t[n-1])
 	}
 	return hermite(tb.t[i-1], tb.t[i], tb.z[i-1], tb.z[i], tb.d[i-1], tb.d[i], t)
 }
@@ -187,8 +190,8 @@ func (tb tabulated) CDF(t float64) float64 {
 		return math.NaN()
 	case t >= tb.cal:
 		return 1
-	case t < tb.t[0] || t > tb.t[len(tb.t)-1]:
-		return tb.src.CDF(t)
+	case t <= 0:
+		return 0
 	}
 	return normSurv(-tb.zAt(t))
 }
@@ -200,19 +203,26 @@ func (tb tabulated) Survival(t float64) float64 {
 		return math.NaN()
 	case t >= tb.cal:
 		return 0
-	case t < tb.t[0] || t > tb.t[len(tb.t)-1]:
-		return tb.src.Survival(t)
+	case t <= 0:
+		return 1
 	}
 	return normSurv(tb.zAt(t))
 }
 
-// invert returns the t with interpolated probit zt (inside the table).
+// invert returns the t with interpolated probit zt (along the end slopes
+// beyond the table).
 func (tb tabulated) invert(zt float64) float64 {
 	n := len(tb.z)
 	if zt <= tb.z[0] {
+		if tb.d[0] > 0 {
+			return math.Max(0, tb.t[0]-(tb.z[0]-zt)/tb.d[0])
+		}
 		return tb.t[0]
 	}
 	if zt >= tb.z[n-1] {
+		if tb.d[n-1] > 0 && !math.IsInf(zt, 1) {
+			return math.Min(tb.cal, tb.t[n-1]+(zt-tb.z[n-1])/tb.d[n-1])
+		}
 		return tb.t[n-1]
 	}
 	i := sort.SearchFloat64s(tb.z, zt) // z[i-1] < zt <= z[i]
@@ -246,11 +256,7 @@ func (tb tabulated) Quantile(p float64) float64 {
 	case p > 1-tb.atom:
 		return tb.cal
 	}
-	zt := dist.MustNormal(0, 1).Quantile(p)
-	if zt < tb.z[0] || (tb.atom == 0 && zt > tb.z[len(tb.z)-1]) {
-		return tb.src.Quantile(p)
-	}
-	return tb.invert(zt)
+	return tb.invert(dist.MustNormal(0, 1).Quantile(p))
 }
 
 // UpperQuantile returns inf{t : Survival(t) <= q}.
@@ -265,11 +271,7 @@ func (tb tabulated) UpperQuantile(q float64) float64 {
 	case q < tb.atom:
 		return tb.cal
 	}
-	zt := dist.MustNormal(0, 1).UpperQuantile(q)
-	if zt < tb.z[0] || (tb.atom == 0 && zt > tb.z[len(tb.z)-1]) {
-		return tb.src.UpperQuantile(q)
-	}
-	return tb.invert(zt)
+	return tb.invert(dist.MustNormal(0, 1).UpperQuantile(q))
 }
 
 func (tb *tabulated) moments() {
@@ -277,13 +279,13 @@ func (tb *tabulated) moments() {
 	// ∫_0^lo S = lo (to 1e-14); ∫_lo^hi S by quadrature of the table; the
 	// atom at the calendar limit adds its mass times the limit.
 	opt := quad.Options{RelTol: 1e-12, MaxEvals: 1 << 16}
+	// Beyond hi the survival is below 1e-14 (or 0 from the calendar limit
+	// on, where the table ends).
+	_ = hi
 	m, _ := quad.Breaks(func(t float64) float64 { return tb.Survival(t) }, tb.t, opt)
 	s2, _ := quad.Breaks(func(t float64) float64 { return 2 * t * tb.Survival(t) }, tb.t, opt)
 	mean := lo + m.Value
 	second := lo*lo + s2.Value
-	if tb.atom > 0 {
-		_ = hi // the table ends at the limit: S jumps to 0 there
-	}
 	tb.mean = mean
 	tb.vari = math.Max(0, second-mean*mean)
 }

@@ -13,7 +13,6 @@ import (
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
-	"github.com/joulelaw/joulelaw/orderstat"
 )
 
 // The program's own palette.
@@ -196,16 +195,11 @@ func failedFigure(p *Plan) (*plot.Plot, error) {
 	style(pl, fmt.Sprintf("Flat batteries over time in the fleet of %d nodes, with the 90 %% band", p.Nodes),
 		"time since deployment (years)", "number of nodes with a flat battery")
 	end := horizon(p)
-	groups := p.laws.lifeGroups
-	laws := make([]dist.Law, len(groups))
-	for i, g := range groups {
-		laws[i] = g.Law
-	}
 	const n = 120
 	var mean, lower, upper plotter.XYs
 	for i := 0; i <= n; i++ {
 		t := end * float64(i) / n
-		c, err := orderstat.AtOrBelow(laws, p.laws.counts, t*energy.Year)
+		c, err := p.laws.site.FailedBy(t * energy.Year)
 		if err != nil {
 			return nil, err
 		}

@@ -30,7 +30,8 @@ func TestDefaultReport(t *testing.T) {
 		"Group 1 of 4: dyke piezometers", "Group 4 of 4: weather masts",
 		"energy per cycle", "where it goes", "of variance", "data rates", "DR5 (SF7/125 kHz)",
 		"duty cycle", "battery lifetime", "Fleet: energy per cycle", "largest of 304", "smallest of 304",
-		"outlier threshold", "first failure", "1 % flat", "10 % flat", "50 % flat", "planned replacement",
+		"outlier threshold", "first failure", "1 % at end", "10 % at end", "50 % at end", "planned replacement",
+		"usable capacity", "calendar limit", "spread of the lifetime (shares of its variance)", "climate", "cell batch capacity sd",
 		"expected failures before it", "replace by",
 	} {
 		assert.Contains(t, out, want)
@@ -88,6 +89,27 @@ func TestJSON(t *testing.T) {
 	// the first failure: no later than the first failure's median.
 	assert.LessOrEqual(t, f.ReplaceByRisk, f.FirstFailure.Median)
 	assert.NotEmpty(t, p.Cautions)
+
+	// Credible intervals: every group's lifetime respects its calendar
+	// limit, says which limit binds, and splits its variance; the groups
+	// the energy ends at all have intervals of positive width.
+	for _, g := range p.Groups {
+		assert.Positive(t, g.CalendarLimit)
+		assert.LessOrEqual(t, g.Lifetime.In99[1], g.CalendarLimit+1e-12, g.Name)
+		assert.GreaterOrEqual(t, g.EnergyBinds, 0.0)
+		assert.LessOrEqual(t, g.EnergyBinds, 1.0)
+		sp := g.Spread
+		assert.InDelta(t, 1, sp.PerCycle+sp.Setting+sp.Capacity+sp.Floor+sp.Active+sp.Batch+sp.Temperature, 1e-9, g.Name)
+		if g.EnergyBinds > 0.05 {
+			assert.Less(t, g.Lifetime.In90[0], g.Lifetime.In90[1], g.Name)
+			assert.Less(t, g.FirstFailure.In90[0], g.FirstFailure.In90[1], g.Name)
+		}
+	}
+	assert.Less(t, f.FirstFailure.In90[0], f.FirstFailure.In90[1])
+	assert.Less(t, f.FlatBy[0].In90[0], f.FlatBy[0].In90[1])
+	assert.Less(t, f.Replacement.Failures90[0], f.Replacement.Failures90[1])
+	require.Len(t, p.Cells, 2)
+	assert.InDelta(t, 0.02, p.Shared.BatchCapacitySD, 1e-15)
 }
 
 func TestBadScenarioRejected(t *testing.T) {
@@ -95,7 +117,7 @@ func TestBadScenarioRejected(t *testing.T) {
 	require.NoError(t, json.Unmarshal(scenario.DemoJSON(), &m))
 	g := m["groups"].([]any)[2].(map[string]any)
 	g["max_transmissions"] = 40
-	delete(m["cell"].(map[string]any), "capacity_mah")
+	delete(m["cells"].([]any)[0].(map[string]any), "capacity_mah")
 	data, err := json.Marshal(m)
 	require.NoError(t, err)
 	path := filepath.Join(t.TempDir(), "bad.json")
@@ -106,7 +128,7 @@ func TestBadScenarioRejected(t *testing.T) {
 	assert.Empty(t, out, "nothing is half-computed")
 	assert.Contains(t, errs, "is not a usable scenario")
 	assert.Contains(t, errs, "groups[2].max_transmissions = 40: must be a whole number in [1, 15]")
-	assert.Contains(t, errs, "cell.capacity_mah: missing")
+	assert.Contains(t, errs, "cells[0].capacity_mah: missing")
 
 	code, _, errs = runArgs(t, "-scenario", filepath.Join(t.TempDir(), "absent.json"))
 	assert.Equal(t, 1, code)

@@ -22,7 +22,9 @@ type Plan struct {
 	RegionTables string      `json:"region_tables"`
 	Nodes        int         `json:"nodes"`
 	Gateways     []string    `json:"gateways"`
-	Cell         CellPlan    `json:"cell"`
+	Cells        []CellPlan  `json:"cells"`
+	Climate      string      `json:"climate"`
+	Shared       SharedPlan  `json:"shared"`
 	Groups       []GroupPlan `json:"groups"`
 	Fleet        FleetPlan   `json:"fleet"`
 	Warnings     []string    `json:"warnings"`
@@ -31,15 +33,36 @@ type Plan struct {
 	laws planLaws // for the figures; not in the JSON
 }
 
-// CellPlan summarises the battery every node carries.
+// CellPlan summarises a cell the groups carry.
 type CellPlan struct {
-	Name            string  `json:"name"`
-	Chemistry       string  `json:"chemistry"`
-	NominalEnergyJ  float64 `json:"nominal_energy_j"`
-	UsableEnergyJ   float64 `json:"usable_energy_j"`
-	SelfDischargeW  float64 `json:"self_discharge_w"`
-	PulseCurrentA   float64 `json:"pulse_current_a"`
-	NominalVoltageV float64 `json:"nominal_voltage_v"`
+	Name              string  `json:"name"`
+	Chemistry         string  `json:"chemistry"`
+	NominalEnergyJ    float64 `json:"nominal_energy_j"`
+	UsableEnergyJ     float64 `json:"usable_energy_j"` // at the rated usable fraction, before derating and voltage
+	SelfDischargeW    float64 `json:"self_discharge_w"`
+	PulseCurrentA     float64 `json:"pulse_current_a"`
+	NominalVoltageV   float64 `json:"nominal_voltage_v"`
+	CapacitySD        float64 `json:"capacity_sd"`
+	CalendarLifeYears float64 `json:"calendar_life_years"` // 0: none given
+	VoltageCurve      bool    `json:"voltage_curve"`
+}
+
+// SharedPlan is what the whole fleet shares.
+type SharedPlan struct {
+	BatchCapacitySD      float64 `json:"batch_capacity_sd"`
+	TemperatureOffsetSDC float64 `json:"temperature_offset_sd_c"`
+}
+
+// SpreadPlan is where a group's lifetime spread comes from: the shares of
+// the first-order variance (see energy.VarianceShares), summing to 1.
+type SpreadPlan struct {
+	PerCycle    float64 `json:"per_cycle"`
+	Setting     float64 `json:"radio_setting"`
+	Capacity    float64 `json:"cell_capacity"`
+	Floor       float64 `json:"sleep_current"`
+	Active      float64 `json:"active_energy"`
+	Batch       float64 `json:"cell_batch"`
+	Temperature float64 `json:"site_temperature"`
 }
 
 // Summary is a law's mean, standard deviation, median and central 90 % and
@@ -74,10 +97,17 @@ type GroupPlan struct {
 	DutyCycle      DutyPlan    `json:"duty_cycle"`
 	PulseWarnings  []string    `json:"pulse_warnings"`
 
-	Lifetime      Summary `json:"lifetime_years"`
-	Lifetime1     float64 `json:"lifetime_1_percent_years"`
-	FirstFailure  Summary `json:"first_failure_years"`
-	ReplaceByRisk float64 `json:"replace_by_for_risk_years"`
+	Cell           string     `json:"cell"`
+	Node           string     `json:"node"`
+	Supply         string     `json:"supply"`
+	UsableFraction [2]float64 `json:"usable_fraction_range"` // over the group's settings, from the voltage curve or the cell's rating
+	Lifetime       Summary    `json:"lifetime_years"`
+	Lifetime1      float64    `json:"lifetime_1_percent_years"`
+	CalendarLimit  float64    `json:"calendar_limit_years"` // 0: none
+	EnergyBinds    float64    `json:"share_ended_by_energy"`
+	Spread         SpreadPlan `json:"lifetime_variance_shares"`
+	FirstFailure   Summary    `json:"first_failure_years"`
+	ReplaceByRisk  float64    `json:"replace_by_for_risk_years"`
 }
 
 // CurrentPlan is the long-run average current of a node of the group: its
@@ -167,8 +197,7 @@ type planLaws struct {
 	fleetEnergy  dist.Law   // per-cycle energy of a node drawn from the fleet, J
 	maxEnergy    dist.Law
 	minEnergy    dist.Law
-	lifeGroups   []orderstat.Group
-	counts       []int64
+	site         energy.Site
 	replaceAfter float64 // s
 }
 
@@ -195,12 +224,6 @@ func summarise(l dist.Law, scale float64) (Summary, error) {
 	return s, nil
 }
 
-// setting holds the laws of one (group, setting) pair.
-type setting struct {
-	cycle energy.Cycle
-	life  energy.Lifetime
-}
-
 // buildPlan computes the plan of a checked scenario.
 func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) {
 	say("assembling the model: ADR settlement, collisions, retransmissions")
@@ -209,12 +232,11 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 		return nil, err
 	}
 	jobs := m.Jobs()
-	sets := make([][]setting, len(m.Groups))
+	cycles := make([][]energy.Cycle, len(m.Groups))
 	for gi, g := range m.Groups {
-		sets[gi] = make([]setting, len(g.Settings))
+		cycles[gi] = make([]energy.Cycle, len(g.Settings))
 	}
-	say("per-cycle and lifetime laws for %d (group, data rate, power) settings on %d cores", len(jobs), runtime.GOMAXPROCS(0))
-	last := 0
+	say("per-cycle laws for %d (group, data rate, power) settings on %d cores", len(jobs), runtime.GOMAXPROCS(0))
 	err = scenario.Parallel(len(jobs), runtime.GOMAXPROCS(0), func(k int) error {
 		j := jobs[k]
 		g := m.Groups[j.Group]
@@ -222,51 +244,61 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 		if err != nil {
 			return fmt.Errorf("group %q, %v: %w", g.Group.Name, g.Settings[j.Setting], err)
 		}
-		l, err := energy.NewLifetime(c, m.Battery)
-		if err != nil {
-			return fmt.Errorf("group %q, %v: lifetime: %w", g.Group.Name, g.Settings[j.Setting], err)
-		}
-		sets[j.Group][j.Setting] = setting{cycle: c, life: l}
+		cycles[j.Group][j.Setting] = c
 		return nil
-	}, func(_, finished int) {
-		if finished*10/len(jobs) > last*10/len(jobs) || finished == len(jobs) {
-			say("  %d of %d settings done", finished, len(jobs))
-			last = finished
+	}, nil)
+	if err != nil {
+		return nil, err
+	}
+
+	say("lifetime laws: per-node spreads, the cell over the calendar, mixtures over the shared factors")
+	site := energy.SiteSpec{Climate: s.Climate, Shared: s.Shared}
+	for gi, g := range m.Groups {
+		spec, err := g.NodeSpec(s, cycles[gi])
+		if err != nil {
+			return nil, fmt.Errorf("group %q: %w", g.Group.Name, err)
 		}
-	})
+		site.Groups = append(site.Groups, energy.SiteGroup{Name: g.Group.Name, Node: spec, Count: int64(g.Group.Nodes)})
+	}
+	st, err := energy.NewSite(site)
 	if err != nil {
 		return nil, err
 	}
 
 	p := &Plan{
 		Site: s.Site, Source: source, Region: s.Region.Name(), RegionTables: s.Region.Version(),
-		Nodes: s.TotalNodes(),
+		Nodes: s.TotalNodes(), Shared: SharedPlan{BatchCapacitySD: s.Shared.Batch, TemperatureOffsetSDC: s.Shared.Temperature},
+		Climate: climateText(s),
 	}
 	for _, gw := range s.Gateways {
 		p.Gateways = append(p.Gateways, gw.Name)
 	}
-	b := m.Battery
-	p.Cell = CellPlan{Name: s.Cell.Name, Chemistry: s.Cell.Chemistry, NominalEnergyJ: b.NominalEnergy(), UsableEnergyJ: b.UsableEnergy(),
-		SelfDischargeW: b.SelfDischargePower(), PulseCurrentA: s.Cell.PulseCurrent, NominalVoltageV: s.Cell.NominalVoltage}
+	for _, c := range s.Cells {
+		b, err := energy.NewBattery(c.Spec)
+		if err != nil {
+			return nil, fmt.Errorf("cell %q: %w", c.Spec.Name, err)
+		}
+		p.Cells = append(p.Cells, CellPlan{Name: c.Spec.Name, Chemistry: c.Spec.Chemistry, NominalEnergyJ: b.NominalEnergy(), UsableEnergyJ: b.UsableEnergy(),
+			SelfDischargeW: b.SelfDischargePower(), PulseCurrentA: c.Spec.PulseCurrent, NominalVoltageV: c.Spec.NominalVoltage,
+			CapacitySD: c.CapacitySD, CalendarLifeYears: c.CalendarLife / energy.Year, VoltageCurve: c.Voltage != nil})
+	}
 	p.laws.replaceAfter = s.Plan.ReplaceAfter
+	p.laws.site = st
 
 	say("summarising the groups")
 	var energyGroups []orderstat.Group
-	lifeAcc := 0.0
+	lifeAcc := st.Accuracy().CDFAbs
 	for gi, g := range m.Groups {
 		say("  group %q: energy and lifetime laws, intervals, first failure", g.Group.Name)
-		gp, eLaw, lLaw, acc, err := groupPlan(s, g, sets[gi], b)
+		gp, eLaw, lLaw, err := groupPlan(s, g, cycles[gi], st, gi, site.Groups[gi].Node)
 		if err != nil {
 			return nil, fmt.Errorf("group %q: %w", g.Group.Name, err)
 		}
-		lifeAcc = math.Max(lifeAcc, acc)
 		p.Groups = append(p.Groups, gp)
 		p.laws.groupEnergy = append(p.laws.groupEnergy, eLaw)
 		p.laws.groupLife = append(p.laws.groupLife, lLaw)
 		n := int64(g.Group.Nodes)
 		energyGroups = append(energyGroups, orderstat.Group{Law: eLaw, Count: n})
-		p.laws.lifeGroups = append(p.laws.lifeGroups, orderstat.Group{Law: lLaw, Count: n})
-		p.laws.counts = append(p.laws.counts, n)
 		if g.OutOfReach > 0.01 {
 			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: %.1f %% of placements miss the %.0f dB margin even at DR0 and full power; the plan covers the nodes in reach only: move those nodes or add a gateway",
 				g.Group.Name, 100*g.OutOfReach, s.Environment.InstallationMargin))
@@ -275,6 +307,9 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: the %.0f s reporting interval breaks the %s duty cycle at some data rate its nodes use (see its duty-cycle line)", g.Group.Name, g.Group.Interval, gp.DutyCycle.SubBand))
 		}
 		for _, w := range gp.PulseWarnings {
+			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: %s", g.Group.Name, w))
+		}
+		for _, w := range st.Warnings(gi) {
 			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: %s", g.Group.Name, w))
 		}
 	}
@@ -292,39 +327,47 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 	return p, nil
 }
 
-func groupPlan(s scenario.Scenario, g scenario.GroupModel, sets []setting, b energy.Battery) (GroupPlan, dist.Law, dist.Law, float64, error) {
+// climateText describes the site's climate in one line.
+func climateText(s scenario.Scenario) string {
+	if s.Climate == nil {
+		return "not given: the cells' reference temperature all year"
+	}
+	c := s.Climate
+	return fmt.Sprintf("monthly means %.1f to %.1f °C (year %.1f °C), daily swing %.0f °C; deployment in %s",
+		c.Min()+c.DailySwing()/2, c.Max()-c.DailySwing()/2, c.Mean(), c.DailySwing(), monthNames[s.StartMonth])
+}
+
+var monthNames = [12]string{"January", "February", "March", "April", "May", "June", "July", "August", "September", "October", "November", "December"}
+
+func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle, st energy.Site, gi int, spec energy.NodeSpec) (GroupPlan, dist.Law, dist.Law, error) {
 	gr := g.Group
 	gp := GroupPlan{Name: gr.Name, Nodes: gr.Nodes, Gateway: s.Gateways[gr.Gateway].Name, InnerRadiusM: gr.InnerRadius, OuterRadiusM: gr.OuterRadius,
 		PayloadBytes: gr.Payload, IntervalS: gr.Interval, JitterS: gr.Jitter, Confirmed: gr.Confirmed, MaxTransmission: gr.MaxTransmissions,
-		OutOfReach: g.OutOfReach}
+		OutOfReach: g.OutOfReach, Cell: g.Cell.Spec.Name, Node: g.Node.Name, Supply: g.Node.Supply.String()}
+	b := g.Battery
 	w := g.Weights()
-	cycles := make([]energy.Cycle, len(sets))
-	energies := make([]dist.Law, len(sets))
-	lives := make([]dist.Law, len(sets))
-	currents := make([]float64, len(sets))
-	acc := 0.0
-	for i, st := range sets {
-		cycles[i] = st.cycle
-		energies[i] = st.cycle.Energy()
-		lives[i] = st.life
-		currents[i] = st.cycle.MeanCurrent(s.Node.Voltage)
+	energies := make([]dist.Law, len(cycles))
+	currents := make([]float64, len(cycles))
+	for i, c := range cycles {
+		energies[i] = c.Energy()
+		currents[i] = c.MeanCurrent(g.Node.Voltage)
 	}
 	eLaw, err := dist.Mixture(w, energies)
 	if err != nil {
-		return gp, nil, nil, 0, err
+		return gp, nil, nil, err
 	}
 	if gp.EnergyPerCycle, err = summarise(eLaw, 1); err != nil {
-		return gp, nil, nil, 0, err
+		return gp, nil, nil, err
 	}
 	gp.EnergyPerDay = eLaw.Mean() / g.Period.Mean() * energy.Day
 
 	cur, err := dist.NewDiscrete(currents, w)
 	if err != nil {
-		return gp, nil, nil, 0, err
+		return gp, nil, nil, err
 	}
 	lo, hi, err := dist.EqualTailed(cur, 0.9)
 	if err != nil {
-		return gp, nil, nil, 0, err
+		return gp, nil, nil, err
 	}
 	gp.Current = CurrentPlan{Mean: cur.Mean(), In90: [2]float64{lo, hi}}
 
@@ -344,7 +387,7 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, sets []setting, b ene
 	for _, d := range g.PerDR {
 		dr, err := s.Region.DataRate(d.DR)
 		if err != nil {
-			return gp, nil, nil, 0, err
+			return gp, nil, nil, err
 		}
 		gp.DataRates = append(gp.DataRates, DRPlan{DR: d.DR, Name: dr.String(), Share: d.Share, AirtimeS: d.Airtime, Load: d.Load,
 			UplinkSuccess: d.UplinkSuccess, Frames: d.Frames, DownlinkRX1: d.Windows.RX1, DownlinkRX2: d.Windows.RX2})
@@ -355,11 +398,11 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, sets []setting, b ene
 	freq := s.Region.UplinkChannels()[0].Frequency
 	band, err := s.Region.SubBandAt(freq)
 	if err != nil {
-		return gp, nil, nil, 0, err
+		return gp, nil, nil, err
 	}
 	checks, err := s.Region.CheckInterval(freq, gr.Payload, 0, gr.MaxTransmissions, gr.Interval)
 	if err != nil {
-		return gp, nil, nil, 0, err
+		return gp, nil, nil, err
 	}
 	gp.DutyCycle = DutyPlan{SubBand: band.String(), Attempts: gr.MaxTransmissions, Feasible: true}
 	for _, c := range checks {
@@ -374,8 +417,8 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, sets []setting, b ene
 	}
 
 	seen := map[string]bool{}
-	for _, st := range sets {
-		for _, pw := range b.PulseCheck(st.cycle) {
+	for _, c := range cycles {
+		for _, pw := range b.PulseCheck(c) {
 			if txt := pw.String(); !seen[txt] {
 				seen[txt] = true
 				gp.PulseWarnings = append(gp.PulseWarnings, txt)
@@ -383,26 +426,35 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, sets []setting, b ene
 		}
 	}
 
-	lLaw, err := dist.Mixture(w, lives)
+	lLaw, err := st.NodeLifetime(gi)
 	if err != nil {
-		return gp, nil, nil, 0, err
+		return gp, nil, nil, err
 	}
 	if gp.Lifetime, err = summarise(lLaw, energy.Year); err != nil {
-		return gp, nil, nil, 0, err
+		return gp, nil, nil, err
 	}
 	gp.Lifetime1 = lLaw.Quantile(0.01) / energy.Year
-	first, err := orderstat.Min(lLaw, int64(gr.Nodes))
+	gp.EnergyBinds = st.EnergyBinds(gi)
+	if lim := spec.CalendarLife; lim > 0 {
+		gp.CalendarLimit = (lim - spec.StorageTime) / energy.Year
+	}
+	if gp.UsableFraction[0], gp.UsableFraction[1], err = st.UsableFraction(gi); err != nil {
+		return gp, nil, nil, err
+	}
+	vs, err := st.VarianceShares(gi)
 	if err != nil {
-		return gp, nil, nil, 0, err
+		return gp, nil, nil, err
+	}
+	gp.Spread = SpreadPlan{PerCycle: vs.PerCycle, Setting: vs.Setting, Capacity: vs.Capacity, Floor: vs.Floor, Active: vs.Active, Batch: vs.Batch, Temperature: vs.Temperature}
+	first, err := st.GroupFirstFailure(gi)
+	if err != nil {
+		return gp, nil, nil, err
 	}
 	if gp.FirstFailure, err = summarise(first, energy.Year); err != nil {
-		return gp, nil, nil, 0, err
+		return gp, nil, nil, err
 	}
 	gp.ReplaceByRisk = first.Quantile(s.Plan.AcceptableRisk) / energy.Year
-	for _, st := range sets {
-		acc = math.Max(acc, st.life.Accuracy().CDFAbs)
-	}
-	return gp, eLaw, lLaw, acc, nil
+	return gp, eLaw, lLaw, nil
 }
 
 // outlierLevel is the probability that the fleet's largest per-cycle energy
@@ -445,8 +497,8 @@ func fleetEnergy(p *Plan, groups []orderstat.Group) error {
 }
 
 func fleetLife(p *Plan, s scenario.Scenario) error {
-	groups := p.laws.lifeGroups
-	first, err := orderstat.MinOfGroups(groups)
+	st := p.laws.site
+	first, err := st.FirstFailure()
 	if err != nil {
 		return err
 	}
@@ -458,7 +510,7 @@ func fleetLife(p *Plan, s scenario.Scenario) error {
 	n := int64(p.Nodes)
 	for _, f := range []float64{0.01, 0.10, 0.50} {
 		k := max(1, int64(math.Ceil(f*float64(n))))
-		kth, err := orderstat.KthOfGroups(groups, k)
+		kth, err := st.FractionFailed(f)
 		if err != nil {
 			return err
 		}
@@ -470,13 +522,13 @@ func fleetLife(p *Plan, s scenario.Scenario) error {
 			In90: [2]float64{lo / energy.Year, hi / energy.Year}})
 	}
 	t := s.Plan.ReplaceAfter
-	r := Replacement{AfterYears: t / energy.Year, NoFailure: first.Survival(t)}
-	for _, g := range groups {
-		e := float64(g.Count) * g.Law.CDF(t)
+	r := Replacement{AfterYears: t / energy.Year, NoFailure: st.NoFailureBefore(t)}
+	for i, g := range s.Groups {
+		e := float64(g.Nodes) * p.laws.groupLife[i].CDF(t)
 		r.PerGroupExpected = append(r.PerGroupExpected, e)
 		r.ExpectedFailures += e
 	}
-	lo, hi, err := failedBand(groups, t, 0.9)
+	lo, hi, err := failedBand(st, t, 0.9)
 	if err != nil {
 		return err
 	}
@@ -487,15 +539,10 @@ func fleetLife(p *Plan, s scenario.Scenario) error {
 }
 
 // failedBand returns the equal-tailed interval of probability level of the
-// number of nodes whose battery is flat by t (s): a Poisson-binomial count
-// (orderstat.AtOrBelow on the lifetime laws).
-func failedBand(groups []orderstat.Group, t, level float64) (lo, hi float64, err error) {
-	laws := make([]dist.Law, len(groups))
-	counts := make([]int64, len(groups))
-	for i, g := range groups {
-		laws[i], counts[i] = g.Law, g.Count
-	}
-	c, err := orderstat.AtOrBelow(laws, counts, t)
+// number of nodes whose battery is flat by t (s): a mixture over the shared
+// factors of Poisson-binomial counts (energy.Site.FailedBy).
+func failedBand(st energy.Site, t, level float64) (lo, hi float64, err error) {
+	c, err := st.FailedBy(t)
 	if err != nil {
 		return 0, 0, err
 	}

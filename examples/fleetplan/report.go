@@ -36,6 +36,9 @@ func joulePair(v [2]float64) string {
 
 // amps formats a current in mA or µA.
 func amps(x float64) string {
+	if math.Abs(x) >= 1 {
+		return fmt.Sprintf("%.3g A", x)
+	}
 	if math.Abs(x) >= 1e-3 {
 		return fmt.Sprintf("%.3g mA", x*1e3)
 	}
@@ -93,9 +96,21 @@ func writeReport(w io.Writer, p *Plan) {
 	row("scenario", "%s", p.Source)
 	row("region", "%s (tables: %s)", p.Region, p.RegionTables)
 	row("fleet", "%d nodes in %d groups; gateways %s", p.Nodes, len(p.Groups), quoteAll(p.Gateways))
-	c := p.Cell
-	row("cell", "%s", c.Name)
-	more("%s; %s nominal, %s usable; self-discharge drain %s", c.Chemistry, joules(c.NominalEnergyJ), joules(c.UsableEnergyJ), watts(c.SelfDischargeW))
+	for _, c := range p.Cells {
+		row("cell", "%s", c.Name)
+		more("%s; %s nominal, %s at the rated usable fraction; self-discharge %s at the reference temperature", c.Chemistry, joules(c.NominalEnergyJ), joules(c.UsableEnergyJ), watts(c.SelfDischargeW))
+		cal := "no calendar life given"
+		if c.CalendarLifeYears > 0 {
+			cal = fmt.Sprintf("calendar life %s", years(c.CalendarLifeYears))
+		}
+		end := "end of life at the rated usable fraction"
+		if c.VoltageCurve {
+			end = "end of life by voltage under the largest pulse"
+		}
+		more("capacity spread %s (sd, cell to cell); %s; %s", pct(c.CapacitySD), cal, end)
+	}
+	row("climate", "%s", p.Climate)
+	row("shared", "cell batch capacity sd %s; site temperature offset sd %.1f °C (one draw for the fleet)", pct(p.Shared.BatchCapacitySD), p.Shared.TemperatureOffsetSDC)
 	fmt.Fprintln(w)
 
 	for i, g := range p.Groups {
@@ -112,6 +127,7 @@ func writeReport(w io.Writer, p *Plan) {
 			every = fmt.Sprintf("every %.0f s on a fixed schedule", g.IntervalS)
 		}
 		row("traffic", "%d-byte uplinks %s, %s", g.PayloadBytes, every, kind)
+		row("hardware", "%s, %s; %s", g.Node, g.Supply, g.Cell)
 		e := g.EnergyPerCycle
 		row("energy per cycle", "mean %s, sd %s", joules(e.Mean), joules(e.SD))
 		more("90 %% of cycles in %s, 99 %% in %s", joulePair(e.In90), joulePair(e.In99))
@@ -147,19 +163,58 @@ func writeReport(w io.Writer, p *Plan) {
 			}
 		}
 		more("shortest interval allowed: %s", strings.Join(mins, ", "))
+		pulse := 0.0
+		for _, c := range p.Cells {
+			if c.Name == g.Cell {
+				pulse = c.PulseCurrentA
+			}
+		}
 		switch {
-		case p.Cell.PulseCurrentA == 0:
+		case pulse == 0:
 			row("cell pulse", "not checked (the scenario gives no pulse rating)")
 		case len(g.PulseWarnings) == 0:
-			row("cell pulse", "every state within the cell's %s rating", amps(p.Cell.PulseCurrentA))
+			row("cell pulse", "every state within the cell's %s rating", amps(pulse))
 		default:
 			for _, pw := range g.PulseWarnings {
 				row("cell pulse", "WARNING %s", pw)
 			}
 		}
+		if g.UsableFraction[0] == g.UsableFraction[1] {
+			row("usable capacity", "%s of the rated capacity", pct(g.UsableFraction[0]))
+		} else {
+			row("usable capacity", "%s to %s of the rated capacity, by setting", pct(g.UsableFraction[0]), pct(g.UsableFraction[1]))
+		}
 		l := g.Lifetime
-		row("battery lifetime", "median %s; 90 %% of nodes in %s", years(l.Median), yearPair(l.In90))
-		more("1 %% of this group's nodes are flat by %s", years(g.Lifetime1))
+		note := ""
+		if l.In90[0] == l.In90[1] && g.CalendarLimit > 0 && l.In90[0] == g.CalendarLimit {
+			note = " (the calendar limit)"
+		}
+		row("battery lifetime", "median %s; 90 %% of nodes in %s%s", years(l.Median), yearPair(l.In90), note)
+		more("1 %% of this group's nodes are at the end of their life by %s", years(g.Lifetime1))
+		if g.CalendarLimit > 0 {
+			binds := "the energy ends every node's life before it"
+			switch {
+			case g.EnergyBinds < 1e-9:
+				binds = "it ends every node's life: the energy outlasts it"
+			case g.EnergyBinds < 1-1e-9:
+				binds = fmt.Sprintf("the energy ends %s of the lives, the calendar the rest", pct(g.EnergyBinds))
+			}
+			more("calendar limit %s after deployment: %s", years(g.CalendarLimit), binds)
+		}
+		sp := g.Spread
+		var parts []string
+		for _, x := range []struct {
+			name  string
+			share float64
+		}{{"radio setting", sp.Setting}, {"cell capacity", sp.Capacity}, {"sleep current", sp.Floor}, {"active energy", sp.Active},
+			{"cell batch", sp.Batch}, {"site temperature", sp.Temperature}, {"per cycle", sp.PerCycle}} {
+			if x.share >= 0.0005 {
+				parts = append(parts, fmt.Sprintf("%s %s", x.name, pct(x.share)))
+			}
+		}
+		if len(parts) > 0 {
+			more("spread of the lifetime (shares of its variance): %s", strings.Join(parts, ", "))
+		}
 		f := g.FirstFailure
 		row("first failure", "in this group: median %s, 90 %% in %s", years(f.Median), yearPair(f.In90))
 		fmt.Fprintln(w)
@@ -178,8 +233,13 @@ func writeReport(w io.Writer, p *Plan) {
 	fmt.Fprintln(w, "Fleet: batteries and replacement")
 	fmt.Fprintln(w, "--------------------------------")
 	row("first failure", "median %s, 90 %% in %s", years(fl.FirstFailure.Median), yearPair(fl.FirstFailure.In90))
+	more("(a node's life ends when its cell is flat or at the cell's calendar limit, whichever comes first)")
 	for _, f := range fl.FlatBy {
-		row(fmt.Sprintf("%.0f %% flat (%d)", 100*f.Fraction, f.Count), "median %s, 90 %% in %s", years(f.Median), yearPair(f.In90))
+		note := ""
+		if f.In90[0] == f.In90[1] {
+			note = " (the cells' calendar limit)"
+		}
+		row(fmt.Sprintf("%.0f %% at end (%d)", 100*f.Fraction, f.Count), "median %s, 90 %% in %s%s", years(f.Median), yearPair(f.In90), note)
 	}
 	r := fl.Replacement
 	row("planned replacement", "after %s:", years(r.AfterYears))

@@ -123,8 +123,9 @@ func newPhysics(s scenario.Scenario) (*physics, error) {
 			if err != nil {
 				return err
 			}
-			li[dr] = s.Node.WindowMargin + float64(s.Node.WindowSymbols)*sym
-			re[dr] = s.Node.WindowMargin + air
+			node := s.NodeOf(g)
+			li[dr] = node.WindowMargin + float64(node.WindowSymbols)*sym
+			re[dr] = node.WindowMargin + air
 			return nil
 		}
 		for _, dr := range p.adrDRs {
@@ -395,7 +396,7 @@ func (pl *play) transmit(i int, c *cycle, t float64) {
 	c.attempt++
 	a := pl.p.uplink[n.Group][n.DR]
 	f := &frame{node: i, start: t, end: t + a, channel: pl.r.IntN(pl.p.channels), c: c}
-	cur, _ := pl.s.Node.TransmitCurrent(n.EIRP)
+	cur, _ := pl.s.NodeOf(pl.s.Groups[n.Group]).TransmitCurrent(n.EIRP)
 	c.charge += cur * a
 	c.active += a
 	pl.push(event{t: t, kind: frameStart, f: f})
@@ -436,7 +437,7 @@ func (pl *play) frameEnd(f *frame) {
 		pl.counts[k] = c
 	}
 	c := f.c
-	node := pl.s.Node
+	node := pl.s.NodeOf(pl.s.Groups[pl.nodes[f.node].Group])
 	// Which window, if any, brings an answer.
 	inRX1, inRX2 := false, false
 	if !f.collided && pl.r.Float64() < g.AnswerShare {
@@ -486,6 +487,7 @@ func (pl *play) finish(i int, c *cycle) {
 	if !c.record {
 		return
 	}
-	sleep := pl.s.Node.Sleep * (c.period - c.active)
-	pl.energy[i] = pl.s.Node.Voltage * (c.charge + sleep)
+	node := pl.s.NodeOf(pl.s.Groups[pl.nodes[i].Group])
+	sleep := node.Sleep * (c.period - c.active)
+	pl.energy[i] = node.Voltage * (c.charge + sleep)
 }

@@ -35,7 +35,7 @@ func TestLoneNodeEnergyIsTheTimeline(t *testing.T) {
 		tls, err := ca.Timelines()
 		require.NoError(t, err)
 		tl := tls[0]
-		n := s.Node
+		n := s.Nodes[0]
 		tx, ok := n.TransmitCurrent(nd.EIRP)
 		require.True(t, ok)
 		w := s.Groups[0].Work[0]

@@ -17,13 +17,15 @@ import (
 // an immutable value (treat its slices as read-only).
 type Model struct {
 	Scenario Scenario
-	Battery  energy.Battery
 	Groups   []GroupModel
 }
 
 // GroupModel is the model of one group.
 type GroupModel struct {
 	Group   Group
+	Node    Node           // the group's node design
+	Cell    Cell           // the group's cell description
+	Battery energy.Battery // the cell, checked
 	Link    lora.Link
 	Settled lora.Settled
 	// Settings is the law of (data rate, TXPower) of a node in reach
@@ -81,11 +83,7 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 			progress(fmt.Sprintf(format, args...))
 		}
 	}
-	bat, err := energy.NewBattery(s.Cell)
-	if err != nil {
-		return Model{}, fmt.Errorf("cell: %w", err)
-	}
-	m := Model{Scenario: s, Battery: bat, Groups: make([]GroupModel, len(s.Groups))}
+	m := Model{Scenario: s, Groups: make([]GroupModel, len(s.Groups))}
 	channels := len(s.Region.UplinkChannels())
 	pl := lora.PathLoss{
 		Reference:   s.Environment.ReferenceLoss,
@@ -95,7 +93,11 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 	}
 	for i, g := range s.Groups {
 		say("settling ADR for group %q", g.Name)
-		gm := GroupModel{Group: g}
+		gm := GroupModel{Group: g, Node: s.NodeOf(g), Cell: s.CellOf(g)}
+		var err error
+		if gm.Battery, err = energy.NewBattery(gm.Cell.Spec); err != nil {
+			return Model{}, fmt.Errorf("group %q: cell %q: %w", g.Name, gm.Cell.Spec.Name, err)
+		}
 		d, err := lora.NewAnnulus(g.InnerRadius, g.OuterRadius)
 		if err != nil {
 			return Model{}, fmt.Errorf("group %q: %w", g.Name, err)
@@ -231,8 +233,9 @@ func (g *GroupModel) drModel(dr int) (DRModel, bool) {
 // describe fills ClassA and Period.
 func (g *GroupModel) describe(s Scenario) error {
 	gr := g.Group
-	cur := lora.Currents{Voltage: s.Node.Voltage, RX: s.Node.Receive, Wait: s.Node.Wait, Floor: s.Node.Sleep}
-	for _, t := range s.Node.Transmit {
+	node := g.Node
+	cur := lora.Currents{Voltage: node.Voltage, RX: node.Receive, Wait: node.Wait, Floor: node.Sleep}
+	for _, t := range node.Transmit {
 		cur.TX = append(cur.TX, lora.TXCurrent{EIRP: t.EIRP, Current: t.Current})
 	}
 	dl := lora.EmptyFrameBytes
@@ -247,7 +250,7 @@ func (g *GroupModel) describe(s Scenario) error {
 	for _, d := range g.PerDR {
 		byDR[d.DR] = d.Windows
 	}
-	before, err := WorkStage(s.Node.Voltage, gr.Work)
+	before, err := WorkStage(node.Voltage, gr.Work)
 	if err != nil {
 		return err
 	}
@@ -261,8 +264,8 @@ func (g *GroupModel) describe(s Scenario) error {
 		DownlinkBytes:   dl,
 		Downlink:        byDR[g.PerDR[0].DR],
 		DownlinkByDR:    byDR,
-		PreambleSymbols: s.Node.WindowSymbols,
-		ClockMargin:     s.Node.WindowMargin,
+		PreambleSymbols: node.WindowSymbols,
+		ClockMargin:     node.WindowMargin,
 		Before:          before,
 	}
 	g.Period, err = PeriodLaw(gr.Interval, gr.Jitter)
@@ -286,6 +289,35 @@ func (g GroupModel) SettingCycle(i int) (energy.Cycle, error) {
 	one.Prob = 1
 	c.Settings = []lora.Setting{one}
 	return c.Cycle(g.Period)
+}
+
+// NodeSpec returns the description of the group's nodes for package
+// energy's lifetime laws, given the cycle of each of its settings (in the
+// order of Settings): their weights, the cell, the supply path, the
+// temperature behaviour (the cell's, with the node's sleep-current
+// doubling), the voltage curve and brown-out, the per-node spreads, the
+// calendar life, storage time and the deployment month.
+func (g GroupModel) NodeSpec(s Scenario, cycles []energy.Cycle) (energy.NodeSpec, error) {
+	if len(cycles) != len(g.Settings) {
+		return energy.NodeSpec{}, &FieldError{Field: "cycles", Value: len(cycles), Rule: fmt.Sprintf("need one cycle per setting (%d)", len(g.Settings))}
+	}
+	spec := energy.NodeSpec{Name: g.Group.Name, Battery: g.Battery, Supply: g.Node.Supply,
+		Spread:       energy.NodeSpread{Capacity: g.Cell.CapacitySD, Floor: g.Node.FloorLogSD, Active: g.Node.ActiveSD},
+		CalendarLife: g.Cell.CalendarLife, StorageTime: g.Group.StorageTime, StartMonth: s.StartMonth}
+	w := g.Weights()
+	for i, c := range cycles {
+		spec.Settings = append(spec.Settings, energy.NodeSetting{Weight: w[i], Cycle: c})
+	}
+	if g.Cell.Thermal != nil {
+		th := *g.Cell.Thermal
+		th.FloorDoublingInterval = g.Node.FloorDoubling
+		spec.Thermal = &th
+	}
+	if g.Cell.Voltage != nil {
+		spec.Voltage = g.Cell.Voltage
+		spec.Brownout = g.Node.Brownout
+	}
+	return spec, nil
 }
 
 // Job names one (group, setting) pair of a model.

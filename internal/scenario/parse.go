@@ -15,6 +15,7 @@ const (
 	maxGateways = 8
 	maxGroups   = 64
 	maxWork     = 16
+	maxDesigns  = 16 // node and cell descriptions in one file
 )
 
 // Parse reads a scenario file (see the package doc for the format) and
@@ -27,10 +28,21 @@ func Parse(data []byte) (Scenario, error) {
 		return Scenario{}, err
 	}
 	c := &checker{}
-	top := c.object("", root, "format", "site", "description", "region", "radio_environment", "node", "cell", "gateways", "groups", "plan")
+	// The format decides which fields the file must hold.
+	v1 := false
+	if m, ok := root.(map[string]any); ok {
+		if f, ok := m["format"].(string); ok && f == FormatVersion1 {
+			v1 = true
+		}
+	}
+	keys := []string{"format", "site", "description", "region", "radio_environment", "climate", "shared", "nodes", "cells", "gateways", "groups", "plan"}
+	if v1 {
+		keys = []string{"format", "site", "description", "region", "radio_environment", "node", "cell", "gateways", "groups", "plan"}
+	}
+	top := c.object("", root, keys...)
 	var s Scenario
-	if f := top.str("format", true); top.ok && f != "" && f != FormatVersion {
-		c.fail("format", f, fmt.Sprintf("must be %q (the only version this program reads)", FormatVersion))
+	if f := top.str("format", true); top.ok && f != "" && f != FormatVersion && f != FormatVersion1 {
+		c.fail("format", f, fmt.Sprintf("must be %q (or the first format, %q)", FormatVersion, FormatVersion1))
 	}
 	s.Site = top.str("site", true)
 	s.Description = top.str("description", false)
@@ -44,12 +56,37 @@ func Parse(data []byte) (Scenario, error) {
 	}
 	env, _ := top.get("radio_environment")
 	s.Environment = readEnvironment(c, env)
-	node, _ := top.get("node")
-	s.Node = readNode(c, node, s.Region, regionOK)
-	cell, _ := top.get("cell")
-	s.Cell = readCell(c, cell)
+	if v1 {
+		node, _ := top.get("node")
+		n := readNode(c, "node", node, s.Region, regionOK, false)
+		n.Name = "node"
+		s.Nodes = []Node{n}
+		cell, _ := top.get("cell")
+		s.Cells = []Cell{{Spec: readCell(c, "cell", cell, false)}}
+	} else {
+		clim, _ := top.get("climate")
+		s.Climate, s.StartMonth = readClimate(c, clim)
+		sh, _ := top.get("shared")
+		s.Shared = readShared(c, sh)
+		for i, it := range top.array("nodes", 1, maxDesigns) {
+			p := index("nodes", i)
+			n := readNode(c, p, it, s.Region, regionOK, true)
+			if n.Name != "" && slices.ContainsFunc(s.Nodes, func(m Node) bool { return m.Name == n.Name }) {
+				c.fail(p+".name", n.Name, "node names must be unique")
+			}
+			s.Nodes = append(s.Nodes, n)
+		}
+		for i, it := range top.array("cells", 1, maxDesigns) {
+			p := index("cells", i)
+			cl := readCellV2(c, p, it)
+			if cl.Spec.Name != "" && slices.ContainsFunc(s.Cells, func(m Cell) bool { return m.Spec.Name == cl.Spec.Name }) {
+				c.fail(p+".name", cl.Spec.Name, "cell names must be unique")
+			}
+			s.Cells = append(s.Cells, cl)
+		}
+	}
 	s.Gateways = readGateways(c, top.array("gateways", 1, maxGateways))
-	s.Groups = readGroups(c, top.array("groups", 1, maxGroups), s, regionOK)
+	s.Groups = readGroups(c, top.array("groups", 1, maxGroups), s, regionOK, v1)
 	plan, _ := top.get("plan")
 	s.Plan = readPlan(c, plan)
 	checkCurrents(c, s)
@@ -77,12 +114,15 @@ func readEnvironment(c *checker, v any) Environment {
 	return e
 }
 
-func readNode(c *checker, v any, region lora.Region, regionOK bool) Node {
+func readNode(c *checker, p string, v any, region lora.Region, regionOK, v2 bool) Node {
 	if v == nil {
 		return Node{}
 	}
-	const p = "node"
-	o := c.object(p, v, "supply_voltage_v", "sleep_current_ua", "wait_current_ua", "receive_current_ma", "receive_window_symbols", "receive_window_margin_ms", "transmit_current_ma")
+	keys := []string{"supply_voltage_v", "sleep_current_ua", "wait_current_ua", "receive_current_ma", "receive_window_symbols", "receive_window_margin_ms", "transmit_current_ma"}
+	if v2 {
+		keys = append(keys, "name", "supply", "brownout_voltage_v", "sleep_current_log_sd", "active_energy_sd", "sleep_current_doubling_c")
+	}
+	o := c.object(p, v, keys...)
 	var n Node
 	n.Voltage, _ = o.number("supply_voltage_v", openLow(0, 60))
 	ua, _ := o.number("sleep_current_ua", closed(0, 1e6))
@@ -94,8 +134,12 @@ func readNode(c *checker, v any, region lora.Region, regionOK bool) Node {
 	n.WindowSymbols, _ = o.integer("receive_window_symbols", 4, 64)
 	ms, _ := o.number("receive_window_margin_ms", closed(0, 1000))
 	n.WindowMargin = ms * energy.Millisecond
+	if v2 {
+		readNodeV2(c, p, o, &n)
+	}
 
 	levels := o.array("transmit_current_ma", 1, 32)
+
 	if levels == nil {
 		return n
 	}
@@ -157,12 +201,24 @@ func list(xs []float64) string {
 	return strings.Join(s, ", ")
 }
 
-func readCell(c *checker, v any) energy.BatterySpec {
+func readCell(c *checker, p string, v any, v2 bool) energy.BatterySpec {
 	if v == nil {
 		return energy.BatterySpec{}
 	}
-	const p = "cell"
-	o := c.object(p, v, "name", "chemistry", "capacity_mah", "nominal_voltage_v", "cutoff_voltage_v", "usable_fraction", "self_discharge_percent_per_year", "temperature_derating", "pulse_current_ma")
+	o := c.object(p, v, cellKeys(v2)...)
+	return readCellSpec(c, p, o, v2)
+}
+
+func cellKeys(v2 bool) []string {
+	keys := []string{"name", "chemistry", "capacity_mah", "nominal_voltage_v", "cutoff_voltage_v", "usable_fraction", "self_discharge_percent_per_year", "temperature_derating", "pulse_current_ma"}
+	if v2 {
+		keys = []string{"name", "chemistry", "capacity_mah", "nominal_voltage_v", "cutoff_voltage_v", "usable_fraction", "self_discharge_percent_per_year", "pulse_current_ma",
+			"capacity_sd", "calendar_life_years", "reference_temperature_c", "self_discharge_activation_kj_per_mol", "rated_temperature_c", "derating", "voltage_curve"}
+	}
+	return keys
+}
+
+func readCellSpec(c *checker, p string, o obj, v2 bool) energy.BatterySpec {
 	var b energy.BatterySpec
 	b.Name = o.str("name", true)
 	b.Chemistry = o.str("chemistry", false)
@@ -180,7 +236,12 @@ func readCell(c *checker, v any) energy.BatterySpec {
 	b.UsableFraction, okU = o.number("usable_fraction", openLow(0, 1))
 	pct, okS := o.number("self_discharge_percent_per_year", openHigh(0, 100))
 	b.SelfDischargePerYear = pct / 100
-	b.TemperatureDerating, okT = o.number("temperature_derating", openLow(0, 1))
+	if v2 {
+		// The derating table replaces the single factor.
+		b.TemperatureDerating, okT = 1, true
+	} else {
+		b.TemperatureDerating, okT = o.number("temperature_derating", openLow(0, 1))
+	}
 	ma, okP := o.number("pulse_current_ma", closed(0, 1e5))
 	b.PulseCurrent = ma * energy.MilliAmp
 	if okCap && okV && okCut && okU && okS && okT && okP {
@@ -208,17 +269,32 @@ func readGateways(c *checker, items []any) []Gateway {
 	return gws
 }
 
-func readGroups(c *checker, items []any, s Scenario, regionOK bool) []Group {
+func readGroups(c *checker, items []any, s Scenario, regionOK, v1 bool) []Group {
 	var groups []Group
 	for i, it := range items {
-		groups = append(groups, readGroup(c, index("groups", i), it, s, regionOK, groups))
+		groups = append(groups, readGroup(c, index("groups", i), it, s, regionOK, v1, groups))
 	}
 	return groups
 }
 
-func readGroup(c *checker, p string, v any, s Scenario, regionOK bool, before []Group) Group {
-	o := c.object(p, v, "name", "nodes", "gateway", "inner_radius_m", "outer_radius_m", "payload_bytes", "report_interval_s", "interval_jitter_s", "confirmed", "max_transmissions", "answer_share", "rx1_share", "downlink_payload_bytes", "downlink_loss_probability", "work")
+func readGroup(c *checker, p string, v any, s Scenario, regionOK, v1 bool, before []Group) Group {
+	keys := []string{"name", "nodes", "gateway", "inner_radius_m", "outer_radius_m", "payload_bytes", "report_interval_s", "interval_jitter_s", "confirmed", "max_transmissions", "answer_share", "rx1_share", "downlink_payload_bytes", "downlink_loss_probability", "work"}
+	if !v1 {
+		keys = append(keys, "node", "cell", "storage_months")
+	}
+	o := c.object(p, v, keys...)
 	var g Group
+	if !v1 {
+		g.Node = pickName(c, p+".node", o.str("node", true), len(s.Nodes), func(i int) string { return s.Nodes[i].Name })
+		g.Cell = pickName(c, p+".cell", o.str("cell", true), len(s.Cells), func(i int) string { return s.Cells[i].Spec.Name })
+		months, _ := o.number("storage_months", closed(0, 240))
+		g.StorageTime = months * energy.Month
+		if g.Cell >= 0 && g.Cell < len(s.Cells) {
+			if cal := s.Cells[g.Cell].CalendarLife; cal > 0 && g.StorageTime >= cal {
+				c.fail(p+".storage_months", months, fmt.Sprintf("must be below the cell's calendar life (%g years)", cal/energy.Year))
+			}
+		}
+	}
 	g.Name = o.str("name", true)
 	if g.Name != "" && slices.ContainsFunc(before, func(h Group) bool { return h.Name == g.Name }) {
 		c.fail(p+".name", g.Name, "group names must be unique")
@@ -331,26 +407,36 @@ func readPlan(c *checker, v any) Plan {
 	return Plan{ReplaceAfter: years * energy.Year, AcceptableRisk: risk}
 }
 
-// checkCurrents: every state must draw at least the floor current.
+// checkCurrents: every state must draw at least the floor current of the
+// node design that runs it.
 func checkCurrents(c *checker, s Scenario) {
-	sleep := s.Node.Sleep
-	if sleep == 0 {
-		return
-	}
-	rule := fmt.Sprintf("must be at least the sleep current (%g µA = %g mA)", sleep/energy.MicroAmp, sleep/energy.MilliAmp)
-	below := func(field string, a, unit float64) {
-		if a < sleep {
-			c.fail(field, a/unit, rule)
+	for ni, n := range s.Nodes {
+		sleep := n.Sleep
+		if sleep == 0 {
+			continue
 		}
-	}
-	below("node.wait_current_ua", s.Node.Wait, energy.MicroAmp)
-	below("node.receive_current_ma", s.Node.Receive, energy.MilliAmp)
-	for i, t := range s.Node.Transmit {
-		below(fmt.Sprintf("node.transmit_current_ma (%g dBm, entry %d by power)", t.EIRP, i), t.Current, energy.MilliAmp)
-	}
-	for i, g := range s.Groups {
-		for j, w := range g.Work {
-			below(fmt.Sprintf("groups[%d].work[%d].current_ma", i, j), w.Current, energy.MilliAmp)
+		p := index("nodes", ni)
+		if len(s.Nodes) == 1 && n.Name == "node" {
+			p = "node"
+		}
+		rule := fmt.Sprintf("must be at least the sleep current (%g µA = %g mA)", sleep/energy.MicroAmp, sleep/energy.MilliAmp)
+		below := func(field string, a, unit float64) {
+			if a < sleep {
+				c.fail(field, a/unit, rule)
+			}
+		}
+		below(p+".wait_current_ua", n.Wait, energy.MicroAmp)
+		below(p+".receive_current_ma", n.Receive, energy.MilliAmp)
+		for i, t := range n.Transmit {
+			below(fmt.Sprintf("%s.transmit_current_ma (%g dBm, entry %d by power)", p, t.EIRP, i), t.Current, energy.MilliAmp)
+		}
+		for i, g := range s.Groups {
+			if g.Node != ni {
+				continue
+			}
+			for j, w := range g.Work {
+				below(fmt.Sprintf("groups[%d].work[%d].current_ma", i, j), w.Current, energy.MilliAmp)
+			}
 		}
 	}
 }

@@ -11,8 +11,13 @@ import (
 	"github.com/joulelaw/joulelaw/radio/lora"
 )
 
-// FormatVersion is the value of the "format" field this package reads.
-const FormatVersion = "joulelaw-scenario/1"
+// FormatVersion is the value of the "format" field this package writes and
+// reads; FormatVersion1, the first format (one node and one cell for the
+// whole site, no spreads, no climate, no calendar), is still read.
+const (
+	FormatVersion  = "joulelaw-scenario/2"
+	FormatVersion1 = "joulelaw-scenario/1"
+)
 
 // ErrInvalid is wrapped by every error that reports a bad scenario file.
 var ErrInvalid = errors.New("scenario: invalid")
@@ -59,11 +64,34 @@ type Scenario struct {
 	Description string
 	Region      lora.Region
 	Environment Environment
-	Node        Node
-	Cell        energy.BatterySpec // checked with energy.NewBattery
-	Gateways    []Gateway
-	Groups      []Group
-	Plan        Plan
+	Nodes       []Node // node hardware descriptions, named; groups refer to them
+	Cells       []Cell // cell descriptions, named; groups refer to them
+	// Climate is the site's year of temperature (nil in a format 1 file:
+	// the cells' reference temperature all year).
+	Climate *energy.Climate
+	// StartMonth is the month of deployment, 0 (January) to 11.
+	StartMonth int
+	Shared     energy.SharedSpread // what the whole fleet shares
+	Gateways   []Gateway
+	Groups     []Group
+	Plan       Plan
+}
+
+// NodeOf returns the node hardware of group g.
+func (s Scenario) NodeOf(g Group) Node { return s.Nodes[g.Node] }
+
+// CellOf returns the cell of group g.
+func (s Scenario) CellOf(g Group) Cell { return s.Cells[g.Cell] }
+
+// Cell is a cell description: its data-sheet values (Spec, checked with
+// energy.NewBattery), its unit-to-unit capacity spread, calendar life,
+// temperature behaviour and, optionally, its voltage under load.
+type Cell struct {
+	Spec         energy.BatterySpec
+	CapacitySD   float64              // relative sd of a cell's capacity (normal factor), energy.NodeSpread.Capacity
+	CalendarLife float64              // rated service life from manufacture, s; 0 for none
+	Thermal      *energy.Thermal      // nil in a format 1 file; the node's floor doubling is filled in per group
+	Voltage      *energy.VoltageCurve // nil: Spec.UsableFraction holds
 }
 
 // Environment is the site's path-loss model:
@@ -79,15 +107,22 @@ type Environment struct {
 	InstallationMargin float64 // margin kept above the demodulation floor, dB
 }
 
-// Node is the electrical description shared by all nodes.
+// Node is the electrical description of a node design (board and radio).
 type Node struct {
-	Voltage       float64         // supply voltage, V
+	Name          string
+	Voltage       float64         // rail voltage at which the currents are given, V
 	Sleep         float64         // floor current between cycles, A
 	Wait          float64         // current while waiting for the receive windows, A
 	Receive       float64         // current while listening or receiving, A
 	WindowSymbols int             // preamble symbols listened for in an empty window
 	WindowMargin  float64         // extra listening time per empty window for clock error, s
 	Transmit      []TransmitLevel // one per TXPower index of the region, by index
+
+	Supply        energy.Supply // the path from the cell to the rail
+	Brownout      float64       // the node's brown-out voltage, V (used with a cell's voltage curve)
+	FloorLogSD    float64       // board-to-board log-sd of the sleep current, energy.NodeSpread.Floor
+	ActiveSD      float64       // board-to-board relative sd of the active energy, energy.NodeSpread.Active
+	FloorDoubling float64       // °C per doubling of the sleep current; 0 for none
 }
 
 // TransmitLevel is the supply current at one transmit power.
@@ -131,6 +166,9 @@ type Group struct {
 	DownlinkPayload  int     // application payload of an answer, bytes
 	DownlinkLoss     float64 // probability a sent answer is not received
 	Work             []Step  // done before each uplink, in order
+	Node             int     // index into Scenario.Nodes
+	Cell             int     // index into Scenario.Cells
+	StorageTime      float64 // time from the cells' manufacture to deployment, s
 }
 
 // Step is one piece of work before the uplink: a constant current for a
@@ -174,7 +212,12 @@ func (s Scenario) WithCounts(counts []int) (Scenario, error) {
 		g.Nodes = counts[i]
 		c.Groups[i] = g
 	}
-	c.Node.Transmit = append([]TransmitLevel(nil), s.Node.Transmit...)
+	c.Nodes = make([]Node, len(s.Nodes))
+	for i, n := range s.Nodes {
+		n.Transmit = append([]TransmitLevel(nil), n.Transmit...)
+		c.Nodes[i] = n
+	}
+	c.Cells = append([]Cell(nil), s.Cells...)
 	return c, nil
 }
 

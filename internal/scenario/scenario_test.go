@@ -22,11 +22,11 @@ func TestDemoParses(t *testing.T) {
 	assert.Len(t, s.Groups, 4)
 	assert.Equal(t, 304, s.TotalNodes())
 	// Units are converted to SI on reading.
-	assert.InDelta(t, 2.5e-6, s.Node.Sleep, 1e-18)
-	assert.InDelta(t, 0.0115, s.Node.Receive, 1e-15)
-	assert.InDelta(t, 0.010, s.Node.WindowMargin, 1e-15)
-	assert.InDelta(t, 2400*3.6, s.Cell.Charge, 1e-9)
-	assert.InDelta(t, 0.01, s.Cell.SelfDischargePerYear, 1e-15)
+	assert.InDelta(t, 2.5e-6, s.Nodes[0].Sleep, 1e-18)
+	assert.InDelta(t, 0.0115, s.Nodes[0].Receive, 1e-15)
+	assert.InDelta(t, 0.010, s.Nodes[0].WindowMargin, 1e-15)
+	assert.InDelta(t, 2400*3.6, s.Cells[0].Spec.Charge, 1e-9)
+	assert.InDelta(t, 0.01, s.Cells[0].Spec.SelfDischargePerYear, 1e-15)
 	assert.InDelta(t, 5*energy.Year, s.Plan.ReplaceAfter, 1e-6)
 	g := s.Groups[1]
 	assert.Equal(t, "field soil probes", g.Name)
@@ -34,15 +34,43 @@ func TestDemoParses(t *testing.T) {
 	assert.InDelta(t, 0.35, g.Work[0].Duration, 1e-15)
 	assert.Zero(t, g.Work[0].Spread)
 	// Transmit levels are ordered by TXPower index (EIRP falling) and cover the region.
-	require.Len(t, s.Node.Transmit, len(s.Region.TXPowers()))
+	require.Len(t, s.Nodes[0].Transmit, len(s.Region.TXPowers()))
 	for i, p := range s.Region.TXPowers() {
-		assert.Equal(t, p, s.Node.Transmit[i].EIRP)
+		assert.Equal(t, p, s.Nodes[0].Transmit[i].EIRP)
 	}
-	cur, ok := s.Node.TransmitCurrent(14)
+	cur, ok := s.Nodes[0].TransmitCurrent(14)
 	assert.True(t, ok)
 	assert.InDelta(t, 0.044, cur, 1e-15)
-	_, err := energy.NewBattery(s.Cell)
+	_, err := energy.NewBattery(s.Cells[0].Spec)
 	require.NoError(t, err)
+	// Format 2's additions.
+	require.NotNil(t, s.Climate)
+	assert.InDelta(t, 17.5, s.Climate.Month(6), 1e-12) // July
+	assert.Equal(t, 3, s.StartMonth)                   // April, 0-based
+	assert.Equal(t, energy.SharedSpread{Batch: 0.02, Temperature: 1}, s.Shared)
+	assert.InDelta(t, 0.04, s.Cells[0].CapacitySD, 1e-15)
+	assert.InDelta(t, 15*energy.Year, s.Cells[0].CalendarLife, 1e-6)
+	require.NotNil(t, s.Cells[0].Thermal)
+	require.NotNil(t, s.Cells[0].Voltage)
+	assert.InDelta(t, 6*energy.Month, g.StorageTime, 1e-6)
+	assert.Equal(t, 1, s.Groups[3].Cell) // the weather masts' spiral cell
+	assert.InDelta(t, 3.6/3.3, s.Nodes[0].Supply.EnergyScale(3.6), 1e-15)
+}
+
+// A file of the first format (one node and one cell for the site) is still
+// read, as a site without spreads, climate or calendar.
+func TestFormat1StillRead(t *testing.T) {
+	data, err := os.ReadFile(filepath.Join("testdata", "format1.json"))
+	require.NoError(t, err)
+	s, err := scenario.Parse(data)
+	require.NoError(t, err)
+	require.Len(t, s.Nodes, 1)
+	require.Len(t, s.Cells, 1)
+	assert.Nil(t, s.Climate)
+	assert.Nil(t, s.Cells[0].Thermal)
+	assert.Zero(t, s.Cells[0].CapacitySD)
+	assert.Equal(t, 304, s.TotalNodes())
+	assert.InDelta(t, 0.9, s.Cells[0].Spec.TemperatureDerating, 1e-15)
 }
 
 func TestDemoJSONIsACopy(t *testing.T) {
@@ -77,7 +105,9 @@ func mutate(t *testing.T, edit func(m map[string]any)) []byte {
 	return out
 }
 
-func obj(v any) map[string]any { return v.(map[string]any) }
+func obj(v any) map[string]any              { return v.(map[string]any) }
+func node0(m map[string]any) map[string]any { return obj(m["nodes"].([]any)[0]) }
+func cell0(m map[string]any) map[string]any { return obj(m["cells"].([]any)[0]) }
 func group(m map[string]any, i int) map[string]any {
 	return obj(m["groups"].([]any)[i])
 }
@@ -132,27 +162,48 @@ func TestMalformedRejected(t *testing.T) {
 		}, "groups[1].name", `"dyke piezometers"`, "unique"},
 		{"transmit level missing", func(t *testing.T) []byte {
 			return mutate(t, func(m map[string]any) {
-				n := obj(m["node"])
+				n := node0(m)
 				n["transmit_current_ma"] = n["transmit_current_ma"].([]any)[1:]
 			})
-		}, "node.transmit_current_ma", "7 levels", "missing 16 dBm"},
+		}, "nodes[0].transmit_current_ma", "7 levels", "missing 16 dBm"},
 		{"transmit level not in the region", func(t *testing.T) []byte {
 			return mutate(t, func(m map[string]any) {
-				obj(obj(m["node"])["transmit_current_ma"].([]any)[0])["eirp_dbm"] = 15
+				obj(node0(m)["transmit_current_ma"].([]any)[0])["eirp_dbm"] = 15
 			})
-		}, "node.transmit_current_ma[0].eirp_dbm", "15", "not a TXPower level of EU863-870"},
+		}, "nodes[0].transmit_current_ma[0].eirp_dbm", "15", "not a TXPower level of EU863-870"},
 		{"cut-off above nominal", func(t *testing.T) []byte {
-			return mutate(t, func(m map[string]any) { obj(m["cell"])["cutoff_voltage_v"] = 3.6 })
-		}, "cell.cutoff_voltage_v", "3.6", "below nominal_voltage_v (3.6 V)"},
+			return mutate(t, func(m map[string]any) { cell0(m)["cutoff_voltage_v"] = 3.6 })
+		}, "cells[0].cutoff_voltage_v", "3.6", "below nominal_voltage_v (3.6 V)"},
 		{"self-discharge of 100 %", func(t *testing.T) []byte {
-			return mutate(t, func(m map[string]any) { obj(m["cell"])["self_discharge_percent_per_year"] = 100 })
-		}, "cell.self_discharge_percent_per_year", "100", "in [0, 100)"},
+			return mutate(t, func(m map[string]any) { cell0(m)["self_discharge_percent_per_year"] = 100 })
+		}, "cells[0].self_discharge_percent_per_year", "100", "in [0, 100)"},
 		{"zero capacity", func(t *testing.T) []byte {
-			return mutate(t, func(m map[string]any) { obj(m["cell"])["capacity_mah"] = 0 })
-		}, "cell.capacity_mah", "0", "in (0, 1e+07]"},
+			return mutate(t, func(m map[string]any) { cell0(m)["capacity_mah"] = 0 })
+		}, "cells[0].capacity_mah", "0", "in (0, 1e+07]"},
 		{"wrong format version", func(t *testing.T) []byte {
-			return mutate(t, func(m map[string]any) { m["format"] = "joulelaw-scenario/2" })
-		}, "format", `"joulelaw-scenario/2"`, `must be "joulelaw-scenario/1"`},
+			return mutate(t, func(m map[string]any) { m["format"] = "joulelaw-scenario/3" })
+		}, "format", `"joulelaw-scenario/3"`, `must be "joulelaw-scenario/2"`},
+		{"climate of eleven months", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) {
+				c := obj(m["climate"])
+				c["monthly_mean_c"] = c["monthly_mean_c"].([]any)[1:]
+			})
+		}, "climate.monthly_mean_c", "11 entries", "12 to 12 entries"},
+		{"unknown cell", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { group(m, 1)["cell"] = "mystery cell" })
+		}, "groups[1].cell", `"mystery cell"`, "must name one of"},
+		{"capacity spread too wide", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { cell0(m)["capacity_sd"] = 0.3 })
+		}, "cells[0].capacity_sd", "0.3", "in [0, 0.15]"},
+		{"storage beyond the calendar life", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { group(m, 0)["storage_months"] = 200 })
+		}, "groups[0].storage_months", "200", "below the cell's calendar life"},
+		{"unknown supply", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { obj(node0(m)["supply"])["kind"] = "solar" })
+		}, "nodes[0].supply.kind", `"solar"`, `"direct", "linear" or "switching"`},
+		{"sleep spread negative", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { node0(m)["sleep_current_log_sd"] = -0.1 })
+		}, "nodes[0].sleep_current_log_sd", "-0.1", "in [0, 1]"},
 		{"region not modelled", func(t *testing.T) []byte {
 			return mutate(t, func(m map[string]any) { m["region"] = "US902-928" })
 		}, "region", `"US902-928"`, `must be "EU863-870"`},
@@ -163,8 +214,8 @@ func TestMalformedRejected(t *testing.T) {
 			})
 		}, "gateways[0], gateways[1]", `"pumping station" and "sluice tower" 5000 m apart`, "overlap"},
 		{"current below the floor", func(t *testing.T) []byte {
-			return mutate(t, func(m map[string]any) { obj(m["node"])["wait_current_ua"] = 1 })
-		}, "node.wait_current_ua", "1", "at least the sleep current (2.5 µA"},
+			return mutate(t, func(m map[string]any) { node0(m)["wait_current_ua"] = 1 })
+		}, "nodes[0].wait_current_ua", "1", "at least the sleep current (2.5 µA"},
 		{"work named like a radio state", func(t *testing.T) []byte {
 			return mutate(t, func(m map[string]any) { obj(group(m, 0)["work"].([]any)[0])["name"] = "rx1" })
 		}, "groups[0].work[0].name", `"rx1"`, "name of a radio state"},
@@ -225,12 +276,12 @@ func TestEveryProblemReported(t *testing.T) {
 	file := mutate(t, func(m map[string]any) {
 		group(m, 0)["nodes"] = -1
 		group(m, 1)["report_interval_s"] = "900"
-		delete(obj(m["cell"]), "usable_fraction")
+		delete(cell0(m), "usable_fraction")
 	})
 	_, err := scenario.Parse(file)
 	require.Error(t, err)
 	msg := err.Error()
-	for _, f := range []string{"groups[0].nodes", "groups[1].report_interval_s", "cell.usable_fraction"} {
+	for _, f := range []string{"groups[0].nodes", "groups[1].report_interval_s", "cells[0].usable_fraction"} {
 		assert.Contains(t, msg, f)
 	}
 	assert.Len(t, flatten(err), 3, msg)

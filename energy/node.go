@@ -207,13 +207,19 @@ func newNode(fn string, spec NodeSpec, env Environment) (*node, error) {
 		st := nodeSetting{w: s.Weight, rate: 1 / c.period.Mean(), floorP: scale * c.floor, scale: scale, excess: c.excess}
 		uf := usableF
 		if spec.Voltage != nil {
+			// States are given at the rail (the cell for a direct supply).
+			rail := spec.Supply.RailVoltage()
+			if rail == 0 {
+				rail = v
+			}
 			peak := 0.0
 			for _, state := range c.States() {
-				peak = math.Max(peak, state.peakCurrent(v))
+				peak = math.Max(peak, state.peakCurrent(rail))
 			}
-			// Cell current under the peak: node power scaled through the
-			// supply, plus its own draw, at the cell's voltage.
-			ipk := (peak*v*scale + quiescent) / v
+			// Cell current under the peak: the node's power at the rail,
+			// scaled through the supply, plus its own draw, at the cell's
+			// voltage (a linear regulator passes the current through).
+			ipk := (peak*rail*scale + quiescent) / v
 			tc := 20.0
 			if spec.Thermal != nil {
 				tc = spec.Thermal.ReferenceTemperature

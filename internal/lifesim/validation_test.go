@@ -1,0 +1,314 @@
+package lifesim_test
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+	"sort"
+	"strings"
+	"sync"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/lifesim"
+	"github.com/joulelaw/joulelaw/internal/testref"
+)
+
+// Sample sizes of the validation. The KS bounds at level 1e-6 (DKW with
+// Massart's constant) are sqrt(ln(2e6)/(2n)): 0.060 for 2000 nodes, 0.085
+// for 1000 fleets.
+const (
+	nodeSamples  = 2000 // independent nodes per group and law
+	fleetSamples = 1000 // independent fleets
+	seedNodes    = 501
+	seedFleets   = 502
+	seedEnv      = 503
+)
+
+// shift is the relative move of a law that each KS check must reject, so
+// that no check passes whatever the law says ("a few per cent": the
+// lifetimes here spread by 10 to 15 %, and the smallest move the samples
+// reject is reported beside each check).
+const shift = 0.05
+
+// parallel runs job(i) for i in [0, n) on two goroutines; each job uses its
+// own source seeded by (seed, i), so the results do not depend on the
+// schedule.
+func parallel(n int, seed uint64, job func(i int, r *rand.Rand) error) error {
+	errs := make([]error, n)
+	var wg sync.WaitGroup
+	for w := range 2 {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := w; i < n; i += 2 {
+				errs[i] = job(i, rand.New(rand.NewPCG(seed, uint64(i))))
+			}
+		}()
+	}
+	wg.Wait()
+	for _, err := range errs {
+		if err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// ksRow is one line of the figures reported to the README.
+type ksRow struct {
+	what     string
+	n        int
+	d, bound float64
+	moved    float64 // smallest relative move of the law the samples reject
+}
+
+func (k ksRow) String() string {
+	return fmt.Sprintf("| %s | %d | %.4f | %.4f | %.1f %% |", k.what, k.n, k.d, k.bound, 100*k.moved)
+}
+
+// gridKS bounds the Kolmogorov–Smirnov distance sup_x |F_n(x) − F(x)| of
+// the samples xs to the law F = cdf from F evaluated at m+1 of the sorted
+// samples only (each evaluation of these laws is costly). With grid points
+// g_0 < … < g_m, both F_n and F are non-decreasing, so on (g_j, g_{j+1})
+// F_n lies in [F_n(g_j), F_n(g_{j+1}⁻)] and F in [F(g_j), F(g_{j+1}⁻)]:
+//
+//	sup |F_n − F| <= max_j max(F_n(g_{j+1}⁻) − F(g_j), F(g_{j+1}⁻) − F_n(g_j))
+//
+// together with the exact differences at the grid points and the ends
+// (F_n = 0 below g_0, 1 from g_m on). It returns that upper bound and the
+// exact lower bound max_j |F_n(g_j) − F(g_j)|. Atoms are kept exact: F is
+// read just below each grid point too.
+func gridKS(xs []float64, cdf func(float64) float64, m int) (upper, lower float64) {
+	n := len(xs)
+	fn := float64(n)
+	var g, at, below, fAt, fBelow []float64
+	for j := 0; j <= m; j++ {
+		x := xs[j*(n-1)/m]
+		if len(g) > 0 && x == g[len(g)-1] {
+			continue
+		}
+		i := sort.SearchFloat64s(xs, x) // samples below x
+		k := sort.Search(n, func(k int) bool { return xs[k] > x })
+		g = append(g, x)
+		below = append(below, float64(i)/fn)
+		at = append(at, float64(k)/fn)
+		fBelow = append(fBelow, cdf(math.Nextafter(x, math.Inf(-1))))
+		fAt = append(fAt, cdf(x))
+	}
+	for j := range g {
+		lower = math.Max(lower, math.Max(math.Abs(at[j]-fAt[j]), math.Abs(below[j]-fBelow[j])))
+	}
+	upper = math.Max(lower, fBelow[0])         // below the smallest sample F_n = 0
+	upper = math.Max(upper, 1-fAt[len(fAt)-1]) // from the largest on F_n = 1
+	for j := 0; j+1 < len(g); j++ {
+		upper = math.Max(upper, below[j+1]-fAt[j])
+		upper = math.Max(upper, fBelow[j+1]-at[j])
+	}
+	return upper, lower
+}
+
+// ksGrid is the number of grid intervals of gridKS: the upper bound
+// exceeds the true distance by at most about 1/ksGrid plus the law's rise
+// over one interval, about 0.003 here.
+const ksGrid = 400
+
+// movedKS returns a lower bound on the smaller KS distance of the sorted
+// xs to the law moved by a factor 1 ± s.
+func movedKS(xs []float64, cdf func(float64) float64, s float64) float64 {
+	_, up := gridKS(xs, func(x float64) float64 { return cdf(x / (1 + s)) }, ksGrid)
+	_, down := gridKS(xs, func(x float64) float64 { return cdf(x / (1 - s)) }, ksGrid)
+	return math.Min(up, down)
+}
+
+// checkKS compares samples with cdf against the DKW–Massart bound at level
+// 1e-6 (Massart 1990, Ann. Probab. 18(3)): an upper bound on their
+// Kolmogorov–Smirnov distance (gridKS) must lie below it, and a lower bound
+// on their distance to the law moved by ±shift above it. With -v it also
+// finds, by bisection to 0.1 %, the smallest move both ways that the
+// samples reject.
+func checkKS(t *testing.T, what string, samples []float64, cdf func(float64) float64) ksRow {
+	t.Helper()
+	xs := slices.Clone(samples)
+	slices.Sort(xs)
+	bound := testref.KSCritical(len(xs), testref.KSLevel)
+	d, _ := gridKS(xs, cdf, ksGrid)
+	assert.LessOrEqual(t, d, bound, "%s: KS distance of %d samples", what, len(xs))
+	assert.Greater(t, movedKS(xs, cdf, shift), bound, "%s: the law moved by %g %% passes", what, 100*shift)
+	if !testing.Verbose() {
+		return ksRow{what: what, n: len(xs), d: d, bound: bound, moved: math.NaN()}
+	}
+	// The figure for the README only (it costs some 20 more passes).
+	lo, hi := 0.0, 0.2
+	for hi-lo > 1e-3 {
+		m := (lo + hi) / 2
+		if movedKS(xs, cdf, m) > bound {
+			hi = m
+		} else {
+			lo = m
+		}
+	}
+	return ksRow{what: what, n: len(xs), d: d, bound: bound, moved: hi}
+}
+
+// The validation against Site: a node's lifetime law (mixed over the
+// shared factors), the calendar atom, the first failure of a fleet and the
+// failed-count band.
+func TestAgainstSite(t *testing.T) {
+	spec := siteSpec(t)
+	site, err := energy.NewSite(spec)
+	require.NoError(t, err)
+	p, err := lifesim.NewPlayer(spec)
+	require.NoError(t, err)
+	var rows []ksRow
+	var cover []string
+
+	// Independent nodes: each with its own shared draw, so that nodeSamples
+	// lifetimes are i.i.d. from the law Site.NodeLifetime mixes.
+	nodes := make([][]lifesim.Node, fleetGroups)
+	for g := range fleetGroups {
+		nodes[g] = make([]lifesim.Node, nodeSamples)
+		require.NoError(t, parallel(nodeSamples, seedNodes+uint64(100*g), func(i int, r *rand.Rand) error {
+			n, err := p.Node(g, p.Shared(r), r)
+			nodes[g][i] = n
+			return err
+		}))
+	}
+	t.Run("node lifetime", func(t *testing.T) {
+		for g := range fleetGroups {
+			law, err := site.NodeLifetime(g)
+			require.NoError(t, err)
+			xs := make([]float64, nodeSamples)
+			for i, n := range nodes[g] {
+				xs[i] = n.Lifetime
+			}
+			rows = append(rows, checkKS(t, fmt.Sprintf("Site.NodeLifetime(%s)", site.Name(g)), xs, law.CDF))
+		}
+	})
+	t.Run("calendar atom", func(t *testing.T) {
+		for g := range fleetGroups {
+			// The count of nodes whose energy ran out before the calendar
+			// limit is Binomial(nodeSamples, EnergyBinds): its 1e-6
+			// acceptance interval (testref.BinomialInterval, exact tails).
+			k := 0
+			for _, n := range nodes[g] {
+				if !n.Calendar {
+					k++
+				}
+			}
+			pe := site.EnergyBinds(g)
+			lo, hi := testref.BinomialInterval(nodeSamples, pe, testref.BinLevel)
+			assert.True(t, k >= lo && k <= hi, "group %s: %d of %d ended by energy, law %.4f gives [%d, %d]", site.Name(g), k, nodeSamples, pe, lo, hi)
+			cover = append(cover, fmt.Sprintf("| EnergyBinds(%s) | %.4f | %.4f | [%.4f, %.4f] |", site.Name(g), pe,
+				float64(k)/nodeSamples, float64(lo)/nodeSamples, float64(hi)/nodeSamples))
+		}
+		// The atom is there: group C's calendar ends between a quarter and
+		// three quarters of its lives.
+		assert.InDelta(t, 0.5, site.EnergyBinds(2), 0.25)
+	})
+
+	fleets := make([]lifesim.Fleet, fleetSamples)
+	require.NoError(t, parallel(fleetSamples, seedFleets, func(i int, r *rand.Rand) error {
+		f, err := p.Fleet(r)
+		fleets[i] = f
+		return err
+	}))
+	t.Run("first failure", func(t *testing.T) {
+		law, err := site.FirstFailure()
+		require.NoError(t, err)
+		xs := make([]float64, fleetSamples)
+		for i, f := range fleets {
+			xs[i] = f.FirstFailure()
+		}
+		rows = append(rows, checkKS(t, "Site.FirstFailure", xs, law.CDF))
+		for g := range fleetGroups {
+			law, err := site.GroupFirstFailure(g)
+			require.NoError(t, err)
+			for i, f := range fleets {
+				xs[i] = f.Group(g).FirstFailure()
+			}
+			rows = append(rows, checkKS(t, fmt.Sprintf("Site.GroupFirstFailure(%s)", site.Name(g)), xs, law.CDF))
+		}
+	})
+	t.Run("failed-count band", func(t *testing.T) {
+		dates := []float64{0.8, 1.0, 1.2} // years
+		for _, y := range dates {
+			at := y * energy.Year
+			law, err := site.FailedBy(at)
+			require.NoError(t, err)
+			lo, hi := law.Quantile(0.05), law.Quantile(0.95)
+			// The band's own probability (counts are whole numbers, so it
+			// is at least, not exactly, 90 %).
+			pBand := law.CDF(hi) - law.CDF(lo-0.5)
+			k := 0
+			counts := make([]float64, fleetSamples)
+			for i, f := range fleets {
+				c := f.FailedBy(at)
+				counts[i] = float64(c)
+				if float64(c) >= lo && float64(c) <= hi {
+					k++
+				}
+			}
+			// Bonferroni over the dates.
+			blo, bhi := testref.BinomialInterval(fleetSamples, pBand, testref.BinLevel/float64(len(dates)))
+			assert.True(t, k >= blo && k <= bhi, "at %g y: %d of %d fleets in [%g, %g], law %.4f gives [%d, %d]", y, k, fleetSamples, lo, hi, pBand, blo, bhi)
+			cover = append(cover, fmt.Sprintf("| FailedBy(%g y) in [%g, %g] | %.4f | %.4f | [%.4f, %.4f] |", y, lo, hi, pBand,
+				float64(k)/fleetSamples, float64(blo)/fleetSamples, float64(bhi)/fleetSamples))
+			// The whole count law too (KS is conservative for a discrete
+			// law: the DKW bound holds).
+			bound := testref.KSCritical(fleetSamples, testref.KSLevel)
+			d := testref.KSStatistic(counts, law.CDF)
+			assert.LessOrEqual(t, d, bound, "at %g y: KS of the failed counts", y)
+			rows = append(rows, ksRow{what: fmt.Sprintf("Site.FailedBy(%g y) counts", y), n: fleetSamples, d: d, bound: bound, moved: math.NaN()})
+		}
+	})
+	var b strings.Builder
+	b.WriteString("| law | samples | KS distance | bound at 1e-6 | smallest move rejected |\n|---|---:|---:|---:|---:|\n")
+	for _, r := range rows {
+		b.WriteString(r.String() + "\n")
+	}
+	b.WriteString("\n| share | law | sampled | 1e-6 interval |\n|---|---:|---:|---:|\n")
+	for _, c := range cover {
+		b.WriteString(c + "\n")
+	}
+	t.Logf("validation figures:\n%s", b.String())
+}
+
+// NewNodeLifetime in fixed environments (a cold, poor batch and a warm,
+// good one): nodes played under those shared factors against the
+// conditional law.
+func TestAgainstNodeLifetime(t *testing.T) {
+	spec := siteSpec(t)
+	p, err := lifesim.NewPlayer(spec)
+	require.NoError(t, err)
+	envs := []energy.Conditions{
+		{BatchFactor: 0.96, TemperatureOffset: -5},
+		{BatchFactor: 1.03, TemperatureOffset: 4},
+	}
+	var rows []ksRow
+	for e, cond := range envs {
+		for g := range fleetGroups {
+			law, err := energy.NewNodeLifetime(spec.Groups[g].Node, energy.Environment{Climate: spec.Climate, Conditions: cond})
+			require.NoError(t, err)
+			xs := make([]float64, nodeSamples)
+			require.NoError(t, parallel(len(xs), seedEnv+uint64(10*e+g), func(i int, r *rand.Rand) error {
+				n, err := p.Node(g, cond, r)
+				xs[i] = n.Lifetime
+				return err
+			}))
+			rows = append(rows, checkKS(t, fmt.Sprintf("NewNodeLifetime(%s, b=%g, ΔT=%+g °C)", spec.Groups[g].Name, cond.BatchFactor, cond.TemperatureOffset), xs, law.CDF))
+		}
+	}
+	var b strings.Builder
+	for _, r := range rows {
+		b.WriteString(r.String() + "\n")
+	}
+	t.Logf("validation figures:\n%s", b.String())
+}
+
+var _ dist.Law // the laws compared are dist.Law values

@@ -128,6 +128,12 @@ func TestResultsIndependentOfHistory(t *testing.T) {
 		{"Product(Uniform, Gamma)", func() (dist.Law, error) {
 			return dist.Product(dist.MustUniform(0.5, 1.5), dist.MustGamma(3, 2))
 		}},
+		{"SumIID(three values, 10^5)", func() (dist.Law, error) {
+			return dist.SumIID(dist.MustDiscrete([]float64{0.0134, 0.0521 * math.Sqrt2, 0.2467 * math.Pi / 3}, []float64{0.6, 0.3, 0.1}), 100_000)
+		}},
+		{"SumIID(five values, 2000)", func() (dist.Law, error) {
+			return dist.SumIID(dist.MustDiscrete([]float64{0.0134, 0.0521 * math.Sqrt2, 0.2467 * math.Pi / 3, 0.31 * math.E / 2, 0.4 * math.Sqrt(7)}, []float64{0.5, 0.3, 0.1, 0.07, 0.03}), 2000)
+		}},
 		{"RandomSum(Discrete count, Gamma)", func() (dist.Law, error) {
 			return dist.RandomSum(dist.MustDiscrete([]float64{1, 2, 5}, []float64{0.5, 0.3, 0.2}), dist.MustGamma(1.5, 1))
 		}},

@@ -52,12 +52,16 @@ func binomialByRatios(n int, p float64) (lo int, cdf, surv []float64) {
 
 func TestSumIIDLatticeFFTIsBinomial(t *testing.T) {
 	// k-fold sums of a law on a lattice v0 + m·δ far beyond the exact
-	// convolution's atom limit. The term (1-p)²·δ0 + 2p(1-p)·δ1 + p²·δ2 (the
-	// sum of two Bernoulli(p)) and Binomial(40, p) itself: their k-fold sums
-	// are Binomial(2k, p) and Binomial(40k, p) on the lattice (a standard
-	// result), the oracle computed by mass ratios (binomialByRatios).
+	// convolution's atom limit. The terms Binomial(2, p), Binomial(3, p)
+	// and Binomial(40, p) on the lattice: their k-fold sums are
+	// Binomial(2k, p), Binomial(3k, p) and Binomial(40k, p) (a standard
+	// result), the oracle computed by mass ratios (binomialByRatios). The
+	// three-atom term takes SumIID's exact three-value path, the others the
+	// lattice FFT.
 	const p, v0, step = 0.3, 1.2, 0.37e-3
 	three := dist.MustDiscrete([]float64{v0, v0 + step, v0 + 2*step}, []float64{(1 - p) * (1 - p), 2 * p * (1 - p), p * p})
+	four := dist.MustDiscrete([]float64{v0, v0 + step, v0 + 2*step, v0 + 3*step},
+		[]float64{(1 - p) * (1 - p) * (1 - p), 3 * p * (1 - p) * (1 - p), 3 * p * p * (1 - p), p * p * p})
 	vs, ps := make([]float64, 41), make([]float64, 41)
 	for j := range vs {
 		vs[j] = float64(j)
@@ -70,8 +74,10 @@ func TestSumIIDLatticeFFTIsBinomial(t *testing.T) {
 		m, k     int // the k-fold sum is Binomial(m·k, p) on v0k + step·j
 		v0, step float64
 	}{
-		{"three atoms k=1e5", three, 2, 100000, v0, step},
-		{"three atoms k=1e6", three, 2, 1000000, v0, step},
+		{"three atoms k=1e5 (exact path)", three, 2, 100000, v0, step},
+		{"three atoms k=1e6 (exact path)", three, 2, 1000000, v0, step},
+		{"four atoms k=1e5", four, 3, 100000, v0, step},
+		{"four atoms k=1e6", four, 3, 1000000, v0, step},
 		{"41 atoms k=1e5", forty, 40, 100000, 0, 1},
 	}
 	for _, c := range cases {
@@ -103,8 +109,9 @@ func TestSumIIDLatticeFFTIsBinomial(t *testing.T) {
 		assert.InEpsilon(t, float64(c.k)*c.term.Mean(), l.Mean(), 1e-12)
 		assert.InEpsilon(t, float64(c.k)*c.term.Variance(), l.Variance(), 1e-12)
 	}
-	l, err := dist.SumIID(three, 1000000)
+	l, err := dist.SumIID(four, 1000000)
 	require.NoError(t, err)
+	require.Contains(t, l.(dist.Estimated).Accuracy().Method, "lattice FFT")
 	require.NoError(t, disttest.Check(l, disttest.WithSamples(5000)))
 }
 

@@ -7,23 +7,56 @@ import (
 )
 
 // maxStructuralDraws is the number of term draws above which Rand of a
-// k-fold sum draws by inverting its own CDF instead of adding k draws.
+// k-fold sum draws by inverting its own CDF instead of adding k draws (a
+// finite discrete term's k-fold sum draws binomial counts instead).
 const maxStructuralDraws = 4096
+
+// MaxSumIIDTerms is the largest k that SumIID and IIDSums accept: 2^40
+// (about 1.1·10^12 terms, a one-second cycle for 35 000 years). Beyond it
+// the centre k·μ of the inversion window is so far from 0, against the
+// standard deviation √k·σ, that its rounding alone costs more than 1e-9 of
+// the CDF (the stated bound grows as 1e-14·√k·μ/σ), and some paths' work
+// grows with √k.
+const MaxSumIIDTerms = 1 << 40
 
 // SumIID returns the law of the sum of k independent copies of l (the
 // energy of k reporting cycles, say), for k from 1 to 10^7 and beyond.
 //
 // Closed forms first: a normal gives a normal, an exponential or gamma a
-// gamma, a finite discrete law the exact Discrete of k-fold sums (by
-// repeated squaring, at most MaxSumAtoms atoms). A finite discrete law whose
-// atoms lie on a common lattice v0 + m·δ (energies of commensurate airtimes,
-// say) and whose k-fold sum spans more than 65536 lattice points is summed
-// by a lattice FFT instead (see lattice.go): a finite discrete law of the
-// window holding all but 2e-60 of the mass, with exact Mean and Variance,
-// reporting Accuracy (CDF absolute error a few 1e-12 for k up to 10^6,
-// survival relative error about 1e-10 down to 1e-40 by tilted transforms;
-// tested against the binomial law). Otherwise the transform is
-// raised as exp(k·(log M(s) - s·μ)) — log M from log1p of M - 1 evaluated
+// gamma. A finite discrete law of d atoms (the energy of a cycle whose
+// states are constant or discrete, say) goes, in this order, to
+//   - the exact Discrete of its k-fold atoms (repeated squaring) when there
+//     are at most 1024 of them (C(k+d−1, d−1) <= 1024);
+//   - the exact Discrete of its k-fold atoms, merged, when its atoms lie on
+//     a common lattice v0 + m·δ and the k-fold sum spans at most 65536
+//     lattice points;
+//   - for d = 2, the exact binomial law of the count of the larger value
+//     (stated 1e-13 absolute, 1e-12 relative in both tails down to 1e-300),
+//     and for d = 3 the exact sum of binomial tails over the count of the
+//     least likely value (sumiid_atomic_three.go; stated 1e-12 absolute,
+//     1e-10 relative in both tails down to 1e-290; tested against
+//     multinomial enumeration in 256-bit floats), whether or not the values
+//     are commensurate;
+//   - for four or more atoms on a common lattice (energies of commensurate
+//     airtimes, say) whose k-fold sum spans more lattice points, a lattice
+//     FFT (see lattice.go): a finite discrete law of the window holding all
+//     but 2e-60 of the mass, with exact Mean and Variance, reporting
+//     Accuracy (CDF absolute error a few 1e-12 for k up to 10^6, survival
+//     relative error about 1e-10 down to 1e-40 by tilted transforms;
+//     tested against the binomial law);
+//   - the exact Discrete of its k-fold atoms while C(k+d−1, d−1) <=
+//     MaxSumAtoms;
+//   - otherwise the second-order saddlepoint law (Lugannani & Rice 1980;
+//     Daniels 1987) with a bound proven by Esseen's smoothing inequality
+//     (sumiid_atomic_esseen.go), reported by Accuracy.
+//
+// The binomial, three-value and saddlepoint laws are Estimated, not Atomic
+// (their atoms are too many to list), and draw their samples as binomial
+// counts; their Quantile bisects CDF values that cost up to about a
+// millisecond each at k = 10^6.
+// IIDSums evaluates the same paths at (k, x) without building a law.
+//
+// For other laws the transform is raised as exp(k·(log M(s) - s·μ)) — log M from log1p of M - 1 evaluated
 // directly, never by repeated multiplication or a complex power — and
 // inverted on a window centred on k·μ whose width is set by the standard
 // deviation √k·σ, so the work does not grow with k (see Sum for the method
@@ -52,14 +85,14 @@ const maxStructuralDraws = 4096
 // an error (ErrParam).
 //
 // Rand adds k draws of l when k <= 4096 and inverts the computed CDF beyond.
-// Errors: nil l, k < 1, a term without finite mean and variance (wraps
-// ErrMoment).
+// Errors: nil l, k < 1 or k > MaxSumIIDTerms (wrap ErrParam), a term
+// without finite mean and variance (wraps ErrMoment).
 func SumIID(l Law, k int) (Law, error) {
 	if l == nil {
 		return nil, paramErr("SumIID", "l", nil, "must not be nil")
 	}
-	if k < 1 {
-		return nil, paramErr("SumIID", "k", k, "must be >= 1")
+	if k < 1 || k > MaxSumIIDTerms {
+		return nil, paramErr("SumIID", "k", k, fmt.Sprintf("must be in [1, %d] (MaxSumIIDTerms)", MaxSumIIDTerms))
 	}
 	if k == 1 {
 		return l, nil
@@ -77,14 +110,7 @@ func SumIID(l Law, k int) (Law, error) {
 			return newUniformPair(b, b), nil
 		}
 	case Discrete:
-		if lat, ok, err := latticeSumIID(b, k, latticeMinAtoms); err != nil || ok {
-			return lat, err
-		}
-		atoms, err := atomPower("SumIID", b.Atoms(), k)
-		if err != nil {
-			return nil, err
-		}
-		return discreteFromAtoms(atoms), nil
+		return discreteSumIID(b, k)
 	}
 	if m, ok, err := expandMixtureIID(l, k); err != nil || ok {
 		return m, err
@@ -104,6 +130,38 @@ func MustSumIID(l Law, k int) Law {
 		panic(err) // panic-ok: Must form, documented
 	}
 	return s
+}
+
+// discreteSumIID is SumIID for a finite discrete law (see SumIID for the
+// order of the paths).
+func discreteSumIID(d Discrete, k int) (Law, error) {
+	n := d.Len()
+	list := func() (Law, error) {
+		atoms, err := atomPower("SumIID", d.Atoms(), k)
+		if err != nil {
+			return nil, err
+		}
+		return discreteFromAtoms(atoms), nil
+	}
+	if n == 1 || multichoose(n, k) <= exactListAtoms {
+		return list()
+	}
+	_, _, ns, onLattice := latticeOf(d)
+	if onLattice && float64(k)*float64(ns[len(ns)-1])+1 <= latticeMinAtoms {
+		return list() // at most 65536 lattice points: the merged atoms
+	}
+	if n <= 3 {
+		return newAtomicSumLaw(d, int64(k)), nil
+	}
+	if lat, ok, err := latticeSumIID(d, k, latticeMinAtoms); err != nil || ok {
+		return lat, err
+	}
+	if multichoose(n, k) <= MaxSumAtoms {
+		if l, err := list(); err == nil {
+			return l, nil
+		}
+	}
+	return newAtomicSumLaw(d, int64(k)), nil
 }
 
 // atomPower returns the atoms of the k-fold convolution of atoms (masses
@@ -202,15 +260,30 @@ func iidSample(l Law, k int, self **numLaw) func(r *rand.Rand) float64 {
 // IIDSums evaluates the laws of the k-fold sums S_k = X_1 + … + X_k of one
 // law for many k without building each law: the lifetime question
 // P(N > k) = P(S_k <= C) asks for the CDF of S_k at one point C for k =
-// 1, 2, …. Each evaluation is one tilted Fourier-series inversion (about
-// 20–60 transform evaluations), accurate relative to its value in both
-// tails (see Sum). A zero IIDSums is not valid; build it with NewIIDSums.
-// It is immutable and safe for concurrent use.
+// 1, 2, …. The state it holds is built once by NewIIDSums, and each value
+// costs:
+//   - a normal, exponential or gamma term: the closed form of S_k;
+//   - a finite discrete term: the paths of SumIID's discrete law evaluated
+//     at (k, x) directly (exact atoms while there are at most 1024, the
+//     exact binomial and three-value sums, otherwise the bounded
+//     saddlepoint; a commensurate law of four or more values takes the
+//     saddlepoint too, not the lattice FFT, whose tables cost megabytes per
+//     k): microseconds to about a millisecond;
+//   - another term with a transform and no atoms: one tilted Fourier-series
+//     inversion (about 20–60 transform values), accurate relative to its
+//     value in both tails (see Sum);
+//   - otherwise the law SumIID builds for that k.
+//
+// Accuracy(k) states the error of the values for k. A zero IIDSums is not
+// valid; build it with NewIIDSums. It is immutable and safe for concurrent
+// use, and its values do not depend on what was asked before.
 type IIDSums struct {
 	l      Law
 	tr     transform
 	mu, v  float64
-	ok     bool
+	ok     bool        // tilted inversion per value
+	closed bool        // SumIID has a closed form
+	disc   *atomicSums // a finite discrete term of two or more atoms
 	lo, hi float64
 }
 
@@ -226,16 +299,29 @@ func NewIIDSums(l Law) (IIDSums, error) {
 	}
 	t, ok := transformOf(l)
 	lo, hi := l.Support()
-	return IIDSums{l: l, tr: t, mu: mu, v: v, ok: ok && t.lo < 0 && t.hi > 0 && v > 0 && !hasAtoms(l), lo: lo, hi: hi}, nil
+	p := IIDSums{l: l, tr: t, mu: mu, v: v, ok: ok && t.lo < 0 && t.hi > 0 && v > 0 && !hasAtoms(l), lo: lo, hi: hi}
+	switch b := l.(type) {
+	case Normal, Exponential, Gamma:
+		p.closed, p.ok = true, false
+	case Discrete:
+		p.ok = false
+		if b.Len() > 1 {
+			a := newAtomicSums(b)
+			p.disc = &a
+		}
+	}
+	return p, nil
 }
 
-// CDF returns P(S_k <= x). k must be >= 1 (NaN otherwise); NaN for NaN x.
+// CDF returns P(S_k <= x). k must be in [1, MaxSumIIDTerms] (NaN
+// otherwise); NaN for NaN x.
 func (p IIDSums) CDF(k int, x float64) float64 {
 	f, _ := p.eval(k, x)
 	return f
 }
 
-// Survival returns P(S_k > x), computed directly. k must be >= 1.
+// Survival returns P(S_k > x), computed directly. k must be in [1,
+// MaxSumIIDTerms] (NaN otherwise); NaN for NaN x.
 func (p IIDSums) Survival(k int, x float64) float64 {
 	_, s := p.eval(k, x)
 	return s
@@ -244,8 +330,35 @@ func (p IIDSums) Survival(k int, x float64) float64 {
 // Law returns the law of S_k (as SumIID(l, k)).
 func (p IIDSums) Law(k int) (Law, error) { return SumIID(p.l, k) }
 
+// Accuracy returns the error bounds of CDF(k, ·) and Survival(k, ·): zero
+// with Method "closed form" for a normal, exponential or gamma term and for
+// a one-atom law, those of the discrete paths for a finite discrete term
+// (the saddlepoint's bound, proven by Esseen's inequality, costs some
+// milliseconds), and otherwise those that the law of S_k built by SumIID
+// reports. Errors: k outside [1, MaxSumIIDTerms], a zero IIDSums.
+func (p IIDSums) Accuracy(k int) (Accuracy, error) {
+	switch {
+	case p.l == nil:
+		return Accuracy{}, paramErr("IIDSums.Accuracy", "p", "zero IIDSums", "must be built by NewIIDSums")
+	case k < 1 || k > MaxSumIIDTerms:
+		return Accuracy{}, paramErr("IIDSums.Accuracy", "k", k, fmt.Sprintf("must be in [1, %d] (MaxSumIIDTerms)", MaxSumIIDTerms))
+	case p.disc != nil:
+		return p.disc.accuracy(int64(k)), nil
+	case p.closed || p.lo == p.hi:
+		return Accuracy{Method: "closed form"}, nil
+	}
+	law, err := SumIID(p.l, k)
+	if err != nil {
+		return Accuracy{}, err
+	}
+	if e, ok := law.(Estimated); ok {
+		return e.Accuracy(), nil
+	}
+	return Accuracy{Method: "closed form"}, nil
+}
+
 func (p IIDSums) eval(k int, x float64) (f, s float64) {
-	if k < 1 || math.IsNaN(x) || p.l == nil {
+	if k < 1 || k > MaxSumIIDTerms || math.IsNaN(x) || p.l == nil {
 		return math.NaN(), math.NaN()
 	}
 	fk := float64(k)
@@ -254,6 +367,10 @@ func (p IIDSums) eval(k int, x float64) (f, s float64) {
 	}
 	if x >= fk*p.hi {
 		return 1, 0
+	}
+	if p.disc != nil {
+		f, s, _ = p.disc.eval(int64(k), x)
+		return f, s
 	}
 	if !p.ok {
 		law, err := SumIID(p.l, k)

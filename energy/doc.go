@@ -28,9 +28,9 @@
 //
 // # Numerical methods of the lifetime
 //
-// NewLifetime evaluates P(M >= k) = P(S_k <= C) for the k it needs, cached:
-// with dist.IIDSums (tilted Fourier-series inversion whose work does not
-// grow with k) for continuous or mixed cycle laws; in closed form for
+// NewLifetime evaluates P(M >= k) = P(S_k <= C) for the k it needs, cached,
+// all through dist.IIDSums: tilted Fourier-series inversion (whose work
+// does not grow with k) for continuous or mixed cycle laws; closed forms for
 // normal, exponential and gamma cycle laws; and for a purely discrete cycle
 // law (every state fixed or finite discrete and the period fixed) exactly
 // while the k-fold law is small, exactly as a binomial count for two

@@ -8,24 +8,20 @@ import (
 )
 
 // Cycles returns the law of the energy (J) of k consecutive cycles: the
-// K-fold sum of the per-cycle law through package dist (numerical with its
+// K-fold sum of the per-cycle law, dist.SumIID (numerical with its
 // reported accuracy for continuous or mixed laws). For a purely discrete
 // cycle law it is the exact discrete law while that has few atoms, the
 // exact binomial law for two energies, the exact sum of conditional binomial
-// tails for three, and otherwise the second-order saddlepoint law with its
-// reported bound (Esseen's smoothing inequality; dist.Estimated), as for
-// Lifetime. k must be >= 1.
+// tails for three, the lattice FFT for four or more commensurate energies,
+// and otherwise the second-order saddlepoint law with its reported bound
+// (Esseen's smoothing inequality; dist.Estimated), as for Lifetime. k must
+// be in [1, dist.MaxSumIIDTerms].
 func (c Cycle) Cycles(k int64) (dist.Law, error) {
 	if k < 1 {
 		return nil, paramErr("Cycle.Cycles", "k", k, "must be >= 1")
 	}
 	if c.energy == nil {
 		return nil, paramErr("Cycle.Cycles", "c", "zero Cycle", "must be built by NewCycle")
-	}
-	if d, ok := c.energy.(dist.Discrete); ok && d.Len() > 1 {
-		if a := newAtomicSums(d); len(a.v) == 2 || !a.exactFits(k) {
-			return newAtomicSumLaw(d, k), nil
-		}
 	}
 	l, err := sumIID(c.energy, k)
 	if err != nil {

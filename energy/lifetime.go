@@ -51,19 +51,20 @@ type Lifetime struct {
 	ev       *kfold
 }
 
-// kfold evaluates P(S_k <= C) and P(S_k > C) for integer k, with a cache.
+// kfold evaluates P(S_k <= C) and P(S_k > C) for integer k through
+// dist.IIDSums (closed forms, the exact and bounded paths of a finite
+// discrete law, tilted inversion otherwise), with a cache of the values: a
+// value depends on k alone, so the cache changes no answer.
 type kfold struct {
-	law             dist.Law
 	sums            dist.IIDSums
-	emean, elo, ehi float64     // mean and support of law (J)
-	closed          bool        // SumIID has a closed form for law
-	atomic          *atomicSums // law is a finite discrete law of two or more atoms
+	emean, elo, ehi float64 // mean and support of the cycle law (J)
+	discrete        bool    // the cycle law is finite discrete with two or more atoms
 	capacity        float64
 
 	mu      sync.Mutex
 	cache   map[int64][2]float64
 	accOnce sync.Once
-	acc     dist.Accuracy // reported by the K-fold law at the median
+	acc     dist.Accuracy // reported by dist.IIDSums at about the median
 	med     int64         // the median number of cycles + 1
 
 	once        sync.Once
@@ -72,7 +73,7 @@ type kfold struct {
 }
 
 // at returns {P(S_k <= C), P(S_k > C)}; NaN, NaN when the K-fold law cannot
-// be computed.
+// be computed (k beyond dist.MaxSumIIDTerms among them).
 func (f *kfold) at(k int64) [2]float64 {
 	if f == nil {
 		return [2]float64{math.NaN(), math.NaN()}
@@ -85,9 +86,6 @@ func (f *kfold) at(k int64) [2]float64 {
 	f.mu.Unlock()
 	if ok {
 		return v
-	}
-	if k > int64(^uint(0)>>1) {
-		return [2]float64{math.NaN(), math.NaN()}
 	}
 	// Hoeffding's inequality for a law on [lo, hi] (Hoeffding 1963, J. Amer.
 	// Statist. Assoc. 58:13–30, Thm 2, from memory): P(S_k − kμ >= d) <= exp(−2d²/(k(hi−lo)²)),
@@ -102,18 +100,10 @@ func (f *kfold) at(k int64) [2]float64 {
 			return [2]float64{0, 1}
 		}
 	}
-	if f.atomic != nil {
-		b, a, _ := f.atomic.eval(k, f.capacity)
-		v = [2]float64{b, a}
-	} else if f.closed {
-		l, err := dist.SumIID(f.law, int(k))
-		if err != nil {
-			return [2]float64{math.NaN(), math.NaN()}
-		}
-		v = [2]float64{l.CDF(f.capacity), l.Survival(f.capacity)}
-	} else {
-		v = [2]float64{f.sums.CDF(int(k), f.capacity), f.sums.Survival(int(k), f.capacity)}
+	if k > dist.MaxSumIIDTerms {
+		return [2]float64{math.NaN(), math.NaN()}
 	}
+	v = [2]float64{f.sums.CDF(int(k), f.capacity), f.sums.Survival(int(k), f.capacity)}
 	f.mu.Lock()
 	if len(f.cache) > 1<<16 {
 		clear(f.cache)
@@ -169,17 +159,9 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	if err != nil {
 		return Lifetime{}, causeErr(fn, "c", c.String(), "K-fold sums of the cycle energy", err)
 	}
-	l.ev = &kfold{law: l.energy, sums: sums, capacity: l.capacity, cache: map[int64][2]float64{}, emean: l.mu, elo: lo, ehi: hi}
-	switch e := l.energy.(type) {
-	case dist.Normal, dist.Exponential, dist.Gamma:
-		l.ev.closed = true
-	case dist.Discrete:
-		if e.Len() == 1 {
-			l.ev.closed = true
-		} else {
-			a := newAtomicSums(e)
-			l.ev.atomic = &a
-		}
+	l.ev = &kfold{sums: sums, capacity: l.capacity, cache: map[int64][2]float64{}, emean: l.mu, elo: lo, ehi: hi}
+	if d, ok := l.energy.(dist.Discrete); ok && d.Len() > 1 {
+		l.ev.discrete = true
 	}
 	// One evaluation at the renewal estimate of the median checks that the
 	// K-fold law can be computed; the search for the exact median is left to
@@ -187,7 +169,7 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	mk, _ := l.cltK()
 	med := int64(math.Max(float64(l.kmin), math.Min(math.Round(mk), math.Min(float64(l.kmax), 1<<62))))
 	if v := l.ev.at(med + 1); math.IsNaN(v[0]) {
-		_, err := sumIID(l.energy, med+1)
+		_, err := sums.Accuracy(int(min(med+1, dist.MaxSumIIDTerms+1)))
 		return Lifetime{}, causeErr(fn, "c", c.String(), fmt.Sprintf("K-fold law of %d cycles", med+1), err)
 	}
 	// The accuracy of the K-fold law at about the median stands for all k:
@@ -546,45 +528,34 @@ func (l Lifetime) Simulate(r *rand.Rand) float64 {
 	}
 }
 
-// Accuracy reports the error bounds of the K-fold law of about the median
-// number of cycles (package dist's estimate, which its tests check against
-// independent oracles; zero for closed forms), which stand for every k. For
-// a purely discrete cycle law they are those of its own k-fold sums (see
-// atomicSums): rounding only for two or three energies, which are exact;
-// for more, the proven bound of the saddlepoint (atomicesseen.go) at 12
-// renewal standard deviations below the median number of cycles, which
-// holds for every larger k.
+// Accuracy reports the error bounds of P(S_k <= C) that dist.IIDSums
+// states (its tests check them against independent oracles; zero for
+// closed forms), which stand for every k: at about the median number of
+// cycles, where the inversion window scales with √k, so the bound hardly
+// moves; for a purely discrete cycle law rounding only for two or three
+// energies, which are exact, and for more the proven bound of the
+// saddlepoint (Esseen's inequality) at 12 renewal standard deviations below
+// the median number of cycles, which holds for every larger k (the bound
+// falls with k).
 func (l Lifetime) Accuracy() dist.Accuracy {
 	f := l.ev
 	if f == nil {
 		return dist.Accuracy{Method: "zero Lifetime: not built by NewLifetime"}
 	}
 	f.accOnce.Do(func() {
-		switch {
-		case f.atomic != nil:
-			// The smooth approximation's bound falls with k (the peaks of
-			// |φ|^k sink, the Edgeworth terms shrink), so it is taken 12
-			// renewal standard deviations below the median, where
-			// P(M < k) is already far below any bound reported.
+		k := f.med
+		if f.discrete {
 			_, sd := l.cltK()
-			f.acc = f.atomic.accuracy(max(1, f.med-int64(math.Ceil(12*sd))))
-		case !f.closed:
-			if kl, err := sumIID(f.law, f.med); err == nil {
-				if e, ok := kl.(dist.Estimated); ok {
-					f.acc = e.Accuracy()
-				}
-			}
+			k = max(1, f.med-int64(math.Ceil(12*sd)))
 		}
+		acc, err := f.sums.Accuracy(int(min(k, dist.MaxSumIIDTerms)))
+		if err != nil {
+			acc = dist.Accuracy{CDFAbs: math.NaN(), Method: err.Error()}
+		}
+		f.acc = acc
 	})
 	a := f.acc
-	if l.ev.atomic != nil {
-		a.Method = "renewal identity P(M >= k) = P(S_k <= C); " + a.Method
-		return a
-	}
-	a.Method = "renewal identity P(M >= k) = P(S_k <= C) on the K-fold sum law"
-	if a.CDFAbs == 0 && !l.ev.closed {
-		a.Method += " (no error estimate reported by dist)"
-	}
+	a.Method = "renewal identity P(M >= k) = P(S_k <= C); " + a.Method
 	return a
 }
 

@@ -52,7 +52,8 @@ func TestLifetimeThreeEnergies(t *testing.T) {
 // TestCyclesExactEnergies: the law of a week (1008 cycles) of a three-energy
 // cycle and of a two-energy one (uplink, downlink or not), both on the exact
 // paths with atoms as large as 0.03 (samples land on them exactly), pass the
-// shared conformance checker and report bounds at the rounding level.
+// shared conformance checker and report bounds at the rounding level (the
+// two-energy week has 1009 atoms, which dist.SumIID lists exactly).
 func TestCyclesExactEnergies(t *testing.T) {
 	up := energy.MustFixedState("uplink", 40*energy.MilliAmp, 3.6, 0.06)
 	down := energy.MustFixedState("rx", 11*energy.MilliAmp, 3.6, 0.03)
@@ -61,9 +62,15 @@ func TestCyclesExactEnergies(t *testing.T) {
 	for i, c := range []energy.Cycle{threeEnergyCycle(t), two} {
 		w, err := c.Cycles(1008)
 		require.NoError(t, err)
-		acc := w.(dist.Estimated).Accuracy()
-		assert.Contains(t, acc.Method, "exact")
-		assert.LessOrEqual(t, acc.CDFAbs, 1e-12)
+		if e, ok := w.(dist.Estimated); ok {
+			acc := e.Accuracy()
+			assert.Contains(t, acc.Method, "exact")
+			assert.LessOrEqual(t, acc.CDFAbs, 1e-12)
+		} else {
+			// at most 1024 atoms (1009 for two energies): listed exactly
+			_, ok := w.(dist.Discrete)
+			assert.True(t, ok, "%d energies: %T", 3-i, w)
+		}
 		require.NoError(t, disttest.Check(w, disttest.WithSeed(8+uint64(i))), "%d energies", 3-i)
 	}
 }

@@ -1,4 +1,4 @@
-package energy
+package dist
 
 import (
 	"math"
@@ -7,7 +7,6 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/internal/testref"
 )
 
@@ -18,7 +17,7 @@ import (
 // inequality (edgeworthBound), which the code reports for four or more
 // energies.
 func TestSaddlepointAgainstExact(t *testing.T) {
-	d := dist.MustDiscrete([]float64{0.0134, 0.0521 * math.Sqrt2, 0.2467 * math.Pi / 3}, []float64{0.6, 0.3, 0.1})
+	d := MustDiscrete([]float64{0.0134, 0.0521 * math.Sqrt2, 0.2467 * math.Pi / 3}, []float64{0.6, 0.3, 0.1})
 	a := newAtomicSums(d)
 	const k = 1000
 	// The exact law of S_k: every count vector (n0, n1, n2) with its
@@ -45,7 +44,7 @@ func TestSaddlepointAgainstExact(t *testing.T) {
 	for i := range probs {
 		probs[i] /= sum
 	}
-	exact, err := dist.NewDiscrete(vals, probs)
+	exact, err := NewDiscrete(vals, probs)
 	require.NoError(t, err)
 	atoms := exact.Atoms()
 	m, s := exact.Mean(), math.Sqrt(exact.Variance())
@@ -95,7 +94,7 @@ func TestBinomialTails(t *testing.T) {
 func TestSaddlepointCommensurate(t *testing.T) {
 	const e = 0.0137
 	ps := []float64{0.5, 0.3, 0.2}
-	d := dist.MustDiscrete([]float64{e, 2 * e, 3 * e}, ps)
+	d := MustDiscrete([]float64{e, 2 * e, 3 * e}, ps)
 	a := newAtomicSums(d)
 	const k = 1000
 	pmf := []float64{1} // pmf[j] = P(S = (j + n)·e) after n steps

@@ -1,4 +1,4 @@
-package energy
+package dist
 
 import (
 	"cmp"
@@ -10,7 +10,6 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/internal/testref"
 )
 
@@ -27,35 +26,15 @@ type twoPartLaw struct {
 	a0, da, pa, b0, db, pb float64
 }
 
-func (l twoPartLaw) discrete() dist.Discrete {
-	return dist.MustDiscrete(
+func (l twoPartLaw) discrete() Discrete {
+	return MustDiscrete(
 		[]float64{l.a0 + l.b0, l.a0 + l.b0 + l.db, l.a0 + l.da + l.b0, l.a0 + l.da + l.b0 + l.db},
 		[]float64{(1 - l.pa) * (1 - l.pb), (1 - l.pa) * l.pb, l.pa * (1 - l.pb), l.pa * l.pb})
 }
 
-// oracle returns P(S_k <= x) as a function of x, j over 12 standard
-// deviations of N_A (the rest below 1e-30).
+// oracle returns P(S_k <= x) as a function of x (testref.TwoBinomialCDF).
 func (l twoPartLaw) oracle(k int) func(x float64) float64 {
-	m, sd := float64(k)*l.pa, math.Sqrt(float64(k)*l.pa*(1-l.pa))
-	lo, hi := max(0, int(m-12*sd)), min(k, int(m+12*sd)+1)
-	pj := make([]float64, hi-lo+1)
-	for j := lo; j <= hi; j++ {
-		_, ge := testref.BinomialTails(k, j, l.pa)
-		_, gt := testref.BinomialTails(k, j+1, l.pa)
-		pj[j-lo] = ge - gt
-	}
-	return func(x float64) float64 {
-		sum := 0.0
-		for j := lo; j <= hi; j++ {
-			y := (x - float64(k)*(l.a0+l.b0) - float64(j)*l.da) / l.db
-			if y < 0 {
-				continue
-			}
-			b, _ := testref.BinomialTails(k, int(math.Floor(y)), l.pb)
-			sum += pj[j-lo] * b
-		}
-		return sum
-	}
+	return func(x float64) float64 { return testref.TwoBinomialCDF(k, l.a0+l.b0, l.da, l.pa, l.db, l.pb, x) }
 }
 
 // TestEsseenBoundTwoParts: the saddlepoint of four-energy sums against the
@@ -117,7 +96,7 @@ func TestEsseenBoundMonteCarlo(t *testing.T) {
 	for i := range p {
 		p[i] /= tot
 	}
-	d := dist.MustDiscrete(v, p)
+	d := MustDiscrete(v, p)
 	a := newAtomicSums(d)
 	const k, n = 20_000, 2000
 	acc := a.accuracy(k)
@@ -135,7 +114,7 @@ func TestEsseenBoundMonteCarlo(t *testing.T) {
 
 // TestEsseenBoundExactAtoms: the saddlepoint of four- and five-energy sums
 // at 24 to 60 cycles (just past the cut where the exact atoms are listed)
-// against package dist's exact k-fold atoms (repeated squaring), on a grid
+// against the exact k-fold atoms (repeated squaring, atomPower), on a grid
 // of x over ±6 sd and just below and at the largest atoms: the error must be
 // within the bound, which is large here (the atoms are large) and shrinks
 // with k.
@@ -147,21 +126,22 @@ func TestEsseenBoundExactAtoms(t *testing.T) {
 		{[]float64{0.0134, 0.0521 * math.Sqrt2, 0.2467 * math.Pi / 3, 0.31 * math.E / 2}, []float64{0.5, 0.3, 0.15, 0.05}, []int{24, 40}},
 		{[]float64{0.522, 0.5333, 0.958, 0.9693, 1.394}, []float64{0.8, 0.14, 0.04, 0.015, 0.005}, []int{30, 60}},
 	} {
-		d := dist.MustDiscrete(tc.v, tc.p)
+		d := MustDiscrete(tc.v, tc.p)
 		a := newAtomicSums(d)
 		prev := math.Inf(1)
 		for _, k := range tc.ks {
 			require.False(t, a.exactFits(int64(k)))
-			exact, err := dist.SumIID(d, k)
+			at, err := atomPower("test", d.Atoms(), k) // the exact k-fold atoms
 			require.NoError(t, err)
-			atoms := exact.(dist.Atomic).Atoms()
+			exact := discreteFromAtoms(at)
+			atoms := exact.Atoms()
 			bound := a.accuracy(int64(k)).CDFAbs
 			m, s := a.mu*float64(k), a.sd*math.Sqrt(float64(k))
 			xs := []float64{}
 			for z := -6.0; z <= 6; z += 0.01 {
 				xs = append(xs, m+z*s)
 			}
-			slices.SortFunc(atoms, func(x, y dist.Atom) int { return cmp.Compare(y.Mass, x.Mass) })
+			slices.SortFunc(atoms, func(x, y Atom) int { return cmp.Compare(y.Mass, x.Mass) })
 			for _, at := range atoms[:min(50, len(atoms))] {
 				xs = append(xs, at.Value, math.Nextafter(at.Value, math.Inf(-1)))
 			}
@@ -177,37 +157,4 @@ func TestEsseenBoundExactAtoms(t *testing.T) {
 			prev = bound
 		}
 	}
-}
-
-// TestLifetimeFourEnergies: the lifetime of a cycle with two independent
-// two-way choices (an uplink repeated or not, 3.4 %; a downlink window of
-// one length or another, 15 %), four cycle energies, about 20 000 cycles:
-// P(M >= k) = P(S_k <= C) against the exact two-binomial oracle for k over
-// ±5 renewal standard deviations, within the lifetime's reported bound.
-func TestLifetimeFourEnergies(t *testing.T) {
-	up := MustFixedState("uplink", 40*MilliAmp, 3.6, 0.0617)
-	again := MustFixedState("repeat", 40*MilliAmp, 3.6, 0.0617*math.Sqrt2)
-	rx1 := MustFixedState("rx1", 11*MilliAmp, 3.6, 0.0123)
-	rx2 := MustFixedState("rx2", 11*MilliAmp, 3.6, 0.0123*(1+(math.Sqrt(5)-1)/2))
-	st := MustSequence(up, MustChoice([]float64{0.034, 0.966}, []Stage{again, Nothing()}), MustChoice([]float64{0.15, 0.85}, []Stage{rx2, rx1}))
-	c := MustCycle(st, dist.MustPointMass(600), 1.5*MicroAmp*3.6)
-	at := c.Energy().(dist.Atomic).Atoms()
-	require.Len(t, at, 4)
-	law := twoPartLaw{a0: at[0].Value, da: at[2].Value - at[0].Value, pa: 0.034, b0: 0, db: at[1].Value - at[0].Value, pb: 0.15}
-	require.InDelta(t, at[3].Value, law.a0+law.da+law.db, 1e-12)
-	require.InDelta(t, at[1].Mass, 0.966*0.15, 1e-12)
-	b := MustBattery(BatterySpec{Energy: 20_000 * c.MeanEnergy(), NominalVoltage: 3.6, UsableFraction: 1})
-	l := MustLifetime(c, b)
-	acc := l.Accuracy()
-	t.Logf("reported bound %.3g (%s)", acc.CDFAbs, acc.Method)
-	mk, sd := l.cltK()
-	worst := 0.0
-	for z := -5.0; z <= 5; z += 0.5 {
-		k := int64(math.Round(mk + z*sd))
-		want := law.oracle(int(k))(b.UsableEnergy())
-		got, _ := l.Cycles(k)
-		worst = math.Max(worst, math.Abs(got-want))
-		assert.LessOrEqual(t, math.Abs(got-want), acc.CDFAbs, "k=%d", k)
-	}
-	t.Logf("largest error of P(M >= k) %.3g", worst)
 }

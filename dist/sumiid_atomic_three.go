@@ -1,8 +1,9 @@
-package energy
+package dist
 
 import "math"
 
-// Exact k-fold sums of a three-energy cycle law by conditioning.
+// Exact k-fold sums of a three-valued law (a cycle of three energies, say)
+// by conditioning.
 //
 // With cycle energies v_a < v_b and v_c (probabilities p_a, p_b, p_c) and
 // counts N_a + N_b + N_c = k, the count N_c of the least likely energy is
@@ -23,8 +24,8 @@ import "math"
 // Rand returns those same values, so samples and CDF agree on every atom.
 
 // Stated bounds of the three-energy path, from the tests against
-// multinomial enumeration, binomial laws and package dist's exact k-fold
-// law (worst measured about 1e-14 absolute and 1e-12 relative; see
+// multinomial enumeration, binomial laws and the exact k-fold atoms
+// (repeated squaring) (worst measured about 1e-14 absolute and 1e-12 relative; see
 // atomicthree_internal_test.go).
 const (
 	threeCDFAbs      = 1e-12

@@ -1,4 +1,4 @@
-package energy
+package dist
 
 import (
 	"math"
@@ -9,7 +9,6 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/internal/testref"
 )
 
@@ -96,7 +95,7 @@ func TestThreeAgainstEnumeration(t *testing.T) {
 		{"three incommensurate", []float64{0.0134, 0.0521 * math.Sqrt2, 0.2467 * math.Pi / 3}, []float64{0.6, 0.3, 0.1}, 300},
 		{"rare third energy", []float64{0.522149, 0.547844 + 1e-7*math.Sqrt2, 0.559108 + 1e-7*math.Pi}, []float64{0.98, 0.018, 0.002}, 200},
 	} {
-		a := newAtomicSums(dist.MustDiscrete(tc.v, tc.p))
+		a := newAtomicSums(MustDiscrete(tc.v, tc.p))
 		m, s := a.mu*float64(tc.k), a.sd*math.Sqrt(float64(tc.k))
 		var xs []float64
 		for z := -12.0; z <= 12; z += 0.75 {
@@ -113,18 +112,20 @@ func TestThreeAgainstEnumeration(t *testing.T) {
 	}
 }
 
-// TestThreeAgainstExactConvolution: the three-energy path against package
-// dist's exact k-fold law (repeated squaring of the atoms, 15 753 atoms at
-// k = 176, the largest its pair limit allows) and, at k = 1e5 and 1e6, against dist's lattice FFT of
+// TestThreeAgainstExactConvolution: the three-energy path against the exact
+// k-fold law (repeated squaring of the atoms, 15 753 atoms at k = 176, the
+// largest its pair limit allows) and, at k = 1e5 and 1e6, against the
+// lattice FFT (latticeSumIID) of
 // commensurate energies (its reported CDF and survival bounds added; x half
 // a lattice step off the atoms).
 func TestThreeAgainstExactConvolution(t *testing.T) {
 	v := []float64{0.0134, 0.0521 * math.Sqrt2, 0.2467 * math.Pi / 3}
-	d := dist.MustDiscrete(v, []float64{0.6, 0.3, 0.1})
+	d := MustDiscrete(v, []float64{0.6, 0.3, 0.1})
 	const k = 176
-	law, err := dist.SumIID(d, k)
+	at, err := atomPower("test", d.Atoms(), k)
 	require.NoError(t, err)
-	require.Greater(t, len(law.(dist.Atomic).Atoms()), 15_000)
+	law := discreteFromAtoms(at)
+	require.Greater(t, len(law.Atoms()), 15_000)
 	a := newAtomicSums(d)
 	m, s := a.mu*k, a.sd*math.Sqrt(k)
 	for z := -10.0; z <= 10; z += 0.5 {
@@ -144,10 +145,11 @@ func TestThreeAgainstExactConvolution(t *testing.T) {
 		{[]float64{2, 3, 7}, []float64{0.5, 0.3, 0.2}, 100_000},
 	} {
 		vs := []float64{tc.n[0] * e, tc.n[1] * e, tc.n[2] * e}
-		d := dist.MustDiscrete(vs, tc.p)
-		lat, err := dist.SumIID(d, tc.k)
+		d := MustDiscrete(vs, tc.p)
+		lat, ok, err := latticeSumIID(d, tc.k, latticeMinAtoms)
 		require.NoError(t, err)
-		acc := lat.(dist.Estimated).Accuracy()
+		require.True(t, ok)
+		acc := lat.(Estimated).Accuracy()
 		require.Contains(t, acc.Method, "lattice")
 		a := newAtomicSums(d)
 		m, s := a.mu*float64(tc.k), a.sd*math.Sqrt(float64(tc.k))
@@ -235,7 +237,7 @@ func TestThreeRandomLaws(t *testing.T) {
 	var worstAbs, worstRel float64
 	for _, l := range laws {
 		v, p, k := l.v, l.p, l.k
-		d, err := dist.NewDiscrete(v, p)
+		d, err := NewDiscrete(v, p)
 		if err != nil || d.Len() != 3 {
 			continue
 		}

@@ -1,63 +1,54 @@
-package energy
+package dist
 
 import (
 	"fmt"
 	"math"
 	"math/rand/v2"
 
-	"github.com/joulelaw/joulelaw/dist"
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
+// exactListAtoms is the most atoms C(k+d−1, d−1) a k-fold sum of a d-atom
+// law may have for SumIID and IIDSums to list them exactly (repeated
+// squaring) instead of taking the paths below.
+const exactListAtoms = 1024
+
 // atomicSums evaluates P(S_k <= x) and P(S_k > x) for the k-fold sums of a
-// purely discrete cycle law (every state constant or finite discrete and the
-// period fixed), for which package dist lists the k-fold atoms exactly but
-// only up to dist.MaxSumAtoms of them. It is exact while the k-fold law surely fits
-// (at most C(k+d−1, d−1) <= 1024 atoms for d atoms), exact for d = 2 (a
-// binomial count, summed term by term), exact for d = 3 (binomial tails
-// summed over the count of the least likely energy, atomicthree.go) and
-// otherwise the second-order
-// saddlepoint approximation of Lugannani & Rice (1980) with the correction
-// terms of Daniels (1987, Int. Statist. Rev. 55:37–48, eq. 4.6; Butler,
-// Saddlepoint Approximations with Applications, 2007, §2.3.2; equation and
-// section numbers from memory; the formula is checked numerically in the
-// tests):
+// finite discrete law of d >= 2 atoms (the energy of a cycle whose states
+// are all constant or finite discrete, say): exact while the k-fold law has
+// at most exactListAtoms atoms (listed by repeated squaring), exact for
+// d = 2 (a binomial count, summed term by term), exact for d = 3 (binomial
+// tails summed over the count of the least likely value,
+// sumiid_atomic_three.go) and otherwise the second-order saddlepoint
+// approximation of Lugannani & Rice (1980) with the correction terms of
+// Daniels (1987, Int. Statist. Rev. 55:37–48, eq. 4.6; Butler, Saddlepoint
+// Approximations with Applications, 2007, §2.3.2; equation and section
+// numbers from memory; the formula is checked numerically in the tests):
 //
 //	P(S_k >= x) ≈ 1 − Φ(w) + φ(w)·{1/u − 1/w + (1/u)(λ4/8 − 5λ3²/24) − λ3/(2u²) − 1/u³ + 1/w³}
 //
 // with the saddlepoint K'(ŝ) = x/k, w = sgn(ŝ)·√(2k(ŝx/k − K(ŝ))),
 // u = ŝ·√(k·K”(ŝ)), λ3 = K”'/(K”^{3/2}√k), λ4 = K””/(K”²·k). Its
 // relative error is O(k⁻²) for a smooth law; a discrete law adds the fine
-// structure of S_k's atoms around x, which is negligible when the cycle's
-// energies are not commensurate and up to about one atom of S_k otherwise.
+// structure of S_k's atoms around x, which is negligible when the values
+// are not commensurate and up to about one atom of S_k otherwise: the
+// bound reported for it (sumiid_atomic_esseen.go) is proven by Esseen's
+// smoothing inequality and holds either way.
 type atomicSums struct {
-	d      dist.Discrete
+	d      Discrete
 	v, p   []float64
 	mu, sd float64
 }
 
-func newAtomicSums(d dist.Discrete) atomicSums {
-	a := atomicSums{d: d, mu: d.Mean(), sd: math.Sqrt(d.Variance())}
-	for _, at := range d.Atoms() {
-		a.v = append(a.v, at.Value)
-		a.p = append(a.p, at.Mass)
-	}
+func newAtomicSums(d Discrete) atomicSums {
+	a := atomicSums{d: d, v: d.values, p: d.probs, mu: d.Mean(), sd: math.Sqrt(d.Variance())}
 	return a
 }
 
-// exactFits reports whether package dist's exact k-fold sum (repeated
-// squaring, whose convolutions are limited to 16·2^20 atom pairs) surely
-// fits cheaply: at most C(k+d−1, d−1) <= 1024 atoms for d atoms.
+// exactFits reports whether the k-fold law surely has at most
+// exactListAtoms atoms: C(k+d−1, d−1) for d atoms.
 func (a atomicSums) exactFits(k int64) bool {
-	d := int64(len(a.v))
-	// C(k+d−1, d−1), stopping once it passes the limit.
-	c := 1.0
-	for i := int64(1); i < d; i++ {
-		c *= float64(k+i) / float64(i)
-		if c > 1024 {
-			return false
-		}
-	}
-	return true
+	return multichoose(len(a.v), int(min(k, exactListAtoms))) <= exactListAtoms
 }
 
 // atomValue2 returns the atom k·v0 + j·(v1 − v0) of a two-energy k-fold
@@ -67,35 +58,49 @@ func (a atomicSums) atomValue2(k, j int64) float64 {
 	return float64(float64(k)*a.v[0]) + float64(float64(j)*(a.v[1]-a.v[0]))
 }
 
-// randSum draws S_k from the structure: k cycle energies drawn from their
-// probabilities, returned (for two or three energies) as the atom of their
-// counts, the same float the CDF counts, and otherwise summed.
+// randSum draws S_k from the structure: for k <= maxStructuralDraws, k
+// values drawn from their probabilities; beyond, the counts of the values
+// drawn as binomial counts one after the other (N_1 ~ Binomial(k, p_1),
+// N_2 ~ Binomial(k − N_1, p_2/(1 − p_1)), …; gonum distuv.Binomial on the
+// caller's source). For two or three values it returns the atom of the
+// counts as atomValue2 and atomValue3 round it, the same float the CDF
+// counts.
 func (a atomicSums) randSum(k int64, r *rand.Rand) float64 {
+	counts := make([]int64, len(a.v))
+	if k <= maxStructuralDraws {
+		for range k {
+			u := r.Float64()
+			i := 0
+			for i < len(a.p)-1 && u >= a.p[i] {
+				u -= a.p[i]
+				i++
+			}
+			counts[i]++
+		}
+	} else {
+		left, rest := k, 1.0
+		for i := range a.p[:len(a.p)-1] {
+			if left == 0 {
+				break
+			}
+			q := math.Min(1, a.p[i]/rest)
+			n := int64(distuv.Binomial{N: float64(left), P: q, Src: r}.Rand())
+			counts[i] = n
+			left -= n
+			rest -= a.p[i]
+		}
+		counts[len(counts)-1] += left
+	}
 	switch len(a.v) {
 	case 2:
-		var j int64
-		for range k {
-			if r.Float64() < a.p[1] {
-				j++
-			}
-		}
-		return a.atomValue2(k, j)
+		return a.atomValue2(k, counts[1])
 	case 3:
 		c, ia, ib := a.threeRoles()
-		var n, j int64
-		for range k {
-			switch u := r.Float64(); {
-			case u < a.p[c]:
-				n++
-			case u < a.p[c]+a.p[ib]:
-				j++
-			}
-		}
-		return a.atomValue3(k, n, j, c, ia, ib)
+		return a.atomValue3(k, counts[c], counts[ib], c, ia, ib)
 	}
 	s := 0.0
-	for range k {
-		s += a.d.Rand(r)
+	for i, n := range counts {
+		s += float64(n) * a.v[i]
 	}
 	return s
 }
@@ -111,6 +116,14 @@ func (a atomicSums) eval(k int64, x float64) (below, above float64, exact bool) 
 		return 1, 0, true
 	case len(a.v) == 1:
 		return 1, 0, true
+	case x < float64(n-1)*a.v[0]+a.v[1]:
+		// only the lowest atom, all k at v_0: p_0^k exactly
+		lp := n * math.Log(a.p[0])
+		return math.Exp(lp), -math.Expm1(lp), true
+	case x >= float64(n-1)*a.v[len(a.v)-1]+a.v[len(a.v)-2]:
+		// all but the highest atom, all k at v_top
+		lp := n * math.Log(a.p[len(a.p)-1])
+		return -math.Expm1(lp), math.Exp(lp), true
 	case len(a.v) == 2:
 		// S_k = k·v0 + N·(v1 − v0), N ~ Binomial(k, p1); j the largest count
 		// whose atom (atomValue2) is <= x.
@@ -127,8 +140,9 @@ func (a atomicSums) eval(k int64, x float64) (below, above float64, exact bool) 
 		below, above = a.three(k, x)
 		return below, above, true
 	case a.exactFits(k):
-		l, err := dist.SumIID(a.d, int(k))
+		atoms, err := atomPower("SumIID", a.d.Atoms(), int(k))
 		if err == nil {
+			l := discreteFromAtoms(atoms)
 			return l.CDF(x), l.Survival(x), true
 		}
 	}
@@ -253,19 +267,19 @@ func (a atomicSums) upperTerms(n, xb float64, sign float64) (q, corr float64) {
 }
 
 // accuracy returns the error bounds of eval's values for the k-fold sums.
-func (a atomicSums) accuracy(k int64) dist.Accuracy {
+func (a atomicSums) accuracy(k int64) Accuracy {
 	switch {
 	case len(a.v) == 2:
-		return dist.Accuracy{CDFAbs: 1e-13, SurvivalRel: 1e-12, TailFloor: 1e-300,
-			Method: "exact binomial count of the two cycle energies (Loader 2000 terms)"}
+		return Accuracy{CDFAbs: 1e-13, SurvivalRel: 1e-12, TailFloor: 1e-300,
+			Method: "exact binomial count of the two values (Loader 2000 terms)"}
 	case len(a.v) == 3:
-		return dist.Accuracy{CDFAbs: threeCDFAbs, SurvivalRel: threeSurvivalRel, TailFloor: threeTailFloor,
-			Method: "exact: binomial tails of two cycle energies summed over the count of the third (Loader 2000 terms)"}
+		return Accuracy{CDFAbs: threeCDFAbs, SurvivalRel: threeSurvivalRel, TailFloor: threeTailFloor,
+			Method: "exact: binomial tails of two values summed over the count of the third (Loader 2000 terms)"}
 	case a.exactFits(k):
-		return dist.Accuracy{CDFAbs: 1e-13, SurvivalRel: 1e-12, TailFloor: 1e-300,
-			Method: "exact k-fold atoms (package dist)"}
+		return Accuracy{CDFAbs: 1e-13, SurvivalRel: 1e-12, TailFloor: 1e-300,
+			Method: "exact k-fold atoms (repeated squaring)"}
 	}
-	return dist.Accuracy{CDFAbs: a.edgeworthBound(k),
+	return Accuracy{CDFAbs: a.edgeworthBound(k),
 		Method: "second-order saddlepoint (Lugannani & Rice 1980; Daniels 1987) of a k-fold discrete sum, bounded by Esseen's smoothing inequality against the Edgeworth law (the characteristic function's peaks bounded by branch and bound)"}
 }
 
@@ -311,23 +325,25 @@ func bd0(x, m float64) float64 {
 	return x*math.Log1p((x-m)/m) - (x - m)
 }
 
-// atomicSumLaw is the law of S_k for a purely discrete cycle law whose k-fold
-// atoms are too many for package dist to list: its CDF and Survival come
-// from atomicSums (exact for two or three energies, the second-order
-// saddlepoint otherwise, with the error bound it reports), its moments are
-// exact, and Rand draws k cycle energies (randSum).
+// atomicSumLaw is the law of S_k for a finite discrete term whose k-fold
+// atoms are too many to list: CDF and Survival come from atomicSums (exact
+// for two or three values, the second-order saddlepoint otherwise, with the
+// error bound Accuracy reports), Mean and Variance are exact, Quantile and
+// UpperQuantile invert CDF and Survival by bisection, and Rand draws the
+// values' counts from the structure (randSum). It does not list its atoms
+// (there are too many): it is not Atomic.
 type atomicSumLaw struct {
-	a     atomicSums
-	k     int64
-	exact bool
-	acc   dist.Accuracy
+	a   atomicSums
+	k   int64
+	acc Accuracy
 }
 
-func newAtomicSumLaw(d dist.Discrete, k int64) atomicSumLaw {
+func newAtomicSumLaw(d Discrete, k int64) atomicSumLaw {
 	a := newAtomicSums(d)
-	return atomicSumLaw{a: a, k: k, exact: len(a.v) <= 3, acc: a.accuracy(k)}
+	return atomicSumLaw{a: a, k: k, acc: a.accuracy(k)}
 }
 
+// CDF returns P(S_k <= x); NaN for NaN x.
 func (l atomicSumLaw) CDF(x float64) float64 {
 	if math.IsNaN(x) {
 		return x
@@ -336,6 +352,7 @@ func (l atomicSumLaw) CDF(x float64) float64 {
 	return b
 }
 
+// Survival returns P(S_k > x), computed directly; NaN for NaN x.
 func (l atomicSumLaw) Survival(x float64) float64 {
 	if math.IsNaN(x) {
 		return x
@@ -344,19 +361,30 @@ func (l atomicSumLaw) Survival(x float64) float64 {
 	return s
 }
 
-func (l atomicSumLaw) Quantile(p float64) float64      { return invertLaw(l, p, false) }
-func (l atomicSumLaw) UpperQuantile(q float64) float64 { return invertLaw(l, q, true) }
-func (l atomicSumLaw) Mean() float64                   { return float64(l.k) * l.a.mu }
-func (l atomicSumLaw) Variance() float64               { return float64(l.k) * l.a.sd * l.a.sd }
-func (l atomicSumLaw) Accuracy() dist.Accuracy         { return l.acc }
+// Quantile returns inf{x : CDF(x) >= p} by bisection; NaN for p outside [0, 1].
+func (l atomicSumLaw) Quantile(p float64) float64 { return quantileByInversion(l, p) }
 
+// UpperQuantile returns inf{x : Survival(x) <= q} by bisection; accurate for tiny q.
+func (l atomicSumLaw) UpperQuantile(q float64) float64 { return upperQuantileByInversion(l, q) }
+
+// Mean returns k times the term's mean.
+func (l atomicSumLaw) Mean() float64 { return float64(l.k) * l.a.mu }
+
+// Variance returns k times the term's variance.
+func (l atomicSumLaw) Variance() float64 { return float64(l.k) * l.a.sd * l.a.sd }
+
+// Accuracy reports the error bound of CDF and Survival (see atomicSums).
+func (l atomicSumLaw) Accuracy() Accuracy { return l.acc }
+
+// Support returns [k·v_min, k·v_max].
 func (l atomicSumLaw) Support() (lo, hi float64) {
 	n := float64(l.k)
 	return n * l.a.v[0], n * l.a.v[len(l.a.v)-1]
 }
 
+// Rand draws S_k from the structure (randSum).
 func (l atomicSumLaw) Rand(r *rand.Rand) float64 { return l.a.randSum(l.k, r) }
 
 func (l atomicSumLaw) String() string {
-	return fmt.Sprintf("DiscreteSum(k=%d, mean=%.6g, sd=%.4g)", l.k, l.Mean(), math.Sqrt(l.Variance()))
+	return fmt.Sprintf("SumIID(discrete, k=%d: %s)", l.k, summary(l))
 }

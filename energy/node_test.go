@@ -210,7 +210,7 @@ func TestNodeLifetimeBadInput(t *testing.T) {
 // b·c with b ~ N(1, σb) and c ~ N(1, σc), so for a deterministic cycle
 // P(L <= t) = E_b[Φ((tP/(b·C) − 1)/σc)], here by gonum's fixed
 // Gauss–Legendre rule over b (an independent quadrature); the site's
-// 9-node Gauss–Hermite mixture agrees to 2e-4.
+// 7-node Gauss–Hermite mixture agrees to 2e-4.
 func TestSiteSharedBatchAgainstQuadrature(t *testing.T) {
 	c := fixedCycle(t)
 	b := cellNoLeak(t)

@@ -122,12 +122,12 @@ func (m sharedMixture) moments() {
 			return
 		}
 		var brk []float64
-		for _, p := range []float64{0.001, 0.01, 0.1, 0.3, 0.5, 0.7, 0.9, 0.99, 0.999} {
+		for _, p := range []float64{0.01, 0.5, 0.99} {
 			brk = append(brk, m.Quantile(p))
 		}
 		brk = sortedUnique(brk)
-		a, _ := integratePiecesTol(m.Survival, lo, hi, brk, 1e-10)
-		b, _ := integratePiecesTol(func(t float64) float64 { return 2 * t * m.Survival(t) }, lo, hi, brk, 1e-10)
+		a, _ := integratePiecesTol(m.Survival, lo, hi, brk, 1e-8)
+		b, _ := integratePiecesTol(func(t float64) float64 { return 2 * t * m.Survival(t) }, lo, hi, brk, 1e-8)
 		mean := lo + a
 		m.lz.mean = mean
 		m.lz.vari = math.Max(0, lo*lo+b-mean*mean)

@@ -279,7 +279,7 @@ func (s Site) NoFailureBefore(t float64) float64 {
 	for _, e := range s.envs {
 		p += e.w * e.fleet.NoFailureBefore(t)
 	}
-	return p
+	return math.Min(1, math.Max(0, p)) // the weights sum to 1 within rounding
 }
 
 // EnergyBinds returns the share of group i's nodes whose life ends by their
@@ -292,7 +292,7 @@ func (s Site) EnergyBinds(i int) float64 {
 	for _, e := range s.envs {
 		p += e.w * e.exact[i].EnergyBinds()
 	}
-	return p
+	return math.Min(1, math.Max(0, p)) // the weights sum to 1 within rounding
 }
 
 // Warnings returns the environments' warnings for group i, without repeats.

@@ -1,0 +1,39 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"testing"
+
+	"github.com/joulelaw/joulelaw/internal/scenario"
+)
+
+// BenchmarkDemo computes the demo's plan: format 2, with per-node and
+// shared spreads, the climate, supply path, voltage curve and calendar
+// limit. BenchmarkDemoFormat1 is the baseline measured in the same run: the
+// same site in the first format (no spreads, no climate, no calendar), the
+// demo as it was before the three tiers of randomness.
+func BenchmarkDemo(b *testing.B) {
+	benchPlan(b, scenario.Demo())
+}
+
+func BenchmarkDemoFormat1(b *testing.B) {
+	data, err := os.ReadFile(filepath.Join("..", "..", "internal", "scenario", "testdata", "format1.json"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	s, err := scenario.Parse(data)
+	if err != nil {
+		b.Fatal(err)
+	}
+	benchPlan(b, s)
+}
+
+func benchPlan(b *testing.B, s scenario.Scenario) {
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := buildPlan(s, "bench", func(string, ...any) {}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -60,6 +60,36 @@
 // MicroAmp, Millisecond, MilliAmpHour, MilliJoule, MicroJoule, Day, Year
 // convert from the units practitioners use.
 //
+// # Three tiers of randomness and the cell over the calendar
+//
+// Per-cycle noise averages out over a life (the relative spread of a
+// k-cycle sum falls as 1/√k); what spreads real lifetimes is what varies
+// from node to node and what a fleet shares. NodeSpec describes a group's
+// nodes with both: its settings (cycles with the share of nodes that keep
+// each), its Battery, the Supply path (DirectSupply, LinearRegulator,
+// SwitchingRegulator), how cell and board follow temperature (Thermal:
+// Arrhenius self-discharge, sleep current doubling, capacity derating),
+// an optional VoltageCurve (end of life by voltage under the largest pulse
+// at the year's coldest temperature), the per-node NodeSpread (capacity,
+// sleep current, active energy), and the cell's calendar life and storage
+// time. NewNodeLifetime gives the law of a node's life in one Environment
+// (a Climate and one realisation of the shared factors, Conditions); Site
+// mixes over the shared factors (SharedSpread: the cell batch and the
+// site's temperature offset) by a Gauss–Hermite rule and gives the node
+// laws, the first failure, the end-of-life dates and the failed count of a
+// fleet whose nodes are independent only given what they share.
+// Site.VarianceShares splits a group's lifetime variance by source.
+//
+// A node has energy left at t while c·b·(U − N·D(t)) − a·A(t) − f·Φ(t) −
+// P_q·t >= 0 (capacity factor c, batch factor b, usable energy U, nominal
+// energy N, self-discharge D taken month by month, active scale a, active
+// energy A of the cycles run, sleep factor f, sleep energy Φ month by
+// month, supply quiescent power P_q); its life ends at the earlier of that
+// and the calendar limit. The normal factors enter in closed form, the
+// lognormal sleep factor by quadrature, the per-cycle sum by its exact
+// mean and variance (a five-cumulant Gaussian rule measures what the
+// higher cumulants move), and each law reports its error (dist.Estimated).
+//
 // # Cautions
 //
 // Primary lithium cells (lithium–thionyl chloride, lithium–manganese

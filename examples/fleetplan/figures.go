@@ -192,8 +192,8 @@ func survivalFigure(p *Plan) (*plot.Plot, error) {
 
 func failedFigure(p *Plan) (*plot.Plot, error) {
 	pl := plot.New()
-	style(pl, fmt.Sprintf("Flat batteries over time in the fleet of %d nodes, with the 90 %% band", p.Nodes),
-		"time since deployment (years)", "number of nodes with a flat battery")
+	style(pl, fmt.Sprintf("Nodes at the end of their life (flat cell or calendar limit) in the fleet of %d, with the 90 %% band", p.Nodes),
+		"time since deployment (years)", "nodes at the end of their life")
 	end := horizon(p)
 	const n = 120
 	var mean, lower, upper plotter.XYs

@@ -69,7 +69,11 @@ type ksRow struct {
 }
 
 func (k ksRow) String() string {
-	return fmt.Sprintf("| %s | %d | %.4f | %.4f | %.1f %% |", k.what, k.n, k.d, k.bound, 100*k.moved)
+	moved := "—"
+	if !math.IsNaN(k.moved) {
+		moved = fmt.Sprintf("%.1f %%", 100*k.moved)
+	}
+	return fmt.Sprintf("| %s | %d | %.4f | %.4f | %s |", k.what, k.n, k.d, k.bound, moved)
 }
 
 // gridKS bounds the Kolmogorov–Smirnov distance sup_x |F_n(x) − F(x)| of
@@ -119,10 +123,11 @@ func gridKS(xs []float64, cdf func(float64) float64, m int) (upper, lower float6
 const ksGrid = 400
 
 // movedKS returns a lower bound on the smaller KS distance of the sorted
-// xs to the law moved by a factor 1 ± s.
+// xs to the law moved by a factor 1 ± s (read at ksGrid/4 points: a lower
+// bound needs no fine grid).
 func movedKS(xs []float64, cdf func(float64) float64, s float64) float64 {
-	_, up := gridKS(xs, func(x float64) float64 { return cdf(x / (1 + s)) }, ksGrid)
-	_, down := gridKS(xs, func(x float64) float64 { return cdf(x / (1 - s)) }, ksGrid)
+	_, up := gridKS(xs, func(x float64) float64 { return cdf(x / (1 + s)) }, ksGrid/4)
+	_, down := gridKS(xs, func(x float64) float64 { return cdf(x / (1 - s)) }, ksGrid/4)
 	return math.Min(up, down)
 }
 
@@ -235,6 +240,67 @@ func TestAgainstSite(t *testing.T) {
 			rows = append(rows, checkKS(t, fmt.Sprintf("Site.GroupFirstFailure(%s)", site.Name(g)), xs, law.CDF))
 		}
 	})
+	t.Run("fraction failed", func(t *testing.T) {
+		size := fleetGroups * perGroup
+		for _, q := range []float64{0.25} {
+			law, err := site.FractionFailed(q)
+			require.NoError(t, err)
+			k := max(1, int(math.Ceil(q*float64(size)))) // the k-th flat battery
+			xs := make([]float64, fleetSamples)
+			for i, f := range fleets {
+				ls := make([]float64, len(f.Nodes))
+				for j, n := range f.Nodes {
+					ls[j] = n.Lifetime
+				}
+				slices.Sort(ls)
+				xs[i] = ls[k-1]
+			}
+			rows = append(rows, checkKS(t, fmt.Sprintf("Site.FractionFailed(%g)", q), xs, law.CDF))
+		}
+	})
+	t.Run("replacement plan", func(t *testing.T) {
+		const risk = 0.1
+		plan, err := site.ReplacementPlan(risk)
+		require.NoError(t, err)
+		require.Len(t, plan.Groups, fleetGroups)
+		// Four binomial checks (the fleet and each group): Bonferroni.
+		level := testref.BinLevel / (fleetGroups + 1)
+		check := func(what string, law dist.Law, date float64, first func(f lifesim.Fleet) float64) {
+			p := law.CDF(date) // the plan's date is the risk-quantile: P(first failure <= date) >= risk
+			assert.GreaterOrEqual(t, p, risk-1e-9, what)
+			k := 0
+			for _, f := range fleets {
+				if first(f) <= date {
+					k++
+				}
+			}
+			lo, hi := testref.BinomialInterval(fleetSamples, p, level)
+			assert.True(t, k >= lo && k <= hi, "%s: %d of %d fleets failed by the plan's date, law %.4f gives [%d, %d]", what, k, fleetSamples, p, lo, hi)
+			cover = append(cover, fmt.Sprintf("| %s: any flat by the plan's date | %.4f | %.4f | [%.4f, %.4f] |", what, p,
+				float64(k)/fleetSamples, float64(lo)/fleetSamples, float64(hi)/fleetSamples))
+		}
+		ff, err := site.FirstFailure()
+		require.NoError(t, err)
+		check("ReplacementPlan(0.1) fleet", ff, plan.FleetReplaceBy, lifesim.Fleet.FirstFailure)
+		for g, gp := range plan.Groups {
+			law, err := site.GroupFirstFailure(g)
+			require.NoError(t, err)
+			check(fmt.Sprintf("ReplacementPlan(0.1) %s", gp.Name), law, gp.ReplaceBy, func(f lifesim.Fleet) float64 { return f.Group(g).FirstFailure() })
+			// ExpectedFailed: the mean over independent fleets of the
+			// group's count by ReplaceBy, within z·sd/√F of it (normal
+			// approximation of a mean of 1000 fleets; z two-sided at 1e-6).
+			const z = 4.891638 // Φ⁻¹(1 − 5e-7), from memory; gonum distuv.UnitNormal.Quantile gives 4.8916
+			sum, sum2 := 0.0, 0.0
+			for _, f := range fleets {
+				c := float64(f.Group(g).FailedBy(gp.ReplaceBy))
+				sum += c
+				sum2 += c * c
+			}
+			mean := sum / fleetSamples
+			sd := math.Sqrt((sum2 - fleetSamples*mean*mean) / (fleetSamples - 1))
+			assert.InDelta(t, gp.ExpectedFailed, mean, z*sd/math.Sqrt(fleetSamples)+1e-9, "group %s: expected failed by ReplaceBy", gp.Name)
+		}
+	})
 	t.Run("failed-count band", func(t *testing.T) {
 		dates := []float64{0.8, 1.0, 1.2} // years
 		for _, y := range dates {
@@ -310,5 +376,3 @@ func TestAgainstNodeLifetime(t *testing.T) {
 	}
 	t.Logf("validation figures:\n%s", b.String())
 }
-
-var _ dist.Law // the laws compared are dist.Law values

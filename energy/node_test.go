@@ -298,3 +298,27 @@ func TestVarianceSharesClosedForm(t *testing.T) {
 	_, err = site.VarianceShares(1)
 	assert.True(t, errors.Is(err, energy.ErrParam))
 }
+
+// Temperatures: a climate beyond the cell's rated range is a warning; one
+// beyond the derating table is an error naming the derating.
+func TestNodeLifetimeTemperatureChecks(t *testing.T) {
+	c := fixedCycle(t)
+	b := cellNoLeak(t)
+	th := energy.TypicalThermal() // rated −55 … +85 °C, derating table −55 … +85 °C
+	hot, err := energy.NewSeasonalClimate(80, 4, 6, 10) // up to 84 + 5 = 89 °C in the hottest hours
+	require.NoError(t, err)
+	spec := energy.NodeSpec{Settings: []energy.NodeSetting{{Weight: 1, Cycle: c}}, Battery: b, Thermal: &th,
+		Spread: energy.NodeSpread{Capacity: 0.05}}
+	site, err := energy.NewSite(energy.SiteSpec{Climate: &hot, Groups: []energy.SiteGroup{{Name: "hot", Node: spec, Count: 3}}})
+	require.NoError(t, err)
+	assert.NotEmpty(t, site.Warnings(0), "above the rated range")
+
+	th.Derating = []energy.DeratingPoint{{Temperature: -20, Fraction: 0.8}, {Temperature: 40, Fraction: 1}}
+	th, err = energy.NewThermal(th)
+	require.NoError(t, err)
+	spec.Thermal = &th
+	_, err = energy.NewNodeLifetime(spec, energy.Environment{Climate: &hot})
+	require.Error(t, err)
+	assert.True(t, errors.Is(err, energy.ErrParam))
+	assert.Contains(t, err.Error(), "Derating")
+}

@@ -304,7 +304,7 @@ func TestVarianceSharesClosedForm(t *testing.T) {
 func TestNodeLifetimeTemperatureChecks(t *testing.T) {
 	c := fixedCycle(t)
 	b := cellNoLeak(t)
-	th := energy.TypicalThermal() // rated −55 … +85 °C, derating table −55 … +85 °C
+	th := energy.TypicalThermal()                       // rated −55 … +85 °C, derating table −55 … +85 °C
 	hot, err := energy.NewSeasonalClimate(80, 4, 6, 10) // up to 84 + 5 = 89 °C in the hottest hours
 	require.NoError(t, err)
 	spec := energy.NodeSpec{Settings: []energy.NodeSetting{{Weight: 1, Cycle: c}}, Battery: b, Thermal: &th,

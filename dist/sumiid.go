@@ -327,6 +327,14 @@ func (p IIDSums) Survival(k int, x float64) float64 {
 	return s
 }
 
+// Tails returns P(S_k <= x) and P(S_k > x) from one evaluation (CDF and
+// Survival each make their own): each tail computed directly, as CDF and
+// Survival return them. k must be in [1, MaxSumIIDTerms] (NaN, NaN
+// otherwise); NaN, NaN for NaN x.
+func (p IIDSums) Tails(k int, x float64) (below, above float64) {
+	return p.eval(k, x)
+}
+
 // Law returns the law of S_k (as SumIID(l, k)).
 func (p IIDSums) Law(k int) (Law, error) { return SumIID(p.l, k) }
 

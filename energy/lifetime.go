@@ -103,7 +103,8 @@ func (f *kfold) at(k int64) [2]float64 {
 	if k > dist.MaxSumIIDTerms {
 		return [2]float64{math.NaN(), math.NaN()}
 	}
-	v = [2]float64{f.sums.CDF(int(k), f.capacity), f.sums.Survival(int(k), f.capacity)}
+	b, a := f.sums.Tails(int(k), f.capacity)
+	v = [2]float64{b, a}
 	f.mu.Lock()
 	if len(f.cache) > 1<<16 {
 		clear(f.cache)
@@ -406,16 +407,49 @@ func (l Lifetime) Support() (lo, hi float64) {
 	return float64(l.kmin) * l.step, hi
 }
 
+// momentTol is the error the lifetime moments' adaptive rule stops at:
+// successive trapezoidal sums of E[M] within momentTol·sd(M) cycles and of
+// the second moment within momentTol·sd(M)·(the range's width) cycles²
+// (the second moment's weight grows to the width). momentNoise is the
+// largest difference, in sd(M), at which it stops because the differences
+// no longer fall (the values' own errors).
+const (
+	momentTol   = 1e-9
+	momentNoise = 1e-6
+)
+
+// momentMinStride is the number of grid intervals the adaptive rule starts
+// from (at least), and momentExact the width of the range below which the
+// terms are summed one by one.
+const (
+	momentMinStride = 8
+	momentExact     = 32
+)
+
 // moments computes E[M] = Σ_{k>=1} g(k) and E[(M−c)²] = Σ_{k>=1} (2(k−c)−1)·g(k) + c²,
 // with g(k) = P(M >= k) = P(S_k <= C) and c the median number of cycles,
-// once, and Var M = E[(M−c)²] − (E[M]−c)², free of cancellation. Below the k where P(S_k > C) first exceeds 1e-17 g is 1 to that
-// accuracy and the terms are summed in closed form; above the k where g
-// falls below 1e-17 they are dropped; in between they are summed one by one
-// when there are at most 512 of them, and otherwise by the trapezoidal rule
-// on every h-th k (h about 1/256 of the range) with the Euler–Maclaurin end
-// corrections (g is flat at both ends, so they are (f(a)+f(b))/2 and, for the
-// second moment's linear weight, (h²−1)/6), its error estimated by
-// comparison with step 2h.
+// once, and Var M = E[(M−c)²] − (E[M]−c)², free of cancellation. Below the
+// k where P(S_k > C) first exceeds 1e-17 g is 1 to that accuracy and the
+// terms are summed in closed form; above the k where g falls below 1e-17
+// they are dropped. In between (about 17 renewal standard deviations) the
+// terms are summed one by one when there are at most momentExact of them;
+// otherwise by an adaptive trapezoidal rule on every h-th k with the
+// Euler–Maclaurin end corrections (g is flat at both ends, so they are
+// (f(a)+f(b))/2 and, for the second moment's linear weight, (h²−1)/6): h
+// starts as a power of two giving at least momentMinStride intervals and is
+// halved (each halving evaluates only the new midpoints) until two
+// successive sums agree within momentTol·sd(M) = 1e-9·sd(M) cycles (and the
+// second moments within momentTol·sd(M)·width), or h = 1, the plain sum.
+// For a smooth curve the trapezoidal error falls like exp(−2π²·sd²/h²), so
+// the rule stops near h ≈ sd/2 with an error far below the difference it
+// stopped at. Once h is below sd(M), a difference that no longer falls by 4
+// per halving but is below momentNoise·sd(M) = 1e-6·sd(M) is the error of
+// the values of P(M >= k) themselves (a tilted inversion's 1e-9 relative,
+// say), which halving does not remove: the rule stops there too. Larger
+// differences that do not fall are fine structure of the curve (the atoms
+// of a nearly commensurate discrete cycle law), which the plain sum (h = 1)
+// resolves. The last difference is reported (MomentError; zero but for
+// rounding for the plain sum).
 func (l Lifetime) moments() (mean, vari, errMean float64) {
 	f := l.ev
 	if f == nil {
@@ -437,35 +471,63 @@ func (l Lifetime) moments() (mean, vari, errMean float64) {
 		var s0, s1 float64
 		g := func(k int64) float64 { return f.at(k)[0] }
 		w := func(k int64) float64 { return float64(2*(k-c) - 1) }
-		if b-a <= 512 {
+		if b-a <= momentExact {
 			for k := a; k <= b; k++ {
 				v := g(k)
 				s0 += v
 				s1 += w(k) * v
 			}
 		} else {
-			h := (b - a + 255) / 256
-			n := (b - a + h - 1) / h // intervals
-			n += n % 2               // even, for the step-2h estimate
-			end := a + n*h
-			trap := func(stride int64) (t0, t1 float64) {
-				for k := a; k <= end; k += stride {
-					wt := float64(stride)
-					if k == a || k == end {
-						wt /= 2
-					}
-					v := g(k)
-					t0 += wt * v
-					t1 += wt * w(k) * v
-				}
-				return t0, t1
+			_, sd := l.cltK()
+			sd = math.Max(1, sd)
+			h := int64(1)
+			for h*2*momentMinStride <= b-a {
+				h *= 2
 			}
-			t0, t1 := trap(h)
+			n := (b - a + h - 1) / h // intervals of the coarsest grid
+			end := a + n*h
 			ga, ge := g(a), g(end)
+			// coarsest trapezoidal sums (halves at the ends)
+			t0, t1 := float64(h)*(ga+ge)/2, float64(h)*(w(a)*ga+w(end)*ge)/2
+			for k := a + h; k < end; k += h {
+				v := g(k)
+				t0 += float64(h) * v
+				t1 += float64(h) * w(k) * v
+			}
+			evals := n + 1
+			d0 := math.Inf(1)
+			for h > 1 {
+				h /= 2
+				var m0, m1 float64 // the new midpoints
+				for k := a + h; k < end; k += 2 * h {
+					v := g(k)
+					m0 += v
+					m1 += w(k) * v
+					evals++
+				}
+				u0, u1 := t0/2+float64(h)*m0, t1/2+float64(h)*m1
+				prev := d0
+				d0 = math.Abs(u0 - t0)
+				d1 := math.Abs(u1 - t1)
+				t0, t1 = u0, u1
+				if d0 <= momentTol*sd && d1 <= momentTol*sd*float64(end-a) {
+					break
+				}
+				if float64(h) <= sd && d0 > prev/4 && d0 <= momentNoise*sd {
+					// no longer converging at a step finer than the
+					// curve's width: the differences are the errors of the
+					// values themselves (a tilted inversion's 1e-9
+					// relative, say), which halving does not remove; the
+					// last difference is reported
+					break
+				}
+			}
+			if h == 1 {
+				d0 = 0 // the plain sum
+			}
 			s0 += t0 + (ga+ge)/2
 			s1 += t1 + (w(a)*ga+w(end)*ge)/2 + float64(h*h-1)/6*ga
-			u0, _ := trap(2 * h)
-			f.momentError = math.Abs(t0-u0) + 1e-16*float64(n)*math.Max(1, math.Abs(t0))
+			f.momentError = d0 + 1e-16*float64(evals)*math.Max(1, math.Abs(t0))
 		}
 		d := float64(c - a + 1)
 		f.mean = float64(a-1) + s0
@@ -488,9 +550,10 @@ func (l Lifetime) Variance() float64 {
 	return v * l.step * l.step
 }
 
-// MomentError returns the estimated absolute error of Mean (s): 0 when the
-// terms were summed one by one, otherwise the difference between the
-// trapezoidal sums at steps h and 2h.
+// MomentError returns the estimated absolute error of Mean (s): rounding
+// when the terms were summed one by one, otherwise the difference between
+// the last two sums of the adaptive trapezoidal rule (see moments), which
+// stops once it is below 1e-10 renewal standard deviations.
 func (l Lifetime) MomentError() float64 {
 	_, _, e := l.moments()
 	return e * l.step

@@ -27,7 +27,7 @@ const (
 	perGroup    = 8
 )
 
-func cycleOf(t *testing.T, period, floorCurrent, txTime float64) energy.Cycle {
+func cycleOf(t testing.TB, period, floorCurrent, txTime float64) energy.Cycle {
 	t.Helper()
 	tx, err := energy.NewFixedState("tx", 60*energy.MilliAmp, 3.6, txTime)
 	require.NoError(t, err)
@@ -39,7 +39,7 @@ func cycleOf(t *testing.T, period, floorCurrent, txTime float64) energy.Cycle {
 	return c
 }
 
-func siteSpec(t *testing.T) energy.SiteSpec {
+func siteSpec(t testing.TB) energy.SiteSpec {
 	t.Helper()
 	clim, err := energy.NewSeasonalClimate(12, 10, 6, 8)
 	require.NoError(t, err)

@@ -21,6 +21,9 @@ const ProbSumTolerance = 1e-12
 // Discrete is a finite discrete law: P(X = v_i) = p_i. The point mass is the
 // case of one atom. CDF and Survival are both computed from partial sums
 // taken from their own end, so the survival is accurate in the upper tail.
+// The zero Discrete is not a valid law (build one with NewDiscrete): it has
+// no atoms, its numerical methods (Support included) return NaN and CF
+// NaN + NaN·i; none panics.
 type Discrete struct {
 	values []float64 // sorted, distinct beyond AtomMergeTolerance
 	probs  []float64 // > 0
@@ -28,37 +31,41 @@ type Discrete struct {
 	above  []float64 // above[i] = Σ_{j>i} p_j
 }
 
+// MaxDiscreteAtoms is the largest number of values NewDiscrete takes
+// (about 130 MB of tables at the cap); beyond it the error wraps ErrParam.
+const MaxDiscreteAtoms = 1 << 22
+
 // NewDiscrete returns the finite discrete law with the given values (in the
 // unit of the variable) and probabilities. The slices must have the same,
-// non-zero length; values must be finite; probabilities finite, >= 0 and
-// summing to 1 within ProbSumTolerance. Values closer than
-// AtomMergeTolerance merge; zero-probability values are dropped. The
+// non-zero length, at most MaxDiscreteAtoms; values must be finite;
+// probabilities finite, >= 0 and summing to 1 within ProbSumTolerance (the
+// sum is compensated, so 10^6 probabilities of 1/10^6 pass). Values closer
+// than AtomMergeTolerance merge; zero-probability values are dropped. The
 // inputs are copied.
 func NewDiscrete(values, probs []float64) (Discrete, error) {
 	const fn = "NewDiscrete"
 	if len(values) == 0 {
 		return Discrete{}, paramErr(fn, "values", "[]", "must not be empty")
 	}
+	if len(values) > MaxDiscreteAtoms {
+		return Discrete{}, paramErr(fn, "values", fmt.Sprintf("len %d", len(values)), fmt.Sprintf("must have at most MaxDiscreteAtoms = %d entries", MaxDiscreteAtoms))
+	}
 	if len(probs) != len(values) {
 		return Discrete{}, paramErr(fn, "probs", fmt.Sprintf("len %d", len(probs)), fmt.Sprintf("must have the length of values (%d)", len(values)))
 	}
 	atoms := make([]Atom, 0, len(values))
-	sum := 0.0
 	for i, v := range values {
-		p := probs[i]
 		if !finite(v) {
 			return Discrete{}, paramErr(fn, fmt.Sprintf("values[%d]", i), v, "must be finite")
 		}
-		if !finite(p) || p < 0 {
-			return Discrete{}, paramErr(fn, fmt.Sprintf("probs[%d]", i), p, "must be finite and >= 0")
-		}
-		sum += p
-		if p > 0 {
+	}
+	if _, err := probSum(fn, "probs", probs); err != nil {
+		return Discrete{}, err
+	}
+	for i, v := range values {
+		if p := probs[i]; p > 0 {
 			atoms = append(atoms, Atom{Value: v, Mass: p})
 		}
-	}
-	if math.Abs(sum-1) > ProbSumTolerance {
-		return Discrete{}, paramErr(fn, "probs", fmt.Sprintf("sum %.17g", sum), fmt.Sprintf("must sum to 1 within %g", ProbSumTolerance))
 	}
 	return discreteFromAtoms(atoms), nil
 }
@@ -100,26 +107,26 @@ func discreteFromAtoms(atoms []Atom) Discrete {
 		below:  make([]float64, n),
 		above:  make([]float64, n),
 	}
-	total := 0.0
+	var total compSum
 	for _, a := range merged {
-		total += a.Mass
+		total.add(a.Mass)
 	}
 	for i, a := range merged {
 		d.values[i] = a.Value
-		d.probs[i] = a.Mass / total
+		d.probs[i] = a.Mass / total.value()
 	}
-	s := 0.0
+	var s compSum
 	for i := 0; i < n; i++ {
-		s += d.probs[i]
-		d.below[i] = math.Min(s, 1)
+		s.add(d.probs[i])
+		d.below[i] = math.Min(s.value(), 1)
 	}
 	if n > 0 {
 		d.below[n-1] = 1 // the masses are normalised: no rounding short of 1 at the top
 	}
-	s = 0
+	s = compSum{}
 	for i := n - 1; i >= 0; i-- {
-		d.above[i] = math.Min(s, 1)
-		s += d.probs[i]
+		d.above[i] = math.Min(s.value(), 1)
+		s.add(d.probs[i])
 	}
 	return d
 }
@@ -143,8 +150,8 @@ func (d Discrete) index(x float64) int {
 
 // CDF returns Σ_{v_i <= x} p_i.
 func (d Discrete) CDF(x float64) float64 {
-	if math.IsNaN(x) {
-		return x
+	if math.IsNaN(x) || len(d.values) == 0 {
+		return math.NaN()
 	}
 	i := d.index(x)
 	if i == 0 {
@@ -155,8 +162,8 @@ func (d Discrete) CDF(x float64) float64 {
 
 // Survival returns Σ_{v_i > x} p_i, summed from the top.
 func (d Discrete) Survival(x float64) float64 {
-	if math.IsNaN(x) {
-		return x
+	if math.IsNaN(x) || len(d.values) == 0 {
+		return math.NaN()
 	}
 	i := d.index(x)
 	if i == 0 {
@@ -169,7 +176,7 @@ func (d Discrete) Survival(x float64) float64 {
 // value for p = 1 (even when atoms too light to move the partial sums
 // off 1 lie above the first sum that rounds to 1).
 func (d Discrete) Quantile(p float64) float64 {
-	if !isProb(p) {
+	if !isProb(p) || len(d.values) == 0 {
 		return math.NaN()
 	}
 	if p == 1 {
@@ -184,7 +191,7 @@ func (d Discrete) Quantile(p float64) float64 {
 
 // UpperQuantile returns the smallest v_i with Survival(v_i) <= q.
 func (d Discrete) UpperQuantile(q float64) float64 {
-	if !isProb(q) {
+	if !isProb(q) || len(d.values) == 0 {
 		return math.NaN()
 	}
 	i := sort.Search(len(d.values), func(i int) bool { return d.above[i] <= q })
@@ -196,6 +203,9 @@ func (d Discrete) UpperQuantile(q float64) float64 {
 
 // Mean returns Σ p_i v_i.
 func (d Discrete) Mean() float64 {
+	if len(d.values) == 0 {
+		return math.NaN()
+	}
 	m := 0.0
 	for i, v := range d.values {
 		m += d.probs[i] * v
@@ -205,6 +215,9 @@ func (d Discrete) Mean() float64 {
 
 // Variance returns Σ p_i (v_i - mean)².
 func (d Discrete) Variance() float64 {
+	if len(d.values) == 0 {
+		return math.NaN()
+	}
 	m := d.Mean()
 	s := 0.0
 	for i, v := range d.values {
@@ -214,12 +227,20 @@ func (d Discrete) Variance() float64 {
 }
 
 // Support returns [min v_i, max v_i].
-func (d Discrete) Support() (lo, hi float64) { return d.values[0], d.values[len(d.values)-1] }
+func (d Discrete) Support() (lo, hi float64) {
+	if len(d.values) == 0 {
+		return math.NaN(), math.NaN()
+	}
+	return d.values[0], d.values[len(d.values)-1]
+}
 
 // Rand draws a value using r by binary search on the cumulative sums
 // (O(log n)); for many draws from a large law prepare an AliasSampler.
 func (d Discrete) Rand(r *rand.Rand) float64 {
-	if len(d.values) == 1 {
+	switch len(d.values) {
+	case 0:
+		return math.NaN()
+	case 1:
 		return d.values[0]
 	}
 	u := r.Float64()
@@ -232,6 +253,9 @@ func (d Discrete) Rand(r *rand.Rand) float64 {
 
 // CF returns Σ p_k exp(i·t·v_k).
 func (d Discrete) CF(t float64) complex128 {
+	if len(d.values) == 0 {
+		return complex(math.NaN(), math.NaN())
+	}
 	var re, im float64
 	for i, v := range d.values {
 		s, c := math.Sincos(t * v)
@@ -243,6 +267,9 @@ func (d Discrete) CF(t float64) complex128 {
 
 // CGF returns log Σ p_k exp(s·v_k), computed stably.
 func (d Discrete) CGF(s float64) float64 {
+	if len(d.values) == 0 {
+		return math.NaN()
+	}
 	mx := math.Inf(-1)
 	for _, v := range d.values {
 		mx = math.Max(mx, s*v)
@@ -258,6 +285,8 @@ func (d Discrete) CGF(s float64) float64 {
 // up to four, and the mean, standard deviation and 5–95 % range beyond that.
 func (d Discrete) String() string {
 	switch n := len(d.values); {
+	case n == 0:
+		return "zero Discrete"
 	case n == 1:
 		return fmt.Sprintf("PointMass(%.6g)", d.values[0])
 	case n <= 4:

@@ -54,47 +54,88 @@ type distuvLaw struct {
 	mean, variance float64
 }
 
+// source calls f, a method of the source law, and reports whether its
+// answer is a number in [lo, hi]: a NaN, an answer out of range, or a panic
+// (gonum's gamma quantile panics at p = 5e-324) is reported as not ok, and
+// the caller falls back to this package's own inversion or complement.
+func source(f func() float64, lo, hi float64) (v float64, ok bool) {
+	defer func() {
+		if recover() != nil { // panic-ok: a panic of the outside law is turned into a fallback
+			v, ok = math.NaN(), false
+		}
+	}()
+	v = f()
+	return v, v >= lo && v <= hi
+}
+
+// CDF is the source's CDF; where that is NaN or outside [0, 1] for a number
+// x, it is 1 - Survival when the source has one (else NaN).
 func (a distuvLaw) CDF(x float64) float64 {
 	if v, ok := edgeCDF(x, a.lo, a.hi); ok {
 		return v
 	}
-	return a.d.CDF(x)
+	if v, ok := source(func() float64 { return a.d.CDF(x) }, 0, 1); ok {
+		return v
+	}
+	if sv, ok := a.d.(interface{ Survival(float64) float64 }); ok {
+		if v, ok := source(func() float64 { return sv.Survival(x) }, 0, 1); ok {
+			return 1 - v
+		}
+	}
+	return math.NaN()
 }
 
+// Survival is the source's Survival when it has one and answers in [0, 1],
+// else 1 - CDF (see the caution on FromDistuv).
 func (a distuvLaw) Survival(x float64) float64 {
 	if v, ok := edgeSurvival(x, a.lo, a.hi); ok {
 		return v
 	}
-	if s, ok := a.d.(interface{ Survival(float64) float64 }); ok {
-		return s.Survival(x)
+	if sv, ok := a.d.(interface{ Survival(float64) float64 }); ok {
+		if v, ok := source(func() float64 { return sv.Survival(x) }, 0, 1); ok {
+			return v
+		}
 	}
-	return 1 - a.d.CDF(x)
+	if v, ok := source(func() float64 { return a.d.CDF(x) }, 0, 1); ok {
+		return 1 - v
+	}
+	return math.NaN()
 }
 
+// Quantile is the source's quantile; where that is NaN, outside the
+// support or panics (gonum's gamma quantile is NaN below p ≈ 1e-20 and
+// panics at 5e-324), the CDF (p <= 1/2) or survival is inverted by
+// bisection instead.
 func (a distuvLaw) Quantile(p float64) float64 {
 	if !isProb(p) {
 		return math.NaN()
 	}
-	return a.d.Quantile(p)
+	if v, ok := source(func() float64 { return a.d.Quantile(p) }, a.lo, a.hi); ok {
+		return v
+	}
+	return quantileByInversion(a, p)
 }
 
+// UpperQuantile inverts the survival for q < 1/2 when the source has one,
+// else it is the source's Quantile(1 - q), with the same fallback as
+// Quantile.
 func (a distuvLaw) UpperQuantile(q float64) float64 {
 	if !isProb(q) {
 		return math.NaN()
 	}
-	if q >= 0.5 {
-		return a.d.Quantile(1 - q)
-	}
-	if _, ok := a.d.(interface{ Survival(float64) float64 }); ok {
+	if _, ok := a.d.(interface{ Survival(float64) float64 }); ok && q < 0.5 {
 		return upperQuantileByInversion(a, q)
 	}
-	return a.d.Quantile(1 - q)
+	if v, ok := source(func() float64 { return a.d.Quantile(1 - q) }, a.lo, a.hi); ok {
+		return v
+	}
+	return upperQuantileByInversion(a, q)
 }
 
 func (a distuvLaw) Mean() float64             { return a.mean }
 func (a distuvLaw) Variance() float64         { return a.variance }
 func (a distuvLaw) Support() (lo, hi float64) { return a.lo, a.hi }
-func (a distuvLaw) Rand(r *rand.Rand) float64 { return a.d.Quantile(r.Float64()) }
+func (a distuvLaw) Rand(r *rand.Rand) float64 { return a.Quantile(r.Float64()) }
 func (a distuvLaw) String() string            { return fmt.Sprintf("%T(%s)", a.d, summary(a)) }
 
 type distuvDensity struct{ distuvLaw }

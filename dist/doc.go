@@ -68,7 +68,9 @@
 // the rule). NaN arguments give NaN results; Quantile and UpperQuantile
 // return NaN outside [0, 1]. Must… forms panic on bad input and are meant for
 // examples and tests only. The zero values of the law types are not valid
-// laws: build them with their constructors.
+// laws: build them with their constructors. Used anyway, their numerical
+// methods return NaN (Support NaN, NaN) and none panics, as in orderstat
+// and energy.
 //
 // All quantities are in the unit of the variable (SI in this module: joules,
 // seconds, watts, amperes).

@@ -1,11 +1,14 @@
 package dist_test
 
 import (
+	"errors"
 	"math"
 	"math/big"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+	"gonum.org/v1/gonum/integrate/quad"
 	"gonum.org/v1/gonum/mathext"
 
 	"github.com/joulelaw/joulelaw/dist"
@@ -111,4 +114,55 @@ func TestGammaSurvivalBelowMeanLargeShape(t *testing.T) {
 			}
 		}
 	}
+}
+
+// TestNewGammaDomain: issue 13. NewGamma accepted shapes so small that the
+// CDF exceeded 1 (2.25e15 at shape 5e-324, 1.0000000000000238 at 1e-300,
+// 1 + 7e-16 already at 1e-15) and rates whose variance overflowed or
+// underflowed. At the smallest shape allowed the survival is checked
+// against Γ(k, y)/Γ(k), Γ(k, y) = ∫_y^∞ t^(k-1)·e^(-t) dt by gonum's
+// Gauss–Legendre quadrature (integrate/quad.Fixed) and Γ(k) by math.Gamma.
+func TestNewGammaDomain(t *testing.T) {
+	bad := []struct {
+		shape, rate float64
+		param       string
+	}{
+		{5e-324, 1, "shape"},
+		{1e-300, 1, "shape"},
+		{1e-15, 1, "shape"},
+		{dist.MinGammaShape * 0.999, 1, "shape"},
+		{dist.MaxGammaShape * 1.001, 1, "shape"},
+		{math.Inf(1), 1, "shape"},
+		{math.NaN(), 1, "shape"},
+		{0, 1, "shape"},
+		{1, 0, "rate"},
+		{1, math.Inf(1), "rate"},
+		{1, 1e-200, "rate"}, // variance 1e400 overflows
+		{1, 1e200, "rate"},  // variance 1e-400 underflows to 0
+	}
+	for _, tc := range bad {
+		_, err := dist.NewGamma(tc.shape, tc.rate)
+		var pe *dist.ParamError
+		require.True(t, errors.As(err, &pe), "NewGamma(%v, %v): %v", tc.shape, tc.rate, err)
+		assert.Equal(t, tc.param, pe.Param, "NewGamma(%v, %v)", tc.shape, tc.rate)
+		assert.ErrorIs(t, err, dist.ErrParam)
+	}
+	k := dist.MinGammaShape
+	g, err := dist.NewGamma(k, 1)
+	require.NoError(t, err)
+	prev := 0.0
+	for x := 1e-300; x < 100; x *= 10 {
+		f, s := g.CDF(x), g.Survival(x)
+		require.LessOrEqual(t, f, 1.0, "CDF(%g)", x)
+		require.GreaterOrEqual(t, f, prev, "CDF(%g) decreases", x)
+		assert.InDelta(t, 1, f+s, 2e-15, "CDF + Survival at %g", x) // a few ulps of each
+		prev = f
+	}
+	for _, y := range []float64{0.5, 1, 3} {
+		tail := quad.Fixed(func(t float64) float64 { return math.Pow(t, k-1) * math.Exp(-t) }, y, y+60, 400, quad.Legendre{}, 0)
+		want := tail / math.Gamma(k)
+		assert.InDelta(t, 1, g.Survival(y)/want, 1e-12, "Survival(%g)", y)
+	}
+	_, err = dist.NewGamma(dist.MaxGammaShape, 1)
+	require.NoError(t, err)
 }

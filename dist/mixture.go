@@ -28,16 +28,15 @@ func Mixture(weights []float64, laws []Law) (Law, error) {
 		return nil, paramErr(fn, "weights", fmt.Sprintf("len %d", len(weights)), fmt.Sprintf("must have the length of laws (%d)", len(laws)))
 	}
 	m := mixture{}
-	sum := 0.0
 	allDiscrete, allDensity := true, true
+	sum, err := probSum(fn, "weights", weights)
+	if err != nil {
+		return nil, err
+	}
 	for i, w := range weights {
-		if !finite(w) || w < 0 {
-			return nil, paramErr(fn, fmt.Sprintf("weights[%d]", i), w, "must be finite and >= 0")
-		}
 		if laws[i] == nil {
 			return nil, paramErr(fn, fmt.Sprintf("laws[%d]", i), nil, "must not be nil")
 		}
-		sum += w
 		if w == 0 {
 			continue
 		}
@@ -50,12 +49,12 @@ func Mixture(weights []float64, laws []Law) (Law, error) {
 			}
 		}
 	}
-	if math.Abs(sum-1) > ProbSumTolerance {
-		return nil, paramErr(fn, "weights", fmt.Sprintf("sum %.17g", sum), fmt.Sprintf("must sum to 1 within %g", ProbSumTolerance))
-	}
+	var total compSum
 	for i := range m.weights {
 		m.weights[i] /= sum
+		total.add(m.weights[i])
 	}
+	m.total = total.value()
 	if len(m.laws) == 1 {
 		return m.laws[0], nil
 	}
@@ -74,11 +73,12 @@ func Mixture(weights []float64, laws []Law) (Law, error) {
 		m.lo, m.hi = math.Min(m.lo, lo), math.Max(m.hi, hi)
 	}
 	m.cum = make([]float64, len(m.weights))
-	c := 0.0
+	var c compSum
 	for i, w := range m.weights {
-		c += w
-		m.cum[i] = c
+		c.add(w)
+		m.cum[i] = c.value() / m.total
 	}
+	m.cum[len(m.cum)-1] = 1
 	if allDensity {
 		return mixtureDensity{m}, nil
 	}
@@ -91,7 +91,8 @@ func Mixture(weights []float64, laws []Law) (Law, error) {
 type mixture struct {
 	weights []float64
 	laws    []Law
-	cum     []float64
+	cum     []float64 // cumulative weights, the last 1
+	total   float64   // the weights' compensated sum (1 to rounding): CDF and Survival divide by it, so all components at 1 give exactly 1
 	lo, hi  float64
 }
 
@@ -100,26 +101,30 @@ func (m mixture) Components() (weights []float64, laws []Law) {
 	return append([]float64(nil), m.weights...), append([]Law(nil), m.laws...)
 }
 
+// CDF returns Σ w_i·F_i(x), compensated, divided by the weights' own
+// compensated sum: 1 exactly where every component's CDF is 1.
 func (m mixture) CDF(x float64) float64 {
-	if math.IsNaN(x) {
-		return x
+	if v, ok := edgeCDF(x, m.lo, m.hi); ok {
+		return v
 	}
-	s := 0.0
+	var s compSum
 	for i, l := range m.laws {
-		s += m.weights[i] * l.CDF(x)
+		s.add(m.weights[i] * l.CDF(x))
 	}
-	return math.Min(s, 1)
+	return math.Min(s.value()/m.total, 1)
 }
 
+// Survival returns Σ w_i·S_i(x), each tail from its own components, like
+// CDF.
 func (m mixture) Survival(x float64) float64 {
-	if math.IsNaN(x) {
-		return x
+	if v, ok := edgeSurvival(x, m.lo, m.hi); ok {
+		return v
 	}
-	s := 0.0
+	var s compSum
 	for i, l := range m.laws {
-		s += m.weights[i] * l.Survival(x)
+		s.add(m.weights[i] * l.Survival(x))
 	}
-	return math.Min(s, 1)
+	return math.Min(s.value()/m.total, 1)
 }
 
 func (m mixture) Quantile(p float64) float64      { return quantileByInversion(m, p) }

@@ -13,7 +13,9 @@ import (
 // mean and variance exact, Σ p_i and Σ p_i(1-p_i). It embeds the
 // dist.Discrete that holds the probabilities, so it implements dist.Law,
 // dist.Atomic and dist.CharFunc, and reports its error as dist.Estimated.
-// Count values are immutable and safe for concurrent use.
+// Count values are immutable and safe for concurrent use. The zero Count is
+// not a valid law: its numerical methods return NaN, like the zero
+// dist.Discrete it embeds, and N returns 0.
 type Count struct {
 	dist.Discrete
 	n              int64
@@ -171,20 +173,36 @@ func newCount(fn string, terms []binom, total int64) (Count, error) {
 func (c Count) N() int64 { return c.n }
 
 // Mean returns Σ n_i·p_i exactly (not the sum over the stored atoms).
-func (c Count) Mean() float64 { return c.mean }
+func (c Count) Mean() float64 {
+	if c.Len() == 0 {
+		return math.NaN()
+	}
+	return c.mean
+}
 
 // Variance returns Σ n_i·p_i·(1-p_i).
-func (c Count) Variance() float64 { return c.variance }
+func (c Count) Variance() float64 {
+	if c.Len() == 0 {
+		return math.NaN()
+	}
+	return c.variance
+}
 
 // Accuracy reports the relative error of the probabilities (each atom's
 // mass, and so the tails summed from each end) and the method.
 func (c Count) Accuracy() dist.Accuracy {
+	if c.Len() == 0 {
+		return dist.Accuracy{CDFAbs: math.NaN(), SurvivalRel: math.NaN(), TailFloor: math.NaN(), Method: "zero Count"}
+	}
 	return dist.Accuracy{CDFAbs: c.rel, SurvivalRel: c.rel, TailFloor: 1e-300, Method: c.method}
 }
 
 // String prints the law compactly, e.g.
 // "Count of 1000 nodes: mean=12.5, sd=3.4, 5–95%=[7, 18]".
 func (c Count) String() string {
+	if c.Len() == 0 {
+		return "zero Count"
+	}
 	return fmt.Sprintf("Count of %d nodes: %s", c.n, summary(c))
 }
 

@@ -27,7 +27,10 @@ import (
 //
 // Special values follow dist.Law: NaN in gives NaN out; Quantile and
 // UpperQuantile return NaN outside [0, 1] and the ends of the support at
-// 0 and 1.
+// 0 and 1. The zero Statistic is not a valid law (build one with Max, Min,
+// Kth or their group forms): its numerical methods return NaN (Support
+// NaN, NaN), Rank and Count 0, Atoms and Groups nil; none panics, as for
+// the zero values of dist and energy.
 type Statistic struct{ c *core }
 
 type kind int
@@ -336,12 +339,18 @@ func (c *core) findAtoms() {
 
 // CDF returns P(X <= x).
 func (s Statistic) CDF(x float64) float64 {
+	if s.c == nil {
+		return math.NaN()
+	}
 	cdf, _ := s.c.eval(x, false)
 	return cdf
 }
 
 // Survival returns P(X > x), computed directly (never as 1 - CDF).
 func (s Statistic) Survival(x float64) float64 {
+	if s.c == nil {
+		return math.NaN()
+	}
 	_, sf := s.c.eval(x, false)
 	return sf
 }
@@ -349,7 +358,7 @@ func (s Statistic) Survival(x float64) float64 {
 // Quantile returns inf{x : CDF(x) >= p}; NaN for p outside [0, 1].
 func (s Statistic) Quantile(p float64) float64 {
 	switch {
-	case !(p >= 0 && p <= 1):
+	case !(p >= 0 && p <= 1) || s.c == nil:
 		return math.NaN()
 	case p == 0:
 		return s.c.lo
@@ -363,7 +372,7 @@ func (s Statistic) Quantile(p float64) float64 {
 // NaN for q outside [0, 1].
 func (s Statistic) UpperQuantile(q float64) float64 {
 	switch {
-	case !(q >= 0 && q <= 1):
+	case !(q >= 0 && q <= 1) || s.c == nil:
 		return math.NaN()
 	case q == 1:
 		return s.c.lo
@@ -376,21 +385,44 @@ func (s Statistic) UpperQuantile(q float64) float64 {
 // Support returns the smallest closed interval holding all the mass: for
 // the k-th smallest, the k-th smallest of the parents' lower (upper) ends
 // counted with multiplicity.
-func (s Statistic) Support() (lo, hi float64) { return s.c.lo, s.c.hi }
+func (s Statistic) Support() (lo, hi float64) {
+	if s.c == nil {
+		return math.NaN(), math.NaN()
+	}
+	return s.c.lo, s.c.hi
+}
 
 // Atoms lists the point masses, sorted by value: P(X_(k) = v) at each atom v
 // of a parent, where it is not zero in float64.
-func (s Statistic) Atoms() []dist.Atom { return append([]dist.Atom(nil), s.c.atoms...) }
+func (s Statistic) Atoms() []dist.Atom {
+	if s.c == nil {
+		return nil
+	}
+	return append([]dist.Atom(nil), s.c.atoms...)
+}
 
 // Rank returns k: 1 for the minimum, Count() for the maximum.
-func (s Statistic) Rank() int64 { return s.c.k }
+func (s Statistic) Rank() int64 {
+	if s.c == nil {
+		return 0
+	}
+	return s.c.k
+}
 
 // Count returns the total number of nodes n.
-func (s Statistic) Count() int64 { return s.c.n }
+func (s Statistic) Count() int64 {
+	if s.c == nil {
+		return 0
+	}
+	return s.c.n
+}
 
 // Groups returns the groups the statistic was built from (one for the
 // i.i.d. forms), as a fresh slice.
 func (s Statistic) Groups() []Group {
+	if s.c == nil {
+		return nil
+	}
 	out := make([]Group, len(s.c.groups))
 	for i, g := range s.c.groups {
 		out[i] = Group{Law: g.law, Count: g.n}
@@ -615,6 +647,9 @@ func widen(h func(float64) float64, a, b float64) (float64, float64, float64, fl
 // cost of min(k, n-k+1) + #groups parent quantile calls.
 func (s Statistic) Rand(r *rand.Rand) float64 {
 	c := s.c
+	if c == nil {
+		return math.NaN()
+	}
 	switch c.kind {
 	case kindMax:
 		x := math.Inf(-1)
@@ -706,15 +741,28 @@ func (c *core) randMerge(r *rand.Rand) float64 {
 // by adaptive composite Gauss–Legendre quadrature between the quantiles at
 // 1e-20 and 1 - 1e-20, split at every atom. It is +Inf, -Inf or NaN when a
 // parent's mean is not finite in the direction that matters.
-func (s Statistic) Mean() float64 { return s.c.moments().mean }
+func (s Statistic) Mean() float64 {
+	if s.c == nil {
+		return math.NaN()
+	}
+	return s.c.moments().mean
+}
 
 // Variance returns Var[X], computed with Mean; +Inf when a parent's
 // variance is infinite.
-func (s Statistic) Variance() float64 { return s.c.moments().variance }
+func (s Statistic) Variance() float64 {
+	if s.c == nil {
+		return math.NaN()
+	}
+	return s.c.moments().variance
+}
 
 // MomentError returns the estimated absolute errors of Mean and Variance
 // (the quadrature's own estimate plus a bound on the truncated tails).
 func (s Statistic) MomentError() (mean, variance float64) {
+	if s.c == nil {
+		return math.NaN(), math.NaN()
+	}
 	m := s.c.moments()
 	return m.meanErr, m.varErr
 }
@@ -729,6 +777,9 @@ func (s Statistic) MomentError() (mean, variance float64) {
 // 1e-11). A parent's absolute CDF error a is carried as n·a.
 func (s Statistic) Accuracy() dist.Accuracy {
 	c := s.c
+	if c == nil {
+		return dist.Accuracy{CDFAbs: math.NaN(), SurvivalRel: math.NaN(), TailFloor: math.NaN(), Method: "zero Statistic"}
+	}
 	r, abs, floor := 64*epsilon, 0.0, 1e-300
 	for _, g := range c.groups {
 		if e, ok := g.law.(dist.Estimated); ok {
@@ -759,6 +810,9 @@ func (s Statistic) Accuracy() dist.Accuracy {
 // "Max of 1000 × Normal(μ=0, σ=1): mean=3.24, sd=0.37, 5–95%=[2.7, 3.9]".
 func (s Statistic) String() string {
 	c := s.c
+	if c == nil {
+		return "zero Statistic"
+	}
 	var what string
 	switch c.kind {
 	case kindMax:

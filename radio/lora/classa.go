@@ -111,19 +111,27 @@ func DownlinkWindows(upReceived, answers, inRX1, rx1Received, rx2Received float6
 	return Windows{RX1: p1 * inRX1, RX2: p2 * (1 - inRX1)}, nil
 }
 
+// MaxAttempts caps TruncatedGeometric's m (one atom, 16 bytes, per
+// attempt). LoRaWAN's NbTrans is at most 15 (LoRaWAN 1.0.3, LinkADRReq);
+// the cap leaves room for other retry rules while keeping the law small
+// (m = MaxInt used to panic, m = 1e9 to allocate 16 GB).
+const MaxAttempts = 1 << 16
+
 // TruncatedGeometric returns the law of the number of transmissions of a
 // frame that is repeated until it succeeds (probability q per attempt,
 // independently) or m attempts are spent:
 //
 //	P(N = k) = (1 − q)^(k−1)·q  for k < m,   P(N = m) = (1 − q)^(m−1)
 //
-// with mean (1 − (1 − q)^m)/q. q must be in [0, 1] and m ≥ 1.
+// with mean (1 − (1 − q)^m)/q. q must be in [0, 1] and m in
+// [1, MaxAttempts]; attempts whose probability underflows to 0 are left
+// out.
 func TruncatedGeometric(q float64, m int) (dist.Discrete, error) {
 	if !(q >= 0 && q <= 1) {
 		return dist.Discrete{}, paramErr("TruncatedGeometric", "q", q, "must be a probability in [0, 1]")
 	}
-	if m < 1 {
-		return dist.Discrete{}, paramErr("TruncatedGeometric", "m", m, "must be >= 1")
+	if m < 1 || m > MaxAttempts {
+		return dist.Discrete{}, paramErr("TruncatedGeometric", "m", m, fmt.Sprintf("must be in [1, MaxAttempts = %d]", MaxAttempts))
 	}
 	vals := make([]float64, m)
 	probs := make([]float64, m)

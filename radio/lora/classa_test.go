@@ -43,6 +43,25 @@ func TestTruncatedGeometric(t *testing.T) {
 	assert.ErrorIs(t, err, lora.ErrParam)
 }
 
+// TestTruncatedGeometricCap: issue 13. m = MaxInt panicked (make with a
+// negative size after the product overflowed) and m = 1e9 allocated 16 GB;
+// m is now capped at MaxAttempts, named in the error. At the cap the law is
+// still built, its attempts beyond the underflow of (1 − q)^(k−1) left out;
+// oracle: the closed-form mean (1 − (1 − q)^m)/q.
+func TestTruncatedGeometricCap(t *testing.T) {
+	for _, m := range []int{math.MaxInt, 1e9, lora.MaxAttempts + 1} {
+		_, err := lora.TruncatedGeometric(0.5, m)
+		require.ErrorIs(t, err, lora.ErrParam, "m = %d", m)
+		assert.Contains(t, err.Error(), "MaxAttempts", "m = %d", m)
+	}
+	for _, q := range []float64{0.5, 1e-4} {
+		d, err := lora.TruncatedGeometric(q, lora.MaxAttempts)
+		require.NoError(t, err)
+		want := -math.Expm1(float64(lora.MaxAttempts)*math.Log1p(-q)) / q
+		assert.InEpsilon(t, want, d.Mean(), 1e-12, "q = %g", q)
+	}
+}
+
 func TestDownlinkWindows(t *testing.T) {
 	w, err := lora.DownlinkWindows(0.9, 1, 0.8, 0.95, 0.99)
 	require.NoError(t, err)

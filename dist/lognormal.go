@@ -18,7 +18,10 @@ type LogNormal struct {
 
 // NewLogNormal returns the log-normal law whose logarithm has mean mu and
 // standard deviation sigma (the median is exp(mu), in the unit of the
-// variable). mu must be finite, sigma finite and > 0.
+// variable). mu must be finite, sigma finite and > 0, and the mean
+// exp(μ + σ²/2) and variance (exp(σ²) - 1)·exp(2μ + σ²) finite and > 0 in
+// float64 (μ = ±1e308 overflowed to NaN moments): roughly |μ| + σ² below
+// 354.
 func NewLogNormal(mu, sigma float64) (LogNormal, error) {
 	if !finite(mu) {
 		return LogNormal{}, paramErr("NewLogNormal", "mu", mu, "must be finite")
@@ -26,7 +29,11 @@ func NewLogNormal(mu, sigma float64) (LogNormal, error) {
 	if !finite(sigma) || sigma <= 0 {
 		return LogNormal{}, paramErr("NewLogNormal", "sigma", sigma, "must be finite and > 0")
 	}
-	return LogNormal{mu: mu, sigma: sigma}, nil
+	l := LogNormal{mu: mu, sigma: sigma}
+	if m, v := l.Mean(), l.Variance(); !finite(m) || !finite(v) || m <= 0 || v <= 0 {
+		return LogNormal{}, paramErr("NewLogNormal", "mu", mu, fmt.Sprintf("must give a finite, positive mean and variance with sigma = %v (mean %v, variance %v)", sigma, m, v))
+	}
+	return l, nil
 }
 
 // MustLogNormal is NewLogNormal that panics on bad input; for examples and tests.

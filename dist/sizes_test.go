@@ -98,3 +98,20 @@ func TestIntervalsTinyLevel(t *testing.T) {
 	assert.LessOrEqual(t, lo, hi)
 	assert.InDelta(t, 0, lo/2+hi/2, 1e-2, "mode of N(0, 1)")
 }
+
+// TestLogNormalOverflow: issue 13. NewLogNormal accepted μ = ±1e308,
+// whose mean exp(μ + σ²/2) and variance overflow or underflow (NaN and 0
+// moments downstream); it now requires both finite and > 0, naming mu.
+// Oracle: the closed forms of the moments (any probability text).
+func TestLogNormalOverflow(t *testing.T) {
+	for _, c := range []struct{ mu, sigma float64 }{{1e308, 1}, {-1e308, 1}, {400, 1}, {-800, 1}, {0, 30}} {
+		_, err := dist.NewLogNormal(c.mu, c.sigma)
+		var pe *dist.ParamError
+		require.True(t, errors.As(err, &pe), "NewLogNormal(%g, %g): %v", c.mu, c.sigma, err)
+		assert.Equal(t, "mu", pe.Param)
+	}
+	l, err := dist.NewLogNormal(300, 2)
+	require.NoError(t, err)
+	assert.InEpsilon(t, math.Exp(302), l.Mean(), 1e-13)
+	assert.InEpsilon(t, math.Expm1(4)*math.Exp(604), l.Variance(), 1e-13)
+}

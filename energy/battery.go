@@ -83,8 +83,23 @@ func NewBattery(spec BatterySpec) (Battery, error) {
 	if spec.TemperatureDerating == 0 {
 		spec.TemperatureDerating = 1
 	}
-	return Battery{spec: spec}, nil
+	b := Battery{spec: spec}
+	if e := b.UsableEnergy(); !(e > 0 && e <= MaxBatteryEnergy) {
+		name, v := "Charge", spec.Charge
+		if spec.Energy != 0 {
+			name, v = "Energy", spec.Energy
+		}
+		return Battery{}, paramErr(fn, field(name), v,
+			fmt.Sprintf("gives a usable energy of %g J: must be > 0 and at most MaxBatteryEnergy = %g J", e, MaxBatteryEnergy))
+	}
+	return b, nil
 }
+
+// MaxBatteryEnergy caps a battery's usable energy (J): 10^12 J (about 280
+// MWh) is far beyond any sensor node's cell, and keeps the lifetimes and
+// charges derived from it far from overflow (a charge of 1e308 C used to
+// give NaN lifetimes).
+const MaxBatteryEnergy = 1e12
 
 // MustBattery is NewBattery that panics on bad input; for examples and tests.
 func MustBattery(spec BatterySpec) Battery {

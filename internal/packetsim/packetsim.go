@@ -179,6 +179,9 @@ func (p *physics) adr(env scenario.Environment, loss float64) (dr, txp int, ok b
 // Place draws the position, shadowing and ADR setting of every node of s,
 // placing out-of-reach nodes again. It also returns the redraws per group.
 func Place(s scenario.Scenario, r *rand.Rand) ([]Node, []int, error) {
+	if r == nil {
+		return nil, nil, fmt.Errorf("%w: r = nil: a random source is required", ErrParam)
+	}
 	p, err := newPhysics(s)
 	if err != nil {
 		return nil, nil, err
@@ -218,11 +221,25 @@ func (p *physics) place(s scenario.Scenario, r *rand.Rand) ([]Node, []int, error
 	return nodes, redraws, nil
 }
 
+// MaxPlayedCycles caps the reports one Play simulates: every node's cycles
+// from time 0 to opt.Start plus its longest period and 90 s. A larger
+// Start (1e12 s used to run without end) or fleet is refused before
+// anything is played.
+const MaxPlayedCycles = 10_000_000
+
 // Play places the nodes of s and plays their reports until every node has
-// completed one cycle starting at or after opt.Start, all from r.
+// completed one cycle starting at or after opt.Start, all from r (not nil).
+// opt.Start must be finite, >= 0 and small enough that at most
+// MaxPlayedCycles reports are played.
 func Play(s scenario.Scenario, opt Options, r *rand.Rand) (Outcome, error) {
 	if !(opt.Start >= 0) || math.IsInf(opt.Start, 0) {
 		return Outcome{}, fmt.Errorf("%w: Options.Start = %g: must be finite and >= 0 s", ErrParam, opt.Start)
+	}
+	if r == nil {
+		return Outcome{}, fmt.Errorf("%w: r = nil: a random source is required", ErrParam)
+	}
+	if n := playedCycles(s, opt.Start); !(n <= MaxPlayedCycles) {
+		return Outcome{}, fmt.Errorf("%w: Options.Start = %g s: the play would simulate about %.3g reports, more than MaxPlayedCycles = %d", ErrParam, opt.Start, n, MaxPlayedCycles)
 	}
 	p, err := newPhysics(s)
 	if err != nil {
@@ -244,6 +261,26 @@ func Play(s scenario.Scenario, opt Options, r *rand.Rand) (Outcome, error) {
 		}
 	}
 	return out, nil
+}
+
+// playedCycles returns about how many reports a play up to start
+// simulates (see run's horizon): Σ_g nodes_g·horizon/(interval_g − jitter_g),
+// +Inf when a period can be 0 or less.
+func playedCycles(s scenario.Scenario, start float64) float64 {
+	longest := 0.0
+	for _, g := range s.Groups {
+		longest = math.Max(longest, g.Interval+g.Jitter)
+	}
+	horizon := start + longest + 90
+	n := 0.0
+	for _, g := range s.Groups {
+		shortest := g.Interval - g.Jitter
+		if !(shortest > 0) {
+			return math.Inf(1)
+		}
+		n += float64(g.Nodes) * (horizon/shortest + 1)
+	}
+	return n
 }
 
 // The play is a discrete-event simulation over frame starts, frame ends and

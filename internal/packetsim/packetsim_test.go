@@ -108,6 +108,17 @@ func TestPlayRejectsBadOptions(t *testing.T) {
 		_, err := packetsim.Play(s, packetsim.Options{Start: start}, r)
 		require.ErrorIs(t, err, packetsim.ErrParam)
 	}
+	// issue 13: a start of 1e12 s ran without end, a nil source panicked;
+	// both are refused before anything is played.
+	for _, start := range []float64{1e12, 1e300, math.MaxFloat64} {
+		_, err := packetsim.Play(s, packetsim.Options{Start: start}, r)
+		require.ErrorIs(t, err, packetsim.ErrParam)
+		assert.Contains(t, err.Error(), "MaxPlayedCycles")
+	}
+	_, err := packetsim.Play(s, packetsim.Options{Start: 10}, nil)
+	require.ErrorIs(t, err, packetsim.ErrParam)
+	_, _, err = packetsim.Place(s, nil)
+	require.ErrorIs(t, err, packetsim.ErrParam)
 	// A group that cannot be reached at all is reported, not looped on.
 	s2, err := s.WithCounts([]int{1, 1, 1, 1})
 	require.NoError(t, err)

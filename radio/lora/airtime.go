@@ -22,8 +22,7 @@ const (
 )
 
 // LowDataRateSymbolTime is the symbol time above which LowDataRateAuto turns
-// the low-data-rate optimisation on, in seconds (16 ms; Semtech SX1276 data
-// sheet, common practice).
+// the low-data-rate optimisation on, in seconds (16 ms; common practice).
 const LowDataRateSymbolTime = 16e-3
 
 // MaxPHYPayload is the largest LoRa PHY payload, in bytes (the 8-bit length
@@ -122,7 +121,7 @@ func (p PHY) PreambleTime() float64 {
 //
 // with CR the coding-rate denominator (5 … 8), CRC = 1 when the payload CRC
 // is on, IH = 1 for an implicit header and DE = 1 with low-data-rate
-// optimisation (Semtech SX1276 data sheet §4.1.1.6; Augustin et al.,
+// optimisation (Augustin, Yi, Clausen and Townsley, "A Study of LoRa",
 // Sensors 16(9):1466, 2016, eq. 3–4).
 func (p PHY) PayloadSymbols(bytes int) (int, error) {
 	if err := p.Validate(); err != nil {

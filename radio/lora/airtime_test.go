@@ -11,8 +11,9 @@ import (
 )
 
 // TestAirtime checks PHY.Airtime against values hand-computed from the
-// published formula (Semtech SX1276 data sheet §4.1.1.6; Augustin et al.,
-// "A Study of LoRa", Sensors 16(9):1466, 2016, eq. 3–4):
+// published formula (Augustin, Yi, Clausen and Townsley, "A Study of LoRa:
+// Long Range & Low Power Networks for the Internet of Things", Sensors
+// 16(9):1466, 2016, eq. 3–4):
 //
 //	T = (n_preamble + 4.25 + 8 + max(⌈(8PL − 4SF + 28 + 16CRC − 20IH)/(4(SF − 2DE))⌉·CR, 0)) · 2^SF/BW
 //
@@ -60,8 +61,9 @@ func TestAirtime(t *testing.T) {
 	}
 }
 
-// TestLowDataRateAuto checks the 16 ms rule (Semtech SX1276 data sheet,
-// common practice): on for SF11 and SF12 at 125 kHz and SF12 at 250 kHz only.
+// TestLowDataRateAuto checks the 16 ms rule (common practice; the
+// optimisation is the DE term of Augustin et al., Sensors 16(9):1466, 2016,
+// eq. 4): on for SF11 and SF12 at 125 kHz and SF12 at 250 kHz only.
 func TestLowDataRateAuto(t *testing.T) {
 	for _, bw := range []float64{125e3, 250e3, 500e3} {
 		for sf := 7; sf <= 12; sf++ {

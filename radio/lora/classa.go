@@ -25,8 +25,8 @@ type Currents struct {
 	Floor   float64     // current between cycles (sleep), A
 }
 
-// TypicalCurrents returns an example set for an SX1276-class radio with a
-// low-power microcontroller at 3.3 V, for the EU863-870 transmit powers
+// TypicalCurrents returns an example set for a LoRa transceiver of the
+// common sub-GHz class with a low-power microcontroller at 3.3 V, for the EU863-870 transmit powers
 // (16 … 2 dBm). Typical values, from memory; use your radio's data sheet:
 // transmit 90 mA at 16 dBm falling to 20 mA at 2 dBm, receive 12 mA, wait
 // and floor 2 µA (microcontroller asleep with its timer running, radio

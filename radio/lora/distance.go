@@ -20,23 +20,28 @@ type Annulus struct {
 	inner, outer float64
 }
 
+// MaxRadius caps the radii of NewDisk and NewAnnulus (m): 10^8 m is beyond
+// any terrestrial link, and above about 1e154 m the squared radii the law
+// is made of overflow (its CDF and moments became NaN).
+const MaxRadius = 1e8
+
 // NewDisk returns the distance law of a point uniform over a disk of the
-// given radius (m, finite and > 0).
+// given radius (m, > 0 and at most MaxRadius).
 func NewDisk(radius float64) (Annulus, error) {
-	if !finite(radius) || radius <= 0 {
-		return Annulus{}, paramErr("NewDisk", "radius", radius, "must be finite and > 0 m")
+	if !(radius > 0 && radius <= MaxRadius) {
+		return Annulus{}, paramErr("NewDisk", "radius", radius, fmt.Sprintf("must be > 0 m and at most MaxRadius = %g m", MaxRadius))
 	}
 	return Annulus{outer: radius}, nil
 }
 
 // NewAnnulus returns the distance law of a point uniform over the annulus
-// between inner and outer radii (m): 0 ≤ inner < outer, both finite.
+// between inner and outer radii (m): 0 ≤ inner < outer ≤ MaxRadius.
 func NewAnnulus(inner, outer float64) (Annulus, error) {
-	if !finite(inner) || inner < 0 {
-		return Annulus{}, paramErr("NewAnnulus", "inner", inner, "must be finite and >= 0 m")
+	if !(inner >= 0 && inner < MaxRadius) {
+		return Annulus{}, paramErr("NewAnnulus", "inner", inner, fmt.Sprintf("must be >= 0 m and below MaxRadius = %g m", MaxRadius))
 	}
-	if !finite(outer) || outer <= inner {
-		return Annulus{}, paramErr("NewAnnulus", "outer", outer, fmt.Sprintf("must be finite and > inner (%g m)", inner))
+	if !(outer > inner && outer <= MaxRadius) {
+		return Annulus{}, paramErr("NewAnnulus", "outer", outer, fmt.Sprintf("must be > inner (%g m) and at most MaxRadius = %g m", inner, MaxRadius))
 	}
 	return Annulus{inner: inner, outer: outer}, nil
 }

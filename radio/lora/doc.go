@@ -6,8 +6,9 @@
 //
 // PHY describes a LoRa frame (SF, bandwidth, coding rate, preamble,
 // header, CRC, low-data-rate optimisation) and PHY.Airtime gives its time
-// on air from the published formula (Semtech SX1276 data sheet §4.1.1.6;
-// Augustin et al., Sensors 16(9):1466, 2016). PHYPayloadBytes adds the
+// on air from the published formula (Augustin, Yi, Clausen and Townsley,
+// "A Study of LoRa: Long Range & Low Power Networks for the Internet of
+// Things", Sensors 16(9):1466, 2016, eq. 3–4). PHYPayloadBytes adds the
 // LoRaWAN 1.0.3 MAC framing (13 bytes plus FOpts); UplinkPHY and
 // DownlinkPHY give the LoRaWAN frame settings (uplinks carry a payload CRC,
 // downlinks do not).

@@ -16,7 +16,9 @@ const ThermalNoise = -174.0
 
 // SNRThreshold returns the lowest SNR at which a LoRa receiver demodulates
 // spreading factor sf, in dB: −7.5 dB at SF7, 2.5 dB lower for each step, to
-// −20 dB at SF12 (Semtech SX1276 data sheet table 13; common practice).
+// −20 dB at SF12 (Augustin et al., "A Study of LoRa", Sensors
+// 16(9):1466, 2016, table of SNR limits per SF, from memory; common
+// practice).
 func SNRThreshold(sf int) (float64, error) {
 	if sf < 7 || sf > 12 {
 		return 0, paramErr("SNRThreshold", "sf", sf, "must be 7 … 12")

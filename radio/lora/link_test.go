@@ -14,12 +14,12 @@ import (
 	"github.com/joulelaw/joulelaw/radio/lora"
 )
 
-// TestSensitivity checks the floor formula against the Semtech SX1276 data
-// sheet (table of receiver sensitivities, from memory: about −137 dBm at
-// SF12/125 kHz and −123 dBm at SF7/125 kHz, with the 6 dB noise figure
-// common practice assumes) within 0.5 dB at SF12 and 2 dB at SF7 (the data
-// sheet rounds and measures; the formula is idealised), and its own
-// arithmetic exactly.
+// TestSensitivity checks the floor formula against the receiver
+// sensitivities commonly published for LoRa transceivers (common practice,
+// from memory: about −137 dBm at SF12/125 kHz and −123 dBm at SF7/125 kHz,
+// with the 6 dB noise figure common practice assumes) within 0.5 dB at SF12
+// and 2 dB at SF7 (published figures are rounded and measured; the formula
+// is idealised), and its own arithmetic exactly.
 func TestSensitivity(t *testing.T) {
 	s, err := lora.Sensitivity(12, 125e3, 6)
 	require.NoError(t, err)

@@ -22,12 +22,15 @@ type Gamma struct {
 // Limits of NewGamma's shape. Below MinGammaShape more than half the mass
 // lies below the smallest normal float64 (the median is about 2^(-1/k)) and
 // the incomplete gamma functions lose their last digits (the CDF exceeded 1
-// at k = 1e-15); above MaxGammaShape the CDF's series needs more than 10^7
-// terms, and the rounding of x alone costs a relative 1e-16·√k (1e-10 at
-// the cap, measured against the Poisson–gamma relation).
+// at k = 1e-15); above MaxGammaShape the CDF's series near the mean would
+// need more than its 10^8 terms (about √(78k)) and be cut short. The
+// rounding of x alone costs a relative 1e-16·√k: 1e-10 at k = 10^12,
+// measured against the Poisson–gamma relation, 1e-9 at the cap. (SumIID of
+// a gamma multiplies its shape by k, so a k-fold sum beyond the cap is an
+// error too.)
 const (
 	MinGammaShape = 1e-3
-	MaxGammaShape = 1e12
+	MaxGammaShape = 1e14
 )
 
 // NewGamma returns the gamma law with the given shape (dimensionless, in

@@ -6,6 +6,7 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
@@ -42,5 +43,29 @@ func TestOverflowGuards(t *testing.T) {
 		require.ErrorIs(t, err, energy.ErrParam, "d = %g", d)
 		assert.Contains(t, err.Error(), "d = ", "d = %g", d)
 		assert.NotContains(t, err.Error(), "-9223372036854775808", "d = %g", d)
+	}
+}
+
+// TestLiftedGammaLifetime: issue 13. gonum's gamma quantile is NaN below
+// p ≈ 1e-20, so a cycle whose step lasted a gonum gamma lifted by
+// FromDistuv could not be summed and NewLifetime failed; the lifted law now
+// inverts its CDF there. Oracle: the same cycle with this module's
+// closed-form Gamma (k-fold sums of a gamma are gammas; any probability
+// text), within the lattice sum's stated accuracy.
+func TestLiftedGammaLifetime(t *testing.T) {
+	lifted, err := dist.FromDistuv(distuv.Gamma{Alpha: 3, Beta: 30})
+	require.NoError(t, err)
+	cycle := func(d dist.Law) energy.Cycle {
+		st := energy.MustState("tx", dist.MustPointMass(40*energy.MilliAmp), 3.3, d)
+		return energy.MustCycle(st, dist.MustPointMass(60), 1e-6)
+	}
+	native := cycle(dist.MustGamma(3, 30))
+	b := energy.MustBattery(energy.BatterySpec{Energy: 2000 * native.MeanEnergy(), NominalVoltage: 3.6, UsableFraction: 1})
+	want, err := energy.NewLifetime(native, b)
+	require.NoError(t, err)
+	got, err := energy.NewLifetime(cycle(lifted), b)
+	require.NoError(t, err)
+	for _, p := range []float64{0.01, 0.5, 0.99} {
+		assert.InEpsilon(t, want.Quantile(p), got.Quantile(p), 1e-6, "Quantile(%g)", p)
 	}
 }

@@ -46,7 +46,7 @@
 //     while Quantile(CDF(v)) and UpperQuantile(Survival(v)) are v (to ε), not
 //     the next atom.
 //   - mass: the atoms' masses plus the integral of Density sum to 1. The
-//     integral is adaptive Gauss–Legendre quadrature (gonum's nodes) over
+//     integral is the library's adaptive Gauss–Kronrod quadrature (internal/quad) over
 //     pieces cut at quantiles from 1e-12 to 1/2 from both ends and at the
 //     atoms (re-integrated on other splits before a mismatch is reported);
 //     the continuous mass beyond the outer pieces is read from CDF and

@@ -9,11 +9,20 @@
 // error estimate and bisects the worst one until the summed estimate
 // meets the tolerance:
 //
-//	Error = Σ_panels max_j |K15_j − G7_j| <= max(AbsTol, RelTol·max_j |Value_j|)
+//	Error = Σ_panels max_j (|K15_j − G7_j| + R_j) <= max(AbsTol, RelTol·max_j |Value_j|)
 //
 // where K15 and G7 are the Kronrod and Gauss estimates of a panel (for a
-// vector integrand, the largest component's difference). Error is the
-// plain Gauss–Kronrod difference, without QUADPACK's heuristic rescaling
+// vector integrand, the worst component) and R the panel's rounding:
+//
+//	R = 2·ulp(max(|a|, |b|))·Σ_adjacent nodes |f_{i+1} − f_i| + 4ε·h·Σ w_i·|f_i|,
+//
+// the rounding of the abscissae (nodes are known only to an ulp of the
+// panel's ends, which matters for a narrow panel far from 0; the Gauss and
+// Kronrod values share their nodes, so their difference cannot see it)
+// and of the weighted sum. Bisection cannot lower R: a panel whose
+// difference is below 2R is not bisected again, and a target below the
+// summed R is reported with ErrResolution. Error is otherwise the plain
+// Gauss–Kronrod difference, without QUADPACK's heuristic rescaling
 // (200·|K − G|/resasc)^1.5: it is an estimate of the error of the 7-point
 // Gauss rule, so for smooth integrands it overstates the error of the
 // 15-point Kronrod value returned by orders of magnitude; the tests check

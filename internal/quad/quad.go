@@ -73,14 +73,14 @@ type Options struct {
 // Result is an integral with its error estimate.
 type Result struct {
 	Value float64 // the integral, in the integrand's units times x's
-	Error float64 // estimated absolute error (Gauss–Kronrod difference, summed over panels)
+	Error float64 // estimated absolute error (Gauss–Kronrod difference plus rounding terms, summed over panels; see the package doc)
 	Evals int     // integrand evaluations used
 }
 
 // VecResult is a vector of integrals with one error estimate for all.
 type VecResult struct {
 	Value []float64 // the integrals, one per component (the dst passed in)
-	Error float64   // estimated absolute error of every component: Σ over panels of max_j |K15_j − G7_j|
+	Error float64   // estimated absolute error of every component: Σ over panels of the worst component's |K15_j − G7_j| plus rounding terms
 	Evals int       // integrand evaluations used (one evaluation fills all components)
 }
 

@@ -249,13 +249,35 @@ func TestBudgetAndResolution(t *testing.T) {
 		return float64(math.Float64bits(x) & 1)
 	}, 1, 1+8*0x1p-52, Options{AbsTol: 1e-300})
 	assert.ErrorIs(t, err, ErrResolution)
-	// the known limit of every Gauss–Kronrod scheme: a jump between a
-	// panel's end and its outermost node is not seen (K15 = G7), so the
-	// stated error can be 0; the value is still right to rounding here
-	// (∫_0^1 sign(x − 1/3) dx = 1/3, closed form)
+	// a jump between a panel's end and its outermost node is not seen by
+	// K15 − G7; the rounding terms still cover the true error, and a
+	// 1e-300 target is reported out of reach (∫_0^1 sign(x − 1/3) dx =
+	// 1/3, closed form)
 	r, err = Adaptive(func(x float64) float64 { return math.Copysign(1, x-1.0/3) }, 0, 1, Options{AbsTol: 1e-300, MaxEvals: MaxEvalsCap})
+	require.ErrorIs(t, err, ErrResolution)
+	assert.InDelta(t, 1.0/3, r.Value, r.Error)
+	assert.Less(t, r.Error, 1e-14)
+}
+
+// TestAbscissaRounding: a panel 2^−12 wide at x = 10^6 has its nodes only
+// to about 5e-7 of its width (ulp(10^6) = 2^−33 ≈ 1.16e-10); the stated error must
+// still cover the true error of ∫_c^{c+2^−12} e^{(x−c)/s} dx = s·(e⁴ − 1)
+// (closed form; s = 2^−14, x − c exact by Sterbenz's lemma), and the
+// default 1e-12 target is reported out of reach rather than met falsely.
+func TestAbscissaRounding(t *testing.T) {
+	const c, s = 1e6, 0x1p-14
+	f := func(x float64) float64 { return math.Exp((x - c) / s) }
+	want := s * math.Expm1(4)
+	r, err := Adaptive(f, c, c+0x1p-12, Options{})
+	assert.ErrorIs(t, err, ErrResolution)
+	assert.LessOrEqual(t, math.Abs(r.Value-want), r.Error)
+	// no worse than the node jitter allows: 2·ulp·(variation e⁴ − 1) is
+	// 3.8e-6 of the value
+	assert.Less(t, r.Error, 5e-6*want)
+	// at a target the abscissae allow, it converges
+	r, err = Adaptive(f, c, c+0x1p-12, Options{RelTol: 1e-5})
 	require.NoError(t, err)
-	assert.InDelta(t, 1.0/3, r.Value, 4e-16)
+	assert.LessOrEqual(t, math.Abs(r.Value-want), r.Error)
 }
 
 // TestBadInput: every bad parameter returns an error wrapping ErrParam.

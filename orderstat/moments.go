@@ -1,8 +1,11 @@
 package orderstat
 
 import (
+	"errors"
 	"math"
 	"sort"
+
+	"github.com/joulelaw/joulelaw/internal/quad"
 )
 
 // moments holds a law's mean and variance with their estimated errors.
@@ -67,8 +70,8 @@ func (c *core) computeMoments() moments {
 //
 // with c the median (for groups a point between its brackets), over
 // [Q(1e-20), UQ(1e-20)] (for groups, their brackets) split at the atoms and at a
-// few quantiles, by adaptive composite 12-point Gauss–Legendre quadrature
-// (each panel accepted when it agrees with the sum over its halves).
+// few quantiles, by the library's adaptive Gauss–Kronrod quadrature
+// (tailIntegrals).
 func (c *core) quadMoments() moments {
 	q := func(p float64) float64 { return c.quantile(p, 1-p, false) }
 	uq := func(v float64) float64 { return c.quantile(1-v, v, true) }
@@ -129,17 +132,7 @@ func (c *core) quadMoments() moments {
 	if c.kind == kindKth {
 		tol = 1e-11
 	}
-	in := &integrator{eval: func(x float64) (float64, float64) { return c.eval(x, false) }, med: med, width: xhi - xlo, tol0: tol * scale, tol1: tol * scale * scale, r: gl12()}
-	var i0, i1, e0, e1 float64
-	for i := 0; i+1 < len(pts); i++ {
-		a, b := pts[i], pts[i+1]
-		v0, v1 := in.panel(a, b)
-		r0, r1, err0, err1 := in.adapt(a, b, v0, v1, 0)
-		i0 += r0
-		i1 += r1
-		e0 += err0
-		e1 += err1
-	}
+	i0, i1, e0, e1 := tailIntegrals(func(x float64) (float64, float64) { return c.eval(x, false) }, med, scale, pts, tol)
 	// Bounds on what lies beyond [xlo, xhi]: the tail probability times the
 	// tail's decay length (estimated from the quantile at 100 × the level).
 	if len(c.groups) > 1 && c.kind != kindKth {
@@ -171,54 +164,38 @@ func (c *core) quadMoments() moments {
 	}
 }
 
-// maxPanels bounds the work of one moment quadrature: past it, panels are
-// accepted as they are (their disagreement still enters the error
-// estimate). It only binds where rounding of x itself limits the accuracy
-// (a law whose spread is a few million units in the last place of its
-// location).
-const maxPanels = 3000
+// momentEvals bounds the work of one moment quadrature (integrand
+// evaluations, each one CDF and Survival of the statistic): past it, the
+// panels are kept as they are and their error estimate stands. It only
+// binds where rounding of x itself limits the accuracy (a law whose spread
+// is a few million units in the last place of its location).
+const momentEvals = 45000
 
-type integrator struct {
-	eval       func(x float64) (cdf, sf float64)
-	work       int // panels evaluated so far (bounded by maxPanels)
-	med, width float64
-	tol0, tol1 float64
-	r          glRule
-}
-
-// panel returns the 12-point Gauss–Legendre values on [a, b] of
-// ±S or ∓F (the signed contribution to E[X] − c) and of 2|x−c|·(S or F).
-func (in *integrator) panel(a, b float64) (v0, v1 float64) {
-	in.work++
-	mid, half := (a+b)/2, (b-a)/2
-	above := mid >= in.med
-	for i := 0; i < glOrder; i++ {
-		x := mid + half*in.r.x[i]
-		cdf, sf := in.eval(x)
-		if above {
-			v0 += in.r.w[i] * sf
-			v1 += in.r.w[i] * 2 * (x - in.med) * sf
-		} else {
-			v0 -= in.r.w[i] * cdf
-			v1 += in.r.w[i] * 2 * (in.med - x) * cdf
+// tailIntegrals returns
+//
+//	i0 = ∫_{x > c} S(x) dx − ∫_{x < c} F(x) dx
+//	i1 = 2∫_{x > c} (x − c)·S(x) dx + 2∫_{x < c} (c − x)·F(x) dx
+//
+// over [pts[0], pts[len(pts)−1]] (pts sorted, c = med among them or
+// outside, so that no piece straddles it), with the stated errors e0 and
+// e1, aiming at tol·scale and tol·scale², by the library's one adaptive
+// quadrature (internal/quad.BreaksVec; the second integrand divided by
+// scale so that both are in x's units). A budget or resolution that stops
+// short keeps the result with its (larger) stated error; an integrand that
+// is NaN or infinite gives NaN with infinite errors.
+func tailIntegrals(eval func(x float64) (cdf, sf float64), med, scale float64, pts []float64, tol float64) (i0, i1, e0, e1 float64) {
+	f := func(x float64, y []float64) {
+		cdf, sf := eval(x)
+		if x >= med {
+			y[0], y[1] = sf, 2*(x-med)/scale*sf
+			return
 		}
+		y[0], y[1] = -cdf, 2*(med-x)/scale*cdf
 	}
-	return v0 * half, v1 * half
-}
-
-// adapt refines [a, b] (whose whole-panel values are v0, v1) until the
-// halves agree with the whole within the panel's share of the tolerance.
-func (in *integrator) adapt(a, b, v0, v1 float64, depth int) (r0, r1, e0, e1 float64) {
-	m := a + (b-a)/2
-	l0, l1 := in.panel(a, m)
-	h0, h1 := in.panel(m, b)
-	s0, s1 := l0+h0, l1+h1
-	err0, err1 := math.Abs(s0-v0), math.Abs(s1-v1)
-	share := (b - a) / in.width
-	if (err0 <= in.tol0*share && err1 <= in.tol1*share) || depth >= 30 || in.work >= maxPanels || (b-a) <= 1e-13*in.width || m <= a || m >= b {
-		return s0, s1, err0, err1
+	var v [2]float64
+	r, err := quad.BreaksVec(v[:], f, pts, quad.Options{AbsTol: tol * scale, MaxEvals: momentEvals})
+	if errors.Is(err, quad.ErrParam) {
+		return math.NaN(), math.NaN(), math.Inf(1), math.Inf(1)
 	}
-	a0, a1, ae0, ae1 := in.adapt(a, m, l0, l1, depth+1)
-	b0, b1, be0, be1 := in.adapt(m, b, h0, h1, depth+1)
-	return a0 + b0, a1 + b1, ae0 + be0, ae1 + be1
+	return v[0], v[1] * scale, r.Error, r.Error * scale
 }

@@ -311,7 +311,8 @@ func (rl *rangeLaw) quantile(p, q float64, upper bool) float64 {
 func (rl *rangeLaw) Mean() float64 { return rl.moments().mean }
 
 // Variance returns Var[R] = 2∫ r·P(R > r) dr − E[R]², by adaptive
-// Gauss–Legendre quadrature up to the range's upper 1e-20 quantile.
+// Gauss–Kronrod quadrature (tailIntegrals) up to the range's upper 1e-20
+// quantile.
 func (rl *rangeLaw) Variance() float64 { return rl.moments().variance }
 
 func (rl *rangeLaw) moments() moments {
@@ -322,17 +323,11 @@ func (rl *rangeLaw) moments() moments {
 			return
 		}
 		hi := rl.UpperQuantile(momentTail)
-		in := &integrator{eval: rl.tails, med: 0, width: hi, tol0: 1e-12 * hi, tol1: 1e-12 * hi * hi, r: gl12()}
-		var m1, m2, e1 float64
-		const panels = 8
-		for i := 0; i < panels; i++ {
-			a, b := hi*float64(i)/panels, hi*float64(i+1)/panels
-			v0, v1 := in.panel(a, b)
-			r0, r1, er0, _ := in.adapt(a, b, v0, v1, 12)
-			m1 += r0
-			m2 += r1
-			e1 += er0
+		pts := make([]float64, 9)
+		for i := range pts {
+			pts[i] = hi * float64(i) / 8
 		}
+		m1, m2, e1, _ := tailIntegrals(rl.tails, 0, hi, pts, 1e-12)
 		v := m2 - mean*mean
 		if v < 0 {
 			v = 0

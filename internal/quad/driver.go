@@ -36,6 +36,8 @@ type driver struct {
 	gacc   []float64 // Gauss accumulator
 	absacc []float64 // Kronrod accumulator of |f|
 	fvals  []float64 // the 15 node values, left to right, dim each
+	keep   bool      // keep every panel's node values (Partition; dim 1)
+	kept   []float64 // 15 node values per panel when keep
 	evals  int
 	badX   float64
 	badSet bool
@@ -104,7 +106,8 @@ func (d *driver) eval(kind int8, anchor, t float64) bool {
 // width). The third is the rounding of the weighted sum. A panel whose
 // difference is below its rounding terms is final: bisecting it would not
 // lower the error.
-func (d *driver) apply(p *panel, val []float64) bool {
+func (d *driver) apply(i int32, val []float64) bool {
+	p := &d.pans[i]
 	c, h := p.a+(p.b-p.a)/2, (p.b-p.a)/2
 	for j := range d.kacc {
 		d.kacc[j], d.gacc[j], d.absacc[j] = 0, 0, 0
@@ -131,6 +134,9 @@ func (d *driver) apply(p *panel, val []float64) bool {
 				d.fvals[pos*d.dim+j] = v
 			}
 		}
+	}
+	if d.keep {
+		copy(d.kept[int(i)*15:int(i+1)*15], d.fvals) // dim is 1 when keeping
 	}
 	ulp := math.Max(math.Abs(p.a), math.Abs(p.b))
 	ulp = math.Nextafter(ulp, math.Inf(1)) - ulp
@@ -210,7 +216,10 @@ func (d *driver) add(p panel) bool {
 		d.vals = append(d.vals, 0)
 	}
 	i := int32(len(d.pans) - 1)
-	ok := d.apply(&d.pans[i], d.vals[int(i)*d.dim:int(i+1)*d.dim])
+	if d.keep {
+		d.kept = append(d.kept, make([]float64, 15)...)
+	}
+	ok := d.apply(i, d.vals[int(i)*d.dim:int(i+1)*d.dim])
 	if !d.pans[i].final {
 		d.push(i)
 	}
@@ -343,7 +352,7 @@ func (d *driver) run(fn string, dst []float64, pts []float64, opt Options) (VecR
 		// the left half replaces the panel in place, the right is appended
 		left := panel{a: p.a, b: m, anchor: p.anchor, kind: p.kind}
 		d.pans[i] = left
-		if !d.apply(&d.pans[i], old) {
+		if !d.apply(i, old) {
 			finite = false
 		}
 		if !d.pans[i].final {

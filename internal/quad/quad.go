@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sort"
 )
 
 // Caps on the sizes of one call.
@@ -16,9 +17,9 @@ const (
 	// DefaultRelTol is the relative error target when both Options.AbsTol
 	// and Options.RelTol are 0.
 	DefaultRelTol = 1e-12
-	// MaxBreaks caps the number of breakpoints given to Breaks and
-	// BreaksVec.
-	MaxBreaks = 1 << 12
+	// MaxBreaks caps the number of breakpoints given to Breaks, BreaksVec
+	// and Partition.
+	MaxBreaks = 1 << 16
 	// MaxDim caps the number of components of a vector integrand.
 	MaxDim = 1 << 16
 )
@@ -150,6 +151,60 @@ func AdaptiveVec(dst []float64, f func(x float64, y []float64), a, b float64, op
 func BreaksVec(dst []float64, f func(x float64, y []float64), pts []float64, opt Options) (VecResult, error) {
 	d := driver{fv: f}
 	return d.run("BreaksVec", dst, pts, opt)
+}
+
+// Panel is one piece of an adaptive partition (see Partition), with the
+// integrand's values at its 15 Kronrod nodes.
+type Panel struct {
+	A, B  float64     // the piece, in x's units
+	Value float64     // the Kronrod estimate of ∫_A^B f
+	Error float64     // its error estimate (as Result.Error, for this piece)
+	F     [15]float64 // f at the nodes, left to right (see Nodes)
+}
+
+// Nodes returns the 15 nodes of the 7–15 Kronrod rule on [p.A, p.B], left
+// to right, bit for bit the points where Partition evaluated f, and their
+// weights (in x's units, summing to B − A), so that Σ w_i·F_i is Value to
+// rounding and Σ w_i·g(x_i) integrates any other g on the piece.
+func (p Panel) Nodes() (x, w [15]float64) {
+	nodes, wk, _ := gk15()
+	c, h := p.A+(p.B-p.A)/2, (p.B-p.A)/2
+	for i := 0; i < 8; i++ {
+		x[i], w[i] = c-h*nodes[i], h*wk[i]
+		x[14-i], w[14-i] = c+h*nodes[i], h*wk[i]
+	}
+	return x, w
+}
+
+// Partition integrates f over the finite pieces between pts as Breaks does
+// and returns, appended to dst, the final panels sorted by A, each with
+// f's values at its nodes, so that the caller can integrate other
+// functions of the same shape (f times a smooth weight) on the partition
+// f's accuracy chose. pts must be finite (sorted; 2 to 1<<16 points).
+// A Result wrapping ErrBudget or ErrResolution comes with its panels too.
+// The panels take 152 bytes each; at most MaxEvals/15 + len(pts).
+func Partition(dst []Panel, f func(x float64) float64, pts []float64, opt Options) ([]Panel, Result, error) {
+	for i, p := range pts {
+		if math.IsInf(p, 0) {
+			return dst, Result{}, paramErr("Partition", fmt.Sprintf("pts[%d]", i), p, "must be finite")
+		}
+	}
+	var one [1]float64
+	d := driver{f: f, keep: true}
+	r, err := d.run("Partition", one[:], pts, opt)
+	res := Result{Value: one[0], Error: r.Error, Evals: r.Evals}
+	if errors.Is(err, ErrParam) && len(d.pans) == 0 {
+		return dst, res, err
+	}
+	start := len(dst)
+	for i, p := range d.pans {
+		var pn Panel
+		pn.A, pn.B, pn.Value, pn.Error = p.a, p.b, d.vals[i], p.err
+		copy(pn.F[:], d.kept[i*15:(i+1)*15])
+		dst = append(dst, pn)
+	}
+	sort.Slice(dst[start:], func(i, j int) bool { return dst[start+i].A < dst[start+j].A })
+	return dst, res, err
 }
 
 func checkFinite(fn string, a, b float64) error {

@@ -345,3 +345,50 @@ func TestAllocations(t *testing.T) {
 	n := testing.AllocsPerRun(20, func() { _, _ = Adaptive(f, 0, 1, Options{}) })
 	assert.LessOrEqual(t, n, 4.0)
 }
+
+// TestPartition: the panels tile the interval, carry f at exactly the
+// points where f was evaluated, add up to the Result, and integrate
+// another function of the same shape: ∫_0^{10} e^{−x}·cos(tx) dx =
+// [1 − e^{−10}(cos 10t − t·sin 10t)]/(1 + t²) (closed form).
+func TestPartition(t *testing.T) {
+	seen := map[float64]bool{}
+	f := func(x float64) float64 { seen[x] = true; return math.Exp(-x) }
+	pans, r, err := Partition(nil, f, []float64{0, 1, 10}, Options{RelTol: 1e-14})
+	require.NoError(t, err)
+	require.NotEmpty(t, pans)
+	assert.Equal(t, 0.0, pans[0].A)
+	assert.Equal(t, 10.0, pans[len(pans)-1].B)
+	sum, errSum := 0.0, 0.0
+	for i, p := range pans {
+		if i > 0 {
+			assert.Equal(t, pans[i-1].B, p.A, "panels tile")
+		}
+		x, w := p.Nodes()
+		s := 0.0
+		for k := range x {
+			assert.True(t, seen[x[k]], "node %v evaluated", x[k])
+			assert.Equal(t, math.Exp(-x[k]), p.F[k])
+			s += w[k] * p.F[k]
+		}
+		assert.InDelta(t, p.Value, s, 1e-15*math.Abs(p.Value)+1e-300)
+		sum += p.Value
+		errSum += p.Error
+	}
+	assert.InDelta(t, r.Value, sum, 4e-16*sum)
+	assert.InDelta(t, r.Error, errSum, 1e-12*errSum)
+	assert.InDelta(t, -math.Expm1(-10), r.Value, r.Error+4e-16)
+	for _, tt := range []float64{0.5, 2} {
+		got := 0.0
+		for _, p := range pans {
+			x, w := p.Nodes()
+			for k := range x {
+				got += w[k] * p.F[k] * math.Cos(tt*x[k])
+			}
+		}
+		s, c := math.Sincos(10 * tt)
+		want := (1 - math.Exp(-10)*(c-tt*s)) / (1 + tt*tt)
+		assert.InDelta(t, want, got, 1e-12, "t = %v", tt)
+	}
+	_, _, err = Partition(nil, f, []float64{0, math.Inf(1)}, Options{})
+	assert.ErrorIs(t, err, ErrParam)
+}

@@ -1,10 +1,13 @@
 package dist
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"math/cmplx"
 	"sort"
+
+	"github.com/joulelaw/joulelaw/internal/quad"
 )
 
 // The characteristic function of a law without a known transform, by
@@ -17,40 +20,38 @@ import (
 // singular at an end, or that has atoms, still has a bounded, piecewise
 // smooth integrand), and gives M - 1 directly, without the cancellation
 // of 1 - M near s = 0 that exp(k·log M) would multiply by k. The integral
-// is taken over [Q(quadCut), Q(1 - quadCut)] by composite 16-point
-// Gauss–Legendre panels, split at 0, at the atoms and at the window ends,
-// bisected adaptively until a panel and its halves agree within
-// quadPanelTol of the scale; panels are cut further so that the phase t·y
-// moves by at most three radians on each (cached up to the largest t that
-// a k-fold sum needs, computed afresh beyond). Error of M(it), stated:
-// |t|·(the summed disagreements + the cut tails + 4ε·Σ|weights|).
+// is taken over [Q(quadCut), Q(1 - quadCut)] by the library's adaptive
+// Gauss–Kronrod quadrature (internal/quad.Partition) on panels split at 0,
+// at the atoms and at the window ends, and cut so that the phase t·y moves
+// by at most three radians on each (kept up to the largest t that a
+// k-fold sum needs, computed afresh beyond), bisected until the summed
+// error is below quadPanelTol times the range plus 8ε·sd, or each panel is
+// at its rounding, or 64 panels per starting panel are used. Error of M(it), stated: |t|·(the quadrature's stated error,
+// rounding included, + the cut tails).
 // transformOf does not use it: an ordinary Sum may need 65536 values of a
 // slowly decaying transform, each costing O(t) here.
 
 const (
 	quadCut      = 1e-30 // mass left out at each end of the quadrature
-	quadPanelTol = 1e-17 // panel agreement, relative to the law's scale
-	quadMaxDepth = 40
-	quadMaxNodes = 1 << 20
+	quadPanelTol = 1e-17 // error target per unit length of the range
 )
 
-// quadPanel is one Gauss–Legendre panel of the by-parts integral: nodes y
-// and weights times S_Y (y > 0) or -F_Y (y < 0).
+// quadPanel is one panel of the by-parts integral: its Kronrod nodes y and
+// weights times S_Y (y > 0) or -F_Y (y < 0).
 type quadPanel struct {
 	a, b float64
-	y, g []float64
+	y, g [15]float64
 }
 
 // quadTransform is the by-parts quadrature of one law's transform.
 type quadTransform struct {
-	l       Law
-	c       float64 // centre (the median)
-	panels  []quadPanel
-	tMax    float64 // panels hold three radians of phase up to |t| = tMax
-	errQ    float64 // bound on |(M(s) - 1)/s - Σ| on the axis, per unit |t|
-	lo, hi  float64 // the range, in y
-	absSum  float64
-	meanErr float64
+	l      Law
+	c      float64 // centre (the median)
+	panels []quadPanel
+	tMax   float64 // panels hold three radians of phase up to |t| = tMax
+	errQ   float64 // bound on |(M(s) - 1)/s - Σ| on the axis, per unit |t|
+	lo, hi float64 // the range, in y
+	absSum float64
 }
 
 // integrand returns S_Y(y) for y > 0 and -F_Y(y) for y < 0.
@@ -59,19 +60,6 @@ func (q *quadTransform) integrand(y float64) float64 {
 		return q.l.Survival(q.c + y)
 	}
 	return -q.l.CDF(q.c + y)
-}
-
-// glPanel returns the 16-point rule on [a, b]: nodes, weighted integrand
-// values and their sum.
-func (q *quadTransform) glPanel(a, b float64) (ys, gs []float64, sum float64) {
-	hw, m := (b-a)/2, (a+b)/2
-	ys, gs = make([]float64, len(glNodes)), make([]float64, len(glNodes))
-	for i, z := range glNodes {
-		ys[i] = m + hw*z
-		gs[i] = glWeights[i] * hw * q.integrand(ys[i])
-		sum += gs[i]
-	}
-	return ys, gs, sum
 }
 
 // newQuadTransform builds the panels of l's transform for |t| up to tMax;
@@ -104,72 +92,62 @@ func newQuadTransform(l Law, tMax float64, breaks []float64) (*quadTransform, er
 	if tMax > 0 {
 		maxW = math.Min(maxW, 3/tMax)
 	}
-	tol := quadPanelTol * sd
-	nodes := 0
-	var rec func(a, b, whole float64, ys, gs []float64, depth int) error
-	rec = func(a, b, whole float64, ys, gs []float64, depth int) error {
-		m := (a + b) / 2
-		ly, lg, ls := q.glPanel(a, m)
-		ry, rg, rs := q.glPanel(m, b)
-		d := math.Abs(ls + rs - whole)
-		var mag float64 // the halves' rounding scale
-		for i := range lg {
-			mag += math.Abs(lg[i]) + math.Abs(rg[i])
-		}
-		if d <= tol*(b-a)/sd+4*0x1p-52*mag || depth >= quadMaxDepth {
-			q.errQ += d
-			q.panels = append(q.panels, quadPanel{a: a, b: m, y: ly, g: lg}, quadPanel{a: m, b: b, y: ry, g: rg})
-			if nodes += 2 * len(glNodes); nodes > quadMaxNodes {
-				return fmt.Errorf("dist.SumIID: quadrature transform: more than %d nodes: %w", quadMaxNodes, ErrParam)
-			}
-			return nil
-		}
-		if err := rec(a, m, ls, ly, lg, depth+1); err != nil {
-			return err
-		}
-		return rec(m, b, rs, ry, rg, depth+1)
-	}
+	var pts []float64
 	for i := 0; i+1 < len(ends); i++ {
 		a, b := ends[i], ends[i+1]
 		if !(b > a) || a < q.lo || b > q.hi {
 			continue
 		}
 		n := math.Ceil((b - a) / maxW)
-		if n > quadMaxNodes {
-			return nil, fmt.Errorf("dist.SumIID: quadrature transform: %v panels: %w", n, ErrParam)
+		if n+float64(len(pts)) > quad.MaxBreaks {
+			return nil, fmt.Errorf("dist.SumIID: quadrature transform: more than %d panels: %w", quad.MaxBreaks, ErrParam)
 		}
 		w := (b - a) / n
 		for j := 0; j < int(n); j++ {
-			pa, pb := a+float64(j)*w, a+float64(j+1)*w
-			if j == int(n)-1 {
-				pb = b
-			}
-			ys, gs, s := q.glPanel(pa, pb)
-			if err := rec(pa, pb, s, ys, gs, 0); err != nil {
-				return nil, err
-			}
+			pts = append(pts, a+float64(j)*w)
 		}
+		pts = append(pts, b)
 	}
-	for _, p := range q.panels {
-		for _, g := range p.g {
-			q.absSum += math.Abs(g)
+	// the panels adapt to the integrand (the phase of e^{ity} being held
+	// to three radians by the ends) until the summed error is below
+	// quadPanelTol per unit length plus the rounding of sums of magnitude
+	// ∫|S_Y| + ∫|F_Y| = E|X - c| <= sd; a law whose CDF is noisier than
+	// that stops at the budget (64 panels per starting panel), and either
+	// way the stated error, rounding included, enters errQ
+	opt := quad.Options{
+		AbsTol:   quadPanelTol*(q.hi-q.lo) + 8*0x1p-52*sd,
+		MaxEvals: min(quad.MaxEvalsCap, 15*64*len(pts)),
+	}
+	pans, r, err := quad.Partition(nil, q.integrand, pts, opt)
+	if err != nil && !errors.Is(err, quad.ErrResolution) && !errors.Is(err, quad.ErrBudget) {
+		return nil, fmt.Errorf("dist.SumIID: quadrature transform: %w", err)
+	}
+	q.panels = make([]quadPanel, len(pans))
+	for i, p := range pans {
+		y, w := p.Nodes()
+		qp := &q.panels[i]
+		qp.a, qp.b, qp.y = p.A, p.B, y
+		for k := range w {
+			qp.g[k] = w[k] * p.F[k]
+			q.absSum += math.Abs(qp.g[k])
 		}
 	}
 	// the tails beyond the range: ∫ S over (hi, ∞) is at most
 	// E[(X - hi)+] <= sd·√S(hi) (Cauchy–Schwarz), which for the 1e-30 cut
 	// is below 1e-15·sd; likewise below lo
 	tails := sd * (math.Sqrt(l.Survival(hi)) + math.Sqrt(l.CDF(lo)))
-	q.errQ += tails + 4*0x1p-52*q.absSum
+	q.errQ = r.Error + tails
 	return q, nil
 }
 
 // sum returns Σ g·exp(s·y) over the panels (≈ (M_Y(s) - 1)/s), keeping to
 // the nodes in [from, to]; panels too long for the phase |Im s|·(b - a)
-// are integrated afresh on shorter pieces.
+// are integrated afresh on shorter pieces by the same 15-point rule.
 func (q *quadTransform) sum(s complex128, from, to float64) complex128 {
 	var acc complex128
 	t := math.Abs(imag(s))
-	for _, p := range q.panels {
+	for i := range q.panels {
+		p := &q.panels[i]
 		if p.b <= from || p.a >= to {
 			continue
 		}
@@ -182,9 +160,9 @@ func (q *quadTransform) sum(s complex128, from, to float64) complex128 {
 		n := math.Ceil(t * (p.b - p.a) / 3)
 		w := (p.b - p.a) / n
 		for j := 0; j < int(n); j++ {
-			ys, gs, _ := q.glPanel(p.a+float64(j)*w, p.a+float64(j+1)*w)
+			ys, ws := quad.Panel{A: p.a + float64(j)*w, B: p.a + float64(j+1)*w}.Nodes()
 			for i, y := range ys {
-				acc += complex(gs[i], 0) * cmplx.Exp(s*complex(y, 0))
+				acc += complex(ws[i]*q.integrand(y), 0) * cmplx.Exp(s*complex(y, 0))
 			}
 		}
 	}

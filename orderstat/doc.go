@@ -38,8 +38,8 @@
 // mass of an order statistic at a parent's atom a is P(X <= a) - P(X < a)
 // formed without cancellation from the parent's values at a and just below.
 //
-// Moments are exact sums for purely atomic laws and otherwise adaptive
-// composite Gauss–Legendre quadrature (gonum integrate/quad) of the tails
+// Moments are exact sums for purely atomic laws and otherwise the
+// library's adaptive Gauss–Kronrod quadrature (internal/quad) of the tails
 // over the region where they matter (between the quantiles at 1e-20 and
 // 1 - 1e-20), split at every atom.
 //

@@ -20,7 +20,7 @@
 // panel's ends, which matters for a narrow panel far from 0; the Gauss and
 // Kronrod values share their nodes, so their difference cannot see it)
 // and of the weighted sum. Bisection cannot lower R: a panel whose
-// difference is below 2R is not bisected again, and a target below the
+// difference is below R/4 is not bisected again, and a target below the
 // summed R is reported with ErrResolution. Error is otherwise the plain
 // Gauss–Kronrod difference, without QUADPACK's heuristic rescaling
 // (200·|K − G|/resasc)^1.5: it is an estimate of the error of the 7-point

@@ -104,8 +104,8 @@ func (d *driver) eval(kind int8, anchor, t float64) bool {
 // values share their nodes, so their difference does not see it (for
 // example a panel 1e-4 wide at x = 1e6 has nodes only to 1e-6 of its
 // width). The third is the rounding of the weighted sum. A panel whose
-// difference is below its rounding terms is final: bisecting it would not
-// lower the error.
+// difference is below a quarter of its rounding terms is final: bisecting
+// it would lower its error by a fifth at most.
 func (d *driver) apply(i int32, val []float64) bool {
 	p := &d.pans[i]
 	c, h := p.a+(p.b-p.a)/2, (p.b-p.a)/2
@@ -154,8 +154,9 @@ func (d *driver) apply(i int32, val []float64) bool {
 	}
 	p.err = e
 	// bisectable only if the midpoint lies strictly inside and the
-	// difference is above the rounding
-	p.final = !(c > p.a && c < p.b) || e <= 2*round
+	// difference is above a quarter of the rounding (below it, bisecting
+	// could lower the panel's error by a fifth at most)
+	p.final = !(c > p.a && c < p.b) || e <= 1.25*round
 	return ok
 }
 

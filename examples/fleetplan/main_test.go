@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"image/png"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -172,24 +173,33 @@ func TestFigures(t *testing.T) {
 	}
 }
 
-// A degenerate but valid site: one node that always sends at DR5 and the
-// lowest power, is never answered and keeps a fixed schedule, so its
-// per-cycle energy is a single value. The plan still prints, with no NaN.
-func TestConstantEnergyScenario(t *testing.T) {
+// firstGroupFile writes the demo reduced to its first group and gateway,
+// without shadowing, with the group edited by edit, and returns its path.
+func firstGroupFile(t *testing.T, edit func(g map[string]any)) string {
+	t.Helper()
 	var m map[string]any
 	require.NoError(t, json.Unmarshal(scenario.DemoJSON(), &m))
-	groups := m["groups"].([]any)
-	g := groups[0].(map[string]any)
-	g["nodes"] = 1
-	g["inner_radius_m"], g["outer_radius_m"] = 10, 11
-	g["answer_share"] = 0
+	g := m["groups"].([]any)[0].(map[string]any)
+	edit(g)
 	m["groups"] = []any{g}
 	m["gateways"] = m["gateways"].([]any)[:1]
 	m["radio_environment"].(map[string]any)["shadowing_sd_db"] = 0
 	data, err := json.Marshal(m)
 	require.NoError(t, err)
-	path := filepath.Join(t.TempDir(), "one.json")
+	path := filepath.Join(t.TempDir(), "site.json")
 	require.NoError(t, os.WriteFile(path, data, 0o600))
+	return path
+}
+
+// A degenerate but valid site: one node that always sends at DR5 and the
+// lowest power, is never answered and keeps a fixed schedule, so its
+// per-cycle energy is a single value. The plan still prints, with no NaN.
+func TestConstantEnergyScenario(t *testing.T) {
+	path := firstGroupFile(t, func(g map[string]any) {
+		g["nodes"] = 1
+		g["inner_radius_m"], g["outer_radius_m"] = 10, 11
+		g["answer_share"] = 0
+	})
 	code, out, errs := runArgs(t, "-scenario", path, "-quiet", "-figures", filepath.Join(t.TempDir(), "figs"))
 	require.Equal(t, 0, code, errs)
 	assert.NotContains(t, out, "NaN")
@@ -201,4 +211,97 @@ func TestConstantEnergyScenario(t *testing.T) {
 	require.Len(t, p.Groups, 1)
 	assert.Zero(t, p.Groups[0].EnergyPerCycle.SD)
 	assert.Nil(t, p.Groups[0].Breakdown[0].ShareVariance)
+}
+
+// A group whose every node misses the installation margin is planned, not
+// dropped: all of it at the ADR back-off setting (LoRaWAN L2 1.0.4
+// §4.3.1.1, from memory: slowest data rate, full power), flagged loudly.
+func TestGroupWhollyOutOfReachPlanned(t *testing.T) {
+	path := firstGroupFile(t, func(g map[string]any) {
+		g["nodes"] = 5
+		g["inner_radius_m"], g["outer_radius_m"] = 40000, 50000
+	})
+	code, out, errs := runArgs(t, "-scenario", path, "-quiet")
+	require.Equal(t, 0, code, errs)
+	assert.Contains(t, out, "OUT OF REACH: EVERY node of group")
+	assert.Contains(t, out, "EVERY node is out of reach")
+	assert.NotContains(t, out, "NaN")
+
+	code, js, errs := runArgs(t, "-scenario", path, "-quiet", "-json")
+	require.Equal(t, 0, code, errs)
+	var p Plan
+	require.NoError(t, json.Unmarshal([]byte(js), &p))
+	gp := p.Groups[0]
+	assert.Equal(t, 1.0, gp.OutOfReachPlanned)
+	require.Len(t, gp.DataRates, 1)
+	assert.True(t, gp.DataRates[0].OutOfReach)
+	assert.Equal(t, 1.0, gp.DataRates[0].Share)
+	assert.Zero(t, gp.DataRates[0].UplinkSuccess)
+	assert.Positive(t, gp.Lifetime.Median)
+	assert.InDelta(t, gp.OutOfReachCurrentA, gp.Current.Mean, 1e-15, "every node draws the back-off setting's current")
+}
+
+// The demo's out-of-reach shares are planned and counted: the data-rate
+// table's shares, the back-off row's included, sum to 1; the cautions no
+// longer say they are left out.
+func TestDemoPlansOutOfReachNodes(t *testing.T) {
+	code, js, errs := runArgs(t, "-quiet", "-json")
+	require.Equal(t, 0, code, errs)
+	var p Plan
+	require.NoError(t, json.Unmarshal([]byte(js), &p))
+	for _, g := range p.Groups {
+		sum := 0.0
+		last := g.DataRates[len(g.DataRates)-1]
+		for _, d := range g.DataRates {
+			sum += d.Share
+		}
+		assert.InDelta(t, 1, sum, 1e-12, g.Name)
+		assert.True(t, last.OutOfReach, g.Name)
+		assert.Equal(t, g.OutOfReach, last.Share, g.Name)
+		assert.Equal(t, 0, last.DR, "EU863-870's slowest data rate")
+		assert.Equal(t, float64(g.MaxTransmission), last.Frames)
+	}
+	warned := 0
+	for _, w := range p.Warnings {
+		if strings.HasPrefix(w, "OUT OF REACH") {
+			warned++
+		}
+	}
+	assert.Equal(t, 2, warned, "two demo groups have more than 1 % out of reach")
+	for _, c := range p.Cautions {
+		assert.NotContains(t, c, "left out")
+	}
+	// The confirmed group's unheard nodes send every attempt: the heaviest.
+	assert.True(t, p.Groups[2].OutOfReachHeaviest)
+}
+
+// Collisions swamping a data rate are flagged below SaturationThreshold;
+// the success they report is pure ALOHA's exp(−2G') (Abramson 1970).
+func TestSaturationWarning(t *testing.T) {
+	m, err := scenario.Build(scenario.Demo(), nil)
+	require.NoError(t, err)
+	for _, g := range m.Groups {
+		assert.Empty(t, saturationWarnings(m.Scenario, g), "the demo's loads are light")
+	}
+	s, err := scenario.Demo().WithCounts([]int{60, 100000, 24, 40})
+	require.NoError(t, err)
+	m, err = scenario.Build(s, nil)
+	require.NoError(t, err)
+	swamped := 0
+	for _, g := range m.Groups {
+		ws := saturationWarnings(s, g)
+		n := 0
+		for _, d := range g.PerDR {
+			assert.InDelta(t, math.Exp(-2*d.Vulnerable), d.UplinkSuccess, 1e-15)
+			if d.UplinkSuccess < SaturationThreshold {
+				n++
+			}
+		}
+		assert.Len(t, ws, n)
+		swamped += n
+		for _, w := range ws {
+			assert.Contains(t, w, "COLLISIONS")
+		}
+	}
+	assert.Positive(t, swamped, "100,000 probes on one gateway swamp some data rate")
 }

@@ -94,8 +94,14 @@ type GroupPlan struct {
 	Breakdown      []StatePlan `json:"breakdown"`
 	DataRates      []DRPlan    `json:"data_rates"`
 	OutOfReach     float64     `json:"out_of_reach_share"`
-	DutyCycle      DutyPlan    `json:"duty_cycle"`
-	PulseWarnings  []string    `json:"pulse_warnings"`
+	// OutOfReachPlanned is the share planned at the ADR back-off setting
+	// (scenario.GroupModel.Unheard): OutOfReach, or 0 below
+	// scenario.UnheardFloor, or 1 when the in-reach share is below it.
+	OutOfReachPlanned  float64  `json:"out_of_reach_planned_share"`
+	OutOfReachCurrentA float64  `json:"out_of_reach_average_current_a"` // 0 when none is planned
+	OutOfReachHeaviest bool     `json:"out_of_reach_drain_first"`       // their setting draws the group's largest average current, within 1 %
+	DutyCycle          DutyPlan `json:"duty_cycle"`
+	PulseWarnings      []string `json:"pulse_warnings"`
 
 	Cell           string     `json:"cell"`
 	Node           string     `json:"node"`
@@ -128,9 +134,15 @@ type StatePlan struct {
 }
 
 // DRPlan is the data-rate mix and what happens to uplinks at one data rate.
+// Share is the share of all the group's nodes. The row with OutOfReach set
+// holds the nodes out of reach at the ADR back-off setting: its uplinks are
+// all lost (UplinkSuccess 0), it receives no downlink, and it sends
+// MaxTransmissions frames per report; its Load is 0 (its frames are not
+// counted in the collision loads, see scenario.Build).
 type DRPlan struct {
 	DR            int     `json:"dr"`
 	Name          string  `json:"name"`
+	OutOfReach    bool    `json:"out_of_reach"`
 	Share         float64 `json:"share"`
 	AirtimeS      float64 `json:"airtime_s"`
 	Load          float64 `json:"offered_load"`
@@ -231,18 +243,23 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 	if err != nil {
 		return nil, err
 	}
-	jobs := m.Jobs()
+	// Every setting of every group, the out-of-reach nodes' included.
+	var jobs []scenario.Job
 	cycles := make([][]energy.Cycle, len(m.Groups))
 	for gi, g := range m.Groups {
-		cycles[gi] = make([]energy.Cycle, len(g.Settings))
+		n := len(g.AllWeights())
+		cycles[gi] = make([]energy.Cycle, n)
+		for si := range n {
+			jobs = append(jobs, scenario.Job{Group: gi, Setting: si})
+		}
 	}
 	say("per-cycle laws for %d (group, data rate, power) settings on %d cores", len(jobs), runtime.GOMAXPROCS(0))
 	err = scenario.Parallel(len(jobs), runtime.GOMAXPROCS(0), func(k int) error {
 		j := jobs[k]
 		g := m.Groups[j.Group]
-		c, err := g.SettingCycle(j.Setting)
+		c, err := g.AllSettingCycle(j.Setting)
 		if err != nil {
-			return fmt.Errorf("group %q, %v: %w", g.Group.Name, g.Settings[j.Setting], err)
+			return fmt.Errorf("group %q, %v: %w", g.Group.Name, g.AllSettings()[j.Setting], err)
 		}
 		cycles[j.Group][j.Setting] = c
 		return nil
@@ -299,10 +316,10 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 		p.laws.groupLife = append(p.laws.groupLife, lLaw)
 		n := int64(g.Group.Nodes)
 		energyGroups = append(energyGroups, orderstat.Group{Law: eLaw, Count: n})
-		if g.OutOfReach > 0.01 {
-			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: %.1f %% of placements miss the %.0f dB margin even at DR0 and full power; the plan covers the nodes in reach only: move those nodes or add a gateway",
-				g.Group.Name, 100*g.OutOfReach, s.Environment.InstallationMargin))
+		if w := unheardWarning(s, g, gp); w != "" {
+			p.Warnings = append(p.Warnings, w)
 		}
+		p.Warnings = append(p.Warnings, saturationWarnings(s, g)...)
 		if !gp.DutyCycle.Feasible {
 			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: the %.0f s reporting interval breaks the %s duty cycle at some data rate its nodes use (see its duty-cycle line)", g.Group.Name, g.Group.Interval, gp.DutyCycle.SubBand))
 		}
@@ -345,13 +362,18 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle
 		PayloadBytes: gr.Payload, IntervalS: gr.Interval, JitterS: gr.Jitter, Confirmed: gr.Confirmed, MaxTransmission: gr.MaxTransmissions,
 		OutOfReach: g.OutOfReach, Cell: g.Cell.Spec.Name, Node: g.Node.Name, Supply: g.Node.Supply.String()}
 	b := g.Battery
-	w := g.Weights()
+	w := g.AllWeights()
 	energies := make([]dist.Law, len(cycles))
 	currents := make([]float64, len(cycles))
 	for i, c := range cycles {
 		energies[i] = c.Energy()
 		currents[i] = c.MeanCurrent(g.Node.Voltage)
+		if g.IsUnheard(i) {
+			gp.OutOfReachCurrentA = currents[i]
+		}
 	}
+	gp.OutOfReachPlanned = g.Unheard.Prob
+	gp.OutOfReachHeaviest = g.Unheard.Prob > 0 && currents[len(currents)-1] >= (1-heaviestSlack)*slices.Max(currents)
 	eLaw, err := dist.Mixture(w, energies)
 	if err != nil {
 		return gp, nil, nil, err
@@ -389,8 +411,20 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle
 		if err != nil {
 			return gp, nil, nil, err
 		}
-		gp.DataRates = append(gp.DataRates, DRPlan{DR: d.DR, Name: dr.String(), Share: d.Share, AirtimeS: d.Airtime, Load: d.Load,
+		gp.DataRates = append(gp.DataRates, DRPlan{DR: d.DR, Name: dr.String(), Share: d.Share * g.Heard(), AirtimeS: d.Airtime, Load: d.Load,
 			UplinkSuccess: d.UplinkSuccess, Frames: d.Frames, DownlinkRX1: d.Windows.RX1, DownlinkRX2: d.Windows.RX2})
+	}
+	if u := g.Unheard; u.Prob > 0 {
+		dr, err := s.Region.DataRate(u.DR)
+		if err != nil {
+			return gp, nil, nil, err
+		}
+		air, err := s.Region.UplinkAirtime(u.DR, gr.Payload, 0)
+		if err != nil {
+			return gp, nil, nil, err
+		}
+		gp.DataRates = append(gp.DataRates, DRPlan{DR: u.DR, Name: dr.String(), OutOfReach: true, Share: u.Prob, AirtimeS: air,
+			Frames: float64(gr.MaxTransmissions)})
 	}
 
 	// Duty cycle: every attempt counts against the sub-band's budget, so the
@@ -549,11 +583,63 @@ func failedBand(st energy.Site, t, level float64) (lo, hi float64, err error) {
 	return dist.EqualTailed(c, level)
 }
 
+// heaviestSlack is how far below the group's largest average current (as
+// a share of it) the out-of-reach nodes' may be and still be called the
+// heaviest: an unconfirmed node in reach at the same setting that now and
+// then receives a downlink draws a little more.
+const heaviestSlack = 0.01
+
+// unheardWarning says what share of group g is out of reach and how it is
+// planned ("" when the share is below 1 %, where the data-rate table still
+// lists it).
+func unheardWarning(s scenario.Scenario, g scenario.GroupModel, gp GroupPlan) string {
+	u := g.Unheard
+	if u.Prob < 0.01 {
+		return ""
+	}
+	drain := fmt.Sprintf("they average %s against the group's %s", amps(gp.OutOfReachCurrentA), amps(gp.Current.Mean))
+	if gp.OutOfReachHeaviest {
+		drain += ", as much as the group's heaviest setting (within 1 %): they drain first"
+	}
+	if u.Prob >= 1 {
+		return fmt.Sprintf("OUT OF REACH: EVERY node of group %q misses the %.0f dB installation margin even at DR%d and full power (%g dBm): the gateway is taken to hear none of its uplinks. The plan keeps all of them at DR%d, TXPower 0, every uplink lost and no downlink (the ADR back-off of the LoRaWAN specification); %s. Move the nodes, add a gateway or lower the margin.",
+			g.Group.Name, s.Environment.InstallationMargin, u.DR, u.EIRP, u.DR, amps(gp.OutOfReachCurrentA))
+	}
+	return fmt.Sprintf("OUT OF REACH: group %q: %s of placements miss the %.0f dB installation margin even at DR%d and full power. Those nodes are planned at DR%d, TXPower 0 (%g dBm), every uplink lost and no downlink (the ADR back-off of the LoRaWAN specification) and counted in every figure; %s. Move them or add a gateway.",
+		g.Group.Name, pct(u.Prob), s.Environment.InstallationMargin, u.DR, u.DR, u.EIRP, drain)
+}
+
+// SaturationThreshold is the uplink success per transmission below which a
+// data rate is called swamped by collisions: at 90 % one report in ten is
+// lost at the first try, and pure ALOHA is then at a load G' = −ln(0.9)/2 ≈
+// 0.053 per channel, already past a tenth of its peak throughput's load
+// (G = 0.5, Abramson 1970). Networks are commonly planned well below it
+// (common practice).
+const SaturationThreshold = 0.9
+
+// saturationWarnings lists the data rates of group g whose uplink success
+// is below SaturationThreshold.
+func saturationWarnings(s scenario.Scenario, g scenario.GroupModel) []string {
+	var out []string
+	for _, d := range g.PerDR {
+		if d.UplinkSuccess >= SaturationThreshold {
+			continue
+		}
+		name := fmt.Sprintf("DR%d", d.DR)
+		if dr, err := s.Region.DataRate(d.DR); err == nil {
+			name = dr.String()
+		}
+		out = append(out, fmt.Sprintf("COLLISIONS: group %q at %s: only %s of transmissions escape collision (offered load %.3g per channel; the plan warns below %s). %s of the group's nodes use this data rate; add gateways, lengthen the interval or shorten the payload.",
+			g.Group.Name, name, pct(d.UplinkSuccess), d.Load, pct(SaturationThreshold), pct(d.Share*g.Heard())))
+	}
+	return out
+}
+
 func cautions() []string {
 	return []string{
 		"Battery handling: primary lithium cells (lithium-thionyl chloride, lithium-manganese dioxide) must not be charged, short-circuited, crushed, opened or heated beyond their rating; follow the cell maker's handling, storage, transport and disposal instructions and the rules for lithium batteries that apply where you work.",
 		"Radio regulation: the regional tables and duty-cycle limits used here are for planning, not certification. Local regulations (in Europe ETSI EN 300 220 and the national implementation of ERC Recommendation 70-03) and the current LoRaWAN Regional Parameters govern.",
 		"Planning figures are not guarantees: they hold only as far as the scenario's currents, cell data, radio environment and traffic hold. Real cells also fail from passivation, temperature, ageing and manufacturing spread; gateways fail and interference changes. A sensor whose failure can hurt someone needs its own margin and the maintenance and inspection rules that apply locally.",
-		"Model limits: collisions are pure ALOHA per gateway, data rate and channel with no capture and no interference between spreading factors or from other networks; out-of-reach nodes are left out; downlink duty cycle and gateway transmit time are not modelled.",
+		"Model limits: collisions are pure ALOHA per gateway, data rate and channel with no capture and no interference between spreading factors or from other networks; out-of-reach nodes are planned at the slowest data rate and full power with every uplink lost, but their frames are not counted in the others' collisions; downlink duty cycle and gateway transmit time are not modelled.",
 	}
 }

@@ -143,9 +143,26 @@ func writeReport(w io.Writer, p *Plan) {
 		}
 		row("data rates", "%-18s %8s %9s %8s %9s %8s %8s %8s", "", "of nodes", "airtime", "load", "uplink ok", "tx/rep", "dl RX1", "dl RX2")
 		for _, d := range g.DataRates {
+			if d.OutOfReach {
+				more("%-18s %8s %9s %8s %9s %8.3f %8s %8s", "out of reach", pct(d.Share), seconds(d.AirtimeS), "–", "lost", d.Frames, "none", "none")
+				continue
+			}
 			more("%-18s %8s %9s %8.4f %9s %8.3f %8s %8s", d.Name, pct(d.Share), seconds(d.AirtimeS), d.Load, pct(d.UplinkSuccess), d.Frames, pct(d.DownlinkRX1), pct(d.DownlinkRX2))
 		}
-		more("out of reach at the installation margin: %s of placements (left out of the plan)", pct(g.OutOfReach))
+		switch {
+		case g.OutOfReachPlanned >= 1:
+			more("EVERY node is out of reach at the installation margin: all planned at the ADR back-off")
+			more("setting (slowest data rate, full power), every uplink lost; they draw %s", amps(g.OutOfReachCurrentA))
+		case g.OutOfReachPlanned > 0:
+			drain := ""
+			if g.OutOfReachHeaviest {
+				drain = ", as much as the heaviest setting: they drain first"
+			}
+			more("out of reach at the installation margin: %s of placements, planned at the ADR back-off", pct(g.OutOfReach))
+			more("(slowest data rate, full power, every uplink lost); they draw %s%s", amps(g.OutOfReachCurrentA), drain)
+		default:
+			more("out of reach at the installation margin: %s of placements", pct(g.OutOfReach))
+		}
 		dc := g.DutyCycle
 		verdict := "keeps the limit at every data rate its nodes use"
 		if !dc.Feasible {

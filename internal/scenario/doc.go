@@ -124,6 +124,16 @@
 // the node's setting at the year's coldest temperature) or, when it is
 // null, from usable_fraction.
 //
+// Nodes out of reach (whose link misses installation_margin_db even at the
+// slowest data rate and full power) stay in the plan: they are taken to sit
+// at that data rate and TXPower 0 for life, as the ADR back-off of the
+// LoRaWAN specification leaves an unheard device (LoRaWAN L2 1.0.4
+// §4.3.1.1; ADR_ACK_LIMIT, ADR_ACK_DELAY), with every uplink lost and no
+// downlink (a confirmed group's unheard node sends every one of its
+// max_transmissions), and they count in every energy and lifetime law. Their
+// frames are not counted in the collisions of the nodes in reach (see
+// Build). A group may be entirely out of reach.
+//
 // Each group is served by its own gateway only: collisions are counted among
 // the nodes of one gateway, so the service disks of different gateways must
 // not overlap (the check enforces it). Every current except the sleep current

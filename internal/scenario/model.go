@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
@@ -29,12 +30,27 @@ type GroupModel struct {
 	Link    lora.Link
 	Settled lora.Settled
 	// Settings is the law of (data rate, TXPower) of a node in reach
-	// (probabilities summing to 1): the nodes of the group are taken to be
-	// those in reach, and OutOfReach says what share of placements is not.
+	// (probabilities summing to 1; empty when no node is in reach), and
+	// OutOfReach the share of placements that miss the installation margin
+	// even at the slowest data rate and full power.
 	Settings   []lora.Setting
 	OutOfReach float64
-	PerDR      []DRModel // one per data rate with positive probability, by DR
-	// ClassA describes the group's reports over all its settings; its
+	// Unheard is the setting an out-of-reach node ends in: the ADR back-off
+	// (LoRaWAN L2 1.0.4 §4.3.1.1, 1.0.3 §4.3.1.1, from memory) has a node
+	// that hears no downlink for ADR_ACK_LIMIT uplinks set ADRACKReq, then
+	// after each further ADR_ACK_DELAY uplinks without an answer restore
+	// full power and step the data rate down, until it sends at the slowest
+	// data rate at full power, where it stays and keeps transmitting. The
+	// model takes the node there for its whole life (the back-off takes
+	// ADR_ACK_LIMIT + 6·ADR_ACK_DELAY = 256 uplinks at the most in
+	// EU863-870: days, against years of reports), every uplink lost and no
+	// downlink received. Prob is the share of the group's nodes, OutOfReach,
+	// or 0 when it is below UnheardFloor (no such nodes are planned).
+	Unheard lora.Setting
+	// PerDR describes the nodes in reach: one entry per data rate with
+	// positive probability, by DR (empty when no node is in reach).
+	PerDR []DRModel
+	// ClassA describes the reports of the group's nodes in reach; its
 	// Cycle method gives the per-cycle law of a node drawn at random (the
 	// setting drawn once per cycle). SettingCycle gives the cycle of a node
 	// at one setting.
@@ -63,6 +79,13 @@ type DRModel struct {
 	Windows lora.Windows
 }
 
+// UnheardFloor is the smallest share of a group that the model plans as a
+// separate population: an out-of-reach share below it is taken as 0 (every
+// node heard), and an in-reach share below it as 0 (every node unheard).
+// It is ten times lora.SettleADR's error bound on these shares (1e-10),
+// so a share below it is not told apart from numerical noise.
+const UnheardFloor = 1e-9
+
 // Build turns a checked scenario into the library's model. Collision
 // probabilities follow pure ALOHA per gateway, data rate and channel
 // (Abramson 1970) generalised to frames of different lengths: a frame of
@@ -76,7 +99,15 @@ type DRModel struct {
 // over the other nodes (a node's own frames do not collide with each other),
 // and λ_h counts retransmissions through the mean number of transmissions per
 // report, found by a fixed-point iteration since retransmissions depend on
-// the success they change. progress, if not nil, is told about each step.
+// the success they change (to a change below 1e-13 frames per report).
+//
+// Out-of-reach nodes (Unheard) are planned with every uplink lost, but their
+// frames are not counted in the loads that the nodes in reach meet: they
+// arrive below the installation margin, where a stronger frame usually
+// survives the overlap (the capture effect, common practice), and leaving
+// them out keeps the model the one the packet-level sampler plays. A group
+// with no node in reach is planned with its unheard nodes alone.
+// progress, if not nil, is told about each step.
 func Build(s Scenario, progress func(step string)) (Model, error) {
 	say := func(format string, args ...any) {
 		if progress != nil {
@@ -108,14 +139,31 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 			return Model{}, fmt.Errorf("group %q: %w", g.Name, err)
 		}
 		gm.OutOfReach = gm.Settled.OutOfReach()
-		reach, err := gm.Settled.Reachable()
+		slow := slices.Min(s.Region.ADRDataRates())
+		full, err := s.Region.TXPower(0)
 		if err != nil {
-			return Model{}, fmt.Errorf("group %q: no node in reach: %w", g.Name, err)
+			return Model{}, fmt.Errorf("group %q: %w", g.Name, err)
 		}
-		for _, st := range reach {
-			if st.Prob > 0 {
-				gm.Settings = append(gm.Settings, st)
+		gm.Unheard = lora.Setting{DR: slow, TXPower: 0, EIRP: full}
+		switch u := gm.OutOfReach; {
+		case 1-u < UnheardFloor:
+			gm.Unheard.Prob = 1
+		case u >= UnheardFloor:
+			gm.Unheard.Prob = u
+		}
+		if gm.Unheard.Prob < 1 {
+			reach, err := gm.Settled.Reachable()
+			if err != nil {
+				return Model{}, fmt.Errorf("group %q: %w", g.Name, err)
 			}
+			for _, st := range reach {
+				if st.Prob > 0 {
+					gm.Settings = append(gm.Settings, st)
+				}
+			}
+		}
+		if len(gm.Settings) == 0 && gm.Unheard.Prob == 0 {
+			return Model{}, fmt.Errorf("group %q: no setting has positive probability (out of reach %g)", g.Name, gm.OutOfReach)
 		}
 		share := map[int]float64{}
 		for _, st := range gm.Settings {
@@ -246,6 +294,8 @@ func (g *GroupModel) describe(s Scenario) error {
 		}
 		dl = n
 	}
+	// Every data rate of a node in reach has its windows in byDR; the
+	// default (no downlink) is what an unheard node meets.
 	byDR := map[int]lora.Windows{}
 	for _, d := range g.PerDR {
 		byDR[d.DR] = d.Windows
@@ -262,7 +312,7 @@ func (g *GroupModel) describe(s Scenario) error {
 		Confirmed:       gr.Confirmed,
 		NbTrans:         gr.MaxTransmissions,
 		DownlinkBytes:   dl,
-		Downlink:        byDR[g.PerDR[0].DR],
+		Downlink:        lora.Windows{},
 		DownlinkByDR:    byDR,
 		PreambleSymbols: node.WindowSymbols,
 		ClockMargin:     node.WindowMargin,
@@ -272,8 +322,8 @@ func (g *GroupModel) describe(s Scenario) error {
 	return err
 }
 
-// Cycle returns the class A cycle of a node drawn at random from the group:
-// its setting drawn once per cycle from Settings.
+// Cycle returns the class A cycle of a node drawn at random from the
+// group's nodes in reach: its setting drawn once per cycle from Settings.
 func (g GroupModel) Cycle() (energy.Cycle, error) {
 	return g.ClassA.Cycle(g.Period)
 }
@@ -291,20 +341,82 @@ func (g GroupModel) SettingCycle(i int) (energy.Cycle, error) {
 	return c.Cycle(g.Period)
 }
 
+// Heard returns the share of the group's nodes in reach: 1 − Unheard.Prob.
+func (g GroupModel) Heard() float64 { return 1 - g.Unheard.Prob }
+
+// AllSettings returns the settings of every node of the group, heard or not:
+// Settings with their probabilities times Heard, then Unheard when its
+// share is positive. The probabilities sum to 1.
+func (g GroupModel) AllSettings() []lora.Setting {
+	h := g.Heard()
+	out := make([]lora.Setting, 0, len(g.Settings)+1)
+	for _, st := range g.Settings {
+		st.Prob *= h
+		out = append(out, st)
+	}
+	if g.Unheard.Prob > 0 {
+		out = append(out, g.Unheard)
+	}
+	return out
+}
+
+// AllWeights returns the probabilities of AllSettings, as the weights of a
+// mixture.
+func (g GroupModel) AllWeights() []float64 {
+	all := g.AllSettings()
+	w := make([]float64, len(all))
+	for i, s := range all {
+		w[i] = s.Prob
+	}
+	return w
+}
+
+// IsUnheard tells whether AllSettings()[i] is the out-of-reach setting.
+func (g GroupModel) IsUnheard(i int) bool {
+	return g.Unheard.Prob > 0 && i == len(g.Settings)
+}
+
+// AllSettingCycle returns the class A cycle of a node of the group at
+// AllSettings()[i]: SettingCycle(i) for a node in reach, UnheardCycle for
+// the last one when some nodes are out of reach.
+func (g GroupModel) AllSettingCycle(i int) (energy.Cycle, error) {
+	if g.IsUnheard(i) {
+		return g.UnheardCycle()
+	}
+	return g.SettingCycle(i)
+}
+
+// UnheardCycle returns the class A cycle of an out-of-reach node: every
+// report at Unheard's data rate and power, every transmission lost, so both
+// receive windows stay empty and a confirmed report spends all
+// MaxTransmissions attempts. It fails when the group has no such nodes.
+func (g GroupModel) UnheardCycle() (energy.Cycle, error) {
+	if g.Unheard.Prob == 0 {
+		return energy.Cycle{}, &FieldError{Field: "setting", Value: "out of reach", Rule: "the group has no out-of-reach nodes"}
+	}
+	c := g.ClassA
+	one := g.Unheard
+	one.Prob = 1
+	c.Settings = []lora.Setting{one}
+	c.Downlink = lora.Windows{}
+	c.DownlinkByDR = nil
+	return c.Cycle(g.Period)
+}
+
 // NodeSpec returns the description of the group's nodes for package
-// energy's lifetime laws, given the cycle of each of its settings (in the
-// order of Settings): their weights, the cell, the supply path, the
+// energy's lifetime laws, given the cycle of each of its settings, heard or
+// not (in the order of AllSettings): their weights, the cell, the supply path, the
 // temperature behaviour (the cell's, with the node's sleep-current
 // doubling), the voltage curve and brown-out, the per-node spreads, the
 // calendar life, storage time and the deployment month.
 func (g GroupModel) NodeSpec(s Scenario, cycles []energy.Cycle) (energy.NodeSpec, error) {
-	if len(cycles) != len(g.Settings) {
-		return energy.NodeSpec{}, &FieldError{Field: "cycles", Value: len(cycles), Rule: fmt.Sprintf("need one cycle per setting (%d)", len(g.Settings))}
+	w := g.AllWeights()
+	if len(cycles) != len(w) {
+		return energy.NodeSpec{}, &FieldError{Field: "cycles", Value: len(cycles), Rule: fmt.Sprintf("need one cycle per setting, heard or not (%d)", len(w))}
 	}
 	spec := energy.NodeSpec{Name: g.Group.Name, Battery: g.Battery, Supply: g.Node.Supply,
 		Spread:       energy.NodeSpread{Capacity: g.Cell.CapacitySD, Floor: g.Node.FloorLogSD, Active: g.Node.ActiveSD},
 		CalendarLife: g.Cell.CalendarLife, StorageTime: g.Group.StorageTime, StartMonth: s.StartMonth}
-	w := g.Weights()
 	for i, c := range cycles {
 		spec.Settings = append(spec.Settings, energy.NodeSetting{Weight: w[i], Cycle: c})
 	}
@@ -448,7 +560,7 @@ func WorkStage(voltage float64, work []Step) (energy.Stage, error) {
 }
 
 // MixEnergy returns the per-cycle energy law (J) of a node drawn at random
-// from the group: the mixture, with the settings' probabilities, of the
+// from the group's nodes in reach: the mixture, with the settings' probabilities, of the
 // per-setting laws (cycles indexed like Settings).
 func (g GroupModel) MixEnergy(cycles []energy.Cycle) (dist.Law, error) {
 	laws := make([]dist.Law, len(cycles))

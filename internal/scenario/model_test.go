@@ -143,3 +143,93 @@ func TestParallelJoinsErrors(t *testing.T) {
 		assert.True(t, s, "item %d", i)
 	}
 }
+
+// loraAirtimeSF12 is the LoRa time on air at SF12, 125 kHz, coding rate 4/5,
+// 8 preamble symbols, explicit header, payload CRC on and low-data-rate
+// optimisation on, for a PHY payload of n bytes, by the published formula
+// (Semtech SX1276 data sheet §4.1.1.6; Augustin et al., Sensors 16(9):1466,
+// 2016), written out here by hand:
+//
+//	n_payload = 8 + max(ceil((8n − 4·SF + 28 + 16)/(4·(SF − 2)))·5, 0)
+//	T = (8 + 4.25 + n_payload)·2^SF/BW
+func loraAirtimeSF12(n int) float64 {
+	const sf, bw = 12, 125e3
+	sym := math.Exp2(sf) / bw
+	np := 8 + math.Max(math.Ceil(float64(8*n-4*sf+28+16)/float64(4*(sf-2)))*5, 0)
+	return (8 + 4.25 + np) * sym
+}
+
+// Out-of-reach nodes are planned at the ADR back-off setting (LoRaWAN L2
+// 1.0.4 §4.3.1.1: the slowest data rate, full power; from memory), with a
+// share equal to SettleADR's, every uplink lost and no downlink. Their cycle
+// is checked against a hand sum E = V·[I_sleep·T + Σ (I − I_sleep)·t] over the
+// work, NbTrans uplinks at DR0 and 16 dBm (EU863-870's TXPower 0, RP002-1.0.3)
+// and two empty windows per attempt of margin + 8 symbols each.
+func TestUnheardNodesPlannedAtBackOff(t *testing.T) {
+	m, err := scenario.Build(scenario.Demo(), nil)
+	require.NoError(t, err)
+	sym := math.Exp2(12) / 125e3
+	for gi, g := range m.Groups {
+		gr := g.Group
+		require.Greater(t, g.OutOfReach, scenario.UnheardFloor, "every demo group has some placements out of reach")
+		assert.Equal(t, lora.Setting{DR: 0, TXPower: 0, EIRP: 16, Prob: g.OutOfReach}, g.Unheard)
+		all := g.AllSettings()
+		require.Len(t, all, len(g.Settings)+1)
+		w := g.AllWeights()
+		sum := 0.0
+		for i, x := range w {
+			sum += x
+			assert.Equal(t, i == len(w)-1, g.IsUnheard(i))
+		}
+		assert.InDelta(t, 1, sum, 1e-12)
+		assert.Equal(t, g.OutOfReach, w[len(w)-1])
+
+		c, err := g.AllSettingCycle(len(w) - 1)
+		require.NoError(t, err)
+		n := m.Scenario.NodeOf(gr)
+		tx, ok := n.TransmitCurrent(16)
+		require.True(t, ok)
+		phy := gr.Payload + 13 // LoRaWAN 1.0.3 MAC framing, no FOpts
+		listen := n.WindowMargin + 8*sym
+		attempt := (tx-n.Sleep)*loraAirtimeSF12(phy) + 2*(n.Receive-n.Sleep)*listen
+		work := 0.0
+		for _, st := range gr.Work {
+			work += (st.Current - n.Sleep) * st.Duration
+		}
+		want := n.Voltage * (n.Sleep*gr.Interval + work + float64(gr.MaxTransmissions)*attempt)
+		assert.InDelta(t, want, c.MeanEnergy(), 1e-12*want, "group %d", gi)
+		assert.InDelta(t, 0, c.EnergyVariance(), 1e-12*want*want, "fixed schedule, fixed work, no downlink: one value")
+	}
+}
+
+// A group whose every placement misses the margin is still planned: all its
+// nodes at the back-off setting.
+func TestGroupWhollyOutOfReach(t *testing.T) {
+	s := oneGroup(t, 30)
+	s.Groups[0].InnerRadius, s.Groups[0].OuterRadius = 40000, 50000
+	s.Environment.ShadowingSD = 0 // exactly out of reach beyond the margin's distance
+	m, err := scenario.Build(s, nil)
+	require.NoError(t, err)
+	g := m.Groups[0]
+	assert.Greater(t, g.OutOfReach, 1-scenario.UnheardFloor)
+	assert.Empty(t, g.Settings)
+	assert.Empty(t, g.PerDR)
+	assert.Equal(t, []float64{1}, g.AllWeights())
+	assert.Zero(t, g.Heard())
+	c, err := g.AllSettingCycle(0)
+	require.NoError(t, err)
+	assert.Positive(t, c.MeanEnergy())
+	_, err = g.SettingCycle(0)
+	require.ErrorIs(t, err, scenario.ErrInvalid)
+
+	// And a group wholly in reach plans no unheard nodes.
+	s.Groups[0].InnerRadius, s.Groups[0].OuterRadius = 10, 11
+	m, err = scenario.Build(s, nil)
+	require.NoError(t, err)
+	g = m.Groups[0]
+	assert.Zero(t, g.Unheard.Prob)
+	assert.Equal(t, 1.0, g.Heard())
+	assert.Len(t, g.AllSettings(), len(g.Settings))
+	_, err = g.UnheardCycle()
+	require.ErrorIs(t, err, scenario.ErrInvalid)
+}

@@ -23,7 +23,8 @@ const MaxSumIIDTerms = 1 << 40
 // energy of k reporting cycles, say), for k from 1 to 10^7 and beyond.
 //
 // Closed forms first: a normal gives a normal, an exponential or gamma a
-// gamma. A finite discrete law of d atoms (the energy of a cycle whose
+// gamma, and an affine map a·X + b of one of those a·(X_1 + … + X_k) + k·b
+// (a shifted gamma for a cycle with a fixed floor and a gamma burst). A finite discrete law of d atoms (the energy of a cycle whose
 // states are constant or discrete, say) goes, in this order, to
 //   - the exact Discrete of its k-fold atoms (repeated squaring) when there
 //     are at most 1024 of them (C(k+d−1, d−1) <= 1024);
@@ -111,6 +112,14 @@ func SumIID(l Law, k int) (Law, error) {
 		}
 	case Discrete:
 		return discreteSumIID(b, k)
+	case affine:
+		if s, ok, err := affineSumIID(b, k); ok {
+			return s, err
+		}
+	case affineDensity:
+		if s, ok, err := affineSumIID(b.affine, k); ok {
+			return s, err
+		}
 	}
 	if m, ok, err := expandMixtureIID(l, k); err != nil || ok {
 		return m, err
@@ -130,6 +139,31 @@ func MustSumIID(l Law, k int) Law {
 		panic(err) // panic-ok: Must form, documented
 	}
 	return s
+}
+
+// closedIID reports whether SumIID has a closed form for l.
+func closedIID(l Law) bool {
+	switch l.(type) {
+	case Normal, Exponential, Gamma:
+		return true
+	}
+	return false
+}
+
+// affineSumIID returns the k-fold sum of a·X + b as a·(X_1 + … + X_k) + k·b
+// when X's k-fold sum has a closed form (a shifted gamma, the energy of a
+// cycle with a fixed floor and a gamma-distributed burst, say); ok is false
+// otherwise.
+func affineSumIID(a affine, k int) (Law, bool, error) {
+	if !closedIID(a.base) {
+		return nil, false, nil
+	}
+	s, err := SumIID(a.base, k)
+	if err != nil {
+		return nil, true, err
+	}
+	l, err := Affine(s, a.scale, float64(k)*a.shift)
+	return l, true, err
 }
 
 // discreteSumIID is SumIID for a finite discrete law (see SumIID for the
@@ -262,7 +296,10 @@ func iidSample(l Law, k int, self **numLaw) func(r *rand.Rand) float64 {
 // P(N > k) = P(S_k <= C) asks for the CDF of S_k at one point C for k =
 // 1, 2, …. The state it holds is built once by NewIIDSums, and each value
 // costs:
-//   - a normal, exponential or gamma term: the closed form of S_k;
+//   - a normal, exponential or gamma term: the closed form of S_k (an
+//     affine map of one, whose SumIID is closed too, takes the tilted
+//     inversion below: at shapes of 10^6 the gamma CDF's series costs
+//     more than an inversion);
 //   - a finite discrete term: the paths of SumIID's discrete law evaluated
 //     at (k, x) directly (exact atoms while there are at most 1024, the
 //     exact binomial and three-value sums, otherwise the bounded
@@ -303,6 +340,7 @@ func NewIIDSums(l Law) (IIDSums, error) {
 	switch b := l.(type) {
 	case Normal, Exponential, Gamma:
 		p.closed, p.ok = true, false
+
 	case Discrete:
 		p.ok = false
 		if b.Len() > 1 {
@@ -342,8 +380,9 @@ func (p IIDSums) Law(k int) (Law, error) { return SumIID(p.l, k) }
 // with Method "closed form" for a normal, exponential or gamma term and for
 // a one-atom law, those of the discrete paths for a finite discrete term
 // (the saddlepoint's bound, proven by Esseen's inequality, costs some
-// milliseconds), and otherwise those that the law of S_k built by SumIID
-// reports. Errors: k outside [1, MaxSumIIDTerms], a zero IIDSums.
+// milliseconds), and otherwise those that the law of S_k reports, built by
+// the transform inversion the values take (or by SumIID for a term
+// without a transform). Errors: k outside [1, MaxSumIIDTerms], a zero IIDSums.
 func (p IIDSums) Accuracy(k int) (Accuracy, error) {
 	switch {
 	case p.l == nil:
@@ -355,7 +394,11 @@ func (p IIDSums) Accuracy(k int) (Accuracy, error) {
 	case p.closed || p.lo == p.hi:
 		return Accuracy{Method: "closed form"}, nil
 	}
-	law, err := SumIID(p.l, k)
+	build := SumIID
+	if p.ok {
+		build = iidNumeric // the transform inversion that the values take
+	}
+	law, err := build(p.l, k)
 	if err != nil {
 		return Accuracy{}, err
 	}

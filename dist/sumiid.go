@@ -20,7 +20,7 @@ const maxStructuralDraws = 4096
 const MaxSumIIDTerms = 1 << 40
 
 // SumIID returns the law of the sum of k independent copies of l (the
-// energy of k reporting cycles, say), for k from 1 to 10^7 and beyond.
+// energy of k reporting cycles, say), for k from 1 to MaxSumIIDTerms (2^40).
 //
 // Closed forms first: a normal gives a normal, an exponential or gamma a
 // gamma, and an affine map a·X + b of one of those a·(X_1 + … + X_k) + k·b

@@ -305,3 +305,40 @@ func TestSaturationWarning(t *testing.T) {
 	}
 	assert.Positive(t, swamped, "100,000 probes on one gateway swamp some data rate")
 }
+
+// A US902-928 site runs end to end: no duty-cycle sub-bands, each uplink
+// checked against the 400 ms dwell time (RP002-1.0.3 §2.5, from memory),
+// the back-off setting at DR0 (SF10) and 30 dBm, and the channel caution.
+func TestUS902928Plan(t *testing.T) {
+	path := filepath.Join("..", "..", "internal", "scenario", "testdata", "us902-928.json")
+	code, out, errs := runArgs(t, "-scenario", path, "-quiet")
+	require.Equal(t, 0, code, errs)
+	assert.Contains(t, out, "region               US902-928")
+	assert.Contains(t, out, "DR4 (SF8/500 kHz)")
+	assert.Contains(t, out, "none in US902-928; each uplink against its 400.0 ms dwell time")
+	assert.NotContains(t, out, "NaN")
+
+	code, js, errs := runArgs(t, "-scenario", path, "-quiet", "-json")
+	require.Equal(t, 0, code, errs)
+	var p Plan
+	require.NoError(t, json.Unmarshal([]byte(js), &p))
+	assert.Equal(t, "US902-928", p.Region)
+	for _, g := range p.Groups {
+		dc := g.DutyCycle
+		assert.Empty(t, dc.SubBand)
+		assert.Equal(t, 0.4, dc.DwellTimeS)
+		assert.True(t, dc.Feasible, "every payload the format admits fits the dwell time")
+		for _, d := range g.DataRates {
+			if d.OutOfReach {
+				assert.Equal(t, 0, d.DR)
+				assert.Equal(t, "DR0 (SF10/125 kHz)", d.Name)
+			}
+		}
+		assert.Positive(t, g.Lifetime.Median)
+	}
+	found := false
+	for _, c := range p.Cautions {
+		found = found || strings.HasPrefix(c, "US902-928: the gateway is taken to hear all 64 uplink channels")
+	}
+	assert.True(t, found, "the channel caution")
+}

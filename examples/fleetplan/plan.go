@@ -10,6 +10,7 @@ import (
 	"github.com/joulelaw/joulelaw/energy"
 	"github.com/joulelaw/joulelaw/internal/scenario"
 	"github.com/joulelaw/joulelaw/orderstat"
+	"github.com/joulelaw/joulelaw/radio/lora"
 )
 
 // Plan is everything the report, the JSON output and the figures show. Field
@@ -153,11 +154,15 @@ type DRPlan struct {
 }
 
 // DutyPlan is the duty-cycle verdict for the group's reporting interval.
+// In a region without duty-cycle sub-bands (US902-928) SubBand is "", the
+// rows check each uplink against the region's dwell time (DwellTimeS, 0
+// when it sets none) and their MinIntervalS is 0.
 type DutyPlan struct {
-	SubBand  string    `json:"sub_band"`
-	Attempts int       `json:"attempts_checked"`
-	Rows     []DutyRow `json:"rows"`
-	Feasible bool      `json:"feasible_at_every_used_dr"`
+	SubBand    string    `json:"sub_band"`
+	DwellTimeS float64   `json:"dwell_time_s"`
+	Attempts   int       `json:"attempts_checked"`
+	Rows       []DutyRow `json:"rows"`
+	Feasible   bool      `json:"feasible_at_every_used_dr"`
 }
 
 // DutyRow is the verdict at one data rate.
@@ -321,7 +326,11 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 		}
 		p.Warnings = append(p.Warnings, saturationWarnings(s, g)...)
 		if !gp.DutyCycle.Feasible {
-			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: the %.0f s reporting interval breaks the %s duty cycle at some data rate its nodes use (see its duty-cycle line)", g.Group.Name, g.Group.Interval, gp.DutyCycle.SubBand))
+			if gp.DutyCycle.SubBand == "" {
+				p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: a %d-byte uplink breaks %s's %.0f ms dwell time at some data rate its nodes use (see its duty-cycle line)", g.Group.Name, g.Group.Payload, s.Region.Name(), 1e3*gp.DutyCycle.DwellTimeS))
+			} else {
+				p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: the %.0f s reporting interval breaks the %s duty cycle at some data rate its nodes use (see its duty-cycle line)", g.Group.Name, g.Group.Interval, gp.DutyCycle.SubBand))
+			}
 		}
 		for _, w := range gp.PulseWarnings {
 			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: %s", g.Group.Name, w))
@@ -340,7 +349,7 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 	if err := fleetLife(p, s); err != nil {
 		return nil, err
 	}
-	p.Cautions = cautions()
+	p.Cautions = cautions(s.Region)
 	return p, nil
 }
 
@@ -427,27 +436,8 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle
 			Frames: float64(gr.MaxTransmissions)})
 	}
 
-	// Duty cycle: every attempt counts against the sub-band's budget, so the
-	// check takes the most a report can send.
-	freq := s.Region.UplinkChannels()[0].Frequency
-	band, err := s.Region.SubBandAt(freq)
-	if err != nil {
+	if gp.DutyCycle, err = dutyPlan(s, g); err != nil {
 		return gp, nil, nil, err
-	}
-	checks, err := s.Region.CheckInterval(freq, gr.Payload, 0, gr.MaxTransmissions, gr.Interval)
-	if err != nil {
-		return gp, nil, nil, err
-	}
-	gp.DutyCycle = DutyPlan{SubBand: band.String(), Attempts: gr.MaxTransmissions, Feasible: true}
-	for _, c := range checks {
-		used := slices.ContainsFunc(g.PerDR, func(d scenario.DRModel) bool { return d.DR == c.DR })
-		if !used && !slices.Contains(s.Region.ADRDataRates(), c.DR) {
-			continue
-		}
-		gp.DutyCycle.Rows = append(gp.DutyCycle.Rows, DutyRow{DR: c.DR, Used: used, Feasible: c.Feasible, MinIntervalS: c.MinInterval, Warning: c.Warning})
-		if used && !c.Feasible {
-			gp.DutyCycle.Feasible = false
-		}
 	}
 
 	seen := map[string]bool{}
@@ -489,6 +479,55 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle
 	}
 	gp.ReplaceByRisk = first.Quantile(s.Plan.AcceptableRisk) / energy.Year
 	return gp, eLaw, lLaw, nil
+}
+
+// dutyPlan checks the group's reporting interval against the duty cycle of
+// the sub-band of the region's first uplink channel (every attempt counts
+// against the sub-band's budget, so the check takes the most a report can
+// send), or, in a region without duty-cycle sub-bands (US902-928), each
+// uplink against the region's dwell time. A data rate is used when nodes in
+// reach or out of reach send at it.
+func dutyPlan(s scenario.Scenario, g scenario.GroupModel) (DutyPlan, error) {
+	gr := g.Group
+	used := func(dr int) bool {
+		return slices.ContainsFunc(g.PerDR, func(d scenario.DRModel) bool { return d.DR == dr }) ||
+			(g.Unheard.Prob > 0 && g.Unheard.DR == dr)
+	}
+	dp := DutyPlan{Attempts: gr.MaxTransmissions, Feasible: true}
+	if len(s.Region.SubBands()) == 0 {
+		dp.DwellTimeS = s.Region.DwellTime()
+		if math.IsInf(dp.DwellTimeS, 1) {
+			dp.DwellTimeS = 0
+		}
+		for _, dr := range s.Region.ADRDataRates() {
+			row := DutyRow{DR: dr, Used: used(dr), Feasible: true}
+			if err := s.Region.CheckDwellTime(dr, gr.Payload, 0); err != nil {
+				row.Feasible, row.Warning = false, err.Error()
+			}
+			dp.Rows = append(dp.Rows, row)
+			dp.Feasible = dp.Feasible && (row.Feasible || !row.Used)
+		}
+		return dp, nil
+	}
+	freq := s.Region.UplinkChannels()[0].Frequency
+	band, err := s.Region.SubBandAt(freq)
+	if err != nil {
+		return dp, err
+	}
+	checks, err := s.Region.CheckInterval(freq, gr.Payload, 0, gr.MaxTransmissions, gr.Interval)
+	if err != nil {
+		return dp, err
+	}
+	dp.SubBand = band.String()
+	for _, c := range checks {
+		u := used(c.DR)
+		if !u && !slices.Contains(s.Region.ADRDataRates(), c.DR) {
+			continue
+		}
+		dp.Rows = append(dp.Rows, DutyRow{DR: c.DR, Used: u, Feasible: c.Feasible, MinIntervalS: c.MinInterval, Warning: c.Warning})
+		dp.Feasible = dp.Feasible && (c.Feasible || !u)
+	}
+	return dp, nil
 }
 
 // outlierLevel is the probability that the fleet's largest per-cycle energy
@@ -599,7 +638,7 @@ func unheardWarning(s scenario.Scenario, g scenario.GroupModel, gp GroupPlan) st
 	}
 	drain := fmt.Sprintf("they average %s against the group's %s", amps(gp.OutOfReachCurrentA), amps(gp.Current.Mean))
 	if gp.OutOfReachHeaviest {
-		drain += ", as much as the group's heaviest setting (within 1 %): they drain first"
+		drain += ", as much as the group's heaviest setting, within a per cent: they drain first"
 	}
 	if u.Prob >= 1 {
 		return fmt.Sprintf("OUT OF REACH: EVERY node of group %q misses the %.0f dB installation margin even at DR%d and full power (%g dBm): the gateway is taken to hear none of its uplinks. The plan keeps all of them at DR%d, TXPower 0, every uplink lost and no downlink (the ADR back-off of the LoRaWAN specification); %s. Move the nodes, add a gateway or lower the margin.",
@@ -635,11 +674,21 @@ func saturationWarnings(s scenario.Scenario, g scenario.GroupModel) []string {
 	return out
 }
 
-func cautions() []string {
-	return []string{
+func cautions(r lora.Region) []string {
+	out := []string{
 		"Battery handling: primary lithium cells (lithium-thionyl chloride, lithium-manganese dioxide) must not be charged, short-circuited, crushed, opened or heated beyond their rating; follow the cell maker's handling, storage, transport and disposal instructions and the rules for lithium batteries that apply where you work.",
-		"Radio regulation: the regional tables and duty-cycle limits used here are for planning, not certification. Local regulations (in Europe ETSI EN 300 220 and the national implementation of ERC Recommendation 70-03) and the current LoRaWAN Regional Parameters govern.",
+		"Radio regulation: the regional tables and duty-cycle limits used here are for planning, not certification. Local regulations (in Europe ETSI EN 300 220 and the national implementation of ERC Recommendation 70-03; in the United States FCC Part 15) and the current LoRaWAN Regional Parameters govern.",
 		"Planning figures are not guarantees: they hold only as far as the scenario's currents, cell data, radio environment and traffic hold. Real cells also fail from passivation, temperature, ageing and manufacturing spread; gateways fail and interference changes. A sensor whose failure can hurt someone needs its own margin and the maintenance and inspection rules that apply locally.",
 		"Model limits: collisions are pure ALOHA per gateway, data rate and channel with no capture and no interference between spreading factors or from other networks; out-of-reach nodes are planned at the slowest data rate and full power with every uplink lost, but their frames are not counted in the others' collisions; downlink duty cycle and gateway transmit time are not modelled.",
 	}
+	most := 0
+	for _, dr := range r.ADRDataRates() {
+		most = max(most, scenario.Channels(r, dr))
+	}
+	if most > 8 {
+		out = append(out, fmt.Sprintf("%s: the gateway is taken to hear all %d uplink channels of a data rate; a gateway that listens on one sub-band of 8 channels (plus one 500 kHz channel), as many networks configure, meets collision loads up to %d times higher on its 125 kHz channels. TXPower 0 is taken at the region's maximum EIRP (%g dBm): a node that cannot reach it has less link budget than planned.",
+			r.Name(), most, most/8, r.MaxEIRP()))
+	}
+	return out
+
 }

@@ -168,7 +168,20 @@ func writeReport(w io.Writer, p *Plan) {
 		if !dc.Feasible {
 			verdict = "BREAKS the limit at a data rate its nodes use"
 		}
-		row("duty cycle", "%s, %d transmission(s) per report: %s", dc.SubBand, dc.Attempts, verdict)
+		if dc.SubBand == "" {
+			row("duty cycle", "none in %s; each uplink against its %s dwell time: %s", p.Region, seconds(dc.DwellTimeS), verdict)
+			var bad []string
+			for _, r := range dc.Rows {
+				if r.Used && !r.Feasible {
+					bad = append(bad, fmt.Sprintf("DR%d", r.DR))
+				}
+			}
+			if len(bad) > 0 {
+				more("too long at %s", strings.Join(bad, ", "))
+			}
+		} else {
+			row("duty cycle", "%s, %d transmission(s) per report: %s", dc.SubBand, dc.Attempts, verdict)
+		}
 		var mins []string
 		for _, r := range dc.Rows {
 			if r.Used {
@@ -179,7 +192,9 @@ func writeReport(w io.Writer, p *Plan) {
 				mins = append(mins, fmt.Sprintf("DR%d %s%s", r.DR, seconds(r.MinIntervalS), mark))
 			}
 		}
-		more("shortest interval allowed: %s", strings.Join(mins, ", "))
+		if dc.SubBand != "" {
+			more("shortest interval allowed: %s", strings.Join(mins, ", "))
+		}
 		pulse := 0.0
 		for _, c := range p.Cells {
 			if c.Name == g.Cell {

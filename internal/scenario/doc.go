@@ -17,7 +17,7 @@
 //	  "format": "joulelaw-scenario/2",      this version; "joulelaw-scenario/1" files are still read (below)
 //	  "site": "…",                           a name for the site, non-empty
 //	  "description": "…",                    free text (may be "")
-//	  "region": "EU863-870",                 the LoRaWAN region (only EU863-870 so far)
+//	  "region": "EU863-870",                 the LoRaWAN region: "EU863-870" or "US902-928" (see below)
 //	  "radio_environment": {                 one path-loss model for the site
 //	    "reference_distance_m": 1,           d0 > 0
 //	    "reference_loss_db": 40,             PL(d0), 0 … 200
@@ -123,6 +123,20 @@
 // of the capacity comes from the voltage curve (under the largest pulse of
 // the node's setting at the year's coldest temperature) or, when it is
 // null, from usable_fraction.
+//
+// # Regions
+//
+// The region is any that package lora models (lora.Regions): EU863-870 or
+// US902-928, with its tables (RP002-1.0.3). It decides the TXPower levels the
+// node's transmit_current_ma must list, one each (EU863-870: 16 … 2 dBm in
+// 2 dB steps, 8 levels; US902-928: 30 … 2 dBm, 15 levels), the largest
+// payload (the slowest ADR data rate's: 51 bytes at EU863-870 DR0, 11 at
+// US902-928 DR0) and the channels a data rate's frames spread over
+// (Channels: EU863-870's 3 default channels; US902-928's 64 channels of
+// 125 kHz for DR0 … DR3 and 8 of 500 kHz for DR4, all taken to be heard by
+// the gateway). EU863-870's duty cycle and US902-928's 400 ms dwell time are
+// checked by the fleet planner. testdata/us902-928.json is a small invented
+// US902-928 site.
 //
 // Nodes out of reach (whose link misses installation_margin_db even at the
 // slowest data rate and full power) stay in the plan: they are taken to sit

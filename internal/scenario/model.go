@@ -115,7 +115,6 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 		}
 	}
 	m := Model{Scenario: s, Groups: make([]GroupModel, len(s.Groups))}
-	channels := len(s.Region.UplinkChannels())
 	pl := lora.PathLoss{
 		Reference:   s.Environment.ReferenceLoss,
 		RefDistance: s.Environment.ReferenceDistance,
@@ -182,7 +181,7 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 		m.Groups[i] = gm
 	}
 	say("solving collisions and retransmissions")
-	if err := m.solveCollisions(channels); err != nil {
+	if err := m.solveCollisions(); err != nil {
 		return Model{}, err
 	}
 	for i := range m.Groups {
@@ -196,8 +195,14 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 
 // solveCollisions fills Load, Vulnerable, UplinkSuccess, Frames and Windows
 // of every data rate of every group.
-func (m *Model) solveCollisions(channels int) error {
+func (m *Model) solveCollisions() error {
 	const maxIter = 200
+	channels := map[int]int{}
+	for _, g := range m.Groups {
+		for _, d := range g.PerDR {
+			channels[d.DR] = Channels(m.Scenario.Region, d.DR)
+		}
+	}
 	for iter := 0; ; iter++ {
 		change := 0.0
 		for gi := range m.Groups {
@@ -220,16 +225,16 @@ func (m *Model) solveCollisions(channels int) error {
 						others--
 					}
 					others *= hd.Share
-					all, err := lora.OfferedLoad(n, hd.Frames, hd.Airtime, h.Group.Interval, channels)
+					all, err := lora.OfferedLoad(n, hd.Frames, hd.Airtime, h.Group.Interval, channels[dm.DR])
 					if err != nil {
 						return err
 					}
 					total += all
-					ob, err := lora.OfferedLoad(others, hd.Frames, hd.Airtime, h.Group.Interval, channels)
+					ob, err := lora.OfferedLoad(others, hd.Frames, hd.Airtime, h.Group.Interval, channels[dm.DR])
 					if err != nil {
 						return err
 					}
-					oa, err := lora.OfferedLoad(others, hd.Frames, dm.Airtime, h.Group.Interval, channels)
+					oa, err := lora.OfferedLoad(others, hd.Frames, dm.Airtime, h.Group.Interval, channels[dm.DR])
 					if err != nil {
 						return err
 					}
@@ -267,6 +272,23 @@ func (m *Model) solveCollisions(channels int) error {
 			return fmt.Errorf("scenario: the retransmission load did not settle after %d rounds (last change %.3g frames)", maxIter, change)
 		}
 	}
+}
+
+// Channels returns the number of the region's uplink channels that carry
+// data rate dr (EU863-870: the 3 default channels for DR0 … DR5;
+// US902-928: 64 channels of 125 kHz for DR0 … DR3, 8 of 500 kHz for DR4),
+// over which a data rate's frames spread evenly. The gateway is taken to
+// hear every one of them; one that listens on fewer (a US902-928 gateway on
+// one sub-band of 8 + 1 channels, common practice) meets a load as many
+// times higher as it hears fewer channels.
+func Channels(r lora.Region, dr int) int {
+	n := 0
+	for _, c := range r.UplinkChannels() {
+		if dr >= c.MinDR && dr <= c.MaxDR {
+			n++
+		}
+	}
+	return n
 }
 
 func (g *GroupModel) drModel(dr int) (DRModel, bool) {

@@ -233,3 +233,42 @@ func TestGroupWhollyOutOfReach(t *testing.T) {
 	_, err = g.UnheardCycle()
 	require.ErrorIs(t, err, scenario.ErrInvalid)
 }
+
+// The US902-928 test site: 15 TXPower levels from 30 dBm down (RP002-1.0.3
+// §2.5, from memory), 64 uplink channels of 125 kHz for DR0 … DR3 and 8 of
+// 500 kHz for DR4 (same source), and EU863-870's 3 default channels for
+// DR0 … DR5. With one unconfirmed group the load its frames meet is the
+// other nodes' Σ share·airtime/(T·channels) per data rate, and the success
+// exp(−2G') (Abramson 1970), worked by hand here.
+func TestUS902928Site(t *testing.T) {
+	s, err := scenario.Load("testdata/us902-928.json")
+	require.NoError(t, err)
+	assert.Equal(t, "US902-928", s.Region.Name())
+	require.Len(t, s.Nodes[0].Transmit, 15)
+	for i, lv := range s.Nodes[0].Transmit {
+		assert.Equal(t, 30-2*float64(i), lv.EIRP)
+	}
+	for dr, want := range map[int]int{0: 64, 1: 64, 2: 64, 3: 64, 4: 8} {
+		assert.Equal(t, want, scenario.Channels(s.Region, dr), "US902-928 DR%d", dr)
+	}
+	for dr := range 6 {
+		assert.Equal(t, 3, scenario.Channels(lora.EU868(), dr), "EU863-870 DR%d", dr)
+	}
+
+	s.Groups = s.Groups[:1]
+	m, err := scenario.Build(s, nil)
+	require.NoError(t, err)
+	g := m.Groups[0]
+	assert.Equal(t, lora.Setting{DR: 0, TXPower: 0, EIRP: 30, Prob: g.OutOfReach}, g.Unheard)
+	n, T := float64(s.Groups[0].Nodes), s.Groups[0].Interval
+	require.Len(t, g.PerDR, 5)
+	for _, d := range g.PerDR {
+		ch := map[bool]float64{true: 8, false: 64}[d.DR == 4]
+		want := (n - 1) * d.Share * d.Airtime / (T * ch)
+		assert.InDelta(t, want, d.Vulnerable, 1e-15, "DR%d", d.DR)
+		assert.InDelta(t, math.Exp(-2*want), d.UplinkSuccess, 1e-15, "DR%d", d.DR)
+	}
+	c, err := g.UnheardCycle()
+	require.NoError(t, err)
+	assert.Positive(t, c.MeanEnergy())
+}

@@ -48,10 +48,15 @@ func Parse(data []byte) (Scenario, error) {
 	s.Description = top.str("description", false)
 	regionOK := false
 	if name := top.str("region", true); name != "" {
-		if eu := lora.EU868(); name == eu.Name() {
-			s.Region, regionOK = eu, true
-		} else {
-			c.fail("region", name, fmt.Sprintf("must be %q (the only region modelled so far)", eu.Name()))
+		var names []string
+		for _, r := range lora.Regions() {
+			names = append(names, fmt.Sprintf("%q", r.Name()))
+			if r.Name() == name {
+				s.Region, regionOK = r, true
+			}
+		}
+		if !regionOK {
+			c.fail("region", name, "must be a region package lora models: "+strings.Join(names, ", "))
 		}
 	}
 	env, _ := top.get("radio_environment")

@@ -205,8 +205,14 @@ func TestMalformedRejected(t *testing.T) {
 			return mutate(t, func(m map[string]any) { node0(m)["sleep_current_log_sd"] = -0.1 })
 		}, "nodes[0].sleep_current_log_sd", "-0.1", "in [0, 1]"},
 		{"region not modelled", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { m["region"] = "KR920-923" })
+		}, "region", `"KR920-923"`, `must be a region package lora models: "EU863-870", "US902-928"`},
+		// US902-928's TXPower 0 … 14 run from 30 dBm down in 2 dB steps
+		// (RP002-1.0.3 §2.5, from memory): the demo's EU863-870 table of
+		// 16 … 2 dBm lacks seven of them.
+		{"transmit levels of another region", func(t *testing.T) []byte {
 			return mutate(t, func(m map[string]any) { m["region"] = "US902-928" })
-		}, "region", `"US902-928"`, `must be "EU863-870"`},
+		}, "nodes[0].transmit_current_ma", "8 levels", "missing 30, 28, 26, 24, 22, 20, 18 dBm"},
 		{"overlapping service areas", func(t *testing.T) []byte {
 			return mutate(t, func(m map[string]any) {
 				obj(m["gateways"].([]any)[1])["x_m"] = 5000

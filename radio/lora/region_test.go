@@ -206,3 +206,12 @@ func TestRegionCopies(t *testing.T) {
 	c[0].Frequency = 0
 	assert.Equal(t, 868.1e6, eu.UplinkChannels()[0].Frequency)
 }
+
+// Regions lists each modelled region once, by its RP002-1.0.3 name.
+func TestRegionsListed(t *testing.T) {
+	var names []string
+	for _, r := range lora.Regions() {
+		names = append(names, r.Name())
+	}
+	assert.Equal(t, []string{"EU863-870", "US902-928"}, names)
+}

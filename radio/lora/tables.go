@@ -22,6 +22,10 @@ func classATiming() Timing {
 	}
 }
 
+// Regions returns every region this package models, in a fixed order
+// (EU863-870, US902-928): for a program that looks a region up by its name.
+func Regions() []Region { return []Region{EU868(), US915()} }
+
 // EU868 returns the EU863-870 region (RP002-1.0.3 §2.4, "EU863-870 ISM
 // band"). Data rates DR0 … DR6 are LoRa (SF12 … SF7 at 125 kHz, SF7 at
 // 250 kHz); DR7 (FSK) and DR8 … DR11 (LR-FHSS) are listed but not modelled.

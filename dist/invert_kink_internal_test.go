@@ -18,6 +18,9 @@ import (
 // is below N^-p/|1 - exp(iφ)| and left out (φ >= 1e-3 keeps that below
 // 1e-4 of the remainder).
 func TestTailBoundAlgebraicTerms(t *testing.T) {
+	if testing.Short() {
+		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
+	}
 	const K, N = 4096, 1 << 21
 	type comp struct{ a, p, phi float64 }
 	run := func(cs []comp) (rem, bound float64) {

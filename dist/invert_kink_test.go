@@ -89,6 +89,9 @@ func trapDensity(w float64) func(float64) float64 {
 }
 
 func TestSumKinkedDensityStatedBound(t *testing.T) {
+	if testing.Short() {
+		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
+	}
 	tnDens := truncNormalDensity(1, 0.5, 0, 3)
 	tests := []struct {
 		name       string
@@ -255,6 +258,9 @@ func TestSumKinkedDensityStatedBound(t *testing.T) {
 // Kolmogorov–Smirnov distance at level 1e-6 (Dvoretzky–Kiefer–Wolfowitz–
 // Massart bound, testref.KSCritical), fixed seed.
 func TestSumKinkedDensityMonteCarlo(t *testing.T) {
+	if testing.Short() {
+		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
+	}
 	terms := []dist.Law{
 		dist.MustDiscrete([]float64{0, 0.4, 1.2}, []float64{0.5, 0.3, 0.2}),
 		dist.MustGamma(2.5, 2),

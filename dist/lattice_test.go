@@ -51,6 +51,9 @@ func binomialByRatios(n int, p float64) (lo int, cdf, surv []float64) {
 }
 
 func TestSumIIDLatticeFFTIsBinomial(t *testing.T) {
+	if testing.Short() {
+		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
+	}
 	// k-fold sums of a law on a lattice v0 + m·δ far beyond the exact
 	// convolution's atom limit. The terms Binomial(2, p), Binomial(3, p)
 	// and Binomial(40, p) on the lattice: their k-fold sums are

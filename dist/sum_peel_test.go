@@ -120,6 +120,9 @@ func TestRandomSumUniformTermIsIrwinHallMixture(t *testing.T) {
 }
 
 func TestRandomSumGeometricUniformMonteCarlo(t *testing.T) {
+	if testing.Short() {
+		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
+	}
 	// A geometric count on {1, 2, …} (infinite support) of Uniform(2, 5)
 	// terms has no closed form: sampling from the structure (draw N, then N
 	// terms) is the independent path, Kolmogorov–Smirnov at level 1e-6
@@ -150,6 +153,9 @@ func TestRandomSumGeometricUniformMonteCarlo(t *testing.T) {
 }
 
 func TestSumIIDOfDiscretePlusUniform(t *testing.T) {
+	if testing.Short() {
+		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
+	}
 	// (D + U)^{*k} = D^{*k} + U^{*k}: for D on {0, 3} (0.6, 0.4) and
 	// U ~ Uniform(0, 1) the oracle is Σ_m P(D^{*k} = 3m)·IH_k(x - 3m), the
 	// binomial masses times the Irwin–Hall law (irwinHallCDF; Johnson, Kotz

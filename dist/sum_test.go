@@ -344,6 +344,9 @@ func (g geometric) Support() (lo, hi float64) { return 1, math.Inf(1) }
 func (g geometric) Rand(r *rand.Rand) float64 { return g.Quantile(r.Float64()) }
 
 func TestSixTermSumMonteCarlo(t *testing.T) {
+	if testing.Short() {
+		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
+	}
 	// The benchmark sum: no closed form, so the independent path is sampling
 	// from the structure (each term's own sampler), Kolmogorov–Smirnov at
 	// level 1e-6 (testref.KSCritical, DKW/Massart).

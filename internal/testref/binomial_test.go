@@ -139,6 +139,9 @@ func TestBinomialMedianHalf(t *testing.T) {
 // big-integer sums (the binomial theorem, binomialTailsBig), at short
 // dyadic p so that the exact integers stay small.
 func TestBinomialTailsFarExact(t *testing.T) {
+	if testing.Short() {
+		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
+	}
 	const n = 20000
 	for _, p := range []float64{0.5, 0.03125, 0.75} {
 		le, ge := binomialTailsBig(n, p)

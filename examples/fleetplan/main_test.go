@@ -29,7 +29,8 @@ func TestDefaultReport(t *testing.T) {
 	for _, want := range []string{
 		"Fleet energy plan: Lower Quillmoor polder district (fictional)",
 		"Group 1 of 4: dyke piezometers", "Group 4 of 4: weather masts",
-		"energy per cycle", "where it goes", "of variance", "data rates", "DR5 (SF7/125 kHz)",
+		"energy per cycle", "where it goes", "runs per cycle", "mean (mJ)", "of variance", "negative for a state that runs instead of a costlier one",
+		"data rates", "DR5 (SF7/125 kHz)",
 		"duty cycle", "battery lifetime", "Fleet: energy per cycle", "largest of 304", "smallest of 304",
 		"outlier threshold", "first failure", "1 % at end", "10 % at end", "50 % at end", "planned replacement",
 		"usable capacity", "calendar limit", "spread of the lifetime (shares of its variance)", "climate", "cell batch capacity sd",
@@ -51,6 +52,8 @@ func TestDefaultReport(t *testing.T) {
 	assert.Contains(t, errs, "fleetplan [", "progress goes to stderr")
 	assert.NotContains(t, out, "fleetplan [")
 	assert.NotContains(t, out, "NaN")
+	assert.NotContains(t, out, "e+", "no figure in exponent form")
+	assert.NotContains(t, out, "e-0", "no figure in exponent form")
 }
 
 func TestJSON(t *testing.T) {

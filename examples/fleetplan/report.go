@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strconv"
 	"strings"
 )
 
@@ -22,16 +23,53 @@ func joules(x float64) string {
 	}
 }
 
-// joulePair formats an interval of energies in one unit.
-func joulePair(v [2]float64) string {
-	unit, f := "J", 1.0
-	switch a := math.Abs(v[1]); {
-	case a < 1e-3:
-		unit, f = "µJ", 1e6
-	case a < 1:
-		unit, f = "mJ", 1e3
+// energyUnit is a unit of energy for a line or a column of figures: the
+// largest of J, mJ and µJ in which ref (J) is at least 1, so that every
+// figure sharing it reads in one unit.
+type energyUnit struct {
+	name   string
+	factor float64 // figures in this unit per joule
+}
+
+func unitFor(ref float64) energyUnit {
+	switch a := math.Abs(ref); {
+	case a >= 1:
+		return energyUnit{"J", 1}
+	case a >= 1e-3:
+		return energyUnit{"mJ", 1e3}
+	default:
+		return energyUnit{"µJ", 1e6}
 	}
-	return fmt.Sprintf("[%.3g, %.3g] %s", v[0]*f, v[1]*f, unit)
+}
+
+// num prints x (J) in the unit with three significant digits and no
+// exponent, without the unit's name.
+func (u energyUnit) num(x float64) string { return sig3(x * u.factor) }
+
+// with prints x (J) in the unit, with its name.
+func (u energyUnit) with(x float64) string { return u.num(x) + " " + u.name }
+
+// pair prints an interval (J) in the unit: "[a, b] mJ".
+func (u energyUnit) pair(v [2]float64) string {
+	return fmt.Sprintf("[%s, %s] %s", u.num(v[0]), u.num(v[1]), u.name)
+}
+
+// sig3 prints x with three significant digits in plain decimals (1010,
+// 22.2, 0.0163), never in exponent form.
+func sig3(x float64) string {
+	if x == 0 || math.IsNaN(x) || math.IsInf(x, 0) {
+		return fmt.Sprintf("%g", x)
+	}
+	r, err := strconv.ParseFloat(fmt.Sprintf("%.3g", x), 64)
+	if err != nil {
+		r = x
+	}
+	decimals := max(0, 2-int(math.Floor(math.Log10(math.Abs(r)))))
+	t := strconv.FormatFloat(r, 'f', decimals, 64)
+	if strings.Contains(t, ".") {
+		t = strings.TrimRight(strings.TrimRight(t, "0"), ".")
+	}
+	return t
 }
 
 // amps formats a current in mA or µA.
@@ -129,17 +167,28 @@ func writeReport(w io.Writer, p *Plan) {
 		row("traffic", "%d-byte uplinks %s, %s", g.PayloadBytes, every, kind)
 		row("hardware", "%s, %s; %s", g.Node, g.Supply, g.Cell)
 		e := g.EnergyPerCycle
-		row("energy per cycle", "mean %s, sd %s", joules(e.Mean), joules(e.SD))
-		more("90 %% of cycles in %s, 99 %% in %s", joulePair(e.In90), joulePair(e.In99))
+		eu := unitFor(e.Mean)
+		row("energy per cycle", "mean %s, sd %s", eu.with(e.Mean), eu.with(e.SD))
+		more("90 %% of cycles in %s, 99 %% in %s", eu.pair(e.In90), eu.pair(e.In99))
 		row("energy per day", "%s on average", joules(g.EnergyPerDay))
 		row("average current", "%s over the group; 90 %% of nodes between %s and %s", amps(g.Current.Mean), amps(g.Current.In90[0]), amps(g.Current.In90[1]))
-		row("where it goes", "%-26s %8s %10s %9s %12s", "state", "runs", "mean", "of mean", "of variance")
+		top := 0.0
+		for _, s := range g.Breakdown {
+			top = math.Max(top, s.MeanEnergyJ)
+		}
+		bu := unitFor(top)
+		row("where it goes", "%-26s %14s %12s %9s %12s", "state", "runs per cycle", "mean ("+bu.name+")", "of mean", "of variance")
 		for _, s := range g.Breakdown {
 			vs := math.NaN()
 			if s.ShareVariance != nil {
 				vs = *s.ShareVariance
 			}
-			more("%-26s %8.3g %10s %9s %12s", s.State, s.RunsPerCycle, joules(s.MeanEnergyJ), pct(s.ShareMean), pct(vs))
+			more("%-26s %14s %12s %9s %12s", s.State, sig3(s.RunsPerCycle), bu.num(s.MeanEnergyJ), pct(s.ShareMean), pct(vs))
+		}
+		if i == 0 {
+			more("(runs per cycle: times the state runs in a cycle, on average, below 1 when it runs in some")
+			more("cycles only; of variance: its covariance with the cycle's energy over that energy's variance,")
+			more("summing to 100 %%: negative for a state that runs instead of a costlier one)")
 		}
 		row("data rates", "%-18s %8s %9s %8s %9s %8s %8s %8s", "", "of nodes", "airtime", "load", "uplink ok", "tx/rep", "dl RX1", "dl RX2")
 		for _, d := range g.DataRates {
@@ -255,10 +304,11 @@ func writeReport(w io.Writer, p *Plan) {
 	fl := p.Fleet
 	fmt.Fprintln(w, "Fleet: energy per cycle")
 	fmt.Fprintln(w, "-----------------------")
-	row("a node's cycle", "mean %s, 90 %% in %s", joules(fl.EnergyPerCycle.Mean), joulePair(fl.EnergyPerCycle.In90))
-	row(fmt.Sprintf("largest of %d", p.Nodes), "mean %s, 90 %% in %s", joules(fl.MaxPerCycle.Mean), joulePair(fl.MaxPerCycle.In90))
-	row(fmt.Sprintf("smallest of %d", p.Nodes), "mean %s, 90 %% in %s", joules(fl.MinPerCycle.Mean), joulePair(fl.MinPerCycle.In90))
-	row("outlier threshold", "%s: the fleet's largest cycle exceeds it in %s of cycles", joules(fl.OutlierJ), pct(fl.OutlierLevel))
+	fu := unitFor(fl.EnergyPerCycle.Mean)
+	row("a node's cycle", "mean %s, 90 %% in %s", fu.with(fl.EnergyPerCycle.Mean), fu.pair(fl.EnergyPerCycle.In90))
+	row(fmt.Sprintf("largest of %d", p.Nodes), "mean %s, 90 %% in %s", fu.with(fl.MaxPerCycle.Mean), fu.pair(fl.MaxPerCycle.In90))
+	row(fmt.Sprintf("smallest of %d", p.Nodes), "mean %s, 90 %% in %s", fu.with(fl.MinPerCycle.Mean), fu.pair(fl.MinPerCycle.In90))
+	row("outlier threshold", "%s: the fleet's largest cycle exceeds it in %s of cycles", fu.with(fl.OutlierJ), pct(fl.OutlierLevel))
 	more("a node above it more often is worth a look (stuck retransmissions, a failing sensor)")
 	fmt.Fprintln(w)
 

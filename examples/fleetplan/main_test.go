@@ -345,3 +345,21 @@ func TestUS902928Plan(t *testing.T) {
 	}
 	assert.True(t, found, "the channel caution")
 }
+
+// Each group's outlier threshold is the upper 1 % point of the largest of
+// its n cycles: P(max > x) = 1 − F(x)^n = −expm1(n·log1p(−S(x))) (independent
+// nodes; the closed form, evaluated here from the group's law) is at most
+// 1 % at the threshold and above 1 % just below it.
+func TestGroupOutlierThresholds(t *testing.T) {
+	p, err := buildPlan(scenario.Demo(), "demo", func(string, ...any) {})
+	require.NoError(t, err)
+	for i, g := range p.Groups {
+		l := p.laws.groupEnergy[i]
+		n := float64(g.Nodes)
+		over := func(x float64) float64 { return -math.Expm1(n * math.Log1p(-l.Survival(x))) }
+		x := g.OutlierJ
+		assert.LessOrEqual(t, over(x), outlierLevel*(1+1e-9), g.Name)
+		assert.Greater(t, over(x*(1-1e-6)), outlierLevel, g.Name)
+		assert.LessOrEqual(t, x, p.Fleet.OutlierJ*(1+1e-9), "no group's threshold above the fleet's")
+	}
+}

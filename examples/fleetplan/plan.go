@@ -89,12 +89,16 @@ type GroupPlan struct {
 	Confirmed       bool    `json:"confirmed"`
 	MaxTransmission int     `json:"max_transmissions"`
 
-	EnergyPerCycle Summary     `json:"energy_per_cycle_j"`
-	EnergyPerDay   float64     `json:"mean_energy_per_day_j"`
-	Current        CurrentPlan `json:"average_current_a"`
-	Breakdown      []StatePlan `json:"breakdown"`
-	DataRates      []DRPlan    `json:"data_rates"`
-	OutOfReach     float64     `json:"out_of_reach_share"`
+	EnergyPerCycle Summary `json:"energy_per_cycle_j"`
+	EnergyPerDay   float64 `json:"mean_energy_per_day_j"`
+	// OutlierJ is the energy the group's largest cycle exceeds in
+	// OutlierLevel of cycles (the fleet's own threshold is set by its
+	// heaviest group and says little about the others).
+	OutlierJ   float64     `json:"outlier_threshold_j"`
+	Current    CurrentPlan `json:"average_current_a"`
+	Breakdown  []StatePlan `json:"breakdown"`
+	DataRates  []DRPlan    `json:"data_rates"`
+	OutOfReach float64     `json:"out_of_reach_share"`
 	// OutOfReachPlanned is the share planned at the ADR back-off setting
 	// (scenario.GroupModel.Unheard): OutOfReach, or 0 below
 	// scenario.UnheardFloor, or 1 when the in-reach share is below it.
@@ -391,6 +395,11 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle
 		return gp, nil, nil, err
 	}
 	gp.EnergyPerDay = eLaw.Mean() / g.Period.Mean() * energy.Day
+	mx, err := orderstat.Max(eLaw, int64(gr.Nodes))
+	if err != nil {
+		return gp, nil, nil, err
+	}
+	gp.OutlierJ = mx.UpperQuantile(outlierLevel)
 
 	cur, err := dist.NewDiscrete(currents, w)
 	if err != nil {

@@ -171,6 +171,7 @@ func writeReport(w io.Writer, p *Plan) {
 		row("energy per cycle", "mean %s, sd %s", eu.with(e.Mean), eu.with(e.SD))
 		more("90 %% of cycles in %s, 99 %% in %s", eu.pair(e.In90), eu.pair(e.In99))
 		row("energy per day", "%s on average", joules(g.EnergyPerDay))
+		row("outlier threshold", "%s: the group's largest cycle exceeds it in %s of cycles", eu.with(g.OutlierJ), pct(p.Fleet.OutlierLevel))
 		row("average current", "%s over the group; 90 %% of nodes between %s and %s", amps(g.Current.Mean), amps(g.Current.In90[0]), amps(g.Current.In90[1]))
 		top := 0.0
 		for _, s := range g.Breakdown {
@@ -309,7 +310,9 @@ func writeReport(w io.Writer, p *Plan) {
 	row(fmt.Sprintf("largest of %d", p.Nodes), "mean %s, 90 %% in %s", fu.with(fl.MaxPerCycle.Mean), fu.pair(fl.MaxPerCycle.In90))
 	row(fmt.Sprintf("smallest of %d", p.Nodes), "mean %s, 90 %% in %s", fu.with(fl.MinPerCycle.Mean), fu.pair(fl.MinPerCycle.In90))
 	row("outlier threshold", "%s: the fleet's largest cycle exceeds it in %s of cycles", fu.with(fl.OutlierJ), pct(fl.OutlierLevel))
-	more("a node above it more often is worth a look (stuck retransmissions, a failing sensor)")
+	more("a node above its group's threshold in more cycles than that, and not at the slowest data rates")
+	more("(whose nodes keep them and exceed it routinely), is worth a look (stuck retransmissions, a")
+	more("failing sensor); the fleet's threshold is set by its heaviest group")
 	fmt.Fprintln(w)
 
 	fmt.Fprintln(w, "Fleet: batteries and replacement")

@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -61,6 +62,69 @@ func writeFigures(p *Plan, dir string) ([]string, error) {
 	return written, nil
 }
 
+// roundTicks puts labelled ticks at round steps (1, 2 or 5 times a power of
+// ten, common practice for chart axes) giving 3 to 9 labels, with an
+// unlabelled tick halfway between, and labels in plain decimals without
+// trailing zeros ("0, 5, 10" rather than "0.00, 5.00, 10.00").
+type roundTicks struct{}
+
+// Ticks implements plot.Ticker.
+func (roundTicks) Ticks(lo, hi float64) []plot.Tick {
+	if !(hi > lo) || math.IsInf(lo, 0) || math.IsInf(hi, 0) {
+		return nil
+	}
+	step := roundStep((hi - lo) / 8)
+	var ticks []plot.Tick
+	for k := math.Ceil(lo / step * 2); k <= math.Floor(hi/step*2); k++ {
+		x := k * step / 2
+		if math.Mod(k, 2) != 0 {
+			ticks = append(ticks, plot.Tick{Value: x})
+			continue
+		}
+		ticks = append(ticks, plot.Tick{Value: x, Label: strconv.FormatFloat(roundTo(x, step), 'f', -1, 64)})
+	}
+	return ticks
+}
+
+// decadeTicks labels each power of ten of a logarithmic axis: plain
+// decimals down to 0.001, then 1e-4, 1e-5, ….
+type decadeTicks struct{}
+
+// Ticks implements plot.Ticker.
+func (decadeTicks) Ticks(lo, hi float64) []plot.Tick {
+	if !(lo > 0) || !(hi > lo) || math.IsInf(hi, 0) {
+		return nil
+	}
+	var ticks []plot.Tick
+	for k := math.Ceil(math.Log10(lo) - 1e-9); k <= math.Floor(math.Log10(hi)+1e-9); k++ {
+		label := fmt.Sprintf("1e%d", int(k))
+		if k >= -3 {
+			label = strconv.FormatFloat(math.Pow(10, k), 'f', -1, 64)
+		}
+		ticks = append(ticks, plot.Tick{Value: math.Pow(10, k), Label: label})
+	}
+	return ticks
+}
+
+// roundStep returns the smallest of 1, 2 and 5 times a power of ten that is
+// at least x (> 0).
+func roundStep(x float64) float64 {
+	p := math.Pow(10, math.Floor(math.Log10(x)))
+	for _, m := range []float64{1, 2, 5, 10} {
+		if m*p >= x*(1-1e-12) {
+			return m * p
+		}
+	}
+	return 10 * p
+}
+
+// roundTo rounds x to a multiple of step's decimal digits, so that 0.30000000000000004 prints as 0.3.
+func roundTo(x, step float64) float64 {
+	d := math.Max(0, -math.Floor(math.Log10(step))+1)
+	f := math.Pow(10, d)
+	return math.Round(x*f) / f
+}
+
 func style(pl *plot.Plot, title, x, y string) {
 	pl.Title.Text = title
 	pl.Title.TextStyle.Font.Size = vg.Points(11)
@@ -69,20 +133,18 @@ func style(pl *plot.Plot, title, x, y string) {
 	pl.Legend.Top = true
 	pl.Legend.TextStyle.Font.Size = vg.Points(8)
 	pl.Add(plotter.NewGrid())
+	pl.X.Tick.Marker = roundTicks{}
+	pl.Y.Tick.Marker = roundTicks{}
 }
 
-// binned returns the probability per mJ of l over the bins [edges[i],
-// edges[i+1]) given in J, as a step curve (x in mJ), floored at floor for a
-// logarithmic axis.
-func binned(l dist.Law, edges []float64, floor float64) plotter.XYs {
-	var pts plotter.XYs
-	prev := l.CDF(edges[0])
-	for i := 0; i+1 < len(edges); i++ {
-		next := l.CDF(edges[i+1])
-		d := (next - prev) / ((edges[i+1] - edges[i]) * 1e3)
-		prev = next
-		d = math.Max(d, floor)
-		pts = append(pts, plotter.XY{X: edges[i] * 1e3, Y: d}, plotter.XY{X: edges[i+1] * 1e3, Y: d})
+// exceedance returns P(E > x) of l at the energies xs (J), as a curve in
+// mJ, floored at floor for a logarithmic axis. The survival is computed
+// directly (never 1 − CDF), so the far tail is accurate; a law with atoms
+// shows as steps rather than as spikes of a density.
+func exceedance(l dist.Law, xs []float64, floor float64) plotter.XYs {
+	pts := make(plotter.XYs, len(xs))
+	for i, x := range xs {
+		pts[i] = plotter.XY{X: x * 1e3, Y: math.Max(l.Survival(x), floor)}
 	}
 	return pts
 }
@@ -90,7 +152,7 @@ func binned(l dist.Law, edges []float64, floor float64) plotter.XYs {
 func energyFigure(p *Plan) (*plot.Plot, error) {
 	pl := plot.New()
 	style(pl, fmt.Sprintf("Energy per cycle: a node of the fleet, and the largest and smallest of %d nodes", p.Nodes),
-		"energy per cycle (mJ)", "probability per mJ (log scale)")
+		"energy per cycle (mJ)", "probability of exceeding it (log scale)")
 	l := p.laws
 	lo, _ := l.minEnergy.Support()
 	hi := l.maxEnergy.UpperQuantile(1e-6)
@@ -100,14 +162,14 @@ func energyFigure(p *Plan) (*plot.Plot, error) {
 		span = 0.1 * hi
 	}
 	lo, hi = math.Max(0, lo-0.03*span), hi+0.03*span
-	const bins = 240
-	edges := make([]float64, bins+1)
-	for i := range edges {
-		edges[i] = lo + (hi-lo)*float64(i)/bins
+	const points = 600
+	xs := make([]float64, points+1)
+	for i := range xs {
+		xs[i] = lo + (hi-lo)*float64(i)/points
 	}
 	const floor = 1e-7
 	pl.Y.Scale = plot.LogScale{}
-	pl.Y.Tick.Marker = plot.LogTicks{Prec: 1}
+	pl.Y.Tick.Marker = decadeTicks{}
 	curves := []struct {
 		name string
 		law  dist.Law
@@ -118,7 +180,7 @@ func energyFigure(p *Plan) (*plot.Plot, error) {
 		{fmt.Sprintf("smallest of %d", p.Nodes), l.minEnergy, colour(3)},
 	}
 	for _, c := range curves {
-		line, err := plotter.NewLine(binned(c.law, edges, floor))
+		line, err := plotter.NewLine(exceedance(c.law, xs, floor))
 		if err != nil {
 			return nil, err
 		}
@@ -127,7 +189,7 @@ func energyFigure(p *Plan) (*plot.Plot, error) {
 		pl.Add(line)
 		pl.Legend.Add(c.name, line)
 	}
-	pl.Y.Min, pl.Y.Max = floor, math.Max(pl.Y.Max, 1)
+	pl.Y.Min, pl.Y.Max = floor, 1.5
 	if err := markX(pl, p.Fleet.OutlierJ*1e3, colour(6), "outlier threshold"); err != nil {
 		return nil, err
 	}

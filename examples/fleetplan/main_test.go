@@ -29,7 +29,7 @@ func TestDefaultReport(t *testing.T) {
 	for _, want := range []string{
 		"Fleet energy plan: Lower Quillmoor polder district (fictional)",
 		"Group 1 of 4: dyke piezometers", "Group 4 of 4: weather masts",
-		"energy per cycle", "where it goes", "runs per cycle", "mean (mJ)", "of variance", "negative for a state that runs instead of a costlier one",
+		"energy per cycle", "where it goes", "runs per cycle", "mean (mJ)", "of variance", "for a state that runs instead of a costlier one, which may then exceed 100 %",
 		"data rates", "DR5 (SF7/125 kHz)",
 		"duty cycle", "battery lifetime", "Fleet: energy per cycle", "largest of 304", "smallest of 304",
 		"outlier threshold", "first failure", "1 % at end", "10 % at end", "50 % at end", "planned replacement",

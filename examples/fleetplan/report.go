@@ -187,9 +187,9 @@ func writeReport(w io.Writer, p *Plan) {
 			more("%-26s %14s %12s %9s %12s", s.State, sig3(s.RunsPerCycle), bu.num(s.MeanEnergyJ), pct(s.ShareMean), pct(vs))
 		}
 		if i == 0 {
-			more("(runs per cycle: times the state runs in a cycle, on average, below 1 when it runs in some")
-			more("cycles only; of variance: its covariance with the cycle's energy over that energy's variance,")
-			more("summing to 100 %%: negative for a state that runs instead of a costlier one)")
+			more("(runs per cycle: times the state runs in a cycle, on average, below 1 when it runs in some cycles")
+			more("only; of variance: covariance with the cycle's energy over its variance, summing to 100 %%: negative")
+			more("for a state that runs instead of a costlier one, which may then exceed 100 %%)")
 		}
 		row("data rates", "%-18s %8s %9s %8s %9s %8s %8s %8s", "", "of nodes", "airtime", "load", "uplink ok", "tx/rep", "dl RX1", "dl RX2")
 		for _, d := range g.DataRates {

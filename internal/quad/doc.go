@@ -37,10 +37,13 @@
 // ends, so t = 0 is never used. An integral over (−∞, ∞) is split at 0.
 //
 // Caps: Options.MaxEvals at most 1<<20 integrand evaluations (so at most
-// 69 905 panels, 15 evaluations each); at most 1<<12 breakpoints; at most
-// 1<<16 components of a vector integrand. The workspace of one call is a
-// panel slice (32 bytes a panel, plus 8 bytes a component for vector
-// integrands) and a heap of panel indices, allocated once per call and
+// 69 905 panels, 15 evaluations each); at most 1<<16 breakpoints
+// (MaxBreaks; their first pass takes at most 983 025 evaluations); at most
+// 1<<16 components of a vector integrand (MaxDim). The workspace of one
+// call is a panel slice (40 bytes a panel, plus 8 bytes a panel and
+// component for the values, plus 120 bytes a panel for Partition's node
+// values), a heap of panel indices (4 bytes a panel) and 19 float64 a
+// component of scratch, allocated once per call (64 panels to start) and
 // grown by doubling; nothing is kept between calls, so every function is
 // safe for concurrent use and deterministic: the same call gives the same
 // bits whatever ran before.

@@ -122,7 +122,7 @@ func Infinite(f func(x float64) float64, a, b float64, opt Options) (Result, err
 // Breaks integrates f over [pts[0], pts[len(pts)−1]], starting from the
 // panels between consecutive points (where f may jump, kink or be
 // singular), then bisecting globally as Adaptive does (QUADPACK's DQAGP).
-// pts must be sorted (non-decreasing), at least 2 and at most 1<<12
+// pts must be sorted (non-decreasing), at least 2 and at most 1<<16
 // (MaxBreaks) points; the first may be −Inf and the last +Inf (mapped as
 // in Infinite). Equal consecutive points are skipped. The first pass
 // evaluates every panel even beyond MaxEvals (then err wraps ErrBudget).

@@ -165,7 +165,9 @@ func newNode(fn string, spec NodeSpec, env Environment) (*node, error) {
 
 	// The year month by month from deployment: floor factor, self-discharge
 	// factor and capacity derating at each month's temperature.
-	derate := 1.0
+	// Without a Thermal the battery's single derating factor holds; with one
+	// its table replaces it.
+	derate := b.spec.TemperatureDerating
 	coldest := math.Inf(1)
 	for i := range 12 {
 		n.floorRate[i], n.sdFactor[i] = 1, 1

@@ -147,7 +147,7 @@ func TestParallelJoinsErrors(t *testing.T) {
 // loraAirtimeSF12 is the LoRa time on air at SF12, 125 kHz, coding rate 4/5,
 // 8 preamble symbols, explicit header, payload CRC on and low-data-rate
 // optimisation on, for a PHY payload of n bytes, by the published formula
-// (Semtech SX1276 data sheet §4.1.1.6; Augustin et al., Sensors 16(9):1466,
+// (Augustin et al., Sensors 16(9):1466,
 // 2016), written out here by hand:
 //
 //	n_payload = 8 + max(ceil((8n − 4·SF + 28 + 16)/(4·(SF − 2)))·5, 0)

@@ -13,15 +13,10 @@ func integrate(f func(float64) float64, a, b, abs, rel float64) (float64, error)
 	return r.Value, err
 }
 
-// integratePieces returns ∫_a^b f and its error estimate, starting from the
-// panels between a, the breakpoints brk (sorted, inside (a, b)) and b; the
-// target is a relative error of 1e-10 (absolute 1e-300), so that a tail
-// probability keeps its relative precision.
-func integratePieces(f func(float64) float64, a, b float64, brk []float64) (float64, float64) {
-	return integratePiecesTol(f, a, b, brk, 1e-10)
-}
-
-// integratePiecesTol is integratePieces to the relative error rel.
+// integratePiecesTol returns ∫_a^b f and its error estimate, starting from
+// the panels between a, the breakpoints brk (sorted, inside (a, b)) and b,
+// to the relative error rel (absolute 1e-300, so that a tail probability
+// keeps its relative precision).
 func integratePiecesTol(f func(float64) float64, a, b float64, brk []float64, rel float64) (float64, float64) {
 	pts := make([]float64, 0, len(brk)+2)
 	pts = append(pts, a)

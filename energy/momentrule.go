@@ -12,9 +12,8 @@ import "math"
 // varies between nodes, so three nodes reach rounding; the difference from
 // the two-node rule is reported as its error.
 type momentRule struct {
-	n       int
-	x, w    [3]float64
-	fellTo1 bool // the moments allow no two-point rule: a point mass
+	n    int
+	x, w [3]float64
 }
 
 // newMomentRule returns the n-node rule (n = 1, 2 or 3) for the law with
@@ -24,7 +23,7 @@ type momentRule struct {
 // than nodes) falls back to fewer nodes.
 func newMomentRule(n int, mu, k2, l3, l4, l5 float64) momentRule {
 	if !(k2 > 0) || n <= 1 {
-		return momentRule{n: 1, x: [3]float64{mu}, w: [3]float64{1}, fellTo1: true}
+		return momentRule{n: 1, x: [3]float64{mu}, w: [3]float64{1}}
 	}
 	s := math.Sqrt(k2)
 	// Raw moments of the standardized law.

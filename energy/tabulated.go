@@ -275,13 +275,12 @@ func (tb tabulated) UpperQuantile(q float64) float64 {
 }
 
 func (tb *tabulated) moments() {
-	lo, hi := tb.t[0], tb.t[len(tb.t)-1]
+	lo := tb.t[0]
 	// ∫_0^lo S = lo (to 1e-14); ∫_lo^hi S by quadrature of the table; the
 	// atom at the calendar limit adds its mass times the limit.
 	opt := quad.Options{RelTol: 1e-12, MaxEvals: 1 << 16}
-	// Beyond hi the survival is below 1e-14 (or 0 from the calendar limit
-	// on, where the table ends).
-	_ = hi
+	// Beyond the table's end the survival is below 1e-14 (or 0 from the
+	// calendar limit on, where the table ends).
 	m, _ := quad.Breaks(func(t float64) float64 { return tb.Survival(t) }, tb.t, opt)
 	s2, _ := quad.Breaks(func(t float64) float64 { return 2 * t * tb.Survival(t) }, tb.t, opt)
 	mean := lo + m.Value

@@ -4,7 +4,6 @@ import (
 	"testing"
 
 	"github.com/stretchr/testify/assert"
-	"gonum.org/v1/plot"
 )
 
 // Figures print with three significant digits in plain decimals: the
@@ -31,34 +30,4 @@ func TestEnergyUnitPerLine(t *testing.T) {
 	assert.Equal(t, "200 mJ", u.with(0.2))
 	assert.Equal(t, "J", unitFor(3).name)
 	assert.Equal(t, "µJ", unitFor(5e-4).name)
-}
-
-// Axis ticks fall on the 1-2-5 series of round steps (common practice for
-// chart axes), labelled in plain decimals; a logarithmic axis labels each
-// power of ten.
-func TestAxisTicks(t *testing.T) {
-	labels := func(ts []plot.Tick) []string {
-		var out []string
-		for _, tk := range ts {
-			if tk.Label != "" {
-				out = append(out, tk.Label)
-			}
-		}
-		return out
-	}
-	for _, c := range []struct {
-		lo, hi float64
-		want   []string
-	}{
-		{0, 15.3, []string{"0", "2", "4", "6", "8", "10", "12", "14"}},
-		{0, 1.02, []string{"0", "0.2", "0.4", "0.6", "0.8", "1"}},
-		{0, 1680, []string{"0", "500", "1000", "1500"}},
-		{22.2, 31.1, []string{"24", "26", "28", "30"}},
-		{0, 306, []string{"0", "50", "100", "150", "200", "250", "300"}},
-	} {
-		assert.Equal(t, c.want, labels(roundTicks{}.Ticks(c.lo, c.hi)), "[%g, %g]", c.lo, c.hi)
-	}
-	assert.Equal(t, []string{"1e-7", "1e-6", "1e-5", "1e-4", "0.001", "0.01", "0.1", "1"}, labels(decadeTicks{}.Ticks(1e-7, 1.5)))
-	assert.Empty(t, roundTicks{}.Ticks(1, 1))
-	assert.Empty(t, decadeTicks{}.Ticks(0, 1))
 }

@@ -5,7 +5,7 @@ import (
 	"path/filepath"
 	"testing"
 
-	"github.com/joulelaw/joulelaw/internal/scenario"
+	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
 // BenchmarkDemo computes the demo's plan: format 2, with per-node and
@@ -18,7 +18,7 @@ func BenchmarkDemo(b *testing.B) {
 }
 
 func BenchmarkDemoFormat1(b *testing.B) {
-	data, err := os.ReadFile(filepath.Join("..", "..", "internal", "scenario", "testdata", "format1.json"))
+	data, err := os.ReadFile(filepath.Join("..", "..", "radio", "lora", "scenario", "testdata", "format1.json"))
 	if err != nil {
 		b.Fatal(err)
 	}

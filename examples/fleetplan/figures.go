@@ -63,9 +63,9 @@ func style(pl *plot.Plot, title, x, y string) {
 
 func energyFigure(p *Plan) (*plot.Plot, error) {
 	l := p.laws
-	lo, _ := l.minEnergy.Support()
-	hi := l.maxEnergy.UpperQuantile(1e-6)
-	lo = math.Min(lo, l.fleetEnergy.Quantile(1e-6))
+	lo, _ := l.FleetMin.Support()
+	hi := l.FleetMax.UpperQuantile(1e-6)
+	lo = math.Min(lo, l.FleetEnergy.Quantile(1e-6))
 	span := hi - lo
 	if !(span > 1e-6*hi) { // a (nearly) constant energy: show 10 % around it
 		span = 0.1 * hi
@@ -74,9 +74,9 @@ func energyFigure(p *Plan) (*plot.Plot, error) {
 	// The exceedance P(E > x) from each law's survival (never 1 − CDF), on
 	// a log scale: atoms show as steps rather than as spikes of a density.
 	pl, err := distplot.Survival([]distplot.Curve{
-		{Name: "any node's cycle", Law: l.fleetEnergy},
-		{Name: fmt.Sprintf("largest of %d", p.Nodes), Law: l.maxEnergy},
-		{Name: fmt.Sprintf("smallest of %d", p.Nodes), Law: l.minEnergy},
+		{Name: "any node's cycle", Law: l.FleetEnergy},
+		{Name: fmt.Sprintf("largest of %d", p.Nodes), Law: l.FleetMax},
+		{Name: fmt.Sprintf("smallest of %d", p.Nodes), Law: l.FleetMin},
 	}, distplot.Options{
 		Title:  fmt.Sprintf("Energy per cycle: a node of the fleet, and the largest and smallest of %d nodes", p.Nodes),
 		XLabel: "energy per cycle (mJ)", YLabel: "probability of exceeding it (log scale)",
@@ -142,7 +142,7 @@ func failedFigure(p *Plan) (*plot.Plot, error) {
 	var mean, lower, upper plotter.XYs
 	for i := 0; i <= n; i++ {
 		t := end * float64(i) / n
-		c, err := p.laws.site.FailedBy(t * energy.Year)
+		c, err := p.laws.Site.FailedBy(t * energy.Year)
 		if err != nil {
 			return nil, err
 		}

@@ -11,7 +11,7 @@
 //	go run ./examples/fleetplan -figures DIR         # also write PNG and SVG figures
 //	go run ./examples/fleetplan -print-demo          # print the demo scenario file
 //
-// The scenario format is documented in internal/scenario (see its package
+// The scenario format is documented in radio/lora/scenario (see its package
 // doc, or start from -print-demo). A bad file is rejected with every problem
 // named by field, value and rule; nothing is defaulted. Progress goes to
 // stderr; the report or JSON goes to stdout.
@@ -26,7 +26,7 @@ import (
 	"os"
 	"time"
 
-	"github.com/joulelaw/joulelaw/internal/scenario"
+	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
 func main() {

@@ -13,7 +13,7 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"github.com/joulelaw/joulelaw/internal/scenario"
+	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
 func runArgs(t *testing.T, args ...string) (code int, stdout, stderr string) {
@@ -313,7 +313,7 @@ func TestSaturationWarning(t *testing.T) {
 // checked against the 400 ms dwell time (RP002-1.0.3 §2.5, from memory),
 // the back-off setting at DR0 (SF10) and 30 dBm, and the channel caution.
 func TestUS902928Plan(t *testing.T) {
-	path := filepath.Join("..", "..", "internal", "scenario", "testdata", "us902-928.json")
+	path := filepath.Join("..", "..", "radio", "lora", "scenario", "testdata", "us902-928.json")
 	code, out, errs := runArgs(t, "-scenario", path, "-quiet")
 	require.Equal(t, 0, code, errs)
 	assert.Contains(t, out, "region               US902-928")
@@ -354,7 +354,7 @@ func TestGroupOutlierThresholds(t *testing.T) {
 	p, err := buildPlan(scenario.Demo(), "demo", func(string, ...any) {})
 	require.NoError(t, err)
 	for i, g := range p.Groups {
-		l := p.laws.groupEnergy[i]
+		l := p.laws.GroupEnergy[i]
 		n := float64(g.Nodes)
 		over := func(x float64) float64 { return -math.Expm1(n * math.Log1p(-l.Survival(x))) }
 		x := g.OutlierJ

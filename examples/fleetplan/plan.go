@@ -8,9 +8,8 @@ import (
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
-	"github.com/joulelaw/joulelaw/internal/scenario"
-	"github.com/joulelaw/joulelaw/orderstat"
 	"github.com/joulelaw/joulelaw/radio/lora"
+	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
 // Plan is everything the report, the JSON output and the figures show. Field
@@ -213,13 +212,9 @@ type Replacement struct {
 
 // planLaws keeps the laws the figures draw.
 type planLaws struct {
-	groupEnergy  []dist.Law // per-cycle energy of a node of each group, J
+	scenario.Laws
 	groupLife    []dist.Law // lifetime of a node of each group, s
-	fleetEnergy  dist.Law   // per-cycle energy of a node drawn from the fleet, J
-	maxEnergy    dist.Law
-	minEnergy    dist.Law
-	site         energy.Site
-	replaceAfter float64 // s
+	replaceAfter float64    // s
 }
 
 // progress reports slow steps on stderr.
@@ -245,51 +240,19 @@ func summarise(l dist.Law, scale float64) (Summary, error) {
 	return s, nil
 }
 
-// buildPlan computes the plan of a checked scenario.
+// buildPlan computes the plan of a checked scenario: the site model's laws
+// (scenario.Compute), summarised for the report, the JSON and the figures.
 func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) {
 	say("assembling the model: ADR settlement, collisions, retransmissions")
 	m, err := scenario.Build(s, nil)
 	if err != nil {
 		return nil, err
 	}
-	// Every setting of every group, the out-of-reach nodes' included.
-	var jobs []scenario.Job
-	cycles := make([][]energy.Cycle, len(m.Groups))
-	for gi, g := range m.Groups {
-		n := len(g.AllWeights())
-		cycles[gi] = make([]energy.Cycle, n)
-		for si := range n {
-			jobs = append(jobs, scenario.Job{Group: gi, Setting: si})
-		}
-	}
-	say("per-cycle laws for %d (group, data rate, power) settings on %d cores", len(jobs), runtime.GOMAXPROCS(0))
-	err = scenario.Parallel(len(jobs), runtime.GOMAXPROCS(0), func(k int) error {
-		j := jobs[k]
-		g := m.Groups[j.Group]
-		c, err := g.AllSettingCycle(j.Setting)
-		if err != nil {
-			return fmt.Errorf("group %q, %v: %w", g.Group.Name, g.AllSettings()[j.Setting], err)
-		}
-		cycles[j.Group][j.Setting] = c
-		return nil
-	}, nil)
+	laws, err := m.Laws(runtime.GOMAXPROCS(0), func(step string) { say("%s", step) })
 	if err != nil {
 		return nil, err
 	}
-
-	say("lifetime laws: per-node spreads, the cell over the calendar, mixtures over the shared factors")
-	site := energy.SiteSpec{Climate: s.Climate, Shared: s.Shared}
-	for gi, g := range m.Groups {
-		spec, err := g.NodeSpec(s, cycles[gi])
-		if err != nil {
-			return nil, fmt.Errorf("group %q: %w", g.Group.Name, err)
-		}
-		site.Groups = append(site.Groups, energy.SiteGroup{Name: g.Group.Name, Node: spec, Count: int64(g.Group.Nodes)})
-	}
-	st, err := energy.NewSite(site)
-	if err != nil {
-		return nil, err
-	}
+	cycles, st := laws.Cycles, laws.Site
 
 	p := &Plan{
 		Site: s.Site, Source: source, Region: s.Region.Name(), RegionTables: s.Region.Version(),
@@ -308,23 +271,19 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 			SelfDischargeW: b.SelfDischargePower(), PulseCurrentA: c.Spec.PulseCurrent, NominalVoltageV: c.Spec.NominalVoltage,
 			CapacitySD: c.CapacitySD, CalendarLifeYears: c.CalendarLife / energy.Year, VoltageCurve: c.Voltage != nil})
 	}
+	p.laws.Laws = laws
 	p.laws.replaceAfter = s.Plan.ReplaceAfter
-	p.laws.site = st
 
 	say("summarising the groups")
-	var energyGroups []orderstat.Group
 	lifeAcc := st.Accuracy().CDFAbs
 	for gi, g := range m.Groups {
 		say("  group %q: energy and lifetime laws, intervals, first failure", g.Group.Name)
-		gp, eLaw, lLaw, err := groupPlan(s, g, cycles[gi], st, gi, site.Groups[gi].Node)
+		gp, lLaw, err := groupPlan(s, g, cycles[gi], laws, gi)
 		if err != nil {
 			return nil, fmt.Errorf("group %q: %w", g.Group.Name, err)
 		}
 		p.Groups = append(p.Groups, gp)
-		p.laws.groupEnergy = append(p.laws.groupEnergy, eLaw)
 		p.laws.groupLife = append(p.laws.groupLife, lLaw)
-		n := int64(g.Group.Nodes)
-		energyGroups = append(energyGroups, orderstat.Group{Law: eLaw, Count: n})
 		if w := unheardWarning(s, g, gp); w != "" {
 			p.Warnings = append(p.Warnings, w)
 		}
@@ -346,7 +305,7 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 	p.Fleet.LifetimeAccuracy = lifeAcc
 
 	say("fleet extremes of the per-cycle energy")
-	if err := fleetEnergy(p, energyGroups); err != nil {
+	if err := fleetEnergy(p, laws); err != nil {
 		return nil, err
 	}
 	say("fleet lifetimes: first failure, flat dates, replacement")
@@ -369,17 +328,16 @@ func climateText(s scenario.Scenario) string {
 
 var monthNames = [12]string{"January", "February", "March", "April", "May", "June", "July", "August", "September", "October", "November", "December"}
 
-func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle, st energy.Site, gi int, spec energy.NodeSpec) (GroupPlan, dist.Law, dist.Law, error) {
+func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle, laws scenario.Laws, gi int) (GroupPlan, dist.Law, error) {
+	st, spec := laws.Site, laws.SiteSpec.Groups[gi].Node
 	gr := g.Group
 	gp := GroupPlan{Name: gr.Name, Nodes: gr.Nodes, Gateway: s.Gateways[gr.Gateway].Name, InnerRadiusM: gr.InnerRadius, OuterRadiusM: gr.OuterRadius,
 		PayloadBytes: gr.Payload, IntervalS: gr.Interval, JitterS: gr.Jitter, Confirmed: gr.Confirmed, MaxTransmission: gr.MaxTransmissions,
 		OutOfReach: g.OutOfReach, Cell: g.Cell.Spec.Name, Node: g.Node.Name, Supply: g.Node.Supply.String()}
 	b := g.Battery
 	w := g.AllWeights()
-	energies := make([]dist.Law, len(cycles))
 	currents := make([]float64, len(cycles))
 	for i, c := range cycles {
-		energies[i] = c.Energy()
 		currents[i] = c.MeanCurrent(g.Node.Voltage)
 		if g.IsUnheard(i) {
 			gp.OutOfReachCurrentA = currents[i]
@@ -387,27 +345,21 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle
 	}
 	gp.OutOfReachPlanned = g.Unheard.Prob
 	gp.OutOfReachHeaviest = g.Unheard.Prob > 0 && currents[len(currents)-1] >= (1-heaviestSlack)*slices.Max(currents)
-	eLaw, err := dist.Mixture(w, energies)
-	if err != nil {
-		return gp, nil, nil, err
-	}
+	eLaw := laws.GroupEnergy[gi]
+	var err error
 	if gp.EnergyPerCycle, err = summarise(eLaw, 1); err != nil {
-		return gp, nil, nil, err
+		return gp, nil, err
 	}
 	gp.EnergyPerDay = eLaw.Mean() / g.Period.Mean() * energy.Day
-	mx, err := orderstat.Max(eLaw, int64(gr.Nodes))
-	if err != nil {
-		return gp, nil, nil, err
-	}
-	gp.OutlierJ = mx.UpperQuantile(outlierLevel)
+	gp.OutlierJ = laws.GroupMax[gi].UpperQuantile(outlierLevel)
 
 	cur, err := dist.NewDiscrete(currents, w)
 	if err != nil {
-		return gp, nil, nil, err
+		return gp, nil, err
 	}
 	lo, hi, err := dist.EqualTailed(cur, 0.9)
 	if err != nil {
-		return gp, nil, nil, err
+		return gp, nil, err
 	}
 	gp.Current = CurrentPlan{Mean: cur.Mean(), In90: [2]float64{lo, hi}}
 
@@ -427,7 +379,7 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle
 	for _, d := range g.PerDR {
 		dr, err := s.Region.DataRate(d.DR)
 		if err != nil {
-			return gp, nil, nil, err
+			return gp, nil, err
 		}
 		gp.DataRates = append(gp.DataRates, DRPlan{DR: d.DR, Name: dr.String(), Share: d.Share * g.Heard(), AirtimeS: d.Airtime, Load: d.Load,
 			UplinkSuccess: d.UplinkSuccess, Frames: d.Frames, DownlinkRX1: d.Windows.RX1, DownlinkRX2: d.Windows.RX2})
@@ -435,18 +387,18 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle
 	if u := g.Unheard; u.Prob > 0 {
 		dr, err := s.Region.DataRate(u.DR)
 		if err != nil {
-			return gp, nil, nil, err
+			return gp, nil, err
 		}
 		air, err := s.Region.UplinkAirtime(u.DR, gr.Payload, 0)
 		if err != nil {
-			return gp, nil, nil, err
+			return gp, nil, err
 		}
 		gp.DataRates = append(gp.DataRates, DRPlan{DR: u.DR, Name: dr.String(), OutOfReach: true, Share: u.Prob, AirtimeS: air,
 			Frames: float64(gr.MaxTransmissions)})
 	}
 
 	if gp.DutyCycle, err = dutyPlan(s, g); err != nil {
-		return gp, nil, nil, err
+		return gp, nil, err
 	}
 
 	seen := map[string]bool{}
@@ -461,10 +413,10 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle
 
 	lLaw, err := st.NodeLifetime(gi)
 	if err != nil {
-		return gp, nil, nil, err
+		return gp, nil, err
 	}
 	if gp.Lifetime, err = summarise(lLaw, energy.Year); err != nil {
-		return gp, nil, nil, err
+		return gp, nil, err
 	}
 	gp.Lifetime1 = lLaw.Quantile(0.01) / energy.Year
 	gp.EnergyBinds = st.EnergyBinds(gi)
@@ -472,22 +424,22 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle
 		gp.CalendarLimit = (lim - spec.StorageTime) / energy.Year
 	}
 	if gp.UsableFraction[0], gp.UsableFraction[1], err = st.UsableFraction(gi); err != nil {
-		return gp, nil, nil, err
+		return gp, nil, err
 	}
 	vs, err := st.VarianceShares(gi)
 	if err != nil {
-		return gp, nil, nil, err
+		return gp, nil, err
 	}
 	gp.Spread = SpreadPlan{PerCycle: vs.PerCycle, Setting: vs.Setting, Capacity: vs.Capacity, Floor: vs.Floor, Active: vs.Active, Batch: vs.Batch, Temperature: vs.Temperature}
 	first, err := st.GroupFirstFailure(gi)
 	if err != nil {
-		return gp, nil, nil, err
+		return gp, nil, err
 	}
 	if gp.FirstFailure, err = summarise(first, energy.Year); err != nil {
-		return gp, nil, nil, err
+		return gp, nil, err
 	}
 	gp.ReplaceByRisk = first.Quantile(s.Plan.AcceptableRisk) / energy.Year
-	return gp, eLaw, lLaw, nil
+	return gp, lLaw, nil
 }
 
 // dutyPlan checks the group's reporting interval against the duty cycle of
@@ -543,43 +495,24 @@ func dutyPlan(s scenario.Scenario, g scenario.GroupModel) (DutyPlan, error) {
 // exceeds the outlier threshold in a cycle.
 const outlierLevel = 0.01
 
-func fleetEnergy(p *Plan, groups []orderstat.Group) error {
-	weights := make([]float64, len(groups))
-	laws := make([]dist.Law, len(groups))
-	for i, g := range groups {
-		weights[i] = float64(g.Count) / float64(p.Nodes)
-		laws[i] = g.Law
-	}
-	all, err := dist.Mixture(weights, laws)
-	if err != nil {
+func fleetEnergy(p *Plan, laws scenario.Laws) error {
+	var err error
+	if p.Fleet.EnergyPerCycle, err = summarise(laws.FleetEnergy, 1); err != nil {
 		return err
 	}
-	p.laws.fleetEnergy = all
-	if p.Fleet.EnergyPerCycle, err = summarise(all, 1); err != nil {
+	if p.Fleet.MaxPerCycle, err = summarise(laws.FleetMax, 1); err != nil {
 		return err
 	}
-	mx, err := orderstat.MaxOfGroups(groups)
-	if err != nil {
-		return err
-	}
-	mn, err := orderstat.MinOfGroups(groups)
-	if err != nil {
-		return err
-	}
-	p.laws.maxEnergy, p.laws.minEnergy = mx, mn
-	if p.Fleet.MaxPerCycle, err = summarise(mx, 1); err != nil {
-		return err
-	}
-	if p.Fleet.MinPerCycle, err = summarise(mn, 1); err != nil {
+	if p.Fleet.MinPerCycle, err = summarise(laws.FleetMin, 1); err != nil {
 		return err
 	}
 	p.Fleet.OutlierLevel = outlierLevel
-	p.Fleet.OutlierJ = mx.UpperQuantile(outlierLevel)
+	p.Fleet.OutlierJ = laws.FleetMax.UpperQuantile(outlierLevel)
 	return nil
 }
 
 func fleetLife(p *Plan, s scenario.Scenario) error {
-	st := p.laws.site
+	st := p.laws.Site
 	first, err := st.FirstFailure()
 	if err != nil {
 		return err

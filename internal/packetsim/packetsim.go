@@ -7,8 +7,8 @@ import (
 	"math"
 	"math/rand/v2"
 
-	"github.com/joulelaw/joulelaw/internal/scenario"
 	"github.com/joulelaw/joulelaw/radio/lora"
+	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
 // ErrParam is wrapped by errors about bad arguments to this package.

@@ -9,9 +9,9 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/joulelaw/joulelaw/internal/packetsim"
-	"github.com/joulelaw/joulelaw/internal/scenario"
 	"github.com/joulelaw/joulelaw/internal/testref"
 	"github.com/joulelaw/joulelaw/radio/lora"
+	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
 // A lone node with no answers: every cycle costs exactly the timeline of

@@ -14,9 +14,9 @@ import (
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/internal/packetsim"
-	"github.com/joulelaw/joulelaw/internal/scenario"
 	"github.com/joulelaw/joulelaw/internal/testref"
 	"github.com/joulelaw/joulelaw/orderstat"
+	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
 // zTwoSided is the standard normal quantile with two-sided tail 1e-6

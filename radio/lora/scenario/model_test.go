@@ -7,8 +7,8 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"github.com/joulelaw/joulelaw/internal/scenario"
 	"github.com/joulelaw/joulelaw/radio/lora"
+	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
 // oneGroup returns the demo reduced to its first group with n nodes.

@@ -1,6 +1,14 @@
-// Package scenario reads and checks the fleet description that the fleet
-// planner (examples/fleetplan) and the packet-level sampler
-// (internal/packetsim) both work from, and holds the built-in demo scenario.
+// Package scenario is the LoRaWAN site model: a site's gateways, groups of
+// class A nodes, radio environment, node hardware and cells per group,
+// traffic, climate and shared factors, read from the documented JSON format
+// (Parse, Load) or built in Go (the Scenario value), and turned into the
+// plan's probability laws: Build assembles the model (ADR settlement per
+// group, collisions and retransmissions per gateway and data rate, the class
+// A cycle), Model.Laws computes the per-setting cycles, the per-cycle energy
+// laws of the groups and the fleet (and the fleet's extremes) and the
+// fleet's lifetime model (energy.Site); Compute does both. The fleet planner
+// (examples/fleetplan) is a report over these laws, and the packet-level
+// sampler (internal/packetsim) plays the same scenarios packet by packet.
 //
 // # The file format
 //

@@ -1,0 +1,42 @@
+package scenario
+
+import (
+	"strconv"
+	"unicode/utf8"
+)
+
+// MaxEcho is the most characters (runes) of a value taken from a file that
+// a message echoes; a longer value is cut there and marked with "…".
+const MaxEcho = 80
+
+// Quote returns s in double quotes for a message or a report, with every
+// control and other non-printing character escaped as in Go source
+// (strconv.Quote: "\r", "\n", "\x1b", "\u202e" …), so that a name from a
+// file can never forge a line or a terminal command, and cut after MaxEcho
+// characters.
+func Quote(s string) string {
+	return strconv.Quote(cut(s))
+}
+
+// Escape is Quote without the quotes: s with its non-printing characters,
+// quotes and backslashes escaped, cut after MaxEcho characters. Use it
+// where a name from a file is printed bare (a title, a table cell).
+func Escape(s string) string {
+	q := strconv.Quote(cut(s))
+	return q[1 : len(q)-1]
+}
+
+// cut returns s cut after MaxEcho runes, marked with "…".
+func cut(s string) string {
+	if utf8.RuneCountInString(s) <= MaxEcho {
+		return s
+	}
+	n := 0
+	for i := range s {
+		if n == MaxEcho {
+			return s[:i] + "…"
+		}
+		n++
+	}
+	return s
+}

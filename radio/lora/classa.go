@@ -162,11 +162,23 @@ func TruncatedGeometric(q float64, m int) (dist.Discrete, error) {
 // carries the acknowledgement, and a frame left unacknowledged is sent
 // again ACK_TIMEOUT (2 ± 1 s) after RX2, until acknowledged or NbTrans
 // attempts are spent (LoRaWAN 1.0.3). An unconfirmed uplink is repeated
-// NbTrans times, each repetition right after the previous one's windows
-// (LoRaWAN 1.0.3, LinkADRReq), and the model stops the repetitions at the
-// first downlink as LoRaWAN 1.0.4 prescribes. Either way the number of
-// transmissions follows TruncatedGeometric with q = RX1 + RX2 and
-// m = NbTrans; Confirmed chooses the default RetryGap.
+// NbTrans times, each repetition once the previous one's windows have
+// closed (LoRaWAN 1.0.3, LinkADRReq; L2 1.0.4 §4.3.1.1 — from memory), and
+// the model stops the repetitions at the first downlink as LoRaWAN 1.0.4
+// prescribes. Either way the number of transmissions follows
+// TruncatedGeometric with q = RX1 + RX2 and m = NbTrans; Confirmed chooses
+// the default RetryGap. The default gap also keeps the duty cycle of the
+// sub-band the node sends in (Region.UplinkDutyCycle over Mask, or the
+// strictest sub-band of Mask for a data rate none of its channels carries): no
+// transmission starts before Airtime/d after the previous one started
+// (the off-time rule of SubBand.OffTime), so the gap is
+//
+//	max(G, Airtime/d − (Airtime + RECEIVE_DELAY2 − ClockMargin + RX2 listen))
+//
+// with G uniform over ACK_TIMEOUT (confirmed) or 0 (unconfirmed): at 1 %
+// an SF12 frame of 1.5 s silences the node for 148 s, not 1 … 3 s. Check
+// the local regulations and defer to the regulator: the limits here are
+// for planning, not certification.
 //
 // The (data rate, power) setting is drawn once per cycle and shared by every
 // state that depends on it: the uplink airtime and current, the RX1 data
@@ -182,6 +194,13 @@ func TruncatedGeometric(q float64, m int) (dist.Discrete, error) {
 // Receive windows open ClockMargin early. An empty window listens for
 // ClockMargin + PreambleSymbols symbols at its data rate; a window that
 // receives a downlink is open for ClockMargin + the downlink's airtime.
+//
+// With JoinEvery = k > 0 the node also sends a Join-request (JoinRequestBytes)
+// at its setting in one report of k, on average (a Bernoulli(1/k) draw per
+// cycle), and listens in both join-accept windows (JOIN_ACCEPT_DELAY1 and 2)
+// without an answer: the rejoin attempts of a node that no longer hears its
+// network. It is meant for out-of-reach nodes; a node in reach would be
+// answered and stop.
 type ClassA struct {
 	Region   Region   // regional parameters
 	Currents Currents // supply currents per state
@@ -210,16 +229,52 @@ type ClassA struct {
 	// stacks, from memory).
 	PreambleSymbols int
 	// ClockMargin is the time each window opens early to absorb clock error,
-	// s, >= 0.
+	// s, >= 0, at most MaxClockMargin. DefaultClockMargin is a realistic
+	// value; 0 is a perfect clock.
 	ClockMargin float64
+	// RX2 moves the second window off the region's default (many networks
+	// use a faster RX2 data rate); the zero value keeps the default.
+	RX2 RX2Window
+	// Mask selects the uplink channels the node uses (Region.Mask,
+	// Region.ChannelBlock); the zero mask means all of the plan. It sets
+	// the duty cycle that times the default RetryGap.
+	Mask ChannelMask
 	// RetryGap is the law of the wait between a failed attempt's RX2 and the
-	// next transmission, s; nil means uniform over the region's ACK_TIMEOUT
-	// range (1 … 3 s) for confirmed uplinks and no wait for unconfirmed
-	// repetitions.
+	// next transmission, s; nil means the default described on ClassA: the
+	// region's ACK_TIMEOUT range (1 … 3 s, uniform) for confirmed uplinks
+	// and no wait for unconfirmed repetitions, either way at least until the
+	// sub-band's off-time has passed. A law given here is used as it is.
 	RetryGap dist.Law
+	// JoinEvery is the mean number of reports per Join-request, 0 for none
+	// (see ClassA), at most MaxJoinEvery.
+	JoinEvery int
 	// Before and After are the node's own stages (wake, sense, process); nil
 	// means nothing.
 	Before, After energy.Stage
+}
+
+// DefaultClockMargin is a realistic receive-window margin, s: 20 ms, the
+// order that LoRaWAN end-device stacks allow for a 32 kHz crystal's error
+// over the receive delays plus the radio's wake-up (common practice, from
+// memory). Use your stack's value where you know it.
+const DefaultClockMargin = 20e-3
+
+// MaxClockMargin caps ClassA.ClockMargin, s: RECEIVE_DELAY1 is 1 s.
+const MaxClockMargin = 1.0
+
+// MaxJoinEvery caps ClassA.JoinEvery, reports.
+const MaxJoinEvery = 1_000_000
+
+// JoinRequestBytes is the PHY payload of a Join-request, bytes: MHDR 1,
+// JoinEUI 8, DevEUI 8, DevNonce 2, MIC 4 (LoRaWAN 1.0.3 §6.2.4).
+const JoinRequestBytes = 23
+
+// RX2Window is the second receive window's frequency (Hz) and data rate as
+// the network configured them (RXParamSetupReq or the join's settings). The
+// zero value (Frequency 0) means the region's default (Region.RX2).
+type RX2Window struct {
+	Frequency float64 // Hz; 0 for the region's default frequency and data rate
+	DR        int     // a downlink data rate of the region
 }
 
 // Timeline is the plain-data class A timeline of one setting: the duration
@@ -229,6 +284,9 @@ type Timeline struct {
 	Uplink     float64       // uplink airtime, s
 	RX1DR      int           // data rate of RX1
 	RX2DR      int           // data rate of RX2
+	RX2Freq    float64       // frequency of RX2, Hz
+	DutyCycle  float64       // duty-cycle limit of the node's uplink sub-band (1: none)
+	OffTimeGap float64       // shortest wait after an empty RX2 before the next transmission that keeps DutyCycle, s (>= 0)
 	WaitRX1    float64       // end of uplink to RX1 opening, s
 	RX1Listen  float64       // RX1 open and empty, s
 	RX1Receive float64       // RX1 open, receiving a downlink, s
@@ -296,8 +354,19 @@ func (c ClassA) validate() error {
 	if c.PreambleSymbols < 0 {
 		return paramErr(fn, "PreambleSymbols", c.PreambleSymbols, "must be >= 0 (0 means 6)")
 	}
-	if !finite(c.ClockMargin) || c.ClockMargin < 0 {
-		return paramErr(fn, "ClockMargin", c.ClockMargin, "must be finite and >= 0 s")
+	if !(c.ClockMargin >= 0 && c.ClockMargin <= MaxClockMargin) {
+		return paramErr(fn, "ClockMargin", c.ClockMargin, fmt.Sprintf("must be in [0, MaxClockMargin = %g] s", float64(MaxClockMargin)))
+	}
+	if c.JoinEvery < 0 || c.JoinEvery > MaxJoinEvery {
+		return paramErr(fn, "JoinEvery", c.JoinEvery, fmt.Sprintf("must be 0 (none) … MaxJoinEvery = %d reports", MaxJoinEvery))
+	}
+	if c.RX2 != (RX2Window{}) {
+		if !finite(c.RX2.Frequency) || c.RX2.Frequency <= 0 {
+			return paramErr(fn, "RX2.Frequency", c.RX2.Frequency, "must be finite and > 0 Hz (0 with DR 0 for the region's default)")
+		}
+		if _, err := c.Region.DownlinkDataRate(c.RX2.DR); err != nil {
+			return fmt.Errorf("lora.ClassA: RX2.DR: %w", err)
+		}
 	}
 	if c.RetryGap != nil {
 		if lo, hi := c.RetryGap.Support(); !(lo >= 0) || !finite(c.RetryGap.Variance()) || math.IsNaN(hi) {
@@ -348,7 +417,7 @@ func (c ClassA) timeline(s Setting) (Timeline, error) {
 	if err != nil {
 		return Timeline{}, err
 	}
-	_, rx2 := reg.RX2()
+	rx2f, rx2 := c.rx2()
 	dlBytes := c.DownlinkBytes
 	if dlBytes == 0 {
 		dlBytes = EmptyFrameBytes
@@ -372,7 +441,13 @@ func (c ClassA) timeline(s Setting) (Timeline, error) {
 		}
 		return c.ClockMargin + float64(nsym)*p.SymbolTime(), c.ClockMargin + a, nil
 	}
-	tl := Timeline{Setting: s, Uplink: up, RX1DR: rx1, RX2DR: rx2, Windows: c.windows(s.DR)}
+	tl := Timeline{Setting: s, Uplink: up, RX1DR: rx1, RX2DR: rx2, RX2Freq: rx2f, Windows: c.windows(s.DR)}
+	// A data rate that no channel of the mask carries (EU863-870 DR6 on the
+	// default channels) is sent on a channel the network adds in the same
+	// bands: the strictest sub-band of the mask binds.
+	if tl.DutyCycle, err = reg.strictestDutyCycle(c.Mask, s.DR, reg.ChannelsCarrying(c.Mask, s.DR) == 0); err != nil {
+		return Timeline{}, err
+	}
 	if tl.RX1Listen, tl.RX1Receive, err = win(rx1); err != nil {
 		return Timeline{}, err
 	}
@@ -386,6 +461,9 @@ func (c ClassA) timeline(s Setting) (Timeline, error) {
 		return Timeline{}, paramErr("ClassA", "ClockMargin", c.ClockMargin,
 			fmt.Sprintf("windows overlap: RX1 at DR%d listens %.4g s, RECEIVE_DELAY2 − RECEIVE_DELAY1 = %g s", rx1, tl.RX1Listen, tm.ReceiveDelay2-tm.ReceiveDelay1))
 	}
+	// The off-time rule: the next start no earlier than Uplink/d after this
+	// one; RX2 closes Uplink + RECEIVE_DELAY2 − margin + RX2 listen after it.
+	tl.OffTimeGap = math.Max(0, tl.Uplink/tl.DutyCycle-(tl.Uplink+tm.ReceiveDelay2-c.ClockMargin+tl.RX2Listen))
 	if tl.Attempts, err = TruncatedGeometric(math.Min(tl.Windows.RX1+tl.Windows.RX2, 1), c.nbTrans()); err != nil {
 		return Timeline{}, err
 	}
@@ -398,18 +476,6 @@ func (c ClassA) Stage() (energy.Stage, error) {
 	tls, err := c.Timelines()
 	if err != nil {
 		return nil, err
-	}
-	gap := c.RetryGap
-	switch {
-	case gap == nil && c.Confirmed:
-		tm := c.Region.Timing()
-		u, err := dist.NewUniform(tm.AckTimeoutMin, tm.AckTimeoutMax)
-		if err != nil {
-			return nil, err
-		}
-		gap = u
-	case gap == nil:
-		gap, _ = dist.NewPointMass(0)
 	}
 	vals := make([]float64, len(tls))
 	probs := make([]float64, len(tls))
@@ -425,6 +491,10 @@ func (c ClassA) Stage() (energy.Stage, error) {
 		if _, ok := parts[tl.Setting.DR]; ok {
 			continue
 		}
+		gap, err := c.retryGap(tl)
+		if err != nil {
+			return nil, fmt.Errorf("lora.ClassA: DR%d: %w", tl.Setting.DR, err)
+		}
 		w, err := c.windowParts(tl, gap)
 		if err != nil {
 			return nil, fmt.Errorf("lora.ClassA: DR%d: %w", tl.Setting.DR, err)
@@ -433,7 +503,16 @@ func (c ClassA) Stage() (energy.Stage, error) {
 	}
 	attempts, err := energy.Configured(config, func(v float64) (energy.Stage, error) {
 		tl := tls[int(v)]
-		return c.attemptsStage(tl, parts[tl.Setting.DR])
+		st, err := c.attemptsStage(tl, parts[tl.Setting.DR])
+		if err != nil || c.JoinEvery == 0 {
+			return st, err
+		}
+		join, err := c.joinStage(tl)
+		if err != nil {
+			return nil, err
+		}
+		b := &builder{}
+		return b.seq(st, join), b.err
 	})
 	if err != nil {
 		return nil, fmt.Errorf("lora.ClassA: %w", err)
@@ -587,4 +666,117 @@ func (c ClassA) attemptsStage(tl Timeline, w windowParts) (energy.Stage, error) 
 	}
 	okBranch := b.seq(b.repeat(w.failures, failGap), tx, w.ok)
 	return b.choice([]float64{w.pOK, w.pAllFail}, okBranch, allFail), b.err
+}
+
+// rx2 returns the RX2 frequency (Hz) and data rate in force.
+func (c ClassA) rx2() (float64, int) {
+	if c.RX2 == (RX2Window{}) {
+		return c.Region.RX2()
+	}
+	return c.RX2.Frequency, c.RX2.DR
+}
+
+// retryGap returns the law of the wait after a failed attempt's RX2 at tl's
+// setting: RetryGap when given, otherwise max(G, OffTimeGap) with G uniform
+// over ACK_TIMEOUT (confirmed) or 0.
+func (c ClassA) retryGap(tl Timeline) (dist.Law, error) {
+	if c.RetryGap != nil {
+		return c.RetryGap, nil
+	}
+	off := tl.OffTimeGap
+	if !c.Confirmed {
+		return dist.NewPointMass(off)
+	}
+	tm := c.Region.Timing()
+	return UniformAtLeast(tm.AckTimeoutMin, tm.AckTimeoutMax, off)
+}
+
+// UniformAtLeast returns the law of max(U, c) for U uniform on [lo, hi]
+// (s, 0 <= lo < hi, finite) and a floor c >= 0 (s): U itself when c <= lo,
+// the point mass c when c >= hi, and otherwise the mixture of an atom at c
+// with probability (c − lo)/(hi − lo) and the uniform law on [c, hi]. It is
+// the wait before a retransmission drawn over ACK_TIMEOUT that must also
+// respect a duty-cycle off-time.
+func UniformAtLeast(lo, hi, c float64) (dist.Law, error) {
+	const fn = "UniformAtLeast"
+	if !finite(lo) || !finite(hi) || lo < 0 || hi <= lo {
+		return nil, paramErr(fn, "lo, hi", [2]float64{lo, hi}, "need finite 0 <= lo < hi s")
+	}
+	if !finite(c) || c < 0 {
+		return nil, paramErr(fn, "c", c, "must be finite and >= 0 s")
+	}
+	switch {
+	case c <= lo:
+		return dist.NewUniform(lo, hi)
+	case c >= hi:
+		return dist.NewPointMass(c)
+	}
+	atom, err := dist.NewPointMass(c)
+	if err != nil {
+		return nil, err
+	}
+	rest, err := dist.NewUniform(c, hi)
+	if err != nil {
+		return nil, err
+	}
+	p := (c - lo) / (hi - lo)
+	return dist.Mixture([]float64{p, 1 - p}, []dist.Law{atom, rest})
+}
+
+// joinStage is one Join-request at tl's setting with both join-accept
+// windows empty, taken with probability 1/JoinEvery.
+func (c ClassA) joinStage(tl Timeline) (energy.Stage, error) {
+	reg := c.Region
+	d, err := reg.UplinkDataRate(tl.Setting.DR)
+	if err != nil {
+		return nil, err
+	}
+	up, err := d.UplinkPHY().Airtime(JoinRequestBytes)
+	if err != nil {
+		return nil, err
+	}
+	itx, err := c.Currents.txCurrent(tl.Setting.EIRP)
+	if err != nil {
+		return nil, err
+	}
+	nsym := c.PreambleSymbols
+	if nsym == 0 {
+		nsym = 6
+	}
+	listen := func(dr int) (float64, error) {
+		dd, err := reg.DownlinkDataRate(dr)
+		if err != nil {
+			return 0, err
+		}
+		return c.ClockMargin + float64(nsym)*dd.DownlinkPHY().SymbolTime(), nil
+	}
+	// The join-accept's RX1 uses RX1DROffset 0; RX2 the region's default.
+	rx1, err := reg.RX1DataRate(tl.Setting.DR, 0)
+	if err != nil {
+		return nil, err
+	}
+	_, rx2 := reg.RX2()
+	l1, err := listen(rx1)
+	if err != nil {
+		return nil, err
+	}
+	l2, err := listen(rx2)
+	if err != nil {
+		return nil, err
+	}
+	tm := reg.Timing()
+	cur := c.Currents
+	b := &builder{voltage: cur.Voltage}
+	var w1, w2 energy.Stage
+	if cur.Wait > cur.Floor {
+		w1 = b.fixed("join wait RX1", cur.Wait, tm.JoinAcceptDelay1-c.ClockMargin)
+		w2 = b.fixed("join wait RX2", cur.Wait, (tm.JoinAcceptDelay2-tm.JoinAcceptDelay1)-l1)
+	}
+	join := b.seq(b.fixed(fmt.Sprintf("join request %g dBm", tl.Setting.EIRP), itx, up), w1,
+		b.fixed("join RX1 listen", cur.RX, l1), w2, b.fixed("join RX2 listen", cur.RX, l2))
+	p := 1 / float64(c.JoinEvery)
+	if p == 1 {
+		return join, b.err
+	}
+	return b.choice([]float64{p, 1 - p}, join, energy.Nothing()), b.err
 }

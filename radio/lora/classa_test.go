@@ -166,7 +166,11 @@ func TestClassAErrors(t *testing.T) {
 		{"windows by DR", func(c *lora.ClassA) { c.DownlinkByDR = map[int]lora.Windows{5: {RX1: -1}} }, "DownlinkByDR[5]"},
 		{"voltage", func(c *lora.ClassA) { c.Currents.Voltage = 0 }, "Voltage"},
 		{"wait below floor", func(c *lora.ClassA) { c.Currents.Wait = 1e-6 }, "Wait"},
-		{"margin overlap", func(c *lora.ClassA) { c.ClockMargin = 1.1 }, "overlap"},
+		{"margin overlap", func(c *lora.ClassA) { c.Settings[0].DR = 0; c.ClockMargin = 0.95 }, "overlap"},
+		{"margin cap", func(c *lora.ClassA) { c.ClockMargin = 1.1 }, "MaxClockMargin"},
+		{"join", func(c *lora.ClassA) { c.JoinEvery = -1 }, "JoinEvery"},
+		{"RX2 frequency", func(c *lora.ClassA) { c.RX2 = lora.RX2Window{Frequency: -1, DR: 3} }, "RX2.Frequency"},
+		{"RX2 data rate", func(c *lora.ClassA) { c.RX2 = lora.RX2Window{Frequency: 869.525e6, DR: 8} }, "RX2.DR"},
 		{"offset", func(c *lora.ClassA) { c.RX1DROffset = 6 }, "RX1DROffset"},
 		{"downlink too long", func(c *lora.ClassA) { c.DownlinkBytes = 100 }, "DownlinkBytes"},
 		{"gap", func(c *lora.ClassA) { c.RetryGap = dist.MustNormal(0, 1) }, "RetryGap"},
@@ -394,7 +398,8 @@ func TestClassAContinuous(t *testing.T) {
 	c := lora.ClassA{Region: lora.EU868(), Currents: lora.TypicalCurrents(), App: 10,
 		Settings:  []lora.Setting{{DR: 2, TXPower: 1, Prob: 1}},
 		Confirmed: true, NbTrans: 3, ClockMargin: 5e-3, Before: sense(),
-		Downlink: lora.Windows{RX1: 0.5, RX2: 0.2}}
+		Downlink: lora.Windows{RX1: 0.5, RX2: 0.2},
+		RetryGap: dist.MustUniform(1, 3)} // given: used as it is, off-time or not
 	c.Currents.Wait = 1.5e-3 // microcontroller awake while waiting
 	const period = 300.0
 	cy, err := c.Cycle(dist.MustPointMass(period))
@@ -437,10 +442,17 @@ func TestLawsConformance(t *testing.T) {
 
 // TestRetryGapDefault checks the default gap between attempts: ACK_TIMEOUT
 // (uniform 1 … 3 s, RP002-1.0.3) after a confirmed frame, none between
-// unconfirmed repetitions; with waits above the floor the confirmed cycle's
-// mean grows by E[N − 1]·(I_wait − I_floor)·V·2 s (Wald's identity).
+// unconfirmed repetitions, either way at least the rest of the sub-band's
+// off-time (airtime/d from the frame's start, SubBand.OffTime). In a region
+// without duty-cycle sub-bands (IN865-867) the rest is 0; with waits above
+// the floor the confirmed cycle's mean grows by E[N − 1]·(I_wait − I_floor)·V·2 s
+// over the unconfirmed one (Wald's identity).
 func TestRetryGapDefault(t *testing.T) {
-	c := lora.ClassA{Region: lora.EU868(), Currents: lora.TypicalCurrents(), App: 10,
+	cur := lora.TypicalCurrents()
+	for i := range cur.TX {
+		cur.TX[i].EIRP += 14 // IN865-867 powers are 30 − 2i dBm
+	}
+	c := lora.ClassA{Region: lora.IN865(), Currents: cur, App: 10,
 		Settings: []lora.Setting{{DR: 3, TXPower: 0, Prob: 1}}, NbTrans: 4, ClockMargin: 5e-3,
 		Downlink: lora.Windows{RX1: 0.4, RX2: 0.1}}
 	c.Currents.Wait = 1e-3
@@ -462,4 +474,132 @@ func TestRetryGapDefault(t *testing.T) {
 	require.NoError(t, err)
 	extra := (g.Mean() - 1) * (1e-3 - 2e-6) * 3.3 * 2
 	assert.InEpsilon(t, extra, co.MeanEnergy()-un.MeanEnergy(), 1e-9)
+}
+
+// TestRetryGapOffTime: in EU863-870 the default channels lie in the 1 %
+// sub-band, so after a frame of airtime a the node stays silent until a/d =
+// 100·a after its start. The rest after RX2 closes is
+// c = a/d − (a + RECEIVE_DELAY2 − margin + RX2 listen); the gap is c for an
+// unconfirmed repetition and max(U(1, 3), c) for a confirmed retry, whose
+// mean is the closed form ((c − 1)·c + (9 − c²)/2)/2 for 1 < c < 3 and c
+// above 3. With waits above the floor each gap costs (I_wait − I_floor)·V
+// per second (Wald's identity over E[N − 1] gaps).
+func TestRetryGapOffTime(t *testing.T) {
+	base := lora.ClassA{Region: lora.EU868(), Currents: lora.TypicalCurrents(),
+		NbTrans: 4, ClockMargin: 5e-3, Downlink: lora.Windows{RX1: 0.4, RX2: 0.1}}
+	base.Currents.Wait = 1e-3
+	g, err := lora.TruncatedGeometric(0.5, 4)
+	require.NoError(t, err)
+	tests := []struct {
+		name     string
+		dr, app  int
+		cLo, cHi float64 // where the rest c must lie
+	}{
+		{"SF7/250 kHz, 25 bytes: 1 < c < 3", 6, 25, 1, 3},
+		{"SF9, 10 bytes: c > 3", 3, 10, 3, 1e9},
+		{"SF12, 51 bytes: c ≈ 274 s", 0, 51, 270, 280},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			c := base
+			c.App = tc.app
+			c.Settings = []lora.Setting{{DR: tc.dr, TXPower: 0, Prob: 1}}
+			tls, err := c.Timelines()
+			require.NoError(t, err)
+			tl := tls[0]
+			assert.Equal(t, 0.01, tl.DutyCycle)
+			want := tl.Uplink/0.01 - (tl.Uplink + 2 - 5e-3 + tl.RX2Listen)
+			assert.InDelta(t, want, tl.OffTimeGap, 1e-12)
+			require.Greater(t, tl.OffTimeGap, tc.cLo)
+			require.Less(t, tl.OffTimeGap, tc.cHi)
+			un, err := c.Cycle(dist.MustPointMass(3600))
+			require.NoError(t, err)
+			c.Confirmed = true
+			co, err := c.Cycle(dist.MustPointMass(3600))
+			require.NoError(t, err)
+			// Gaps at Wait: compare each cycle with the same cycle at a wait of the floor.
+			flat := func(cc lora.ClassA) float64 {
+				cc.Currents.Wait = cc.Currents.Floor
+				cy, err := cc.Cycle(dist.MustPointMass(3600))
+				require.NoError(t, err)
+				return cy.MeanEnergy()
+			}
+			perSecond := (1e-3 - 2e-6) * 3.3
+			x := tl.OffTimeGap
+			meanGap := x
+			if x < 3 {
+				meanGap = ((x-1)*x + (9-x*x)/2) / 2
+			}
+			c.Confirmed = false
+			gapsUn := un.MeanEnergy() - flat(c) - attemptWaits(t, c, perSecond)
+			assert.InEpsilon(t, (g.Mean()-1)*perSecond*x, gapsUn, 1e-9, "unconfirmed")
+			c.Confirmed = true
+			gapsCo := co.MeanEnergy() - flat(c) - attemptWaits(t, c, perSecond)
+			assert.InEpsilon(t, (g.Mean()-1)*perSecond*meanGap, gapsCo, 1e-9, "confirmed")
+		})
+	}
+}
+
+// attemptWaits is the mean energy above the floor of the waits before the
+// windows over a report: E[N]·(WaitRX1 + P(RX1 empty)·WaitRX2)·(I_wait − I_floor)·V.
+func attemptWaits(t *testing.T, c lora.ClassA, perSecond float64) float64 {
+	tls, err := c.Timelines()
+	require.NoError(t, err)
+	tl := tls[0]
+	return tl.Attempts.Mean() * (tl.WaitRX1 + (1-tl.Windows.RX1)*tl.WaitRX2) * perSecond
+}
+
+// UniformAtLeast: max(U, c) for U uniform on [1, 3]; its mean against the
+// closed form E = P(U < c)·c + ∫_c^3 u/2 du and its CDF against
+// P(max ≤ x) = P(U ≤ x) for x ≥ c, 0 below.
+func TestUniformAtLeast(t *testing.T) {
+	for _, c := range []float64{0, 1, 1.5, 2.9, 3, 10} {
+		l, err := lora.UniformAtLeast(1, 3, c)
+		require.NoError(t, err)
+		want := math.Max(c, 2)
+		if c > 1 && c < 3 {
+			want = (c-1)/2*c + (9-c*c)/4
+		}
+		assert.InDelta(t, want, l.Mean(), 1e-12, "c = %g", c)
+		for _, x := range []float64{0.5, 1.2, 1.7, 2.5, 3.5} {
+			cdf := 0.0
+			if x >= c {
+				cdf = math.Min(math.Max((x-1)/2, 0), 1)
+			}
+			assert.InDelta(t, cdf, l.CDF(x), 1e-12, "c = %g, x = %g", c, x)
+		}
+	}
+	for _, bad := range [][3]float64{{-1, 3, 0}, {3, 1, 0}, {1, math.Inf(1), 0}, {1, 3, -1}, {1, 3, math.NaN()}} {
+		_, err := lora.UniformAtLeast(bad[0], bad[1], bad[2])
+		assert.ErrorIs(t, err, lora.ErrParam, "%v", bad)
+	}
+}
+
+// TestRX2AndJoin: an RX2 window moved to DR3 (SF9/125 kHz) listens for the
+// margin plus 6 symbols of 4.096 ms (2^9 / 125 kHz); a Join-request every
+// report adds, at a wait current equal to the floor, the 23-byte frame at
+// SF12/125 kHz — 45.25 symbols of 32.768 ms = 1.482752 s by the airtime
+// formula (Augustin et al. 2016, eq. 3–4: 8 + ⌈(184 − 48 + 28 + 16)/40⌉·5 =
+// 33 payload symbols) — and two empty join-accept windows; one every four
+// reports adds a quarter of it.
+func TestRX2AndJoin(t *testing.T) {
+	c := lora.ClassA{Region: lora.EU868(), Currents: lora.TypicalCurrents(), App: 10,
+		Settings: []lora.Setting{{DR: 0, TXPower: 0, Prob: 1}}, ClockMargin: lora.DefaultClockMargin}
+	c.RX2 = lora.RX2Window{Frequency: 869.525e6, DR: 3}
+	tls, err := c.Timelines()
+	require.NoError(t, err)
+	assert.Equal(t, 3, tls[0].RX2DR)
+	assert.Equal(t, 869.525e6, tls[0].RX2Freq)
+	assert.InDelta(t, 0.02+6*4.096e-3, tls[0].RX2Listen, 1e-15)
+	c.RX2 = lora.RX2Window{}
+	base, err := c.Cycle(dist.MustPointMass(600))
+	require.NoError(t, err)
+	l := 0.02 + 6*32.768e-3 // both join-accept windows at DR0 (RX1 = DR0 − 0)
+	add := 3.3 * ((90e-3-2e-6)*1.482752 + (12e-3-2e-6)*2*l)
+	for _, k := range []int{1, 4} {
+		c.JoinEvery = k
+		cy, err := c.Cycle(dist.MustPointMass(600))
+		require.NoError(t, err)
+		assert.InEpsilon(t, add/float64(k), cy.MeanEnergy()-base.MeanEnergy(), 1e-12, "JoinEvery %d", k)
+	}
 }

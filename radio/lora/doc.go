@@ -15,12 +15,17 @@
 //
 // # Regions
 //
-// EU868 and US915 return immutable Region values holding the LoRaWAN
-// Regional Parameters tables (RP002-1.0.3): data rates, payload limits,
-// TXPower steps, the RX1 data-rate mapping, RX2 defaults, class A timing
-// and ADR counters, the US902-928 dwell time and the European duty-cycle
-// sub-bands. CheckInterval tells whether a reporting interval keeps the
-// duty-cycle limit at each data rate.
+// EU868, US915, AU915 and IN865 (all four: Regions) return immutable Region
+// values holding the LoRaWAN Regional Parameters tables (RP002-1.0.3; which
+// values are recalled from memory is said beside each table): data rates,
+// payload limits, TXPower steps, the RX1 data-rate mapping and RX1
+// frequencies, RX2 defaults, class A timing and ADR counters, the
+// US902-928 dwell time and the European duty-cycle sub-bands.
+// CheckInterval tells whether a reporting interval keeps the duty-cycle
+// limit at each data rate. A ChannelMask selects the uplink channels a node
+// or gateway uses (ChannelBlock: the eight-channel blocks of US902-928 and
+// AU915-928); ChannelsCarrying counts a data rate's collision domains, and
+// UplinkDutyCycle and DownlinkDutyCycle give the limits that bind.
 //
 // # Links, ADR and collisions
 //

@@ -100,13 +100,14 @@ type regionTable struct {
 	timing        Timing
 	dwell         float64 // s; 0 = no dwell-time limit
 	channels      []Channel
+	downlink      []float64 // RX1 channel frequencies, Hz, used as uplink channel mod len; nil: RX1 on the uplink's frequency
 	subBands      []SubBand
 	adrDRs        []int
 }
 
 // Region is a LoRaWAN regional parameter set: data rates, payload limits,
 // transmit powers, receive-window settings and timing. Obtain one from
-// EU868 or US915; the zero value is not valid and its methods return
+// EU868, US915, AU915, IN865 or Regions; the zero value is not valid and its methods return
 // errors or empty results. A Region is immutable and safe for concurrent
 // use; every slice it returns is a fresh copy.
 //
@@ -116,7 +117,7 @@ type Region struct{ t *regionTable }
 
 // errZeroRegion returns a fresh error for a method called on the zero Region.
 func errZeroRegion() error {
-	return paramErr("Region", "Region", "zero value", "use EU868() or US915()")
+	return paramErr("Region", "Region", "zero value", "use EU868(), US915(), AU915(), IN865() or Regions()")
 }
 
 // Name returns the region's name, e.g. "EU863-870".

@@ -213,5 +213,5 @@ func TestRegionsListed(t *testing.T) {
 	for _, r := range lora.Regions() {
 		names = append(names, r.Name())
 	}
-	assert.Equal(t, []string{"EU863-870", "US902-928"}, names)
+	assert.Equal(t, []string{"EU863-870", "US902-928", "AU915-928", "IN865-867"}, names)
 }

@@ -1,0 +1,340 @@
+package energy
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/joulelaw/joulelaw/dist"
+)
+
+// Caps and defaults of a DeviceModel.
+const (
+	// MaxEventKinds caps the event kinds (EventCost entries) of one
+	// DeviceModel: a Tally keeps one count per kind in a fixed array.
+	MaxEventKinds = 64
+	// MaxReadings is the number of readings a Tally keeps: the newest
+	// ones (older readings are dropped; see Tally).
+	MaxReadings = 8
+	// MaxPosteriorNodes caps DeviceOptions.Nodes.
+	MaxPosteriorNodes = 1 << 16
+	// MaxEventCount caps Event.Count.
+	MaxEventCount = 1 << 40
+	// DefaultPosteriorNodes is the number of posterior nodes when
+	// DeviceOptions.Nodes is 0.
+	DefaultPosteriorNodes = 256
+	// MaxLateness is how far (s) an event may lie before the newest one
+	// already in a Tally and still be counted (at the newest time): one
+	// hour, for records that arrive out of order through several gateways.
+	// An event earlier than that is an error.
+	MaxLateness = Hour
+)
+
+// EventCost is one kind of event a back-end counts for a device (an uplink
+// at one radio setting, a downlink in one window, a join, a report's own
+// sensing work), and the energy one such event costs the node.
+type EventCost struct {
+	Name string // free text, used in messages
+	// Energy is the law of one event's energy (J) at the node's rail above
+	// the floor power it would draw anyway (the floor is charged for all
+	// time separately). It may be negative for a correction (a downlink
+	// that shortens a receive window). Its mean and variance must be
+	// finite; only they are used.
+	Energy dist.Law
+}
+
+// DeviceOptions tune a DeviceModel; the zero value gives the defaults.
+type DeviceOptions struct {
+	// Nodes is the number of posterior nodes (points in the space of the
+	// per-node factors), 0 for DefaultPosteriorNodes, at most
+	// MaxPosteriorNodes; it must be even (two interleaved halves give the
+	// stated error).
+	Nodes int
+	// Memory is the time constant (s) of the exponentially weighted
+	// recent activity from which a device's future energy rate is taken;
+	// 0 means 30 days.
+	Memory float64
+	// PriorTime is the weight (s) of the planned energy rate against the
+	// device's own: the future active power is
+	//	(E_recent + P_plan·PriorTime) / (T_recent + PriorTime)
+	// with P_plan the NodeSpec's settings' mean active power. 0 means one
+	// day.
+	PriorTime float64
+	// ReadingLoad is the current (A) the cell delivers while the device
+	// measures its voltage, >= 0 (0: at rest).
+	ReadingLoad float64
+}
+
+// DeviceModel learns one device's remaining life from what a network
+// back-end sees of it: counts of events whose energies are known laws
+// (EventCost), the time since its cell was installed, and optional voltage
+// readings. It is built from the NodeSpec of the device's group (cell,
+// supply path, thermal response, voltage curve, per-node spreads, calendar
+// life; the first setting's cycle gives the floor power and, with
+// NodeSpec.Voltage, the usable fraction) in one Environment.
+//
+// # Model
+//
+// The node has a capacity factor c ~ N(1, σc), an active factor a ~
+// N(1, σa) and a floor factor f = exp(σf·Z) (NodeSpec.Spread, the same
+// tier as NewNodeLifetime's). At τ seconds after installation its depth
+// of discharge (fraction of the rated energy N·b drawn) is
+//
+//	d(τ) = (a·A(τ) + f·Φ(τ) + P_q·τ)/(c·N·b) + s_store + s·D(τ)
+//
+// with A the active energy of the events counted so far (at the cell,
+// through the supply's scale), Φ the floor energy of the median board
+// (the floor power times its thermal factor, month by month), P_q the
+// supply's quiescent power and D the self-discharge; the node is flat
+// once d reaches its usable fraction (NodeLifetime's end of life). From
+// the newest event on, A grows at the device's recent active power.
+//
+// # Posterior
+//
+// The prior of (c, a, f) is represented by a fixed low-discrepancy point
+// set (the Kronecker sequence of Roberts 2018 with the plastic-number
+// generalisation, through the normal quantile), the same for every
+// device. A device's posterior re-weights these nodes by the likelihood of
+// its readings and of being alive at its newest event. Laws of the
+// posterior are mixtures over the nodes; their error is estimated from the
+// disagreement of the two interleaved halves of the point set (each itself
+// a Kronecker sequence) and reported (dist.Estimated). Readings that pull
+// the posterior far from the prior leave few nodes with weight: the
+// effective number of nodes (DevicePosterior.EffectiveNodes) and the
+// stated error say so.
+//
+// A DeviceModel is an immutable value, safe for concurrent use.
+type DeviceModel struct{ d *deviceData }
+
+type deviceData struct {
+	n        *node
+	s        nodeSetting // the first setting
+	costs    []eventCostData
+	nodes    int
+	memory   float64
+	prior    float64 // PriorTime (s)
+	planP    float64 // W active power at the cell, planned
+	planV    float64 // J²/s variance rate, planned
+	load     float64
+	curve    *VoltageCurve
+	temps    [12]float64  // °C in the i-th month after installation
+	endDepth float64      // depth at which the node is flat
+	c, a, f  []float64    // prior nodes
+	z        [][3]float64 // their standard normal scores
+	spread   NodeSpread
+	voltage  float64 // V nominal cell voltage
+}
+
+type eventCostData struct {
+	name      string
+	mean, vr  float64 // J, J² at the cell
+	hasEnergy bool
+}
+
+// NewDeviceModel returns the model of a group's devices described by spec
+// in env, counting the events of costs. Errors wrap ErrParam and name the
+// parameter, its value and the rule.
+func NewDeviceModel(spec NodeSpec, env Environment, costs []EventCost, opt DeviceOptions) (DeviceModel, error) {
+	const fn = "NewDeviceModel"
+	n, err := newNode(fn, spec, env)
+	if err != nil {
+		return DeviceModel{}, err
+	}
+	switch {
+	case len(costs) == 0 || len(costs) > MaxEventKinds:
+		return DeviceModel{}, paramErr(fn, "costs", len(costs), fmt.Sprintf("must hold 1 to MaxEventKinds = %d event kinds", MaxEventKinds))
+	case opt.Nodes < 0 || opt.Nodes > MaxPosteriorNodes || opt.Nodes%2 != 0:
+		return DeviceModel{}, paramErr(fn, "opt.Nodes", opt.Nodes, fmt.Sprintf("must be even and in [0, MaxPosteriorNodes = %d] (0 for %d)", MaxPosteriorNodes, DefaultPosteriorNodes))
+	case !(opt.Memory >= 0) || math.IsInf(opt.Memory, 0):
+		return DeviceModel{}, paramErr(fn, "opt.Memory", opt.Memory, "must be finite and >= 0 s (0 for 30 days)")
+	case !(opt.PriorTime >= 0) || math.IsInf(opt.PriorTime, 0):
+		return DeviceModel{}, paramErr(fn, "opt.PriorTime", opt.PriorTime, "must be finite and >= 0 s (0 for one day)")
+	case !(opt.ReadingLoad >= 0 && opt.ReadingLoad <= voltageMaxCurrent):
+		return DeviceModel{}, paramErr(fn, "opt.ReadingLoad", opt.ReadingLoad, "must be in [0, 10] A")
+	}
+	d := &deviceData{n: n, s: n.settings[0], nodes: opt.Nodes, memory: opt.Memory, prior: opt.PriorTime, load: opt.ReadingLoad}
+	if d.nodes == 0 {
+		d.nodes = DefaultPosteriorNodes
+	}
+	if d.memory == 0 {
+		d.memory = 30 * Day
+	}
+	if d.prior == 0 {
+		d.prior = Day
+	}
+	for _, st := range n.settings {
+		d.planP += st.w * st.rate * st.mu
+		d.planV += st.w * st.rate * st.k2
+	}
+	for i, c := range costs {
+		if c.Energy == nil {
+			return DeviceModel{}, paramErr(fn, fmt.Sprintf("costs[%d].Energy", i), nil, "must be a law")
+		}
+		m, v := c.Energy.Mean(), c.Energy.Variance()
+		if !finite(m) || !finite(v) || v < 0 || math.Abs(m) > MaxBatteryEnergy {
+			return DeviceModel{}, paramErr(fn, fmt.Sprintf("costs[%d] %q", i, c.Name), fmt.Sprintf("mean %g J, variance %g J²", m, v), "must have a finite mean (|mean| <= MaxBatteryEnergy) and a finite variance")
+		}
+		sc := d.s.scale
+		d.costs = append(d.costs, eventCostData{name: c.Name, mean: sc * m, vr: sc * sc * v, hasEnergy: true})
+	}
+	d.voltage = spec.Battery.spec.NominalVoltage
+	d.endDepth = d.s.usable / spec.Battery.NominalEnergy()
+	if spec.Voltage != nil {
+		v := *spec.Voltage
+		d.curve = &v
+	}
+	ref := 20.0
+	if spec.Voltage != nil {
+		ref = spec.Voltage.ReferenceTemperature
+	}
+	for i := range 12 {
+		d.temps[i] = ref
+	}
+	if th := spec.Thermal; th != nil {
+		clim := env.Climate
+		if clim == nil {
+			c, err := ConstantClimate(th.ReferenceTemperature)
+			if err != nil {
+				return DeviceModel{}, causeErr(fn, "env.Climate", nil, "reference climate", err)
+			}
+			clim = &c
+		}
+		sh := clim.Shift(env.TemperatureOffset)
+		for i := range 12 {
+			d.temps[i] = sh.Month((spec.StartMonth + i) % 12)
+		}
+	}
+	d.spread = spec.Spread
+	d.z = kroneckerScores(d.nodes)
+	d.c, d.a, d.f = make([]float64, d.nodes), make([]float64, d.nodes), make([]float64, d.nodes)
+	for k, z := range d.z {
+		d.c[k], d.a[k], d.f[k] = d.factors(z)
+	}
+	return DeviceModel{d: d}, nil
+}
+
+// plastic3 is the real root of x⁴ = x + 1, the generator of the
+// three-dimensional Kronecker sequence of Roberts (2018, "The unreasonable
+// effectiveness of quasirandom sequences").
+const plastic3 = 1.2207440846057594
+
+// kroneckerScores returns m points u_k = frac(1/2 + k·(g⁻¹, g⁻², g⁻³))
+// of the three-dimensional Kronecker sequence, mapped through the standard
+// normal quantile.
+func kroneckerScores(m int) [][3]float64 {
+	std := dist.MustNormal(0, 1)
+	out := make([][3]float64, m)
+	al := [3]float64{1 / plastic3, 1 / (plastic3 * plastic3), 1 / (plastic3 * plastic3 * plastic3)}
+	for k := range m {
+		for j := range 3 {
+			u := 0.5 + float64(k)*al[j]
+			u -= math.Floor(u)
+			out[k][j] = std.Quantile(u)
+		}
+	}
+	return out
+}
+
+// factors returns the per-node factors (c, a, f) at the standard normal
+// scores z: c = 1 + σc·z₀, a = 1 + σa·z₁, f = exp(σf·z₂).
+func (d *deviceData) factors(z [3]float64) (c, a, f float64) {
+	sp := d.spread
+	return 1 + sp.Capacity*z[0], 1 + sp.Active*z[1], math.Exp(sp.Floor * z[2])
+}
+
+// Costs returns the names of the model's event kinds, in the order of the
+// costs given to NewDeviceModel (an Event's Kind indexes it).
+func (m DeviceModel) Costs() []string {
+	if m.d == nil {
+		return nil
+	}
+	out := make([]string, len(m.d.costs))
+	for i, c := range m.d.costs {
+		out[i] = c.name
+	}
+	return out
+}
+
+// CostMean returns the mean energy (J, at the cell) of one event of kind k,
+// NaN for a kind out of range.
+func (m DeviceModel) CostMean(k int) float64 {
+	if m.d == nil || k < 0 || k >= len(m.d.costs) {
+		return math.NaN()
+	}
+	return m.d.costs[k].mean
+}
+
+// EndDepth returns the depth of discharge (fraction of the rated energy)
+// at which the model's node is flat: the usable fraction times the
+// year's mean derating.
+func (m DeviceModel) EndDepth() float64 {
+	if m.d == nil {
+		return math.NaN()
+	}
+	return m.d.endDepth
+}
+
+// floorE returns the floor energy (J) of the median board over [0, τ].
+func (d *deviceData) floorE(tau float64) float64 {
+	return d.s.floorP * d.n.cum(&d.n.floorCum, &d.n.floorRate, tau)
+}
+
+// selfD returns the fraction of the rated energy lost to self-discharge
+// by τ, storage included.
+func (d *deviceData) selfD(tau float64) float64 {
+	return d.n.storage + d.n.sdRate*d.n.cum(&d.n.sdCum, &d.n.sdFactor, tau)
+}
+
+// temp returns the month's temperature (°C) at τ after installation.
+func (d *deviceData) temp(tau float64) float64 {
+	r := math.Mod(tau, Year)
+	i := int(r / Month)
+	if i > 11 {
+		i = 11
+	}
+	if i < 0 {
+		i = 0
+	}
+	return d.temps[i]
+}
+
+// life solves for node k the time τ* (s after installation, > τ0) at which
+// its depth reaches the end depth, the active energy growing from A0 at τ0
+// at the rate r (W at the cell): the root of
+//
+//	K − H(τ) = 0,  K = c·(b·U − N·s_store) − a·(A0 − r·τ0),
+//	H(τ) = c·N·s·D(τ) + (a·r + P_q)·τ + f·Φ(τ),
+//
+// H increasing and piecewise linear month by month, with H(y·Year + x) =
+// y·H(Year) + H(x). It returns τ* and H's slope there (W); +Inf when
+// nothing drains the cell.
+func (d *deviceData) life(c, a, f, a0, r, tau0 float64) (tau, slope float64) {
+	n := d.n
+	nom := n.nominal
+	k := c*(n.batch*d.s.usable-nom*n.storage) - a*(a0-r*tau0)
+	cs := c * nom * n.sdRate
+	lin := a*r + n.quiescent
+	fp := f * d.s.floorP
+	hy := cs*n.sdCum[12] + lin*Year + fp*n.floorCum[12]
+	if !(hy > 0) {
+		return math.Inf(1), 0
+	}
+	if k <= 0 {
+		return 0, hy / Year
+	}
+	y := math.Floor(k / hy)
+	rem := k - y*hy
+	prev := 0.0
+	for i := range 12 {
+		next := cs*n.sdCum[i+1] + lin*Month*float64(i+1) + fp*n.floorCum[i+1]
+		if rem < next || i == 11 {
+			sl := cs*n.sdFactor[i] + lin + fp*n.floorRate[i]
+			x := 0.0
+			if sl > 0 {
+				x = math.Min(Month, (rem-prev)/sl)
+			}
+			return y*Year + float64(i)*Month + x, sl
+		}
+		prev = next
+	}
+	return math.Inf(1), 0 // not reached
+}

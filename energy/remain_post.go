@@ -1,0 +1,404 @@
+package energy
+
+import (
+	"fmt"
+	"math"
+)
+
+// DevicePosterior is one device's posterior at a time "now": the model's
+// prior nodes of the per-node factors re-weighted by the likelihood of
+// being alive at the device's newest event and of its kept readings, with
+// the device's counted energy and recent active power. Its laws
+// (Remaining, Spent, Capacity, FloorCurrent) are PosteriorLaws. It is an
+// immutable value, safe for concurrent use.
+type DevicePosterior struct{ p *postData }
+
+type postData struct {
+	d              *deviceData
+	c, a, f        []float64 // the nodes kept (weight > 1e-300 of the largest)
+	half           []uint8   // parity of each node's index in the point set
+	w              []float64 // their normalised weights
+	tau0, tauNow   float64   // s after installation: newest event, now
+	a0, va0, r, vr float64
+	ess            float64
+	stages         int
+}
+
+// logNormSurv returns log Φ̄(z), with the asymptotic series where Φ̄
+// underflows (z > 37).
+func logNormSurv(z float64) float64 {
+	if z < 37 {
+		return math.Log(normSurv(z))
+	}
+	return -0.5*z*z - math.Log(z*math.Sqrt(2*math.Pi)) + math.Log1p(-1/(z*z))
+}
+
+// logBin returns log P(lo <= V + ε < hi) for ε ~ N(0, σ²).
+func logBin(v, lo, hi, sigma float64) float64 {
+	zl, zh := (lo-v)/sigma, (hi-v)/sigma
+	var p float64
+	switch {
+	case zl > 0: // the bin lies above v
+		p = normSurv(zl) - normSurv(zh)
+		if !(p > 0) {
+			return logNormSurv(zl)
+		}
+	case zh < 0: // below v
+		p = normSurv(-zh) - normSurv(-zl)
+		if !(p > 0) {
+			return logNormSurv(-zh)
+		}
+	default:
+		p = 1 - normSurv(zh) - normSurv(-zl)
+	}
+	return math.Log(p)
+}
+
+// Posterior returns the device's posterior at now (s on the back-end's
+// clock, at or after the tally's newest event). It refuses, with an error
+// wrapping ErrParam, a device flagged as on external power (no battery to
+// run out), a zero model or tally, and a now before the newest event. A
+// device with no events yet gets the prior, going forward at the planned
+// active power.
+func (m DeviceModel) Posterior(t Tally, now float64) (DevicePosterior, error) {
+	const fn = "DeviceModel.Posterior"
+	d := m.d
+	switch {
+	case d == nil:
+		return DevicePosterior{}, paramErr(fn, "model", "zero DeviceModel", "must be built by NewDeviceModel")
+	case !t.ok:
+		return DevicePosterior{}, paramErr(fn, "tally", "zero Tally", "must be started by DeviceModel.NewTally")
+	case t.external:
+		return DevicePosterior{}, paramErr(fn, "tally", "external power", "the device reports external power (no battery life to estimate)")
+	case !finite(now) || now < t.newest:
+		return DevicePosterior{}, paramErr(fn, "now", now, fmt.Sprintf("must be finite and at or after the newest event at %.17g s", t.newest))
+	}
+	pd := &postData{d: d, tau0: t.newest - t.install, tauNow: now - t.install, a0: t.active, va0: t.actVar}
+	pd.r, pd.vr = d.activePower(&t, now)
+	M := len(d.c)
+	like := d.likelihood(&t, pd.tau0)
+	logw := make([]float64, M)
+	for k := range M {
+		logw[k] = like(d.c[k], d.a[k], d.f[k])
+	}
+	cs, as, fs := d.c, d.a, d.f
+	ess := essOf(logw)
+	pd.stages = 1
+	// Adaptive importance stages: while the readings leave fewer than a
+	// quarter of the nodes effective, place the same point set on a normal
+	// fitted to the weighted nodes (in the normal scores, widened) and
+	// weight by prior × likelihood / proposal.
+	zs := d.z
+	for stage := 0; ess < float64(M)/4 && stage < 3; stage++ {
+		if math.IsInf(maxOf(logw), -1) {
+			break
+		}
+		mu, l, ok := fitProposal(zs, logw, stage)
+		if !ok {
+			break
+		}
+		nz := make([][3]float64, M)
+		nl := make([]float64, M)
+		nc, na, nf := make([]float64, M), make([]float64, M), make([]float64, M)
+		logDet := math.Log(l[0][0]) + math.Log(l[1][1]) + math.Log(l[2][2])
+		for k, zeta := range d.z {
+			var z [3]float64
+			for r := range 3 {
+				z[r] = mu[r]
+				for c := 0; c <= r; c++ {
+					z[r] += l[r][c] * zeta[c]
+				}
+			}
+			nz[k] = z
+			c, a, f := d.factors(z)
+			nc[k], na[k], nf[k] = c, a, f
+			if !(c > 0 && a > 0) {
+				nl[k] = math.Inf(-1)
+				continue
+			}
+			q := -0.5*(zeta[0]*zeta[0]+zeta[1]*zeta[1]+zeta[2]*zeta[2]) - logDet
+			pr := -0.5 * (z[0]*z[0] + z[1]*z[1] + z[2]*z[2])
+			nl[k] = like(c, a, f) + pr - q
+		}
+		ne := essOf(nl)
+		if !(ne > ess) {
+			break
+		}
+		zs, logw, cs, as, fs, ess = nz, nl, nc, na, nf, ne
+		pd.stages++
+	}
+	best := maxOf(logw)
+	if math.IsInf(best, -1) {
+		return DevicePosterior{}, paramErr(fn, "tally", fmt.Sprintf("%.6g J active energy by %.6g days", t.active, Days(pd.tau0)),
+			"no node of the model's prior is still alive with this much spent: the counts or the model's cell are wrong")
+	}
+	s1 := 0.0
+	for k, l := range logw {
+		w := math.Exp(l - best)
+		if w > 1e-300 {
+			pd.c, pd.a, pd.f = append(pd.c, cs[k]), append(pd.a, as[k]), append(pd.f, fs[k])
+			pd.half = append(pd.half, uint8(k%2))
+			pd.w = append(pd.w, w)
+			s1 += w
+		}
+	}
+	for i := range pd.w {
+		pd.w[i] /= s1
+	}
+	pd.ess = ess
+	return DevicePosterior{p: pd}, nil
+}
+
+// loadedAt is LoadedVoltage with the pulse drop I·M(T) given (V/Ω), for
+// depth in [0, 1].
+func (v *VoltageCurve) loadedAt(depth, drop float64) float64 {
+	ds := v.DepthOfDischarge
+	i := searchAbove(ds, depth)
+	if i == 0 {
+		return v.OpenCircuit[0] - drop*v.Resistance[0]
+	}
+	if i >= len(ds) {
+		n := len(ds) - 1
+		return v.OpenCircuit[n] - drop*v.Resistance[n]
+	}
+	x0, x1 := ds[i-1], ds[i]
+	u := (depth - x0) / (x1 - x0)
+	ocv := v.OpenCircuit[i-1] + u*(v.OpenCircuit[i]-v.OpenCircuit[i-1])
+	r := v.Resistance[i-1] + u*(v.Resistance[i]-v.Resistance[i-1])
+	return ocv - drop*r
+}
+
+// searchAbove returns the first index i with xs[i] > x (xs ascending,
+// short: a linear scan).
+func searchAbove(xs []float64, x float64) int {
+	for i, v := range xs {
+		if v > x {
+			return i
+		}
+	}
+	return len(xs)
+}
+
+// EffectiveNodes returns the effective number of posterior nodes,
+// (Σw)²/Σw²: the model's Nodes with no informative reading, fewer as the
+// readings concentrate the posterior.
+func (p DevicePosterior) EffectiveNodes() float64 {
+	if p.p == nil {
+		return math.NaN()
+	}
+	return p.p.ess
+}
+
+// ActivePower returns the device's future active power (W at the cell)
+// used going forward: its recent power blended with the planned one.
+func (p DevicePosterior) ActivePower() float64 {
+	if p.p == nil {
+		return math.NaN()
+	}
+	return p.p.r
+}
+
+func (p DevicePosterior) laws(fn func(c, a, f float64) (m, s float64)) (ms, ss, ws []float64, half []uint8) {
+	pd := p.p
+	ms, ss = make([]float64, len(pd.w)), make([]float64, len(pd.w))
+	for i := range pd.w {
+		ms[i], ss[i] = fn(pd.c[i], pd.a[i], pd.f[i])
+	}
+	return ms, ss, pd.w, pd.half
+}
+
+// Remaining returns the law of the device's remaining life (s from now):
+// for each node, the time its depth reaches the end depth with the active
+// energy growing at ActivePower from the newest event and the floor and
+// self-discharge month by month (solved exactly on the monthly pieces),
+// with a normal kernel of the per-event noise (the active energy's
+// standard deviation over the drain rate there); clamped to 0 (flat
+// already: the device may have died since its newest event) and to the
+// calendar limit (CalendarLife − StorageTime from installation).
+func (p DevicePosterior) Remaining() PosteriorLaw {
+	if p.p == nil {
+		return PosteriorLaw{}
+	}
+	pd := p.p
+	d := pd.d
+	hi := d.n.calendar - pd.tauNow
+	if hi < 0 {
+		hi = 0
+	}
+	ms, ss, ws, half := p.laws(func(c, a, f float64) (float64, float64) {
+		tau, slope := d.life(c, a, f, pd.a0, pd.r, pd.tau0)
+		if math.IsInf(tau, 1) || tau-pd.tauNow >= hi {
+			return hi, 0
+		}
+		v := a * a * (pd.va0 + pd.vr*math.Max(0, tau-pd.tau0))
+		s := 0.0
+		if slope > 0 {
+			s = math.Sqrt(v) / slope
+		}
+		return tau - pd.tauNow, s
+	})
+	return newPostLaw(ms, ss, ws, half, pd.ess, 0, hi, "RemainingLife", "y", Year)
+}
+
+// Spent returns the law of the energy (J, at the cell) the device has
+// drawn by now: the active energy a·(A0 + P·(now − newest)) with the
+// per-event noise as kernel, plus the floor f·Φ(now) and the supply's
+// quiescent draw (self-discharge not included).
+func (p DevicePosterior) Spent() PosteriorLaw {
+	if p.p == nil {
+		return PosteriorLaw{}
+	}
+	pd := p.p
+	d := pd.d
+	dt := pd.tauNow - pd.tau0
+	act := pd.a0 + pd.r*dt
+	va := pd.va0 + pd.vr*dt
+	fe, q := d.floorE(pd.tauNow), d.n.quiescent*pd.tauNow
+	ms, ss, ws, half := p.laws(func(c, a, f float64) (float64, float64) {
+		return a*act + f*fe + q, a * math.Sqrt(va)
+	})
+	return newPostLaw(ms, ss, ws, half, pd.ess, 0, math.Inf(1), "SpentEnergy", "J", 1)
+}
+
+// Capacity returns the posterior law of the cell's usable energy (J): the
+// capacity factor times the batch factor times the usable energy.
+func (p DevicePosterior) Capacity() PosteriorLaw {
+	if p.p == nil {
+		return PosteriorLaw{}
+	}
+	d := p.p.d
+	pd := p.p
+	ms, ss, ws, half := p.laws(func(c, a, f float64) (float64, float64) {
+		return c * d.n.batch * d.s.usable, 0
+	})
+	return newPostLaw(ms, ss, ws, half, pd.ess, math.Inf(-1), math.Inf(1), "UsableEnergy", "J", 1)
+}
+
+// FloorCurrent returns the posterior law of the node's floor current (A at
+// the cell's nominal voltage, at the reference temperature): the floor
+// factor times the first setting's floor power over the voltage.
+func (p DevicePosterior) FloorCurrent() PosteriorLaw {
+	if p.p == nil {
+		return PosteriorLaw{}
+	}
+	d := p.p.d
+	pd := p.p
+	ms, ss, ws, half := p.laws(func(c, a, f float64) (float64, float64) {
+		return f * d.s.floorP / d.voltage, 0
+	})
+	return newPostLaw(ms, ss, ws, half, pd.ess, math.Inf(-1), math.Inf(1), "FloorCurrent", "µA", MicroAmp)
+}
+
+// likelihood returns the log-likelihood of the tally's evidence at the
+// node factors (c, a, f): alive at the newest event τ0 (the per-event noise
+// of the counted active energy normal) and each kept reading's bin.
+func (d *deviceData) likelihood(t *Tally, tau0 float64) func(c, a, f float64) float64 {
+	n := d.n
+	capU := n.batch*d.s.usable - n.nominal*d.selfD(tau0)
+	fe0, q0 := d.floorE(tau0), n.quiescent*tau0
+	sd0 := math.Sqrt(t.actVar)
+	act := t.active
+	type rd struct{ active, fe, q, sdd, drop, lo, hi, noise float64 }
+	rs := make([]rd, t.nRead)
+	for i := range rs {
+		r := t.reads[i]
+		rs[i] = rd{active: r.active, fe: d.floorE(r.tau), q: n.quiescent * r.tau, sdd: d.selfD(r.tau),
+			drop: d.load * d.curve.ResistanceMultiplier(d.temp(r.tau)), lo: r.lo, hi: r.hi, noise: r.noise}
+	}
+	return func(c, a, f float64) float64 {
+		g := c*capU - a*act - f*fe0 - q0
+		l := 0.0
+		switch {
+		case sd0 > 0:
+			l = logNormSurv(-g / (a * sd0))
+		case g < 0:
+			return math.Inf(-1)
+		}
+		for i := range rs {
+			r := &rs[i]
+			dep := (a*r.active+f*r.fe+r.q)/(c*n.nominal) + r.sdd
+			dep = math.Min(1, math.Max(0, dep))
+			l += logBin(d.curve.loadedAt(dep, r.drop), r.lo, r.hi, r.noise)
+		}
+		return l
+	}
+}
+
+func maxOf(x []float64) float64 {
+	b := math.Inf(-1)
+	for _, v := range x {
+		b = math.Max(b, v)
+	}
+	return b
+}
+
+// essOf returns the effective number (Σw)²/Σw² of the weights exp(logw).
+func essOf(logw []float64) float64 {
+	b := maxOf(logw)
+	if math.IsInf(b, -1) || math.IsNaN(b) {
+		return 0
+	}
+	s1, s2 := 0.0, 0.0
+	for _, l := range logw {
+		w := math.Exp(l - b)
+		s1 += w
+		s2 += w * w
+	}
+	return s1 * s1 / s2
+}
+
+// fitProposal fits a normal to the weighted scores: the weighted mean and
+// covariance, widened (×2 and 0.1² on the diagonal at the first stage,
+// ×1.5 and 0.01² later, so that a proposal from few nodes still covers
+// the posterior), and its lower Cholesky factor.
+func fitProposal(zs [][3]float64, logw []float64, stage int) (mu [3]float64, l [3][3]float64, ok bool) {
+	b := maxOf(logw)
+	tot := 0.0
+	for k, lw := range logw {
+		w := math.Exp(lw - b)
+		tot += w
+		for r := range 3 {
+			mu[r] += w * zs[k][r]
+		}
+	}
+	for r := range 3 {
+		mu[r] /= tot
+	}
+	var cov [3][3]float64
+	for k, lw := range logw {
+		w := math.Exp(lw-b) / tot
+		for r := range 3 {
+			for c := 0; c <= r; c++ {
+				cov[r][c] += w * (zs[k][r] - mu[r]) * (zs[k][c] - mu[c])
+			}
+		}
+	}
+	grow, floor := 2.0, 0.1
+	if stage > 0 {
+		grow, floor = 1.5, 0.01
+	}
+	for r := range 3 {
+		for c := 0; c <= r; c++ {
+			cov[r][c] *= grow
+		}
+		cov[r][r] += floor * floor
+	}
+	// Cholesky of the 3×3 symmetric matrix (lower triangle given).
+	for r := range 3 {
+		for c := 0; c <= r; c++ {
+			s := cov[r][c]
+			for k := range c {
+				s -= l[r][k] * l[c][k]
+			}
+			if r == c {
+				if !(s > 0) {
+					return mu, l, false
+				}
+				l[r][r] = math.Sqrt(s)
+			} else {
+				l[r][c] = s / l[c][c]
+			}
+		}
+	}
+	return mu, l, true
+}

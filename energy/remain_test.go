@@ -1,0 +1,185 @@
+package energy_test
+
+import (
+	"errors"
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/dist/disttest"
+	"github.com/joulelaw/joulelaw/energy"
+)
+
+// feedDays feeds a tally 'days' days of the first profile of the
+// validation fleet (96 fast uplinks and 4 downlinks a day), with a reading
+// of volts every day when volts > 0.
+func feedDays(t testing.TB, m energy.DeviceModel, tl energy.Tally, from float64, days int, volts float64) energy.Tally {
+	t.Helper()
+	var err error
+	for d := range days {
+		at := from + float64(d+1)*energy.Day
+		tl, err = m.Observe(tl, energy.Event{Time: at, Kind: 0, Count: 96})
+		require.NoError(t, err)
+		tl, err = m.Observe(tl, energy.Event{Time: at, Kind: 2, Count: 4})
+		require.NoError(t, err)
+		if volts > 0 {
+			tl, err = m.Read(tl, energy.Reading{Time: at, Low: volts - 0.005, High: volts + 0.005, Noise: 0.02})
+			require.NoError(t, err)
+		}
+	}
+	return tl
+}
+
+// TestPosteriorLawConformance runs the law contract checker on the laws of
+// a posterior with and without informative readings.
+func TestPosteriorLawConformance(t *testing.T) {
+	f := newValFleet(t, true)
+	m, err := energy.NewDeviceModel(f.spec, energy.Environment{}, f.costs, energy.DeviceOptions{})
+	require.NoError(t, err)
+	tl, err := m.NewTally(0)
+	require.NoError(t, err)
+	for _, tc := range []struct {
+		name  string
+		days  int
+		volts float64
+	}{{"a year of counts", 365, 0}, {"deep in the knee", 1500, 3.50}} {
+		t.Run(tc.name, func(t *testing.T) {
+			tt := feedDays(t, m, tl, 0, tc.days, tc.volts)
+			p, err := m.Posterior(tt, tt.Newest())
+			require.NoError(t, err)
+			for _, l := range []dist.Law{p.Remaining(), p.Spent(), p.Capacity(), p.FloorCurrent()} {
+				require.NoError(t, disttest.Check(l), "%v", l)
+			}
+		})
+	}
+}
+
+// TestPosteriorStatedError checks the stated CDF error of the remaining
+// life against an oracle: the same model on 2^15 nodes (whose own stated
+// error is far smaller), at the law's 5 %, 25 %, 50 %, 75 % and 95 %
+// points.
+func TestPosteriorStatedError(t *testing.T) {
+	f := newValFleet(t, true)
+	for _, tc := range []struct {
+		name  string
+		days  int
+		volts float64
+	}{{"counts only", 400, 0}, {"flat-curve readings", 400, 3.64}, {"knee readings", 1500, 3.50}} {
+		t.Run(tc.name, func(t *testing.T) {
+			var laws [2]energy.PosteriorLaw
+			for i, nodes := range []int{256, 1 << 15} {
+				m, err := energy.NewDeviceModel(f.spec, energy.Environment{}, f.costs, energy.DeviceOptions{Nodes: nodes})
+				require.NoError(t, err)
+				tl, err := m.NewTally(0)
+				require.NoError(t, err)
+				tl = feedDays(t, m, tl, 0, tc.days, tc.volts)
+				p, err := m.Posterior(tl, tl.Newest())
+				require.NoError(t, err)
+				laws[i] = p.Remaining()
+			}
+			stated := laws[0].Accuracy().CDFAbs
+			oracleErr := laws[1].Accuracy().CDFAbs
+			worst := 0.0
+			for _, q := range []float64{0.05, 0.25, 0.5, 0.75, 0.95} {
+				x := laws[0].Quantile(q)
+				worst = math.Max(worst, math.Abs(laws[0].CDF(x)-laws[1].CDF(x)))
+			}
+			t.Logf("stated %.3g, measured %.3g (oracle's own stated %.3g)", stated, worst, oracleErr)
+			require.Less(t, oracleErr, stated/2)
+			require.LessOrEqual(t, worst, stated+oracleErr)
+		})
+	}
+}
+
+// TestDeviceBadInput checks the documented behaviour on bad input: each
+// is an error wrapping ErrParam and leaves the tally as it was.
+func TestDeviceBadInput(t *testing.T) {
+	f := newValFleet(t, true)
+	m, err := energy.NewDeviceModel(f.spec, energy.Environment{}, f.costs, energy.DeviceOptions{})
+	require.NoError(t, err)
+	tl, err := m.NewTally(1000)
+	require.NoError(t, err)
+	tl, err = m.Observe(tl, energy.Event{Time: 1000 + energy.Day, Kind: 0, Count: 10})
+	require.NoError(t, err)
+	for _, tc := range []struct {
+		name string
+		do   func() (energy.Tally, error)
+	}{
+		{"kind out of range", func() (energy.Tally, error) { return m.Observe(tl, energy.Event{Time: 2e5, Kind: 3}) }},
+		{"negative count", func() (energy.Tally, error) { return m.Observe(tl, energy.Event{Time: 2e5, Kind: 0, Count: -1}) }},
+		{"NaN time", func() (energy.Tally, error) { return m.Observe(tl, energy.Event{Time: math.NaN()}) }},
+		{"before installation", func() (energy.Tally, error) { return m.Observe(tl, energy.Event{Time: 999}) }},
+		{"time going backwards by more than MaxLateness", func() (energy.Tally, error) {
+			return m.Observe(tl, energy.Event{Time: 1000 + energy.Day - 2*energy.Hour})
+		}},
+		{"reading with Low >= High", func() (energy.Tally, error) {
+			return m.Read(tl, energy.Reading{Time: 2e5, Low: 3.6, High: 3.6, Noise: 0.01})
+		}},
+		{"reading above the scale", func() (energy.Tally, error) {
+			return m.Read(tl, energy.Reading{Time: 2e5, Low: 360, High: 361, Noise: 0.01})
+		}},
+		{"reading without noise", func() (energy.Tally, error) {
+			return m.Read(tl, energy.Reading{Time: 2e5, Low: 3.6, High: 3.61, Noise: 0})
+		}},
+		{"reading open at both ends", func() (energy.Tally, error) {
+			return m.Read(tl, energy.Reading{Time: 2e5, Low: math.Inf(-1), High: math.Inf(1), Noise: 0.01})
+		}},
+		{"zero tally", func() (energy.Tally, error) { return m.Observe(energy.Tally{}, energy.Event{Time: 1}) }},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			got, err := tc.do()
+			require.ErrorIs(t, err, energy.ErrParam)
+			var pe *energy.ParamError
+			require.True(t, errors.As(err, &pe))
+			require.Equal(t, tl.Events(), got.Events()+boolInt(tc.name == "zero tally")*tl.Events())
+		})
+	}
+	// A late event within MaxLateness is counted at the newest time.
+	late, err := m.Observe(tl, energy.Event{Time: 1000 + energy.Day - 10, Kind: 0})
+	require.NoError(t, err)
+	require.Equal(t, tl.Events()+1, late.Events())
+	require.Equal(t, tl.Newest(), late.Newest())
+	// Posterior before the newest event is refused.
+	_, err = m.Posterior(tl, 1000)
+	require.ErrorIs(t, err, energy.ErrParam)
+}
+
+func boolInt(b bool) int64 {
+	if b {
+		return 1
+	}
+	return 0
+}
+
+// TestDeviceNoUplinksAndExternal: a device with no events yet gets the
+// prior going forward at the planned power, so its remaining life at
+// installation is the fresh-cell lifetime (NodeLifetime, an independent
+// computation: the median within the two laws' stated errors); a device
+// flagged as on external power is refused until the flag is cleared.
+func TestDeviceNoUplinksAndExternal(t *testing.T) {
+	f := newValFleet(t, false)
+	m, err := energy.NewDeviceModel(f.spec, energy.Environment{}, f.costs, energy.DeviceOptions{Nodes: 4096})
+	require.NoError(t, err)
+	tl, err := m.NewTally(0)
+	require.NoError(t, err)
+	p, err := m.Posterior(tl, 0)
+	require.NoError(t, err)
+	rem := p.Remaining()
+	fresh, err := energy.NewNodeLifetime(f.spec, energy.Environment{})
+	require.NoError(t, err)
+	for _, q := range []float64{0.1, 0.5, 0.9} {
+		x := fresh.Quantile(q)
+		tol := rem.Accuracy().CDFAbs + fresh.Accuracy().CDFAbs
+		require.InDelta(t, q, rem.CDF(x), tol, "q=%g", q)
+	}
+	ext, err := m.SetExternal(tl, 10, true)
+	require.NoError(t, err)
+	_, err = m.Posterior(ext, 10)
+	require.ErrorIs(t, err, energy.ErrParam)
+	back, err := m.SetExternal(ext, 20, false)
+	require.NoError(t, err)
+	_, err = m.Posterior(back, 20)
+	require.NoError(t, err)
+}

@@ -1,0 +1,199 @@
+package energy_test
+
+import (
+	"math"
+	"math/rand/v2"
+	"slices"
+	"testing"
+
+	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/backlog"
+	"github.com/joulelaw/joulelaw/internal/testref"
+)
+
+// valFleet is an invented fleet (demo figures, not measured devices): an
+// AA-size lithium–thionyl chloride cell (2400 mAh at 3.6 V, 1 % a year
+// self-discharge, from memory), a 30 µW median floor, and two traffic
+// profiles: 96 fast uplinks a day at 0.15 J, or 48 slow ones at 0.35 J,
+// plus a few downlinks. Spreads: capacity 3 %, active 5 %, floor log-sd
+// 0.5.
+type valFleet struct {
+	gen   backlog.Spec
+	spec  energy.NodeSpec
+	costs []energy.EventCost
+}
+
+func newValFleet(t testing.TB, readings bool) valFleet {
+	t.Helper()
+	const v = 3.6
+	kinds := []backlog.Kind{{Energy: 0.15, SD: 0.01}, {Energy: 0.35, SD: 0.02}, {Energy: 0.005, SD: 0.001}}
+	profiles := []backlog.Profile{{Weight: 0.6, PerDay: []float64{96, 0, 4}}, {Weight: 0.4, PerDay: []float64{0, 48, 2}}}
+	bs := energy.TypicalER14505()
+	bs.Charge = 2400 * energy.MilliAmpHour
+	bs.NominalVoltage = v
+	bs.UsableFraction = 0.9
+	bs.SelfDischargePerYear = 0.01
+	bs.TemperatureDerating = 0
+	bs.PulseCurrent = 0
+	bat, err := energy.NewBattery(bs)
+	require.NoError(t, err)
+	floorP := 30 * energy.MicroWatt
+	planned := 0.0
+	for _, p := range profiles {
+		for k, n := range p.PerDay {
+			planned += p.Weight * n * kinds[k].Energy
+		}
+	}
+	// The planned cycle: one report every 15 minutes carrying the planned
+	// mean energy.
+	perReport := planned / 96
+	st, err := energy.NewFixedState("report", perReport/(v*2)+floorP/v, v, 2)
+	require.NoError(t, err)
+	cyc, err := energy.NewCycle(st, dist.MustPointMass(15*energy.Minute), floorP)
+	require.NoError(t, err)
+	spec := energy.NodeSpec{
+		Name:     "validation",
+		Settings: []energy.NodeSetting{{Weight: 1, Cycle: cyc}},
+		Battery:  bat,
+		Spread:   energy.NodeSpread{Capacity: 0.03, Active: 0.05, Floor: 0.5},
+	}
+	gen := backlog.Spec{
+		Kinds: kinds, Profiles: profiles,
+		Nominal: bat.NominalEnergy(), EndDepth: 0.9, SelfDischarge: 0.01, FloorPower: floorP,
+		Capacity: 0.03, Active: 0.05, Floor: 0.5,
+	}
+	if readings {
+		curve := energy.TypicalBobbinCurve()
+		spec.Voltage = &curve
+		spec.Brownout = 3.0
+		gen.ReadEvery, gen.Curve, gen.Noise, gen.Quantum, gen.Low, gen.High, gen.Temperature = 1, &curve, 0.02, 0.01, 2, 3.7, 20
+	}
+	var costs []energy.EventCost
+	for i, k := range kinds {
+		costs = append(costs, energy.EventCost{Name: []string{"fast", "slow", "down"}[i], Energy: dist.MustNormal(k.Energy, k.SD)})
+	}
+	return valFleet{gen: gen, spec: spec, costs: costs}
+}
+
+// valResult holds, for the devices alive at the cut, the truth and the
+// predictions.
+type valResult struct {
+	n              int
+	in50, in90     int
+	errModel, errB []float64 // absolute errors of the median (s)
+	trueRem, risk  []float64 // true remaining life; P(flat within the horizon)
+}
+
+// runValidation draws n devices installed at staggered times up to a year
+// before the cut at 'today', feeds each one's log up to the cut into a
+// Tally, and compares the posterior's remaining-life law with the truth
+// played on to the end.
+func runValidation(t testing.TB, f valFleet, n int, seed uint64, today float64) valResult {
+	t.Helper()
+	m, err := energy.NewDeviceModel(f.spec, energy.Environment{}, f.costs, energy.DeviceOptions{Nodes: 512})
+	require.NoError(t, err)
+	if f.gen.ReadEvery > 0 {
+		f.gen.EndDepth = m.EndDepth()
+	}
+	fresh, err := energy.NewNodeLifetime(f.spec, energy.Environment{})
+	require.NoError(t, err)
+	freshMedian := fresh.Quantile(0.5)
+	r := rand.New(rand.NewPCG(seed, 15))
+	var res valResult
+	horizon := 0.5 * energy.Year
+	for range n {
+		dev, err := f.gen.Draw(r)
+		require.NoError(t, err)
+		install := -r.Float64() * energy.Year // back-end clock: today = `today`
+		age := today - install
+		tally, err := m.NewTally(install)
+		require.NoError(t, err)
+		var last float64
+		death, err := f.gen.Play(r, dev, age, func(rec backlog.Record) {
+			at := install + rec.Time
+			for k, c := range rec.Counts {
+				if c > 0 {
+					tally, err = m.Observe(tally, energy.Event{Time: at, Kind: k, Count: c})
+					require.NoError(t, err)
+				}
+			}
+			if !math.IsNaN(rec.Reading) {
+				lo, hi := rec.Reading-0.005, rec.Reading+0.005
+				if rec.Reading <= f.gen.Low {
+					lo = math.Inf(-1)
+				}
+				if rec.Reading >= f.gen.High {
+					hi = math.Inf(1)
+				}
+				tally, err = m.Read(tally, energy.Reading{Time: at, Low: lo, High: hi, Noise: f.gen.Noise})
+				require.NoError(t, err)
+			}
+			last = at
+		})
+		require.NoError(t, err)
+		if death <= age {
+			continue // flat before the cut: the back-end no longer hears it
+		}
+		_ = last
+		post, err := m.Posterior(tally, today)
+		require.NoError(t, err)
+		rem := post.Remaining()
+		truth := death - age
+		q05, q25, q50, q75, q95 := rem.Quantile(0.05), rem.Quantile(0.25), rem.Quantile(0.5), rem.Quantile(0.75), rem.Quantile(0.95)
+		res.n++
+		if truth >= q25 && truth <= q75 {
+			res.in50++
+		}
+		if truth >= q05 && truth <= q95 {
+			res.in90++
+		}
+		res.errModel = append(res.errModel, math.Abs(q50-truth))
+		res.errB = append(res.errB, math.Abs(math.Max(0, freshMedian-age)-truth))
+		res.trueRem = append(res.trueRem, truth)
+		res.risk = append(res.risk, rem.CDF(horizon))
+	}
+	return res
+}
+
+func median(x []float64) float64 {
+	y := slices.Clone(x)
+	slices.Sort(y)
+	return y[len(y)/2]
+}
+
+// TestRemainingCalibration checks the remaining-life intervals against
+// devices played on to the true end of their cells (internal/backlog, an
+// independent generator): the share whose truth falls in the 50 % and 90 %
+// equal-tailed intervals must lie in the binomial acceptance interval at
+// level 1e-6 (testref.BinomialInterval, exact binomial tails), and the
+// median absolute error of the predicted median must beat "fresh-cell
+// lifetime minus age".
+func TestRemainingCalibration(t *testing.T) {
+	for _, tc := range []struct {
+		name     string
+		readings bool
+		today    float64
+	}{
+		{"counts only, 1.5 years", false, 1.5 * energy.Year},
+		{"counts and voltage readings, 3 years", true, 3 * energy.Year},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			f := newValFleet(t, tc.readings)
+			res := runValidation(t, f, 600, 7, tc.today)
+			require.Greater(t, res.n, 300)
+			lo50, hi50 := testref.BinomialInterval(res.n, 0.5, 1e-6)
+			lo90, hi90 := testref.BinomialInterval(res.n, 0.9, 1e-6)
+			mm, mb := median(res.errModel), median(res.errB)
+			t.Logf("%d devices alive at the cut: %d in the 50 %% interval [%d, %d], %d in the 90 %% interval [%d, %d]; median |error| %.3g d (model) vs %.3g d (fresh minus age)",
+				res.n, res.in50, lo50, hi50, res.in90, lo90, hi90, mm/energy.Day, mb/energy.Day)
+			require.GreaterOrEqual(t, res.in50, lo50)
+			require.LessOrEqual(t, res.in50, hi50)
+			require.GreaterOrEqual(t, res.in90, lo90)
+			require.LessOrEqual(t, res.in90, hi90)
+			require.Less(t, mm, mb)
+		})
+	}
+}

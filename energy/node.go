@@ -314,6 +314,28 @@ func (n *node) cum(c *[13]float64, rate *[12]float64, t float64) float64 {
 	return y*c[12] + c[i] + (r-float64(i)*Month)*rate[i]
 }
 
+// maxKinks caps the month boundaries kinks returns (about 170 years of
+// them); a law spread wider than that is tabulated without them.
+const maxKinks = 2048
+
+// kinks returns the month boundaries m·Month (s after deployment) in
+// (lo, hi) where a monthly factor (floor or self-discharge) changes: there
+// the node's energy balance, and so its lifetime law, has a kink. None
+// when there would be more than maxKinks.
+func (n *node) kinks(lo, hi float64) []float64 {
+	if !(hi > lo) || (hi-lo)/Month > maxKinks {
+		return nil
+	}
+	var out []float64
+	for m := int(math.Floor(math.Max(lo, 0)/Month)) + 1; float64(m)*Month < hi; m++ {
+		i, j := (m-1)%12, m%12
+		if x := float64(m) * Month; x > lo && (n.floorRate[i] != n.floorRate[j] || n.sdFactor[i] != n.sdFactor[j]) {
+			out = append(out, x)
+		}
+	}
+	return out
+}
+
 // settingAt returns P(a node of setting j still has energy at t) and
 // P(it has run out), each computed directly, and an error estimate, for
 // t in s after deployment (the calendar limit is not applied here).

@@ -27,10 +27,14 @@ const (
 // dist.Atomic and dist.Estimated.
 type tabulated struct {
 	src        NodeLifetime
-	t, z, d    []float64 // grid, probit, PCHIP slopes
+	t, z       []float64 // grid, probit
+	d0, d1     []float64 // per interval i: the PCHIP slopes at t[i] and t[i+1]
+	kinks      int       // month boundaries seeded into the grid
 	cal        float64   // calendar limit (+Inf for none)
 	atom       float64   // mass at the calendar limit
 	acc        dist.Accuracy
+	tabCDF     float64 // the table's own part of acc.CDFAbs (interpolation against direct evaluation)
+	tabRel     float64 // and of acc.SurvivalRel
 	mean, vari float64
 }
 
@@ -61,18 +65,37 @@ func tabulate(l NodeLifetime) tabulated {
 			minWidth = math.Max(minWidth, 2/s.rate)
 		}
 	}
-	ts := make([]float64, tabInitial)
-	zs := make([]float64, tabInitial)
-	for i := range ts {
-		ts[i] = lo + (hi-lo)*float64(i)/float64(tabInitial-1)
-		zs[i] = probit(ts[i])
+	// The first grid: tabInitial even steps and the kinks (month
+	// boundaries where the monthly factors change), which stay knots with
+	// one-sided slopes on either side, so that no cubic straddles one.
+	kinks := l.n.kinks(lo, hi)
+	tb.kinks = len(kinks)
+	var ts []float64
+	var kink []bool
+	for i := range tabInitial {
+		x := lo + (hi-lo)*float64(i)/float64(tabInitial-1)
+		for len(kinks) > 0 && kinks[0] <= x {
+			if kinks[0] < x && (len(ts) == 0 || kinks[0] > ts[len(ts)-1]) {
+				ts, kink = append(ts, kinks[0]), append(kink, true)
+			}
+			kinks = kinks[1:]
+		}
+		if len(ts) > 0 && ts[len(ts)-1] == x {
+			continue
+		}
+		ts, kink = append(ts, x), append(kink, false)
+	}
+	zs := make([]float64, len(ts))
+	for i, x := range ts {
+		zs[i] = probit(x)
 	}
 	worst := 0.0
 	done := make([]bool, len(ts)-1) // interval i checked and within tolerance
 	for pass := 0; pass < 40; pass++ {
-		d := pchipSlopes(ts, zs)
+		d0, d1 := pchipIntervals(ts, zs, kink)
 		nt := []float64{ts[0]}
 		nz := []float64{zs[0]}
+		nk := []bool{kink[0]}
 		var nd []bool
 		refined := false
 		for i := 0; i+1 < len(ts); i++ {
@@ -81,12 +104,13 @@ func tabulate(l NodeLifetime) tabulated {
 			if done[i] || full || w <= minWidth || (math.IsInf(zs[i], 0) && zs[i] == zs[i+1]) {
 				nt = append(nt, ts[i+1])
 				nz = append(nz, zs[i+1])
+				nk = append(nk, kink[i+1])
 				nd = append(nd, true)
 				continue
 			}
 			m := ts[i] + w/2
 			zm := probit(m)
-			zi := hermite(ts[i], ts[i+1], zs[i], zs[i+1], d[i], d[i+1], m)
+			zi := hermite(ts[i], ts[i+1], zs[i], zs[i+1], d0[i], d1[i], m)
 			e := math.Abs(zi - zm)
 			if math.IsInf(zm, 0) || math.IsInf(zs[i], 0) || math.IsInf(zs[i+1], 0) {
 				e = math.Inf(1)
@@ -99,32 +123,63 @@ func tabulate(l NodeLifetime) tabulated {
 			}
 			nt = append(nt, m, ts[i+1])
 			nz = append(nz, zm, zs[i+1])
+			nk = append(nk, false, kink[i+1])
 			nd = append(nd, ok, ok)
 		}
-		ts, zs, done = nt, nz, nd
+		ts, zs, kink, done = nt, nz, nk, nd
 		if !refined {
 			break
 		}
 	}
 	tb.t, tb.z = ts, zs
-	tb.d = pchipSlopes(ts, zs)
+	tb.d0, tb.d1 = pchipIntervals(ts, zs, kink)
 	// The model's own error, measured at three of the table's times (the
 	// law's 1e-14 ends and its middle).
 	src := l.accuracyAt([]float64{ts[0], ts[len(ts)/2], ts[len(ts)-1]})
 	// A probit error δ moves a probability p by about φ(z)·δ <= 0.4·δ, and
 	// the smaller tail p by about p·|z|·δ (Mills' ratio): |z| <= 7.7 down to
 	// 1e-14.
+	// The check is made on the interval before its last halving; the
+	// cubic on the halves, with the midpoint as a knot, is closer still
+	// (TestTabulatedAgainstDirect measures it).
+	tb.tabCDF, tb.tabRel = 0.4*worst, 7.7*worst
 	tb.acc = dist.Accuracy{
-		CDFAbs:      src.CDFAbs + 0.4*worst,
-		SurvivalRel: src.SurvivalRel + 7.7*worst,
+		CDFAbs:      src.CDFAbs + tb.tabCDF,
+		SurvivalRel: src.SurvivalRel + tb.tabRel,
 		TailFloor:   math.Max(src.TailFloor, tabTail),
-		Method:      fmt.Sprintf("%s; tabulated on %d times (probit interpolation)", src.Method, len(ts)),
+		Method:      fmt.Sprintf("%s; tabulated on %d times (probit interpolation, %d month boundaries as knots)", src.Method, len(ts), tb.kinks),
 	}
 	tb.moments()
 	return tb
 }
 
-// pchipSlopes returns Fritsch–Carlson monotone slopes; infinite values
+// pchipIntervals returns, for each interval i of the grid t, the slopes
+// d0[i] at t[i] and d1[i] at t[i+1] of a monotone piecewise cubic: PCHIP
+// slopes (pchipSlopes) computed separately on each run of the grid between
+// kinks, so that at a kink each side has its own one-sided slope.
+func pchipIntervals(t, z []float64, kink []bool) (d0, d1 []float64) {
+	n := len(t)
+	if n < 2 {
+		return []float64{0}, []float64{0}
+	}
+	d0, d1 = make([]float64, n-1), make([]float64, n-1)
+	start := 0
+	for i := 1; i < n; i++ {
+		if i < n-1 && !kink[i] {
+			continue
+		}
+		s := pchipSlopes(t[start:i+1], z[start:i+1])
+		for j := start; j < i; j++ {
+			d0[j], d1[j] = s[j-start], s[j-start+1]
+		}
+		start = i
+	}
+	return d0, d1
+}
+
+// pchipSlopes returns Fritsch–Carlson monotone slopes at the points of one
+// smooth run, with the shape-preserving three-point end slopes of Moler
+// ("Numerical Computing with MATLAB", SIAM 2004, §3.4); infinite values
 // (probits of 0 or 1) get slope 0 beside them.
 func pchipSlopes(t, z []float64) []float64 {
 	n := len(t)
@@ -139,7 +194,12 @@ func pchipSlopes(t, z []float64) []float64 {
 			del[i] = 0
 		}
 	}
-	d[0], d[n-1] = del[0], del[n-2]
+	if n == 2 {
+		d[0], d[1] = del[0], del[0]
+		return d
+	}
+	d[0] = pchipEnd(t[1]-t[0], t[2]-t[1], del[0], del[1])
+	d[n-1] = pchipEnd(t[n-1]-t[n-2], t[n-2]-t[n-3], del[n-2], del[n-3])
 	for i := 1; i < n-1; i++ {
 		if del[i-1]*del[i] <= 0 {
 			continue
@@ -147,6 +207,20 @@ func pchipSlopes(t, z []float64) []float64 {
 		h0, h1 := t[i]-t[i-1], t[i+1]-t[i]
 		w1, w2 := 2*h1+h0, h1+2*h0
 		d[i] = (w1 + w2) / (w1/del[i-1] + w2/del[i])
+	}
+	return d
+}
+
+// pchipEnd is the one-sided three-point slope at an end of a run, with h0
+// and del0 the step and secant next to the end, h1 and del1 the next ones,
+// limited so that the cubic keeps the data's monotonicity.
+func pchipEnd(h0, h1, del0, del1 float64) float64 {
+	d := ((2*h0+h1)*del0 - h0*del1) / (h0 + h1)
+	switch {
+	case math.IsNaN(d) || d*del0 <= 0:
+		return 0
+	case del0*del1 <= 0 && math.Abs(d) > 3*math.Abs(del0):
+		return 3 * del0
 	}
 	return d
 }
@@ -176,11 +250,11 @@ func (tb tabulated) zAt(t float64) float64 {
 	n := len(tb.t)
 	switch {
 	case i == 0:
-		return tb.z[0] - math.Max(tb.d[0], 0)*(tb.t[0]-t)
+		return tb.z[0] - math.Max(tb.d0[0], 0)*(tb.t[0]-t)
 	case i >= n:
-		return tb.z[n-1] + math.Max(tb.d[n-1], 0)*(t-tb.t[n-1])
+		return tb.z[n-1] + math.Max(tb.d1[len(tb.d1)-1], 0)*(t-tb.t[n-1])
 	}
-	return hermite(tb.t[i-1], tb.t[i], tb.z[i-1], tb.z[i], tb.d[i-1], tb.d[i], t)
+	return hermite(tb.t[i-1], tb.t[i], tb.z[i-1], tb.z[i], tb.d0[i-1], tb.d1[i-1], t)
 }
 
 // CDF returns P(lifetime <= t).
@@ -214,14 +288,14 @@ func (tb tabulated) Survival(t float64) float64 {
 func (tb tabulated) invert(zt float64) float64 {
 	n := len(tb.z)
 	if zt <= tb.z[0] {
-		if tb.d[0] > 0 {
-			return math.Max(0, tb.t[0]-(tb.z[0]-zt)/tb.d[0])
+		if tb.d0[0] > 0 {
+			return math.Max(0, tb.t[0]-(tb.z[0]-zt)/tb.d0[0])
 		}
 		return tb.t[0]
 	}
 	if zt >= tb.z[n-1] {
-		if tb.d[n-1] > 0 && !math.IsInf(zt, 1) {
-			return math.Min(tb.cal, tb.t[n-1]+(zt-tb.z[n-1])/tb.d[n-1])
+		if d := tb.d1[len(tb.d1)-1]; d > 0 && !math.IsInf(zt, 1) {
+			return math.Min(tb.cal, tb.t[n-1]+(zt-tb.z[n-1])/d)
 		}
 		return tb.t[n-1]
 	}
@@ -235,7 +309,7 @@ func (tb tabulated) invert(zt float64) float64 {
 		if m == a || m == b {
 			break
 		}
-		if hermite(tb.t[i-1], tb.t[i], tb.z[i-1], tb.z[i], tb.d[i-1], tb.d[i], m) >= zt {
+		if hermite(tb.t[i-1], tb.t[i], tb.z[i-1], tb.z[i], tb.d0[i-1], tb.d1[i-1], m) >= zt {
 			b = m
 		} else {
 			a = m

@@ -14,7 +14,7 @@ const (
 	MaxEventKinds = 64
 	// MaxReadings is the number of readings a Tally keeps: the newest
 	// ones (older readings are dropped; see Tally).
-	MaxReadings = 8
+	MaxReadings = 4
 	// MaxPosteriorNodes caps DeviceOptions.Nodes.
 	MaxPosteriorNodes = 1 << 16
 	// MaxEventCount caps Event.Count.

@@ -171,7 +171,7 @@ func (l PosteriorLaw) Survival(x float64) float64 {
 }
 
 // Quantile returns inf{x : CDF(x) >= prob}, by bisection to a relative
-// 1e-13 of the support's scale; NaN outside [0, 1].
+// 1e-10 of the support's scale; NaN outside [0, 1].
 func (l PosteriorLaw) Quantile(prob float64) float64 {
 	p := l.p
 	switch {
@@ -235,7 +235,7 @@ func (p *postLaw) bisect(k int, ok func(float64) bool) float64 {
 		scale = math.Abs(b)
 	}
 	for range 200 {
-		if b-a <= 1e-13*scale {
+		if b-a <= 1e-10*scale {
 			break
 		}
 		mid := 0.5 * (a + b)

@@ -11,7 +11,7 @@ import (
 const (
 	// MaxEventKinds caps the event kinds (EventCost entries) of one
 	// DeviceModel: a Tally keeps one count per kind in a fixed array.
-	MaxEventKinds = 64
+	MaxEventKinds = 128
 	// MaxReadings is the number of readings a Tally keeps: the newest
 	// ones (older readings are dropped; see Tally).
 	MaxReadings = 4

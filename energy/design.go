@@ -186,7 +186,22 @@ func SearchDesign(p DesignProblem) (Design, error) {
 		return Design{}, err
 	}
 	d := Design{Target: p.Target, Results: make([]DesignResult, len(choices))}
-	errs := make([]error, len(choices))
+	err = forEachOnTwo(len(choices), func(i int) (err error) {
+		d.Results[i], err = p.searchChoice(fn, choices[i], tol)
+		return err
+	})
+	if err != nil {
+		return Design{}, err
+	}
+	d.Best, d.Feasible = bestDesign(d.Results, tol)
+	return d, nil
+}
+
+// forEachOnTwo runs job(0) … job(n−1) on two goroutines and returns the
+// error of the lowest index that failed; each job writes only its own
+// slot, so the outcome does not depend on the schedule.
+func forEachOnTwo(n int, job func(i int) error) error {
+	errs := make([]error, n)
 	jobs := make(chan int)
 	var wg sync.WaitGroup
 	for range 2 {
@@ -194,22 +209,21 @@ func SearchDesign(p DesignProblem) (Design, error) {
 		go func() {
 			defer wg.Done()
 			for i := range jobs {
-				d.Results[i], errs[i] = p.searchChoice(fn, choices[i], tol)
+				errs[i] = job(i)
 			}
 		}()
 	}
-	for i := range choices {
+	for i := range n {
 		jobs <- i
 	}
 	close(jobs)
 	wg.Wait()
 	for _, err := range errs {
 		if err != nil {
-			return Design{}, err
+			return err
 		}
 	}
-	d.Best, d.Feasible = bestDesign(d.Results, tol)
-	return d, nil
+	return nil
 }
 
 func (p DesignProblem) check(fn string) ([]DesignChoice, float64, error) {

@@ -195,22 +195,3 @@ func (r Region) strictestDutyCycle(mask ChannelMask, dr int, anyDR bool) (float6
 	}
 	return d, nil
 }
-
-// DownlinkDutyCycle returns the duty-cycle limit of the sub-band holding a
-// gateway's downlink frequency freq (Hz), or 1 where the region has no
-// duty-cycle sub-bands. It fails, wrapping ErrParam, when the region has
-// sub-bands and freq lies outside all of them. The same caution as on
-// UplinkDutyCycle applies: check the local rules for gateways.
-func (r Region) DownlinkDutyCycle(freq float64) (float64, error) {
-	if r.t == nil {
-		return 0, errZeroRegion()
-	}
-	if len(r.t.subBands) == 0 {
-		return 1, nil
-	}
-	sb, err := r.SubBandAt(freq)
-	if err != nil {
-		return 0, err
-	}
-	return sb.DutyCycle, nil
-}

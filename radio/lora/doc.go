@@ -25,7 +25,7 @@
 // limit at each data rate. A ChannelMask selects the uplink channels a node
 // or gateway uses (ChannelBlock: the eight-channel blocks of US902-928 and
 // AU915-928); ChannelsCarrying counts a data rate's collision domains, and
-// UplinkDutyCycle and DownlinkDutyCycle give the limits that bind.
+// UplinkDutyCycle and DownlinkBand give the limits that bind.
 //
 // # Links, ADR and collisions
 //

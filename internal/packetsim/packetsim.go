@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 
 	"github.com/joulelaw/joulelaw/radio/lora"
 	"github.com/joulelaw/joulelaw/radio/lora/scenario"
@@ -13,9 +14,6 @@ import (
 
 // ErrParam is wrapped by errors about bad arguments to this package.
 var ErrParam = errors.New("packetsim: invalid parameter")
-
-// maxRedraws bounds the placements tried for one node before giving up.
-const maxRedraws = 10000
 
 // Node is one placed node.
 type Node struct {
@@ -27,6 +25,10 @@ type Node struct {
 	DR        int     // the data rate ADR settled on
 	TXPower   int     // the TXPower index ADR settled on
 	EIRP      float64 // dBm
+	// Unheard marks a node out of reach: it sends at the ADR back-off
+	// (slowest data rate, TXPower 0), every uplink is lost and it hears no
+	// downlink.
+	Unheard bool
 }
 
 // Options sets the time window of a play.
@@ -39,12 +41,21 @@ type Options struct {
 	Start float64
 }
 
-// FrameCount counts the uplink transmissions of one group at one data rate
-// that started in the counting window, and how many of them collided.
+// FrameCount counts the uplink transmissions of one group's nodes in reach
+// at one data rate that started in the counting window, and how many of them
+// collided.
 type FrameCount struct {
 	Group, DR int
 	Sent      int
 	Collided  int
+}
+
+// AnswerCount counts the answers the network booked with a gateway for one
+// group's uplinks at one data rate in one window (1 or 2), for uplinks that
+// ended in the counting window, and how many the gateway could send.
+type AnswerCount struct {
+	Group, DR, Window int
+	Booked, Sent      int
 }
 
 // Outcome is the result of one play of a scenario.
@@ -52,44 +63,63 @@ type Outcome struct {
 	Nodes []Node
 	// Energy[i] is the energy (J) of node i's recorded cycle.
 	Energy []float64
-	// Redraws[g] is the number of placements of group g rejected as out of
-	// reach.
-	Redraws []int
+	// Unheard[g] is the number of group g's nodes placed out of reach.
+	Unheard []int
 	// Frames counts the transmissions that started between Start and 45 s
 	// before the last cycle was begun (so every frame that could overlap
 	// them was played), per group and data rate, in order of group then DR.
 	Frames []FrameCount
+	// Answers counts the answers booked for uplinks that ended in the same
+	// window, per group, data rate and receive window, in that order.
+	Answers []AnswerCount
 }
 
 // physics holds what the play needs from package lora, computed once.
 type physics struct {
-	channels int
 	d1, d2   float64 // RECEIVE_DELAY1/2, s
+	ja1, ja2 float64 // JOIN_ACCEPT_DELAY1/2, s
 	ackLo    float64 // ACK_TIMEOUT range, s
 	ackHi    float64
-	rx2DR    int
 	adrDRs   []int
 	powers   []float64 // EIRP per TXPower index, dBm
 	floor    map[int]float64
+	// channels[gw][dr] lists the uplink channels the gateway hears that
+	// carry dr; rx1Band[ch] is the downlink band of RX1 after channel ch.
+	channels []map[int][]int
+	rx1Band  []band
 	// per group, per data rate
 	uplink  []map[int]float64 // airtime, s
+	duty    []map[int]float64 // duty cycle binding the uplinks (1: none)
 	rx1DR   []map[int]int
-	listen  []map[int]float64 // empty-window time per window DR, s (same for all groups)
+	listen  []map[int]float64 // empty-window time per window DR, s
 	receive []map[int]float64 // window time with a downlink, per window DR, s
+	dlAir   []map[int]float64 // a downlink's airtime per window DR, s
+	join    []map[int]float64 // a Join-request's airtime, s
+	// per group
+	rx2DR     []int
+	rx2Band   []band
+	joinRX1   []map[int]int // join-accept RX1 data rate (RX1DROffset 0)
+	defaultR2 int           // the region's RX2 data rate (join-accept RX2)
+}
+
+// band is a downlink sub-band: a key and its duty cycle.
+type band struct {
+	key  int
+	duty float64
 }
 
 func newPhysics(s scenario.Scenario) (*physics, error) {
 	reg := s.Region
 	tm := reg.Timing()
 	p := &physics{
-		channels: len(reg.UplinkChannels()),
-		d1:       tm.ReceiveDelay1, d2: tm.ReceiveDelay2,
+		d1: tm.ReceiveDelay1, d2: tm.ReceiveDelay2,
+		ja1: tm.JoinAcceptDelay1, ja2: tm.JoinAcceptDelay2,
 		ackLo: tm.AckTimeoutMin, ackHi: tm.AckTimeoutMax,
 		adrDRs: reg.ADRDataRates(),
 		powers: reg.TXPowers(),
 		floor:  map[int]float64{},
 	}
-	_, p.rx2DR = reg.RX2()
+	_, p.defaultR2 = reg.RX2()
 	for _, dr := range p.adrDRs {
 		d, err := reg.DataRate(dr)
 		if err != nil {
@@ -101,15 +131,46 @@ func newPhysics(s scenario.Scenario) (*physics, error) {
 		}
 		p.floor[dr] = f
 	}
+	for ch := range reg.UplinkChannels() {
+		f, err := reg.RX1Frequency(ch)
+		if err != nil {
+			return nil, err
+		}
+		k, d, err := reg.DownlinkBand(f)
+		if err != nil {
+			return nil, err
+		}
+		p.rx1Band = append(p.rx1Band, band{k, d})
+	}
+	for _, gw := range s.Gateways {
+		m := map[int][]int{}
+		mask := gatewayMask(gw)
+		if mask.Len() == 0 {
+			mask = reg.AllChannels()
+		}
+		for i, c := range reg.UplinkChannels() {
+			for _, dr := range p.adrDRs {
+				if mask.Has(i) && dr >= c.MinDR && dr <= c.MaxDR {
+					m[dr] = append(m[dr], i)
+				}
+			}
+		}
+		p.channels = append(p.channels, m)
+	}
 	for _, g := range s.Groups {
 		up := map[int]float64{}
+		duty := map[int]float64{}
 		r1 := map[int]int{}
+		jr1 := map[int]int{}
 		li := map[int]float64{}
 		re := map[int]float64{}
+		dl := map[int]float64{}
+		join := map[int]float64{}
 		dlBytes := lora.EmptyFrameBytes
 		if g.DownlinkPayload > 0 {
 			dlBytes = lora.MACOverhead + g.DownlinkPayload
 		}
+		node := s.NodeOf(g)
 		window := func(dr int) error {
 			d, err := reg.DataRate(dr)
 			if err != nil {
@@ -123,18 +184,22 @@ func newPhysics(s scenario.Scenario) (*physics, error) {
 			if err != nil {
 				return err
 			}
-			node := s.NodeOf(g)
 			li[dr] = node.WindowMargin + float64(node.WindowSymbols)*sym
 			re[dr] = node.WindowMargin + air
+			dl[dr] = air
 			return nil
 		}
+		mask := gatewayMask(s.Gateways[g.Gateway])
 		for _, dr := range p.adrDRs {
 			a, err := reg.UplinkAirtime(dr, g.Payload, 0)
 			if err != nil {
 				return nil, err
 			}
 			up[dr] = a
-			x, err := reg.RX1DataRate(dr, 0)
+			if duty[dr], err = reg.UplinkDutyCycle(mask, dr); err != nil {
+				return nil, err
+			}
+			x, err := reg.RX1DataRate(dr, groupRX1Offset(g))
 			if err != nil {
 				return nil, err
 			}
@@ -142,14 +207,41 @@ func newPhysics(s scenario.Scenario) (*physics, error) {
 			if err := window(x); err != nil {
 				return nil, err
 			}
+			if jr1[dr], err = reg.RX1DataRate(dr, 0); err != nil {
+				return nil, err
+			}
+			if err := window(jr1[dr]); err != nil {
+				return nil, err
+			}
+			d, err := reg.DataRate(dr)
+			if err != nil {
+				return nil, err
+			}
+			if join[dr], err = d.UplinkPHY().Airtime(lora.JoinRequestBytes); err != nil {
+				return nil, err
+			}
 		}
-		if err := window(p.rx2DR); err != nil {
+		r2f, r2 := groupRX2(s, g)
+		if err := window(r2); err != nil {
+			return nil, err
+		}
+		if err := window(p.defaultR2); err != nil {
+			return nil, err
+		}
+		k, d, err := reg.DownlinkBand(r2f)
+		if err != nil {
 			return nil, err
 		}
 		p.uplink = append(p.uplink, up)
+		p.duty = append(p.duty, duty)
 		p.rx1DR = append(p.rx1DR, r1)
+		p.joinRX1 = append(p.joinRX1, jr1)
 		p.listen = append(p.listen, li)
 		p.receive = append(p.receive, re)
+		p.dlAir = append(p.dlAir, dl)
+		p.join = append(p.join, join)
+		p.rx2DR = append(p.rx2DR, r2)
+		p.rx2Band = append(p.rx2Band, band{k, d})
 	}
 	return p, nil
 }
@@ -176,8 +268,11 @@ func (p *physics) adr(env scenario.Environment, loss float64) (dr, txp int, ok b
 	return 0, 0, false
 }
 
-// Place draws the position, shadowing and ADR setting of every node of s,
-// placing out-of-reach nodes again. It also returns the redraws per group.
+// Place draws the position, shadowing and ADR setting of every node of s.
+// A node out of reach is kept at the ADR back-off (Node.Unheard), as the
+// site model plans it; Place also returns the unheard count per group. Every
+// node takes a bounded number of draws, so a group wholly out of reach is
+// placed like any other (it used to be drawn again without end).
 func Place(s scenario.Scenario, r *rand.Rand) ([]Node, []int, error) {
 	if r == nil {
 		return nil, nil, fmt.Errorf("%w: r = nil: a random source is required", ErrParam)
@@ -192,33 +287,29 @@ func Place(s scenario.Scenario, r *rand.Rand) ([]Node, []int, error) {
 func (p *physics) place(s scenario.Scenario, r *rand.Rand) ([]Node, []int, error) {
 	env := s.Environment
 	var nodes []Node
-	redraws := make([]int, len(s.Groups))
+	unheard := make([]int, len(s.Groups))
+	slow := slices.Min(p.adrDRs)
 	for gi, g := range s.Groups {
 		gw := s.Gateways[g.Gateway]
 		a2, b2 := g.InnerRadius*g.InnerRadius, g.OuterRadius*g.OuterRadius
 		for range g.Nodes {
-			for try := 0; ; try++ {
-				if try == maxRedraws {
-					return nil, nil, fmt.Errorf("%w: group %q: no placement in reach after %d tries", ErrParam, g.Name, maxRedraws)
-				}
-				rad := math.Sqrt(a2 + r.Float64()*(b2-a2))
-				ang := 2 * math.Pi * r.Float64()
-				x := gw.X + rad*math.Cos(ang)
-				y := gw.Y + rad*math.Sin(ang)
-				d := math.Hypot(x-gw.X, y-gw.Y)
-				sh := env.ShadowingSD * r.NormFloat64()
-				loss := env.ReferenceLoss + 10*env.LossExponent*math.Log10(d/env.ReferenceDistance) + sh
-				dr, txp, ok := p.adr(env, loss)
-				if !ok {
-					redraws[gi]++
-					continue
-				}
-				nodes = append(nodes, Node{Group: gi, X: x, Y: y, Distance: d, Shadowing: sh, PathLoss: loss, DR: dr, TXPower: txp, EIRP: p.powers[txp]})
-				break
+			rad := math.Sqrt(a2 + r.Float64()*(b2-a2))
+			ang := 2 * math.Pi * r.Float64()
+			x := gw.X + rad*math.Cos(ang)
+			y := gw.Y + rad*math.Sin(ang)
+			d := math.Hypot(x-gw.X, y-gw.Y)
+			sh := env.ShadowingSD * r.NormFloat64()
+			loss := env.ReferenceLoss + 10*env.LossExponent*math.Log10(d/env.ReferenceDistance) + sh
+			dr, txp, ok := p.adr(env, loss)
+			n := Node{Group: gi, X: x, Y: y, Distance: d, Shadowing: sh, PathLoss: loss, DR: dr, TXPower: txp, EIRP: p.powers[txp]}
+			if !ok {
+				unheard[gi]++
+				n.DR, n.TXPower, n.EIRP, n.Unheard = slow, 0, p.powers[0], true
 			}
+			nodes = append(nodes, n)
 		}
 	}
-	return nodes, redraws, nil
+	return nodes, unheard, nil
 }
 
 // MaxPlayedCycles caps the reports one Play simulates: every node's cycles
@@ -245,18 +336,23 @@ func Play(s scenario.Scenario, opt Options, r *rand.Rand) (Outcome, error) {
 	if err != nil {
 		return Outcome{}, err
 	}
-	nodes, redraws, err := p.place(s, r)
+	nodes, unheard, err := p.place(s, r)
 	if err != nil {
 		return Outcome{}, err
 	}
 	pl := &play{s: s, p: p, r: r, nodes: nodes, start: opt.Start}
 	pl.run()
-	out := Outcome{Nodes: nodes, Energy: pl.energy, Redraws: redraws}
+	out := Outcome{Nodes: nodes, Energy: pl.energy, Unheard: unheard}
 	for gi := range s.Groups {
 		for _, dr := range p.adrDRs {
 			c := pl.counts[countKey{gi, dr}]
 			if c.Sent > 0 {
 				out.Frames = append(out.Frames, FrameCount{Group: gi, DR: dr, Sent: c.Sent, Collided: c.Collided})
+			}
+			for w := 1; w <= 2; w++ {
+				if a := pl.answers[answerKey{gi, dr, w}]; a.Booked > 0 {
+					out.Answers = append(out.Answers, AnswerCount{Group: gi, DR: dr, Window: w, Booked: a.Booked, Sent: a.Sent})
+				}
 			}
 		}
 	}
@@ -343,6 +439,15 @@ type domain struct{ gw, dr, ch int }
 
 type countKey struct{ group, dr int }
 
+type answerKey struct{ group, dr, window int }
+
+// booked is an answer a gateway has taken on: on the transmitter from start
+// to end, and closing its band until closed (the off-time rule).
+type booked struct {
+	start, end, closed float64
+	band               int
+}
+
 type play struct {
 	s       scenario.Scenario
 	p       *physics
@@ -355,9 +460,11 @@ type play struct {
 	q        events
 	seq      int
 	air      map[domain][]*frame
+	sent     [][]booked // per gateway, answers taken on and not yet over
 	energy   []float64
 	recorded []bool
 	counts   map[countKey]FrameCount
+	answers  map[answerKey]AnswerCount
 }
 
 func (pl *play) push(e event) {
@@ -378,9 +485,11 @@ func (pl *play) run() {
 	pl.horizon = pl.start + longest + 90
 	pl.countTo = pl.horizon - 45
 	pl.air = map[domain][]*frame{}
+	pl.sent = make([][]booked, len(s.Gateways))
 	pl.energy = make([]float64, len(pl.nodes))
 	pl.recorded = make([]bool, len(pl.nodes))
 	pl.counts = map[countKey]FrameCount{}
+	pl.answers = map[answerKey]AnswerCount{}
 	for i, n := range pl.nodes {
 		g := s.Groups[n.Group]
 		pl.push(event{t: pl.r.Float64() * g.Interval, kind: wake, node: i})
@@ -427,36 +536,79 @@ func (pl *play) wake(i int, t float64) {
 	pl.transmit(i, c, t+busy)
 }
 
-// transmit starts an attempt of cycle c at time t.
+// transmit starts an attempt of cycle c at time t, on a channel drawn from
+// those of the node's gateway that carry its data rate.
 func (pl *play) transmit(i int, c *cycle, t float64) {
 	n := pl.nodes[i]
+	g := pl.s.Groups[n.Group]
 	c.attempt++
 	a := pl.p.uplink[n.Group][n.DR]
-	f := &frame{node: i, start: t, end: t + a, channel: pl.r.IntN(pl.p.channels), c: c}
-	cur, _ := pl.s.NodeOf(pl.s.Groups[n.Group]).TransmitCurrent(n.EIRP)
+	chans := pl.p.channels[g.Gateway][n.DR]
+	f := &frame{node: i, start: t, end: t + a, channel: chans[pl.r.IntN(len(chans))], c: c}
+	cur, _ := pl.s.NodeOf(g).TransmitCurrent(n.EIRP)
 	c.charge += cur * a
 	c.active += a
 	pl.push(event{t: t, kind: frameStart, f: f})
 }
 
+// frameStart puts a frame of a node in reach on the air of its gateway, data
+// rate and channel; an unheard node's frames arrive below the margin and
+// are left out of the collision domains, as the site model does.
 func (pl *play) frameStart(f *frame) {
 	n := pl.nodes[f.node]
-	key := domain{gw: pl.s.Groups[n.Group].Gateway, dr: n.DR, ch: f.channel}
-	on := pl.air[key][:0]
-	for _, o := range pl.air[key] { // keep only frames still on air
-		if o.end > f.start {
-			on = append(on, o)
+	if !n.Unheard {
+		key := domain{gw: pl.s.Groups[n.Group].Gateway, dr: n.DR, ch: f.channel}
+		on := pl.air[key][:0]
+		for _, o := range pl.air[key] { // keep only frames still on air
+			if o.end > f.start {
+				on = append(on, o)
+			}
+		}
+		for _, o := range on {
+			o.collided = true
+			f.collided = true
+		}
+		pl.air[key] = append(on, f)
+		if f.start >= pl.start && f.start < pl.countTo {
+			f.counted = true
 		}
 	}
-	for _, o := range on {
-		o.collided = true
-		f.collided = true
-	}
-	pl.air[key] = append(on, f)
-	if f.start >= pl.start && f.start < pl.countTo {
-		f.counted = true
-	}
 	pl.push(event{t: f.end, kind: frameEnd, f: f})
+}
+
+// book asks the node's gateway to send an answer in the given window after
+// uplink f: it is taken on unless it would overlap, on the transmitter or on
+// its band's closed time, an answer taken on before.
+func (pl *play) book(f *frame, window int) bool {
+	n := pl.nodes[f.node]
+	p := pl.p
+	gw := pl.s.Groups[n.Group].Gateway
+	var x booked
+	if window == 1 {
+		b := p.rx1Band[f.channel]
+		a := p.dlAir[n.Group][p.rx1DR[n.Group][n.DR]]
+		x = booked{start: f.end + p.d1, end: f.end + p.d1 + a, closed: f.end + p.d1 + a/b.duty, band: b.key}
+	} else {
+		b := p.rx2Band[n.Group]
+		a := p.dlAir[n.Group][p.rx2DR[n.Group]]
+		x = booked{start: f.end + p.d2, end: f.end + p.d2 + a, closed: f.end + p.d2 + a/b.duty, band: b.key}
+	}
+	keep := pl.sent[gw][:0]
+	free := true
+	for _, y := range pl.sent[gw] {
+		if math.Max(y.end, y.closed) <= f.end { // over: can meet no later answer
+			continue
+		}
+		keep = append(keep, y)
+		if x.start < y.end && y.start < x.end || x.band == y.band && x.start < y.closed && y.start < x.closed {
+			free = false
+		}
+	}
+	if free {
+		keep = append(keep, x)
+	}
+	pl.sent[gw] = keep
+	return free
 }
 
 // frameEnd decides the receive windows of the attempt and what follows.
@@ -474,13 +626,28 @@ func (pl *play) frameEnd(f *frame) {
 		pl.counts[k] = c
 	}
 	c := f.c
-	node := pl.s.NodeOf(pl.s.Groups[pl.nodes[f.node].Group])
-	// Which window, if any, brings an answer.
+	node := pl.s.NodeOf(g)
+	// Which window, if any, brings an answer: the network answers a
+	// received uplink, picks its window, the gateway takes it on or not,
+	// and the answer is received or lost.
 	inRX1, inRX2 := false, false
-	if !f.collided && pl.r.Float64() < g.AnswerShare {
-		first := pl.r.Float64() < g.RX1Share
-		if pl.r.Float64() >= g.DownlinkLoss {
-			inRX1, inRX2 = first, !first
+	if !n.Unheard && !f.collided && pl.r.Float64() < g.AnswerShare {
+		window := 2
+		if pl.r.Float64() < g.RX1Share {
+			window = 1
+		}
+		ok := pl.book(f, window)
+		if f.counted {
+			k := answerKey{n.Group, n.DR, window}
+			a := pl.answers[k]
+			a.Booked++
+			if ok {
+				a.Sent++
+			}
+			pl.answers[k] = a
+		}
+		if ok && pl.r.Float64() >= g.DownlinkLoss {
+			inRX1, inRX2 = window == 1, window == 2
 		}
 	}
 	margin := node.WindowMargin
@@ -501,22 +668,55 @@ func (pl *play) frameEnd(f *frame) {
 	wait2 := (p.d2 - margin) - (wait1 + l1)
 	c.charge += node.Wait * wait2
 	c.active += wait2
+	r2 := p.rx2DR[n.Group]
 	var d2 float64
 	if inRX2 {
-		d2 = p.receive[n.Group][p.rx2DR]
+		d2 = p.receive[n.Group][r2]
 	} else {
-		d2 = p.listen[n.Group][p.rx2DR]
+		d2 = p.listen[n.Group][r2]
 	}
 	c.charge += node.Receive * d2
 	c.active += d2
 	if inRX2 || c.attempt >= g.MaxTransmissions {
+		pl.rejoin(f.node, c)
 		pl.finish(f.node, c)
 		return
 	}
-	gap := p.ackLo + (p.ackHi-p.ackLo)*pl.r.Float64()
+	// The next attempt: ACK_TIMEOUT after RX2 for a confirmed frame, at
+	// once for a repetition, and never before the off-time rule allows
+	// (start + airtime/d).
+	closeRX2 := f.end + p.d2 - margin + d2
+	next := closeRX2
+	if g.Confirmed {
+		next += p.ackLo + (p.ackHi-p.ackLo)*pl.r.Float64()
+	}
+	next = math.Max(next, f.start+(f.end-f.start)/p.duty[n.Group][n.DR])
+	gap := next - closeRX2
 	c.charge += node.Wait * gap
 	c.active += gap
-	pl.transmit(f.node, c, f.end+p.d2-margin+d2+gap)
+	pl.transmit(f.node, c, next)
+}
+
+// rejoin adds, for an unheard node of a group that asks for it, a
+// Join-request in one report of JoinEvery (drawn per report) with both
+// join-accept windows empty.
+func (pl *play) rejoin(i int, c *cycle) {
+	n := pl.nodes[i]
+	g := pl.s.Groups[n.Group]
+	k := groupJoinEvery(g)
+	if !n.Unheard || k == 0 || pl.r.Float64()*float64(k) >= 1 {
+		return
+	}
+	p := pl.p
+	node := pl.s.NodeOf(g)
+	a := p.join[n.Group][n.DR]
+	cur, _ := node.TransmitCurrent(n.EIRP)
+	l1 := p.listen[n.Group][p.joinRX1[n.Group][n.DR]]
+	l2 := p.listen[n.Group][p.defaultR2]
+	w1 := p.ja1 - node.WindowMargin
+	w2 := (p.ja2 - p.ja1) - l1
+	c.charge += cur*a + node.Receive*(l1+l2) + node.Wait*(w1+w2)
+	c.active += a + l1 + l2 + w1 + w2
 }
 
 // finish closes a report: the sleep current fills the rest of the period.
@@ -528,3 +728,18 @@ func (pl *play) finish(i int, c *cycle) {
 	sleep := node.Sleep * (c.period - c.active)
 	pl.energy[i] = node.Voltage * (c.charge + sleep)
 }
+
+// The scenario's network settings, in one place.
+
+// gatewayMask returns the uplink channels gw hears (zero: all).
+func gatewayMask(gw scenario.Gateway) lora.ChannelMask { return lora.ChannelMask{} }
+
+// groupRX1Offset returns the group's RX1DROffset.
+func groupRX1Offset(g scenario.Group) int { return 0 }
+
+// groupRX2 returns the group's RX2 frequency (Hz) and data rate.
+func groupRX2(s scenario.Scenario, g scenario.Group) (float64, int) { return s.Region.RX2() }
+
+// groupJoinEvery returns the reports per Join-request of the group's
+// unheard nodes (0: none).
+func groupJoinEvery(g scenario.Group) int { return 0 }

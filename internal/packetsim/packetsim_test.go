@@ -58,27 +58,31 @@ func TestPlacementMatchesTheLinkLaws(t *testing.T) {
 	m, err := scenario.Build(s, nil)
 	require.NoError(t, err)
 	g := m.Groups[0]
-	nodes, redraws, err := packetsim.Place(s, rand.New(rand.NewPCG(3, 4)))
+	nodes, unheard, err := packetsim.Place(s, rand.New(rand.NewPCG(3, 4)))
 	require.NoError(t, err)
 	require.Len(t, nodes, 20000)
 
-	// Out-of-reach share: redraws are a negative-binomial count; the share
-	// of rejected draws is binomial over all draws.
-	draws := len(nodes) + redraws[0]
-	lo, hi := testref.BinomialInterval(draws, g.OutOfReach, testref.BinLevel)
-	assert.GreaterOrEqual(t, redraws[0], lo)
-	assert.LessOrEqual(t, redraws[0], hi)
+	// Out-of-reach share: the unheard count is binomial over the nodes.
+	lo, hi := testref.BinomialInterval(len(nodes), g.OutOfReach, testref.BinLevel)
+	assert.GreaterOrEqual(t, unheard[0], lo)
+	assert.LessOrEqual(t, unheard[0], hi)
 
 	// Data-rate mix of the nodes in reach, one binomial check per data rate
 	// (Bonferroni over the six).
 	count := map[int]int{}
-	dists := make([]float64, len(nodes))
-	for i, n := range nodes {
+	heard := 0
+	for _, n := range nodes {
+		if n.Unheard {
+			assert.Equal(t, 0, n.DR, "the ADR back-off: slowest data rate")
+			assert.Equal(t, 0, n.TXPower, "the ADR back-off: full power")
+			continue
+		}
 		count[n.DR]++
-		dists[i] = n.Distance
+		heard++
 	}
+	assert.Equal(t, len(nodes)-unheard[0], heard)
 	for _, d := range g.PerDR {
-		lo, hi := testref.BinomialInterval(len(nodes), d.Share, testref.BinLevel/6)
+		lo, hi := testref.BinomialInterval(heard, d.Share, testref.BinLevel/6)
 		assert.GreaterOrEqual(t, count[d.DR], lo, "DR%d", d.DR)
 		assert.LessOrEqual(t, count[d.DR], hi, "DR%d", d.DR)
 	}
@@ -88,12 +92,12 @@ func TestPlacementMatchesTheLinkLaws(t *testing.T) {
 	s.Environment.ShadowingSD = 0
 	s.Environment.InstallationMargin = 0
 	s.Groups[0].OuterRadius = 1500
-	nodes, redraws, err = packetsim.Place(s, rand.New(rand.NewPCG(5, 6)))
+	nodes, unheard, err = packetsim.Place(s, rand.New(rand.NewPCG(5, 6)))
 	require.NoError(t, err)
-	assert.Zero(t, redraws[0])
+	assert.Zero(t, unheard[0])
 	ann, err := lora.NewAnnulus(s.Groups[0].InnerRadius, s.Groups[0].OuterRadius)
 	require.NoError(t, err)
-	dists = dists[:0]
+	var dists []float64
 	for _, n := range nodes {
 		dists = append(dists, n.Distance)
 	}
@@ -119,11 +123,51 @@ func TestPlayRejectsBadOptions(t *testing.T) {
 	require.ErrorIs(t, err, packetsim.ErrParam)
 	_, _, err = packetsim.Place(s, nil)
 	require.ErrorIs(t, err, packetsim.ErrParam)
-	// A group that cannot be reached at all is reported, not looped on.
-	s2, err := s.WithCounts([]int{1, 1, 1, 1})
+}
+
+// issue 13: a group wholly out of reach was drawn again and again (Place
+// looped, later gave up with an error). Its nodes are now kept at the ADR
+// back-off like the site model plans them (LoRaWAN L2 1.0.4 §4.3.1.1, from
+// memory): slowest data rate, full power, every uplink lost, no answer, so a
+// confirmed node spends all its transmissions; the play ends and its energy
+// is the unheard cycle's, V·Σ I·t by hand over the timeline of
+// lora.ClassA for that setting with both windows empty.
+func TestWhollyOutOfReachGroup(t *testing.T) {
+	s, err := scenario.Demo().WithCounts([]int{1, 1, 5, 1})
 	require.NoError(t, err)
-	s2.Groups[0].InnerRadius, s2.Groups[0].OuterRadius = 40000, 45000
-	s2.Environment.ShadowingSD = 0
-	_, err = packetsim.Play(s2, packetsim.Options{}, r)
-	require.ErrorIs(t, err, packetsim.ErrParam)
+	s.Groups = s.Groups[2:3] // the confirmed group, 4 transmissions
+	s.Groups[0].InnerRadius, s.Groups[0].OuterRadius = 40000, 45000
+	s.Environment.ShadowingSD = 0
+	m, err := scenario.Build(s, nil)
+	require.NoError(t, err)
+	require.Equal(t, 1.0, m.Groups[0].Unheard.Prob)
+	out, err := packetsim.Play(s, packetsim.Options{Start: 10}, rand.New(rand.NewPCG(9, 9)))
+	require.NoError(t, err)
+	assert.Equal(t, []int{5}, out.Unheard)
+	assert.Empty(t, out.Frames, "unheard frames meet no one and are not counted")
+	assert.Empty(t, out.Answers)
+	ca := m.Groups[0].ClassA
+	ca.Settings = []lora.Setting{m.Groups[0].Unheard}
+	ca.Settings[0].Prob = 1
+	ca.DownlinkByDR = nil
+	tls, err := ca.Timelines()
+	require.NoError(t, err)
+	tl := tls[0]
+	n := s.Nodes[s.Groups[0].Node]
+	tx, ok := n.TransmitCurrent(tl.Setting.EIRP)
+	require.True(t, ok)
+	w := s.Groups[0].Work[0]
+	k := float64(s.Groups[0].MaxTransmissions)
+	per := tx*tl.Uplink + n.Wait*tl.WaitRX1 + n.Receive*tl.RX1Listen + n.Wait*tl.WaitRX2 + n.Receive*tl.RX2Listen
+	gapMean := tl.OffTimeGap // SF12 at 1 %: the off-time exceeds ACK_TIMEOUT
+	require.Greater(t, gapMean, 3.0)
+	charge := w.Current*w.Duration + k*per + (k-1)*n.Wait*gapMean
+	active := w.Duration + k*(tl.Uplink+tl.WaitRX1+tl.RX1Listen+tl.WaitRX2+tl.RX2Listen) + (k-1)*gapMean
+	want := n.Voltage * (charge + n.Sleep*(s.Groups[0].Interval-active))
+	for i, e := range out.Energy {
+		assert.InDelta(t, want, e, 1e-12*want, "node %d", i)
+	}
+	law, err := m.Groups[0].UnheardCycle()
+	require.NoError(t, err)
+	assert.InEpsilon(t, want, law.MeanEnergy(), 1e-12, "the model's unheard cycle")
 }

@@ -12,7 +12,6 @@ import (
 	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/stat/distuv"
 
-	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/internal/packetsim"
 	"github.com/joulelaw/joulelaw/internal/testref"
 	"github.com/joulelaw/joulelaw/orderstat"
@@ -110,23 +109,14 @@ func TestValidationAgainstPacketSampling(t *testing.T) {
 func validateFleet(t *testing.T, s scenario.Scenario, fc fleetCase) validationRow {
 	m, err := scenario.Build(s, nil)
 	require.NoError(t, err)
-	cycles, err := m.SettingCycles(2, nil)
+	// The plan's laws: every node, heard or not (out-of-reach nodes at the
+	// ADR back-off, as the sampler keeps them).
+	all, err := m.Laws(2, nil)
 	require.NoError(t, err)
-	laws := make([]dist.Law, len(m.Groups))
-	var groups []orderstat.Group
-	meanPred := 0.0
-	for gi, g := range m.Groups {
-		laws[gi], err = g.MixEnergy(cycles[gi])
-		require.NoError(t, err)
-		groups = append(groups, orderstat.Group{Law: laws[gi], Count: int64(g.Group.Nodes)})
-		meanPred += float64(g.Group.Nodes) * laws[gi].Mean()
-	}
+	laws := all.GroupEnergy
 	n := s.TotalNodes()
-	meanPred /= float64(n)
-	mx, err := orderstat.MaxOfGroups(groups)
-	require.NoError(t, err)
-	mn, err := orderstat.MinOfGroups(groups)
-	require.NoError(t, err)
+	meanPred := all.FleetEnergy.Mean()
+	mx, mn := all.FleetMax, all.FleetMin
 
 	r := rand.New(rand.NewPCG(fc.seed, 0x6a6f756c65))
 	kept := make([][]float64, len(m.Groups))

@@ -19,6 +19,8 @@ import (
 type Model struct {
 	Scenario Scenario
 	Groups   []GroupModel
+	// Gateways holds each gateway's downlink budget (see GatewayModel).
+	Gateways []GatewayModel
 }
 
 // GroupModel is the model of one group.
@@ -75,6 +77,9 @@ type DRModel struct {
 	UplinkSuccess float64
 	// Frames is the mean number of transmissions per report.
 	Frames float64
+	// RX1Sent and RX2Sent are the probabilities that the gateway can send
+	// an answer booked in RX1 and in RX2 (lora.GatewayDownlinks).
+	RX1Sent, RX2Sent float64
 	// Windows are the downlink probabilities per attempt.
 	Windows lora.Windows
 }
@@ -176,7 +181,7 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 			if err != nil {
 				return Model{}, fmt.Errorf("group %q: %w", g.Name, err)
 			}
-			gm.PerDR = append(gm.PerDR, DRModel{DR: dr, Share: share[dr], Airtime: air, Frames: 1})
+			gm.PerDR = append(gm.PerDR, DRModel{DR: dr, Share: share[dr], Airtime: air, Frames: 1, RX1Sent: 1, RX2Sent: 1})
 		}
 		m.Groups[i] = gm
 	}
@@ -219,12 +224,13 @@ func (m *Model) solveCollisions() error {
 					if !ok {
 						continue
 					}
-					n := float64(h.Group.Nodes) * hd.Share
+					// Only the heard nodes' frames count (see Build).
+					n := float64(h.Group.Nodes) * h.Heard() * hd.Share
 					others := float64(h.Group.Nodes)
 					if hi == gi {
 						others--
 					}
-					others *= hd.Share
+					others *= h.Heard() * hd.Share
 					all, err := lora.OfferedLoad(n, hd.Frames, hd.Airtime, h.Group.Interval, channels[dm.DR])
 					if err != nil {
 						return err
@@ -248,7 +254,7 @@ func (m *Model) solveCollisions() error {
 				}
 				dm.UplinkSuccess = succ
 				gr := g.Group
-				w, err := lora.DownlinkWindows(succ, gr.AnswerShare, gr.RX1Share, 1-gr.DownlinkLoss, 1-gr.DownlinkLoss)
+				w, err := lora.DownlinkWindows(succ, gr.AnswerShare, gr.RX1Share, dm.RX1Sent*(1-gr.DownlinkLoss), dm.RX2Sent*(1-gr.DownlinkLoss))
 				if err != nil {
 					return err
 				}
@@ -265,7 +271,11 @@ func (m *Model) solveCollisions() error {
 				dm.Frames = frames
 			}
 		}
-		if change < 1e-13 {
+		sent, err := m.gatewayBudgets()
+		if err != nil {
+			return err
+		}
+		if change < 1e-13 && sent < 1e-13 {
 			return nil
 		}
 		if iter == maxIter {

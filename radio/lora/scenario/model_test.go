@@ -52,7 +52,13 @@ func TestCollisionsMatchLoraForOneGroup(t *testing.T) {
 	m, err := scenario.Build(s, nil)
 	require.NoError(t, err)
 	g := m.Groups[0]
-	want, err := lora.UplinkCollisions(s.Region, g.Settings, lora.Traffic{
+	// Only the heard nodes load the channels: their settings scaled by
+	// Heard (UplinkCollisions leaves the rest of the nodes out).
+	heard := append([]lora.Setting(nil), g.Settings...)
+	for i := range heard {
+		heard[i].Prob *= g.Heard()
+	}
+	want, err := lora.UplinkCollisions(s.Region, heard, lora.Traffic{
 		Nodes: float64(s.Groups[0].Nodes - 1), Interval: s.Groups[0].Interval,
 		Channels: len(s.Region.UplinkChannels()), App: s.Groups[0].Payload,
 	})
@@ -264,7 +270,7 @@ func TestUS902928Site(t *testing.T) {
 	require.Len(t, g.PerDR, 5)
 	for _, d := range g.PerDR {
 		ch := map[bool]float64{true: 8, false: 64}[d.DR == 4]
-		want := (n - 1) * d.Share * d.Airtime / (T * ch)
+		want := (n - 1) * g.Heard() * d.Share * d.Airtime / (T * ch) // heard nodes only
 		assert.InDelta(t, want, d.Vulnerable, 1e-15, "DR%d", d.DR)
 		assert.InDelta(t, math.Exp(-2*want), d.UplinkSuccess, 1e-15, "DR%d", d.DR)
 	}

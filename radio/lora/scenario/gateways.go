@@ -1,0 +1,165 @@
+package scenario
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/joulelaw/joulelaw/radio/lora"
+)
+
+// GatewayModel is what one gateway can send of the answers the network
+// books with it: lora.GatewayDownlinks over its streams, one per group,
+// data rate, receive window and downlink sub-band (RX1 answers follow
+// their uplink's channel, so they spread over the RX1 bands of the
+// channels that carry the data rate; RX2 answers use the RX2 frequency).
+// An answer the gateway cannot send is lost, and the loss feeds the
+// acknowledgement and retransmission laws (Build's fixed point).
+type GatewayModel struct {
+	Gateway Gateway
+	Streams []lora.DownlinkStream
+	Budget  lora.DownlinkBudget
+}
+
+// Over reports whether the answers booked need more airtime than some
+// sub-band's duty cycle allows (answers are then lost).
+func (g GatewayModel) Over() bool {
+	for _, b := range g.Budget.Bands {
+		if b.Over() {
+			return true
+		}
+	}
+	return false
+}
+
+// streamRef ties a stream to the (group, data rate, window) it serves.
+type streamRef struct{ group, dr, window int }
+
+// gatewayBudgets recomputes every gateway's downlink budget from the
+// current frames and uplink successes, stores the shares sent in the
+// groups' DRModel, and returns the largest change of a share.
+func (m *Model) gatewayBudgets() (float64, error) {
+	s := m.Scenario
+	reg := s.Region
+	tm := reg.Timing()
+	m.Gateways = make([]GatewayModel, len(s.Gateways))
+	refs := make([][]streamRef, len(s.Gateways))
+	for gw := range s.Gateways {
+		m.Gateways[gw].Gateway = s.Gateways[gw]
+	}
+	for gi := range m.Groups {
+		g := &m.Groups[gi]
+		gr := g.Group
+		gw := gr.Gateway
+		dlBytes := lora.EmptyFrameBytes
+		if gr.DownlinkPayload > 0 {
+			n, err := lora.PHYPayloadBytes(gr.DownlinkPayload, 0)
+			if err != nil {
+				return 0, err
+			}
+			dlBytes = n
+		}
+		airtime := func(dr int) (float64, error) {
+			d, err := reg.DownlinkDataRate(dr)
+			if err != nil {
+				return 0, err
+			}
+			return d.DownlinkPHY().Airtime(dlBytes)
+		}
+		rx2f, rx2dr := reg.RX2()
+		a2, err := airtime(rx2dr)
+		if err != nil {
+			return 0, fmt.Errorf("group %q: RX2: %w", gr.Name, err)
+		}
+		b2, d2, err := reg.DownlinkBand(rx2f)
+		if err != nil {
+			return 0, fmt.Errorf("group %q: RX2: %w", gr.Name, err)
+		}
+		for _, dm := range g.PerDR {
+			answers := float64(gr.Nodes) * g.Heard() * dm.Share * dm.Frames / gr.Interval * dm.UplinkSuccess * gr.AnswerShare
+			rx1dr, err := reg.RX1DataRate(dm.DR, 0)
+			if err != nil {
+				return 0, fmt.Errorf("group %q: %w", gr.Name, err)
+			}
+			a1, err := airtime(rx1dr)
+			if err != nil {
+				return 0, fmt.Errorf("group %q: RX1: %w", gr.Name, err)
+			}
+			// RX1 answers spread over the channels carrying dr, grouped by band.
+			chans := uplinkChannels(reg, dm.DR)
+			perBand := map[int]float64{}
+			duty := map[int]float64{}
+			var order []int
+			for _, ch := range chans {
+				f, err := reg.RX1Frequency(ch)
+				if err != nil {
+					return 0, err
+				}
+				b, d, err := reg.DownlinkBand(f)
+				if err != nil {
+					return 0, fmt.Errorf("group %q: RX1 after channel %d: %w", gr.Name, ch, err)
+				}
+				if _, ok := perBand[b]; !ok {
+					order = append(order, b)
+				}
+				perBand[b] += 1 / float64(len(chans))
+				duty[b] = d
+			}
+			for _, b := range order {
+				m.Gateways[gw].Streams = append(m.Gateways[gw].Streams, lora.DownlinkStream{
+					Rate: answers * gr.RX1Share * perBand[b], Airtime: a1, Lead: tm.ReceiveDelay1, Band: b, DutyCycle: duty[b]})
+				refs[gw] = append(refs[gw], streamRef{gi, dm.DR, 1})
+			}
+			m.Gateways[gw].Streams = append(m.Gateways[gw].Streams, lora.DownlinkStream{
+				Rate: answers * (1 - gr.RX1Share), Airtime: a2, Lead: tm.ReceiveDelay2, Band: b2, DutyCycle: d2})
+			refs[gw] = append(refs[gw], streamRef{gi, dm.DR, 2})
+		}
+	}
+	// The share sent of a (group, data rate, window): its streams' shares
+	// weighted by their rates (all 1 where nothing is booked).
+	type acc struct{ rate, sent float64 }
+	tot := map[streamRef]*acc{}
+	for gw := range m.Gateways {
+		b, err := lora.GatewayDownlinks(m.Gateways[gw].Streams)
+		if err != nil {
+			return 0, fmt.Errorf("gateway %q: %w", s.Gateways[gw].Name, err)
+		}
+		m.Gateways[gw].Budget = b
+		for i, ref := range refs[gw] {
+			a, ok := tot[ref]
+			if !ok {
+				a = &acc{}
+				tot[ref] = a
+			}
+			r := m.Gateways[gw].Streams[i].Rate
+			a.rate += r
+			a.sent += r * b.Sent[i]
+		}
+	}
+	change := 0.0
+	for gi := range m.Groups {
+		g := &m.Groups[gi]
+		for k := range g.PerDR {
+			dm := &g.PerDR[k]
+			for w, p := range map[int]*float64{1: &dm.RX1Sent, 2: &dm.RX2Sent} {
+				v := 1.0
+				if a := tot[streamRef{gi, dm.DR, w}]; a != nil && a.rate > 0 {
+					v = a.sent / a.rate
+				}
+				change = math.Max(change, math.Abs(v-*p))
+				*p = v
+			}
+		}
+	}
+	return change, nil
+}
+
+// uplinkChannels lists the region's uplink channels that carry dr.
+func uplinkChannels(r lora.Region, dr int) []int {
+	var out []int
+	for i, c := range r.UplinkChannels() {
+		if dr >= c.MinDR && dr <= c.MaxDR {
+			out = append(out, i)
+		}
+	}
+	return out
+}

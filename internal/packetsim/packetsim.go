@@ -732,14 +732,19 @@ func (pl *play) finish(i int, c *cycle) {
 // The scenario's network settings, in one place.
 
 // gatewayMask returns the uplink channels gw hears (zero: all).
-func gatewayMask(gw scenario.Gateway) lora.ChannelMask { return lora.ChannelMask{} }
+func gatewayMask(gw scenario.Gateway) lora.ChannelMask { return gw.Channels }
 
 // groupRX1Offset returns the group's RX1DROffset.
-func groupRX1Offset(g scenario.Group) int { return 0 }
+func groupRX1Offset(g scenario.Group) int { return g.RX1DROffset }
 
 // groupRX2 returns the group's RX2 frequency (Hz) and data rate.
-func groupRX2(s scenario.Scenario, g scenario.Group) (float64, int) { return s.Region.RX2() }
+func groupRX2(s scenario.Scenario, g scenario.Group) (float64, int) {
+	if g.RX2 != (lora.RX2Window{}) {
+		return g.RX2.Frequency, g.RX2.DR
+	}
+	return s.Region.RX2()
+}
 
 // groupJoinEvery returns the reports per Join-request of the group's
 // unheard nodes (0: none).
-func groupJoinEvery(g scenario.Group) int { return 0 }
+func groupJoinEvery(g scenario.Group) int { return g.RejoinEvery }

@@ -171,3 +171,51 @@ func TestWhollyOutOfReachGroup(t *testing.T) {
 	require.NoError(t, err)
 	assert.InEpsilon(t, want, law.MeanEnergy(), 1e-12, "the model's unheard cycle")
 }
+
+// The group's network settings reach the play: a lone node whose network
+// moved RX1 two data rates down and RX2 to DR3 spends exactly the timeline
+// lora.ClassA reports for those settings; an unheard node that rejoins at
+// every report spends exactly the model's unheard cycle with JoinEvery = 1
+// (Join-request and two empty join-accept windows).
+func TestPlayUsesNetworkSettings(t *testing.T) {
+	s, err := scenario.Demo().WithCounts([]int{1, 1, 1, 1})
+	require.NoError(t, err)
+	s.Groups = s.Groups[:1]
+	s.Groups[0].AnswerShare = 0
+	s.Groups[0].RX1DROffset = 2
+	s.Groups[0].RX2 = lora.RX2Window{Frequency: 869.525e6, DR: 3}
+	m, err := scenario.Build(s, nil)
+	require.NoError(t, err)
+	r := rand.New(rand.NewPCG(4, 4))
+	n := s.Nodes[0]
+	for range 10 {
+		out, err := packetsim.Play(s, packetsim.Options{Start: 10}, r)
+		require.NoError(t, err)
+		nd := out.Nodes[0]
+		ca := m.Groups[0].ClassA
+		ca.Settings = []lora.Setting{{DR: nd.DR, TXPower: nd.TXPower, EIRP: nd.EIRP, Prob: 1}}
+		tls, err := ca.Timelines()
+		require.NoError(t, err)
+		tl := tls[0]
+		require.Equal(t, 3, tl.RX2DR)
+		tx, ok := n.TransmitCurrent(nd.EIRP)
+		require.True(t, ok)
+		w := s.Groups[0].Work[0]
+		charge := w.Current*w.Duration + tx*tl.Uplink + n.Wait*tl.WaitRX1 + n.Receive*tl.RX1Listen + n.Wait*tl.WaitRX2 + n.Receive*tl.RX2Listen
+		active := w.Duration + tl.Uplink + tl.WaitRX1 + tl.RX1Listen + tl.WaitRX2 + tl.RX2Listen
+		want := n.Voltage * (charge + n.Sleep*(s.Groups[0].Interval-active))
+		assert.InDelta(t, want, out.Energy[0], 1e-12*want)
+	}
+
+	s.Groups[0].InnerRadius, s.Groups[0].OuterRadius = 40000, 45000
+	s.Groups[0].RejoinEvery = 1
+	m, err = scenario.Build(s, nil)
+	require.NoError(t, err)
+	cy, err := m.Groups[0].UnheardCycle()
+	require.NoError(t, err)
+	out, err := packetsim.Play(s, packetsim.Options{Start: 10}, r)
+	require.NoError(t, err)
+	require.True(t, out.Nodes[0].Unheard)
+	assert.InEpsilon(t, cy.MeanEnergy(), out.Energy[0], 1e-12)
+	assert.InDelta(t, 0, cy.EnergyVariance(), 1e-18, "a deterministic cycle (variance 0 up to rounding)")
+}

@@ -66,6 +66,9 @@ func (m *Model) gatewayBudgets() (float64, error) {
 			return d.DownlinkPHY().Airtime(dlBytes)
 		}
 		rx2f, rx2dr := reg.RX2()
+		if gr.RX2 != (lora.RX2Window{}) {
+			rx2f, rx2dr = gr.RX2.Frequency, gr.RX2.DR
+		}
 		a2, err := airtime(rx2dr)
 		if err != nil {
 			return 0, fmt.Errorf("group %q: RX2: %w", gr.Name, err)
@@ -76,7 +79,7 @@ func (m *Model) gatewayBudgets() (float64, error) {
 		}
 		for _, dm := range g.PerDR {
 			answers := float64(gr.Nodes) * g.Heard() * dm.Share * dm.Frames / gr.Interval * dm.UplinkSuccess * gr.AnswerShare
-			rx1dr, err := reg.RX1DataRate(dm.DR, 0)
+			rx1dr, err := reg.RX1DataRate(dm.DR, gr.RX1DROffset)
 			if err != nil {
 				return 0, fmt.Errorf("group %q: %w", gr.Name, err)
 			}
@@ -85,7 +88,7 @@ func (m *Model) gatewayBudgets() (float64, error) {
 				return 0, fmt.Errorf("group %q: RX1: %w", gr.Name, err)
 			}
 			// RX1 answers spread over the channels carrying dr, grouped by band.
-			chans := uplinkChannels(reg, dm.DR)
+			chans := uplinkChannels(reg, s.Gateways[gw].Channels, dm.DR)
 			perBand := map[int]float64{}
 			duty := map[int]float64{}
 			var order []int
@@ -153,11 +156,14 @@ func (m *Model) gatewayBudgets() (float64, error) {
 	return change, nil
 }
 
-// uplinkChannels lists the region's uplink channels that carry dr.
-func uplinkChannels(r lora.Region, dr int) []int {
+// uplinkChannels lists the channels of mask (zero: all) that carry dr.
+func uplinkChannels(r lora.Region, mask lora.ChannelMask, dr int) []int {
+	if mask.Len() == 0 {
+		mask = r.AllChannels()
+	}
 	var out []int
 	for i, c := range r.UplinkChannels() {
-		if dr >= c.MinDR && dr <= c.MaxDR {
+		if mask.Has(i) && dr >= c.MinDR && dr <= c.MaxDR {
 			out = append(out, i)
 		}
 	}

@@ -202,10 +202,12 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 // of every data rate of every group.
 func (m *Model) solveCollisions() error {
 	const maxIter = 200
-	channels := map[int]int{}
+	type gwDR struct{ gw, dr int }
+	chans := map[gwDR]int{}
 	for _, g := range m.Groups {
+		gw := g.Group.Gateway
 		for _, d := range g.PerDR {
-			channels[d.DR] = Channels(m.Scenario.Region, d.DR)
+			chans[gwDR{gw, d.DR}] = m.Scenario.Region.ChannelsCarrying(m.Scenario.Gateways[gw].Channels, d.DR)
 		}
 	}
 	for iter := 0; ; iter++ {
@@ -215,6 +217,10 @@ func (m *Model) solveCollisions() error {
 			for k := range g.PerDR {
 				dm := &g.PerDR[k]
 				total, vuln := 0.0, 0.0
+				nch := chans[gwDR{g.Group.Gateway, dm.DR}]
+				if nch == 0 {
+					return fmt.Errorf("group %q: gateway %q hears no channel that carries DR%d", g.Group.Name, m.Scenario.Gateways[g.Group.Gateway].Name, dm.DR)
+				}
 				for hi := range m.Groups {
 					h := &m.Groups[hi]
 					if h.Group.Gateway != g.Group.Gateway {
@@ -231,16 +237,16 @@ func (m *Model) solveCollisions() error {
 						others--
 					}
 					others *= h.Heard() * hd.Share
-					all, err := lora.OfferedLoad(n, hd.Frames, hd.Airtime, h.Group.Interval, channels[dm.DR])
+					all, err := lora.OfferedLoad(n, hd.Frames, hd.Airtime, h.Group.Interval, nch)
 					if err != nil {
 						return err
 					}
 					total += all
-					ob, err := lora.OfferedLoad(others, hd.Frames, hd.Airtime, h.Group.Interval, channels[dm.DR])
+					ob, err := lora.OfferedLoad(others, hd.Frames, hd.Airtime, h.Group.Interval, nch)
 					if err != nil {
 						return err
 					}
-					oa, err := lora.OfferedLoad(others, hd.Frames, dm.Airtime, h.Group.Interval, channels[dm.DR])
+					oa, err := lora.OfferedLoad(others, hd.Frames, dm.Airtime, h.Group.Interval, nch)
 					if err != nil {
 						return err
 					}
@@ -287,18 +293,12 @@ func (m *Model) solveCollisions() error {
 // Channels returns the number of the region's uplink channels that carry
 // data rate dr (EU863-870: the 3 default channels for DR0 … DR5;
 // US902-928: 64 channels of 125 kHz for DR0 … DR3, 8 of 500 kHz for DR4),
-// over which a data rate's frames spread evenly. The gateway is taken to
-// hear every one of them; one that listens on fewer (a US902-928 gateway on
-// one sub-band of 8 + 1 channels, common practice) meets a load as many
-// times higher as it hears fewer channels.
+// over which a data rate's frames spread evenly when the gateway hears the
+// whole plan. A gateway with a channel mask (Gateway.Channels; a US902-928
+// gateway on one block of 8 + 1 channels, common practice) spreads them
+// over r.ChannelsCarrying(mask, dr), which Build uses.
 func Channels(r lora.Region, dr int) int {
-	n := 0
-	for _, c := range r.UplinkChannels() {
-		if dr >= c.MinDR && dr <= c.MaxDR {
-			n++
-		}
-	}
-	return n
+	return r.ChannelsCarrying(lora.ChannelMask{}, dr)
 }
 
 func (g *GroupModel) drModel(dr int) (DRModel, bool) {
@@ -343,6 +343,9 @@ func (g *GroupModel) describe(s Scenario) error {
 		Settings:        g.Settings,
 		Confirmed:       gr.Confirmed,
 		NbTrans:         gr.MaxTransmissions,
+		RX1DROffset:     gr.RX1DROffset,
+		RX2:             gr.RX2,
+		Mask:            s.Gateways[gr.Gateway].Channels,
 		DownlinkBytes:   dl,
 		Downlink:        lora.Windows{},
 		DownlinkByDR:    byDR,
@@ -432,6 +435,7 @@ func (g GroupModel) UnheardCycle() (energy.Cycle, error) {
 	c.Settings = []lora.Setting{one}
 	c.Downlink = lora.Windows{}
 	c.DownlinkByDR = nil
+	c.JoinEvery = g.Group.RejoinEvery
 	return c.Cycle(g.Period)
 }
 

@@ -146,6 +146,11 @@ func (n Node) TransmitCurrent(eirp float64) (float64, bool) {
 type Gateway struct {
 	Name string
 	X, Y float64
+	// Channels are the uplink channels the gateway listens on, and so the
+	// channels its nodes are masked to; the zero mask means every channel
+	// of the region's plan (a US902-928 or AU915-928 gateway of eight
+	// receive paths hears one block: lora.Region.ChannelBlock).
+	Channels lora.ChannelMask
 }
 
 // Group is a set of identical nodes placed uniformly over an annulus around
@@ -169,6 +174,16 @@ type Group struct {
 	Node             int     // index into Scenario.Nodes
 	Cell             int     // index into Scenario.Cells
 	StorageTime      float64 // time from the cells' manufacture to deployment, s
+	// RX1DROffset is the RX1 data-rate offset the network sets (0 … the
+	// region's RX1DROffsets() − 1).
+	RX1DROffset int
+	// RX2 is the second window as the network sets it; the zero value
+	// keeps the region's default frequency and data rate.
+	RX2 lora.RX2Window
+	// RejoinEvery makes the group's out-of-reach nodes send a Join-request
+	// in one report of RejoinEvery on average (lora.ClassA.JoinEvery); 0
+	// for none.
+	RejoinEvery int
 }
 
 // Step is one piece of work before the uplink: a constant current for a

@@ -1,0 +1,143 @@
+package scenario_test
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/radio/lora"
+	"github.com/joulelaw/joulelaw/radio/lora/scenario"
+)
+
+// A US902-928 gateway on channel block 1 (8 channels of 125 kHz and one of
+// 500 kHz, common practice) spreads its nodes' frames over 8 channels at
+// DR0 … DR3 and 1 at DR4: the load a frame meets is the heard others'
+// Σ share·airtime/(T·channels), by hand, and the success exp(−2G')
+// (Abramson 1970).
+func TestGatewayChannelBlock(t *testing.T) {
+	s, err := scenario.Load("testdata/us902-928.json")
+	require.NoError(t, err)
+	s.Groups = s.Groups[:1]
+	b1, err := s.Region.ChannelBlock(1)
+	require.NoError(t, err)
+	s.Gateways[s.Groups[0].Gateway].Channels = b1
+	m, err := scenario.Build(s, nil)
+	require.NoError(t, err)
+	g := m.Groups[0]
+	n, T := float64(s.Groups[0].Nodes), s.Groups[0].Interval
+	for _, d := range g.PerDR {
+		ch := map[bool]float64{true: 1, false: 8}[d.DR == 4]
+		want := (n - 1) * g.Heard() * d.Share * d.Airtime / (T * ch)
+		assert.InDelta(t, want, d.Vulnerable, 1e-15*math.Max(1, want), "DR%d", d.DR)
+		assert.InDelta(t, math.Exp(-2*want), d.UplinkSuccess, 1e-14, "DR%d", d.DR)
+	}
+	assert.Equal(t, b1, g.ClassA.Mask)
+}
+
+// The group's RX1DROffset and RX2 setting reach the class A cycle and the
+// gateway's answers: RX2 at DR3 (SF9/125 kHz) in EU863-870 listens 6
+// symbols of 4.096 ms plus the margin; the RX2 stream's airtime is a
+// DR3 downlink of the group's answer (the airtime formula, Augustin et al.
+// 2016); the RX1 stream's is at max(DR − 2, 0).
+func TestGroupWindowSettings(t *testing.T) {
+	s, err := scenario.Demo().WithCounts([]int{1, 1, 30, 1})
+	require.NoError(t, err)
+	s.Groups = s.Groups[2:3]
+	s.Groups[0].RX1DROffset = 2
+	s.Groups[0].RX2 = lora.RX2Window{Frequency: 869.525e6, DR: 3}
+	m, err := scenario.Build(s, nil)
+	require.NoError(t, err)
+	g := m.Groups[0]
+	tls, err := g.ClassA.Timelines()
+	require.NoError(t, err)
+	node := s.NodeOf(s.Groups[0])
+	for _, tl := range tls {
+		assert.Equal(t, 3, tl.RX2DR)
+		assert.Equal(t, max(tl.Setting.DR-2, 0), tl.RX1DR)
+		assert.InDelta(t, node.WindowMargin+float64(node.WindowSymbols)*4.096e-3, tl.RX2Listen, 1e-15)
+	}
+	gw := m.Gateways[0]
+	// The group's answers are bare acknowledgements (EmptyFrameBytes).
+	want3, err := lora.DownlinkPHY(9, 125e3).Airtime(lora.EmptyFrameBytes)
+	require.NoError(t, err)
+	k := 0
+	for _, d := range g.PerDR {
+		rx1, err := s.Region.RX1DataRate(d.DR, 2)
+		require.NoError(t, err)
+		dd, err := s.Region.DataRate(rx1)
+		require.NoError(t, err)
+		a1, err := dd.DownlinkPHY().Airtime(lora.EmptyFrameBytes)
+		require.NoError(t, err)
+		assert.InDelta(t, a1, gw.Streams[k].Airtime, 1e-15, "RX1 after DR%d", d.DR)
+		assert.Equal(t, 1.0, gw.Streams[k].Lead)
+		assert.InDelta(t, want3, gw.Streams[k+1].Airtime, 1e-15, "RX2 at DR3")
+		assert.Equal(t, 2.0, gw.Streams[k+1].Lead)
+		k += 2
+	}
+}
+
+// An out-of-reach node that sends a Join-request in one report of four
+// spends a quarter of the Join-request's cost more per cycle (the cycle's
+// mean is linear in the per-report Bernoulli(1/4) draw).
+func TestRejoinEvery(t *testing.T) {
+	s, err := scenario.Demo().WithCounts([]int{1, 1, 5, 1})
+	require.NoError(t, err)
+	s.Groups = s.Groups[2:3]
+	s.Groups[0].InnerRadius, s.Groups[0].OuterRadius = 40000, 45000
+	m, err := scenario.Build(s, nil)
+	require.NoError(t, err)
+	base, err := m.Groups[0].UnheardCycle()
+	require.NoError(t, err)
+	s.Groups[0].RejoinEvery = 1
+	m1, err := scenario.Build(s, nil)
+	require.NoError(t, err)
+	every, err := m1.Groups[0].UnheardCycle()
+	require.NoError(t, err)
+	s.Groups[0].RejoinEvery = 4
+	m4, err := scenario.Build(s, nil)
+	require.NoError(t, err)
+	quarter, err := m4.Groups[0].UnheardCycle()
+	require.NoError(t, err)
+	join := every.MeanEnergy() - base.MeanEnergy()
+	assert.Positive(t, join)
+	assert.InEpsilon(t, join/4, quarter.MeanEnergy()-base.MeanEnergy(), 1e-12)
+}
+
+// The gateway's budget in the model: a confirmed group answered after every
+// uplink, 85 % in RX1 (1 % sub-band) and 15 % in RX2 (10 %), loses more
+// answers as it grows, and the lost acknowledgements raise the
+// transmissions per report (the fixed point); the over-budget flag follows
+// the offered airtime share against the limit.
+func TestGatewayBudgetFeedsRetransmissions(t *testing.T) {
+	prevSent, prevFrames := 1.0, 0.0
+	for _, n := range []int{10, 100, 1000} {
+		s, err := scenario.Demo().WithCounts([]int{1, 1, n, 1})
+		require.NoError(t, err)
+		s.Groups = s.Groups[2:3]
+		s.Groups[0].Interval = 600
+		m, err := scenario.Build(s, nil)
+		require.NoError(t, err)
+		sent, frames, w := 0.0, 0.0, 0.0
+		for _, d := range m.Groups[0].PerDR {
+			sent += d.Share * d.RX1Sent
+			frames += d.Share * d.Frames
+			w += d.Share
+		}
+		sent /= w
+		assert.Less(t, sent, prevSent, "%d nodes", n)
+		assert.Greater(t, frames, prevFrames, "%d nodes", n)
+		prevSent, prevFrames = sent, frames
+		gw := m.Gateways[0]
+		over := false
+		for _, b := range gw.Budget.Bands {
+			assert.LessOrEqual(t, b.Used, b.DutyCycle*(1+1e-12))
+			over = over || b.Offered > b.DutyCycle
+		}
+		assert.Equal(t, over, gw.Over())
+		if n == 1000 {
+			assert.True(t, gw.Over())
+		}
+	}
+}

@@ -5,6 +5,7 @@ import (
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/internal/testref"
+	"github.com/joulelaw/joulelaw/radio/lora"
 )
 
 // BenchmarkBaselineSort is the machine-speed reference that BENCHMARKS.md
@@ -41,6 +42,23 @@ func BenchmarkSettleADR(b *testing.B) {
 	link := testBenchLink(b)
 	for b.Loop() {
 		if _, err := settle(link); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkGatewayDownlinks solves the downlink budget of a gateway with 48
+// streams (6 groups × 4 data rates × 2 windows over two sub-bands).
+func BenchmarkGatewayDownlinks(b *testing.B) {
+	var st []lora.DownlinkStream
+	for g := 0; g < 6; g++ {
+		for dr := 0; dr < 4; dr++ {
+			st = append(st, lora.DownlinkStream{Rate: 0.01 * float64(1+g), Airtime: 0.05 * float64(1+dr), Lead: 1, Band: 2, DutyCycle: 0.01},
+				lora.DownlinkStream{Rate: 0.002 * float64(1+g), Airtime: 1, Lead: 2, Band: 4, DutyCycle: 0.1})
+		}
+	}
+	for b.Loop() {
+		if _, err := lora.GatewayDownlinks(st); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -13,7 +13,18 @@ import (
 // their uplink's channel, so they spread over the RX1 bands of the
 // channels that carry the data rate; RX2 answers use the RX2 frequency).
 // An answer the gateway cannot send is lost, and the loss feeds the
-// acknowledgement and retransmission laws (Build's fixed point).
+// acknowledgement and retransmission laws: Build solves the whole by
+// successive substitution — transmissions per report → uplink loads and
+// successes → answers booked → shares sent (GatewayDownlinks, its own fixed
+// point) → window probabilities → transmissions per report — until the
+// transmissions and the shares change by less than 1e-13 between rounds.
+// The rounds move monotonically (more transmissions book more answers, fewer
+// are sent, more transmissions follow; the transmissions are bounded by
+// NbTrans), so they settle; what remains is each gateway's Budget.Error,
+// the stated error of the shares sent (an estimate; the packet-level tests
+// compare the shares and the energies with a sampler at several loads).
+// Duty-cycle limits are for planning, not certification: check the local
+// rules for gateways and defer to the regulator.
 type GatewayModel struct {
 	Gateway Gateway
 	Streams []lora.DownlinkStream

@@ -1,0 +1,42 @@
+// Package ble supplies the Bluetooth Low Energy building blocks of a sensor
+// node's energy model: how long each packet and each listening window lasts
+// on the LE 1M, LE 2M and LE Coded PHYs, advertising events and connection
+// events as energy cycles (package energy), the law of the time a scanner
+// takes to discover an advertiser, and collisions among advertisers.
+//
+// The source throughout is the Bluetooth Core Specification, version 5.3
+// (cited as "v5.3 Vol V Part P §S"); section numbers and values given "from
+// memory" were recalled, not re-read, and are marked so.
+//
+// # PHYs and packets
+//
+// PHY.Airtime gives a packet's time on air from the packet formats of
+// Vol 6 Part B §2.1 (uncoded: preamble, access address, PDU header and
+// payload, CRC; 8 µs an octet on LE 1M, 4 µs on LE 2M) and §2.2 (coded,
+// S = 2 and S = 8; from memory): exact up to one rounding. TIFS is the
+// inter frame space T_IFS = 150 µs (Vol 6 Part B §4.1.1).
+//
+// # Advertising
+//
+// Advertiser describes legacy advertising (ADV_IND, ADV_DIRECT_IND in low
+// duty cycle, ADV_NONCONN_IND, ADV_SCAN_IND; LE 1M): the primary channels
+// used (37, 38, 39 by default) and the gap between their PDUs (a setting,
+// DefaultChannelGap by default), optional listening for and answering of
+// scan requests, and advInterval (20 ms … 10.24 s in steps of 0.625 ms)
+// plus advDelay, uniform on 0 … 10 ms afresh each event (Vol 6 Part B
+// §4.4.2.2). Advertiser.Cycle returns the energy cycle; its law is exact
+// (a finite mixture over the requests of the floor power times a uniform
+// interval).
+//
+// All quantities are SI (seconds, joules, amperes, volts); channel indices
+// and octet counts are plain integers.
+//
+// # Cautions
+//
+// These are planning figures, not certification. Channel use, transmit
+// power and duty limits at 2.4 GHz are set by local regulations (in Europe
+// ETSI EN 300 328, in the United States FCC Part 15, elsewhere the national
+// regulator) and by the current edition of the Bluetooth Core
+// Specification: check them before relying on any figure here. Example
+// currents are typical values from memory; use your radio's data sheet.
+package ble

@@ -28,6 +28,43 @@
 // (a finite mixture over the requests of the floor power times a uniform
 // interval).
 //
+// # Connections
+//
+// Connection describes a peripheral's side of a connection: connInterval
+// (7.5 ms … 4 s in steps of 1.25 ms), connPeripheralLatency (0 … 499),
+// connSupervisionTimeout (100 ms … 32 s in steps of 10 ms, and more than
+// (1 + latency)·connInterval·2), all checked with the constraints between
+// them (Vol 6 Part B §4.5.1, §4.5.2), the PHY, the packets exchanged per
+// event (a law; empty PDUs when there is no data) and the window widening
+// from both sleep clock accuracies (§4.5.7). The node wakes every
+// (latency + 1) intervals; the listen before the central's packet is
+// uniform over the widened window (a stated model). Connection.Cycle's law
+// is exact: a finite mixture of uniforms.
+//
+// # Discovery and collisions
+//
+// NewDiscovery returns the law of the time a passive scanner (scanWindow
+// every scanInterval, cycling channels 37, 38, 39) takes to receive an
+// advertiser's PDU, censored at a horizon: CDF(t) is the probability of
+// discovery within t. The model (stated on Discovery): the advertiser in
+// its stationary regime when scanning starts, advDelay uniform and
+// independent per event, the channel order 37 → 38 → 39 within each event,
+// a PDU received only if wholly inside a window on its channel and, with a
+// given probability, not collided. It is computed on a time grid with an
+// error estimate (Accuracy; 1e-5 to 6e-5 in CDF in the tests) checked
+// against an exact first-event integral and an event-level sampler;
+// Discovery.Rand samples the model itself. PDUSuccess gives the
+// probability that a PDU escapes overlap with n alike neighbours,
+// (1 − (T + T')/E[interval])^n: exact for independent stationary
+// advertisers (an ALOHA-like model without capture).
+//
+// # Sizes
+//
+// PDU payloads are capped by the specification (MaxPayload, MaxAdvData,
+// MaxDataPayload); the exchanges per connection event by MaxExchanges; the
+// neighbours by MaxNeighbours; a discovery law's horizon by
+// MaxDiscoveryHorizon and its grid by MaxDiscoveryCells (24 MiB at most).
+//
 // All quantities are SI (seconds, joules, amperes, volts); channel indices
 // and octet counts are plain integers.
 //

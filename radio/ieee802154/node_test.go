@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"sort"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -297,5 +298,53 @@ func TestNodeDeterministic(t *testing.T) {
 	}
 	for range 4 {
 		assert.Equal(t, want, <-done)
+	}
+}
+
+// TestFrameEnergyEnumeration checks the frame-energy law atom by atom
+// against every path of the packet-level state machine (playFrame driven
+// by an enumeration of all its draws instead of a random source): the
+// paths' energies, merged where they agree to 1e-12 relative, must be the
+// law's atoms (values to 1e-12 relative, masses to 1e-14).
+func TestFrameEnergyEnumeration(t *testing.T) {
+	small := func(edit func(*ieee802154.Node)) ieee802154.Node {
+		n := testNode()
+		n.CSMA = ieee802154.CSMA{MinBE: 1, MaxBE: 3, MaxCSMABackoffs: 2, MaxFrameRetries: 2}
+		edit(&n)
+		return n
+	}
+	for _, n := range []ieee802154.Node{
+		small(func(*ieee802154.Node) {}),
+		small(func(n *ieee802154.Node) { n.Backoff, n.Wake, n.CSMA.MinBE = ieee802154.BackoffSleep, 0.4e-3, 0 }),
+		small(func(n *ieee802154.Node) { n.AckRequest = false }),
+		small(func(n *ieee802154.Node) { n.CSMA.MaxFrameRetries, n.CSMA.MaxCSMABackoffs, n.Busy = 7, 0, 0.5 }),
+	} {
+		law, err := n.FrameEnergy()
+		require.NoError(t, err)
+		var paths []dist.Atom
+		total := 0.0
+		enumFrames(n, func(o simOut, p float64) {
+			if p > 0 {
+				paths = append(paths, dist.Atom{Value: o.energy, Mass: p})
+				total += p
+			}
+		})
+		assert.InDelta(t, 1, total, 1e-9, "a naive sum of up to 1.2e6 path probabilities: rounding below n·ε ≈ 2.6e-10")
+		sort.Slice(paths, func(i, j int) bool { return paths[i].Value < paths[j].Value })
+		var want []dist.Atom
+		for _, a := range paths {
+			if k := len(want) - 1; k >= 0 && a.Value-want[k].Value <= 1e-12*a.Value {
+				want[k].Mass += a.Mass
+				continue
+			}
+			want = append(want, a)
+		}
+		got := law.(dist.Atomic).Atoms()
+		require.Len(t, got, len(want), "%d paths", len(paths))
+		for i := range got {
+			assert.InEpsilon(t, want[i].Value, got[i].Value, 1e-12)
+			assert.InDelta(t, want[i].Mass, got[i].Mass, 1e-14)
+		}
+		t.Logf("%d paths, %d atoms", len(paths), len(got))
 	}
 }

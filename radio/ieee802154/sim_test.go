@@ -38,7 +38,23 @@ type simOut struct {
 // octets; macAckWaitDuration = 20 + 12 + SHR symbols + 6 octets. It
 // assumes the PHY has a 5-octet SHR and a 1-octet PHR and the frame the
 // zero Addressing (11 octets of MAC overhead).
-func simFrame(r *rand.Rand, n ieee802154.Node) simOut {
+func simFrame(r *rand.Rand, n ieee802154.Node) simOut { return playFrame(sampled{r}, n) }
+
+// draws is the randomness of a frame: a backoff uniform on 0 … n − 1 and
+// a CCA or acknowledgement that comes out true with probability p.
+type draws interface {
+	intN(n int) int
+	coin(p float64) bool
+}
+
+// sampled draws from a random source.
+type sampled struct{ r *rand.Rand }
+
+func (s sampled) intN(n int) int      { return s.r.IntN(n) }
+func (s sampled) coin(p float64) bool { return s.r.Float64() < p }
+
+// playFrame is simFrame with the draws passed in.
+func playFrame(r draws, n ieee802154.Node) simOut {
 	sym := 1 / n.PHY.SymbolRate
 	spo := 8 / float64(n.PHY.BitsPerSymbol) // symbols per octet
 	unit, cca, ta := 20*sym, 8*sym, 12*sym
@@ -62,7 +78,7 @@ func simFrame(r *rand.Rand, n ieee802154.Node) simOut {
 		o.runs = run
 		nb, be := 0, n.CSMA.MinBE
 		for {
-			u := r.IntN(1 << be)
+			u := r.intN(1 << be)
 			spend(boCurrent, float64(u)*unit)
 			if n.Backoff == ieee802154.BackoffSleep && u > 0 {
 				spend(cur.Idle, n.Wake)
@@ -72,7 +88,7 @@ func simFrame(r *rand.Rand, n ieee802154.Node) simOut {
 				o.ccas1++
 				o.backoff1 += u
 			}
-			if r.Float64() >= n.Busy {
+			if !r.coin(n.Busy) {
 				break // idle channel
 			}
 			nb++
@@ -89,7 +105,7 @@ func simFrame(r *rand.Rand, n ieee802154.Node) simOut {
 			o.fate = fateDelivered
 			return o
 		}
-		if r.Float64() >= n.AckLoss {
+		if !r.coin(n.AckLoss) {
 			spend(cur.RX, ackRx)
 			o.fate = fateDelivered
 			return o
@@ -99,5 +115,57 @@ func simFrame(r *rand.Rand, n ieee802154.Node) simOut {
 			o.fate = fateRetryLimit
 			return o
 		}
+	}
+}
+
+// enumerated replays playFrame along every sequence of draws, depth first:
+// path holds the outcome chosen at each draw so far, arity the number of
+// outcomes there, prob the path's probability.
+type enumerated struct {
+	path, arity []int
+	pos         int
+	prob        float64
+}
+
+func (e *enumerated) next(arity int) int {
+	if e.pos == len(e.path) {
+		e.path = append(e.path, 0)
+		e.arity = append(e.arity, arity)
+	}
+	e.pos++
+	return e.path[e.pos-1]
+}
+
+func (e *enumerated) intN(n int) int {
+	e.prob /= float64(n)
+	return e.next(n)
+}
+
+func (e *enumerated) coin(p float64) bool {
+	if e.next(2) == 0 {
+		e.prob *= p
+		return true
+	}
+	e.prob *= 1 - p
+	return false
+}
+
+// enumFrames calls f with every path's frame and probability.
+func enumFrames(n ieee802154.Node, f func(o simOut, p float64)) {
+	e := &enumerated{}
+	for {
+		e.pos, e.prob = 0, 1
+		o := playFrame(e, n)
+		f(o, e.prob)
+		e.path, e.arity = e.path[:e.pos], e.arity[:e.pos]
+		i := len(e.path) - 1
+		for i >= 0 && e.path[i] == e.arity[i]-1 {
+			i--
+		}
+		if i < 0 {
+			return
+		}
+		e.path[i]++
+		e.path, e.arity = e.path[:i+1], e.arity[:i+1]
 	}
 }

@@ -88,7 +88,7 @@ const MaxWake = 1.0
 //
 // Size and cost. The law has one atom per distinct energy: 6775 for the
 // test node of this package's tests (default attributes, 30 % busy CCAs,
-// 20 % of transmissions unacknowledged), built in about 0.75 s of CPU,
+// 20 % of transmissions unacknowledged), built in about 0.45 s of CPU,
 // nearly all of it package dist's exact convolutions of discrete laws. It
 // grows with macMaxBE, macMaxFrameRetries, the busy and loss
 // probabilities, and with BackoffSleep in FrameEnergy (the sleep current's

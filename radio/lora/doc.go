@@ -37,6 +37,16 @@
 // gives the pure-ALOHA success probability exp(−2G) (Abramson 1970) and
 // UplinkCollisions applies it per data rate and channel.
 //
+// # Gateways
+//
+// GatewayDownlinks tells what share of the answers booked with a gateway it
+// can send: each sub-band's duty cycle (the off-time rule) and its one
+// transmitter, with Erlang's one-server loss formula per band and a stated
+// error for the couplings between bands; Region.DownlinkBand names the
+// band of a downlink frequency. Answers beyond the budget are lost, and a
+// site model feeds the loss into the acknowledgement and retransmission
+// laws (package scenario).
+//
 // # The class A cycle
 //
 // ClassA describes a node's reports: currents per state (TypicalCurrents is
@@ -48,7 +58,12 @@
 // every stage, the uplink, RX1 and RX2 (a downlink received, or a preamble
 // listen), retransmissions after the ACK_TIMEOUT gap until a downlink
 // arrives or NbTrans is spent (TruncatedGeometric attempts), then the
-// floor. ClassA.Timelines gives the same timeline as plain data.
+// floor. ClassA.Timelines gives the same timeline as plain data. The
+// settings real networks use are fields: RX1DROffset, the RX2 window
+// (RX2Window), the receive-window margin (DefaultClockMargin, 20 ms, common
+// practice, from memory), the channel mask that sets the duty cycle timing
+// retries and repetitions (after max(ACK_TIMEOUT, the off-time)), and
+// Join-requests of a node that no longer hears its network (JoinEvery).
 //
 // # Cautions
 //

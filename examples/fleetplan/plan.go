@@ -302,6 +302,7 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: %s", g.Group.Name, w))
 		}
 	}
+	p.Warnings = append(p.Warnings, m.GatewayWarnings()...)
 	p.Fleet.LifetimeAccuracy = lifeAcc
 
 	say("fleet extremes of the per-cycle energy")
@@ -621,7 +622,7 @@ func cautions(r lora.Region) []string {
 		"Battery handling: primary lithium cells (lithium-thionyl chloride, lithium-manganese dioxide) must not be charged, short-circuited, crushed, opened or heated beyond their rating; follow the cell maker's handling, storage, transport and disposal instructions and the rules for lithium batteries that apply where you work.",
 		"Radio regulation: the regional tables and duty-cycle limits used here are for planning, not certification. Local regulations (in Europe ETSI EN 300 220 and the national implementation of ERC Recommendation 70-03; in the United States FCC Part 15) and the current LoRaWAN Regional Parameters govern.",
 		"Planning figures are not guarantees: they hold only as far as the scenario's currents, cell data, radio environment and traffic hold. Real cells also fail from passivation, temperature, ageing and manufacturing spread; gateways fail and interference changes. A sensor whose failure can hurt someone needs its own margin and the maintenance and inspection rules that apply locally.",
-		"Model limits: collisions are pure ALOHA per gateway, data rate and channel with no capture and no interference between spreading factors or from other networks; out-of-reach nodes are planned at the slowest data rate and full power with every uplink lost, but their frames are not counted in the others' collisions; downlink duty cycle and gateway transmit time are not modelled.",
+		"Model limits: collisions are pure ALOHA per gateway, data rate and channel with no capture and no interference between spreading factors or from other networks; out-of-reach nodes are planned at the slowest data rate and full power with every uplink lost, but their frames are not counted in the others' collisions; each gateway sends answers within its sub-bands' duty cycles and with one transmitter, an answer beyond that budget is lost and the node retransmits (a network server that moves it to RX2 saves some; not modelled), and a gateway's deafness while it transmits is not modelled.",
 	}
 	most := 0
 	for _, dr := range r.ADRDataRates() {

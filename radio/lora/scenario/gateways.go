@@ -3,6 +3,7 @@ package scenario
 import (
 	"fmt"
 	"math"
+	"strconv"
 
 	"github.com/joulelaw/joulelaw/radio/lora"
 )
@@ -179,4 +180,42 @@ func uplinkChannels(r lora.Region, mask lora.ChannelMask, dr int) []int {
 		}
 	}
 	return out
+}
+
+// GatewayWarnings returns one line per sub-band of a gateway whose booked
+// answers need more airtime than its duty cycle allows: the share needed,
+// the limit, the share of those answers the gateway can send, and the
+// caution to check local regulations. Names are quoted (Quote).
+func (m Model) GatewayWarnings() []string {
+	var out []string
+	for gi, g := range m.Gateways {
+		for _, b := range g.Budget.Bands {
+			if !b.Over() {
+				continue
+			}
+			band := "the region's transmitter limit"
+			if sbs := m.Scenario.Region.SubBands(); b.Band >= 0 && b.Band < len(sbs) {
+				band = "the " + sbs[b.Band].String() + " sub-band"
+			}
+			rate, sent := 0.0, 0.0
+			for i, st := range g.Streams {
+				if st.Band == b.Band {
+					rate += st.Rate
+					sent += st.Rate * g.Budget.Sent[i]
+				}
+			}
+			share := 1.0
+			if rate > 0 {
+				share = sent / rate
+			}
+			out = append(out, fmt.Sprintf("GATEWAY: %s: its answers need %s of the time in %s, above the %s duty-cycle limit; it can send about %s of them (stated error %.2g percentage points), the rest are lost and the nodes retransmit (planned). Add gateways, answer less often, move answers to RX2 or a faster data rate; check the local rules for gateways and defer to the regulator.",
+				Quote(m.Scenario.Gateways[gi].Name), percent(b.Offered), band, percent(b.DutyCycle), percent(share), 100*g.Budget.Error))
+		}
+	}
+	return out
+}
+
+// percent prints a share in per cent with three significant digits.
+func percent(x float64) string {
+	return strconv.FormatFloat(100*x, 'g', 3, 64) + " %"
 }

@@ -136,8 +136,13 @@ func TestGatewayBudgetFeedsRetransmissions(t *testing.T) {
 			over = over || b.Offered > b.DutyCycle
 		}
 		assert.Equal(t, over, gw.Over())
+		warn := m.GatewayWarnings()
+		assert.Equal(t, over, len(warn) > 0, "%d nodes: a warning exactly when over budget", n)
 		if n == 1000 {
 			assert.True(t, gw.Over())
+			require.NotEmpty(t, warn)
+			assert.Contains(t, warn[0], "868.0–868.60 MHz (1 %) sub-band")
+			assert.Contains(t, warn[0], "defer to the regulator")
 		}
 	}
 }

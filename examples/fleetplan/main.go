@@ -115,6 +115,9 @@ func run(args []string, stdout, stderr io.Writer) int {
 
 // flatten returns the errors joined in err, or err itself.
 func flatten(err error) []error {
+	if _, one := err.(*scenario.FieldError); one {
+		return []error{err}
+	}
 	if j, ok := err.(interface{ Unwrap() []error }); ok {
 		return j.Unwrap()
 	}

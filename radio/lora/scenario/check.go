@@ -1,14 +1,13 @@
 package scenario
 
 import (
-	"bytes"
 	"encoding/json"
 	"errors"
 	"fmt"
-	"io"
 	"math"
 	"slices"
 	"strings"
+	"unicode/utf8"
 )
 
 // checker gathers the problems of one file, so that all are reported at once.
@@ -20,7 +19,16 @@ func (c *checker) fail(field string, value any, rule string) {
 	c.errs = append(c.errs, &FieldError{Field: field, Value: value, Rule: rule})
 }
 
-func (c *checker) err() error { return errors.Join(c.errs...) }
+// err joins the problems found, at most MaxProblems of them (the last
+// entry then says how many more there were).
+func (c *checker) err() error {
+	if len(c.errs) > MaxProblems {
+		more := len(c.errs) - MaxProblems
+		errs := append(c.errs[:MaxProblems:MaxProblems], &FieldError{Field: "(file)", Value: note(fmt.Sprintf("%d more problems", more)), Rule: fmt.Sprintf("not listed: at most %d problems are reported at once", MaxProblems)})
+		return errors.Join(errs...)
+	}
+	return errors.Join(c.errs...)
+}
 
 // raw shows a decoded JSON value in a message.
 func raw(v any) any {
@@ -38,37 +46,6 @@ func raw(v any) any {
 	}
 }
 
-// decode parses data into a tree of map[string]any, []any, json.Number,
-// string, bool and nil, reporting syntax errors with line and column.
-func decode(data []byte) (any, error) {
-	dec := json.NewDecoder(bytes.NewReader(data))
-	dec.UseNumber()
-	var v any
-	if err := dec.Decode(&v); err != nil {
-		return nil, &FieldError{Field: "(file)", Value: where(data, dec.InputOffset(), err), Rule: "not valid JSON: " + err.Error()}
-	}
-	var extra any
-	if err := dec.Decode(&extra); err != io.EOF {
-		return nil, &FieldError{Field: "(file)", Value: where(data, dec.InputOffset(), err), Rule: "must hold exactly one JSON object, with nothing after it"}
-	}
-	return v, nil
-}
-
-// where locates an error in the file as "line L, column C".
-func where(data []byte, offset int64, err error) note {
-	var se *json.SyntaxError
-	if errors.As(err, &se) {
-		offset = se.Offset
-	}
-	if offset > int64(len(data)) {
-		offset = int64(len(data))
-	}
-	before := data[:offset]
-	line := bytes.Count(before, []byte("\n")) + 1
-	col := int(offset) - bytes.LastIndexByte(before, '\n')
-	return note(fmt.Sprintf("line %d, column %d", line, col))
-}
-
 // obj is one JSON object being read; a zero obj (ok false) reads as empty
 // without further complaints, its problem having been reported already.
 type obj struct {
@@ -78,8 +55,17 @@ type obj struct {
 	ok   bool
 }
 
+// join names key within path: path.key, or path["key"] quoted and cut
+// short when the key (taken from the file) is not a plain field name.
 func join(path, key string) string {
-	if path == "" {
+	plain := key != ""
+	for _, r := range key {
+		plain = plain && (r == '_' || r >= 'a' && r <= 'z' || r >= '0' && r <= '9')
+	}
+	switch {
+	case !plain:
+		return path + "[" + Quote(key) + "]"
+	case path == "":
 		return key
 	}
 	return path + "." + key
@@ -134,6 +120,15 @@ func (o obj) str(key string, nonEmpty bool) string {
 		o.c.fail(join(o.path, key), raw(v), "must be a string")
 	case nonEmpty && strings.TrimSpace(s) == "":
 		o.c.fail(join(o.path, key), s, "must not be empty")
+	}
+	return s
+}
+
+// name reads a non-empty name of at most MaxName characters.
+func (o obj) name(key string) string {
+	s := o.str(key, true)
+	if n := utf8.RuneCountInString(s); n > MaxName {
+		o.c.fail(join(o.path, key), s, fmt.Sprintf("is %d characters long; a name has at most %d (MaxName)", n, MaxName))
 	}
 	return s
 }
@@ -202,6 +197,16 @@ func (o obj) number(key string, r span) (float64, bool) {
 	return x, true
 }
 
+// scaled reads a number in r and returns it times unit, or NaN when it is
+// missing or bad (already reported).
+func (o obj) scaled(key string, r span, unit float64) float64 {
+	x, ok := o.number(key, r)
+	if !ok {
+		return math.NaN()
+	}
+	return x * unit
+}
+
 // integer reads a whole number in [lo, hi]; why, if given, explains the bounds.
 func (o obj) integer(key string, lo, hi int, why ...string) (int, bool) {
 	v, present := o.get(key)
@@ -217,8 +222,12 @@ func (o obj) integer(key string, lo, hi int, why ...string) (int, bool) {
 		o.c.fail(join(o.path, key), raw(v), rule)
 		return 0, false
 	}
+	if !wholeLiteral(n.String()) {
+		o.c.fail(join(o.path, key), note(n.String()), rule+", written without a fraction or exponent (60 or 60.0, not 59.99999999999999999 or 6e1)")
+		return 0, false
+	}
 	x, err := n.Float64()
-	if err != nil || x != math.Trunc(x) || x < float64(lo) || x > float64(hi) {
+	if err != nil || x < float64(lo) || x > float64(hi) {
 		o.c.fail(join(o.path, key), note(n.String()), rule)
 		return 0, false
 	}
@@ -244,3 +253,14 @@ func (o obj) array(key string, minLen, maxLen int) []any {
 }
 
 func index(path string, i int) string { return fmt.Sprintf("%s[%d]", path, i) }
+
+// wholeLiteral tells whether a JSON number literal is a whole number as
+// written: an optional minus, digits, and an optional fraction of zeros only.
+func wholeLiteral(s string) bool {
+	s = strings.TrimPrefix(s, "-")
+	digits, frac, hasFrac := strings.Cut(s, ".")
+	if digits == "" || strings.Trim(digits, "0123456789") != "" {
+		return false
+	}
+	return !hasFrac || (frac != "" && strings.Trim(frac, "0") == "")
+}

@@ -71,7 +71,7 @@ func (m Model) Laws(workers int, progress func(step string)) (Laws, error) {
 		g := m.Groups[j.Group]
 		c, err := g.AllSettingCycle(j.Setting)
 		if err != nil {
-			return fmt.Errorf("group %s, %v: %w", quoteName(g.Group.Name), g.AllSettings()[j.Setting], err)
+			return groupError(j.Group, g.Group.Name, fmt.Errorf("setting %v: %w", g.AllSettings()[j.Setting], err))
 		}
 		l.Cycles[j.Group][j.Setting] = c
 		return nil
@@ -85,7 +85,7 @@ func (m Model) Laws(workers int, progress func(step string)) (Laws, error) {
 	for gi, g := range m.Groups {
 		spec, err := g.NodeSpec(s, l.Cycles[gi])
 		if err != nil {
-			return Laws{}, fmt.Errorf("group %s: %w", quoteName(g.Group.Name), err)
+			return Laws{}, groupError(gi, g.Group.Name, err)
 		}
 		l.SiteSpec.Groups = append(l.SiteSpec.Groups, energy.SiteGroup{Name: g.Group.Name, Node: spec, Count: int64(g.Group.Nodes)})
 	}
@@ -104,11 +104,11 @@ func (m Model) Laws(workers int, progress func(step string)) (Laws, error) {
 		}
 		e, err := dist.Mixture(g.AllWeights(), laws)
 		if err != nil {
-			return Laws{}, fmt.Errorf("group %s: %w", quoteName(g.Group.Name), err)
+			return Laws{}, groupError(gi, g.Group.Name, err)
 		}
 		mx, err := orderstat.Max(e, int64(g.Group.Nodes))
 		if err != nil {
-			return Laws{}, fmt.Errorf("group %s: %w", quoteName(g.Group.Name), err)
+			return Laws{}, groupError(gi, g.Group.Name, err)
 		}
 		l.GroupEnergy = append(l.GroupEnergy, e)
 		l.GroupMax = append(l.GroupMax, mx)
@@ -136,8 +136,3 @@ func Compute(s Scenario, workers int, progress func(step string)) (Laws, error) 
 	}
 	return m.Laws(workers, progress)
 }
-
-// quoteName quotes a name from a scenario file for a message, escaping
-// control and other non-printing characters and cutting it short (see
-// Quote).
-func quoteName(s string) string { return Quote(s) }

@@ -119,6 +119,9 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 			progress(fmt.Sprintf(format, args...))
 		}
 	}
+	if err := s.Check(); err != nil {
+		return Model{}, err
+	}
 	m := Model{Scenario: s, Groups: make([]GroupModel, len(s.Groups))}
 	pl := lora.PathLoss{
 		Reference:   s.Environment.ReferenceLoss,
@@ -131,22 +134,22 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 		gm := GroupModel{Group: g, Node: s.NodeOf(g), Cell: s.CellOf(g)}
 		var err error
 		if gm.Battery, err = energy.NewBattery(gm.Cell.Spec); err != nil {
-			return Model{}, fmt.Errorf("group %q: cell %q: %w", g.Name, gm.Cell.Spec.Name, err)
+			return Model{}, &FieldError{Field: index("cells", g.Cell), Value: gm.Cell.Spec.Name, Rule: "rejected by the battery model", Cause: err}
 		}
 		d, err := lora.NewAnnulus(g.InnerRadius, g.OuterRadius)
 		if err != nil {
-			return Model{}, fmt.Errorf("group %q: %w", g.Name, err)
+			return Model{}, groupError(i, g.Name, err)
 		}
 		gm.Link = lora.Link{Distance: d, PathLoss: pl, GatewayGain: s.Environment.GatewayGain, NoiseFigure: s.Environment.NoiseFigure, Margin: s.Environment.InstallationMargin}
 		gm.Settled, err = lora.SettleADR(s.Region, gm.Link, lora.ADRConfig{})
 		if err != nil {
-			return Model{}, fmt.Errorf("group %q: %w", g.Name, err)
+			return Model{}, groupError(i, g.Name, err)
 		}
 		gm.OutOfReach = gm.Settled.OutOfReach()
 		slow := slices.Min(s.Region.ADRDataRates())
 		full, err := s.Region.TXPower(0)
 		if err != nil {
-			return Model{}, fmt.Errorf("group %q: %w", g.Name, err)
+			return Model{}, groupError(i, g.Name, err)
 		}
 		gm.Unheard = lora.Setting{DR: slow, TXPower: 0, EIRP: full}
 		switch u := gm.OutOfReach; {
@@ -158,7 +161,7 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 		if gm.Unheard.Prob < 1 {
 			reach, err := gm.Settled.Reachable()
 			if err != nil {
-				return Model{}, fmt.Errorf("group %q: %w", g.Name, err)
+				return Model{}, groupError(i, g.Name, err)
 			}
 			for _, st := range reach {
 				if st.Prob > 0 {
@@ -167,7 +170,7 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 			}
 		}
 		if len(gm.Settings) == 0 && gm.Unheard.Prob == 0 {
-			return Model{}, fmt.Errorf("group %q: no setting has positive probability (out of reach %g)", g.Name, gm.OutOfReach)
+			return Model{}, groupError(i, g.Name, fmt.Errorf("no setting has positive probability (out of reach %g)", gm.OutOfReach))
 		}
 		share := map[int]float64{}
 		for _, st := range gm.Settings {
@@ -179,7 +182,7 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 			}
 			air, err := s.Region.UplinkAirtime(dr, g.Payload, 0)
 			if err != nil {
-				return Model{}, fmt.Errorf("group %q: %w", g.Name, err)
+				return Model{}, groupError(i, g.Name, err)
 			}
 			gm.PerDR = append(gm.PerDR, DRModel{DR: dr, Share: share[dr], Airtime: air, Frames: 1, RX1Sent: 1, RX2Sent: 1})
 		}
@@ -192,7 +195,7 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 	for i := range m.Groups {
 		gm := &m.Groups[i]
 		if err := gm.describe(s); err != nil {
-			return Model{}, fmt.Errorf("group %q: %w", gm.Group.Name, err)
+			return Model{}, groupError(i, gm.Group.Name, err)
 		}
 	}
 	return m, nil
@@ -495,7 +498,7 @@ func (m Model) SettingCycles(workers int, done func(j Job, finished, total int))
 		j := jobs[k]
 		c, err := m.Groups[j.Group].SettingCycle(j.Setting)
 		if err != nil {
-			return fmt.Errorf("group %q, setting %v: %w", m.Groups[j.Group].Group.Name, m.Groups[j.Group].Settings[j.Setting], err)
+			return groupError(j.Group, m.Groups[j.Group].Group.Name, fmt.Errorf("setting %v: %w", m.Groups[j.Group].Settings[j.Setting], err))
 		}
 		out[j.Group][j.Setting] = c
 		return nil
@@ -672,4 +675,11 @@ func MixBreakdown(weights []float64, cycles []energy.Cycle) []energy.Share {
 		}
 	}
 	return append(out, floor...)
+}
+
+// groupError maps an error met while assembling or computing group i's
+// model back to the group: a *FieldError on groups[i] wrapping both
+// ErrInvalid and the cause.
+func groupError(i int, name string, err error) error {
+	return &FieldError{Field: index("groups", i), Value: name, Rule: "the model of this group cannot be built", Cause: err}
 }

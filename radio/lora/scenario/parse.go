@@ -44,7 +44,7 @@ func Parse(data []byte) (Scenario, error) {
 	if f := top.str("format", true); top.ok && f != "" && f != FormatVersion && f != FormatVersion1 {
 		c.fail("format", f, fmt.Sprintf("must be %q (or the first format, %q)", FormatVersion, FormatVersion1))
 	}
-	s.Site = top.str("site", true)
+	s.Site = top.name("site")
 	s.Description = top.str("description", false)
 	regionOK := false
 	if name := top.str("region", true); name != "" {
@@ -96,6 +96,11 @@ func Parse(data []byte) (Scenario, error) {
 	s.Plan = readPlan(c, plan)
 	checkCurrents(c, s)
 	checkOverlap(c, s)
+	if len(c.errs) == 0 {
+		// These need every field read and valid.
+		checkWork(c, s)
+		checkCellCovers(c, s)
+	}
 	if err := c.err(); err != nil {
 		return Scenario{}, err
 	}
@@ -130,12 +135,11 @@ func readNode(c *checker, p string, v any, region lora.Region, regionOK, v2 bool
 	o := c.object(p, v, keys...)
 	var n Node
 	n.Voltage, _ = o.number("supply_voltage_v", openLow(0, 60))
-	ua, _ := o.number("sleep_current_ua", closed(0, 1e6))
-	n.Sleep = ua * energy.MicroAmp
-	ua, _ = o.number("wait_current_ua", closed(0, 1e6))
-	n.Wait = ua * energy.MicroAmp
-	ma, _ := o.number("receive_current_ma", closed(0, 1000))
-	n.Receive = ma * energy.MilliAmp
+	// A current that is missing or bad is NaN here, so that the checks
+	// across fields (checkCurrents) skip it rather than invent a value.
+	n.Sleep = o.scaled("sleep_current_ua", closed(0, 1e6), energy.MicroAmp)
+	n.Wait = o.scaled("wait_current_ua", closed(0, 1e6), energy.MicroAmp)
+	n.Receive = o.scaled("receive_current_ma", closed(0, 1000), energy.MilliAmp)
 	n.WindowSymbols, _ = o.integer("receive_window_symbols", 4, 64)
 	ms, _ := o.number("receive_window_margin_ms", closed(0, 1000))
 	n.WindowMargin = ms * energy.Millisecond
@@ -225,7 +229,7 @@ func cellKeys(v2 bool) []string {
 
 func readCellSpec(c *checker, p string, o obj, v2 bool) energy.BatterySpec {
 	var b energy.BatterySpec
-	b.Name = o.str("name", true)
+	b.Name = o.name("name")
 	b.Chemistry = o.str("chemistry", false)
 	mah, okCap := o.number("capacity_mah", openLow(0, 1e7))
 	b.Charge = mah * energy.MilliAmpHour
@@ -263,7 +267,7 @@ func readGateways(c *checker, items []any) []Gateway {
 		p := index("gateways", i)
 		o := c.object(p, it, "name", "x_m", "y_m")
 		var g Gateway
-		g.Name = o.str("name", true)
+		g.Name = o.name("name")
 		g.X, _ = o.number("x_m", closed(-1e6, 1e6))
 		g.Y, _ = o.number("y_m", closed(-1e6, 1e6))
 		if g.Name != "" && slices.ContainsFunc(gws, func(h Gateway) bool { return h.Name == g.Name }) {
@@ -300,7 +304,7 @@ func readGroup(c *checker, p string, v any, s Scenario, regionOK, v1 bool, befor
 			}
 		}
 	}
-	g.Name = o.str("name", true)
+	g.Name = o.name("name")
 	if g.Name != "" && slices.ContainsFunc(before, func(h Group) bool { return h.Name == g.Name }) {
 		c.fail(p+".name", g.Name, "group names must be unique")
 	}
@@ -364,7 +368,7 @@ func readGroup(c *checker, p string, v any, s Scenario, regionOK, v1 bool, befor
 		wp := index(p+".work", j)
 		wo := c.object(wp, w, "name", "current_ma", "duration_ms", "duration_spread_ms")
 		var st Step
-		st.Name = wo.str("name", true)
+		st.Name = wo.name("name")
 		if st.Name != "" && slices.ContainsFunc(g.Work, func(h Step) bool { return h.Name == st.Name }) {
 			c.fail(wp+".name", st.Name, "work step names must be unique within a group")
 		}
@@ -373,8 +377,7 @@ func readGroup(c *checker, p string, v any, s Scenario, regionOK, v1 bool, befor
 				c.fail(wp+".name", st.Name, "is the name of a radio state; choose another ("+strings.Join(reservedStates, ", ")+" are taken)")
 			}
 		}
-		ma, _ := wo.number("current_ma", closed(0, 1000))
-		st.Current = ma * energy.MilliAmp
+		st.Current = wo.scaled("current_ma", closed(0, 1000), energy.MilliAmp)
 		ms, okD := wo.number("duration_ms", openLow(0, 600000))
 		sp, okS := wo.number("duration_spread_ms", closed(0, 600000))
 		if okD && okS && sp >= ms {
@@ -417,7 +420,7 @@ func readPlan(c *checker, v any) Plan {
 func checkCurrents(c *checker, s Scenario) {
 	for ni, n := range s.Nodes {
 		sleep := n.Sleep
-		if sleep == 0 {
+		if !(sleep > 0) { // 0, or missing or bad (NaN, reported already)
 			continue
 		}
 		p := index("nodes", ni)
@@ -426,7 +429,7 @@ func checkCurrents(c *checker, s Scenario) {
 		}
 		rule := fmt.Sprintf("must be at least the sleep current (%g µA = %g mA)", sleep/energy.MicroAmp, sleep/energy.MilliAmp)
 		below := func(field string, a, unit float64) {
-			if a < sleep {
+			if a < sleep { // false for a missing or bad current (NaN)
 				c.fail(field, a/unit, rule)
 			}
 		}

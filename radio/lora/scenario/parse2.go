@@ -12,7 +12,7 @@ import (
 // readNodeV2 reads the fields format 2 adds to a node design: its name,
 // supply path, brown-out voltage and board-to-board spreads.
 func readNodeV2(c *checker, p string, o obj, n *Node) {
-	n.Name = o.str("name", true)
+	n.Name = o.name("name")
 	n.Brownout, _ = o.number("brownout_voltage_v", openLow(0, 60))
 	n.FloorLogSD, _ = o.number("sleep_current_log_sd", closed(0, energy.MaxLogSpread))
 	n.ActiveSD, _ = o.number("active_energy_sd", closed(0, energy.MaxRelativeSpread))

@@ -1,8 +1,10 @@
 package scenario
 
 import (
+	"bytes"
 	_ "embed"
 	"errors"
+	"io"
 	"fmt"
 	"math"
 	"os"
@@ -22,25 +24,39 @@ const (
 // ErrInvalid is wrapped by every error that reports a bad scenario file.
 var ErrInvalid = errors.New("scenario: invalid")
 
-// FieldError is one problem in a scenario file: the field (a path such as
-// groups[2].payload_bytes), the value found (nil when the field is missing)
-// and the rule it breaks. It wraps ErrInvalid.
+// FieldError is one problem in a scenario: the field (a path such as
+// groups[2].payload_bytes), the value found (nil when the field is missing),
+// the rule it breaks and, for an error met while the model was assembled or
+// computed, its Cause (an error of package energy, lora or dist). It wraps
+// ErrInvalid and the cause.
 type FieldError struct {
 	Field string
 	Value any
 	Rule  string
+	Cause error // nil for a problem found by the checks
 }
 
-// Error implements error.
+// Error implements error. The message is one line: every control or other
+// non-printing character in it (from a name or a value in the file) is
+// escaped, and an echoed value is cut after MaxEcho characters.
 func (e *FieldError) Error() string {
-	if e.Value == nil {
-		return fmt.Sprintf("scenario: %s: %s", e.Field, e.Rule)
+	rule := e.Rule
+	if e.Cause != nil {
+		rule += ": " + e.Cause.Error()
 	}
-	return fmt.Sprintf("scenario: %s = %s: %s", e.Field, show(e.Value), e.Rule)
+	if e.Value == nil {
+		return printable(fmt.Sprintf("scenario: %s: %s", e.Field, rule))
+	}
+	return printable(fmt.Sprintf("scenario: %s = %s: %s", e.Field, show(e.Value), rule))
 }
 
-// Unwrap returns ErrInvalid.
-func (e *FieldError) Unwrap() error { return ErrInvalid }
+// Unwrap returns ErrInvalid and the cause, if any.
+func (e *FieldError) Unwrap() []error {
+	if e.Cause == nil {
+		return []error{ErrInvalid}
+	}
+	return []error{ErrInvalid, e.Cause}
+}
 
 // note is a description of a value (such as "7 levels"), shown unquoted.
 type note string
@@ -48,11 +64,13 @@ type note string
 func show(v any) string {
 	switch x := v.(type) {
 	case string:
-		return fmt.Sprintf("%q", x)
+		return Quote(x)
+	case note:
+		return cut(string(x))
 	case float64:
 		return fmt.Sprintf("%g", x)
 	default:
-		return fmt.Sprint(x)
+		return cut(fmt.Sprint(x))
 	}
 }
 
@@ -252,11 +270,38 @@ func Demo() Scenario {
 	return s
 }
 
-// Load reads and parses the scenario file at path.
+// Load reads and parses the scenario file at path. The path must name a
+// regular file (not a directory, device or named pipe, which are refused
+// before they are opened) of at most MaxFileBytes bytes.
 func Load(path string) (Scenario, error) {
-	data, err := os.ReadFile(path)
+	fi, err := os.Stat(path)
 	if err != nil {
 		return Scenario{}, fmt.Errorf("scenario: %w", err)
+	}
+	if !fi.Mode().IsRegular() {
+		return Scenario{}, &FieldError{Field: "(file)", Value: note(fi.Mode().Type().String()), Rule: "must be a regular file (not a directory, device or named pipe)"}
+	}
+	if fi.Size() > MaxFileBytes {
+		return Scenario{}, &FieldError{Field: "(file)", Value: note(fmt.Sprintf("%d bytes", fi.Size())), Rule: fmt.Sprintf("is larger than the %d-byte cap (MaxFileBytes)", MaxFileBytes)}
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return Scenario{}, fmt.Errorf("scenario: %w", err)
+	}
+	defer f.Close()
+	return Read(f)
+}
+
+// Read reads a scenario file from r and parses it (Parse). It reads at most
+// MaxFileBytes + 1 bytes: a longer stream is refused without reading
+// further.
+func Read(r io.Reader) (Scenario, error) {
+	data, err := io.ReadAll(io.LimitReader(r, MaxFileBytes+int64(len(bom))+1))
+	if err != nil {
+		return Scenario{}, fmt.Errorf("scenario: %w", err)
+	}
+	if len(bytes.TrimPrefix(data, bom)) > MaxFileBytes {
+		return Scenario{}, &FieldError{Field: "(file)", Value: note("more than MaxFileBytes"), Rule: fmt.Sprintf("is larger than the %d-byte cap (MaxFileBytes)", MaxFileBytes)}
 	}
 	return Parse(data)
 }

@@ -272,6 +272,9 @@ func TestMalformedRejected(t *testing.T) {
 
 // flatten returns the errors joined in err (or err itself).
 func flatten(err error) []error {
+	if _, one := err.(*scenario.FieldError); one {
+		return []error{err}
+	}
 	if j, ok := err.(interface{ Unwrap() []error }); ok {
 		return j.Unwrap()
 	}

@@ -2,6 +2,8 @@ package scenario
 
 import (
 	"strconv"
+	"strings"
+	"unicode"
 	"unicode/utf8"
 )
 
@@ -39,4 +41,30 @@ func cut(s string) string {
 		n++
 	}
 	return s
+}
+
+// printable returns s with every rune that is not printable (unicode.IsPrint;
+// the ASCII space is) escaped as in Go source, so that a message built from
+// a file's contents stays one line and carries no terminal command.
+func printable(s string) string {
+	ok := true
+	for _, r := range s {
+		if !unicode.IsPrint(r) || r == utf8.RuneError {
+			ok = false
+			break
+		}
+	}
+	if ok {
+		return s
+	}
+	var b strings.Builder
+	for _, r := range s {
+		if unicode.IsPrint(r) && r != utf8.RuneError {
+			b.WriteRune(r)
+			continue
+		}
+		q := strconv.QuoteRune(r)
+		b.WriteString(q[1 : len(q)-1])
+	}
+	return b.String()
 }

@@ -4,8 +4,8 @@ import (
 	"bytes"
 	_ "embed"
 	"errors"
-	"io"
 	"fmt"
+	"io"
 	"math"
 	"os"
 

@@ -22,7 +22,7 @@ func readNodeV2(c *checker, p string, o obj, n *Node) {
 	}
 	n.FloorDoubling = d
 	sv, ok := o.get("supply")
-	if !ok || sv == nil {
+	if !ok {
 		return
 	}
 	sp := p + ".supply"

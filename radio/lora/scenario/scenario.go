@@ -257,6 +257,15 @@ func (s Scenario) WithCounts(counts []int) (Scenario, error) {
 //go:embed demo.json
 var demoJSON []byte
 
+//go:embed scenario.schema.json
+var schemaJSON []byte
+
+// SchemaJSON returns a copy of the JSON Schema (draft 2020-12) of format 2
+// files, scenario.schema.json beside this package: editors validate with
+// it. The reader checks more than the schema can say (FORMAT.md lists the
+// rules across fields).
+func SchemaJSON() []byte { return append([]byte(nil), schemaJSON...) }
+
 // DemoJSON returns a copy of the built-in demo scenario file.
 func DemoJSON() []byte { return append([]byte(nil), demoJSON...) }
 

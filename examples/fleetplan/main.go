@@ -10,11 +10,17 @@
 //	go run ./examples/fleetplan -json                # the same results as JSON
 //	go run ./examples/fleetplan -figures DIR         # also write PNG and SVG figures
 //	go run ./examples/fleetplan -print-demo          # print the demo scenario file
+//	go run ./examples/fleetplan -print-schema        # print the format's JSON Schema
 //
-// The scenario format is documented in radio/lora/scenario (see its package
-// doc, or start from -print-demo). A bad file is rejected with every problem
-// named by field, value and rule; nothing is defaulted. Progress goes to
-// stderr; the report or JSON goes to stdout.
+// The scenario format is documented in radio/lora/scenario/FORMAT.md, with
+// its JSON Schema beside it (or start from -print-demo). The plan is computed
+// by the public site model, package radio/lora/scenario; this program
+// prints it. The figures' directory is checked (created if missing) before
+// the computation; the report or JSON is written first, then the figures,
+// each to a temporary file renamed into place, so a failed figure never
+// discards the report. Any failed write exits with status 1. A bad file is
+// rejected with every problem named by field, value and rule; nothing is
+// defaulted. Progress goes to stderr; the report or JSON goes to stdout.
 package main
 
 import (
@@ -41,9 +47,10 @@ func run(args []string, stdout, stderr io.Writer) int {
 	asJSON := fs.Bool("json", false, "print the results as JSON instead of the report")
 	figures := fs.String("figures", "", "write PNG and SVG figures into this `directory` (created if missing)")
 	printDemo := fs.Bool("print-demo", false, "print the built-in demo scenario file and exit")
+	printSchema := fs.Bool("print-schema", false, "print the JSON Schema of the scenario format and exit")
 	quiet := fs.Bool("quiet", false, "print no progress on stderr")
 	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: fleetplan [-scenario file] [-json] [-figures dir] [-print-demo] [-quiet]")
+		fmt.Fprintln(stderr, "usage: fleetplan [-scenario file] [-json] [-figures dir] [-print-demo] [-print-schema] [-quiet]")
 		fs.PrintDefaults()
 	}
 	if err := fs.Parse(args); err != nil {
@@ -58,8 +65,10 @@ func run(args []string, stdout, stderr io.Writer) int {
 		return 2
 	}
 	if *printDemo {
-		_, _ = stdout.Write(scenario.DemoJSON())
-		return 0
+		return emit(stderr, func() error { _, err := stdout.Write(scenario.DemoJSON()); return err })
+	}
+	if *printSchema {
+		return emit(stderr, func() error { _, err := stdout.Write(scenario.SchemaJSON()); return err })
 	}
 	start := time.Now()
 	say := func(format string, args ...any) {
@@ -75,7 +84,7 @@ func run(args []string, stdout, stderr io.Writer) int {
 	} else {
 		var err error
 		if s, err = scenario.Load(*file); err != nil {
-			fmt.Fprintf(stderr, "fleetplan: %s is not a usable scenario:\n", *file)
+			fmt.Fprintf(stderr, "fleetplan: %s is not a usable scenario:\n", scenario.Quote(*file))
 			for _, e := range flatten(err) {
 				fmt.Fprintf(stderr, "  %v\n", e)
 			}
@@ -83,34 +92,72 @@ func run(args []string, stdout, stderr io.Writer) int {
 		}
 		source = *file
 	}
-	p, err := buildPlan(s, source, say)
-	if err != nil {
-		fmt.Fprintf(stderr, "fleetplan: %v\n", err)
-		return 1
-	}
+	// The figures' directory is checked before the long computation.
 	if *figures != "" {
-		say("writing figures to %s", *figures)
-		names, err := writeFigures(p, *figures)
-		if err != nil {
+		if err := checkDir(*figures); err != nil {
 			fmt.Fprintf(stderr, "fleetplan: figures: %v\n", err)
 			return 1
 		}
+	}
+	p, err := buildPlan(s, source, say)
+	if err != nil {
+		fmt.Fprintln(stderr, "fleetplan: the plan cannot be computed:")
+		for _, e := range flatten(err) {
+			fmt.Fprintf(stderr, "  %v\n", e)
+		}
+		return 1
+	}
+	// The report (or JSON) first: a figure that fails never discards it.
+	status := emit(stderr, func() error {
+		if *asJSON {
+			enc := json.NewEncoder(stdout)
+			enc.SetIndent("", "  ")
+			return enc.Encode(p)
+		}
+		return writeReport(stdout, p)
+	})
+	if *figures != "" {
+		say("writing figures to %s", scenario.Quote(*figures))
+		names, err := writeFigures(p, *figures)
 		for _, n := range names {
-			say("  wrote %s", n)
+			say("  wrote %s", scenario.Quote(n))
+		}
+		if err != nil {
+			fmt.Fprintf(stderr, "fleetplan: figures: %v (the report was written)\n", err)
+			status = 1
 		}
 	}
 	say("done")
-	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		if err := enc.Encode(p); err != nil {
-			fmt.Fprintf(stderr, "fleetplan: %v\n", err)
-			return 1
-		}
-		return 0
+	return status
+}
+
+// emit runs write and turns its error (a full disk, a closed pipe) into
+// exit status 1 with a message on stderr.
+func emit(stderr io.Writer, write func() error) int {
+	if err := write(); err != nil {
+		fmt.Fprintf(stderr, "fleetplan: writing the output: %v\n", err)
+		return 1
 	}
-	writeReport(stdout, p)
 	return 0
+}
+
+// checkDir makes dir if it is missing and checks that a file can be
+// created in it (and removes that file), so that a bad figures directory
+// is found before the computation.
+func checkDir(dir string) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return err
+	}
+	f, err := os.CreateTemp(dir, ".fleetplan-check-*")
+	if err != nil {
+		return err
+	}
+	name := f.Name()
+	err = f.Close()
+	if rmErr := os.Remove(name); err == nil {
+		err = rmErr
+	}
+	return err
 }
 
 // flatten returns the errors joined in err, or err itself.

@@ -66,13 +66,22 @@ type SpreadPlan struct {
 }
 
 // Summary is a law's mean, standard deviation, median and central 90 % and
-// 99 % intervals (equal-tailed), in the unit of the field holding it.
+// 99 % intervals (equal-tailed), in the unit of the field holding it, with
+// its support, how it was computed and its stated error: the one-line
+// summary the report prints under "Laws".
 type Summary struct {
 	Mean   float64    `json:"mean"`
 	SD     float64    `json:"sd"`
 	Median float64    `json:"median"`
 	In90   [2]float64 `json:"interval_90"`
 	In99   [2]float64 `json:"interval_99"`
+	// Support is the law's support (an end may be infinite: not in the
+	// JSON, which cannot hold it).
+	Support [2]float64 `json:"-"`
+	// Method says how the law was computed; CDFError is its stated bound on
+	// the error of its distribution function (0 for an exact law).
+	Method   string  `json:"method"`
+	CDFError float64 `json:"cdf_error_bound"`
 }
 
 // GroupPlan is the plan of one group.
@@ -232,12 +241,32 @@ func summarise(l dist.Law, scale float64) (Summary, error) {
 		return s, err
 	}
 	s.In99 = [2]float64{lo / scale, hi / scale}
+	lo, hi = l.Support()
+	s.Support = [2]float64{lo / scale, hi / scale}
+	s.Method, s.CDFError = method(l)
 	for _, x := range []float64{s.Mean, s.SD, s.Median, s.In90[0], s.In90[1], s.In99[0], s.In99[1]} {
 		if math.IsNaN(x) {
 			return s, fmt.Errorf("law %v: a summary value is NaN", l)
 		}
 	}
 	return s, nil
+}
+
+// method says how l was computed and its stated bound on the error of its
+// distribution function: the law's own Accuracy (dist.Estimated), or exact
+// for a finite discrete law (dist.Atomic without a continuous part) and for
+// a closed form.
+func method(l dist.Law) (string, float64) {
+	if e, ok := l.(dist.Estimated); ok {
+		a := e.Accuracy()
+		return a.Method, a.CDFAbs
+	}
+	if a, ok := l.(dist.Atomic); ok {
+		if _, dens := l.(dist.Densitied); !dens {
+			return fmt.Sprintf("exact: finite discrete, %d atoms", len(a.Atoms())), 0
+		}
+	}
+	return "closed form", 0
 }
 
 // buildPlan computes the plan of a checked scenario: the site model's laws

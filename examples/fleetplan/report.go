@@ -6,6 +6,8 @@ import (
 	"math"
 	"strconv"
 	"strings"
+
+	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
 // joules formats an energy in J, mJ or µJ.
@@ -120,9 +122,35 @@ func seconds(x float64) string {
 	return fmt.Sprintf("%.3g s", x)
 }
 
-// writeReport prints the plan in the program's plain layout.
-func writeReport(w io.Writer, p *Plan) {
-	title := "Fleet energy plan: " + p.Site
+// esc prints a name or text from the scenario file bare, with its control
+// and other non-printing characters escaped (scenario.Escape), so that it
+// cannot forge a report line or send a terminal command.
+func esc(s string) string { return scenario.Escape(s) }
+
+// errWriter passes writes on until the first fails, and keeps that error.
+type errWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (e *errWriter) Write(b []byte) (int, error) {
+	if e.err != nil {
+		return 0, e.err
+	}
+	n, err := e.w.Write(b)
+	if err == nil && n < len(b) {
+		err = io.ErrShortWrite
+	}
+	e.err = err
+	return n, err
+}
+
+// writeReport prints the plan in the program's plain layout and returns the
+// first write error (a full disk, a closed pipe), if any.
+func writeReport(out io.Writer, p *Plan) error {
+	ew := &errWriter{w: out}
+	w := io.Writer(ew)
+	title := "Fleet energy plan: " + esc(p.Site)
 	fmt.Fprintln(w, title)
 	fmt.Fprintln(w, strings.Repeat("=", len([]rune(title))))
 	row := func(label, format string, args ...any) {
@@ -131,12 +159,12 @@ func writeReport(w io.Writer, p *Plan) {
 	more := func(format string, args ...any) {
 		fmt.Fprintf(w, "  %-20s %s\n", "", fmt.Sprintf(format, args...))
 	}
-	row("scenario", "%s", p.Source)
+	row("scenario", "%s", esc(p.Source))
 	row("region", "%s (tables: %s)", p.Region, p.RegionTables)
 	row("fleet", "%d nodes in %d groups; gateways %s", p.Nodes, len(p.Groups), quoteAll(p.Gateways))
 	for _, c := range p.Cells {
-		row("cell", "%s", c.Name)
-		more("%s; %s nominal, %s at the rated usable fraction; self-discharge %s at the reference temperature", c.Chemistry, joules(c.NominalEnergyJ), joules(c.UsableEnergyJ), watts(c.SelfDischargeW))
+		row("cell", "%s", esc(c.Name))
+		more("%s; %s nominal, %s at the rated usable fraction; self-discharge %s at the reference temperature", esc(c.Chemistry), joules(c.NominalEnergyJ), joules(c.UsableEnergyJ), watts(c.SelfDischargeW))
 		cal := "no calendar life given"
 		if c.CalendarLifeYears > 0 {
 			cal = fmt.Sprintf("calendar life %s", years(c.CalendarLifeYears))
@@ -152,20 +180,20 @@ func writeReport(w io.Writer, p *Plan) {
 	fmt.Fprintln(w)
 
 	for i, g := range p.Groups {
-		head := fmt.Sprintf("Group %d of %d: %s", i+1, len(p.Groups), g.Name)
+		head := fmt.Sprintf("Group %d of %d: %s", i+1, len(p.Groups), esc(g.Name))
 		fmt.Fprintln(w, head)
 		fmt.Fprintln(w, strings.Repeat("-", len([]rune(head))))
 		kind := "unconfirmed"
 		if g.Confirmed {
 			kind = fmt.Sprintf("confirmed, up to %d transmissions", g.MaxTransmission)
 		}
-		row("nodes", "%d around %q, %.0f–%.0f m", g.Nodes, g.Gateway, g.InnerRadiusM, g.OuterRadiusM)
+		row("nodes", "%d around %s, %.0f–%.0f m", g.Nodes, scenario.Quote(g.Gateway), g.InnerRadiusM, g.OuterRadiusM)
 		every := fmt.Sprintf("every %.0f s ± %.0f s", g.IntervalS, g.JitterS)
 		if g.JitterS == 0 {
 			every = fmt.Sprintf("every %.0f s on a fixed schedule", g.IntervalS)
 		}
 		row("traffic", "%d-byte uplinks %s, %s", g.PayloadBytes, every, kind)
-		row("hardware", "%s, %s; %s", g.Node, g.Supply, g.Cell)
+		row("hardware", "%s, %s; %s", esc(g.Node), g.Supply, esc(g.Cell))
 		e := g.EnergyPerCycle
 		eu := unitFor(e.Mean)
 		row("energy per cycle", "mean %s, sd %s", eu.with(e.Mean), eu.with(e.SD))
@@ -184,7 +212,7 @@ func writeReport(w io.Writer, p *Plan) {
 			if s.ShareVariance != nil {
 				vs = *s.ShareVariance
 			}
-			more("%-26s %14s %12s %9s %12s", s.State, sig3(s.RunsPerCycle), bu.num(s.MeanEnergyJ), pct(s.ShareMean), pct(vs))
+			more("%-26s %14s %12s %9s %12s", esc(s.State), sig3(s.RunsPerCycle), bu.num(s.MeanEnergyJ), pct(s.ShareMean), pct(vs))
 		}
 		if i == 0 {
 			more("(runs per cycle: times the state runs in a cycle, on average, below 1 when it runs in some cycles")
@@ -332,14 +360,37 @@ func writeReport(w io.Writer, p *Plan) {
 	more("probability that no battery is flat before it: %s", probability(r.NoFailure))
 	var per []string
 	for i, g := range p.Groups {
-		per = append(per, fmt.Sprintf("%s %.1f", g.Name, r.PerGroupExpected[i]))
+		per = append(per, fmt.Sprintf("%s %.1f", esc(g.Name), r.PerGroupExpected[i]))
 	}
 	more("expected by group: %s", strings.Join(per, "; "))
 	row("replace by", "%s keeps the risk of any flat battery at %s", years(fl.ReplaceByRisk), pct(fl.Risk))
 	for _, g := range p.Groups {
-		more("%s alone: %s", g.Name, years(g.ReplaceByRisk))
+		more("%s alone: %s", esc(g.Name), years(g.ReplaceByRisk))
 	}
 	more("(lifetime laws computed to a CDF error bound of %.1g)", fl.LifetimeAccuracy)
+	fmt.Fprintln(w)
+
+	fmt.Fprintln(w, "Laws")
+	fmt.Fprintln(w, "----")
+	fmt.Fprintln(w, "  each law in one line: mean, sd, 90 % interval, support; how it was computed and its stated")
+	fmt.Fprintln(w, "  bound on the error of its distribution function")
+	for _, g := range p.Groups {
+		wrap(w, "  - ", fmt.Sprintf("%s, energy per cycle: %s", esc(g.Name), lawLine(g.EnergyPerCycle, energyText(g.EnergyPerCycle.Mean))))
+		wrap(w, "  - ", fmt.Sprintf("%s, lifetime: %s", esc(g.Name), lawLine(g.Lifetime, yearsText)))
+		wrap(w, "  - ", fmt.Sprintf("%s, first failure: %s", esc(g.Name), lawLine(g.FirstFailure, yearsText)))
+	}
+	for _, x := range []struct {
+		name string
+		s    Summary
+		unit func(float64) string
+	}{
+		{"a node of the fleet, energy per cycle", fl.EnergyPerCycle, energyText(fl.EnergyPerCycle.Mean)},
+		{fmt.Sprintf("the largest cycle of %d", p.Nodes), fl.MaxPerCycle, energyText(fl.EnergyPerCycle.Mean)},
+		{fmt.Sprintf("the smallest cycle of %d", p.Nodes), fl.MinPerCycle, energyText(fl.EnergyPerCycle.Mean)},
+		{"the fleet's first failure", fl.FirstFailure, yearsText},
+	} {
+		wrap(w, "  - ", fmt.Sprintf("%s: %s", x.name, lawLine(x.s, x.unit)))
+	}
 	fmt.Fprintln(w)
 
 	if len(p.Warnings) > 0 {
@@ -355,6 +406,7 @@ func writeReport(w io.Writer, p *Plan) {
 	for _, x := range p.Cautions {
 		wrap(w, "  - ", x)
 	}
+	return ew.err
 }
 
 func watts(x float64) string {
@@ -376,7 +428,7 @@ func probability(x float64) string {
 func quoteAll(xs []string) string {
 	q := make([]string, len(xs))
 	for i, x := range xs {
-		q[i] = fmt.Sprintf("%q", x)
+		q[i] = scenario.Quote(x)
 	}
 	return strings.Join(q, ", ")
 }
@@ -397,4 +449,41 @@ func wrap(w io.Writer, prefix, text string) {
 		}
 	}
 	fmt.Fprintln(w, line)
+}
+
+// lawLine is a law's one-line summary: mean, sd, 90 % interval and support
+// in one unit, then how it was computed and its stated CDF error.
+func lawLine(s Summary, unit func(float64) string) string {
+	how := s.Method
+	if s.CDFError > 0 {
+		how += fmt.Sprintf("; CDF error ≤ %.1g", s.CDFError)
+	}
+	return fmt.Sprintf("mean %s, sd %s, 90 %% in [%s, %s], support [%s, %s]; %s",
+		unit(s.Mean), unit(s.SD), unit(s.In90[0]), unit(s.In90[1]), unit(s.Support[0]), unit(s.Support[1]), how)
+}
+
+// energyText prints energies (J) in the unit that suits ref (J).
+func energyText(ref float64) func(float64) string {
+	u := unitFor(ref)
+	return func(x float64) string {
+		if math.IsInf(x, 0) {
+			return fmt.Sprintf("%s %s", infText(x), u.name)
+		}
+		return u.with(x)
+	}
+}
+
+// yearsText prints a duration in years with three significant digits.
+func yearsText(y float64) string {
+	if math.IsInf(y, 0) {
+		return infText(y) + " years"
+	}
+	return sig3(y) + " years"
+}
+
+func infText(x float64) string {
+	if x < 0 {
+		return "−∞"
+	}
+	return "∞"
 }

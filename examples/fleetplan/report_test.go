@@ -1,9 +1,15 @@
 package main
 
 import (
+	"regexp"
+	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/orderstat"
 )
 
 // Figures print with three significant digits in plain decimals: the
@@ -30,4 +36,47 @@ func TestEnergyUnitPerLine(t *testing.T) {
 	assert.Equal(t, "200 mJ", u.with(0.2))
 	assert.Equal(t, "J", unitFor(3).name)
 	assert.Equal(t, "µJ", unitFor(5e-4).name)
+}
+
+// Each law's one-line summary: a finite discrete law is exact with its
+// atoms counted; the largest of n states its own error (orderstat's
+// Accuracy); a law of neither kind is a closed form. The figures are the
+// law's own: the normal law's 90 % interval is μ ± 1.6449σ (z of 0.95,
+// Abramowitz & Stegun 26.2, table 26.1) and its support the whole line.
+func TestLawLine(t *testing.T) {
+	d := dist.MustDiscrete([]float64{0.01, 0.02, 0.5}, []float64{0.5, 0.3, 0.2})
+	how, bound := method(d)
+	assert.Equal(t, "exact: finite discrete, 3 atoms", how)
+	assert.Zero(t, bound)
+
+	mx, err := orderstat.Max(d, 304)
+	require.NoError(t, err)
+	how, bound = method(mx)
+	assert.Equal(t, mx.(dist.Estimated).Accuracy().Method, how)
+	assert.Positive(t, bound)
+	assert.Less(t, bound, 1e-9)
+
+	n := dist.MustNormal(10, 2)
+	s, err := summarise(n, 1)
+	require.NoError(t, err)
+	line := lawLine(s, yearsText)
+	assert.Equal(t, "mean 10 years, sd 2 years, 90 % in [6.71 years, 13.3 years], support [−∞ years, ∞ years]; closed form", line)
+}
+
+// The report's Laws section gives every group's and the fleet's laws, one
+// line each (wrapped), with support, method and stated error.
+func TestReportLawsSection(t *testing.T) {
+	code, out, errs := runArgs(t, "-quiet")
+	require.Equal(t, 0, code, errs)
+	i := strings.Index(out, "Laws\n----")
+	require.Positive(t, i)
+	laws := out[i:strings.Index(out, "Warnings\n--------")]
+	for _, g := range []string{"dyke piezometers", "field soil probes", "pump alarms", "weather masts"} {
+		assert.Contains(t, laws, g+", energy per cycle: mean")
+		assert.Contains(t, laws, g+", lifetime: mean")
+	}
+	assert.Contains(t, laws, "exact: finite discrete")
+	assert.Contains(t, laws, "CDF error ≤")
+	assert.Equal(t, 4*3+4, strings.Count(laws, "  - "), "one entry per law")
+	assert.Len(t, regexp.MustCompile(`support\s+\[`).FindAllString(laws, -1), 4*3+4)
 }

@@ -27,8 +27,9 @@
 //
 // # Regions
 //
-// The region is any that package lora models (lora.Regions): EU863-870 or
-// US902-928, with its tables (RP002-1.0.3). It decides the TXPower levels the
+// The region is any that package lora models (lora.Regions: EU863-870,
+// US902-928, AU915-928 and IN865-867 at this writing; the schema's list is
+// tested against it), with its tables (RP002-1.0.3). It decides the TXPower levels the
 // node's transmit_current_ma must list, one each (EU863-870: 16 … 2 dBm in
 // 2 dB steps, 8 levels; US902-928: 30 … 2 dBm, 15 levels), the largest
 // payload (the slowest ADR data rate's: 51 bytes at EU863-870 DR0, 11 at

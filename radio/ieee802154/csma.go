@@ -202,6 +202,41 @@ func (c CSMA) BackoffTime(p PHY, busy float64) (dist.Law, error) {
 	return dist.Affine(l, p.UnitBackoffPeriod(), 0)
 }
 
+// RunTime returns the law of the duration of one CSMA-CA run on the PHY
+// p, in seconds: its backoffs and CCAs,
+//
+//	D = (U_0 + … + U_(N−1))·aUnitBackoffPeriod + N·CCATime,
+//
+// with N the number of CCAs (CSMA.CCAs) and the backoffs U_i as in
+// BackoffPeriods. A run that succeeds is followed by the turnaround and the
+// transmission; one that fails ends the frame's sending. Exact (finite
+// discrete): the mixture over N of the shifted k-fold sums.
+func (c CSMA) RunTime(p PHY, busy float64) (dist.Law, error) {
+	const fn = "CSMA.RunTime"
+	if err := p.Validate(); err != nil {
+		return nil, fmt.Errorf("ieee802154.%s: %w", fn, err)
+	}
+	if err := c.check(fn, busy); err != nil {
+		return nil, err
+	}
+	probs, _ := c.ccaProbs(busy)
+	sums, err := c.backoffSums()
+	if err != nil {
+		return nil, fmt.Errorf("ieee802154.%s: %w", fn, err)
+	}
+	laws := make([]dist.Law, len(sums))
+	for k, s := range sums {
+		if laws[k], err = dist.Affine(s, p.UnitBackoffPeriod(), float64(k+1)*p.CCATime()); err != nil {
+			return nil, fmt.Errorf("ieee802154.%s: %w", fn, err)
+		}
+	}
+	l, err := dist.Mixture(probs, laws)
+	if err != nil {
+		return nil, fmt.Errorf("ieee802154.%s: %w", fn, err)
+	}
+	return l, nil
+}
+
 // Outcomes are the fates of one frame and the laws of how many CSMA-CA runs
 // and transmissions it takes.
 type Outcomes struct {

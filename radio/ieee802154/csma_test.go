@@ -195,6 +195,14 @@ func TestBackoffEnumeration(t *testing.T) {
 		sec, err := tc.c.BackoffTime(ieee802154.OQPSK2450(), tc.b)
 		require.NoError(t, err)
 		assert.InDelta(t, 320e-6*mean, sec.Mean(), 1e-12*320e-6*mean+1e-300)
+		// The run: backoffs plus E[N] = Σ_i b^i CCAs of 128 µs.
+		ccas := 0.0
+		for i := 0; i <= tc.c.MaxCSMABackoffs; i++ {
+			ccas += math.Pow(tc.b, float64(i))
+		}
+		rt, err := tc.c.RunTime(ieee802154.OQPSK2450(), tc.b)
+		require.NoError(t, err)
+		assert.InEpsilon(t, 320e-6*mean+128e-6*ccas, rt.Mean(), 1e-12)
 	}
 }
 
@@ -271,6 +279,9 @@ func TestCSMALawsConformance(t *testing.T) {
 		bt, err := c.BackoffTime(ieee802154.BPSK868(), b)
 		require.NoError(t, err)
 		assert.NoError(t, disttest.Check(bt, disttest.WithSeed(uint64(30+i))), "BackoffTime b=%g", b)
+		rt, err := c.RunTime(ieee802154.OQPSK2450(), b)
+		require.NoError(t, err)
+		assert.NoError(t, disttest.Check(rt, disttest.WithSeed(uint64(60+i))), "RunTime b=%g", b)
 		o, err := c.Frame(b, 0.3, true)
 		require.NoError(t, err)
 		assert.NoError(t, disttest.Check(o.Runs, disttest.WithSeed(uint64(40+i))), "Runs b=%g", b)

@@ -27,7 +27,8 @@
 // other CCAs (Bianchi's decoupling assumption), it gives the exact laws of
 // the number of CCAs (and backoffs) of a run (CCAs), the time spent in
 // backoff (BackoffTime: a random sum of discrete uniform backoffs, through
-// dist.Sum and dist.Mixture), the channel-access failure probability
+// dist.Sum and dist.Mixture), the duration of a run with its CCAs
+// (RunTime), the channel-access failure probability
 // b^(m+1) (AccessFailure) and the frame's fates with the laws of its
 // CSMA-CA runs and transmissions under an acknowledgement-loss
 // probability (Frame). Node.BusyFromTraffic derives b from the offered

@@ -83,12 +83,14 @@ func TestFrameAgainstSampler(t *testing.T) {
 		r := rand.New(rand.NewPCG(uint64(i), 802154))
 		xs := make([]float64, n)
 		bo := make([]float64, n)
+		rts := make([]float64, n)
 		fates := make([]int, 3)
 		ccas := make([]int, tc.node.CSMA.MaxCSMABackoffs+2)
 		for j := range xs {
 			o := simFrame(r, tc.node)
 			xs[j] = o.energy
 			bo[j] = float64(o.backoff1) + 1 // shifted: KSWithSlack wants positive samples
+			rts[j] = o.run1
 			fates[o.fate]++
 			ccas[o.ccas1]++
 			assert.LessOrEqual(t, o.active, tl.MaxFrameTime*(1+1e-12), "MaxFrameTime bounds every frame")
@@ -97,9 +99,12 @@ func TestFrameAgainstSampler(t *testing.T) {
 		d := testref.KSWithSlack(xs, law.CDF, 1e-9)
 		assert.Less(t, d, crit, "%s: frame energy KS", tc.name)
 		t.Logf("%s: KS %.4f (bound %.4f), mean %.6g J, sampled %.6g J", tc.name, d, crit, law.Mean(), mean(xs))
+		rtLaw, err := tc.node.CSMA.RunTime(tc.node.PHY, tc.node.Busy)
+		require.NoError(t, err)
 		shifted, err := dist.Affine(boLaw, 1, 1)
 		require.NoError(t, err)
 		assert.Less(t, testref.KSWithSlack(bo, shifted.CDF, 1e-9), crit, "%s: backoff KS", tc.name)
+		assert.Less(t, testref.KSWithSlack(rts, rtLaw.CDF, 1e-9), crit, "%s: run time KS", tc.name)
 		o := tl.Outcomes
 		for f, p := range []float64{o.Delivered, o.AccessFailure, o.RetryLimit} {
 			lo, hi := testref.BinomialInterval(n, p, 1e-6)
@@ -346,5 +351,16 @@ func TestFrameEnergyEnumeration(t *testing.T) {
 			assert.InDelta(t, want[i].Mass, got[i].Mass, 1e-14)
 		}
 		t.Logf("%d paths, %d atoms", len(paths), len(got))
+
+		// The first run's duration against CSMA.RunTime.
+		runs := map[float64]float64{}
+		enumFrames(n, func(o simOut, p float64) { runs[math.Round(o.run1*1e9)/1e9] += p })
+		rt, err := n.CSMA.RunTime(n.PHY, n.Busy)
+		require.NoError(t, err)
+		rta := rt.(dist.Atomic).Atoms()
+		require.Len(t, rta, len(runs))
+		for _, a := range rta {
+			assert.InDelta(t, runs[math.Round(a.Value*1e9)/1e9], a.Mass, 1e-13, "run time %g s", a.Value)
+		}
 	}
 }

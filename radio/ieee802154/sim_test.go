@@ -19,8 +19,9 @@ type simOut struct {
 	active   float64 // time in states, s
 	fate     int
 	runs, tx int
-	ccas1    int // CCAs of the first CSMA-CA run
-	backoff1 int // backoff of the first run, unit backoff periods
+	ccas1    int     // CCAs of the first CSMA-CA run
+	backoff1 int     // backoff of the first run, unit backoff periods
+	run1     float64 // duration of the first run's backoffs and CCAs (no wake), s
 }
 
 // simFrame plays the sending of one frame packet by packet, written from
@@ -87,6 +88,7 @@ func playFrame(r draws, n ieee802154.Node) simOut {
 			if run == 1 {
 				o.ccas1++
 				o.backoff1 += u
+				o.run1 += float64(u)*unit + cca
 			}
 			if !r.coin(n.Busy) {
 				break // idle channel

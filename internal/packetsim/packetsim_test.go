@@ -219,3 +219,45 @@ func TestPlayUsesNetworkSettings(t *testing.T) {
 	assert.InEpsilon(t, cy.MeanEnergy(), out.Energy[0], 1e-12)
 	assert.InDelta(t, 0, cy.EnergyVariance(), 1e-18, "a deterministic cycle (variance 0 up to rounding)")
 }
+
+// Repetitions of an unconfirmed uplink (NbTrans = 3, no answers): three
+// transmissions, each after the previous one's RX2 has closed and the
+// sub-band's off-time has passed (airtime/d after its start: EU863-870's
+// default channels are in the 1 % sub-band). With the wait current above
+// the sleep current the gaps show in the energy, which must equal the hand
+// sum over lora.ClassA's timeline with its OffTimeGap.
+func TestUnconfirmedRepetitionsTimedByOffTime(t *testing.T) {
+	s, err := scenario.Demo().WithCounts([]int{1, 1, 1, 1})
+	require.NoError(t, err)
+	s.Groups = s.Groups[:1]
+	s.Groups[0].AnswerShare = 0
+	s.Groups[0].MaxTransmissions = 3
+	s.Nodes[0].Wait = 1e-3
+	m, err := scenario.Build(s, nil)
+	require.NoError(t, err)
+	r := rand.New(rand.NewPCG(5, 5))
+	n := s.Nodes[0]
+	for range 10 {
+		out, err := packetsim.Play(s, packetsim.Options{Start: 10}, r)
+		require.NoError(t, err)
+		nd := out.Nodes[0]
+		ca := m.Groups[0].ClassA
+		ca.Settings = []lora.Setting{{DR: nd.DR, TXPower: nd.TXPower, EIRP: nd.EIRP, Prob: 1}}
+		tls, err := ca.Timelines()
+		require.NoError(t, err)
+		tl := tls[0]
+		require.Positive(t, tl.OffTimeGap)
+		tx, ok := n.TransmitCurrent(nd.EIRP)
+		require.True(t, ok)
+		w := s.Groups[0].Work[0]
+		per := tx*tl.Uplink + n.Wait*tl.WaitRX1 + n.Receive*tl.RX1Listen + n.Wait*tl.WaitRX2 + n.Receive*tl.RX2Listen
+		perT := tl.Uplink + tl.WaitRX1 + tl.RX1Listen + tl.WaitRX2 + tl.RX2Listen
+		charge := w.Current*w.Duration + 3*per + 2*n.Wait*tl.OffTimeGap
+		active := w.Duration + 3*perT + 2*tl.OffTimeGap
+		want := n.Voltage * (charge + n.Sleep*(s.Groups[0].Interval-active))
+		assert.InDelta(t, want, out.Energy[0], 1e-12*want)
+		cy, err := ca.Cycle(m.Groups[0].Period)
+		require.NoError(t, err)
+		assert.InEpsilon(t, want, cy.MeanEnergy(), 1e-12, "the class A law")
+	}
+}

@@ -146,3 +146,46 @@ func TestGatewayBudgetFeedsRetransmissions(t *testing.T) {
 		}
 	}
 }
+
+// The regions added for issue 14 plan end to end: the US902-928 test site
+// moved to AU915-928 (the same 15 TXPower levels from 30 dBm; 64 + 8
+// channels, DR0 … DR5 on 125 kHz, DR6 on 500 kHz) and to IN865-867 (11
+// levels from 30 dBm, three default channels, no duty-cycle sub-bands, so
+// the gateway is limited by its transmitter alone): every group builds,
+// spreads its frames over the channels that carry each data rate, and its
+// cycle has a positive mean.
+func TestMoreRegionsPlan(t *testing.T) {
+	for _, tc := range []struct {
+		region lora.Region
+		levels int
+		chans  map[int]int
+	}{
+		{lora.AU915(), 15, map[int]int{0: 64, 5: 64, 6: 8}},
+		{lora.IN865(), 11, map[int]int{0: 3, 5: 3}},
+	} {
+		t.Run(tc.region.Name(), func(t *testing.T) {
+			s, err := scenario.Load("testdata/us902-928.json")
+			require.NoError(t, err)
+			s.Region = tc.region
+			for i := range s.Nodes {
+				s.Nodes[i].Transmit = s.Nodes[i].Transmit[:tc.levels]
+			}
+			m, err := scenario.Build(s, nil)
+			require.NoError(t, err)
+			for dr, n := range tc.chans {
+				assert.Equal(t, n, tc.region.ChannelsCarrying(lora.ChannelMask{}, dr), "DR%d", dr)
+			}
+			for _, g := range m.Groups {
+				for _, d := range g.PerDR {
+					assert.Contains(t, tc.region.ADRDataRates(), d.DR)
+				}
+				cy, err := g.Cycle()
+				require.NoError(t, err)
+				assert.Positive(t, cy.MeanEnergy())
+			}
+			for _, b := range m.Gateways[0].Budget.Bands {
+				assert.Equal(t, 1.0, b.DutyCycle, "no duty-cycle sub-bands: the transmitter alone")
+			}
+		})
+	}
+}

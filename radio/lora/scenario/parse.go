@@ -90,7 +90,7 @@ func Parse(data []byte) (Scenario, error) {
 			s.Cells = append(s.Cells, cl)
 		}
 	}
-	s.Gateways = readGateways(c, top.array("gateways", 1, maxGateways))
+	s.Gateways = readGateways(c, top.array("gateways", 1, maxGateways), s.Region, regionOK)
 	s.Groups = readGroups(c, top.array("groups", 1, maxGroups), s, regionOK, v1)
 	plan, _ := top.get("plan")
 	s.Plan = readPlan(c, plan)
@@ -261,15 +261,18 @@ func readCellSpec(c *checker, p string, o obj, v2 bool) energy.BatterySpec {
 	return b
 }
 
-func readGateways(c *checker, items []any) []Gateway {
+func readGateways(c *checker, items []any, region lora.Region, regionOK bool) []Gateway {
 	var gws []Gateway
 	for i, it := range items {
 		p := index("gateways", i)
-		o := c.object(p, it, "name", "x_m", "y_m")
+		o := c.object(p, it, "name", "x_m", "y_m", "channel_block", "channels")
 		var g Gateway
 		g.Name = o.name("name")
 		g.X, _ = o.number("x_m", closed(-1e6, 1e6))
 		g.Y, _ = o.number("y_m", closed(-1e6, 1e6))
+		if regionOK {
+			g.Channels = readChannels(c, p, o, region)
+		}
 		if g.Name != "" && slices.ContainsFunc(gws, func(h Gateway) bool { return h.Name == g.Name }) {
 			c.fail(p+".name", g.Name, "gateway names must be unique")
 		}
@@ -289,7 +292,7 @@ func readGroups(c *checker, items []any, s Scenario, regionOK, v1 bool) []Group 
 func readGroup(c *checker, p string, v any, s Scenario, regionOK, v1 bool, before []Group) Group {
 	keys := []string{"name", "nodes", "gateway", "inner_radius_m", "outer_radius_m", "payload_bytes", "report_interval_s", "interval_jitter_s", "confirmed", "max_transmissions", "answer_share", "rx1_share", "downlink_payload_bytes", "downlink_loss_probability", "work"}
 	if !v1 {
-		keys = append(keys, "node", "cell", "storage_months")
+		keys = append(keys, "node", "cell", "storage_months", "rx1_dr_offset", "rx2", "rejoin_every_reports")
 	}
 	o := c.object(p, v, keys...)
 	var g Group
@@ -351,10 +354,9 @@ func readGroup(c *checker, p string, v any, s Scenario, regionOK, v1 bool, befor
 
 	g.Confirmed = o.boolean("confirmed")
 	_, hasConf := o.m["confirmed"]
-	nb, okNb := o.integer("max_transmissions", 1, 15)
-	if okNb && hasConf && !g.Confirmed && nb != 1 {
-		c.fail(p+".max_transmissions", nb, "must be 1 for unconfirmed uplinks (this model sends each unconfirmed frame once)")
-	}
+	// NbTrans: retransmissions of a confirmed uplink, repetitions of an
+	// unconfirmed one (stopped at the first downlink, LoRaWAN 1.0.4).
+	nb, _ := o.integer("max_transmissions", 1, 15)
 	g.MaxTransmissions = nb
 	ans, okA := o.number("answer_share", closed(0, 1))
 	if okA && hasConf && g.Confirmed && ans != 1 {
@@ -363,6 +365,9 @@ func readGroup(c *checker, p string, v any, s Scenario, regionOK, v1 bool, befor
 	g.AnswerShare = ans
 	g.RX1Share, _ = o.number("rx1_share", closed(0, 1))
 	g.DownlinkLoss, _ = o.number("downlink_loss_probability", openHigh(0, 1))
+	if regionOK {
+		readNetworkSettings(c, p, o, s.Region, &g)
+	}
 
 	for j, w := range o.array("work", 0, maxWork) {
 		wp := index(p+".work", j)

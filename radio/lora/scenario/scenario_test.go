@@ -148,9 +148,28 @@ func TestMalformedRejected(t *testing.T) {
 		{"jitter too large", func(t *testing.T) []byte {
 			return mutate(t, func(m map[string]any) { group(m, 1)["interval_jitter_s"] = 900 })
 		}, "groups[1].interval_jitter_s", "900", "less than half of report_interval_s (900 s)"},
-		{"retransmitting unconfirmed", func(t *testing.T) []byte {
-			return mutate(t, func(m map[string]any) { group(m, 0)["max_transmissions"] = 3 })
-		}, "groups[0].max_transmissions", "3", "must be 1 for unconfirmed"},
+		{"RX1DROffset beyond the region's", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { group(m, 0)["rx1_dr_offset"] = 6 })
+		}, "groups[0].rx1_dr_offset", "6", "[0, 5]"},
+		{"RX2 at an FSK data rate", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) {
+				group(m, 0)["rx2"] = map[string]any{"frequency_mhz": 869.525, "data_rate": 7}
+			})
+		}, "groups[0].rx2.data_rate", "7", "LoRa downlink data rate"},
+		{"RX2 outside the sub-bands", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) {
+				group(m, 0)["rx2"] = map[string]any{"frequency_mhz": 868.65, "data_rate": 3}
+			})
+		}, "groups[0].rx2.frequency_mhz", "868.65", "outside every duty-cycle sub-band"},
+		{"channel block in EU863-870", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { m["gateways"].([]any)[0].(map[string]any)["channel_block"] = 1 })
+		}, "gateways[0].channel_block", "", "no blocks of eight channels"},
+		{"a channel the plan lacks", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { m["gateways"].([]any)[0].(map[string]any)["channels"] = []any{0, 5} })
+		}, "gateways[0].channels[1]", "5", "channel index 0 … 2"},
+		{"rejoin every 0 reports", func(t *testing.T) []byte {
+			return mutate(t, func(m map[string]any) { group(m, 0)["rejoin_every_reports"] = 0 })
+		}, "groups[0].rejoin_every_reports", "0", "[1, 1000000]"},
 		{"confirmed not always answered", func(t *testing.T) []byte {
 			return mutate(t, func(m map[string]any) { group(m, 2)["answer_share"] = 0.5 })
 		}, "groups[2].answer_share", "0.5", "must be 1 for confirmed"},

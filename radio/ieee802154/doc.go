@@ -32,7 +32,9 @@
 // b^(m+1) (AccessFailure) and the frame's fates with the laws of its
 // CSMA-CA runs and transmissions under an acknowledgement-loss
 // probability (Frame). Node.BusyFromTraffic derives b from the offered
-// load of n nodes by a stated Poisson model.
+// load of n nodes by a stated Poisson model, measured against a simulation
+// of the whole channel: a lower estimate (re-checks of a busy channel find
+// it busy more often than b).
 //
 // The clause numbers cited are those of IEEE Std 802.15.4-2020 where the
 // text says so (the CSMA-CA algorithm, §6.2.5.1) and of IEEE Std

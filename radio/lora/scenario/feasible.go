@@ -61,6 +61,7 @@ func checkStructure(c *checker, s Scenario) {
 			c.fail(p+".work", note(fmt.Sprintf("%d entries", len(g.Work))), fmt.Sprintf("must have 0 to %d entries", maxWork))
 		}
 	}
+	checkNetwork(c, s)
 	if s.StartMonth < 0 || s.StartMonth > 11 {
 		c.fail("climate.deployment_month", s.StartMonth+1, "must be a whole number in [1, 12]")
 	}

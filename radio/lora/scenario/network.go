@@ -95,3 +95,39 @@ func readNetworkSettings(c *checker, p string, o obj, region lora.Region, g *Gro
 		g.RejoinEvery, _ = o.integer("rejoin_every_reports", 1, lora.MaxJoinEvery, "an out-of-reach node sends a Join-request in one report of this many")
 	}
 }
+
+// checkNetwork checks the network's settings of a Go-built scenario: each
+// group's RX1 offset, RX2 window and rejoin interval, and that its
+// gateway's channels carry every data rate ADR may choose.
+func checkNetwork(c *checker, s Scenario) {
+	reg := s.Region
+	if reg.Name() == "" {
+		return
+	}
+	for i, g := range s.Groups {
+		p := index("groups", i)
+		if n := reg.RX1DROffsets(); g.RX1DROffset < 0 || g.RX1DROffset >= n {
+			c.fail(p+".rx1_dr_offset", g.RX1DROffset, fmt.Sprintf("must be a whole number in [0, %d] (RX1DROffset of %s)", n-1, reg.Name()))
+		}
+		if g.RX2 != (lora.RX2Window{}) {
+			if _, err := reg.DownlinkDataRate(g.RX2.DR); err != nil {
+				c.fail(p+".rx2.data_rate", g.RX2.DR, "must be a LoRa downlink data rate of "+reg.Name())
+			}
+			if _, _, err := reg.DownlinkBand(g.RX2.Frequency); err != nil || !(g.RX2.Frequency > 0) {
+				c.fail(p+".rx2.frequency_mhz", g.RX2.Frequency/1e6, "must be > 0 and inside a duty-cycle sub-band of "+reg.Name()+" where it has them")
+			}
+		}
+		if g.RejoinEvery < 0 || g.RejoinEvery > lora.MaxJoinEvery {
+			c.fail(p+".rejoin_every_reports", g.RejoinEvery, fmt.Sprintf("must be 0 (none) or a whole number in [1, %d]", lora.MaxJoinEvery))
+		}
+		if g.Gateway < 0 || g.Gateway >= len(s.Gateways) {
+			continue
+		}
+		for _, dr := range reg.ADRDataRates() {
+			if reg.ChannelsCarrying(s.Gateways[g.Gateway].Channels, dr) == 0 {
+				c.fail(index("gateways", g.Gateway)+".channels", note(s.Gateways[g.Gateway].Channels.String()), fmt.Sprintf("carry no channel for DR%d, a data rate ADR may choose", dr))
+				break
+			}
+		}
+	}
+}

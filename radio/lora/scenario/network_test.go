@@ -55,3 +55,32 @@ func TestNetworkSettingsEndToEnd(t *testing.T) {
 		assert.Equal(t, 10, tl.RX2DR)
 	}
 }
+
+// A Go-built scenario's network settings are checked before anything is
+// computed, each named by its field.
+func TestNetworkSettingsChecked(t *testing.T) {
+	for _, tc := range []struct {
+		field string
+		edit  func(s *scenario.Scenario)
+	}{
+		{"groups[0].rx1_dr_offset", func(s *scenario.Scenario) { s.Groups[0].RX1DROffset = 6 }},
+		{"groups[0].rx2.data_rate", func(s *scenario.Scenario) { s.Groups[0].RX2 = lora.RX2Window{Frequency: 869.525e6, DR: 7} }},
+		{"groups[0].rx2.frequency_mhz", func(s *scenario.Scenario) { s.Groups[0].RX2 = lora.RX2Window{Frequency: 868.65e6, DR: 0} }},
+		{"groups[0].rejoin_every_reports", func(s *scenario.Scenario) { s.Groups[0].RejoinEvery = -1 }},
+		{"gateways[0].channels", func(s *scenario.Scenario) {
+			m, err := s.Region.Mask(0)
+			require.NoError(t, err)
+			s.Gateways[0].Channels = m
+			s.Region = lora.US915() // channel 0 carries DR0 … DR3, not DR4
+		}},
+	} {
+		t.Run(tc.field, func(t *testing.T) {
+			s := scenario.Demo()
+			tc.edit(&s)
+			err := s.Check()
+			require.ErrorIs(t, err, scenario.ErrInvalid)
+			assert.Contains(t, err.Error(), tc.field)
+		})
+	}
+	require.NoError(t, scenario.Demo().Check())
+}

@@ -183,7 +183,7 @@ type Group struct {
 	Interval         float64 // mean reporting period, s
 	Jitter           float64 // half-width of the uniform period jitter, s
 	Confirmed        bool
-	MaxTransmissions int     // NbTrans for confirmed uplinks; 1 for unconfirmed
+	MaxTransmissions int     // NbTrans, 1 … 15: transmissions of a confirmed uplink, repetitions of an unconfirmed one
 	AnswerShare      float64 // share of received uplinks the network answers
 	RX1Share         float64 // share of answers sent in RX1
 	DownlinkPayload  int     // application payload of an answer, bytes

@@ -10,6 +10,7 @@ import (
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/dist/disttest"
 	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/testref"
 )
 
 // feedDays feeds a tally 'days' days of the first profile of the
@@ -182,4 +183,36 @@ func TestDeviceNoUplinksAndExternal(t *testing.T) {
 	require.NoError(t, err)
 	_, err = m.Posterior(back, 20)
 	require.NoError(t, err)
+}
+
+// TestPlanService: devices with exponential remaining lives of one rate
+// are flat within h with p = 1 − e^{−rate·h} each, so the number flat is
+// Binomial(n, p) (exact tails from testref.BinomialTails); the order is
+// by rate when the rates differ.
+func TestPlanService(t *testing.T) {
+	const n, rate, h = 40, 1 / (2 * energy.Year), 0.5 * energy.Year
+	laws := make([]dist.Law, n)
+	for i := range laws {
+		laws[i] = dist.MustExponential(rate)
+	}
+	plan, err := energy.PlanService(laws, h)
+	require.NoError(t, err)
+	p := -math.Expm1(-rate * h)
+	require.InDelta(t, n*p, plan.Expected, 1e-9)
+	for _, k := range []int{3, 8, 10, 14, 20} {
+		atMost, atLeast := testref.BinomialTails(n, k, p)
+		require.InDelta(t, atMost, plan.Flat.CDF(float64(k)), 1e-12*math.Max(atMost, 1e-3), "k=%d", k)
+		require.InDelta(t, atLeast, plan.Flat.Survival(float64(k)-0.5), 1e-12*math.Max(atLeast, 1e-3), "k=%d", k)
+	}
+	mixed := []dist.Law{dist.MustExponential(1 / energy.Year), dist.MustExponential(3 / energy.Year), dist.MustExponential(2 / energy.Year)}
+	plan, err = energy.PlanService(mixed, h)
+	require.NoError(t, err)
+	require.Equal(t, []int{1, 2, 0}, []int{plan.Order[0].Index, plan.Order[1].Index, plan.Order[2].Index})
+	for _, bad := range []struct {
+		laws []dist.Law
+		h    float64
+	}{{nil, h}, {mixed, -1}, {mixed, math.NaN()}, {[]dist.Law{nil}, h}} {
+		_, err := energy.PlanService(bad.laws, bad.h)
+		require.ErrorIs(t, err, energy.ErrParam)
+	}
 }

@@ -85,6 +85,8 @@ type valResult struct {
 	in50, in90     int
 	errModel, errB []float64 // absolute errors of the median (s)
 	trueRem, risk  []float64 // true remaining life; P(flat within the horizon)
+	age            []float64 // s since installation at the cut
+	laws           []dist.Law
 }
 
 // runValidation draws n devices installed at staggered times up to a year
@@ -154,6 +156,8 @@ func runValidation(t testing.TB, f valFleet, n int, seed uint64, today float64) 
 		res.errB = append(res.errB, math.Abs(math.Max(0, freshMedian-age)-truth))
 		res.trueRem = append(res.trueRem, truth)
 		res.risk = append(res.risk, rem.CDF(horizon))
+		res.age = append(res.age, age)
+		res.laws = append(res.laws, rem)
 	}
 	return res
 }
@@ -194,6 +198,62 @@ func TestRemainingCalibration(t *testing.T) {
 			require.GreaterOrEqual(t, res.in90, lo90)
 			require.LessOrEqual(t, res.in90, hi90)
 			require.Less(t, mm, mb)
+			// Ranking: of the 5 % that truly die first, the share the
+			// service list (by P(flat within half a year)) puts in its
+			// first 5 %, against the list by age (oldest first) and chance
+			// (5 %).
+			top := res.n / 20
+			byTruth := rankBy(res.trueRem, false)[:top]
+			byRisk := rankBy(res.risk, true)[:top]
+			byAge := rankBy(res.age, true)[:top]
+			hitR, hitA := overlap(byTruth, byRisk), overlap(byTruth, byAge)
+			t.Logf("first %d to die: %d on the service list's first %d, %d on the oldest-first list", top, hitR, top, hitA)
+			require.Greater(t, hitR, hitA)
+			// The number flat within half a year against its law
+			// (PlanService), at level 1e-6.
+			plan, err := energy.PlanService(res.laws, 0.5*energy.Year)
+			require.NoError(t, err)
+			flat := 0
+			for _, x := range res.trueRem {
+				if x <= 0.5*energy.Year {
+					flat++
+				}
+			}
+			lo, hi := plan.Flat.Quantile(5e-7), plan.Flat.UpperQuantile(5e-7)
+			t.Logf("flat within half a year: %d, expected %.1f, 90 %% band [%g, %g], 1e-6 band [%g, %g]", flat, plan.Expected, plan.Low, plan.High, lo, hi)
+			require.GreaterOrEqual(t, float64(flat), lo)
+			require.LessOrEqual(t, float64(flat), hi)
 		})
 	}
+}
+
+// rankBy returns the indices of x sorted ascending (descending when desc).
+func rankBy(x []float64, desc bool) []int {
+	idx := make([]int, len(x))
+	for i := range idx {
+		idx[i] = i
+	}
+	slices.SortStableFunc(idx, func(a, b int) int {
+		if desc {
+			a, b = b, a
+		}
+		switch {
+		case x[a] < x[b]:
+			return -1
+		case x[a] > x[b]:
+			return 1
+		}
+		return 0
+	})
+	return idx
+}
+
+func overlap(a, b []int) int {
+	n := 0
+	for _, i := range a {
+		if slices.Contains(b, i) {
+			n++
+		}
+	}
+	return n
 }

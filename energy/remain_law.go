@@ -58,29 +58,35 @@ type postLaw struct {
 // [lo, hi]; nodes of zero weight are dropped. It needs at least one node
 // of positive weight.
 func newPostLaw(m, s, w []float64, half []uint8, ess, lo, hi float64, name, unit string, scale float64) PosteriorLaw {
-	idx := make([]int, 0, len(m))
+	type node struct {
+		m, s, w float64
+		h       uint8
+		k       int
+	}
+	nodes := make([]node, 0, len(m))
 	tot := 0.0
 	for k := range m {
 		if w[k] > 0 {
-			idx = append(idx, k)
+			nodes = append(nodes, node{m[k], s[k], w[k], half[k], k})
 			tot += w[k]
 		}
 	}
-	slices.SortFunc(idx, func(i, j int) int {
+	slices.SortFunc(nodes, func(a, b node) int {
 		switch {
-		case m[i] < m[j]:
+		case a.m < b.m:
 			return -1
-		case m[i] > m[j]:
+		case a.m > b.m:
 			return 1
 		}
-		return i - j
+		return a.k - b.k
 	})
-	n := len(idx)
-	p := &postLaw{m: make([]float64, n), s: make([]float64, n), w: make([]float64, n), half: make([]uint8, n),
-		below: make([]float64, n+1), above: make([]float64, n+1), ess: ess, lo: lo, hi: hi, name: name, unit: unit, scale: scale}
-	for i, k := range idx {
-		p.m[i], p.s[i], p.w[i], p.half[i] = m[k], s[k], w[k]/tot, half[k]
-		p.smax = math.Max(p.smax, s[k])
+	n := len(nodes)
+	buf := make([]float64, 5*n+2)
+	p := &postLaw{m: buf[:n:n], s: buf[n : 2*n : 2*n], w: buf[2*n : 3*n : 3*n], half: make([]uint8, n),
+		below: buf[3*n : 4*n+1 : 4*n+1], above: buf[4*n+1:], ess: ess, lo: lo, hi: hi, name: name, unit: unit, scale: scale}
+	for i, nd := range nodes {
+		p.m[i], p.s[i], p.w[i], p.half[i] = nd.m, nd.s, nd.w/tot, nd.h
+		p.smax = math.Max(p.smax, nd.s)
 	}
 	for i := range n {
 		p.below[i+1] = p.below[i] + p.w[i]

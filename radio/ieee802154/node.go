@@ -389,8 +389,9 @@ func (n Node) frameStage(tl Timeline) (energy.Stage, error) {
 		for k := range m1 - 1 {
 			cond[k] = probs[k] / sOK
 		}
-		// The last run succeeds with probability b^m·(1 − b).
-		cond[m1-1] = math.Max(1-sumFloats(cond[:m1-1]), 0)
+		// The last run succeeds with probability b^m·(1 − b), computed
+		// directly (1 − the others loses its digits when it is small).
+		cond[m1-1] = probs[m1-1] * (1 - n.Busy) / sOK
 		ok = b.oneOf(cond, runs...)
 	}
 	send := b.then(b.state("turnaround", cur.Turnaround, tl.Turnaround), b.state("transmit", cur.TX, tl.Frame))

@@ -364,3 +364,27 @@ func TestFrameEnergyEnumeration(t *testing.T) {
 		}
 	}
 }
+
+// TestFrameEnergyFarTail: the largest frame energy without an
+// acknowledgement request is a run of macMaxCSMABackoffs + 1 CCAs, the
+// last idle, every backoff at its largest, then the transmission: its
+// probability b^m·(1 − b)·Π_i 2^−BE(i) (the algorithm's draws written out)
+// is the law's survival just below it, to 1e-12 relative even when it is
+// 1e-19 (the branch probabilities are computed directly, not as 1 − the
+// others).
+func TestFrameEnergyFarTail(t *testing.T) {
+	for _, b := range []float64{1e-3, 0.3, 0.9} {
+		n := testNode()
+		n.AckRequest, n.Busy = false, b
+		law, err := n.FrameEnergy()
+		require.NoError(t, err)
+		c := n.CSMA
+		want := math.Pow(b, float64(c.MaxCSMABackoffs)) * (1 - b)
+		for i := 0; i <= c.MaxCSMABackoffs; i++ {
+			want /= math.Ldexp(1, c.BE(i))
+		}
+		_, top := law.Support()
+		assert.InEpsilon(t, want, law.Survival(math.Nextafter(top, 0)), 1e-12, "b = %g", b)
+		assert.Equal(t, top, law.UpperQuantile(want/2), "b = %g", b)
+	}
+}

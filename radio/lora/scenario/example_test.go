@@ -2,6 +2,7 @@ package scenario_test
 
 import (
 	"fmt"
+	"strings"
 
 	"github.com/joulelaw/joulelaw/energy"
 	"github.com/joulelaw/joulelaw/radio/lora/scenario"
@@ -31,4 +32,19 @@ func ExampleCompute() {
 	// pump alarms               24 nodes, mean energy per cycle 44.4 mJ
 	// weather masts             40 nodes, mean energy per cycle 77.3 mJ
 	// first flat battery: median 1.8 years
+}
+
+// Parse refuses a bad file with every problem named by field (or, for the
+// file's syntax, by line and column), the value found and the rule.
+func ExampleParse() {
+	_, err := scenario.Parse([]byte("{\"site\": \"Quillmoor\",\n  \"site\": \"again\"}"))
+	fmt.Println(err)
+	_, err = scenario.Parse([]byte(`{"format": "joulelaw-scenario/2", "site": 7}`))
+	for _, line := range strings.Split(err.Error(), "\n")[:2] {
+		fmt.Println(line)
+	}
+	// Output:
+	// scenario: (file) = line 2, column 3: the key "site" appears twice in one object: each field once
+	// scenario: site = 7: must be a string
+	// scenario: description: missing: every field is required (no defaults)
 }

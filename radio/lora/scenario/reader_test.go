@@ -120,10 +120,11 @@ func TestStreamingCaps(t *testing.T) {
 	require.NoError(t, syscall.Mkfifo(fifo, 0o600))
 	_, err = scenario.Load(fifo) // would block forever if opened
 	require.ErrorIs(t, err, scenario.ErrInvalid)
-	assert.Contains(t, err.Error(), "regular file")
+	assert.Contains(t, err.Error(), "a named pipe: must be a regular file")
 
 	_, err = scenario.Load(dir)
 	require.ErrorIs(t, err, scenario.ErrInvalid)
+	assert.Contains(t, err.Error(), "a directory")
 
 	big := filepath.Join(dir, "big.json")
 	f, err := os.Create(big)

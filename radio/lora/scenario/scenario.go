@@ -288,7 +288,7 @@ func Load(path string) (Scenario, error) {
 		return Scenario{}, fmt.Errorf("scenario: %w", err)
 	}
 	if !fi.Mode().IsRegular() {
-		return Scenario{}, &FieldError{Field: "(file)", Value: note(fi.Mode().Type().String()), Rule: "must be a regular file (not a directory, device or named pipe)"}
+		return Scenario{}, &FieldError{Field: "(file)", Value: note(fileKind(fi.Mode())), Rule: "must be a regular file (not a directory, device or named pipe)"}
 	}
 	if fi.Size() > MaxFileBytes {
 		return Scenario{}, &FieldError{Field: "(file)", Value: note(fmt.Sprintf("%d bytes", fi.Size())), Rule: fmt.Sprintf("is larger than the %d-byte cap (MaxFileBytes)", MaxFileBytes)}
@@ -313,4 +313,21 @@ func Read(r io.Reader) (Scenario, error) {
 		return Scenario{}, &FieldError{Field: "(file)", Value: note("more than MaxFileBytes"), Rule: fmt.Sprintf("is larger than the %d-byte cap (MaxFileBytes)", MaxFileBytes)}
 	}
 	return Parse(data)
+}
+
+// fileKind names the kind of a file that is not a regular one.
+func fileKind(m os.FileMode) string {
+	switch {
+	case m.IsDir():
+		return "a directory"
+	case m&os.ModeNamedPipe != 0:
+		return "a named pipe"
+	case m&os.ModeCharDevice != 0:
+		return "a character device"
+	case m&os.ModeDevice != 0:
+		return "a device"
+	case m&os.ModeSocket != 0:
+		return "a socket"
+	}
+	return "not a regular file"
 }

@@ -65,7 +65,7 @@
 // computes them numerically, at a stated accuracy, and at a cost that grows
 // with the number of settings and retries (a confirmed group whose retry
 // gaps draw more than the floor is the slowest). No time is promised here:
-// BenchmarkPlan in examples/fleetplan measures the demo, and BENCHMARKS.md
+// BenchmarkDemo in examples/fleetplan measures the demo, and BENCHMARKS.md
 // records it.
 //
 // # Errors

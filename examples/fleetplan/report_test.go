@@ -68,6 +68,7 @@ func TestLawLine(t *testing.T) {
 func TestReportLawsSection(t *testing.T) {
 	code, out, errs := runArgs(t, "-quiet")
 	require.Equal(t, 0, code, errs)
+	assert.Contains(t, out, "run with -scenario FILE for your own, -print-demo for its file)", "text printed bare is escaped, not cut short")
 	i := strings.Index(out, "Laws\n----")
 	require.Positive(t, i)
 	laws := out[i:strings.Index(out, "Warnings\n--------")]

@@ -85,4 +85,5 @@ func TestQuoteEscapesAndCuts(t *testing.T) {
 	}
 	q := scenario.Quote(long)
 	assert.Equal(t, scenario.MaxEcho+3, len([]rune(q)), "MaxEcho runes, the mark and two quotes")
+	assert.Equal(t, long, scenario.Escape(long), "Escape keeps the whole text")
 }

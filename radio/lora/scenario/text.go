@@ -20,11 +20,13 @@ func Quote(s string) string {
 	return strconv.Quote(cut(s))
 }
 
-// Escape is Quote without the quotes: s with its non-printing characters,
-// quotes and backslashes escaped, cut after MaxEcho characters. Use it
-// where a name from a file is printed bare (a title, a table cell).
+// Escape returns s whole, with its non-printing characters, quotes and
+// backslashes escaped as Quote does, but without the quotes and not cut
+// short: use it where a name from a file is printed bare and in full (a
+// report's title, a table cell; names are capped at MaxName characters by
+// the reader).
 func Escape(s string) string {
-	q := strconv.Quote(cut(s))
+	q := strconv.Quote(s)
 	return q[1 : len(q)-1]
 }
 

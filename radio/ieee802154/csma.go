@@ -83,8 +83,9 @@ func (c CSMA) stages() int { return c.MaxCSMABackoffs + 1 }
 //	P(N = k) = b^(k−1)·(1 − b)  for k <= m,   P(N = m+1) = b^m
 //
 // Runs that end with k CCAs and succeed have probability b^(k−1)·(1 − b);
-// the failing run has m+1 CCAs.
-func (c CSMA) ccaProbs(b float64) (probs []float64, fail float64) {
+// the failing run has m+1 CCAs. ok is 1 − b^(m+1), the probability that
+// the run succeeds.
+func (c CSMA) ccaProbs(b float64) (probs []float64, fail, ok float64) {
 	n := c.stages()
 	probs = make([]float64, n)
 	pk := 1.0 // b^(k−1)
@@ -96,7 +97,8 @@ func (c CSMA) ccaProbs(b float64) (probs []float64, fail float64) {
 		}
 		pk *= b
 	}
-	return probs, math.Pow(b, float64(n))
+	// ok = 1 − b^(m+1) from expm1, so that it keeps its digits for b near 1.
+	return probs, math.Pow(b, float64(n)), -math.Expm1(float64(n) * math.Log(b))
 }
 
 // CCAs returns the law of the number of CCAs in one CSMA-CA run, which is
@@ -112,7 +114,7 @@ func (c CSMA) CCAs(busy float64) (dist.Discrete, error) {
 	if err := c.check("CSMA.CCAs", busy); err != nil {
 		return dist.Discrete{}, err
 	}
-	probs, _ := c.ccaProbs(busy)
+	probs, _, _ := c.ccaProbs(busy)
 	vals := make([]float64, len(probs))
 	for i := range vals {
 		vals[i] = float64(i + 1)
@@ -127,7 +129,7 @@ func (c CSMA) AccessFailure(busy float64) (float64, error) {
 	if err := c.check("CSMA.AccessFailure", busy); err != nil {
 		return 0, err
 	}
-	_, f := c.ccaProbs(busy)
+	_, f, _ := c.ccaProbs(busy)
 	return f, nil
 }
 
@@ -176,7 +178,7 @@ func (c CSMA) BackoffPeriods(busy float64) (dist.Law, error) {
 	if err := c.check("CSMA.BackoffPeriods", busy); err != nil {
 		return nil, err
 	}
-	probs, _ := c.ccaProbs(busy)
+	probs, _, _ := c.ccaProbs(busy)
 	sums, err := c.backoffSums()
 	if err != nil {
 		return nil, fmt.Errorf("ieee802154.CSMA.BackoffPeriods: %w", err)
@@ -219,7 +221,7 @@ func (c CSMA) RunTime(p PHY, busy float64) (dist.Law, error) {
 	if err := c.check(fn, busy); err != nil {
 		return nil, err
 	}
-	probs, _ := c.ccaProbs(busy)
+	probs, _, _ := c.ccaProbs(busy)
 	sums, err := c.backoffSums()
 	if err != nil {
 		return nil, fmt.Errorf("ieee802154.%s: %w", fn, err)
@@ -258,12 +260,13 @@ type Outcomes struct {
 	Transmissions dist.Discrete
 }
 
-// attemptProbs returns, for one attempt (a CSMA-CA run and, if it
-// succeeds, a transmission), the probabilities of access failure f, of a
-// transmission without acknowledgement lost = (1 − f)·a, and of
-// 1 − lost = f + (1 − f)·(1 − a), computed without cancellation.
-func attemptProbs(f, ackLoss float64) (lost, notLost float64) {
-	return (1 - f) * ackLoss, f + (1-f)*(1-ackLoss)
+// attemptProbs returns, for one attempt (a CSMA-CA run that fails with
+// probability f and succeeds with probability ok = 1 − f, then a
+// transmission), the probability of a transmission without
+// acknowledgement, lost = ok·a, and 1 − lost = f + ok·(1 − a), computed
+// without cancellation.
+func attemptProbs(f, ok, ackLoss float64) (lost, notLost float64) {
+	return ok * ackLoss, f + ok*(1-ackLoss)
 }
 
 // Frame returns the outcomes of sending one frame when each CCA is busy
@@ -287,18 +290,18 @@ func (c CSMA) Frame(busy, ackLoss float64, ack bool) (Outcomes, error) {
 	if !probability(ackLoss) {
 		return Outcomes{}, paramErr(fn, "ackLoss", ackLoss, "must be a probability in [0, 1]")
 	}
-	_, f := c.ccaProbs(busy)
+	_, f, ok := c.ccaProbs(busy)
 	attempts := c.MaxFrameRetries + 1
 	if !ack {
 		attempts, ackLoss = 1, 0
 	}
-	lost, _ := attemptProbs(f, ackLoss)
+	lost, _ := attemptProbs(f, ok, ackLoss)
 	var o Outcomes
 	runs := make([]float64, attempts)
 	tx := make([]float64, attempts+1)
 	reach := 1.0 // L^(j−1)
 	for j := 1; j <= attempts; j++ {
-		pd, pf := reach*(1-f)*(1-ackLoss), reach*f
+		pd, pf := reach*ok*(1-ackLoss), reach*f
 		o.Delivered += pd
 		o.AccessFailure += pf
 		runs[j-1] += pd + pf

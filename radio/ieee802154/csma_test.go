@@ -2,6 +2,7 @@ package ieee802154_test
 
 import (
 	"math"
+	"math/big"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -287,4 +288,28 @@ func TestCSMALawsConformance(t *testing.T) {
 		assert.NoError(t, disttest.Check(o.Runs, disttest.WithSeed(uint64(40+i))), "Runs b=%g", b)
 		assert.NoError(t, disttest.Check(o.Transmissions, disttest.WithSeed(uint64(50+i))), "Transmissions b=%g", b)
 	}
+}
+
+// TestNearlyAlwaysBusy: with b = 1 − 1e-10 a run succeeds with probability
+// 1 − b^5 ≈ 5e-10; the fates keep it to 1e-14 relative (1 − b^5 taken
+// as 1 minus the rounded b^5 erred by 2e-10 relative here, and can by
+// 1e-7). Oracle: b^5 and 1 − b^5 in 256-bit
+// arithmetic (math/big) from the same float64 b.
+func TestNearlyAlwaysBusy(t *testing.T) {
+	b := 1 - 1e-10
+	x := new(big.Float).SetPrec(256).SetFloat64(b)
+	p := new(big.Float).SetPrec(256).SetFloat64(1)
+	for range 5 {
+		p.Mul(p, x)
+	}
+	ok, _ := new(big.Float).SetPrec(256).Sub(big.NewFloat(1), p).Float64()
+	c := ieee802154.DefaultCSMA()
+	o, err := c.Frame(b, 0, false)
+	require.NoError(t, err)
+	assert.InEpsilon(t, ok, o.Delivered, 1e-14)
+	o, err = c.Frame(b, 0.5, true)
+	require.NoError(t, err)
+	// P(delivered) = Σ_j L^(j−1)·ok·(1 − a), L = ok·a: ok·(1 − a)·(1 − L^4)/(1 − L).
+	l := ok * 0.5
+	assert.InEpsilon(t, ok*0.5*(1-math.Pow(l, 4))/(1-l), o.Delivered, 1e-14)
 }

@@ -100,15 +100,15 @@ func (n Node) BusyFromTraffic(t Traffic) (float64, error) {
 // (1 − f)·Σ_{j<R+1} L^j with L = (1 − f)·ackLoss (1 − f without an
 // acknowledgement request).
 func (c CSMA) meanTransmissions(busy, ackLoss float64, ack bool) float64 {
-	_, f := c.ccaProbs(busy)
+	_, f, ok := c.ccaProbs(busy)
 	if !ack {
-		return 1 - f
+		return ok
 	}
-	lost, _ := attemptProbs(f, ackLoss)
+	lost, _ := attemptProbs(f, ok, ackLoss)
 	s, lj := 0.0, 1.0
 	for range c.MaxFrameRetries + 1 {
 		s += lj
 		lj *= lost
 	}
-	return (1 - f) * s
+	return ok * s
 }

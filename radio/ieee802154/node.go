@@ -193,7 +193,7 @@ func (n Node) Timeline() (Timeline, error) {
 	if tl.Outcomes, err = n.CSMA.Frame(n.Busy, n.AckLoss, n.AckRequest); err != nil {
 		return Timeline{}, err
 	}
-	_, tl.AccessFail = n.CSMA.ccaProbs(n.Busy)
+	_, tl.AccessFail, _ = n.CSMA.ccaProbs(n.Busy)
 	run := 0.0
 	for i := range n.CSMA.stages() {
 		run += float64(int(1)<<n.CSMA.BE(i)-1)*tl.UnitBackoff + tl.Wake + tl.CCA
@@ -380,11 +380,10 @@ func (n Node) frameStage(tl Timeline) (energy.Stage, error) {
 		parts = append(parts, n.backoffStage(b, tl, k-1), cca)
 		runs[k-1] = b.then(parts...)
 	}
-	probs, f := n.CSMA.ccaProbs(n.Busy)
+	probs, f, sOK := n.CSMA.ccaProbs(n.Busy)
 	fail := runs[m1-1]
 	var ok energy.Stage // a successful run, conditioned on success
 	if f < 1 {
-		sOK := -math.Expm1(float64(m1) * math.Log(n.Busy)) // 1 − b^(m+1)
 		cond := make([]float64, m1)
 		for k := range m1 - 1 {
 			cond[k] = probs[k] / sOK
@@ -402,7 +401,7 @@ func (n Node) frameStage(tl Timeline) (energy.Stage, error) {
 		if f == 1 {
 			return fail, nil
 		}
-		st := b.oneOf([]float64{1 - f, f}, b.then(ok, send), fail)
+		st := b.oneOf([]float64{sOK, f}, b.then(ok, send), fail)
 		return st, b.err
 	}
 	// With L = (1 − f)·a the probability that an attempt is transmitted
@@ -411,7 +410,7 @@ func (n Node) frameStage(tl Timeline) (energy.Stage, error) {
 	// delivery, in proportion f : (1 − f)(1 − a)); or, with probability
 	// L^(R+1), R + 1 unacknowledged attempts (the retry limit).
 	a := n.AckLoss
-	lost, notLost := attemptProbs(f, a)
+	lost, notLost := attemptProbs(f, sOK, a)
 	r1 := n.CSMA.MaxFrameRetries + 1
 	var lostAttempt, delivered energy.Stage
 	if f < 1 {
@@ -421,7 +420,7 @@ func (n Node) frameStage(tl Timeline) (energy.Stage, error) {
 	if lost == 1 { // every attempt transmitted and unacknowledged
 		return b.times(b.count(r1), lostAttempt), b.err
 	}
-	end := b.oneOf([]float64{f / notLost, (1 - f) * (1 - a) / notLost}, fail, delivered)
+	end := b.oneOf([]float64{f / notLost, sOK * (1 - a) / notLost}, fail, delivered)
 	body := end
 	if lost > 0 {
 		jv := make([]float64, r1)

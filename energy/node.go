@@ -423,6 +423,16 @@ func (n *node) normalPart(capLeft, mean, vv, floorE, h, extra float64) (alive, d
 	// (the normal mass outside is 2·Φ̄(zMax) < 1e-20).
 	const zMax = 9.3
 	g := func(z float64) float64 { return (floorE*math.Exp(sf*z) + h - m) / sd }
+	// g increases with z: where Φ̄(g) underflows to 0 (or 1) over the
+	// whole range, every node of the rule below would give the same, so
+	// the integral is 0 (or 1) as computed, without the work.
+	const flat = 40 // Φ̄(40) underflows float64
+	if g(-zMax) > flat {
+		return 0, 1, 0
+	}
+	if g(zMax) < -flat {
+		return 1, 0, 0
+	}
 	// The integrand turns from 1 to 0 around z* where L·e^{σ_f z*} = m − h.
 	var brk []float64
 	if m > h {

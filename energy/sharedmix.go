@@ -53,21 +53,54 @@ func (m sharedMixture) Survival(t float64) float64 {
 	return math.Min(1, s)
 }
 
-// search returns the smallest t (to 1e-12 relative) with pred(t) true,
-// bracketed by the components' answers lo and hi.
-func (m sharedMixture) search(lo, hi float64, pred func(float64) bool) float64 {
-	if pred(lo) {
+// probit returns the probit of the mixture's CDF at t, from the smaller
+// tail (each side summed directly).
+func (m sharedMixture) probit(t float64) float64 {
+	std := dist.MustNormal(0, 1)
+	c := m.CDF(t)
+	if c <= 0.5 {
+		return std.Quantile(c)
+	}
+	return std.UpperQuantile(m.Survival(t))
+}
+
+// solve returns the smallest t (to 1e-12 relative) in [lo, hi] whose
+// probit reaches target, the bracket being the components' answers: regula
+// falsi with the Illinois modification (Dowell and Jarratt, BIT 11 (1971)
+// 168–174) on the probit, which is nearly linear in t, falling back to
+// bisection where the probit is infinite (at a calendar limit). About ten
+// evaluations instead of the forty of a bisection.
+func (m sharedMixture) solve(lo, hi, target float64) float64 {
+	zlo := m.probit(lo)
+	if zlo >= target {
 		return lo
 	}
+	zhi := m.probit(hi)
+	side := 0
 	for range 200 {
 		if hi-lo <= 1e-12*math.Abs(hi) {
 			break
 		}
-		mid := lo + (hi-lo)/2
-		if pred(mid) {
-			hi = mid
+		x := lo + (hi-lo)/2
+		if !math.IsInf(zlo, 0) && !math.IsInf(zhi, 0) && zhi > zlo {
+			fl, fh := zlo-target, zhi-target
+			switch side {
+			case -1:
+				fh /= 2
+			case 1:
+				fl /= 2
+			}
+			if s := lo - fl*(hi-lo)/(fh-fl); s > lo && s < hi {
+				x = s
+			}
+		}
+		zx := m.probit(x)
+		if zx >= target {
+			hi, zhi = x, zx
+			side = 1
 		} else {
-			lo = mid
+			lo, zlo = x, zx
+			side = -1
 		}
 	}
 	return hi
@@ -93,10 +126,8 @@ func (m sharedMixture) Quantile(p float64) float64 {
 		return hi
 	case p == 0 || lo == hi || math.IsInf(hi, 0):
 		return lo
-	case p <= 0.5:
-		return m.search(lo, hi, func(t float64) bool { return m.CDF(t) >= p })
 	}
-	return m.search(lo, hi, func(t float64) bool { return m.Survival(t) <= 1-p })
+	return m.solve(lo, hi, dist.MustNormal(0, 1).Quantile(p))
 }
 
 func (m sharedMixture) UpperQuantile(q float64) float64 {
@@ -110,7 +141,7 @@ func (m sharedMixture) UpperQuantile(q float64) float64 {
 	case q == 1 || lo == hi || math.IsInf(hi, 0):
 		return lo
 	}
-	return m.search(lo, hi, func(t float64) bool { return m.Survival(t) <= q })
+	return m.solve(lo, hi, dist.MustNormal(0, 1).UpperQuantile(q))
 }
 
 func (m sharedMixture) moments() {

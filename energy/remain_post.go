@@ -22,6 +22,7 @@ type postData struct {
 	a0, va0, r, vr float64
 	ess            float64
 	stages         int
+	logMarginal    float64 // log of the evidence's marginal likelihood (importance estimate)
 }
 
 // logNormSurv returns log Φ̄(z), with the asymptotic series where Φ̄
@@ -127,7 +128,11 @@ func (m DeviceModel) Posterior(t Tally, now float64) (DevicePosterior, error) {
 		return DevicePosterior{}, paramErr(fn, "tally", fmt.Sprintf("%.6g J active energy by %.6g days", t.active, Days(pd.tau0)),
 			"no node of the model's prior is still alive with this much spent: the counts or the model's cell are wrong")
 	}
-	s1 := 0.0
+	s1, sAll := 0.0, 0.0
+	for _, l := range logw {
+		sAll += math.Exp(l - best)
+	}
+	pd.logMarginal = best + math.Log(sAll/float64(M))
 	for k, l := range logw {
 		w := math.Exp(l - best)
 		if w > 1e-300 {

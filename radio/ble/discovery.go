@@ -100,7 +100,7 @@ type Discovery struct {
 	m       model
 }
 
-const discBlock = 256
+const discBlock = 64
 
 // model is the scanning model in plain numbers, for Rand and the grid.
 type model struct {
@@ -148,15 +148,21 @@ func NewDiscovery(adv Advertiser, scan Scanner, success, horizon float64) (Disco
 	}
 	fine := m.grid(h)
 	coarse := m.grid(2 * h)
-	diff := 0.0
-	lo, hi := fine.lo, horizon
-	for i := 0; i <= 4096; i++ {
-		x := lo + (hi-lo)*float64(i)/4096
-		diff = math.Max(diff, math.Abs(fine.CDF(x)-coarse.CDF(x)))
-	}
-	for i := 1; i < 1000; i++ {
-		x := fine.Quantile(float64(i) / 1000)
-		diff = math.Max(diff, math.Abs(fine.CDF(x)-coarse.CDF(x)))
+	// Both CDFs are piecewise linear with kinks at i·h + off_j (the
+	// coarse ones among them), so their largest difference below the
+	// horizon is reached at one of those points: compare at all of them.
+	diff := math.Abs(fine.Undiscovered() - coarse.Undiscovered())
+	for j := range m.ch {
+		xs := make([]float64, 0, len(fine.mass[j])+1) // ascending
+		for i := 0; i <= len(fine.mass[j]); i++ {
+			if x := float64(i)*h + fine.off[j]; x < horizon {
+				xs = append(xs, x)
+			}
+		}
+		fc, cc := fine.cdfAt(xs), coarse.cdfAt(xs)
+		for i := range xs {
+			diff = math.Max(diff, math.Abs(fc[i]-cc[i]))
+		}
 	}
 	fine.acc.CDFAbs += 2 * diff
 	fine.acc.TailFloor = math.Min(100*fine.acc.CDFAbs, 1)
@@ -432,6 +438,31 @@ func (d *Discovery) finish() {
 		}
 	}
 	d.lo = math.Min(d.lo, d.horizon)
+}
+
+// cdfAt returns CDF(x) for the ascending points xs below the horizon,
+// sweeping each component once.
+func (d Discovery) cdfAt(xs []float64) []float64 {
+	out := make([]float64, len(xs))
+	for j, ms := range d.mass {
+		i, run := 0, 0.0 // cell and Σ mass of the cells below it
+		for k, x := range xs {
+			y := (x - d.off[j]) / d.h
+			if y <= 0 {
+				continue
+			}
+			for i < len(ms) && float64(i+1) <= y {
+				run += ms[i]
+				i++
+			}
+			if i < len(ms) {
+				out[k] += run + ms[i]*(y-float64(i))
+			} else {
+				out[k] += run
+			}
+		}
+	}
+	return out
 }
 
 // below returns the mass of component j with T <= x (T uniform within each

@@ -51,7 +51,7 @@
 // independent per event, the channel order 37 → 38 → 39 within each event,
 // a PDU received only if wholly inside a window on its channel and, with a
 // given probability, not collided. It is computed on a time grid with an
-// error estimate (Accuracy; 1e-5 to 6e-5 in CDF in the tests) checked
+// error estimate (Accuracy; 4e-5 to 7e-5 in CDF in the tests) checked
 // against an exact first-event integral and an event-level sampler;
 // Discovery.Rand samples the model itself. PDUSuccess gives the
 // probability that a PDU escapes overlap with n alike neighbours,

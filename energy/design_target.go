@@ -136,3 +136,23 @@ func (tl targetLaws) nodeLaw(name string) dist.Law {
 	}
 	return newSharedMixture(name, tl.w, laws)
 }
+
+// MixedNodeLifetime returns the lifetime law (s) of a node of spec at a
+// site of climate clim (nil: the reference temperature) whose shared
+// factors spread as shared: the mixture over the shared factors'
+// Gauss–Hermite nodes of NewNodeLifetime's laws, evaluated directly (no
+// tables, unlike Site): what SearchDesign evaluates at each candidate.
+// Quantiles are found by bisection between the conditional laws'
+// quantiles, each step one CDF per shared node. Errors as NewNodeLifetime's
+// and for a bad SharedSpread (wrapping ErrParam).
+func MixedNodeLifetime(spec NodeSpec, clim *Climate, shared SharedSpread) (dist.Law, error) {
+	const fn = "MixedNodeLifetime"
+	if err := shared.check(fn); err != nil {
+		return nil, err
+	}
+	tl, err := newTargetLaws(fn, spec, clim, shared)
+	if err != nil {
+		return nil, err
+	}
+	return tl.nodeLaw(fn), nil
+}

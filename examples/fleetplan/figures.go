@@ -32,6 +32,12 @@ func writeFigures(p *Plan, dir string) ([]string, error) {
 		{"lifetime-survival", survivalFigure},
 		{"failed-nodes", failedFigure},
 	}
+	if p.Design != nil {
+		figs = append(figs, struct {
+			name string
+			make func(*Plan) (*plot.Plot, error)
+		}{"what-it-takes", designFigure}) // design_figures.go
+	}
 	var written []string
 	for _, f := range figs {
 		pl, err := f.make(p)

@@ -370,6 +370,7 @@ func writeReport(out io.Writer, p *Plan) error {
 	more("(lifetime laws computed to a CDF error bound of %.1g)", fl.LifetimeAccuracy)
 	fmt.Fprintln(w)
 
+	writeDesign(w, p) // design_report.go
 	fmt.Fprintln(w, "Laws")
 	fmt.Fprintln(w, "----")
 	fmt.Fprintln(w, "  each law in one line: mean, sd, 90 % interval, support; how it was computed and its stated")

@@ -35,7 +35,7 @@ func Parse(data []byte) (Scenario, error) {
 			v1 = true
 		}
 	}
-	keys := []string{"format", "site", "description", "region", "radio_environment", "climate", "shared", "nodes", "cells", "gateways", "groups", "plan"}
+	keys := []string{"format", "site", "description", "region", "radio_environment", "climate", "shared", "nodes", "cells", "gateways", "groups", "plan", "design"}
 	if v1 {
 		keys = []string{"format", "site", "description", "region", "radio_environment", "node", "cell", "gateways", "groups", "plan"}
 	}
@@ -94,6 +94,9 @@ func Parse(data []byte) (Scenario, error) {
 	s.Groups = readGroups(c, top.array("groups", 1, maxGroups), s, regionOK, v1)
 	plan, _ := top.get("plan")
 	s.Plan = readPlan(c, plan)
+	if d, ok := top.m["design"]; ok && !v1 {
+		s.Design = readDesign(c, d, s) // the one optional section (design.go)
+	}
 	checkCurrents(c, s)
 	checkOverlap(c, s)
 	if len(c.errs) == 0 {

@@ -93,6 +93,7 @@ type Scenario struct {
 	Gateways   []Gateway
 	Groups     []Group
 	Plan       Plan
+	Design     *Design // the optional design section; nil when absent
 }
 
 // NodeOf returns the node hardware of group g.

@@ -1,0 +1,342 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"slices"
+
+	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/radio/lora/scenario"
+)
+
+// DesignPlan is the "what it takes" section: for each group the choice of
+// the scenario's design section that meets its target with the shortest
+// reading interval, and the replacement policies compared. Nil when the
+// scenario has no design section.
+type DesignPlan struct {
+	Target      string          `json:"target"` // in words
+	TargetKind  string          `json:"target_kind"`
+	TargetYears float64         `json:"target_years"`
+	TargetLevel float64         `json:"target_level"`
+	Groups      []GroupDesign   `json:"groups"`
+	Policies    PolicyPlan      `json:"replacement_policies"`
+	QuantileQ   [2]float64      `json:"quantile_levels"` // the levels of QuantileRow's columns
+	Notes       []string        `json:"notes"`
+	laws        []designFigData // for the figure; not in the JSON
+}
+
+// GroupDesign is one group's answer.
+type GroupDesign struct {
+	Name              string  `json:"name"`
+	Feasible          bool    `json:"feasible"`
+	Cell              string  `json:"cell"`
+	Confirmed         bool    `json:"confirmed"`
+	MaxTransmissions  int     `json:"max_transmissions"`
+	ReadingsPerUplink int     `json:"readings_per_uplink"`
+	Window            string  `json:"receive_window"`
+	ReadingIntervalS  float64 `json:"reading_interval_s"`
+	// IntervalLowS: the shortest feasible interval lies in
+	// (interval_low_s, reading_interval_s] whatever the stated error.
+	IntervalLowS    float64 `json:"interval_low_s"`
+	UplinkIntervalS float64 `json:"uplink_interval_s"`
+	// Achieved is the probability (the flat-by targets) or the quantile in
+	// years (lifetime_quantile) at the interval; Margin is how far inside
+	// the target it is (negative when infeasible), in the same unit.
+	Achieved    float64 `json:"achieved"`
+	Margin      float64 `json:"margin"`
+	Probability float64 `json:"probability_flat_by_date"`
+	ProbError   float64 `json:"probability_error"`
+	Binds       string  `json:"binds"`
+	// CurrentIntervalS is the group's reporting interval in the scenario.
+	CurrentIntervalS float64         `json:"scenario_interval_s"`
+	Choices          []ChoiceSummary `json:"choices"`
+	Quantiles        []QuantileRow   `json:"lifetime_quantiles_by_interval"`
+}
+
+// ChoiceSummary is one discrete choice's answer.
+type ChoiceSummary struct {
+	Choice           string  `json:"choice"`
+	Feasible         bool    `json:"feasible"`
+	ReadingIntervalS float64 `json:"reading_interval_s"`
+	Probability      float64 `json:"probability_flat_by_date"`
+	Binds            string  `json:"binds"`
+}
+
+// QuantileRow is a node's lifetime quantiles (years) at one reading
+// interval of the group's best choice (the levels in DesignPlan.QuantileQ).
+type QuantileRow struct {
+	IntervalS float64    `json:"reading_interval_s"`
+	Years     [2]float64 `json:"years"`
+	Meets     bool       `json:"meets_target"`
+}
+
+// PolicyPlan is the replacement policies compared over the horizon.
+type PolicyPlan struct {
+	HorizonYears float64     `json:"horizon_years"`
+	Risk         float64     `json:"acceptable_risk"`
+	CostVisit    float64     `json:"cost_per_visit"`
+	CostCell     float64     `json:"cost_per_cell"`
+	Rows         []PolicyRow `json:"policies"`
+	Cheapest     int         `json:"cheapest"` // index into Rows
+	Feasible     bool        `json:"cheapest_meets_risk"`
+}
+
+// PolicyRow is one policy's outcome; the bands are the mean and the
+// central 90 % interval.
+type PolicyRow struct {
+	Policy          string      `json:"policy"`
+	PeriodsYears    []float64   `json:"periods_years"` // per group; 0: not scheduled
+	OnFailure       bool        `json:"replace_on_failure"`
+	VisitsPerYear   energy.Band `json:"visits_per_year"`
+	CellsPerYear    energy.Band `json:"cells_per_year"`
+	FailuresPerYear energy.Band `json:"failures_per_year"`
+	AnyFlat         float64     `json:"probability_any_flat"`
+	AnyFlatError    float64     `json:"probability_any_flat_error"`
+	Cost            energy.Band `json:"cost"`
+}
+
+type designFigData struct {
+	rows []QuantileRow
+}
+
+var targetKindNames = map[energy.TargetKind]string{
+	energy.NodeFlat: "node_flat_by", energy.NodeQuantile: "lifetime_quantile", energy.GroupFlat: "any_in_group_flat_by",
+}
+
+// designTolerance is the relative width to which the search brackets each
+// interval.
+const designTolerance = 0.01
+
+// designQuantileRows is how many intervals the quantile table shows.
+const designQuantileRows = 7
+
+// buildDesign computes the "what it takes" section of a scenario with a
+// design section (nil otherwise): SearchDesign per group and the policy
+// comparison on the planned site.
+func buildDesign(s scenario.Scenario, site energy.Site, say progress) (*DesignPlan, error) {
+	d := s.Design
+	if d == nil {
+		return nil, nil
+	}
+	dp := &DesignPlan{TargetKind: targetKindNames[d.Target.Kind], TargetYears: d.Target.Date / energy.Year, TargetLevel: d.Target.Level}
+	switch d.Target.Kind {
+	case energy.NodeFlat:
+		dp.Target = fmt.Sprintf("at most %s of a group's nodes flat before %s", pct(d.Target.Level), years(dp.TargetYears))
+		dp.QuantileQ = [2]float64{d.Target.Level, 0.5}
+	case energy.NodeQuantile:
+		dp.Target = fmt.Sprintf("the %s point of a node's lifetime at least %s", pct(d.Target.Level), years(dp.TargetYears))
+		dp.QuantileQ = [2]float64{d.Target.Level, 0.5}
+	case energy.GroupFlat:
+		dp.Target = fmt.Sprintf("no node of a group flat before %s, with probability at least %s", years(dp.TargetYears), pct(1-d.Target.Level))
+		dp.QuantileQ = [2]float64{0.01, 0.5}
+	}
+	space := energy.DesignSpace{MinInterval: d.MinInterval, MaxInterval: d.MaxInterval, Links: d.Links, Batches: d.Batches, Tolerance: designTolerance}
+	for _, c := range d.Cells {
+		space.Cells = append(space.Cells, s.Cells[c].Spec.Name)
+	}
+	for _, w := range d.Windows {
+		space.Windows = append(space.Windows, w.Name)
+	}
+	for gi, g := range s.Groups {
+		say("  what it takes: group %q", g.Name)
+		build := groupBuilder(s, gi)
+		res, err := energy.SearchDesign(energy.DesignProblem{Space: space, Target: d.Target, Count: int64(g.Nodes), Climate: s.Climate, Shared: s.Shared, Build: build})
+		if err != nil {
+			return nil, fmt.Errorf("group %q: %w", g.Name, err)
+		}
+		gd, rows, err := groupDesign(s, gi, space, res, build, dp.QuantileQ)
+		if err != nil {
+			return nil, fmt.Errorf("group %q: %w", g.Name, err)
+		}
+		dp.Groups = append(dp.Groups, gd)
+		dp.laws = append(dp.laws, designFigData{rows: rows})
+	}
+	say("  replacement policies over %s", years(d.Horizon/energy.Year))
+	pp, err := comparePolicies(s, site)
+	if err != nil {
+		return nil, err
+	}
+	dp.Policies = pp
+	dp.Notes = []string{
+		"A choice meets the target only when the computed probability plus its stated error does; the interval is bracketed to 1 %.",
+		"Readings are batched k to an uplink: the uplink interval is k times the reading interval and the payload k times the group's.",
+		"The duty-cycle limit is checked at every data rate the group's nodes use, with every transmission of a report counted.",
+		"The policies' probability of a flat node is over the whole horizon; a failure replaced at once still leaves its node flat until the visit.",
+		"Replacing each node only when it fails is not compared here: over a horizon several times the shortest lives its exact renewal counts take minutes (energy.Site.Replacement with energy.ReplaceOnFailure computes them).",
+	}
+	return dp, nil
+}
+
+// groupBuilder builds group gi's nodes at a choice: the scenario with the
+// group's interval (jitter scaled with it), payload, link, cell and receive
+// window changed, the whole model built again (the group's own traffic
+// moves its collisions), and the duty-cycle limit of the uplinks.
+func groupBuilder(s scenario.Scenario, gi int) energy.Builder {
+	d := s.Design
+	return func(c energy.DesignChoice) (energy.Candidate, error) {
+		s2 := s
+		s2.Groups = slices.Clone(s.Groups)
+		s2.Nodes = slices.Clone(s.Nodes)
+		g := s2.Groups[gi]
+		period := c.UplinkPeriod()
+		g.Jitter *= period / g.Interval
+		g.Interval = period
+		g.Payload *= c.Batch
+		g.Confirmed, g.MaxTransmissions = c.Link.Confirmed, c.Link.Transmissions
+		g.Cell = d.Cells[c.Cell]
+		w := d.Windows[c.Window]
+		n := s2.Nodes[g.Node]
+		n.WindowSymbols, n.WindowMargin = w.Symbols, w.Margin
+		n.Name = fmt.Sprintf("%s (%s)", n.Name, w.Name)
+		s2.Nodes = append(s2.Nodes, n)
+		g.Node = len(s2.Nodes) - 1
+		s2.Groups[gi] = g
+		m, err := scenario.Build(s2, nil)
+		if err != nil {
+			return energy.Candidate{}, err
+		}
+		gm := m.Groups[gi]
+		cycles := make([]energy.Cycle, len(gm.AllWeights()))
+		for i := range cycles {
+			if cycles[i], err = gm.AllSettingCycle(i); err != nil {
+				return energy.Candidate{}, err
+			}
+		}
+		spec, err := gm.NodeSpec(s2, cycles)
+		if err != nil {
+			return energy.Candidate{}, err
+		}
+		duty, err := dutyPlan(s2, gm)
+		if err != nil {
+			return energy.Candidate{}, err
+		}
+		minI := 0.0
+		for _, r := range duty.Rows {
+			if !r.Used {
+				continue
+			}
+			if duty.SubBand == "" && !r.Feasible {
+				minI = math.Inf(1) // a dwell time broken at any interval
+			}
+			minI = math.Max(minI, r.MinIntervalS)
+		}
+		return energy.Candidate{Node: spec, MinInterval: minI / float64(c.Batch)}, nil
+	}
+}
+
+func choiceText(space energy.DesignSpace, c energy.DesignChoice) string {
+	return fmt.Sprintf("%s; %s; %d per uplink; window %s", space.Cells[c.Cell], c.Link, c.Batch, space.Windows[c.Window])
+}
+
+// groupDesign summarises a group's search and tabulates the best choice's
+// lifetime quantiles against the reading interval.
+func groupDesign(s scenario.Scenario, gi int, space energy.DesignSpace, res energy.Design, build energy.Builder, qs [2]float64) (GroupDesign, []QuantileRow, error) {
+	b := res.Results[res.Best]
+	c := b.Choice
+	gd := GroupDesign{Name: s.Groups[gi].Name, Feasible: b.Feasible, Cell: space.Cells[c.Cell], Confirmed: c.Link.Confirmed, MaxTransmissions: c.Link.Transmissions,
+		ReadingsPerUplink: c.Batch, Window: space.Windows[c.Window], ReadingIntervalS: c.Interval, IntervalLowS: b.IntervalLow, UplinkIntervalS: c.UplinkPeriod(),
+		Achieved: b.Figure, Margin: b.Margin, Probability: b.Probability, ProbError: b.ProbabilityError, Binds: string(b.Binds), CurrentIntervalS: s.Groups[gi].Interval}
+	if res.Target.Kind == energy.NodeQuantile {
+		gd.Achieved /= energy.Year
+		gd.Margin /= energy.Year
+	}
+	for _, r := range res.Results {
+		gd.Choices = append(gd.Choices, ChoiceSummary{Choice: choiceText(space, r.Choice), Feasible: r.Feasible, ReadingIntervalS: r.Choice.Interval,
+			Probability: r.Probability, Binds: string(r.Binds)})
+	}
+	// The quantile table: geometric steps over the searched range, and the
+	// interval found.
+	var ivs []float64
+	for i := range designQuantileRows {
+		ivs = append(ivs, space.MinInterval*math.Pow(space.MaxInterval/space.MinInterval, float64(i)/(designQuantileRows-1)))
+	}
+	if !slices.ContainsFunc(ivs, func(x float64) bool { return x == c.Interval }) {
+		ivs = append(ivs, c.Interval)
+	}
+	slices.Sort(ivs)
+	var rows []QuantileRow
+	for _, iv := range ivs {
+		ch := c
+		ch.Interval = iv
+		cand, err := build(ch)
+		if err != nil {
+			return gd, nil, err
+		}
+		l, err := energy.MixedNodeLifetime(cand.Node, s.Climate, s.Shared)
+		if err != nil {
+			return gd, nil, err
+		}
+		row := QuantileRow{IntervalS: iv, Meets: meets(l, res.Target, int64(s.Groups[gi].Nodes)) && iv >= cand.MinInterval}
+		for k, q := range qs {
+			row.Years[k] = l.Quantile(q) / energy.Year
+		}
+		rows = append(rows, row)
+	}
+	gd.Quantiles = rows
+	return gd, rows, nil
+}
+
+// meets tells whether the node law l meets the target (without the stated
+// error: the table shows the computed figure).
+func meets(l dist.Law, t energy.Target, n int64) bool {
+	f := l.CDF(t.Date)
+	if t.Kind == energy.GroupFlat {
+		// 1 − (1 − F)^n over the mixed law: a lower bound of the group's
+		// figure given the shared factors (Jensen); the search uses the
+		// exact mixture.
+		f = -math.Expm1(float64(n) * math.Log1p(-f))
+	}
+	return f <= t.Level
+}
+
+// comparePolicies compares, over the design horizon at the plan's
+// acceptable risk: the scenario's plan (all replaced at
+// replacement_after_years), all replaced at the fewest equal dates that
+// meet the risk, each group at its own such dates, the same with failures
+// replaced in between. Each node replaced when it fails alone
+// (energy.ReplaceOnFailure) is left out: over a horizon several times the
+// shortest lives its renewal counts take k-fold lattice sums of every
+// conditional node law, minutes for the demo (see DesignPlan.Notes).
+func comparePolicies(s scenario.Scenario, site energy.Site) (PolicyPlan, error) {
+	d := s.Design
+	risk := s.Plan.AcceptableRisk
+	pp := PolicyPlan{HorizonYears: d.Horizon / energy.Year, Risk: risk, CostVisit: d.Costs.Visit, CostCell: d.Costs.Cell}
+	all, err := site.Schedule(risk, d.Horizon, false)
+	if err != nil {
+		return pp, err
+	}
+	per, err := site.Schedule(risk, d.Horizon, true)
+	if err != nil {
+		return pp, err
+	}
+	plan := energy.ReplaceAll(s.Plan.ReplaceAfter)
+	plan.Name = fmt.Sprintf("the scenario's plan: replace all every %s", years(s.Plan.ReplaceAfter/energy.Year))
+	common := energy.ReplaceAll(all[0])
+	common.Name = fmt.Sprintf("replace all every %s", years(all[0]/energy.Year))
+	ps := []energy.Policy{plan, common, energy.ReplaceGroups(per), energy.ReplaceGroupsAndFailures(per)}
+	pc, err := site.ComparePolicies(ps, d.Horizon, risk, d.Costs)
+	if err != nil {
+		return pp, err
+	}
+	for _, o := range pc.Outcomes {
+		row := PolicyRow{Policy: o.Policy.Name, OnFailure: o.Policy.OnFailure, VisitsPerYear: o.VisitsPerYear, CellsPerYear: o.CellsPerYear,
+			FailuresPerYear: o.FailuresPerYear, AnyFlat: o.AnyFlat, AnyFlatError: o.AnyFlatError, Cost: o.Cost}
+		for gi := range s.Groups {
+			var tau float64
+			switch len(o.Policy.Every) {
+			case 1:
+				tau = o.Policy.Every[0]
+			case len(s.Groups):
+				tau = o.Policy.Every[gi]
+			}
+			if tau >= d.Horizon {
+				tau = 0
+			}
+			row.PeriodsYears = append(row.PeriodsYears, tau/energy.Year)
+		}
+		pp.Rows = append(pp.Rows, row)
+	}
+	pp.Cheapest, pp.Feasible = pc.Cheapest, pc.Feasible
+	return pp, nil
+}

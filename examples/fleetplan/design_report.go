@@ -1,0 +1,126 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"strings"
+)
+
+// interval prints a reading interval in s, min or h.
+func interval(s float64) string {
+	switch {
+	case s >= 2*86400:
+		return sig3(s/86400) + " days"
+	case s >= 7200:
+		return sig3(s/3600) + " h"
+	case s >= 120:
+		return sig3(s/60) + " min"
+	}
+	return sig3(s) + " s"
+}
+
+// writeDesign prints the "what it takes" section (nothing without one).
+func writeDesign(w io.Writer, p *Plan) {
+	d := p.Design
+	if d == nil {
+		return
+	}
+	head := "What it takes"
+	fmt.Fprintln(w, head)
+	fmt.Fprintln(w, strings.Repeat("-", len(head)))
+	row := func(label, format string, args ...any) {
+		fmt.Fprintf(w, "  %-20s %s\n", label, fmt.Sprintf(format, args...))
+	}
+	more := func(format string, args ...any) {
+		fmt.Fprintf(w, "  %-20s %s\n", "", fmt.Sprintf(format, args...))
+	}
+	row("target", "%s", d.Target)
+	for _, g := range d.Groups {
+		kind := "unconfirmed"
+		if g.Confirmed {
+			kind = fmt.Sprintf("confirmed, up to %d transmissions", g.MaxTransmissions)
+		}
+		row(g.Name, "%s; %s; %d reading(s) per uplink; receive window %q", g.Cell, kind, g.ReadingsPerUplink, g.Window)
+		figure := fmt.Sprintf("P(flat before %s) = %s (± %s), margin %s", years(d.TargetYears), pct(g.Probability), pct(g.ProbError), pct(g.Margin))
+		if d.TargetKind == "lifetime_quantile" {
+			figure = fmt.Sprintf("%s point of the lifetime %s, margin %s", pct(d.TargetLevel), years(g.Achieved), years(g.Margin))
+		}
+		if !g.Feasible {
+			more("CANNOT MEET THE TARGET: best achievable at a reading every %s: %s; what binds: %s", interval(g.ReadingIntervalS), figure, g.Binds)
+			continue
+		}
+		more("a reading every %s (uplink every %s; the scenario's interval is %s): %s", interval(g.ReadingIntervalS), interval(g.UplinkIntervalS), interval(g.CurrentIntervalS), figure)
+		if g.Binds == "energy" {
+			more("what sets it: the energy; the shortest feasible interval lies in (%s, %s]", interval(g.IntervalLowS), interval(g.ReadingIntervalS))
+		} else {
+			more("what sets it: the %s (the energy would allow a shorter interval)", g.Binds)
+		}
+	}
+	fmt.Fprintln(w)
+	fmt.Fprintf(w, "  lifetime of a node at the best choice against the reading interval (years; %s and %s points)\n", pct(d.QuantileQ[0]), pct(d.QuantileQ[1]))
+	fmt.Fprintf(w, "  %-20s", "reading interval")
+	for _, g := range d.Groups {
+		fmt.Fprintf(w, " %22s", trimTo(g.Name, 22))
+	}
+	fmt.Fprintln(w)
+	if len(d.Groups) > 0 {
+		for i := range d.Groups[0].Quantiles {
+			fmt.Fprintf(w, "  %-20s", "")
+			for _, g := range d.Groups {
+				if i >= len(g.Quantiles) {
+					fmt.Fprintf(w, " %22s", "")
+					continue
+				}
+				q := g.Quantiles[i]
+				mark := " "
+				if q.Meets {
+					mark = "*"
+				}
+				fmt.Fprintf(w, " %8s %5.2f %5.2f%s", interval(q.IntervalS), q.Years[0], q.Years[1], mark)
+			}
+			fmt.Fprintln(w)
+		}
+	}
+	more("(* meets the target; each group's own interval found is among its rows)")
+	fmt.Fprintln(w)
+
+	pp := d.Policies
+	fmt.Fprintf(w, "  replacement policies for the site as planned, over %s at an accepted risk of %s of any flat node; %.2f per visit, %.2f per cell\n",
+		years(pp.HorizonYears), pct(pp.Risk), pp.CostVisit, pp.CostCell)
+	for i, r := range pp.Rows {
+		mark := " "
+		if i == pp.Cheapest {
+			mark = ">"
+		}
+		fmt.Fprintf(w, "  %s %s\n", mark, r.Policy)
+		var per []string
+		for gi, t := range r.PeriodsYears {
+			if t == 0 {
+				per = append(per, fmt.Sprintf("%s: none", d.Groups[gi].Name))
+			} else {
+				per = append(per, fmt.Sprintf("%s: %s", d.Groups[gi].Name, years(t)))
+			}
+		}
+		more("  every  %s", strings.Join(per, "; "))
+		more("  visits per year %s (90 %%: %s–%s); cells per year %s (90 %%: %s–%s)", sig3(r.VisitsPerYear.Mean), sig3(r.VisitsPerYear.Low), sig3(r.VisitsPerYear.High),
+			sig3(r.CellsPerYear.Mean), sig3(r.CellsPerYear.Low), sig3(r.CellsPerYear.High))
+		more("  P(any node flat within the horizon) %s (± %s); cost %.0f (90 %%: %.0f–%.0f)", pct(r.AnyFlat), pct(r.AnyFlatError), r.Cost.Mean, r.Cost.Low, r.Cost.High)
+	}
+	if pp.Feasible {
+		more("> the cheapest policy that meets the accepted risk")
+	} else {
+		more("> NO POLICY MEETS THE ACCEPTED RISK: the least risky is marked")
+	}
+	for _, n := range d.Notes {
+		wrap(w, "  - ", n)
+	}
+	fmt.Fprintln(w)
+}
+
+func trimTo(s string, n int) string {
+	r := []rune(s)
+	if len(r) <= n {
+		return s
+	}
+	return string(r[:n-1]) + "…"
+}

@@ -1,0 +1,78 @@
+package main
+
+import (
+	"bytes"
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/radio/lora/scenario"
+)
+
+// TestWhatItTakes: the demo's "what it takes" section holds together: each
+// group's answer meets the 1 %-by-8-years target within its stated error,
+// the quantile table's row at the interval found puts the 1 % point at 8
+// years (the same statement read as a quantile, within the 1 % bracket
+// the search leaves), the interval is the shortest feasible one of the
+// choices listed, and the cheapest policy meets the risk at the least
+// mean cost among those that do. The report prints the section, the
+// JSON holds it.
+func TestWhatItTakes(t *testing.T) {
+	if testing.Short() {
+		t.Skip("the demo plan and its design search: seconds")
+	}
+	s := scenario.Demo()
+	p, err := buildPlan(s, "demo", func(string, ...any) {})
+	require.NoError(t, err)
+	d := p.Design
+	require.NotNil(t, d)
+	require.Len(t, d.Groups, len(s.Groups))
+	for _, g := range d.Groups {
+		require.True(t, g.Feasible, g.Name)
+		assert.LessOrEqual(t, g.Probability+g.ProbError, d.TargetLevel, g.Name)
+		assert.InDelta(t, d.TargetLevel-g.Probability, g.Margin, 1e-15)
+		assert.LessOrEqual(t, g.IntervalLowS, g.ReadingIntervalS)
+		assert.InDelta(t, float64(g.ReadingsPerUplink)*g.ReadingIntervalS, g.UplinkIntervalS, 1e-9)
+		found := false
+		for _, q := range g.Quantiles {
+			if q.IntervalS != g.ReadingIntervalS {
+				continue
+			}
+			found = true
+			assert.True(t, q.Meets, g.Name)
+			if g.Binds == string(energy.BindEnergy) {
+				// 1 % bracket on the interval: the life moves at most in
+				// proportion to it.
+				assert.InDelta(t, d.TargetYears, q.Years[0], 0.02*d.TargetYears, g.Name)
+				assert.GreaterOrEqual(t, q.Years[0], d.TargetYears*(1-1e-6), g.Name)
+			}
+		}
+		assert.True(t, found, "%s: the interval found is a row of the table", g.Name)
+		for _, c := range g.Choices {
+			if c.Feasible {
+				assert.GreaterOrEqual(t, c.ReadingIntervalS, g.ReadingIntervalS*(1-designTolerance), "%s: %s", g.Name, c.Choice)
+			}
+		}
+	}
+	pp := d.Policies
+	require.NotEmpty(t, pp.Rows)
+	require.True(t, pp.Feasible)
+	best := pp.Rows[pp.Cheapest]
+	assert.LessOrEqual(t, best.AnyFlat+best.AnyFlatError, pp.Risk)
+	for _, r := range pp.Rows {
+		if r.AnyFlat+r.AnyFlatError <= pp.Risk {
+			assert.LessOrEqual(t, best.Cost.Mean, r.Cost.Mean, r.Policy)
+		}
+		// (a mean may lie outside the 90 % band: rare failures lift it)
+		assert.LessOrEqual(t, r.VisitsPerYear.Low, r.VisitsPerYear.High)
+		assert.LessOrEqual(t, r.CellsPerYear.Low, r.CellsPerYear.High)
+		assert.False(t, math.IsNaN(r.Cost.Mean))
+	}
+	var buf bytes.Buffer
+	writeReport(&buf, p)
+	assert.Contains(t, buf.String(), "What it takes\n-------------")
+	assert.Contains(t, buf.String(), "the cheapest policy that meets the accepted risk")
+}

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"io"
 	"strings"
+
+	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
 // interval prints a reading interval in s, min or h.
@@ -40,7 +42,7 @@ func writeDesign(w io.Writer, p *Plan) {
 		if g.Confirmed {
 			kind = fmt.Sprintf("confirmed, up to %d transmissions", g.MaxTransmissions)
 		}
-		row(g.Name, "%s; %s; %d reading(s) per uplink; receive window %q", g.Cell, kind, g.ReadingsPerUplink, g.Window)
+		row(esc(g.Name), "%s; %s; %d reading(s) per uplink; receive window %s", esc(g.Cell), kind, g.ReadingsPerUplink, scenario.Quote(g.Window))
 		figure := fmt.Sprintf("P(flat before %s) = %s (± %s), margin %s", years(d.TargetYears), pct(g.Probability), pct(g.ProbError), pct(g.Margin))
 		if d.TargetKind == "lifetime_quantile" {
 			figure = fmt.Sprintf("%s point of the lifetime %s, margin %s", pct(d.TargetLevel), years(g.Achieved), years(g.Margin))
@@ -60,7 +62,7 @@ func writeDesign(w io.Writer, p *Plan) {
 	fmt.Fprintf(w, "  lifetime of a node at the best choice against the reading interval (years; %s and %s points)\n", pct(d.QuantileQ[0]), pct(d.QuantileQ[1]))
 	fmt.Fprintf(w, "  %-20s", "reading interval")
 	for _, g := range d.Groups {
-		fmt.Fprintf(w, " %22s", trimTo(g.Name, 22))
+		fmt.Fprintf(w, " %22s", trimTo(esc(g.Name), 22))
 	}
 	fmt.Fprintln(w)
 	if len(d.Groups) > 0 {
@@ -96,9 +98,9 @@ func writeDesign(w io.Writer, p *Plan) {
 		var per []string
 		for gi, t := range r.PeriodsYears {
 			if t == 0 {
-				per = append(per, fmt.Sprintf("%s: none", d.Groups[gi].Name))
+				per = append(per, fmt.Sprintf("%s: none", esc(d.Groups[gi].Name)))
 			} else {
-				per = append(per, fmt.Sprintf("%s: %s", d.Groups[gi].Name, years(t)))
+				per = append(per, fmt.Sprintf("%s: %s", esc(d.Groups[gi].Name), years(t)))
 			}
 		}
 		more("  every  %s", strings.Join(per, "; "))

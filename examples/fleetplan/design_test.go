@@ -72,7 +72,7 @@ func TestWhatItTakes(t *testing.T) {
 		assert.False(t, math.IsNaN(r.Cost.Mean))
 	}
 	var buf bytes.Buffer
-	writeReport(&buf, p)
+	require.NoError(t, writeReport(&buf, p))
 	assert.Contains(t, buf.String(), "What it takes\n-------------")
 	assert.Contains(t, buf.String(), "the cheapest policy that meets the accepted risk")
 }

@@ -111,6 +111,16 @@ const designTolerance = 0.01
 // designQuantileRows is how many intervals the quantile table shows.
 const designQuantileRows = 7
 
+// whatItTakesSection is buildDesign on the plan's site, or an error when
+// the scenario has no design section.
+func whatItTakesSection(s scenario.Scenario, p *Plan, say progress) (*DesignPlan, error) {
+	if s.Design == nil {
+		return nil, fmt.Errorf("-what-it-takes: the scenario has no design section (see radio/lora/scenario/FORMAT.md, \"What it takes\")")
+	}
+	say("what it takes: the design search per group and the replacement policies")
+	return buildDesign(s, p.laws.Site, say)
+}
+
 // buildDesign computes the "what it takes" section of a scenario with a
 // design section (nil otherwise): SearchDesign per group and the policy
 // comparison on the planned site.

@@ -10,7 +10,7 @@ import (
 // design search over intervals for every group, its quantile table, and the
 // policy comparison) on the demo site's laws, built once outside the loop;
 // BenchmarkDemoWithoutDesign is the rest of the demo plan, the baseline a
-// planner paid before: the same scenario without its design section.
+// planner paid before (what fleetplan computes without -what-it-takes).
 func BenchmarkWhatItTakes(b *testing.B) {
 	s := scenario.Demo()
 	laws, err := scenario.Compute(s, 2, nil)

@@ -27,6 +27,9 @@ func TestWhatItTakes(t *testing.T) {
 	s := scenario.Demo()
 	p, err := buildPlan(s, "demo", func(string, ...any) {})
 	require.NoError(t, err)
+	require.Nil(t, p.Design, "only with -what-it-takes")
+	p.Design, err = whatItTakesSection(s, p, func(string, ...any) {})
+	require.NoError(t, err)
 	d := p.Design
 	require.NotNil(t, d)
 	require.Len(t, d.Groups, len(s.Groups))
@@ -75,4 +78,14 @@ func TestWhatItTakes(t *testing.T) {
 	require.NoError(t, writeReport(&buf, p))
 	assert.Contains(t, buf.String(), "What it takes\n-------------")
 	assert.Contains(t, buf.String(), "the cheapest policy that meets the accepted risk")
+}
+
+// TestWhatItTakesNeedsSection: -what-it-takes on a scenario without a design
+// section is refused with a message that says where the format is.
+func TestWhatItTakesNeedsSection(t *testing.T) {
+	s := scenario.Demo()
+	s.Design = nil
+	_, err := whatItTakesSection(s, &Plan{}, func(string, ...any) {})
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), "FORMAT.md")
 }

@@ -49,8 +49,9 @@ func run(args []string, stdout, stderr io.Writer) int {
 	printDemo := fs.Bool("print-demo", false, "print the built-in demo scenario file and exit")
 	printSchema := fs.Bool("print-schema", false, "print the JSON Schema of the scenario format and exit")
 	quiet := fs.Bool("quiet", false, "print no progress on stderr")
+	whatItTakes := fs.Bool("what-it-takes", false, "also answer the scenario's design section: the design that meets its target per group, and the replacement policies compared (design.go)")
 	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: fleetplan [-scenario file] [-json] [-figures dir] [-print-demo] [-print-schema] [-quiet]")
+		fmt.Fprintln(stderr, "usage: fleetplan [-scenario file] [-json] [-figures dir] [-print-demo] [-print-schema] [-quiet] [-what-it-takes]")
 		fs.PrintDefaults()
 	}
 	if err := fs.Parse(args); err != nil {
@@ -100,6 +101,9 @@ func run(args []string, stdout, stderr io.Writer) int {
 		}
 	}
 	p, err := buildPlan(s, source, say)
+	if err == nil && *whatItTakes {
+		p.Design, err = whatItTakesSection(s, p, say) // design.go
+	}
 	if err != nil {
 		fmt.Fprintln(stderr, "fleetplan: the plan cannot be computed:")
 		for _, e := range flatten(err) {

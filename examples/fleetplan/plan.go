@@ -29,7 +29,7 @@ type Plan struct {
 	Fleet        FleetPlan   `json:"fleet"`
 	Warnings     []string    `json:"warnings"`
 	Cautions     []string    `json:"cautions"`
-	Design       *DesignPlan `json:"what_it_takes,omitempty"` // the scenario's design section (design.go)
+	Design       *DesignPlan `json:"what_it_takes,omitempty"` // the scenario's design section, with -what-it-takes (design.go)
 
 	laws planLaws // for the figures; not in the JSON
 }
@@ -341,9 +341,6 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 	}
 	say("fleet lifetimes: first failure, flat dates, replacement")
 	if err := fleetLife(p, s); err != nil {
-		return nil, err
-	}
-	if p.Design, err = buildDesign(s, st, say); err != nil {
 		return nil, err
 	}
 	p.Cautions = cautions(s.Region)

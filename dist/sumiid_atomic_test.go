@@ -137,16 +137,22 @@ func TestSumIIDTermsCap(t *testing.T) {
 }
 
 // TestIIDSumsAccuracy: IIDSums states, for each kind of term, the error of
-// its values: closed forms none, the exact discrete paths rounding, the
+// its values: closed forms none (a gamma by Temme's expansion its stated
+// error), the exact discrete paths rounding, the
 // saddlepoint its proven bound (which must cover its distance from the
 // exact listed law, here at k = 40 where both exist: 12 341 atoms).
 func TestIIDSumsAccuracy(t *testing.T) {
 	g, err := dist.NewIIDSums(dist.MustGamma(2, 1))
 	require.NoError(t, err)
-	acc, err := g.Accuracy(1000)
+	acc, err := g.Accuracy(100)
 	require.NoError(t, err)
 	assert.Equal(t, "closed form", acc.Method)
 	assert.Zero(t, acc.CDFAbs)
+	// shape 2000: Temme's expansion, with its stated error (gamma_temme.go)
+	acc, err = g.Accuracy(1000)
+	require.NoError(t, err)
+	assert.Contains(t, acc.Method, "Temme")
+	assert.Equal(t, 7e-15, acc.CDFAbs)
 
 	d := dist.MustDiscrete([]float64{0.0134, 0.0521 * math.Sqrt2, 0.2467 * math.Pi / 3, 0.31 * math.E / 2}, []float64{0.5, 0.3, 0.15, 0.05})
 	s, err := dist.NewIIDSums(d)

@@ -6,6 +6,8 @@ import (
 	"math/rand/v2"
 
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"github.com/joulelaw/joulelaw/internal/binom"
 )
 
 // exactListAtoms is the most atoms C(k+d−1, d−1) a k-fold sum of a d-atom
@@ -296,34 +298,8 @@ func binomialTails(n, j int64, p float64) (atMost, above float64) {
 }
 
 // logBinom returns log P(N = i), N ~ Binomial(n, p), in Loader's (2000)
-// form: stirlerr(n) − stirlerr(i) − stirlerr(n−i) − bd0(i, np) − bd0(n−i, nq)
-// + ½·log(n/(2π·i·(n−i))).
-func logBinom(n, i, p float64) float64 {
-	q := 1 - p
-	switch {
-	case i == 0:
-		return n * math.Log1p(-p)
-	case i == n:
-		return n * math.Log(p)
-	}
-	return stirlerr(n) - stirlerr(i) - stirlerr(n-i) - bd0(i, n*p) - bd0(n-i, n*q) +
-		0.5*math.Log(n/(2*math.Pi*i*(n-i)))
-}
-
-// stirlerr returns log(x!) − ((x+½)·log x − x + ½·log 2π).
-func stirlerr(x float64) float64 {
-	if x < 20 {
-		lg, _ := math.Lgamma(x + 1)
-		return lg - ((x+0.5)*math.Log(x) - x + 0.5*math.Log(2*math.Pi))
-	}
-	x2 := x * x
-	return 1/(12*x) - 1/(360*x*x2) + 1/(1260*x*x2*x2) - 1/(1680*x*x2*x2*x2)
-}
-
-// bd0 returns x·log(x/m) + m − x without cancellation.
-func bd0(x, m float64) float64 {
-	return x*math.Log1p((x-m)/m) - (x - m)
-}
+// saddle-point form (internal/binom, the library's one binomial kernel).
+func logBinom(n, i, p float64) float64 { return binom.LogPMF(i, n, p, 1-p) }
 
 // atomicSumLaw is the law of S_k for a finite discrete term whose k-fold
 // atoms are too many to list: CDF and Survival come from atomicSums (exact

@@ -104,6 +104,7 @@ func checkHistoryFree(t *testing.T, build func() dist.Law) {
 // reported in issue 12: the 1e-12 quantile of a 50-fold Weibull sum moved
 // by 8e-7 relative once 32 values had been asked (the grid switched in).
 func TestResultsIndependentOfHistory(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	weibull := func() dist.Law {
 		w, err := dist.FromDistuv(distuv.Weibull{K: 1.5, Lambda: 1})
 		require.NoError(t, err)

@@ -18,9 +18,10 @@
 //
 // Survival is computed directly, never as 1 - CDF: normal and log-normal
 // survivals come from math.Erfc, gamma survivals from the complementary
-// regularised incomplete gamma function, discrete and mixture survivals are
-// summed from the top. UpperQuantile inverts the survival, so quantiles near 1
-// keep their precision. The normal quantile is computed by Newton steps on
+// regularised incomplete gamma function (Temme's uniform expansion at shapes
+// of 1000 and more, each tail from its own erfc term), discrete and mixture
+// survivals are summed from the top. UpperQuantile inverts the survival, so
+// quantiles near 1 keep their precision. The normal quantile is computed by Newton steps on
 // log Q(z) from math.Erfc, accurate to about 1e-14 relative down to
 // probabilities of 1e-307 (math.Erfcinv fails below 1e-16).
 //

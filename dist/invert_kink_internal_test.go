@@ -18,6 +18,7 @@ import (
 // is below N^-p/|1 - exp(iφ)| and left out (φ >= 1e-3 keeps that below
 // 1e-4 of the remainder).
 func TestTailBoundAlgebraicTerms(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	if testing.Short() {
 		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
 	}

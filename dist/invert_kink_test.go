@@ -89,6 +89,7 @@ func trapDensity(w float64) func(float64) float64 {
 }
 
 func TestSumKinkedDensityStatedBound(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	if testing.Short() {
 		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
 	}
@@ -258,6 +259,7 @@ func TestSumKinkedDensityStatedBound(t *testing.T) {
 // Kolmogorov–Smirnov distance at level 1e-6 (Dvoretzky–Kiefer–Wolfowitz–
 // Massart bound, testref.KSCritical), fixed seed.
 func TestSumKinkedDensityMonteCarlo(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	if testing.Short() {
 		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
 	}

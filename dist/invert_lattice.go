@@ -168,7 +168,9 @@ func (l *latLevel) at(w int) (f, s, se float64) {
 // 1e-5 and 1e-9 and then, from the tilted result, between 1e-9 and 1e-13.
 // The rounding of each pass is measured on the FFT's zero padding (its
 // largest residue), scaled back by exp(-θ·m·step); each mass comes from
-// the pass with the smallest bound.
+// the pass with the smallest bound. A term whose CDF or Survival answers
+// outside [0, 1] (NaN or ±Inf from a FromDistuv law, say) is an error
+// wrapping ErrParam, not a silent NaN law (issue 13).
 func latticeLevel(fn string, terms []latTerm, step float64) (*latLevel, error) {
 	lens := make([]int, len(terms))
 	total := 1
@@ -212,10 +214,16 @@ func latticeLevel(fn string, terms []latTerm, step float64) (*latLevel, error) {
 			x := edge + float64(j)*step
 			if x <= med {
 				f := t.law.CDF(x)
+				if !isProb(f) {
+					return nil, outsideAnswer(fn, t.law, "CDF", x, f)
+				}
 				ms[j] = f - pf
 				pf, ps = f, 1-f
 			} else {
 				s := t.law.Survival(x)
+				if !isProb(s) {
+					return nil, outsideAnswer(fn, t.law, "Survival", x, s)
+				}
 				ms[j] = ps - s
 				pf, ps = 1-s, s
 			}
@@ -1079,4 +1087,11 @@ func latticeIID(l Law, k int) (Law, error) {
 		}
 	}
 	return latticePower(l, k)
+}
+
+// outsideAnswer reports a term whose CDF or Survival answered v, not a
+// probability, at x (a law taken from outside, say): the error wraps
+// ErrParam and names the law, the method and x.
+func outsideAnswer(fn string, l Law, method string, x, v float64) error {
+	return paramErr(fn, "term", fmt.Sprintf("%v", l), fmt.Sprintf("its %s(%v) = %v is not a probability in [0, 1]", method, x, v))
 }

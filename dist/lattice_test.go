@@ -51,6 +51,7 @@ func binomialByRatios(n int, p float64) (lo int, cdf, surv []float64) {
 }
 
 func TestSumIIDLatticeFFTIsBinomial(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	if testing.Short() {
 		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
 	}

@@ -14,6 +14,7 @@ import (
 )
 
 func TestSumExponentialOverBoundedRestTail(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	if testing.Short() {
 		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
 	}

@@ -120,6 +120,7 @@ func TestRandomSumUniformTermIsIrwinHallMixture(t *testing.T) {
 }
 
 func TestRandomSumGeometricUniformMonteCarlo(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	if testing.Short() {
 		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
 	}
@@ -153,6 +154,7 @@ func TestRandomSumGeometricUniformMonteCarlo(t *testing.T) {
 }
 
 func TestSumIIDOfDiscretePlusUniform(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	if testing.Short() {
 		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
 	}

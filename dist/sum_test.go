@@ -344,6 +344,7 @@ func (g geometric) Support() (lo, hi float64) { return 1, math.Inf(1) }
 func (g geometric) Rand(r *rand.Rand) float64 { return g.Quantile(r.Float64()) }
 
 func TestSixTermSumMonteCarlo(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	if testing.Short() {
 		t.Skip("slow oracle sweep: skipped under -short (go test -race -short ./...); CI runs it")
 	}

@@ -48,6 +48,7 @@ func (l twoPartLaw) oracle(k int) func(x float64) float64 {
 // quite smooth out (measured 5e-5 for the golden ratio, 6e-5 nearly
 // commensurate, 2e-3 on the lattice, each about a quarter of the bound).
 func TestEsseenBoundTwoParts(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	for _, tc := range []struct {
 		name  string
 		law   twoPartLaw

@@ -87,6 +87,7 @@ func checkThree(t *testing.T, name string, gotB, gotA, wantB, wantA, cdfAbs, rel
 // and 300, at x from −12 to +12 standard deviations (tails down to about
 // 1e-40).
 func TestThreeAgainstEnumeration(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	for _, tc := range []struct {
 		name string
 		v, p []float64
@@ -119,6 +120,7 @@ func TestThreeAgainstEnumeration(t *testing.T) {
 // commensurate energies (its reported CDF and survival bounds added; x half
 // a lattice step off the atoms).
 func TestThreeAgainstExactConvolution(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	v := []float64{0.0134, 0.0521 * math.Sqrt2, 0.2467 * math.Pi / 3}
 	d := MustDiscrete(v, []float64{0.6, 0.3, 0.1})
 	const k = 176
@@ -210,6 +212,7 @@ func TestCondTails(t *testing.T) {
 // relative to its own size within the stated threeSurvivalRel where above
 // threeTailFloor, and absolute within threeCDFAbs.
 func TestThreeRandomLaws(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	type law struct {
 		v, p []float64
 		k    int

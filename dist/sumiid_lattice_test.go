@@ -34,6 +34,7 @@ func iidCheckOptions(l dist.Law) []disttest.Option {
 // oracle above): the lattice power for small k, the quadrature transform
 // for large k, up to k = 10^7.
 func TestSumIIDTransformLess(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	w := weibullExp(1)
 	for _, c := range []struct {
 		k      int
@@ -128,6 +129,7 @@ func TestSumIIDTransformLessWithAtom(t *testing.T) {
 // Kolmogorov–Smirnov distance at level 1e-6 (testref.KSCritical), fixed
 // seed; for the quadrature route and the lattice route.
 func TestSumIIDTransformLessMonteCarlo(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	w := mustLaw(dist.FromDistuv(distuv.Weibull{K: 1.5, Lambda: 2}))
 	for _, k := range []int{4, 60} {
 		l, err := dist.SumIID(w, k)
@@ -155,6 +157,7 @@ func TestSumIIDTransformLessMonteCarlo(t *testing.T) {
 // [1, 2], 1 - (3-x)³/6 on [2, 3] (from memory; it is the convolution of
 // three unit boxes).
 func TestSumIIDTransformLessBounded(t *testing.T) {
+	t.Parallel() // slow: runs beside the others (go test ≤ 90 s on two cores)
 	nrm := mustLaw(dist.FromDistuv(distuv.Normal{Mu: 0.5, Sigma: 2}))
 	ih3 := func(x float64) (f, s float64) {
 		switch {

@@ -289,21 +289,30 @@ func (p DesignProblem) check(fn string) ([]DesignChoice, float64, error) {
 	return choices, tol, nil
 }
 
-// evaluation is the target's figure at one interval.
+// evaluation is the target's figure at one interval; eps is NaN until
+// asked for.
 type evaluation struct {
 	interval float64
 	p, eps   float64
 	laws     targetLaws
 }
 
-// searchChoice bisects one discrete choice's interval.
+// searchChoice bisects one discrete choice's interval: first on p alone
+// (the stated error costs as much as p), then, at the bracket found, with
+// the error: when p + ε still meets the level there the bracket stands,
+// otherwise the search goes on to the right with ε at every step. The
+// optimistic end (p − ε) is bracketed the same way.
 func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64) (DesignResult, error) {
 	builds := 0
 	minDuty := math.NaN()
 	var evals []evaluation
-	eval := func(iv float64) (evaluation, error) {
-		for _, e := range evals {
+	eval := func(iv float64, withErr bool) (evaluation, error) {
+		for i, e := range evals {
 			if e.interval == iv {
+				if withErr && math.IsNaN(e.eps) {
+					e.p, e.eps = e.laws.figure(p.Target, p.Count, true)
+					evals[i] = e
+				}
 				return e, nil
 			}
 		}
@@ -327,14 +336,17 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64) (Des
 		if err != nil {
 			return evaluation{}, err
 		}
-		pr, eps := tl.figure(p.Target, p.Count)
+		pr, eps := tl.figure(p.Target, p.Count, withErr)
+		if !withErr {
+			eps = math.NaN()
+		}
 		e := evaluation{interval: iv, p: pr, eps: eps, laws: tl}
 		evals = append(evals, e)
 		return e, nil
 	}
 	s := p.Space
 	lev := p.Target.Level
-	hiE, err := eval(s.MaxInterval)
+	hiE, err := eval(s.MaxInterval, true)
 	if err != nil {
 		return DesignResult{}, err
 	}
@@ -355,7 +367,7 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64) (Des
 		res.Builds = builds
 		return res, err
 	}
-	loE, err := eval(lo)
+	loE, err := eval(lo, true)
 	if err != nil {
 		return DesignResult{}, err
 	}
@@ -369,33 +381,64 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64) (Des
 		res.Builds = builds
 		return res, err
 	}
-	// Bisect: a fails, b meets.
-	a, b := loE, hiE
-	for b.interval/a.interval-1 > tol {
-		m, err := eval(math.Sqrt(a.interval * b.interval))
-		if err != nil {
-			return DesignResult{}, err
+	// bisect keeps a failing and b meeting the criterion meets(e).
+	bisect := func(a, b evaluation, withErr bool, meets func(evaluation) bool) (evaluation, evaluation, error) {
+		for b.interval/a.interval-1 > tol {
+			m, err := eval(math.Sqrt(a.interval*b.interval), withErr)
+			if err != nil {
+				return a, b, err
+			}
+			if meets(m) {
+				b = m
+			} else {
+				a = m
+			}
 		}
-		if m.p+m.eps <= lev {
-			b = m
-		} else {
-			a = m
+		return a, b, nil
+	}
+	conservative := func(e evaluation) bool { return e.p+e.eps <= lev }
+	// On p alone (p > lev fails p + ε too), then with ε.
+	_, b, err := bisect(loE, hiE, false, func(e evaluation) bool { return e.p <= lev })
+	if err != nil {
+		return DesignResult{}, err
+	}
+	if b, err = eval(b.interval, true); err != nil {
+		return DesignResult{}, err
+	}
+	if !conservative(b) {
+		if _, b, err = bisect(b, hiE, true, conservative); err != nil {
+			return DesignResult{}, err
 		}
 	}
 	// The optimistic end: the largest interval where p − ε still fails.
 	oa, ob := 0.0, b.interval
 	for _, e := range evals {
-		if e.p-e.eps > lev {
-			oa = math.Max(oa, e.interval)
-		} else {
+		if e.p > lev && e.interval > oa {
+			oa = e.interval
+		}
+		if e.p <= lev {
 			ob = math.Min(ob, e.interval)
 		}
 	}
+	if oa > 0 {
+		ea, err := eval(oa, true)
+		if err != nil {
+			return DesignResult{}, err
+		}
+		if ea.p-ea.eps <= lev {
+			ob, oa = oa, 0 // p − ε meets it here: look further left
+			for _, e := range evals {
+				if !math.IsNaN(e.eps) && e.p-e.eps > lev && e.interval > oa {
+					oa = e.interval
+				}
+			}
+		}
+	}
 	if oa == 0 {
-		oa = lo // p − ε meets the target at the range's lower end
+		oa = lo // (the range's lower end fails p + ε; p − ε is not known to fail there)
 	} else {
 		for ob/oa-1 > tol {
-			m, err := eval(math.Sqrt(oa * ob))
+			m, err := eval(math.Sqrt(oa*ob), true)
 			if err != nil {
 				return DesignResult{}, err
 			}

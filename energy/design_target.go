@@ -100,13 +100,14 @@ func newTargetLaws(fn string, spec NodeSpec, clim *Climate, sh SharedSpread) (ta
 	return tl, nil
 }
 
-// figure returns p, the target's probability (see TargetKind), and its
-// stated error: each conditional law's CDF error at T (NodeLifetime's
-// five-cumulant check and quadrature estimates, probed at T itself),
-// weighted, and for a group propagated through 1 − (1 − F)^n, whose slope
-// is n·(1 − F)^(n−1). The Gauss–Hermite rule over the shared factors is not
-// included (see Site).
-func (tl targetLaws) figure(t Target, count int64) (p, errEst float64) {
+// figure returns p, the target's probability (see TargetKind), and, when
+// withErr is set, its stated error: each conditional law's CDF error at T
+// (NodeLifetime's five-cumulant check and quadrature estimates, probed at T
+// itself), weighted, and for a group propagated through 1 − (1 − F)^n,
+// whose slope is n·(1 − F)^(n−1). The Gauss–Hermite rule over the shared
+// factors is not included (see Site). The error costs about as much as
+// the rest, so the search asks for it only where it decides.
+func (tl targetLaws) figure(t Target, count int64, withErr bool) (p, errEst float64) {
 	T := t.Date
 	if T >= tl.calendar {
 		return 1, 0
@@ -114,7 +115,10 @@ func (tl targetLaws) figure(t Target, count int64) (p, errEst float64) {
 	n := float64(count)
 	for e, l := range tl.laws {
 		f := l.CDF(T)
-		eps := l.accuracyAt([]float64{T}).CDFAbs
+		eps := 0.0
+		if withErr {
+			eps = l.accuracyAt([]float64{T}).CDFAbs
+		}
 		switch t.Kind {
 		case GroupFlat:
 			// 1 − (1 − F)^n, from log1p so a small F keeps its digits.

@@ -278,37 +278,6 @@ func TestDemoPlansOutOfReachNodes(t *testing.T) {
 	assert.True(t, p.Groups[2].OutOfReachHeaviest)
 }
 
-// Collisions swamping a data rate are flagged below SaturationThreshold;
-// the success they report is pure ALOHA's exp(−2G') (Abramson 1970).
-func TestSaturationWarning(t *testing.T) {
-	m, err := scenario.Build(scenario.Demo(), nil)
-	require.NoError(t, err)
-	for _, g := range m.Groups {
-		assert.Empty(t, saturationWarnings(m.Scenario, g), "the demo's loads are light")
-	}
-	s, err := scenario.Demo().WithCounts([]int{60, 100000, 24, 40})
-	require.NoError(t, err)
-	m, err = scenario.Build(s, nil)
-	require.NoError(t, err)
-	swamped := 0
-	for _, g := range m.Groups {
-		ws := saturationWarnings(s, g)
-		n := 0
-		for _, d := range g.PerDR {
-			assert.InDelta(t, math.Exp(-2*d.Vulnerable), d.UplinkSuccess, 1e-15)
-			if d.UplinkSuccess < SaturationThreshold {
-				n++
-			}
-		}
-		assert.Len(t, ws, n)
-		swamped += n
-		for _, w := range ws {
-			assert.Contains(t, w, "COLLISIONS")
-		}
-	}
-	assert.Positive(t, swamped, "100,000 probes on one gateway swamp some data rate")
-}
-
 // A US902-928 site runs end to end: no duty-cycle sub-bands, each uplink
 // checked against the 400 ms dwell time (RP002-1.0.3 §2.5, from memory),
 // the back-off setting at DR0 (SF10) and 30 dBm, and the channel caution.

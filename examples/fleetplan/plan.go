@@ -314,10 +314,14 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 		}
 		p.Groups = append(p.Groups, gp)
 		p.laws.groupLife = append(p.laws.groupLife, lLaw)
-		if w := unheardWarning(s, g, gp); w != "" {
-			p.Warnings = append(p.Warnings, w)
-		}
-		p.Warnings = append(p.Warnings, saturationWarnings(s, g)...)
+	}
+	// The site model's warnings (out of reach, collisions, gateways over
+	// budget: scenario.Laws.Warnings), then the program's own checks.
+	for _, w := range laws.Warnings() {
+		p.Warnings = append(p.Warnings, w.Text)
+	}
+	for gi, g := range m.Groups {
+		gp := p.Groups[gi]
 		if !gp.DutyCycle.Feasible {
 			if gp.DutyCycle.SubBand == "" {
 				p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: a %d-byte uplink breaks %s's %.0f ms dwell time at some data rate its nodes use (see its duty-cycle line)", g.Group.Name, g.Group.Payload, s.Region.Name(), 1e3*gp.DutyCycle.DwellTimeS))
@@ -332,7 +336,6 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: %s", g.Group.Name, w))
 		}
 	}
-	p.Warnings = append(p.Warnings, m.GatewayWarnings()...)
 	p.Fleet.LifetimeAccuracy = lifeAcc
 
 	say("fleet extremes of the per-cycle energy")
@@ -367,17 +370,15 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle
 		OutOfReach: g.OutOfReach, Cell: g.Cell.Spec.Name, Node: g.Node.Name, Supply: g.Node.Supply.String()}
 	b := g.Battery
 	w := g.AllWeights()
-	currents := make([]float64, len(cycles))
-	for i, c := range cycles {
-		currents[i] = c.MeanCurrent(g.Node.Voltage)
-		if g.IsUnheard(i) {
-			gp.OutOfReachCurrentA = currents[i]
-		}
+	drain, err := laws.Drain(gi)
+	if err != nil {
+		return gp, nil, err
 	}
+	currents := drain.Settings
+	gp.OutOfReachCurrentA = drain.Unheard
 	gp.OutOfReachPlanned = g.Unheard.Prob
-	gp.OutOfReachHeaviest = g.Unheard.Prob > 0 && currents[len(currents)-1] >= (1-heaviestSlack)*slices.Max(currents)
+	gp.OutOfReachHeaviest = drain.Heaviest
 	eLaw := laws.GroupEnergy[gi]
-	var err error
 	if gp.EnergyPerCycle, err = summarise(eLaw, 1); err != nil {
 		return gp, nil, err
 	}
@@ -593,58 +594,6 @@ func failedBand(st energy.Site, t, level float64) (lo, hi float64, err error) {
 		return 0, 0, err
 	}
 	return dist.EqualTailed(c, level)
-}
-
-// heaviestSlack is how far below the group's largest average current (as
-// a share of it) the out-of-reach nodes' may be and still be called the
-// heaviest: an unconfirmed node in reach at the same setting that now and
-// then receives a downlink draws a little more.
-const heaviestSlack = 0.01
-
-// unheardWarning says what share of group g is out of reach and how it is
-// planned ("" when the share is below 1 %, where the data-rate table still
-// lists it).
-func unheardWarning(s scenario.Scenario, g scenario.GroupModel, gp GroupPlan) string {
-	u := g.Unheard
-	if u.Prob < 0.01 {
-		return ""
-	}
-	drain := fmt.Sprintf("they average %s against the group's %s", amps(gp.OutOfReachCurrentA), amps(gp.Current.Mean))
-	if gp.OutOfReachHeaviest {
-		drain += ", as much as the group's heaviest setting, within a per cent: they drain first"
-	}
-	if u.Prob >= 1 {
-		return fmt.Sprintf("OUT OF REACH: EVERY node of group %q misses the %.0f dB installation margin even at DR%d and full power (%g dBm): the gateway is taken to hear none of its uplinks. The plan keeps all of them at DR%d, TXPower 0, every uplink lost and no downlink (the ADR back-off of the LoRaWAN specification); %s. Move the nodes, add a gateway or lower the margin.",
-			g.Group.Name, s.Environment.InstallationMargin, u.DR, u.EIRP, u.DR, amps(gp.OutOfReachCurrentA))
-	}
-	return fmt.Sprintf("OUT OF REACH: group %q: %s of placements miss the %.0f dB installation margin even at DR%d and full power. Those nodes are planned at DR%d, TXPower 0 (%g dBm), every uplink lost and no downlink (the ADR back-off of the LoRaWAN specification) and counted in every figure; %s. Move them or add a gateway.",
-		g.Group.Name, pct(u.Prob), s.Environment.InstallationMargin, u.DR, u.DR, u.EIRP, drain)
-}
-
-// SaturationThreshold is the uplink success per transmission below which a
-// data rate is called swamped by collisions: at 90 % one report in ten is
-// lost at the first try, and pure ALOHA is then at a load G' = −ln(0.9)/2 ≈
-// 0.053 per channel, already past a tenth of its peak throughput's load
-// (G = 0.5, Abramson 1970). Networks are commonly planned well below it
-// (common practice).
-const SaturationThreshold = 0.9
-
-// saturationWarnings lists the data rates of group g whose uplink success
-// is below SaturationThreshold.
-func saturationWarnings(s scenario.Scenario, g scenario.GroupModel) []string {
-	var out []string
-	for _, d := range g.PerDR {
-		if d.UplinkSuccess >= SaturationThreshold {
-			continue
-		}
-		name := fmt.Sprintf("DR%d", d.DR)
-		if dr, err := s.Region.DataRate(d.DR); err == nil {
-			name = dr.String()
-		}
-		out = append(out, fmt.Sprintf("COLLISIONS: group %q at %s: only %s of transmissions escape collision (offered load %.3g per channel; the plan warns below %s). %s of the group's nodes use this data rate; add gateways, lengthen the interval or shorten the payload.",
-			g.Group.Name, name, pct(d.UplinkSuccess), d.Load, pct(SaturationThreshold), pct(d.Share*g.Heard())))
-	}
-	return out
 }
 
 func cautions(r lora.Region) []string {

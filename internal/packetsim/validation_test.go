@@ -280,7 +280,7 @@ func TestValidationJittered(t *testing.T) {
 	s.Groups[0].Work[0].Spread = 0.06
 	m, err := scenario.Build(s, nil)
 	require.NoError(t, err)
-	cycles, err := m.SettingCycles(2, nil)
+	cycles, err := m.SettingCycles(2)
 	require.NoError(t, err)
 	law, err := m.Groups[0].MixEnergy(cycles[0])
 	require.NoError(t, err)

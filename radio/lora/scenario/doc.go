@@ -55,6 +55,17 @@
 // not overlap (the check enforces it). Every current except the sleep current
 // must be at least the sleep current.
 //
+// # Warnings
+//
+// The model decides what a person should look at, so that a back-end gets
+// the fleet planner's warnings: Laws.Warnings lists, group by group, an
+// out-of-reach share of at least OutOfReachWarnShare (with what those nodes
+// draw against the group, Laws.Drain) and every data rate whose uplink
+// success is below SaturationThreshold (Model.CollisionWarnings), then every
+// gateway sub-band whose booked answers exceed its duty cycle
+// (Model.GatewayWarnings). Each Warning carries its kind, group and gateway
+// beside its text.
+//
 // # Cost
 //
 // With a fixed schedule (jitter 0), work of fixed length (spread 0) and a

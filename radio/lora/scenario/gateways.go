@@ -182,12 +182,13 @@ func uplinkChannels(r lora.Region, mask lora.ChannelMask, dr int) []int {
 	return out
 }
 
-// GatewayWarnings returns one line per sub-band of a gateway whose booked
-// answers need more airtime than its duty cycle allows: the share needed,
-// the limit, the share of those answers the gateway can send, and the
-// caution to check local regulations. Names are quoted (Quote).
-func (m Model) GatewayWarnings() []string {
-	var out []string
+// GatewayWarnings returns one warning (kind GatewayBudget, Group −1) per
+// sub-band of a gateway whose booked answers need more airtime than its
+// duty cycle allows: the share needed, the limit, the share of those
+// answers the gateway can send, and the caution to check local
+// regulations. Names are quoted (Quote).
+func (m Model) GatewayWarnings() []Warning {
+	var out []Warning
 	for gi, g := range m.Gateways {
 		for _, b := range g.Budget.Bands {
 			if !b.Over() {
@@ -208,8 +209,8 @@ func (m Model) GatewayWarnings() []string {
 			if rate > 0 {
 				share = sent / rate
 			}
-			out = append(out, fmt.Sprintf("GATEWAY: %s: its answers need %s of the time in %s, above the %s duty-cycle limit; it can send about %s of them (stated error %.2g percentage points), the rest are lost and the nodes retransmit (planned). Add gateways, answer less often, move answers to RX2 or a faster data rate; check the local rules for gateways and defer to the regulator.",
-				Quote(m.Scenario.Gateways[gi].Name), percent(b.Offered), band, percent(b.DutyCycle), percent(share), 100*g.Budget.Error))
+			out = append(out, Warning{Kind: GatewayBudget, Group: -1, Gateway: gi, Text: fmt.Sprintf("GATEWAY: %s: its answers need %s of the time in %s, above the %s duty-cycle limit; it can send about %s of them (stated error %.2g percentage points), the rest are lost and the nodes retransmit (planned). Add gateways, answer less often, move answers to RX2 or a faster data rate; check the local rules for gateways and defer to the regulator.",
+				Quote(m.Scenario.Gateways[gi].Name), percent(b.Offered), band, percent(b.DutyCycle), percent(share), 100*g.Budget.Error)})
 		}
 	}
 	return out

@@ -141,8 +141,10 @@ func TestGatewayBudgetFeedsRetransmissions(t *testing.T) {
 		if n == 1000 {
 			assert.True(t, gw.Over())
 			require.NotEmpty(t, warn)
-			assert.Contains(t, warn[0], "868.0–868.60 MHz (1 %) sub-band")
-			assert.Contains(t, warn[0], "defer to the regulator")
+			assert.Contains(t, warn[0].Text, "868.0–868.60 MHz (1 %) sub-band")
+			assert.Contains(t, warn[0].Text, "defer to the regulator")
+			assert.Equal(t, scenario.GatewayBudget, warn[0].Kind)
+			assert.Equal(t, -1, warn[0].Group)
 		}
 	}
 }

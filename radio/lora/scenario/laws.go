@@ -5,6 +5,7 @@ import (
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/workers"
 	"github.com/joulelaw/joulelaw/orderstat"
 )
 
@@ -40,16 +41,16 @@ type Laws struct {
 	FleetMax, FleetMin dist.Law
 }
 
-// Laws computes the plan's laws of m on workers goroutines (at least 1; the
-// per-setting cycles are built in parallel, and the result does not depend
-// on workers). progress, if not nil, is told about each step (from one
+// Laws computes the plan's laws of m on goroutines goroutines (a count below
+// 1 means 1; the per-setting cycles are built in parallel, and the result
+// does not depend on the count). progress, if not nil, is told about each step (from one
 // goroutine at a time). Errors name the group and setting that failed.
 //
 // The cost is dominated by the cycles (see the package doc: exact and fast
 // for discrete cycles, numerical and slower when a jitter, a work spread or
 // a wait current above the floor makes them partly continuous) and by the
 // lifetime laws that Site builds lazily when asked.
-func (m Model) Laws(workers int, progress func(step string)) (Laws, error) {
+func (m Model) Laws(goroutines int, progress func(step string)) (Laws, error) {
 	say := func(format string, args ...any) {
 		if progress != nil {
 			progress(fmt.Sprintf(format, args...))
@@ -57,23 +58,24 @@ func (m Model) Laws(workers int, progress func(step string)) (Laws, error) {
 	}
 	s := m.Scenario
 	l := Laws{Model: m, Cycles: make([][]energy.Cycle, len(m.Groups))}
-	var jobs []Job
+	type job struct{ group, setting int }
+	var jobs []job
 	for gi, g := range m.Groups {
 		n := len(g.AllWeights())
 		l.Cycles[gi] = make([]energy.Cycle, n)
 		for si := range n {
-			jobs = append(jobs, Job{Group: gi, Setting: si})
+			jobs = append(jobs, job{gi, si})
 		}
 	}
-	say("per-cycle laws for %d (group, data rate, power) settings on %d workers", len(jobs), max(1, workers))
-	err := Parallel(len(jobs), workers, func(k int) error {
+	say("per-cycle laws for %d (group, data rate, power) settings on %d workers", len(jobs), max(1, goroutines))
+	err := workers.Run(len(jobs), goroutines, func(k int) error {
 		j := jobs[k]
-		g := m.Groups[j.Group]
-		c, err := g.AllSettingCycle(j.Setting)
+		g := m.Groups[j.group]
+		c, err := g.AllSettingCycle(j.setting)
 		if err != nil {
-			return groupError(j.Group, g.Group.Name, fmt.Errorf("setting %v: %w", g.AllSettings()[j.Setting], err))
+			return groupError(j.group, g.Group.Name, fmt.Errorf("setting %v: %w", g.AllSettings()[j.setting], err))
 		}
-		l.Cycles[j.Group][j.Setting] = c
+		l.Cycles[j.group][j.setting] = c
 		return nil
 	}, nil)
 	if err != nil {
@@ -128,11 +130,11 @@ func (m Model) Laws(workers int, progress func(step string)) (Laws, error) {
 }
 
 // Compute builds the model of s (Build) and its laws (Model.Laws) on
-// workers goroutines: the whole site model in one call.
-func Compute(s Scenario, workers int, progress func(step string)) (Laws, error) {
+// goroutines goroutines: the whole site model in one call.
+func Compute(s Scenario, goroutines int, progress func(step string)) (Laws, error) {
 	m, err := Build(s, progress)
 	if err != nil {
 		return Laws{}, err
 	}
-	return m.Laws(workers, progress)
+	return m.Laws(goroutines, progress)
 }

@@ -1,14 +1,13 @@
 package scenario
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"slices"
-	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/workers"
 	"github.com/joulelaw/joulelaw/radio/lora"
 )
 
@@ -471,78 +470,30 @@ func (g GroupModel) NodeSpec(s Scenario, cycles []energy.Cycle) (energy.NodeSpec
 	return spec, nil
 }
 
-// Job names one (group, setting) pair of a model.
-type Job struct{ Group, Setting int }
-
-// Jobs lists every (group, setting) pair of m, group by group.
-func (m Model) Jobs() []Job {
-	var jobs []Job
-	for gi, g := range m.Groups {
-		for si := range g.Settings {
-			jobs = append(jobs, Job{gi, si})
-		}
-	}
-	return jobs
-}
-
-// SettingCycles builds the cycle of every (group, setting) pair of m on
-// workers goroutines (at least 1), calling done (if not nil, from one
-// goroutine at a time) after each. The result is indexed [group][setting].
-func (m Model) SettingCycles(workers int, done func(j Job, finished, total int)) ([][]energy.Cycle, error) {
+// SettingCycles builds the cycle of every setting of every group's nodes in
+// reach (SettingCycle) on goroutines goroutines (a count below 1 means 1);
+// the result, indexed [group][setting], does not depend on it. Laws builds
+// the cycles of every setting, heard or not.
+func (m Model) SettingCycles(goroutines int) ([][]energy.Cycle, error) {
 	out := make([][]energy.Cycle, len(m.Groups))
+	type job struct{ group, setting int }
+	var jobs []job
 	for gi, g := range m.Groups {
 		out[gi] = make([]energy.Cycle, len(g.Settings))
+		for si := range g.Settings {
+			jobs = append(jobs, job{gi, si})
+		}
 	}
-	jobs := m.Jobs()
-	err := Parallel(len(jobs), workers, func(k int) error {
+	return out, workers.Run(len(jobs), goroutines, func(k int) error {
 		j := jobs[k]
-		c, err := m.Groups[j.Group].SettingCycle(j.Setting)
+		g := m.Groups[j.group]
+		c, err := g.SettingCycle(j.setting)
 		if err != nil {
-			return groupError(j.Group, m.Groups[j.Group].Group.Name, fmt.Errorf("setting %v: %w", m.Groups[j.Group].Settings[j.Setting], err))
+			return groupError(j.group, g.Group.Name, fmt.Errorf("setting %v: %w", g.Settings[j.setting], err))
 		}
-		out[j.Group][j.Setting] = c
+		out[j.group][j.setting] = c
 		return nil
-	}, func(k, finished int) {
-		if done != nil {
-			done(jobs[k], finished, len(jobs))
-		}
-	})
-	return out, err
-}
-
-// Parallel runs work(0 … n−1) on workers goroutines and returns their
-// errors joined (nil when none failed). after, if not nil, is called under
-// a lock after each item with the number finished so far.
-func Parallel(n, workers int, work func(i int) error, after func(i, finished int)) error {
-	if workers < 1 {
-		workers = 1
-	}
-	errs := make([]error, n)
-	next := make(chan int)
-	var mu sync.Mutex
-	finished := 0
-	var wg sync.WaitGroup
-	for range min(workers, n) {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range next {
-				errs[i] = work(i)
-				mu.Lock()
-				finished++
-				if after != nil {
-					after(i, finished)
-				}
-				mu.Unlock()
-			}
-		}()
-	}
-	for i := range n {
-		next <- i
-	}
-	close(next)
-	wg.Wait()
-	return errors.Join(errs...)
+	}, nil)
 }
 
 // Weights returns the probabilities of the group's settings, as the weights

@@ -109,7 +109,7 @@ func TestMixtureOfSettingsIsTheGroupCycle(t *testing.T) {
 	m, err := scenario.Build(oneGroup(t, 60), nil)
 	require.NoError(t, err)
 	g := m.Groups[0]
-	cycles, err := m.SettingCycles(2, nil)
+	cycles, err := m.SettingCycles(2)
 	require.NoError(t, err)
 	mix, err := g.MixEnergy(cycles[0])
 	require.NoError(t, err)
@@ -133,21 +133,6 @@ func TestMixtureOfSettingsIsTheGroupCycle(t *testing.T) {
 	}
 	_, err = g.SettingCycle(len(g.Settings))
 	require.ErrorIs(t, err, scenario.ErrInvalid)
-}
-
-func TestParallelJoinsErrors(t *testing.T) {
-	seen := make([]bool, 10)
-	err := scenario.Parallel(10, 3, func(i int) error {
-		seen[i] = true
-		if i == 7 {
-			return assert.AnError
-		}
-		return nil
-	}, nil)
-	require.ErrorIs(t, err, assert.AnError)
-	for i, s := range seen {
-		assert.True(t, s, "item %d", i)
-	}
 }
 
 // loraAirtimeSF12 is the LoRa time on air at SF12, 125 kHz, coding rate 4/5,

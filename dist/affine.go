@@ -128,9 +128,14 @@ func atomMass(l Law, y float64) float64 {
 	return 0
 }
 
+// CDF returns P(scale·X + shift <= x): exactly 0 below the mapped support
+// and 1 at or above its top (the map's rounding sends the top back to just
+// below the base's top, where an atom-plus-uniform law answered 1 - 3e-14;
+// issue 13).
 func (a affine) CDF(x float64) float64 {
-	if math.IsNaN(x) {
-		return x
+	lo, hi := a.Support()
+	if v, ok := edgeCDF(x, lo, hi); ok {
+		return v
 	}
 	y, v, m, in, ok := a.near(x)
 	switch {
@@ -148,9 +153,12 @@ func (a affine) CDF(x float64) float64 {
 	return a.base.Survival(y)
 }
 
+// Survival returns P(scale·X + shift > x), computed from the base law's
+// own tail: exactly 1 below the mapped support and 0 at or above its top.
 func (a affine) Survival(x float64) float64 {
-	if math.IsNaN(x) {
-		return x
+	lo, hi := a.Support()
+	if v, ok := edgeSurvival(x, lo, hi); ok {
+		return v
 	}
 	y, v, m, in, ok := a.near(x)
 	switch {

@@ -29,6 +29,7 @@ type Discrete struct {
 	probs  []float64 // > 0
 	below  []float64 // below[i] = Σ_{j<=i} p_j
 	above  []float64 // above[i] = Σ_{j>i} p_j
+	total  float64   // the compensated Σ p_i (1 to rounding): weighted divides by it
 }
 
 // MaxDiscreteAtoms is the largest number of values NewDiscrete takes
@@ -120,6 +121,7 @@ func discreteFromAtoms(atoms []Atom) Discrete {
 		s.add(d.probs[i])
 		d.below[i] = math.Min(s.value(), 1)
 	}
+	d.total = s.value()
 	if n > 0 {
 		d.below[n-1] = 1 // the masses are normalised: no rounding short of 1 at the top
 	}
@@ -129,6 +131,23 @@ func discreteFromAtoms(atoms []Atom) Discrete {
 		s.add(d.probs[i])
 	}
 	return d
+}
+
+// weighted returns Σ p_i·g(v_i), compensated, divided by the compensated
+// Σ p_i and capped at 1: exactly 1 where every g(v_i) is 1. A law built on
+// the atoms (D + C as Σ p_i·F_C(x - v_i), say) so reaches CDF 1 at +Inf
+// and Survival 1 at -Inf even where the normalised probabilities, each
+// rounded, add to 1 - 2 ulp (ten atoms of 0.1, say; issue 13). The zero
+// Discrete gives NaN.
+func (d Discrete) weighted(g func(v float64) float64) float64 {
+	if len(d.values) == 0 {
+		return math.NaN()
+	}
+	var s compSum
+	for i, v := range d.values {
+		s.add(d.probs[i] * g(v))
+	}
+	return math.Min(1, s.value()/d.total)
 }
 
 // Len returns the number of atoms.

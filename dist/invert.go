@@ -668,6 +668,15 @@ func (l *numLaw) tiltedCap(y float64, refl bool, kMax int) (float64, float64) {
 		return d
 	}
 	sd := math.Sqrt(l.variance)
+	// Far out, a Chernoff bound S_c(y) <= exp(K(θ) - θ·y) at a moderate θ
+	// below the smallest float gives 0 at once, before the saddle point's
+	// K(θ) overflows (a normal term at y = 1e300 gave Inf - Inf = NaN, a
+	// lognormal's transform at θ = 1e10 NaN; issue 13).
+	for _, th := range []float64{1 / sd, 16 / sd, hiDom / 2} {
+		if th > 0 && th < hiDom && K(th)-th*yy < -800 {
+			return 0, 0
+		}
+	}
 	theta := saddle(dK, yy, hiDom, sd)
 	floor := 30 / (l.b - l.a)
 	if finite(hiDom) {

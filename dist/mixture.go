@@ -19,6 +19,16 @@ import (
 // component. The result lists the components' atoms (merged within
 // AtomMergeTolerance) and has a Density when every component has a density
 // or is purely atomic.
+//
+// A component taken from outside (a FromDistuv law, also under Affine or
+// NewTruncated) is checked before it is mixed: its CDF and Survival at its
+// own quantiles at p = (i + 1/2)/OutsideProbes, i < OutsideProbes, midway
+// between them and at the ends of its support, must be probabilities in
+// [0, 1]; else the error
+// wraps ErrParam and names the component, the method and the point (a
+// component answering NaN made every value of the mixture NaN; issue 13).
+// A hole narrower than the probes is not seen: there the mixture answers
+// what the component answers, NaN included.
 func Mixture(weights []float64, laws []Law) (Law, error) {
 	const fn = "Mixture"
 	if len(laws) == 0 {
@@ -39,6 +49,9 @@ func Mixture(weights []float64, laws []Law) (Law, error) {
 		}
 		if w == 0 {
 			continue
+		}
+		if err := checkOutside(fn, fmt.Sprintf("laws[%d]", i), laws[i]); err != nil {
+			return nil, err
 		}
 		m.weights = append(m.weights, w)
 		m.laws = append(m.laws, laws[i])
@@ -220,4 +233,61 @@ func mergeAtoms(atoms []Atom) []Atom {
 		out = append(out, a)
 	}
 	return out
+}
+
+// OutsideProbes is how many of its quantiles Mixture checks a component
+// taken from outside (a FromDistuv law) at.
+const OutsideProbes = 64
+
+// fromOutside reports whether l is a FromDistuv law, or an affine map or a
+// truncation of one: a law whose answers this package does not compute.
+func fromOutside(l Law) bool {
+	switch b := l.(type) {
+	case distuvLaw, distuvDensity:
+		return true
+	case affine:
+		return fromOutside(b.base)
+	case affineDensity:
+		return fromOutside(b.base)
+	case truncated:
+		return fromOutside(b.base)
+	case truncatedDensity:
+		return fromOutside(b.base)
+	}
+	return false
+}
+
+// checkOutside returns an error wrapping ErrParam, naming param, when l is
+// taken from outside (fromOutside) and its CDF or Survival answers outside
+// [0, 1] at the ends of its support, at its quantiles at
+// p = (i + 1/2)/OutsideProbes or midway between two of them; nil
+// otherwise.
+func checkOutside(fn, param string, l Law) error {
+	if !fromOutside(l) {
+		return nil
+	}
+	lo, hi := l.Support()
+	xs := []float64{lo, hi}
+	prev := math.NaN()
+	for i := 0; i < OutsideProbes; i++ {
+		x := l.Quantile((float64(i) + 0.5) / OutsideProbes)
+		if finite(prev) && finite(x) {
+			// the midpoint too: an inverted quantile steps over a hole
+			xs = append(xs, prev/2+x/2)
+		}
+		xs = append(xs, x)
+		prev = x
+	}
+	for _, x := range xs {
+		if math.IsNaN(x) {
+			return paramErr(fn, param, fmt.Sprintf("%v", l), "its Quantile answers NaN")
+		}
+		if v := l.CDF(x); !isProb(v) {
+			return paramErr(fn, param, fmt.Sprintf("%v", l), fmt.Sprintf("its CDF(%v) = %v is not a probability in [0, 1]", x, v))
+		}
+		if v := l.Survival(x); !isProb(v) {
+			return paramErr(fn, param, fmt.Sprintf("%v", l), fmt.Sprintf("its Survival(%v) = %v is not a probability in [0, 1]", x, v))
+		}
+	}
+	return nil
 }

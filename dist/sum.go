@@ -400,7 +400,8 @@ func numericSum(terms, parts []Law) (Law, error) {
 //
 //	F(x) = Σ p_i·F_C(x - v_i),  S(x) = Σ p_i·S_C(x - v_i)
 //
-// exact to rounding, each tail summed from its own terms.
+// exact to rounding, each tail summed from its own terms (compensated and
+// divided by the probabilities' own sum, so F(+Inf) = S(-Inf) = 1 exactly).
 type shiftMixture struct {
 	d Discrete
 	c Law
@@ -445,22 +446,14 @@ func (m shiftMixture) CDF(x float64) float64 {
 	if math.IsNaN(x) {
 		return x
 	}
-	s := 0.0
-	for i, v := range m.d.values {
-		s += m.d.probs[i] * m.c.CDF(x-v)
-	}
-	return math.Min(1, s)
+	return m.d.weighted(func(v float64) float64 { return m.c.CDF(x - v) })
 }
 
 func (m shiftMixture) Survival(x float64) float64 {
 	if math.IsNaN(x) {
 		return x
 	}
-	s := 0.0
-	for i, v := range m.d.values {
-		s += m.d.probs[i] * m.c.Survival(x-v)
-	}
-	return math.Min(1, s)
+	return m.d.weighted(func(v float64) float64 { return m.c.Survival(x - v) })
 }
 
 func (m shiftMixture) Quantile(p float64) float64      { return quantileByInversion(m, p) }

@@ -217,13 +217,11 @@ func (l expSmoothed) CDF(x float64) float64 {
 	if v, ok := edgeCDF(x, lo, hi); ok {
 		return v
 	}
-	f := 0.0
-	for i, v := range l.d.values {
+	return l.d.weighted(func(v float64) float64 {
 		y := x - v
 		s, _ := l.smooth(y)
-		f += l.d.probs[i] * math.Max(0, l.c.CDF(y)-s)
-	}
-	return math.Min(1, f)
+		return math.Max(0, l.c.CDF(y)-s)
+	})
 }
 
 // Survival returns P(X > x), summed from positive terms (NaN for NaN x).
@@ -232,13 +230,11 @@ func (l expSmoothed) Survival(x float64) float64 {
 	if v, ok := edgeSurvival(x, lo, hi); ok {
 		return v
 	}
-	sv := 0.0
-	for i, v := range l.d.values {
+	return l.d.weighted(func(v float64) float64 {
 		y := x - v
 		s, _ := l.smooth(y)
-		sv += l.d.probs[i] * math.Max(0, l.c.Survival(y)+s)
-	}
-	return math.Min(1, sv)
+		return math.Max(0, l.c.Survival(y)+s)
+	})
 }
 
 // Quantile inverts CDF by bisection.

@@ -229,8 +229,12 @@ func (p Player) Groups() int { return len(p.groups) }
 
 // Shared draws one realisation of the shared tier from r: the batch
 // factor 1 + σb·Z1, then the temperature offset σT·Z2 (°C), Z1 and Z2 by
-// r.NormFloat64 (drawn even when the spread is 0).
+// r.NormFloat64 (drawn even when the spread is 0). A nil r gives NaN
+// conditions, which Node refuses (it used to panic; issue 13).
 func (p Player) Shared(r *rand.Rand) energy.Conditions {
+	if r == nil {
+		return energy.Conditions{BatchFactor: math.NaN(), TemperatureOffset: math.NaN()}
+	}
 	b := 1 + p.shared.Batch*r.NormFloat64()
 	dt := p.shared.Temperature * r.NormFloat64()
 	return energy.Conditions{BatchFactor: b, TemperatureOffset: dt}
@@ -294,10 +298,13 @@ func monthly(rate *[12]float64, t0, t1 float64) float64 {
 // BatchFactor of 0 means 1). From r, in order: the setting (one
 // r.Float64 against the cumulative weights), then c, a and the floor
 // factor's normal (three r.NormFloat64), then each cycle's Cycle.Rand.
-// Errors wrap ErrParam: g out of range, cond not finite (BatchFactor
-// >= 0, |TemperatureOffset| <= 60 °C), a month outside the derating
-// table, or more than MaxCycles cycles.
+// Errors wrap ErrParam: a nil r, g out of range, cond not finite
+// (BatchFactor >= 0, |TemperatureOffset| <= 60 °C), a month outside the
+// derating table, or more than MaxCycles cycles.
 func (p Player) Node(g int, cond energy.Conditions, r *rand.Rand) (Node, error) {
+	if r == nil {
+		return Node{}, paramErr("r", "nil", "a random source is required")
+	}
 	if g < 0 || g >= len(p.groups) {
 		return Node{}, paramErr("g", g, fmt.Sprintf("must be in [0, %d)", len(p.groups)))
 	}
@@ -320,10 +327,13 @@ func (p Player) Node(g int, cond energy.Conditions, r *rand.Rand) (Node, error) 
 }
 
 // Fleet plays one fleet: the shared draw (as Shared), then every node of
-// every group in order (as Node).
+// every group in order (as Node). A nil r is an error wrapping ErrParam.
 func (p Player) Fleet(r *rand.Rand) (Fleet, error) {
 	if len(p.groups) == 0 {
 		return Fleet{}, paramErr("p", "zero Player", "must be built by NewPlayer")
+	}
+	if r == nil {
+		return Fleet{}, paramErr("r", "nil", "a random source is required")
 	}
 	c := p.Shared(r)
 	f := Fleet{BatchFactor: c.BatchFactor, TemperatureOffset: c.TemperatureOffset}

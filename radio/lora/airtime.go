@@ -158,8 +158,13 @@ func (p PHY) payloadSymbols(bytes int) int {
 //
 //	T = (Preamble + 4.25 + PayloadSymbols) · 2^SF / BW
 //
-// The result is exact up to the rounding of one multiplication (relative
-// error below 1e-15).
+// (Augustin, Yi, Clausen and Townsley, "A Study of LoRa", Sensors
+// 16(9):1466, 2016, eq. 3–4). The LoRaWAN documents fix its inputs: the
+// LoRaWAN 1.0.3 specification, §3.1–3.2 (explicit header; payload CRC on
+// uplinks, none on downlinks; UplinkPHY, DownlinkPHY) and the LoRaWAN
+// Regional Parameters RP002-1.0.3 (each data rate's SF and bandwidth, and
+// the US902-928 dwell time the airtime is held to). The result is exact up
+// to the rounding of one multiplication (relative error below 1e-15).
 func (p PHY) Airtime(bytes int) (float64, error) {
 	n, err := p.PayloadSymbols(bytes)
 	if err != nil {

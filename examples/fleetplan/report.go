@@ -459,8 +459,14 @@ func lawLine(s Summary, unit func(float64) string) string {
 	if s.CDFError > 0 {
 		how += fmt.Sprintf("; CDF error ≤ %.1g", s.CDFError)
 	}
-	return fmt.Sprintf("mean %s, sd %s, 90 %% in [%s, %s], support [%s, %s]; %s",
-		unit(s.Mean), unit(s.SD), unit(s.In90[0]), unit(s.In90[1]), unit(s.Support[0]), unit(s.Support[1]), how)
+	atom := ""
+	if s.In90[0] == s.In90[1] && s.In90[1] == s.Support[1] && !math.IsInf(s.Support[1], 0) {
+		// A lifetime law whose 90 % sits at the top of its support: an
+		// atom at the calendar limit, which no input of the model spreads.
+		atom = " (an atom at the end of the support: the calendar limit, which nothing in the model spreads)"
+	}
+	return fmt.Sprintf("mean %s, sd %s, 90 %% in [%s, %s]%s, support [%s, %s]; %s",
+		unit(s.Mean), unit(s.SD), unit(s.In90[0]), unit(s.In90[1]), atom, unit(s.Support[0]), unit(s.Support[1]), how)
 }
 
 // energyText prints energies (J) in the unit that suits ref (J).

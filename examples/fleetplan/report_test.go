@@ -61,6 +61,11 @@ func TestLawLine(t *testing.T) {
 	require.NoError(t, err)
 	line := lawLine(s, yearsText)
 	assert.Equal(t, "mean 10 years, sd 2 years, 90 % in [6.71 years, 13.3 years], support [−∞ years, ∞ years]; closed form", line)
+
+	// A law whose 90 % interval is its upper end (a lifetime at the
+	// calendar limit) says that it is an atom there.
+	atom := lawLine(Summary{Mean: 14.5, In90: [2]float64{14.5, 14.5}, Support: [2]float64{0, 14.5}, Method: "m"}, yearsText)
+	assert.Contains(t, atom, "90 % in [14.5 years, 14.5 years] (an atom at the end of the support: the calendar limit")
 }
 
 // The report's Laws section gives every group's and the fleet's laws, one

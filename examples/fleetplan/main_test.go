@@ -313,6 +313,38 @@ func TestUS902928Plan(t *testing.T) {
 		found = found || strings.HasPrefix(c, "US902-928: the gateway is taken to hear all 64 uplink channels")
 	}
 	assert.True(t, found, "the channel caution")
+	// No duty-cycle sub-bands: one budget row per gateway, the transmitter.
+	require.Len(t, p.GatewayBudgets, len(p.Gateways))
+	for _, b := range p.GatewayBudgets {
+		assert.Equal(t, "transmitter", b.SubBand)
+		assert.Equal(t, 1.0, b.Limit)
+	}
+	assert.Contains(t, out, "Gateways: downlink airtime")
+}
+
+// The gateways' budget table in the report and the JSON: the demo's two
+// gateways each use the EU863-870 RX1 sub-band (868.0–868.6 MHz, 1 %) and
+// RX2's (869.4–869.65 MHz, 10 %; ERC Rec. 70-03 Annex 1), well below the
+// limits; every used share is at most the limit and at most what is
+// needed.
+func TestGatewayBudgetSection(t *testing.T) {
+	code, js, errs := runArgs(t, "-quiet", "-json")
+	require.Equal(t, 0, code, errs)
+	var p Plan
+	require.NoError(t, json.Unmarshal([]byte(js), &p))
+	require.Len(t, p.GatewayBudgets, 4)
+	for _, b := range p.GatewayBudgets {
+		assert.Contains(t, []float64{0.01, 0.1}, b.Limit, b.SubBand)
+		assert.LessOrEqual(t, b.UsedRX1+b.UsedRX2+b.FallbackUsed, b.Limit)
+		assert.LessOrEqual(t, b.UsedRX1, b.OfferedRX1)
+		assert.LessOrEqual(t, b.UsedRX2+b.FallbackUsed, b.OfferedRX2*(1+1e-12))
+		assert.False(t, b.Over, "the demo's answers are light")
+	}
+	assert.Contains(t, js, `"gateway_budgets"`)
+	code, out, errs := runArgs(t, "-quiet")
+	require.Equal(t, 0, code, errs)
+	assert.Contains(t, out, "Gateways: downlink airtime")
+	assert.Contains(t, out, "868.0–868.60 MHz (1 %)")
 }
 
 // Each group's outlier threshold is the upper 1 % point of the largest of

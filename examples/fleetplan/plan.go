@@ -27,9 +27,12 @@ type Plan struct {
 	Shared       SharedPlan  `json:"shared"`
 	Groups       []GroupPlan `json:"groups"`
 	Fleet        FleetPlan   `json:"fleet"`
-	Warnings     []string    `json:"warnings"`
-	Cautions     []string    `json:"cautions"`
-	Design       *DesignPlan `json:"what_it_takes,omitempty"` // the scenario's design section, with -what-it-takes (design.go)
+	// GatewayBudgets is each gateway's downlink airtime per sub-band
+	// against its duty-cycle limit (scenario.Model.GatewayBudgets).
+	GatewayBudgets []BudgetPlan `json:"gateway_budgets"`
+	Warnings       []string     `json:"warnings"`
+	Cautions       []string     `json:"cautions"`
+	Design         *DesignPlan  `json:"what_it_takes,omitempty"` // the scenario's design section, with -what-it-takes (design.go)
 
 	laws planLaws // for the figures; not in the JSON
 }
@@ -187,6 +190,25 @@ type DutyRow struct {
 	Warning      string  `json:"warning,omitempty"`
 }
 
+// BudgetPlan is one gateway's downlink airtime in one sub-band: shares of
+// time, against the sub-band's duty-cycle limit (SubBand "transmitter" and
+// limit 1 where the region has no sub-bands), by receive window. RX2 counts
+// the answers refused in RX1 and booked in RX2 instead; FallbackUsed is the
+// airtime of those sent. LostShare is the share of the answers booked first
+// in this sub-band that are sent in neither window.
+type BudgetPlan struct {
+	Gateway      string  `json:"gateway"`
+	SubBand      string  `json:"sub_band"`
+	Limit        float64 `json:"duty_cycle_limit"`
+	OfferedRX1   float64 `json:"rx1_airtime_needed"`
+	OfferedRX2   float64 `json:"rx2_airtime_needed"`
+	UsedRX1      float64 `json:"rx1_airtime_used"`
+	UsedRX2      float64 `json:"rx2_airtime_used"`
+	FallbackUsed float64 `json:"rx1_fallback_airtime_used_in_rx2"`
+	Over         bool    `json:"over_limit"`
+	LostShare    float64 `json:"answers_lost_share"`
+}
+
 // FleetPlan is the fleet-wide part.
 type FleetPlan struct {
 	EnergyPerCycle   Summary     `json:"energy_per_cycle_j"`
@@ -337,6 +359,11 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 		}
 	}
 	p.Fleet.LifetimeAccuracy = lifeAcc
+	for _, b := range m.GatewayBudgets() {
+		p.GatewayBudgets = append(p.GatewayBudgets, BudgetPlan{Gateway: s.Gateways[b.Gateway].Name, SubBand: b.Band, Limit: b.DutyCycle,
+			OfferedRX1: b.OfferedRX1, OfferedRX2: b.OfferedRX2, UsedRX1: b.UsedRX1, UsedRX2: b.UsedRX2, FallbackUsed: b.UsedFallback,
+			Over: b.Over(), LostShare: b.Lost})
+	}
 
 	say("fleet extremes of the per-cycle energy")
 	if err := fleetEnergy(p, laws); err != nil {
@@ -601,7 +628,7 @@ func cautions(r lora.Region) []string {
 		"Battery handling: primary lithium cells (lithium-thionyl chloride, lithium-manganese dioxide) must not be charged, short-circuited, crushed, opened or heated beyond their rating; follow the cell maker's handling, storage, transport and disposal instructions and the rules for lithium batteries that apply where you work.",
 		"Radio regulation: the regional tables and duty-cycle limits used here are for planning, not certification. Local regulations (in Europe ETSI EN 300 220 and the national implementation of ERC Recommendation 70-03; in the United States FCC Part 15) and the current LoRaWAN Regional Parameters govern.",
 		"Planning figures are not guarantees: they hold only as far as the scenario's currents, cell data, radio environment and traffic hold. Real cells also fail from passivation, temperature, ageing and manufacturing spread; gateways fail and interference changes. A sensor whose failure can hurt someone needs its own margin and the maintenance and inspection rules that apply locally.",
-		"Model limits: collisions are pure ALOHA per gateway, data rate and channel with no capture and no interference between spreading factors or from other networks; out-of-reach nodes are planned at the slowest data rate and full power with every uplink lost, but their frames are not counted in the others' collisions; each gateway sends answers within its sub-bands' duty cycles and with one transmitter, an answer beyond that budget is lost and the node retransmits (a network server that moves it to RX2 saves some; not modelled), and a gateway's deafness while it transmits is not modelled.",
+		"Model limits: collisions are pure ALOHA per gateway, data rate and channel with no capture and no interference between spreading factors or from other networks; out-of-reach nodes are planned at the slowest data rate and full power with every uplink lost, but their frames are not counted in the others' collisions; each gateway sends answers within its sub-bands' duty cycles and with one transmitter, an answer refused in RX1 is tried in RX2 (the network server's fallback) and one refused there too is lost and the node retransmits, and a gateway's deafness while it transmits is not modelled.",
 	}
 	most := 0
 	for _, dr := range r.ADRDataRates() {

@@ -330,6 +330,8 @@ func writeReport(out io.Writer, p *Plan) error {
 		fmt.Fprintln(w)
 	}
 
+	writeBudgets(w, p)
+
 	fl := p.Fleet
 	fmt.Fprintln(w, "Fleet: energy per cycle")
 	fmt.Fprintln(w, "-----------------------")
@@ -493,4 +495,27 @@ func infText(x float64) string {
 		return "−∞"
 	}
 	return "∞"
+}
+
+// writeBudgets prints the gateways' downlink airtime per sub-band against
+// the limit, by receive window.
+func writeBudgets(w io.Writer, p *Plan) {
+	if len(p.GatewayBudgets) == 0 {
+		return
+	}
+	fmt.Fprintln(w, "Gateways: downlink airtime")
+	fmt.Fprintln(w, "--------------------------")
+	fmt.Fprintln(w, "  share of time each gateway transmits answers, per sub-band, against its duty-cycle limit;")
+	fmt.Fprintln(w, "  RX2 needed includes the answers refused in RX1 and tried in RX2; lost: sent in neither window")
+	fmt.Fprintf(w, "  %-24s %-26s %7s %10s %10s %10s %10s %10s %7s\n", "gateway", "sub-band", "limit", "RX1 needed", "RX1 used", "RX2 needed", "RX2 used", "fallback", "lost")
+	for _, b := range p.GatewayBudgets {
+		flag := ""
+		if b.Over {
+			flag = "  OVER"
+		}
+		fmt.Fprintf(w, "  %-24s %-26s %7s %10s %10s %10s %10s %10s %7s%s\n", esc(b.Gateway), b.SubBand, pct(b.Limit), pct(b.OfferedRX1), pct(b.UsedRX1),
+			pct(b.OfferedRX2), pct(b.UsedRX2), pct(b.FallbackUsed), pct(b.LostShare), flag)
+	}
+	fmt.Fprintln(w, "  (limits for planning, not certification: check the local rules for gateways and defer to the regulator)")
+	fmt.Fprintln(w)
 }

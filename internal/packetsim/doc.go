@@ -42,7 +42,9 @@
 //     RECEIVE_DELAY1 (RX1, on the RX1 frequency of the uplink's channel) or
 //     RECEIVE_DELAY2 (RX2) later; it is lost when it would overlap, on the
 //     gateway's one transmitter or within its sub-band's closed time
-//     (airtime/d from a start), an answer taken on before.
+//     (airtime/d from a start), an answer taken on before. An answer
+//     refused in RX1 is booked at once in RX2 (the network server's
+//     fallback) and taken on there or lost by the same rule.
 //   - The next report starts one period after the previous one started,
 //     whatever the attempts did.
 package packetsim

@@ -52,10 +52,12 @@ type FrameCount struct {
 
 // AnswerCount counts the answers the network booked with a gateway for one
 // group's uplinks at one data rate in one window (1 or 2), for uplinks that
-// ended in the counting window, and how many the gateway could send.
+// ended in the counting window, how many the gateway could send in that
+// window, and (window 1) how many it refused there and sent in RX2 instead.
 type AnswerCount struct {
 	Group, DR, Window int
 	Booked, Sent      int
+	Fallback          int
 }
 
 // Outcome is the result of one play of a scenario.
@@ -351,7 +353,7 @@ func Play(s scenario.Scenario, opt Options, r *rand.Rand) (Outcome, error) {
 			}
 			for w := 1; w <= 2; w++ {
 				if a := pl.answers[answerKey{gi, dr, w}]; a.Booked > 0 {
-					out.Answers = append(out.Answers, AnswerCount{Group: gi, DR: dr, Window: w, Booked: a.Booked, Sent: a.Sent})
+					out.Answers = append(out.Answers, AnswerCount{Group: gi, DR: dr, Window: w, Booked: a.Booked, Sent: a.Sent, Fallback: a.Fallback})
 				}
 			}
 		}
@@ -637,6 +639,11 @@ func (pl *play) frameEnd(f *frame) {
 			window = 1
 		}
 		ok := pl.book(f, window)
+		fell := false
+		if !ok && window == 1 {
+			// The network server falls back to RX2 at once.
+			fell = pl.book(f, 2)
+		}
 		if f.counted {
 			k := answerKey{n.Group, n.DR, window}
 			a := pl.answers[k]
@@ -644,10 +651,13 @@ func (pl *play) frameEnd(f *frame) {
 			if ok {
 				a.Sent++
 			}
+			if fell {
+				a.Fallback++
+			}
 			pl.answers[k] = a
 		}
-		if ok && pl.r.Float64() >= g.DownlinkLoss {
-			inRX1, inRX2 = window == 1, window == 2
+		if (ok || fell) && pl.r.Float64() >= g.DownlinkLoss {
+			inRX1, inRX2 = ok && window == 1, fell || ok && window == 2
 		}
 	}
 	margin := node.WindowMargin

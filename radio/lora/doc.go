@@ -42,10 +42,12 @@
 // GatewayDownlinks tells what share of the answers booked with a gateway it
 // can send: each sub-band's duty cycle (the off-time rule) and its one
 // transmitter, with Erlang's one-server loss formula per band and a stated
-// error for the couplings between bands; Region.DownlinkBand names the
-// band of a downlink frequency. Answers beyond the budget are lost, and a
-// site model feeds the loss into the acknowledgement and retransmission
-// laws (package scenario).
+// error for the couplings between bands, and the fallback of an answer
+// refused in RX1 to RX2 (DownlinkStream.Fallback; the fallbacks come in
+// bursts, which the model takes into account); Region.DownlinkBand names
+// the band of a downlink frequency. Answers beyond the budget are lost, and
+// a site model feeds the loss and the fallback into the acknowledgement and
+// retransmission laws and the node's receive energy (package scenario).
 //
 // # The class A cycle
 //

@@ -69,15 +69,21 @@ func TestGatewayDownlinksErrors(t *testing.T) {
 // bookingSim plays the gateway's booking rules directly (independently of
 // GatewayDownlinks): Poisson bookings per stream; an answer is sent unless
 // it overlaps on the transmitter, or within its band on the closed time
-// Airtime/d after a start, an answer booked and sent before it. It returns,
-// per stream, the share sent in each of batches consecutive stretches.
-func bookingSim(r *rand.Rand, streams []lora.DownlinkStream, horizon float64, batches int) [][]float64 {
+// Airtime/d after a start, an answer booked and sent before it; a refused
+// answer of a stream with a Fallback is booked at once with the stream it
+// names, by the same rules. It returns, per stream and for each of batches
+// consecutive stretches, the share of its own answers sent in its window
+// and the share sent in its fallback's.
+func bookingSim(r *rand.Rand, streams []lora.DownlinkStream, horizon float64, batches int) (ok, fell [][]float64) {
 	type booking struct {
 		t float64
 		i int
 	}
 	var bs []booking
 	for i, s := range streams {
+		if s.Rate == 0 {
+			continue
+		}
 		for t := r.ExpFloat64() / s.Rate; t < horizon; t += r.ExpFloat64() / s.Rate {
 			bs = append(bs, booking{t, i})
 		}
@@ -92,16 +98,28 @@ func bookingSim(r *rand.Rand, streams []lora.DownlinkStream, horizon float64, ba
 	for _, s := range streams {
 		minLead = math.Min(minLead, s.Lead)
 	}
-	booked := make([][]float64, len(streams))
-	ok := make([][]float64, len(streams))
-	for i := range streams {
-		booked[i] = make([]float64, batches)
-		ok[i] = make([]float64, batches)
+	grid := func() [][]float64 {
+		g := make([][]float64, len(streams))
+		for i := range g {
+			g[i] = make([]float64, batches)
+		}
+		return g
+	}
+	booked := grid()
+	ok, fell = grid(), grid()
+	try := func(t float64, i int) bool {
+		s := streams[i]
+		start := t + s.Lead
+		x := tx{start: start, end: start + s.Airtime, closed: start + s.Airtime/s.DutyCycle, band: s.Band}
+		for _, y := range sent {
+			if x.start < y.end && y.start < x.end || x.band == y.band && x.start < y.closed && y.start < x.closed {
+				return false
+			}
+		}
+		sent = append(sent, x)
+		return true
 	}
 	for _, b := range bs {
-		s := streams[b.i]
-		start := b.t + s.Lead
-		x := tx{start: start, end: start + s.Airtime, closed: start + s.Airtime/s.DutyCycle, band: s.Band}
 		keep := sent[:0]
 		for _, y := range sent { // drop what can no longer conflict
 			if math.Max(y.end, y.closed) > b.t+minLead {
@@ -109,28 +127,21 @@ func bookingSim(r *rand.Rand, streams []lora.DownlinkStream, horizon float64, ba
 			}
 		}
 		sent = keep
-		free := true
-		for _, y := range sent {
-			if x.start < y.end && y.start < x.end {
-				free = false
-			}
-			if x.band == y.band && x.start < y.closed && y.start < x.closed {
-				free = false
-			}
-		}
 		k := int(b.t / horizon * float64(batches))
 		booked[b.i][k]++
-		if free {
+		if try(b.t, b.i) {
 			ok[b.i][k]++
-			sent = append(sent, x)
+		} else if f := streams[b.i].Fallback; f != 0 && try(b.t, f-1) {
+			fell[b.i][k]++
 		}
 	}
 	for i := range ok {
 		for k := range ok[i] {
 			ok[i][k] /= booked[i][k]
+			fell[i][k] /= booked[i][k]
 		}
 	}
-	return ok
+	return ok, fell
 }
 
 // TestGatewayDownlinksAgainstBookings compares GatewayDownlinks with the
@@ -143,39 +154,15 @@ func bookingSim(r *rand.Rand, streams []lora.DownlinkStream, horizon float64, ba
 // two-sided level 1e-6 (gonum) times the batches' standard error, plus the
 // Error that GatewayDownlinks states.
 func TestGatewayDownlinksAgainstBookings(t *testing.T) {
-	eu := func(scale float64) []lora.DownlinkStream {
-		return []lora.DownlinkStream{
-			{Rate: scale * 0.02, Airtime: 0.06, Lead: 1, Band: 2, DutyCycle: 0.01},
-			{Rate: scale * 0.01, Airtime: 0.4, Lead: 1, Band: 2, DutyCycle: 0.01},
-			{Rate: scale * 0.02, Airtime: 1.2, Lead: 2, Band: 4, DutyCycle: 0.1},
-		}
-	}
-	us := func(scale float64) []lora.DownlinkStream {
-		return []lora.DownlinkStream{
-			{Rate: scale * 1, Airtime: 0.03, Lead: 1, Band: -1, DutyCycle: 1},
-			{Rate: scale * 0.5, Airtime: 0.2, Lead: 2, Band: -1, DutyCycle: 1},
-		}
-	}
 	const batches = 200
 	tq := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: batches - 1}.Quantile(1 - 5e-7)
-	cases := []struct {
-		name    string
-		streams []lora.DownlinkStream
-		horizon float64
-	}{
-		{"EU light", eu(0.1), 4e6},
-		{"EU at the limit", eu(1), 1e6},
-		{"EU ten times over", eu(10), 4e5},
-		{"US light", us(0.1), 2e5},
-		{"US busy", us(1), 4e4},
-		{"US saturated", us(4), 2e4},
-	}
+	cases := gatewayCases(false)
 	r := rand.New(rand.NewPCG(7, 23))
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			b, err := lora.GatewayDownlinks(tc.streams)
 			require.NoError(t, err)
-			shares := bookingSim(r, tc.streams, tc.horizon, batches)
+			shares, _ := bookingSim(r, tc.streams, tc.horizon, batches)
 			for i, xs := range shares {
 				mean, sd := meanSD(xs)
 				tol := tq*sd/math.Sqrt(batches) + b.Error
@@ -199,4 +186,104 @@ func meanSD(xs []float64) (mean, sd float64) {
 		sd += (x - mean) * (x - mean)
 	}
 	return mean, math.Sqrt(sd / float64(len(xs)-1))
+}
+
+// TestGatewayDownlinksFallback: answers refused in RX1 are booked in RX2
+// (the network server's fallback). The model (Sent, FallbackSent, Booked)
+// against the booking rules played out (bookingSim, which moves a refused
+// answer to its fallback stream at once), at several loads, for a European
+// gateway (RX1 in the 1 % sub-band after 1 s, RX2 at 869.525 MHz, 10 %,
+// after 2 s: ERC Rec. 70-03 Annex 1) and a US902-928 one (the transmitter
+// alone); the tolerance is Student's t at two-sided level 1e-6 (gonum)
+// over 200 batch shares plus the stated Error. Without a fallback the
+// same answers are lost: the check has power where FallbackSent is large.
+func TestGatewayDownlinksFallback(t *testing.T) {
+	const batches = 200
+	tq := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: batches - 1}.Quantile(1 - 5e-7)
+	cases := gatewayCases(true)
+	r := rand.New(rand.NewPCG(11, 29))
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			b, err := lora.GatewayDownlinks(tc.streams)
+			require.NoError(t, err)
+			ok, fell := bookingSim(r, tc.streams, tc.horizon, batches)
+			for i, st := range tc.streams {
+				mean, sd := meanSD(ok[i])
+				tol := tq*sd/math.Sqrt(batches) + b.Error
+				assert.InDelta(t, b.Sent[i], mean, tol, "stream %d sent: analytic %.4f, sampled %.4f", i, b.Sent[i], mean)
+				t.Logf("%s stream %d: sent analytic %.4f, sampled %.4f, tolerance %.4f (stated error %.2g)", tc.name, i, b.Sent[i], mean, tol, b.Error)
+				if st.Fallback == 0 {
+					assert.Zero(t, b.FallbackSent[i])
+					continue
+				}
+				fm, fsd := meanSD(fell[i])
+				ftol := tq*fsd/math.Sqrt(batches) + b.FallbackError
+				assert.InDelta(t, b.FallbackSent[i], fm, ftol, "stream %d fallback", i)
+				assert.LessOrEqual(t, b.FallbackSent[i], 1-b.Sent[i])
+				if b.FallbackSent[i] > 2*ftol {
+					assert.Greater(t, fm, ftol, "stream %d: a model that loses refused answers would pass", i)
+				}
+				t.Logf("%s stream %d: sent in the fallback, analytic %.4f, sampled %.4f, tolerance %.4f (stated error %.2g)", tc.name, i, b.FallbackSent[i], fm, ftol, b.FallbackError)
+			}
+			// Booked: the fallback stream takes the others' refusals.
+			for y := range tc.streams {
+				want := tc.streams[y].Rate
+				for x, sx := range tc.streams {
+					if sx.Fallback == y+1 {
+						want += sx.Rate * (1 - b.Sent[x])
+					}
+				}
+				assert.InDelta(t, want, b.Booked[y], 1e-12*want+1e-300)
+			}
+		})
+	}
+	// Bad fallbacks: out of range, itself, a chain.
+	for _, f := range [][2]int{{3, 0}, {-1, 0}, {1, 0}, {2, 1}} {
+		st := gatewayCases(true)[4].streams
+		st[0].Fallback, st[1].Fallback = f[0], f[1]
+		_, err := lora.GatewayDownlinks(st)
+		assert.ErrorIs(t, err, lora.ErrParam, "fallbacks %v", f)
+	}
+}
+
+// gatewayCase is one load of a gateway's answer streams for the tests
+// against the booking rules.
+type gatewayCase struct {
+	name    string
+	streams []lora.DownlinkStream
+	horizon float64 // s of bookings played
+}
+
+// gatewayCases are six loads: a European gateway (RX1 in the 1 % sub-band
+// of 868.0–868.6 MHz after 1 s, answers of two lengths; RX2 at 869.525 MHz,
+// 10 %, after 2 s: ERC Rec. 70-03 Annex 1) and a US902-928 one (no duty
+// cycle: the transmitter alone), each light, busy and far over. With
+// fallback the RX1 streams fall back to RX2 (whose own share is then
+// smaller).
+func gatewayCases(fallback bool) []gatewayCase {
+	f1, f2, rx2 := 0, 0, []float64{0.02, 0.5}
+	if fallback {
+		f1, f2, rx2 = 3, 2, []float64{0.005, 0.2}
+	}
+	eu := func(scale float64) []lora.DownlinkStream {
+		return []lora.DownlinkStream{
+			{Rate: scale * 0.02, Airtime: 0.06, Lead: 1, Band: 2, DutyCycle: 0.01, Fallback: f1},
+			{Rate: scale * 0.01, Airtime: 0.4, Lead: 1, Band: 2, DutyCycle: 0.01, Fallback: f1},
+			{Rate: scale * rx2[0], Airtime: 1.2, Lead: 2, Band: 4, DutyCycle: 0.1},
+		}
+	}
+	us := func(scale float64) []lora.DownlinkStream {
+		return []lora.DownlinkStream{
+			{Rate: scale * 1, Airtime: 0.03, Lead: 1, Band: -1, DutyCycle: 1, Fallback: f2},
+			{Rate: scale * rx2[1], Airtime: 0.2, Lead: 2, Band: -1, DutyCycle: 1},
+		}
+	}
+	return []gatewayCase{
+		{"EU light", eu(0.1), 4e6},
+		{"EU at the limit", eu(1), 1e6},
+		{"EU ten times over", eu(10), 4e5},
+		{"US light", us(0.1), 2e5},
+		{"US busy", us(1), 4e4},
+		{"US saturated", us(4), 2e4},
+	}
 }

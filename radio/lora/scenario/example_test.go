@@ -29,7 +29,7 @@ func ExampleCompute() {
 	// Output:
 	// dyke piezometers          60 nodes, mean energy per cycle 39.9 mJ
 	// field soil probes        180 nodes, mean energy per cycle 112 mJ
-	// pump alarms               24 nodes, mean energy per cycle 44.4 mJ
+	// pump alarms               24 nodes, mean energy per cycle 44.9 mJ
 	// weather masts             40 nodes, mean energy per cycle 77.3 mJ
 	// first flat battery: median 1.8 years
 }

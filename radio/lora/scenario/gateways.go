@@ -3,6 +3,7 @@ package scenario
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 
 	"github.com/joulelaw/joulelaw/radio/lora"
@@ -13,7 +14,11 @@ import (
 // data rate, receive window and downlink sub-band (RX1 answers follow
 // their uplink's channel, so they spread over the RX1 bands of the
 // channels that carry the data rate; RX2 answers use the RX2 frequency).
-// An answer the gateway cannot send is lost, and the loss feeds the
+// An answer refused in RX1 (the gateway busy, or its sub-band closed by the
+// duty cycle) is sent in RX2 instead when RX2 can take it (the network
+// server's fallback: each RX1 stream's Fallback is its group and data
+// rate's RX2 stream); an answer the gateway cannot send in either is lost,
+// and the loss feeds the
 // acknowledgement and retransmission laws: Build solves the whole by
 // successive substitution — transmissions per report → uplink loads and
 // successes → answers booked → shares sent (GatewayDownlinks, its own fixed
@@ -29,7 +34,100 @@ import (
 type GatewayModel struct {
 	Gateway Gateway
 	Streams []lora.DownlinkStream
-	Budget  lora.DownlinkBudget
+	// Window[i] is the receive window (1 or 2) Streams[i] answers in.
+	Window []int
+	Budget lora.DownlinkBudget
+}
+
+// BandBudget is one row of a gateway's downlink budget: the airtime its
+// answers take in one sub-band, against the sub-band's duty-cycle limit,
+// split by receive window. Shares are of time (airtime per second).
+type BandBudget struct {
+	Gateway int // index into Scenario.Gateways
+	// Band names the sub-band ("868.0–868.60 MHz (1 %)"), or is
+	// "transmitter" where the region has no duty-cycle sub-bands (the one
+	// transmitter alone limits, DutyCycle 1).
+	Band      string
+	DutyCycle float64 // the limit, in (0, 1]
+	// OfferedRX1 and OfferedRX2 are the airtime shares the answers booked
+	// in RX1 and in RX2 would need (RX2's counts the answers refused in RX1
+	// and booked in RX2 instead).
+	OfferedRX1, OfferedRX2 float64
+	// UsedRX1 and UsedRX2 are the airtime shares of the answers sent in
+	// each window as booked; UsedFallback that of the answers refused in
+	// RX1 and sent in RX2. Their sum is at most DutyCycle (the off-time
+	// rule).
+	UsedRX1, UsedRX2, UsedFallback float64
+	// Lost is the share of the answers booked in this sub-band (as first
+	// choice) that are sent nowhere.
+	Lost float64
+}
+
+// Offered returns the airtime share all the booked answers would need.
+func (b BandBudget) Offered() float64 { return b.OfferedRX1 + b.OfferedRX2 }
+
+// Used returns the airtime share of all the answers sent.
+func (b BandBudget) Used() float64 { return b.UsedRX1 + b.UsedRX2 + b.UsedFallback }
+
+// Over reports whether the booked answers need more than the limit.
+func (b BandBudget) Over() bool { return b.Offered() > b.DutyCycle }
+
+// GatewayBudgets returns every gateway's downlink budget as a table: one
+// row per gateway and sub-band its answers use, gateway by gateway, bands
+// in the region's order (GatewayModel, lora.GatewayDownlinks). Duty-cycle
+// limits are for planning, not certification: check the local rules for
+// gateways and defer to the regulator.
+func (m Model) GatewayBudgets() []BandBudget {
+	var out []BandBudget
+	sbs := m.Scenario.Region.SubBands()
+	for gi, g := range m.Gateways {
+		b := g.Budget
+		rows := map[int]*BandBudget{}
+		booked, lost := map[int]float64{}, map[int]float64{}
+		for i, st := range g.Streams {
+			r, ok := rows[st.Band]
+			if !ok {
+				r = &BandBudget{Gateway: gi, Band: "transmitter", DutyCycle: st.DutyCycle}
+				if st.Band >= 0 && st.Band < len(sbs) {
+					r.Band = sbs[st.Band].String()
+				}
+				rows[st.Band] = r
+			}
+			own := st.Rate * b.Sent[i] * st.Airtime
+			if g.Window[i] == 1 {
+				r.OfferedRX1 += st.Rate * st.Airtime
+				r.UsedRX1 += own
+			} else {
+				r.OfferedRX2 += b.Booked[i] * st.Airtime
+				r.UsedRX2 += own
+			}
+			booked[st.Band] += st.Rate
+			lost[st.Band] += st.Rate * (1 - b.Sent[i] - b.FallbackSent[i])
+			if st.Fallback != 0 {
+				t := g.Streams[st.Fallback-1]
+				if rows[t.Band] == nil {
+					rows[t.Band] = &BandBudget{Gateway: gi, Band: "transmitter", DutyCycle: t.DutyCycle}
+					if t.Band >= 0 && t.Band < len(sbs) {
+						rows[t.Band].Band = sbs[t.Band].String()
+					}
+				}
+				rows[t.Band].UsedFallback += st.Rate * b.FallbackSent[i] * t.Airtime
+			}
+		}
+		keys := make([]int, 0, len(rows))
+		for k := range rows {
+			keys = append(keys, k)
+		}
+		slices.Sort(keys)
+		for _, k := range keys {
+			r := rows[k]
+			if booked[k] > 0 {
+				r.Lost = math.Max(0, lost[k]/booked[k])
+			}
+			out = append(out, *r)
+		}
+	}
+	return out
 }
 
 // Over reports whether the answers booked need more airtime than some
@@ -119,19 +217,24 @@ func (m *Model) gatewayBudgets() (float64, error) {
 				perBand[b] += 1 / float64(len(chans))
 				duty[b] = d
 			}
+			// An answer refused in RX1 falls back to this (group, data
+			// rate)'s RX2 stream, appended after them.
+			rx2 := len(m.Gateways[gw].Streams) + len(order)
 			for _, b := range order {
 				m.Gateways[gw].Streams = append(m.Gateways[gw].Streams, lora.DownlinkStream{
-					Rate: answers * gr.RX1Share * perBand[b], Airtime: a1, Lead: tm.ReceiveDelay1, Band: b, DutyCycle: duty[b]})
+					Rate: answers * gr.RX1Share * perBand[b], Airtime: a1, Lead: tm.ReceiveDelay1, Band: b, DutyCycle: duty[b], Fallback: rx2 + 1})
+				m.Gateways[gw].Window = append(m.Gateways[gw].Window, 1)
 				refs[gw] = append(refs[gw], streamRef{gi, dm.DR, 1})
 			}
 			m.Gateways[gw].Streams = append(m.Gateways[gw].Streams, lora.DownlinkStream{
 				Rate: answers * (1 - gr.RX1Share), Airtime: a2, Lead: tm.ReceiveDelay2, Band: b2, DutyCycle: d2})
+			m.Gateways[gw].Window = append(m.Gateways[gw].Window, 2)
 			refs[gw] = append(refs[gw], streamRef{gi, dm.DR, 2})
 		}
 	}
 	// The share sent of a (group, data rate, window): its streams' shares
 	// weighted by their rates (all 1 where nothing is booked).
-	type acc struct{ rate, sent float64 }
+	type acc struct{ rate, sent, fell float64 }
 	tot := map[streamRef]*acc{}
 	for gw := range m.Gateways {
 		b, err := lora.GatewayDownlinks(m.Gateways[gw].Streams)
@@ -148,6 +251,7 @@ func (m *Model) gatewayBudgets() (float64, error) {
 			r := m.Gateways[gw].Streams[i].Rate
 			a.rate += r
 			a.sent += r * b.Sent[i]
+			a.fell += r * b.FallbackSent[i]
 		}
 	}
 	change := 0.0
@@ -163,6 +267,12 @@ func (m *Model) gatewayBudgets() (float64, error) {
 				change = math.Max(change, math.Abs(v-*p))
 				*p = v
 			}
+			v := 0.0
+			if a := tot[streamRef{gi, dm.DR, 1}]; a != nil && a.rate > 0 {
+				v = a.fell / a.rate
+			}
+			change = math.Max(change, math.Abs(v-dm.RX1Fallback))
+			dm.RX1Fallback = v
 		}
 	}
 	return change, nil
@@ -189,29 +299,16 @@ func uplinkChannels(r lora.Region, mask lora.ChannelMask, dr int) []int {
 // regulations. Names are quoted (Quote).
 func (m Model) GatewayWarnings() []Warning {
 	var out []Warning
-	for gi, g := range m.Gateways {
-		for _, b := range g.Budget.Bands {
-			if !b.Over() {
-				continue
-			}
-			band := "the region's transmitter limit"
-			if sbs := m.Scenario.Region.SubBands(); b.Band >= 0 && b.Band < len(sbs) {
-				band = "the " + sbs[b.Band].String() + " sub-band"
-			}
-			rate, sent := 0.0, 0.0
-			for i, st := range g.Streams {
-				if st.Band == b.Band {
-					rate += st.Rate
-					sent += st.Rate * g.Budget.Sent[i]
-				}
-			}
-			share := 1.0
-			if rate > 0 {
-				share = sent / rate
-			}
-			out = append(out, Warning{Kind: GatewayBudget, Group: -1, Gateway: gi, Text: fmt.Sprintf("GATEWAY: %s: its answers need %s of the time in %s, above the %s duty-cycle limit; it can send about %s of them (stated error %.2g percentage points), the rest are lost and the nodes retransmit (planned). Add gateways, answer less often, move answers to RX2 or a faster data rate; check the local rules for gateways and defer to the regulator.",
-				Quote(m.Scenario.Gateways[gi].Name), percent(b.Offered), band, percent(b.DutyCycle), percent(share), 100*g.Budget.Error)})
+	for _, b := range m.GatewayBudgets() {
+		if !b.Over() {
+			continue
 		}
+		band := "the region's transmitter limit"
+		if b.Band != "transmitter" {
+			band = "the " + b.Band + " sub-band"
+		}
+		out = append(out, Warning{Kind: GatewayBudget, Group: -1, Gateway: b.Gateway, Text: fmt.Sprintf("GATEWAY: %s: its answers need %s of the time in %s, above the %s duty-cycle limit; %s of the answers booked there are sent in neither window (stated error %.2g percentage points; an answer refused in RX1 is tried in RX2), and the nodes retransmit (planned). Add gateways, answer less often, move answers to RX2 or a faster data rate; check the local rules for gateways and defer to the regulator.",
+			Quote(m.Scenario.Gateways[b.Gateway].Name), percent(b.Offered()), band, percent(b.DutyCycle), percent(b.Lost), 100*m.Gateways[b.Gateway].Budget.FallbackError)})
 	}
 	return out
 }

@@ -191,3 +191,62 @@ func TestMoreRegionsPlan(t *testing.T) {
 		})
 	}
 }
+
+// The budget table: per gateway and sub-band, the airtime the answers need
+// and use by window against the limit. The limits are ERC Recommendation
+// 70-03 Annex 1's (1 % in 868.0–868.6 MHz, 10 % in 869.4–869.65 MHz, as
+// the EU863-870 table holds them); a US902-928 gateway has one row, the
+// transmitter (no duty-cycle sub-bands: the dwell time limits uplinks
+// only, RP002-1.0.3 §2.5, from memory). The used shares never exceed the
+// limit (the off-time rule), they add up to what lora.GatewayDownlinks
+// reports per band, and the answers lost in an RX1 band are those sent in
+// neither window (1 − RX1Sent − RX1Fallback).
+func TestGatewayBudgetTable(t *testing.T) {
+	for _, n := range []int{10, 400} {
+		s, err := scenario.Demo().WithCounts([]int{1, 1, n, 1})
+		require.NoError(t, err)
+		s.Groups = s.Groups[2:3]
+		s.Groups[0].Interval = 600
+		m, err := scenario.Build(s, nil)
+		require.NoError(t, err)
+		rows := m.GatewayBudgets()
+		require.NotEmpty(t, rows)
+		limits := map[string]float64{}
+		for _, r := range rows {
+			limits[r.Band] = r.DutyCycle
+			assert.LessOrEqual(t, r.Used(), r.DutyCycle*(1+1e-12), "%d nodes, %s", n, r.Band)
+			assert.LessOrEqual(t, r.UsedRX1, r.OfferedRX1*(1+1e-12))
+			assert.LessOrEqual(t, r.UsedRX2+r.UsedFallback, r.OfferedRX2*(1+1e-12))
+			found := false
+			for _, b := range m.Gateways[r.Gateway].Budget.Bands {
+				if b.DutyCycle == r.DutyCycle && math.Abs(b.Used-r.Used()) <= 1e-12*b.Used+1e-300 {
+					found = true
+				}
+			}
+			assert.True(t, found, "%s: the row's use is lora's", r.Band)
+		}
+		assert.Equal(t, 0.01, limits["868.0–868.60 MHz (1 %)"], "ERC 70-03 Annex 1")
+		assert.Equal(t, 0.1, limits["869.4–869.65 MHz (10 %)"], "ERC 70-03 Annex 1")
+		rx1 := rows[0]
+		require.Positive(t, rx1.OfferedRX1)
+		lost, rate := 0.0, 0.0
+		for _, d := range m.Groups[0].PerDR {
+			w := d.Share * d.Frames * d.UplinkSuccess
+			lost += w * (1 - d.RX1Sent - d.RX1Fallback)
+			rate += w
+		}
+		assert.InDelta(t, lost/rate, rx1.Lost, 1e-9, "%d nodes: lost in the RX1 band", n)
+		if n == 400 {
+			assert.True(t, rx1.Over())
+			assert.Positive(t, rows[len(rows)-1].UsedFallback, "answers refused in RX1 go out in RX2")
+		}
+	}
+	s, err := scenario.Load("testdata/us902-928.json")
+	require.NoError(t, err)
+	m, err := scenario.Build(s, nil)
+	require.NoError(t, err)
+	for _, r := range m.GatewayBudgets() {
+		assert.Equal(t, "transmitter", r.Band)
+		assert.Equal(t, 1.0, r.DutyCycle)
+	}
+}

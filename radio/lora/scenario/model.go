@@ -77,8 +77,12 @@ type DRModel struct {
 	// Frames is the mean number of transmissions per report.
 	Frames float64
 	// RX1Sent and RX2Sent are the probabilities that the gateway can send
-	// an answer booked in RX1 and in RX2 (lora.GatewayDownlinks).
-	RX1Sent, RX2Sent float64
+	// an answer booked in RX1 and in RX2 (lora.GatewayDownlinks), and
+	// RX1Fallback the probability that an answer booked in RX1 is refused
+	// there and sent in RX2 instead (the network server's fallback); an
+	// answer booked in RX1 is lost with probability 1 − RX1Sent −
+	// RX1Fallback.
+	RX1Sent, RX2Sent, RX1Fallback float64
 	// Windows are the downlink probabilities per attempt.
 	Windows lora.Windows
 }
@@ -262,7 +266,7 @@ func (m *Model) solveCollisions() error {
 				}
 				dm.UplinkSuccess = succ
 				gr := g.Group
-				w, err := lora.DownlinkWindows(succ, gr.AnswerShare, gr.RX1Share, dm.RX1Sent*(1-gr.DownlinkLoss), dm.RX2Sent*(1-gr.DownlinkLoss))
+				w, err := answerWindows(succ, gr, *dm)
 				if err != nil {
 					return err
 				}
@@ -290,6 +294,22 @@ func (m *Model) solveCollisions() error {
 			return fmt.Errorf("scenario: the retransmission load did not settle after %d rounds (last change %.3g frames)", maxIter, change)
 		}
 	}
+}
+
+// answerWindows returns the downlink probabilities per attempt of a group's
+// node at one data rate, with uplink success up: the network answers
+// (AnswerShare), in RX1 with probability RX1Share, where the gateway sends
+// it (RX1Sent) or falls back to RX2 (RX1Fallback), otherwise in RX2
+// (RX2Sent); a sent answer arrives with probability 1 − DownlinkLoss:
+//
+//	RX1 = up·answer·RX1Share·RX1Sent·(1 − loss)
+//	RX2 = up·answer·((1 − RX1Share)·RX2Sent + RX1Share·RX1Fallback)·(1 − loss)
+func answerWindows(up float64, g Group, d DRModel) (lora.Windows, error) {
+	p, err := lora.DownlinkProbability(up, g.AnswerShare, 1-g.DownlinkLoss)
+	if err != nil {
+		return lora.Windows{}, err
+	}
+	return lora.Windows{RX1: p * g.RX1Share * d.RX1Sent, RX2: p * ((1-g.RX1Share)*d.RX2Sent + g.RX1Share*d.RX1Fallback)}, nil
 }
 
 // Channels returns the number of the region's uplink channels that carry

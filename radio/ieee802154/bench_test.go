@@ -63,3 +63,31 @@ func BenchmarkCycle(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkFrameEnergyRefused is the cost of refusing a setting beyond
+// MaxFramePaths (macMaxBE 8, 7 retries, half the transmissions
+// unacknowledged): the structural count and the error. Before the cap the
+// same call ran for about 10 s of CPU into package dist's caps on exact
+// sums.
+func BenchmarkFrameEnergyRefused(b *testing.B) {
+	n := testNode()
+	n.CSMA.MaxBE, n.CSMA.MaxFrameRetries, n.AckLoss = 8, 7, 0.5
+	for b.Loop() {
+		if _, err := n.FrameEnergy(); err == nil {
+			b.Fatal("accepted")
+		}
+	}
+}
+
+// BenchmarkCycleMaxBE6 builds the cycle law of the test node with macMaxBE
+// 6 (27 521 frame paths, below MaxFramePaths).
+func BenchmarkCycleMaxBE6(b *testing.B) {
+	n := testNode()
+	n.CSMA.MaxBE = 6
+	period := dist.MustPointMass(60)
+	for b.Loop() {
+		if _, err := n.Cycle(period); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

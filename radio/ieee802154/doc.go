@@ -56,7 +56,10 @@
 // constant current and a constant or finite discrete duration, and
 // package dist combines them exactly (atoms merged within
 // dist.AtomMergeTolerance, relative 1e-12). Node.Timeline gives the
-// durations and outcome probabilities as plain data.
+// durations and outcome probabilities as plain data. Settings whose frame
+// has more than MaxFramePaths distinct paths (macMaxFrameRetries 7, or
+// macMaxBE 8 with many retries) are refused at once with an error naming
+// the cap, since their exact laws would run into package dist's caps.
 //
 // # Cautions
 //

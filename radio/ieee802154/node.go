@@ -86,19 +86,23 @@ const MaxWake = 1.0
 // energy law is exact (finite discrete): every state has a constant
 // current and a constant or finite discrete duration.
 //
-// Size and cost. The law has one atom per distinct energy: 6775 for the
-// test node of this package's tests (default attributes, 30 % busy CCAs,
-// 20 % of transmissions unacknowledged), built in about 0.45 s of CPU,
-// nearly all of it package dist's exact convolutions of discrete laws. It
-// grows with macMaxBE, macMaxFrameRetries, the busy and loss
-// probabilities, and with BackoffSleep in FrameEnergy (the sleep current's
-// small energies separate atoms that the cycle, counting above the sleep
-// floor, keeps merged). Where an exact sum would exceed dist.MaxSumAtoms
-// atoms (or 16·MaxSumAtoms atom pairs), FrameEnergy and Cycle return
-// package dist's error instead, after some seconds: for example macMaxBE 8
-// with 7 retries and 50 % of transmissions unacknowledged. The CSMA laws
-// (CSMA.CCAs, CSMA.BackoffTime, CSMA.Frame) stay small (at most 1531
-// atoms) and build in about a millisecond.
+// Size and cost. The law has one atom per distinct energy: 6775 for the test
+// node of this package's tests (default attributes, 30 % busy CCAs, 20 % of
+// transmissions unacknowledged), built in about 0.45 s of CPU, nearly all of
+// it package dist's exact convolutions of discrete laws. It grows with
+// macMaxBE, macMaxCSMABackoffs and macMaxFrameRetries, and with BackoffSleep
+// in FrameEnergy (the sleep current's small energies separate atoms that the
+// cycle, counting above the sleep floor, keeps merged). Package energy also
+// builds the law of the active time, which has one atom per distinct
+// duration. Settings whose frame has more than MaxFramePaths distinct paths
+// (attempts and outcome, CCAs, backoff periods, wakes: a bound on the atoms
+// of both laws, counted from the structure in about a millisecond) are
+// refused at once by FrameEnergy, FrameStage, Stage and Cycle with an error
+// naming the cap: for example macMaxFrameRetries 7, or macMaxBE 8 with 7
+// retries, which would otherwise run for tens of seconds into package dist's
+// caps on exact sums. The CSMA laws (CSMA.CCAs, CSMA.BackoffTime,
+// CSMA.Frame) stay small (at most 1531 atoms), build in about a millisecond
+// and have no such limit.
 type Node struct {
 	PHY      PHY      // the PHY, e.g. OQPSK2450()
 	CSMA     CSMA     // the MAC attributes, e.g. DefaultCSMA()
@@ -213,6 +217,9 @@ func (n Node) FrameStage() (energy.Stage, error) {
 	if err != nil {
 		return nil, err
 	}
+	if err := n.checkSize("Node.FrameStage"); err != nil {
+		return nil, err
+	}
 	return n.frameStage(tl)
 }
 
@@ -223,6 +230,9 @@ func (n Node) FrameStage() (energy.Stage, error) {
 func (n Node) FrameEnergy() (dist.Law, error) {
 	tl, err := n.Timeline()
 	if err != nil {
+		return nil, err
+	}
+	if err := n.checkSize("Node.FrameEnergy"); err != nil {
 		return nil, err
 	}
 	st, err := n.frameStage(tl)

@@ -222,3 +222,43 @@ func TestDiscoveryBadInput(t *testing.T) {
 	var zero ble.Discovery
 	assert.True(t, math.IsNaN(zero.CDF(1)) && math.IsNaN(zero.Mean()))
 }
+
+// TestDiscoveryWithin: a tolerance tighter than DiscoveryTolerance refines
+// the grid until the stated error meets it, and the stated error still
+// bounds the true one against the exact first-event integral; at
+// DiscoveryTolerance it is NewDiscovery, bit for bit; a tolerance no grid
+// allowed can meet, and one outside (0, 1), are errors naming tol.
+func TestDiscoveryWithin(t *testing.T) {
+	c := discoveryCases()[0]
+	tl, err := c.adv.Timeline()
+	require.NoError(t, err)
+	d, err := ble.NewDiscoveryWithin(c.adv, c.scan, c.success, c.horizon, 7e-5)
+	require.NoError(t, err)
+	acc := d.Accuracy().CDFAbs
+	assert.LessOrEqual(t, acc, 7e-5)
+	assert.Less(t, ble.DiscoveryCell(d), ble.AdvIntervalStep/16, "refined below the first grid")
+	worst := 0.0
+	for i := 1; i <= 200; i++ {
+		x := c.adv.Interval * float64(i) / 200
+		worst = math.Max(worst, math.Abs(d.CDF(x)-firstEventCDF(c, tl, x)))
+	}
+	t.Logf("tol 7e-5: %.4g µs cells, first-event CDF error %.3g, stated %.3g", ble.DiscoveryCell(d)*1e6, worst, acc)
+	assert.LessOrEqual(t, worst, acc)
+
+	def, err := ble.NewDiscovery(c.adv, c.scan, c.success, c.horizon)
+	require.NoError(t, err)
+	at, err := ble.NewDiscoveryWithin(c.adv, c.scan, c.success, c.horizon, ble.DiscoveryTolerance)
+	require.NoError(t, err)
+	assert.Equal(t, def.Accuracy(), at.Accuracy())
+	for _, x := range []float64{0.05, 0.5, 1, 2.5} {
+		assert.Equal(t, def.CDF(x), at.CDF(x))
+	}
+
+	for _, tol := range []float64{1e-9, 0, 1, math.NaN(), -1} {
+		_, err := ble.NewDiscoveryWithin(c.adv, c.scan, c.success, 0.3, tol)
+		require.ErrorIs(t, err, ble.ErrParam, "tol %g", tol)
+		assert.Contains(t, err.Error(), "tol", "tol %g", tol)
+	}
+	_, err = ble.NewDiscoveryWithin(c.adv, c.scan, c.success, 0.3, 1e-9)
+	assert.ErrorContains(t, err, "cannot be met")
+}

@@ -50,9 +50,11 @@
 // its stationary regime when scanning starts, advDelay uniform and
 // independent per event, the channel order 37 → 38 → 39 within each event,
 // a PDU received only if wholly inside a window on its channel and, with a
-// given probability, not collided. It is computed on a time grid with an
-// error estimate (Accuracy; 4e-5 to 7e-5 in CDF in the tests) checked
-// against an exact first-event integral and an event-level sampler;
+// given probability, not collided. It is computed on a time grid to a
+// stated CDF error of about DiscoveryTolerance (2.5e-4; NewDiscoveryWithin
+// refines the grid to a tolerance of the caller's), an error estimate
+// (Accuracy; 3.7e-5 to 2.3e-4 in the tests, true errors at most 8.7e-5)
+// checked against an exact first-event integral and an event-level sampler;
 // Discovery.Rand samples the model itself. PDUSuccess gives the
 // probability that a PDU escapes overlap with n alike neighbours,
 // (1 − (T + T')/E[interval])^n: exact for independent stationary

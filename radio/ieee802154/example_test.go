@@ -1,6 +1,7 @@
 package ieee802154_test
 
 import (
+	"errors"
 	"fmt"
 	"math/rand/v2"
 
@@ -80,4 +81,21 @@ func ExampleCSMA() {
 	// backoff: mean 1.846 ms, 99th percentile 12.16 ms
 	// run with its CCAs: mean 2.006 ms, at most 37.44 ms
 	// acknowledged 0.999545; transmissions per frame: mean 1.1106
+}
+
+// ExampleNode_FrameEnergy shows a setting too large for an exact law: with
+// macMaxFrameRetries 7 the frame has more distinct paths than
+// MaxFramePaths, and FrameEnergy refuses it at once, naming the cap.
+func ExampleNode_FrameEnergy() {
+	node := ieee802154.Node{
+		PHY: ieee802154.OQPSK2450(), CSMA: ieee802154.DefaultCSMA(), Currents: ieee802154.TypicalCurrents(),
+		Payload: 24, AckRequest: true, Busy: 0.1, AckLoss: 0.05,
+	}
+	node.CSMA.MaxFrameRetries = 7
+	_, err := node.FrameEnergy()
+	fmt.Println(err)
+	fmt.Println(errors.Is(err, ieee802154.ErrParam))
+	// Output:
+	// ieee802154.Node.FrameEnergy: CSMA = {macMinBE 3, macMaxBE 5, macMaxCSMABackoffs 4, macMaxFrameRetries 7}: gives the frame 116321 distinct paths, more than MaxFramePaths (32768) for an exact law: lower macMaxBE, macMaxCSMABackoffs or macMaxFrameRetries
+	// true
 }

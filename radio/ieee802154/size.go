@@ -204,10 +204,9 @@ func (r *bounds) add(lo, hi int) {
 // has more paths.
 func (n Node) checkSize(fn string) error {
 	if paths := n.framePaths(); paths > MaxFramePaths {
-		return paramErr(fn, "Node (macMaxBE, macMaxFrameRetries, Busy, AckLoss, Backoff)",
-			fmt.Sprintf("macMinBE %d, macMaxBE %d, macMaxCSMABackoffs %d, macMaxFrameRetries %d, Busy %g, AckLoss %g",
-				n.CSMA.MinBE, n.CSMA.MaxBE, n.CSMA.MaxCSMABackoffs, n.CSMA.MaxFrameRetries, n.Busy, n.AckLoss),
-			fmt.Sprintf("the frame has %.0f distinct paths, more than MaxFramePaths (%d) for an exact law: lower macMaxBE, macMaxCSMABackoffs or macMaxFrameRetries", paths, MaxFramePaths))
+		return paramErr(fn, "CSMA", fmt.Sprintf("{macMinBE %d, macMaxBE %d, macMaxCSMABackoffs %d, macMaxFrameRetries %d}",
+			n.CSMA.MinBE, n.CSMA.MaxBE, n.CSMA.MaxCSMABackoffs, n.CSMA.MaxFrameRetries),
+			fmt.Sprintf("gives the frame %.0f distinct paths, more than MaxFramePaths (%d) for an exact law: lower macMaxBE, macMaxCSMABackoffs or macMaxFrameRetries", paths, MaxFramePaths))
 	}
 	return nil
 }

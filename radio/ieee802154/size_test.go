@@ -107,7 +107,7 @@ func TestFramePathCap(t *testing.T) {
 		require.Error(t, err, tc.name)
 		assert.True(t, errors.Is(err, ieee802154.ErrParam), tc.name)
 		assert.ErrorContains(t, err, "MaxFramePaths (32768)", tc.name)
-		assert.ErrorContains(t, err, "macMaxFrameRetries 7", tc.name)
+		assert.ErrorContains(t, err, "macMaxFrameRetries 7}", tc.name)
 		var pe *ieee802154.ParamError
 		require.ErrorAs(t, err, &pe)
 		assert.Equal(t, "Node.FrameEnergy", pe.Func)

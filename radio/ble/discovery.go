@@ -140,15 +140,15 @@ func NewDiscovery(adv Advertiser, scan Scanner, success, horizon float64) (Disco
 
 // NewDiscoveryWithin is NewDiscovery computed until its stated CDF error
 // (Accuracy().CDFAbs) is at most tol (in (0, 1)): the law is computed on
-// grids of cell width h = 39.0625 µs (or the least power-of-two multiple
-// of 0.625 ms/64 that keeps the time grid and one scan cycle within
-// MaxDiscoveryCells) and 2h, the error estimated from their difference, and
-// h halved, down to 0.625 ms/256 and within MaxDiscoveryCells, until the
-// estimate meets tol. It fails, wrapping ErrParam and naming tol, when the
-// finest grid allowed does not, and, as NewDiscovery, when even 0.3125 ms
-// cells exceed MaxDiscoveryCells. The cost doubles with each halving of h:
-// tol 7e-5 takes about 3 to 5 times as long as DiscoveryTolerance for the
-// horizons of a few seconds in the tests.
+// grids of cell width h = 39.0625 µs (for long horizons the least
+// power-of-two multiple of it that keeps the time grid and one scan cycle
+// within MaxDiscoveryCells) and 2h, the error estimated from their
+// difference, and h halved, down to 0.625 ms/256 and within
+// MaxDiscoveryCells, until the estimate meets tol. It fails, wrapping
+// ErrParam and naming tol, when the finest grid allowed does not, and, as
+// NewDiscovery, when even 0.3125 ms cells exceed MaxDiscoveryCells. The
+// cost doubles with each halving of h: tol 7e-5 takes about 5 times as long
+// as DiscoveryTolerance for the 3 s horizon of the benchmarks.
 func NewDiscoveryWithin(adv Advertiser, scan Scanner, success, horizon, tol float64) (Discovery, error) {
 	const fn = "NewDiscoveryWithin"
 	if !(tol > 0 && tol < 1) {

@@ -33,6 +33,7 @@ package main
 
 import (
 	"fmt"
+	"io"
 	"os"
 
 	"github.com/joulelaw/joulelaw/dist"
@@ -64,14 +65,14 @@ var kinds = []struct {
 }
 
 func main() {
-	if err := run(); err != nil {
+	if err := run(os.Stdout); err != nil {
 		fmt.Fprintln(os.Stderr, "beacons:", err)
 		os.Exit(1)
 	}
 }
 
-func run() error {
-	fmt.Printf("A building of %d BLE beacons, a scanner listening %.0f ms of every %.0f ms (invented demo data)\n\n",
+func run(w io.Writer) error {
+	fmt.Fprintf(w, "A building of %d BLE beacons, a scanner listening %.0f ms of every %.0f ms (invented demo data)\n\n",
 		beacons, scanWindow*1e3, scanEvery*1e3)
 	cur := ble.ExampleCurrents()
 	scanner := ble.Scanner{Window: scanWindow, Interval: scanEvery}
@@ -115,10 +116,10 @@ func run() error {
 			return err
 		}
 		active := cy.Energy().Mean() - cur.Floor*cur.Voltage*gap.Mean() // J per event above the sleep floor
-		fmt.Printf("%-8s beacons (%2.0f %%), every %.2f s: PDU %.0f µs, event %.2f ms, %.2f µJ per event above sleep, mean current %.2f µA\n",
+		fmt.Fprintf(w, "%-8s beacons (%2.0f %%), every %.2f s: PDU %.0f µs, event %.2f ms, %.2f µJ per event above sleep, mean current %.2f µA\n",
 			k.name, 100*k.share, k.interval, tl.PDU*1e6, tl.Event*1e3, active*1e6, cy.MeanCurrent(cur.Voltage)*1e6)
-		fmt.Printf("         PDU escapes collision with %d neighbours: %.4f\n", heard, ok)
-		fmt.Printf("         heard within 1 s: %.3f; median %.2f s, 90 %% between %.2f and %.2f s; not within %.0f s: %.1e (stated CDF error %.0e)\n",
+		fmt.Fprintf(w, "         PDU escapes collision with %d neighbours: %.4f\n", heard, ok)
+		fmt.Fprintf(w, "         heard within 1 s: %.3f; median %.2f s, 90 %% between %.2f and %.2f s; not within %.0f s: %.1e (stated CDF error %.0e)\n",
 			found.CDF(1), found.Quantile(0.5), lo, hi, findWithin, found.Undiscovered(), found.Accuracy().CDFAbs)
 		settings = append(settings, energy.NodeSetting{Weight: k.share, Cycle: cy})
 	}
@@ -132,5 +133,5 @@ func run() error {
 		Spread:       energy.NodeSpread{Capacity: 0.03, Floor: 0.3, Active: 0.05},
 		CalendarLife: 10 * energy.Year,
 	}
-	return lifereport.Print(os.Stdout, spec, "beacon", beacons, horizon*energy.Year, 37)
+	return lifereport.Print(w, spec, "beacon", beacons, horizon*energy.Year, 37)
 }

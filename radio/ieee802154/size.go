@@ -14,11 +14,12 @@ import (
 // the cap, instead of running for seconds or minutes into package dist's
 // caps on exact sums (dist.MaxSumAtoms). The count bounds the atoms of both
 // laws package energy builds from the frame: of the energy and of the active
-// time. The standard's default attributes count 18 689 paths at any busy and
-// loss probability strictly between 0 and 1; macMaxBE 6 counts 27 521 and
-// takes about 2.7 times as long to build (BENCHMARKS.md). Refused, for example: macMaxFrameRetries 7 with the
-// other attributes at their defaults (116 321 paths), macMaxBE 8 with 7
-// retries (229 217).
+// time. The standard's default attributes count 18 689 paths for an
+// acknowledged frame at any busy and loss probability strictly between 0 and
+// 1 (without a wake time); macMaxBE 6 counts 27 521 and takes about 2.7
+// times as long to build (BENCHMARKS.md). Refused, for example:
+// macMaxFrameRetries 7 with the other attributes at their defaults (116 321
+// paths), macMaxBE 8 with 7 retries (229 217).
 const MaxFramePaths = 1 << 15
 
 // frameAtoms returns, for a validated node, an upper bound on the number of

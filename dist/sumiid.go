@@ -26,11 +26,12 @@ const MaxSumIIDTerms = 1 << 40
 // gamma, and an affine map a·X + b of one of those a·(X_1 + … + X_k) + k·b
 // (a shifted gamma for a cycle with a fixed floor and a gamma burst). A finite discrete law of d atoms (the energy of a cycle whose
 // states are constant or discrete, say) goes, in this order, to
-//   - the exact Discrete of its k-fold atoms (repeated squaring) when there
-//     are at most 1024 of them (C(k+d−1, d−1) <= 1024);
-//   - the exact Discrete of its k-fold atoms, merged, when its atoms lie on
+//   - the exact Discrete of its k-fold masses, by repeated squaring of
+//     dense arrays on the lattice (sumiid_dense.go), when its atoms lie on
 //     a common lattice v0 + m·δ and the k-fold sum spans at most 65536
 //     lattice points;
+//   - the exact Discrete of its k-fold atoms (repeated squaring) when there
+//     are at most 1024 of them (C(k+d−1, d−1) <= 1024);
 //   - for d = 2, the exact binomial law of the count of the larger value
 //     (stated 1e-13 absolute, 1e-12 relative in both tails down to 1e-300),
 //     and for d = 3 the exact sum of binomial tails over the count of the
@@ -178,12 +179,15 @@ func discreteSumIID(d Discrete, k int) (Law, error) {
 		}
 		return discreteFromAtoms(atoms), nil
 	}
-	if n == 1 || multichoose(n, k) <= exactListAtoms {
+	if n == 1 {
 		return list()
 	}
-	_, _, ns, onLattice := latticeOf(d)
+	v0, delta, ns, onLattice := latticeOf(d)
 	if onLattice && float64(k)*float64(ns[len(ns)-1])+1 <= latticeMinAtoms {
-		return list() // at most 65536 lattice points: the merged atoms
+		return latticeList(d, v0, delta, ns, k), nil // at most 65536 lattice points: the exact masses
+	}
+	if multichoose(n, k) <= exactListAtoms {
+		return list()
 	}
 	if n <= 3 {
 		return newAtomicSumLaw(d, int64(k)), nil

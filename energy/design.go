@@ -168,7 +168,14 @@ type Design struct {
 // Level: the interval returned meets the target whenever the stated error
 // holds. It evaluates the shortest allowed interval (the larger of
 // Space.MinInterval and the candidate's MinInterval) and Space.MaxInterval,
-// then bisects geometrically (√(lo·hi)) until hi/lo − 1 <= Tolerance. The
+// then bisects geometrically (√(lo·hi)) on p alone until hi/lo − 1 <=
+// Tolerance, asking for ε only where it decides: at the ends found (going
+// on with p + ε from there when ε moves the answer), at the shortest
+// interval when p alone meets the level there, and at the longest when the
+// choice is infeasible or ε moves the answer. (Regula falsi on the probit
+// of p was tried: p is a mixture over the settings, a staircase of smooth
+// steps, nearly flat at a level that falls on a step's plateau, and the
+// secant saved nothing.) The
 // shortest truly feasible interval lies in (IntervalLow, Interval]:
 // IntervalLow is bracketed the same way on p − ε > Level, reusing the
 // evaluations (usually none more: ε moves the interval far less than the
@@ -346,30 +353,43 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64) (Des
 	}
 	s := p.Space
 	lev := p.Target.Level
-	hiE, err := eval(s.MaxInterval, true)
+	// The stated error at the longest interval only where it decides or is
+	// reported: an infeasible choice, or a search whose answer ε moves.
+	hiE, err := eval(s.MaxInterval, false)
 	if err != nil {
 		return DesignResult{}, err
 	}
 	lo := math.Max(s.MinInterval, minDuty)
 	res := DesignResult{}
-	switch {
-	case lo > s.MaxInterval:
-		// The radio rules forbid every interval of the range.
-		res, err = p.result(c, hiE, false, BindDutyCycle)
-		res.Builds = builds
-		return res, err
-	case hiE.p+hiE.eps > lev:
-		bind := BindEnergy
-		if p.Target.Date >= hiE.laws.calendar {
+	infeasible := func(bind Binding) (DesignResult, error) {
+		e, err := eval(s.MaxInterval, true)
+		if err != nil {
+			return DesignResult{}, err
+		}
+		if bind == BindEnergy && p.Target.Date >= e.laws.calendar {
 			bind = BindCalendar
 		}
-		res, err = p.result(c, hiE, false, bind)
+		res, err := p.result(c, e, false, bind)
 		res.Builds = builds
 		return res, err
 	}
-	loE, err := eval(lo, true)
+	switch {
+	case lo > s.MaxInterval:
+		// The radio rules forbid every interval of the range.
+		return infeasible(BindDutyCycle)
+	case hiE.p > lev:
+		return infeasible(BindEnergy)
+	}
+	// The stated error at the lower end only when p alone meets the level
+	// there (p > Level fails p + ε too).
+	loE, err := eval(lo, false)
 	if err != nil {
 		return DesignResult{}, err
+	}
+	if loE.p <= lev {
+		if loE, err = eval(lo, true); err != nil {
+			return DesignResult{}, err
+		}
 	}
 	if loE.p+loE.eps <= lev {
 		bind := BindRange
@@ -398,14 +418,22 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64) (Des
 	}
 	conservative := func(e evaluation) bool { return e.p+e.eps <= lev }
 	// On p alone (p > lev fails p + ε too), then with ε.
-	_, b, err := bisect(loE, hiE, false, func(e evaluation) bool { return e.p <= lev })
-	if err != nil {
-		return DesignResult{}, err
+	b := loE
+	if loE.p > lev {
+		if _, b, err = bisect(loE, hiE, false, func(e evaluation) bool { return e.p <= lev }); err != nil {
+			return DesignResult{}, err
+		}
 	}
 	if b, err = eval(b.interval, true); err != nil {
 		return DesignResult{}, err
 	}
 	if !conservative(b) {
+		if hiE, err = eval(s.MaxInterval, true); err != nil {
+			return DesignResult{}, err
+		}
+		if !conservative(hiE) {
+			return infeasible(BindEnergy)
+		}
 		if _, b, err = bisect(b, hiE, true, conservative); err != nil {
 			return DesignResult{}, err
 		}

@@ -90,6 +90,46 @@
 // mean and variance (a five-cumulant Gaussian rule measures what the
 // higher cumulants move), and each law reports its error (dist.Estimated).
 //
+// # What it takes: the design search and the replacement policies
+//
+// The planner's questions are often inverse: what is the shortest reading
+// interval that meets a target, with which cell, link and batching, and how
+// should the cells be replaced. SearchDesign answers the first: a
+// DesignProblem holds the DesignSpace (the reading interval, searched in a
+// range, and lists of cells, Links — confirmed or not, with the most
+// transmissions —, readings per uplink and receive-window settings), a
+// Target and a Builder that makes the nodes' NodeSpec of a DesignChoice
+// (and the shortest interval the radio rules allow for it). A Target is
+// one of three statements about p = P(flat by the date T):
+//
+//	NodeFlat:     P(a node is flat by T)            <= r
+//	NodeQuantile: the q-quantile of a node's life   >= T
+//	GroupFlat:    P(any of the group's n nodes flat by T) <= r
+//
+// For each discrete choice the interval is bisected geometrically on the
+// monotone p, each candidate's law mixed over the shared factors as Site
+// mixes (MixedNodeLifetime is that law), and a choice meets the target
+// only when p plus its stated error does; the shortest truly feasible
+// interval lies in (IntervalLow, Interval]. An infeasible choice is not an
+// error: its DesignResult gives the best figure (at the longest interval)
+// and what binds (the energy, the calendar, the duty cycle). Design.Best is
+// the feasible choice with the shortest interval.
+//
+// Replacement over a horizon: a Policy replaces on a schedule (every node
+// of a group at its dates: ReplaceAll, ReplaceGroups), on failure
+// (ReplaceOnFailure: the renewal counts of the node law, Renewals, by
+// exact k-fold sums or, for a tabulated node law, on a lattice with a
+// stated error), or
+// both (ReplaceGroupsAndFailures). Site.Replacement gives, for one policy,
+// the laws of the visits, cells and failures over the horizon (mixtures
+// over the shared factors of the nodes' exact counts) with their 90 %
+// bands per year, the probability that any node is flat within the horizon
+// (from the survivals directly, with its stated error) and the cost from
+// Costs (per visit, per cell). Site.ComparePolicies picks the cheapest
+// policy whose probability of any flat node, error included, is within the
+// accepted risk; Site.Schedule finds the fewest equal replacement dates
+// (for the site or per group) that keep it there.
+//
 // # Cautions
 //
 // Primary lithium cells (lithium–thionyl chloride, lithium–manganese

@@ -94,7 +94,9 @@ type PolicyOutcome struct {
 	// at most the sum of their moves).
 	AnyFlat, AnyFlatError float64
 	// CountError is the stated CDF error of the count laws (the renewal
-	// counts' k-fold sums and the conditional node laws' tables).
+	// counts' lattice error, plus Max renewals times the conditional node
+	// laws' stated CDF error, which moves P(S_n <= t) by at most n times
+	// itself; the exact node laws' error for the scheduled blocks).
 	CountError float64
 	// Cost is the cost over the horizon: Visit·Visits + Cell·Cells.
 	Cost Band
@@ -109,10 +111,13 @@ type PolicyOutcome struct {
 // without OnFailure a node fails at most once per block, with probability
 // F(τ). The counts are the exact sums (dist.SumIID, dist.Sum) of the
 // nodes' counts, mixed over the shared factors' Gauss–Hermite nodes as
-// Site's other laws are. With OnFailure the renewal counts take k-fold sums
-// of the tabulated conditional node laws: lattice sums that cost about a
-// tenth of a second to a second each (k = 2 to 10), two workers over the
-// shared nodes and groups; without it only survivals are needed.
+// Site's other laws are. With OnFailure the renewal counts of the
+// tabulated conditional node laws come from NewLatticeRenewals (their
+// k-fold sums on a lattice of DefaultRenewalPoints over the longest block,
+// with the stated error of a lattice of twice the step: a few milliseconds
+// to a few tens per law, where dist.SumIID's exact sums took 0.14–1.5 s
+// each), two workers over the shared nodes and groups; without it only
+// survivals are needed.
 func (s Site) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome, error) {
 	const fn = "Site.Replacement"
 	if len(s.envs) == 0 {
@@ -157,13 +162,16 @@ func (s Site) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome, er
 		}
 	}
 
-	// Any flat node, directly from the exact conditional laws.
-	for _, e := range s.envs {
+	// Any flat node, directly from the exact conditional laws; their stated
+	// errors at the blocks' lengths serve the failure counts too.
+	accAt := make([]float64, len(s.envs)*G)
+	for ei, e := range s.envs {
 		logNo, errE := 0.0, 0.0
 		for g := range G {
 			n := float64(s.spec.Groups[g].Count)
 			l := e.exact[g]
 			acc := l.accuracyAt([]float64{every[g], rest[g]}).CDFAbs
+			accAt[ei*G+g] = acc
 			if blocks[g] > 0 {
 				logNo += n * float64(blocks[g]) * math.Log(l.Survival(every[g]))
 			}
@@ -181,7 +189,7 @@ func (s Site) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome, er
 	accEG := make([]float64, len(s.envs)*G)
 	err = forEachOnTwo(len(s.envs)*G, func(i int) (err error) {
 		e, g := i/G, i%G
-		perEG[i], accEG[i], err = s.groupFailures(fn, e, g, p.OnFailure, every[g], blocks[g], rest[g])
+		perEG[i], accEG[i], err = s.groupFailures(fn, e, g, p.OnFailure, every[g], blocks[g], rest[g], accAt[i])
 		return err
 	})
 	if err != nil {
@@ -260,8 +268,9 @@ func (s Site) periods(fn string, p Policy, horizon float64) ([]float64, error) {
 }
 
 // groupFailures is the law of the failures of group g's nodes given the
-// shared node e, and its stated CDF error.
-func (s Site) groupFailures(fn string, e, g int, onFailure bool, tau float64, blocks int64, rest float64) (dist.Law, float64, error) {
+// shared node e, and its stated CDF error; lifeAcc is the exact node law's
+// stated CDF error at τ and the rest.
+func (s Site) groupFailures(fn string, e, g int, onFailure bool, tau float64, blocks int64, rest, lifeAcc float64) (dist.Law, float64, error) {
 	env := &s.envs[e]
 	n := s.spec.Groups[g].Count
 	name := fmt.Sprintf("group %q", s.names[g])
@@ -286,11 +295,13 @@ func (s Site) groupFailures(fn string, e, g int, onFailure bool, tau float64, bl
 		if blocks > 0 {
 			h = math.Max(tau, rest)
 		}
-		r, err := NewRenewals(env.laws[g], h)
+		r, err := NewLatticeRenewals(env.laws[g], h, 0)
 		if err != nil {
 			return nil, 0, causeErr(fn, name, h, "renewal counts", err)
 		}
-		acc = math.Max(acc, r.Accuracy().CDFAbs+env.laws[g].Accuracy().CDFAbs)
+		// The node law's own CDF error moves P(S_n <= t) by at most n
+		// times as much (Kolmogorov distance of a convolution).
+		acc = math.Max(acc, r.Accuracy().CDFAbs+float64(r.Max())*env.laws[g].Accuracy().CDFAbs)
 		for _, b := range blockCounts(tau, rest, n, blocks) {
 			c, err := r.Count(b.t)
 			if err != nil {
@@ -302,7 +313,7 @@ func (s Site) groupFailures(fn string, e, g int, onFailure bool, tau float64, bl
 		}
 	} else {
 		l := env.exact[g]
-		acc = math.Max(acc, l.accuracyAt([]float64{tau, rest}).CDFAbs)
+		acc = math.Max(acc, lifeAcc)
 		for _, b := range blockCounts(tau, rest, n, blocks) {
 			if err := add(bernoulli(l.CDF(b.t)), b.k); err != nil {
 				return nil, 0, err
@@ -448,9 +459,9 @@ func (s Site) Schedule(risk, horizon float64, perGroup bool) ([]float64, error) 
 		return nil, paramErr(fn, "horizon", horizon, "must be finite and > 0 (s)")
 	}
 	G := len(s.names)
-	// anyFlat returns P(any node of the groups in gs flat) + its error for
-	// k equal blocks of horizon/k.
-	anyFlat := func(gs []int, k int) float64 {
+	// anyFlat returns P(any node of the groups in gs flat) for k equal
+	// blocks of horizon/k, plus its stated error when withErr is set.
+	anyFlat := func(gs []int, k int, withErr bool) float64 {
 		tau := horizon / float64(k)
 		p, perr := 0.0, 0.0
 		for _, e := range s.envs {
@@ -459,16 +470,26 @@ func (s Site) Schedule(risk, horizon float64, perGroup bool) ([]float64, error) 
 				l := e.exact[g]
 				n := float64(s.spec.Groups[g].Count)
 				logNo += n * float64(k) * math.Log(l.Survival(tau))
-				errE += n * float64(k) * l.accuracyAt([]float64{tau}).CDFAbs
+				if withErr {
+					errE += n * float64(k) * l.accuracyAt([]float64{tau}).CDFAbs
+				}
 			}
 			p += e.w * -math.Expm1(logNo)
 			perr += e.w * math.Min(1, errE)
 		}
 		return p + perr
 	}
+	// The first k whose probability alone meets the risk, then the first
+	// from there whose probability plus its error does: the same k as
+	// asking for the error at every k (p + ε > r wherever p > r), with
+	// the error (the costly part) asked for only where it decides.
 	find := func(gs []int, r float64) (float64, error) {
-		for k := 1; k <= MaxScheduledReplacements; k++ {
-			if anyFlat(gs, k) <= r {
+		k := 1
+		for k <= MaxScheduledReplacements && anyFlat(gs, k, false) > r {
+			k++
+		}
+		for ; k <= MaxScheduledReplacements; k++ {
+			if anyFlat(gs, k, true) <= r {
 				return horizon / float64(k), nil
 			}
 		}

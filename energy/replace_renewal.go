@@ -29,9 +29,11 @@ const (
 //	N(t) >= n  if and only if  S_n = L_1 + … + L_n <= t,
 //	P(N(t) >= n) = P(S_n <= t),
 //
-// with the k-fold sums S_n from dist.SumIID (closed forms for exponential
-// and gamma lives, exact for finite discrete ones, lattice sums with a
-// stated error for a tabulated node law with its calendar atom). Renewals
+// with the k-fold sums S_n from dist.SumIID (NewRenewals: closed forms for
+// exponential and gamma lives, exact for finite discrete ones, transform
+// sums with a stated error for other laws, which can take a second each)
+// or on a lattice with a stated error (NewLatticeRenewals: milliseconds
+// for a tabulated node law with its calendar atom). Renewals
 // are counted while P(S_n <= horizon) can exceed RenewalCut: the count
 // stops at the first n whose bound min(F(h)^n, 1 − S(h/n)^n) (all n lives
 // end by h; one of them by h/n) or whose computed value is below it.
@@ -40,7 +42,9 @@ const (
 type Renewals struct {
 	life    dist.Law
 	horizon float64
-	sums    []dist.Law // S_1 … S_m
+	sums    []dist.Law // S_1 … S_m (the exact path)
+	lat     *renewalLattice
+	max     int // m on the lattice path
 	acc     dist.Accuracy
 }
 
@@ -51,17 +55,8 @@ type Renewals struct {
 // sum dist.SumIID cannot form.
 func NewRenewals(life dist.Law, horizon float64) (Renewals, error) {
 	const fn = "NewRenewals"
-	switch {
-	case life == nil:
-		return Renewals{}, paramErr(fn, "life", "nil", "must be a lifetime law")
-	case !(horizon >= 0) || math.IsInf(horizon, 0):
-		return Renewals{}, paramErr(fn, "horizon", horizon, "must be finite and >= 0 (s)")
-	}
-	if lo, _ := life.Support(); !(lo >= 0) {
-		return Renewals{}, paramErr(fn, "life", fmt.Sprint(life), "must have support in [0, ∞) (a lifetime, s)")
-	}
-	if f0 := life.CDF(0); !(f0 <= RenewalCut) {
-		return Renewals{}, paramErr(fn, "life", fmt.Sprint(life), fmt.Sprintf("must put at most %g of its mass at 0 (P(L <= 0) = %g)", RenewalCut, f0))
+	if err := checkRenewalLife(fn, life, horizon); err != nil {
+		return Renewals{}, err
 	}
 	r := Renewals{life: life, horizon: horizon, acc: dist.Accuracy{TailFloor: RenewalCut, Method: "renewal counts P(N(t) >= n) = P(S_n <= t), k-fold sums by dist.SumIID"}}
 	fh, sh := life.CDF(horizon), 0.0
@@ -98,11 +93,40 @@ func NewRenewals(life dist.Law, horizon float64) (Renewals, error) {
 	return r, nil
 }
 
+func checkRenewalLife(fn string, life dist.Law, horizon float64) error {
+	switch {
+	case life == nil:
+		return paramErr(fn, "life", "nil", "must be a lifetime law")
+	case !(horizon >= 0) || math.IsInf(horizon, 0):
+		return paramErr(fn, "horizon", horizon, "must be finite and >= 0 (s)")
+	}
+	if lo, _ := life.Support(); !(lo >= 0) {
+		return paramErr(fn, "life", fmt.Sprint(life), "must have support in [0, ∞) (a lifetime, s)")
+	}
+	if f0 := life.CDF(0); !(f0 <= RenewalCut) {
+		return paramErr(fn, "life", fmt.Sprint(life), fmt.Sprintf("must put at most %g of its mass at 0 (P(L <= 0) = %g)", RenewalCut, f0))
+	}
+	return nil
+}
+
 // Horizon returns the horizon (s).
 func (r Renewals) Horizon() float64 { return r.horizon }
 
 // Max returns the largest count the laws hold (its atom holds P(N >= Max)).
-func (r Renewals) Max() int { return len(r.sums) }
+func (r Renewals) Max() int {
+	if r.lat != nil {
+		return r.max
+	}
+	return len(r.sums)
+}
+
+// sumCDF returns P(S_n <= t), 1 <= n <= Max, by the path that built r.
+func (r Renewals) sumCDF(n int, t float64) float64 {
+	if r.lat != nil {
+		return r.lat.atLeast(n, t)
+	}
+	return r.sums[n-1].CDF(t)
+}
 
 // Accuracy states the error of AtLeast and of Count's probabilities: the
 // largest stated CDF error of the k-fold sums plus RenewalCut.
@@ -117,13 +141,13 @@ func (r Renewals) AtLeast(n int, t float64) float64 {
 		return math.NaN()
 	case n <= 0:
 		return 1
-	case n > len(r.sums):
+	case n > r.Max():
 		return 0
 	}
 	// P(S_n <= t) does not grow with n; keep the computed values so.
 	p := 1.0
 	for k := 1; k <= n; k++ {
-		p = math.Min(p, math.Max(0, r.sums[k-1].CDF(t)))
+		p = math.Min(p, math.Max(0, r.sumCDF(k, t)))
 	}
 	return p
 }
@@ -139,11 +163,11 @@ func (r Renewals) Count(t float64) (dist.Discrete, error) {
 	if !(t >= 0 && t <= r.horizon) {
 		return dist.Discrete{}, paramErr(fn, "t", t, fmt.Sprintf("must be in [0, horizon %g s]", r.horizon))
 	}
-	m := len(r.sums)
+	m := r.Max()
 	at := make([]float64, m+2) // at[n] = P(N >= n)
 	at[0] = 1
 	for n := 1; n <= m; n++ {
-		at[n] = math.Min(at[n-1], math.Max(0, r.sums[n-1].CDF(t)))
+		at[n] = math.Min(at[n-1], math.Max(0, r.sumCDF(n, t)))
 	}
 	vals := make([]float64, 0, m+1)
 	probs := make([]float64, 0, m+1)

@@ -77,6 +77,47 @@ func TestRenewalsClosedForms(t *testing.T) {
 	})
 }
 
+// TestLatticeRenewalsClosedForms: the lattice path against the same
+// closed forms (exponential lives: Poisson counts; Erlang lives: Poisson
+// counts of phases; Cox, "Renewal Theory", 1962, §1.3, from memory) at
+// five times between a tenth of the horizon and the horizon, off the
+// lattice points: the true error within the stated one, and the stated one
+// small (the lattice error falls as the step squared: 8 times the points,
+// about 64 times less).
+func TestLatticeRenewalsClosedForms(t *testing.T) {
+	const rate = 0.25 // per year
+	for _, c := range []struct {
+		name   string
+		life   dist.Law
+		t      float64 // years
+		shape  int
+		points int
+		stated float64 // at most
+	}{
+		{"exponential", dist.MustExponential(rate / energy.Year), 12, 1, 0, 2e-6},
+		{"exponential, 512 points", dist.MustExponential(rate / energy.Year), 12, 1, 512, 1e-4},
+		{"erlang 3", dist.MustGamma(3, rate/energy.Year), 30, 3, 0, 1e-6},
+		{"erlang 6", dist.MustGamma(6, rate/energy.Year), 60, 6, 0, 1e-6},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			h := c.t * energy.Year
+			r, err := energy.NewLatticeRenewals(c.life, h, c.points)
+			require.NoError(t, err)
+			tol := r.Accuracy().CDFAbs
+			assert.Less(t, tol, c.stated)
+			for _, f := range []float64{0.1, 0.3, 0.5, 0.77, 1} {
+				mu := rate * c.t * f
+				for n := 0; n <= r.Max()+1; n++ {
+					assert.InDelta(t, poissonAtLeast(mu, n*c.shape), r.AtLeast(n, h*f), tol, "n = %d, t = %g h", n, f)
+				}
+				cnt, err := r.Count(h * f)
+				require.NoError(t, err)
+				assert.InDelta(t, poissonAtLeast(mu, c.shape), cnt.Survival(0.5), tol)
+			}
+		})
+	}
+}
+
 // TestRenewalsCalendarAtom: a life lo + min(E, c − lo) (an exponential
 // from 2 years, cut at a 6-year calendar limit with the atom e^{−λ(c−lo)}
 // there) against renewals sampled from the
@@ -121,6 +162,23 @@ func TestRenewalsCalendarAtom(t *testing.T) {
 		assert.InDelta(t, float64(above)/paths, r.AtLeast(n, h), dkw, "n = %d", n)
 	}
 	assert.InDelta(t, cnt.Mean(), meanOf(counts), 4*math.Sqrt(cnt.Variance()/paths)+1e-9) // 4 sd: 6e-5 two-sided
+
+	// The lattice path: against the same sample, and against the exact
+	// path within the two stated errors, at lattice and other times.
+	lat, err := energy.NewLatticeRenewals(life, h, 0)
+	require.NoError(t, err)
+	assert.Less(t, lat.Accuracy().CDFAbs, 1e-5)
+	assert.Equal(t, r.Max(), lat.Max())
+	above = 0
+	for n := len(counts) - 1; n >= 1; n-- {
+		above += counts[n]
+		assert.InDelta(t, float64(above)/paths, lat.AtLeast(n, h), dkw, "n = %d", n)
+	}
+	for n := 0; n <= r.Max()+1; n++ {
+		for _, f := range []float64{0.2, 0.5, 0.6, 0.61, 0.77, 0.9, 1} {
+			assert.InDelta(t, r.AtLeast(n, h*f), lat.AtLeast(n, h*f), r.Accuracy().CDFAbs+lat.Accuracy().CDFAbs, "n = %d, t = %g h", n, f)
+		}
+	}
 }
 
 // cutExponential is lo + min(E, cal − lo), E exponential of rate rate:
@@ -221,4 +279,16 @@ func TestRenewalsBadInput(t *testing.T) {
 	assert.True(t, math.IsNaN(r.AtLeast(1, -1)))
 	_, err = energy.Renewals{}.Count(0)
 	require.ErrorIs(t, err, energy.ErrParam)
+	for _, pts := range []int{-1, 1, energy.MinRenewalPoints - 1, energy.MaxRenewalPoints + 1} {
+		_, err = energy.NewLatticeRenewals(exp, energy.Year, pts)
+		require.ErrorIs(t, err, energy.ErrParam)
+		assert.Contains(t, err.Error(), "points")
+	}
+	two := dist.MustDiscrete([]float64{energy.Year, 2 * energy.Year}, []float64{0.5, 0.5})
+	_, err = energy.NewLatticeRenewals(two, 3*energy.Year, 0)
+	require.ErrorIs(t, err, energy.ErrParam)
+	assert.Contains(t, err.Error(), "atoms")
+	_, err = energy.NewLatticeRenewals(exp, 1e4*energy.Year, energy.MinRenewalPoints)
+	require.ErrorIs(t, err, energy.ErrParam)
+	assert.Contains(t, err.Error(), "horizon")
 }

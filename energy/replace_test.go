@@ -88,7 +88,7 @@ func TestReplacementScheduled(t *testing.T) {
 // sqrt(ln(2e6)/8000) = 0.0426, and its mean within 5 standard errors.
 func TestReplacementOnFailure(t *testing.T) {
 	if testing.Short() {
-		t.Skip("k-fold lattice sums of the node laws: seconds")
+		t.Skip("renewal counts of the node laws and 4000 sampled sites: about a second")
 	}
 	s := replaceSite(t, [2]int64{6, 4}, 0, energy.SharedSpread{})
 	H := 2.5 * energy.Year

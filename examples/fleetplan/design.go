@@ -1,9 +1,11 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"slices"
+	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
@@ -173,7 +175,7 @@ func buildDesign(s scenario.Scenario, site energy.Site, say progress) (*DesignPl
 		"Readings are batched k to an uplink: the uplink interval is k times the reading interval and the payload k times the group's.",
 		"The duty-cycle limit is checked at every data rate the group's nodes use, with every transmission of a report counted.",
 		"The policies' probability of a flat node is over the whole horizon; a failure replaced at once still leaves its node flat until the visit.",
-		"Replacing each node only when it fails is not compared here: over a horizon several times the shortest lives its exact renewal counts take minutes (energy.Site.Replacement with energy.ReplaceOnFailure computes them).",
+		"Replacing each node only when it fails counts each node's cells as a renewal process of its lifetime law (a new cell's life drawn afresh), computed on a lattice with its stated error; a flat node stays flat until its visit.",
 	}
 	return dp, nil
 }
@@ -265,26 +267,43 @@ func groupDesign(s scenario.Scenario, gi int, space energy.DesignSpace, res ener
 		ivs = append(ivs, c.Interval)
 	}
 	slices.Sort(ivs)
-	var rows []QuantileRow
-	for _, iv := range ivs {
-		ch := c
-		ch.Interval = iv
-		cand, err := build(ch)
-		if err != nil {
-			return gd, nil, err
-		}
-		l, err := energy.MixedNodeLifetime(cand.Node, s.Climate, s.Shared)
-		if err != nil {
-			return gd, nil, err
-		}
-		row := QuantileRow{IntervalS: iv, Meets: meets(l, res.Target, int64(s.Groups[gi].Nodes)) && iv >= cand.MinInterval}
-		for k, q := range qs {
-			row.Years[k] = l.Quantile(q) / energy.Year
-		}
-		rows = append(rows, row)
+	// The rows on two goroutines, each writing its own slot.
+	rows := make([]QuantileRow, len(ivs))
+	errs := make([]error, len(ivs))
+	var wg sync.WaitGroup
+	for w := range 2 {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := w; i < len(ivs); i += 2 {
+				rows[i], errs[i] = quantileRow(s, gi, c, ivs[i], res.Target, build, qs)
+			}
+		}()
+	}
+	wg.Wait()
+	if err := errors.Join(errs...); err != nil {
+		return gd, nil, err
 	}
 	gd.Quantiles = rows
 	return gd, rows, nil
+}
+
+// quantileRow is the table's row at the interval iv of the choice c.
+func quantileRow(s scenario.Scenario, gi int, c energy.DesignChoice, iv float64, t energy.Target, build energy.Builder, qs [2]float64) (QuantileRow, error) {
+	c.Interval = iv
+	cand, err := build(c)
+	if err != nil {
+		return QuantileRow{}, err
+	}
+	l, err := energy.MixedNodeLifetime(cand.Node, s.Climate, s.Shared)
+	if err != nil {
+		return QuantileRow{}, err
+	}
+	row := QuantileRow{IntervalS: iv, Meets: meets(l, t, int64(s.Groups[gi].Nodes)) && iv >= cand.MinInterval}
+	for k, q := range qs {
+		row.Years[k] = l.Quantile(q) / energy.Year
+	}
+	return row, nil
 }
 
 // meets tells whether the node law l meets the target (without the stated
@@ -304,10 +323,9 @@ func meets(l dist.Law, t energy.Target, n int64) bool {
 // acceptable risk: the scenario's plan (all replaced at
 // replacement_after_years), all replaced at the fewest equal dates that
 // meet the risk, each group at its own such dates, the same with failures
-// replaced in between. Each node replaced when it fails alone
-// (energy.ReplaceOnFailure) is left out: over a horizon several times the
-// shortest lives its renewal counts take k-fold lattice sums of every
-// conditional node law, minutes for the demo (see DesignPlan.Notes).
+// replaced in between, and each node replaced when it fails alone
+// (energy.ReplaceOnFailure: renewal counts on a lattice, see
+// energy.NewLatticeRenewals).
 func comparePolicies(s scenario.Scenario, site energy.Site) (PolicyPlan, error) {
 	d := s.Design
 	risk := s.Plan.AcceptableRisk
@@ -324,7 +342,7 @@ func comparePolicies(s scenario.Scenario, site energy.Site) (PolicyPlan, error) 
 	plan.Name = fmt.Sprintf("the scenario's plan: replace all every %s", years(s.Plan.ReplaceAfter/energy.Year))
 	common := energy.ReplaceAll(all[0])
 	common.Name = fmt.Sprintf("replace all every %s", years(all[0]/energy.Year))
-	ps := []energy.Policy{plan, common, energy.ReplaceGroups(per), energy.ReplaceGroupsAndFailures(per)}
+	ps := []energy.Policy{plan, common, energy.ReplaceGroups(per), energy.ReplaceGroupsAndFailures(per), energy.ReplaceOnFailure()}
 	pc, err := site.ComparePolicies(ps, d.Horizon, risk, d.Costs)
 	if err != nil {
 		return pp, err

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"math"
+	"slices"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -74,6 +75,19 @@ func TestWhatItTakes(t *testing.T) {
 		assert.LessOrEqual(t, r.CellsPerYear.Low, r.CellsPerYear.High)
 		assert.False(t, math.IsNaN(r.Cost.Mean))
 	}
+	// All four kinds of policy: scheduled for all, per group, per group with
+	// failures between, and on failure alone (a failure is a visit and a
+	// cell).
+	onFailure := 0
+	for _, r := range pp.Rows {
+		if r.OnFailure && slices.Max(r.PeriodsYears) == 0 {
+			onFailure++
+			assert.InDelta(t, r.FailuresPerYear.Mean, r.VisitsPerYear.Mean, 1e-9)
+			assert.InDelta(t, r.FailuresPerYear.Mean, r.CellsPerYear.Mean, 1e-9)
+			assert.Greater(t, r.FailuresPerYear.Mean, 0.0)
+		}
+	}
+	assert.Equal(t, 1, onFailure, "the replace-on-failure policy is compared")
 	var buf bytes.Buffer
 	require.NoError(t, writeReport(&buf, p))
 	assert.Contains(t, buf.String(), "What it takes\n-------------")

@@ -375,7 +375,7 @@ func truncatedTransform(t truncated) (transform, bool) {
 			lo:   math.Inf(-1), hi: math.Inf(1), err: 1e-13,
 		}, true
 	case Exponential:
-		return truncGammaTransform(t, 1, b.rate), true
+		return truncExpTransform(t, b.rate), true
 	case Gamma:
 		return truncGammaTransform(t, b.shape, b.rate), true
 	case Densitied:

@@ -119,9 +119,18 @@ type PolicyOutcome struct {
 // each), two workers over the shared nodes and groups; without it only
 // survivals are needed.
 func (s Site) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome, error) {
-	const fn = "Site.Replacement"
+	v, err := s.Serviced(nil)
+	if err != nil {
+		return PolicyOutcome{}, err
+	}
+	return v.Replacement(p, horizon, c)
+}
+
+// Replacement is Site.Replacement for the nodes v serves.
+func (s Serviced) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome, error) {
+	const fn = "Serviced.Replacement"
 	if len(s.envs) == 0 {
-		return PolicyOutcome{}, paramErr(fn, "s", "zero Site", "must be built by NewSite")
+		return PolicyOutcome{}, paramErr(fn, "s", "zero Serviced", "must be built by Site.Serviced")
 	}
 	if err := checkCosts(fn, c); err != nil {
 		return PolicyOutcome{}, err
@@ -152,7 +161,7 @@ func (s Site) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome, er
 		for k := int64(1); k <= blocks[g]; k++ {
 			dates = append(dates, float64(k)*every[g])
 		}
-		schedCells += float64(blocks[g]) * float64(s.spec.Groups[g].Count)
+		schedCells += float64(blocks[g]) * float64(s.counts[g])
 	}
 	slices.Sort(dates)
 	schedVisits := 0.0
@@ -168,9 +177,12 @@ func (s Site) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome, er
 	for ei, e := range s.envs {
 		logNo, errE := 0.0, 0.0
 		for g := range G {
-			n := float64(s.spec.Groups[g].Count)
+			n := float64(s.counts[g])
+			if n == 0 {
+				continue
+			}
 			l := e.exact[g]
-			acc := l.accuracyAt([]float64{every[g], rest[g]}).CDFAbs
+			acc := l.cdfErr([]float64{every[g], rest[g]})
 			accAt[ei*G+g] = acc
 			if blocks[g] > 0 {
 				logNo += n * float64(blocks[g]) * math.Log(l.Survival(every[g]))
@@ -239,7 +251,7 @@ func (s Site) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome, er
 }
 
 // periods checks p against the site and returns one period per group.
-func (s Site) periods(fn string, p Policy, horizon float64) ([]float64, error) {
+func (s Serviced) periods(fn string, p Policy, horizon float64) ([]float64, error) {
 	G := len(s.names)
 	if len(p.Every) != 0 && len(p.Every) != 1 && len(p.Every) != G {
 		return nil, paramErr(fn, "p.Every", len(p.Every), fmt.Sprintf("must hold 0, 1 or %d (one per group) periods", G))
@@ -270,9 +282,12 @@ func (s Site) periods(fn string, p Policy, horizon float64) ([]float64, error) {
 // groupFailures is the law of the failures of group g's nodes given the
 // shared node e, and its stated CDF error; lifeAcc is the exact node law's
 // stated CDF error at τ and the rest.
-func (s Site) groupFailures(fn string, e, g int, onFailure bool, tau float64, blocks int64, rest, lifeAcc float64) (dist.Law, float64, error) {
+func (s Serviced) groupFailures(fn string, e, g int, onFailure bool, tau float64, blocks int64, rest, lifeAcc float64) (dist.Law, float64, error) {
 	env := &s.envs[e]
-	n := s.spec.Groups[g].Count
+	n := s.counts[g]
+	if n == 0 {
+		return dist.MustPointMass(0), 0, nil // no node of the group served
+	}
 	name := fmt.Sprintf("group %q", s.names[g])
 	var parts []dist.Law
 	acc := 0.0
@@ -295,13 +310,13 @@ func (s Site) groupFailures(fn string, e, g int, onFailure bool, tau float64, bl
 		if blocks > 0 {
 			h = math.Max(tau, rest)
 		}
-		r, err := NewLatticeRenewals(env.laws[g], h, 0)
+		r, err := env.tab[g].renewals(fn, h)
 		if err != nil {
 			return nil, 0, causeErr(fn, name, h, "renewal counts", err)
 		}
 		// The node law's own CDF error moves P(S_n <= t) by at most n
 		// times as much (Kolmogorov distance of a convolution).
-		acc = math.Max(acc, r.Accuracy().CDFAbs+float64(r.Max())*env.laws[g].Accuracy().CDFAbs)
+		acc = math.Max(acc, r.Accuracy().CDFAbs+float64(r.Max())*env.tab[g].cdfAbs)
 		for _, b := range blockCounts(tau, rest, n, blocks) {
 			c, err := r.Count(b.t)
 			if err != nil {
@@ -406,7 +421,16 @@ type PolicyComparison struct {
 // stated error included, is at most risk (in (0, 1)). Errors name the
 // field, value and rule (wrapping ErrParam).
 func (s Site) ComparePolicies(ps []Policy, horizon, risk float64, c Costs) (PolicyComparison, error) {
-	const fn = "Site.ComparePolicies"
+	v, err := s.Serviced(nil)
+	if err != nil {
+		return PolicyComparison{}, err
+	}
+	return v.ComparePolicies(ps, horizon, risk, c)
+}
+
+// ComparePolicies is Site.ComparePolicies for the nodes v serves.
+func (s Serviced) ComparePolicies(ps []Policy, horizon, risk float64, c Costs) (PolicyComparison, error) {
+	const fn = "Serviced.ComparePolicies"
 	switch {
 	case len(ps) == 0 || len(ps) > MaxPolicies:
 		return PolicyComparison{}, paramErr(fn, "policies", len(ps), fmt.Sprintf("must hold 1 to %d policies", MaxPolicies))
@@ -449,10 +473,19 @@ func (s Site) ComparePolicies(ps []Policy, horizon, risk float64, c Costs) (Poli
 // (wrapping ErrParam) when even MaxScheduledReplacements dates do not meet
 // the risk.
 func (s Site) Schedule(risk, horizon float64, perGroup bool) ([]float64, error) {
-	const fn = "Site.Schedule"
+	v, err := s.Serviced(nil)
+	if err != nil {
+		return nil, err
+	}
+	return v.Schedule(risk, horizon, perGroup)
+}
+
+// Schedule is Site.Schedule for the nodes v serves.
+func (s Serviced) Schedule(risk, horizon float64, perGroup bool) ([]float64, error) {
+	const fn = "Serviced.Schedule"
 	switch {
 	case len(s.envs) == 0:
-		return nil, paramErr(fn, "s", "zero Site", "must be built by NewSite")
+		return nil, paramErr(fn, "s", "zero Serviced", "must be built by Site.Serviced")
 	case !(risk > 0 && risk < 1):
 		return nil, paramErr(fn, "risk", risk, "must be in (0, 1)")
 	case !(horizon > 0) || math.IsInf(horizon, 0):
@@ -468,10 +501,13 @@ func (s Site) Schedule(risk, horizon float64, perGroup bool) ([]float64, error) 
 			logNo, errE := 0.0, 0.0
 			for _, g := range gs {
 				l := e.exact[g]
-				n := float64(s.spec.Groups[g].Count)
+				n := float64(s.counts[g])
+				if n == 0 {
+					continue
+				}
 				logNo += n * float64(k) * math.Log(l.Survival(tau))
 				if withErr {
-					errE += n * float64(k) * l.accuracyAt([]float64{tau}).CDFAbs
+					errE += n * float64(k) * l.cdfErr([]float64{tau})
 				}
 			}
 			p += e.w * -math.Expm1(logNo)
@@ -507,9 +543,12 @@ func (s Site) Schedule(risk, horizon float64, perGroup bool) ([]float64, error) 
 		return []float64{tau}, nil
 	}
 	out := make([]float64, G)
-	total := float64(s.Size())
+	total := 0.0
+	for _, n := range s.counts {
+		total += float64(n)
+	}
 	for g := range G {
-		tau, err := find([]int{g}, risk*float64(s.spec.Groups[g].Count)/total)
+		tau, err := find([]int{g}, risk*float64(s.counts[g])/total)
 		if err != nil {
 			return nil, err
 		}

@@ -26,10 +26,10 @@ const (
 // a lifetime law on a lattice over [0, horizon], as smoothed distribution
 // functions at the lattice points, and the law's atom within the horizon.
 type renewalLattice struct {
-	life     dist.Law
-	h        float64     // s, the step
-	g        [][]float64 // g[m−2][i]: P(C_m <= i·h) of the defective m-fold sum, m >= 2
-	atom, at float64     // the atom's mass and place (s); mass 0 for none
+	cdf      func(float64) float64 // the lifetime law's CDF
+	h        float64               // s, the step
+	g        [][]float64           // g[m−2][i]: P(C_m <= i·h) of the defective m-fold sum, m >= 2
+	atom, at float64               // the atom's mass and place (s); mass 0 for none
 }
 
 // NewLatticeRenewals is NewRenewals computed on a lattice: for a lifetime
@@ -59,21 +59,8 @@ type renewalLattice struct {
 // for more than one atom within the horizon (wrapping ErrParam).
 func NewLatticeRenewals(life dist.Law, horizon float64, points int) (Renewals, error) {
 	const fn = "NewLatticeRenewals"
-	if points == 0 {
-		points = DefaultRenewalPoints
-	}
-	if points < MinRenewalPoints || points > MaxRenewalPoints {
-		return Renewals{}, paramErr(fn, "points", points, fmt.Sprintf("must be 0 (default %d) or in [%d, %d]", DefaultRenewalPoints, MinRenewalPoints, MaxRenewalPoints))
-	}
 	if err := checkRenewalLife(fn, life, horizon); err != nil {
 		return Renewals{}, err
-	}
-	r := Renewals{life: life, horizon: horizon, acc: dist.Accuracy{TailFloor: RenewalCut,
-		Method: fmt.Sprintf("renewal counts P(N(t) >= n) = P(S_n <= t), the continuous part's sums on a lattice of %d points (FFT convolution), the atom exact; error by a lattice of twice the step", points)}}
-	if life.CDF(horizon) <= RenewalCut || horizon == 0 {
-		r.acc.CDFAbs = RenewalCut
-		r.lat = &renewalLattice{life: life, h: 1}
-		return r, nil
 	}
 	var atom, at float64
 	if al, ok := life.(dist.Atomic); ok {
@@ -88,12 +75,32 @@ func NewLatticeRenewals(life dist.Law, horizon float64, points int) (Renewals, e
 			return Renewals{}, paramErr(fn, "life", fmt.Sprint(life), fmt.Sprintf("has %d atoms within the horizon; the lattice path takes at most one (use NewRenewals)", n))
 		}
 	}
-	k := (points - 1) / 2 // the coarse lattice's steps; the fine one has twice as many
-	fine, m := newRenewalLattice(life, horizon, 2*k+1, 0, atom, at)
-	if m > MaxLatticeRenewals {
-		return Renewals{}, paramErr(fn, "horizon", horizon, fmt.Sprintf("would count more than %d renewals of %v (P(S_%d <= horizon) > %g)", MaxLatticeRenewals, life, m, RenewalCut))
+	return latticeRenewals(fn, life.CDF, fmt.Sprint(life), atom, at, horizon, points)
+}
+
+// latticeRenewals is NewLatticeRenewals for a lifetime law known by its
+// CDF cdf (support in [0, ∞), no mass at 0) and its one atom within the
+// horizon (mass atom at at; 0 for none); name names it in errors.
+func latticeRenewals(fn string, cdf func(float64) float64, name string, atom, at, horizon float64, points int) (Renewals, error) {
+	if points == 0 {
+		points = DefaultRenewalPoints
 	}
-	coarse, _ := newRenewalLattice(life, horizon, k+1, m, atom, at)
+	if points < MinRenewalPoints || points > MaxRenewalPoints {
+		return Renewals{}, paramErr(fn, "points", points, fmt.Sprintf("must be 0 (default %d) or in [%d, %d]", DefaultRenewalPoints, MinRenewalPoints, MaxRenewalPoints))
+	}
+	r := Renewals{horizon: horizon, acc: dist.Accuracy{TailFloor: RenewalCut,
+		Method: fmt.Sprintf("renewal counts P(N(t) >= n) = P(S_n <= t), the continuous part's sums on a lattice of %d points (FFT convolution), the atom exact; error by a lattice of twice the step", points)}}
+	if cdf(horizon) <= RenewalCut || horizon == 0 {
+		r.acc.CDFAbs = RenewalCut
+		r.lat = &renewalLattice{cdf: cdf, h: 1}
+		return r, nil
+	}
+	k := (points - 1) / 2 // the coarse lattice's steps; the fine one has twice as many
+	fine, m := newRenewalLattice(cdf, horizon, 2*k+1, 0, atom, at)
+	if m > MaxLatticeRenewals {
+		return Renewals{}, paramErr(fn, "horizon", horizon, fmt.Sprintf("would count more than %d renewals of %s (P(S_%d <= horizon) > %g)", MaxLatticeRenewals, name, m, RenewalCut))
+	}
+	coarse, _ := newRenewalLattice(cdf, horizon, k+1, m, atom, at)
 	// The stated error: fine against coarse at the coarse points and
 	// halfway between them (where both interpolate).
 	worst := 0.0
@@ -114,11 +121,11 @@ func NewLatticeRenewals(life dist.Law, horizon float64, points int) (Renewals, e
 // mMax = 0, until P(S_m <= horizon) <= RenewalCut (at most
 // MaxLatticeRenewals + 1); it returns the lattice and the last m counted
 // (P(S_m <= horizon) > RenewalCut).
-func newRenewalLattice(life dist.Law, horizon float64, points, mMax int, atom, at float64) (*renewalLattice, int) {
-	rl := &renewalLattice{life: life, h: horizon / float64(points-1), atom: atom, at: at}
+func newRenewalLattice(cdf func(float64) float64, horizon float64, points, mMax int, atom, at float64) (*renewalLattice, int) {
+	rl := &renewalLattice{cdf: cdf, h: horizon / float64(points-1), atom: atom, at: at}
 	M := points
 	cont := func(x float64) float64 { // the continuous part's CDF
-		f := life.CDF(x)
+		f := cdf(x)
 		if atom > 0 && x >= at {
 			f -= atom
 		}
@@ -178,7 +185,7 @@ func (rl *renewalLattice) cont(m int, x float64) float64 {
 	case m == 0:
 		return 1
 	case m == 1:
-		f := rl.life.CDF(x)
+		f := rl.cdf(x)
 		if rl.atom > 0 && x >= rl.at {
 			f -= rl.atom
 		}

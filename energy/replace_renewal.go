@@ -137,7 +137,7 @@ func (r Renewals) Accuracy() dist.Accuracy { return r.acc }
 // most RenewalCut is cut).
 func (r Renewals) AtLeast(n int, t float64) float64 {
 	switch {
-	case r.life == nil || !(t >= 0 && t <= r.horizon):
+	case (r.life == nil && r.lat == nil) || !(t >= 0 && t <= r.horizon):
 		return math.NaN()
 	case n <= 0:
 		return 1
@@ -157,7 +157,7 @@ func (r Renewals) AtLeast(n int, t float64) float64 {
 // P(N >= Max).
 func (r Renewals) Count(t float64) (dist.Discrete, error) {
 	const fn = "Renewals.Count"
-	if r.life == nil {
+	if r.life == nil && r.lat == nil {
 		return dist.Discrete{}, paramErr(fn, "r", "zero Renewals", "must be built by NewRenewals")
 	}
 	if !(t >= 0 && t <= r.horizon) {

@@ -75,13 +75,26 @@ type QuantileRow struct {
 
 // PolicyPlan is the replacement policies compared over the horizon.
 type PolicyPlan struct {
-	HorizonYears float64     `json:"horizon_years"`
-	Risk         float64     `json:"acceptable_risk"`
-	CostVisit    float64     `json:"cost_per_visit"`
-	CostCell     float64     `json:"cost_per_cell"`
-	Rows         []PolicyRow `json:"policies"`
-	Cheapest     int         `json:"cheapest"` // index into Rows
-	Feasible     bool        `json:"cheapest_meets_risk"`
+	// OutOfReach is, per group, the share of its nodes expected out of
+	// reach and how many that is: the plan leaves them to commissioning
+	// (found unheard, moved or given a gateway) and serves every node as
+	// in reach.
+	OutOfReach   []OutOfReachRow `json:"out_of_reach"`
+	HorizonYears float64         `json:"horizon_years"`
+	Risk         float64         `json:"acceptable_risk"`
+	CostVisit    float64         `json:"cost_per_visit"`
+	CostCell     float64         `json:"cost_per_cell"`
+	Rows         []PolicyRow     `json:"policies"`
+	Cheapest     int             `json:"cheapest"` // index into Rows
+	Feasible     bool            `json:"cheapest_meets_risk"`
+}
+
+// OutOfReachRow is a group's expected out-of-reach nodes.
+type OutOfReachRow struct {
+	Group         string  `json:"group"`
+	Nodes         int     `json:"nodes"`
+	Share         float64 `json:"share"`
+	ExpectedNodes float64 `json:"expected_nodes"`
 }
 
 // PolicyRow is one policy's outcome; the bands are the mean and the
@@ -120,13 +133,13 @@ func whatItTakesSection(s scenario.Scenario, p *Plan, say progress) (*DesignPlan
 		return nil, fmt.Errorf("-what-it-takes: the scenario has no design section (see radio/lora/scenario/FORMAT.md, \"What it takes\")")
 	}
 	say("what it takes: the design search per group and the replacement policies")
-	return buildDesign(s, p.laws.Site, say)
+	return buildDesign(s, p.laws.Laws, say)
 }
 
 // buildDesign computes the "what it takes" section of a scenario with a
 // design section (nil otherwise): SearchDesign per group and the policy
 // comparison on the planned site.
-func buildDesign(s scenario.Scenario, site energy.Site, say progress) (*DesignPlan, error) {
+func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*DesignPlan, error) {
 	d := s.Design
 	if d == nil {
 		return nil, nil
@@ -165,7 +178,7 @@ func buildDesign(s scenario.Scenario, site energy.Site, say progress) (*DesignPl
 		dp.laws = append(dp.laws, designFigData{rows: rows})
 	}
 	say("  replacement policies over %s", years(d.Horizon/energy.Year))
-	pp, err := comparePolicies(s, site)
+	pp, err := comparePolicies(s, laws)
 	if err != nil {
 		return nil, err
 	}
@@ -175,6 +188,7 @@ func buildDesign(s scenario.Scenario, site energy.Site, say progress) (*DesignPl
 		"Readings are batched k to an uplink: the uplink interval is k times the reading interval and the payload k times the group's.",
 		"The duty-cycle limit is checked at every data rate the group's nodes use, with every transmission of a report counted.",
 		"The policies' probability of a flat node is over the whole horizon; a failure replaced at once still leaves its node flat until the visit.",
+		"The policies serve the nodes in reach: a node that no gateway hears is found at commissioning (its uplinks do not arrive) and moved or given a gateway, not replaced on a schedule (left in, a few unheard nodes retransmitting at the slowest data rate would set a group's dates); the expected out-of-reach nodes are listed above the policies. Their share still counts in the lifetime laws and the design search above.",
 		"Replacing each node only when it fails counts each node's cells as a renewal process of its lifetime law (a new cell's life drawn afresh), computed on a lattice with its stated error; a flat node stays flat until its visit.",
 	}
 	return dp, nil
@@ -326,10 +340,35 @@ func meets(l dist.Law, t energy.Target, n int64) bool {
 // replaced in between, and each node replaced when it fails alone
 // (energy.ReplaceOnFailure: renewal counts on a lattice, see
 // energy.NewLatticeRenewals).
-func comparePolicies(s scenario.Scenario, site energy.Site) (PolicyPlan, error) {
+//
+// The nodes out of reach (the unheard setting of each group) are left to
+// commissioning (energy.Site.Serviced): a node no gateway hears is found
+// when its first uplinks do not arrive and is moved or given a gateway; a
+// planner does not replace a whole group every year because a tenth of a
+// per mille of its placements would be unheard and short-lived. The
+// policies serve every node as in reach; the expected out-of-reach count
+// is reported beside them.
+func comparePolicies(s scenario.Scenario, laws scenario.Laws) (PolicyPlan, error) {
 	d := s.Design
 	risk := s.Plan.AcceptableRisk
 	pp := PolicyPlan{HorizonYears: d.Horizon / energy.Year, Risk: risk, CostVisit: d.Costs.Visit, CostCell: d.Costs.Cell}
+	left := make([][]int, len(laws.Model.Groups))
+	for gi, gm := range laws.Model.Groups {
+		for i := range gm.AllWeights() {
+			if gm.IsUnheard(i) {
+				left[gi] = append(left[gi], i)
+			}
+		}
+	}
+	site, err := laws.Site.Serviced(left)
+	if err != nil {
+		return pp, err
+	}
+	for gi, g := range s.Groups {
+		if u := site.Left(gi); u > 0 {
+			pp.OutOfReach = append(pp.OutOfReach, OutOfReachRow{Group: g.Name, Nodes: g.Nodes, Share: u, ExpectedNodes: u * float64(g.Nodes)})
+		}
+	}
 	all, err := site.Schedule(risk, d.Horizon, false)
 	if err != nil {
 		return pp, err

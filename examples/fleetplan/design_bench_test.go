@@ -19,7 +19,7 @@ func BenchmarkWhatItTakes(b *testing.B) {
 	}
 	b.ReportAllocs()
 	for b.Loop() {
-		if _, err := buildDesign(s, laws.Site, func(string, ...any) {}); err != nil {
+		if _, err := buildDesign(s, laws, func(string, ...any) {}); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -89,6 +89,13 @@ func writeDesign(w io.Writer, p *Plan) {
 	pp := d.Policies
 	fmt.Fprintf(w, "  replacement policies for the site as planned, over %s at an accepted risk of %s of any flat node; %.2f per visit, %.2f per cell\n",
 		years(pp.HorizonYears), pct(pp.Risk), pp.CostVisit, pp.CostCell)
+	if len(pp.OutOfReach) > 0 {
+		var rows []string
+		for _, o := range pp.OutOfReach {
+			rows = append(rows, fmt.Sprintf("%s %s (%.2g of %d nodes)", esc(o.Group), pct(o.Share), o.ExpectedNodes, o.Nodes))
+		}
+		more("for the nodes in reach; expected out of reach, to be found and fixed at commissioning: %s", strings.Join(rows, "; "))
+	}
 	for i, r := range pp.Rows {
 		mark := " "
 		if i == pp.Cheapest {

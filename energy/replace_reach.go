@@ -1,0 +1,187 @@
+package energy
+
+import (
+	"fmt"
+	"math"
+)
+
+// Serviced is the part of a Site that a replacement plan serves: every
+// node of every group, or, when some of a group's settings are left out
+// (Site.Serviced), every node with the node law conditioned on the other
+// settings. The practitioner's case is the out-of-reach share: a node that
+// no gateway hears is found at commissioning (no uplink arrives) and is
+// moved, given a better antenna or a gateway, not visited on a replacement
+// schedule; left in, a share of a tenth of a per mille of short-lived
+// unheard nodes sets a group's replacement every year. The plan then
+// serves each group's nodes as if all were in reach, and the report says
+// how many were expected out of reach.
+//
+// Serviced is an immutable value, safe for concurrent use. Its methods are
+// Site's (Replacement, ComparePolicies, Schedule) for the nodes it serves.
+type Serviced struct {
+	envs   []servicedEnv
+	counts []int64
+	names  []string
+	left   []float64 // per group, the share of nodes left out
+}
+
+type servicedEnv struct {
+	w     float64
+	exact []lifeAt    // per group, the exact conditional law served
+	tab   []renewalAt // per group, the tabulated one, for renewal counts
+}
+
+// lifeAt is a conditional node law as the replacement arithmetic uses it:
+// survivals, CDF and the stated CDF error at given times.
+type lifeAt interface {
+	CDF(t float64) float64
+	Survival(t float64) float64
+	cdfErr(ts []float64) float64
+}
+
+// exactLife is a NodeLifetime as a lifeAt.
+type exactLife struct{ NodeLifetime }
+
+func (l exactLife) cdfErr(ts []float64) float64 { return l.accuracyAt(ts).CDFAbs }
+
+// reachLife is the law of a node given that it is not in the left-out
+// settings: F = (F_all − u·F_out)/(1 − u), u the left-out share, F_out
+// their law; its error (ε_all + u·ε_out)/(1 − u).
+type reachLife struct {
+	all, out lifeAt
+	u        float64
+}
+
+func (l reachLife) CDF(t float64) float64 {
+	return math.Min(1, math.Max(0, (l.all.CDF(t)-l.u*l.out.CDF(t))/(1-l.u)))
+}
+
+func (l reachLife) Survival(t float64) float64 {
+	return math.Min(1, math.Max(0, (l.all.Survival(t)-l.u*l.out.Survival(t))/(1-l.u)))
+}
+
+func (l reachLife) cdfErr(ts []float64) float64 {
+	return (l.all.cdfErr(ts) + l.u*l.out.cdfErr(ts)) / (1 - l.u)
+}
+
+// renewalAt is what the renewal counts of a served node take: its CDF (the
+// tabulated law, conditioned as reachLife when settings are left out), its
+// atom at the calendar limit and its stated CDF error.
+type renewalAt struct {
+	cdf      func(float64) float64
+	name     string
+	atom, at float64
+	cdfAbs   float64
+}
+
+func (r renewalAt) renewals(fn string, horizon float64) (Renewals, error) {
+	atom := r.atom
+	if r.at > horizon {
+		atom = 0
+	}
+	return latticeRenewals(fn, r.cdf, r.name, atom, r.at, horizon, 0)
+}
+
+// Serviced returns the nodes a replacement plan serves: left[g] lists the
+// settings of group g (indices into its NodeSpec.Settings) whose nodes the
+// plan leaves out (nil or empty: none; nil left: every node of every
+// group). A group whose every setting is left out has no node served.
+// Errors (wrapping ErrParam): a zero Site, a left of the wrong length, an
+// index out of range or repeated.
+func (s Site) Serviced(left [][]int) (Serviced, error) {
+	const fn = "Site.Serviced"
+	if len(s.envs) == 0 {
+		return Serviced{}, paramErr(fn, "s", "zero Site", "must be built by NewSite")
+	}
+	G := len(s.names)
+	if left != nil && len(left) != G {
+		return Serviced{}, paramErr(fn, "left", len(left), fmt.Sprintf("must be nil or hold one list per group (%d)", G))
+	}
+	v := Serviced{counts: make([]int64, G), names: s.names, left: make([]float64, G)}
+	outSpec := make([]*NodeSpec, G)
+	for g := range G {
+		v.counts[g] = s.spec.Groups[g].Count
+		if left == nil || len(left[g]) == 0 {
+			continue
+		}
+		spec := s.spec.Groups[g].Node
+		seen := map[int]bool{}
+		out := spec
+		out.Settings = nil
+		for _, i := range left[g] {
+			if i < 0 || i >= len(spec.Settings) || seen[i] {
+				return Serviced{}, paramErr(fn, fmt.Sprintf("left[%d]", g), i, fmt.Sprintf("must list distinct settings in [0, %d)", len(spec.Settings)))
+			}
+			seen[i] = true
+			v.left[g] += spec.Settings[i].Weight
+			out.Settings = append(out.Settings, spec.Settings[i])
+		}
+		if len(seen) == len(spec.Settings) || v.left[g] >= 1-1e-12 {
+			v.left[g], v.counts[g] = 1, 0
+			continue
+		}
+		for i := range out.Settings {
+			out.Settings[i].Weight /= v.left[g]
+		}
+		outSpec[g] = &out
+	}
+	for _, e := range s.envs {
+		se := servicedEnv{w: e.w, exact: make([]lifeAt, G), tab: make([]renewalAt, G)}
+		for g := range G {
+			all := exactLife{e.exact[g]}
+			tb := e.laws[g]
+			atom, at := 0.0, math.Inf(1)
+			if as := tb.Atoms(); len(as) == 1 {
+				atom, at = as[0].Mass, as[0].Value
+			}
+			r := renewalAt{cdf: tb.CDF, name: s.names[g], atom: atom, at: at, cdfAbs: tb.Accuracy().CDFAbs}
+			se.exact[g] = all
+			if outSpec[g] != nil {
+				ol, err := NewNodeLifetime(*outSpec[g], Environment{Climate: s.spec.Climate, Conditions: e.cond})
+				if err != nil {
+					return Serviced{}, causeErr(fn, fmt.Sprintf("left[%d]", g), s.names[g], "the left-out settings' law", err)
+				}
+				u := v.left[g]
+				out := exactLife{ol}
+				se.exact[g] = reachLife{all: all, out: out, u: u}
+				// The left-out law on the renewal lattice: 0 below its
+				// 1e-15 point and 1 from its upper 1e-15 point (each
+				// at most 1e-15 off), evaluated only between them.
+				lo, hi := ol.Quantile(1e-15), ol.UpperQuantile(1e-15)
+				outCDF := func(t float64) float64 {
+					switch {
+					case t < lo:
+						return 0
+					case t >= hi:
+						return 1
+					}
+					return ol.CDF(t)
+				}
+				outAtom := 0.0
+				for _, a := range ol.Atoms() {
+					if a.Value == at {
+						outAtom = a.Mass
+					}
+				}
+				tcdf := tb.CDF
+				r.cdf = func(t float64) float64 {
+					return math.Min(1, math.Max(0, (tcdf(t)-u*outCDF(t))/(1-u)))
+				}
+				r.atom = math.Max(0, (atom-u*outAtom)/(1-u))
+				r.cdfAbs = (r.cdfAbs + u*(ol.Accuracy().CDFAbs+1e-15)) / (1 - u)
+			}
+			se.tab[g] = r
+		}
+		v.envs = append(v.envs, se)
+	}
+	return v, nil
+}
+
+// Left returns the share of group g's nodes the plan leaves out (0 to 1;
+// NaN for a group index out of range).
+func (s Serviced) Left(g int) float64 {
+	if g < 0 || g >= len(s.left) {
+		return math.NaN()
+	}
+	return s.left[g]
+}

@@ -128,7 +128,12 @@
 // Costs (per visit, per cell). Site.ComparePolicies picks the cheapest
 // policy whose probability of any flat node, error included, is within the
 // accepted risk; Site.Schedule finds the fewest equal replacement dates
-// (for the site or per group) that keep it there.
+// (for the site or per group) that keep it there. Site.Serviced leaves
+// chosen settings of each group out of a plan (the node law conditioned
+// on the others): a node out of radio reach is a coverage fault found at
+// commissioning, not a reason to replace its whole group every year, and
+// its Serviced value answers the same three questions for the nodes
+// served.
 //
 // # Cautions
 //

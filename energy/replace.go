@@ -113,7 +113,7 @@ type PolicyOutcome struct {
 // nodes' counts, mixed over the shared factors' Gauss–Hermite nodes as
 // Site's other laws are. With OnFailure the renewal counts of the
 // tabulated conditional node laws come from NewLatticeRenewals (their
-// k-fold sums on a lattice of DefaultRenewalPoints over the longest block,
+// k-fold sums on a lattice of 1024 points over the longest block,
 // with the stated error of a lattice of twice the step: a few milliseconds
 // to a few tens per law, where dist.SumIID's exact sums took 0.14–1.5 s
 // each), two workers over the shared nodes and groups; without it only

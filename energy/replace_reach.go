@@ -79,8 +79,14 @@ func (r renewalAt) renewals(fn string, horizon float64) (Renewals, error) {
 	if r.at > horizon {
 		atom = 0
 	}
-	return latticeRenewals(fn, r.cdf, r.name, atom, r.at, horizon, 0)
+	return latticeRenewals(fn, r.cdf, r.name, atom, r.at, horizon, replacementRenewalPoints)
 }
+
+// replacementRenewalPoints is the lattice of the renewal counts in
+// Replacement: 1024 points, a stated lattice error of about 1e-5 on the
+// demo's node laws, far below the error the tabulated node laws bring (n
+// times their CDF error, about 1e-3), at a quarter of the default's cost.
+const replacementRenewalPoints = 1024
 
 // Serviced returns the nodes a replacement plan serves: left[g] lists the
 // settings of group g (indices into its NodeSpec.Settings) whose nodes the

@@ -88,6 +88,13 @@ func TestWhatItTakes(t *testing.T) {
 		}
 	}
 	assert.Equal(t, 1, onFailure, "the replace-on-failure policy is compared")
+	// The out-of-reach nodes are left to commissioning and listed: the
+	// demo's groups each have some (scenario.GroupModel.OutOfReach).
+	require.Len(t, pp.OutOfReach, len(s.Groups))
+	for gi, o := range pp.OutOfReach {
+		assert.Equal(t, p.laws.Model.Groups[gi].OutOfReach, o.Share, o.Group)
+		assert.InDelta(t, o.Share*float64(o.Nodes), o.ExpectedNodes, 1e-12, o.Group)
+	}
 	var buf bytes.Buffer
 	require.NoError(t, writeReport(&buf, p))
 	assert.Contains(t, buf.String(), "What it takes\n-------------")

@@ -42,6 +42,16 @@ func ReplaceAll(period float64) Policy {
 }
 
 // ReplaceOnFailure is the policy that replaces each node when it fails.
+//
+// The counts take each new cell's life afresh from the group's node law
+// given the shared factors (Renewals): the node's setting, floor and
+// active factors are drawn afresh with it. A node that keeps its place,
+// and so its data rate and board, fails again sooner where its first life
+// was short: the counts here are those of a node moved at random within
+// its group at each replacement, and over a horizon of several lives they
+// understate the replacements of a group whose settings' lives differ
+// widely (the long-run rate is the group's mean of 1/E[L | setting], at
+// least 1/E[L]).
 func ReplaceOnFailure() Policy {
 	return Policy{Name: "replace each node when it fails", OnFailure: true}
 }

@@ -189,7 +189,7 @@ func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*Design
 		"The duty-cycle limit is checked at every data rate the group's nodes use, with every transmission of a report counted.",
 		"The policies' probability of a flat node is over the whole horizon; a failure replaced at once still leaves its node flat until the visit.",
 		"The policies serve the nodes in reach: a node that no gateway hears is found at commissioning (its uplinks do not arrive) and moved or given a gateway, not replaced on a schedule (left in, a few unheard nodes retransmitting at the slowest data rate would set a group's dates); the expected out-of-reach nodes are listed above the policies. Their share still counts in the lifetime laws and the design search above.",
-		"Replacing each node only when it fails counts each node's cells as a renewal process of its lifetime law (a new cell's life drawn afresh), computed on a lattice with its stated error; a flat node stays flat until its visit.",
+		"Replacing each node only when it fails counts each node's cells as a renewal process of its group's lifetime law, computed on a lattice with its stated error; a flat node stays flat until its visit. Each new life is drawn afresh from the whole group's law, data rate and board included: a node that keeps its place fails again sooner where its first life was short, so over several lives these counts understate the replacements of a group whose data rates' lives differ widely.",
 	}
 	return dp, nil
 }

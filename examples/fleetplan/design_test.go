@@ -8,7 +8,9 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+	"gonum.org/v1/plot/vg"
 
+	"github.com/joulelaw/joulelaw/dist/distplot"
 	"github.com/joulelaw/joulelaw/energy"
 	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
@@ -95,6 +97,13 @@ func TestWhatItTakes(t *testing.T) {
 		assert.Equal(t, p.laws.Model.Groups[gi].OutOfReach, o.Share, o.Group)
 		assert.InDelta(t, o.Share*float64(o.Nodes), o.ExpectedNodes, 1e-12, o.Group)
 	}
+	// The figure: one curve per group and the target, drawn as PNG.
+	pl, err := designFigure(p)
+	require.NoError(t, err)
+	png, err := distplot.Encode(pl, "png", 18*vg.Centimeter, 11*vg.Centimeter)
+	require.NoError(t, err)
+	assert.True(t, bytes.HasPrefix(png, []byte("\x89PNG")), "PNG signature")
+	assert.GreaterOrEqual(t, pl.Y.Max, d.TargetYears, "the target line is within the plot")
 	var buf bytes.Buffer
 	require.NoError(t, writeReport(&buf, p))
 	assert.Contains(t, buf.String(), "What it takes\n-------------")

@@ -52,14 +52,20 @@
 // whether backoffs keep the radio idle or put the node to sleep (with a
 // wake time before the CCA). Node.FrameEnergy returns the law of the
 // energy of sending one frame; Node.Cycle the energy.Cycle of one frame
-// per period. Both are exact finite discrete laws: every state has a
-// constant current and a constant or finite discrete duration, and
-// package dist combines them exactly (atoms merged within
+// per period. Within MaxFramePaths both are exact finite discrete laws:
+// every state has a constant current and a constant or finite discrete
+// duration, and package dist combines them exactly (atoms merged within
 // dist.AtomMergeTolerance, relative 1e-12). Node.Timeline gives the
 // durations and outcome probabilities as plain data. Settings whose frame
 // has more than MaxFramePaths distinct paths (macMaxFrameRetries 7, or
-// macMaxBE 8 with many retries) are refused at once with an error naming
-// the cap, since their exact laws would run into package dist's caps.
+// macMaxBE 8 with many retries) would run into package dist's caps: their
+// paths are enumerated with those of probability below Node.PathTolerance
+// (DefaultPathTolerance, 1e-12) pruned and the pruned mass ε put on the
+// worst-case path, so the law dominates the exact one and is within
+// total-variation distance ε of it; Node.PathError states ε (0 for exact
+// laws) and FrameEnergy's law reports it as dist.Estimated. Only a setting
+// that keeps more than the cap even so is refused, with an error naming
+// the cap and the tolerance.
 //
 // # Cautions
 //

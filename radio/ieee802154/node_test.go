@@ -205,38 +205,7 @@ func TestFrameEnergyMean(t *testing.T) {
 		n := tc.node
 		law, err := n.FrameEnergy()
 		require.NoError(t, err)
-		p, c, cur := n.PHY, n.CSMA, n.Currents
-		v, b := cur.Voltage, n.Busy
-		boI := cur.Idle
-		if n.Backoff == ieee802154.BackoffSleep {
-			boI = cur.Sleep
-		}
-		run := 0.0
-		for i := 0; i <= c.MaxCSMABackoffs; i++ {
-			size := math.Ldexp(1, c.BE(i))
-			reach := math.Pow(b, float64(i))
-			run += reach * (boI*p.UnitBackoffPeriod()*(size-1)/2 + cur.RX*p.CCATime())
-			if n.Backoff == ieee802154.BackoffSleep {
-				run += reach * (1 - 1/size) * cur.Idle * n.Wake
-			}
-		}
-		ok := 1 - math.Pow(b, float64(c.MaxCSMABackoffs+1))
-		frame, err := p.PPDUTime(11 + n.Payload)
-		require.NoError(t, err)
-		attempt := run + ok*(cur.Turnaround*p.TurnaroundTime()+cur.TX*frame)
-		attempts := 1.0
-		if n.AckRequest {
-			wait := p.AckWaitDuration()
-			if n.AckWait > 0 {
-				wait = n.AckWait
-			}
-			attempt += ok * cur.RX * ((1-n.AckLoss)*(p.TurnaroundTime()+p.AckTime()) + n.AckLoss*wait)
-			attempts = 0
-			for j := 0; j <= c.MaxFrameRetries; j++ {
-				attempts += math.Pow(ok*n.AckLoss, float64(j))
-			}
-		}
-		want := v * attempt * attempts
+		want := waldMean(t, n)
 		assert.InEpsilon(t, want, law.Mean(), 1e-12, tc.name)
 		at := law.(dist.Atomic).Atoms()
 		sum := 0.0
@@ -245,6 +214,43 @@ func TestFrameEnergyMean(t *testing.T) {
 		}
 		assert.InEpsilon(t, want, sum, 1e-12, "%s: the atoms' own mean", tc.name)
 	}
+}
+
+// waldMean is the frame's mean energy by Wald's identity, as
+// TestFrameEnergyMean describes (J).
+func waldMean(t *testing.T, n ieee802154.Node) float64 {
+	p, c, cur := n.PHY, n.CSMA, n.Currents
+	v, b := cur.Voltage, n.Busy
+	boI := cur.Idle
+	if n.Backoff == ieee802154.BackoffSleep {
+		boI = cur.Sleep
+	}
+	run := 0.0
+	for i := 0; i <= c.MaxCSMABackoffs; i++ {
+		size := math.Ldexp(1, c.BE(i))
+		reach := math.Pow(b, float64(i))
+		run += reach * (boI*p.UnitBackoffPeriod()*(size-1)/2 + cur.RX*p.CCATime())
+		if n.Backoff == ieee802154.BackoffSleep {
+			run += reach * (1 - 1/size) * cur.Idle * n.Wake
+		}
+	}
+	ok := 1 - math.Pow(b, float64(c.MaxCSMABackoffs+1))
+	frame, err := p.PPDUTime(11 + n.Payload)
+	require.NoError(t, err)
+	attempt := run + ok*(cur.Turnaround*p.TurnaroundTime()+cur.TX*frame)
+	attempts := 1.0
+	if n.AckRequest {
+		wait := p.AckWaitDuration()
+		if n.AckWait > 0 {
+			wait = n.AckWait
+		}
+		attempt += ok * cur.RX * ((1-n.AckLoss)*(p.TurnaroundTime()+p.AckTime()) + n.AckLoss*wait)
+		attempts = 0
+		for j := 0; j <= c.MaxFrameRetries; j++ {
+			attempts += math.Pow(ok*n.AckLoss, float64(j))
+		}
+	}
+	return v * attempt * attempts
 }
 
 // TestNodeBadInput: every bad field is an error wrapping ErrParam that

@@ -6,20 +6,28 @@ import (
 	"slices"
 )
 
-// MaxFramePaths caps the size of the exact laws that Node.FrameEnergy,
-// Node.FrameStage, Node.Stage and Node.Cycle lead to: a node whose frame has
-// more distinct paths than this (by their attempts and outcome, CCAs,
-// backoff periods and wakes, counted from the structure in about a
-// millisecond) is refused at once with an error wrapping ErrParam that names
-// the cap, instead of running for seconds or minutes into package dist's
-// caps on exact sums (dist.MaxSumAtoms). The count bounds the atoms of both
-// laws package energy builds from the frame: of the energy and of the active
-// time. The standard's default attributes count 18 689 paths for an
-// acknowledged frame at any busy and loss probability strictly between 0 and
-// 1 (without a wake time); macMaxBE 6 counts 27 521 and takes about 2.7
-// times as long to build (BENCHMARKS.md). Refused, for example:
-// macMaxFrameRetries 7 with the other attributes at their defaults (116 321
-// paths), macMaxBE 8 with 7 retries (229 217).
+// MaxFramePaths caps the size of the laws that Node.FrameEnergy,
+// Node.FrameStage, Node.Stage and Node.Cycle lead to. A frame with at most
+// this many distinct paths (by their attempts and outcome, CCAs, backoff
+// periods and wakes, counted from the structure in about a millisecond)
+// gets its exact law. A frame with more is enumerated path by path with
+// the paths of probability below Node.PathTolerance pruned and their mass
+// moved to the worst-case path (Node.PathError states it); if even that
+// keeps more than MaxFramePaths − 1 paths, the call is refused with an
+// error wrapping ErrParam that names the cap and the tolerance, instead of
+// running for seconds or minutes into package dist's caps on exact sums
+// (dist.MaxSumAtoms). The count bounds the atoms of both laws package
+// energy builds from the frame: of the energy and of the active time. The
+// standard's default attributes count 18 689 paths for an acknowledged
+// frame at any busy and loss probability strictly between 0 and 1
+// (without a wake time); macMaxBE 6 counts 27 521 and takes about 2.7
+// times as long to build (BENCHMARKS.md). Pruned, for example:
+// macMaxFrameRetries 7 with the other attributes at their defaults
+// (116 321 paths; at 30 % busy CCAs and 20 % unacknowledged transmissions
+// 26 192 kept at DefaultPathTolerance, stated error 3.0e-9), macMaxBE 8
+// with 7 retries (229 217 paths; 49 154 kept at 1e-12 there, so refused,
+// but 26 505 at PathTolerance 1e-10, stated error 5.5e-7; at 10 % busy
+// and 5 % unacknowledged it builds at the default, stated error 1.6e-9).
 const MaxFramePaths = 1 << 15
 
 // frameAtoms returns, for a validated node, an upper bound on the number of
@@ -201,13 +209,11 @@ func (r *bounds) add(lo, hi int) {
 	r.lo, r.hi = min(r.lo, lo), max(r.hi, hi)
 }
 
-// checkSize returns an error naming MaxFramePaths when the node's frame
-// has more paths.
-func (n Node) checkSize(fn string) error {
-	if paths := n.framePaths(); paths > MaxFramePaths {
-		return paramErr(fn, "CSMA", fmt.Sprintf("{macMinBE %d, macMaxBE %d, macMaxCSMABackoffs %d, macMaxFrameRetries %d}",
-			n.CSMA.MinBE, n.CSMA.MaxBE, n.CSMA.MaxCSMABackoffs, n.CSMA.MaxFrameRetries),
-			fmt.Sprintf("gives the frame %.0f distinct paths, more than MaxFramePaths (%d) for an exact law: lower macMaxBE, macMaxCSMABackoffs or macMaxFrameRetries", paths, MaxFramePaths))
-	}
-	return nil
+// sizeErr returns the error naming MaxFramePaths for a frame of paths
+// distinct paths that keeps more than the cap even with paths below tol
+// pruned.
+func (n Node) sizeErr(fn string, paths, tol float64) error {
+	return paramErr(fn, "CSMA", fmt.Sprintf("{macMinBE %d, macMaxBE %d, macMaxCSMABackoffs %d, macMaxFrameRetries %d}",
+		n.CSMA.MinBE, n.CSMA.MaxBE, n.CSMA.MaxCSMABackoffs, n.CSMA.MaxFrameRetries),
+		fmt.Sprintf("gives the frame %.0f distinct paths, more than MaxFramePaths (%d) even with the paths below PathTolerance (%g) pruned: raise PathTolerance or lower macMaxBE, macMaxCSMABackoffs or macMaxFrameRetries", paths, MaxFramePaths, tol))
 }

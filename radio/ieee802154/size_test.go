@@ -81,19 +81,32 @@ func TestFramePathCount(t *testing.T) {
 	}
 }
 
-// TestFramePathCap: settings beyond MaxFramePaths are refused at once
-// (no law is built) with an error wrapping ErrParam that names the cap and
-// the attributes; the default attributes are accepted. The counts quoted
-// in MaxFramePaths's documentation are checked here.
+// TestFramePathCap: settings beyond MaxFramePaths whose pruned
+// enumeration at the default PathTolerance still keeps more paths than the
+// cap are refused (no law is built) with an error wrapping ErrParam that
+// names the cap, the tolerance and the attributes; the default attributes
+// are accepted exactly, and 7 retries by pruning. The counts quoted in
+// MaxFramePaths's and DefaultPathTolerance's documentation are checked here.
 func TestFramePathCap(t *testing.T) {
 	n := testNode()
 	assert.Equal(t, 18689.0, ieee802154.FramePaths(n), "default attributes")
+	seven := testNode()
+	seven.CSMA.MaxFrameRetries = 7
+	assert.Equal(t, 116321.0, ieee802154.FramePaths(seven), "7 retries")
+	kept, _, ok := ieee802154.PrunedPaths(seven, ieee802154.DefaultPathTolerance, 1<<30)
+	assert.True(t, ok)
+	assert.Equal(t, 26192, kept, "7 retries, pruned at the default tolerance")
+	eight := testNode()
+	eight.CSMA.MaxBE, eight.CSMA.MaxFrameRetries = 8, 7
+	kept, _, _ = ieee802154.PrunedPaths(eight, ieee802154.DefaultPathTolerance, 1<<30)
+	assert.Equal(t, 49154, kept, "macMaxBE 8, 7 retries, pruned at the default tolerance")
+	kept, _, _ = ieee802154.PrunedPaths(eight, 1e-10, 1<<30)
+	assert.Equal(t, 26505, kept, "macMaxBE 8, 7 retries, pruned at 1e-10")
 	big := []struct {
 		name  string
 		edit  func(*ieee802154.Node)
 		paths float64
 	}{
-		{"7 retries", func(n *ieee802154.Node) { n.CSMA.MaxFrameRetries = 7 }, 116321},
 		{"macMaxBE 8, 7 retries", func(n *ieee802154.Node) { n.CSMA.MaxBE, n.CSMA.MaxFrameRetries = 8, 7 }, 229217},
 		{"macMaxBE 8, 7 retries, asleep", func(n *ieee802154.Node) {
 			n.CSMA.MaxBE, n.CSMA.MaxFrameRetries, n.Backoff, n.AckLoss = 8, 7, ieee802154.BackoffSleep, 0.5
@@ -107,6 +120,7 @@ func TestFramePathCap(t *testing.T) {
 		require.Error(t, err, tc.name)
 		assert.True(t, errors.Is(err, ieee802154.ErrParam), tc.name)
 		assert.ErrorContains(t, err, "MaxFramePaths (32768)", tc.name)
+		assert.ErrorContains(t, err, "PathTolerance (1e-12)", tc.name)
 		assert.ErrorContains(t, err, "macMaxFrameRetries 7}", tc.name)
 		var pe *ieee802154.ParamError
 		require.ErrorAs(t, err, &pe)

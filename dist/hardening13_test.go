@@ -195,3 +195,34 @@ func TestSumFarTailsNoNaN(t *testing.T) {
 		})
 	}
 }
+
+// TestFarCDFExact: issue 13 (found by FuzzSum's far-point check, its
+// inputs kept in testdata/fuzz/FuzzSum). Two closed forms left their CDF
+// short of 1 far out: the hypoexponential Exp(0.8) + Exp(0.6) at 1e300
+// (1 - 4 ulp: the coefficients 4 and -3, each rounded, do not add to 1)
+// and N(1/6, 2.1) truncated to [0, ∞) (1 - 2 ulp: the mass and the
+// probability below x rounded apart), and with it its sum with an
+// exponential. Each now takes 1 - S in its upper half. Oracles: P(X > x)
+// <= σ²/(x - μ)² (Chebyshev), 0 in float64 at 1e300, so CDF = 1 exactly;
+// inside, the hypoexponential's CDF 1 - 4·exp(-0.6x) + 3·exp(-0.8x)
+// (closed form) and the truncated normal's (Φ((x-μ)/σ) - Φ(-μ/σ)) /
+// Φ(μ/σ) from gonum's distuv.UnitNormal.
+func TestFarCDFExact(t *testing.T) {
+	h := dist.MustSum(dist.MustExponential(0.8), dist.MustExponential(0.6))
+	mu, sd := 1.0/6, 2.1
+	tn := dist.MustTruncated(dist.MustNormal(mu, sd), 0, math.Inf(1))
+	s := dist.MustSum(tn, dist.MustExponential(0.5))
+	for _, l := range []dist.Law{h, tn, s} {
+		for _, x := range []float64{1e300, 1e100, 1e4, math.Inf(1)} {
+			assert.Equal(t, 1.0, l.CDF(x), "%v: CDF(%g)", l, x)
+			assert.Equal(t, 0.0, l.Survival(x), "%v: Survival(%g)", l, x)
+		}
+	}
+	for _, x := range []float64{0.1, 1, 3, 10, 40} {
+		want := 1 - 4*math.Exp(-0.6*x) + 3*math.Exp(-0.8*x)
+		assert.InDelta(t, want, h.CDF(x), 4e-16, "hypoexponential CDF(%g)", x)
+		z := distuv.UnitNormal
+		wantT := (z.CDF((x-mu)/sd) - z.CDF(-mu/sd)) / z.Survival(-mu/sd)
+		assert.InDelta(t, wantT, tn.CDF(x), 4e-16, "truncated CDF(%g)", x)
+	}
+}

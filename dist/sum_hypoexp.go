@@ -104,6 +104,11 @@ func (h hypoExp) CDF(x float64) float64 {
 	for i, l := range h.rates {
 		s -= h.coef[i] * math.Expm1(-l*x)
 	}
+	if s > 0.5 {
+		// 1 - S, S summed directly: the coefficients' rounding left
+		// Σ C_i short of 1 (CDF(1e300) = 1 - 4 ulp; issue 13)
+		return 1 - h.Survival(x)
+	}
 	return math.Min(1, math.Max(0, s))
 }
 

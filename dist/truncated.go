@@ -176,7 +176,12 @@ func (t truncated) CDF(x float64) float64 {
 	case x >= t.hi:
 		return 1
 	}
-	b, _ := t.split(x)
+	b, a := t.split(x)
+	if a < b {
+		// 1 - S in the upper half: b and the mass, each rounded, left
+		// CDF(1e300) at 1 - 2 ulp (issue 13)
+		return 1 - math.Min(1, a/t.mass)
+	}
 	return math.Min(1, b/t.mass)
 }
 
@@ -189,7 +194,10 @@ func (t truncated) Survival(x float64) float64 {
 	case x >= t.hi:
 		return 0
 	}
-	_, a := t.split(x)
+	b, a := t.split(x)
+	if b < a {
+		return 1 - math.Min(1, b/t.mass) // as CDF, in the lower half
+	}
 	return math.Min(1, a/t.mass)
 }
 

@@ -354,6 +354,14 @@ func TestGatewayBudgetSection(t *testing.T) {
 func TestGroupOutlierThresholds(t *testing.T) {
 	p, err := buildPlan(scenario.Demo(), "demo", func(string, ...any) {})
 	require.NoError(t, err)
+	// The program decides no warning itself: they are the model's.
+	ws, err := p.laws.Warnings()
+	require.NoError(t, err)
+	var texts []string
+	for _, w := range ws {
+		texts = append(texts, w.Text)
+	}
+	assert.Equal(t, texts, p.Warnings)
 	for i, g := range p.Groups {
 		l := p.laws.GroupEnergy[i]
 		n := float64(g.Nodes)

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"runtime"
-	"slices"
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
@@ -337,26 +336,13 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 		p.Groups = append(p.Groups, gp)
 		p.laws.groupLife = append(p.laws.groupLife, lLaw)
 	}
-	// The site model's warnings (out of reach, collisions, gateways over
-	// budget: scenario.Laws.Warnings), then the program's own checks.
-	for _, w := range laws.Warnings() {
-		p.Warnings = append(p.Warnings, w.Text)
+	// The site model decides the warnings (scenario.Laws.Warnings).
+	ws, err := laws.Warnings()
+	if err != nil {
+		return nil, err
 	}
-	for gi, g := range m.Groups {
-		gp := p.Groups[gi]
-		if !gp.DutyCycle.Feasible {
-			if gp.DutyCycle.SubBand == "" {
-				p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: a %d-byte uplink breaks %s's %.0f ms dwell time at some data rate its nodes use (see its duty-cycle line)", g.Group.Name, g.Group.Payload, s.Region.Name(), 1e3*gp.DutyCycle.DwellTimeS))
-			} else {
-				p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: the %.0f s reporting interval breaks the %s duty cycle at some data rate its nodes use (see its duty-cycle line)", g.Group.Name, g.Group.Interval, gp.DutyCycle.SubBand))
-			}
-		}
-		for _, w := range gp.PulseWarnings {
-			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: %s", g.Group.Name, w))
-		}
-		for _, w := range st.Warnings(gi) {
-			p.Warnings = append(p.Warnings, fmt.Sprintf("group %q: %s", g.Group.Name, w))
-		}
+	for _, w := range ws {
+		p.Warnings = append(p.Warnings, w.Text)
 	}
 	p.Fleet.LifetimeAccuracy = lifeAcc
 	for _, b := range m.GatewayBudgets() {
@@ -501,51 +487,16 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle
 	return gp, lLaw, nil
 }
 
-// dutyPlan checks the group's reporting interval against the duty cycle of
-// the sub-band of the region's first uplink channel (every attempt counts
-// against the sub-band's budget, so the check takes the most a report can
-// send), or, in a region without duty-cycle sub-bands (US902-928), each
-// uplink against the region's dwell time. A data rate is used when nodes in
-// reach or out of reach send at it.
+// dutyPlan is the group's duty-cycle (or dwell-time) verdict
+// (scenario.GroupModel.DutyCheck) in the plan's units.
 func dutyPlan(s scenario.Scenario, g scenario.GroupModel) (DutyPlan, error) {
-	gr := g.Group
-	used := func(dr int) bool {
-		return slices.ContainsFunc(g.PerDR, func(d scenario.DRModel) bool { return d.DR == dr }) ||
-			(g.Unheard.Prob > 0 && g.Unheard.DR == dr)
-	}
-	dp := DutyPlan{Attempts: gr.MaxTransmissions, Feasible: true}
-	if len(s.Region.SubBands()) == 0 {
-		dp.DwellTimeS = s.Region.DwellTime()
-		if math.IsInf(dp.DwellTimeS, 1) {
-			dp.DwellTimeS = 0
-		}
-		for _, dr := range s.Region.ADRDataRates() {
-			row := DutyRow{DR: dr, Used: used(dr), Feasible: true}
-			if err := s.Region.CheckDwellTime(dr, gr.Payload, 0); err != nil {
-				row.Feasible, row.Warning = false, err.Error()
-			}
-			dp.Rows = append(dp.Rows, row)
-			dp.Feasible = dp.Feasible && (row.Feasible || !row.Used)
-		}
-		return dp, nil
-	}
-	freq := s.Region.UplinkChannels()[0].Frequency
-	band, err := s.Region.SubBandAt(freq)
+	dc, err := g.DutyCheck(s)
 	if err != nil {
-		return dp, err
+		return DutyPlan{}, err
 	}
-	checks, err := s.Region.CheckInterval(freq, gr.Payload, 0, gr.MaxTransmissions, gr.Interval)
-	if err != nil {
-		return dp, err
-	}
-	dp.SubBand = band.String()
-	for _, c := range checks {
-		u := used(c.DR)
-		if !u && !slices.Contains(s.Region.ADRDataRates(), c.DR) {
-			continue
-		}
-		dp.Rows = append(dp.Rows, DutyRow{DR: c.DR, Used: u, Feasible: c.Feasible, MinIntervalS: c.MinInterval, Warning: c.Warning})
-		dp.Feasible = dp.Feasible && (c.Feasible || !u)
+	dp := DutyPlan{SubBand: dc.SubBand, DwellTimeS: dc.DwellTime, Attempts: dc.Attempts, Feasible: dc.Feasible}
+	for _, r := range dc.Rows {
+		dp.Rows = append(dp.Rows, DutyRow{DR: r.DR, Used: r.Used, Feasible: r.Feasible, MinIntervalS: r.MinInterval, Warning: r.Warning})
 	}
 	return dp, nil
 }

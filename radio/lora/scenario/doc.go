@@ -36,8 +36,9 @@
 // US902-928 DR0) and the channels a data rate's frames spread over
 // (Channels: EU863-870's 3 default channels; US902-928's 64 channels of
 // 125 kHz for DR0 … DR3 and 8 of 500 kHz for DR4, all taken to be heard by
-// the gateway). EU863-870's duty cycle and US902-928's 400 ms dwell time are
-// checked by the fleet planner. testdata/us902-928.json is a small invented
+// the gateway, unless a gateway names its channels). EU863-870's duty
+// cycle and US902-928's 400 ms dwell time are checked by
+// GroupModel.DutyCheck. testdata/us902-928.json is a small invented
 // US902-928 site.
 //
 // Nodes out of reach (whose link misses installation_margin_db even at the
@@ -60,11 +61,18 @@
 // The model decides what a person should look at, so that a back-end gets
 // the fleet planner's warnings: Laws.Warnings lists, group by group, an
 // out-of-reach share of at least OutOfReachWarnShare (with what those nodes
-// draw against the group, Laws.Drain) and every data rate whose uplink
-// success is below SaturationThreshold (Model.CollisionWarnings), then every
-// gateway sub-band whose booked answers exceed its duty cycle
-// (Model.GatewayWarnings). Each Warning carries its kind, group and gateway
-// beside its text.
+// draw against the group, Laws.Drain), every data rate whose uplink
+// success is below SaturationThreshold (Model.CollisionWarnings), a
+// reporting interval that breaks the uplinks' duty cycle or a payload that
+// breaks the dwell time (Model.DutyWarnings, GroupModel.DutyCheck), a state
+// above the cell's pulse rating and a climate outside the cell's rated range
+// (Laws.CellWarnings); then every gateway sub-band whose booked answers
+// exceed its duty cycle (Model.GatewayWarnings). Each Warning carries its
+// kind, group and gateway beside its text. Model.GatewayBudgets gives the
+// gateways' downlink airtime per sub-band and receive window as a table (an
+// answer refused in RX1 is tried in RX2, GatewayModel). The limits are for
+// planning, not certification: check the local rules and defer to the
+// regulator.
 //
 // # Cost
 //

@@ -20,6 +20,13 @@ const (
 	// GatewayBudget: a gateway's answers need more airtime than a
 	// sub-band's duty cycle allows (answers are lost).
 	GatewayBudget
+	// DutyCycle: a group's reporting interval breaks its uplinks' duty
+	// cycle (or its payload the dwell time) at a data rate its nodes use.
+	DutyCycle
+	// CellPulse: a state draws more than the cell's rated pulse current.
+	CellPulse
+	// Climate: the site's temperatures leave the cell's rated range.
+	Climate
 )
 
 // String returns the kind's name as the report prints it.
@@ -31,6 +38,12 @@ func (k WarningKind) String() string {
 		return "collisions"
 	case GatewayBudget:
 		return "gateway budget"
+	case DutyCycle:
+		return "duty cycle"
+	case CellPulse:
+		return "cell pulse"
+	case Climate:
+		return "climate"
 	}
 	return fmt.Sprintf("WarningKind(%d)", int(k))
 }
@@ -162,17 +175,46 @@ func (l Laws) OutOfReachWarnings() []Warning {
 	return out
 }
 
-// Warnings returns every warning of the site model: per group, its
-// out-of-reach share (OutOfReachWarnings) and its swamped data rates
-// (Model.CollisionWarnings), then the gateways over budget
-// (Model.GatewayWarnings). A back-end gets the fleet planner's warnings
-// from it; the planner adds the duty-cycle check of the reporting interval
-// and the cell's and climate's warnings (package energy).
-func (l Laws) Warnings() []Warning {
-	reach, coll := l.OutOfReachWarnings(), l.Model.CollisionWarnings()
+// CellWarnings returns, per group, one warning (kind CellPulse) per state
+// of its cycles whose peak current exceeds the cell's rated pulse current
+// (energy.Battery.PulseCheck, without repeats), and one (kind Climate) per
+// warning of the site's climate against the cell (energy.Site.Warnings).
+func (l Laws) CellWarnings() []Warning {
+	var out []Warning
+	for gi, g := range l.Model.Groups {
+		seen := map[string]bool{}
+		for _, c := range l.Cycles[gi] {
+			for _, pw := range g.Battery.PulseCheck(c) {
+				if txt := pw.String(); !seen[txt] {
+					seen[txt] = true
+					out = append(out, Warning{Kind: CellPulse, Group: gi, Gateway: g.Group.Gateway, Text: fmt.Sprintf("CELL PULSE: group %s: %s", Quote(g.Group.Name), txt)})
+				}
+			}
+		}
+		for _, w := range l.Site.Warnings(gi) {
+			out = append(out, Warning{Kind: Climate, Group: gi, Gateway: g.Group.Gateway, Text: fmt.Sprintf("CLIMATE: group %s: %s", Quote(g.Group.Name), w)})
+		}
+	}
+	return out
+}
+
+// Warnings returns every warning of the site model, group by group: its
+// out-of-reach share (OutOfReachWarnings), its swamped data rates
+// (Model.CollisionWarnings), its duty cycle or dwell time
+// (Model.DutyWarnings), its cell's pulse rating and climate range
+// (CellWarnings); then the gateways over budget (Model.GatewayWarnings). A
+// back-end gets the fleet planner's warnings from it. It fails only where
+// the duty-cycle check cannot be made (a region without the group's
+// channels).
+func (l Laws) Warnings() ([]Warning, error) {
+	duty, err := l.Model.DutyWarnings()
+	if err != nil {
+		return nil, err
+	}
+	lists := [][]Warning{l.OutOfReachWarnings(), l.Model.CollisionWarnings(), duty, l.CellWarnings()}
 	var out []Warning
 	for gi := range l.Model.Groups {
-		for _, ws := range [][]Warning{reach, coll} {
+		for _, ws := range lists {
 			for _, w := range ws {
 				if w.Group == gi {
 					out = append(out, w)
@@ -180,7 +222,7 @@ func (l Laws) Warnings() []Warning {
 			}
 		}
 	}
-	return append(out, l.Model.GatewayWarnings()...)
+	return append(out, l.Model.GatewayWarnings()...), nil
 }
 
 // current prints a current (A) with three significant digits in A, mA or µA.

@@ -82,8 +82,11 @@ func TestOutOfReachWarnings(t *testing.T) {
 	_, err = l.Drain(4)
 	assert.ErrorIs(t, err, scenario.ErrInvalid)
 	// The whole fleet's warnings: the out-of-reach ones, group by group.
-	all := l.Warnings()
-	assert.Len(t, all, len(ws)+len(l.Model.CollisionWarnings())+len(l.Model.GatewayWarnings()))
+	all, err := l.Warnings()
+	require.NoError(t, err)
+	duty, err := l.Model.DutyWarnings()
+	require.NoError(t, err)
+	assert.Len(t, all, len(ws)+len(l.Model.CollisionWarnings())+len(duty)+len(l.CellWarnings())+len(l.Model.GatewayWarnings()))
 
 	s, err := scenario.Demo().WithCounts([]int{5, 1, 1, 1})
 	require.NoError(t, err)
@@ -92,8 +95,21 @@ func TestOutOfReachWarnings(t *testing.T) {
 	s.Environment.ShadowingSD = 0 // exactly out of reach beyond the margin's distance
 	l, err = scenario.Compute(s, 2, nil)
 	require.NoError(t, err)
-	ws = l.Warnings()
+	ws, err = l.Warnings()
+	require.NoError(t, err)
+	ws = only(ws, scenario.OutOfReach)
 	require.Len(t, ws, 1)
 	assert.Contains(t, ws[0].Text, "EVERY node of group")
 	assert.Equal(t, 0, ws[0].Group)
+}
+
+// only keeps the warnings of one kind.
+func only(ws []scenario.Warning, k scenario.WarningKind) []scenario.Warning {
+	var out []scenario.Warning
+	for _, w := range ws {
+		if w.Kind == k {
+			out = append(out, w)
+		}
+	}
+	return out
 }

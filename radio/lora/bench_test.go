@@ -63,3 +63,22 @@ func BenchmarkGatewayDownlinks(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkGatewayDownlinksFallback is BenchmarkGatewayDownlinks with every
+// RX1 stream falling back to its group and data rate's RX2 stream (the
+// network server's fallback, with the bursts' correction).
+func BenchmarkGatewayDownlinksFallback(b *testing.B) {
+	var st []lora.DownlinkStream
+	for g := 0; g < 6; g++ {
+		for dr := 0; dr < 4; dr++ {
+			n := len(st)
+			st = append(st, lora.DownlinkStream{Rate: 0.01 * float64(1+g), Airtime: 0.05 * float64(1+dr), Lead: 1, Band: 2, DutyCycle: 0.01, Fallback: n + 2},
+				lora.DownlinkStream{Rate: 0.002 * float64(1+g), Airtime: 1, Lead: 2, Band: 4, DutyCycle: 0.1})
+		}
+	}
+	for b.Loop() {
+		if _, err := lora.GatewayDownlinks(st); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

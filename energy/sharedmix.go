@@ -20,15 +20,29 @@ type sharedMixture struct {
 	laws []dist.Law
 	name string
 	lz   *mixLazy
+	// stated, when set, returns the mixture's stated CDF error (Site's
+	// laws: the rule's and the conditional laws'), computed on first use.
+	stated func() float64
+	method string
 }
 
 type mixLazy struct {
 	once       sync.Once
 	mean, vari float64
+	accOnce    sync.Once
+	cdfAbs     float64
 }
 
 func newSharedMixture(name string, w []float64, laws []dist.Law) sharedMixture {
 	return sharedMixture{w: w, laws: laws, name: name, lz: &mixLazy{}}
+}
+
+// newStatedMixture is newSharedMixture with the stated CDF error from
+// stated (called once, on first use) and a method text.
+func newStatedMixture(name string, w []float64, laws []dist.Law, method string, stated func() float64) sharedMixture {
+	m := newSharedMixture(name, w, laws)
+	m.stated, m.method = stated, method
+	return m
 }
 
 func (m sharedMixture) CDF(t float64) float64 {
@@ -192,9 +206,11 @@ func (m sharedMixture) Rand(r *rand.Rand) float64 {
 	return math.NaN()
 }
 
-// Accuracy returns the largest of the components' stated errors.
+// Accuracy returns the largest of the components' stated errors, or for a
+// Site's law, the stated CDF error of the mixture (see Site).
 func (m sharedMixture) Accuracy() dist.Accuracy {
 	acc := dist.Accuracy{Method: "mixture over the shared factors (Gauss–Hermite nodes)"}
+
 	for _, l := range m.laws {
 		if e, ok := l.(dist.Estimated); ok {
 			a := e.Accuracy()
@@ -202,6 +218,10 @@ func (m sharedMixture) Accuracy() dist.Accuracy {
 			acc.SurvivalRel = math.Max(acc.SurvivalRel, a.SurvivalRel)
 			acc.TailFloor = math.Max(acc.TailFloor, a.TailFloor)
 		}
+	}
+	if m.stated != nil {
+		m.lz.accOnce.Do(func() { m.lz.cdfAbs = m.stated() })
+		acc.Method, acc.CDFAbs = m.method, m.lz.cdfAbs
 	}
 	return acc
 }

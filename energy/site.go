@@ -3,7 +3,6 @@ package energy
 import (
 	"fmt"
 	"math"
-	"sync"
 
 	"gonum.org/v1/gonum/integrate/quad"
 
@@ -40,34 +39,65 @@ type SiteSpec struct {
 // Site is a fleet whose nodes are independent given the shared factors: its
 // laws (a node's lifetime, the first failure, the failed count by a date,
 // the date by which a fraction has failed) are mixtures over the shared
-// factors of the conditionally independent laws. The mixture is a
-// Gauss–Hermite rule over the batch factor (7 nodes) and the temperature
-// offset (3 nodes) — one node for a factor without spread. The rule is
-// accurate while a shared factor moves lifetimes by no more than about the
-// conditional laws' own width: against an independent quadrature over the
-// batch factor (σb = 3 %, σc = 5 %, 100 nodes) a node's CDF agrees to
-// 2e-4 and the first failure's to 2e-3 (TestSiteSharedBatchAgainstQuadrature);
-// Accuracy does not include this part. Each conditional node law is
-// tabulated once on an adaptive grid of times (see Accuracy).
+// factors of the conditionally independent laws.
+//
+// The mixture is a product rule over the batch factor and the temperature
+// offset (one node for a factor without spread): Gauss–Hermite over the
+// line, or, where a cell's voltage curve puts a kink in the lifetime
+// against the temperature offset, Gauss–Legendre in the normal
+// probability on each piece between kinks (see site_rule.go). Its order
+// rises, factor by factor, until its estimated error for every group's
+// node law and first failure and for the fleet's first failure is below
+// 0.01 (or 31 nodes a factor, 400 in all): a shared factor that moves
+// lifetimes by more than the width of the conditional fleet laws (a first
+// failure among many nodes is then a near step of the shared factor)
+// gets more nodes. Each conditional node law is tabulated once on an
+// adaptive grid of times.
+//
+// Every law's Accuracy states, at the worst of a ladder of its quantiles
+// and of the nodes' conditional 5–95 % points, the conditional node laws'
+// error where the law reads them (a first failure among n nodes moves by
+// at most n·(1 − F)^(n−1)·δ for a node error δ at F, with F and δ taken
+// where they are) plus the rule's estimated error; internal/lifesim's
+// validation and closed forms test it (TestSiteSharedDominatedClosedForm).
+// The failed counts (FailedBy) state their Poisson-binomial error only;
+// Accuracy, the node laws' largest, is the rule's bound to read beside
+// them.
 //
 // A Site is an immutable value, safe for concurrent use.
 type Site struct {
-	spec  SiteSpec
-	envs  []siteEnv
-	names []string
+	spec   SiteSpec
+	envs   []siteEnv
+	names  []string
+	counts []int64
+	fac    [2]sharedFactor // the rule over the batch factor and the temperature offset
+	trunc  float64         // the normal mass beyond the fine grid's range
+	tLo    float64         // the earliest table start (s)
+	tHi    float64         // the latest table end (s)
+	// Stated CDF errors of the node laws, the groups' first failures and
+	// the fleet's first failure.
+	nodeAcc, firstAcc []float64
+	fleetAcc          float64
 }
 
 type siteEnv struct {
-	w     float64
-	cond  Conditions
-	laws  []tabulated    // per group, the conditional node law tabulated
-	exact []NodeLifetime // per group, the conditional node law
-	fleet Fleet
+	w      float64
+	cond   Conditions
+	iu, iv int            // the node's indices in the factors' rules
+	laws   []tabulated    // per group, the conditional node law tabulated
+	exact  []NodeLifetime // per group, the conditional node law
+	fleet  Fleet
 }
 
 // NewSite validates spec and builds the conditional laws. Errors name the
 // group and field (wrapping ErrParam).
 func NewSite(spec SiteSpec) (Site, error) {
+	return buildSite(spec, [2]int{len(sharedOrders) - 1, len(sharedOrders) - 1}, sharedTol)
+}
+
+// buildSite is NewSite with the rule's highest level per factor (an
+// index into sharedOrders) and the target of its estimated error.
+func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 	const fn = "NewSite"
 	if len(spec.Groups) == 0 || len(spec.Groups) > MaxSiteGroups {
 		return Site{}, paramErr(fn, "spec.Groups", len(spec.Groups), fmt.Sprintf("must hold 1 to %d groups", MaxSiteGroups))
@@ -90,54 +120,107 @@ func NewSite(spec SiteSpec) (Site, error) {
 			return Site{}, paramErr(fn, fmt.Sprintf("group %q: Count", name), g.Count, fmt.Sprintf("must be in [1, %d]", orderstat.MaxCount))
 		}
 		s.names = append(s.names, name)
+		s.counts = append(s.counts, g.Count)
 	}
-	bz, bw := hermiteNodes(spec.Shared.Batch, sharedNodesBatch)
-	tz, tw := hermiteNodes(spec.Shared.Temperature, sharedNodesTemperature)
-	for i := range bz {
-		for j := range tz {
-			cond := Conditions{BatchFactor: 1 + spec.Shared.Batch*bz[i], TemperatureOffset: spec.Shared.Temperature * tz[j]}
-			s.envs = append(s.envs, siteEnv{w: bw[i] * tw[j], cond: cond})
+	sds := [2]float64{spec.Shared.Batch, spec.Shared.Temperature}
+	var kinks [2][]float64
+	if sds[1] > 0 {
+		for _, k := range siteKinks(spec) {
+			kinks[1] = append(kinks[1], k/sds[1])
 		}
 	}
-	// Conditional laws, environment by environment (in parallel; each
-	// result lands in its own slot, so the outcome does not depend on the
-	// schedule).
-	type job struct{ e, g int }
-	jobs := make(chan job)
-	errs := make([]error, len(s.envs)*len(spec.Groups))
-	for e := range s.envs {
-		s.envs[e].laws = make([]tabulated, len(spec.Groups))
-		s.envs[e].exact = make([]NodeLifetime, len(spec.Groups))
+	for d := range 2 {
+		if sds[d] > 0 {
+			s.trunc += 2 * normSurv(sharedFineZ)
+		}
 	}
-	var wg sync.WaitGroup
-	for range 2 {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for jb := range jobs {
-				g := spec.Groups[jb.g]
-				env := Environment{Climate: spec.Climate, Conditions: s.envs[jb.e].cond}
-				l, err := NewNodeLifetime(g.Node, env)
-				if err != nil {
-					errs[jb.e*len(spec.Groups)+jb.g] = causeErr(fn, fmt.Sprintf("group %q: Node", s.names[jb.g]), g.Node.Name, "lifetime law", err)
-					continue
+	type key struct {
+		g    int
+		u, v float64
+	}
+	type built struct {
+		l  NodeLifetime
+		tb tabulated
+	}
+	cache := map[key]built{}
+	level := [2]int{0, 0}
+	for {
+		for d := range 2 {
+			s.fac[d] = newSharedFactor(sds[d] > 0, kinks[d], sharedOrders[level[d]])
+		}
+		// The conditional laws at the rule's nodes not built before (in
+		// parallel; each result lands in its own slot, so the outcome does
+		// not depend on the schedule).
+		s.envs = s.envs[:0]
+		var todo []key
+		for iu, u := range s.fac[0].z {
+			for iv, v := range s.fac[1].z {
+				cond := Conditions{BatchFactor: 1 + sds[0]*u, TemperatureOffset: sds[1] * v}
+				s.envs = append(s.envs, siteEnv{w: s.fac[0].w[iu] * s.fac[1].w[iv], cond: cond, iu: iu, iv: iv})
+				for g := range spec.Groups {
+					if _, ok := cache[key{g, u, v}]; !ok {
+						todo = append(todo, key{g, u, v})
+					}
 				}
-				s.envs[jb.e].exact[jb.g] = l
-				s.envs[jb.e].laws[jb.g] = tabulate(l)
 			}
-		}()
-	}
-	for e := range s.envs {
-		for g := range spec.Groups {
-			jobs <- job{e, g}
 		}
-	}
-	close(jobs)
-	wg.Wait()
-	for _, err := range errs {
+		out := make([]built, len(todo))
+		err := forEachOnTwo(len(todo), func(i int) error {
+			k := todo[i]
+			g := spec.Groups[k.g]
+			cond := Conditions{BatchFactor: 1 + sds[0]*k.u, TemperatureOffset: sds[1] * k.v}
+			l, err := NewNodeLifetime(g.Node, Environment{Climate: spec.Climate, Conditions: cond})
+			if err != nil {
+				return causeErr(fn, fmt.Sprintf("group %q: Node", s.names[k.g]), g.Node.Name,
+					fmt.Sprintf("lifetime law at batch factor %.4g and temperature offset %+.3g °C", cond.batch(), cond.TemperatureOffset), err)
+			}
+			out[i] = built{l, tabulate(l)}
+			return nil
+		})
 		if err != nil {
 			return Site{}, err
 		}
+		for i, k := range todo {
+			cache[k] = out[i]
+		}
+		s.tLo, s.tHi = math.Inf(1), 0
+		for e := range s.envs {
+			env := &s.envs[e]
+			u, v := s.fac[0].z[env.iu], s.fac[1].z[env.iv]
+			for g := range spec.Groups {
+				b := cache[key{g, u, v}]
+				env.laws = append(env.laws, b.tb)
+				env.exact = append(env.exact, b.l)
+				s.tLo = math.Min(s.tLo, b.tb.t[0])
+				s.tHi = math.Max(s.tHi, b.tb.t[len(b.tb.t)-1])
+			}
+		}
+		// The rule's estimated error for the node laws and the first
+		// failures; refine the factor whose part is the larger.
+		s.fitFine()
+		parts, worst := s.probeRule()
+		if worst <= tol {
+			break
+		}
+		d := 0
+		if parts[1] > parts[0] {
+			d = 1
+		}
+		if sds[d] == 0 || level[d] >= top[d] {
+			d = 1 - d
+		}
+		if sds[d] == 0 || level[d] >= top[d] {
+			break
+		}
+		// The next order that adds nodes (a piece keeps at least four).
+		next := level[d] + 1
+		for next < top[d] && len(newSharedFactor(true, kinks[d], sharedOrders[next]).z) == len(s.fac[d].z) {
+			next++
+		}
+		if len(newSharedFactor(true, kinks[d], sharedOrders[next]).z)*len(s.fac[1-d].z) > sharedMaxEnvs {
+			break
+		}
+		level[d] = next
 	}
 	for e := range s.envs {
 		groups := make([]FleetLawGroup, len(spec.Groups))
@@ -195,6 +278,33 @@ func (s Site) Size() int64 {
 	return n
 }
 
+// siteMethod returns the method text of the Site's laws.
+func (s Site) siteMethod() string {
+	r := func(d int) string {
+		f := s.fac[d]
+		switch {
+		case len(f.z) == 1:
+			return "1 node"
+		case len(f.edges) > 2:
+			return fmt.Sprintf("%d nodes in %d pieces", len(f.z), len(f.edges)-1)
+		}
+		return fmt.Sprintf("%d nodes", len(f.z))
+	}
+	return fmt.Sprintf("mixture over the shared factors (batch %s, temperature %s; error estimated against an interpolated fine rule) of tabulated conditional laws", r(0), r(1))
+}
+
+// mixStated is mix with the mixture's stated CDF error from stated.
+func (s Site) mixStated(fn string, stated func() float64, each func(e *siteEnv) (dist.Law, error)) (dist.Law, error) {
+	l, err := s.mix(fn, each)
+	if err != nil {
+		return nil, err
+	}
+	if m, ok := l.(sharedMixture); ok {
+		return newStatedMixture(m.name, m.w, m.laws, s.siteMethod(), stated), nil
+	}
+	return l, nil
+}
+
 func (s Site) mix(fn string, each func(e *siteEnv) (dist.Law, error)) (dist.Law, error) {
 	if len(s.envs) == 0 {
 		return nil, paramErr(fn, "s", "zero Site", "must be built by NewSite")
@@ -229,7 +339,7 @@ func (s Site) NodeLifetime(i int) (dist.Law, error) {
 	if i < 0 || i >= len(s.names) {
 		return nil, paramErr(fn, "i", i, fmt.Sprintf("must be in [0, %d)", len(s.names)))
 	}
-	return s.mix(fn, func(e *siteEnv) (dist.Law, error) { return e.laws[i], nil })
+	return s.mixStated(fn, func() float64 { return s.nodeAcc[i] }, func(e *siteEnv) (dist.Law, error) { return e.laws[i], nil })
 }
 
 // Conditional returns the lifetime law of a node of group i given the
@@ -245,7 +355,7 @@ func (s Site) Conditional(i int, c Conditions) (NodeLifetime, error) {
 // FirstFailure returns the law of the date (s) of the first flat battery in
 // the fleet: the mixture over the shared factors of Π_g S_g(t)^{n_g}.
 func (s Site) FirstFailure() (dist.Law, error) {
-	return s.mix("Site.FirstFailure", func(e *siteEnv) (dist.Law, error) { return e.fleet.FirstFailure() })
+	return s.mixStated("Site.FirstFailure", func() float64 { return s.fleetAcc }, func(e *siteEnv) (dist.Law, error) { return e.fleet.FirstFailure() })
 }
 
 // GroupFirstFailure returns the law of the date (s) of the first flat
@@ -255,7 +365,7 @@ func (s Site) GroupFirstFailure(i int) (dist.Law, error) {
 	if i < 0 || i >= len(s.names) {
 		return nil, paramErr(fn, "i", i, fmt.Sprintf("must be in [0, %d)", len(s.names)))
 	}
-	return s.mix(fn, func(e *siteEnv) (dist.Law, error) {
+	return s.mixStated(fn, func() float64 { return s.firstAcc[i] }, func(e *siteEnv) (dist.Law, error) {
 		return orderstat.MinOfGroups([]orderstat.Group{{Law: e.laws[i], Count: s.spec.Groups[i].Count}})
 	})
 }
@@ -263,7 +373,9 @@ func (s Site) GroupFirstFailure(i int) (dist.Law, error) {
 // FractionFailed returns the law of the date (s) by which a fraction q of
 // the fleet (at least one node) has a flat battery.
 func (s Site) FractionFailed(q float64) (dist.Law, error) {
-	return s.mix("Site.FractionFailed", func(e *siteEnv) (dist.Law, error) { return e.fleet.FractionFailed(q) })
+	k := max(1, int64(math.Ceil(q*float64(s.Size()))))
+	stated := func() float64 { _, _, st := s.lawError(kindKth, 0, k); return st }
+	return s.mixStated("Site.FractionFailed", stated, func(e *siteEnv) (dist.Law, error) { return e.fleet.FractionFailed(q) })
 }
 
 // FailedBy returns the law of the number of flat batteries at the date t
@@ -346,17 +458,20 @@ func (s Site) ReplacementPlan(risk float64) (Plan, error) {
 	return p, nil
 }
 
-// Accuracy returns the largest stated CDF error of the conditional node
-// laws (the model's and the tables' together).
+// Accuracy returns the largest stated CDF error of the groups' node laws
+// (the conditional laws' and the shared rule's together; see Site) and
+// the largest relative tail errors of the conditional node laws.
 func (s Site) Accuracy() dist.Accuracy {
-	acc := dist.Accuracy{Method: "mixture over shared factors (Gauss–Hermite) of tabulated conditional node laws"}
+	acc := dist.Accuracy{Method: s.siteMethod()}
 	for _, e := range s.envs {
 		for _, l := range e.laws {
 			a := l.Accuracy()
-			acc.CDFAbs = math.Max(acc.CDFAbs, a.CDFAbs)
 			acc.SurvivalRel = math.Max(acc.SurvivalRel, a.SurvivalRel)
 			acc.TailFloor = math.Max(acc.TailFloor, a.TailFloor)
 		}
+	}
+	for _, a := range s.nodeAcc {
+		acc.CDFAbs = math.Max(acc.CDFAbs, a)
 	}
 	return acc
 }

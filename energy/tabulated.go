@@ -26,16 +26,20 @@ const (
 // tabulated is a NodeLifetime read from a table; it implements dist.Law,
 // dist.Atomic and dist.Estimated.
 type tabulated struct {
-	src        NodeLifetime
-	t, z       []float64 // grid, probit
-	d0, d1     []float64 // per interval i: the PCHIP slopes at t[i] and t[i+1]
-	kinks      int       // month boundaries seeded into the grid
-	cal        float64   // calendar limit (+Inf for none)
-	atom       float64   // mass at the calendar limit
-	acc        dist.Accuracy
-	tabCDF     float64 // the table's own part of acc.CDFAbs (interpolation against direct evaluation)
-	tabRel     float64 // and of acc.SurvivalRel
-	mean, vari float64
+	src    NodeLifetime
+	t, z   []float64 // grid, probit
+	d0, d1 []float64 // per interval i: the PCHIP slopes at t[i] and t[i+1]
+	kinks  int       // month boundaries seeded into the grid
+	cal    float64   // calendar limit (+Inf for none)
+	atom   float64   // mass at the calendar limit
+	acc    dist.Accuracy
+	tabCDF float64 // the table's own part of acc.CDFAbs (interpolation against direct evaluation)
+	tabRel float64 // and of acc.SurvivalRel
+	worstZ float64 // the largest probit error measured (tabZTol at most)
+	// The node law's own stated CDF error (NodeLifetime.accuracyAt)
+	// measured at the times profT (ascending): profE.
+	profT, profE []float64
+	mean, vari   float64
 }
 
 // tabulate builds the table of l.
@@ -133,9 +137,10 @@ func tabulate(l NodeLifetime) tabulated {
 	}
 	tb.t, tb.z = ts, zs
 	tb.d0, tb.d1 = pchipIntervals(ts, zs, kink)
-	// The model's own error, measured at three of the table's times (the
-	// law's 1e-14 ends and its middle).
-	src := l.accuracyAt([]float64{ts[0], ts[len(ts)/2], ts[len(ts)-1]})
+	// The model's own error, measured at six of the table's times (see
+	// profile).
+	tb.worstZ = worst
+	src := tb.profile(l)
 	// A probit error δ moves a probability p by about φ(z)·δ <= 0.4·δ, and
 	// the smaller tail p by about p·|z|·δ (Mills' ratio): |z| <= 7.7 down to
 	// 1e-14.
@@ -151,6 +156,59 @@ func tabulate(l NodeLifetime) tabulated {
 	}
 	tb.moments()
 	return tb
+}
+
+// profile measures the node law's stated error (NodeLifetime.accuracyAt)
+// at the table's ends, its middle and the times where its CDF is 1e-6,
+// 1e-3 and 0.1, so that errAt can state the error where it is read, and
+// returns the largest (with the largest relative survival error) as the
+// law's stated error.
+func (tb *tabulated) profile(l NodeLifetime) dist.Accuracy {
+	std := dist.MustNormal(0, 1)
+	n := len(tb.t)
+	ts := []float64{tb.t[0], tb.t[n/2], tb.t[n-1]}
+	for _, p := range []float64{1e-6, 1e-3, 0.1} {
+		if t := tb.invert(std.Quantile(p)); t > tb.t[0] && t < tb.t[n-1] {
+			ts = append(ts, t)
+		}
+	}
+	tb.profT = sortedUnique(ts)
+	tb.profE = make([]float64, len(tb.profT))
+	var acc dist.Accuracy
+	for i, t := range tb.profT {
+		a := l.accuracyAt([]float64{t})
+		tb.profE[i] = a.CDFAbs
+		acc.CDFAbs = math.Max(acc.CDFAbs, a.CDFAbs)
+		acc.SurvivalRel = math.Max(acc.SurvivalRel, a.SurvivalRel)
+		acc.TailFloor, acc.Method = a.TailFloor, a.Method
+	}
+	return acc
+}
+
+// errAt returns the stated CDF error at t (s): the node law's, the larger
+// of the two measured at the profile's times on either side (the end's
+// beyond them), and the table's, φ(z)·δz for the largest probit error δz
+// found. Far in a tail both shrink with the tail: a first failure among n
+// nodes reads the node law where F is about 1/n, and the bound n·CDFAbs
+// would be far too loose there.
+func (tb tabulated) errAt(t float64) float64 {
+	switch {
+	case math.IsNaN(t) || tb.t == nil:
+		return math.NaN()
+	case t >= tb.cal || t <= 0:
+		return 0
+	}
+	i := sort.SearchFloat64s(tb.profT, t)
+	var src float64
+	switch {
+	case i == 0:
+		src = tb.profE[0]
+	case i == len(tb.profT):
+		src = tb.profE[i-1]
+	default:
+		src = math.Max(tb.profE[i-1], tb.profE[i])
+	}
+	return src + normPDF(tb.zAt(t))*tb.worstZ
 }
 
 // pchipIntervals returns, for each interval i of the grid t, the slopes

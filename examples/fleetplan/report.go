@@ -458,11 +458,14 @@ func wrap(w io.Writer, prefix, text string) {
 // in one unit, then how it was computed and its stated CDF error.
 func lawLine(s Summary, unit func(float64) string) string {
 	how := s.Method
-	if s.CDFError > 0 {
+	switch {
+	case s.CDFError > 1e-12 && s.CDFError < 1e-4:
+		how += "; CDF error ≤ 0.0001" // a true bound, without an exponent
+	case s.CDFError > 0:
 		how += fmt.Sprintf("; CDF error ≤ %.1g", s.CDFError)
 	}
 	atom := ""
-	if s.In90[0] == s.In90[1] && s.In90[1] == s.Support[1] && !math.IsInf(s.Support[1], 0) {
+	if s.In90[0] == s.In90[1] && s.In90[1] == s.Support[1] && s.Support[0] < s.Support[1] && !math.IsInf(s.Support[1], 0) {
 		// A lifetime law whose 90 % sits at the top of its support: an
 		// atom at the calendar limit, which no input of the model spreads.
 		atom = " (an atom at the end of the support: the calendar limit, which nothing in the model spreads)"

@@ -1,0 +1,696 @@
+package energy
+
+import (
+	"math"
+	"sort"
+
+	"gonum.org/v1/gonum/integrate/quad"
+
+	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/orderstat"
+)
+
+// The rule over the shared factors, and its error.
+//
+// Each shared factor with spread (the batch factor u = (b − 1)/σb and the
+// temperature offset v = ΔT/σT, in standard normal units) gets a rule of
+// nodes and weights; a Site builds each group's conditional node law at
+// every node of the product rule, and its laws are the mixtures over it.
+// A factor whose conditional laws move smoothly gets a Gauss–Hermite rule.
+// The temperature offset moves them through the cells' data-sheet tables,
+// which are piecewise linear in temperature: where the coldest day crosses
+// a temperature of the voltage curve's resistance table, the lifetime's
+// slope against the offset jumps (by a factor 2.6 in the demo), and a
+// Gauss rule over the whole line converges slowly. Those kinks split the
+// line into pieces, each with a Gauss–Legendre rule in y = Φ(v/2) (so
+// that each piece's nodes follow a normal law twice as wide as the
+// factor's: its middle and its tail both get nodes); a factor needing more
+// than sharedMaxHermite nodes takes that rule too.
+//
+// The rule's error is estimated against a reference: the conditional
+// probits are interpolated from the nodes (local cubics within a piece,
+// lines beyond its outermost nodes; barycentric form, Berrut and
+// Trefethen, SIAM Review 46 (2004) 501–517) onto a fine grid (trapezoid
+// weights times the normal density over ±4.5 standard deviations), and
+// the law is mixed there. The stated error at a time is the rule's
+// difference from the reference, plus the reference's own: the difference
+// from the interpolant on the neighbouring stencil (see stencils; the
+// interpolation), from the grid of every other point (the fine rule)
+// and the normal mass beyond ±4.5 (6.8e-6 a factor). The fine grid's step
+// follows the probits' slope against the factor (fitFine), down to 1/64
+// sd. NewSite raises the rule's order in the factor whose part is the
+// larger until the node laws' and first failures' estimates are below
+// sharedTol, or a cap is reached.
+const (
+	sharedTol      = 1e-2 // target of the rule's estimated CDF error (the demo: 3 × 8 nodes, stated 4e-4 to 7e-3)
+	sharedFineZ    = 4.5  // the fine grid's range (standard deviations)
+	sharedFineStep = 0.125
+	sharedMaxEnvs  = 400 // cap on the product rule's nodes
+	sharedMinPiece = 0.02
+	sharedStretch  = 2.0 // the width of the Legendre pieces' variable (see newSharedFactor)
+	// sharedMaxHermite is the largest Gauss–Hermite rule used: beyond it
+	// the outer nodes reach far into the tails (±7.9 sd with 11 nodes,
+	// beyond the offsets a climate allows) with weights below 1e-9; larger
+	// orders take the Legendre rule in Φ(v/2), whose 31 nodes stay within
+	// ±6 sd (60 °C at the largest temperature sd, 10 °C).
+	sharedMaxHermite = 7
+)
+
+// sharedOrders are the orders a factor's rule takes, in turn.
+var sharedOrders = [...]int{3, 5, 7, 11, 15, 21, 31}
+
+// sharedFactor is a rule over one shared factor, in standard units.
+type sharedFactor struct {
+	edges []float64 // piece boundaries: −Inf, kinks, +Inf
+	z, w  []float64 // nodes (ascending) and weights (summing to 1)
+	piece []int     // each node's piece
+	// fine grid: points, weights (trapezoid × normal density, summing to
+	// 1) and the weights of every other point.
+	fz, fw, fwc []float64
+	// interpolation rows: lag[i][j] the weight of node j at fine point i;
+	// lagr without one node of each piece.
+	lag, lagr [][]float64
+}
+
+// newSharedFactor returns the rule of order m over a factor with spread
+// (kinks in standard units), or the single node 0 without spread.
+func newSharedFactor(spread bool, kinks []float64, m int) sharedFactor {
+	if !spread {
+		one := [][]float64{{1}}
+		return sharedFactor{edges: []float64{math.Inf(-1), math.Inf(1)}, z: []float64{0}, w: []float64{1}, piece: []int{0},
+			fz: []float64{0}, fw: []float64{1}, fwc: []float64{1}, lag: one, lagr: one}
+	}
+	// Pieces: kinks that leave each piece at least sharedMinPiece of the
+	// normal mass.
+	edges := []float64{math.Inf(-1)}
+	ks := sortedUnique(append([]float64(nil), kinks...))
+	for _, k := range ks {
+		if normCDFz(k)-normCDFz(edges[len(edges)-1]) >= sharedMinPiece && normSurv(k) >= sharedMinPiece {
+			edges = append(edges, k)
+		}
+	}
+	edges = append(edges, math.Inf(1))
+	f := sharedFactor{edges: edges}
+	std := dist.MustNormal(0, 1)
+	if len(edges) == 2 && m <= sharedMaxHermite {
+		f.z, f.w = hermiteNodes(1, m)
+		f.piece = make([]int, m)
+	} else {
+		for p := 0; p+1 < len(edges); p++ {
+			qa, qb := normCDFz(edges[p]), normCDFz(edges[p+1])
+			np := max(4, int(math.Round(float64(m)*(qb-qa))))
+			x := make([]float64, np)
+			w := make([]float64, np)
+			// Gauss–Legendre in y = Φ(v/sharedStretch): nodes follow a
+			// normal law twice as wide as the factor's, so that a piece's
+			// tail has nodes too (a first failure's lower tail is set by
+			// the factor's tail) and its middle is not left bare.
+			const sh = sharedStretch
+			quad.Legendre{}.FixedLocations(x, w, normCDFz(edges[p]/sh), normCDFz(edges[p+1]/sh))
+			for i := range x {
+				z := sh * std.Quantile(x[i])
+				f.z = append(f.z, z)
+				f.w = append(f.w, w[i]*sh*normPDF(z)/normPDF(z/sh))
+				f.piece = append(f.piece, p)
+			}
+		}
+		// Nodes ascending (the Legendre rule lists them descending).
+		ord := make([]int, len(f.z))
+		for i := range ord {
+			ord[i] = i
+		}
+		sort.Slice(ord, func(a, b int) bool { return f.z[ord[a]] < f.z[ord[b]] })
+		z, w, pc := make([]float64, len(ord)), make([]float64, len(ord)), make([]int, len(ord))
+		for i, o := range ord {
+			z[i], w[i], pc[i] = f.z[o], f.w[o], f.piece[o]
+		}
+		f.z, f.w, f.piece = z, w, pc
+		tot := 0.0
+		for _, w := range f.w {
+			tot += w
+		}
+		for i := range f.w {
+			f.w[i] /= tot
+		}
+	}
+	f.setFine(sharedFineStep)
+	return f
+}
+
+// setFine lays the fine grid of the reference at about step (standard
+// deviations) over ±sharedFineZ (4k + 1 points, so that every other point
+// is a grid of its own) with its interpolation rows.
+func (f *sharedFactor) setFine(step float64) {
+	// The fine grid.
+	n := int(math.Round(2*sharedFineZ/step)) + 1
+	if n%4 != 1 {
+		n += 4 - (n-1)%4
+	}
+	h := 2 * sharedFineZ / float64(n-1)
+	f.fz, f.fw, f.fwc = make([]float64, n), make([]float64, n), make([]float64, n)
+	sw, sc := 0.0, 0.0
+	for i := range n {
+		f.fz[i] = -sharedFineZ + h*float64(i)
+		d := normPDF(f.fz[i])
+		if i == 0 || i == n-1 {
+			d /= 2
+		}
+		f.fw[i] = d
+		sw += d
+		if i%2 == 0 {
+			c := normPDF(f.fz[i])
+			if i == 0 || i == n-1 {
+				c /= 2
+			}
+			f.fwc[i] = c
+			sc += c
+		}
+	}
+	for i := range n {
+		f.fw[i] /= sw
+		f.fwc[i] /= sc
+	}
+	// Interpolation rows, piece by piece.
+	f.lag, f.lagr = make([][]float64, n), make([][]float64, n)
+	for i, x := range f.fz {
+		p := sort.SearchFloat64s(f.edges, x) - 1
+		p = max(0, min(p, len(f.edges)-2))
+		var idx []int
+		for j := range f.z {
+			if f.piece[j] == p {
+				idx = append(idx, j)
+			}
+		}
+		main, alt := stencils(f.z, idx, x)
+		f.lag[i] = lagrangeRow(f.z, main, x)
+		f.lagr[i] = lagrangeRow(f.z, alt, x)
+	}
+}
+
+// stencils returns the nodes (indices into z, among idx, ascending in z)
+// of the interpolant at x and of the alternative whose difference from it
+// estimates its error: between a piece's nodes, the cubic through the two
+// nodes on either side of x against the cubic shifted by one node (a
+// quadratic against a line with three nodes in the piece); beyond its
+// outermost node, the line through the two outermost against the
+// quadratic through three (the probit is nearly linear in a factor far
+// out, where the normal weight is small).
+func stencils(z []float64, idx []int, x float64) (main, alt []int) {
+	n := len(idx)
+	if n == 1 {
+		return idx, idx
+	}
+	switch {
+	case x <= z[idx[0]]:
+		return idx[:2], idx[:min(3, n)]
+	case x >= z[idx[n-1]]:
+		return idx[n-2:], idx[max(0, n-3):]
+	}
+	j := 0 // z[idx[j]] <= x < z[idx[j+1]]
+	for j+2 < n && z[idx[j+1]] <= x {
+		j++
+	}
+	win := func(lo, size int) []int {
+		lo = max(0, min(lo, n-size))
+		return idx[lo : lo+size]
+	}
+	if n < 4 {
+		return win(j-1, n), win(j, 2)
+	}
+	main = win(j-1, 4)
+	// The shift away from the nearer end of the piece.
+	a, b := win(j-2, 4), win(j, 4)
+	alt = a
+	if a[0] == main[0] {
+		alt = b
+	}
+	return main, alt
+}
+
+// lagrangeRow returns the weights over all nodes z (zero off idx) of the
+// polynomial through the nodes idx, evaluated at x (barycentric form).
+func lagrangeRow(z []float64, idx []int, x float64) []float64 {
+	row := make([]float64, len(z))
+	for _, j := range idx {
+		if x == z[j] {
+			row[j] = 1
+			return row
+		}
+	}
+	s := 0.0
+	for _, j := range idx {
+		b := 1.0
+		for _, k := range idx {
+			if k != j {
+				b *= z[j] - z[k]
+			}
+		}
+		row[j] = 1 / (b * (x - z[j]))
+		s += row[j]
+	}
+	for _, j := range idx {
+		row[j] /= s
+	}
+	return row
+}
+
+// normCDFz is Φ(z), with Φ(−∞) = 0 and Φ(∞) = 1.
+func normCDFz(z float64) float64 { return normSurv(-z) }
+
+// siteKinks returns the temperature offsets (°C) where a group's lifetime
+// has a kink against the shared offset: where its coldest day (the
+// coldest month's mean less half the daily swing) meets a temperature of
+// its voltage curve's resistance table. The derating table's kinks enter
+// through the year's mean derating, each with a twelfth of its weight,
+// and are left to the rule (the estimate sees them).
+func siteKinks(spec SiteSpec) []float64 {
+	var ks []float64
+	for _, g := range spec.Groups {
+		th, vc := g.Node.Thermal, g.Node.Voltage
+		if th == nil || vc == nil {
+			continue
+		}
+		coldest := th.ReferenceTemperature
+		if spec.Climate != nil {
+			coldest = spec.Climate.Min()
+		}
+		for _, tc := range vc.ColdTemperatures {
+			ks = append(ks, tc-coldest)
+		}
+	}
+	return ks
+}
+
+// fitFine refines each factor's fine grid to the steepness of the laws:
+// a first failure among many nodes rises over about a quarter of a unit of
+// the groups' probit, so the grid's step is kept to half of that over the
+// largest probit slope against the factor (measured between neighbouring
+// nodes, at the times where the groups' central tables are at 1e-3, 0.1
+// and 0.5), down to 1/64 sd (1/32 with both factors spread).
+func (s *Site) fitFine() {
+	nv := len(s.fac[1].z)
+	for d := range 2 {
+		f := &s.fac[d]
+		if len(f.z) < 2 {
+			continue
+		}
+		o := &s.fac[1-d]
+		mid := len(o.z) / 2
+		env := func(i int) *siteEnv {
+			if d == 0 {
+				return &s.envs[i*nv+mid]
+			}
+			return &s.envs[mid*nv+i]
+		}
+		slope := 0.0
+		for g := range s.names {
+			c := env(len(f.z) / 2).laws[g]
+			for _, p := range []float64{1e-3, 0.1, 0.5} {
+				t := c.Quantile(p)
+				if !(t > 0 && t < c.cal) {
+					continue
+				}
+				for i := 0; i+1 < len(f.z); i++ {
+					dz := math.Abs(env(i + 1).laws[g].zAt(t) - env(i).laws[g].zAt(t))
+					slope = math.Max(slope, dz/(f.z[i+1]-f.z[i]))
+				}
+			}
+		}
+		least := 1.0 / 64
+		if len(o.z) > 1 {
+			least = 1.0 / 32
+		}
+		if step := math.Max(least, 0.125/slope); step < sharedFineStep {
+			f.setFine(step)
+		}
+	}
+}
+
+// Modes of a factor in a mixture evaluation.
+const (
+	modeNodes   = iota // the rule's nodes and weights (the law as computed)
+	modeFine           // the fine grid, interpolated
+	modeReduced        // the fine grid, interpolated without one node a piece
+	modeCoarse         // every other point of the fine grid
+)
+
+// lawKind says which conditional law a mixture evaluation mixes.
+type lawKind int
+
+const (
+	kindNode  lawKind = iota // a node of one group
+	kindFirst                // the first failure among one group's nodes
+	kindFleet                // the first failure among all nodes
+	kindKth                  // the k-th failure among all nodes (P(count >= k))
+	kindCount                // the count of failures (P(count <= k))
+)
+
+// condAt returns the conditional CDF of kind at the shared point whose
+// groups' probits are zs (P(run out by t) = Φ(z)), with g the group and k
+// the count of kinds that need them; dead marks groups past their calendar
+// limit.
+func (s *Site) condAt(kind lawKind, g int, k int64, zs []float64, probs []float64) float64 {
+	switch kind {
+	case kindNode:
+		return normSurv(-zs[g])
+	case kindFirst:
+		return -math.Expm1(float64(s.counts[g]) * math.Log(normSurv(zs[g])))
+	case kindFleet:
+		l := 0.0
+		for h, z := range zs {
+			l += float64(s.counts[h]) * math.Log(normSurv(z))
+		}
+		return -math.Expm1(l)
+	}
+	for h, z := range zs {
+		probs[h] = normSurv(-z)
+	}
+	c, err := orderstat.PoissonBinomial(probs, s.counts)
+	if err != nil {
+		return math.NaN()
+	}
+	if kind == kindKth {
+		return c.Survival(float64(k) - 0.5)
+	}
+	return c.CDF(float64(k))
+}
+
+// nodeZ returns the probits at t of the groups' conditional node laws at
+// the rule's nodes, Z[g·E + e] for the environments e, for the groups with
+// want[g] (every group when want is nil).
+func (s *Site) nodeZ(t float64, want []bool) []float64 {
+	E := len(s.envs)
+	Z := make([]float64, len(s.names)*E)
+	for g := range s.names {
+		if want != nil && !want[g] {
+			continue
+		}
+		for e := range s.envs {
+			Z[g*E+e] = s.probitAt(s.envs[e].laws[g], t)
+		}
+	}
+	return Z
+}
+
+// interp returns Σ_j row[j]·y[j·stride], or y's common value where the
+// values are infinite (past the calendar limit, or before time 0: the
+// same at every node of a group).
+func interp(row []float64, y []float64, stride int) float64 {
+	if math.IsInf(y[0], 0) {
+		return y[0]
+	}
+	z := 0.0
+	for j, l := range row {
+		if l != 0 {
+			z += l * y[j*stride]
+		}
+	}
+	return z
+}
+
+// mixZ returns the mixture over the shared factors of kind's conditional
+// CDF, each factor in the given mode, from the node probits Z (nodeZ).
+func (s *Site) mixZ(Z []float64, kind lawKind, g int, k int64, mode [2]int) float64 {
+	fu, fv := &s.fac[0], &s.fac[1]
+	nv := len(fv.z)
+	E := len(s.envs)
+	G := len(s.names)
+	pick := func(f *sharedFactor, m int) (pts int, w []float64, rows [][]float64) {
+		switch m {
+		case modeNodes:
+			return len(f.z), f.w, nil
+		case modeCoarse:
+			return len(f.fz), f.fwc, f.lag
+		case modeReduced:
+			return len(f.fz), f.fw, f.lagr
+		}
+		return len(f.fz), f.fw, f.lag
+	}
+	pu, wu, ru := pick(fu, mode[0])
+	pv, wv, rv := pick(fv, mode[1])
+	groups := []int{g}
+	if kind != kindNode && kind != kindFirst {
+		groups = groups[:0]
+		for h := range G {
+			groups = append(groups, h)
+		}
+	}
+	// Along u: Y[h][a][j] for the u points a and the v nodes j
+	// (environment e = iu·nv + iv).
+	Y := make([]float64, G*pu*nv)
+	for _, h := range groups {
+		zh := Z[h*E : (h+1)*E]
+		for a := range pu {
+			if wu[a] == 0 {
+				continue
+			}
+			for j := range nv {
+				if ru == nil {
+					Y[(h*pu+a)*nv+j] = zh[a*nv+j]
+				} else {
+					Y[(h*pu+a)*nv+j] = interp(ru[a], zh[j:], nv)
+				}
+			}
+		}
+	}
+	zs := make([]float64, G)
+	probs := make([]float64, G)
+	sum := 0.0
+	for a := range pu {
+		if wu[a] == 0 {
+			continue
+		}
+		for b := range pv {
+			w := wu[a] * wv[b]
+			if w < 1e-14 {
+				continue
+			}
+			for _, h := range groups {
+				y := Y[(h*pu+a)*nv : (h*pu+a+1)*nv]
+				if rv == nil {
+					zs[h] = y[b]
+				} else {
+					zs[h] = interp(rv[b], y, 1)
+				}
+			}
+			sum += w * s.condAt(kind, g, k, zs, probs)
+		}
+	}
+	return math.Min(1, math.Max(0, sum))
+}
+
+// probitAt is the probit of a conditional node law's CDF at t (+Inf from
+// its calendar limit on).
+func (s *Site) probitAt(tb tabulated, t float64) float64 {
+	switch {
+	case t >= tb.cal:
+		return math.Inf(1)
+	case t <= 0:
+		return math.Inf(-1)
+	}
+	return tb.zAt(t)
+}
+
+// ruleError returns the estimated error of the rule for kind at t, split
+// by factor (the part that refining the factor would lower), and the
+// total with the reference's own error and the truncation.
+func (s *Site) ruleError(t float64, kind lawKind, g int, k int64) (parts [2]float64, total float64) {
+	var want []bool
+	if kind == kindNode || kind == kindFirst {
+		want = make([]bool, len(s.names))
+		want[g] = true
+	}
+	Z := s.nodeZ(t, want)
+	rule := s.mixZ(Z, kind, g, k, [2]int{modeNodes, modeNodes})
+	ref := s.mixZ(Z, kind, g, k, [2]int{modeFine, modeFine})
+	total = math.Abs(rule - ref)
+	for d := range 2 {
+		if len(s.fac[d].fz) == 1 {
+			continue
+		}
+		m := [2]int{modeFine, modeFine}
+		m[d] = modeReduced
+		interp := math.Abs(s.mixZ(Z, kind, g, k, m) - ref)
+		m[d] = modeCoarse
+		fine := math.Abs(s.mixZ(Z, kind, g, k, m) - ref)
+		m = [2]int{modeNodes, modeNodes}
+		m[d] = modeFine
+		own := math.Abs(s.mixZ(Z, kind, g, k, m) - rule)
+		parts[d] = interp + own
+		total += interp + fine
+	}
+	return parts, total + s.trunc
+}
+
+// sharedProbeLevels are the CDF levels of a law at which its stated error
+// is measured.
+var sharedProbeLevels = [...]float64{1e-6, 1e-4, 1e-3, 0.01, 0.05, 0.15, 0.3, 0.5, 0.7, 0.85, 0.95, 0.99, 0.999}
+
+// probeTimes returns the times (s) where the rule's mixture of kind's law
+// reaches sharedProbeLevels (bisection on the rule's CDF), without
+// repeats.
+func (s *Site) probeTimes(kind lawKind, g int, k int64) []float64 {
+	var want []bool
+	if kind == kindNode || kind == kindFirst {
+		want = make([]bool, len(s.names))
+		want[g] = true
+	}
+	cdf := func(t float64) float64 {
+		return s.mixZ(s.nodeZ(t, want), kind, g, k, [2]int{modeNodes, modeNodes})
+	}
+	var ts []float64
+	for _, p := range sharedProbeLevels {
+		lo, hi := 0.0, s.tHi
+		if cdf(hi) < p {
+			continue
+		}
+		for range 60 {
+			m := lo + (hi-lo)/2
+			if cdf(m) >= p {
+				hi = m
+			} else {
+				lo = m
+			}
+			if hi-lo <= 1e-9*hi {
+				break
+			}
+		}
+		ts = append(ts, hi)
+	}
+	// Where the rule is too coarse its CDF is a staircase with a steep
+	// rise at each node's conditional law: the error is largest at the
+	// rise's edges, so the nodes' conditional 5, 25, 50, 75 and 95 %
+	// points are probed too (at most sharedMaxMidProbes of them, a twelfth
+	// with both factors spread, evenly chosen).
+	var edgesT []float64
+	at := func(env *siteEnv, h int, p float64) float64 {
+		if kind == kindNode {
+			return env.laws[h].Quantile(p)
+		}
+		return env.laws[h].Quantile(-math.Expm1(math.Log1p(-p) / float64(s.counts[h])))
+	}
+	for e := range s.envs {
+		env := &s.envs[e]
+		if env.w < 1e-4 {
+			continue
+		}
+		for _, p := range []float64{0.05, 0.25, 0.5, 0.75, 0.95} {
+			switch kind {
+			case kindNode, kindFirst:
+				edgesT = append(edgesT, at(env, g, p))
+			case kindFleet:
+				m := math.Inf(1)
+				for h := range s.names {
+					m = math.Min(m, at(env, h, p))
+				}
+				edgesT = append(edgesT, m)
+			}
+		}
+	}
+	edgesT = sortedUnique(edgesT)
+	most := sharedMaxMidProbes
+	if len(s.fac[0].z) > 1 && len(s.fac[1].z) > 1 {
+		most /= 12 // the fine grid is a product: each probe costs more
+	}
+	if len(edgesT) > most {
+		pick := make([]float64, most)
+		for i := range pick {
+			pick[i] = edgesT[i*(len(edgesT)-1)/(most-1)]
+		}
+		edgesT = pick
+	}
+	return sortedUnique(append(ts, edgesT...))
+}
+
+// sharedMaxMidProbes caps the probes between the nodes' conditional
+// medians (probeTimes).
+const sharedMaxMidProbes = 160
+
+// tableError returns the error at t of the rule's mixture for kind that
+// the conditional node laws' stated errors (tabulated.errAt) can cause:
+// with δ the node law's error and F its CDF where it is read, a node law
+// moves by δ, a first failure among n by n·(1 − F⁻)^(n−1)·δ with F⁻ =
+// max(0, F − δ) (the mean value theorem on 1 − (1 − F)^n), the fleet's by
+// the sum over groups of such terms times the other groups' survivals
+// (plus their errors), a count or a k-th failure by Σ n_g·δ_g.
+func (s *Site) tableError(t float64, kind lawKind, g int) float64 {
+	sum := 0.0
+	for e := range s.envs {
+		env := &s.envs[e]
+		var err float64
+		switch kind {
+		case kindNode:
+			err = env.laws[g].errAt(t)
+		case kindFirst:
+			d := env.laws[g].errAt(t)
+			f := math.Max(0, env.laws[g].CDF(t)-d)
+			err = float64(s.counts[g]) * powSurv(1-math.Min(f, 1), s.counts[g]-1) * d
+		case kindFleet:
+			ds, ss := make([]float64, len(s.names)), make([]float64, len(s.names))
+			for h := range s.names {
+				ds[h] = env.laws[h].errAt(t)
+				ss[h] = math.Min(1, env.laws[h].Survival(t)+ds[h])
+			}
+			for h := range s.names {
+				if ds[h] == 0 {
+					continue
+				}
+				term := float64(s.counts[h]) * ds[h] * powSurv(ss[h], s.counts[h]-1)
+				for k := range s.names {
+					if k != h {
+						term *= powSurv(ss[k], s.counts[k])
+					}
+				}
+				err += term
+			}
+		default:
+			for h := range s.names {
+				err += float64(s.counts[h]) * env.laws[h].errAt(t)
+			}
+		}
+		sum += env.w * math.Min(1, err)
+	}
+	return math.Min(1, sum)
+}
+
+// powSurv returns x^k for x in [0, 1] and k >= 0 (1 for k = 0).
+func powSurv(x float64, k int64) float64 {
+	if k == 0 {
+		return 1
+	}
+	return math.Pow(x, float64(k))
+}
+
+// lawError returns the rule's estimated error parts (the largest at the
+// probe times) and the stated CDF error of kind's law: the largest at the
+// probe times of the table error and the rule's total.
+func (s *Site) lawError(kind lawKind, g int, k int64) (parts [2]float64, rule, stated float64) {
+	for _, t := range s.probeTimes(kind, g, k) {
+		p, tot := s.ruleError(t, kind, g, k)
+		parts[0], parts[1] = math.Max(parts[0], p[0]), math.Max(parts[1], p[1])
+		rule = math.Max(rule, tot)
+		stated = math.Max(stated, tot+s.tableError(t, kind, g))
+	}
+	return parts, rule, math.Min(1, stated)
+}
+
+// probeRule computes the stated errors of the groups' node laws and first
+// failures and of the fleet's first failure, and returns the largest of
+// the rule's estimated error parts and of its total.
+func (s *Site) probeRule() (parts [2]float64, worst float64) {
+	G := len(s.names)
+	s.nodeAcc = make([]float64, G)
+	s.firstAcc = make([]float64, G)
+	add := func(kind lawKind, g int) float64 {
+		p, rule, st := s.lawError(kind, g, 0)
+		parts[0], parts[1] = math.Max(parts[0], p[0]), math.Max(parts[1], p[1])
+		worst = math.Max(worst, rule)
+		return st
+	}
+	for g := range G {
+		s.nodeAcc[g] = add(kindNode, g)
+		s.firstAcc[g] = add(kindFirst, g)
+	}
+	s.fleetAcc = add(kindFleet, 0)
+	return parts, worst
+}

@@ -75,7 +75,8 @@
 // time. NewNodeLifetime gives the law of a node's life in one Environment
 // (a Climate and one realisation of the shared factors, Conditions); Site
 // mixes over the shared factors (SharedSpread: the cell batch and the
-// site's temperature offset) by a Gauss–Hermite rule and gives the node
+// site's temperature offset) by a Gauss rule whose order adapts until its
+// estimated error is below 0.01, the error stated, and gives the node
 // laws, the first failure, the end-of-life dates and the failed count of a
 // fleet whose nodes are independent only given what they share.
 // Site.VarianceShares splits a group's lifetime variance by source.

@@ -13,8 +13,10 @@ import (
 // Caps on a Site.
 const (
 	MaxSiteGroups = 256 // groups in one SiteSpec
-	// sharedNodesBatch and sharedNodesTemperature are the Gauss–Hermite
-	// nodes over the shared batch factor and temperature offset.
+	// sharedNodesBatch and sharedNodesTemperature are the fixed
+	// Gauss–Hermite nodes over the shared batch factor and temperature
+	// offset of the design search's target (design_target.go); Site's own
+	// rule adapts (site_rule.go).
 	sharedNodesBatch       = 7
 	sharedNodesTemperature = 3
 )

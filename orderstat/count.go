@@ -58,6 +58,15 @@ func (cm countModel) split(m float64) (le, gt float64) {
 		lower, upper := newBeta(m+1, t.n-m).split(t.p, t.q)
 		return upper, lower
 	}
+	if le, gt, _, ok := cm.splitConv(m); ok {
+		return le, gt
+	}
+	return cm.splitTransform(m)
+}
+
+// splitTransform is split's exact path for m in [0, size) after the shift
+// and at least two terms: the tilted transform of the window around m.
+func (cm countModel) splitTransform(m float64) (le, gt float64) {
 	w := cm.window(m + 0.5)
 	if w.theta >= 0 {
 		gt = clamp01(w.sum(m+1, w.lo+float64(len(w.pmf))-1))

@@ -44,8 +44,10 @@
 // 1 - 1e-20), split at every atom.
 //
 // Counts of nodes beyond a threshold follow a Poisson-binomial law; it is
-// computed by the discrete Fourier transform of its characteristic function
-// (Hong 2013, Computational Statistics & Data Analysis 59:41–51),
+// computed by direct convolution of the groups' binomial probabilities
+// (positive terms: relative precision everywhere) where that is cheaper,
+// and otherwise by the discrete Fourier transform of its characteristic
+// function (Hong 2013, Computational Statistics & Data Analysis 59:41–51),
 // exponentially tilted window by window so that its far tails keep their
 // relative precision.
 //

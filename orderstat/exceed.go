@@ -36,13 +36,17 @@ const maxCountSupport = 1 << 20
 // exceed MaxCount, and the probabilities that do not underflow must fit in
 // 2^20 values (ErrRange otherwise).
 //
-// The law is computed by the discrete Fourier transform of its
-// characteristic function (Hong 2013, Computational Statistics & Data
-// Analysis 59:41–51), window by window under exponential tilting so that
-// each tail keeps its relative precision; when the terms are many and
-// their spread is small, by direct convolution of the terms' binomial
-// probabilities (all positive, so equally precise) where that is cheaper.
-// The error is reported by Accuracy.
+// The law is computed by direct convolution of the terms' binomial
+// probabilities (each by the ratio recurrence from Loader's form at its
+// mode; all positive, so every probability keeps its relative precision),
+// pairwise in rounds, where that is cheaper than the exact path, the
+// discrete Fourier transform of its characteristic function (Hong 2013,
+// Computational Statistics & Data Analysis 59:41–51), window by window
+// under exponential tilting so that each tail keeps its relative
+// precision. The error is reported by Accuracy: for the convolution, the
+// terms' stated errors (about 1e-14 at the mode plus 4·2^-53 per step of
+// the recurrence) plus one rounding per product and addition, measured at
+// most a tenth of that against exact arithmetic.
 func PoissonBinomial(probs []float64, counts []int64) (Count, error) {
 	const fn = "PoissonBinomial"
 	if len(probs) == 0 {
@@ -216,11 +220,11 @@ func (cm countModel) pmfAll() (lo float64, pmf []float64, method string, rel flo
 	case 0:
 		return 0, []float64{1}, "exact (no random terms)", 0, nil
 	case 1:
-		lo, pmf = binomPMF(cm.terms[0])
+		lo, pmf, rel = binomPMF(cm.terms[0])
 		if len(pmf) > maxCountSupport {
 			return 0, nil, "", 0, fmt.Errorf("%d probabilities exceed %d", len(pmf), maxCountSupport)
 		}
-		return lo, pmf, "binomial probabilities by Loader's saddle-point expansion", 1e-13, nil
+		return lo, pmf, "binomial probabilities by the ratio recurrence from Loader's saddle-point expansion at the mode", rel, nil
 	}
 	sd := math.Sqrt(cm.variance)
 	width := 80*sd + 200
@@ -234,18 +238,29 @@ func (cm countModel) pmfAll() (lo float64, pmf []float64, method string, rel flo
 		m *= 2
 	}
 	dftCost := 150 * 20 * float64(len(cm.terms)) * (m/2 + 1)
-	// Convolving the narrowest terms first, each step costs the width so
-	// far times the new term's width.
+	// Convolving pairwise in rounds (convolve), each product costs the
+	// product of its pieces' widths.
 	sort.Slice(cm.terms, func(i, j int) bool { return termWidth(cm.terms[i]) < termWidth(cm.terms[j]) })
-	convCost, acc := 0.0, 1.0
-	for _, t := range cm.terms {
-		w := termWidth(t)
-		convCost += math.Min(acc, width) * w
-		acc += w
+	ws := make([]float64, len(cm.terms))
+	for i, t := range cm.terms {
+		ws[i] = termWidth(t)
+	}
+	convCost := 0.0
+	for len(ws) > 1 {
+		next := ws[:0]
+		for i := 0; i < len(ws); i += 2 {
+			if i+1 == len(ws) {
+				next = append(next, ws[i])
+				break
+			}
+			convCost += ws[i] * ws[i+1]
+			next = append(next, math.Min(ws[i]+ws[i+1], width))
+		}
+		ws = next
 	}
 	if convCost < dftCost {
-		lo, pmf = cm.convolve()
-		return lo, pmf, "direct convolution of the terms' binomial probabilities", 1e-15 * float64(len(cm.terms)), nil
+		lo, pmf, rel = cm.convolve()
+		return lo, pmf, "direct convolution of the terms' binomial probabilities", rel, nil
 	}
 	lo, pmf = cm.march()
 	return lo, pmf, "tilted discrete Fourier inversion of the characteristic function (Hong 2013)", 1e-11, nil
@@ -255,59 +270,60 @@ func (cm countModel) pmfAll() (lo float64, pmf []float64, method string, rel flo
 // underflow.
 func termWidth(t binom) float64 { return math.Min(t.n+1, 80*math.Sqrt(t.n*t.p*t.q)+40) }
 
-// binomPMF returns the probabilities of Bin(n, p) that do not underflow,
-// from lo on, each by Loader's expansion.
-func binomPMF(t binom) (lo float64, pmf []float64) {
-	mode := math.Floor((t.n + 1) * t.p)
-	if mode > t.n {
-		mode = t.n
-	}
-	a, b := mode, mode
-	for a > 0 && logBinomPMF(a-1, t.n, t.p, t.q) > -745 {
-		a--
-	}
-	for b < t.n && logBinomPMF(b+1, t.n, t.p, t.q) > -745 {
-		b++
-	}
-	if b-a+1 > maxCountSupport {
-		b = a + maxCountSupport
-	}
-	pmf = make([]float64, int(b-a)+1)
-	for i := range pmf {
-		pmf[i] = math.Exp(logBinomPMF(a+float64(i), t.n, t.p, t.q))
-	}
-	return a, pmf
+// binomPMF returns the probabilities of Bin(n, p) that are at least
+// runCut (normal float64 numbers), from lo on, and their relative error
+// (binomRun).
+func binomPMF(t binom) (lo float64, pmf []float64, rel float64) {
+	return binomRun(t, 0, t.n, runCut, nil)
 }
 
-// convolve returns the law by convolving the terms' binomial laws in turn
-// (positive terms only: relative precision everywhere), dropping
-// probabilities below 1e-310 at the ends.
-func (cm countModel) convolve() (lo float64, pmf []float64) {
-	pmf = []float64{1}
-	for _, t := range cm.terms {
-		blo, b := binomPMF(t)
-		out := make([]float64, len(pmf)+len(b)-1)
-		for i, x := range pmf {
-			if x == 0 {
-				continue
-			}
-			for j, y := range b {
-				out[i+j] += x * y
-			}
-		}
-		lo += blo
-		// Trim the ends.
-		s, e := 0, len(out)
-		for s < e-1 && out[s] < 1e-310 {
-			s++
-		}
-		for e > s+1 && out[e-1] < 1e-310 {
-			e--
-		}
-		lo += float64(s)
-		pmf = out[s:e]
+// convolve returns the law by convolving the terms' binomial laws (positive
+// terms only: relative precision everywhere) pairwise in rounds, so that
+// pieces of like widths meet (the work is about that of the last product,
+// not the number of terms times the whole width), dropping probabilities
+// below 1e-310 at the ends, and the relative error of every probability
+// kept (convRel).
+func (cm countModel) convolve() (lo float64, pmf []float64, rel float64) {
+	type piece struct {
+		lo  float64
+		pmf []float64
 	}
-	return lo, pmf
+	ps := make([]piece, 0, len(cm.terms))
+	terms, w := 0.0, 0.0
+	for _, t := range cm.terms {
+		l, b, r := binomPMF(t)
+		terms += r
+		w += float64(len(b))
+		ps = append(ps, piece{l, b})
+	}
+	for len(ps) > 1 {
+		next := ps[:0] // written at i/2 while read at i and i+1
+		for i := 0; i < len(ps); i += 2 {
+			if i+1 == len(ps) {
+				next = append(next, ps[i])
+				break
+			}
+			a, b := ps[i], ps[i+1]
+			out := make([]float64, len(a.pmf)+len(b.pmf)-1)
+			for i, x := range a.pmf {
+				row := out[i : i+len(b.pmf)]
+				for j, y := range b.pmf {
+					row[j] += x * y
+				}
+			}
+			// Trim the ends.
+			s, e := 0, len(out)
+			for s < e-1 && out[s] < 1e-310 {
+				s++
+			}
+			for e > s+1 && out[e-1] < 1e-310 {
+				e--
+			}
+			next = append(next, piece{a.lo + b.lo + float64(s), out[s:e]})
+		}
+		ps = next
+	}
+	return ps[0].lo, ps[0].pmf, convRel(len(cm.terms), terms, w)
 }
 
 // march returns the law from tilted windows: the bulk window at θ = 0, then

@@ -114,3 +114,24 @@ func BenchmarkExceedances60Groups(b *testing.B) {
 		sinkF = c.Mean()
 	}
 }
+
+// BenchmarkPoissonBinomialDemo builds the whole count law of three counts
+// of the kind the demo's fleet laws ask for (4 groups of 60, 180, 24 and
+// 40 nodes at three dates).
+func BenchmarkPoissonBinomialDemo(b *testing.B) {
+	counts := []int64{60, 180, 24, 40}
+	probs := [][]float64{
+		{0.08969852488196156, 0.47732442985089274, 0.005320289899893146, 0.18508563173545034},
+		{5.946795908328213e-07, 0.0034866146405806795, 0.00013135055734092614, 4.4545803699541886e-12},
+		{0.00041309677509868603, 0.058831426970242365, 0.0001313505573729481, 0.00014440949326350764},
+	}
+	for b.Loop() {
+		for _, p := range probs {
+			c, err := orderstat.PoissonBinomial(p, counts)
+			if err != nil {
+				b.Fatal(err)
+			}
+			sinkF = c.Mean()
+		}
+	}
+}

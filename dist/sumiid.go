@@ -407,6 +407,12 @@ func (p IIDSums) Evaluate(k int, x float64) (below, above float64, err error) {
 	return p.eval(k, x)
 }
 
+// ClosedForm reports whether the values come from a closed form (a normal,
+// exponential or gamma term, or an affine map of one): each costs about as
+// much as one incomplete gamma function, so a caller's cache of values
+// costs more than it saves.
+func (p IIDSums) ClosedForm() bool { return p.closed }
+
 // Law returns the law of S_k (as SumIID(l, k)).
 func (p IIDSums) Law(k int) (Law, error) { return SumIID(p.l, k) }
 

@@ -63,6 +63,7 @@ func gammaCycleValues() (energy.Cycle, energy.Battery, []int64) {
 // is cached).
 func BenchmarkLifetimeGammaValues(b *testing.B) {
 	c, cell, ks := gammaCycleValues()
+	defer reportCPU(b)()
 	for b.Loop() {
 		l := energy.MustLifetime(c, cell)
 		for _, k := range ks {
@@ -78,6 +79,7 @@ func BenchmarkLifetimeGammaValues(b *testing.B) {
 func BenchmarkGammaIncRegBaseline(b *testing.B) {
 	c, cell, ks := gammaCycleValues()
 	floor := c.Energy().Mean() - 2 // the cycle's fixed part (J)
+	defer reportCPU(b)()
 	for b.Loop() {
 		for _, k := range ks {
 			_ = mathext.GammaIncReg(2*float64(k), cell.UsableEnergy()-float64(k)*floor)

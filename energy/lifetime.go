@@ -27,8 +27,8 @@ import (
 // sd(T)/(E[T]·√M), far below the spread of M for the cycle counts of real
 // nodes.
 //
-// Probabilities that Hoeffding's inequality puts below 1e-300 are returned
-// as 0 (an absolute error below 1e-300).
+// Probabilities that Hoeffding's or Bernstein's inequality puts below 1e-300
+// are returned as 0 (an absolute error below 1e-300).
 //
 // A zero Lifetime is not valid (its methods return NaN); build one with
 // NewLifetime. Lifetime implements dist.Law in seconds. CDF, Survival, Quantile and
@@ -58,7 +58,9 @@ type Lifetime struct {
 type kfold struct {
 	sums            dist.IIDSums
 	emean, elo, ehi float64 // mean and support of the cycle law (J)
+	evar            float64 // variance of the cycle law (J²)
 	discrete        bool    // the cycle law is finite discrete with two or more atoms
+	closed          bool    // the values come from a closed form: no cache
 	capacity        float64
 
 	mu      sync.Mutex
@@ -81,27 +83,25 @@ func (f *kfold) at(k int64) [2]float64 {
 	if k <= 0 {
 		return [2]float64{1, 0}
 	}
+	if d := f.capacity - float64(k)*f.emean; f.negligible(k, d) {
+		if d > 0 {
+			return [2]float64{1, 0}
+		}
+		return [2]float64{0, 1}
+	}
+	if k > dist.MaxSumIIDTerms {
+		return [2]float64{math.NaN(), math.NaN()}
+	}
+	if f.closed {
+		// A closed form costs less than the cache's lock and lookup.
+		b, a := f.sums.Tails(int(k), f.capacity)
+		return [2]float64{b, a}
+	}
 	f.mu.Lock()
 	v, ok := f.cache[k]
 	f.mu.Unlock()
 	if ok {
 		return v
-	}
-	// Hoeffding's inequality for a law on [lo, hi] (Hoeffding 1963, J. Amer.
-	// Statist. Assoc. 58:13–30, Thm 2, from memory): P(S_k − kμ >= d) <= exp(−2d²/(k(hi−lo)²)),
-	// and the same below. Where it puts a tail under 1e-300 the tail is
-	// returned as 0, sparing an inversion far from the lifetime's bulk.
-	if w := f.ehi - f.elo; w > 0 && !math.IsInf(w, 0) {
-		d := f.capacity - float64(k)*f.emean
-		if 2*d*d/(float64(k)*w*w) > 300*math.Ln10 {
-			if d > 0 {
-				return [2]float64{1, 0}
-			}
-			return [2]float64{0, 1}
-		}
-	}
-	if k > dist.MaxSumIIDTerms {
-		return [2]float64{math.NaN(), math.NaN()}
 	}
 	b, a := f.sums.Tails(int(k), f.capacity)
 	v = [2]float64{b, a}
@@ -112,6 +112,38 @@ func (f *kfold) at(k int64) [2]float64 {
 	f.cache[k] = v
 	f.mu.Unlock()
 	return v
+}
+
+// negligible reports whether the tail of S_k beyond C = kμ + d (above for
+// d > 0, below for d < 0) is below 1e-300 by Hoeffding's or Bernstein's
+// inequality, so that it may be returned as 0 (sparing an inversion far
+// from the lifetime's bulk). For a law on [lo, hi] with variance σ²:
+//
+//	Hoeffding: P(S_k − kμ >= d) <= exp(−2d²/(k(hi−lo)²))
+//	Bernstein: P(S_k − kμ >= d) <= exp(−d²/(2(kσ² + b·d/3))),  b = hi − μ
+//
+// and the same below with b = μ − lo (Hoeffding 1963, J. Amer. Statist.
+// Assoc. 58:13–30, Thm 2; Boucheron, Lugosi & Massart, Concentration
+// Inequalities, 2013, Cor. 2.11; from memory). Bernstein's is the sharper
+// where the cycle's spread is small against its range, as with rare costly
+// retransmissions; it prunes the groups of a fleet that lie far from its
+// first failures.
+func (f *kfold) negligible(k int64, d float64) bool {
+	const lim = 300 * math.Ln10
+	w := f.ehi - f.elo
+	if !(w > 0) || math.IsInf(w, 0) {
+		return false
+	}
+	kf := float64(k)
+	if 2*d*d/(kf*w*w) > lim {
+		return true
+	}
+	b := f.ehi - f.emean
+	if d < 0 {
+		b = f.emean - f.elo
+	}
+	ad := math.Abs(d)
+	return ad*ad/(2*(kf*f.evar+b*ad/3)) > lim
 }
 
 // NewLifetime returns the lifetime law of a node running cycle c from the
@@ -160,10 +192,11 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	if err != nil {
 		return Lifetime{}, causeErr(fn, "c", c.String(), "K-fold sums of the cycle energy", err)
 	}
-	l.ev = &kfold{sums: sums, capacity: l.capacity, cache: map[int64][2]float64{}, emean: l.mu, elo: lo, ehi: hi}
+	l.ev = &kfold{sums: sums, capacity: l.capacity, cache: map[int64][2]float64{}, emean: l.mu, evar: l.s2, elo: lo, ehi: hi}
 	if d, ok := l.energy.(dist.Discrete); ok && d.Len() > 1 {
 		l.ev.discrete = true
 	}
+	l.ev.closed = sums.ClosedForm()
 	// One evaluation at the renewal estimate of the median checks that the
 	// K-fold law can be computed; the search for the exact median is left to
 	// the first question that needs it.

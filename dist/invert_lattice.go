@@ -171,7 +171,11 @@ func (l *latLevel) at(w int) (f, s, se float64) {
 // the pass with the smallest bound. A term whose CDF or Survival answers
 // outside [0, 1] (NaN or ±Inf from a FromDistuv law, say) is an error
 // wrapping ErrParam, not a silent NaN law (issue 13).
-func latticeLevel(fn string, terms []latTerm, step float64) (*latLevel, error) {
+//
+// sc holds the transform and its two buffers, reused from level to level
+// (finest, and largest, first) so that the coarser levels allocate nothing
+// for them.
+func latticeLevel(fn string, terms []latTerm, step float64, sc *latScratch) (*latLevel, error) {
 	lens := make([]int, len(terms))
 	total := 1
 	out := &latLevel{step: step}
@@ -230,12 +234,10 @@ func latticeLevel(fn string, terms []latTerm, step float64) (*latLevel, error) {
 		}
 		masses[i] = ms
 	}
-	fft := fourier.NewCmplxFFT(N)
-	prod := make([]complex128, N)
-	buf := make([]complex128, N)
-	// pass returns the masses of the sum tilted by exp(θ·m·step) and the
-	// largest residue in the padding
-	pass := func(th float64) ([]float64, float64) {
+	fft, prod, buf := sc.get(N)
+	// pass writes into r the masses of the sum tilted by exp(θ·m·step) and
+	// returns the largest residue in the padding
+	pass := func(th float64, r []float64) float64 {
 		for i, t := range terms {
 			for j := range buf {
 				buf[j] = 0
@@ -259,7 +261,6 @@ func latticeLevel(fn string, terms []latTerm, step float64) (*latLevel, error) {
 			}
 		}
 		fft.Sequence(prod, prod)
-		r := make([]float64, total)
 		for m := range r {
 			r[m] = real(prod[m]) / float64(N)
 		}
@@ -267,10 +268,16 @@ func latticeLevel(fn string, terms []latTerm, step float64) (*latLevel, error) {
 		for m := total; m < N; m++ {
 			noise = math.Max(noise, cmplx.Abs(prod[m])/float64(N))
 		}
-		return r, noise
+		return noise
 	}
-	q, noise := pass(0)
-	errs := make([]float64, total)
+	q := make([]float64, total)
+	noise := pass(0, q)
+	// Each mass's error bound lives in out.sErr until the survival's
+	// errors replace it (from the top down, each read before it is
+	// overwritten).
+	out.sErr = make([]float64, total)
+	errs := out.sErr
+	var tilted []float64 // the tilted passes' masses, one buffer for both
 	for m := range errs {
 		errs[m] = 10*noise + 1e-300
 	}
@@ -308,7 +315,11 @@ func latticeLevel(fn string, terms []latTerm, step float64) (*latLevel, error) {
 			continue
 		}
 		prev = th
-		r, nz := pass(th)
+		if tilted == nil {
+			tilted = make([]float64, total)
+		}
+		r := tilted
+		nz := pass(th, r)
 		for m := range q {
 			back := math.Exp(-th * float64(m) * step)
 			if e := 10 * nz * back; e < errs[m] {
@@ -317,7 +328,12 @@ func latticeLevel(fn string, terms []latTerm, step float64) (*latLevel, error) {
 		}
 	}
 	out.n = N
-	out.q, out.fc, out.sc, out.sErr = q, make([]float64, total), make([]float64, total), make([]float64, total)
+	// The passes' scratch becomes the CDF's table.
+	fc := tilted
+	if fc == nil {
+		fc = make([]float64, total)
+	}
+	out.q, out.fc, out.sc = q, fc, make([]float64, total)
 	var acc, e2 float64
 	for m := range q {
 		acc += q[m]
@@ -329,12 +345,36 @@ func latticeLevel(fn string, terms []latTerm, step float64) (*latLevel, error) {
 	out.fErr = 10*math.Sqrt(e2) + 1e-16*math.Sqrt(float64(total))
 	acc, e2 = 0, 0
 	for m := total - 1; m >= 0; m-- {
+		em := errs[m] // errs is out.sErr: read before it is overwritten
 		out.sc[m] = math.Max(0, acc)
 		out.sErr[m] = 10*math.Sqrt(e2) + 1e-16*acc*math.Sqrt(float64(total-m))
 		acc += q[m]
-		e2 += errs[m] * errs[m]
+		e2 += em * em
 	}
 	return out, nil
+}
+
+// latScratch is the complex transform of latticeLevel and its buffers,
+// kept for the next (smaller) level of one lattice sum; never shared
+// between goroutines.
+type latScratch struct {
+	fft       *fourier.CmplxFFT
+	prod, buf []complex128
+}
+
+// get returns the transform of size n and two buffers of length n (their
+// contents left over from the last use), allocating only what has not the
+// capacity.
+func (sc *latScratch) get(n int) (*fourier.CmplxFFT, []complex128, []complex128) {
+	if sc.fft == nil {
+		sc.fft = fourier.NewCmplxFFT(n)
+	} else if sc.fft.Len() != n {
+		sc.fft.Reset(n)
+	}
+	if cap(sc.prod) < n {
+		sc.prod, sc.buf = make([]complex128, n), make([]complex128, n)
+	}
+	return sc.fft, sc.prod[:n], sc.buf[:n]
 }
 
 // latGrid is the extrapolated CDF and survival of a lattice sum on the
@@ -365,9 +405,10 @@ func newLatGrid(fn string, terms []latTerm, delta, supLo, supHi float64) (*latGr
 			na += t.count
 		}
 	}
+	var sc latScratch
 	for i := range lv {
 		var err error
-		if lv[i], err = latticeLevel(fn, terms, delta*float64(int(1)<<i)); err != nil {
+		if lv[i], err = latticeLevel(fn, terms, delta*float64(int(1)<<i), &sc); err != nil {
 			return nil, err
 		}
 	}
@@ -389,7 +430,7 @@ func newLatGrid(fn string, terms []latTerm, delta, supLo, supHi float64) (*latGr
 	var rich float64
 	// relative estimates of the survival, with the values they belong to
 	type relPt struct{ s, e float64 }
-	var rel []relPt
+	rel := make([]relPt, 0, n/4+1+3*n) // at most one a fourth point, three a midpoint
 	for j := range g.f {
 		P := p0 + 2*j
 		ff, fs, fe := fine.at(2*P - na)

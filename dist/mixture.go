@@ -1,9 +1,11 @@
 package dist
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"sort"
 )
 
@@ -220,7 +222,7 @@ func mergeAtoms(atoms []Atom) []Atom {
 	if len(atoms) == 0 {
 		return nil
 	}
-	sort.Slice(atoms, func(i, j int) bool { return atoms[i].Value < atoms[j].Value })
+	slices.SortFunc(atoms, func(a, b Atom) int { return cmp.Compare(a.Value, b.Value) }) // no reflection
 	out := atoms[:1]
 	for _, a := range atoms[1:] {
 		last := &out[len(out)-1]

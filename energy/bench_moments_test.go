@@ -7,6 +7,7 @@ import (
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/testref"
 )
 
 // benchMoments builds the lifetime of cycle c on a cell sized for the given
@@ -63,7 +64,7 @@ func gammaCycleValues() (energy.Cycle, energy.Battery, []int64) {
 // is cached).
 func BenchmarkLifetimeGammaValues(b *testing.B) {
 	c, cell, ks := gammaCycleValues()
-	defer reportCPU(b)()
+	defer testref.ReportCPU(b)()
 	for b.Loop() {
 		l := energy.MustLifetime(c, cell)
 		for _, k := range ks {
@@ -79,7 +80,7 @@ func BenchmarkLifetimeGammaValues(b *testing.B) {
 func BenchmarkGammaIncRegBaseline(b *testing.B) {
 	c, cell, ks := gammaCycleValues()
 	floor := c.Energy().Mean() - 2 // the cycle's fixed part (J)
-	defer reportCPU(b)()
+	defer testref.ReportCPU(b)()
 	for b.Loop() {
 		for _, k := range ks {
 			_ = mathext.GammaIncReg(2*float64(k), cell.UsableEnergy()-float64(k)*floor)

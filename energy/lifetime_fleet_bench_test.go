@@ -7,6 +7,7 @@ import (
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
 	"github.com/joulelaw/joulelaw/internal/quad"
+	"github.com/joulelaw/joulelaw/internal/testref"
 )
 
 // firstFailureBench is the 60-group fleet of BenchmarkFleet60 (10 000
@@ -120,7 +121,7 @@ var sinkFF float64
 // expansion (cumulants computed once, outside the timed loop).
 func BenchmarkFirstFailure60(b *testing.B) {
 	fb := newFirstFailureBench(b)
-	defer reportCPU(b)()
+	defer testref.ReportCPU(b)()
 	for b.Loop() {
 		_, ff := firstFailure(b, fb.groups)
 		for _, t := range fb.dates {
@@ -134,7 +135,7 @@ func BenchmarkFirstFailure60(b *testing.B) {
 // carries no bound).
 func BenchmarkFirstFailure60Edgeworth(b *testing.B) {
 	fb := newFirstFailureBench(b)
-	report := reportCPU(b)
+	report := testref.ReportCPU(b)
 	for b.Loop() {
 		for _, t := range fb.dates {
 			sinkFF += fb.edgeworthSurvival(t)

@@ -67,8 +67,10 @@ func conformanceCases() []lawCase {
 }
 
 func TestConformance(t *testing.T) {
+	t.Parallel()
 	for _, tc := range conformanceCases() {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel() // the laws are immutable; the checks independent
 			l, err := tc.build()
 			require.NoError(t, err)
 			require.NoError(t, disttest.Check(l))

@@ -125,12 +125,14 @@ func TestExceedancesFleet(t *testing.T) {
 
 // Range laws pass the conformance checker.
 func TestRangeConformance(t *testing.T) {
+	t.Parallel()
 	for _, tc := range []struct {
 		name string
 		l    dist.Law
 		n    int64
 	}{{"exponential", dist.MustExponential(1), 5}, {"discrete", dist.MustDiscrete([]float64{1, 2, 4}, []float64{0.2, 0.5, 0.3}), 3}} {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			l, err := orderstat.Range(tc.l, tc.n)
 			require.NoError(t, err)
 			require.NoError(t, disttest.Check(l, disttest.WithSamples(5000)))
@@ -284,6 +286,7 @@ func (c counted) Accuracy() dist.Accuracy {
 // With numerically computed parents, group quantiles start from one parent
 // quantile and refine with CDF calls: the same answers, few parent calls.
 func TestCostlyParentsFewCalls(t *testing.T) {
+	t.Parallel()
 	var cdf, quant atomic.Int64
 	plain := hundredGroups()[:60]
 	wrapped := make([]orderstat.Group, len(plain))

@@ -17,6 +17,7 @@ import (
 // P(M >= k) = P(S_k <= C) against the exact two-binomial oracle (testref.TwoBinomialCDF) for k over
 // ±5 renewal standard deviations, within the lifetime's reported bound.
 func TestLifetimeFourEnergies(t *testing.T) {
+	t.Parallel()
 	up := MustFixedState("uplink", 40*MilliAmp, 3.6, 0.0617)
 	again := MustFixedState("repeat", 40*MilliAmp, 3.6, 0.0617*math.Sqrt2)
 	rx1 := MustFixedState("rx1", 11*MilliAmp, 3.6, 0.0123)

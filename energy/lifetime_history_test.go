@@ -21,6 +21,7 @@ import (
 // the bounded saddlepoint (six energies) and tilted inversion (the soil
 // node with a uniform sensing time).
 func TestLifetimeIndependentOfHistory(t *testing.T) {
+	t.Parallel()
 	gammaCycle := func(t testing.TB) energy.Cycle {
 		st, err := energy.NewPowerState("burst", dist.MustPointMass(1), dist.MustGamma(2, 1))
 		require.NoError(t, err)

@@ -70,6 +70,7 @@ func exponentialLifetime(t *testing.T, lambda, c float64) energy.Lifetime {
 // λ on the energy axis; any probability text, e.g. Ross, Stochastic
 // Processes, §2.2, section from memory). Checked for λC from 1 to 10^6.
 func TestLifetimePoisson(t *testing.T) {
+	t.Parallel()
 	for _, m := range []float64{1, 10, 1e3, 1e6} {
 		l := exponentialLifetime(t, 2, m/2)
 		sd := math.Sqrt(m)
@@ -223,6 +224,7 @@ func TestRenewalEstimate(t *testing.T) {
 // E[M] = C/μ + (σ² − μ²)/(2μ²) + o(1) (Smith's theorem; Cox 1962, §4.5, from memory) for
 // a non-lattice cycle.
 func TestLifetimeAgainstSimulation(t *testing.T) {
+	t.Parallel()
 	c := demoCycle(t, dist.MustUniform(880, 920))
 	b := energy.MustBattery(energy.BatterySpec{Name: "small", Energy: 300 * c.MeanEnergy(), NominalVoltage: 3.3, UsableFraction: 1, SelfDischargePerYear: 0.02})
 	l, err := energy.NewLifetime(c, b)
@@ -249,6 +251,7 @@ func TestLifetimeAgainstSimulation(t *testing.T) {
 // about 10^6 cycles; and a six-energy cycle, computed by the saddlepoint,
 // against walking the cycles (Simulate) at about 400 cycles.
 func TestLifetimeDiscreteCycle(t *testing.T) {
+	t.Parallel()
 	up := energy.MustFixedState("uplink", 40*energy.MilliAmp, 3.6, 0.06)
 	down := energy.MustFixedState("rx", 11*energy.MilliAmp, 3.6, 0.03)
 	st := energy.MustSequence(up, energy.MustChoice([]float64{0.2, 0.8}, []energy.Stage{down, energy.Nothing()}))

@@ -33,6 +33,7 @@ func threeEnergyCycle(t testing.TB) energy.Cycle {
 // from the structure (Simulate), KS at level 1e-6 on a grid of 200 sample
 // quantiles, at about 3000 cycles.
 func TestLifetimeThreeEnergies(t *testing.T) {
+	t.Parallel()
 	c := threeEnergyCycle(t)
 	assert.Len(t, c.Energy().(dist.Atomic).Atoms(), 3)
 	b := energy.MustBattery(energy.BatterySpec{Energy: 3000 * c.MeanEnergy(), NominalVoltage: 3.6, UsableFraction: 1})

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 
+	"gonum.org/v1/gonum/stat/distuv"
+
 	"github.com/joulelaw/joulelaw/dist"
 )
 
@@ -94,7 +96,10 @@ type DeviceOptions struct {
 // set (the Kronecker sequence of Roberts 2018 with the plastic-number
 // generalisation, through the normal quantile), the same for every
 // device. A device's posterior re-weights these nodes by the likelihood of
-// its readings and of being alive at its newest event. Laws of the
+// its readings and of being alive at its newest event; where readings
+// leave few nodes with weight, importance stages move a larger point set
+// (stageFactor = 4 times the nodes) onto a heavier-tailed proposal fitted
+// to the posterior (see DeviceModel.Posterior). Laws of the
 // posterior are mixtures over the nodes; their error is estimated from the
 // disagreement of the two interleaved halves of the point set (each itself
 // a Kronecker sequence) and reported (dist.Estimated). Readings that pull
@@ -120,6 +125,8 @@ type deviceData struct {
 	endDepth float64      // depth at which the node is flat
 	c, a, f  []float64    // prior nodes
 	z        [][3]float64 // their standard normal scores
+	tz       [][3]float64 // the same points as Student-t scores (proposalNu)
+	tlogq    []float64    // Σ log t density of each tz
 	spread   NodeSpread
 	voltage  float64 // V nominal cell voltage
 }
@@ -205,6 +212,7 @@ func NewDeviceModel(spec NodeSpec, env Environment, costs []EventCost, opt Devic
 	}
 	d.spread = spec.Spread
 	d.z = kroneckerScores(d.nodes)
+	d.tz, d.tlogq = kroneckerTScores(min(stageFactor*d.nodes, MaxPosteriorNodes))
 	d.c, d.a, d.f = make([]float64, d.nodes), make([]float64, d.nodes), make([]float64, d.nodes)
 	for k, z := range d.z {
 		d.c[k], d.a[k], d.f[k] = d.factors(z)
@@ -222,16 +230,50 @@ const plastic3 = 1.2207440846057594
 // normal quantile.
 func kroneckerScores(m int) [][3]float64 {
 	std := dist.MustNormal(0, 1)
+	out, _ := kroneckerMapped(m, std.Quantile, nil)
+	return out
+}
+
+// stageFactor is how many times more nodes the importance stages use
+// than the prior's point set: a proposal fitted to a posterior that the
+// prior's nodes barely reach needs more points to resolve its tails.
+const stageFactor = 4
+
+// proposalNu is the degrees of freedom of the importance stages'
+// proposal: a product of Student-t laws, heavier-tailed than the
+// posterior so that a proposal fitted to few weighted nodes still reaches
+// the posterior's tails.
+const proposalNu = 4
+
+// kroneckerTScores returns the points of kroneckerScores mapped through
+// the Student-t quantile (proposalNu degrees of freedom) instead of the
+// normal one, and the log of their product density.
+func kroneckerTScores(m int) ([][3]float64, []float64) {
+	st := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: proposalNu}
+	return kroneckerMapped(m, st.Quantile, st.LogProb)
+}
+
+// kroneckerMapped returns the m Kronecker points mapped coordinate-wise
+// by quantile, and, with logProb, the sum of logProb over each point's
+// coordinates.
+func kroneckerMapped(m int, quantile, logProb func(float64) float64) ([][3]float64, []float64) {
 	out := make([][3]float64, m)
+	var lq []float64
+	if logProb != nil {
+		lq = make([]float64, m)
+	}
 	al := [3]float64{1 / plastic3, 1 / (plastic3 * plastic3), 1 / (plastic3 * plastic3 * plastic3)}
 	for k := range m {
 		for j := range 3 {
 			u := 0.5 + float64(k)*al[j]
 			u -= math.Floor(u)
-			out[k][j] = std.Quantile(u)
+			out[k][j] = quantile(u)
+			if lq != nil {
+				lq[k] += logProb(out[k][j])
+			}
 		}
 	}
-	return out
+	return out, lq
 }
 
 // factors returns the per-node factors (c, a, f) at the standard normal

@@ -22,8 +22,19 @@ type postData struct {
 	a0, va0, r, vr float64
 	ess            float64
 	stages         int
+	unresolved     bool    // the stages found no better proposal than the prior's sparse nodes
 	logMarginal    float64 // log of the evidence's marginal likelihood (importance estimate)
 }
+
+// minResolvedNodes is the effective number of nodes below which a
+// posterior on the prior's point set (no importance stage did better) is
+// not resolved: its stated error is 1 (measured: with 36 or fewer the
+// laws were wholly wrong, with 91 or more within their stated error).
+const minResolvedNodes = 64
+
+// aliveSure is the score beyond which being alive is certain to double
+// precision: Φ̄(8.3) < 5.2e-17.
+const aliveSure = 8.3
 
 // logNormSurv returns log Φ̄(z), with the asymptotic series where Φ̄
 // underflows (z > 37).
@@ -85,23 +96,31 @@ func (m DeviceModel) Posterior(t Tally, now float64) (DevicePosterior, error) {
 	ess := essOf(logw)
 	pd.stages = 1
 	// Adaptive importance stages: while the readings leave fewer than a
-	// quarter of the nodes effective, place the same point set on a normal
-	// fitted to the weighted nodes (in the normal scores, widened) and
-	// weight by prior × likelihood / proposal.
+	// quarter of the nodes effective, place a point set stageFactor times
+	// larger on a product of Student-t laws (proposalNu degrees of freedom)
+	// fitted to the weighted nodes (their mean and widened covariance in the
+	// normal scores) and weight by prior × likelihood / proposal. A stage
+	// that does not raise the effective number is tried again three times
+	// wider; at most four tries.
 	zs := d.z
-	for stage := 0; ess < float64(M)/4 && stage < 3; stage++ {
+	Ms := len(d.tz)
+	widen := 1.0
+	for stage := 0; ess < float64(len(logw))/4 && stage < 4; stage++ {
 		if math.IsInf(maxOf(logw), -1) {
 			break
 		}
-		mu, l, ok := fitProposal(zs, logw, stage)
+		mu, l, ok := fitProposal(zs, logw, pd.stages-1, widen)
 		if !ok {
 			break
 		}
-		nz := make([][3]float64, M)
-		nl := make([]float64, M)
-		nc, na, nf := make([]float64, M), make([]float64, M), make([]float64, M)
+		nz := make([][3]float64, Ms)
+		nl := make([]float64, Ms)
+		nc, na, nf := make([]float64, Ms), make([]float64, Ms), make([]float64, Ms)
+		if len(scratch) < Ms {
+			scratch = make([]float64, Ms)
+		}
 		logDet := math.Log(l[0][0]) + math.Log(l[1][1]) + math.Log(l[2][2])
-		for k, zeta := range d.z {
+		for k, zeta := range d.tz {
 			var z [3]float64
 			for r := range 3 {
 				z[r] = mu[r]
@@ -111,17 +130,21 @@ func (m DeviceModel) Posterior(t Tally, now float64) (DevicePosterior, error) {
 			}
 			nz[k] = z
 			nc[k], na[k], nf[k] = d.factors(z)
-			q := -0.5*(zeta[0]*zeta[0]+zeta[1]*zeta[1]+zeta[2]*zeta[2]) - logDet
-			pr := -0.5 * (z[0]*z[0] + z[1]*z[1] + z[2]*z[2])
+			q := d.tlogq[k] - logDet
+			pr := -0.5*(z[0]*z[0]+z[1]*z[1]+z[2]*z[2]) - 1.5*math.Log(2*math.Pi) // log prior density, normalised as q is
 			nl[k] = pr - q
 		}
 		like(nc, na, nf, nl, scratch)
 		ne := essOf(nl)
 		if !(ne > ess) {
-			break
+			// A proposal fitted to few effective nodes missed the
+			// posterior: try again from the same nodes, three times wider.
+			widen *= 3
+			continue
 		}
 		zs, logw, cs, as, fs, ess = nz, nl, nc, na, nf, ne
 		pd.stages++
+		widen = 1
 	}
 	best := maxOf(logw)
 	if math.IsInf(best, -1) {
@@ -132,7 +155,10 @@ func (m DeviceModel) Posterior(t Tally, now float64) (DevicePosterior, error) {
 	for _, l := range logw {
 		sAll += math.Exp(l - best)
 	}
+	M = len(logw)
 	pd.logMarginal = best + math.Log(sAll/float64(M))
+	pd.c, pd.a, pd.f = make([]float64, 0, M), make([]float64, 0, M), make([]float64, 0, M)
+	pd.half, pd.w = make([]uint8, 0, M), make([]float64, 0, M)
 	for k, l := range logw {
 		w := math.Exp(l - best)
 		if w > 1e-300 {
@@ -146,6 +172,7 @@ func (m DeviceModel) Posterior(t Tally, now float64) (DevicePosterior, error) {
 		pd.w[i] /= s1
 	}
 	pd.ess = ess
+	pd.unresolved = pd.stages == 1 && ess < math.Min(float64(len(d.c))/4, minResolvedNodes)
 	return DevicePosterior{p: pd}, nil
 }
 
@@ -177,6 +204,15 @@ func searchAbove(xs []float64, x float64) int {
 		}
 	}
 	return len(xs)
+}
+
+// quality returns what the laws' stated error needs of the posterior.
+func (pd *postData) quality() nodeQuality {
+	q := nodeQuality{ess: pd.ess, kappa: 1, unresolved: pd.unresolved}
+	if pd.stages > 1 {
+		q.kappa = 3
+	}
+	return q
 }
 
 // EffectiveNodes returns the effective number of posterior nodes,
@@ -237,7 +273,7 @@ func (p DevicePosterior) Remaining() PosteriorLaw {
 		}
 		return tau - pd.tauNow, s
 	})
-	return newPostLaw(ms, ss, ws, half, pd.ess, 0, hi, "RemainingLife", "y", Year)
+	return newPostLaw(ms, ss, ws, half, pd.quality(), 0, hi, "RemainingLife", "y", Year)
 }
 
 // Spent returns the law of the energy (J, at the cell) the device has
@@ -257,7 +293,7 @@ func (p DevicePosterior) Spent() PosteriorLaw {
 	ms, ss, ws, half := p.laws(func(c, a, f float64) (float64, float64) {
 		return a*act + f*fe + q, a * math.Sqrt(va)
 	})
-	return newPostLaw(ms, ss, ws, half, pd.ess, 0, math.Inf(1), "SpentEnergy", "J", 1)
+	return newPostLaw(ms, ss, ws, half, pd.quality(), 0, math.Inf(1), "SpentEnergy", "J", 1)
 }
 
 // Capacity returns the posterior law of the cell's usable energy (J): the
@@ -271,7 +307,7 @@ func (p DevicePosterior) Capacity() PosteriorLaw {
 	ms, ss, ws, half := p.laws(func(c, a, f float64) (float64, float64) {
 		return c * d.n.batch * d.s.usable, 0
 	})
-	return newPostLaw(ms, ss, ws, half, pd.ess, math.Inf(-1), math.Inf(1), "UsableEnergy", "J", 1)
+	return newPostLaw(ms, ss, ws, half, pd.quality(), math.Inf(-1), math.Inf(1), "UsableEnergy", "J", 1)
 }
 
 // FloorCurrent returns the posterior law of the node's floor current (A at
@@ -286,7 +322,7 @@ func (p DevicePosterior) FloorCurrent() PosteriorLaw {
 	ms, ss, ws, half := p.laws(func(c, a, f float64) (float64, float64) {
 		return f * d.s.floorP / d.voltage, 0
 	})
-	return newPostLaw(ms, ss, ws, half, pd.ess, math.Inf(-1), math.Inf(1), "FloorCurrent", "µA", MicroAmp)
+	return newPostLaw(ms, ss, ws, half, pd.quality(), math.Inf(-1), math.Inf(1), "FloorCurrent", "µA", MicroAmp)
 }
 
 // likelihood returns a function that adds to out[k] the log-likelihood
@@ -296,9 +332,10 @@ func (p DevicePosterior) FloorCurrent() PosteriorLaw {
 // −Inf.
 //
 // A reading's term log P(bin | V) is a function of the node's loaded
-// voltage V alone; where the nodes' voltages span more than a few noise
-// standard deviations it is evaluated at each node, otherwise on an even
-// grid of step h <= σ/20 over their range and interpolated linearly. The
+// voltage V alone; it is tabulated on an even grid of step h <= σ/20
+// over the nodes' range and interpolated linearly, unless that grid would
+// need more points than a quarter of the nodes (then it is evaluated at
+// each node). The
 // term is concave in V with curvature at most 1/σ² (the log of a normal
 // probability of an interval is log-concave), so the interpolation errs by
 // at most h²/(8σ²) <= 3.2e-4 in a log-weight.
@@ -315,7 +352,7 @@ func (d *deviceData) likelihood(t *Tally, tau0 float64) func(c, a, f, out, v []f
 		rs[i] = rd{active: r.active, fe: d.floorE(r.tau), q: n.quiescent * r.tau, sdd: d.selfD(r.tau),
 			drop: d.load * d.curve.ResistanceMultiplier(d.temp(r.tau)), lo: r.lo, hi: r.hi, noise: r.noise}
 	}
-	var grid [65]float64
+	var grid []float64
 	return func(c, a, f, out, v []float64) {
 		for k := range out {
 			if !(c[k] > 0 && a[k] > 0) {
@@ -325,7 +362,11 @@ func (d *deviceData) likelihood(t *Tally, tau0 float64) func(c, a, f, out, v []f
 			g := c[k]*capU - a[k]*act - f[k]*fe0 - q0
 			switch {
 			case sd0 > 0:
-				out[k] += logNormSurv(-g / (a[k] * sd0))
+				// log Φ̄(z) for z < −aliveSure is −Φ̄(−z) above −5.2e-17:
+				// left out (a relative change of a weight below 1e-16).
+				if z := -g / (a[k] * sd0); z >= -aliveSure {
+					out[k] += logNormSurv(z)
+				}
 			case g < 0:
 				out[k] = math.Inf(-1)
 			}
@@ -338,16 +379,26 @@ func (d *deviceData) likelihood(t *Tally, tau0 float64) func(c, a, f, out, v []f
 					continue
 				}
 				dep := (a[k]*r.active+f[k]*r.fe+r.q)/(c[k]*n.nominal) + r.sdd
-				dep = math.Min(1, math.Max(0, dep))
-				v[k] = d.curve.loadedAt(dep, r.drop)
-				vmin, vmax = math.Min(vmin, v[k]), math.Max(vmax, v[k])
+				if dep < 0 {
+					dep = 0
+				} else if dep > 1 {
+					dep = 1
+				}
+				x := d.curve.loadedAt(dep, r.drop)
+				v[k] = x
+				if x < vmin {
+					vmin = x
+				}
+				if x > vmax {
+					vmax = x
+				}
 			}
 			span := vmax - vmin
 			if !(span >= 0) {
 				continue // no node left
 			}
 			steps := int(math.Ceil(span / (r.noise / 20)))
-			if steps > len(grid)-1 {
+			if steps > len(out)/4 {
 				for k := range out {
 					if !math.IsInf(out[k], -1) {
 						out[k] += logBin(v[k], r.lo, r.hi, r.noise)
@@ -356,6 +407,9 @@ func (d *deviceData) likelihood(t *Tally, tau0 float64) func(c, a, f, out, v []f
 				continue
 			}
 			steps = max(steps, 1)
+			if len(grid) < steps+1 {
+				grid = make([]float64, steps+1)
+			}
 			h := span / float64(steps)
 			for j := 0; j <= steps; j++ {
 				grid[j] = logBin(vmin+float64(j)*h, r.lo, r.hi, r.noise)
@@ -377,10 +431,14 @@ func (d *deviceData) likelihood(t *Tally, tau0 float64) func(c, a, f, out, v []f
 	}
 }
 
+// maxOf returns the largest of x (−Inf for none; NaN entries are
+// skipped: a log-weight is never NaN).
 func maxOf(x []float64) float64 {
 	b := math.Inf(-1)
 	for _, v := range x {
-		b = math.Max(b, v)
+		if v > b {
+			b = v
+		}
 	}
 	return b
 }
@@ -400,11 +458,12 @@ func essOf(logw []float64) float64 {
 	return s1 * s1 / s2
 }
 
-// fitProposal fits a normal to the weighted scores: the weighted mean and
-// covariance, widened (×2 and 0.1² on the diagonal at the first stage,
-// ×1.5 and 0.01² later, so that a proposal from few nodes still covers
-// the posterior), and its lower Cholesky factor.
-func fitProposal(zs [][3]float64, logw []float64, stage int) (mu [3]float64, l [3][3]float64, ok bool) {
+// fitProposal fits a location and scale to the weighted scores: the
+// weighted mean and covariance, widened (×2 and 0.1² on the diagonal at
+// the first stage, ×1.5 and 0.01² later, times widen, so that a proposal
+// from few nodes still covers the posterior), and its lower Cholesky
+// factor.
+func fitProposal(zs [][3]float64, logw []float64, stage int, widen float64) (mu [3]float64, l [3][3]float64, ok bool) {
 	b := maxOf(logw)
 	tot := 0.0
 	for k, lw := range logw {
@@ -430,6 +489,7 @@ func fitProposal(zs [][3]float64, logw []float64, stage int) (mu [3]float64, l [
 	if stage > 0 {
 		grow, floor = 1.5, 0.01
 	}
+	grow *= widen
 	for r := range 3 {
 		for c := 0; c <= r; c++ {
 			cov[r][c] *= grow

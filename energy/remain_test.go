@@ -58,24 +58,28 @@ func TestPosteriorLawConformance(t *testing.T) {
 }
 
 // TestPosteriorStatedError checks the stated CDF error of the remaining
-// life against an oracle: the same model on 2^15 nodes (whose own stated
+// life against an oracle: the same model on 2^16 nodes (whose own stated
 // error is far smaller), at the law's 5 %, 25 %, 50 %, 75 % and 95 %
-// points.
+// points, for 54 devices: ages of 300 to 1600 days, counts only or four
+// daily readings from the plateau (3.66 V) to the end of the knee
+// (3.30 V), many of them improbable under the model (a knee voltage at
+// 300 days), where the laws must say that they are not resolved.
 func TestPosteriorStatedError(t *testing.T) {
 	f := newValFleet(t, true)
-	for _, tc := range []struct {
-		name  string
-		days  int
-		volts float64
-	}{{"counts only", 400, 0}, {"flat-curve readings", 400, 3.64}, {"knee readings", 1500, 3.50}} {
-		t.Run(tc.name, func(t *testing.T) {
+	var models [2]energy.DeviceModel
+	for i, nodes := range []int{256, 1 << 16} {
+		m, err := energy.NewDeviceModel(f.spec, energy.Environment{}, f.costs, energy.DeviceOptions{Nodes: nodes})
+		require.NoError(t, err)
+		models[i] = m
+	}
+	cases, skipped, knee := 0, 0, 0.0
+	for _, days := range []int{300, 800, 1200, 1400, 1500, 1600} {
+		for _, volts := range []float64{0, 3.66, 3.62, 3.58, 3.54, 3.50, 3.45, 3.40, 3.30} {
 			var laws [2]energy.PosteriorLaw
-			for i, nodes := range []int{256, 1 << 15} {
-				m, err := energy.NewDeviceModel(f.spec, energy.Environment{}, f.costs, energy.DeviceOptions{Nodes: nodes})
-				require.NoError(t, err)
+			for i, m := range models {
 				tl, err := m.NewTally(0)
 				require.NoError(t, err)
-				tl = feedDays(t, m, tl, 0, tc.days, tc.volts)
+				tl = feedDays(t, m, tl, 0, days, volts)
 				p, err := m.Posterior(tl, tl.Newest())
 				require.NoError(t, err)
 				laws[i] = p.Remaining()
@@ -87,11 +91,27 @@ func TestPosteriorStatedError(t *testing.T) {
 				x := laws[0].Quantile(q)
 				worst = math.Max(worst, math.Abs(laws[0].CDF(x)-laws[1].CDF(x)))
 			}
-			t.Logf("stated %.3g, measured %.3g (oracle's own stated %.3g)", stated, worst, oracleErr)
-			require.Less(t, oracleErr, stated/2)
-			require.LessOrEqual(t, worst, stated+oracleErr)
-		})
+			if days == 1500 && volts == 3.50 {
+				knee = stated
+				t.Logf("knee readings (1500 days, 3.50 V): stated %.3g, measured %.3g (oracle's own stated %.3g)", stated, worst, oracleErr)
+			}
+			if days == 1500 && (volts == 0 || volts == 3.62) {
+				t.Logf("%d days, %.2f V: stated %.3g, measured %.3g", days, volts, stated, worst)
+			}
+			if oracleErr > 0.05 {
+				// Readings so improbable that 2^16 nodes do not resolve
+				// them either: no oracle.
+				t.Logf("%d days, %.2f V: no oracle (its stated error %.3g); stated %.3g", days, volts, oracleErr, stated)
+				skipped++
+				continue
+			}
+			require.LessOrEqual(t, worst, stated+oracleErr, "%d days, %.2f V", days, volts)
+			cases++
+		}
 	}
+	require.Equal(t, 54, cases+skipped)
+	require.LessOrEqual(t, skipped, 6)
+	require.Less(t, knee, 0.2) // was 0.38 before the heavier-tailed stages
 }
 
 // TestDeviceBadInput checks the documented behaviour on bad input: each

@@ -85,8 +85,11 @@ type ObserverOptions struct {
 // costs the node's own Before and After stages; a join costs a
 // Join-request at TXPower 0 with its two windows empty (the accept, when
 // there is one, is counted as a downlink). The wait between a confirmed
-// frame's retries is taken at the floor (exact when Currents.Wait equals
-// Currents.Floor, the usual case).
+// frame's retries (RetryGap; by default ACK_TIMEOUT for confirmed frames
+// and the sub-band's off-time, as ClassA describes) is charged in the
+// radio's wait state: each attempt after a frame's first costs that wait
+// at Currents.Wait above the floor (nothing when Wait equals Floor), as
+// ClassA's own cycle charges it.
 //
 // # Frames the gateways missed
 //
@@ -105,6 +108,7 @@ type observer struct {
 	tx        map[[2]int]int // (DR, TXPower) → kind
 	dl        map[[2]int]int // (DR, window) → kind
 	join      map[int]int    // DR → kind
+	retry     map[int]int    // DR → kind of the wait before a further attempt; absent when free
 	report    int            // kind, −1 for none
 	nbTrans   int
 	level     LevelScale
@@ -167,7 +171,7 @@ func NewObserver(c ClassA, spec energy.NodeSpec, env energy.Environment, opt Obs
 			return Observer{}, err
 		}
 	}
-	o := &observer{tx: map[[2]int]int{}, dl: map[[2]int]int{}, join: map[int]int{}, report: -1,
+	o := &observer{tx: map[[2]int]int{}, dl: map[[2]int]int{}, join: map[int]int{}, retry: map[int]int{}, report: -1,
 		nbTrans: c.nbTrans(), level: opt.Level, readLevel: opt.Level != (LevelScale{}), vNoise: opt.VoltageNoise}
 	if o.vNoise == 0 {
 		o.vNoise = 0.02
@@ -246,6 +250,24 @@ func NewObserver(c ClassA, spec energy.NodeSpec, env energy.Environment, opt Obs
 					return Observer{}, err
 				}
 				o.join[dr] = add(fmt.Sprintf("join DR%d", dr), l)
+				// The wait between attempts (RetryGap, or ACK_TIMEOUT and
+				// the off-time), in the radio's wait state: above the
+				// floor by (Wait − Floor)·Voltage per second.
+				if extra := (c.Currents.Wait - c.Currents.Floor) * c.Currents.Voltage; extra > 0 && o.nbTrans > 1 {
+					tl, err := c.timeline(Setting{DR: dr, TXPower: p, Prob: 1})
+					if err != nil {
+						return Observer{}, fmt.Errorf("lora.NewObserver: retry wait at DR%d: %w", dr, err)
+					}
+					gap, err := c.retryGap(tl)
+					if err != nil {
+						return Observer{}, fmt.Errorf("lora.NewObserver: retry wait at DR%d: %w", dr, err)
+					}
+					wl, err := dist.Affine(gap, extra, 0)
+					if err != nil {
+						return Observer{}, err
+					}
+					o.retry[dr] = add(fmt.Sprintf("retry wait after DR%d", dr), wl)
+				}
 			}
 		}
 	}
@@ -373,13 +395,18 @@ func (o Observer) Uplink(d Device, u Uplink) (Device, error) {
 		err = ob.newFrame(&nd, u.Time, kind)
 	case u.FCnt == d.fcnt:
 		nd.copies++
-		err = ob.count(&nd, u.Time, kind, 1)
+		if err = ob.count(&nd, u.Time, ob.retryKind(d.dr), 1); err == nil {
+			err = ob.count(&nd, u.Time, kind, 1)
+		}
 	case u.FCnt > d.fcnt && u.FCnt-d.fcnt <= MaxFCntGap:
 		gap := int64(u.FCnt - d.fcnt - 1)
 		if err = ob.closeFrame(&nd, u.Time); err == nil && gap > 0 {
 			nd.Unheard += gap
 			if err = ob.count(&nd, u.Time, ob.report, gap); err == nil {
 				err = ob.count(&nd, u.Time, d.kind, gap*int64(ob.nbTrans))
+			}
+			if err == nil {
+				err = ob.count(&nd, u.Time, ob.retryKind(d.dr), gap*int64(ob.nbTrans-1))
 			}
 		}
 		if err == nil {
@@ -423,7 +450,20 @@ func (o *observer) closeFrame(d *Device, time float64) error {
 	if !d.heard || d.answered || d.copies >= o.nbTrans {
 		return nil
 	}
-	return o.count(d, time, d.kind, int64(o.nbTrans-d.copies))
+	n := int64(o.nbTrans - d.copies)
+	if err := o.count(d, time, o.retryKind(d.dr), n); err != nil {
+		return err
+	}
+	return o.count(d, time, d.kind, n)
+}
+
+// retryKind returns the event kind of the wait before a further attempt
+// at data rate dr, −1 when it costs nothing above the floor.
+func (o *observer) retryKind(dr int) int {
+	if k, ok := o.retry[dr]; ok {
+		return k
+	}
+	return -1
 }
 
 // Downlink returns d with a downlink sent in window (1 for RX1, 2 for

@@ -193,3 +193,43 @@ func TestObserverStatus(t *testing.T) {
 	_, err = o.Uplink(d, lora.Uplink{Time: 20, FCnt: 1, DR: 9, TXPower: 0})
 	require.ErrorIs(t, err, lora.ErrParam)
 }
+
+// TestObserverRetryWait: the wait between a confirmed frame's attempts is
+// charged in the radio's wait state. An invented node whose wait current
+// (1 mA) lies far above its floor (2 µA), NbTrans 3 and a fixed 2 s
+// RetryGap: each attempt after a frame's first costs (1 mA − 2 µA) · 3.3 V
+// · 2 s above the floor (a hand computation); a node whose wait current
+// equals its floor has no such event kind (the floor already pays).
+func TestObserverRetryWait(t *testing.T) {
+	c, spec := obsNode(t, 3)
+	c.Confirmed = true
+	c.RetryGap = dist.MustPointMass(2)
+	plain, err := lora.NewObserver(c, spec, energy.Environment{}, lora.ObserverOptions{})
+	require.NoError(t, err)
+	for _, name := range plain.Model().Costs() {
+		require.NotContains(t, name, "retry wait")
+	}
+	c.Currents.Wait = 1e-3
+	o, err := lora.NewObserver(c, spec, energy.Environment{}, lora.ObserverOptions{})
+	require.NoError(t, err)
+	k := -1
+	for i, name := range o.Model().Costs() {
+		if name == "retry wait after DR5" {
+			k = i
+		}
+	}
+	require.GreaterOrEqual(t, k, 0)
+	const want = (1e-3 - 2e-6) * 3.3 * 2
+	require.InDelta(t, want, o.Model().CostMean(k), 1e-12*want)
+	d, err := o.NewDevice(0)
+	require.NoError(t, err)
+	// f0 twice (one wait), f1 (f0's third attempt: one more wait), f3
+	// (f1's two missing attempts, two waits; unheard f2: three
+	// transmissions, two waits).
+	for _, u := range []lora.Uplink{{Time: 100, FCnt: 0}, {Time: 105, FCnt: 0}, {Time: 1000, FCnt: 1}, {Time: 3000, FCnt: 3}} {
+		u.DR, u.TXPower = 5, 1
+		d, err = o.Uplink(d, u)
+		require.NoError(t, err)
+	}
+	require.Equal(t, int64(6), d.Tally.Count(k))
+}

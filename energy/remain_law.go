@@ -38,7 +38,7 @@ const kernelReach = 10
 // fitted to few nodes can miss mass that neither half sees). Where the
 // stages found nothing better than the prior's nodes and those leave
 // fewer than minResolvedNodes = 64 (or a quarter) effective (readings that the group's model
-// explains only far in its tails: an outlier against the group), the law is
+// explains only far in its tails: see DeviceModel.Outlier), the law is
 // not resolved and the stated error is 1. Checked against the same model
 // on 2^16 nodes over 54 devices (ages 300 to 1600 days, readings from
 // the plateau to the end of the knee): the stated error bounded the

@@ -66,6 +66,22 @@ func logBin(v, lo, hi, sigma float64) float64 {
 	return math.Log(p)
 }
 
+// checkUse applies the rules of Posterior and Outlier on the model, the
+// tally and now.
+func (m DeviceModel) checkUse(fn string, t Tally, now float64) error {
+	switch {
+	case m.d == nil:
+		return paramErr(fn, "model", "zero DeviceModel", "must be built by NewDeviceModel")
+	case !t.ok:
+		return paramErr(fn, "tally", "zero Tally", "must be started by DeviceModel.NewTally")
+	case t.external:
+		return paramErr(fn, "tally", "external power", "the device reports external power (no battery life to estimate)")
+	case !finite(now) || now < t.newest:
+		return paramErr(fn, "now", now, fmt.Sprintf("must be finite and at or after the newest event at %.17g s", t.newest))
+	}
+	return nil
+}
+
 // Posterior returns the device's posterior at now (s on the back-end's
 // clock, at or after the tally's newest event). It refuses, with an error
 // wrapping ErrParam, a device flagged as on external power (no battery to
@@ -74,17 +90,10 @@ func logBin(v, lo, hi, sigma float64) float64 {
 // active power.
 func (m DeviceModel) Posterior(t Tally, now float64) (DevicePosterior, error) {
 	const fn = "DeviceModel.Posterior"
-	d := m.d
-	switch {
-	case d == nil:
-		return DevicePosterior{}, paramErr(fn, "model", "zero DeviceModel", "must be built by NewDeviceModel")
-	case !t.ok:
-		return DevicePosterior{}, paramErr(fn, "tally", "zero Tally", "must be started by DeviceModel.NewTally")
-	case t.external:
-		return DevicePosterior{}, paramErr(fn, "tally", "external power", "the device reports external power (no battery life to estimate)")
-	case !finite(now) || now < t.newest:
-		return DevicePosterior{}, paramErr(fn, "now", now, fmt.Sprintf("must be finite and at or after the newest event at %.17g s", t.newest))
+	if err := m.checkUse(fn, t, now); err != nil {
+		return DevicePosterior{}, err
 	}
+	d := m.d
 	pd := &postData{d: d, tau0: t.newest - t.install, tauNow: now - t.install, a0: t.active, va0: t.actVar}
 	pd.r, pd.vr = d.activePower(&t, now)
 	M := len(d.c)

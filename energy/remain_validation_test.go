@@ -111,35 +111,10 @@ func runValidation(t testing.TB, f valFleet, n int, seed uint64, today float64) 
 		require.NoError(t, err)
 		install := -r.Float64() * energy.Year // back-end clock: today = `today`
 		age := today - install
-		tally, err := m.NewTally(install)
-		require.NoError(t, err)
-		var last float64
-		death, err := f.gen.Play(r, dev, age, func(rec backlog.Record) {
-			at := install + rec.Time
-			for k, c := range rec.Counts {
-				if c > 0 {
-					tally, err = m.Observe(tally, energy.Event{Time: at, Kind: k, Count: c})
-					require.NoError(t, err)
-				}
-			}
-			if !math.IsNaN(rec.Reading) {
-				lo, hi := rec.Reading-0.005, rec.Reading+0.005
-				if rec.Reading <= f.gen.Low {
-					lo = math.Inf(-1)
-				}
-				if rec.Reading >= f.gen.High {
-					hi = math.Inf(1)
-				}
-				tally, err = m.Read(tally, energy.Reading{Time: at, Low: lo, High: hi, Noise: f.gen.Noise})
-				require.NoError(t, err)
-			}
-			last = at
-		})
-		require.NoError(t, err)
+		tally, death := feedLog(t, f, m, r, dev, install, age, -1, 1)
 		if death <= age {
 			continue // flat before the cut: the back-end no longer hears it
 		}
-		_ = last
 		post, err := m.Posterior(tally, today)
 		require.NoError(t, err)
 		rem := post.Remaining()
@@ -160,6 +135,43 @@ func runValidation(t testing.TB, f valFleet, n int, seed uint64, today float64) 
 		res.laws = append(res.laws, rem)
 	}
 	return res
+}
+
+// feedLog plays dev from install up to the cut (s after installation)
+// into a tally; it returns the tally and the time of death (s after
+// installation). loopFrom >= 0 multiplies every count by loop from that
+// day on (a retransmission loop the back-end sees).
+func feedLog(t testing.TB, f valFleet, m energy.DeviceModel, r *rand.Rand, dev backlog.Device, install, cut float64, loopFrom int, loop int64) (energy.Tally, float64) {
+	t.Helper()
+	tl, err := m.NewTally(install)
+	require.NoError(t, err)
+	death, err := f.gen.Play(r, dev, cut, func(rec backlog.Record) {
+		at := install + rec.Time
+		for k, c := range rec.Counts {
+			if loopFrom >= 0 && rec.Day >= loopFrom {
+				c *= loop
+			}
+			if c > 0 {
+				tl, err = m.Observe(tl, energy.Event{Time: at, Kind: k, Count: c})
+				require.NoError(t, err)
+			}
+		}
+		if !math.IsNaN(rec.Reading) {
+			// the reported bin of the 10 mV quantum, open at the ends of
+			// the reported range (where the generator clamps)
+			lo, hi := rec.Reading-0.005, rec.Reading+0.005
+			if rec.Reading <= f.gen.Low {
+				lo = math.Inf(-1)
+			}
+			if rec.Reading >= f.gen.High {
+				hi = math.Inf(1)
+			}
+			tl, err = m.Read(tl, energy.Reading{Time: at, Low: lo, High: hi, Noise: f.gen.Noise})
+			require.NoError(t, err)
+		}
+	})
+	require.NoError(t, err)
+	return tl, death
 }
 
 func median(x []float64) float64 {
@@ -280,22 +292,7 @@ func TestEstimateFloorSpread(t *testing.T) {
 			dev, err := f.gen.Draw(r)
 			require.NoError(t, err)
 			install := -r.Float64() * energy.Year
-			tl, err := m.NewTally(install)
-			require.NoError(t, err)
-			_, err = f.gen.Play(r, dev, today-install, func(rec backlog.Record) {
-				at := install + rec.Time
-				for k, c := range rec.Counts {
-					if c > 0 {
-						tl, err = m.Observe(tl, energy.Event{Time: at, Kind: k, Count: c})
-						require.NoError(t, err)
-					}
-				}
-				if !math.IsNaN(rec.Reading) {
-					tl, err = m.Read(tl, energy.Reading{Time: at, Low: rec.Reading - 0.005, High: rec.Reading + 0.005, Noise: f.gen.Noise})
-					require.NoError(t, err)
-				}
-			})
-			require.NoError(t, err)
+			tl, _ := feedLog(t, f, m, r, dev, install, today-install, -1, 1)
 			tallies = append(tallies, tl)
 		}
 		cands := []float64{0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.9, 1.0}

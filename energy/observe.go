@@ -61,6 +61,7 @@ type Tally struct {
 	ok              bool
 	active, actVar  float64 // J, J²
 	ewE, ewV, ewAt  float64 // J, J², s
+	ewX, ewY        float64 // s: the weighted exposure ∫w and ∫w², each gap credited at its end as its events are
 	events          int64
 	counts          [MaxEventKinds]int64
 	reads           [MaxReadings]reading
@@ -178,9 +179,12 @@ func (m DeviceModel) Observe(t Tally, e Event) (Tally, error) {
 // decay brings the exponentially weighted sums to time tm.
 func (t *Tally) decay(memory, tm float64) {
 	if tm > t.ewAt {
-		w := math.Exp(-(tm - t.ewAt) / memory)
+		gap := tm - t.ewAt
+		w := math.Exp(-gap / memory)
 		t.ewE *= w
 		t.ewV *= w
+		t.ewX = t.ewX*w + gap
+		t.ewY = t.ewY*w*w + gap
 		t.ewAt = tm
 	}
 }
@@ -239,8 +243,12 @@ func (m DeviceModel) SetExternal(t Tally, time float64, external bool) (Tally, e
 // weighted recent energy over the weighted exposure, blended with the
 // planned power at weight PriorTime.
 func (d *deviceData) activePower(t *Tally, now float64) (p, v float64) {
+	// The exposure as the events are credited: each gap between them at
+	// its end (records that arrive in batches, a day's counts at its end,
+	// are then weighted as they came), and the time since the newest
+	// event at now.
 	w := math.Exp(-math.Max(0, now-t.ewAt) / d.memory)
-	expo := -d.memory * math.Expm1(-(now-t.install)/d.memory)
+	expo := t.ewX*w + math.Max(0, now-t.ewAt)
 	p = (t.ewE*w + d.planP*d.prior) / (expo + d.prior)
 	v = (t.ewV*w + d.planV*d.prior) / (expo + d.prior)
 	return p, v

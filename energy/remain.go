@@ -283,6 +283,35 @@ func (d *deviceData) factors(z [3]float64) (c, a, f float64) {
 	return 1 + sp.Capacity*z[0], 1 + sp.Active*z[1], math.Exp(sp.Floor * z[2])
 }
 
+// WithSpread returns the model with the per-node spreads sp instead of
+// its NodeSpec's (the same cell, costs and point set: a Tally of one is a
+// Tally of the other), for example a group's spreads learned by
+// EstimateSpread. Errors wrap ErrParam.
+func (m DeviceModel) WithSpread(sp NodeSpread) (DeviceModel, error) {
+	const fn = "DeviceModel.WithSpread"
+	if m.d == nil {
+		return DeviceModel{}, paramErr(fn, "model", "zero DeviceModel", "must be built by NewDeviceModel")
+	}
+	if err := sp.check(fn, "sp."); err != nil {
+		return DeviceModel{}, err
+	}
+	d := *m.d
+	d.spread = sp
+	d.c, d.a, d.f = make([]float64, d.nodes), make([]float64, d.nodes), make([]float64, d.nodes)
+	for k, z := range d.z {
+		d.c[k], d.a[k], d.f[k] = d.factors(z)
+	}
+	return DeviceModel{d: &d}, nil
+}
+
+// Spread returns the model's per-node spreads.
+func (m DeviceModel) Spread() NodeSpread {
+	if m.d == nil {
+		return NodeSpread{}
+	}
+	return m.d.spread
+}
+
 // Costs returns the names of the model's event kinds, in the order of the
 // costs given to NewDeviceModel (an Event's Kind indexes it).
 func (m DeviceModel) Costs() []string {

@@ -67,6 +67,6 @@ func ExampleDeviceModel() {
 		energy.Days(rem.Quantile(0.5)), energy.Days(lo), energy.Days(hi))
 	fmt.Printf("floor current: median %.1f µA\n", p.FloorCurrent().Quantile(0.5)/energy.MicroAmp)
 	// Output:
-	// remaining life: median 239 days, 90 % in [166, 366] days
+	// remaining life: median 242 days, 90 % in [168, 371] days
 	// floor current: median 6.0 µA
 }

@@ -16,20 +16,19 @@ import (
 type OutlierTest struct {
 	// Activity is the upper-tail p-value of the device's recent counted
 	// energy (the Tally's exponentially weighted sum of event counts ×
-	// their mean costs, time constant DeviceOptions.Memory) under the
-	// group's law of it: a mixture over the NodeSpec's settings (each a
-	// share of the nodes, for example a data rate that adaptive data rate
-	// settles on) of normals with mean P_s·X and variance V_s·Y, P_s and
-	// V_s the setting's active power and variance rate (its cycle's mean
-	// and variance per cycle times the cycle rate), X = ∫w and Y = ∫w² the
-	// weights' exposure. (The active factor's spread does not enter: the
-	// counted energy is counts times mean costs; the factor scales only
-	// the true energy behind them.) Low when the device does more of what
-	// the back-end counts than its group plans: a retransmission loop, a
-	// device stuck at a slow data rate its group does not use. Traffic
-	// more irregular than the settings' cycles (bursts of events the plan
-	// does not have) makes the test flag more often than its level says:
-	// give the group's settings the traffic law the devices really have.
+	// their mean costs, time constant DeviceOptions.Memory, at its newest
+	// event) against its own long-run rate: under steady traffic its mean is
+	// r·X and its variance about v·Y, with r the counted energy over the
+	// cell's age, v = Σ_k n_k·e_k² over the age the variance rate of
+	// counts n_k of kinds costing e_k (independent, Poisson-like counts;
+	// periodic reports vary less, so the test is conservative for them),
+	// X = ∫w and Y = ∫w² the weights' exposure; the score is normal.
+	// Low when the device has lately done much more of what the back-end
+	// counts than it used to: a retransmission loop, a fall to a slow data
+	// rate, a burst of rejoins. A device that has behaved so since its
+	// cell was installed is not flagged by this test (its readings may
+	// flag it); a device whose group plans data rates of very different
+	// costs is not compared with them (its placement is its own).
 	Activity float64
 	// Reading is the two-sided p-value of the newest kept reading given
 	// the group's prior, the energy the device was counted to spend by
@@ -68,7 +67,7 @@ func (m DeviceModel) Outlier(t Tally, now float64) (OutlierTest, error) {
 		return OutlierTest{}, err
 	}
 	d := m.d
-	o := OutlierTest{Activity: d.activityP(&t, now), Reading: 1}
+	o := OutlierTest{Activity: d.activityP(&t), Reading: 1}
 	if t.nRead > 0 {
 		p, err := m.readingP(t, now)
 		if err != nil {
@@ -92,31 +91,32 @@ func normUpperQuantile(q float64) float64 {
 	return dist.MustNormal(0, 1).UpperQuantile(q)
 }
 
-// activityP returns the upper-tail p-value of the tally's weighted recent
-// active energy at now under the group's settings.
-func (d *deviceData) activityP(t *Tally, now float64) float64 {
-	mem := d.memory
-	e := t.ewE * math.Exp(-math.Max(0, now-t.ewAt)/mem)
-	age := now - t.install
-	x := -mem * math.Expm1(-age/mem)         // ∫ w
-	y := -0.5 * mem * math.Expm1(-2*age/mem) // ∫ w²
-	if !(x > 0) {
+// activityP returns the upper-tail p-value of the tally's weighted
+// recent counted energy at its newest event against the device's own
+// long-run rate.
+func (d *deviceData) activityP(t *Tally) float64 {
+	// Everything at the newest count (ewAt): the time after it holds no
+	// counts yet; the weighted sums and their exposure, each gap credited
+	// at its end as its counts are.
+	age := t.ewAt - t.install
+	if !(age > 0) || t.events == 0 {
 		return 1
 	}
-	p := 0.0
-	for _, st := range d.n.settings {
-		ps, vs := st.rate*st.mu, st.rate*st.k2 // W and J²/s at the cell
-		mean := ps * x
-		sd := math.Sqrt(vs * y)
-		switch {
-		case sd > 0:
-			p += st.w * normSurv((e-mean)/sd)
-		case e > mean:
-		default:
-			p += st.w
-		}
+	e, x, y := t.ewE, t.ewX, t.ewY
+	v := 0.0
+	for k, c := range d.costs {
+		v += float64(t.counts[k]) * c.mean * c.mean
 	}
-	return math.Min(1, p)
+	v /= age
+	mean := t.active / age * x
+	sd := math.Sqrt(v * y)
+	switch {
+	case sd > 0:
+		return normSurv((e - mean) / sd)
+	case e > mean:
+		return 0
+	}
+	return 1
 }
 
 // readingP returns the two-sided predictive p-value of the tally's newest

@@ -111,6 +111,8 @@ type observer struct {
 	retry     map[int]int    // DR → kind of the wait before a further attempt; absent when free
 	report    int            // kind, −1 for none
 	nbTrans   int
+	costs     []energy.EventCost // the model's event kinds, in order
+	opt       energy.DeviceOptions
 	level     LevelScale
 	readLevel bool
 	vNoise    float64
@@ -290,7 +292,7 @@ func NewObserver(c ClassA, spec energy.NodeSpec, env energy.Environment, opt Obs
 	if err != nil {
 		return Observer{}, fmt.Errorf("lora.NewObserver: %w", err)
 	}
-	o.model = m
+	o.model, o.costs, o.opt = m, costs, opt.Device
 	return Observer{o: o}, nil
 }
 
@@ -302,6 +304,25 @@ func (o Observer) UplinkKind(dr, txPower int) (int, bool) {
 	}
 	k, ok := o.o.tx[[2]int{dr, txPower}]
 	return k, ok
+}
+
+// Costs returns the event kinds the observer charges (a copy, in the
+// order of the Model's costs): with Options, what energy.EstimateSpread
+// and energy.PlanSharedService need to rebuild the model with other
+// spreads or shared factors.
+func (o Observer) Costs() []energy.EventCost {
+	if o.o == nil {
+		return nil
+	}
+	return append([]energy.EventCost(nil), o.o.costs...)
+}
+
+// Options returns the posterior's options the observer was built with.
+func (o Observer) Options() energy.DeviceOptions {
+	if o.o == nil {
+		return energy.DeviceOptions{}
+	}
+	return o.o.opt
 }
 
 // Model returns the energy.DeviceModel the observer feeds (for

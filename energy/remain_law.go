@@ -42,7 +42,9 @@ const kernelReach = 10
 // not resolved and the stated error is 1. Checked against the same model
 // on 2^16 nodes over 54 devices (ages 300 to 1600 days, readings from
 // the plateau to the end of the knee): the stated error bounded the
-// measured one in every case (TestPosteriorStatedError). PosteriorLaw
+// measured one in every case that had an oracle (three of the most
+// improbable had none: 2^16 nodes do not resolve them either, and those
+// laws state 1; TestPosteriorStatedError). PosteriorLaw
 // implements dist.Law, dist.Atomic and dist.Estimated; it is an immutable
 // value, safe for concurrent use. A zero PosteriorLaw is not valid: its
 // methods return NaN.

@@ -84,12 +84,13 @@ type ObserverOptions struct {
 // receive over the empty RX2 listen; each new frame counter (a report)
 // costs the node's own Before and After stages; a join costs a
 // Join-request at TXPower 0 with its two windows empty (the accept, when
-// there is one, is counted as a downlink). The wait between a confirmed
-// frame's retries (RetryGap; by default ACK_TIMEOUT for confirmed frames
-// and the sub-band's off-time, as ClassA describes) is charged in the
-// radio's wait state: each attempt after a frame's first costs that wait
-// at Currents.Wait above the floor (nothing when Wait equals Floor), as
-// ClassA's own cycle charges it.
+// there is one, is counted as a downlink). The wait between a frame's
+// attempts (a confirmed frame's retries, an unconfirmed one's
+// repetitions; RetryGap, by default ACK_TIMEOUT for confirmed frames and
+// at least the sub-band's off-time, as ClassA describes) is charged in
+// the radio's wait state: each attempt after a frame's first costs that
+// wait at Currents.Wait above the floor (nothing when Wait equals Floor),
+// as ClassA's own cycle charges it.
 //
 // # Frames the gateways missed
 //

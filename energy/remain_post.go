@@ -108,9 +108,10 @@ func (m DeviceModel) Posterior(t Tally, now float64) (DevicePosterior, error) {
 	// quarter of the nodes effective, place a point set stageFactor times
 	// larger on a product of Student-t laws (proposalNu degrees of freedom)
 	// fitted to the weighted nodes (their mean and widened covariance in the
-	// normal scores) and weight by prior × likelihood / proposal. A stage
-	// that does not raise the effective number is tried again three times
-	// wider; at most four tries.
+	// normal scores) and weight by prior × likelihood / proposal. While no
+	// stage has done better than the prior's nodes, a stage that does not
+	// raise the effective number is tried again three times wider; after
+	// one has, such a stage ends the search. At most four tries.
 	zs := d.z
 	Ms := len(d.tz)
 	widen := 1.0
@@ -146,8 +147,11 @@ func (m DeviceModel) Posterior(t Tally, now float64) (DevicePosterior, error) {
 		like(nc, na, nf, nl, scratch)
 		ne := essOf(nl)
 		if !(ne > ess) {
-			// A proposal fitted to few effective nodes missed the
-			// posterior: try again from the same nodes, three times wider.
+			if pd.stages > 1 {
+				break // a stage did better than the prior's nodes: keep it
+			}
+			// A proposal fitted to the prior's few effective nodes missed
+			// the posterior: try again from them, three times wider.
 			widen *= 3
 			continue
 		}

@@ -3,8 +3,8 @@ package energy
 import (
 	"fmt"
 	"math"
-	"sync"
 
+	"github.com/joulelaw/joulelaw/internal/workers"
 	"github.com/joulelaw/joulelaw/orderstat"
 )
 
@@ -204,27 +204,13 @@ func SearchDesign(p DesignProblem) (Design, error) {
 	return d, nil
 }
 
-// forEachOnTwo runs job(0) … job(n−1) on two goroutines and returns the
-// error of the lowest index that failed; each job writes only its own
-// slot, so the outcome does not depend on the schedule.
+// forEachOnTwo runs job(0) … job(n−1) on two goroutines (the library's one
+// pool, internal/workers) and returns the error of the lowest index that
+// failed; each job writes only its own slot, so the outcome does not depend
+// on the schedule.
 func forEachOnTwo(n int, job func(i int) error) error {
 	errs := make([]error, n)
-	jobs := make(chan int)
-	var wg sync.WaitGroup
-	for range 2 {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range jobs {
-				errs[i] = job(i)
-			}
-		}()
-	}
-	for i := range n {
-		jobs <- i
-	}
-	close(jobs)
-	wg.Wait()
+	_ = workers.Run(n, 2, func(i int) error { errs[i] = job(i); return nil }, nil)
 	for _, err := range errs {
 		if err != nil {
 			return err

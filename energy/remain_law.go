@@ -9,6 +9,7 @@ import (
 	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/root"
 )
 
 // kernelReach is how many kernel standard deviations from a node its
@@ -240,11 +241,11 @@ func (l PosteriorLaw) UpperQuantile(q float64) float64 {
 
 // root finds the smallest x with g(x) >= 0 (g non-decreasing), to a
 // relative 1e-10 of the bracket's scale, starting from a bracket around
-// node k: regula falsi with the Illinois modification (Dowell and
-// Jarratt, BIT 11 (1971) 168–174), with a bisection step whenever the same
-// end has moved twice running, so that a step-shaped g (point nodes)
-// still halves the bracket at least every third step. About 8 evaluations
-// for a smooth mixture instead of the 35 of a bisection.
+// node k: the library's one root finder (internal/root: regula falsi
+// with the Illinois modification, Dowell and Jarratt, BIT 11 (1971)
+// 168–174, with a bisection step whenever the bracket has not halved in
+// three steps, so that a step-shaped g (point nodes) still halves the
+// bracket at least every fourth step).
 func (p *postLaw) root(k int, g func(float64) float64) float64 {
 	r := (kernelReach + 2) * p.smax
 	a := math.Max(p.sLo, p.m[k]-r)
@@ -273,46 +274,7 @@ func (p *postLaw) root(k int, g func(float64) float64) float64 {
 		}
 		scale = math.Abs(b)
 	}
-	fa, fb := ga, gb   // the Illinois-scaled values at the ends
-	side, same := 0, 0 // the end moved last, and how many times running
-	for range 200 {
-		if b-a <= 1e-10*scale {
-			break
-		}
-		x := 0.5 * (a + b)
-		if same < 2 {
-			if s := a - fa*(b-a)/(fb-fa); s > a && s < b {
-				x = s
-			}
-		}
-		if x <= a || x >= b {
-			break
-		}
-		bisected := x == 0.5*(a+b)
-		if gx := g(x); gx >= 0 {
-			b, fb = x, gx
-			if side == 1 {
-				fa /= 2
-				same++
-			} else {
-				same = 1
-			}
-			side = 1
-		} else {
-			a, fa = x, gx
-			if side == -1 {
-				fb /= 2
-				same++
-			} else {
-				same = 1
-			}
-			side = -1
-		}
-		if bisected {
-			same = 0
-		}
-	}
-	return b
+	return root.Illinois(g, a, b, ga, gb, 1e-10*scale)
 }
 
 // posPart returns E[(X − c)⁺] for X ~ N(m, s²).

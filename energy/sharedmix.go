@@ -7,6 +7,8 @@ import (
 	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/quad"
+	"github.com/joulelaw/joulelaw/internal/root"
 )
 
 // sharedMixture is the mixture over the shared factors' quadrature nodes of
@@ -29,6 +31,8 @@ type sharedMixture struct {
 type mixLazy struct {
 	once       sync.Once
 	mean, vari float64
+	meanErr    float64
+	varErr     float64
 	accOnce    sync.Once
 	cdfAbs     float64
 }
@@ -79,45 +83,17 @@ func (m sharedMixture) probit(t float64) float64 {
 }
 
 // solve returns the smallest t (to 1e-12 relative) in [lo, hi] whose
-// probit reaches target, the bracket being the components' answers: regula
-// falsi with the Illinois modification (Dowell and Jarratt, BIT 11 (1971)
-// 168–174) on the probit, which is nearly linear in t, falling back to
-// bisection where the probit is infinite (at a calendar limit). About ten
-// evaluations instead of the forty of a bisection.
+// probit reaches target, the bracket being the components' answers: the
+// library's one root finder (internal/root: regula falsi with the
+// Illinois modification on the probit, which is nearly linear in t,
+// bisecting where the probit is infinite, at a calendar limit).
 func (m sharedMixture) solve(lo, hi, target float64) float64 {
 	zlo := m.probit(lo)
 	if zlo >= target {
 		return lo
 	}
-	zhi := m.probit(hi)
-	side := 0
-	for range 200 {
-		if hi-lo <= 1e-12*math.Abs(hi) {
-			break
-		}
-		x := lo + (hi-lo)/2
-		if !math.IsInf(zlo, 0) && !math.IsInf(zhi, 0) && zhi > zlo {
-			fl, fh := zlo-target, zhi-target
-			switch side {
-			case -1:
-				fh /= 2
-			case 1:
-				fl /= 2
-			}
-			if s := lo - fl*(hi-lo)/(fh-fl); s > lo && s < hi {
-				x = s
-			}
-		}
-		zx := m.probit(x)
-		if zx >= target {
-			hi, zhi = x, zx
-			side = 1
-		} else {
-			lo, zlo = x, zx
-			side = -1
-		}
-	}
-	return hi
+	g := func(t float64) float64 { return m.probit(t) - target }
+	return root.Illinois(g, lo, hi, zlo-target, m.probit(hi)-target, 1e-12*math.Abs(hi))
 }
 
 // span returns the smallest and largest of the components' answers q(l).
@@ -158,32 +134,144 @@ func (m sharedMixture) UpperQuantile(q float64) float64 {
 	return m.solve(lo, hi, dist.MustNormal(0, 1).UpperQuantile(q))
 }
 
+// mixMomentTol is the target of the fallback quadrature of a mixture's
+// moments over its survival (components without moments of their own).
+const mixMomentTol = 1e-8
+
 func (m sharedMixture) moments() {
 	m.lz.once.Do(func() {
-		lo := m.Quantile(1e-15)
-		hi := m.UpperQuantile(1e-15)
-		if !(hi > lo) {
-			m.lz.mean, m.lz.vari = lo, 0
+		if m.lz.mean, m.lz.vari, m.lz.meanErr, m.lz.varErr = m.totalMoments(); !math.IsNaN(m.lz.mean) {
 			return
 		}
-		var brk []float64
-		for _, p := range []float64{0.01, 0.5, 0.99} {
-			brk = append(brk, m.Quantile(p))
-		}
-		brk = sortedUnique(brk)
-		a, _ := integratePiecesTol(m.Survival, lo, hi, brk, 1e-8)
-		b, _ := integratePiecesTol(func(t float64) float64 { return 2 * t * m.Survival(t) }, lo, hi, brk, 1e-8)
-		mean := lo + a
-		m.lz.mean = mean
-		m.lz.vari = math.Max(0, lo*lo+b-mean*mean)
+		m.lz.mean, m.lz.vari, m.lz.meanErr, m.lz.varErr = m.quadMoments()
 	})
 }
 
-// Mean returns ∫ Survival (s), computed on first use.
+// componentMoments returns the mean (s) and variance (s²) of a component
+// with their estimated absolute errors (NaN where they are not finite): a
+// tabulated node law's moments are integrated over its table when it is
+// built (relative tolerance 1e-12, taken as its error); any other
+// component's are integrated here over its own range (componentQuad).
+func componentMoments(l dist.Law) (mean, vari, meanErr, varErr float64) {
+	if c, ok := l.(tabulated); ok {
+		mean, vari = c.Mean(), c.Variance()
+		return mean, vari, 1e-12 * math.Abs(mean), 1e-12 * (vari + mean*mean)
+	}
+	return componentQuad(l)
+}
+
+// componentQuad returns a component's mean (s) and variance (s²) with
+// their estimated errors by the library's adaptive quadrature
+// (internal/quad) of its survival above its 1e-15 quantile lo,
+//
+//	E[T] − lo = ∫ S,  E[(T − lo)²] = 2∫ (t − lo)·S,
+//
+// up to its 1e-15 upper quantile, split at its median, to a relative
+// mixMomentTol; the tails beyond add at most 1e-15 of the range each
+// (bounded by the range itself). One component's survival rises over its
+// own narrow range, where the mixture's is a staircase of them: this
+// costs a tenth of the mixture's quadrature.
+func componentQuad(l dist.Law) (mean, vari, meanErr, varErr float64) {
+	nan := math.NaN()
+	lo, med, hi := l.Quantile(1e-15), l.Quantile(0.5), l.UpperQuantile(1e-15)
+	if !finite(lo) || !finite(hi) || !finite(med) {
+		return nan, nan, nan, nan
+	}
+	if !(hi > lo) {
+		return lo, 0, 0, 0
+	}
+	span := hi - lo
+	f := func(t float64, y []float64) {
+		s := l.Survival(t)
+		y[0], y[1] = s, 2*(t-lo)/span*s
+	}
+	pts := sortedUnique([]float64{lo, med, hi})
+	var v [2]float64
+	r, err := quad.BreaksVec(v[:], f, pts, quad.Options{RelTol: mixMomentTol, MaxEvals: 1 << 14})
+	if err != nil && r.Evals == 0 {
+		return nan, nan, nan, nan
+	}
+	m1, m2 := v[0], v[1]*span
+	e1, e2 := r.Error+2e-15*span, r.Error*span+4e-15*span*span
+	vari = math.Max(0, m2-m1*m1)
+	return lo + m1, vari, e1, e2 + 2*m1*e1
+}
+
+// totalMoments returns the mixture's mean (s) and variance (s²) from its
+// components' by the law of total variance,
+//
+//	E[T] = Σ w_e·m_e,  Var[T] = Σ w_e·(v_e + (m_e − E[T])²),
+//
+// exact for the mixture, with the errors the components' carry: the mean's
+// Σ w_e·δm_e, the variance's Σ w_e·(δv_e + 2|m_e − E[T]|·(δm_e + δm) +
+// (δm_e + δm)²), plus rounding. NaN where a component has no moments of
+// its own or they are not finite.
+func (m sharedMixture) totalMoments() (mean, vari, meanErr, varErr float64) {
+	ms := make([]float64, len(m.laws))
+	vs := make([]float64, len(m.laws))
+	ems := make([]float64, len(m.laws))
+	evs := make([]float64, len(m.laws))
+	for i, l := range m.laws {
+		ms[i], vs[i], ems[i], evs[i] = componentMoments(l)
+		if !finite(ms[i]) || !finite(vs[i]) || !finite(ems[i]) || !finite(evs[i]) {
+			return math.NaN(), math.NaN(), math.NaN(), math.NaN()
+		}
+		mean += m.w[i] * ms[i]
+		meanErr += m.w[i] * ems[i]
+	}
+	scale := 0.0
+	for i := range m.laws {
+		d := ms[i] - mean
+		vari += m.w[i] * (vs[i] + d*d)
+		e := ems[i] + meanErr
+		varErr += m.w[i] * (evs[i] + 2*math.Abs(d)*e + e*e)
+		scale = math.Max(scale, math.Abs(ms[i]))
+	}
+	n := float64(len(m.laws))
+	return mean, vari, meanErr + 2*n*0x1p-52*scale, varErr + 4*n*0x1p-52*(vari+scale*scale)
+}
+
+// quadMoments integrates the mixture's survival (adaptive quadrature to
+// mixMomentTol relative, between its 1e-15 quantiles split at its 1, 50 and
+// 99 % points): the moments of a mixture whose components have none of
+// their own, with the quadrature's estimated errors.
+func (m sharedMixture) quadMoments() (mean, vari, meanErr, varErr float64) {
+	lo := m.Quantile(1e-15)
+	hi := m.UpperQuantile(1e-15)
+	if !(hi > lo) {
+		return lo, 0, 0, 0
+	}
+	var brk []float64
+	for _, p := range []float64{0.01, 0.5, 0.99} {
+		brk = append(brk, m.Quantile(p))
+	}
+	brk = sortedUnique(brk)
+	a, ea := integratePiecesTol(m.Survival, lo, hi, brk, mixMomentTol)
+	b, eb := integratePiecesTol(func(t float64) float64 { return 2 * t * m.Survival(t) }, lo, hi, brk, mixMomentTol)
+	mean = lo + a
+	// The tails beyond the 1e-15 quantiles: at most 1e-15 times the
+	// support's reach there, bounded by the span hi − lo.
+	tail := 2e-15 * (hi - lo)
+	return mean, math.Max(0, lo*lo+b-mean*mean), ea + tail, eb + 2*math.Abs(mean)*(ea+tail) + 2*tail*math.Abs(hi)
+}
+
+// Mean returns the mixture's mean (s), computed on first use: Σ w_e·m_e
+// over its components' means where they have them (tabulated node laws,
+// order statistics), otherwise ∫ Survival by quadrature.
 func (m sharedMixture) Mean() float64 { m.moments(); return m.lz.mean }
 
-// Variance returns 2∫ t·Survival − Mean² (s²), computed on first use.
+// Variance returns the mixture's variance (s²), computed with Mean: by the
+// law of total variance from the components' moments, otherwise
+// 2∫ t·Survival − Mean² by quadrature.
 func (m sharedMixture) Variance() float64 { m.moments(); return m.lz.vari }
+
+// MomentError returns the estimated absolute errors of Mean (s) and
+// Variance (s²): the components' stated moment errors carried through the
+// law of total variance, or the quadrature's estimate.
+func (m sharedMixture) MomentError() (mean, variance float64) {
+	m.moments()
+	return m.lz.meanErr, m.lz.varErr
+}
 
 func (m sharedMixture) Support() (lo, hi float64) {
 	lo, hi = math.Inf(1), math.Inf(-1)

@@ -2,12 +2,16 @@ package energy_test
 
 import (
 	"fmt"
+	"math"
 	"math/rand/v2"
 	"runtime"
-	"sync"
 	"testing"
 
+	"github.com/stretchr/testify/require"
+
 	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/testref"
+	"github.com/joulelaw/joulelaw/internal/workers"
 )
 
 // BenchmarkDeviceObserve: one event into one device's Tally.
@@ -66,6 +70,7 @@ func BenchmarkDeviceRemaining(b *testing.B) {
 				}
 				ts := benchTallies(m, 64, rd.volts)
 				b.ReportAllocs()
+				defer testref.ReportCPU(b)()
 				b.ResetTimer()
 				for i := 0; i < b.N; i++ {
 					tl := ts[i%len(ts)]
@@ -81,9 +86,13 @@ func BenchmarkDeviceRemaining(b *testing.B) {
 	}
 }
 
-// BenchmarkDeviceFleet: 10^4 devices' remaining-life laws (median and 90 %
-// interval) on 1, 2 … GOMAXPROCS goroutines, one device per task; the
-// per-device result is the same whatever the goroutine count.
+// BenchmarkDeviceFleet: 10^5 devices' remaining-life laws (median and 90 %
+// interval) on GOMAXPROCS goroutines through internal/workers, the
+// library's one pool (run with -cpu 1,2 for the scaling with cores), in
+// tasks of fleetChunk devices; the per-device result is the same whatever
+// the goroutine count (TestDeviceFleetSameBits). The devices are the 64
+// plateau devices of BenchmarkDeviceRemaining, repeated: in a fleet most
+// devices' readings sit on the flat part of the curve.
 func BenchmarkDeviceFleet(b *testing.B) {
 	f := newValFleet(b, true)
 	m, err := energy.NewDeviceModel(f.spec, energy.Environment{}, f.costs, energy.DeviceOptions{})
@@ -91,28 +100,59 @@ func BenchmarkDeviceFleet(b *testing.B) {
 		b.Fatal(err)
 	}
 	base := benchTallies(m, 64, 3.64)
-	const n = 10000
-	for g := 1; g <= runtime.GOMAXPROCS(0); g *= 2 {
-		b.Run(fmt.Sprintf("goroutines=%d", g), func(b *testing.B) {
-			out := make([]float64, n)
-			for i := 0; i < b.N; i++ {
-				var wg sync.WaitGroup
-				for w := range g {
-					wg.Add(1)
-					go func() {
-						defer wg.Done()
-						for j := w; j < n; j += g {
-							tl := base[j%len(base)]
-							p, err := m.Posterior(tl, tl.Newest())
-							if err != nil {
-								continue
-							}
-							out[j] = p.Remaining().Quantile(0.5)
-						}
-					}()
-				}
-				wg.Wait()
+	const n = 100000
+	out := make([][3]float64, n)
+	defer testref.ReportCPU(b)()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if err := fleetRemaining(m, base, out, runtime.GOMAXPROCS(0)); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// fleetChunk is how many devices one task of fleetRemaining handles.
+const fleetChunk = 256
+
+// fleetRemaining fills out[j] with the median and the 5 % and 95 % points
+// of device j's remaining life (the tallies repeated), NaN for a device
+// refused, on the given number of goroutines.
+func fleetRemaining(m energy.DeviceModel, base []energy.Tally, out [][3]float64, goroutines int) error {
+	tasks := (len(out) + fleetChunk - 1) / fleetChunk
+	return workers.Run(tasks, goroutines, func(i int) error {
+		for j := i * fleetChunk; j < min(len(out), (i+1)*fleetChunk); j++ {
+			tl := base[j%len(base)]
+			p, err := m.Posterior(tl, tl.Newest())
+			if err != nil {
+				out[j] = [3]float64{math.NaN(), math.NaN(), math.NaN()}
+				continue
 			}
-		})
+			rem := p.Remaining()
+			out[j] = [3]float64{rem.Quantile(0.5), rem.Quantile(0.05), rem.Quantile(0.95)}
+		}
+		return nil
+	}, nil)
+}
+
+// TestDeviceFleetSameBits: the fleet loop's per-device results are the
+// same bits on one goroutine and on three (immutable model, no shared
+// state), for 300 devices from the plateau to the knee.
+func TestDeviceFleetSameBits(t *testing.T) {
+	f := newValFleet(t, true)
+	m, err := energy.NewDeviceModel(f.spec, energy.Environment{}, f.costs, energy.DeviceOptions{})
+	require.NoError(t, err)
+	var base []energy.Tally
+	for _, v := range []float64{0, 3.64, 3.55, 3.50} {
+		base = append(base, benchTallies(m, 16, v)...)
+	}
+	var res [2][][3]float64
+	for i, g := range []int{1, 3} {
+		res[i] = make([][3]float64, 300)
+		require.NoError(t, fleetRemaining(m, base, res[i], g))
+	}
+	for j := range res[0] {
+		for q := range 3 {
+			require.Equal(t, math.Float64bits(res[0][j][q]), math.Float64bits(res[1][j][q]), "device %d", j)
+		}
 	}
 }

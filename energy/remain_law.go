@@ -77,34 +77,34 @@ type nodeQuality struct {
 // [lo, hi]; nodes of zero weight are dropped. It needs at least one node
 // of positive weight.
 func newPostLaw(m, s, w []float64, half []uint8, q nodeQuality, lo, hi float64, name, unit string, scale float64) PosteriorLaw {
-	// Sort 16-byte keys (value, index) rather than the nodes themselves.
-	type key struct {
-		m float64
-		k int
-	}
-	keys := make([]key, 0, len(m))
+	// Sort 8-byte keys: the value's order-preserving bits with the low 16
+	// replaced by the node's index (at most MaxPosteriorNodes = 2^16
+	// nodes), then one insertion pass restores the exact order (value,
+	// then index) among values that agree in their top 48 bits.
+	keys := make([]uint64, 0, len(m))
 	tot := 0.0
 	for k := range m {
 		if w[k] > 0 {
-			keys = append(keys, key{m[k], k})
+			keys = append(keys, orderBits(m[k])&^0xffff|uint64(k))
 			tot += w[k]
 		}
 	}
-	slices.SortFunc(keys, func(a, b key) int {
-		if a.m < b.m {
-			return -1
+	slices.Sort(keys)
+	less := func(x, y uint64) bool {
+		mx, my := m[x&0xffff], m[y&0xffff]
+		return mx < my || (mx == my && x&0xffff < y&0xffff)
+	}
+	for i := 1; i < len(keys); i++ {
+		for j := i; j > 0 && less(keys[j], keys[j-1]); j-- {
+			keys[j], keys[j-1] = keys[j-1], keys[j]
 		}
-		if a.m > b.m {
-			return 1
-		}
-		return a.k - b.k
-	})
+	}
 	n := len(keys)
 	buf := make([]float64, 5*n+2)
 	p := &postLaw{m: buf[:n:n], s: buf[n : 2*n : 2*n], w: buf[2*n : 3*n : 3*n], half: make([]uint8, n),
 		below: buf[3*n : 4*n+1 : 4*n+1], above: buf[4*n+1:], q: q, lo: lo, hi: hi, name: name, unit: unit, scale: scale}
 	for i, kk := range keys {
-		k := kk.k
+		k := int(kk & 0xffff)
 		p.m[i], p.s[i], p.w[i], p.half[i] = m[k], s[k], w[k]/tot, half[k]
 		if s[k] > p.smax {
 			p.smax = s[k]
@@ -128,6 +128,16 @@ func newPostLaw(m, s, w []float64, half []uint8, q nodeQuality, lo, hi float64, 
 	p.sLo = math.Min(math.Max(p.sLo, lo), hi)
 	p.sHi = math.Max(math.Min(p.sHi, hi), lo)
 	return PosteriorLaw{p: p}
+}
+
+// orderBits returns bits of x whose unsigned order is x's order (−0 below
+// +0; x not NaN).
+func orderBits(x float64) uint64 {
+	b := math.Float64bits(x)
+	if b>>63 != 0 {
+		return ^b
+	}
+	return b | 1<<63
 }
 
 // window returns the nodes [i, j) whose kernels reach x.

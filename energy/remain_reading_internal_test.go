@@ -1,0 +1,95 @@
+package energy
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/require"
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"github.com/joulelaw/joulelaw/internal/quad"
+)
+
+// truncatedKappa4 returns the fourth cumulant of N(0, 1) restricted to
+// [a, b], from its moments by adaptive quadrature (internal/quad) of
+// gonum's normal density: an oracle independent of logBin.
+func truncatedKappa4(t *testing.T, a, b float64) float64 {
+	t.Helper()
+	std := distuv.Normal{Mu: 0, Sigma: 1}
+	lo, hi := math.Max(a, -12), math.Min(b, 12)
+	if a > 0 {
+		hi = math.Min(b, a+40/(1+a)) // the tail beyond is below e^-40 of the mass
+	}
+	if b < 0 {
+		lo = math.Max(a, b-40/(1-b))
+	}
+	shift := 0.0 // divide the density by its value at the bin's nearest point to 0
+	switch {
+	case a > 0:
+		shift = a
+	case b < 0:
+		shift = b
+	}
+	mom := func(k int, mu float64) float64 {
+		r, err := quad.Adaptive(func(x float64) float64 {
+			return math.Exp(std.LogProb(x)+0.5*shift*shift) * math.Pow(x-mu, float64(k))
+		}, lo, hi, quad.Options{AbsTol: 1e-14, RelTol: 1e-12})
+		require.NoError(t, err)
+		return r.Value
+	}
+	m0 := mom(0, 0)
+	mu := mom(1, 0) / m0
+	v := mom(2, mu) / m0
+	return mom(4, mu)/m0 - 3*v*v
+}
+
+// TestReadingTable checks the reading term's lattice (see likelihood): the
+// bound |κ₄| <= 0.382·σ⁴ on the fourth cumulant of a normal law truncated
+// to a bin, over a scan of bins (quadrature of gonum's normal density),
+// and the interpolated term against log(Φ(zh) − Φ(zl)) from gonum's
+// normal CDF and survival (within 6σ of the bin, where gonum's survival is
+// accurate) to within the stated 2.3e-4.
+func TestReadingTable(t *testing.T) {
+	worst := 0.0
+	for a := -8.0; a <= 8; a += 0.25 {
+		for _, w := range []float64{0.05, 0.5, 1, 2, 3, 3.5, 4, 4.25, 4.5, 5, 6, 8, math.Inf(1)} {
+			k := truncatedKappa4(t, a, a+w)
+			worst = math.Max(worst, math.Abs(k))
+			require.LessOrEqual(t, math.Abs(k), 0.382, "bin [%g, %g]", a, a+w)
+		}
+	}
+	t.Logf("largest |κ₄|/σ⁴ over the scanned bins: %.4f (bound 0.382)", worst)
+	curve := TypicalBobbinCurve()
+	std := distuv.Normal{Mu: 0, Sigma: 1}
+	for _, c := range []struct {
+		name                string
+		drop, lo, hi, sigma float64
+	}{
+		{"fine bin on the plateau", 0, 3.635, 3.645, 0.02},
+		{"bin 4σ wide (κ₄'s worst)", 0.01, 3.46, 3.54, 0.02},
+		{"coarse level step", 0, 3.40, 3.60, 0.005},
+		{"open below", 0.05, math.Inf(-1), 3.0, 0.03},
+		{"open above", 0, 3.55, math.Inf(1), 0.01},
+		{"exact reading, small noise", 0, 3.5, 3.5001, 0.002},
+	} {
+		tab := newReadingTable(&curve, c.drop, c.lo, c.hi, c.sigma)
+		require.NotZero(t, tab.steps, c.name)
+		maxErr := 0.0
+		for i := 0; i <= 20000; i++ {
+			x := tab.v0 + float64(tab.steps)*tab.h*float64(i)/20000
+			zl, zh := (c.lo-x)/c.sigma, (c.hi-x)/c.sigma
+			if zl > 6 || zh < -6 {
+				continue
+			}
+			var p float64
+			if zl > 0 {
+				p = std.Survival(zl) - std.Survival(zh)
+			} else {
+				p = std.CDF(zh) - std.CDF(zl)
+			}
+			maxErr = math.Max(maxErr, math.Abs(tab.at(x)-math.Log(p)))
+		}
+		require.LessOrEqual(t, maxErr, 2.3e-4, c.name)
+		t.Logf("%s: largest error %.2g (bound 2.3e-4)", c.name, maxErr)
+	}
+}

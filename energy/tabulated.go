@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"sort"
+	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/internal/quad"
@@ -14,67 +15,87 @@ import (
 // smaller tail so that it keeps its precision far out, is smooth and nearly
 // linear in t where a law is near normal; it is tabulated on a grid refined
 // by bisection until a midpoint's monotone cubic (Fritsch and Carlson, SIAM
-// J. Numer. Anal. 17 (1980) 238–246) interpolant is within tabZTol of the
-// law, between the times where the law is 1e-14 and 1 − 1e-14.
+// J. Numer. Anal. 17 (1980) 238–246) interpolant is within a probit
+// tolerance of the law, between the times where the law is 1e-14 and
+// 1 − 1e-14.
+//
+// A law over several settings is a mixture whose probit has bumps where
+// settings of different lifetimes take over, so it needs many points; each
+// setting's own law is near normal and needs few. Each setting is
+// therefore tabulated on its own (from the node model, between its 1e-18
+// and 1 − 1e-18 points), and the mixture's table is built from those
+// tables, each point costing a normal tail per setting instead of the
+// node model's floor integral per setting.
 const (
-	tabZTol      = 1e-3 // probit tolerance of a table (relative probability error about |z|·tabZTol)
-	tabMaxPoints = 4096 // cap on a table's points
-	tabInitial   = 9    // points of the first grid
-	tabTail      = 1e-14
+	tabZTol       = 7e-4  // probit tolerance of a mixture's table against the settings' tables
+	tabSetZTol    = 3e-4  // probit tolerance of a setting's table against the node model
+	tabMaxPoints  = 4096  // cap on a table's points
+	tabInitial    = 9     // points of the first grid
+	tabSetInitial = 5     // knots of a setting's first grid (with gradients)
+	tabTail       = 1e-14 // a table spans the law from tabTail to 1 − tabTail
+	tabSetTail    = 1e-18 // a setting's table spans its law from tabSetTail to 1 − tabSetTail
+	tabEndSlack   = 0.25  // probit by which a setting table's end may lie beyond its level
+	tabCut        = 9.5   // a setting's probit beyond ±tabCut counts as 0 or 1 in the mixture (Φ̄(9.5) = 1.05e-21)
 )
+
+// probitTable is a monotone piecewise cubic in probit space: the probit z
+// at the times t (ascending) with PCHIP slopes per interval.
+type probitTable struct {
+	t, z   []float64 // grid, probit
+	d0, d1 []float64 // per interval i: the PCHIP slopes at t[i] and t[i+1]
+	kinks  int       // month boundaries seeded into the grid
+	worst  float64   // the largest probit error measured (the tolerance at most)
+	evals  int       // the law's evaluations that built the table
+}
 
 // tabulated is a NodeLifetime read from a table; it implements dist.Law,
 // dist.Atomic and dist.Estimated.
 type tabulated struct {
+	probitTable
 	src    NodeLifetime
-	t, z   []float64 // grid, probit
-	d0, d1 []float64 // per interval i: the PCHIP slopes at t[i] and t[i+1]
-	kinks  int       // month boundaries seeded into the grid
-	cal    float64   // calendar limit (+Inf for none)
-	atom   float64   // mass at the calendar limit
+	cal    float64 // calendar limit (+Inf for none)
+	atom   float64 // mass at the calendar limit
 	acc    dist.Accuracy
 	tabCDF float64 // the table's own part of acc.CDFAbs (interpolation against direct evaluation)
 	tabRel float64 // and of acc.SurvivalRel
-	worstZ float64 // the largest probit error measured (tabZTol at most)
+	// The settings' tables' part of the error: their largest probit error
+	// setWorst, the largest |probit| at their ends setZ (so the CDF error
+	// is at most setWorst·(1 + setZ)·min(F, 1 − F), Gordon's inequality
+	// for Mills' ratio), and the mass beyond their ends setBeyond.
+	setWorst, setZ, setBeyond float64
+	setPoints, setEvals       int // the settings' tables' points and the node model's evaluations, in all
 	// The node law's own stated CDF error (NodeLifetime.accuracyAt)
 	// measured at the times profT (ascending): profE.
 	profT, profE []float64
-	mean, vari   float64
+	lz           *tabLazy // the moments, computed on first use
 }
 
-// tabulate builds the table of l.
-func tabulate(l NodeLifetime) tabulated {
+// tabLazy holds a table's moments, computed once on first use (the same
+// computation whenever it runs, so the same bits).
+type tabLazy struct {
+	once       sync.Once
+	mean, vari float64
+}
+
+// probitOf returns the probit of the smaller tail: Φ⁻¹(dead) for dead <=
+// 1/2, else −Φ⁻¹(alive) from the upper side.
+func probitOf(alive, dead float64) float64 {
 	std := dist.MustNormal(0, 1)
-	probit := func(t float64) float64 {
-		a, d, _ := l.energyAt(t)
-		if d <= 0.5 {
-			return std.Quantile(math.Max(d, 0))
-		}
-		return std.UpperQuantile(math.Max(a, 0))
+	if dead <= 0.5 {
+		return std.Quantile(math.Max(dead, 0))
 	}
-	tb := tabulated{src: l, cal: l.n.calendar}
-	lo := l.energyQuantileTol(tabTail, false, 1e-4)
-	hi := l.energyQuantileTol(tabTail, true, 1e-4)
-	if hi > tb.cal {
-		hi = tb.cal
-		tb.atom = l.survivalAtCalendar()
-	}
-	if !(lo < hi) {
-		lo = math.Max(0, hi*(1-1e-9))
-	}
-	minWidth := 0.0
-	if l.n.spread.IsZero() {
-		// Exact k-fold laws move in steps of a period: refine no finer.
-		for _, s := range l.n.settings {
-			minWidth = math.Max(minWidth, 2/s.rate)
-		}
-	}
-	// The first grid: tabInitial even steps and the kinks (month
-	// boundaries where the monthly factors change), which stay knots with
-	// one-sided slopes on either side, so that no cubic straddles one.
-	kinks := l.n.kinks(lo, hi)
-	tb.kinks = len(kinks)
-	var ts []float64
+	return std.UpperQuantile(math.Max(alive, 0))
+}
+
+// probitGrid tabulates probit on [lo, hi] (zl, zh its values at the ends):
+// a first grid of tabInitial even steps and the kinks (month boundaries
+// where the monthly factors change), which stay knots with one-sided
+// slopes on either side, so that no cubic straddles one; then intervals
+// are halved until the cubic's value at each midpoint is within tol of
+// the probit there, or the interval is no wider than minWidth.
+func probitGrid(probit func(float64) float64, lo, hi, zl, zh float64, kinks []float64, minWidth, tol float64) probitTable {
+	pt := probitTable{kinks: len(kinks)}
+	var ts, zs []float64
 	var kink []bool
 	for i := range tabInitial {
 		x := lo + (hi-lo)*float64(i)/float64(tabInitial-1)
@@ -89,9 +110,17 @@ func tabulate(l NodeLifetime) tabulated {
 		}
 		ts, kink = append(ts, x), append(kink, false)
 	}
-	zs := make([]float64, len(ts))
+	zs = make([]float64, len(ts))
+	evals := len(ts) - 2
 	for i, x := range ts {
-		zs[i] = probit(x)
+		switch i {
+		case 0:
+			zs[i] = zl
+		case len(ts) - 1:
+			zs[i] = zh
+		default:
+			zs[i] = probit(x)
+		}
 	}
 	worst := 0.0
 	done := make([]bool, len(ts)-1) // interval i checked and within tolerance
@@ -114,12 +143,13 @@ func tabulate(l NodeLifetime) tabulated {
 			}
 			m := ts[i] + w/2
 			zm := probit(m)
+			evals++
 			zi := hermite(ts[i], ts[i+1], zs[i], zs[i+1], d0[i], d1[i], m)
 			e := math.Abs(zi - zm)
 			if math.IsInf(zm, 0) || math.IsInf(zs[i], 0) || math.IsInf(zs[i+1], 0) {
 				e = math.Inf(1)
 			}
-			ok := e <= tabZTol
+			ok := e <= tol
 			if ok {
 				worst = math.Max(worst, e)
 			} else {
@@ -135,26 +165,130 @@ func tabulate(l NodeLifetime) tabulated {
 			break
 		}
 	}
-	tb.t, tb.z = ts, zs
-	tb.d0, tb.d1 = pchipIntervals(ts, zs, kink)
+	pt.t, pt.z = ts, zs
+	pt.d0, pt.d1 = pchipIntervals(ts, zs, kink)
+	pt.worst = worst
+	pt.evals = evals
+	return pt
+}
+
+// tabulate builds the table of l.
+func tabulate(l NodeLifetime) tabulated {
+	n := l.n
+	tb := tabulated{src: l, cal: n.calendar}
+	std := dist.MustNormal(0, 1)
+	zLo, zHi := std.Quantile(tabTail), std.UpperQuantile(tabTail)
+	var probit func(float64) float64
+	var guessLo, guessHi float64
+	minWidth := 0.0
+	if n.spread.IsZero() {
+		// Exact k-fold laws move in steps of a period: refine no finer.
+		for _, s := range n.settings {
+			minWidth = math.Max(minWidth, 2/s.rate)
+		}
+	}
+	{
+		// Each setting's own table, then the mixture's from them.
+		type set struct {
+			w  float64
+			pt probitTable
+		}
+		var sets []set
+		guessLo, guessHi = math.Inf(1), 0
+		for j := range n.settings {
+			st, ok := settingTable(l, j, tabSetZTol, tabSetTail)
+			w := n.settings[j].w
+			if !ok {
+				// The setting's law is below tabSetTail up to the
+				// calendar limit: it counts as alive throughout.
+				tb.setBeyond += w * tabSetTail
+				sets = append(sets, set{w: w})
+				continue
+			}
+			tb.setPoints += len(st.t)
+			tb.setEvals += st.evals
+			tb.setWorst = math.Max(tb.setWorst, st.worst)
+			z0, z1 := st.z[0], st.z[len(st.z)-1]
+			tb.setZ = math.Max(tb.setZ, math.Max(math.Abs(z0), math.Abs(z1)))
+			// Before its first time the setting's law is below Φ(z0)
+			// (monotone), as is its table's continuation; after its last
+			// (unless that is the calendar limit, beyond which nothing is
+			// read) within Φ̄(z1) of 1; beyond ±tabCut the mixture reads 0
+			// or 1.
+			beyond := normSurv(-z0)
+			if st.t[len(st.t)-1] < n.calendar {
+				beyond = math.Max(beyond, normSurv(z1))
+			}
+			tb.setBeyond += w * (beyond + normSurv(tabCut))
+			guessLo, guessHi = math.Min(guessLo, st.t[0]), math.Max(guessHi, st.t[len(st.t)-1])
+			sets = append(sets, set{w: w, pt: st})
+		}
+		probit = func(t float64) float64 {
+			var dead, alive float64
+			for _, s := range sets {
+				if s.pt.t == nil {
+					alive += s.w
+					continue
+				}
+				switch z := s.pt.zAt(t); {
+				case z < -tabCut:
+					alive += s.w
+				case z > tabCut:
+					dead += s.w
+				default:
+					dead += s.w * normSurv(-z)
+					alive += s.w * normSurv(z)
+				}
+			}
+			return probitOf(alive, dead)
+		}
+		if math.IsInf(guessLo, 1) {
+			// No setting reaches tabSetTail before the calendar limit.
+			guessLo, guessHi = n.calendar*(1-1e-9), n.calendar
+		}
+		f := func(t float64) (float64, float64) { return probit(t), math.NaN() }
+		lo, zl := probitEnd(f, guessLo, zLo, 0.05, false)
+		hi, zh := 0.0, 0.0
+		if !math.IsInf(n.calendar, 1) {
+			if zc := probit(n.calendar); zc <= zHi {
+				hi, zh = n.calendar, zc
+			}
+		}
+		if hi == 0 {
+			hi, zh = probitEnd(f, math.Max(guessHi, lo), zHi, 0.05, true)
+		}
+		if !(lo < hi) {
+			lo = math.Max(0, hi*(1-1e-9))
+			zl = probit(lo)
+		}
+		tb.probitTable = probitGrid(probit, lo, hi, zl, zh, n.kinks(lo, hi), minWidth, tabZTol)
+	}
+	if tb.t[len(tb.t)-1] >= tb.cal {
+		tb.atom = l.survivalAtCalendar()
+	}
 	// The model's own error, measured at six of the table's times (see
 	// profile).
-	tb.worstZ = worst
 	src := tb.profile(l)
 	// A probit error δ moves a probability p by about φ(z)·δ <= 0.4·δ, and
 	// the smaller tail p by about p·|z|·δ (Mills' ratio): |z| <= 7.7 down to
 	// 1e-14.
 	// The check is made on the interval before its last halving; the
 	// cubic on the halves, with the midpoint as a knot, is closer still
-	// (TestTabulatedAgainstDirect measures it).
-	tb.tabCDF, tb.tabRel = 0.4*worst, 7.7*worst
+	// (TestTabulatedAgainstDirect measures it). The settings' tables add
+	// theirs (see errAt).
+	tb.tabCDF = 0.4*(tb.worst+tb.setWorst) + tb.setBeyond
+	tb.tabRel = 7.7*tb.worst + 1.01*(1+tb.setZ)*tb.setWorst + tb.setBeyond/tabTail
+	how := fmt.Sprintf("tabulated on %d times (probit interpolation, %d month boundaries as knots)", len(tb.t), tb.kinks)
+	if len(n.settings) > 1 {
+		how = fmt.Sprintf("tabulated on %d times (probit interpolation of the mixture of the %d settings' own tables, %d times in all; month boundaries as knots)", len(tb.t), len(n.settings), tb.setPoints)
+	}
 	tb.acc = dist.Accuracy{
 		CDFAbs:      src.CDFAbs + tb.tabCDF,
 		SurvivalRel: src.SurvivalRel + tb.tabRel,
 		TailFloor:   math.Max(src.TailFloor, tabTail),
-		Method:      fmt.Sprintf("%s; tabulated on %d times (probit interpolation, %d month boundaries as knots)", src.Method, len(ts), tb.kinks),
+		Method:      src.Method + "; " + how,
 	}
-	tb.moments()
+	tb.lz = &tabLazy{}
 	return tb
 }
 
@@ -188,9 +322,13 @@ func (tb *tabulated) profile(l NodeLifetime) dist.Accuracy {
 // errAt returns the stated CDF error at t (s): the node law's, the larger
 // of the two measured at the profile's times on either side (the end's
 // beyond them), and the table's, φ(z)·δz for the largest probit error δz
-// found. Far in a tail both shrink with the tail: a first failure among n
-// nodes reads the node law where F is about 1/n, and the bound n·CDFAbs
-// would be far too loose there.
+// found, plus the settings' tables', at most
+// δs·(1 + |zs|)·min(F, 1 − F)·1.01 for their largest probit error δs and
+// largest end probit zs (the mixture's F read from the table, which is
+// within a per cent of the law's), and their mass beyond their ends. Far
+// in a tail all shrink with the tail: a first failure among n nodes reads
+// the node law where F is about 1/n, and the bound n·CDFAbs would be far
+// too loose there.
 func (tb tabulated) errAt(t float64) float64 {
 	switch {
 	case math.IsNaN(t) || tb.t == nil:
@@ -208,7 +346,12 @@ func (tb tabulated) errAt(t float64) float64 {
 	default:
 		src = math.Max(tb.profE[i-1], tb.profE[i])
 	}
-	return src + normPDF(tb.zAt(t))*tb.worstZ
+	z := tb.zAt(t)
+	e := src + normPDF(z)*tb.worst
+	if tb.setWorst > 0 {
+		e += tb.setWorst * math.Min(0.4, 1.02*(1+tb.setZ)*normSurv(math.Abs(z)))
+	}
+	return e + tb.setBeyond
 }
 
 // pchipIntervals returns, for each interval i of the grid t, the slopes
@@ -291,28 +434,23 @@ func hermite(t0, t1, z0, z1, d0, d1, x float64) float64 {
 		}
 		return z1
 	}
-	h := t1 - t0
-	s := (x - t0) / h
-	h00 := (1 + 2*s) * (1 - s) * (1 - s)
-	h10 := s * (1 - s) * (1 - s)
-	h01 := s * s * (3 - 2*s)
-	h11 := s * s * (s - 1)
-	return h00*z0 + h10*h*d0 + h01*z1 + h11*h*d1
+	z, _ := hermiteD(t0, t1, z0, z1, d0, d1, x)
+	return z
 }
 
 // zAt returns the interpolated probit at t; beyond the table (where the
 // law is below 1e-14 or above 1 − 1e-14) the probit goes on along the end
 // slopes, so the far tails decay like a normal's.
-func (tb tabulated) zAt(t float64) float64 {
-	i := sort.SearchFloat64s(tb.t, t)
-	n := len(tb.t)
+func (pt probitTable) zAt(t float64) float64 {
+	i := sort.SearchFloat64s(pt.t, t)
+	n := len(pt.t)
 	switch {
 	case i == 0:
-		return tb.z[0] - math.Max(tb.d0[0], 0)*(tb.t[0]-t)
+		return pt.z[0] - math.Max(pt.d0[0], 0)*(pt.t[0]-t)
 	case i >= n:
-		return tb.z[n-1] + math.Max(tb.d1[len(tb.d1)-1], 0)*(t-tb.t[n-1])
+		return pt.z[n-1] + math.Max(pt.d1[len(pt.d1)-1], 0)*(t-pt.t[n-1])
 	}
-	return hermite(tb.t[i-1], tb.t[i], tb.z[i-1], tb.z[i], tb.d0[i-1], tb.d1[i-1], t)
+	return hermite(pt.t[i-1], pt.t[i], pt.z[i-1], pt.z[i], pt.d0[i-1], pt.d1[i-1], t)
 }
 
 // CDF returns P(lifetime <= t).
@@ -406,26 +544,51 @@ func (tb tabulated) UpperQuantile(q float64) float64 {
 	return tb.invert(dist.MustNormal(0, 1).UpperQuantile(q))
 }
 
-func (tb *tabulated) moments() {
-	lo := tb.t[0]
-	// ∫_0^lo S = lo (to 1e-14); ∫_lo^hi S by quadrature of the table; the
-	// atom at the calendar limit adds its mass times the limit.
-	opt := quad.Options{RelTol: 1e-12, MaxEvals: 1 << 16}
-	// Beyond the table's end the survival is below 1e-14 (or 0 from the
-	// calendar limit on, where the table ends).
-	m, _ := quad.Breaks(func(t float64) float64 { return tb.Survival(t) }, tb.t, opt)
-	s2, _ := quad.Breaks(func(t float64) float64 { return 2 * t * tb.Survival(t) }, tb.t, opt)
-	mean := lo + m.Value
-	second := lo*lo + s2.Value
-	tb.mean = mean
-	tb.vari = math.Max(0, second-mean*mean)
+func (tb tabulated) moments() {
+	tb.lz.once.Do(func() {
+		tb.lz.mean, tb.lz.vari = tb.integrateMoments()
+	})
 }
 
-// Mean returns the mean lifetime (s).
-func (tb tabulated) Mean() float64 { return tb.mean }
+// integrateMoments returns the table's mean (s) and variance (s²).
+func (tb tabulated) integrateMoments() (mean, vari float64) {
+	lo := tb.t[0]
+	// ∫_0^lo S = lo (to 1e-14); ∫_lo^hi S and ∫_lo^hi 2t·S by one vector
+	// quadrature of the table (the second scaled by the table's end, so
+	// that both are of the mean's size and the relative target holds for
+	// each); the atom at the calendar limit adds its mass times the limit.
+	// Beyond the table's end the survival is below 1e-14 (or 0 from the
+	// calendar limit on, where the table ends).
+	scale := tb.t[len(tb.t)-1]
+	opt := quad.Options{RelTol: 1e-10, MaxEvals: 1 << 16}
+	var v [2]float64
+	quad.BreaksVec(v[:], func(t float64, y []float64) {
+		s := tb.Survival(t)
+		y[0], y[1] = s, 2*(t/scale)*s
+	}, tb.t, opt)
+	mean = lo + v[0]
+	second := lo*lo + v[1]*scale
+	return mean, math.Max(0, second-mean*mean)
+}
 
-// Variance returns the variance of the lifetime (s²).
-func (tb tabulated) Variance() float64 { return tb.vari }
+// Mean returns the mean lifetime (s), by quadrature of the table on first
+// use.
+func (tb tabulated) Mean() float64 {
+	if tb.t == nil {
+		return math.NaN()
+	}
+	tb.moments()
+	return tb.lz.mean
+}
+
+// Variance returns the variance of the lifetime (s²), with Mean.
+func (tb tabulated) Variance() float64 {
+	if tb.t == nil {
+		return math.NaN()
+	}
+	tb.moments()
+	return tb.lz.vari
+}
 
 // Support returns that of the node law.
 func (tb tabulated) Support() (lo, hi float64) { return tb.src.Support() }

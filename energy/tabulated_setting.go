@@ -1,0 +1,348 @@
+package energy
+
+import (
+	"math"
+
+	"github.com/joulelaw/joulelaw/dist"
+)
+
+// A setting's own table. With a per-node spread the node model gives, at
+// any time, the probit z of the setting's law and its gradient against
+// the calendar model's three clocks (node.settingProbit): t, the
+// self-discharge clock D(t) and the floor clock Φ(t). The clocks run at
+// rates that change at month boundaries, so z(t) has a kink at every one
+// of them, but z is smooth in the clocks themselves. Between two knots a
+// and b (h = b − a) the table therefore reads
+//
+//	ẑ(x) = H(x) + Ĝ(x)·(c(x) − c(a) − (x − a)·(c(b) − c(a))/h),
+//
+// with H the cubic Hermite interpolant of z along the chord from c(a) to
+// c(b) (end slopes: the gradients times the chord's rates), Ĝ the gradient
+// interpolated linearly between a and b and c(x) the clocks: the first
+// term is smooth, the second puts each month boundary's kink where it is,
+// to first order in the clocks' departure from the chord. ẑ is a cubic
+// between consecutive month boundaries, stored as such. The knots are
+// refined by bisection until the interpolant's value at each midpoint is
+// within the tolerance of the model's, as for the plain tables: a setting
+// needs about a knot per few months instead of a few points per month.
+
+// gradKnot is the node model at one time: the clocks, the probit and its
+// gradient against the clocks.
+type gradKnot struct {
+	t float64
+	c [3]float64
+	z float64
+	g [3]float64
+}
+
+// gradKnotAt evaluates setting j of n at t.
+func (n *node) gradKnotAt(j int, t float64) gradKnot {
+	c := n.clocks(t)
+	z, g := n.settingProbit(j, c)
+	return gradKnot{t: t, c: c, z: z, g: g}
+}
+
+// slope returns dz/dt at the knot, right (or left) of its time.
+func (n *node) slope(k gradKnot, right bool) float64 {
+	r := n.clockRates(k.t, right)
+	return k.g[0]*r[0] + k.g[1]*r[1] + k.g[2]*r[2]
+}
+
+// gradInterp returns the interpolant between the knots a and b at x in
+// [a.t, b.t] and its derivative right (or left) of x.
+func (n *node) gradInterp(a, b *gradKnot, x float64, right bool) (z, dz float64) {
+	h := b.t - a.t
+	s := (x - a.t) / h
+	var u [3]float64 // the chord's clock rates
+	for i := range u {
+		u[i] = (b.c[i] - a.c[i]) / h
+	}
+	sa := a.g[0]*u[0] + a.g[1]*u[1] + a.g[2]*u[2]
+	sb := b.g[0]*u[0] + b.g[1]*u[1] + b.g[2]*u[2]
+	z, dz = hermiteD(a.t, b.t, a.z, b.z, sa, sb, x)
+	c := n.clocks(x)
+	r := n.clockRates(x, right)
+	for i := 1; i < 3; i++ {
+		dev := c[i] - a.c[i] - (x-a.t)*u[i]
+		gi := a.g[i] + s*(b.g[i]-a.g[i])
+		z += gi * dev
+		dz += (b.g[i]-a.g[i])/h*dev + gi*(r[i]-u[i])
+	}
+	return z, dz
+}
+
+// hermiteD is hermite with its derivative at x.
+func hermiteD(t0, t1, z0, z1, d0, d1, x float64) (z, dz float64) {
+	h := t1 - t0
+	s := (x - t0) / h
+	h00 := (1 + 2*s) * (1 - s) * (1 - s)
+	h10 := s * (1 - s) * (1 - s)
+	h01 := s * s * (3 - 2*s)
+	h11 := s * s * (s - 1)
+	z = h00*z0 + h10*h*d0 + h01*z1 + h11*h*d1
+	// d/dx of the basis: h00' = 6s(s−1)/h, h10' = (1−4s+3s²), h01' = −h00',
+	// h11' = (3s² − 2s).
+	dz = 6*s*(s-1)/h*(z0-z1) + (1-4*s+3*s*s)*d0 + (3*s*s-2*s)*d1
+	return z, dz
+}
+
+// settingTable tabulates setting j of l's node on its own, from where its
+// law is tail to where it is 1 − tail or the calendar limit: the table,
+// and false when the law is below tail up to the calendar limit (no table
+// needed).
+func settingTable(l NodeLifetime, j int, tol, tail float64) (probitTable, bool) {
+	n := l.n
+	std := dist.MustNormal(0, 1)
+	zLo, zHi := std.Quantile(tail), std.UpperQuantile(tail)
+	guess := n.settingLife(j)
+	if !(guess > 0) || math.IsInf(guess, 0) {
+		guess = Year
+	}
+	cal := !math.IsInf(n.calendar, 1)
+	if cal {
+		guess = math.Min(guess, n.calendar)
+	}
+	if n.settings[j].sums != nil {
+		// No per-node spread: the exact k-fold law, which moves in steps of
+		// a period, tabulated by its values alone, refined no finer than
+		// two periods.
+		probit := func(t float64) float64 {
+			a, d, _ := n.settingAt(j, t)
+			return probitOf(a, d)
+		}
+		f := func(t float64) (float64, float64) { return probit(t), math.NaN() }
+		var hi, zh float64
+		if cal {
+			if zc := probit(n.calendar); zc <= zLo {
+				return probitTable{}, false
+			} else if zc <= zHi {
+				hi, zh = n.calendar, zc
+			}
+		}
+		lo, zl := probitEnd(f, guess, zLo, tabEndSlack, false)
+		if hi == 0 {
+			hi, zh = probitEnd(f, math.Max(guess, lo), zHi, tabEndSlack, true)
+		}
+		if !(lo < hi) {
+			lo = math.Max(0, hi*(1-1e-9))
+			zl = probit(lo)
+		}
+		return probitGrid(probit, lo, hi, zl, zh, n.kinks(lo, hi), 2/n.settings[j].rate, tol), true
+	}
+	var knots []gradKnot // the ends' searches keep their last knots
+	evals := 0
+	f := func(t float64) (float64, float64) {
+		k := n.gradKnotAt(j, t)
+		evals++
+		knots = append(knots, k)
+		return k.z, n.slope(k, true)
+	}
+	var hiK gradKnot
+	if cal {
+		k := n.gradKnotAt(j, n.calendar)
+		if k.z <= zLo {
+			return probitTable{}, false
+		} else if k.z <= zHi {
+			hiK = k
+		}
+	}
+	lo, _ := probitEnd(f, guess, zLo, tabEndSlack, false)
+	loK := knots[len(knots)-1]
+	for _, k := range knots {
+		if k.t == lo {
+			loK = k
+		}
+	}
+	if hiK.t == 0 {
+		knots = knots[:0]
+		hi, _ := probitEnd(f, math.Max(guess, lo), zHi, tabEndSlack, true)
+		hiK = knots[len(knots)-1]
+		for _, k := range knots {
+			if k.t == hi {
+				hiK = k
+			}
+		}
+	}
+	if !(loK.t < hiK.t) || (hiK.t-loK.t)/Month > maxKinks {
+		// Too narrow or too wide for knots between month boundaries.
+		probit := func(t float64) float64 {
+			a, d, _ := n.settingAt(j, t)
+			return probitOf(a, d)
+		}
+		lo, hi := loK.t, hiK.t
+		if !(lo < hi) {
+			lo = math.Max(0, hi*(1-1e-9))
+		}
+		return probitGrid(probit, lo, hi, probit(lo), probit(hi), n.kinks(lo, hi), 0, tol), true
+	}
+	pt := n.gradGrid(j, loK, hiK, tol)
+	pt.evals += evals + 1
+	return pt, true
+}
+
+// gradGrid tabulates setting j between the knots lo and hi: tabInitial
+// even knots, each interval halved until the interpolant (gradInterp) at
+// its midpoint is within tol of the model, then stored as cubics between
+// the knots and the month boundaries where the clocks' rates change.
+func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64) probitTable {
+	ks := []gradKnot{lo}
+	for i := 1; i < tabSetInitial-1; i++ {
+		ks = append(ks, n.gradKnotAt(j, lo.t+(hi.t-lo.t)*float64(i)/float64(tabSetInitial-1)))
+	}
+	ks = append(ks, hi)
+	evals := tabSetInitial - 2
+	finite := func(k *gradKnot) bool { return !math.IsInf(k.z, 0) && !math.IsNaN(k.z) }
+	worst := 0.0
+	done := make([]bool, len(ks)-1)
+	for pass := 0; pass < 40; pass++ {
+		nk := []gradKnot{ks[0]}
+		var nd []bool
+		refined := false
+		for i := 0; i+1 < len(ks); i++ {
+			a, b := &ks[i], &ks[i+1]
+			full := len(nk)+2*(len(ks)-i) > tabMaxPoints
+			if done[i] || full || b.t-a.t <= 1e-9*b.t || (!finite(a) && a.z == b.z) {
+				nk = append(nk, *b)
+				nd = append(nd, true)
+				continue
+			}
+			m := n.gradKnotAt(j, a.t+(b.t-a.t)/2)
+			evals++
+			e := math.Inf(1)
+			if finite(a) && finite(b) && finite(&m) {
+				zi, _ := n.gradInterp(a, b, m.t, true)
+				e = math.Abs(zi - m.z)
+			}
+			ok := e <= tol
+			if ok {
+				worst = math.Max(worst, e)
+			} else {
+				refined = true
+			}
+			nk = append(nk, m, *b)
+			nd = append(nd, ok, ok)
+		}
+		ks, done = nk, nd
+		if !refined {
+			break
+		}
+	}
+	// Store: points at the knots and the month boundaries between them.
+	kinks := n.kinks(lo.t, hi.t)
+	pt := probitTable{kinks: len(kinks), worst: worst, evals: evals}
+	pt.t, pt.z = []float64{ks[0].t}, []float64{ks[0].z}
+	for i := 0; i+1 < len(ks); i++ {
+		a, b := &ks[i], &ks[i+1]
+		ok := finite(a) && finite(b)
+		d0 := 0.0
+		if ok {
+			_, d0 = n.gradInterp(a, b, a.t, true)
+		}
+		for len(kinks) > 0 && kinks[0] <= a.t {
+			kinks = kinks[1:]
+		}
+		for {
+			x1, z1, d1 := b.t, b.z, 0.0
+			last := len(kinks) == 0 || kinks[0] >= b.t
+			if !last {
+				x1 = kinks[0]
+				kinks = kinks[1:]
+			}
+			if ok {
+				var zx float64
+				zx, d1 = n.gradInterp(a, b, x1, false)
+				if !last {
+					z1 = zx
+				}
+			}
+			pt.t, pt.z = append(pt.t, x1), append(pt.z, z1)
+			pt.d0, pt.d1 = append(pt.d0, d0), append(pt.d1, d1)
+			if last {
+				break
+			}
+			if ok {
+				_, d0 = n.gradInterp(a, b, x1, true)
+			}
+		}
+	}
+	return pt
+}
+
+// probitEnd returns a time t and its probit z(t) (z increasing in t) with
+// z(t) in [target − slack, target] (upper: [target, target + slack]).
+// f returns the probit and its slope (NaN if unknown: the secant through
+// the last two points is used). Newton steps from guess, kept inside the
+// bracket once there is one (bisection otherwise), growing steps before;
+// at most 100 evaluations, then the bracket's end on the asked side.
+func probitEnd(f func(float64) (float64, float64), guess, target, slack float64, upper bool) (float64, float64) {
+	aim := target - slack/2
+	if upper {
+		aim = target + slack/2
+	}
+	good := func(z float64) bool {
+		if upper {
+			return z >= target && z <= target+slack
+		}
+		return z <= target && z >= target-slack
+	}
+	var a, za, b, zb float64
+	haveA, haveB := false, false
+	t := guess
+	z, d := f(t)
+	pt, pz := math.NaN(), math.NaN()
+	step := 0.05
+	for range 100 {
+		if good(z) {
+			return t, z
+		}
+		if z < aim {
+			a, za, haveA = t, z, true
+		} else {
+			b, zb, haveB = t, z, true
+		}
+		if haveA && haveB && b-a <= 1e-12*b {
+			break
+		}
+		finite := !math.IsInf(z, 0) && !math.IsNaN(z)
+		if !(d > 0) && finite && !math.IsInf(pz, 0) && !math.IsNaN(pz) && pt != t {
+			d = (z - pz) / (t - pt)
+		}
+		nt := math.NaN()
+		if finite && d > 0 && !math.IsInf(d, 0) {
+			nt = t + (aim-z)/d
+		}
+		switch {
+		case haveA && haveB:
+			if !(nt > a && nt < b) {
+				nt = a + (b-a)/2
+				if !math.IsInf(za, 0) && !math.IsInf(zb, 0) && zb > za {
+					if s := a + (aim-za)*(b-a)/(zb-za); s > a+0.01*(b-a) && s < b-0.01*(b-a) {
+						nt = s
+					}
+				}
+			}
+		case haveA:
+			if !(nt > t) {
+				nt = t * (1 + step)
+				step *= 2
+			}
+			nt = math.Min(nt, 2*t)
+		default:
+			if !(nt < t) {
+				nt = t / (1 + step)
+				step *= 2
+			}
+			nt = math.Max(nt, t/2)
+		}
+		pt, pz = t, z
+		t = nt
+		z, d = f(t)
+	}
+	if upper && haveB {
+		return b, zb
+	}
+	if !upper && haveA {
+		return a, za
+	}
+	return t, z
+}

@@ -44,8 +44,8 @@ import (
 const (
 	sharedTol      = 1e-2 // target of the rule's estimated CDF error (the demo: 3 × 8 nodes, stated 4e-4 to 7e-3)
 	sharedFineZ    = 4.5  // the fine grid's range (standard deviations)
-	sharedFineStep = 0.125
-	sharedMaxEnvs  = 400 // cap on the product rule's nodes
+	sharedFineStep = 0.25 // the fine grid's widest step (sd): 37 points a factor (TestSiteRuleErrorAgainstFinerReference: within 0.8 of the estimate against a grid 4× finer)
+	sharedMaxEnvs  = 400  // cap on the product rule's nodes
 	sharedMinPiece = 0.02
 	sharedStretch  = 2.0 // the width of the Legendre pieces' variable (see newSharedFactor)
 	// sharedMaxHermite is the largest Gauss–Hermite rule used: beyond it
@@ -408,9 +408,12 @@ func interp(row []float64, y []float64, stride int) float64 {
 	return z
 }
 
-// mixZ returns the mixture over the shared factors of kind's conditional
-// CDF, each factor in the given mode, from the node probits Z (nodeZ).
-func (s *Site) mixZ(Z []float64, kind lawKind, g int, k int64, mode [2]int) float64 {
+// mixZ returns the mixtures over the shared factors of kind's conditional
+// CDF, one for each of modes (each factor in the given mode), from the node
+// probits Z (nodeZ). The modes must share their points and interpolation
+// rows factor by factor (modeFine with modeCoarse, or the same mode): the
+// conditional CDF is evaluated once a point and weighted for each.
+func (s *Site) mixZ(Z []float64, kind lawKind, g int, k int64, modes ...[2]int) []float64 {
 	fu, fv := &s.fac[0], &s.fac[1]
 	nv := len(fv.z)
 	E := len(s.envs)
@@ -426,8 +429,14 @@ func (s *Site) mixZ(Z []float64, kind lawKind, g int, k int64, mode [2]int) floa
 		}
 		return len(f.fz), f.fw, f.lag
 	}
-	pu, wu, ru := pick(fu, mode[0])
-	pv, wv, rv := pick(fv, mode[1])
+	M := len(modes)
+	wus, wvs := make([][]float64, M), make([][]float64, M)
+	var pu, pv int
+	var ru, rv [][]float64
+	for i, m := range modes {
+		pu, wus[i], ru = pick(fu, m[0])
+		pv, wvs[i], rv = pick(fv, m[1])
+	}
 	groups := []int{g}
 	if kind != kindNode && kind != kindFirst {
 		groups = groups[:0]
@@ -435,13 +444,21 @@ func (s *Site) mixZ(Z []float64, kind lawKind, g int, k int64, mode [2]int) floa
 			groups = append(groups, h)
 		}
 	}
+	usedU := func(a int) bool {
+		for i := range M {
+			if wus[i][a] != 0 {
+				return true
+			}
+		}
+		return false
+	}
 	// Along u: Y[h][a][j] for the u points a and the v nodes j
 	// (environment e = iu·nv + iv).
 	Y := make([]float64, G*pu*nv)
 	for _, h := range groups {
 		zh := Z[h*E : (h+1)*E]
 		for a := range pu {
-			if wu[a] == 0 {
+			if !usedU(a) {
 				continue
 			}
 			for j := range nv {
@@ -455,14 +472,23 @@ func (s *Site) mixZ(Z []float64, kind lawKind, g int, k int64, mode [2]int) floa
 	}
 	zs := make([]float64, G)
 	probs := make([]float64, G)
-	sum := 0.0
+	sums := make([]float64, M)
+	ws := make([]float64, M)
 	for a := range pu {
-		if wu[a] == 0 {
+		if !usedU(a) {
 			continue
 		}
 		for b := range pv {
-			w := wu[a] * wv[b]
-			if w < 1e-14 {
+			any := false
+			for i := range M {
+				ws[i] = 0
+				if wus[i][a] != 0 {
+					if w := wus[i][a] * wvs[i][b]; w >= 1e-14 {
+						ws[i], any = w, true
+					}
+				}
+			}
+			if !any {
 				continue
 			}
 			for _, h := range groups {
@@ -473,10 +499,18 @@ func (s *Site) mixZ(Z []float64, kind lawKind, g int, k int64, mode [2]int) floa
 					zs[h] = interp(rv[b], y, 1)
 				}
 			}
-			sum += w * s.condAt(kind, g, k, zs, probs)
+			c := s.condAt(kind, g, k, zs, probs)
+			for i, w := range ws {
+				if w != 0 {
+					sums[i] += w * c
+				}
+			}
 		}
 	}
-	return math.Min(1, math.Max(0, sum))
+	for i := range sums {
+		sums[i] = math.Min(1, math.Max(0, sums[i]))
+	}
+	return sums
 }
 
 // probitAt is the probit of a conditional node law's CDF at t (+Inf from
@@ -501,23 +535,35 @@ func (s *Site) ruleError(t float64, kind lawKind, g int, k int64) (parts [2]floa
 		want[g] = true
 	}
 	Z := s.nodeZ(t, want)
-	rule := s.mixZ(Z, kind, g, k, [2]int{modeNodes, modeNodes})
-	ref := s.mixZ(Z, kind, g, k, [2]int{modeFine, modeFine})
+	rule := s.mixZ(Z, kind, g, k, [2]int{modeNodes, modeNodes})[0]
+	// The reference and, from the same points, every other point of its
+	// grid in each factor with spread (the fine rule's own error).
+	modes := [][2]int{{modeFine, modeFine}}
+	for d := range 2 {
+		if len(s.fac[d].fz) > 1 {
+			m := [2]int{modeFine, modeFine}
+			m[d] = modeCoarse
+			modes = append(modes, m)
+		}
+	}
+	fine := s.mixZ(Z, kind, g, k, modes...)
+	ref := fine[0]
 	total = math.Abs(rule - ref)
+	next := 1
 	for d := range 2 {
 		if len(s.fac[d].fz) == 1 {
 			continue
 		}
 		m := [2]int{modeFine, modeFine}
 		m[d] = modeReduced
-		interp := math.Abs(s.mixZ(Z, kind, g, k, m) - ref)
-		m[d] = modeCoarse
-		fine := math.Abs(s.mixZ(Z, kind, g, k, m) - ref)
+		interp := math.Abs(s.mixZ(Z, kind, g, k, m)[0] - ref)
+		coarse := math.Abs(fine[next] - ref)
+		next++
 		m = [2]int{modeNodes, modeNodes}
 		m[d] = modeFine
-		own := math.Abs(s.mixZ(Z, kind, g, k, m) - rule)
+		own := math.Abs(s.mixZ(Z, kind, g, k, m)[0] - rule)
 		parts[d] = interp + own
-		total += interp + fine
+		total += interp + coarse
 	}
 	return parts, total + s.trunc
 }
@@ -536,7 +582,7 @@ func (s *Site) probeTimes(kind lawKind, g int, k int64) []float64 {
 		want[g] = true
 	}
 	cdf := func(t float64) float64 {
-		return s.mixZ(s.nodeZ(t, want), kind, g, k, [2]int{modeNodes, modeNodes})
+		return s.mixZ(s.nodeZ(t, want), kind, g, k, [2]int{modeNodes, modeNodes})[0]
 	}
 	var ts []float64
 	for _, p := range sharedProbeLevels {

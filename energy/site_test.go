@@ -119,25 +119,48 @@ func TestSiteMixtureMoments(t *testing.T) {
 	assert.InDelta(t, t0, node.Mean(), em+span)
 	assert.InDelta(t, wantVar, node.Variance(), ev+2*span*(hi-lo))
 
-	// The quadrature of the survival.
-	for _, tc := range []struct {
-		name string
-		law  dist.Law
-	}{{"node", node}, {"first failure", first}, {"group's first failure", group}, {"10 % failed", tenth}} {
-		lo, hi := tc.law.Quantile(1e-15), tc.law.UpperQuantile(1e-15)
-		s0 := quad.Fixed(tc.law.Survival, lo, hi, 4000, quad.Legendre{}, 0)
-		s1 := quad.Fixed(func(x float64) float64 { return 2 * x * tc.law.Survival(x) }, lo, hi, 4000, quad.Legendre{}, 0)
+	checkMomentsByQuadrature(t, map[string]dist.Law{"node": node, "first failure": first, "group's first failure": group, "10 % failed": tenth})
+
+	// A site whose node laws are tables with kinks (a seasonal climate, a
+	// voltage curve's cold temperatures) and both shared factors.
+	kinked, err := energy.NewSite(energy.TwoFactorSiteSpec(t))
+	require.NoError(t, err)
+	laws := map[string]dist.Law{}
+	for name, f := range map[string]func() (dist.Law, error){
+		"node":           func() (dist.Law, error) { return kinked.NodeLifetime(0) },
+		"first failure":  kinked.FirstFailure,
+		"group's first":  func() (dist.Law, error) { return kinked.GroupFirstFailure(1) },
+		"10 % failed by": func() (dist.Law, error) { return kinked.FractionFailed(0.1) },
+	} {
+		laws[name], err = f()
+		require.NoError(t, err)
+	}
+	checkMomentsByQuadrature(t, laws)
+}
+
+// checkMomentsByQuadrature checks each law's Mean and Variance against
+// gonum's fixed Legendre quadrature of its survival on 4000 points
+// between its 1e-15 quantiles (E[T] = lo + ∫ S, E[T²] = lo² + 2∫ t·S),
+// within the stated moment error plus the quadrature's (its difference
+// from 2000 points) and the rounding of its sums.
+func checkMomentsByQuadrature(t *testing.T, laws map[string]dist.Law) {
+	t.Helper()
+	for name, law := range laws {
+		lo, hi := law.Quantile(1e-15), law.UpperQuantile(1e-15)
+		s0 := quad.Fixed(law.Survival, lo, hi, 4000, quad.Legendre{}, 0)
+		s1 := quad.Fixed(func(x float64) float64 { return 2 * (x - lo) * law.Survival(x) }, lo, hi, 4000, quad.Legendre{}, 0)
 		// The same on 2000 points: their difference bounds the 4000's error.
-		d0 := math.Abs(s0 - quad.Fixed(tc.law.Survival, lo, hi, 2000, quad.Legendre{}, 0))
+		d0 := math.Abs(s0 - quad.Fixed(law.Survival, lo, hi, 2000, quad.Legendre{}, 0))
+		d1 := math.Abs(s1 - quad.Fixed(func(x float64) float64 { return 2 * (x - lo) * law.Survival(x) }, lo, hi, 2000, quad.Legendre{}, 0))
 		mean := lo + s0
-		vari := lo*lo + s1 - mean*mean
-		em, ev := tc.law.(momentErrored).MomentError()
-		t.Logf("%s: mean off the quadrature by %.2g s (stated %.2g, quadrature %.2g), variance by %.2g s² (stated %.2g, of %.4g)",
-			tc.name, tc.law.Mean()-mean, em, d0, tc.law.Variance()-vari, ev, vari)
+		vari := s1 - s0*s0
+		em, ev := law.(momentErrored).MomentError()
+		t.Logf("%s: mean off the quadrature by %.2g s (stated %.2g, quadrature %.2g), variance by %.2g s² (stated %.2g, quadrature %.2g, of %.4g)",
+			name, law.Mean()-mean, em, d0, law.Variance()-vari, ev, d1, vari)
 		// The tails beyond the 1e-15 quantiles and the rounding of the
-		// quadrature's sums (4000 terms of size hi) are below 1e-11·hi.
+		// quadrature's sums (4000 terms) are below 1e-11 of the range.
 		tol := em + d0 + 1e-11*hi
-		assert.InDelta(t, mean, tc.law.Mean(), tol, tc.name)
-		assert.InDelta(t, vari, tc.law.Variance(), ev+2*hi*tol+1e-11*hi*hi, tc.name)
+		assert.InDelta(t, mean, law.Mean(), tol, name)
+		assert.InDelta(t, vari, law.Variance(), ev+d1+2*(hi-lo)*tol+1e-11*hi*hi, name)
 	}
 }

@@ -1,0 +1,86 @@
+package energy
+
+import (
+	"fmt"
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/dist"
+)
+
+// The rule's stated error is estimated against a reference on a fine grid
+// (sharedFineStep, or finer where the laws are steep), with the fine
+// grid's own error taken from every other point. The check: against a
+// reference four times finer in both factors, the rule errs by no more
+// than its estimated total at every probe time of every law it states,
+// on the two-factor site of TestSiteMixtureMoments (3 × 8 nodes in 2
+// pieces, where the default step applies). A check of the estimate's
+// logic on a grid it did not use; the independent oracles are the closed
+// form (TestSiteSharedDominatedClosedForm) and internal/lifesim's sampler.
+func TestSiteRuleErrorAgainstFinerReference(t *testing.T) {
+	s, err := NewSite(TwoFactorSiteSpec(t))
+	require.NoError(t, err)
+	fine := s
+	for d := range 2 {
+		f := s.fac[d]
+		if len(f.z) == 1 {
+			continue
+		}
+		step := (f.fz[1] - f.fz[0]) / 4
+		f.setFine(step)
+		fine.fac[d] = f
+	}
+	worst, ratio := 0.0, 0.0
+	check := func(kind lawKind, g int, name string) {
+		for _, tm := range s.probeTimes(kind, g, 0) {
+			_, total := s.ruleError(tm, kind, g, 0)
+			var want []bool
+			if kind != kindFleet {
+				want = make([]bool, len(s.names))
+				want[g] = true
+			}
+			Z := s.nodeZ(tm, want)
+			rule := s.mixZ(Z, kind, g, 0, [2]int{modeNodes, modeNodes})[0]
+			ref := fine.mixZ(Z, kind, g, 0, [2]int{modeFine, modeFine})[0]
+			d := math.Abs(rule - ref)
+			worst = max(worst, d)
+			if total > 0 {
+				ratio = max(ratio, d/total)
+			}
+			assert.LessOrEqual(t, d, total, "%s at t = %g s", name, tm)
+		}
+	}
+	for g := range s.names {
+		check(kindNode, g, "node "+s.names[g])
+		check(kindFirst, g, "first failure "+s.names[g])
+	}
+	check(kindFleet, 0, "fleet's first failure")
+	t.Logf("largest error against the finer reference %.2g, at most %.2f of the estimate", worst, ratio)
+}
+
+// TwoFactorSiteSpec is an invented two-group site (50 and 500 nodes)
+// with a seasonal climate, a thermal model and a voltage curve (kinks in
+// the tables), and both shared factors (batch sd 0.03, temperature sd
+// 1.5 °C). Exported for the external tests of this package only.
+func TwoFactorSiteSpec(t testing.TB) SiteSpec {
+	t.Helper()
+	b := MustBattery(TypicalER14505())
+	th := TypicalThermal()
+	clim, err := NewSeasonalClimate(10, 8, 6, 8)
+	require.NoError(t, err)
+	var gs []SiteGroup
+	for g := range 2 {
+		var sets []NodeSetting
+		for j := range 3 {
+			tx := MustFixedState("tx", 40*MilliAmp, 3.6, 0.05*float64(j+1))
+			c := MustCycle(MustSequence(tx), dist.MustPointMass(900*float64(g+1)), 5e-6*3.6)
+			sets = append(sets, NodeSetting{Weight: 1.0 / 3, Cycle: c})
+		}
+		gs = append(gs, SiteGroup{Name: fmt.Sprint("g", g), Count: int64(50 + 450*g), Node: NodeSpec{Settings: sets, Battery: b, Thermal: &th,
+			Spread: NodeSpread{Capacity: 0.05, Floor: 0.4, Active: 0.03}, CalendarLife: 40 * Year, StorageTime: Year}})
+	}
+	return SiteSpec{Climate: &clim, Shared: SharedSpread{Batch: 0.03, Temperature: 1.5}, Groups: gs}
+}

@@ -27,6 +27,11 @@ type sharedMixture struct {
 	// laws: the rule's and the conditional laws'), computed on first use.
 	stated func() float64
 	method string
+	// corners, when set, lists the components whose answers usually
+	// bracket the mixture's (a Site's: the rule's corner nodes, where the
+	// conditional laws are the earliest and the latest): the quantiles try
+	// their bracket first and check it on the mixture.
+	corners []int
 }
 
 type mixLazy struct {
@@ -107,9 +112,46 @@ func (m sharedMixture) span(q func(dist.Law) float64) (lo, hi float64) {
 	return lo, hi
 }
 
+// cornerSolve returns the mixture's answer where the corners' answers
+// q(l) bracket it (the mixture's probit below target just below the
+// lowest and at least target at the highest, so that the answer lies in
+// between), and false otherwise: a few component quantiles instead of all
+// of them.
+func (m sharedMixture) cornerSolve(q func(dist.Law) float64, target float64) (float64, bool) {
+	if len(m.corners) < 2 {
+		return 0, false
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, c := range m.corners {
+		x := q(m.laws[c])
+		lo, hi = math.Min(lo, x), math.Max(hi, x)
+	}
+	if !finite(lo) || !finite(hi) {
+		return 0, false
+	}
+	// One unit below the lowest, so that an answer at it (an atom there,
+	// such as a calendar limit that every corner reaches) is inside.
+	lo = math.Nextafter(lo, math.Inf(-1))
+	zlo, zhi := m.probit(lo), m.probit(hi)
+	if !(zlo < target && zhi >= target) {
+		return 0, false
+	}
+	g := func(t float64) float64 { return m.probit(t) - target }
+	return root.Illinois(g, lo, hi, zlo-target, zhi-target, 1e-12*math.Abs(hi)), true
+}
+
+// Quantile returns inf{t : CDF(t) >= p} (s) to 1e-12 relative: between
+// the corners' quantiles where they bracket it, otherwise between the
+// smallest and the largest of the components'.
 func (m sharedMixture) Quantile(p float64) float64 {
 	if !(p >= 0 && p <= 1) {
 		return math.NaN()
+	}
+	target := dist.MustNormal(0, 1).Quantile(p)
+	if p > 0 && p < 1 {
+		if t, ok := m.cornerSolve(func(l dist.Law) float64 { return l.Quantile(p) }, target); ok {
+			return t
+		}
 	}
 	lo, hi := m.span(func(l dist.Law) float64 { return l.Quantile(p) })
 	switch {
@@ -118,12 +160,20 @@ func (m sharedMixture) Quantile(p float64) float64 {
 	case p == 0 || lo == hi || math.IsInf(hi, 0):
 		return lo
 	}
-	return m.solve(lo, hi, dist.MustNormal(0, 1).Quantile(p))
+	return m.solve(lo, hi, target)
 }
 
+// UpperQuantile returns inf{t : Survival(t) <= q} (s) from the survival,
+// as Quantile.
 func (m sharedMixture) UpperQuantile(q float64) float64 {
 	if !(q >= 0 && q <= 1) {
 		return math.NaN()
+	}
+	target := dist.MustNormal(0, 1).UpperQuantile(q)
+	if q > 0 && q < 1 {
+		if t, ok := m.cornerSolve(func(l dist.Law) float64 { return l.UpperQuantile(q) }, target); ok {
+			return t
+		}
 	}
 	lo, hi := m.span(func(l dist.Law) float64 { return l.UpperQuantile(q) })
 	switch {
@@ -132,7 +182,7 @@ func (m sharedMixture) UpperQuantile(q float64) float64 {
 	case q == 1 || lo == hi || math.IsInf(hi, 0):
 		return lo
 	}
-	return m.solve(lo, hi, dist.MustNormal(0, 1).UpperQuantile(q))
+	return m.solve(lo, hi, target)
 }
 
 // mixMomentTol is the relative target of the moment quadratures: of an

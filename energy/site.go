@@ -3,6 +3,7 @@ package energy
 import (
 	"fmt"
 	"math"
+	"slices"
 
 	"gonum.org/v1/gonum/integrate/quad"
 
@@ -302,9 +303,28 @@ func (s Site) mixStated(fn string, stated func() float64, each func(e *siteEnv) 
 		return nil, err
 	}
 	if m, ok := l.(sharedMixture); ok {
-		return newStatedMixture(m.name, m.w, m.laws, s.siteMethod(), stated), nil
+		sm := newStatedMixture(m.name, m.w, m.laws, s.siteMethod(), stated)
+		sm.corners = s.corners()
+		return sm, nil
 	}
 	return l, nil
+}
+
+// corners returns the environments at the corners of the rule's product
+// (each factor's first and last node), without repeats: where the
+// conditional laws are the earliest and the latest when they move
+// monotonically with each factor.
+func (s Site) corners() []int {
+	nu, nv := len(s.fac[0].z), len(s.fac[1].z)
+	var cs []int
+	for _, iu := range []int{0, nu - 1} {
+		for _, iv := range []int{0, nv - 1} {
+			if e := iu*nv + iv; !slices.Contains(cs, e) {
+				cs = append(cs, e)
+			}
+		}
+	}
+	return cs
 }
 
 func (s Site) mix(fn string, each func(e *siteEnv) (dist.Law, error)) (dist.Law, error) {

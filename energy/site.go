@@ -81,6 +81,10 @@ type Site struct {
 	// the fleet's first failure.
 	nodeAcc, firstAcc []float64
 	fleetAcc          float64
+	// slope[g] bounds the slope of a first failure among group g's nodes
+	// against their probit (minSlope), slope1 a node law's.
+	slope  []float64
+	slope1 float64
 }
 
 type siteEnv struct {
@@ -124,7 +128,9 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 		}
 		s.names = append(s.names, name)
 		s.counts = append(s.counts, g.Count)
+		s.slope = append(s.slope, minSlope(g.Count))
 	}
+	s.slope1 = minSlope(1)
 	sds := [2]float64{spec.Shared.Batch, spec.Shared.Temperature}
 	var kinks [2][]float64
 	if sds[1] > 0 {
@@ -201,7 +207,7 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 		// The rule's estimated error for the node laws and the first
 		// failures; refine the factor whose part is the larger.
 		s.fitFine()
-		parts, worst := s.probeRule()
+		parts, worst := s.probeRule(tol)
 		if worst <= tol {
 			break
 		}

@@ -529,17 +529,39 @@ func (s *Site) probitAt(tb tabulated, t float64) float64 {
 	return tb.zAt(t)
 }
 
-// ruleError returns the estimated error of the rule for kind at t, split
-// by factor (the part that refining the factor would lower), and the
-// total with the reference's own error and the truncation.
-func (s *Site) ruleError(t float64, kind lawKind, g int, k int64) (parts [2]float64, total float64) {
+// probeError is the rule's estimated error for a law at one probe time:
+// every term but the interpolation's at once, the interpolation's (two
+// more passes over the fine grid) bounded until it is computed.
+type probeError struct {
+	t, table float64
+	Z        []float64  // the node probits at t (nodeZ)
+	rule     float64    // the rule's mixture
+	ref      float64    // the reference's
+	base     float64    // |rule − reference| + the fine rule's own error + the truncation
+	own      [2]float64 // per factor: the rule's difference from the fine rule in that factor alone
+	interp   [2]float64 // per factor: the interpolation's error, or its bound while !exact
+	exact    bool
+}
+
+// parts returns the error parts by factor (what refining it would lower).
+func (p probeError) parts() [2]float64 {
+	return [2]float64{p.interp[0] + p.own[0], p.interp[1] + p.own[1]}
+}
+
+// total returns the rule's estimated error.
+func (p probeError) total() float64 { return p.base + p.interp[0] + p.interp[1] }
+
+// probeStart returns the rule's estimated error for kind at t with the
+// interpolation terms bounded (interpBound), or computed where no bound
+// applies (counts).
+func (s *Site) probeStart(t float64, kind lawKind, g int, k int64) probeError {
 	var want []bool
 	if kind == kindNode || kind == kindFirst {
 		want = make([]bool, len(s.names))
 		want[g] = true
 	}
-	Z := s.nodeZ(t, want)
-	rule := s.mixZ(Z, kind, g, k, [2]int{modeNodes, modeNodes})[0]
+	p := probeError{t: t, Z: s.nodeZ(t, want)}
+	p.rule = s.mixZ(p.Z, kind, g, k, [2]int{modeNodes, modeNodes})[0]
 	// The reference and, from the same points, every other point of its
 	// grid in each factor with spread (the fine rule's own error).
 	modes := [][2]int{{modeFine, modeFine}}
@@ -550,26 +572,142 @@ func (s *Site) ruleError(t float64, kind lawKind, g int, k int64) (parts [2]floa
 			modes = append(modes, m)
 		}
 	}
-	fine := s.mixZ(Z, kind, g, k, modes...)
-	ref := fine[0]
-	total = math.Abs(rule - ref)
+	fine := s.mixZ(p.Z, kind, g, k, modes...)
+	p.ref = fine[0]
+	p.base = math.Abs(p.rule - p.ref)
 	next := 1
+	for d := range 2 {
+		if len(s.fac[d].fz) == 1 {
+			continue
+		}
+		p.base += math.Abs(fine[next] - p.ref)
+		next++
+		m := [2]int{modeNodes, modeNodes}
+		m[d] = modeFine
+		p.own[d] = math.Abs(s.mixZ(p.Z, kind, g, k, m)[0] - p.rule)
+		p.interp[d] = s.interpBound(p.Z, kind, g, d)
+	}
+	p.base += s.trunc
+	if kind != kindNode && kind != kindFirst && kind != kindFleet {
+		s.probeFinish(&p, kind, g, k)
+	}
+	return p
+}
+
+// probeFinish computes p's interpolation terms: the reference's
+// difference from the reference interpolated without one node a piece in
+// each factor with spread.
+func (s *Site) probeFinish(p *probeError, kind lawKind, g int, k int64) {
+	if p.exact {
+		return
+	}
 	for d := range 2 {
 		if len(s.fac[d].fz) == 1 {
 			continue
 		}
 		m := [2]int{modeFine, modeFine}
 		m[d] = modeReduced
-		interp := math.Abs(s.mixZ(Z, kind, g, k, m)[0] - ref)
-		coarse := math.Abs(fine[next] - ref)
-		next++
-		m = [2]int{modeNodes, modeNodes}
-		m[d] = modeFine
-		own := math.Abs(s.mixZ(Z, kind, g, k, m)[0] - rule)
-		parts[d] = interp + own
-		total += interp + coarse
+		p.interp[d] = math.Abs(s.mixZ(p.Z, kind, g, k, m)[0] - p.ref)
 	}
-	return parts, total + s.trunc
+	p.exact = true
+}
+
+// ruleError returns the estimated error of the rule for kind at t, split
+// by factor (the part that refining the factor would lower), and the
+// total with the reference's own error and the truncation.
+func (s *Site) ruleError(t float64, kind lawKind, g int, k int64) (parts [2]float64, total float64) {
+	p := s.probeStart(t, kind, g, k)
+	s.probeFinish(&p, kind, g, k)
+	return p.parts(), p.total()
+}
+
+// interpBound bounds the interpolation term of factor d for kind (node,
+// first failure or fleet's first failure) from the node probits Z: the
+// mixtures with and without one node a piece differ by at most
+// Σ w·Σ_h L_h·|Δz_h| over the fine grid, Δz_h the two interpolants'
+// difference in group h's probit and L_h the largest slope of the
+// conditional CDF against it (minSlope: the mean value theorem; the
+// fleet's first failure moves by at most a group's first failure's slope
+// in that group's probit). Only interpolations, no special functions.
+func (s *Site) interpBound(Z []float64, kind lawKind, g int, d int) float64 {
+	fu, fv := &s.fac[0], &s.fac[1]
+	nv := len(fv.z)
+	E := len(s.envs)
+	wu, wv := fu.fw, fv.fw
+	// rows[r][f]: factor f's interpolation rows for the reference (r = 0)
+	// and without one node a piece in factor d (r = 1).
+	rows := [2][2][][]float64{{fu.lag, fv.lag}, {fu.lag, fv.lag}}
+	rows[1][d] = s.fac[d].lagr
+	groups := []int{g}
+	if kind == kindFleet {
+		groups = make([]int, len(s.names))
+		for h := range groups {
+			groups[h] = h
+		}
+	}
+	pu, pv := len(fu.fz), len(fv.fz)
+	var Y [2][]float64
+	for r := range 2 {
+		Y[r] = make([]float64, pu*nv)
+	}
+	bound := make([]float64, pu*pv) // Σ_h L_h·|Δz_h| at each point
+	for _, h := range groups {
+		L := s.slope[h]
+		if kind == kindNode {
+			L = s.slope1
+		}
+		zh := Z[h*E : (h+1)*E]
+		for r := range 2 {
+			for a := range pu {
+				for j := range nv {
+					Y[r][a*nv+j] = interp(rows[r][0][a], zh[j:], nv)
+				}
+			}
+		}
+		for a := range pu {
+			for b := range pv {
+				z0 := interp(rows[0][1][b], Y[0][a*nv:(a+1)*nv], 1)
+				z1 := interp(rows[1][1][b], Y[1][a*nv:(a+1)*nv], 1)
+				if z0 != z1 {
+					bound[a*pv+b] += L * math.Abs(z1-z0)
+				}
+			}
+		}
+	}
+	sum := 0.0
+	for a := range pu {
+		for b := range pv {
+			if w := wu[a] * wv[b]; w >= 1e-14 {
+				sum += w * bound[a*pv+b]
+			}
+		}
+	}
+	return sum * (1 + 1e-12)
+}
+
+// minSlope returns an upper bound on the largest slope of the CDF of the
+// first failure among n nodes against their common probit z,
+// max_z n·Φ(−z)^(n−1)·φ(z) (1/√(2π) for n = 1): over cells of 0.01 on
+// [−12, 9], Φ(−z) is at most its value at the cell's left end and φ at
+// most its largest on the cell; beyond, n·φ at the ends bounds it. About
+// 3 % above the true maximum for n = 1000 to 10^6 (TestMinSlope).
+func minSlope(n int64) float64 {
+	const lo, hi, h = -12.0, 9.0, 0.01
+	nf := float64(n)
+	best := nf * math.Max(normPDF(lo), normPDF(hi))
+	for i := range int((hi - lo) / h) {
+		a := lo + h*float64(i)
+		b := a + h
+		phi := normPDF(0)
+		switch {
+		case b <= 0:
+			phi = normPDF(b)
+		case a >= 0:
+			phi = normPDF(a)
+		}
+		best = math.Max(best, nf*math.Pow(normSurv(a), nf-1)*phi)
+	}
+	return best * (1 + 1e-12)
 }
 
 // sharedProbeLevels are the CDF levels of a law at which its stated error
@@ -711,36 +849,106 @@ func powSurv(x float64, k int64) float64 {
 	return math.Pow(x, float64(k))
 }
 
-// lawError returns the rule's estimated error parts (the largest at the
-// probe times) and the stated CDF error of kind's law: the largest at the
-// probe times of the table error and the rule's total.
-func (s *Site) lawError(kind lawKind, g int, k int64) (parts [2]float64, rule, stated float64) {
-	for _, t := range s.probeTimes(kind, g, k) {
-		p, tot := s.ruleError(t, kind, g, k)
-		parts[0], parts[1] = math.Max(parts[0], p[0]), math.Max(parts[1], p[1])
-		rule = math.Max(rule, tot)
-		stated = math.Max(stated, tot+s.tableError(t, kind, g))
+// lawProbes returns the probes of kind's law (probeTimes) with their
+// table errors, the interpolation terms computed where their bounds could
+// raise the stated error or the rule's total, the largest bounded first:
+// a probe whose bounded values do not exceed the maxima of the computed
+// ones cannot change them, so these maxima are those of computing every
+// probe. The error parts stay bounded where they are not computed.
+func (s *Site) lawProbes(kind lawKind, g int, k int64) []probeError {
+	ts := s.probeTimes(kind, g, k)
+	ps := make([]probeError, len(ts))
+	for i, t := range ts {
+		ps[i] = s.probeStart(t, kind, g, k)
+		ps[i].table = s.tableError(t, kind, g)
+	}
+	order := make([]int, len(ps))
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, b int) bool {
+		return ps[order[a]].total()+ps[order[a]].table > ps[order[b]].total()+ps[order[b]].table
+	})
+	rule, stated := 0.0, 0.0
+	for _, i := range order {
+		p := &ps[i]
+		if !p.exact && (p.total()+p.table > stated || p.total() > rule) {
+			s.probeFinish(p, kind, g, k)
+		}
+		if p.exact {
+			rule = math.Max(rule, p.total())
+			stated = math.Max(stated, p.total()+p.table)
+		}
+	}
+	return ps
+}
+
+// probeMaxima returns the largest error parts (bounds where a probe's
+// interpolation terms are not computed), the largest rule's total and the
+// stated CDF error (the largest table error plus rule's total, at most 1)
+// over the probes.
+func probeMaxima(ps []probeError) (parts [2]float64, rule, stated float64) {
+	for _, p := range ps {
+		pp := p.parts()
+		parts[0], parts[1] = math.Max(parts[0], pp[0]), math.Max(parts[1], pp[1])
+		rule = math.Max(rule, p.total())
+		stated = math.Max(stated, p.total()+p.table)
 	}
 	return parts, rule, math.Min(1, stated)
 }
 
+// lawError returns the rule's estimated error parts (the largest at the
+// probe times) and the stated CDF error of kind's law: the largest at the
+// probe times of the table error and the rule's total.
+func (s *Site) lawError(kind lawKind, g int, k int64) (parts [2]float64, rule, stated float64) {
+	ps := s.lawProbes(kind, g, k)
+	for i := range ps {
+		s.probeFinish(&ps[i], kind, g, k)
+	}
+	return probeMaxima(ps)
+}
+
 // probeRule computes the stated errors of the groups' node laws and first
 // failures and of the fleet's first failure, and returns the largest of
-// the rule's estimated error parts and of its total.
-func (s *Site) probeRule() (parts [2]float64, worst float64) {
+// the rule's estimated totals (worst) and, where it exceeds tol (the rule
+// is then refined in the factor whose part is the larger), of its error
+// parts; otherwise the parts are bounds.
+func (s *Site) probeRule(tol float64) (parts [2]float64, worst float64) {
 	G := len(s.names)
 	s.nodeAcc = make([]float64, G)
 	s.firstAcc = make([]float64, G)
-	add := func(kind lawKind, g int) float64 {
-		p, rule, st := s.lawError(kind, g, 0)
-		parts[0], parts[1] = math.Max(parts[0], p[0]), math.Max(parts[1], p[1])
-		worst = math.Max(worst, rule)
-		return st
+	type law struct {
+		kind lawKind
+		g    int
+		ps   []probeError
 	}
+	var laws []law
 	for g := range G {
-		s.nodeAcc[g] = add(kindNode, g)
-		s.firstAcc[g] = add(kindFirst, g)
+		laws = append(laws, law{kind: kindNode, g: g}, law{kind: kindFirst, g: g})
 	}
-	s.fleetAcc = add(kindFleet, 0)
+	laws = append(laws, law{kind: kindFleet})
+	for i := range laws {
+		l := &laws[i]
+		l.ps = s.lawProbes(l.kind, l.g, 0)
+		_, rule, st := probeMaxima(l.ps)
+		worst = math.Max(worst, rule)
+		switch l.kind {
+		case kindNode:
+			s.nodeAcc[l.g] = st
+		case kindFirst:
+			s.firstAcc[l.g] = st
+		default:
+			s.fleetAcc = st
+		}
+	}
+	for _, l := range laws {
+		if worst > tol {
+			for i := range l.ps {
+				s.probeFinish(&l.ps[i], l.kind, l.g, 0)
+			}
+		}
+		p, _, _ := probeMaxima(l.ps)
+		parts[0], parts[1] = math.Max(parts[0], p[0]), math.Max(parts[1], p[1])
+	}
 	return parts, worst
 }

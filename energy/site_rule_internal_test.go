@@ -7,6 +7,7 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"github.com/joulelaw/joulelaw/dist"
 )
@@ -59,6 +60,65 @@ func TestSiteRuleErrorAgainstFinerReference(t *testing.T) {
 	}
 	check(kindFleet, 0, "fleet's first failure")
 	t.Logf("largest error against the finer reference %.2g, at most %.2f of the estimate", worst, ratio)
+}
+
+// lawProbes computes the interpolation terms only at the probes whose
+// bounds could raise the stated error or the rule's total: those must be
+// the same bits as computing every probe (lawError), the parts bounds of
+// the computed ones, and each probe's bound must hold.
+func TestSiteLawErrorPruned(t *testing.T) {
+	s, err := NewSite(TwoFactorSiteSpec(t))
+	require.NoError(t, err)
+	for _, c := range []struct {
+		kind lawKind
+		g    int
+	}{{kindNode, 0}, {kindNode, 1}, {kindFirst, 0}, {kindFirst, 1}, {kindFleet, 0}} {
+		var parts [2]float64
+		var rule, stated float64
+		for _, tm := range s.probeTimes(c.kind, c.g, 0) {
+			p := s.probeStart(tm, c.kind, c.g, 0)
+			bound := p.interp
+			s.probeFinish(&p, c.kind, c.g, 0)
+			for d := range 2 {
+				assert.LessOrEqual(t, p.interp[d], bound[d], "kind %d group %d factor %d at %g s", c.kind, c.g, d, tm)
+			}
+			pp := p.parts()
+			parts[0], parts[1] = math.Max(parts[0], pp[0]), math.Max(parts[1], pp[1])
+			rule = math.Max(rule, p.total())
+			stated = math.Max(stated, p.total()+s.tableError(tm, c.kind, c.g))
+		}
+		gp, gr, gs := s.lawError(c.kind, c.g, 0)
+		assert.Equal(t, parts, gp, "kind %d group %d: parts", c.kind, c.g)
+		assert.Equal(t, rule, gr, "kind %d group %d: rule", c.kind, c.g)
+		assert.Equal(t, math.Min(1, stated), gs, "kind %d group %d: stated", c.kind, c.g)
+		// Pruned: the same rule's total and stated error, parts bounded.
+		bp, br, bs := probeMaxima(s.lawProbes(c.kind, c.g, 0))
+		assert.Equal(t, rule, br, "kind %d group %d: pruned rule", c.kind, c.g)
+		assert.Equal(t, math.Min(1, stated), bs, "kind %d group %d: pruned stated", c.kind, c.g)
+		assert.GreaterOrEqual(t, bp[0], parts[0])
+		assert.GreaterOrEqual(t, bp[1], parts[1])
+	}
+}
+
+// minSlope bounds the largest slope of a first failure's CDF against the
+// nodes' probit: 1/√(2π) for one node (closed form), and for n nodes the
+// largest of n·Φ(−z)^(n−1)·φ(z) on a grid of 1e-4 by gonum's
+// distuv.UnitNormal, which it must bound from above by at most 5 %.
+func TestMinSlope(t *testing.T) {
+	for _, n := range []int64{1, 2, 50, 1000, 1e6} {
+		scan := 0.0
+		for i := range 200000 {
+			z := -12 + 1e-4*float64(i)
+			v := float64(n) * math.Pow(distuv.UnitNormal.Survival(z), float64(n-1)) * distuv.UnitNormal.Prob(z)
+			scan = math.Max(scan, v)
+		}
+		if n == 1 {
+			assert.InDelta(t, 1/math.Sqrt(2*math.Pi), scan, 1e-12, "closed form")
+		}
+		got := minSlope(n)
+		assert.GreaterOrEqual(t, got, scan, "n = %d", n)
+		assert.LessOrEqual(t, got, 1.05*scan, "n = %d", n)
+	}
 }
 
 // TwoFactorSiteSpec is an invented two-group site (50 and 500 nodes)

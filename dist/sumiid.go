@@ -481,23 +481,8 @@ func (p IIDSums) eval(k int, x float64) (f, s float64, err error) {
 		}
 		return checkTails("IIDSums.Evaluate", k, x, law.CDF(x), law.Survival(x))
 	}
-	cmu, ck := complex(p.mu, 0), complex(fk, 0)
-	t := p.tr
-	n := &numLaw{
-		tr: transform{logm: func(s complex128) complex128 { return ck * (t.logm(s) - s*cmu) }, lo: t.lo, hi: t.hi},
-		c:  fk * p.mu, variance: fk * p.v, w: 1, supLo: fk * p.lo, supHi: fk * p.hi,
-	}
-	sd := math.Sqrt(n.variance)
-	n.b = chernoffEnd(n.tr.logm, n.tr.hi, sd, bulkTail)
-	n.a = -chernoffEnd(func(s complex128) complex128 { return n.tr.logm(-s) }, -n.tr.lo, sd, bulkTail)
-	n.a, n.b = math.Max(n.a, n.supLo-n.c), math.Min(n.b, n.supHi-n.c)
-	y := x - n.c
-	if y <= 0 {
-		f = n.tilted(y, true)
-		return checkTails("IIDSums.Evaluate", k, x, f, math.Max(0, 1-f))
-	}
-	s = n.tilted(y, false)
-	return checkTails("IIDSums.Evaluate", k, x, math.Max(0, 1-s), s)
+	f, s, _ = p.tiltedOne(k, x)
+	return checkTails("IIDSums.Evaluate", k, x, f, s)
 }
 
 // checkTails passes on two tail values that are probabilities and reports

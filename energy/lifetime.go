@@ -57,10 +57,11 @@ type Lifetime struct {
 // value depends on k alone, so the cache changes no answer.
 type kfold struct {
 	sums            dist.IIDSums
-	emean, elo, ehi float64 // mean and support of the cycle law (J)
-	evar            float64 // variance of the cycle law (J²)
-	discrete        bool    // the cycle law is finite discrete with two or more atoms
-	closed          bool    // the values come from a closed form: no cache
+	point           dist.PointTails // the sums at C, sharing transform values between neighbouring k
+	emean, elo, ehi float64         // mean and support of the cycle law (J)
+	evar            float64         // variance of the cycle law (J²)
+	discrete        bool            // the cycle law is finite discrete with two or more atoms
+	closed          bool            // the values come from a closed form: no cache
 	capacity        float64
 
 	mu      sync.Mutex
@@ -103,7 +104,7 @@ func (f *kfold) at(k int64) [2]float64 {
 	if ok {
 		return v
 	}
-	b, a := f.sums.Tails(int(k), f.capacity)
+	b, a := f.point.Tails(int(k))
 	v = [2]float64{b, a}
 	f.mu.Lock()
 	if len(f.cache) > 1<<16 {
@@ -192,7 +193,11 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	if err != nil {
 		return Lifetime{}, causeErr(fn, "c", c.String(), "K-fold sums of the cycle energy", err)
 	}
-	l.ev = &kfold{sums: sums, capacity: l.capacity, cache: map[int64][2]float64{}, emean: l.mu, evar: l.s2, elo: lo, ehi: hi}
+	point, err := sums.AtPoint(l.capacity)
+	if err != nil {
+		return Lifetime{}, causeErr(fn, "b", b.String(), "K-fold sums at the usable energy", err)
+	}
+	l.ev = &kfold{sums: sums, point: point, capacity: l.capacity, cache: map[int64][2]float64{}, emean: l.mu, evar: l.s2, elo: lo, ehi: hi}
 	if d, ok := l.energy.(dist.Discrete); ok && d.Len() > 1 {
 		l.ev.discrete = true
 	}

@@ -12,9 +12,11 @@ import (
 // numbers of cycles k. For a term that IIDSums inverts by a tilted Fourier
 // series (a term with a transform, no atoms and no closed form) the values
 // share their transform values: the k's are cut into blocks of B
-// consecutive k (B a power of two near the renewal standard deviation
-// √(x·σ²/μ³) of the k where S_k crosses x), and one panel per block and
-// side (the upper tail for x above k·μ, the lower one below) holds
+// consecutive k (B the power of two above the renewal standard deviation
+// sd = √(x·σ²/μ³) of the k where S_k crosses x, at most twice it; the
+// blocks start at the first k with k·μ >= x, so each lies on one side of
+// it), and one panel per block, on its side (the upper tail where x is
+// above k·μ, the lower one below), holds
 //
 //	c_j = log E[exp(s_j·(X − μ))],   s_j = θ + i·j·h,   j = 0, 1, …, N−1
 //
@@ -40,9 +42,9 @@ import (
 // Each value's relative error is estimated as the single inversion
 // estimates it, 1e-14 plus 4e-16 times the sum of the terms' magnitudes
 // over the sum's magnitude (the rounding of the sum, which grows where the
-// block's tilt is off the k's own saddlepoint: by exp(½·(B/2)²/sd²) at
-// most, sd the renewal standard deviation, about e^{1/8} within the
-// block), plus the rounding of the exponents: k times 2ε·(|log M(s_j)| +
+// block's tilt is off the k's own saddlepoint: by about exp(½·(B/2)²/sd²)
+// at most, e^{1/2} within the block), plus the
+// rounding of the exponents: k times 2ε·(|log M(s_j)| +
 // |s_j·μ|) for each term, weighted by the term's magnitude (about k·ε·θ·μ
 // relative: 7e-13 at k = 1.5·10^5 four standard deviations out). The sum
 // stops once four successive terms are below 1e-13 of it, as the single
@@ -76,8 +78,10 @@ const MaxPointPanels = 1 << 12
 type pointState struct {
 	p      IIDSums
 	x      float64
-	shared bool  // the panel path applies
-	block  int64 // k's per panel, a power of two
+	lm0    float64 // log M(0): the term's mass defect (rounding of its masses), removed
+	shared bool    // the panel path applies
+	block  int64   // k's per panel, a power of two
+	cross  int64   // the first k with x <= k·μ: blocks start here, every B
 
 	mu     sync.Mutex
 	panels map[int64]*tiltPanel
@@ -108,14 +112,22 @@ func (p IIDSums) AtPoint(x float64) (PointTails, error) {
 	if !finite(x) {
 		return PointTails{}, paramErr("IIDSums.AtPoint", "x", x, "must be finite")
 	}
-	st := &pointState{p: p, x: x, panels: map[int64]*tiltPanel{}}
+	st := &pointState{p: p, x: x, lm0: p.massDefect(), panels: map[int64]*tiltPanel{}}
 	if p.ok && p.tr.err == 0 && p.mu > 0 && x > 0 {
 		sdM := math.Sqrt(x * p.v / (p.mu * p.mu * p.mu))
 		b := int64(1)
-		for b < 1<<20 && float64(2*b) <= sdM {
+		for b < 1<<20 && float64(b) <= sdM {
 			b *= 2
 		}
 		st.shared, st.block = true, b
+		c := int64(math.Ceil(x / p.mu))
+		for c > 1 && x-float64(c-1)*p.mu <= 0 {
+			c--
+		}
+		for x-float64(c)*p.mu > 0 {
+			c++
+		}
+		st.cross = c
 	}
 	return PointTails{st: st}, nil
 }
@@ -175,19 +187,53 @@ func (q PointTails) eval(k int) (f, s, rel float64, err error) {
 		}
 	}
 	f, s, rel = p.tiltedOne(k, x)
+	rel += p.exponentRounding(k, x)
 	f, s, err = checkTails("PointTails.Evaluate", k, x, f, s)
 	return f, s, rel, err
 }
 
+// exponentRounding estimates the relative error that the rounding of
+// k·log M(θ) adds to a tilted value, which the single inversion's own
+// estimate leaves out: 4ε·k·(|log M(θ)| + θ·|μ|) at the saddlepoint θ of
+// the smaller tail (secant steps from the normal approximation
+// max(|x − kμ|/(kσ²), 2/(σ√k)), which is kept where they fail); 0 where
+// the transform is not finite there.
+func (p IIDSums) exponentRounding(k int, x float64) float64 {
+	fk := float64(k)
+	y := x - fk*p.mu
+	sg, hiDom := 1.0, p.tr.hi
+	if y <= 0 {
+		sg, hiDom = -1, -p.tr.lo
+	}
+	th := math.Max(math.Abs(y)/(fk*p.v), 2/math.Sqrt(fk*p.v))
+	if finite(hiDom) && th >= hiDom {
+		th = hiDom / 2
+	}
+	dK := func(t float64) float64 {
+		const eta = 1e-20
+		e := eta * math.Max(1, t)
+		return imag(p.tr.logm(complex(sg*t, sg*e)))/e*sg - p.mu*sg
+	}
+	if ts := saddleSecant(func(t float64) float64 { return fk*dK(t) - math.Abs(y) }, th, hiDom); ts > th {
+		th = ts
+	}
+	lm := cmplx.Abs(p.tr.logm(complex(sg*th, 0)))
+	if !finite(lm) {
+		return 0
+	}
+	return 4 * 0x1p-53 * fk * (lm + math.Abs(th*p.mu))
+}
+
 // tiltedOne is the single tilted inversion of IIDSums.Evaluate for a term
 // with a transform and no atoms: P(S_k <= x), P(S_k > x) and the smaller
-// tail's estimated relative error.
+// tail's estimated relative error. The transform is normalised (see
+// massDefect).
 func (p IIDSums) tiltedOne(k int, x float64) (f, s, rel float64) {
 	fk := float64(k)
-	cmu, ck := complex(p.mu, 0), complex(fk, 0)
+	cmu, ck, c0 := complex(p.mu, 0), complex(fk, 0), complex(p.massDefect(), 0)
 	t := p.tr
 	n := &numLaw{
-		tr: transform{logm: func(s complex128) complex128 { return ck * (t.logm(s) - s*cmu) }, lo: t.lo, hi: t.hi},
+		tr: transform{logm: func(s complex128) complex128 { return ck * (t.logm(s) - s*cmu - c0) }, lo: t.lo, hi: t.hi},
 		c:  fk * p.mu, variance: fk * p.v, w: 1, supLo: fk * p.lo, supHi: fk * p.hi,
 	}
 	sd := math.Sqrt(n.variance)
@@ -208,11 +254,17 @@ func (p IIDSums) tiltedOne(k int, x float64) (f, s, rel float64) {
 func (st *pointState) shared1(k int) (f, s, rel float64, ok bool) {
 	p, fk := st.p, float64(k)
 	y := st.x - fk*p.mu
+	// the blocks start at the mean crossing, so that each lies on one
+	// side of it: the lower tail from the crossing on, the upper below
+	d := int64(k) - st.cross
+	b := d / st.block
+	if d < 0 && d%st.block != 0 {
+		b--
+	}
 	sg := 1.0
-	if y <= 0 {
+	if b >= 0 {
 		sg = -1
 	}
-	b := int64(k) / st.block
 	key := 2 * b
 	if sg < 0 {
 		key++
@@ -236,10 +288,30 @@ func (st *pointState) shared1(k int) (f, s, rel float64, ok bool) {
 	if !ok {
 		return 0, 0, 0, false
 	}
+	if v > 0.5 {
+		// the larger tail (at k where rounding put x − k·μ on the other
+		// side of 0 than the block): its absolute error is the smaller one's
+		rel *= v / (1 - v)
+		if rel > PointTailsRel {
+			return 0, 0, 0, false
+		}
+	}
 	if sg > 0 {
 		return math.Max(0, 1-v), v, rel, true
 	}
 	return v, math.Max(0, 1-v), rel, true
+}
+
+// mid returns the middle k of block b.
+func (st *pointState) mid(b int64) float64 {
+	lo, hi := st.blockRange(b)
+	return (lo + hi) / 2
+}
+
+// blockRange returns the first and last k of block b.
+func (st *pointState) blockRange(b int64) (lo, hi float64) {
+	first := st.cross + b*st.block
+	return float64(max(1, first)), float64(first + st.block - 1)
 }
 
 // supTop is the upper end of the centred (reflected) support of S_k.
@@ -250,9 +322,27 @@ func (st *pointState) supTop(fk, sg float64) float64 {
 	return fk * (st.p.mu - st.p.lo)
 }
 
-// cent returns the per-term centred log-transform on side sg at s.
+// cent returns the per-term centred, normalised log-transform on side sg
+// at s.
 func (st *pointState) cent(s complex128, sg float64) complex128 {
-	return st.p.tr.logm(complex(sg, 0)*s) - complex(sg*st.p.mu, 0)*s
+	return st.p.tr.logm(complex(sg, 0)*s) - complex(sg*st.p.mu, 0)*s - complex(st.lm0, 0)
+}
+
+// massDefect returns log M(0) of the term: not exactly 0 where its masses
+// do not sum to 1 in floating point (six atoms of a cycle law summed to
+// 1 + 2.2e-16), which the k-fold sum would carry as a mass of
+// (1 + 2.2e-16)^k: 3.3e-11 too much at k = 1.5·10^5, split between the
+// tails according to the side computed. Subtracting it normalises the
+// transform. 0 where it is not finite.
+func (p IIDSums) massDefect() float64 {
+	if p.tr.logm == nil {
+		return 0
+	}
+	v := real(p.tr.logm(0))
+	if !finite(v) {
+		return 0
+	}
+	return v
 }
 
 // newPanel builds the panel of block b on side sg; a panel without nodes
@@ -263,9 +353,8 @@ func (st *pointState) newPanel(b int64, sg float64) *tiltPanel {
 	if sg < 0 {
 		hiDom = -p.tr.lo
 	}
-	kLo := float64(max(1, b*st.block))
-	kHi := float64(b*st.block + st.block - 1)
-	kc := (kLo + kHi) / 2
+	kLo, kHi := st.blockRange(b)
+	kc := st.mid(b)
 	pn := &tiltPanel{sg: sg}
 	K := func(th float64) float64 { return real(st.cent(complex(th, 0), sg)) }
 	dK := func(th float64) float64 {
@@ -332,7 +421,7 @@ func (st *pointState) newPanel(b int64, sg float64) *tiltPanel {
 	for j := 0; j < maxTilted; j++ {
 		s := complex(theta, float64(j)*pn.h)
 		lm := p.tr.logm(complex(sg, 0) * s)
-		c := lm - complex(sg*p.mu, 0)*s
+		c := lm - complex(sg*p.mu, 0)*s - complex(st.lm0, 0)
 		if cmplx.IsNaN(c) || cmplx.IsInf(c) {
 			return pn
 		}

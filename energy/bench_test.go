@@ -12,7 +12,7 @@ import (
 // divides by: sorting 10 000 pseudo-random float64 values (testref.SortBaseline).
 func BenchmarkBaselineSort(b *testing.B) { testref.SortBaseline(b) }
 
-func benchSoil(b *testing.B, sf []float64) energy.Cycle {
+func benchSoil(b testing.TB, sf []float64) energy.Cycle {
 	b.Helper()
 	c, err := soilNode(dist.MustDiscrete([]float64{7, 10, 12}, sf))
 	if err != nil {
@@ -78,7 +78,7 @@ func BenchmarkLifetimeDiscrete1e6(b *testing.B) {
 
 // fleetCycles returns 60 distinct soil-node cycles (60 spreading-factor
 // mixes), built once outside the timed loop.
-func fleetCycles(b *testing.B) []energy.Cycle {
+func fleetCycles(b testing.TB) []energy.Cycle {
 	var cs []energy.Cycle
 	for i := range 60 {
 		p12 := 0.01 + 0.6*float64(i)/59
@@ -93,16 +93,7 @@ func fleetCycles(b *testing.B) []energy.Cycle {
 // median and 10 % point, and the law of the number failed at the fleet's
 // median first-failure date with its mean and 90 % interval.
 func BenchmarkFleet60(b *testing.B) {
-	cs := fleetCycles(b)
-	cell := energy.MustBattery(energy.TypicalER14505())
-	var gs []energy.FleetGroup
-	for i, c := range cs {
-		n := int64(10000 / 60)
-		if i < 10000%60 {
-			n++
-		}
-		gs = append(gs, energy.FleetGroup{Cycle: c, Battery: cell, Count: n})
-	}
+	gs := fleet60Groups(b)
 	for b.Loop() {
 		f, err := energy.NewFleet(gs)
 		if err != nil {

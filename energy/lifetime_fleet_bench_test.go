@@ -38,16 +38,7 @@ func firstFailure(tb testing.TB, groups []energy.FleetGroup) (energy.Fleet, dist
 
 func newFirstFailureBench(b *testing.B) firstFailureBench {
 	b.Helper()
-	cs := fleetCycles(b)
-	cell := energy.MustBattery(energy.TypicalER14505())
-	var fb firstFailureBench
-	for i, c := range cs {
-		n := int64(10000 / 60)
-		if i < 10000%60 {
-			n++
-		}
-		fb.groups = append(fb.groups, energy.FleetGroup{Cycle: c, Battery: cell, Count: n})
-	}
+	fb := firstFailureBench{groups: fleet60Groups(b)}
 	f, ff := firstFailure(b, fb.groups)
 	lo, hi := ff.Quantile(1e-3), ff.Quantile(1-1e-3)
 	for i := range 200 {

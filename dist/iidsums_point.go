@@ -48,9 +48,12 @@ import (
 // |s_j·μ|) for each term, weighted by the term's magnitude (about k·ε·θ·μ
 // relative: 7e-13 at k = 1.5·10^5 four standard deviations out). The sum
 // stops once four successive terms are below 1e-13 of it, as the single
-// inversion's does. A value whose estimate exceeds PointTailsRel, whose
-// period rules fail, whose sum does not settle within the panel's nodes or
-// whose scale underflows is computed by the single inversion instead
+// inversion's does. A value whose sum's rounding exceeds PointTailsRel
+// (1e-14 + 4e-16·Σ|terms|/|sum|: the block's tilt is too far from the k's
+// own; the rounding of the exponents is not counted there, since the
+// single inversion's tilt carries it too), whose period rules fail, whose
+// sum does not settle within the panel's nodes or whose scale underflows
+// is computed by the single inversion instead
 // (IIDSums.Evaluate). So each value depends on (law, x, k) only, whatever
 // was asked before: the panels are a cache of values that are the same
 // however they are reached (at most MaxPointPanels of them, then cleared).
@@ -65,10 +68,11 @@ type PointTails struct {
 	st *pointState
 }
 
-// PointTailsRel is the largest estimated relative error (of the smaller
-// tail) that a value from a shared panel may carry; values whose estimate
-// exceeds it are computed by the single tilted inversion.
-const PointTailsRel = 1e-11
+// PointTailsRel is the largest estimated rounding error of the sum
+// (relative to the smaller tail) that a value from a shared panel may
+// carry; values whose estimate exceeds it are computed by the single tilted
+// inversion.
+const PointTailsRel = 1e-12
 
 // MaxPointPanels caps the panels a PointTails keeps (each some N ≤ 4096
 // complex values; N is about 20–60 for sums of 10^3 terms and more); the
@@ -292,9 +296,6 @@ func (st *pointState) shared1(k int) (f, s, rel float64, ok bool) {
 		// the larger tail (at k where rounding put x − k·μ on the other
 		// side of 0 than the block): its absolute error is the smaller one's
 		rel *= v / (1 - v)
-		if rel > PointTailsRel {
-			return 0, 0, 0, false
-		}
 	}
 	if sg > 0 {
 		return math.Max(0, 1-v), v, rel, true
@@ -378,7 +379,9 @@ func (st *pointState) newPanel(b int64, sg float64) *tiltPanel {
 		floor = math.Min(floor, hiDom/2)
 	}
 	theta := floor
-	if yc > 0 {
+	if yc > 0 && yc/(kc*p.v) > floor/2 {
+		// (nearer the crossing the saddlepoint is below the floor: about
+		// yc/(kc·σ²) there)
 		th := saddleSecant(func(t float64) float64 { return kc*dK(t) - yc }, yc/(kc*p.v), hiDom)
 		if !(th > 0) {
 			th = saddle(func(t float64) float64 { return kc * dK(t) }, yc, hiDom, sdc)
@@ -414,9 +417,9 @@ func (st *pointState) newPanel(b int64, sg float64) *tiltPanel {
 	}
 	pn.L = 1.05 * L
 	pn.h = 2 * math.Pi / pn.L
-	// the nodes, until their magnitudes relative to the first fall below
-	// 1e-17 for the block's smallest k (the slowest to decay) four times
-	// running
+	// the nodes, until their magnitudes relative to the first, times j,
+	// fall below 1e-13 for the block's smallest k (the slowest to decay)
+	// four times running: where every k's sum stops (value)
 	quiet := 0
 	for j := 0; j < maxTilted; j++ {
 		s := complex(theta, float64(j)*pn.h)
@@ -430,7 +433,7 @@ func (st *pointState) newPanel(b int64, sg float64) *tiltPanel {
 		pn.ce = append(pn.ce, 2*0x1p-53*(cmplx.Abs(lm)+cmplx.Abs(s)*math.Abs(p.mu)))
 		pn.ir = append(pn.ir, real(inv))
 		pn.ii = append(pn.ii, imag(inv))
-		if j > 0 && math.Exp(kLo*(real(c)-pn.k1))*theta/cmplx.Abs(s)*float64(j) <= 1e-17 {
+		if j > 0 && math.Exp(kLo*(real(c)-pn.k1))*theta/cmplx.Abs(s)*float64(j) <= 1e-13 {
 			quiet++
 			if quiet >= 4 {
 				pn.nodesEnd = true
@@ -516,10 +519,11 @@ func (pn *tiltPanel) value(fk, yy, supTop float64) (v, rel float64, ok bool) {
 	den := math.Max(math.Abs(sum), 1e-300)
 	// rounding: of the sum, and of the exponents k·c_j (k times the
 	// rounding of each c_j, which exp turns into a relative error)
-	rel = 1e-14 + 4e-16*absSum/den + 2*fk*expSum/den
-	if rel > PointTailsRel {
+	rs := 1e-14 + 4e-16*absSum/den
+	if rs > PointTailsRel {
 		return 0, 0, false
 	}
+	rel = rs + 2*fk*expSum/den
 	res := math.Exp(k0)*sum/pn.L - math.Exp(-pn.theta*pn.L)/(-math.Expm1(-pn.theta*pn.L))
 	return math.Max(0, res), rel, true
 }

@@ -86,7 +86,7 @@ func TestPointTailsSidesSumToOne(t *testing.T) {
 		up, low := st.newPanel(b, 1), st.newPanel(b, -1)
 		lo, hi := st.blockRange(b)
 		// the k within 300 (about half a renewal standard deviation) of
-		// the crossing, where both sides' panels meet PointTailsRel
+		// the crossing, where both sides' panels' sums meet PointTailsRel
 		lo, hi = math.Max(lo, float64(st.cross-300)), math.Min(hi, float64(st.cross+300))
 		for k := lo; k <= hi; k += 7 {
 			y := x - k*p.mu

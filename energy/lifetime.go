@@ -679,9 +679,9 @@ const (
 
 // pointAccuracy states the error of the values that dist.PointTails
 // returns for this lifetime: each value comes with an estimate of the
-// relative error of its smaller tail (the rounding of the tilted sum and
-// of its exponents k·log M, which the panels check against
-// dist.PointTailsRel), and that estimate varies smoothly with k (it grows
+// relative error of its smaller tail (the rounding of the tilted sum, which
+// the panels hold below dist.PointTailsRel, and of its exponents
+// k·log M), and that estimate varies smoothly with k (it grows
 // with the tilt, about linearly in the distance from the median). The
 // estimates are read at the median number of cycles and every
 // pointProbeStep = 0.5 renewal standard deviations on both sides until the

@@ -117,7 +117,7 @@ func (p IIDSums) AtPoint(x float64) (PointTails, error) {
 		return PointTails{}, paramErr("IIDSums.AtPoint", "x", x, "must be finite")
 	}
 	st := &pointState{p: p, x: x, lm0: p.massDefect(), panels: map[int64]*tiltPanel{}}
-	if p.ok && p.tr.err == 0 && p.mu > 0 && x > 0 {
+	if p.ok && p.tr.err == 0 && p.mu > 0 && x > 0 && x/p.mu < 2*MaxSumIIDTerms {
 		sdM := math.Sqrt(x * p.v / (p.mu * p.mu * p.mu))
 		b := int64(1)
 		for b < 1<<20 && float64(b) <= sdM {
@@ -146,7 +146,9 @@ func (q PointTails) X() float64 {
 
 // Shared reports whether the values come from shared panels of the tilted
 // inversion (with the single inversion where a panel's value does not meet
-// PointTailsRel), rather than from IIDSums.Evaluate value by value.
+// PointTailsRel), rather than from IIDSums.Evaluate value by value: for a
+// term inverted by a tilted series with a positive mean μ, at x in
+// (0, 2·MaxSumIIDTerms·μ).
 func (q PointTails) Shared() bool { return q.st != nil && q.st.shared }
 
 // Tails returns P(S_k <= x) and P(S_k > x), each tail as IIDSums.Tails

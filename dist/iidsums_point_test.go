@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"math/big"
 	"math/rand/v2"
 	"sync"
 	"testing"
@@ -13,43 +12,12 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/testref"
 )
-
-// irwinHall returns P(U_1 + … + U_k <= x) and P(… > x) for uniforms on
-// [0, 1] and rational x = num/den, exactly in rational arithmetic:
-// P(S_k <= x) = (1/k!)·Σ_{j=0}^{⌊x⌋} (−1)^j·C(k, j)·(x − j)^k (the
-// Irwin–Hall law; Feller, An Introduction to Probability Theory and Its
-// Applications, vol. II, 2nd ed., §I.9, from memory), each tail rounded
-// once to float64.
-func irwinHall(k int, num, den int64) (below, above float64) {
-	x := big.NewRat(num, den)
-	sum := new(big.Rat)
-	binom := big.NewInt(1)
-	for j := 0; j <= k && int64(j)*den <= num; j++ {
-		d := new(big.Rat).Sub(x, big.NewRat(int64(j), 1))
-		p := new(big.Rat).SetInt64(1)
-		for range k {
-			p.Mul(p, d)
-		}
-		p.Mul(p, new(big.Rat).SetInt(binom))
-		if j%2 == 1 {
-			p.Neg(p)
-		}
-		sum.Add(sum, p)
-		binom.Mul(binom, big.NewInt(int64(k-j)))
-		binom.Quo(binom, big.NewInt(int64(j+1)))
-	}
-	fact := new(big.Int).MulRange(1, int64(k))
-	sum.Quo(sum, new(big.Rat).SetInt(fact))
-	up := new(big.Rat).Sub(big.NewRat(1, 1), sum)
-	b, _ := sum.Float64()
-	a, _ := up.Float64()
-	return b, a
-}
 
 // TestPointTailsIrwinHall: the k-fold sums of a uniform law at one point,
 // over every k whose tails are both above 1e-300, against the exact
-// Irwin–Hall law (rational arithmetic, see irwinHall): the smaller tail
+// Irwin–Hall law (rational arithmetic, testref.IrwinHall): the smaller tail
 // within 1e-12 relative and within its stated estimate (measured: at most
 // 0.3 of it, 1.8e-13 at worst, in the far tails near the support's ends),
 // the other within as much absolute.
@@ -57,14 +25,13 @@ func TestPointTailsIrwinHall(t *testing.T) {
 	u := dist.MustUniform(0, 1)
 	s, err := dist.NewIIDSums(u)
 	require.NoError(t, err)
-	for _, tc := range []struct{ num, den int64 }{{103, 10}, {257, 10}, {3013, 100}} {
-		x := float64(tc.num) / float64(tc.den)
+	for _, x := range []float64{10.3, 25.7, 30.13} {
 		q, err := s.AtPoint(x)
 		require.NoError(t, err)
 		require.True(t, q.Shared())
 		var worst, ratio float64
 		for k := int(math.Floor(x)) + 1; k <= 4*int(x); k++ {
-			wb, wa := irwinHall(k, tc.num, tc.den)
+			wb, wa := testref.IrwinHall(k, x)
 			if math.Min(wb, wa) < 1e-300 {
 				continue
 			}
@@ -186,8 +153,8 @@ func TestPointTailsDeterministic(t *testing.T) {
 }
 
 // TestPointTailsErrors: bad input returns errors wrapping ErrParam, and
-// NaN values exactly there; other paths (a closed form, a discrete law)
-// give IIDSums' own values.
+// NaN values exactly there; other paths (a closed form, a discrete law, a
+// point beyond 2·MaxSumIIDTerms means) give IIDSums' own values.
 func TestPointTailsErrors(t *testing.T) {
 	s, err := dist.NewIIDSums(soilLike(t))
 	require.NoError(t, err)
@@ -214,6 +181,12 @@ func TestPointTailsErrors(t *testing.T) {
 		b, a = tc.q.Tails(tc.k)
 		assert.True(t, math.IsNaN(b) && math.IsNaN(a), tc.name)
 	}
+	// beyond 2·MaxSumIIDTerms means the values come from IIDSums one by one
+	far, err := s.AtPoint(1e30)
+	require.NoError(t, err)
+	assert.False(t, far.Shared())
+	b, a := far.Tails(1 << 30)
+	assert.Equal(t, [2]float64{1, 0}, [2]float64{b, a}, "x far above the k-fold support")
 	for _, l := range []dist.Law{dist.MustGamma(2, 1), dist.MustDiscrete([]float64{1, 2, 5}, []float64{0.5, 0.3, 0.2})} {
 		ls, err := dist.NewIIDSums(l)
 		require.NoError(t, err)

@@ -21,6 +21,7 @@ type postData struct {
 	tau0, tauNow   float64   // s after installation: newest event, now
 	a0, va0, r, vr float64
 	ess            float64
+	nodes          int // the final stage's point set (M)
 	stages         int
 	unresolved     bool    // the stages found no better proposal than the prior's sparse nodes
 	logMarginal    float64 // log of the evidence's marginal likelihood (importance estimate)
@@ -89,7 +90,14 @@ func (m DeviceModel) checkUse(fn string, t Tally, now float64) error {
 // device with no events yet gets the prior, going forward at the planned
 // active power.
 func (m DeviceModel) Posterior(t Tally, now float64) (DevicePosterior, error) {
-	const fn = "DeviceModel.Posterior"
+	return m.posterior("DeviceModel.Posterior", t, now, false)
+}
+
+// posterior is Posterior; thorough places every importance try on the
+// whole stage set (no judging on its first M points first): the marginal
+// likelihood's estimate (EstimateSpread, PlanSharedService) then keeps a
+// stage that only the whole set finds better than the prior's nodes.
+func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (DevicePosterior, error) {
 	if err := m.checkUse(fn, t, now); err != nil {
 		return DevicePosterior{}, err
 	}
@@ -147,7 +155,7 @@ func (m DeviceModel) Posterior(t Tally, now float64) (DevicePosterior, error) {
 			}
 			like(nc[from:to], na[from:to], nf[from:to], nl[from:to])
 		}
-		if pd.stages == 1 && M < Ms {
+		if pd.stages == 1 && M < Ms && !thorough {
 			// While no stage has done better than the prior's nodes, a try
 			// is first placed on the stage set's first M points (a
 			// Kronecker sequence itself, as many points as the prior's):
@@ -187,6 +195,7 @@ func (m DeviceModel) Posterior(t Tally, now float64) (DevicePosterior, error) {
 	}
 	M = len(logw)
 	pd.logMarginal = best + math.Log(sAll/float64(M))
+	pd.nodes = M
 	pd.c, pd.a, pd.f = make([]float64, 0, M), make([]float64, 0, M), make([]float64, 0, M)
 	pd.half, pd.w = make([]uint8, 0, M), make([]float64, 0, M)
 	for k, l := range logw {

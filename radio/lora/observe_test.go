@@ -53,6 +53,21 @@ func TestObserverCosts(t *testing.T) {
 	want := (45e-3-floor)*v*0.061696 + (12e-3-floor)*v*(6*1.024e-3+6*32.768e-3)
 	got, _ := d.Tally.ActiveEnergy()
 	require.InDelta(t, want, got, 1e-12*want)
+	// A downlink: an empty frame (12-byte PHY payload, no payload CRC
+	// downstream: LoRaWAN 1.0.3 §4) received whole instead of the 6-symbol
+	// listen. RX1 at DR5: 8 + ⌈(96 − 28 + 28)/28⌉·5 = 28 payload symbols,
+	// (8 + 4.25 + 28)·1.024 ms = 41.216 ms, and RX2 not opened; RX2 at DR0
+	// (SF12, low data rate optimisation): 8 + ⌈(96 − 48 + 28)/40⌉·5 = 18,
+	// (12.25 + 18)·32.768 ms = 991.232 ms after RX1's empty listen.
+	for w, want := range map[int]float64{
+		1: (12e-3 - floor) * v * (41.216e-3 - 6*1.024e-3 - 6*32.768e-3),
+		2: (12e-3 - floor) * v * (991.232e-3 - 6*32.768e-3),
+	} {
+		dd, err := o.Downlink(d, 11, w)
+		require.NoError(t, err)
+		e, _ := dd.Tally.ActiveEnergy()
+		require.InDelta(t, want, e-got, 1e-12*math.Abs(want), "RX%d", w)
+	}
 }
 
 // TestObserverFrameCounter plays a stream through the frame-counter rules

@@ -53,6 +53,33 @@ func benchTallies(m energy.DeviceModel, n int, volts float64) []energy.Tally {
 	return out
 }
 
+// BenchmarkDeviceRemainingFleet: one device's posterior, remaining-life
+// law, median and 90 % interval, for devices drawn from the validation
+// fleet (internal/backlog: hidden factors, daily readings, every device
+// pooled as EstimateSpread pools them, cut at three years): the mix a
+// back-end sees, from the plateau to the knee and devices gone flat
+// (refused by their counts).
+func BenchmarkDeviceRemainingFleet(b *testing.B) {
+	f := newValFleet(b, true)
+	m, err := energy.NewDeviceModel(f.spec, energy.Environment{}, f.costs, energy.DeviceOptions{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	const today = 3 * energy.Year
+	ts := poolTallies(b, f, 12, today)
+	b.ReportAllocs()
+	defer testref.ReportCPU(b)()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		p, err := m.Posterior(ts[i%len(ts)], today)
+		if err != nil {
+			continue
+		}
+		rem := p.Remaining()
+		_ = rem.Quantile(0.5) + rem.Quantile(0.05) + rem.Quantile(0.95)
+	}
+}
+
 // BenchmarkDeviceRemaining: one device's posterior, remaining-life law,
 // median and 90 % interval: counts only, readings on the plateau (3.64 V),
 // readings in the knee (3.50 V, which sets off the adaptive stages).

@@ -375,7 +375,7 @@ func TestPlanSharedService(t *testing.T) {
 // poolTallies draws 400 devices of f installed over the year before 0,
 // feeds each one's log up to today (the flat ones up to their last day)
 // and returns the tallies: what EstimateSpread pools.
-func poolTallies(t *testing.T, f valFleet, seed uint64, today float64) []energy.Tally {
+func poolTallies(t testing.TB, f valFleet, seed uint64, today float64) []energy.Tally {
 	t.Helper()
 	m, err := energy.NewDeviceModel(f.spec, energy.Environment{}, f.costs, energy.DeviceOptions{})
 	require.NoError(t, err)

@@ -190,8 +190,9 @@ func tabulate(l NodeLifetime) tabulated {
 	{
 		// Each setting's own table, then the mixture's from them.
 		type set struct {
-			w  float64
-			pt probitTable
+			w            float64
+			pt           probitTable
+			cutLo, cutHi float64 // before cutLo the table reads below −tabCut, after cutHi above tabCut
 		}
 		var sets []set
 		guessLo, guessHi = math.Inf(1), 0
@@ -202,7 +203,7 @@ func tabulate(l NodeLifetime) tabulated {
 				// The setting's law is below tabSetTail up to the
 				// calendar limit: it counts as alive throughout.
 				tb.setBeyond += w * tabSetTail
-				sets = append(sets, set{w: w})
+				sets = append(sets, set{w: w, cutLo: math.Inf(1), cutHi: math.Inf(1)})
 				continue
 			}
 			tb.setPoints += len(st.t)
@@ -221,23 +222,46 @@ func tabulate(l NodeLifetime) tabulated {
 			}
 			tb.setBeyond += w * (beyond + normSurv(tabCut))
 			guessLo, guessHi = math.Min(guessLo, st.t[0]), math.Max(guessHi, st.t[len(st.t)-1])
-			sets = append(sets, set{w: w, pt: st})
+			se := set{w: w, pt: st, cutLo: math.Inf(-1), cutHi: math.Inf(1)}
+			if d := st.d0[0]; z0 <= -tabCut {
+				se.cutLo = st.t[0]
+			} else if d > 0 {
+				se.cutLo = st.t[0] - (z0+tabCut)/d
+			}
+			if d := st.d1[len(st.d1)-1]; z1 >= tabCut {
+				se.cutHi = st.t[len(st.t)-1]
+			} else if d > 0 {
+				se.cutHi = st.t[len(st.t)-1] + (tabCut-z1)/d
+			}
+			sets = append(sets, se)
 		}
 		probit = func(t float64) float64 {
 			var dead, alive float64
-			for _, s := range sets {
-				if s.pt.t == nil {
+			for i := range sets {
+				s := &sets[i]
+				if t < s.cutLo {
 					alive += s.w
 					continue
 				}
+				if t > s.cutHi {
+					dead += s.w
+					continue
+				}
+				// One tail from erfc, the other its complement (at least
+				// 1/2, so nothing is lost).
 				switch z := s.pt.zAt(t); {
 				case z < -tabCut:
 					alive += s.w
 				case z > tabCut:
 					dead += s.w
+				case z <= 0:
+					d := normSurv(-z)
+					dead += s.w * d
+					alive += s.w * (1 - d)
 				default:
-					dead += s.w * normSurv(-z)
-					alive += s.w * normSurv(z)
+					a := normSurv(z)
+					dead += s.w * (1 - a)
+					alive += s.w * a
 				}
 			}
 			return probitOf(alive, dead)
@@ -556,11 +580,12 @@ func (tb tabulated) integrateMoments() (mean, vari float64) {
 	// ∫_0^lo S = lo (to 1e-14); ∫_lo^hi S and ∫_lo^hi 2t·S by one vector
 	// quadrature of the table (the second scaled by the table's end, so
 	// that both are of the mean's size and the relative target holds for
-	// each); the atom at the calendar limit adds its mass times the limit.
+	// each, to 1e-12, which the shared mixtures take as the moments' error);
+	// the atom at the calendar limit adds its mass times the limit.
 	// Beyond the table's end the survival is below 1e-14 (or 0 from the
 	// calendar limit on, where the table ends).
 	scale := tb.t[len(tb.t)-1]
-	opt := quad.Options{RelTol: 1e-10, MaxEvals: 1 << 16}
+	opt := quad.Options{RelTol: 1e-12, MaxEvals: 1 << 16}
 	var v [2]float64
 	quad.BreaksVec(v[:], func(t float64, y []float64) {
 		s := tb.Survival(t)

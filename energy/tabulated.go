@@ -126,10 +126,10 @@ func probitGrid(probit func(float64) float64, lo, hi, zl, zh float64, kinks []fl
 	done := make([]bool, len(ts)-1) // interval i checked and within tolerance
 	for pass := 0; pass < 40; pass++ {
 		d0, d1 := pchipIntervals(ts, zs, kink)
-		nt := []float64{ts[0]}
-		nz := []float64{zs[0]}
-		nk := []bool{kink[0]}
-		var nd []bool
+		nt := append(make([]float64, 0, 2*len(ts)), ts[0])
+		nz := append(make([]float64, 0, 2*len(ts)), zs[0])
+		nk := append(make([]bool, 0, 2*len(ts)), kink[0])
+		nd := make([]bool, 0, 2*len(ts))
 		refined := false
 		for i := 0; i+1 < len(ts); i++ {
 			w := ts[i+1] - ts[i]

@@ -195,8 +195,8 @@ func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64) probitTable {
 	worst := 0.0
 	done := make([]bool, len(ks)-1)
 	for pass := 0; pass < 40; pass++ {
-		nk := []gradKnot{ks[0]}
-		var nd []bool
+		nk := append(make([]gradKnot, 0, 2*len(ks)), ks[0])
+		nd := make([]bool, 0, 2*len(ks))
 		refined := false
 		for i := 0; i+1 < len(ks); i++ {
 			a, b := &ks[i], &ks[i+1]
@@ -230,7 +230,9 @@ func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64) probitTable {
 	// Store: points at the knots and the month boundaries between them.
 	kinks := n.kinks(lo.t, hi.t)
 	pt := probitTable{kinks: len(kinks), worst: worst, evals: evals}
-	pt.t, pt.z = []float64{ks[0].t}, []float64{ks[0].z}
+	np := len(ks) + len(kinks)
+	pt.t, pt.z = append(make([]float64, 0, np), ks[0].t), append(make([]float64, 0, np), ks[0].z)
+	pt.d0, pt.d1 = make([]float64, 0, np), make([]float64, 0, np)
 	for i := 0; i+1 < len(ks); i++ {
 		a, b := &ks[i], &ks[i+1]
 		ok := finite(a) && finite(b)

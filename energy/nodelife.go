@@ -86,6 +86,17 @@ const accSkipZ = 8.5
 // Gaussian rule built from its first five cumulants; the largest
 // difference plus the quadrature estimates is the stated CDF error.
 func (l NodeLifetime) accuracyAt(ts []float64) dist.Accuracy {
+	return l.accuracyAtZ(ts, nil)
+}
+
+// accuracyAtZ is accuracyAt given, when zOf is not nil, each setting's
+// probit zOf(j, t) from a table within 0.01 of the model's (NaN where
+// unknown): a setting whose probit is beyond ±accSkipZ by more than 0.01
+// plus the rule's largest shift of the mean over the normal part's
+// smallest sd (the probit moves by at most δ/sd for a shift δ of the mean:
+// ∂z/∂mean = E[φ(g)]/(sd·φ(z)) <= 1/sd, φ∘Φ⁻¹ being concave) counts
+// 2·Φ̄(accSkipZ) without being evaluated.
+func (l NodeLifetime) accuracyAtZ(ts []float64, zOf func(j int, t float64) float64) dist.Accuracy {
 	n := l.n
 	acc := dist.Accuracy{TailFloor: 1e-14, Method: "mixture over settings and per-node factors (closed form in the normal factors, adaptive quadrature in the floor factor); per-cycle sum by its exact mean and variance"}
 	if n.spread.IsZero() {
@@ -117,6 +128,19 @@ func (l NodeLifetime) accuracyAt(ts []float64) dist.Accuracy {
 			kk2 := k * s.k2
 			// Standardized cumulants of the k-cycle sum: l_r / k^{r/2−1}.
 			rule := newMomentRule(3, k*s.mu, kk2, s.l3/math.Sqrt(k), s.l4/k, s.l5/math.Pow(k, 1.5))
+			shift, least := 0.0, k*s.mu
+			for i := range rule.n {
+				shift = math.Max(shift, math.Abs(rule.x[i]-k*s.mu))
+				least = math.Min(least, math.Max(rule.x[i], 0))
+			}
+			if zOf != nil {
+				sc, sa := n.spread.Capacity, n.spread.Active
+				sdMin := math.Sqrt(sc*sc*capLeft*capLeft + sa*sa*least*least)
+				if z := zOf(j, t); math.Abs(z)-0.01-shift/sdMin > accSkipZ {
+					worst = math.Max(worst, s.w*2*normSurv(accSkipZ))
+					continue
+				}
+			}
 			// settingAt's value, with the probit's slope against the mean
 			// active energy: where the law is beyond ±accSkipZ in probit
 			// even at the rule's nodes (to first order, with a margin of
@@ -124,10 +148,6 @@ func (l NodeLifetime) accuracyAt(ts []float64) dist.Accuracy {
 			// 2·Φ̄(accSkipZ) is counted instead.
 			p := n.part(capLeft, k*s.mu, kk2, floorE, h, 0, true)
 			a0, e0 := p.alive, 0.0
-			shift := 0.0
-			for i := range rule.n {
-				shift = math.Max(shift, math.Abs(rule.x[i]-k*s.mu))
-			}
 			if math.Abs(p.z)-2*math.Abs(p.dz[dMean])*shift > accSkipZ {
 				worst = math.Max(worst, s.w*2*normSurv(accSkipZ))
 				continue

@@ -179,6 +179,7 @@ func tabulate(l NodeLifetime) tabulated {
 	std := dist.MustNormal(0, 1)
 	zLo, zHi := std.Quantile(tabTail), std.UpperQuantile(tabTail)
 	var probit func(float64) float64
+	var zOf func(j int, t float64) float64 // a setting's probit from its table
 	var guessLo, guessHi float64
 	minWidth := 0.0
 	if n.spread.IsZero() {
@@ -234,6 +235,15 @@ func tabulate(l NodeLifetime) tabulated {
 				se.cutHi = st.t[len(st.t)-1] + (tabCut-z1)/d
 			}
 			sets = append(sets, se)
+		}
+		zOf = func(j int, t float64) float64 {
+			if sets[j].pt.t == nil {
+				return math.Inf(-1) // below tabSetTail up to the calendar limit
+			}
+			// Beyond a table's ends the law is beyond the end's probit
+			// (monotone): read the end.
+			pt := &sets[j].pt
+			return pt.zAt(math.Min(math.Max(t, pt.t[0]), pt.t[len(pt.t)-1]))
 		}
 		probit = func(t float64) float64 {
 			var dead, alive float64
@@ -292,7 +302,7 @@ func tabulate(l NodeLifetime) tabulated {
 	}
 	// The model's own error, measured at six of the table's times (see
 	// profile).
-	src := tb.profile(l)
+	src := tb.profile(l, zOf)
 	// A probit error δ moves a probability p by about φ(z)·δ <= 0.4·δ, and
 	// the smaller tail p by about p·|z|·δ (Mills' ratio): |z| <= 7.7 down to
 	// 1e-14.
@@ -320,8 +330,9 @@ func tabulate(l NodeLifetime) tabulated {
 // at the table's ends, its middle and the times where its CDF is 1e-6,
 // 1e-3 and 0.1, so that errAt can state the error where it is read, and
 // returns the largest (with the largest relative survival error) as the
-// law's stated error.
-func (tb *tabulated) profile(l NodeLifetime) dist.Accuracy {
+// law's stated error. zOf reads the settings' probits from their tables,
+// so that settings far in a tail are not evaluated (accuracyAtZ).
+func (tb *tabulated) profile(l NodeLifetime, zOf func(j int, t float64) float64) dist.Accuracy {
 	std := dist.MustNormal(0, 1)
 	n := len(tb.t)
 	ts := []float64{tb.t[0], tb.t[n/2], tb.t[n-1]}
@@ -334,7 +345,7 @@ func (tb *tabulated) profile(l NodeLifetime) dist.Accuracy {
 	tb.profE = make([]float64, len(tb.profT))
 	var acc dist.Accuracy
 	for i, t := range tb.profT {
-		a := l.accuracyAt([]float64{t})
+		a := l.accuracyAtZ([]float64{t}, zOf)
 		tb.profE[i] = a.CDFAbs
 		acc.CDFAbs = math.Max(acc.CDFAbs, a.CDFAbs)
 		acc.SurvivalRel = math.Max(acc.SurvivalRel, a.SurvivalRel)

@@ -88,15 +88,58 @@ func probitOf(alive, dead float64) float64 {
 }
 
 // probitGrid tabulates probit on [lo, hi] (zl, zh its values at the ends):
-// a first grid of tabInitial even steps and the kinks (month boundaries
-// where the monthly factors change), which stay knots with one-sided
-// slopes on either side, so that no cubic straddles one; then intervals
-// are halved until the cubic's value at each midpoint is within tol of
-// the probit there, or the interval is no wider than minWidth.
+// a first grid (firstGrid), then intervals are halved (halveUntil) until a
+// PCHIP cubic's value at each midpoint is within tol of the probit there,
+// or the interval is no wider than minWidth. Kinks stay knots with
+// one-sided slopes on either side, so that no cubic straddles one.
 func probitGrid(probit func(float64) float64, lo, hi, zl, zh float64, kinks []float64, minWidth, tol float64) probitTable {
-	pt := probitTable{kinks: len(kinks)}
-	var ts, zs []float64
-	var kink []bool
+	type knot struct {
+		t, z float64
+		kink bool
+	}
+	ts, kink := firstGrid(lo, hi, kinks)
+	ks := make([]knot, len(ts))
+	for i, x := range ts {
+		ks[i] = knot{t: x, kink: kink[i]}
+		switch i {
+		case 0:
+			ks[i].z = zl
+		case len(ts) - 1:
+			ks[i].z = zh
+		default:
+			ks[i].z = probit(x)
+		}
+	}
+	unpack := func(ks []knot) (ts, zs []float64, kink []bool) {
+		ts, zs, kink = make([]float64, len(ks)), make([]float64, len(ks)), make([]bool, len(ks))
+		for i, k := range ks {
+			ts[i], zs[i], kink[i] = k.t, k.z, k.kink
+		}
+		return ts, zs, kink
+	}
+	var d0, d1 []float64
+	ks, worst, evals := halveUntil(ks, tol, func(ks []knot) {
+		d0, d1 = pchipIntervals(unpack(ks))
+	}, func(a, b *knot) bool {
+		return b.t-a.t <= minWidth || (math.IsInf(a.z, 0) && a.z == b.z)
+	}, func(i int, a, b *knot) (knot, float64) {
+		m := knot{t: a.t + (b.t-a.t)/2}
+		m.z = probit(m.t)
+		if math.IsInf(m.z, 0) || math.IsInf(a.z, 0) || math.IsInf(b.z, 0) {
+			return m, math.Inf(1)
+		}
+		return m, math.Abs(hermite(a.t, b.t, a.z, b.z, d0[i], d1[i], m.t) - m.z)
+	})
+	pt := probitTable{kinks: len(kinks), worst: worst, evals: evals + len(ts) - 2}
+	pt.t, pt.z, kink = unpack(ks)
+	pt.d0, pt.d1 = pchipIntervals(pt.t, pt.z, kink)
+	return pt
+}
+
+// firstGrid returns a table's first grid on [lo, hi]: tabInitial even
+// steps and the kinks (month boundaries where the monthly factors change),
+// marked as such.
+func firstGrid(lo, hi float64, kinks []float64) (ts []float64, kink []bool) {
 	for i := range tabInitial {
 		x := lo + (hi-lo)*float64(i)/float64(tabInitial-1)
 		for len(kinks) > 0 && kinks[0] <= x {
@@ -110,66 +153,53 @@ func probitGrid(probit func(float64) float64, lo, hi, zl, zh float64, kinks []fl
 		}
 		ts, kink = append(ts, x), append(kink, false)
 	}
-	zs = make([]float64, len(ts))
-	evals := len(ts) - 2
-	for i, x := range ts {
-		switch i {
-		case 0:
-			zs[i] = zl
-		case len(ts) - 1:
-			zs[i] = zh
-		default:
-			zs[i] = probit(x)
+	return ts, kink
+}
+
+// halveUntil is the tables' one refinement: pass by pass, the interval
+// between consecutive knots a and b is split at its midpoint by split,
+// which returns the midpoint's knot and the interpolant's error there; the
+// midpoint joins the knots either way, and an interval whose error is
+// within tol is not checked again (its halves are closer still). An
+// interval is left alone where skip says so or when the knots would pass
+// tabMaxPoints; at most 40 passes. pass, if not nil, sees the knots at the
+// start of each pass. It returns the knots, the largest error within tol
+// measured and the number of splits.
+func halveUntil[K any](ks []K, tol float64, pass func([]K), skip func(a, b *K) bool, split func(i int, a, b *K) (K, float64)) ([]K, float64, int) {
+	worst, evals := 0.0, 0
+	done := make([]bool, len(ks)-1)
+	for range 40 {
+		if pass != nil {
+			pass(ks)
 		}
-	}
-	worst := 0.0
-	done := make([]bool, len(ts)-1) // interval i checked and within tolerance
-	for pass := 0; pass < 40; pass++ {
-		d0, d1 := pchipIntervals(ts, zs, kink)
-		nt := append(make([]float64, 0, 2*len(ts)), ts[0])
-		nz := append(make([]float64, 0, 2*len(ts)), zs[0])
-		nk := append(make([]bool, 0, 2*len(ts)), kink[0])
-		nd := make([]bool, 0, 2*len(ts))
+		nk := append(make([]K, 0, 2*len(ks)), ks[0])
+		nd := make([]bool, 0, 2*len(ks))
 		refined := false
-		for i := 0; i+1 < len(ts); i++ {
-			w := ts[i+1] - ts[i]
-			full := len(nt)+2*(len(ts)-i) > tabMaxPoints
-			if done[i] || full || w <= minWidth || (math.IsInf(zs[i], 0) && zs[i] == zs[i+1]) {
-				nt = append(nt, ts[i+1])
-				nz = append(nz, zs[i+1])
-				nk = append(nk, kink[i+1])
+		for i := 0; i+1 < len(ks); i++ {
+			a, b := &ks[i], &ks[i+1]
+			full := len(nk)+2*(len(ks)-i) > tabMaxPoints
+			if done[i] || full || skip(a, b) {
+				nk = append(nk, *b)
 				nd = append(nd, true)
 				continue
 			}
-			m := ts[i] + w/2
-			zm := probit(m)
+			m, e := split(i, a, b)
 			evals++
-			zi := hermite(ts[i], ts[i+1], zs[i], zs[i+1], d0[i], d1[i], m)
-			e := math.Abs(zi - zm)
-			if math.IsInf(zm, 0) || math.IsInf(zs[i], 0) || math.IsInf(zs[i+1], 0) {
-				e = math.Inf(1)
-			}
 			ok := e <= tol
 			if ok {
 				worst = math.Max(worst, e)
 			} else {
 				refined = true
 			}
-			nt = append(nt, m, ts[i+1])
-			nz = append(nz, zm, zs[i+1])
-			nk = append(nk, false, kink[i+1])
+			nk = append(nk, m, *b)
 			nd = append(nd, ok, ok)
 		}
-		ts, zs, kink, done = nt, nz, nk, nd
+		ks, done = nk, nd
 		if !refined {
 			break
 		}
 	}
-	pt.t, pt.z = ts, zs
-	pt.d0, pt.d1 = pchipIntervals(ts, zs, kink)
-	pt.worst = worst
-	pt.evals = evals
-	return pt
+	return ks, worst, evals
 }
 
 // tabulate builds the table of l.
@@ -245,8 +275,10 @@ func tabulate(l NodeLifetime) tabulated {
 			pt := &sets[j].pt
 			return pt.zAt(math.Min(math.Max(t, pt.t[0]), pt.t[len(pt.t)-1]))
 		}
-		probit = func(t float64) float64 {
-			var dead, alive float64
+		// The mixture's probit from the settings' tables, with its slopes
+		// left and right of t: dF/dt = Σ w·φ(z_j)·z_j'(t), z' = F'/φ(z).
+		mix := func(t float64) (z, dl, dr float64) {
+			var dead, alive, fl, fr float64
 			for i := range sets {
 				s := &sets[i]
 				if t < s.cutLo {
@@ -257,45 +289,59 @@ func tabulate(l NodeLifetime) tabulated {
 					dead += s.w
 					continue
 				}
+				zj, dlj := s.pt.zAtD(t, false)
+				_, drj := s.pt.zAtD(t, true)
 				// One tail from erfc, the other its complement (at least
 				// 1/2, so nothing is lost).
-				switch z := s.pt.zAt(t); {
-				case z < -tabCut:
+				switch {
+				case zj < -tabCut:
 					alive += s.w
-				case z > tabCut:
+					continue
+				case zj > tabCut:
 					dead += s.w
-				case z <= 0:
-					d := normSurv(-z)
+					continue
+				case zj <= 0:
+					d := normSurv(-zj)
 					dead += s.w * d
 					alive += s.w * (1 - d)
 				default:
-					a := normSurv(z)
+					a := normSurv(zj)
 					dead += s.w * (1 - a)
 					alive += s.w * a
 				}
+				phi := s.w * normPDF(zj)
+				fl += phi * dlj
+				fr += phi * drj
 			}
-			return probitOf(alive, dead)
+			z = probitOf(alive, dead)
+			if phi := normPDF(z); phi > 0 && !math.IsInf(z, 0) {
+				dl, dr = fl/phi, fr/phi
+			}
+			return z, dl, dr
+		}
+		probit = func(t float64) float64 {
+			z, _, _ := mix(t)
+			return z
 		}
 		if math.IsInf(guessLo, 1) {
 			// No setting reaches tabSetTail before the calendar limit.
 			guessLo, guessHi = n.calendar*(1-1e-9), n.calendar
 		}
 		f := func(t float64) (float64, float64) { return probit(t), math.NaN() }
-		lo, zl := probitEnd(f, guessLo, zLo, 0.05, false)
-		hi, zh := 0.0, 0.0
+		lo, _ := probitEnd(f, guessLo, zLo, 0.05, false)
+		hi := 0.0
 		if !math.IsInf(n.calendar, 1) {
 			if zc := probit(n.calendar); zc <= zHi {
-				hi, zh = n.calendar, zc
+				hi = n.calendar
 			}
 		}
 		if hi == 0 {
-			hi, zh = probitEnd(f, math.Max(guessHi, lo), zHi, 0.05, true)
+			hi, _ = probitEnd(f, math.Max(guessHi, lo), zHi, 0.05, true)
 		}
 		if !(lo < hi) {
 			lo = math.Max(0, hi*(1-1e-9))
-			zl = probit(lo)
 		}
-		tb.probitTable = probitGrid(probit, lo, hi, zl, zh, n.kinks(lo, hi), minWidth, tabZTol)
+		tb.probitTable = hermiteGrid(mix, lo, hi, n.kinks(lo, hi), minWidth, tabZTol)
 	}
 	if tb.t[len(tb.t)-1] >= tb.cal {
 		tb.atom = l.survivalAtCalendar()
@@ -486,6 +532,92 @@ func (pt probitTable) zAt(t float64) float64 {
 		return pt.z[n-1] + math.Max(pt.d1[len(pt.d1)-1], 0)*(t-pt.t[n-1])
 	}
 	return hermite(pt.t[i-1], pt.t[i], pt.z[i-1], pt.z[i], pt.d0[i-1], pt.d1[i-1], t)
+}
+
+// zAtD is zAt with its slope right (or left) of t: at a point of the
+// table each side has its own.
+func (pt probitTable) zAtD(t float64, right bool) (z, dz float64) {
+	i := sort.SearchFloat64s(pt.t, t) // t[i-1] < t <= t[i]
+	n := len(pt.t)
+	switch {
+	case i == 0 && !(right && t == pt.t[0]):
+		d := math.Max(pt.d0[0], 0)
+		return pt.z[0] - d*(pt.t[0]-t), d
+	case i >= n:
+		d := math.Max(pt.d1[len(pt.d1)-1], 0)
+		return pt.z[n-1] + d*(t-pt.t[n-1]), d
+	case t == pt.t[i] && (right || i == 0) && i < n-1:
+		i++ // at a point, its right side: the interval beginning there
+	case t == pt.t[i] && i == n-1 && right:
+		d := math.Max(pt.d1[len(pt.d1)-1], 0)
+		return pt.z[n-1], d
+	}
+	if math.IsInf(pt.z[i-1], 0) || math.IsInf(pt.z[i], 0) {
+		return hermite(pt.t[i-1], pt.t[i], pt.z[i-1], pt.z[i], 0, 0, t), 0
+	}
+	return hermiteD(pt.t[i-1], pt.t[i], pt.z[i-1], pt.z[i], pt.d0[i-1], pt.d1[i-1], t)
+}
+
+// hermiteGrid tabulates f, which returns a probit with its slopes left
+// and right of t, on [lo, hi]: a first grid of tabInitial even steps and
+// the kinks (month boundaries, where the slopes differ), then intervals
+// are halved until the cubic Hermite interpolant with those slopes
+// (limited as Fritsch and Carlson's, so that it stays monotone) is within
+// tol of f at each midpoint, or the interval is no wider than minWidth.
+func hermiteGrid(f func(float64) (z, dl, dr float64), lo, hi float64, kinks []float64, minWidth, tol float64) probitTable {
+	type knot struct{ t, z, dl, dr float64 }
+	ts, _ := firstGrid(lo, hi, kinks)
+	ks := make([]knot, len(ts))
+	for i, x := range ts {
+		ks[i].t = x
+		ks[i].z, ks[i].dl, ks[i].dr = f(x)
+	}
+	slopes := func(a, b *knot) (d0, d1 float64) {
+		return monoSlopes(b.t-a.t, a.z, b.z, a.dr, b.dl)
+	}
+	ks, worst, evals := halveUntil(ks, tol, nil, func(a, b *knot) bool {
+		return b.t-a.t <= minWidth || (math.IsInf(a.z, 0) && a.z == b.z)
+	}, func(_ int, a, b *knot) (knot, float64) {
+		m := knot{t: a.t + (b.t-a.t)/2}
+		m.z, m.dl, m.dr = f(m.t)
+		if math.IsInf(m.z, 0) || math.IsInf(a.z, 0) || math.IsInf(b.z, 0) {
+			return m, math.Inf(1)
+		}
+		d0, d1 := slopes(a, b)
+		return m, math.Abs(hermite(a.t, b.t, a.z, b.z, d0, d1, m.t) - m.z)
+	})
+	pt := probitTable{kinks: len(kinks), worst: worst, evals: evals + len(ts)}
+	pt.t, pt.z = make([]float64, len(ks)), make([]float64, len(ks))
+	pt.d0, pt.d1 = make([]float64, len(ks)-1), make([]float64, len(ks)-1)
+	for i := range ks {
+		pt.t[i], pt.z[i] = ks[i].t, ks[i].z
+		if i+1 < len(ks) {
+			pt.d0[i], pt.d1[i] = slopes(&ks[i], &ks[i+1])
+		}
+	}
+	return pt
+}
+
+// monoSlopes limits the end slopes d0, d1 of a cubic over a step h from
+// z0 to z1 so that it is monotone (Fritsch and Carlson 1980): both of the
+// secant's sign, and α² + β² <= 9 for α, β the slopes over the secant.
+func monoSlopes(h, z0, z1, d0, d1 float64) (float64, float64) {
+	del := (z1 - z0) / h
+	if del == 0 || math.IsNaN(del) || math.IsInf(del, 0) {
+		return 0, 0
+	}
+	a, b := d0/del, d1/del
+	if !(a >= 0) {
+		a = 0
+	}
+	if !(b >= 0) {
+		b = 0
+	}
+	if r := a*a + b*b; r > 9 {
+		tau := 3 / math.Sqrt(r)
+		a, b = tau*a, tau*b
+	}
+	return a * del, b * del
 }
 
 // CDF returns P(lifetime <= t).

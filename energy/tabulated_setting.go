@@ -192,41 +192,17 @@ func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64) probitTable {
 	ks = append(ks, hi)
 	evals := tabSetInitial - 2
 	finite := func(k *gradKnot) bool { return !math.IsInf(k.z, 0) && !math.IsNaN(k.z) }
-	worst := 0.0
-	done := make([]bool, len(ks)-1)
-	for pass := 0; pass < 40; pass++ {
-		nk := append(make([]gradKnot, 0, 2*len(ks)), ks[0])
-		nd := make([]bool, 0, 2*len(ks))
-		refined := false
-		for i := 0; i+1 < len(ks); i++ {
-			a, b := &ks[i], &ks[i+1]
-			full := len(nk)+2*(len(ks)-i) > tabMaxPoints
-			if done[i] || full || b.t-a.t <= 1e-9*b.t || (!finite(a) && a.z == b.z) {
-				nk = append(nk, *b)
-				nd = append(nd, true)
-				continue
-			}
-			m := n.gradKnotAt(j, a.t+(b.t-a.t)/2)
-			evals++
-			e := math.Inf(1)
-			if finite(a) && finite(b) && finite(&m) {
-				zi, _ := n.gradInterp(a, b, m.t, true)
-				e = math.Abs(zi - m.z)
-			}
-			ok := e <= tol
-			if ok {
-				worst = math.Max(worst, e)
-			} else {
-				refined = true
-			}
-			nk = append(nk, m, *b)
-			nd = append(nd, ok, ok)
+	ks, worst, splits := halveUntil(ks, tol, nil, func(a, b *gradKnot) bool {
+		return b.t-a.t <= 1e-9*b.t || (!finite(a) && a.z == b.z)
+	}, func(_ int, a, b *gradKnot) (gradKnot, float64) {
+		m := n.gradKnotAt(j, a.t+(b.t-a.t)/2)
+		if !finite(a) || !finite(b) || !finite(&m) {
+			return m, math.Inf(1)
 		}
-		ks, done = nk, nd
-		if !refined {
-			break
-		}
-	}
+		zi, _ := n.gradInterp(a, b, m.t, true)
+		return m, math.Abs(zi - m.z)
+	})
+	evals += splits
 	// Store: points at the knots and the month boundaries between them.
 	kinks := n.kinks(lo.t, hi.t)
 	pt := probitTable{kinks: len(kinks), worst: worst, evals: evals}

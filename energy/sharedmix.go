@@ -185,13 +185,17 @@ func (m sharedMixture) UpperQuantile(q float64) float64 {
 	return m.solve(lo, hi, target)
 }
 
-// mixMomentTol is the relative target of the moment quadratures: of an
-// order statistic's survival (componentQuad: ∫S over its range, about 8
-// standard deviations, so the mean's error is below 1e-5 of a standard
-// deviation) and of the fallback over a mixture's survival. The moments
-// are printed to three or four digits; their stated errors (MomentError)
-// carry the quadrature's estimate.
-const mixMomentTol = 1e-6
+// componentMomentTol is the relative target of an order statistic's
+// moment quadrature (componentQuad: ∫S over its range, about 8 standard
+// deviations, so the mean's error is below 1e-5 of a standard deviation);
+// the moments are printed to three or four digits and their stated errors
+// (MomentError) carry the quadrature's estimate. mixMomentTol is the
+// fallback's over a mixture's survival (mixtures of other laws, as
+// before).
+const (
+	componentMomentTol = 1e-6
+	mixMomentTol       = 1e-8
+)
 
 func (m sharedMixture) moments() {
 	m.lz.once.Do(func() {
@@ -226,7 +230,7 @@ func componentMoments(l dist.Law) (mean, vari, meanErr, varErr float64) {
 //	E[T] − lo = ∫ S,  E[(T − lo)²] = 2∫ (t − lo)·S,
 //
 // up to its 1e-15 upper quantile, split at its median, to a relative
-// mixMomentTol; the tails beyond add at most 1e-15 of the range each
+// componentMomentTol; the tails beyond add at most 1e-15 of the range each
 // (bounded by the range itself). One component's survival rises over its
 // own narrow range, where the mixture's is a staircase of them: about 400
 // evaluations a component in the demo's first failures (splitting at the
@@ -247,7 +251,7 @@ func componentQuad(l dist.Law) (mean, vari, meanErr, varErr float64) {
 	}
 	pts := sortedUnique([]float64{lo, med, hi})
 	var v [2]float64
-	r, err := quad.BreaksVec(v[:], f, pts, quad.Options{RelTol: mixMomentTol, MaxEvals: 1 << 15})
+	r, err := quad.BreaksVec(v[:], f, pts, quad.Options{RelTol: componentMomentTol, MaxEvals: 1 << 15})
 	if err != nil && r.Evals == 0 {
 		return nan, nan, nan, nan
 	}

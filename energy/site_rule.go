@@ -7,6 +7,7 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/root"
 	"github.com/joulelaw/joulelaw/orderstat"
 )
 
@@ -715,8 +716,8 @@ func minSlope(n int64) float64 {
 var sharedProbeLevels = [...]float64{1e-6, 1e-4, 1e-3, 0.01, 0.05, 0.15, 0.3, 0.5, 0.7, 0.85, 0.95, 0.99, 0.999}
 
 // probeTimes returns the times (s) where the rule's mixture of kind's law
-// reaches sharedProbeLevels (bisection on the rule's CDF), without
-// repeats.
+// reaches sharedProbeLevels (internal/root on the probit of the rule's
+// CDF), without repeats.
 func (s *Site) probeTimes(kind lawKind, g int, k int64) []float64 {
 	var want []bool
 	if kind == kindNode || kind == kindFirst {
@@ -726,24 +727,23 @@ func (s *Site) probeTimes(kind lawKind, g int, k int64) []float64 {
 	cdf := func(t float64) float64 {
 		return s.mixZ(s.nodeZ(t, want), kind, g, k, [2]int{modeNodes, modeNodes})[0]
 	}
+	// The level's time by the library's root finder on the probit of the
+	// rule's CDF (nearly linear in t), to 1e-9 of the tables' span.
+	std := dist.MustNormal(0, 1)
+	top := cdf(s.tHi)
 	var ts []float64
 	for _, p := range sharedProbeLevels {
-		lo, hi := 0.0, s.tHi
-		if cdf(hi) < p {
+		if top < p {
 			continue
 		}
-		for range 60 {
-			m := lo + (hi-lo)/2
-			if cdf(m) >= p {
-				hi = m
-			} else {
-				lo = m
-			}
-			if hi-lo <= 1e-9*hi {
-				break
-			}
+		target := std.Quantile(p)
+		g := func(t float64) float64 { return std.Quantile(cdf(t)) - target }
+		g0 := g(0)
+		if g0 >= 0 {
+			ts = append(ts, 0)
+			continue
 		}
-		ts = append(ts, hi)
+		ts = append(ts, root.Illinois(g, 0, s.tHi, g0, g(s.tHi), 1e-9*s.tHi))
 	}
 	// Where the rule is too coarse its CDF is a staircase with a steep
 	// rise at each node's conditional law: the error is largest at the

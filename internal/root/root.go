@@ -27,7 +27,10 @@ const MaxSteps = 400
 // units), or four units in the last place of its larger end where tol is
 // finer than that. Each step takes the regula falsi point of the ends'
 // values, the value kept at an end that stays twice running being halved
-// (Illinois); it bisects instead where a value is infinite or where the
+// (Illinois), kept at least half the width asked for from either end (so
+// that a point next to the answer is followed by one that closes the
+// bracket, R. P. Brent, Algorithms for Minimization without Derivatives,
+// 1973, ch. 4); it bisects instead where a value is infinite or where the
 // bracket has not halved in the last three steps, so a step-shaped g
 // (point masses) still halves the bracket at least every fourth step.
 // About ten evaluations for a g that is nearly linear, against the forty
@@ -38,12 +41,20 @@ func Illinois(g func(float64) float64, a, b, ga, gb, tol float64) float64 {
 	width := b - a
 	stale := 0
 	for range MaxSteps {
-		if b-a <= tol || b-a <= 4*epsilon*math.Max(math.Abs(a), math.Abs(b)) || b-a <= 4*math.SmallestNonzeroFloat64 {
+		w := math.Max(tol, 4*epsilon*math.Max(math.Abs(a), math.Abs(b)))
+		if b-a <= w || b-a <= 4*math.SmallestNonzeroFloat64 {
 			break
 		}
 		x := a + (b-a)/2
 		if stale < 3 && !math.IsInf(ga, 0) && !math.IsInf(gb, 0) && gb > ga {
-			if s := b - gb*((b-a)/(gb-ga)); s > a && s < b {
+			s := b - gb*((b-a)/(gb-ga))
+			// At least half the width asked for from either end (Brent's
+			// minimal step), so that a point that lands next to the
+			// answer is followed by one that closes the bracket instead
+			// of many that creep towards it.
+			if h := w / 2; b-a > 2*h {
+				x = math.Max(a+h, math.Min(b-h, s))
+			} else if s > a && s < b {
 				x = s
 			}
 		}

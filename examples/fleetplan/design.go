@@ -1,14 +1,13 @@
 package main
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"slices"
-	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/workers"
 	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
@@ -163,22 +162,39 @@ func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*Design
 	for _, w := range d.Windows {
 		space.Windows = append(space.Windows, w.Name)
 	}
-	for gi, g := range s.Groups {
-		say("  what it takes: group %q", g.Name)
-		build := groupBuilder(s, gi)
+	// The groups' searches (each over its choices on two goroutines) and
+	// the policies, on two goroutines of the library's one pool: each job
+	// writes its own slot, so the outcome does not depend on the schedule.
+	say("  what it takes: the design search of %d groups, and the replacement policies over %s", len(s.Groups), years(d.Horizon/energy.Year))
+	dp.Groups = make([]GroupDesign, len(s.Groups))
+	dp.laws = make([]designFigData, len(s.Groups))
+	var pp PolicyPlan
+	err := workers.Run(len(s.Groups)+1, 2, func(i int) error {
+		if i == 0 {
+			var err error
+			pp, err = comparePolicies(s, laws)
+			return err
+		}
+		gi := i - 1
+		g := s.Groups[gi]
+		build := groupBuilder(s, laws.Model, gi)
 		res, err := energy.SearchDesign(energy.DesignProblem{Space: space, Target: d.Target, Count: int64(g.Nodes), Climate: s.Climate, Shared: s.Shared, Build: build})
 		if err != nil {
-			return nil, fmt.Errorf("group %q: %w", g.Name, err)
+			return fmt.Errorf("group %q: %w", g.Name, err)
 		}
 		gd, rows, err := groupDesign(s, gi, space, res, build, dp.QuantileQ)
 		if err != nil {
-			return nil, fmt.Errorf("group %q: %w", g.Name, err)
+			return fmt.Errorf("group %q: %w", g.Name, err)
 		}
-		dp.Groups = append(dp.Groups, gd)
-		dp.laws = append(dp.laws, designFigData{rows: rows})
-	}
-	say("  replacement policies over %s", years(d.Horizon/energy.Year))
-	pp, err := comparePolicies(s, laws)
+		dp.Groups[gi], dp.laws[gi] = gd, designFigData{rows: rows}
+		return nil
+	}, func(i, _ int) {
+		if i == 0 {
+			say("  what it takes: the replacement policies done")
+		} else {
+			say("  what it takes: group %q done", s.Groups[i-1].Name)
+		}
+	})
 	if err != nil {
 		return nil, err
 	}
@@ -196,9 +212,11 @@ func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*Design
 
 // groupBuilder builds group gi's nodes at a choice: the scenario with the
 // group's interval (jitter scaled with it), payload, link, cell and receive
-// window changed, the whole model built again (the group's own traffic
-// moves its collisions), and the duty-cycle limit of the uplinks.
-func groupBuilder(s scenario.Scenario, gi int) energy.Builder {
+// window changed, group gi's model built again from base, the model of s
+// (scenario.BuildGroup: the group's own traffic moves the collisions of
+// every group, solved again from base's solution), and the duty-cycle
+// limit of the uplinks.
+func groupBuilder(s scenario.Scenario, base scenario.Model, gi int) energy.Builder {
 	d := s.Design
 	return func(c energy.DesignChoice) (energy.Candidate, error) {
 		s2 := s
@@ -218,11 +236,10 @@ func groupBuilder(s scenario.Scenario, gi int) energy.Builder {
 		s2.Nodes = append(s2.Nodes, n)
 		g.Node = len(s2.Nodes) - 1
 		s2.Groups[gi] = g
-		m, err := scenario.Build(s2, nil)
+		gm, err := scenario.BuildGroup(base, s2, gi)
 		if err != nil {
 			return energy.Candidate{}, err
 		}
-		gm := m.Groups[gi]
 		cycles := make([]energy.Cycle, len(gm.AllWeights()))
 		for i := range cycles {
 			if cycles[i], err = gm.AllSettingCycle(i); err != nil {
@@ -283,19 +300,11 @@ func groupDesign(s scenario.Scenario, gi int, space energy.DesignSpace, res ener
 	slices.Sort(ivs)
 	// The rows on two goroutines, each writing its own slot.
 	rows := make([]QuantileRow, len(ivs))
-	errs := make([]error, len(ivs))
-	var wg sync.WaitGroup
-	for w := range 2 {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := w; i < len(ivs); i += 2 {
-				rows[i], errs[i] = quantileRow(s, gi, c, ivs[i], res.Target, build, qs)
-			}
-		}()
-	}
-	wg.Wait()
-	if err := errors.Join(errs...); err != nil {
+	err := workers.Run(len(ivs), 2, func(i int) (err error) {
+		rows[i], err = quantileRow(s, gi, c, ivs[i], res.Target, build, qs)
+		return err
+	}, nil)
+	if err != nil {
 		return gd, nil, err
 	}
 	gd.Quantiles = rows

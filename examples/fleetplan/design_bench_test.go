@@ -3,6 +3,8 @@ package main
 import (
 	"testing"
 
+	"github.com/joulelaw/joulelaw/internal/testref"
+
 	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
@@ -18,6 +20,7 @@ func BenchmarkWhatItTakes(b *testing.B) {
 		b.Fatal(err)
 	}
 	b.ReportAllocs()
+	defer testref.ReportCPU(b)()
 	for b.Loop() {
 		if _, err := buildDesign(s, laws, func(string, ...any) {}); err != nil {
 			b.Fatal(err)
@@ -28,5 +31,6 @@ func BenchmarkWhatItTakes(b *testing.B) {
 func BenchmarkDemoWithoutDesign(b *testing.B) {
 	s := scenario.Demo()
 	s.Design = nil
+	defer testref.ReportCPU(b)()
 	benchPlan(b, s)
 }

@@ -126,68 +126,12 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 		return Model{}, err
 	}
 	m := Model{Scenario: s, Groups: make([]GroupModel, len(s.Groups))}
-	pl := lora.PathLoss{
-		Reference:   s.Environment.ReferenceLoss,
-		RefDistance: s.Environment.ReferenceDistance,
-		Exponent:    s.Environment.LossExponent,
-		Shadowing:   s.Environment.ShadowingSD,
-	}
+	pl := s.pathLoss()
 	for i, g := range s.Groups {
 		say("settling ADR for group %q", g.Name)
-		gm := GroupModel{Group: g, Node: s.NodeOf(g), Cell: s.CellOf(g)}
-		var err error
-		if gm.Battery, err = energy.NewBattery(gm.Cell.Spec); err != nil {
-			return Model{}, &FieldError{Field: index("cells", g.Cell), Value: gm.Cell.Spec.Name, Rule: "rejected by the battery model", Cause: err}
-		}
-		d, err := lora.NewAnnulus(g.InnerRadius, g.OuterRadius)
+		gm, err := newGroupModel(s, i, pl, nil)
 		if err != nil {
-			return Model{}, groupError(i, g.Name, err)
-		}
-		gm.Link = lora.Link{Distance: d, PathLoss: pl, GatewayGain: s.Environment.GatewayGain, NoiseFigure: s.Environment.NoiseFigure, Margin: s.Environment.InstallationMargin}
-		gm.Settled, err = lora.SettleADR(s.Region, gm.Link, lora.ADRConfig{})
-		if err != nil {
-			return Model{}, groupError(i, g.Name, err)
-		}
-		gm.OutOfReach = gm.Settled.OutOfReach()
-		slow := slices.Min(s.Region.ADRDataRates())
-		full, err := s.Region.TXPower(0)
-		if err != nil {
-			return Model{}, groupError(i, g.Name, err)
-		}
-		gm.Unheard = lora.Setting{DR: slow, TXPower: 0, EIRP: full}
-		switch u := gm.OutOfReach; {
-		case 1-u < UnheardFloor:
-			gm.Unheard.Prob = 1
-		case u >= UnheardFloor:
-			gm.Unheard.Prob = u
-		}
-		if gm.Unheard.Prob < 1 {
-			reach, err := gm.Settled.Reachable()
-			if err != nil {
-				return Model{}, groupError(i, g.Name, err)
-			}
-			for _, st := range reach {
-				if st.Prob > 0 {
-					gm.Settings = append(gm.Settings, st)
-				}
-			}
-		}
-		if len(gm.Settings) == 0 && gm.Unheard.Prob == 0 {
-			return Model{}, groupError(i, g.Name, fmt.Errorf("no setting has positive probability (out of reach %g)", gm.OutOfReach))
-		}
-		share := map[int]float64{}
-		for _, st := range gm.Settings {
-			share[st.DR] += st.Prob
-		}
-		for _, dr := range s.Region.ADRDataRates() {
-			if share[dr] <= 0 {
-				continue
-			}
-			air, err := s.Region.UplinkAirtime(dr, g.Payload, 0)
-			if err != nil {
-				return Model{}, groupError(i, g.Name, err)
-			}
-			gm.PerDR = append(gm.PerDR, DRModel{DR: dr, Share: share[dr], Airtime: air, Frames: 1, RX1Sent: 1, RX2Sent: 1})
+			return Model{}, err
 		}
 		m.Groups[i] = gm
 	}
@@ -202,6 +146,83 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 		}
 	}
 	return m, nil
+}
+
+// pathLoss returns the site's log-distance path loss.
+func (s Scenario) pathLoss() lora.PathLoss {
+	return lora.PathLoss{
+		Reference:   s.Environment.ReferenceLoss,
+		RefDistance: s.Environment.ReferenceDistance,
+		Exponent:    s.Environment.LossExponent,
+		Shadowing:   s.Environment.ShadowingSD,
+	}
+}
+
+// newGroupModel sets up group i of s before the collision solve: its node,
+// cell and battery, its link and the ADR law settled on it (settled, when
+// not nil, is that law already settled on the same link and region), the
+// settings in reach and out of reach, and one PerDR entry per data rate in
+// use with its airtime (no collisions yet: one frame a report, every
+// answer sent). pl is the site's path loss.
+func newGroupModel(s Scenario, i int, pl lora.PathLoss, settled *lora.Settled) (GroupModel, error) {
+	g := s.Groups[i]
+	gm := GroupModel{Group: g, Node: s.NodeOf(g), Cell: s.CellOf(g)}
+	var err error
+	if gm.Battery, err = energy.NewBattery(gm.Cell.Spec); err != nil {
+		return GroupModel{}, &FieldError{Field: index("cells", g.Cell), Value: gm.Cell.Spec.Name, Rule: "rejected by the battery model", Cause: err}
+	}
+	d, err := lora.NewAnnulus(g.InnerRadius, g.OuterRadius)
+	if err != nil {
+		return GroupModel{}, groupError(i, g.Name, err)
+	}
+	gm.Link = lora.Link{Distance: d, PathLoss: pl, GatewayGain: s.Environment.GatewayGain, NoiseFigure: s.Environment.NoiseFigure, Margin: s.Environment.InstallationMargin}
+	if settled != nil {
+		gm.Settled = *settled
+	} else if gm.Settled, err = lora.SettleADR(s.Region, gm.Link, lora.ADRConfig{}); err != nil {
+		return GroupModel{}, groupError(i, g.Name, err)
+	}
+	gm.OutOfReach = gm.Settled.OutOfReach()
+	slow := slices.Min(s.Region.ADRDataRates())
+	full, err := s.Region.TXPower(0)
+	if err != nil {
+		return GroupModel{}, groupError(i, g.Name, err)
+	}
+	gm.Unheard = lora.Setting{DR: slow, TXPower: 0, EIRP: full}
+	switch u := gm.OutOfReach; {
+	case 1-u < UnheardFloor:
+		gm.Unheard.Prob = 1
+	case u >= UnheardFloor:
+		gm.Unheard.Prob = u
+	}
+	if gm.Unheard.Prob < 1 {
+		reach, err := gm.Settled.Reachable()
+		if err != nil {
+			return GroupModel{}, groupError(i, g.Name, err)
+		}
+		for _, st := range reach {
+			if st.Prob > 0 {
+				gm.Settings = append(gm.Settings, st)
+			}
+		}
+	}
+	if len(gm.Settings) == 0 && gm.Unheard.Prob == 0 {
+		return GroupModel{}, groupError(i, g.Name, fmt.Errorf("no setting has positive probability (out of reach %g)", gm.OutOfReach))
+	}
+	share := map[int]float64{}
+	for _, st := range gm.Settings {
+		share[st.DR] += st.Prob
+	}
+	for _, dr := range s.Region.ADRDataRates() {
+		if share[dr] <= 0 {
+			continue
+		}
+		air, err := s.Region.UplinkAirtime(dr, g.Payload, 0)
+		if err != nil {
+			return GroupModel{}, groupError(i, g.Name, err)
+		}
+		gm.PerDR = append(gm.PerDR, DRModel{DR: dr, Share: share[dr], Airtime: air, Frames: 1, RX1Sent: 1, RX2Sent: 1})
+	}
+	return gm, nil
 }
 
 // solveCollisions fills Load, Vulnerable, UplinkSuccess, Frames and Windows

@@ -100,8 +100,22 @@ type DesignProblem struct {
 	Target  Target
 	Count   int64        // the group's nodes, for GroupFlat; in [1, orderstat.MaxCount] (ignored by the node targets)
 	Climate *Climate     // the site's year of temperature; nil for the reference temperature
-	Shared  SharedSpread // the shared factors (mixed over as Site does)
-	Build   Builder
+	Shared  SharedSpread // the shared factors
+	// Rule is the rule over the shared factors that each candidate's node
+	// law is mixed over; the zero value means FixedSharedRule(Shared).
+	// Given a Site's (Site.SharedRule), the search evaluates a candidate
+	// as that Site evaluates its groups (fleetplan passes its plan's), and
+	// Shared is then only checked.
+	Rule  SharedRule
+	Build Builder
+}
+
+// rule returns the rule over the shared factors the search uses.
+func (p DesignProblem) rule() SharedRule {
+	if p.Rule.Len() > 0 {
+		return p.Rule
+	}
+	return fixedSharedRule(p.Shared)
 }
 
 // Binding says what sets a design's answer.
@@ -161,12 +175,19 @@ type Design struct {
 // reading interval that meets p.Target, and the best choice.
 //
 // The figure p(I) falls as the interval I grows (a node spends less). The
-// search builds the candidate at I, its node law at each of the shared
-// factors' Gauss–Hermite nodes (as Site does) and p with its stated error ε
-// (NodeLifetime's CDF error probed at the date, propagated for a group; see
-// TargetKind), and takes a choice as meeting the target only when p + ε <=
-// Level: the interval returned meets the target whenever the stated error
-// holds. It evaluates the shortest allowed interval (the larger of
+// search builds the candidate at I, its node law at each node of the rule
+// over the shared factors (p.Rule: a Site's own, so that the search and
+// the Site agree; or the fixed Gauss–Hermite rule over p.Shared) and p
+// with its stated error ε (NodeLifetime's CDF error probed at the date,
+// propagated for a group; see TargetKind), and takes a choice as meeting
+// the target only when p + ε <= Level: the interval returned meets the
+// target whenever the stated error holds. While it bisects on p alone it
+// builds the nodes' laws one by one, the one that narrows the bounds on p
+// most first, and stops as soon as the bounds decide p <= Level (a node's
+// life shortens as its batch factor falls, so the laws built bound the
+// others of the same temperature offset): most candidates far from the
+// answer take a few laws; the decisions, and so the answer, are those of
+// the full p. It evaluates the shortest allowed interval (the larger of
 // Space.MinInterval and the candidate's MinInterval) and Space.MaxInterval,
 // then bisects geometrically (√(lo·hi)) on p alone until hi/lo − 1 <=
 // Tolerance, asking for ε only where it decides: at the ends found (going
@@ -193,8 +214,10 @@ func SearchDesign(p DesignProblem) (Design, error) {
 		return Design{}, err
 	}
 	d := Design{Target: p.Target, Results: make([]DesignResult, len(choices))}
+	months := &monthCache{}
+	rule := p.rule()
 	err = forEachOnTwo(len(choices), func(i int) (err error) {
-		d.Results[i], err = p.searchChoice(fn, choices[i], tol)
+		d.Results[i], err = p.searchChoice(fn, choices[i], tol, rule, months)
 		return err
 	})
 	if err != nil {
@@ -282,12 +305,15 @@ func (p DesignProblem) check(fn string) ([]DesignChoice, float64, error) {
 	return choices, tol, nil
 }
 
-// evaluation is the target's figure at one interval; eps is NaN until
-// asked for.
+// evaluation is the target's figure at one interval: whether p meets the
+// level (decided from as few laws as decide needs), p itself once every
+// law is built (NaN before), and its stated error eps (NaN until asked
+// for).
 type evaluation struct {
 	interval float64
+	meets    bool
 	p, eps   float64
-	laws     targetLaws
+	laws     *targetLaws
 }
 
 // searchChoice bisects one discrete choice's interval: first on p alone
@@ -295,15 +321,22 @@ type evaluation struct {
 // the error: when p + ε still meets the level there the bracket stands,
 // otherwise the search goes on to the right with ε at every step. The
 // optimistic end (p − ε) is bracketed the same way.
-func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64) (DesignResult, error) {
+func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule SharedRule, months *monthCache) (DesignResult, error) {
 	builds := 0
 	minDuty := math.NaN()
 	var evals []evaluation
+	full := func(e *evaluation) (err error) {
+		e.p, e.eps, err = e.laws.figure(p.Target, p.Count, true)
+		e.meets = e.p <= p.Target.Level
+		return err
+	}
 	eval := func(iv float64, withErr bool) (evaluation, error) {
 		for i, e := range evals {
 			if e.interval == iv {
 				if withErr && math.IsNaN(e.eps) {
-					e.p, e.eps = e.laws.figure(p.Target, p.Count, true)
+					if err := full(&e); err != nil {
+						return evaluation{}, err
+					}
 					evals[i] = e
 				}
 				return e, nil
@@ -325,15 +358,19 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64) (Des
 		if math.IsNaN(minDuty) {
 			minDuty = cand.MinInterval
 		}
-		tl, err := newTargetLaws(fn, cand.Node, p.Climate, p.Shared)
+		tl, err := newTargetLaws(fn, cand.Node, p.Climate, rule, months, p.Target.Date)
 		if err != nil {
 			return evaluation{}, err
 		}
-		pr, eps := tl.figure(p.Target, p.Count, withErr)
-		if !withErr {
-			eps = math.NaN()
+		e := evaluation{interval: iv, p: math.NaN(), eps: math.NaN(), laws: tl}
+		if withErr {
+			err = full(&e)
+		} else {
+			e.meets, err = tl.decide(p.Target, p.Count)
 		}
-		e := evaluation{interval: iv, p: pr, eps: eps, laws: tl}
+		if err != nil {
+			return evaluation{}, err
+		}
 		evals = append(evals, e)
 		return e, nil
 	}
@@ -363,7 +400,7 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64) (Des
 	case lo > s.MaxInterval:
 		// The radio rules forbid every interval of the range.
 		return infeasible(BindDutyCycle)
-	case hiE.p > lev:
+	case !hiE.meets:
 		return infeasible(BindEnergy)
 	}
 	// The stated error at the lower end only when p alone meets the level
@@ -372,7 +409,7 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64) (Des
 	if err != nil {
 		return DesignResult{}, err
 	}
-	if loE.p <= lev {
+	if loE.meets {
 		if loE, err = eval(lo, true); err != nil {
 			return DesignResult{}, err
 		}
@@ -405,8 +442,8 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64) (Des
 	conservative := func(e evaluation) bool { return e.p+e.eps <= lev }
 	// On p alone (p > lev fails p + ε too), then with ε.
 	b := loE
-	if loE.p > lev {
-		if _, b, err = bisect(loE, hiE, false, func(e evaluation) bool { return e.p <= lev }); err != nil {
+	if !loE.meets {
+		if _, b, err = bisect(loE, hiE, false, func(e evaluation) bool { return e.meets }); err != nil {
 			return DesignResult{}, err
 		}
 	}
@@ -427,10 +464,10 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64) (Des
 	// The optimistic end: the largest interval where p − ε still fails.
 	oa, ob := 0.0, b.interval
 	for _, e := range evals {
-		if e.p > lev && e.interval > oa {
+		if !e.meets && e.interval > oa {
 			oa = e.interval
 		}
-		if e.p <= lev {
+		if e.meets {
 			ob = math.Min(ob, e.interval)
 		}
 	}

@@ -3,6 +3,8 @@ package energy
 import (
 	"fmt"
 	"math"
+	"reflect"
+	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
 )
@@ -62,78 +64,262 @@ func (t Target) check(fn, pre string) error {
 	return nil
 }
 
-// sharedRule returns the shared factors' quadrature nodes and weights: the
-// Gauss–Hermite rule Site uses (sharedNodesBatch × sharedNodesTemperature
-// nodes, one for a factor without spread).
-func sharedRule(sh SharedSpread) ([]Conditions, []float64) {
-	bz, bw := hermiteNodes(sh.Batch, sharedNodesBatch)
-	tz, tw := hermiteNodes(sh.Temperature, sharedNodesTemperature)
-	var conds []Conditions
-	var w []float64
-	for i := range bz {
-		for j := range tz {
-			conds = append(conds, Conditions{BatchFactor: 1 + sh.Batch*bz[i], TemperatureOffset: sh.Temperature * tz[j]})
-			w = append(w, bw[i]*tw[j])
-		}
-	}
-	return conds, w
-}
-
-// targetLaws is a candidate's node law at every shared node.
+// targetLaws is a candidate's node law at each node of the shared rule,
+// each built when first needed, with its CDF at the target's date. The
+// search decides most candidates from a few of them (decide); the stated
+// error, the figure and the quantiles take them all (all). Not safe for
+// concurrent use: each belongs to one search goroutine.
 type targetLaws struct {
+	fn       string
+	spec     NodeSpec
+	clim     *Climate
+	months   *monthCache
+	conds    []Conditions
 	w        []float64
-	laws     []NodeLifetime
-	calendar float64 // s; +Inf for none
+	date     float64        // s: the date of cdf
+	laws     []NodeLifetime // laws[e].n is nil until built
+	cdf      []float64      // F_e(date); NaN until built
+	calendar float64        // s; +Inf for none
+	// lower and higher are, per node, the node of the same temperature
+	// offset with the next lower and next higher batch factor (−1: none).
+	lower, higher []int
 }
 
-func newTargetLaws(fn string, spec NodeSpec, clim *Climate, sh SharedSpread) (targetLaws, error) {
-	conds, w := sharedRule(sh)
-	tl := targetLaws{w: w, laws: make([]NodeLifetime, len(conds))}
-	for e, c := range conds {
-		l, err := NewNodeLifetime(spec, Environment{Climate: clim, Conditions: c})
-		if err != nil {
-			return targetLaws{}, causeErr(fn, "candidate node", spec.Name, "lifetime law", err)
+// newTargetLaws returns the candidate spec's laws at rule's nodes for the
+// date (s), building the heaviest node's at once (its errors are the
+// candidate's; the others' come from build).
+func newTargetLaws(fn string, spec NodeSpec, clim *Climate, rule SharedRule, months *monthCache, date float64) (*targetLaws, error) {
+	n := len(rule.w)
+	tl := &targetLaws{fn: fn, spec: spec, clim: clim, months: months, conds: rule.conds, w: rule.w, date: date,
+		laws: make([]NodeLifetime, n), cdf: make([]float64, n), lower: make([]int, n), higher: make([]int, n)}
+	heavy := 0
+	for e := range n {
+		tl.cdf[e] = math.NaN()
+		tl.lower[e], tl.higher[e] = -1, -1
+		if rule.w[e] > rule.w[heavy] {
+			heavy = e
 		}
-		tl.laws[e] = l
+		b := rule.conds[e].batch()
+		for f := range n {
+			c := rule.conds[f]
+			if f == e || c.TemperatureOffset != rule.conds[e].TemperatureOffset {
+				continue
+			}
+			if c.batch() < b && (tl.lower[e] < 0 || c.batch() > rule.conds[tl.lower[e]].batch()) {
+				tl.lower[e] = f
+			}
+			if c.batch() > b && (tl.higher[e] < 0 || c.batch() < rule.conds[tl.higher[e]].batch()) {
+				tl.higher[e] = f
+			}
+		}
 	}
-	tl.calendar = tl.laws[0].Calendar()
+	if err := tl.build(heavy); err != nil {
+		return nil, err
+	}
+	tl.calendar = tl.laws[heavy].Calendar()
 	return tl, nil
+}
+
+// build builds node e's law (once).
+func (tl *targetLaws) build(e int) error {
+	if tl.laws[e].n != nil {
+		return nil
+	}
+	env := Environment{Climate: tl.clim, Conditions: tl.conds[e]}
+	mt, err := tl.months.get(tl.fn, tl.spec, env)
+	if err == nil {
+		env.months = mt
+		tl.laws[e], err = NewNodeLifetime(tl.spec, env)
+	}
+	if err != nil {
+		return causeErr(tl.fn, "candidate node", tl.spec.Name, fmt.Sprintf("lifetime law at batch factor %.4g and temperature offset %+.3g °C", env.batch(), env.TemperatureOffset), err)
+	}
+	tl.cdf[e] = tl.laws[e].CDF(tl.date)
+	return nil
+}
+
+// all builds every node's law.
+func (tl *targetLaws) all() error {
+	for e := range tl.laws {
+		if err := tl.build(e); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// nodeFigure is the target's figure for one node of CDF f at the date:
+// f, or for a group of count nodes 1 − (1 − f)^count (from log1p, so a
+// small f keeps its digits); non-decreasing in f.
+func nodeFigure(t Target, count int64, f float64) float64 {
+	if t.Kind == GroupFlat {
+		return -math.Expm1(float64(count) * math.Log1p(-f))
+	}
+	return f
+}
+
+// bounds returns bounds on p (see TargetKind) from the laws built so far,
+// and the node not yet built whose law would narrow them most (−1 when all
+// are built, and lo = hi = p). A node's life shortens as its batch factor
+// falls, everything else equal (the factor scales the usable capacity and
+// the self-discharge alike, see Conditions; the calendar limit does not
+// depend on it), so F_e(date) lies between the CDFs of the nearest built
+// nodes of the same temperature offset with a higher and a lower batch
+// factor (0 and 1 where there are none).
+func (tl *targetLaws) bounds(t Target, count int64) (lo, hi float64, next int) {
+	next = -1
+	widest := -1.0
+	for e, f := range tl.cdf {
+		fl, fh := f, f
+		if math.IsNaN(f) {
+			fl, fh = 0, 1
+			for g := tl.higher[e]; g >= 0; g = tl.higher[g] {
+				if !math.IsNaN(tl.cdf[g]) {
+					fl = tl.cdf[g]
+					break
+				}
+			}
+			for g := tl.lower[e]; g >= 0; g = tl.lower[g] {
+				if !math.IsNaN(tl.cdf[g]) {
+					fh = tl.cdf[g]
+					break
+				}
+			}
+		}
+		a, b := tl.w[e]*nodeFigure(t, count, fl), tl.w[e]*nodeFigure(t, count, fh)
+		lo += a
+		hi += b
+		if math.IsNaN(f) && b-a > widest {
+			next, widest = e, b-a
+		}
+	}
+	return lo, hi, next
+}
+
+// decide tells whether p <= t.Level, building laws only until the bounds
+// decide it with a margin of 1e-3·Level (against rounding in the
+// conditional laws' ordering), or all of them. The answer is the one the
+// full p gives: the bounds hold for the computed laws up to their errors,
+// far below the margin.
+func (tl *targetLaws) decide(t Target, count int64) (bool, error) {
+	if t.Date >= tl.calendar {
+		return false, nil // p = 1
+	}
+	margin := 1e-3 * t.Level
+	for {
+		lo, hi, next := tl.bounds(t, count)
+		switch {
+		case next < 0:
+			return math.Min(1, math.Max(0, hi)) <= t.Level, nil
+		case hi <= t.Level-margin:
+			return true, nil
+		case lo > t.Level+margin:
+			return false, nil
+		}
+		if err := tl.build(next); err != nil {
+			return false, err
+		}
+	}
+}
+
+// monthCache holds the month tables (newMonthTable) of the candidates of
+// one search, by Thermal, deployment month and shifted climate: the
+// candidates of a cell share its tables whatever their interval, link or
+// batch. A table is a function of its key alone, so what the cache holds
+// never changes an answer, whatever the order in which goroutines fill
+// it. Safe for concurrent use; a nil cache computes every table.
+type monthCache struct {
+	mu      sync.Mutex
+	entries []monthEntry
+}
+
+type monthEntry struct {
+	th    Thermal
+	start int
+	clim  Climate
+	mt    *monthTable
+}
+
+// get returns the month table of spec in env (nil when spec has no
+// Thermal, or when env's conditions are bad: newNode reports those).
+func (c *monthCache) get(fn string, spec NodeSpec, env Environment) (*monthTable, error) {
+	th := spec.Thermal
+	if th == nil || env.Conditions.check(fn) != nil {
+		return nil, nil
+	}
+	pre := "spec."
+	if spec.Name != "" {
+		pre = fmt.Sprintf("spec %q: ", spec.Name)
+	}
+	if c == nil {
+		return newMonthTable(fn, pre, spec, env)
+	}
+	clim, err := shiftedClimate(fn, th, env)
+	if err != nil {
+		return nil, err
+	}
+	find := func() *monthTable {
+		for _, e := range c.entries {
+			if e.start == spec.StartMonth && e.clim == clim && reflect.DeepEqual(e.th, *th) {
+				return e.mt
+			}
+		}
+		return nil
+	}
+	c.mu.Lock()
+	mt := find()
+	c.mu.Unlock()
+	if mt != nil {
+		return mt, nil
+	}
+	if mt, err = newMonthTable(fn, pre, spec, env); err != nil {
+		return nil, err
+	}
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if old := find(); old != nil {
+		return old, nil // another goroutine's table, equal to this one
+	}
+	c.entries = append(c.entries, monthEntry{th: *th, start: spec.StartMonth, clim: clim, mt: mt})
+	return mt, nil
 }
 
 // figure returns p, the target's probability (see TargetKind), and, when
 // withErr is set, its stated error: each conditional law's CDF error at T
 // (NodeLifetime's five-cumulant check and quadrature estimates, probed at T
 // itself), weighted, and for a group propagated through 1 − (1 − F)^n,
-// whose slope is n·(1 − F)^(n−1). The Gauss–Hermite rule over the shared
-// factors is not included (see Site). The error costs about as much as
-// the rest, so the search asks for it only where it decides.
-func (tl targetLaws) figure(t Target, count int64, withErr bool) (p, errEst float64) {
+// whose slope is n·(1 − F)^(n−1). The rule over the shared factors is not
+// included (see Site). The error costs about as much as the rest, so the
+// search asks for it only where it decides. It builds every node's law;
+// t.Date must be the date tl was made for.
+func (tl *targetLaws) figure(t Target, count int64, withErr bool) (p, errEst float64, err error) {
+	if err := tl.all(); err != nil {
+		return 0, 0, err
+	}
 	T := t.Date
 	if T >= tl.calendar {
-		return 1, 0
+		return 1, 0, nil
 	}
 	n := float64(count)
 	for e, l := range tl.laws {
-		f := l.CDF(T)
+		f := tl.cdf[e]
 		eps := 0.0
 		if withErr {
 			eps = l.accuracyAt([]float64{T}).CDFAbs
 		}
-		switch t.Kind {
-		case GroupFlat:
-			// 1 − (1 − F)^n, from log1p so a small F keeps its digits.
-			p += tl.w[e] * -math.Expm1(n*math.Log1p(-f))
+		p += tl.w[e] * nodeFigure(t, count, f)
+		if t.Kind == GroupFlat {
 			errEst += tl.w[e] * n * math.Exp((n-1)*math.Log1p(-math.Min(1, math.Max(0, f-eps)))) * eps
-		default:
-			p += tl.w[e] * f
+		} else {
 			errEst += tl.w[e] * eps
 		}
 	}
-	return math.Min(1, math.Max(0, p)), errEst
+	return math.Min(1, math.Max(0, p)), errEst, nil
 }
 
-// nodeLaw is the mixture over the shared factors of the conditional laws.
-func (tl targetLaws) nodeLaw(name string) dist.Law {
+// nodeLaw is the mixture over the shared factors of the conditional laws
+// (all built: see all).
+func (tl *targetLaws) nodeLaw(name string) sharedMixture {
 	laws := make([]dist.Law, len(tl.laws))
 	for i, l := range tl.laws {
 		laws[i] = l
@@ -154,7 +340,10 @@ func MixedNodeLifetime(spec NodeSpec, clim *Climate, shared SharedSpread) (dist.
 	if err := shared.check(fn); err != nil {
 		return nil, err
 	}
-	tl, err := newTargetLaws(fn, spec, clim, shared)
+	tl, err := newTargetLaws(fn, spec, clim, fixedSharedRule(shared), &monthCache{}, 0)
+	if err == nil {
+		err = tl.all()
+	}
 	if err != nil {
 		return nil, err
 	}

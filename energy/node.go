@@ -72,6 +72,10 @@ type Environment struct {
 	// reference temperature all year (used only with NodeSpec.Thermal).
 	Climate *Climate
 	Conditions
+	// months, when not nil, is newMonthTable's table for the spec's
+	// Thermal and StartMonth in this climate and offset, computed once
+	// for many specs that share them (the design search's candidates).
+	months *monthTable
 }
 
 // node is the precomputed model of one group's nodes in one environment.
@@ -177,31 +181,17 @@ func newNode(fn string, spec NodeSpec, env Environment) (*node, error) {
 	for i := range 12 {
 		n.floorRate[i], n.sdFactor[i] = 1, 1
 	}
-	if th := spec.Thermal; th != nil {
-		clim := env.Climate
-		if clim == nil {
-			c, err := ConstantClimate(th.ReferenceTemperature)
-			if err != nil {
-				return nil, causeErr(fn, "env.Climate", nil, "reference climate", err)
+	if spec.Thermal != nil {
+		mt := env.months
+		if mt == nil {
+			var err error
+			if mt, err = newMonthTable(fn, pre, spec, env); err != nil {
+				return nil, err
 			}
-			clim = &c
 		}
-		shifted := clim.Shift(env.TemperatureOffset)
-		n.warnings = append(n.warnings, th.RangeWarnings(shifted)...)
-		sw := shifted.DailySwing()
-		sum := 0.0
-		for i := range 12 {
-			t := shifted.Month((spec.StartMonth + i) % 12)
-			n.floorRate[i] = th.FloorFactor(t, sw)
-			n.sdFactor[i] = th.SelfDischargeFactor(t, sw)
-			d, err := th.CapacityFactor(t)
-			if err != nil {
-				return nil, causeErr(fn, pre+"Thermal.Derating", t, fmt.Sprintf("derating at the month %d's temperature", (spec.StartMonth+i)%12), err)
-			}
-			sum += d
-			coldest = math.Min(coldest, t-sw/2)
-		}
-		derate = sum / 12
+		n.warnings = append(n.warnings, mt.warnings...)
+		n.floorRate, n.sdFactor = mt.floorRate, mt.sdFactor
+		derate, coldest = mt.derate, mt.coldest
 	}
 	for i := range 12 {
 		n.floorCum[i+1] = n.floorCum[i] + Month*n.floorRate[i]

@@ -4,8 +4,8 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"sync"
 
-	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
 	"github.com/joulelaw/joulelaw/internal/workers"
 	"github.com/joulelaw/joulelaw/radio/lora/scenario"
@@ -168,6 +168,10 @@ func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*Design
 	say("  what it takes: the design search of %d groups, and the replacement policies over %s", len(s.Groups), years(d.Horizon/energy.Year))
 	dp.Groups = make([]GroupDesign, len(s.Groups))
 	dp.laws = make([]designFigData, len(s.Groups))
+	// The candidates' laws are mixed over the plan's own rule over the
+	// shared factors (the Site adapts it to the site): the search's figure
+	// at the scenario's design is the plan's.
+	rule := laws.Site.SharedRule()
 	var pp PolicyPlan
 	err := workers.Run(len(s.Groups)+1, 2, func(i int) error {
 		if i == 0 {
@@ -177,12 +181,13 @@ func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*Design
 		}
 		gi := i - 1
 		g := s.Groups[gi]
-		build := groupBuilder(s, laws.Model, gi)
-		res, err := energy.SearchDesign(energy.DesignProblem{Space: space, Target: d.Target, Count: int64(g.Nodes), Climate: s.Climate, Shared: s.Shared, Build: build})
+		prob := energy.DesignProblem{Space: space, Target: d.Target, Count: int64(g.Nodes), Climate: s.Climate, Shared: s.Shared,
+			Rule: rule, Build: groupBuilder(s, laws.Model, gi)}
+		res, err := energy.SearchDesign(prob)
 		if err != nil {
 			return fmt.Errorf("group %q: %w", g.Name, err)
 		}
-		gd, rows, err := groupDesign(s, gi, space, res, build, dp.QuantileQ)
+		gd, rows, err := groupDesign(s, gi, prob, res, dp.QuantileQ)
 		if err != nil {
 			return fmt.Errorf("group %q: %w", g.Name, err)
 		}
@@ -216,9 +221,39 @@ func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*Design
 // (scenario.BuildGroup: the group's own traffic moves the collisions of
 // every group, solved again from base's solution), and the duty-cycle
 // limit of the uplinks.
+//
+// The radio side of a candidate (the group's model, its cycles and its
+// duty-cycle limit) does not depend on the cell, so it is built once per
+// interval, batch, link and window and shared by the cells' candidates
+// (the searches of two cells meet at the range's ends and the first
+// midpoints, the quantile table at its geometric steps): a memo safe for
+// concurrent use, each entry built once; an entry is a function of its
+// key alone, so what is shared never changes an answer, whatever the
+// schedule. It holds at most one entry per candidate built.
 func groupBuilder(s scenario.Scenario, base scenario.Model, gi int) energy.Builder {
 	d := s.Design
-	return func(c energy.DesignChoice) (energy.Candidate, error) {
+	type key struct {
+		period float64
+		batch  int
+		link   energy.Link
+		window int
+	}
+	type radio struct {
+		once   sync.Once
+		gm     scenario.GroupModel
+		cycles []energy.Cycle
+		minI   float64 // s between uplinks
+		err    error
+	}
+	var mu sync.Mutex
+	memo := map[key]*radio{}
+	batteries := make([]energy.Battery, len(d.Cells))
+	batteryErrs := make([]error, len(d.Cells))
+	for i, ci := range d.Cells {
+		batteries[i], batteryErrs[i] = energy.NewBattery(s.Cells[ci].Spec)
+	}
+	// scenarioAt is s with group gi at the choice.
+	scenarioAt := func(c energy.DesignChoice) scenario.Scenario {
 		s2 := s
 		s2.Groups = slices.Clone(s.Groups)
 		s2.Nodes = slices.Clone(s.Nodes)
@@ -236,35 +271,66 @@ func groupBuilder(s scenario.Scenario, base scenario.Model, gi int) energy.Build
 		s2.Nodes = append(s2.Nodes, n)
 		g.Node = len(s2.Nodes) - 1
 		s2.Groups[gi] = g
+		return s2
+	}
+	build := func(r *radio, s2 scenario.Scenario) {
 		gm, err := scenario.BuildGroup(base, s2, gi)
 		if err != nil {
-			return energy.Candidate{}, err
+			r.err = err
+			return
 		}
 		cycles := make([]energy.Cycle, len(gm.AllWeights()))
 		for i := range cycles {
 			if cycles[i], err = gm.AllSettingCycle(i); err != nil {
-				return energy.Candidate{}, err
+				r.err = err
+				return
 			}
-		}
-		spec, err := gm.NodeSpec(s2, cycles)
-		if err != nil {
-			return energy.Candidate{}, err
 		}
 		duty, err := dutyPlan(s2, gm)
 		if err != nil {
-			return energy.Candidate{}, err
+			r.err = err
+			return
 		}
-		minI := 0.0
-		for _, r := range duty.Rows {
-			if !r.Used {
+		for _, row := range duty.Rows {
+			if !row.Used {
 				continue
 			}
-			if duty.SubBand == "" && !r.Feasible {
-				minI = math.Inf(1) // a dwell time broken at any interval
+			if duty.SubBand == "" && !row.Feasible {
+				r.minI = math.Inf(1) // a dwell time broken at any interval
 			}
-			minI = math.Max(minI, r.MinIntervalS)
+			r.minI = math.Max(r.minI, row.MinIntervalS)
 		}
-		return energy.Candidate{Node: spec, MinInterval: minI / float64(c.Batch)}, nil
+		r.gm, r.cycles = gm, cycles
+	}
+	return func(c energy.DesignChoice) (energy.Candidate, error) {
+		if c.Cell < 0 || c.Cell >= len(d.Cells) || c.Window < 0 || c.Window >= len(d.Windows) {
+			return energy.Candidate{}, fmt.Errorf("design choice %+v: cell or window out of range", c)
+		}
+		if batteryErrs[c.Cell] != nil {
+			return energy.Candidate{}, batteryErrs[c.Cell]
+		}
+		s2 := scenarioAt(c)
+		k := key{c.UplinkPeriod(), c.Batch, c.Link, c.Window}
+		mu.Lock()
+		r := memo[k]
+		if r == nil {
+			r = &radio{}
+			memo[k] = r
+		}
+		mu.Unlock()
+		r.once.Do(func() { build(r, s2) })
+		if r.err != nil {
+			return energy.Candidate{}, r.err
+		}
+		// The cell's side: the group's model with this choice's cell.
+		gm := r.gm
+		gm.Group.Cell = d.Cells[c.Cell]
+		gm.Cell, gm.Battery = s.Cells[d.Cells[c.Cell]], batteries[c.Cell]
+		spec, err := gm.NodeSpec(s2, r.cycles)
+		if err != nil {
+			return energy.Candidate{}, err
+		}
+		return energy.Candidate{Node: spec, MinInterval: r.minI / float64(c.Batch)}, nil
 	}
 }
 
@@ -274,7 +340,8 @@ func choiceText(space energy.DesignSpace, c energy.DesignChoice) string {
 
 // groupDesign summarises a group's search and tabulates the best choice's
 // lifetime quantiles against the reading interval.
-func groupDesign(s scenario.Scenario, gi int, space energy.DesignSpace, res energy.Design, build energy.Builder, qs [2]float64) (GroupDesign, []QuantileRow, error) {
+func groupDesign(s scenario.Scenario, gi int, prob energy.DesignProblem, res energy.Design, qs [2]float64) (GroupDesign, []QuantileRow, error) {
+	space := prob.Space
 	b := res.Results[res.Best]
 	c := b.Choice
 	gd := GroupDesign{Name: s.Groups[gi].Name, Feasible: b.Feasible, Cell: space.Cells[c.Cell], Confirmed: c.Link.Confirmed, MaxTransmissions: c.Link.Transmissions,
@@ -298,48 +365,21 @@ func groupDesign(s scenario.Scenario, gi int, space energy.DesignSpace, res ener
 		ivs = append(ivs, c.Interval)
 	}
 	slices.Sort(ivs)
-	// The rows on two goroutines, each writing its own slot.
-	rows := make([]QuantileRow, len(ivs))
-	err := workers.Run(len(ivs), 2, func(i int) (err error) {
-		rows[i], err = quantileRow(s, gi, c, ivs[i], res.Target, build, qs)
-		return err
-	}, nil)
+	// The rows (energy.DesignProblem.Profile: the candidates evaluated as
+	// the search does, on two goroutines).
+	prof, err := prob.Profile(c, ivs, qs[:])
 	if err != nil {
 		return gd, nil, err
 	}
+	rows := make([]QuantileRow, len(prof))
+	for i, r := range prof {
+		rows[i] = QuantileRow{IntervalS: r.Interval, Meets: r.Meets}
+		for k, x := range r.Quantiles {
+			rows[i].Years[k] = x / energy.Year
+		}
+	}
 	gd.Quantiles = rows
 	return gd, rows, nil
-}
-
-// quantileRow is the table's row at the interval iv of the choice c.
-func quantileRow(s scenario.Scenario, gi int, c energy.DesignChoice, iv float64, t energy.Target, build energy.Builder, qs [2]float64) (QuantileRow, error) {
-	c.Interval = iv
-	cand, err := build(c)
-	if err != nil {
-		return QuantileRow{}, err
-	}
-	l, err := energy.MixedNodeLifetime(cand.Node, s.Climate, s.Shared)
-	if err != nil {
-		return QuantileRow{}, err
-	}
-	row := QuantileRow{IntervalS: iv, Meets: meets(l, t, int64(s.Groups[gi].Nodes)) && iv >= cand.MinInterval}
-	for k, q := range qs {
-		row.Years[k] = l.Quantile(q) / energy.Year
-	}
-	return row, nil
-}
-
-// meets tells whether the node law l meets the target (without the stated
-// error: the table shows the computed figure).
-func meets(l dist.Law, t energy.Target, n int64) bool {
-	f := l.CDF(t.Date)
-	if t.Kind == energy.GroupFlat {
-		// 1 − (1 − F)^n over the mixed law: a lower bound of the group's
-		// figure given the shared factors (Jensen); the search uses the
-		// exact mixture.
-		f = -math.Expm1(float64(n) * math.Log1p(-f))
-	}
-	return f <= t.Level
 }
 
 // comparePolicies compares, over the design horizon at the plan's

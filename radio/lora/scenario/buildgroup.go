@@ -19,10 +19,13 @@ import (
 //
 //   - the ADR laws of the other groups, and group gi's when its placement
 //     (radii) is unchanged, are base's (they depend on the link alone);
-//   - the collision and retransmission solve starts from base's solution
-//     (the other groups' loads and group gi's own per data rate) instead
-//     of from one frame a report: a candidate moves the loads a little,
-//     and the rounds settle in fewer steps;
+//   - the collision and retransmission solve runs over the groups of
+//     group gi's gateway alone (the groups of other gateways neither load
+//     its channels nor book its answers: theirs stay base's; over all of
+//     them when group gi moves to another gateway), and starts
+//     from base's solution (the other groups' loads and group gi's own per
+//     data rate) instead of from one frame a report: a candidate moves the
+//     loads a little, and the rounds settle in fewer steps;
 //   - only group gi's class A cycle is described.
 //
 // When s differs from base's scenario anywhere else (the region, the
@@ -64,7 +67,11 @@ func BuildGroup(base Model, s Scenario, gi int) (GroupModel, error) {
 		}
 	}
 	m.Groups[gi] = gm
-	if err := m.solveCollisions(); err != nil {
+	only := g.Gateway
+	if g.Gateway != bg.Gateway {
+		only = -1 // both gateways' loads move: solve them all
+	}
+	if err := m.solveCollisions(only); err != nil {
 		return GroupModel{}, err
 	}
 	if err := m.Groups[gi].describe(s); err != nil {

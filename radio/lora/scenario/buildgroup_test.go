@@ -13,7 +13,8 @@ import (
 // BuildGroup against Build (the oracle: the whole model built from
 // scratch) for the changes a design search makes to one group — interval,
 // payload, confirmed uplinks, cell, receive window (a node appended),
-// placement — and for a scenario that differs elsewhere (built in full).
+// placement, gateway — and for a scenario that differs elsewhere (built
+// in full).
 // The two solves stop at a change below 1e-13 between rounds from
 // different starting points, and the rounds contract by a factor of about
 // 0.004 in the demo, so they agree to about 1e-13 (tolerance 1e-11
@@ -38,7 +39,10 @@ func TestBuildGroupAsBuild(t *testing.T) {
 			s.Nodes = append(s.Nodes, n)
 			s.Groups[gi].Node = len(s.Nodes) - 1
 		},
-		"placement":   func(s *scenario.Scenario, gi int) { s.Groups[gi].OuterRadius *= 1.5 },
+		"placement": func(s *scenario.Scenario, gi int) { s.Groups[gi].OuterRadius *= 1.5 },
+		"gateway": func(s *scenario.Scenario, gi int) {
+			s.Groups[gi].Gateway = (s.Groups[gi].Gateway + 1) % len(s.Gateways)
+		},
 		"environment": func(s *scenario.Scenario, gi int) { s.Environment.ShadowingSD += 1 },
 		"other group": func(s *scenario.Scenario, gi int) { s.Groups[(gi+1)%len(s.Groups)].Interval /= 2 },
 	}

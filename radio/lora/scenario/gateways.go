@@ -144,10 +144,11 @@ func (g GatewayModel) Over() bool {
 // streamRef ties a stream to the (group, data rate, window) it serves.
 type streamRef struct{ group, dr, window int }
 
-// gatewayBudgets recomputes every gateway's downlink budget from the
-// current frames and uplink successes, stores the shares sent in the
-// groups' DRModel, and returns the largest change of a share.
-func (m *Model) gatewayBudgets() (float64, error) {
+// gatewayBudgets recomputes every gateway's downlink budget (only gateway
+// only's when only >= 0) from the current frames and uplink successes,
+// stores the shares sent in the groups' DRModel, and returns the largest
+// change of a share.
+func (m *Model) gatewayBudgets(only int) (float64, error) {
 	s := m.Scenario
 	reg := s.Region
 	tm := reg.Timing()
@@ -160,6 +161,9 @@ func (m *Model) gatewayBudgets() (float64, error) {
 		g := &m.Groups[gi]
 		gr := g.Group
 		gw := gr.Gateway
+		if only >= 0 && gw != only {
+			continue
+		}
 		dlBytes := lora.EmptyFrameBytes
 		if gr.DownlinkPayload > 0 {
 			n, err := lora.PHYPayloadBytes(gr.DownlinkPayload, 0)
@@ -237,6 +241,9 @@ func (m *Model) gatewayBudgets() (float64, error) {
 	type acc struct{ rate, sent, fell float64 }
 	tot := map[streamRef]*acc{}
 	for gw := range m.Gateways {
+		if only >= 0 && gw != only {
+			continue
+		}
 		b, err := lora.GatewayDownlinks(m.Gateways[gw].Streams)
 		if err != nil {
 			return 0, fmt.Errorf("gateway %q: %w", s.Gateways[gw].Name, err)
@@ -257,6 +264,9 @@ func (m *Model) gatewayBudgets() (float64, error) {
 	change := 0.0
 	for gi := range m.Groups {
 		g := &m.Groups[gi]
+		if only >= 0 && g.Group.Gateway != only {
+			continue
+		}
 		for k := range g.PerDR {
 			dm := &g.PerDR[k]
 			for w, p := range map[int]*float64{1: &dm.RX1Sent, 2: &dm.RX2Sent} {

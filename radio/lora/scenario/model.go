@@ -136,7 +136,7 @@ func Build(s Scenario, progress func(step string)) (Model, error) {
 		m.Groups[i] = gm
 	}
 	say("solving collisions and retransmissions")
-	if err := m.solveCollisions(); err != nil {
+	if err := m.solveCollisions(-1); err != nil {
 		return Model{}, err
 	}
 	for i := range m.Groups {
@@ -226,13 +226,18 @@ func newGroupModel(s Scenario, i int, pl lora.PathLoss, settled *lora.Settled) (
 }
 
 // solveCollisions fills Load, Vulnerable, UplinkSuccess, Frames and Windows
-// of every data rate of every group.
-func (m *Model) solveCollisions() error {
+// of every data rate of every group, or with only >= 0 of the groups of
+// gateway only (the others, which neither load its channels nor book its
+// answers, keep theirs).
+func (m *Model) solveCollisions(only int) error {
 	const maxIter = 200
 	type gwDR struct{ gw, dr int }
 	chans := map[gwDR]int{}
 	for _, g := range m.Groups {
 		gw := g.Group.Gateway
+		if only >= 0 && gw != only {
+			continue
+		}
 		for _, d := range g.PerDR {
 			chans[gwDR{gw, d.DR}] = m.Scenario.Region.ChannelsCarrying(m.Scenario.Gateways[gw].Channels, d.DR)
 		}
@@ -241,6 +246,9 @@ func (m *Model) solveCollisions() error {
 		change := 0.0
 		for gi := range m.Groups {
 			g := &m.Groups[gi]
+			if only >= 0 && g.Group.Gateway != only {
+				continue
+			}
 			for k := range g.PerDR {
 				dm := &g.PerDR[k]
 				total, vuln := 0.0, 0.0
@@ -304,7 +312,7 @@ func (m *Model) solveCollisions() error {
 				dm.Frames = frames
 			}
 		}
-		sent, err := m.gatewayBudgets()
+		sent, err := m.gatewayBudgets(only)
 		if err != nil {
 			return err
 		}

@@ -43,7 +43,7 @@ func writeDesign(w io.Writer, p *Plan) {
 			kind = fmt.Sprintf("confirmed, up to %d transmissions", g.MaxTransmissions)
 		}
 		row(esc(g.Name), "%s; %s; %d reading(s) per uplink; receive window %s", esc(g.Cell), kind, g.ReadingsPerUplink, scenario.Quote(g.Window))
-		figure := fmt.Sprintf("P(flat before %s) = %s (± %s), margin %s", years(d.TargetYears), pct(g.Probability), pct(g.ProbError), pct(g.Margin))
+		figure := fmt.Sprintf("P(flat before %s) = %s (± %s), margin %s", years(d.TargetYears), pct(g.Probability), errPct(g.ProbError), pct(g.Margin))
 		if d.TargetKind == "lifetime_quantile" {
 			figure = fmt.Sprintf("%s point of the lifetime %s, margin %s", pct(d.TargetLevel), years(g.Achieved), years(g.Margin))
 		}
@@ -113,7 +113,7 @@ func writeDesign(w io.Writer, p *Plan) {
 		more("  every  %s", strings.Join(per, "; "))
 		more("  visits per year %s (90 %%: %s–%s); cells per year %s (90 %%: %s–%s)", sig3(r.VisitsPerYear.Mean), sig3(r.VisitsPerYear.Low), sig3(r.VisitsPerYear.High),
 			sig3(r.CellsPerYear.Mean), sig3(r.CellsPerYear.Low), sig3(r.CellsPerYear.High))
-		more("  P(any node flat within the horizon) %s (± %s); cost %.0f (90 %%: %.0f–%.0f)", pct(r.AnyFlat), pct(r.AnyFlatError), r.Cost.Mean, r.Cost.Low, r.Cost.High)
+		more("  P(any node flat within the horizon) %s (± %s); cost %.0f (90 %%: %.0f–%.0f)", pct(r.AnyFlat), errPct(r.AnyFlatError), r.Cost.Mean, r.Cost.Low, r.Cost.High)
 	}
 	if pp.Feasible {
 		more("> the cheapest policy that meets the accepted risk")
@@ -132,4 +132,14 @@ func trimTo(s string, n int) string {
 		return s
 	}
 	return string(r[:n-1]) + "…"
+}
+
+// errPct prints a stated error as a percentage: like pct, except that an
+// error too small for pct's "0.0 %" keeps two significant digits, so that
+// a small stated error is not read as none.
+func errPct(x float64) string {
+	if x > 0 && x < 5e-7 {
+		return fmt.Sprintf("%.2g %%", 100*x)
+	}
+	return pct(x)
 }

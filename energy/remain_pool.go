@@ -132,7 +132,7 @@ func EstimateFloorSpread(spec NodeSpec, env Environment, costs []EventCost, opt 
 // Pool every device of the group, those gone silent (flat) too, with
 // their tallies as they stopped: the devices still alive are selected for
 // low consumption, and pooling them alone biases a floor spread down (in
-// the validation, 0.32 ± 0.035 for a true 0.5; 0.55 with every device).
+// the validation, 0.32 ± 0.035 for a true 0.5; 0.54 with every device).
 // The tallies must come from a model with the same costs (a Tally stores
 // energies, not spreads). Use more nodes (opt.Nodes) where readings deep
 // in the knee concentrate posteriors.

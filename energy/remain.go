@@ -197,15 +197,10 @@ func NewDeviceModel(spec NodeSpec, env Environment, costs []EventCost, opt Devic
 		d.temps[i] = ref
 	}
 	if th := spec.Thermal; th != nil {
-		clim := env.Climate
-		if clim == nil {
-			c, err := ConstantClimate(th.ReferenceTemperature)
-			if err != nil {
-				return DeviceModel{}, causeErr(fn, "env.Climate", nil, "reference climate", err)
-			}
-			clim = &c
+		sh, err := shiftedClimate(fn, th, env)
+		if err != nil {
+			return DeviceModel{}, err
 		}
-		sh := clim.Shift(env.TemperatureOffset)
 		for i := range 12 {
 			d.temps[i] = sh.Month((spec.StartMonth + i) % 12)
 		}

@@ -130,21 +130,27 @@ func (f *kfold) at(k int64) [2]float64 {
 // retransmissions; it prunes the groups of a fleet that lie far from its
 // first failures.
 func (f *kfold) negligible(k int64, d float64) bool {
-	const lim = 300 * math.Ln10
+	return f.logTailBound(k, d) < -300*math.Ln10
+}
+
+// logTailBound returns the log of the smaller of Hoeffding's and
+// Bernstein's bounds (see negligible) on P(S_k − kμ >= d) for d > 0, or on
+// P(S_k − kμ <= d) for d < 0; 0 (no bound) for d = 0 or an unbounded
+// cycle law.
+func (f *kfold) logTailBound(k int64, d float64) float64 {
 	w := f.ehi - f.elo
-	if !(w > 0) || math.IsInf(w, 0) {
-		return false
+	if !(w > 0) || math.IsInf(w, 0) || d == 0 || math.IsNaN(d) {
+		return 0
 	}
 	kf := float64(k)
-	if 2*d*d/(kf*w*w) > lim {
-		return true
-	}
+	hoeff := 2 * d * d / (kf * w * w)
 	b := f.ehi - f.emean
 	if d < 0 {
 		b = f.emean - f.elo
 	}
 	ad := math.Abs(d)
-	return ad*ad/(2*(kf*f.evar+b*ad/3)) > lim
+	bern := ad * ad / (2 * (kf*f.evar + b*ad/3))
+	return -math.Max(hoeff, bern)
 }
 
 // NewLifetime returns the lifetime law of a node running cycle c from the
@@ -398,6 +404,31 @@ func (l Lifetime) Survival(t float64) float64 {
 		return 0
 	}
 	return l.ev.at(int64(k) + 1)[0]
+}
+
+// Tails returns CDF(t) and Survival(t) from one K-fold evaluation, each
+// accurate relative to its own value (the smaller tail is the one computed
+// directly); NaN, NaN for NaN t or when the K-fold law fails. Order
+// statistics over groups (orderstat.MinOfGroups, through
+// orderstat.TwoTails) use it instead of choosing a side at the median.
+func (l Lifetime) Tails(t float64) (cdf, survival float64) {
+	switch {
+	case math.IsNaN(t) || l.ev == nil:
+		if l.ev == nil {
+			return math.NaN(), math.NaN()
+		}
+		return t, t
+	case t < 0:
+		return 0, 1
+	case math.IsInf(t, 1):
+		return 1, 0
+	}
+	k := math.Floor(t / l.step)
+	if k >= float64(l.kmax) {
+		return 1, 0
+	}
+	v := l.ev.at(int64(k) + 1)
+	return v[1], v[0]
 }
 
 // Quantile returns the smallest lifetime t = k·T (s) with CDF(t) >= p,

@@ -9,6 +9,7 @@ import (
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/orderstat"
 )
 
 // fleet60Groups is the fleet of BenchmarkFleet60: 10 000 nodes of the soil
@@ -75,4 +76,35 @@ func TestFirstFailure60Stated(t *testing.T) {
 		assert.LessOrEqual(t, math.Abs(got-want), acc.CDFAbs, "date %g s: %g, oracle %g", d, got, want)
 	}
 	t.Logf("first failure: stated CDF error %.2e, largest difference from the oracle %.2e", acc.CDFAbs, worst)
+}
+
+var _ orderstat.TwoTails = energy.Lifetime{}
+
+// Lifetime.Tails gives CDF and Survival from one K-fold evaluation: the
+// same values (bit for bit) as the two methods, at dates from before the
+// support to past the bulk, for two groups of the 60-group fleet (values
+// from dist.PointTails' shared panels), and NaN for a NaN date or a zero
+// Lifetime.
+func TestLifetimeTails(t *testing.T) {
+	t.Parallel()
+	gs := fleet60Groups(t)
+	f, _ := firstFailure(t, gs[58:])
+	for i := range 2 {
+		l, _, _ := f.Lifetime(i)
+		m, sd := l.Mean(), math.Sqrt(l.Variance())
+		for _, z := range []float64{math.Inf(-1), -1e9, -40, -6, -1, 0, 0.5, 3, 40, math.Inf(1)} {
+			d := m + z*sd
+			if z == math.Inf(-1) {
+				d = -1
+			}
+			cdf, sf := l.Tails(d)
+			assert.Equal(t, math.Float64bits(l.CDF(d)), math.Float64bits(cdf), "group %d z=%g CDF", i, z)
+			assert.Equal(t, math.Float64bits(l.Survival(d)), math.Float64bits(sf), "group %d z=%g Survival", i, z)
+		}
+		cdf, sf := l.Tails(math.NaN())
+		assert.True(t, math.IsNaN(cdf) && math.IsNaN(sf), "NaN date")
+	}
+	var zero energy.Lifetime
+	cdf, sf := zero.Tails(1)
+	assert.True(t, math.IsNaN(cdf) && math.IsNaN(sf), "zero Lifetime")
 }

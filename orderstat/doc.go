@@ -54,7 +54,9 @@
 // # Cost
 //
 // Each evaluation of a group law costs one parent CDF or Survival call per
-// group; quantiles of group laws are bracketed by the parents' own quantiles
+// group (a Tails call for a parent that implements TwoTails, such as a
+// battery lifetime law, which also spares the parent's median when the law
+// is built); quantiles of group laws are bracketed by the parents' own quantiles
 // and refined by Illinois regula falsi, about ten to twenty evaluations.
 // With numerically computed parents (slow CDFs) prefer the i.i.d. forms
 // where they apply, and reuse a returned law: its moments are computed once.

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
 )
@@ -26,7 +27,9 @@ type group struct {
 	law        dist.Law
 	n          int64
 	nf         float64
-	median     float64 // law.Quantile(0.5): the switch between CDF and Survival
+	median     float64 // law.Quantile(0.5): the switch between CDF and Survival (not set for a TwoTails law: see medianValue)
+	lazy       *lazyMedian
+	tails      TwoTails // nil when the law has no Tails method
 	lo, hi     float64
 	atoms      []dist.Atom
 	atomMass   float64
@@ -57,8 +60,30 @@ func (p point) logS() float64 {
 	return math.Log(p.s)
 }
 
+// lazyMedian holds the median of a TwoTails law, computed on first use
+// (the same value whenever that is: the law's Quantile(0.5)).
+type lazyMedian struct {
+	once sync.Once
+	v    float64
+}
+
+// medianValue returns the law's median: the one computed when the group
+// was built, or for a TwoTails law the one computed on first use.
+func (g *group) medianValue() float64 {
+	if g.lazy == nil {
+		return g.median
+	}
+	g.lazy.once.Do(func() { g.lazy.v = g.law.Quantile(0.5) })
+	return g.lazy.v
+}
+
 // eval returns the law's CDF and survival at x with one call to the law.
 func (g *group) eval(x float64) point {
+	if g.tails != nil {
+		f, s := g.tails.Tails(x)
+		f, s = clamp01(f), clamp01(s)
+		return point{f: f, s: s, direct: f <= s}
+	}
 	if x < g.median {
 		f := clamp01(g.law.CDF(x))
 		return point{f: f, s: 1 - f, direct: true}
@@ -161,11 +186,17 @@ func newGroup(fn, name string, l dist.Law, n int64) (group, error) {
 	if math.IsNaN(lo) || math.IsNaN(hi) || !(lo <= hi) {
 		return group{}, paramErr(fn, name+".Law", fmt.Sprintf("support [%v, %v]", lo, hi), "must have an ordered, non-NaN support")
 	}
-	med := l.Quantile(0.5)
-	if !finite(med) {
-		return group{}, paramErr(fn, name+".Law", fmt.Sprintf("median %v", med), "must have a finite median")
+	g := group{law: l, n: n, nf: float64(n), lo: lo, hi: hi}
+	if t, ok := l.(TwoTails); ok {
+		// Evaluations need no median; quantiles ask it on first use.
+		g.tails, g.lazy = t, &lazyMedian{}
+	} else {
+		med := l.Quantile(0.5)
+		if !finite(med) {
+			return group{}, paramErr(fn, name+".Law", fmt.Sprintf("median %v", med), "must have a finite median")
+		}
+		g.median = med
 	}
-	g := group{law: l, n: n, nf: float64(n), median: med, lo: lo, hi: hi}
 	if a, ok := l.(dist.Atomic); ok {
 		g.atoms = a.Atoms()
 		for _, at := range g.atoms {

@@ -64,7 +64,8 @@ type core struct {
 //	P(max <= x) = F(x)^n = exp(n·log1p(-S(x)))
 //	P(max > x)  = -expm1(n·log1p(-S(x)))
 //
-// n must be in [1, MaxCount] and l non-nil with a finite median.
+// n must be in [1, MaxCount] and l non-nil with a finite median (not
+// asked of a law that implements TwoTails).
 // Quantiles come from the parent's: Quantile(p) = l.UpperQuantile(-expm1(log(p)/n)).
 func Max(l dist.Law, n int64) (dist.Law, error) {
 	return build("Max", []Group{{Law: l, Count: n}}, kindMax, n, false)
@@ -75,7 +76,8 @@ func Max(l dist.Law, n int64) (dist.Law, error) {
 //	P(min > x)  = S(x)^n = exp(n·log1p(-F(x)))
 //	P(min <= x) = -expm1(n·log1p(-F(x)))
 //
-// n must be in [1, MaxCount] and l non-nil with a finite median.
+// n must be in [1, MaxCount] and l non-nil with a finite median (not
+// asked of a law that implements TwoTails).
 func Min(l dist.Law, n int64) (dist.Law, error) {
 	return build("Min", []Group{{Law: l, Count: n}}, kindMin, 1, false)
 }
@@ -107,7 +109,9 @@ func Kth(l dist.Law, k, n int64) (dist.Law, error) {
 //	P(max <= x) = Π F_i(x)^{n_i} = exp(Σ n_i·log F_i(x))
 //
 // Each log F_i is log1p(-S_i) above the group's median and log F_i below
-// it, one parent call per group and point. Quantiles are found between
+// it, one parent call per group and point; a parent that implements
+// TwoTails gives both from one call, and its median is asked only when a
+// quantile is solved for. Quantiles are found between
 // brackets taken from the parents' quantiles (the quantile of the largest
 // of n_i copies of the dominant group and of Σ n_i copies of every group)
 // by Illinois regula falsi.
@@ -251,26 +255,10 @@ func (c *core) eval(x float64, left bool) (cdf, sf float64) {
 	}
 	switch c.kind {
 	case kindMax:
-		var l float64
-		for i := range c.groups {
-			g := &c.groups[i]
-			p := g.eval(x)
-			if left {
-				p = g.evalLeft(x)
-			}
-			l += g.nf * p.logF()
-		}
+		l := c.extremeLog(x, left, true)
 		return math.Exp(l), -math.Expm1(l)
 	case kindMin:
-		var l float64
-		for i := range c.groups {
-			g := &c.groups[i]
-			p := g.eval(x)
-			if left {
-				p = g.evalLeft(x)
-			}
-			l += g.nf * p.logS()
-		}
+		l := c.extremeLog(x, left, false)
 		return -math.Expm1(l), math.Exp(l)
 	}
 	if len(c.groups) == 1 {
@@ -581,7 +569,7 @@ func (c *core) bracket(p, q float64) (a, b float64) {
 func (c *core) cheapBracket(p, q float64) (a, b float64) {
 	best := 0
 	for i := range c.groups {
-		m, mb := c.groups[i].median, c.groups[best].median
+		m, mb := c.groups[i].medianValue(), c.groups[best].medianValue()
 		if (c.kind == kindMax && m > mb) || (c.kind == kindMin && m < mb) {
 			best = i
 		}
@@ -595,7 +583,7 @@ func (c *core) cheapBracket(p, q float64) (a, b float64) {
 		l := log1mp(p, q) / g.nf
 		x = g.levelQuantile(-math.Expm1(l), math.Exp(l))
 	}
-	step := math.Max(math.Abs(x-g.median), 1e-6*math.Abs(x)+1e-300)
+	step := math.Max(math.Abs(x-g.medianValue()), 1e-6*math.Abs(x)+1e-300)
 	if !finite(x) {
 		return x, x
 	}

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
@@ -474,17 +475,16 @@ func (l NodeLifetime) String() string {
 		Years(l.Quantile(0.5)), Years(l.Quantile(0.05)), Years(l.Quantile(0.95)), cal)
 }
 
+// sortedUnique sorts x in place (slices.Sort, O(n log n)) and returns its
+// distinct values in ascending order, in x's storage; NaNs are dropped
+// (they have no place in an order).
 func sortedUnique(x []float64) []float64 {
-	for i := 1; i < len(x); i++ {
-		for j := i; j > 0 && x[j] < x[j-1]; j-- {
-			x[j], x[j-1] = x[j-1], x[j]
-		}
-	}
 	out := x[:0]
-	for i, v := range x {
-		if i == 0 || v > out[len(out)-1] {
+	for _, v := range x {
+		if !math.IsNaN(v) {
 			out = append(out, v)
 		}
 	}
-	return out
+	slices.Sort(out)
+	return slices.Compact(out)
 }

@@ -208,15 +208,16 @@ func (m sharedMixture) moments() {
 
 // componentMoments returns the mean (s) and variance (s²) of a component
 // with their estimated absolute errors (NaN where it has none of its own):
-// a tabulated node law's moments are integrated over its table when it is
-// built (relative tolerance 1e-12, taken as its error); an order
+// a tabulated node law's moments are integrated over its table on first
+// use (relative tolerance 1e-12), with the quadrature's estimated error,
+// the tails left out and rounding (tabulated.momentError); an order
 // statistic's (a Site's first failures and flat dates) are integrated here
 // over its own range (componentQuad).
 func componentMoments(l dist.Law) (mean, vari, meanErr, varErr float64) {
 	switch c := l.(type) {
 	case tabulated:
-		mean, vari = c.Mean(), c.Variance()
-		return mean, vari, 1e-12 * math.Abs(mean), 1e-12 * (vari + mean*mean)
+		meanErr, varErr = c.momentError()
+		return c.Mean(), c.Variance(), meanErr, varErr
 	case orderstat.Statistic:
 		return componentQuad(c)
 	}

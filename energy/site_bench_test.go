@@ -8,6 +8,7 @@ import (
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/testref"
 )
 
 // benchSiteSpec is an invented four-group site: twelve settings a group,
@@ -73,7 +74,9 @@ func BenchmarkSite(b *testing.B) {
 // BenchmarkSite asks it) against its size: 80, 800 and 8000 nodes a group
 // (the cost should not move: every law is computed from per-group laws and
 // counts) and 1, 2, 4 and 8 groups of 80 (the cost should grow about in
-// proportion), with the shared factors.
+// proportion), with the shared factors. Its CPU time per operation is
+// reported as cpu-ns/op (the machine is shared: wall time moves with the
+// load).
 func BenchmarkSiteScaling(b *testing.B) {
 	shared := energy.SharedSpread{Batch: 0.03, Temperature: 1.5}
 	for _, c := range []struct {
@@ -82,6 +85,7 @@ func BenchmarkSiteScaling(b *testing.B) {
 	}{{4, 80}, {4, 800}, {4, 8000}, {1, 80}, {2, 80}, {8, 80}} {
 		spec := benchSiteSpecN(b, shared, c.groups, c.count)
 		b.Run(fmt.Sprintf("groups=%d/nodes=%d", c.groups, int64(c.groups)*c.count), func(b *testing.B) {
+			defer testref.ReportCPU(b)()
 			for b.Loop() {
 				s, err := energy.NewSite(spec)
 				if err != nil {

@@ -70,11 +70,13 @@ type tabulated struct {
 	lz           *tabLazy // the moments, computed on first use
 }
 
-// tabLazy holds a table's moments, computed once on first use (the same
-// computation whenever it runs, so the same bits).
+// tabLazy holds a table's moments with their estimated errors, computed
+// once on first use (the same computation whenever it runs, so the same
+// bits).
 type tabLazy struct {
-	once       sync.Once
-	mean, vari float64
+	once            sync.Once
+	mean, vari      float64
+	meanErr, varErr float64
 }
 
 // probitOf returns the probit of the smaller tail: Φ⁻¹(dead) for dead <=
@@ -713,30 +715,61 @@ func (tb tabulated) UpperQuantile(q float64) float64 {
 
 func (tb tabulated) moments() {
 	tb.lz.once.Do(func() {
-		tb.lz.mean, tb.lz.vari = tb.integrateMoments()
+		tb.lz.mean, tb.lz.vari, tb.lz.meanErr, tb.lz.varErr = tb.integrateMoments()
 	})
 }
 
-// integrateMoments returns the table's mean (s) and variance (s²).
-func (tb tabulated) integrateMoments() (mean, vari float64) {
-	lo := tb.t[0]
-	// ∫_0^lo S = lo (to 1e-14); ∫_lo^hi S and ∫_lo^hi 2t·S by one vector
-	// quadrature of the table (the second scaled by the table's end, so
-	// that both are of the mean's size and the relative target holds for
-	// each, to 1e-12, which the shared mixtures take as the moments' error);
-	// the atom at the calendar limit adds its mass times the limit.
-	// Beyond the table's end the survival is below 1e-14 (or 0 from the
-	// calendar limit on, where the table ends).
-	scale := tb.t[len(tb.t)-1]
+// integrateMoments returns the table's mean (s) and variance (s²) with
+// their estimated absolute errors (s, s²).
+func (tb tabulated) integrateMoments() (mean, vari, meanErr, varErr float64) {
+	lo, hi := tb.t[0], tb.t[len(tb.t)-1]
+	// ∫_0^lo S = lo (within lo·F(lo), F(lo) = Φ(z_0) about 1e-14);
+	// ∫_lo^hi S and ∫_lo^hi 2t·S by one vector quadrature of the table
+	// (the second scaled by the table's end, so that both are of the
+	// mean's size and the relative target 1e-12 holds for each; the
+	// quadrature's own estimate is carried as the error); the atom at the
+	// calendar limit adds its mass times the limit. Beyond the table's end
+	// the survival is below 1e-14 (or 0 from the calendar limit on, where
+	// the table ends) and left out: along the end slope d it adds
+	// ∫_hi^∞ S = (φ(z) − z·Φ̄(z))/d and ∫_hi^∞ 2(t − hi)·S <= Φ̄(z)/d² (for
+	// z = z_n > 0: Φ̄(z) <= φ(z)/z, Mills' ratio), counted as error.
+	scale := hi
 	opt := quad.Options{RelTol: 1e-12, MaxEvals: 1 << 16}
 	var v [2]float64
-	quad.BreaksVec(v[:], func(t float64, y []float64) {
+	r, _ := quad.BreaksVec(v[:], func(t float64, y []float64) {
 		s := tb.Survival(t)
 		y[0], y[1] = s, 2*(t/scale)*s
 	}, tb.t, opt)
 	mean = lo + v[0]
 	second := lo*lo + v[1]*scale
-	return mean, math.Max(0, second-mean*mean)
+	fLo := normSurv(-tb.z[0])
+	e1, e2 := r.Error+lo*fLo, r.Error*scale+lo*lo*fLo
+	if hi < tb.cal {
+		z, d := tb.z[len(tb.z)-1], tb.d1[len(tb.d1)-1]
+		if d > 0 && z > 0 {
+			i0, i1 := (normPDF(z)-z*normSurv(z))/d, normSurv(z)/(d*d)
+			e1 += i0
+			e2 += 2*hi*i0 + i1
+		} else {
+			e1, e2 = math.Inf(1), math.Inf(1)
+		}
+	}
+	// Rounding: a few units in the last place of each sum.
+	e1 += 4 * 0x1p-52 * math.Abs(mean)
+	e2 += 4 * 0x1p-52 * math.Abs(second)
+	vari = math.Max(0, second-mean*mean)
+	return mean, vari, e1, e2 + 2*math.Abs(mean)*e1 + e1*e1
+}
+
+// momentError returns the estimated absolute errors of Mean (s) and
+// Variance (s²): the quadrature's estimate, the tails left out and
+// rounding (integrateMoments).
+func (tb tabulated) momentError() (mean, vari float64) {
+	if tb.t == nil {
+		return math.NaN(), math.NaN()
+	}
+	tb.moments()
+	return tb.lz.meanErr, tb.lz.varErr
 }
 
 // Mean returns the mean lifetime (s), by quadrature of the table on first

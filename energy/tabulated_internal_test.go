@@ -5,6 +5,8 @@ import (
 	"math"
 	"testing"
 
+	gquad "gonum.org/v1/gonum/integrate/quad"
+
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
@@ -94,5 +96,50 @@ func TestTabulatedAgainstDirect(t *testing.T) {
 				t.Logf("%d points, %d kinks: CDF error %.2g (stated %.2g), relative tail error %.2g (stated %.2g)", len(tb.t), tb.kinks, worst, tb.tabCDF, rel, tb.tabRel)
 			})
 		}
+	}
+}
+
+// A table's moments (Mean, Variance) against an independent integration
+// of the same law: gonum's fixed 60-point Gauss–Legendre rule
+// (integrate/quad.Fixed) on [0, t_0] and on every interval of the table
+// (where the law is a smooth function of t), and the tail beyond the
+// table's end along its end slope in closed form
+// (∫_0^∞ Φ̄(z + d·x) dx = (φ(z) − z·Φ̄(z))/d,
+// ∫_0^∞ 2x·Φ̄(z + d·x) dx = ((1 + z²)·Φ̄(z) − z·φ(z))/d²). The stated
+// moment errors (momentError) must bound the difference.
+func TestTabulatedMomentsAgainstFixedRule(t *testing.T) {
+	spec := tabTestSpec(t)
+	many, _ := tabManySpec(t)
+	groups := append(append([]SiteGroup(nil), spec.Groups...), SiteGroup{Name: "seven", Count: 8, Node: many})
+	for _, g := range groups {
+		t.Run(g.Name, func(t *testing.T) {
+			l, err := NewNodeLifetime(g.Node, Environment{Climate: spec.Climate, Conditions: Conditions{BatchFactor: 1}})
+			require.NoError(t, err)
+			tb := tabulate(l)
+			fixed := func(f func(float64) float64, a, b float64) float64 {
+				return gquad.Fixed(f, a, b, 60, gquad.Legendre{}, 0)
+			}
+			lo, hi := tb.t[0], tb.t[len(tb.t)-1]
+			m1 := fixed(tb.Survival, 0, lo)
+			m2 := fixed(func(x float64) float64 { return 2 * x * tb.Survival(x) }, 0, lo)
+			for i := 0; i+1 < len(tb.t); i++ {
+				m1 += fixed(tb.Survival, tb.t[i], tb.t[i+1])
+				m2 += fixed(func(x float64) float64 { return 2 * x * tb.Survival(x) }, tb.t[i], tb.t[i+1])
+			}
+			if hi < tb.cal {
+				z, d := tb.z[len(tb.z)-1], tb.d1[len(tb.d1)-1]
+				i0 := (normPDF(z) - z*normSurv(z)) / d
+				i1 := ((1+z*z)*normSurv(z) - z*normPDF(z)) / (d * d)
+				m1 += i0
+				m2 += 2*hi*i0 + i1
+			}
+			vari := m2 - m1*m1
+			em, ev := tb.momentError()
+			assert.LessOrEqual(t, math.Abs(tb.Mean()-m1), em, "mean (s)")
+			assert.LessOrEqual(t, math.Abs(tb.Variance()-vari), ev, "variance (s²)")
+			assert.Less(t, em, 1e-9*m1, "the mean's stated error is small")
+			t.Logf("mean %.6g s: error %.2g (stated %.2g); variance %.6g s²: error %.2g (stated %.2g)",
+				m1, math.Abs(tb.Mean()-m1), em, vari, math.Abs(tb.Variance()-vari), ev)
+		})
 	}
 }

@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+	"sort"
 	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
@@ -97,7 +98,26 @@ func (l NodeLifetime) accuracyAt(ts []float64) dist.Accuracy {
 // smallest sd (the probit moves by at most δ/sd for a shift δ of the mean:
 // ∂z/∂mean = E[φ(g)]/(sd·φ(z)) <= 1/sd, φ∘Φ⁻¹ being concave) counts
 // 2·Φ̄(accSkipZ) without being evaluated.
+//
+// With zOf the settings are also measured from the one nearest its median
+// (the smallest such |z|) out, and a setting is passed over when its
+// terms cannot raise what is measured already: its difference is at most
+// 2·Φ̄(zb), zb = |z| − 0.01 − shift/sd as above (every probability it
+// compares has its smaller side below Φ̄(zb)), so it is passed over when
+// its weight times that is at most the largest weighted difference so
+// far, and its relative survival difference cannot exceed the largest so
+// far either (for z < −0.01 the survival is above 1/2, so it is below
+// 4·Φ̄(zb); for z > 0.01 it is not counted when the survival, below
+// Φ̄(|z| − 0.01), is below the tail floor). The largest values, and so the
+// stated error, are those of measuring every setting.
 func (l NodeLifetime) accuracyAtZ(ts []float64, zOf func(j int, t float64) float64) dist.Accuracy {
+	acc, _ := l.accuracyAtZPruned(ts, zOf, true)
+	return acc
+}
+
+// accuracyAtZPruned is accuracyAtZ, passing settings over only when prune
+// is set (the tests compare the two), with the number passed over.
+func (l NodeLifetime) accuracyAtZPruned(ts []float64, zOf func(j int, t float64) float64, prune bool) (dist.Accuracy, int) {
 	n := l.n
 	acc := dist.Accuracy{TailFloor: 1e-14, Method: "mixture over settings and per-node factors (closed form in the normal factors, adaptive quadrature in the floor factor); per-cycle sum by its exact mean and variance"}
 	if n.spread.IsZero() {
@@ -110,13 +130,23 @@ func (l NodeLifetime) accuracyAtZ(ts []float64, zOf func(j int, t float64) float
 			}
 		}
 		acc.SurvivalRel = acc.CDFAbs / acc.TailFloor
-		return acc
+		return acc, 0
 	}
-	worst, rel := 0.0, 0.0
+	// One setting at one time: what its terms need, and the probit zb of
+	// the bound on its difference (NaN where it is not known).
+	type item struct {
+		j                      int
+		k, capLeft, floorE, h  float64
+		rule                   momentRule
+		shift, least, zTab, zb float64
+	}
+	items := make([]item, 0, len(n.settings))
+	worst, rel, passed := 0.0, 0.0, 0
 	for _, t := range ts {
 		if !(t > 0) || math.IsInf(t, 0) {
 			continue
 		}
+		items = items[:0]
 		for j := range n.settings {
 			s := &n.settings[j]
 			k := t * s.rate
@@ -124,24 +154,48 @@ func (l NodeLifetime) accuracyAtZ(ts []float64, zOf func(j int, t float64) float
 			if !(capLeft > 0) {
 				continue
 			}
-			floorE := s.floorP * n.cum(&n.floorCum, &n.floorRate, t)
-			h := n.quiescent * t
-			kk2 := k * s.k2
+			it := item{j: j, k: k, capLeft: capLeft, floorE: s.floorP * n.cum(&n.floorCum, &n.floorRate, t), h: n.quiescent * t, zTab: math.NaN(), zb: math.NaN()}
 			// Standardized cumulants of the k-cycle sum: l_r / k^{r/2−1}.
-			rule := newMomentRule(3, k*s.mu, kk2, s.l3/math.Sqrt(k), s.l4/k, s.l5/math.Pow(k, 1.5))
-			shift, least := 0.0, k*s.mu
-			for i := range rule.n {
-				shift = math.Max(shift, math.Abs(rule.x[i]-k*s.mu))
-				least = math.Min(least, math.Max(rule.x[i], 0))
+			it.rule = newMomentRule(3, k*s.mu, k*s.k2, s.l3/math.Sqrt(k), s.l4/k, s.l5/math.Pow(k, 1.5))
+			it.shift, it.least = 0.0, k*s.mu
+			for i := range it.rule.n {
+				it.shift = math.Max(it.shift, math.Abs(it.rule.x[i]-k*s.mu))
+				it.least = math.Min(it.least, math.Max(it.rule.x[i], 0))
 			}
 			if zOf != nil {
 				sc, sa := n.spread.Capacity, n.spread.Active
-				sdMin := math.Sqrt(sc*sc*capLeft*capLeft + sa*sa*least*least)
-				if z := zOf(j, t); math.Abs(z)-0.01-shift/sdMin > accSkipZ {
+				sdMin := math.Sqrt(sc*sc*capLeft*capLeft + sa*sa*it.least*it.least)
+				it.zTab = zOf(j, t)
+				it.zb = math.Abs(it.zTab) - 0.01 - it.shift/sdMin
+			}
+			items = append(items, it)
+		}
+		// The settings nearest their medians first (unknown ones before
+		// all), so that the largest differences are measured early.
+		sort.SliceStable(items, func(a, b int) bool {
+			za, zb := items[a].zb, items[b].zb
+			if math.IsNaN(za) || math.IsNaN(zb) {
+				return math.IsNaN(za) && !math.IsNaN(zb)
+			}
+			return za < zb
+		})
+		for i := range items {
+			it := &items[i]
+			s := &n.settings[it.j]
+			if zb := it.zb; !math.IsNaN(zb) {
+				if zb > accSkipZ {
 					worst = math.Max(worst, s.w*2*normSurv(accSkipZ))
 					continue
 				}
+				b := 2 * normSurv(zb)
+				relOK := (it.zTab < -0.01 && 2*b <= rel) || (it.zTab > 0.01 && normSurv(it.zTab-0.01) < acc.TailFloor)
+				if prune && s.w*b <= worst && relOK {
+					passed++
+					continue
+				}
 			}
+			k, capLeft, floorE, h, rule := it.k, it.capLeft, it.floorE, it.h, &it.rule
+			kk2 := k * s.k2
 			// settingAt's value, with the probit's slope against the mean
 			// active energy: where the law is beyond ±accSkipZ in probit
 			// even at the rule's nodes (to first order, with a margin of
@@ -149,7 +203,7 @@ func (l NodeLifetime) accuracyAtZ(ts []float64, zOf func(j int, t float64) float
 			// 2·Φ̄(accSkipZ) is counted instead.
 			p := n.part(capLeft, k*s.mu, kk2, floorE, h, 0, true)
 			a0, e0 := p.alive, 0.0
-			if math.Abs(p.z)-2*math.Abs(p.dz[dMean])*shift > accSkipZ {
+			if math.Abs(p.z)-2*math.Abs(p.dz[dMean])*it.shift > accSkipZ {
 				worst = math.Max(worst, s.w*2*normSurv(accSkipZ))
 				continue
 			}
@@ -178,7 +232,7 @@ func (l NodeLifetime) accuracyAtZ(ts []float64, zOf func(j int, t float64) float
 	}
 	acc.CDFAbs = worst * float64(len(n.settings))
 	acc.SurvivalRel = rel
-	return acc
+	return acc, passed
 }
 
 // Accuracy reports the stated error: CDFAbs bounds |CDF error| as measured

@@ -53,3 +53,43 @@ func TestSortedUnique(t *testing.T) {
 		})
 	}
 }
+
+// A node law's stated error at the times its table's profile measures is
+// the same, bit for bit, whether accuracyAtZ passes over the settings
+// whose terms cannot raise the largest ones or measures every setting: the
+// passing over is exact (what it skips is below what it keeps).
+func TestAccuracyPruneExact(t *testing.T) {
+	spec := tabTestSpec(t)
+	many, _ := tabManySpec(t)
+	twelve := spec.Groups[0].Node
+	twelve.Settings = nil
+	for i := range 12 {
+		twelve.Settings = append(twelve.Settings, NodeSetting{Weight: 1.0 / 12, Cycle: tabTestCycle(12*Hour, 8*MicroAmp, 0.2+0.5*float64(i))})
+	}
+	pruned := 0
+	for _, node := range []NodeSpec{spec.Groups[1].Node, many, twelve} {
+		for _, cond := range []Conditions{{BatchFactor: 1}, {BatchFactor: 0.95, TemperatureOffset: -6}} {
+			l, err := NewNodeLifetime(node, Environment{Climate: spec.Climate, Conditions: cond})
+			require.NoError(t, err)
+			tb := tabulate(l)
+			zOf := func(j int, x float64) float64 {
+				z, _ := l.n.settingProbit(j, l.n.clocks(x))
+				return z
+			}
+			ts := append([]float64(nil), tb.profT...)
+			for i := 1; i < 40; i++ {
+				ts = append(ts, tb.t[0]+(tb.t[len(tb.t)-1]-tb.t[0])*float64(i)/40)
+			}
+			for _, x := range ts {
+				a, np := l.accuracyAtZPruned([]float64{x}, zOf, true)
+				b, none := l.accuracyAtZPruned([]float64{x}, zOf, false)
+				require.Equal(t, b.CDFAbs, a.CDFAbs, "t = %g", x)
+				require.Equal(t, b.SurvivalRel, a.SurvivalRel, "t = %g", x)
+				require.Zero(t, none)
+				pruned += np
+			}
+		}
+	}
+	require.Positive(t, pruned, "some settings are passed over")
+	t.Logf("%d settings passed over", pruned)
+}

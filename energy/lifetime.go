@@ -153,6 +153,77 @@ func (f *kfold) logTailBound(k int64, d float64) float64 {
 	return -math.Max(hoeff, bern)
 }
 
+// boundTerms returns, for above, the largest number of terms K >= 1 with
+// logTailBound(K, C − Kμ) <= −L (a deviation d = C − Kμ > 0 above the
+// mean: a bound on P(S_K > C)), or otherwise the smallest K with the same
+// for d < 0 (a bound on P(S_K <= C)); ok is false where there is none or
+// the cycle law has no bounded support. The deviation at which each
+// inequality reaches e^{−L} solves a quadratic once K = (C ∓ d)/μ is put
+// in (Hoeffding: 2d² = L·w²·K, Bernstein: d² = 2L·(K·σ² + b·d/3)); the
+// smaller of the two roots gives K, which is then checked against
+// logTailBound with a relative margin of 1e-12 (stepped by one cycle, at
+// most eight times, where rounding puts it just outside).
+func (f *kfold) boundTerms(L float64, above bool) (int64, bool) {
+	w := f.ehi - f.elo
+	mu, s2, c := f.emean, f.evar, f.capacity
+	if !(w > 0) || math.IsInf(w, 0) || !(L > 0) || math.IsInf(L, 0) || !(mu > 0) {
+		return 0, false
+	}
+	q := 2 * L * c * s2 / mu
+	B := L * w * w / mu
+	var dB, dH float64
+	if above {
+		// Bernstein, b = hi − μ: d² + 2A·d − q = 0, A = L(σ²/μ − b/3)
+		A := L * (s2/mu - (f.ehi-mu)/3)
+		if r := math.Sqrt(A*A + q); A > 0 {
+			dB = q / (A + r)
+		} else {
+			dB = r - A
+		}
+		// Hoeffding: 2d² + B·d − B·C = 0
+		dH = 2 * B * c / (B + math.Sqrt(B*B+8*B*c))
+	} else {
+		// Bernstein, b = μ − lo: d² − 2A·d − q = 0, A = L(σ²/μ + b/3)
+		A := L * (s2/mu + (mu-f.elo)/3)
+		dB = A + math.Sqrt(A*A+q)
+		// Hoeffding: 2d² − B·d − B·C = 0
+		dH = (B + math.Sqrt(B*B+8*B*c)) / 4
+	}
+	d := math.Min(dB, dH)
+	holds := func(k int64) bool {
+		return f.logTailBound(k, c-float64(k)*mu) <= -L*(1+1e-12)
+	}
+	if above {
+		kf := math.Floor((c - d) / mu)
+		if !(kf >= 1) {
+			return 0, false
+		}
+		k := int64(kf)
+		for range 8 {
+			if k < 1 || c-float64(k)*mu <= 0 {
+				return 0, false
+			}
+			if holds(k) {
+				return k, true
+			}
+			k--
+		}
+		return 0, false
+	}
+	kf := math.Ceil((c + d) / mu)
+	if !(kf >= 1 && kf < 1<<62) {
+		return 0, false
+	}
+	k := int64(kf)
+	for range 8 {
+		if holds(k) && c-float64(k)*mu < 0 {
+			return k, true
+		}
+		k++
+	}
+	return 0, false
+}
+
 // NewLifetime returns the lifetime law of a node running cycle c from the
 // battery b. It is an error if the usable energy cannot power a single
 // cycle's mean energy, or if the K-fold law cannot be computed at the
@@ -429,6 +500,45 @@ func (l Lifetime) Tails(t float64) (cdf, survival float64) {
 	}
 	v := l.ev.at(int64(k) + 1)
 	return v[1], v[0]
+}
+
+// LowerBoundPoint returns a date t0 (s) with CDF(t) <= exp(logP) for every
+// t <= t0: (K−1)·T for the largest number of cycles K at which the smaller
+// of Hoeffding's and Bernstein's bounds on P(S_K > C) (see negligible) is
+// at most exp(logP) (the bounds fall as K does), or (kmin−1)·T where that
+// is later (CDF is 0 there: M >= kmin surely). −Inf for logP >= 0 or NaN,
+// a zero Lifetime, or a cycle law without a bounded support. A few
+// arithmetic operations: order statistics over groups
+// (orderstat.TailBounded) use it to leave out groups far from the answer.
+func (l Lifetime) LowerBoundPoint(logP float64) float64 {
+	if l.ev == nil || !(logP < 0) {
+		return math.Inf(-1)
+	}
+	k0 := float64(l.kmin - 1)
+	if k, ok := l.ev.boundTerms(-logP, true); ok {
+		k0 = math.Max(k0, float64(k-1))
+	}
+	return k0 * l.step
+}
+
+// UpperBoundPoint returns a date t1 (s) with Survival(t) <= exp(logP) for
+// every t >= t1: K·T for the smallest number of cycles K at which the
+// smaller of Hoeffding's and Bernstein's bounds on P(S_K <= C) is at most
+// exp(logP) (the bounds fall as K grows), or kmax·T where that is earlier
+// (Survival is 0 there). +Inf for logP >= 0 or NaN, a zero Lifetime, or
+// where no such K is found.
+func (l Lifetime) UpperBoundPoint(logP float64) float64 {
+	if l.ev == nil || !(logP < 0) {
+		return math.Inf(1)
+	}
+	k1 := math.Inf(1)
+	if l.kmax != math.MaxInt64 {
+		k1 = float64(l.kmax)
+	}
+	if k, ok := l.ev.boundTerms(-logP, false); ok {
+		k1 = math.Min(k1, float64(k))
+	}
+	return k1 * l.step
 }
 
 // Quantile returns the smallest lifetime t = k·T (s) with CDF(t) >= p,

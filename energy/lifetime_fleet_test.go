@@ -9,6 +9,7 @@ import (
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/internal/testref"
 	"github.com/joulelaw/joulelaw/orderstat"
 )
 
@@ -107,4 +108,58 @@ func TestLifetimeTails(t *testing.T) {
 	var zero energy.Lifetime
 	cdf, sf := zero.Tails(1)
 	assert.True(t, math.IsNaN(cdf) && math.IsNaN(sf), "zero Lifetime")
+}
+
+var _ orderstat.TailBounded = energy.Lifetime{}
+
+// The bound points hold against the law itself: for the groups of the
+// 60-group fleet nearest its first failures, CDF(t) at LowerBoundPoint and
+// Survival(t) at UpperBoundPoint are at most the level asked (Hoeffding's
+// and Bernstein's inequalities against the K-fold values, which
+// TestFirstFailure60Stated checks against the single inversion), and the
+// points move outwards as the level falls.
+func TestLifetimeBoundPoints(t *testing.T) {
+	t.Parallel()
+	gs := fleet60Groups(t)
+	f, _ := firstFailure(t, gs[55:])
+	for i := range 5 {
+		l, _, _ := f.Lifetime(i)
+		prevLo, prevHi := math.Inf(1), math.Inf(-1)
+		for _, lp := range []float64{-2, -10, -46, -92, -300, -690} {
+			t0, t1 := l.LowerBoundPoint(lp), l.UpperBoundPoint(lp)
+			require.False(t, math.IsInf(t0, 0) || math.IsInf(t1, 0), "group %d logP=%g: %g, %g", i, lp, t0, t1)
+			assert.LessOrEqual(t, l.CDF(t0), math.Exp(lp), "group %d logP=%g lower", i, lp)
+			assert.LessOrEqual(t, l.Survival(t1), math.Exp(lp), "group %d logP=%g upper", i, lp)
+			assert.Less(t, t0, prevLo)
+			assert.Greater(t, t1, prevHi)
+			prevLo, prevHi = t0, t1
+		}
+		assert.True(t, math.IsInf(l.LowerBoundPoint(0), -1) && math.IsInf(l.UpperBoundPoint(math.NaN()), 1))
+	}
+}
+
+// hidden is a law with only the dist.Law methods (no Tails, no bounds).
+type hidden struct{ dist.Law }
+
+// The 60-group first-failure law, which leaves out the groups its bounds
+// put below 1e-16 of the answer (those far from its first failures), equals
+// the law of the same groups without the bounds to 1e-14 relative in both
+// tails at 50 dates over its 0.1–99.9 % range.
+func TestFirstFailure60Pruned(t *testing.T) {
+	t.Parallel()
+	gs := fleet60Groups(t)
+	f, ff := firstFailure(t, gs)
+	var plain []orderstat.Group
+	for i := range gs {
+		l, _, _ := f.Law(i)
+		plain = append(plain, orderstat.Group{Law: hidden{l}, Count: gs[i].Count})
+	}
+	ref, err := orderstat.MinOfGroups(plain)
+	require.NoError(t, err)
+	lo, hi := ff.Quantile(1e-3), ff.Quantile(1-1e-3)
+	for i := range 50 {
+		d := lo + (hi-lo)*float64(i)/49
+		assert.LessOrEqual(t, testref.RelErr(ff.CDF(d), ref.CDF(d)), 1e-14, "date %g CDF", d)
+		assert.LessOrEqual(t, testref.RelErr(ff.Survival(d), ref.Survival(d)), 1e-14, "date %g survival", d)
+	}
 }

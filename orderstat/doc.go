@@ -56,7 +56,9 @@
 // Each evaluation of a group law costs one parent CDF or Survival call per
 // group (a Tails call for a parent that implements TwoTails, such as a
 // battery lifetime law, which also spares the parent's median when the law
-// is built); quantiles of group laws are bracketed by the parents' own quantiles
+// is built; a group whose law implements TailBounded is left out at the
+// points where its proven tail bound puts its share below 1e-16 of the
+// answer, which the stated accuracy includes); quantiles of group laws are bracketed by the parents' own quantiles
 // and refined by Illinois regula falsi, about ten to twenty evaluations.
 // With numerically computed parents (slow CDFs) prefer the i.i.d. forms
 // where they apply, and reuse a returned law: its moments are computed once.

@@ -53,7 +53,9 @@ type core struct {
 	atoms   []dist.Atom
 	pure    bool // all the mass is on atoms
 	hasDens bool
-	costly  bool // some parent is numerical (dist.Estimated): spare its quantiles
+	costly  bool  // some parent is numerical (dist.Estimated): spare its quantiles
+	bounded bool  // some parent is TailBounded: extremeLog may leave groups out
+	order   []int // extremeLog's order of the groups when bounded
 
 	once sync.Once
 	mom  moments
@@ -125,6 +127,9 @@ func MaxOfGroups(groups []Group) (dist.Law, error) {
 //	P(min > x) = Π S_i(x)^{n_i} = exp(Σ n_i·log S_i(x))
 //
 // With lifetime laws this is the time to the first failure in the fleet.
+// Groups whose laws implement TailBounded (a battery lifetime does) are
+// left out at the points where their bounds put their share below 1e-16
+// of the answer (see TailBounded); the same holds for MaxOfGroups.
 func MinOfGroups(groups []Group) (dist.Law, error) {
 	return build("MinOfGroups", groups, kindMin, 1, false)
 }
@@ -189,6 +194,7 @@ func build(fn string, in []Group, kd kind, k int64, checkK bool) (dist.Law, erro
 		c.beta = newBeta(float64(k), float64(total-k+1))
 	}
 	c.support()
+	c.setBounds()
 	c.findAtoms()
 	c.hasDens = true
 	for _, g := range gs {
@@ -785,6 +791,12 @@ func (s Statistic) Accuracy() dist.Accuracy {
 	cdfAbs := abs + r
 	survRel := 700 * r
 	method := "exact in log space from the parents' CDF and Survival"
+	if c.bounded {
+		// groups left out by their tail bounds (pruneRel)
+		cdfAbs += pruneRel
+		survRel += 745 * pruneRel
+		method += "; groups whose proven tail bounds put them below 1e-16 of the answer left out"
+	}
 	switch {
 	case c.kind == kindKth && len(c.groups) == 1:
 		cond := 1e-15 * math.Sqrt(float64(c.n))

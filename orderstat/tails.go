@@ -1,6 +1,11 @@
 package orderstat
 
-import "github.com/joulelaw/joulelaw/dist"
+import (
+	"math"
+	"sort"
+
+	"github.com/joulelaw/joulelaw/dist"
+)
 
 // TwoTails is implemented by laws that return both tails at a point from
 // one evaluation, each accurate relative to its own value (the smaller
@@ -15,20 +20,135 @@ type TwoTails interface {
 	Tails(x float64) (cdf, survival float64)
 }
 
-// extremeLog returns Σ n_i·log S_i(x) for the minimum (max false) or
-// Σ n_i·log F_i(x) for the maximum, or with left the same just below x.
-func (c *core) extremeLog(x float64, left, max bool) float64 {
-	var l float64
+// TailBounded is implemented by laws that bound their tails in closed form
+// (for a sum of independent terms, Hoeffding's or Bernstein's inequality):
+// proven bounds, not estimates, at the cost of a few arithmetic
+// operations. MinOfGroups and MaxOfGroups use them to leave out, at each
+// point, the groups whose whole contribution is below pruneRel of the
+// answer (see extremeLog).
+type TailBounded interface {
+	dist.Law
+	// LowerBoundPoint returns a point x0 with P(X <= x) <= exp(logP) for
+	// every x <= x0, for logP < 0; −Inf where none is known.
+	LowerBoundPoint(logP float64) float64
+	// UpperBoundPoint returns a point x1 with P(X > x) <= exp(logP) for
+	// every x >= x1, for logP < 0; +Inf where none is known.
+	UpperBoundPoint(logP float64) float64
+}
+
+// pruneRel is the relative share of l = Σ n_i·log S_i(x) (the minimum;
+// log F_i for the maximum) that the groups left out by their tail bounds
+// may make up together: a group is left out only where its bound b on
+// F_i(x) (S_i(x) for the maximum) gives n_i·(−log1p(−b)) <= 2·n_i·b <=
+// pruneRel/G times the part of the sum already evaluated (G groups), so
+// that all of them together are at most pruneRel·|l|. The CDF of the
+// minimum, −expm1(l), then moves by at most pruneRel relative (pruneRel/e
+// absolute), its survival exp(l) by at most pruneRel·|l| <= 745·pruneRel
+// relative (exp(l) underflows below l = −745): about the rounding of the
+// sum itself. Accuracy adds both.
+const pruneRel = 1e-16
+
+// pruneStep and pruneLevels: a TailBounded group keeps its bound points at
+// the levels exp(−pruneStep·m), m = 1, …, pruneLevels (a factor e^46 ≈
+// 10^20 apart, down to e^−736 ≈ 10^−320), computed once when the law is
+// built; at a point, the level used is the largest that meets the group's
+// share of pruneRel.
+const (
+	pruneStep   = 46.0
+	pruneLevels = 16
+)
+
+// setBounds prepares the leaving out of groups for a minimum or maximum
+// over several groups some of whose laws are TailBounded: each such
+// group's bound points (the lower ones for the minimum, the upper for the
+// maximum) and the order of evaluation — the groups without bounds first,
+// then those whose tail reaches e^−46 first (lowest lower point for the
+// minimum, highest upper point for the maximum), ties in the given order.
+func (c *core) setBounds() {
+	if len(c.groups) < 2 || (c.kind != kindMin && c.kind != kindMax) {
+		return
+	}
+	key := make([]float64, len(c.groups))
 	for i := range c.groups {
 		g := &c.groups[i]
+		key[i] = math.Inf(-1)
+		b, ok := g.law.(TailBounded)
+		if !ok {
+			continue
+		}
+		g.horizon = make([]float64, pruneLevels)
+		for m := range g.horizon {
+			lp := -pruneStep * float64(m+1)
+			if c.kind == kindMin {
+				g.horizon[m] = b.LowerBoundPoint(lp)
+			} else {
+				g.horizon[m] = b.UpperBoundPoint(lp)
+			}
+		}
+		g.logN2 = math.Log(2 * g.nf)
+		key[i] = g.horizon[0]
+		if c.kind == kindMax {
+			key[i] = -g.horizon[0]
+		}
+		if math.IsNaN(key[i]) {
+			g.horizon, key[i] = nil, math.Inf(-1)
+			continue
+		}
+		c.bounded = true
+	}
+	c.order = make([]int, len(c.groups))
+	for i := range c.order {
+		c.order[i] = i
+	}
+	sort.SliceStable(c.order, func(a, b int) bool { return key[c.order[a]] < key[c.order[b]] })
+}
+
+// extremeLog returns Σ n_i·log S_i(x) for the minimum or
+// Σ n_i·log F_i(x) for the maximum (upper), or with left the same just below x.
+// With TailBounded groups (and not left) the groups are taken in the order
+// setBounds chose, and each bounded group is left out where its bound
+// point at the level that meets its share of pruneRel·|sum so far| says
+// its tail is below that level; the choice depends on x alone, so the
+// answer does too.
+func (c *core) extremeLog(x float64, left, upper bool) float64 {
+	term := func(g *group) float64 {
 		p := g.eval(x)
 		if left {
 			p = g.evalLeft(x)
 		}
-		if max {
-			l += g.nf * p.logF()
-		} else {
-			l += g.nf * p.logS()
+		if upper {
+			return g.nf * p.logF()
+		}
+		return g.nf * p.logS()
+	}
+	var l float64
+	if !c.bounded || left {
+		for i := range c.groups {
+			l += term(&c.groups[i])
+		}
+		return l
+	}
+	share := pruneRel / float64(len(c.groups))
+	thr := math.NaN() // log(share·|l|) once l is not 0
+	for _, i := range c.order {
+		g := &c.groups[i]
+		if g.horizon != nil && !math.IsNaN(thr) {
+			// a bound b <= exp(−pruneStep·m) <= share·|l|/(2n) gives
+			// n·(−log1p(−b)) <= 2·n·b <= share·|l|
+			if need := (g.logN2 - thr) / pruneStep; need <= pruneLevels {
+				m := max(1, int(math.Ceil(need)))
+				h := g.horizon[m-1]
+				if (upper && x >= h) || (!upper && x <= h) {
+					continue
+				}
+			}
+		}
+		l += term(g)
+		if math.IsInf(l, -1) {
+			return l
+		}
+		if a := math.Abs(l); a > 0 && !math.IsInf(a, 0) {
+			thr = math.Log(share * a)
 		}
 	}
 	return l

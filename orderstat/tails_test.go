@@ -34,6 +34,27 @@ func (l twoTailed) UpperQuantile(q float64) float64 {
 
 var _ orderstat.TwoTails = twoTailed{}
 
+// productLog is the oracle: log P(min > x) = Σ n·log S (or with max
+// log P(max <= x) = Σ n·log F), each parent tail taken from its smaller
+// side.
+func productLog(gs []orderstat.Group, x float64, max bool) float64 {
+	var lg float64
+	for _, g := range gs {
+		f, s := g.Law.CDF(x), g.Law.Survival(x)
+		switch {
+		case max && f < 0.5:
+			lg += float64(g.Count) * math.Log(f)
+		case max:
+			lg += float64(g.Count) * math.Log1p(-s)
+		case s < 0.5:
+			lg += float64(g.Count) * math.Log(s)
+		default:
+			lg += float64(g.Count) * math.Log1p(-f)
+		}
+	}
+	return lg
+}
+
 // Groups whose laws give both tails at once are built without a parent
 // quantile (no median is needed to choose a side), and their laws equal
 // the explicit product of the parents' tails in log space,
@@ -65,23 +86,7 @@ func TestTwoTailsGroups(t *testing.T) {
 			ref, err := tc.build(plain)
 			require.NoError(t, err)
 			for x := 0.004; x <= 0.026; x += 0.0005 {
-				// log P(min > x) = Σ n·log S, log P(max <= x) = Σ n·log F,
-				// each parent tail taken from its smaller side
-				var lg float64
-				for _, g := range plain {
-					f, s := g.Law.CDF(x), g.Law.Survival(x)
-					if tc.max {
-						if f < 0.5 {
-							lg += float64(g.Count) * math.Log(f)
-						} else {
-							lg += float64(g.Count) * math.Log1p(-s)
-						}
-					} else if s < 0.5 {
-						lg += float64(g.Count) * math.Log(s)
-					} else {
-						lg += float64(g.Count) * math.Log1p(-f)
-					}
-				}
+				lg := productLog(plain, x, tc.max)
 				in, out := math.Exp(lg), -math.Expm1(lg) // the extreme inside and beyond x
 				gotIn, gotOut := l.Survival(x), l.CDF(x)
 				if tc.max {
@@ -123,6 +128,89 @@ func TestTwoTailsGroups(t *testing.T) {
 					assert.Equal(t, want, g, "goroutine %d p=%g", i, p)
 				}
 			}
+		})
+	}
+}
+
+// boundedNormal is a normal law with closed-form tail bounds (Chernoff's:
+// P(X <= μ − d) <= exp(−d²/(2σ²)), the same above, from
+// E[exp(θX)] = exp(θμ + θ²σ²/2)), counting its tail calls.
+type boundedNormal struct {
+	dist.Normal
+	calls *atomic.Int64
+}
+
+func (l boundedNormal) CDF(x float64) float64 {
+	l.calls.Add(1)
+	return l.Normal.CDF(x)
+}
+func (l boundedNormal) Survival(x float64) float64 {
+	l.calls.Add(1)
+	return l.Normal.Survival(x)
+}
+func (l boundedNormal) LowerBoundPoint(logP float64) float64 {
+	return l.Mean() - math.Sqrt(-2*logP*l.Variance())
+}
+func (l boundedNormal) UpperBoundPoint(logP float64) float64 {
+	return l.Mean() + math.Sqrt(-2*logP*l.Variance())
+}
+
+var _ orderstat.TailBounded = boundedNormal{}
+
+// Groups whose laws bound their tails are left out where the bounds put
+// them below 1e-16 of the answer: the minimum and maximum of 30 groups
+// spread over 120 standard deviations equal the explicit products of the
+// parents' tails (as TestTwoTailsGroups) to 1e-14 relative plus the
+// rounding of the sum of logs (8ε·|log|: the oracle adds them in another
+// order) in both tails at every point, call the far groups' tails far less
+// often than once per group and point, and state the leaving out in their
+// accuracy.
+func TestTailBoundedGroups(t *testing.T) {
+	t.Parallel()
+	var calls atomic.Int64
+	var plain, bounded []orderstat.Group
+	for i := range 30 {
+		n := dist.MustNormal(float64(i)*4, 1+0.02*float64(i))
+		plain = append(plain, orderstat.Group{Law: n, Count: int64(20 + i)})
+		bounded = append(bounded, orderstat.Group{Law: boundedNormal{Normal: n, calls: &calls}, Count: int64(20 + i)})
+	}
+	tests := []struct {
+		name  string
+		build func([]orderstat.Group) (dist.Law, error)
+		max   bool
+		xs    []float64
+	}{
+		{"MinOfGroups", orderstat.MinOfGroups, false, []float64{-12, -8, -5, -3, -2, -1, 0, 1, 2, 4}},
+		{"MaxOfGroups", orderstat.MaxOfGroups, true, []float64{108, 112, 114, 116, 117, 118, 120, 122, 126, 130}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			l, err := tc.build(bounded)
+			require.NoError(t, err)
+			calls.Store(0)
+			for _, x := range tc.xs {
+				lg := productLog(plain, x, tc.max)
+				in, out := math.Exp(lg), -math.Expm1(lg)
+				gotIn, gotOut := l.Survival(x), l.CDF(x)
+				if tc.max {
+					gotIn, gotOut = l.CDF(x), l.Survival(x)
+				}
+				tol := 1e-14 + 8*0x1p-52*math.Abs(lg)
+				if in > 1e-300 {
+					assert.LessOrEqual(t, testref.RelErr(gotIn, in), tol, "x=%g inside", x)
+				}
+				if out > 1e-300 {
+					assert.LessOrEqual(t, testref.RelErr(gotOut, out), tol, "x=%g beyond", x)
+				}
+			}
+			// two calls per point (CDF and Survival), each once per group
+			// without the bounds
+			assert.Less(t, calls.Load(), int64(2*len(tc.xs)*len(bounded)/3), "parent tail calls")
+			t.Logf("%d parent tail calls for %d points (%d without the bounds)", calls.Load(), 2*len(tc.xs), 2*len(tc.xs)*len(bounded))
+			acc := l.(dist.Estimated).Accuracy()
+			assert.GreaterOrEqual(t, acc.CDFAbs, 1e-16)
+			assert.Contains(t, acc.Method, "left out")
+			require.NoError(t, disttest.Check(l))
 		})
 	}
 }

@@ -291,8 +291,7 @@ func tabulate(l NodeLifetime) tabulated {
 					dead += s.w
 					continue
 				}
-				zj, dlj := s.pt.zAtD(t, false)
-				_, drj := s.pt.zAtD(t, true)
+				zj, dlj, drj := s.pt.zAtD2(t)
 				// One tail from erfc, the other its complement (at least
 				// 1/2, so nothing is lost).
 				switch {
@@ -525,8 +524,20 @@ func hermite(t0, t1, z0, z1, d0, d1, x float64) float64 {
 // law is below 1e-14 or above 1 − 1e-14) the probit goes on along the end
 // slopes, so the far tails decay like a normal's.
 func (pt probitTable) zAt(t float64) float64 {
-	i := sort.SearchFloat64s(pt.t, t)
+	hint := 0 // no interval: a search
+	return pt.zAtNear(t, &hint)
+}
+
+// zAtNear is zAt, looking first in the interval *hint (t[*hint−1] < t <=
+// t[*hint]; none for 0) and leaving there the one it found: the same
+// value, without a search when consecutive times fall in one interval.
+func (pt probitTable) zAtNear(t float64, hint *int) float64 {
 	n := len(pt.t)
+	i := *hint
+	if !(i > 0 && i < n && pt.t[i-1] < t && t <= pt.t[i]) {
+		i = sort.SearchFloat64s(pt.t, t)
+		*hint = i
+	}
 	switch {
 	case i == 0:
 		return pt.z[0] - math.Max(pt.d0[0], 0)*(pt.t[0]-t)
@@ -558,6 +569,30 @@ func (pt probitTable) zAtD(t float64, right bool) (z, dz float64) {
 		return hermite(pt.t[i-1], pt.t[i], pt.z[i-1], pt.z[i], 0, 0, t), 0
 	}
 	return hermiteD(pt.t[i-1], pt.t[i], pt.z[i-1], pt.z[i], pt.d0[i-1], pt.d1[i-1], t)
+}
+
+// zAtD2 is zAtD on both sides of t, with one search: they differ only at
+// a point of the table.
+func (pt probitTable) zAtD2(t float64) (z, dl, dr float64) {
+	i := sort.SearchFloat64s(pt.t, t) // t[i-1] < t <= t[i]
+	n := len(pt.t)
+	switch {
+	case i < n && t == pt.t[i]:
+		z, dl = pt.zAtD(t, false)
+		_, dr = pt.zAtD(t, true)
+		return z, dl, dr
+	case i == 0:
+		d := math.Max(pt.d0[0], 0)
+		return pt.z[0] - d*(pt.t[0]-t), d, d
+	case i >= n:
+		d := math.Max(pt.d1[len(pt.d1)-1], 0)
+		return pt.z[n-1] + d*(t-pt.t[n-1]), d, d
+	}
+	if math.IsInf(pt.z[i-1], 0) || math.IsInf(pt.z[i], 0) {
+		return hermite(pt.t[i-1], pt.t[i], pt.z[i-1], pt.z[i], 0, 0, t), 0, 0
+	}
+	z, d := hermiteD(pt.t[i-1], pt.t[i], pt.z[i-1], pt.z[i], pt.d0[i-1], pt.d1[i-1], t)
+	return z, d, d
 }
 
 // hermiteGrid tabulates f, which returns a probit with its slopes left
@@ -637,6 +672,12 @@ func (tb tabulated) CDF(t float64) float64 {
 
 // Survival returns P(lifetime > t), directly.
 func (tb tabulated) Survival(t float64) float64 {
+	hint := 0 // no interval: a search
+	return tb.survivalNear(t, &hint)
+}
+
+// survivalNear is Survival, reading the table by zAtNear.
+func (tb tabulated) survivalNear(t float64, hint *int) float64 {
 	switch {
 	case math.IsNaN(t) || tb.t == nil:
 		return math.NaN()
@@ -645,7 +686,7 @@ func (tb tabulated) Survival(t float64) float64 {
 	case t <= 0:
 		return 1
 	}
-	return normSurv(tb.zAt(t))
+	return normSurv(tb.zAtNear(t, hint))
 }
 
 // invert returns the t with interpolated probit zt (along the end slopes
@@ -736,8 +777,9 @@ func (tb tabulated) integrateMoments() (mean, vari, meanErr, varErr float64) {
 	scale := hi
 	opt := quad.Options{RelTol: 1e-12, MaxEvals: 1 << 16}
 	var v [2]float64
+	hint := 0 // the interval of the last time asked: the panels lie within the table's intervals
 	r, _ := quad.BreaksVec(v[:], func(t float64, y []float64) {
-		s := tb.Survival(t)
+		s := tb.survivalNear(t, &hint)
 		y[0], y[1] = s, 2*(t/scale)*s
 	}, tb.t, opt)
 	mean = lo + v[0]

@@ -143,3 +143,35 @@ func TestTabulatedMomentsAgainstFixedRule(t *testing.T) {
 		})
 	}
 }
+
+// The table's faster readers give the same bits as the plain ones: zAtD2
+// as zAtD on either side (at the table's points, where the sides differ,
+// and between them), zAtNear and survivalNear as zAt and Survival whatever
+// interval the hint holds.
+func TestTableReadersAsPlain(t *testing.T) {
+	spec := tabTestSpec(t)
+	many, _ := tabManySpec(t)
+	for _, node := range []NodeSpec{spec.Groups[2].Node, many} {
+		l, err := NewNodeLifetime(node, Environment{Climate: spec.Climate, Conditions: Conditions{BatchFactor: 1}})
+		require.NoError(t, err)
+		tb := tabulate(l)
+		lo, hi := tb.t[0], tb.t[len(tb.t)-1]
+		ts := append([]float64{0, lo / 2, hi * 1.5}, tb.t...)
+		for i := 0; i <= 3000; i++ {
+			ts = append(ts, lo+(hi-lo)*float64((i*1237)%3001)/3000)
+		}
+		hint := 0
+		for _, x := range ts {
+			z, dl, dr := tb.zAtD2(x)
+			zl, wl := tb.zAtD(x, false)
+			zr, wr := tb.zAtD(x, true)
+			require.Equal(t, zl, z, "t = %g", x)
+			require.Equal(t, zr, z, "t = %g", x)
+			require.Equal(t, wl, dl, "t = %g", x)
+			require.Equal(t, wr, dr, "t = %g", x)
+			h := hint
+			require.Equal(t, tb.zAt(x), tb.zAtNear(x, &hint), "t = %g", x)
+			require.Equal(t, tb.Survival(x), tb.survivalNear(x, &h), "t = %g", x)
+		}
+	}
+}

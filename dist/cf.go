@@ -83,14 +83,17 @@ func sinhcm1(z complex128) complex128 {
 
 // logSinhc returns log(sinh(z)/z), stable for large |Re z|.
 func logSinhc(z complex128) complex128 {
-	if cmplx.Abs(z) < 0.5 {
+	if x, y := real(z), imag(z); x*x+y*y < 0.25 {
 		return clog1p(sinhcm1(z))
 	}
 	if real(z) < 0 {
 		z = -z // sinh(z)/z is even
 	}
-	// sinh(z) = exp(z)·(1 - exp(-2z))/2
-	return z + cmplx.Log(-cexpm1(-2*z)) - complex(math.Ln2, 0) - cmplx.Log(z)
+	// sinh(z) = exp(z)·(1 - exp(-2z))/2. With Re z >= 0 both 1 - exp(-2z)
+	// and z lie in the closed right half-plane, so the principal log of
+	// their quotient is the difference of their principal logs (one log
+	// instead of two; the quotient rounds to 2^-53 relative).
+	return z + logOf(-cexpm1(-2*z)/z) - complex(math.Ln2, 0)
 }
 
 // normalTransform: log M(s) = μs + σ²s²/2, entire.

@@ -102,6 +102,12 @@ func TestSumKinkedDensityStatedBound(t *testing.T) {
 		minS       float64 // survival checked down to here
 		maxCDFAbs  float64 // stated CDF bound must be at most this
 		maxSurvRel float64 // stated survival bound must be at most this
+		// skipCheck leaves out the conformance checker (disttest.Check)
+		// where a case's law adds no structure the other cases and
+		// TestConformance's sums do not already check: the checker's
+		// quantile sweeps cost seconds on these inversions, and the bound
+		// against the oracle above is this test's point
+		skipCheck bool
 	}{
 		{
 			// oracle: ∫ F_E(x - r)·f_T(r) dr over the trapezoid T = U + V of
@@ -140,6 +146,7 @@ func TestSumKinkedDensityStatedBound(t *testing.T) {
 			minS:       1e-28,
 			maxCDFAbs:  1e-10,
 			maxSurvRel: 1e-6,
+			skipCheck:  true, // the atoms case below checks this sum shifted
 		},
 		{
 			// oracle: conditioning on the second uniform V, F(x) =
@@ -160,6 +167,7 @@ func TestSumKinkedDensityStatedBound(t *testing.T) {
 			minS:       1e-20,
 			maxCDFAbs:  1e-10,
 			maxSurvRel: 1e-6,
+			skipCheck:  true,
 		},
 		{
 			// oracle: ∫ φ_TN(t)·[G(x - t) - G(x - t - 1)] dt over [0, 3],
@@ -180,6 +188,7 @@ func TestSumKinkedDensityStatedBound(t *testing.T) {
 			minS:       1e-15,
 			maxCDFAbs:  1e-10,
 			maxSurvRel: 1e-6,
+			skipCheck:  true,
 		},
 		{
 			// oracle: the hypoexponential CDF of Exp(1) + Exp(3) (Ross
@@ -248,7 +257,9 @@ func TestSumKinkedDensityStatedBound(t *testing.T) {
 				tc.name, abs, acc.CDFAbs, rel, acc.SurvivalRel, acc.Method)
 			assert.LessOrEqual(t, acc.CDFAbs, tc.maxCDFAbs, "stated CDF bound")
 			assert.LessOrEqual(t, acc.SurvivalRel, tc.maxSurvRel, "stated survival bound")
-			require.NoError(t, disttest.Check(l))
+			if !tc.skipCheck {
+				require.NoError(t, disttest.Check(l))
+			}
 		})
 	}
 }

@@ -102,12 +102,14 @@ func (l NodeLifetime) accuracyAt(ts []float64) dist.Accuracy {
 // With zOf the settings are also measured from the one nearest its median
 // (the smallest such |z|) out, and a setting is passed over when its
 // terms cannot raise what is measured already: its difference is at most
-// 2·Φ̄(zb), zb = |z| − 0.01 − shift/sd as above (every probability it
-// compares has its smaller side below Φ̄(zb)), so it is passed over when
+// 2.001·Φ̄(zb) + 1e-16, zb = |z| − 0.01 − shift/sd as above (every
+// probability it compares has its smaller side below Φ̄(zb); the adaptive
+// check's estimate is within its tolerance, 1e-10 of that side, or 1e-16
+// where it is not run), so it is passed over when
 // its weight times that is at most the largest weighted difference so
 // far, and its relative survival difference cannot exceed the largest so
 // far either (for z < −0.01 the survival is above 1/2, so it is below
-// 4·Φ̄(zb); for z > 0.01 it is not counted when the survival, below
+// twice that bound; for z > 0.01 it is not counted when the survival, below
 // Φ̄(|z| − 0.01), is below the tail floor). The largest values, and so the
 // stated error, are those of measuring every setting.
 func (l NodeLifetime) accuracyAtZ(ts []float64, zOf func(j int, t float64) float64) dist.Accuracy {
@@ -187,7 +189,7 @@ func (l NodeLifetime) accuracyAtZPruned(ts []float64, zOf func(j int, t float64)
 					worst = math.Max(worst, s.w*2*normSurv(accSkipZ))
 					continue
 				}
-				b := 2 * normSurv(zb)
+				b := 2.001*normSurv(zb) + 1e-16
 				relOK := (it.zTab < -0.01 && 2*b <= rel) || (it.zTab > 0.01 && normSurv(it.zTab-0.01) < acc.TailFloor)
 				if prune && s.w*b <= worst && relOK {
 					passed++

@@ -46,7 +46,8 @@ func TestSharedMixtureQuantileCorners(t *testing.T) {
 	for _, c := range []struct {
 		name    string
 		corners []int
-	}{{"corners at the ends", []int{0, 4}}, {"corners in the middle", []int{2, 3}}, {"no corners", nil}} {
+	}{{"corners at the ends", []int{0, 4}}, {"corners in the middle", []int{2, 3}}, {"no corners", nil},
+		{"a first and last corner that do not always bracket", []int{1, 0, 4, 3}}} {
 		m := newSharedMixture("test", w, laws)
 		m.corners = c.corners
 		for _, p := range []float64{1e-9, 0.01, 0.3, 0.5, 0.9, 0.999} {
@@ -79,6 +80,20 @@ func TestSharedMixtureQuantileCorners(t *testing.T) {
 	m.corners = []int{0, 4}
 	m.Quantile(0.3)
 	assert.Equal(t, 2, n, "component quantiles asked")
+
+	// Four corners: the first and the last (means 20 and 40) bracket the
+	// 0.3 point, so two are asked; not the 1e-9 point (about −6.8, from the
+	// mean-10 component: 0.011·Φ((x − 10)/3) = 1e-9), so all four are.
+	m.corners = []int{1, 0, 4, 3}
+	for _, c := range []struct {
+		p    float64
+		want int
+	}{{0.3, 2}, {1e-9, 4}} {
+		n = 0
+		x := m.Quantile(c.p)
+		assert.Equal(t, c.want, n, "component quantiles asked for the %g point", c.p)
+		assert.InDelta(t, c.p, cdf(x), 1e-9*c.p, "CDF at Quantile(%g)", c.p)
+	}
 }
 
 // quantileCounter counts the calls of Quantile.

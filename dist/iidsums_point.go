@@ -82,7 +82,8 @@ const MaxPointPanels = 1 << 12
 type pointState struct {
 	p      IIDSums
 	x      float64
-	lm0    float64 // log M(0): the term's mass defect (rounding of its masses), removed
+	lmOnce sync.Once
+	lm0    float64 // log M(0): the term's mass defect (rounding of its masses), removed; set by massDefectOnce
 	shared bool    // the panel path applies
 	block  int64   // k's per panel, a power of two
 	cross  int64   // the first k with x <= k·μ: blocks start here, every B
@@ -116,7 +117,7 @@ func (p IIDSums) AtPoint(x float64) (PointTails, error) {
 	if !finite(x) {
 		return PointTails{}, paramErr("IIDSums.AtPoint", "x", x, "must be finite")
 	}
-	st := &pointState{p: p, x: x, lm0: p.massDefect(), panels: map[int64]*tiltPanel{}}
+	st := &pointState{p: p, x: x}
 	if p.ok && p.tr.err == 0 && p.mu > 0 && x > 0 && x/p.mu < 2*MaxSumIIDTerms {
 		sdM := math.Sqrt(x * p.v / (p.mu * p.mu * p.mu))
 		b := int64(1)
@@ -281,13 +282,16 @@ func (st *pointState) shared1(k int) (f, s, rel float64, ok bool) {
 	if pn == nil {
 		pn = st.newPanel(b, sg)
 		st.mu.Lock()
+		if st.panels == nil {
+			st.panels = map[int64]*tiltPanel{}
+		}
 		if len(st.panels) >= MaxPointPanels {
 			clear(st.panels)
 		}
 		st.panels[key] = pn
 		st.mu.Unlock()
 	}
-	if pn.c == nil {
+	if len(pn.c) == 0 {
 		return 0, 0, 0, false
 	}
 	v, rel, ok := pn.value(fk, sg*y, st.supTop(fk, sg))
@@ -348,9 +352,16 @@ func (p IIDSums) massDefect() float64 {
 	return v
 }
 
+// massDefectOnce sets lm0, the term's massDefect, on the first panel (a
+// transform value the law's building need not pay for).
+func (st *pointState) massDefectOnce() {
+	st.lmOnce.Do(func() { st.lm0 = st.p.massDefect() })
+}
+
 // newPanel builds the panel of block b on side sg; a panel without nodes
-// (c nil) sends its k's to the single inversion.
+// (c empty) sends its k's to the single inversion.
 func (st *pointState) newPanel(b int64, sg float64) *tiltPanel {
+	st.massDefectOnce()
 	p := st.p
 	hiDom := p.tr.hi
 	if sg < 0 {
@@ -423,6 +434,9 @@ func (st *pointState) newPanel(b int64, sg float64) *tiltPanel {
 	// fall below 1e-13 for the block's smallest k (the slowest to decay)
 	// four times running: where every k's sum stops (value)
 	quiet := 0
+	const nodeCap = 64 // most panels stop within it (about 20–60 nodes)
+	pn.c, pn.ce = make([]complex128, 0, nodeCap), make([]float64, 0, nodeCap)
+	pn.ir, pn.ii = make([]float64, 0, nodeCap), make([]float64, 0, nodeCap)
 	for j := 0; j < maxTilted; j++ {
 		s := complex(theta, float64(j)*pn.h)
 		lm := p.tr.logm(complex(sg, 0) * s)

@@ -227,7 +227,12 @@ func (f *kfold) boundTerms(L float64, above bool) (int64, bool) {
 // NewLifetime returns the lifetime law of a node running cycle c from the
 // battery b. It is an error if the usable energy cannot power a single
 // cycle's mean energy, or if the K-fold law cannot be computed at the
-// median.
+// median. For a cycle law whose values come from dist.PointTails' shared
+// panels (see Accuracy) that check is arithmetic — the term's transform is
+// exact and finite at 0 (dist.IIDSums.AtPoint) and the median's number of
+// cycles is within dist.MaxSumIIDTerms — and the panels are built when a
+// value first needs them, so that building the law costs no inversion
+// (CDF and Survival return NaN where an inversion fails, as for every k).
 func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	const fn = "NewLifetime"
 	if c.energy == nil {
@@ -281,9 +286,18 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	l.ev.closed = sums.ClosedForm()
 	// One evaluation at the renewal estimate of the median checks that the
 	// K-fold law can be computed; the search for the exact median is left to
-	// the first question that needs it.
+	// the first question that needs it. Where the values come from
+	// dist.PointTails' shared panels (a term with an exact transform,
+	// finite at 0, and C within 2·MaxSumIIDTerms means: AtPoint has checked
+	// it), the check is that the median's k is within MaxSumIIDTerms: the
+	// panels are built on first use (a panel costs about 40 transform
+	// values, which a fleet's far groups never need).
 	mk, _ := l.cltK()
 	med := int64(math.Max(float64(l.kmin), math.Min(math.Round(mk), math.Min(float64(l.kmax), 1<<62))))
+	if point.Shared() && med+1 <= dist.MaxSumIIDTerms {
+		l.ev.med = med + 1
+		return l, nil
+	}
 	if v := l.ev.at(med + 1); math.IsNaN(v[0]) {
 		_, err := sums.Accuracy(int(min(med+1, dist.MaxSumIIDTerms+1)))
 		return Lifetime{}, causeErr(fn, "c", c.String(), fmt.Sprintf("K-fold law of %d cycles", med+1), err)

@@ -50,12 +50,13 @@ const pruneRel = 1e-16
 
 // pruneStep and pruneLevels: a TailBounded group keeps its bound points at
 // the levels exp(−pruneStep·m), m = 1, …, pruneLevels (a factor e^46 ≈
-// 10^20 apart, down to e^−736 ≈ 10^−320), computed once when the law is
+// 10^20 apart, down to e^−368 ≈ 10^−160), computed once when the law is
 // built; at a point, the level used is the largest that meets the group's
-// share of pruneRel.
+// share of pruneRel (none where the answer is so small that the share is
+// below the last level: every group is evaluated there).
 const (
 	pruneStep   = 46.0
-	pruneLevels = 16
+	pruneLevels = 8
 )
 
 // setBounds prepares the leaving out of groups for a minimum or maximum

@@ -91,8 +91,11 @@ func NewFleetOfLaws(groups []FleetLawGroup) (Fleet, error) {
 
 // newFleet validates the groups and builds the fleet.
 func newFleet(fn string, groups []FleetLawGroup) (Fleet, error) {
-	f := Fleet{}
-	seen := map[string]bool{}
+	f := Fleet{
+		names: make([]string, 0, len(groups)), laws: make([]dist.Law, 0, len(groups)),
+		counts: make([]int64, 0, len(groups)), groups: make([]orderstat.Group, 0, len(groups)),
+	}
+	seen := make(map[string]bool, len(groups))
 	for i, g := range groups {
 		name := g.Name
 		if name == "" {

@@ -29,9 +29,9 @@ type group struct {
 	nf         float64
 	median     float64 // law.Quantile(0.5): the switch between CDF and Survival (not set for a TwoTails law: see medianValue)
 	lazy       *lazyMedian
-	tails      TwoTails  // nil when the law has no Tails method
-	horizon    []float64 // TailBounded laws in a minimum or maximum: bound points at e^{−46m} (setBounds)
-	logN2      float64   // log(2·n)
+	tails      TwoTails     // nil when the law has no Tails method
+	horizon    *boundPoints // TailBounded laws in a minimum or maximum: bound points at e^{−46m} (setBounds)
+	logN2      float64      // log(2·n)
 	lo, hi     float64
 	atoms      []dist.Atom
 	atomMass   float64

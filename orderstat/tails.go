@@ -3,6 +3,7 @@ package orderstat
 import (
 	"math"
 	"sort"
+	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
 )
@@ -50,14 +51,37 @@ const pruneRel = 1e-16
 
 // pruneStep and pruneLevels: a TailBounded group keeps its bound points at
 // the levels exp(−pruneStep·m), m = 1, …, pruneLevels (a factor e^46 ≈
-// 10^20 apart, down to e^−368 ≈ 10^−160), computed once when the law is
-// built; at a point, the level used is the largest that meets the group's
+// 10^20 apart, down to e^−368 ≈ 10^−160), each computed once, when first
+// needed (the first when the law is built, for the order); at a point, the level used is the largest that meets the group's
 // share of pruneRel (none where the answer is so small that the share is
 // below the last level: every group is evaluated there).
 const (
 	pruneStep   = 46.0
 	pruneLevels = 8
 )
+
+// boundPoints holds a TailBounded law's bound points at the levels
+// exp(−pruneStep·(m+1)), each asked of the law once, when first needed
+// (the same value whenever that is).
+type boundPoints struct {
+	law   TailBounded
+	upper bool // UpperBoundPoint (the maximum); else LowerBoundPoint
+	once  [pruneLevels]sync.Once
+	x     [pruneLevels]float64
+}
+
+// at returns the bound point of level m+1.
+func (b *boundPoints) at(m int) float64 {
+	b.once[m].Do(func() {
+		lp := -pruneStep * float64(m+1)
+		if b.upper {
+			b.x[m] = b.law.UpperBoundPoint(lp)
+		} else {
+			b.x[m] = b.law.LowerBoundPoint(lp)
+		}
+	})
+	return b.x[m]
+}
 
 // setBounds prepares the leaving out of groups for a minimum or maximum
 // over several groups some of whose laws are TailBounded: each such
@@ -70,6 +94,7 @@ func (c *core) setBounds() {
 		return
 	}
 	key := make([]float64, len(c.groups))
+	points := make([]boundPoints, len(c.groups)) // one allocation for all groups
 	for i := range c.groups {
 		g := &c.groups[i]
 		key[i] = math.Inf(-1)
@@ -77,19 +102,12 @@ func (c *core) setBounds() {
 		if !ok {
 			continue
 		}
-		g.horizon = make([]float64, pruneLevels)
-		for m := range g.horizon {
-			lp := -pruneStep * float64(m+1)
-			if c.kind == kindMin {
-				g.horizon[m] = b.LowerBoundPoint(lp)
-			} else {
-				g.horizon[m] = b.UpperBoundPoint(lp)
-			}
-		}
+		points[i].law, points[i].upper = b, c.kind == kindMax
+		g.horizon = &points[i]
 		g.logN2 = math.Log(2 * g.nf)
-		key[i] = g.horizon[0]
+		key[i] = g.horizon.at(0)
 		if c.kind == kindMax {
-			key[i] = -g.horizon[0]
+			key[i] = -key[i]
 		}
 		if math.IsNaN(key[i]) {
 			g.horizon, key[i] = nil, math.Inf(-1)
@@ -138,7 +156,7 @@ func (c *core) extremeLog(x float64, left, upper bool) float64 {
 			// n·(−log1p(−b)) <= 2·n·b <= share·|l|
 			if need := (g.logN2 - thr) / pruneStep; need <= pruneLevels {
 				m := max(1, int(math.Ceil(need)))
-				h := g.horizon[m-1]
+				h := g.horizon.at(m - 1)
 				if (upper && x >= h) || (!upper && x <= h) {
 					continue
 				}

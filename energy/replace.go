@@ -119,7 +119,7 @@ type PolicyOutcome struct {
 // Given the shared factors, nodes are independent and each node's cells
 // fail as a renewal process (Renewals) restarted at each scheduled date;
 // without OnFailure a node fails at most once per block, with probability
-// F(τ). The counts are the exact sums (dist.SumIID, dist.Sum) of the
+// F(τ). The counts are the exact sums (dist.SumIID, dist.SumDiscrete) of the
 // nodes' counts, mixed over the shared factors' Gauss–Hermite nodes as
 // Site's other laws are. With OnFailure the renewal counts of the
 // tabulated conditional node laws come from NewLatticeRenewals (their
@@ -220,7 +220,7 @@ func (s Serviced) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome
 	w := make([]float64, len(s.envs))
 	laws := make([]dist.Law, len(s.envs))
 	for e := range s.envs {
-		tot, err := dist.Sum(perEG[e*G : (e+1)*G]...)
+		tot, err := sumCounts(perEG[e*G : (e+1)*G])
 		if err != nil {
 			return PolicyOutcome{}, causeErr(fn, "failure counts", G, "sum over the groups", err)
 		}
@@ -348,11 +348,27 @@ func (s Serviced) groupFailures(fn string, e, g int, onFailure bool, tau float64
 	if len(parts) == 1 {
 		return parts[0], acc, nil
 	}
-	sum, err := dist.Sum(parts...)
+	sum, err := sumCounts(parts)
 	if err != nil {
 		return nil, 0, causeErr(fn, name, len(parts), "sum of the blocks' counts", err)
 	}
 	return sum, acc, nil
+}
+
+// sumCounts is the exact law of the sum of independent counts: by
+// dist.SumDiscrete (the dense lattice convolution of integer laws) when
+// every law is a finite discrete one, as SumIID makes them up to 65536
+// points, otherwise by dist.Sum.
+func sumCounts(laws []dist.Law) (dist.Law, error) {
+	ds := make([]dist.Discrete, len(laws))
+	for i, l := range laws {
+		d, ok := l.(dist.Discrete)
+		if !ok {
+			return dist.Sum(laws...)
+		}
+		ds[i] = d
+	}
+	return dist.SumDiscrete(ds...)
 }
 
 // blockCount is how many node-blocks of length t a group has.

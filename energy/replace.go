@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
 )
@@ -123,11 +124,14 @@ type PolicyOutcome struct {
 // nodes' counts, mixed over the shared factors' Gauss–Hermite nodes as
 // Site's other laws are. With OnFailure the renewal counts of the
 // tabulated conditional node laws come from NewLatticeRenewals (their
-// k-fold sums on a lattice of 1024 points over the longest block,
-// with the stated error of a lattice of twice the step: a few milliseconds
-// to a few tens per law, where dist.SumIID's exact sums took 0.14–1.5 s
-// each), two workers over the shared nodes and groups; without it only
-// survivals are needed.
+// k-fold sums on a lattice of 1024 points over the horizon, with the
+// stated error of a lattice of twice the step: a few milliseconds to a few
+// tens per law, where dist.SumIID's exact sums took 0.14–1.5 s each; one
+// lattice per shared node and group serves every block and, in
+// ComparePolicies, every policy), two workers over the shared nodes and
+// groups; without it only survivals are needed. The node laws' stated
+// CDF errors at the block lengths are kept by the Serviced (see
+// Site.Serviced), so ComparePolicies and Schedule ask for each once.
 func (s Site) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome, error) {
 	v, err := s.Serviced(nil)
 	if err != nil {
@@ -138,7 +142,27 @@ func (s Site) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome, er
 
 // Replacement is Site.Replacement for the nodes v serves.
 func (s Serviced) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome, error) {
-	const fn = "Serviced.Replacement"
+	return s.replacement("Serviced.Replacement", p, horizon, c, newRenewalCache(len(s.envs)*len(s.names)))
+}
+
+// renewalCache holds the renewal counts of one call (ComparePolicies'
+// policies share them): per shared node and group, the lattice over the
+// call's horizon, built once (sync.Once), so at most one lattice per
+// shared node and group, dropped with the call. A lattice is a function
+// of its key alone, so sharing it never changes an answer.
+type renewalCache struct {
+	slots []renewalSlot
+}
+
+type renewalSlot struct {
+	once sync.Once
+	r    Renewals
+	err  error
+}
+
+func newRenewalCache(n int) *renewalCache { return &renewalCache{slots: make([]renewalSlot, n)} }
+
+func (s Serviced) replacement(fn string, p Policy, horizon float64, c Costs, rc *renewalCache) (PolicyOutcome, error) {
 	if len(s.envs) == 0 {
 		return PolicyOutcome{}, paramErr(fn, "s", "zero Serviced", "must be built by Site.Serviced")
 	}
@@ -192,7 +216,7 @@ func (s Serviced) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome
 				continue
 			}
 			l := e.exact[g]
-			acc := l.cdfErr([]float64{every[g], rest[g]})
+			acc := math.Max(s.errAt(ei, g, every[g]), s.errAt(ei, g, rest[g]))
 			accAt[ei*G+g] = acc
 			if blocks[g] > 0 {
 				logNo += n * float64(blocks[g]) * math.Log(l.Survival(every[g]))
@@ -211,7 +235,7 @@ func (s Serviced) Replacement(p Policy, horizon float64, c Costs) (PolicyOutcome
 	accEG := make([]float64, len(s.envs)*G)
 	err = forEachOnTwo(len(s.envs)*G, func(i int) (err error) {
 		e, g := i/G, i%G
-		perEG[i], accEG[i], err = s.groupFailures(fn, e, g, p.OnFailure, every[g], blocks[g], rest[g], accAt[i])
+		perEG[i], accEG[i], err = s.groupFailures(fn, e, g, p.OnFailure, horizon, every[g], blocks[g], rest[g], accAt[i], &rc.slots[i])
 		return err
 	})
 	if err != nil {
@@ -291,8 +315,9 @@ func (s Serviced) periods(fn string, p Policy, horizon float64) ([]float64, erro
 
 // groupFailures is the law of the failures of group g's nodes given the
 // shared node e, and its stated CDF error; lifeAcc is the exact node law's
-// stated CDF error at τ and the rest.
-func (s Serviced) groupFailures(fn string, e, g int, onFailure bool, tau float64, blocks int64, rest, lifeAcc float64) (dist.Law, float64, error) {
+// stated CDF error at τ and the rest. With onFailure the renewal counts
+// come from slot's lattice over the horizon (built there once).
+func (s Serviced) groupFailures(fn string, e, g int, onFailure bool, horizon, tau float64, blocks int64, rest, lifeAcc float64, slot *renewalSlot) (dist.Law, float64, error) {
 	env := &s.envs[e]
 	n := s.counts[g]
 	if n == 0 {
@@ -316,13 +341,10 @@ func (s Serviced) groupFailures(fn string, e, g int, onFailure bool, tau float64
 		return nil
 	}
 	if onFailure {
-		h := rest
-		if blocks > 0 {
-			h = math.Max(tau, rest)
-		}
-		r, err := env.tab[g].renewals(fn, h)
+		slot.once.Do(func() { slot.r, slot.err = env.tab[g].renewals(fn, horizon) })
+		r, err := slot.r, slot.err
 		if err != nil {
-			return nil, 0, causeErr(fn, name, h, "renewal counts", err)
+			return nil, 0, causeErr(fn, name, horizon, "renewal counts", err)
 		}
 		// The node law's own CDF error moves P(S_n <= t) by at most n
 		// times as much (Kolmogorov distance of a convolution).
@@ -464,8 +486,11 @@ func (s Serviced) ComparePolicies(ps []Policy, horizon, risk float64, c Costs) (
 		return PolicyComparison{}, paramErr(fn, "risk", risk, "must be in (0, 1)")
 	}
 	pc := PolicyComparison{Risk: risk, Cheapest: -1}
+	// The policies' renewal counts are those of the same lattices (over the
+	// horizon): one cache for all of them.
+	rc := newRenewalCache(len(s.envs) * len(s.names))
 	for i, p := range ps {
-		o, err := s.Replacement(p, horizon, c)
+		o, err := s.replacement("Serviced.Replacement", p, horizon, c, rc)
 		if err != nil {
 			return PolicyComparison{}, causeErr(fn, fmt.Sprintf("policies[%d]", i), p.Name, "policy", err)
 		}
@@ -523,7 +548,7 @@ func (s Serviced) Schedule(risk, horizon float64, perGroup bool) ([]float64, err
 	anyFlat := func(gs []int, k int, withErr bool) float64 {
 		tau := horizon / float64(k)
 		p, perr := 0.0, 0.0
-		for _, e := range s.envs {
+		for ei, e := range s.envs {
 			logNo, errE := 0.0, 0.0
 			for _, g := range gs {
 				l := e.exact[g]
@@ -533,7 +558,7 @@ func (s Serviced) Schedule(risk, horizon float64, perGroup bool) ([]float64, err
 				}
 				logNo += n * float64(k) * math.Log(l.Survival(tau))
 				if withErr {
-					errE += n * float64(k) * l.cdfErr([]float64{tau})
+					errE += n * float64(k) * s.errAt(ei, g, tau)
 				}
 			}
 			p += e.w * -math.Expm1(logNo)

@@ -3,6 +3,7 @@ package energy
 import (
 	"fmt"
 	"math"
+	"sync"
 )
 
 // Serviced is the part of a Site that a replacement plan serves: every
@@ -23,6 +24,54 @@ type Serviced struct {
 	counts []int64
 	names  []string
 	left   []float64 // per group, the share of nodes left out
+	errs   *errMemo
+}
+
+// errMemo keeps the served node laws' stated CDF errors at the times
+// asked for (the block lengths of Replacement's and Schedule's policies,
+// which repeat from call to call), by shared node, group and time: at most
+// maxErrMemo entries, beyond which an error is computed without being
+// kept. An entry is a function of its key alone, so the memo never changes
+// an answer, whatever the order of calls or goroutines. Safe for
+// concurrent use.
+type errMemo struct {
+	mu sync.Mutex
+	m  map[errKey]float64
+}
+
+type errKey struct {
+	e, g int
+	t    float64
+}
+
+// maxErrMemo caps the entries of a Serviced's errMemo (about 40 bytes
+// each).
+const maxErrMemo = 1 << 16
+
+// errAt returns the stated CDF error of the served law of group g given
+// shared node e at t (s), at t alone. (A NodeLifetime's stated error over
+// several times is the largest of its errors at each, so the largest of
+// errAt over the times is that error; for a law with settings left out,
+// reachLife, the error at each time bounds that time's.)
+func (s Serviced) errAt(e, g int, t float64) float64 {
+	k := errKey{e, g, t}
+	if s.errs != nil {
+		s.errs.mu.Lock()
+		v, ok := s.errs.m[k]
+		s.errs.mu.Unlock()
+		if ok {
+			return v
+		}
+	}
+	v := s.envs[e].exact[g].cdfErr([]float64{t})
+	if s.errs != nil {
+		s.errs.mu.Lock()
+		if len(s.errs.m) < maxErrMemo {
+			s.errs.m[k] = v
+		}
+		s.errs.mu.Unlock()
+	}
+	return v
 }
 
 type servicedEnv struct {
@@ -103,7 +152,7 @@ func (s Site) Serviced(left [][]int) (Serviced, error) {
 	if left != nil && len(left) != G {
 		return Serviced{}, paramErr(fn, "left", len(left), fmt.Sprintf("must be nil or hold one list per group (%d)", G))
 	}
-	v := Serviced{counts: make([]int64, G), names: s.names, left: make([]float64, G)}
+	v := Serviced{counts: make([]int64, G), names: s.names, left: make([]float64, G), errs: &errMemo{m: map[errKey]float64{}}}
 	outSpec := make([]*NodeSpec, G)
 	for g := range G {
 		v.counts[g] = s.spec.Groups[g].Count

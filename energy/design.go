@@ -1,8 +1,10 @@
 package energy
 
 import (
+	"cmp"
 	"fmt"
 	"math"
+	"slices"
 
 	"github.com/joulelaw/joulelaw/internal/workers"
 	"github.com/joulelaw/joulelaw/orderstat"
@@ -144,14 +146,17 @@ type DesignResult struct {
 	Margin float64
 	// Probability is p = P(flat by Date) (of a node, or of any node for
 	// GroupFlat) at Choice.Interval, and ProbabilityError its stated
-	// error (see the search).
+	// error (see the search): the node laws' and, with a rule from
+	// Site.GroupRule, the shared rule's (RuleError, a part of it; 0 for a
+	// rule without an estimate, such as FixedSharedRule's).
 	Probability      float64
 	ProbabilityError float64
-	// IntervalLow is the largest interval (s) found where even p −
-	// ProbabilityError exceeds the level: the shortest feasible interval
-	// lies in (IntervalLow, Choice.Interval] whatever the numerical error
-	// within its statement. Equal to Choice.Interval when the range's end
-	// or the duty cycle binds; 0 when infeasible.
+	RuleError        float64
+	// IntervalLow is the longest interval (s) evaluated where even p −
+	// ProbabilityError exceeds the level (see SearchDesign): the shortest
+	// feasible interval lies in (IntervalLow, Choice.Interval] whatever the
+	// numerical error within its statement. Equal to Choice.Interval when
+	// the range's end or the duty cycle binds; 0 when infeasible.
 	IntervalLow float64
 	Binds       Binding
 	Builds      int // candidates built
@@ -178,29 +183,36 @@ type Design struct {
 // search builds the candidate at I, its node law at each node of the rule
 // over the shared factors (p.Rule: a Site's own, so that the search and
 // the Site agree; or the fixed Gauss–Hermite rule over p.Shared) and p
-// with its stated error ε (NodeLifetime's CDF error probed at the date,
-// propagated for a group; see TargetKind), and takes a choice as meeting
-// the target only when p + ε <= Level: the interval returned meets the
-// target whenever the stated error holds. While it bisects on p alone it
-// builds the nodes' laws one by one, the one that narrows the bounds on p
-// most first, and stops as soon as the bounds decide p <= Level (a node's
-// life shortens as its batch factor falls, so the laws built bound the
-// others of the same temperature offset): most candidates far from the
-// answer take a few laws; the decisions, and so the answer, are those of
-// the full p. It evaluates the shortest allowed interval (the larger of
-// Space.MinInterval and the candidate's MinInterval) and Space.MaxInterval,
-// then bisects geometrically (√(lo·hi)) on p alone until hi/lo − 1 <=
-// Tolerance, asking for ε only where it decides: at the ends found (going
-// on with p + ε from there when ε moves the answer), at the shortest
-// interval when p alone meets the level there, and at the longest when the
-// choice is infeasible or ε moves the answer. (Regula falsi on the probit
-// of p was tried: p is a mixture over the settings, a staircase of smooth
-// steps, nearly flat at a level that falls on a step's plateau, and the
-// secant saved nothing.) The
-// shortest truly feasible interval lies in (IntervalLow, Interval]:
-// IntervalLow is bracketed the same way on p − ε > Level, reusing the
-// evaluations (usually none more: ε moves the interval far less than the
-// tolerance). The calendar limit binds when it comes before the date.
+// with its stated error ε: the node laws' (NodeLifetime's CDF error probed
+// at the date, propagated for a group; see TargetKind) plus, with a rule
+// from Site.GroupRule, the rule's estimated error for the candidate's own
+// laws (the Site's probe on their probits at the rule's nodes: the
+// mixture against a finer rule interpolated from them). It takes a choice
+// as meeting the target only when p + ε <= Level: the interval returned
+// meets the target whenever the stated error holds. While it bisects on p
+// alone it builds the nodes' laws one by one, the one that narrows the
+// bounds on p most first, and stops as soon as the bounds decide p <=
+// Level (a node's life shortens as its batch factor falls, so the laws
+// built bound the others of the same temperature offset): most candidates
+// far from the answer take a few laws; the decisions, and so the answer,
+// are those of the full p. It evaluates the shortest allowed interval (the
+// larger of Space.MinInterval and the candidate's MinInterval) and
+// Space.MaxInterval, then bisects geometrically (√(lo·hi)) on p alone
+// until hi/lo − 1 <= Tolerance. At the end found it asks for ε (the rule's
+// part comes with p; the node laws' part, which costs about as much as p,
+// only where the rule's alone does not decide): when p + ε meets the level
+// there the bracket stands, otherwise the search gallops to the right
+// (steps of the tolerance, doubled each time, with ε at each) to the first
+// interval that meets p + ε, and bisects back to the tolerance; a choice
+// whose longest interval fails p + ε is infeasible. (Regula falsi on the
+// probit of p was tried: p is a mixture over the settings, a staircase of
+// smooth steps, nearly flat at a level that falls on a step's plateau, and
+// the secant saved nothing.) The shortest truly feasible interval lies in
+// (IntervalLow, Interval]: IntervalLow is the longest interval evaluated
+// where p − ε still exceeds the level, tried among the intervals where p
+// alone fails, from the longest down (not bracketed further; on the demo
+// it lies 0.5 to 3 % below the interval found). The calendar limit binds
+// when it comes before the date.
 //
 // An infeasible choice is not an error: it is reported with the figure at
 // MaxInterval (the best achievable) and what binds (energy, calendar, duty
@@ -263,6 +275,8 @@ func (p DesignProblem) check(fn string) ([]DesignChoice, float64, error) {
 		return nil, 0, paramErr(fn, "p.Space.Tolerance", s.Tolerance, fmt.Sprintf("must be 0 (default %g) or in [%g, 0.5]", DefaultDesignTolerance, MinDesignTolerance))
 	case p.Target.Kind == GroupFlat && !(p.Count >= 1 && p.Count <= orderstat.MaxCount):
 		return nil, 0, paramErr(fn, "p.Count", p.Count, fmt.Sprintf("must be in [1, %d] for a GroupFlat target", orderstat.MaxCount))
+	case p.Target.Kind == GroupFlat && p.Rule.site != nil && p.Count != p.Rule.groupCount():
+		return nil, 0, paramErr(fn, "p.Count", p.Count, fmt.Sprintf("must be the rule's group's count in its Site (%d) for a GroupFlat target: the rule's error is estimated for that count", p.Rule.groupCount()))
 	}
 	if err := p.Target.check(fn, "p.Target."); err != nil {
 		return nil, 0, err
@@ -306,86 +320,120 @@ func (p DesignProblem) check(fn string) ([]DesignChoice, float64, error) {
 }
 
 // evaluation is the target's figure at one interval: whether p meets the
-// level (decided from as few laws as decide needs), p itself once every
-// law is built (NaN before), and its stated error eps (NaN until asked
-// for).
+// level (decided from as few laws as decide needs), p itself and the
+// shared rule's estimated error for it once every law is built (NaN
+// before), and the node laws' stated error (NaN until asked for: it costs
+// about as much as the rest).
 type evaluation struct {
 	interval float64
 	meets    bool
-	p, eps   float64
+	p, ruleE float64
+	nodeE    float64
 	laws     *targetLaws
 }
+
+// eps returns the stated error of p: the node laws' and the rule's.
+func (e *evaluation) eps() float64 { return e.nodeE + e.ruleE }
+
+// What an evaluation is asked for.
+const (
+	needDecide = iota // whether p <= Level
+	needP             // p and the rule's error
+	needErr           // and the node laws' error
+)
 
 // searchChoice bisects one discrete choice's interval: first on p alone
 // (the stated error costs as much as p), then, at the bracket found, with
 // the error: when p + ε still meets the level there the bracket stands,
-// otherwise the search goes on to the right with ε at every step. The
-// optimistic end (p − ε) is bracketed the same way.
+// otherwise the search gallops on to the right with ε at every step. The
+// optimistic end (p − ε) is bracketed the same way. The rule's part of ε
+// comes with p; the node laws' part is asked for only where the rule's
+// alone does not decide (p + ε_rule > Level fails p + ε; p − ε_rule <=
+// Level fails p − ε > Level).
 func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule SharedRule, months *monthCache) (DesignResult, error) {
 	builds := 0
 	minDuty := math.NaN()
-	var evals []evaluation
-	full := func(e *evaluation) (err error) {
-		e.p, e.eps, err = e.laws.figure(p.Target, p.Count, true)
-		e.meets = e.p <= p.Target.Level
-		return err
+	lev := p.Target.Level
+	var evals []*evaluation
+	upgrade := func(e *evaluation, need int) error {
+		if need >= needP && math.IsNaN(e.p) {
+			pr, err := e.laws.prob(p.Target, p.Count)
+			if err != nil {
+				return err
+			}
+			e.p, e.ruleE = pr, e.laws.ruleError(p.Target)
+			e.meets = e.p <= lev
+		}
+		if need >= needErr && math.IsNaN(e.nodeE) {
+			e.nodeE = e.laws.nodeError(p.Target, p.Count)
+		}
+		return nil
 	}
-	eval := func(iv float64, withErr bool) (evaluation, error) {
-		for i, e := range evals {
+	eval := func(iv float64, need int) (*evaluation, error) {
+		for _, e := range evals {
 			if e.interval == iv {
-				if withErr && math.IsNaN(e.eps) {
-					if err := full(&e); err != nil {
-						return evaluation{}, err
-					}
-					evals[i] = e
-				}
-				return e, nil
+				return e, upgrade(e, need)
 			}
 		}
 		if builds >= MaxDesignEvaluations {
-			return evaluation{}, paramErr(fn, "p.Space.Tolerance", tol, fmt.Sprintf("needs more than %d candidates for one choice", MaxDesignEvaluations))
+			return nil, paramErr(fn, "p.Space.Tolerance", tol, fmt.Sprintf("needs more than %d candidates for one choice", MaxDesignEvaluations))
 		}
 		builds++
 		ch := c
 		ch.Interval = iv
 		cand, err := p.Build(ch)
 		if err != nil {
-			return evaluation{}, causeErr(fn, "p.Build", fmt.Sprintf("%+v", ch), "the builder failed", err)
+			return nil, causeErr(fn, "p.Build", fmt.Sprintf("%+v", ch), "the builder failed", err)
 		}
 		if !(cand.MinInterval >= 0) {
-			return evaluation{}, paramErr(fn, "Candidate.MinInterval", cand.MinInterval, "must be >= 0 (s; +Inf for none allowed)")
+			return nil, paramErr(fn, "Candidate.MinInterval", cand.MinInterval, "must be >= 0 (s; +Inf for none allowed)")
 		}
 		if math.IsNaN(minDuty) {
 			minDuty = cand.MinInterval
 		}
 		tl, err := newTargetLaws(fn, cand.Node, p.Climate, rule, months, p.Target.Date)
 		if err != nil {
-			return evaluation{}, err
+			return nil, err
 		}
-		e := evaluation{interval: iv, p: math.NaN(), eps: math.NaN(), laws: tl}
-		if withErr {
-			err = full(&e)
-		} else {
-			e.meets, err = tl.decide(p.Target, p.Count)
-		}
-		if err != nil {
-			return evaluation{}, err
+		e := &evaluation{interval: iv, p: math.NaN(), ruleE: math.NaN(), nodeE: math.NaN(), laws: tl}
+		if need == needDecide {
+			if e.meets, err = tl.decide(p.Target, p.Count); err != nil {
+				return nil, err
+			}
+		} else if err := upgrade(e, need); err != nil {
+			return nil, err
 		}
 		evals = append(evals, e)
 		return e, nil
 	}
+	// conservative tells whether p + ε <= Level; fails whether p − ε >
+	// Level (the optimistic end). Each asks for the node laws' error only
+	// where the rule's alone does not decide.
+	conservative := func(e *evaluation) (bool, error) {
+		if err := upgrade(e, needP); err != nil || e.p+e.ruleE > lev {
+			return false, err
+		}
+		err := upgrade(e, needErr)
+		return e.p+e.eps() <= lev, err
+	}
+	fails := func(e *evaluation) (bool, error) {
+		if err := upgrade(e, needP); err != nil || e.p-e.ruleE <= lev {
+			return false, err
+		}
+		err := upgrade(e, needErr)
+		return e.p-e.eps() > lev, err
+	}
+	decided := func(e *evaluation) (bool, error) { return e.meets, nil }
 	s := p.Space
-	lev := p.Target.Level
 	// The stated error at the longest interval only where it decides or is
 	// reported: an infeasible choice, or a search whose answer ε moves.
-	hiE, err := eval(s.MaxInterval, false)
+	hiE, err := eval(s.MaxInterval, needDecide)
 	if err != nil {
 		return DesignResult{}, err
 	}
 	lo := math.Max(s.MinInterval, minDuty)
-	res := DesignResult{}
 	infeasible := func(bind Binding) (DesignResult, error) {
-		e, err := eval(s.MaxInterval, true)
+		e, err := eval(s.MaxInterval, needErr)
 		if err != nil {
 			return DesignResult{}, err
 		}
@@ -405,33 +453,39 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule
 	}
 	// The stated error at the lower end only when p alone meets the level
 	// there (p > Level fails p + ε too).
-	loE, err := eval(lo, false)
+	loE, err := eval(lo, needDecide)
 	if err != nil {
 		return DesignResult{}, err
 	}
 	if loE.meets {
-		if loE, err = eval(lo, true); err != nil {
+		ok, err := conservative(loE)
+		if err != nil {
 			return DesignResult{}, err
 		}
-	}
-	if loE.p+loE.eps <= lev {
-		bind := BindRange
-		if minDuty > s.MinInterval {
-			bind = BindDutyCycle
+		if ok {
+			bind := BindRange
+			if minDuty > s.MinInterval {
+				bind = BindDutyCycle
+			}
+			res, err := p.result(c, loE, true, bind)
+			res.IntervalLow = lo
+			res.Builds = builds
+			return res, err
 		}
-		res, err = p.result(c, loE, true, bind)
-		res.IntervalLow = lo
-		res.Builds = builds
-		return res, err
 	}
-	// bisect keeps a failing and b meeting the criterion meets(e).
-	bisect := func(a, b evaluation, withErr bool, meets func(evaluation) bool) (evaluation, evaluation, error) {
+	// bisect keeps a failing and b meeting the criterion meets(e),
+	// evaluating the midpoints as need asks.
+	bisect := func(a, b *evaluation, need int, meets func(*evaluation) (bool, error)) (*evaluation, *evaluation, error) {
 		for b.interval/a.interval-1 > tol {
-			m, err := eval(math.Sqrt(a.interval*b.interval), withErr)
+			m, err := eval(math.Sqrt(a.interval*b.interval), need)
 			if err != nil {
 				return a, b, err
 			}
-			if meets(m) {
+			ok, err := meets(m)
+			if err != nil {
+				return a, b, err
+			}
+			if ok {
 				b = m
 			} else {
 				a = m
@@ -439,77 +493,78 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule
 		}
 		return a, b, nil
 	}
-	conservative := func(e evaluation) bool { return e.p+e.eps <= lev }
-	// On p alone (p > lev fails p + ε too), then with ε.
+	// On p alone (p > Level fails p + ε too), then with ε.
 	b := loE
 	if !loE.meets {
-		if _, b, err = bisect(loE, hiE, false, func(e evaluation) bool { return e.meets }); err != nil {
+		if _, b, err = bisect(loE, hiE, needDecide, decided); err != nil {
 			return DesignResult{}, err
 		}
 	}
-	if b, err = eval(b.interval, true); err != nil {
+	ok, err := conservative(b)
+	if err != nil {
 		return DesignResult{}, err
 	}
-	if !conservative(b) {
-		if hiE, err = eval(s.MaxInterval, true); err != nil {
-			return DesignResult{}, err
-		}
-		if !conservative(hiE) {
-			return infeasible(BindEnergy)
-		}
-		if _, b, err = bisect(b, hiE, true, conservative); err != nil {
-			return DesignResult{}, err
-		}
-	}
-	// The optimistic end: the largest interval where p − ε still fails.
-	oa, ob := 0.0, b.interval
-	for _, e := range evals {
-		if !e.meets && e.interval > oa {
-			oa = e.interval
-		}
-		if e.meets {
-			ob = math.Min(ob, e.interval)
-		}
-	}
-	if oa > 0 {
-		ea, err := eval(oa, true)
-		if err != nil {
-			return DesignResult{}, err
-		}
-		if ea.p-ea.eps <= lev {
-			ob, oa = oa, 0 // p − ε meets it here: look further left
-			for _, e := range evals {
-				if !math.IsNaN(e.eps) && e.p-e.eps > lev && e.interval > oa {
-					oa = e.interval
-				}
-			}
-		}
-	}
-	if oa == 0 {
-		oa = lo // (the range's lower end fails p + ε; p − ε is not known to fail there)
-	} else {
-		for ob/oa-1 > tol {
-			m, err := eval(math.Sqrt(oa*ob), true)
+	if !ok {
+		// ε moves the answer to the right, usually by less than the
+		// tolerance: gallop from b in steps of the tolerance, doubled each
+		// time, to the first interval that meets p + ε (infeasible when
+		// not even the longest does), then bisect back.
+		a, step := b, math.Log1p(tol)
+		for {
+			m, err := eval(math.Min(s.MaxInterval, a.interval*math.Exp(step)), needP)
 			if err != nil {
 				return DesignResult{}, err
 			}
-			if m.p-m.eps > lev {
-				oa = m.interval
-			} else {
-				ob = m.interval
+			if ok, err = conservative(m); err != nil {
+				return DesignResult{}, err
 			}
+			if ok {
+				b = m
+				break
+			}
+			if m.interval >= s.MaxInterval {
+				return infeasible(BindEnergy)
+			}
+			a, step = m, 2*step
+		}
+		if _, b, err = bisect(a, b, needP, conservative); err != nil {
+			return DesignResult{}, err
 		}
 	}
-	res, err = p.result(c, b, true, BindEnergy)
-	res.IntervalLow = oa
+	if err := upgrade(b, needErr); err != nil {
+		return DesignResult{}, err
+	}
+	// The optimistic end: the longest interval evaluated where p − ε still
+	// fails, tried from the longest where p alone fails, leftwards (not
+	// bracketed further: each try costs the node laws' error).
+	var failing []*evaluation
+	for _, e := range evals {
+		if !e.meets {
+			failing = append(failing, e)
+		}
+	}
+	slices.SortFunc(failing, func(x, y *evaluation) int { return cmp.Compare(y.interval, x.interval) })
+	low := lo // (the range's lower end fails p + ε; p − ε is not known to fail there)
+	for _, e := range failing {
+		ok, err := fails(e)
+		if err != nil {
+			return DesignResult{}, err
+		}
+		if ok {
+			low = e.interval
+			break
+		}
+	}
+	res, err := p.result(c, b, true, BindEnergy)
+	res.IntervalLow = low
 	res.Builds = builds
 	return res, err
 }
 
-// result fills the figures of the evaluation e.
-func (p DesignProblem) result(c DesignChoice, e evaluation, feasible bool, bind Binding) (DesignResult, error) {
+// result fills the figures of the evaluation e (its errors asked for).
+func (p DesignProblem) result(c DesignChoice, e *evaluation, feasible bool, bind Binding) (DesignResult, error) {
 	c.Interval = e.interval
-	r := DesignResult{Choice: c, Feasible: feasible, Probability: e.p, ProbabilityError: e.eps, Binds: bind}
+	r := DesignResult{Choice: c, Feasible: feasible, Probability: e.p, ProbabilityError: e.eps(), RuleError: e.ruleE, Binds: bind}
 	t := p.Target
 	if t.Kind == NodeQuantile {
 		r.Figure = e.laws.nodeLaw("SearchDesign").Quantile(t.Level)

@@ -10,6 +10,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/quad"
 )
 
 // The design search's month tables, shared through monthCache, give the
@@ -110,12 +111,12 @@ func TestSearchFigureAsSite(t *testing.T) {
 			target := Target{Kind: NodeFlat, Date: T, Level: 0.5}
 			tl, err := newTargetLaws("test", sg.Node, spec.Climate, rule, &monthCache{}, T)
 			require.NoError(t, err)
-			p, _, err := tl.figure(target, 1, false)
+			p, err := tl.prob(target, 1)
 			require.NoError(t, err)
 			assert.InDelta(t, law.CDF(T), p, stated, "group %s at its %g point", sg.Name, q)
 			tf, err := newTargetLaws("test", sg.Node, spec.Climate, fixed, &monthCache{}, T)
 			require.NoError(t, err)
-			pf, _, err := tf.figure(target, 1, false)
+			pf, err := tf.prob(target, 1)
 			require.NoError(t, err)
 			worst = math.Max(worst, math.Abs(pf-p))
 		}
@@ -146,7 +147,7 @@ func TestDecideAsFull(t *testing.T) {
 					count := int64(30)
 					full, err := newTargetLaws("test", sg.Node, spec.Climate, rule, nil, T)
 					require.NoError(t, err)
-					p, _, err := full.figure(target, count, false)
+					p, err := full.prob(target, count)
 					require.NoError(t, err)
 					lazy, err := newTargetLaws("test", sg.Node, spec.Climate, rule, nil, T)
 					require.NoError(t, err)
@@ -169,6 +170,66 @@ func TestDecideAsFull(t *testing.T) {
 				}
 			}
 			assert.Positive(t, saved, "%s, group %s: the bounds decide some dates with fewer laws", rule, sg.Name)
+		}
+	}
+}
+
+// The shared rule's stated error for a candidate's figure (a rule from
+// Site.GroupRule: the Site's probe on the candidate's own probits) against
+// the rule's true error, measured from a reference integral over the
+// shared factors (the oracle: 15 Gauss–Hermite nodes in the batch factor,
+// whose conditional laws are smooth in it, and internal/quad's adaptive
+// Gauss–Kronrod over the temperature offset on ±8 standard deviations to
+// 1e-8, which bisects around the lifetime's kinks in it), for two groups
+// of tabTestSpec at the dates where their laws reach 1 % and 10 %, for a
+// node and for the first failure of the group's nodes: the reference lies
+// within the rule's and the node laws' stated errors (and the reference's
+// own, 1e-8) of the search's figure.
+func TestRuleErrorAgainstReference(t *testing.T) {
+	if testing.Short() {
+		t.Skip("a reference integral over the shared factors: some thousands of node laws")
+	}
+	spec := tabTestSpec(t)
+	site, err := NewSite(spec)
+	require.NoError(t, err)
+	bz, bw := hermiteNodes(spec.Shared.Batch, 15)
+	for _, g := range []int{0, 1} {
+		sg := spec.Groups[g]
+		rule, err := site.GroupRule(g)
+		require.NoError(t, err)
+		law, err := site.NodeLifetime(g)
+		require.NoError(t, err)
+		for _, q := range []float64{0.01, 0.1} {
+			T := law.Quantile(q)
+			// F(T | batch, temperature) at each batch node, for the offset z·σ_T.
+			conds := func(z float64) []float64 {
+				out := make([]float64, len(bz))
+				for i, b := range bz {
+					l, err := NewNodeLifetime(sg.Node, Environment{Climate: spec.Climate, Conditions: Conditions{BatchFactor: 1 + b*spec.Shared.Batch, TemperatureOffset: z * spec.Shared.Temperature}})
+					require.NoError(t, err)
+					out[i] = l.CDF(T)
+				}
+				return out
+			}
+			for _, target := range []Target{{Kind: NodeFlat, Date: T, Level: 0.5}, {Kind: GroupFlat, Date: T, Level: 0.5}} {
+				count := sg.Count
+				ref, err := quad.Adaptive(func(z float64) float64 {
+					s := 0.0
+					for i, f := range conds(z) {
+						s += bw[i] * nodeFigure(target, count, f)
+					}
+					return normPDF(z) * s
+				}, -8, 8, quad.Options{AbsTol: 1e-8})
+				require.NoError(t, err)
+				tl, err := newTargetLaws("test", sg.Node, spec.Climate, rule, nil, T)
+				require.NoError(t, err)
+				p, err := tl.prob(target, count)
+				require.NoError(t, err)
+				ruleE, nodeE := tl.ruleError(target), tl.nodeError(target, count)
+				assert.Positive(t, ruleE)
+				assert.InDelta(t, ref.Value, p, ruleE+nodeE+ref.Error+1e-8, "group %s, %v at the %g point", sg.Name, target.Kind, q)
+				t.Logf("group %s, %v at the node law's %g point: |p − reference| %.2g, stated rule error %.2g (node laws %.2g)", sg.Name, target.Kind, q, math.Abs(p-ref.Value), ruleE, nodeE)
+			}
 		}
 	}
 }

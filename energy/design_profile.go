@@ -91,7 +91,7 @@ func (p DesignProblem) Profile(c DesignChoice, intervals, levels []float64) ([]P
 		if err != nil {
 			return err
 		}
-		pr, _, err := tl.figure(p.Target, p.Count, false)
+		pr, err := tl.prob(p.Target, p.Count)
 		if err != nil {
 			return err
 		}
@@ -117,11 +117,13 @@ func (p DesignProblem) Profile(c DesignChoice, intervals, levels []float64) ([]P
 func (tl *targetLaws) quantile(q float64) float64 {
 	m := tl.nodeLaw("")
 	if !math.IsInf(tl.calendar, 1) {
-		binds := 0.0
-		for e, l := range tl.laws {
-			binds += tl.w[e] * l.EnergyBinds()
+		if math.IsNaN(tl.binds) { // once for every level
+			tl.binds = 0
+			for e, l := range tl.laws {
+				tl.binds += tl.w[e] * l.EnergyBinds()
+			}
 		}
-		if q > binds {
+		if q > tl.binds {
 			return tl.calendar
 		}
 	}

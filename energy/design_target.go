@@ -76,10 +76,12 @@ type targetLaws struct {
 	months   *monthCache
 	conds    []Conditions
 	w        []float64
+	rule     SharedRule     // the rule whose nodes conds and w are (its Site, if any, estimates its error)
 	date     float64        // s: the date of cdf
 	laws     []NodeLifetime // laws[e].n is nil until built
 	cdf      []float64      // F_e(date); NaN until built
 	calendar float64        // s; +Inf for none
+	binds    float64        // the mixture's share of lives the energy ends (NaN until asked: quantile)
 	// lower and higher are, per node, the node of the same temperature
 	// offset with the next lower and next higher batch factor (−1: none).
 	lower, higher []int
@@ -90,8 +92,8 @@ type targetLaws struct {
 // candidate's; the others' come from build).
 func newTargetLaws(fn string, spec NodeSpec, clim *Climate, rule SharedRule, months *monthCache, date float64) (*targetLaws, error) {
 	n := len(rule.w)
-	tl := &targetLaws{fn: fn, spec: spec, clim: clim, months: months, conds: rule.conds, w: rule.w, date: date,
-		laws: make([]NodeLifetime, n), cdf: make([]float64, n), lower: make([]int, n), higher: make([]int, n)}
+	tl := &targetLaws{fn: fn, spec: spec, clim: clim, months: months, conds: rule.conds, w: rule.w, rule: rule, date: date,
+		laws: make([]NodeLifetime, n), cdf: make([]float64, n), lower: make([]int, n), higher: make([]int, n), binds: math.NaN()}
 	heavy := 0
 	for e := range n {
 		tl.cdf[e] = math.NaN()
@@ -227,11 +229,18 @@ func (tl *targetLaws) decide(t Target, count int64) (bool, error) {
 // candidates of a cell share its tables whatever their interval, link or
 // batch. A table is a function of its key alone, so what the cache holds
 // never changes an answer, whatever the order in which goroutines fill
-// it. Safe for concurrent use; a nil cache computes every table.
+// it. It keeps at most maxMonthTables tables (a search's cells times the
+// rule's temperature offsets, 16 on the demo, unless a builder gives its
+// candidates Thermals of their own); beyond, a table is computed for each
+// law and not kept. Safe for concurrent use; a nil cache computes every
+// table.
 type monthCache struct {
 	mu      sync.Mutex
 	entries []monthEntry
 }
+
+// maxMonthTables caps a monthCache's tables (about 1 kB each).
+const maxMonthTables = 1024
 
 type monthEntry struct {
 	th    Thermal
@@ -280,41 +289,74 @@ func (c *monthCache) get(fn string, spec NodeSpec, env Environment) (*monthTable
 	if old := find(); old != nil {
 		return old, nil // another goroutine's table, equal to this one
 	}
-	c.entries = append(c.entries, monthEntry{th: *th, start: spec.StartMonth, clim: clim, mt: mt})
+	if len(c.entries) < maxMonthTables {
+		c.entries = append(c.entries, monthEntry{th: *th, start: spec.StartMonth, clim: clim, mt: mt})
+	}
 	return mt, nil
 }
 
-// figure returns p, the target's probability (see TargetKind), and, when
-// withErr is set, its stated error: each conditional law's CDF error at T
-// (NodeLifetime's five-cumulant check and quadrature estimates, probed at T
-// itself), weighted, and for a group propagated through 1 − (1 − F)^n,
-// whose slope is n·(1 − F)^(n−1). The rule over the shared factors is not
-// included (see Site). The error costs about as much as the rest, so the
-// search asks for it only where it decides. It builds every node's law;
-// t.Date must be the date tl was made for.
-func (tl *targetLaws) figure(t Target, count int64, withErr bool) (p, errEst float64, err error) {
+// prob returns p, the target's probability (see TargetKind), from every
+// node's law (it builds those not built yet); t.Date must be the date tl
+// was made for.
+func (tl *targetLaws) prob(t Target, count int64) (float64, error) {
 	if err := tl.all(); err != nil {
-		return 0, 0, err
+		return 0, err
 	}
+	if t.Date >= tl.calendar {
+		return 1, nil
+	}
+	p := 0.0
+	for e, f := range tl.cdf {
+		p += tl.w[e] * nodeFigure(t, count, f)
+	}
+	return math.Min(1, math.Max(0, p)), nil
+}
+
+// nodeError returns the node laws' part of p's stated error: each
+// conditional law's CDF error at T (NodeLifetime's five-cumulant check and
+// quadrature estimates, probed at T itself), weighted, and for a group
+// propagated through 1 − (1 − F)^n, whose slope is n·(1 − F)^(n−1). It
+// costs about as much as p, so the search asks for it only where it
+// decides. Every law must be built (prob).
+func (tl *targetLaws) nodeError(t Target, count int64) float64 {
 	T := t.Date
 	if T >= tl.calendar {
-		return 1, 0, nil
+		return 0 // p = 1 exactly
 	}
 	n := float64(count)
+	errEst := 0.0
 	for e, l := range tl.laws {
 		f := tl.cdf[e]
-		eps := 0.0
-		if withErr {
-			eps = l.accuracyAt([]float64{T}).CDFAbs
-		}
-		p += tl.w[e] * nodeFigure(t, count, f)
+		eps := l.accuracyAt([]float64{T}).CDFAbs
 		if t.Kind == GroupFlat {
 			errEst += tl.w[e] * n * math.Exp((n-1)*math.Log1p(-math.Min(1, math.Max(0, f-eps)))) * eps
 		} else {
 			errEst += tl.w[e] * eps
 		}
 	}
-	return math.Min(1, math.Max(0, p)), errEst, nil
+	return errEst
+}
+
+// ruleError returns the shared rule's part of p's stated error: for a
+// rule from Site.GroupRule, the Site's estimate of its rule's error for
+// these laws at T (its probe on their probits at the rule's nodes,
+// ruleErrorOf: a node's law, or for GroupFlat the first failure among the
+// Site group's nodes, whose count SearchDesign checks is Count); 0 for a
+// rule without an estimate. Every law must be built (prob).
+func (tl *targetLaws) ruleError(t Target) float64 {
+	if tl.rule.site == nil || t.Date >= tl.calendar {
+		return 0
+	}
+	E := len(tl.laws)
+	Z := make([]float64, len(tl.rule.site.names)*E)
+	for e, f := range tl.cdf {
+		Z[tl.rule.group*E+e] = clampedProbit(1-f, f)
+	}
+	kind := kindNode
+	if t.Kind == GroupFlat {
+		kind = kindFirst
+	}
+	return tl.rule.site.ruleErrorOf(Z, kind, tl.rule.group)
 }
 
 // nodeLaw is the mixture over the shared factors of the conditional laws

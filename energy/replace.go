@@ -100,10 +100,13 @@ type PolicyOutcome struct {
 	// within the horizon (that any cell fails), computed directly from the
 	// nodes' survivals: Σ_e w_e·(1 − Π_g S_g(τ_g)^(n_g·B_g)·S_g(r_g)^n_g)
 	// with B_g scheduled blocks of τ_g and a last one of r_g. AnyFlatError
-	// is its stated error (the node laws' CDF errors at τ_g and r_g, summed
-	// over the nodes and blocks: the product of numbers in [0, 1] moves by
-	// at most the sum of their moves).
-	AnyFlat, AnyFlatError float64
+	// is its stated error: the node laws' CDF errors at τ_g and r_g, summed
+	// over the nodes and blocks (the product of numbers in [0, 1] moves by
+	// at most the sum of their moves), plus RuleError, the Site's estimate
+	// of its shared rule's error for this mixture (the Site's probe of a
+	// fleet's first failure, on the nodes' probabilities of a flat cell
+	// within their blocks, 1 − S_g(τ_g)^B_g·S_g(r_g): see Site).
+	AnyFlat, AnyFlatError, RuleError float64
 	// CountError is the stated CDF error of the count laws (the renewal
 	// counts' lattice error, plus Max renewals times the conditional node
 	// laws' stated CDF error, which moves P(S_n <= t) by at most n times
@@ -206,28 +209,37 @@ func (s Serviced) replacement(fn string, p Policy, horizon float64, c Costs, rc 
 	}
 
 	// Any flat node, directly from the exact conditional laws; their stated
-	// errors at the blocks' lengths serve the failure counts too.
+	// errors at the blocks' lengths serve the failure counts too. Z holds
+	// the probits of a node's flat cell within its blocks, for the rule's
+	// error.
 	accAt := make([]float64, len(s.envs)*G)
+	E := len(s.envs)
+	Z := make([]float64, G*E)
 	for ei, e := range s.envs {
 		logNo, errE := 0.0, 0.0
 		for g := range G {
 			n := float64(s.counts[g])
+			Z[g*E+ei] = -probitClamp
 			if n == 0 {
 				continue
 			}
 			l := e.exact[g]
 			acc := math.Max(s.errAt(ei, g, every[g]), s.errAt(ei, g, rest[g]))
 			accAt[ei*G+g] = acc
+			logS := math.Log(l.Survival(rest[g])) // a node's log P(no flat cell within its blocks)
 			if blocks[g] > 0 {
-				logNo += n * float64(blocks[g]) * math.Log(l.Survival(every[g]))
+				logS += float64(blocks[g]) * math.Log(l.Survival(every[g]))
 			}
-			logNo += n * math.Log(l.Survival(rest[g]))
+			Z[g*E+ei] = clampedProbit(math.Exp(logS), -math.Expm1(logS))
+			logNo += n * logS
 			errE += n * float64(blocks[g]+1) * acc
 		}
 		out.AnyFlat += e.w * -math.Expm1(logNo)
 		out.AnyFlatError += e.w * math.Min(1, errE)
 	}
 	out.AnyFlat = math.Min(1, math.Max(0, out.AnyFlat))
+	out.RuleError = s.ruleError(Z, kindFleet, 0)
+	out.AnyFlatError += out.RuleError
 
 	// Failure counts, environment by environment (two workers; each result
 	// lands in its own slot).
@@ -516,7 +528,9 @@ func (s Serviced) ComparePolicies(ps []Policy, horizon, risk float64, c Costs) (
 
 // Schedule returns replacement periods (s) that keep the probability of
 // any flat node within horizon (s) at most risk (in (0, 1)), the stated
-// error included, with as few replacements as it can: one common period
+// error included (the node laws' and the shared rule's, as
+// PolicyOutcome.AnyFlatError; a group's own first failure for its rule's
+// part when held to its share), with as few replacements as it can: one common period
 // horizon/k for the whole site (perGroup false; k = 1, 2, … the first that
 // meets the risk), or one per group (perGroup true), each group held to
 // risk·n_g/n (the fleet's probability is at most the sum of the groups').
@@ -544,10 +558,19 @@ func (s Serviced) Schedule(risk, horizon float64, perGroup bool) ([]float64, err
 	}
 	G := len(s.names)
 	// anyFlat returns P(any node of the groups in gs flat) for k equal
-	// blocks of horizon/k, plus its stated error when withErr is set.
+	// blocks of horizon/k, plus, when withErr is set, its stated error
+	// (the node laws' and the rule's, as Replacement's).
+	E := len(s.envs)
 	anyFlat := func(gs []int, k int, withErr bool) float64 {
 		tau := horizon / float64(k)
 		p, perr := 0.0, 0.0
+		var Z []float64
+		if withErr {
+			Z = make([]float64, G*E)
+			for i := range Z {
+				Z[i] = -probitClamp
+			}
+		}
 		for ei, e := range s.envs {
 			logNo, errE := 0.0, 0.0
 			for _, g := range gs {
@@ -556,13 +579,22 @@ func (s Serviced) Schedule(risk, horizon float64, perGroup bool) ([]float64, err
 				if n == 0 {
 					continue
 				}
-				logNo += n * float64(k) * math.Log(l.Survival(tau))
+				logS := float64(k) * math.Log(l.Survival(tau))
+				logNo += n * logS
 				if withErr {
 					errE += n * float64(k) * s.errAt(ei, g, tau)
+					Z[g*E+ei] = clampedProbit(math.Exp(logS), -math.Expm1(logS))
 				}
 			}
 			p += e.w * -math.Expm1(logNo)
 			perr += e.w * math.Min(1, errE)
+		}
+		if withErr {
+			if len(gs) == 1 {
+				perr += s.ruleError(Z, kindFirst, gs[0])
+			} else {
+				perr += s.ruleError(Z, kindFleet, 0)
+			}
 		}
 		return p + perr
 	}

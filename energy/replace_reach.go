@@ -25,6 +25,7 @@ type Serviced struct {
 	names  []string
 	left   []float64 // per group, the share of nodes left out
 	errs   *errMemo
+	site   *Site // the Site served (its rule's error estimate)
 }
 
 // errMemo keeps the served node laws' stated CDF errors at the times
@@ -152,7 +153,8 @@ func (s Site) Serviced(left [][]int) (Serviced, error) {
 	if left != nil && len(left) != G {
 		return Serviced{}, paramErr(fn, "left", len(left), fmt.Sprintf("must be nil or hold one list per group (%d)", G))
 	}
-	v := Serviced{counts: make([]int64, G), names: s.names, left: make([]float64, G), errs: &errMemo{m: map[errKey]float64{}}}
+	site := s
+	v := Serviced{counts: make([]int64, G), names: s.names, left: make([]float64, G), errs: &errMemo{m: map[errKey]float64{}}, site: &site}
 	outSpec := make([]*NodeSpec, G)
 	for g := range G {
 		v.counts[g] = s.spec.Groups[g].Count
@@ -230,6 +232,18 @@ func (s Site) Serviced(left [][]int) (Serviced, error) {
 		v.envs = append(v.envs, se)
 	}
 	return v, nil
+}
+
+// ruleError returns the Site's estimated error of its rule for kind's
+// mixture (kindFleet, or kindFirst of group g) of the served laws whose
+// probits at the rule's nodes are Z (a group left out wholly: −probitClamp,
+// no flat node): see Site.ruleErrorOf. The Site's counts are the served
+// ones but for such groups. 0 for a zero Site.
+func (s Serviced) ruleError(Z []float64, kind lawKind, g int) float64 {
+	if s.site == nil || len(s.site.envs) == 0 {
+		return 0
+	}
+	return s.site.ruleErrorOf(Z, kind, g)
 }
 
 // Left returns the share of group g's nodes the plan leaves out (0 to 1;

@@ -561,7 +561,13 @@ func (s *Site) probeStart(t float64, kind lawKind, g int, k int64) probeError {
 		want = make([]bool, len(s.names))
 		want[g] = true
 	}
-	p := probeError{t: t, Z: s.nodeZ(t, want)}
+	return s.probeZ(t, s.nodeZ(t, want), kind, g, k)
+}
+
+// probeZ is probeStart from the node probits Z at t (nodeZ's layout): the
+// design search and the replacement policies probe their own laws.
+func (s *Site) probeZ(t float64, Z []float64, kind lawKind, g int, k int64) probeError {
+	p := probeError{t: t, Z: Z}
 	p.rule = s.mixZ(p.Z, kind, g, k, [2]int{modeNodes, modeNodes})[0]
 	// The reference and, from the same points, every other point of its
 	// grid in each factor with spread (the fine rule's own error).

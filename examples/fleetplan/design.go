@@ -47,8 +47,11 @@ type GroupDesign struct {
 	Achieved    float64 `json:"achieved"`
 	Margin      float64 `json:"margin"`
 	Probability float64 `json:"probability_flat_by_date"`
-	ProbError   float64 `json:"probability_error"`
-	Binds       string  `json:"binds"`
+	// ProbError is the probability's stated error: the node laws' and the
+	// shared rule's (RuleError, a part of it).
+	ProbError float64 `json:"probability_error"`
+	RuleError float64 `json:"probability_rule_error"`
+	Binds     string  `json:"binds"`
 	// CurrentIntervalS is the group's reporting interval in the scenario.
 	CurrentIntervalS float64         `json:"scenario_interval_s"`
 	Choices          []ChoiceSummary `json:"choices"`
@@ -106,7 +109,8 @@ type PolicyRow struct {
 	CellsPerYear    energy.Band `json:"cells_per_year"`
 	FailuresPerYear energy.Band `json:"failures_per_year"`
 	AnyFlat         float64     `json:"probability_any_flat"`
-	AnyFlatError    float64     `json:"probability_any_flat_error"`
+	AnyFlatError    float64     `json:"probability_any_flat_error"` // the node laws' and the shared rule's
+	RuleError       float64     `json:"probability_any_flat_rule_error"`
 	Cost            energy.Band `json:"cost"`
 }
 
@@ -168,10 +172,6 @@ func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*Design
 	say("  what it takes: the design search of %d groups, and the replacement policies over %s", len(s.Groups), years(d.Horizon/energy.Year))
 	dp.Groups = make([]GroupDesign, len(s.Groups))
 	dp.laws = make([]designFigData, len(s.Groups))
-	// The candidates' laws are mixed over the plan's own rule over the
-	// shared factors (the Site adapts it to the site): the search's figure
-	// at the scenario's design is the plan's.
-	rule := laws.Site.SharedRule()
 	var pp PolicyPlan
 	err := workers.Run(len(s.Groups)+1, 2, func(i int) error {
 		if i == 0 {
@@ -181,6 +181,14 @@ func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*Design
 		}
 		gi := i - 1
 		g := s.Groups[gi]
+		// The candidates' laws are mixed over the plan's own rule over the
+		// shared factors (the Site adapts it to the site), which estimates
+		// its error for them: the search's figure at the scenario's design
+		// is the plan's.
+		rule, err := laws.Site.GroupRule(gi)
+		if err != nil {
+			return err
+		}
 		prob := energy.DesignProblem{Space: space, Target: d.Target, Count: int64(g.Nodes), Climate: s.Climate, Shared: s.Shared,
 			Rule: rule, Build: groupBuilder(s, laws.Model, gi)}
 		res, err := energy.SearchDesign(prob)
@@ -205,7 +213,7 @@ func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*Design
 	}
 	dp.Policies = pp
 	dp.Notes = []string{
-		"A choice meets the target only when the computed probability plus its stated error does; the interval is bracketed to 1 %.",
+		"A choice meets the target only when the computed probability plus its stated error does; the interval is bracketed to 1 %. A probability's ± is its stated error: the node laws' and the shared rule's (the site's estimate of its rule over the cell batch and the climate, made for the laws shown as for the plan's own).",
 		"Readings are batched k to an uplink: the uplink interval is k times the reading interval and the payload k times the group's.",
 		"The duty-cycle limit is checked at every data rate the group's nodes use, with every transmission of a report counted.",
 		"The policies' probability of a flat node is over the whole horizon; a failure replaced at once still leaves its node flat until the visit.",
@@ -346,7 +354,7 @@ func groupDesign(s scenario.Scenario, gi int, prob energy.DesignProblem, res ene
 	c := b.Choice
 	gd := GroupDesign{Name: s.Groups[gi].Name, Feasible: b.Feasible, Cell: space.Cells[c.Cell], Confirmed: c.Link.Confirmed, MaxTransmissions: c.Link.Transmissions,
 		ReadingsPerUplink: c.Batch, Window: space.Windows[c.Window], ReadingIntervalS: c.Interval, IntervalLowS: b.IntervalLow, UplinkIntervalS: c.UplinkPeriod(),
-		Achieved: b.Figure, Margin: b.Margin, Probability: b.Probability, ProbError: b.ProbabilityError, Binds: string(b.Binds), CurrentIntervalS: s.Groups[gi].Interval}
+		Achieved: b.Figure, Margin: b.Margin, Probability: b.Probability, ProbError: b.ProbabilityError, RuleError: b.RuleError, Binds: string(b.Binds), CurrentIntervalS: s.Groups[gi].Interval}
 	if res.Target.Kind == energy.NodeQuantile {
 		gd.Achieved /= energy.Year
 		gd.Margin /= energy.Year
@@ -437,7 +445,7 @@ func comparePolicies(s scenario.Scenario, laws scenario.Laws) (PolicyPlan, error
 	}
 	for _, o := range pc.Outcomes {
 		row := PolicyRow{Policy: o.Policy.Name, OnFailure: o.Policy.OnFailure, VisitsPerYear: o.VisitsPerYear, CellsPerYear: o.CellsPerYear,
-			FailuresPerYear: o.FailuresPerYear, AnyFlat: o.AnyFlat, AnyFlatError: o.AnyFlatError, Cost: o.Cost}
+			FailuresPerYear: o.FailuresPerYear, AnyFlat: o.AnyFlat, AnyFlatError: o.AnyFlatError, RuleError: o.RuleError, Cost: o.Cost}
 		for gi := range s.Groups {
 			var tau float64
 			switch len(o.Policy.Every) {

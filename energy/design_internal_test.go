@@ -233,3 +233,34 @@ func TestRuleErrorAgainstReference(t *testing.T) {
 		}
 	}
 }
+
+// nodeError's laws' errors, given their settings' own probits
+// (settingProbits, so that accuracyAtZ passes over settings), are those of
+// accuracyAt measuring every setting (the oracle), for the groups of
+// tabTestSpec and the seven-setting node of tabManySpec at the dates of
+// their laws' 1e-4 to 0.9 points, at several shared conditions.
+func TestSettingProbitsAsFull(t *testing.T) {
+	spec := tabTestSpec(t)
+	many, manyClim := tabManySpec(t)
+	nodes := []NodeSpec{many}
+	clims := []*Climate{manyClim}
+	for _, g := range spec.Groups {
+		nodes, clims = append(nodes, g.Node), append(clims, spec.Climate)
+	}
+	passed := 0
+	for i, node := range nodes {
+		for _, c := range []Conditions{{BatchFactor: 1}, {BatchFactor: 0.95, TemperatureOffset: -3}, {BatchFactor: 1.05, TemperatureOffset: 4}} {
+			l, err := NewNodeLifetime(node, Environment{Climate: clims[i], Conditions: c})
+			require.NoError(t, err)
+			for _, q := range []float64{1e-4, 0.01, 0.3, 0.9} {
+				T := l.Quantile(q)
+				full := l.accuracyAt([]float64{T})
+				got, n := l.accuracyAtZPruned([]float64{T}, settingProbits(l, T), true)
+				passed += n
+				assert.Equal(t, full.CDFAbs, got.CDFAbs, "node %d at %+v, the %g point", i, c, q)
+			}
+		}
+	}
+	assert.Positive(t, passed, "some settings passed over")
+	t.Logf("settings passed over: %d", passed)
+}

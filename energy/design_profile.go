@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/root"
 )
 
 // Caps on a profile.
@@ -39,7 +40,7 @@ type ProfileRow struct {
 // goroutines; the rows do not depend on the schedule.
 //
 // Quantiles are found as the mixture's Quantile finds them (regula falsi
-// on the probit, to 1e-12 relative) from a cheaper bracket: the calendar
+// on the probit, internal/root), to 1e-10 relative, from a cheaper bracket: the calendar
 // limit where the energy binds less often than the level, otherwise the
 // heaviest shared node's own quantile widened until the mixture's CDF
 // brackets the level (one conditional root-finding per quantile instead
@@ -139,19 +140,31 @@ func (tl *targetLaws) quantile(q float64) float64 {
 		return m.Quantile(q) // the mixture's own bracket
 	}
 	// Widen by factors 1.05, 1.05², 1.05⁴, … until the probit brackets
-	// the target (probit(lo) < target <= probit(hi)).
+	// the target (probit(lo) < target <= probit(hi)), keeping the ends'
+	// probits for the root finder.
 	lo, hi := x, x
-	for f := 1.05; m.probit(lo) >= target; f *= f {
+	zlo := m.probit(x)
+	zhi := zlo
+	for f := 1.05; zlo >= target; f *= f {
 		if lo < 1 || f > 1e300 {
 			return m.Quantile(q)
 		}
-		hi, lo = lo, lo/f
+		hi, zhi = lo, zlo
+		lo /= f
+		zlo = m.probit(lo)
 	}
-	for f := 1.05; m.probit(hi) < target; f *= f {
+	for f := 1.05; zhi < target; f *= f {
 		if hi >= tl.calendar || f > 1e300 {
 			return m.Quantile(q)
 		}
-		lo, hi = hi, math.Min(hi*f, tl.calendar)
+		lo, zlo = hi, zhi
+		hi = math.Min(hi*f, tl.calendar)
+		zhi = m.probit(hi)
 	}
-	return m.solve(lo, hi, target)
+	return root.Illinois(func(t float64) float64 { return m.probit(t) - target }, lo, hi, zlo-target, zhi-target, profileQuantileTol*hi)
 }
+
+// profileQuantileTol is the relative width to which Profile brackets a
+// quantile (the mixture's own Quantile goes to 1e-12: a table's quantile
+// needs fewer steps of the same root finder).
+const profileQuantileTol = 1e-10

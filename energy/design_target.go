@@ -315,9 +315,13 @@ func (tl *targetLaws) prob(t Target, count int64) (float64, error) {
 // nodeError returns the node laws' part of p's stated error: each
 // conditional law's CDF error at T (NodeLifetime's five-cumulant check and
 // quadrature estimates, probed at T itself), weighted, and for a group
-// propagated through 1 − (1 − F)^n, whose slope is n·(1 − F)^(n−1). It
-// costs about as much as p, so the search asks for it only where it
-// decides. Every law must be built (prob).
+// propagated through 1 − (1 − F)^n, whose slope is n·(1 − F)^(n−1). Each
+// law's error is accuracyAtZ's given its settings' own probits at T
+// (settingProbits), which passes over the settings whose terms cannot
+// raise the error measured: the same stated error as measuring every
+// setting, for one more CDF's work. It costs about as much as p, so the
+// search asks for it only where it decides. Every law must be built
+// (prob).
 func (tl *targetLaws) nodeError(t Target, count int64) float64 {
 	T := t.Date
 	if T >= tl.calendar {
@@ -327,7 +331,7 @@ func (tl *targetLaws) nodeError(t Target, count int64) float64 {
 	errEst := 0.0
 	for e, l := range tl.laws {
 		f := tl.cdf[e]
-		eps := l.accuracyAt([]float64{T}).CDFAbs
+		eps := l.accuracyAtZ([]float64{T}, settingProbits(l, T)).CDFAbs
 		if t.Kind == GroupFlat {
 			errEst += tl.w[e] * n * math.Exp((n-1)*math.Log1p(-math.Min(1, math.Max(0, f-eps)))) * eps
 		} else {
@@ -335,6 +339,27 @@ func (tl *targetLaws) nodeError(t Target, count int64) float64 {
 		}
 	}
 	return errEst
+}
+
+// settingProbits returns, as accuracyAtZ's zOf for the time t alone, the
+// probit at t of each of l's settings (settingAt: the model's own values,
+// not a table's; NaN at other times); nil for a law without per-node
+// spread (accuracyAtZ does not probe those).
+func settingProbits(l NodeLifetime, t float64) func(j int, u float64) float64 {
+	if l.n.spread.IsZero() {
+		return nil
+	}
+	z := make([]float64, len(l.n.settings))
+	for j := range z {
+		alive, dead, _ := l.n.settingAt(j, t)
+		z[j] = probitOf(alive, dead)
+	}
+	return func(j int, u float64) float64 {
+		if u != t {
+			return math.NaN()
+		}
+		return z[j]
+	}
 }
 
 // ruleError returns the shared rule's part of p's stated error: for a

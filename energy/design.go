@@ -152,12 +152,16 @@ type DesignResult struct {
 	Probability      float64
 	ProbabilityError float64
 	RuleError        float64
-	// IntervalLow is the longest interval (s) evaluated where even p −
-	// ProbabilityError exceeds the level (see SearchDesign): the shortest
-	// feasible interval lies in (IntervalLow, Choice.Interval] whatever the
-	// numerical error within its statement. Equal to Choice.Interval when
-	// the range's end or the duty cycle binds; 0 when infeasible.
+	// IntervalLow is an interval (s) where even p − ProbabilityError
+	// exceeds the level: the shortest feasible interval lies in
+	// (IntervalLow, Choice.Interval] whatever the numerical error within
+	// its statement. For the best choice (Design.Best) it is bracketed to
+	// the tolerance; for the others it is the longest interval their
+	// search evaluated where p − ε fails (see SearchDesign). Equal to
+	// Choice.Interval when the range's end or the duty cycle binds; 0 when
+	// infeasible.
 	IntervalLow float64
+	lowMeets    float64 // s: the shortest interval the search found to meet p − ε <= Level (refineLow)
 	Binds       Binding
 	Builds      int // candidates built
 }
@@ -210,9 +214,10 @@ type Design struct {
 // the secant saved nothing.) The shortest truly feasible interval lies in
 // (IntervalLow, Interval]: IntervalLow is the longest interval evaluated
 // where p − ε still exceeds the level, tried among the intervals where p
-// alone fails, from the longest down (not bracketed further; on the demo
-// it lies 0.5 to 3 % below the interval found). The calendar limit binds
-// when it comes before the date.
+// alone fails, from the longest down (on the demo 0.5 to 10 % below the
+// interval found), and for the best choice alone bracketed on from there
+// to the tolerance (each step costs the node laws' error). The calendar
+// limit binds when it comes before the date.
 //
 // An infeasible choice is not an error: it is reported with the figure at
 // MaxInterval (the best achievable) and what binds (energy, calendar, duty
@@ -236,6 +241,11 @@ func SearchDesign(p DesignProblem) (Design, error) {
 		return Design{}, err
 	}
 	d.Best, d.Feasible = bestDesign(d.Results, tol)
+	// The best choice's optimistic end to the tolerance (the others' are
+	// the longest interval their search evaluated where p − ε fails).
+	if err := p.refineLow(fn, &d.Results[d.Best], tol, rule, months); err != nil {
+		return Design{}, err
+	}
 	return d, nil
 }
 
@@ -342,98 +352,147 @@ const (
 	needErr           // and the node laws' error
 )
 
+// choiceSearch is the state of one discrete choice's search: its
+// candidates' evaluations, by interval. Not safe for concurrent use: each
+// belongs to one search goroutine.
+type choiceSearch struct {
+	p       DesignProblem
+	fn      string
+	c       DesignChoice
+	tol     float64
+	rule    SharedRule
+	months  *monthCache
+	builds  int
+	minDuty float64 // s: the first candidate's MinInterval (NaN before)
+	evals   []*evaluation
+}
+
+func (p DesignProblem) newChoiceSearch(fn string, c DesignChoice, tol float64, rule SharedRule, months *monthCache) *choiceSearch {
+	return &choiceSearch{p: p, fn: fn, c: c, tol: tol, rule: rule, months: months, minDuty: math.NaN()}
+}
+
+// upgrade computes what need asks of e and e does not hold yet.
+func (cs *choiceSearch) upgrade(e *evaluation, need int) error {
+	p := cs.p
+	if need >= needP && math.IsNaN(e.p) {
+		pr, err := e.laws.prob(p.Target, p.Count)
+		if err != nil {
+			return err
+		}
+		e.p, e.ruleE = pr, e.laws.ruleError(p.Target)
+		e.meets = e.p <= p.Target.Level
+	}
+	if need >= needErr && math.IsNaN(e.nodeE) {
+		e.nodeE = e.laws.nodeError(p.Target, p.Count)
+	}
+	return nil
+}
+
+// eval returns the evaluation at the interval iv (s), building the
+// candidate the first time, with what need asks.
+func (cs *choiceSearch) eval(iv float64, need int) (*evaluation, error) {
+	for _, e := range cs.evals {
+		if e.interval == iv {
+			return e, cs.upgrade(e, need)
+		}
+	}
+	p, fn := cs.p, cs.fn
+	if cs.builds >= MaxDesignEvaluations {
+		return nil, paramErr(fn, "p.Space.Tolerance", cs.tol, fmt.Sprintf("needs more than %d candidates for one choice", MaxDesignEvaluations))
+	}
+	cs.builds++
+	ch := cs.c
+	ch.Interval = iv
+	cand, err := p.Build(ch)
+	if err != nil {
+		return nil, causeErr(fn, "p.Build", fmt.Sprintf("%+v", ch), "the builder failed", err)
+	}
+	if !(cand.MinInterval >= 0) {
+		return nil, paramErr(fn, "Candidate.MinInterval", cand.MinInterval, "must be >= 0 (s; +Inf for none allowed)")
+	}
+	if math.IsNaN(cs.minDuty) {
+		cs.minDuty = cand.MinInterval
+	}
+	tl, err := newTargetLaws(fn, cand.Node, p.Climate, cs.rule, cs.months, p.Target.Date)
+	if err != nil {
+		return nil, err
+	}
+	e := &evaluation{interval: iv, p: math.NaN(), ruleE: math.NaN(), nodeE: math.NaN(), laws: tl}
+	if need == needDecide {
+		if e.meets, err = tl.decide(p.Target, p.Count); err != nil {
+			return nil, err
+		}
+	} else if err := cs.upgrade(e, need); err != nil {
+		return nil, err
+	}
+	cs.evals = append(cs.evals, e)
+	return e, nil
+}
+
+// conservative tells whether p + ε <= Level, fails whether p − ε > Level
+// (the optimistic end); each asks for the node laws' error only where the
+// rule's alone does not decide.
+func (cs *choiceSearch) conservative(e *evaluation) (bool, error) {
+	lev := cs.p.Target.Level
+	if err := cs.upgrade(e, needP); err != nil || e.p+e.ruleE > lev {
+		return false, err
+	}
+	err := cs.upgrade(e, needErr)
+	return e.p+e.eps() <= lev, err
+}
+
+func (cs *choiceSearch) fails(e *evaluation) (bool, error) {
+	lev := cs.p.Target.Level
+	if err := cs.upgrade(e, needP); err != nil || e.p-e.ruleE <= lev {
+		return false, err
+	}
+	err := cs.upgrade(e, needErr)
+	return e.p-e.eps() > lev, err
+}
+
+// bisect keeps a failing and b meeting the criterion meets(e), evaluating
+// the geometric midpoints as need asks, until b/a − 1 <= the tolerance.
+func (cs *choiceSearch) bisect(a, b *evaluation, need int, meets func(*evaluation) (bool, error)) (*evaluation, *evaluation, error) {
+	for b.interval/a.interval-1 > cs.tol {
+		m, err := cs.eval(math.Sqrt(a.interval*b.interval), need)
+		if err != nil {
+			return a, b, err
+		}
+		ok, err := meets(m)
+		if err != nil {
+			return a, b, err
+		}
+		if ok {
+			b = m
+		} else {
+			a = m
+		}
+	}
+	return a, b, nil
+}
+
 // searchChoice bisects one discrete choice's interval: first on p alone
 // (the stated error costs as much as p), then, at the bracket found, with
 // the error: when p + ε still meets the level there the bracket stands,
 // otherwise the search gallops on to the right with ε at every step. The
-// optimistic end (p − ε) is bracketed the same way. The rule's part of ε
-// comes with p; the node laws' part is asked for only where the rule's
-// alone does not decide (p + ε_rule > Level fails p + ε; p − ε_rule <=
-// Level fails p − ε > Level).
+// rule's part of ε comes with p; the node laws' part is asked for only
+// where the rule's alone does not decide (p + ε_rule > Level fails
+// p + ε; p − ε_rule <= Level fails p − ε > Level). The optimistic end
+// (p − ε) is the longest interval evaluated where p − ε still fails
+// (refineLow brackets it further for the best choice).
 func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule SharedRule, months *monthCache) (DesignResult, error) {
-	builds := 0
-	minDuty := math.NaN()
-	lev := p.Target.Level
-	var evals []*evaluation
-	upgrade := func(e *evaluation, need int) error {
-		if need >= needP && math.IsNaN(e.p) {
-			pr, err := e.laws.prob(p.Target, p.Count)
-			if err != nil {
-				return err
-			}
-			e.p, e.ruleE = pr, e.laws.ruleError(p.Target)
-			e.meets = e.p <= lev
-		}
-		if need >= needErr && math.IsNaN(e.nodeE) {
-			e.nodeE = e.laws.nodeError(p.Target, p.Count)
-		}
-		return nil
-	}
-	eval := func(iv float64, need int) (*evaluation, error) {
-		for _, e := range evals {
-			if e.interval == iv {
-				return e, upgrade(e, need)
-			}
-		}
-		if builds >= MaxDesignEvaluations {
-			return nil, paramErr(fn, "p.Space.Tolerance", tol, fmt.Sprintf("needs more than %d candidates for one choice", MaxDesignEvaluations))
-		}
-		builds++
-		ch := c
-		ch.Interval = iv
-		cand, err := p.Build(ch)
-		if err != nil {
-			return nil, causeErr(fn, "p.Build", fmt.Sprintf("%+v", ch), "the builder failed", err)
-		}
-		if !(cand.MinInterval >= 0) {
-			return nil, paramErr(fn, "Candidate.MinInterval", cand.MinInterval, "must be >= 0 (s; +Inf for none allowed)")
-		}
-		if math.IsNaN(minDuty) {
-			minDuty = cand.MinInterval
-		}
-		tl, err := newTargetLaws(fn, cand.Node, p.Climate, rule, months, p.Target.Date)
-		if err != nil {
-			return nil, err
-		}
-		e := &evaluation{interval: iv, p: math.NaN(), ruleE: math.NaN(), nodeE: math.NaN(), laws: tl}
-		if need == needDecide {
-			if e.meets, err = tl.decide(p.Target, p.Count); err != nil {
-				return nil, err
-			}
-		} else if err := upgrade(e, need); err != nil {
-			return nil, err
-		}
-		evals = append(evals, e)
-		return e, nil
-	}
-	// conservative tells whether p + ε <= Level; fails whether p − ε >
-	// Level (the optimistic end). Each asks for the node laws' error only
-	// where the rule's alone does not decide.
-	conservative := func(e *evaluation) (bool, error) {
-		if err := upgrade(e, needP); err != nil || e.p+e.ruleE > lev {
-			return false, err
-		}
-		err := upgrade(e, needErr)
-		return e.p+e.eps() <= lev, err
-	}
-	fails := func(e *evaluation) (bool, error) {
-		if err := upgrade(e, needP); err != nil || e.p-e.ruleE <= lev {
-			return false, err
-		}
-		err := upgrade(e, needErr)
-		return e.p-e.eps() > lev, err
-	}
+	cs := p.newChoiceSearch(fn, c, tol, rule, months)
 	decided := func(e *evaluation) (bool, error) { return e.meets, nil }
 	s := p.Space
 	// The stated error at the longest interval only where it decides or is
 	// reported: an infeasible choice, or a search whose answer ε moves.
-	hiE, err := eval(s.MaxInterval, needDecide)
+	hiE, err := cs.eval(s.MaxInterval, needDecide)
 	if err != nil {
 		return DesignResult{}, err
 	}
-	lo := math.Max(s.MinInterval, minDuty)
+	lo := math.Max(s.MinInterval, cs.minDuty)
 	infeasible := func(bind Binding) (DesignResult, error) {
-		e, err := eval(s.MaxInterval, needErr)
+		e, err := cs.eval(s.MaxInterval, needErr)
 		if err != nil {
 			return DesignResult{}, err
 		}
@@ -441,7 +500,7 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule
 			bind = BindCalendar
 		}
 		res, err := p.result(c, e, false, bind)
-		res.Builds = builds
+		res.Builds = cs.builds
 		return res, err
 	}
 	switch {
@@ -453,54 +512,34 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule
 	}
 	// The stated error at the lower end only when p alone meets the level
 	// there (p > Level fails p + ε too).
-	loE, err := eval(lo, needDecide)
+	loE, err := cs.eval(lo, needDecide)
 	if err != nil {
 		return DesignResult{}, err
 	}
 	if loE.meets {
-		ok, err := conservative(loE)
+		ok, err := cs.conservative(loE)
 		if err != nil {
 			return DesignResult{}, err
 		}
 		if ok {
 			bind := BindRange
-			if minDuty > s.MinInterval {
+			if cs.minDuty > s.MinInterval {
 				bind = BindDutyCycle
 			}
 			res, err := p.result(c, loE, true, bind)
 			res.IntervalLow = lo
-			res.Builds = builds
+			res.Builds = cs.builds
 			return res, err
 		}
-	}
-	// bisect keeps a failing and b meeting the criterion meets(e),
-	// evaluating the midpoints as need asks.
-	bisect := func(a, b *evaluation, need int, meets func(*evaluation) (bool, error)) (*evaluation, *evaluation, error) {
-		for b.interval/a.interval-1 > tol {
-			m, err := eval(math.Sqrt(a.interval*b.interval), need)
-			if err != nil {
-				return a, b, err
-			}
-			ok, err := meets(m)
-			if err != nil {
-				return a, b, err
-			}
-			if ok {
-				b = m
-			} else {
-				a = m
-			}
-		}
-		return a, b, nil
 	}
 	// On p alone (p > Level fails p + ε too), then with ε.
 	b := loE
 	if !loE.meets {
-		if _, b, err = bisect(loE, hiE, needDecide, decided); err != nil {
+		if _, b, err = cs.bisect(loE, hiE, needDecide, decided); err != nil {
 			return DesignResult{}, err
 		}
 	}
-	ok, err := conservative(b)
+	ok, err := cs.conservative(b)
 	if err != nil {
 		return DesignResult{}, err
 	}
@@ -511,11 +550,11 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule
 		// not even the longest does), then bisect back.
 		a, step := b, math.Log1p(tol)
 		for {
-			m, err := eval(math.Min(s.MaxInterval, a.interval*math.Exp(step)), needP)
+			m, err := cs.eval(math.Min(s.MaxInterval, a.interval*math.Exp(step)), needP)
 			if err != nil {
 				return DesignResult{}, err
 			}
-			if ok, err = conservative(m); err != nil {
+			if ok, err = cs.conservative(m); err != nil {
 				return DesignResult{}, err
 			}
 			if ok {
@@ -527,26 +566,29 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule
 			}
 			a, step = m, 2*step
 		}
-		if _, b, err = bisect(a, b, needP, conservative); err != nil {
+		if _, b, err = cs.bisect(a, b, needP, cs.conservative); err != nil {
 			return DesignResult{}, err
 		}
 	}
-	if err := upgrade(b, needErr); err != nil {
+	if err := cs.upgrade(b, needErr); err != nil {
 		return DesignResult{}, err
 	}
 	// The optimistic end: the longest interval evaluated where p − ε still
-	// fails, tried from the longest where p alone fails, leftwards (not
-	// bracketed further: each try costs the node laws' error).
+	// fails, tried from the longest where p alone fails, leftwards; the
+	// shortest known to meet p − ε <= Level is kept for refineLow.
 	var failing []*evaluation
-	for _, e := range evals {
-		if !e.meets {
+	lowMeets := b.interval
+	for _, e := range cs.evals {
+		if e.meets {
+			lowMeets = math.Min(lowMeets, e.interval)
+		} else {
 			failing = append(failing, e)
 		}
 	}
 	slices.SortFunc(failing, func(x, y *evaluation) int { return cmp.Compare(y.interval, x.interval) })
 	low := lo // (the range's lower end fails p + ε; p − ε is not known to fail there)
 	for _, e := range failing {
-		ok, err := fails(e)
+		ok, err := cs.fails(e)
 		if err != nil {
 			return DesignResult{}, err
 		}
@@ -554,11 +596,35 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule
 			low = e.interval
 			break
 		}
+		lowMeets = math.Min(lowMeets, e.interval)
 	}
 	res, err := p.result(c, b, true, BindEnergy)
-	res.IntervalLow = low
-	res.Builds = builds
+	res.IntervalLow, res.lowMeets = low, lowMeets
+	res.Builds = cs.builds
 	return res, err
+}
+
+// refineLow brackets r's IntervalLow to the tolerance: geometric
+// bisection between it (where p − ε fails) and r.lowMeets (where it
+// meets) on p − ε > Level, with fresh candidates (the search's own are
+// gone). Nothing to do for a result whose bracket is within the tolerance
+// already, or whose IntervalLow is the range's lower end.
+func (p DesignProblem) refineLow(fn string, r *DesignResult, tol float64, rule SharedRule, months *monthCache) error {
+	if !r.Feasible || r.Binds != BindEnergy || !(r.IntervalLow > 0) || !(r.lowMeets/r.IntervalLow-1 > tol) {
+		return nil
+	}
+	cs := p.newChoiceSearch(fn, r.Choice, tol, rule, months)
+	a, b := &evaluation{interval: r.IntervalLow}, &evaluation{interval: r.lowMeets}
+	a, _, err := cs.bisect(a, b, needP, func(e *evaluation) (bool, error) {
+		f, err := cs.fails(e)
+		return !f, err
+	})
+	if err != nil {
+		return err
+	}
+	r.IntervalLow = a.interval
+	r.Builds += cs.builds
+	return nil
 }
 
 // result fills the figures of the evaluation e (its errors asked for).

@@ -106,8 +106,10 @@ type DesignProblem struct {
 	// Rule is the rule over the shared factors that each candidate's node
 	// law is mixed over; the zero value means FixedSharedRule(Shared).
 	// Given a Site's (Site.SharedRule), the search evaluates a candidate
-	// as that Site evaluates its groups (fleetplan passes its plan's), and
-	// Shared is then only checked.
+	// as that Site evaluates its groups, and Shared is then only checked;
+	// given Site.GroupRule (fleetplan passes its plan's for each group),
+	// the stated error includes the rule's estimated error too. The fixed
+	// rule and Site.SharedRule state none of their own (RuleError 0).
 	Rule  SharedRule
 	Build Builder
 }

@@ -332,3 +332,33 @@ func TestSearchDesignBadInput(t *testing.T) {
 	require.ErrorIs(t, err, energy.ErrParam)
 	assert.Contains(t, err.Error(), "no such radio")
 }
+
+// TestGroupRuleBadInput: a group out of range and a zero Site are errors
+// naming the field; a GroupFlat target whose count is not the rule's
+// group's is an error naming p.Count (the rule's error is estimated for
+// the Site's count), and with that count the search states the rule's
+// error as part of its own.
+func TestGroupRuleBadInput(t *testing.T) {
+	s := replaceSite(t, [2]int64{3, 2}, 0, energy.SharedSpread{Batch: 0.02})
+	_, err := s.GroupRule(2)
+	require.ErrorIs(t, err, energy.ErrParam)
+	assert.ErrorContains(t, err, "i = 2")
+	_, err = energy.Site{}.GroupRule(0)
+	require.ErrorIs(t, err, energy.ErrParam)
+	r, err := s.GroupRule(1)
+	require.NoError(t, err)
+	assert.Equal(t, s.SharedRule().Len(), r.Len())
+	p := energy.DesignProblem{Space: oneChoice(60, 86400), Target: energy.Target{Kind: energy.GroupFlat, Date: energy.Year, Level: 0.1}, Count: 3,
+		Rule: r, Build: designBuilder(energy.NodeSpread{Capacity: 0.05}, 0, 0)}
+	_, err = energy.SearchDesign(p)
+	require.ErrorIs(t, err, energy.ErrParam)
+	assert.ErrorContains(t, err, "p.Count")
+	p.Count = 2
+	d, err := energy.SearchDesign(p)
+	require.NoError(t, err)
+	res := d.Results[d.Best]
+	require.True(t, res.Feasible)
+	assert.Positive(t, res.RuleError)
+	assert.GreaterOrEqual(t, res.ProbabilityError, res.RuleError)
+	assert.LessOrEqual(t, res.Probability+res.ProbabilityError, p.Target.Level)
+}

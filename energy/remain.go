@@ -96,10 +96,15 @@ type DeviceOptions struct {
 // set (the Kronecker sequence of Roberts 2018 with the plastic-number
 // generalisation, through the normal quantile), the same for every
 // device. A device's posterior re-weights these nodes by the likelihood of
-// its readings and of being alive at its newest event; where readings
-// leave few nodes with weight, importance stages move a larger point set
-// (stageFactor = 4 times the nodes) onto a heavier-tailed proposal fitted
-// to the posterior (see DeviceModel.Posterior). Laws of the
+// its readings and of being alive at its newest event. Where readings
+// leave few nodes with weight (the knee of the voltage curve) or none of
+// the nodes comes near explaining them, a ridge stage places the same
+// number of points on the thin shell of factors that the readings pin
+// (remain_ridge.go: two scores from the prior's points, the third solved
+// from a voltage drawn from the readings' profile); where that too leaves
+// few effective, importance stages move a larger point set (stageFactor =
+// 4 times the nodes) onto a heavier-tailed proposal fitted to the
+// posterior (see DeviceModel.Posterior). Laws of the
 // posterior are mixtures over the nodes; their error is estimated from the
 // disagreement of the two interleaved halves of the point set (each itself
 // a Kronecker sequence) and reported (dist.Estimated). Readings that pull
@@ -125,6 +130,7 @@ type deviceData struct {
 	endDepth float64      // depth at which the node is flat
 	c, a, f  []float64    // prior nodes
 	z        [][3]float64 // their standard normal scores
+	u        [][3]float64 // the same points in the unit cube
 	tz       [][3]float64 // the same points as Student-t scores (proposalNu)
 	tlogq    []float64    // Σ log t density of each tz
 	spread   NodeSpread
@@ -207,6 +213,7 @@ func NewDeviceModel(spec NodeSpec, env Environment, costs []EventCost, opt Devic
 	}
 	d.spread = spec.Spread
 	d.z = kroneckerScores(d.nodes)
+	d.u, _ = kroneckerMapped(d.nodes, func(u float64) float64 { return u }, nil)
 	d.tz, d.tlogq = kroneckerTScores(min(stageFactor*d.nodes, MaxPosteriorNodes))
 	d.c, d.a, d.f = make([]float64, d.nodes), make([]float64, d.nodes), make([]float64, d.nodes)
 	for k, z := range d.z {

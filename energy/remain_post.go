@@ -105,7 +105,8 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	pd := &postData{d: d, tau0: t.newest - t.install, tauNow: now - t.install, a0: t.active, va0: t.actVar}
 	pd.r, pd.vr = d.activePower(&t, now)
 	M := len(d.c)
-	like := d.likelihood(&t, pd.tau0)
+	ev := d.newEvidence(&t, pd.tau0)
+	like := ev.logLik
 	logw := make([]float64, M)
 	like(d.c, d.a, d.f, logw)
 	cs, as, fs := d.c, d.a, d.f
@@ -119,12 +120,29 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	// stage has done better than the prior's nodes, a stage that does not
 	// raise the effective number is tried again three times wider (such a
 	// try is judged on the stage set's first M points, as many as the
-	// prior's, before the rest are placed); after one has, a stage that
-	// does not raise the effective number ends the search. At most four
-	// tries.
+	// prior's, before the rest are placed, and kept alone when those M
+	// are a quarter effective); after one has, a stage that does not raise
+	// the effective number ends the search. At most four tries. The ridge
+	// stage (below) comes first.
 	zs := d.z
 	Ms := len(d.tz)
 	widen := 1.0
+	if ess < float64(M)/4 || maxOf(logw) < ev.readingBest()-ridgeGap {
+		// The ridge stage first (remain_ridge.go): M points on the shell
+		// the readings pin, where the prior's nodes leave few effective
+		// or none of them comes near explaining the readings (a mode the
+		// prior's nodes do not reach). Of the two, the one whose estimate
+		// of the marginal likelihood is larger by more than ridgeMargin
+		// wins (the other missed mass), else the more effective one.
+		if rz, rl, rc, ra, rf, ok := ev.ridgeStage(M); ok {
+			re := essOf(rl)
+			dl := logMeanExp(rl) - logMeanExp(logw)
+			if dl > ridgeMargin || (dl >= -ridgeMargin && re > ess) {
+				zs, logw, cs, as, fs, ess = rz, rl, rc, ra, rf, re
+				pd.stages++
+			}
+		}
+	}
 	for stage := 0; ess < float64(len(logw))/4 && stage < 4; stage++ {
 		if math.IsInf(maxOf(logw), -1) {
 			break
@@ -155,14 +173,22 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			}
 			like(nc[from:to], na[from:to], nf[from:to], nl[from:to])
 		}
-		if pd.stages == 1 && M < Ms && !thorough {
+		if pd.stages == 1 && M < Ms {
 			// While no stage has done better than the prior's nodes, a try
 			// is first placed on the stage set's first M points (a
 			// Kronecker sequence itself, as many points as the prior's):
-			// if they are no more effective than the prior's nodes, the try
-			// has failed without the other Ms − M points.
+			// if they are a quarter effective and more than the prior's
+			// nodes, they are kept alone; if they are no more effective
+			// than the prior's nodes, the try has failed without the other
+			// Ms − M points (unless thorough).
 			place(0, M)
-			if !(essOf(nl[:M]) > ess) {
+			em := essOf(nl[:M])
+			if em > ess && em >= float64(M)/4 {
+				zs, logw, cs, as, fs, ess = nz[:M], nl[:M], nc[:M], na[:M], nf[:M], em
+				pd.stages++
+				break
+			}
+			if !(em > ess) && !thorough {
 				widen *= 3
 				continue
 			}
@@ -189,12 +215,9 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		return DevicePosterior{}, paramErr(fn, "tally", fmt.Sprintf("%.6g J active energy by %.6g days", t.active, Days(pd.tau0)),
 			"no node of the model's prior is still alive with this much spent: the counts or the model's cell are wrong")
 	}
-	s1, sAll := 0.0, 0.0
-	for _, l := range logw {
-		sAll += math.Exp(l - best)
-	}
+	s1 := 0.0
 	M = len(logw)
-	pd.logMarginal = best + math.Log(sAll/float64(M))
+	pd.logMarginal = logMeanExp(logw)
 	pd.nodes = M
 	pd.c, pd.a, pd.f = make([]float64, 0, M), make([]float64, 0, M), make([]float64, 0, M)
 	pd.half, pd.w = make([]uint8, 0, M), make([]float64, 0, M)
@@ -364,11 +387,47 @@ func (p DevicePosterior) FloorCurrent() PosteriorLaw {
 	return newPostLaw(ms, ss, ws, half, pd.quality(), math.Inf(-1), math.Inf(1), "FloorCurrent", "µA", MicroAmp)
 }
 
-// likelihood returns a function that adds to out[k] the log-likelihood
-// of the tally's evidence at the node factors (c[k], a[k], f[k]): alive at
-// the newest event τ0 (the per-event noise of the counted active energy
-// normal) and each kept reading's bin. A node with c <= 0 or a <= 0 gets
-// −Inf.
+// evidence is a device's evidence at its newest event τ0 (alive there,
+// its kept readings), ready to be weighed at nodes (see logLik). It
+// belongs to one Posterior call (its reading tables fill lazily).
+type evidence struct {
+	d             *deviceData
+	capU, fe0, q0 float64
+	sd0, act      float64
+	rs            []readTerm
+	newest        int // index in rs of the newest reading, -1 for none
+}
+
+// readTerm is one kept reading: the counted active energy (J), the floor
+// energy of the median board (J), the quiescent energy (J) and the
+// self-discharge depth by its time, the pulse drop (V/Ω) and its table.
+type readTerm struct {
+	active, fe, q, sdd, drop float64
+	tab                      readingTable
+}
+
+// newEvidence returns the tally's evidence at τ0 (s after installation).
+func (d *deviceData) newEvidence(t *Tally, tau0 float64) *evidence {
+	n := d.n
+	e := &evidence{d: d, capU: n.batch*d.s.usable - n.nominal*d.selfD(tau0), fe0: d.floorE(tau0), q0: n.quiescent * tau0,
+		sd0: math.Sqrt(t.actVar), act: t.active, rs: make([]readTerm, t.nRead), newest: -1}
+	newestTau := math.Inf(-1)
+	for i := range e.rs {
+		r := t.reads[i]
+		drop := d.load * d.curve.ResistanceMultiplier(d.temp(r.tau))
+		e.rs[i] = readTerm{active: r.active, fe: d.floorE(r.tau), q: n.quiescent * r.tau, sdd: d.selfD(r.tau), drop: drop,
+			tab: newReadingTable(d.curve, drop, r.lo, r.hi, r.noise)}
+		if r.tau > newestTau {
+			newestTau, e.newest = r.tau, i
+		}
+	}
+	return e
+}
+
+// logLik adds to out[k] the log-likelihood of the evidence at the node
+// factors (c[k], a[k], f[k]): alive at the newest event τ0 (the per-event
+// noise of the counted active energy normal) and each kept reading's bin.
+// A node with c <= 0 or a <= 0 gets −Inf.
 //
 // A reading's term g(V) = log P(bin | V) is a function of the node's
 // loaded voltage V alone. It is interpolated by the cubic through the
@@ -384,55 +443,37 @@ func (p DevicePosterior) FloorCurrent() PosteriorLaw {
 // symmetric bin 4.12σ wide; TestReadingTable scans them), and the cubic
 // errs by at most (9/16)/24·h⁴·|g⁗| <= 0.0234·0.4⁴·0.382 = 2.3e-4 in a log-weight
 // (TestReadingTable checks it against g evaluated directly).
-func (d *deviceData) likelihood(t *Tally, tau0 float64) func(c, a, f, out []float64) {
-	n := d.n
-	capU := n.batch*d.s.usable - n.nominal*d.selfD(tau0)
-	fe0, q0 := d.floorE(tau0), n.quiescent*tau0
-	sd0 := math.Sqrt(t.actVar)
-	act := t.active
-	type rd struct {
-		active, fe, q, sdd, drop float64
-		tab                      readingTable
-	}
-	rs := make([]rd, t.nRead)
-	for i := range rs {
-		r := t.reads[i]
-		drop := d.load * d.curve.ResistanceMultiplier(d.temp(r.tau))
-		rs[i] = rd{active: r.active, fe: d.floorE(r.tau), q: n.quiescent * r.tau, sdd: d.selfD(r.tau), drop: drop,
-			tab: newReadingTable(d.curve, drop, r.lo, r.hi, r.noise)}
-	}
-	return func(c, a, f, out []float64) {
-		for k := range out {
-			if !(c[k] > 0 && a[k] > 0) {
-				out[k] = math.Inf(-1)
-				continue
-			}
-			g := c[k]*capU - a[k]*act - f[k]*fe0 - q0
-			switch {
-			case sd0 > 0:
-				// log Φ̄(z) for z < −aliveSure is −Φ̄(−z) above −5.2e-17:
-				// left out (a relative change of a weight below 1e-16).
-				if z := -g / (a[k] * sd0); z >= -aliveSure {
-					out[k] += logNormSurv(z)
-				}
-			case g < 0:
-				out[k] = math.Inf(-1)
-			}
+func (e *evidence) logLik(c, a, f, out []float64) {
+	d := e.d
+	nom := d.n.nominal
+	for k := range out {
+		ck, ak, fk := c[k], a[k], f[k]
+		if !(ck > 0 && ak > 0) {
+			out[k] = math.Inf(-1)
+			continue
 		}
-		for i := range rs {
-			r := &rs[i]
-			for k := range out {
-				if math.IsInf(out[k], -1) {
-					continue
-				}
-				dep := (a[k]*r.active+f[k]*r.fe+r.q)/(c[k]*n.nominal) + r.sdd
-				if dep < 0 {
-					dep = 0
-				} else if dep > 1 {
-					dep = 1
-				}
-				out[k] += r.tab.at(d.curve.loadedAt(dep, r.drop))
+		g := ck*e.capU - ak*e.act - fk*e.fe0 - e.q0
+		switch {
+		case e.sd0 > 0:
+			// log Φ̄(z) for z < −aliveSure is −Φ̄(−z) above −5.2e-17:
+			// left out (a relative change of a weight below 1e-16).
+			if z := -g / (ak * e.sd0); z >= -aliveSure {
+				out[k] += logNormSurv(z)
 			}
+		case g < 0:
+			out[k] = math.Inf(-1)
+			continue
+		}
+		inv := 1 / (ck * nom)
+		for i := range e.rs {
+			r := &e.rs[i]
+			dep := (ak*r.active+fk*r.fe+r.q)*inv + r.sdd
+			if dep < 0 {
+				dep = 0
+			} else if dep > 1 {
+				dep = 1
+			}
+			out[k] += r.tab.at(d.curve.loadedAt(dep, r.drop))
 		}
 	}
 }
@@ -509,6 +550,20 @@ func maxOf(x []float64) float64 {
 		}
 	}
 	return b
+}
+
+// logMeanExp returns log of the mean of exp(logw) (−Inf for none with
+// weight).
+func logMeanExp(logw []float64) float64 {
+	b := maxOf(logw)
+	if math.IsInf(b, -1) {
+		return b
+	}
+	s := 0.0
+	for _, l := range logw {
+		s += math.Exp(l - b)
+	}
+	return b + math.Log(s/float64(len(logw)))
 }
 
 // essOf returns the effective number (Σw)²/Σw² of the weights exp(logw).

@@ -1,0 +1,367 @@
+package energy
+
+import (
+	"math"
+)
+
+// The ridge stage of DeviceModel.Posterior.
+//
+// Readings in the knee of the voltage curve pin the depth of discharge at
+// the newest reading, x = (a·A + f·Φ + P_q·τ)/(c·N) + s·D, to within a few
+// thousandths, while they leave the factors free along the surface of
+// constant x: the posterior is a thin curved shell in the space of the
+// normal scores (curved because f = exp(σf·z₂) and x ∝ 1/c). A normal or
+// Student-t proposal fitted to it misses the shell's curvature unless it
+// is made so wide that most of its points are wasted; the adaptive stages
+// then needed two to four sets of stageFactor·M points.
+//
+// The ridge stage places M points on the shell instead. Two of the three
+// scores come from the prior's point set (normal quantiles of the
+// Kronecker coordinates); the third coordinate gives the newest reading's
+// loaded voltage V; V gives the depth x through the inverse of the loaded
+// curve (strictly decreasing at the reading's drop, else no ridge stage),
+// and x gives the third factor (the one whose prior moves x most at the
+// median node, solved from the depth's formula). V's law is a defensive
+// mixture: with weight 1 − ridgeDefensive the profile exp(h(V)), h the
+// log of V's conditional density at the median other scores (the solved
+// score's prior, the Jacobian and the exact likelihood), log-linear
+// between the points of an even grid of ridgeGrid points over the bins'
+// middle ± ridgeReach times their scale (gridded again where h is within
+// ridgeDrop of its largest value on few cells), inverted cell by cell;
+// with weight ridgeDefensive a Student-t law (ν = 4, closed-form
+// quantile) at the profile's mean with ridgeWiden times its standard
+// deviation, which bounds the weights where the profile is low. The
+// point's weight is
+//
+//	p(z)·L(z)/q(z) = φ(z_s)·|dz_s/dV|·L(z)/q(V)
+//
+// (the other two scores' normal densities cancel), with L the exact
+// likelihood (logLik): the approximations (the profile at the median other
+// scores) only cost effective nodes, never bias the weights. A point whose
+// voltage the curve does not reach, or whose solved factor is not
+// positive, gets weight 0: the posterior there is 0 except beyond depth 1
+// (flat: the alive term's weight there is below Φ̄(aliveSure)) and where x
+// is below the self-discharge alone (no energy drawn).
+
+// ridgeWiden is the ridge stage's factor on the fitted scale of the
+// voltage proposal (the bins' normal shape and one voltage for readings
+// days apart are approximations: a wider t keeps the weights bounded).
+const ridgeWiden = 1.5
+
+// ridgeGap and ridgeMargin (nats): the ridge stage is tried where the
+// prior's best node's log-likelihood falls ridgeGap below the readings'
+// best (each reading's term at its bin's middle: no node explains the
+// readings); its estimate replaces the prior nodes' where its marginal
+// likelihood is larger by more than ridgeMargin, or within it and more
+// effective.
+const (
+	ridgeGap    = 8
+	ridgeMargin = 2
+)
+
+// readingBest returns the sum over the kept readings of each one's
+// log-likelihood at its bin's middle (at the nearest end of an open bin's
+// finite end, half a noise inside): about the most a node can get from
+// them.
+func (e *evidence) readingBest() float64 {
+	s := 0.0
+	for i := range e.rs {
+		tb := &e.rs[i].tab
+		v := 0.5 * (tb.lo + tb.hi)
+		switch {
+		case math.IsInf(tb.lo, -1):
+			v = tb.hi - tb.sigma/2
+		case math.IsInf(tb.hi, 1):
+			v = tb.lo + tb.sigma/2
+		}
+		s += logBin(v, tb.lo, tb.hi, tb.sigma)
+	}
+	return s
+}
+
+// ridgeDefensive is the share of the ridge stage's voltage proposal
+// given to the Student-t component (the rest follows the profile): it
+// bounds the weights where the profile is low.
+const ridgeDefensive = 0.15
+
+// ridgeGrid and ridgeReach: the points of the ridge stage's voltage
+// profile and its half-width in units of the bins' scale.
+const (
+	ridgeGrid  = 48
+	ridgeReach = 12
+	// ridgeDrop: the profile is gridded again over the cells within
+	// ridgeDrop of its largest log value when they are fewer than a
+	// quarter of the grid.
+	ridgeDrop = 30
+)
+
+// ridgeStage returns the ridge stage's m points (normal scores, factors)
+// and their log weights (log prior − log proposal + log-likelihood,
+// normalised as the adaptive stages' are), or ok = false where it does not
+// apply: no reading with a closed bin, no spread of the solved factor, or a
+// loaded curve that is not strictly decreasing.
+func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float64, ok bool) {
+	d := e.d
+	if e.newest < 0 || d.curve == nil {
+		return nil, nil, nil, nil, nil, false
+	}
+	// Where the readings put the voltage: the precision-weighted mean of
+	// the closed bins' middles (N(·, σ² + w²/12) each) and the scale s₀ of
+	// that mean plus the middles' weighted spread.
+	sw, swm, swmm := 0.0, 0.0, 0.0
+	for i := range e.rs {
+		tb := &e.rs[i].tab
+		if math.IsInf(tb.lo, 0) || math.IsInf(tb.hi, 0) {
+			continue
+		}
+		w, mid := tb.hi-tb.lo, 0.5*(tb.lo+tb.hi)
+		prec := 1 / (tb.sigma*tb.sigma + w*w/12)
+		sw += prec
+		swm += prec * mid
+		swmm += prec * mid * mid
+	}
+	if !(sw > 0) {
+		return nil, nil, nil, nil, nil, false
+	}
+	mu := swm / sw
+	spread := math.Max(swmm-swm*mu, 0)
+	s0 := math.Sqrt(1/sw + spread/sw)
+	// The newest reading's loaded curve, strictly decreasing.
+	nr := &e.rs[e.newest]
+	cv := d.curve
+	np := len(cv.DepthOfDischarge)
+	vs := make([]float64, np)
+	for i := range vs {
+		vs[i] = cv.OpenCircuit[i] - nr.drop*cv.Resistance[i]
+		if i > 0 && !(vs[i] < vs[i-1]) {
+			return nil, nil, nil, nil, nil, false
+		}
+	}
+	// The solved factor: the one whose prior moves the depth most, at the
+	// median node (terms of the spent energy at the newest reading).
+	sp := d.spread
+	n := d.n
+	termC := sp.Capacity * (nr.active + nr.fe + nr.q)
+	termA := sp.Active * nr.active
+	termF := sp.Floor * nr.fe
+	solve := 0
+	best := termC
+	if termA > best {
+		solve, best = 1, termA
+	}
+	if termF > best {
+		solve, best = 2, termF
+	}
+	if !(best > 0) {
+		return nil, nil, nil, nil, nil, false
+	}
+	nom := n.nominal
+	// node maps the newest reading's voltage v and the other two scores
+	// (the entries of zz other than the solved one) to the node: the solved score, the factors and
+	// log|dz_s/dV|; ok false where the curve does not reach v or the
+	// solved factor is not positive.
+	node := func(v float64, zz *[3]float64) (c, a, f, logJ float64, ok bool) {
+		j := 0
+		for j < np-1 && vs[j+1] > v {
+			j++
+		}
+		if j == np-1 || v > vs[0] {
+			return 0, 0, 0, 0, false
+		}
+		x0, x1 := cv.DepthOfDischarge[j], cv.DepthOfDischarge[j+1]
+		slope := (vs[j+1] - vs[j]) / (x1 - x0) // < 0
+		x := x0 + (v-vs[j])/slope
+		c, a, f = 1+sp.Capacity*zz[0], 1+sp.Active*zz[1], math.Exp(sp.Floor*zz[2])
+		net := x - nr.sdd // the depth the spending pays for
+		var dzdx float64
+		switch solve {
+		case 0:
+			if !(net > 0) {
+				return 0, 0, 0, 0, false
+			}
+			c = (a*nr.active + f*nr.fe + nr.q) / (nom * net)
+			zz[0] = (c - 1) / sp.Capacity
+			dzdx = c / (net * sp.Capacity)
+		case 1:
+			a = (c*nom*net - f*nr.fe - nr.q) / nr.active
+			zz[1] = (a - 1) / sp.Active
+			dzdx = c * nom / (nr.active * sp.Active)
+		default:
+			f = (c*nom*net - a*nr.active - nr.q) / nr.fe
+			if !(f > 0) {
+				return 0, 0, 0, 0, false
+			}
+			zz[2] = math.Log(f) / sp.Floor
+			dzdx = c * nom / (nr.fe * f * sp.Floor)
+		}
+		return c, a, f, math.Log(dzdx) - math.Log(-slope), true
+	}
+	// The proposal's location and scale: the mean and standard deviation
+	// of the voltage's conditional density at the median other scores,
+	// exp(h(V)), h = log φ(z_s) + log|dz_s/dV| + log-likelihood, on an even
+	// grid of ridgeGrid points over mid ± ridgeReach·s₀ (s₀ the bins'
+	// scale) within the curve's range.
+	lo := math.Max(vs[np-1], mu-ridgeReach*s0)
+	hi := math.Min(vs[0], mu+ridgeReach*s0)
+	if !(hi > lo) {
+		return nil, nil, nil, nil, nil, false
+	}
+	var gv, gh [ridgeGrid]float64
+	var step, hmax float64
+	// profile fills the grid over [lo, hi] and returns h's largest value.
+	profile := func(lo, hi float64) float64 {
+		var gc, ga, gf [ridgeGrid]float64
+		step = (hi - lo) / (ridgeGrid - 1)
+		for i := range gv {
+			gv[i] = lo + float64(i)*step
+			var zz [3]float64
+			c, a, f, lj, ok := node(gv[i], &zz)
+			gh[i] = math.Inf(-1)
+			if ok {
+				gc[i], ga[i], gf[i] = c, a, f
+				gh[i] = lj - 0.5*zz[solve]*zz[solve]
+			}
+		}
+		e.logLik(gc[:], ga[:], gf[:], gh[:])
+		return maxOf(gh[:])
+	}
+	if hmax = profile(lo, hi); math.IsInf(hmax, -1) {
+		return nil, nil, nil, nil, nil, false
+	}
+	// Where the profile's mass lies within a few cells (a sharp profile),
+	// grid again over the cells where h > max − ridgeDrop, one more on
+	// each side.
+	i0, i1 := ridgeGrid-1, 0
+	for i, h := range gh {
+		if h > hmax-ridgeDrop {
+			i0, i1 = min(i0, i), max(i1, i)
+		}
+	}
+	i0, i1 = max(i0-1, 0), min(i1+1, ridgeGrid-1)
+	if i1-i0 < ridgeGrid/4 {
+		if hmax = profile(gv[i0], gv[i1]); math.IsInf(hmax, -1) {
+			return nil, nil, nil, nil, nil, false
+		}
+	}
+	// The profile's moments locate the defensive t component.
+	m0, m1, m2 := 0.0, 0.0, 0.0
+	for i, h := range gh {
+		w := math.Exp(h - hmax)
+		m0 += w
+		m1 += w * gv[i]
+		m2 += w * gv[i] * gv[i]
+	}
+	mu = m1 / m0
+	scale := ridgeWiden * math.Sqrt(math.Max(m2/m0-mu*mu, 0)+step*step)
+	// The profile's own law: exp(h) log-linear between the grid points
+	// (cell i from gv[i] to gv[i+1]; a cell with an end where h = −Inf has
+	// no mass), and its cumulative masses.
+	var mass [ridgeGrid]float64 // mass[i]: cells below i; mass[ridgeGrid-1] the total
+	for i := 0; i < ridgeGrid-1; i++ {
+		mass[i+1] = mass[i] + cellMass(gh[i]-hmax, gh[i+1]-hmax, step)
+	}
+	tot := mass[ridgeGrid-1]
+	// log of the Student-t density's constant (ν = proposalNu = 4):
+	// Γ(5/2)/(Γ(2)·√(4π)) = 3/8.
+	logT := math.Log(3.0/8) - math.Log(scale)
+	logEps, log1mEps := math.Log(ridgeDefensive), math.Log1p(-ridgeDefensive)
+	zs = make([][3]float64, m)
+	logw, cs, as, fs = make([]float64, m), make([]float64, m), make([]float64, m), make([]float64, m)
+	logPhi := -0.5 * math.Log(2*math.Pi)
+	for k := range m {
+		zz := d.z[k]
+		u := d.u[k][solve]
+		var v float64
+		if u < ridgeDefensive {
+			v = mu + scale*studentT4Quantile(u/ridgeDefensive)
+		} else {
+			// invert the profile's cumulative mass
+			r := (u - ridgeDefensive) / (1 - ridgeDefensive) * tot
+			i := 0
+			for i < ridgeGrid-2 && mass[i+1] <= r {
+				i++
+			}
+			v = gv[i] + cellInverse(gh[i]-hmax, gh[i+1]-hmax, step, r-mass[i])
+		}
+		// the mixture's density at v
+		tv := (v - mu) / scale
+		lq := logEps + logT - 2.5*math.Log1p(tv*tv/4)
+		if v >= gv[0] && v < gv[ridgeGrid-1] {
+			i := min(int((v-gv[0])/step), ridgeGrid-2)
+			h0, h1 := gh[i]-hmax, gh[i+1]-hmax
+			if !math.IsInf(h0, -1) && !math.IsInf(h1, -1) {
+				lg := log1mEps + h0 + (h1-h0)*(v-gv[i])/step - math.Log(tot)
+				lq = logAddExp(lq, lg)
+			}
+		}
+		c, a, f, lj, ok := node(v, &zz)
+		zs[k] = zz
+		if !ok {
+			logw[k] = math.Inf(-1)
+			continue
+		}
+		cs[k], as[k], fs[k] = c, a, f
+		logw[k] = logPhi - 0.5*zz[solve]*zz[solve] + lj - lq
+	}
+	e.logLik(cs, as, fs, logw)
+	return zs, logw, cs, as, fs, true
+}
+
+// cellMass returns ∫₀ʰ exp(h0 + (h1 − h0)·t/h) dt for a cell of width h,
+// h0, h1 <= 0 (0 when an end is −Inf).
+func cellMass(h0, h1, h float64) float64 {
+	if math.IsInf(h0, -1) || math.IsInf(h1, -1) {
+		return 0
+	}
+	b := h1 - h0
+	if math.Abs(b) < 1e-9 {
+		return h * math.Exp(h0) * (1 + b/2)
+	}
+	return h * (math.Exp(h1) - math.Exp(h0)) / b
+}
+
+// cellInverse returns t in [0, h] with ∫₀ᵗ exp(h0 + (h1 − h0)·s/h) ds = r
+// (r at most the cell's mass).
+func cellInverse(h0, h1, h, r float64) float64 {
+	b := (h1 - h0) / h
+	y := math.Exp(math.Log(r) - h0) // r·e^(−h0), bounded by the cell's mass
+	var t float64
+	if math.Abs(b*h) < 1e-9 {
+		t = y
+	} else {
+		t = math.Log1p(b*y) / b
+	}
+	if !(t >= 0) {
+		return 0
+	}
+	return math.Min(t, h)
+}
+
+// studentT4Quantile returns the p-quantile of Student's t law with 4
+// degrees of freedom in closed form (Shaw 2006, "Sampling Student's T
+// distribution: use of the inverse cumulative distribution function",
+// J. Comput. Finance 9(4), ν = 4): with α = 4p(1 − p),
+// t = sign(p − ½)·2·√(cos(arccos(√α)/3)/√α − 1).
+func studentT4Quantile(p float64) float64 {
+	if p == 0.5 {
+		return 0
+	}
+	al := 4 * p * (1 - p)
+	q := math.Cos(math.Acos(math.Sqrt(al))/3) / math.Sqrt(al)
+	t := 2 * math.Sqrt(math.Max(q-1, 0))
+	if p < 0.5 {
+		return -t
+	}
+	return t
+}
+
+// logAddExp returns log(eˣ + eʸ).
+func logAddExp(x, y float64) float64 {
+	if x < y {
+		x, y = y, x
+	}
+	if math.IsInf(y, -1) {
+		return x
+	}
+	return x + math.Log1p(math.Exp(y-x))
+}

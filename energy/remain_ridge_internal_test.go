@@ -1,0 +1,129 @@
+package energy
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/require"
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/quad"
+)
+
+// TestStudentT4Quantile checks the closed-form quantile of Student's t
+// with 4 degrees of freedom against gonum's distuv.StudentsT (regularised
+// incomplete beta inversion), and its symmetry.
+func TestStudentT4Quantile(t *testing.T) {
+	ref := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: 4}
+	for _, p := range []float64{1e-12, 1e-6, 0.001, 0.01, 0.05, 0.2, 0.4, 0.5, 0.6, 0.8, 0.95, 0.99, 0.999} {
+		got, want := studentT4Quantile(p), ref.Quantile(p)
+		require.InDelta(t, want, got, 1e-9*math.Max(1, math.Abs(want)), "p = %g", p)
+	}
+}
+
+// TestCellMass checks the log-linear cell's mass against adaptive
+// quadrature (internal/quad) of its density, and cellInverse as the
+// inverse of the partial mass (the closed form on [0, t]).
+func TestCellMass(t *testing.T) {
+	for _, tc := range []struct{ h0, h1, h float64 }{
+		{0, 0, 0.01}, {-1, 0, 0.005}, {0, -30, 0.002}, {-700, -690, 0.01}, {-5, -5 + 1e-12, 0.3}, {-2, -1, 1},
+	} {
+		want, err := quad.Adaptive(func(s float64) float64 {
+			return math.Exp(tc.h0 + (tc.h1-tc.h0)*s/tc.h)
+		}, 0, tc.h, quad.Options{AbsTol: 0, RelTol: 1e-13})
+		require.NoError(t, err)
+		got := cellMass(tc.h0, tc.h1, tc.h)
+		require.InDelta(t, 1, got/want.Value, 1e-10, "%+v", tc)
+		for _, frac := range []float64{0, 0.1, 0.5, 0.9, 1} {
+			r := frac * got
+			x := cellInverse(tc.h0, tc.h1, tc.h, r)
+			require.GreaterOrEqual(t, x, 0.0)
+			require.LessOrEqual(t, x, tc.h)
+			part := cellMass(tc.h0, tc.h0+(tc.h1-tc.h0)*x/tc.h, x)
+			require.InDelta(t, r, part, 1e-9*got, "%+v frac %g", tc, frac)
+		}
+	}
+	require.Zero(t, cellMass(math.Inf(-1), 0, 1))
+}
+
+// ridgeSpec is the validation fleet's group (remain_validation_test.go)
+// for the internal tests: invented figures, demo only.
+func ridgeSpec(t *testing.T) (NodeSpec, []EventCost) {
+	t.Helper()
+	const v = 3.6
+	bs := TypicalER14505()
+	bs.Charge = 2400 * MilliAmpHour
+	bs.NominalVoltage = v
+	bs.UsableFraction = 0.9
+	bs.SelfDischargePerYear = 0.01
+	bs.TemperatureDerating = 0
+	bs.PulseCurrent = 0
+	bat, err := NewBattery(bs)
+	require.NoError(t, err)
+	floorP := 30 * MicroWatt
+	perReport := (0.6*96*0.15 + 0.4*48*0.35 + 0.6*4*0.005 + 0.4*2*0.005) / 96
+	st, err := NewFixedState("report", perReport/(v*2)+floorP/v, v, 2)
+	require.NoError(t, err)
+	cyc, err := NewCycle(st, dist.MustPointMass(15*Minute), floorP)
+	require.NoError(t, err)
+	curve := TypicalBobbinCurve()
+	spec := NodeSpec{Name: "validation", Settings: []NodeSetting{{Weight: 1, Cycle: cyc}}, Battery: bat,
+		Spread: NodeSpread{Capacity: 0.03, Active: 0.05, Floor: 0.5}, Voltage: &curve, Brownout: 3.0}
+	costs := []EventCost{
+		{Name: "fast", Energy: dist.MustNormal(0.15, 0.01)},
+		{Name: "slow", Energy: dist.MustNormal(0.35, 0.02)},
+		{Name: "down", Energy: dist.MustNormal(0.005, 0.001)},
+	}
+	return spec, costs
+}
+
+// TestRidgeStage: readings in the knee (3.55 and 3.50 V, four daily
+// readings at 400 to 1400 days) leave few of the prior's nodes effective;
+// the ridge stage must then resolve the posterior on the model's M nodes
+// (at least M/4 effective, no stage of stageFactor·M points) except at
+// 3.50 V after 400 days (a device a day or two from flat, where the alive
+// term cuts the shell: the adaptive stages follow), and the remaining
+// life's median must agree with the same model on 2^14 nodes within the
+// stated CDF errors of both (the oracle's is small).
+func TestRidgeStage(t *testing.T) {
+	spec, costs := ridgeSpec(t)
+	var ms [2]DeviceModel
+	for i, n := range []int{256, 1 << 14} {
+		m, err := NewDeviceModel(spec, Environment{}, costs, DeviceOptions{Nodes: n})
+		require.NoError(t, err)
+		ms[i] = m
+	}
+	for _, days := range []int{400, 900, 1400} {
+		for _, volts := range []float64{3.55, 3.50} {
+			var laws [2]PosteriorLaw
+			var pds [2]*postData
+			for i, m := range ms {
+				tl, err := m.NewTally(0)
+				require.NoError(t, err)
+				for d := 1; d <= days; d++ {
+					at := float64(d) * Day
+					tl, err = m.Observe(tl, Event{Time: at, Kind: 0, Count: 96})
+					require.NoError(t, err)
+					if d > days-4 {
+						tl, err = m.Read(tl, Reading{Time: at, Low: volts - 0.005, High: volts + 0.005, Noise: 0.02})
+						require.NoError(t, err)
+					}
+				}
+				p, err := m.Posterior(tl, tl.Newest())
+				require.NoError(t, err)
+				pds[i], laws[i] = p.p, p.Remaining()
+			}
+			pd := pds[0]
+			t.Logf("%d days, %.2f V: %d nodes, %.0f effective, %d stages; median %.1f d vs %.1f d on 2^14 nodes",
+				days, volts, pd.nodes, pd.ess, pd.stages, laws[0].Quantile(0.5)/Day, laws[1].Quantile(0.5)/Day)
+			if days != 400 || volts != 3.50 {
+				require.Equal(t, 256, pd.nodes, "%d days, %.2f V", days, volts)
+				require.GreaterOrEqual(t, pd.ess, 64.0, "%d days, %.2f V", days, volts)
+			}
+			x := laws[0].Quantile(0.5)
+			require.InDelta(t, laws[1].CDF(x), 0.5, laws[0].Accuracy().CDFAbs+laws[1].Accuracy().CDFAbs, "%d days, %.2f V", days, volts)
+			require.Less(t, laws[1].Accuracy().CDFAbs, 0.05)
+		}
+	}
+}

@@ -183,3 +183,50 @@ func TestDeviceFleetSameBits(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkEstimateSpread: a group's capacity spread learned from 100
+// devices of the validation fleet (internal/backlog, cut at three years,
+// daily readings, every device pooled) over 5 candidate spreads: each
+// candidate weighs every device's evidence (a posterior with the whole
+// stage set, DeviceModel.Posterior's thorough form). The device-candidate
+// pairs per op are reported: CPU per op over them sets it beside
+// BenchmarkDeviceRemainingFleet.
+func BenchmarkEstimateSpread(b *testing.B) {
+	f := newValFleet(b, true)
+	f.gen.Capacity = 0.06
+	const today = 3 * energy.Year
+	ts := poolTallies(b, f, 12, today)[:100]
+	cands := []float64{0.02, 0.04, 0.06, 0.08, 0.1}
+	defer testref.ReportCPU(b)()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if _, err := energy.EstimateSpread(energy.CapacitySpread, f.spec, energy.Environment{}, f.costs, energy.DeviceOptions{}, ts, today, cands); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(len(ts)*len(cands)), "device-candidates/op")
+}
+
+// BenchmarkPlanSharedService: the shared plan of 100 devices of the
+// validation fleet (cut at three years, daily readings, every device
+// pooled) with a batch spread of 0.03: 7 Gauss–Hermite batch nodes, then
+// the refined batch grid (each node a model and every device's posterior
+// and remaining-life law), the mixtures and the law of the count. The
+// device-node pairs per op are reported.
+func BenchmarkPlanSharedService(b *testing.B) {
+	f := newValFleet(b, true)
+	const today, horizon = 3 * energy.Year, 0.5 * energy.Year
+	ts := poolTallies(b, f, 12, today)[:100]
+	shared := energy.SharedSpread{Batch: 0.03}
+	defer testref.ReportCPU(b)()
+	b.ResetTimer()
+	nodes := 0
+	for i := 0; i < b.N; i++ {
+		plan, err := energy.PlanSharedService(f.spec, energy.Environment{}, shared, f.costs, energy.DeviceOptions{}, ts, today, horizon)
+		if err != nil {
+			b.Fatal(err)
+		}
+		nodes += len(plan.Batch)
+	}
+	b.ReportMetric(float64(nodes*len(ts))/float64(b.N), "device-nodes/op")
+}

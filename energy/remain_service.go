@@ -179,8 +179,13 @@ const (
 // factor's posterior mean and the expected count flat agree with those of
 // the grid of twice the step within 1e-4 and 0.05 devices; that last
 // difference, plus the posterior mass the grid may leave out, is the
-// stated error (BatchGridErr, FlatGridErr). The devices' tallies must come
-// from a model with the same costs. 1 to MaxServiceDevices tallies;
+// stated error (BatchGridErr, FlatGridErr). Pool every device of the
+// group, those gone silent (flat) too, with their tallies as they
+// stopped: the devices still alive are selected for large cells, and
+// pooling them alone biases the batch factor up (in the validation,
+// 0.969 ± 0.007 for a true 0.94 from the 246 survivors of 300; 0.944 ±
+// 0.006 from all 300). The devices' tallies must come from a model with
+// the same costs. 1 to MaxServiceDevices tallies;
 // horizon finite and >= 0 (s from now); now at or after each tally's
 // newest event. Errors wrap ErrParam.
 func PlanSharedService(spec NodeSpec, env Environment, shared SharedSpread, costs []EventCost, opt DeviceOptions, tallies []Tally, now, horizon float64) (SharedServicePlan, error) {

@@ -127,11 +127,12 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	zs := d.z
 	Ms := len(d.tz)
 	widen := 1.0
-	if ess < float64(M)/4 || maxOf(logw) < ev.readingBest()-ridgeGap {
+	if (ess < float64(M)/4 && ev.ridgeSharp()) || maxOf(logw) < ev.readingBest()-ridgeGap {
 		// The ridge stage first (remain_ridge.go): M points on the shell
 		// the readings pin, where the prior's nodes leave few effective
-		// or none of them comes near explaining the readings (a mode the
-		// prior's nodes do not reach). Of the two, the one whose estimate
+		// and the readings pin the depth sharply, or none of them comes
+		// near explaining the readings (a mode the prior's nodes do not
+		// reach). Of the two, the one whose estimate
 		// of the marginal likelihood is larger by more than ridgeMargin
 		// wins (the other missed mass), else the more effective one.
 		if rz, rl, rc, ra, rf, ok := ev.ridgeStage(M); ok {
@@ -215,14 +216,15 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		return DevicePosterior{}, paramErr(fn, "tally", fmt.Sprintf("%.6g J active energy by %.6g days", t.active, Days(pd.tau0)),
 			"no node of the model's prior is still alive with this much spent: the counts or the model's cell are wrong")
 	}
-	s1 := 0.0
+	s1, sAll := 0.0, 0.0
 	M = len(logw)
-	pd.logMarginal = logMeanExp(logw)
 	pd.nodes = M
-	pd.c, pd.a, pd.f = make([]float64, 0, M), make([]float64, 0, M), make([]float64, 0, M)
-	pd.half, pd.w = make([]uint8, 0, M), make([]float64, 0, M)
+	buf := make([]float64, 0, 4*M)
+	pd.c, pd.a, pd.f, pd.w = buf[0:0:M], buf[M:M:2*M], buf[2*M:2*M:3*M], buf[3*M:3*M:4*M]
+	pd.half = make([]uint8, 0, M)
 	for k, l := range logw {
 		w := math.Exp(l - best)
+		sAll += w
 		if w > 1e-300 {
 			pd.c, pd.a, pd.f = append(pd.c, cs[k]), append(pd.a, as[k]), append(pd.f, fs[k])
 			pd.half = append(pd.half, uint8(k%2))
@@ -230,6 +232,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			s1 += w
 		}
 	}
+	pd.logMarginal = best + math.Log(sAll/float64(M)) // logMeanExp(logw)
 	for i := range pd.w {
 		pd.w[i] /= s1
 	}
@@ -403,7 +406,22 @@ type evidence struct {
 // self-discharge depth by its time, the pulse drop (V/Ω) and its table.
 type readTerm struct {
 	active, fe, q, sdd, drop float64
+	vs                       []float64 // the loaded voltage at the curve's depths at this drop
 	tab                      readingTable
+}
+
+// voltage returns the loaded voltage at depth dep in [0, 1] (loadedAt
+// with the curve's points loaded once).
+func (r *readTerm) voltage(ds []float64, dep float64) float64 {
+	i := searchAbove(ds, dep)
+	if i == 0 {
+		return r.vs[0]
+	}
+	if i >= len(ds) {
+		return r.vs[len(ds)-1]
+	}
+	x0 := ds[i-1]
+	return r.vs[i-1] + (dep-x0)/(ds[i]-x0)*(r.vs[i]-r.vs[i-1])
 }
 
 // newEvidence returns the tally's evidence at τ0 (s after installation).
@@ -415,7 +433,11 @@ func (d *deviceData) newEvidence(t *Tally, tau0 float64) *evidence {
 	for i := range e.rs {
 		r := t.reads[i]
 		drop := d.load * d.curve.ResistanceMultiplier(d.temp(r.tau))
-		e.rs[i] = readTerm{active: r.active, fe: d.floorE(r.tau), q: n.quiescent * r.tau, sdd: d.selfD(r.tau), drop: drop,
+		vs := make([]float64, len(d.curve.DepthOfDischarge))
+		for j := range vs {
+			vs[j] = d.curve.OpenCircuit[j] - drop*d.curve.Resistance[j]
+		}
+		e.rs[i] = readTerm{active: r.active, fe: d.floorE(r.tau), q: n.quiescent * r.tau, sdd: d.selfD(r.tau), drop: drop, vs: vs,
 			tab: newReadingTable(d.curve, drop, r.lo, r.hi, r.noise)}
 		if r.tau > newestTau {
 			newestTau, e.newest = r.tau, i
@@ -446,6 +468,10 @@ func (d *deviceData) newEvidence(t *Tally, tau0 float64) *evidence {
 func (e *evidence) logLik(c, a, f, out []float64) {
 	d := e.d
 	nom := d.n.nominal
+	var ds []float64 // no readings without a curve
+	if d.curve != nil {
+		ds = d.curve.DepthOfDischarge
+	}
 	for k := range out {
 		ck, ak, fk := c[k], a[k], f[k]
 		if !(ck > 0 && ak > 0) {
@@ -473,7 +499,7 @@ func (e *evidence) logLik(c, a, f, out []float64) {
 			} else if dep > 1 {
 				dep = 1
 			}
-			out[k] += r.tab.at(d.curve.loadedAt(dep, r.drop))
+			out[k] += r.tab.at(r.voltage(ds, dep))
 		}
 	}
 }

@@ -79,6 +79,72 @@ func (e *evidence) readingBest() float64 {
 	return s
 }
 
+// ridgeSharpness: the ridge stage is tried for few effective prior nodes
+// only where the readings pin the depth at the newest reading more
+// sharply than ridgeSharpness times the prior's spread of it (on the flat
+// part of the curve the posterior is no thin shell, and the adaptive
+// stages serve).
+const ridgeSharpness = 0.5
+
+// ridgeSharp reports whether the readings pin the depth at the newest
+// reading sharply against the prior (see ridgeSharpness): the bins'
+// scale over the loaded curve's slope at their mean, against the median
+// node's depth times the prior's relative spread of the spent energy
+// (√(σc² + (σa·A/B)² + (σf·Φ/B)²), B the spent energy, A and Φ its active
+// and floor parts).
+func (e *evidence) ridgeSharp() bool {
+	d := e.d
+	if e.newest < 0 || d.curve == nil {
+		return false
+	}
+	mu, s0, ok := e.readingsMean()
+	if !ok {
+		return false
+	}
+	nr := &e.rs[e.newest]
+	ds, vs := d.curve.DepthOfDischarge, nr.vs
+	slope := math.Inf(1) // outside the curve's range: let the stage decide
+	for j := 0; j+1 < len(vs); j++ {
+		if (vs[j] >= mu && mu >= vs[j+1]) || (vs[j] <= mu && mu <= vs[j+1]) {
+			slope = math.Abs(vs[j+1]-vs[j]) / (ds[j+1] - ds[j])
+			break
+		}
+	}
+	b := nr.active + nr.fe + nr.q
+	if !(b > 0) {
+		return false
+	}
+	sp := d.spread
+	ra, rf := sp.Active*nr.active/b, sp.Floor*nr.fe/b
+	prior := b / d.n.nominal * math.Sqrt(sp.Capacity*sp.Capacity+ra*ra+rf*rf)
+	return s0/slope < ridgeSharpness*prior
+}
+
+// readingsMean returns where the closed bins put the voltage: the
+// precision-weighted mean of their middles (each N(·, σ² + w²/12)) and the
+// scale s₀ of that mean plus the middles' weighted spread; ok false
+// without a closed bin.
+func (e *evidence) readingsMean() (mu, s0 float64, ok bool) {
+	sw, swm, swmm := 0.0, 0.0, 0.0
+	for i := range e.rs {
+		tb := &e.rs[i].tab
+		if math.IsInf(tb.lo, 0) || math.IsInf(tb.hi, 0) {
+			continue
+		}
+		w, mid := tb.hi-tb.lo, 0.5*(tb.lo+tb.hi)
+		prec := 1 / (tb.sigma*tb.sigma + w*w/12)
+		sw += prec
+		swm += prec * mid
+		swmm += prec * mid * mid
+	}
+	if !(sw > 0) {
+		return 0, 0, false
+	}
+	mu = swm / sw
+	spread := math.Max(swmm-swm*mu, 0)
+	return mu, math.Sqrt(1/sw + spread/sw), true
+}
+
 // ridgeDefensive is the share of the ridge stage's voltage proposal
 // given to the Student-t component (the rest follows the profile): it
 // bounds the weights where the profile is low.
@@ -105,35 +171,17 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 	if e.newest < 0 || d.curve == nil {
 		return nil, nil, nil, nil, nil, false
 	}
-	// Where the readings put the voltage: the precision-weighted mean of
-	// the closed bins' middles (N(·, σ² + w²/12) each) and the scale s₀ of
-	// that mean plus the middles' weighted spread.
-	sw, swm, swmm := 0.0, 0.0, 0.0
-	for i := range e.rs {
-		tb := &e.rs[i].tab
-		if math.IsInf(tb.lo, 0) || math.IsInf(tb.hi, 0) {
-			continue
-		}
-		w, mid := tb.hi-tb.lo, 0.5*(tb.lo+tb.hi)
-		prec := 1 / (tb.sigma*tb.sigma + w*w/12)
-		sw += prec
-		swm += prec * mid
-		swmm += prec * mid * mid
-	}
-	if !(sw > 0) {
+	mu, s0, ok := e.readingsMean()
+	if !ok {
 		return nil, nil, nil, nil, nil, false
 	}
-	mu := swm / sw
-	spread := math.Max(swmm-swm*mu, 0)
-	s0 := math.Sqrt(1/sw + spread/sw)
 	// The newest reading's loaded curve, strictly decreasing.
 	nr := &e.rs[e.newest]
 	cv := d.curve
 	np := len(cv.DepthOfDischarge)
-	vs := make([]float64, np)
-	for i := range vs {
-		vs[i] = cv.OpenCircuit[i] - nr.drop*cv.Resistance[i]
-		if i > 0 && !(vs[i] < vs[i-1]) {
+	vs := nr.vs
+	for i := 1; i < np; i++ {
+		if !(vs[i] < vs[i-1]) {
 			return nil, nil, nil, nil, nil, false
 		}
 	}

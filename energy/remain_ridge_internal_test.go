@@ -127,3 +127,47 @@ func TestRidgeStage(t *testing.T) {
 		}
 	}
 }
+
+// TestRidgeStageFallback: the ridge stage declines (and the adaptive
+// stages serve) where its inverse of the loaded curve does not exist (a
+// curve that rises again in the knee) or no reading has a closed bin (the
+// reported range's ends); the posterior is then still built.
+func TestRidgeStageFallback(t *testing.T) {
+	spec, costs := ridgeSpec(t)
+	bumpy := TypicalBobbinCurve()
+	bumpy.OpenCircuit = append([]float64(nil), bumpy.OpenCircuit...)
+	bumpy.OpenCircuit[4] = 3.61 // above the 3.60 at depth 0.8: not decreasing
+	for _, tc := range []struct {
+		name   string
+		curve  VoltageCurve
+		lo, hi float64
+	}{
+		{"curve not decreasing", bumpy, 3.495, 3.505},
+		{"open bins only", TypicalBobbinCurve(), math.Inf(-1), 3.5},
+	} {
+		sp := spec
+		c := tc.curve
+		sp.Voltage = &c
+		m, err := NewDeviceModel(sp, Environment{}, costs, DeviceOptions{})
+		require.NoError(t, err, tc.name)
+		tl, err := m.NewTally(0)
+		require.NoError(t, err)
+		for d := 1; d <= 900; d++ {
+			at := float64(d) * Day
+			tl, err = m.Observe(tl, Event{Time: at, Kind: 0, Count: 96})
+			require.NoError(t, err)
+			if d > 896 {
+				tl, err = m.Read(tl, Reading{Time: at, Low: tc.lo, High: tc.hi, Noise: 0.02})
+				require.NoError(t, err)
+			}
+		}
+		ev := m.d.newEvidence(&tl, tl.newest-tl.install)
+		_, _, _, _, _, ok := ev.ridgeStage(len(m.d.c))
+		require.False(t, ok, tc.name)
+		p, err := m.Posterior(tl, tl.Newest())
+		require.NoError(t, err, tc.name)
+		med := p.Remaining().Quantile(0.5)
+		require.False(t, math.IsNaN(med), tc.name)
+		t.Logf("%s: %d nodes, %.0f effective, median %.1f d", tc.name, p.p.nodes, p.p.ess, med/Day)
+	}
+}

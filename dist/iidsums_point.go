@@ -29,16 +29,10 @@ import (
 //	T_k = exp(k0)/L·Σ_j' Re(exp(k·c_j − s_j·y − k0)/s_j) − e^{−θL}/(1 − e^{−θL}),
 //	y = ±(x − k·μ),   k0 = k·c_0 − θ·y
 //
-// (the prime halves the j = 0 term) instead of a saddlepoint search, a
-// window and N transform values. The exponent k·c_j is k times the
-// per-term value (Feller's exp(k·log φ), not a repeated product), and it
-// is linear in k (the centred point moves by −μ a cycle), so the term of
-// k = k_b + m, k_b the block's first k, is the term of k_b times
-// exp(m·w_j), w_j = c_j − c_0 + i·j·h·μ (reflected: −μ): the panel keeps
-// the base terms and the binary powers exp(2^b·w_j), each computed once
-// when a value first needs it, and a value costs a few complex products a
-// node (one per set bit of m) instead of an exponential, a sine and a
-// cosine. L is the largest period any k of
+// (the prime halves the j = 0 term): N complex exponentials a value
+// instead of a saddlepoint search, a window and N transform values. The
+// exponent k·c_j is k times the per-term value (Feller's
+// exp(k·log φ), not a repeated product). L is the largest period any k of
 // the block needs (the single inversion's rules: θL >= 40 − k0 for the
 // lower alias, a Chernoff bound at four tilts above θ for the upper one,
 // L >= 8 tilted standard deviations), and each k checks that its own rules
@@ -49,14 +43,13 @@ import (
 // estimates it, 1e-14 plus 4e-16 times the sum of the terms' magnitudes
 // over the sum's magnitude (the rounding of the sum, which grows where the
 // block's tilt is off the k's own saddlepoint: by about exp(½·(B/2)²/sd²)
-// at most, e^{1/2} within the block; and 2ε for each of the products that
-// form a term, at most 21), plus the
+// at most, e^{1/2} within the block), plus the
 // rounding of the exponents: k times 2ε·(|log M(s_j)| +
 // |s_j·μ|) for each term, weighted by the term's magnitude (about k·ε·θ·μ
 // relative: 7e-13 at k = 1.5·10^5 four standard deviations out). The sum
 // stops once four successive terms are below 1e-13 of it, as the single
 // inversion's does. A value whose sum's rounding exceeds PointTailsRel
-// (1e-14 + (4e-16 + 2ε·products)·Σ|terms|/|sum|: the block's tilt is too far from the k's
+// (1e-14 + 4e-16·Σ|terms|/|sum|: the block's tilt is too far from the k's
 // own; the rounding of the exponents is not counted there, since the
 // single inversion's tilt carries it too), whose period rules fail, whose
 // sum does not settle within the panel's nodes or whose scale underflows
@@ -112,50 +105,6 @@ type tiltPanel struct {
 	ce       []float64 // rounding of c_j: 2ε·(|log E[exp(s_j·X)]| + |s_j·μ|)
 	ir, ii   []float64 // real and imaginary parts of 1/s_j
 	nodesEnd bool      // the nodes' magnitudes fell below 1e-17 for the block's smallest k
-
-	// The terms at k = kb + m as products (see value): the base terms at
-	// the block's first k and the binary powers of the per-k ratio, each
-	// computed once, when a value first needs it.
-	kb, yb   float64 // the block's first k and its centred (reflected) point
-	sgmu     float64 // sg·μ
-	baseOnce sync.Once
-	base     []complex128 // exp(kb·(c_j − k1) − i·j·h·yb)/s_j
-	powOnce  [maxPowerBits]sync.Once
-	pow      [maxPowerBits][]complex128 // exp(2^b·((c_j − k1) + i·j·h·sg·μ))
-}
-
-// maxPowerBits is the number of binary powers a panel may keep: blocks
-// hold at most 2^20 k's.
-const maxPowerBits = 21
-
-// baseTerms returns the terms of the block's first k, kb:
-// exp(kb·(c_j − c_0) − i·j·h·yb)/s_j with yb the centred (reflected) point
-// there.
-func (pn *tiltPanel) baseTerms() []complex128 {
-	pn.baseOnce.Do(func() {
-		pn.base = make([]complex128, len(pn.c))
-		for j, c := range pn.c {
-			e := complex(pn.kb*(real(c)-pn.k1), pn.kb*imag(c)-float64(j)*pn.h*pn.yb)
-			pn.base[j] = cmplx.Exp(e) * complex(pn.ir[j], pn.ii[j])
-		}
-	})
-	return pn.base
-}
-
-// power returns exp(2^b·w_j) for every node, w_j = (c_j − c_0) +
-// i·j·h·sg·μ: the factor by which the term of node j moves from k to
-// k + 2^b (the exponent is linear in k, since the centred point moves by
-// −sg·μ a cycle).
-func (pn *tiltPanel) power(b int) []complex128 {
-	pn.powOnce[b].Do(func() {
-		f := float64(int64(1) << b)
-		p := make([]complex128, len(pn.c))
-		for j, c := range pn.c {
-			p[j] = cmplx.Exp(complex(f*(real(c)-pn.k1), f*(imag(c)+float64(j)*pn.h*pn.sgmu)))
-		}
-		pn.pow[b] = p
-	})
-	return pn.pow[b]
 }
 
 // AtPoint returns the evaluator of P(S_k <= x) and P(S_k > x) for many k
@@ -420,7 +369,7 @@ func (st *pointState) newPanel(b int64, sg float64) *tiltPanel {
 	}
 	kLo, kHi := st.blockRange(b)
 	kc := st.mid(b)
-	pn := &tiltPanel{sg: sg, kb: kLo, yb: sg * (st.x - kLo*p.mu), sgmu: sg * p.mu}
+	pn := &tiltPanel{sg: sg}
 	K := func(th float64) float64 { return real(st.cent(complex(th, 0), sg)) }
 	dK := func(th float64) float64 {
 		const eta = 1e-20
@@ -553,30 +502,14 @@ func (pn *tiltPanel) value(fk, yy, supTop float64) (v, rel float64, ok bool) {
 	if k0 < -700 {
 		return 0, 0, false // near underflow: the single inversion's Chernoff cut-off decides
 	}
-	// The term of node j at k = kb + m is exp(k·(c_j − c_0) − i·j·h·yy)/s_j
-	// (the scale exp(k0) taken out), whose exponent is the base's plus
-	// m·w_j: the base term times the binary powers of m's set bits, a few
-	// complex products instead of an exponential and a sine and cosine.
-	m := int64(fk - pn.kb)
-	if m < 0 || m>>maxPowerBits != 0 {
-		return 0, 0, false
-	}
-	var pw [maxPowerBits][]complex128
-	nb := 0
-	for b := 0; m>>b != 0; b++ {
-		if m>>b&1 == 1 {
-			pw[nb] = pn.power(b)
-			nb++
-		}
-	}
 	var sum, absSum, expSum, t0 float64
 	quiet := 0
 	settled := false
-	for j, z := range pn.baseTerms() {
-		for _, p := range pw[:nb] {
-			z *= p[j]
-		}
-		term := real(z)
+	for j, c := range pn.c {
+		er := fk*real(c) - pn.theta*yy - k0
+		ei := fk*imag(c) - float64(j)*pn.h*yy
+		sn, cs := math.Sincos(ei)
+		term := math.Exp(er) * (cs*pn.ir[j] - sn*pn.ii[j])
 		at := math.Abs(term)
 		if j == 0 {
 			t0 = at
@@ -600,12 +533,9 @@ func (pn *tiltPanel) value(fk, yy, supTop float64) (v, rel float64, ok bool) {
 		return 0, 0, false
 	}
 	den := math.Max(math.Abs(sum), 1e-300)
-	// rounding: of the sum and of the products (each of the nb + 1
-	// factors about 2ε relative), and of the exponents k·c_j (k times the
-	// rounding of each c_j, which exp turns into a relative error; the
-	// powers' exponents, at most 2m·|w_j|·ε with m below the block's
-	// size, are far below it)
-	rs := 1e-14 + (4e-16+float64(nb+1)*4*0x1p-53)*absSum/den
+	// rounding: of the sum, and of the exponents k·c_j (k times the
+	// rounding of each c_j, which exp turns into a relative error)
+	rs := 1e-14 + 4e-16*absSum/den
 	if rs > PointTailsRel {
 		return 0, 0, false
 	}

@@ -335,22 +335,8 @@ func (st *pointState) cent(s complex128, sg float64) complex128 {
 	return st.p.tr.logm(complex(sg, 0)*s) - complex(sg*st.p.mu, 0)*s - complex(st.lm0, 0)
 }
 
-// massDefect returns log M(0) of the term: not exactly 0 where its masses
-// do not sum to 1 in floating point (six atoms of a cycle law summed to
-// 1 + 2.2e-16), which the k-fold sum would carry as a mass of
-// (1 + 2.2e-16)^k: 3.3e-11 too much at k = 1.5·10^5, split between the
-// tails according to the side computed. Subtracting it normalises the
-// transform. 0 where it is not finite.
-func (p IIDSums) massDefect() float64 {
-	if p.tr.logm == nil {
-		return 0
-	}
-	v := real(p.tr.logm(0))
-	if !finite(v) {
-		return 0
-	}
-	return v
-}
+// massDefect returns log M(0) of the term (transform.massDefect).
+func (p IIDSums) massDefect() float64 { return p.tr.massDefect() }
 
 // massDefectOnce sets lm0, the term's massDefect, on the first panel (a
 // transform value the law's building need not pay for).

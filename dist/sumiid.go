@@ -250,15 +250,8 @@ func iidNumeric(l Law, k int) (Law, error) {
 			}
 		}
 	}
-	// c0 = log M(0) normalises the transform: a term whose masses sum to
-	// 1 + 2.2e-16 in floating point would give the k-fold sum a mass of
-	// (1 + 2.2e-16)^k, 3.3e-11 too much at k = 1.5·10^5, against a stated
-	// error of a few 1e-12 (as IIDSums.massDefect)
-	c0 := real(t.logm(0))
-	if !finite(c0) {
-		c0 = 0
-	}
-	cmu, ck, cc0 := complex(mu, 0), complex(fk, 0), complex(c0, 0)
+	// the transform normalised by its mass defect, as IIDSums normalises it
+	cmu, ck, cc0 := complex(mu, 0), complex(fk, 0), complex(t.massDefect(), 0)
 	tr := transform{
 		logm: func(s complex128) complex128 { return ck * (t.logm(s) - s*cmu - cc0) },
 		lo:   t.lo, hi: t.hi, err: fk * t.err,

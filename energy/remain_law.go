@@ -73,25 +73,39 @@ type nodeQuality struct {
 	unresolved bool    // the nodes do not reach the posterior: the stated error is 1
 }
 
-// newPostLaw builds the law of the nodes (m, s, w, half), clamped to
-// [lo, hi]; nodes of zero weight are dropped. It needs at least one node
-// of positive weight.
-func newPostLaw(m, s, w []float64, half []uint8, q nodeQuality, lo, hi float64, name, unit string, scale float64) PosteriorLaw {
+// newPostLaw builds the law of the nodes k with w[k] > 0, node(k) giving
+// node k's kernel centre and standard deviation, clamped to [lo, hi]. It
+// needs at least one node of positive weight and at most
+// MaxPosteriorNodes nodes in all.
+func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo, hi float64, name, unit string, scale float64) PosteriorLaw {
+	nAll, n := len(w), 0
+	for _, wk := range w {
+		if wk > 0 {
+			n++
+		}
+	}
+	// One buffer: the sorted m, s, w (3n), then below and above (2n+2).
+	// Until they are filled, the latter's place holds each node's centre
+	// and standard deviation by the node's index (2·nAll; hence the
+	// buffer's length 3n + max(2n+2, 2·nAll)).
+	buf := make([]float64, 3*n+max(2*n+2, 2*nAll))
+	tm, ts := buf[3*n:3*n+nAll], buf[3*n+nAll:3*n+2*nAll]
 	// Sort 8-byte keys: the value's order-preserving bits with the low 16
 	// replaced by the node's index (at most MaxPosteriorNodes = 2^16
 	// nodes), then one insertion pass restores the exact order (value,
 	// then index) among values that agree in their top 48 bits.
-	keys := make([]uint64, 0, len(m))
+	keys := make([]uint64, 0, n)
 	tot := 0.0
-	for k := range m {
-		if w[k] > 0 {
-			keys = append(keys, orderBits(m[k])&^0xffff|uint64(k))
-			tot += w[k]
+	for k, wk := range w {
+		if wk > 0 {
+			tm[k], ts[k] = node(k)
+			keys = append(keys, orderBits(tm[k])&^0xffff|uint64(k))
+			tot += wk
 		}
 	}
 	slices.Sort(keys)
 	less := func(x, y uint64) bool {
-		mx, my := m[x&0xffff], m[y&0xffff]
+		mx, my := tm[x&0xffff], tm[y&0xffff]
 		return mx < my || (mx == my && x&0xffff < y&0xffff)
 	}
 	for i := 1; i < len(keys); i++ {
@@ -99,17 +113,17 @@ func newPostLaw(m, s, w []float64, half []uint8, q nodeQuality, lo, hi float64, 
 			keys[j], keys[j-1] = keys[j-1], keys[j]
 		}
 	}
-	n := len(keys)
-	buf := make([]float64, 5*n+2)
 	p := &postLaw{m: buf[:n:n], s: buf[n : 2*n : 2*n], w: buf[2*n : 3*n : 3*n], half: make([]uint8, n),
-		below: buf[3*n : 4*n+1 : 4*n+1], above: buf[4*n+1:], q: q, lo: lo, hi: hi, name: name, unit: unit, scale: scale}
+		below: buf[3*n : 4*n+1 : 4*n+1], above: buf[4*n+1 : 5*n+2 : 5*n+2], q: q, lo: lo, hi: hi, name: name, unit: unit, scale: scale}
 	for i, kk := range keys {
 		k := int(kk & 0xffff)
-		p.m[i], p.s[i], p.w[i], p.half[i] = m[k], s[k], w[k]/tot, half[k]
-		if s[k] > p.smax {
-			p.smax = s[k]
+		p.m[i], p.s[i], p.w[i], p.half[i] = tm[k], ts[k], w[k]/tot, uint8(k%2)
+		if ts[k] > p.smax {
+			p.smax = ts[k]
 		}
 	}
+	// below and above overwrite the centres by index from here on.
+	p.below[0], p.above[n] = 0, 0
 	for i := range n {
 		p.below[i+1] = p.below[i] + p.w[i]
 	}

@@ -137,6 +137,9 @@ func (m DeviceModel) readingP(t Tally, now float64) (float64, error) {
 	drop := d.load * d.curve.ResistanceMultiplier(d.temp(r.tau))
 	below, above := 0.0, 0.0 // P(reading < hi), P(reading >= lo)
 	for k, w := range pd.w {
+		if w == 0 {
+			continue // a node without weight (its factors may not be valid)
+		}
 		dep := (pd.a[k]*r.active+pd.f[k]*fe+q)/(pd.c[k]*n.nominal) + sdd
 		dep = math.Min(1, math.Max(0, dep))
 		v := d.curve.loadedAt(dep, drop)

@@ -15,9 +15,8 @@ type DevicePosterior struct{ p *postData }
 
 type postData struct {
 	d              *deviceData
-	c, a, f        []float64 // the nodes kept (weight > 1e-300 of the largest)
-	half           []uint8   // parity of each node's index in the point set
-	w              []float64 // their normalised weights
+	c, a, f        []float64 // the final stage's nodes (the prior's: the model's own slices, shared)
+	w              []float64 // their normalised weights, 0 where at most 1e-300 of the largest
 	tau0, tauNow   float64   // s after installation: newest event, now
 	a0, va0, r, vr float64
 	ess            float64
@@ -219,18 +218,20 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	s1, sAll := 0.0, 0.0
 	M = len(logw)
 	pd.nodes = M
-	buf := make([]float64, 0, 4*M)
-	pd.c, pd.a, pd.f, pd.w = buf[0:0:M], buf[M:M:2*M], buf[2*M:2*M:3*M], buf[3*M:3*M:4*M]
-	pd.half = make([]uint8, 0, M)
+	// The final stage's nodes are kept as they are (the prior's are the
+	// model's own, never written); the weights overwrite logw (this
+	// call's own), 0 for a node whose weight is at most 1e-300 of the
+	// largest.
+	pd.c, pd.a, pd.f, pd.w = cs, as, fs, logw
 	for k, l := range logw {
 		w := math.Exp(l - best)
 		sAll += w
 		if w > 1e-300 {
-			pd.c, pd.a, pd.f = append(pd.c, cs[k]), append(pd.a, as[k]), append(pd.f, fs[k])
-			pd.half = append(pd.half, uint8(k%2))
-			pd.w = append(pd.w, w)
 			s1 += w
+		} else {
+			w = 0
 		}
+		pd.w[k] = w
 	}
 	pd.logMarginal = best + math.Log(sAll/float64(M)) // logMeanExp(logw)
 	for i := range pd.w {
@@ -299,13 +300,12 @@ func (p DevicePosterior) ActivePower() float64 {
 	return p.p.r
 }
 
-func (p DevicePosterior) laws(fn func(c, a, f float64) (m, s float64)) (ms, ss, ws []float64, half []uint8) {
+// law returns the law of the posterior's nodes with weight, each node k
+// mapped by node to its kernel's centre and standard deviation (the
+// factors given), clamped to [lo, hi] (see newPostLaw).
+func (p DevicePosterior) law(node func(c, a, f float64) (m, s float64), lo, hi float64, name, unit string, scale float64) PosteriorLaw {
 	pd := p.p
-	ms, ss = make([]float64, len(pd.w)), make([]float64, len(pd.w))
-	for i := range pd.w {
-		ms[i], ss[i] = fn(pd.c[i], pd.a[i], pd.f[i])
-	}
-	return ms, ss, pd.w, pd.half
+	return newPostLaw(pd.w, func(k int) (float64, float64) { return node(pd.c[k], pd.a[k], pd.f[k]) }, pd.quality(), lo, hi, name, unit, scale)
 }
 
 // Remaining returns the law of the device's remaining life (s from now):
@@ -326,7 +326,7 @@ func (p DevicePosterior) Remaining() PosteriorLaw {
 	if hi < 0 {
 		hi = 0
 	}
-	ms, ss, ws, half := p.laws(func(c, a, f float64) (float64, float64) {
+	return p.law(func(c, a, f float64) (float64, float64) {
 		tau, slope := d.life(c, a, f, pd.a0, pd.r, pd.tau0)
 		if math.IsInf(tau, 1) || tau-pd.tauNow >= hi {
 			return hi, 0
@@ -337,8 +337,7 @@ func (p DevicePosterior) Remaining() PosteriorLaw {
 			s = math.Sqrt(v) / slope
 		}
 		return tau - pd.tauNow, s
-	})
-	return newPostLaw(ms, ss, ws, half, pd.quality(), 0, hi, "RemainingLife", "y", Year)
+	}, 0, hi, "RemainingLife", "y", Year)
 }
 
 // Spent returns the law of the energy (J, at the cell) the device has
@@ -355,10 +354,9 @@ func (p DevicePosterior) Spent() PosteriorLaw {
 	act := pd.a0 + pd.r*dt
 	va := pd.va0 + pd.vr*dt
 	fe, q := d.floorE(pd.tauNow), d.n.quiescent*pd.tauNow
-	ms, ss, ws, half := p.laws(func(c, a, f float64) (float64, float64) {
+	return p.law(func(c, a, f float64) (float64, float64) {
 		return a*act + f*fe + q, a * math.Sqrt(va)
-	})
-	return newPostLaw(ms, ss, ws, half, pd.quality(), 0, math.Inf(1), "SpentEnergy", "J", 1)
+	}, 0, math.Inf(1), "SpentEnergy", "J", 1)
 }
 
 // Capacity returns the posterior law of the cell's usable energy (J): the
@@ -368,11 +366,9 @@ func (p DevicePosterior) Capacity() PosteriorLaw {
 		return PosteriorLaw{}
 	}
 	d := p.p.d
-	pd := p.p
-	ms, ss, ws, half := p.laws(func(c, a, f float64) (float64, float64) {
+	return p.law(func(c, a, f float64) (float64, float64) {
 		return c * d.n.batch * d.s.usable, 0
-	})
-	return newPostLaw(ms, ss, ws, half, pd.quality(), math.Inf(-1), math.Inf(1), "UsableEnergy", "J", 1)
+	}, math.Inf(-1), math.Inf(1), "UsableEnergy", "J", 1)
 }
 
 // FloorCurrent returns the posterior law of the node's floor current (A at
@@ -383,11 +379,9 @@ func (p DevicePosterior) FloorCurrent() PosteriorLaw {
 		return PosteriorLaw{}
 	}
 	d := p.p.d
-	pd := p.p
-	ms, ss, ws, half := p.laws(func(c, a, f float64) (float64, float64) {
+	return p.law(func(c, a, f float64) (float64, float64) {
 		return f * d.s.floorP / d.voltage, 0
-	})
-	return newPostLaw(ms, ss, ws, half, pd.quality(), math.Inf(-1), math.Inf(1), "FloorCurrent", "µA", MicroAmp)
+	}, math.Inf(-1), math.Inf(1), "FloorCurrent", "µA", MicroAmp)
 }
 
 // evidence is a device's evidence at its newest event τ0 (alive there,
@@ -397,17 +391,21 @@ type evidence struct {
 	d             *deviceData
 	capU, fe0, q0 float64
 	sd0, act      float64
-	rs            []readTerm
-	newest        int // index in rs of the newest reading, -1 for none
+	rs            []readTerm // the kept readings (in rsBuf)
+	newest        int        // index in rs of the newest reading, -1 for none
+	rsBuf         [MaxReadings]readTerm
 }
 
 // readTerm is one kept reading: the counted active energy (J), the floor
 // energy of the median board (J), the quiescent energy (J) and the
 // self-discharge depth by its time, the pulse drop (V/Ω) and its table.
+// Readings of one evidence with the same drop share their loaded curve,
+// and with the same bin and noise too, their table.
 type readTerm struct {
 	active, fe, q, sdd, drop float64
 	vs                       []float64 // the loaded voltage at the curve's depths at this drop
-	tab                      readingTable
+	tab                      *readingTable
+	tabBuf                   readingTable
 }
 
 // voltage returns the loaded voltage at depth dep in [0, 1] (loadedAt
@@ -428,17 +426,34 @@ func (r *readTerm) voltage(ds []float64, dep float64) float64 {
 func (d *deviceData) newEvidence(t *Tally, tau0 float64) *evidence {
 	n := d.n
 	e := &evidence{d: d, capU: n.batch*d.s.usable - n.nominal*d.selfD(tau0), fe0: d.floorE(tau0), q0: n.quiescent * tau0,
-		sd0: math.Sqrt(t.actVar), act: t.active, rs: make([]readTerm, t.nRead), newest: -1}
+		sd0: math.Sqrt(t.actVar), act: t.active, newest: -1}
+	e.rs = e.rsBuf[:t.nRead]
 	newestTau := math.Inf(-1)
 	for i := range e.rs {
 		r := t.reads[i]
 		drop := d.load * d.curve.ResistanceMultiplier(d.temp(r.tau))
-		vs := make([]float64, len(d.curve.DepthOfDischarge))
-		for j := range vs {
-			vs[j] = d.curve.OpenCircuit[j] - drop*d.curve.Resistance[j]
+		rt := &e.rs[i]
+		*rt = readTerm{active: r.active, fe: d.floorE(r.tau), q: n.quiescent * r.tau, sdd: d.selfD(r.tau), drop: drop}
+		for j := range i {
+			if o := &e.rs[j]; o.drop == drop {
+				rt.vs = o.vs
+				if o.tab.lo == r.lo && o.tab.hi == r.hi && o.tab.sigma == r.noise {
+					rt.tab = o.tab
+				}
+				break
+			}
 		}
-		e.rs[i] = readTerm{active: r.active, fe: d.floorE(r.tau), q: n.quiescent * r.tau, sdd: d.selfD(r.tau), drop: drop, vs: vs,
-			tab: newReadingTable(d.curve, drop, r.lo, r.hi, r.noise)}
+		if rt.vs == nil {
+			vs := make([]float64, len(d.curve.DepthOfDischarge))
+			for j := range vs {
+				vs[j] = d.curve.OpenCircuit[j] - drop*d.curve.Resistance[j]
+			}
+			rt.vs = vs
+		}
+		if rt.tab == nil {
+			rt.tabBuf = newReadingTable(rt.vs, r.lo, r.hi, r.noise)
+			rt.tab = &rt.tabBuf
+		}
 		if r.tau > newestTau {
 			newestTau, e.newest = r.tau, i
 		}
@@ -518,12 +533,11 @@ type readingTable struct {
 }
 
 // newReadingTable returns the table of the reading's term over the
-// voltages the curve gives at the pulse drop (V/Ω).
-func newReadingTable(curve *VoltageCurve, drop, lo, hi, sigma float64) readingTable {
+// voltages vs of the loaded curve (at the reading's pulse drop).
+func newReadingTable(vs []float64, lo, hi, sigma float64) readingTable {
 	t := readingTable{lo: lo, hi: hi, sigma: sigma}
 	vmin, vmax := math.Inf(1), math.Inf(-1)
-	for i := range curve.DepthOfDischarge {
-		x := curve.OpenCircuit[i] - drop*curve.Resistance[i]
+	for _, x := range vs {
 		vmin, vmax = math.Min(vmin, x), math.Max(vmax, x)
 	}
 	span := vmax - vmin

@@ -72,7 +72,11 @@ func TestReadingTable(t *testing.T) {
 		{"open above", 0, 3.55, math.Inf(1), 0.01},
 		{"exact reading, small noise", 0, 3.5, 3.5001, 0.002},
 	} {
-		tab := newReadingTable(&curve, c.drop, c.lo, c.hi, c.sigma)
+		vs := make([]float64, len(curve.DepthOfDischarge))
+		for j := range vs {
+			vs[j] = curve.OpenCircuit[j] - c.drop*curve.Resistance[j]
+		}
+		tab := newReadingTable(vs, c.lo, c.hi, c.sigma)
 		require.NotZero(t, tab.steps, c.name)
 		maxErr := 0.0
 		for i := 0; i <= 20000; i++ {

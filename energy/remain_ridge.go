@@ -66,7 +66,7 @@ const (
 func (e *evidence) readingBest() float64 {
 	s := 0.0
 	for i := range e.rs {
-		tb := &e.rs[i].tab
+		tb := e.rs[i].tab
 		v := 0.5 * (tb.lo + tb.hi)
 		switch {
 		case math.IsInf(tb.lo, -1):
@@ -127,7 +127,7 @@ func (e *evidence) ridgeSharp() bool {
 func (e *evidence) readingsMean() (mu, s0 float64, ok bool) {
 	sw, swm, swmm := 0.0, 0.0, 0.0
 	for i := range e.rs {
-		tb := &e.rs[i].tab
+		tb := e.rs[i].tab
 		if math.IsInf(tb.lo, 0) || math.IsInf(tb.hi, 0) {
 			continue
 		}

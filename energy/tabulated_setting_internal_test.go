@@ -29,6 +29,22 @@ func tabManySpec(t testing.TB) (NodeSpec, *Climate) {
 	return node, spec.Climate
 }
 
+// tabTestNodes returns the seven-setting group and the test site's groups,
+// with the site's climate (test input).
+func tabTestNodes(t testing.TB) ([]NodeSpec, *Climate) {
+	t.Helper()
+	many, clim := tabManySpec(t)
+	nodes := []NodeSpec{many}
+	for _, g := range tabTestSpec(t).Groups {
+		nodes = append(nodes, g.Node)
+	}
+	return nodes, clim
+}
+
+// tabTestConditions are the shared factors the node tables are tested
+// under: nominal, and a weak batch in a cold year.
+var tabTestConditions = []Conditions{{BatchFactor: 1}, {BatchFactor: 0.95, TemperatureOffset: -6}}
+
 // Each setting's own table (the gradient scheme between knots, month
 // boundaries stored as knots) against direct evaluation of the setting's
 // law by the node model (the oracle: settingAt afresh at each time), on
@@ -37,13 +53,8 @@ func tabManySpec(t testing.TB) (NodeSpec, *Climate) {
 // times 1.5 (the check is made before an interval's last halving; the
 // halves are closer still) and within the tolerance.
 func TestSettingTablesAgainstDirect(t *testing.T) {
-	spec := tabTestSpec(t)
-	many, clim := tabManySpec(t)
-	nodes := []NodeSpec{many}
-	for _, g := range spec.Groups {
-		nodes = append(nodes, g.Node)
-	}
-	for _, cond := range []Conditions{{BatchFactor: 1}, {BatchFactor: 0.95, TemperatureOffset: -6}} {
+	nodes, clim := tabTestNodes(t)
+	for _, cond := range tabTestConditions {
 		for gi, node := range nodes {
 			l, err := NewNodeLifetime(node, Environment{Climate: clim, Conditions: cond})
 			require.NoError(t, err)

@@ -15,7 +15,7 @@ import (
 // P(C = j) = C(n, j)·a^j·(2^s − a)^(n−j) / 2^(s·n), and the tails are exact
 // integer sums rounded once to float64. An oracle independent of the
 // saddle-point form (binomial theorem; exact arithmetic of math/big).
-func binomialTailsBig(n int, p float64) (atMost, atLeast []float64) {
+func binomialTailsBig(n int, p float64) (atMost, atLeast, mass []float64) {
 	mant, exp := math.Frexp(p) // p = mant·2^exp, 0.5 <= mant < 1
 	const bits = 60
 	a := new(big.Int).SetUint64(uint64(math.Ldexp(mant, bits)))
@@ -45,6 +45,10 @@ func binomialTailsBig(n int, p float64) (atMost, atLeast []float64) {
 	}
 	atMost = make([]float64, n+1)
 	atLeast = make([]float64, n+1)
+	mass = make([]float64, n+1)
+	for j := range mass {
+		mass[j] = toFloat(terms[j])
+	}
 	sum := new(big.Int)
 	for j := 0; j <= n; j++ {
 		sum.Add(sum, terms[j])
@@ -55,25 +59,25 @@ func binomialTailsBig(n int, p float64) (atMost, atLeast []float64) {
 		sum.Add(sum, terms[j])
 		atLeast[j] = toFloat(sum)
 	}
-	return atMost, atLeast
+	return atMost, atLeast, mass
 }
 
 // binomialRelTol is the relative error bound stated in BinomialTails' doc
 // (1e-12) for tails above the float64 normal range.
 const binomialRelTol = 1e-12
 
-// The saddle-point tails against exact big-integer sums for n up to 2000,
-// every k, at dyadic and non-dyadic p (source: the binomial theorem in
-// exact arithmetic, binomialTailsBig). Tails below 1e-300 are only required
+// The saddle-point tails and probabilities (BinomialMass) against exact
+// big-integer sums for n up to 2000, every k, at dyadic and non-dyadic p
+// (source: the binomial theorem in exact arithmetic, binomialTailsBig). Tails below 1e-300 are only required
 // to be below 2e-300 (the subnormal range, documented).
 func TestBinomialTailsAgainstExact(t *testing.T) {
 	for _, n := range []int{2, 15, 16, 100, 1000, 2000} {
 		for _, p := range []float64{0.5, 0.3, 0.03125, 0.9, 1e-3, 0.999} {
-			le, ge := binomialTailsBig(n, p)
+			le, ge, pm := binomialTailsBig(n, p)
 			worst := 0.0
 			for k := 0; k <= n; k++ {
 				gle, gge := BinomialTails(n, k, p)
-				for _, c := range [][2]float64{{gle, le[k]}, {gge, ge[k]}} {
+				for _, c := range [][2]float64{{gle, le[k]}, {gge, ge[k]}, {BinomialMass(n, k, p), pm[k]}} {
 					if c[1] < 1e-300 {
 						require.Less(t, c[0], 2e-300, "n=%d p=%v k=%d", n, p, k)
 						continue
@@ -144,7 +148,7 @@ func TestBinomialTailsFarExact(t *testing.T) {
 	}
 	const n = 20000
 	for _, p := range []float64{0.5, 0.03125, 0.75} {
-		le, ge := binomialTailsBig(n, p)
+		le, ge, _ := binomialTailsBig(n, p)
 		worst := 0.0
 		for k := 0; k <= n; k += 7 {
 			gle, gge := BinomialTails(n, k, p)
@@ -221,4 +225,33 @@ func TestBinomialIntervalLarge(t *testing.T) {
 	half := float64(hi-lo) / 2
 	z := half / 5000
 	assert.InDelta(t, 5.3267, z, 0.01)
+}
+
+// The one-sided forms and the probability at the edges and on bad input
+// (their documented values; the binomial law's support is 0 … n).
+func TestBinomialOneSidedEdges(t *testing.T) {
+	for _, c := range []struct {
+		n, k   int
+		p      float64
+		le, ge float64
+		pm     float64
+		what   string
+	}{
+		{10, -1, 0.3, 0, 1, 0, "k below the support"},
+		{10, 11, 0.3, 1, 0, 0, "k above the support"},
+		{10, 0, 0, 1, 1, 1, "p = 0: all mass at 0"},
+		{10, 10, 1, 1, 1, 1, "p = 1: all mass at n"},
+		{10, 3, 0, 1, 0, 0, "p = 0, k > 0"},
+		{10, 3, 1, 0, 1, 0, "p = 1, k < n"},
+	} {
+		assert.Equal(t, c.le, BinomialAtMost(c.n, c.k, c.p), c.what)
+		assert.Equal(t, c.ge, BinomialAtLeast(c.n, c.k, c.p), c.what)
+		assert.Equal(t, c.pm, BinomialMass(c.n, c.k, c.p), c.what)
+	}
+	for _, p := range []float64{math.NaN(), -0.1, 1.1} {
+		assert.True(t, math.IsNaN(BinomialAtMost(5, 2, p)), "p = %v", p)
+		assert.True(t, math.IsNaN(BinomialAtLeast(5, 2, p)), "p = %v", p)
+		assert.True(t, math.IsNaN(BinomialMass(5, 2, p)), "p = %v", p)
+	}
+	assert.True(t, math.IsNaN(BinomialMass(-1, 0, 0.5)), "n < 0")
 }

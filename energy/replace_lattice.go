@@ -4,8 +4,6 @@ import (
 	"fmt"
 	"math"
 
-	"gonum.org/v1/gonum/dsp/fourier"
-
 	"github.com/joulelaw/joulelaw/dist"
 )
 
@@ -39,7 +37,8 @@ type renewalLattice struct {
 // is put on the lattice i·h, h = horizon/points, each point taking the
 // mass of [(i − ½)h, (i + ½)h); its m-fold sums, cut at the horizon (a sum
 // of non-negative lives never comes back below it), are repeated FFT
-// convolutions (gonum dsp/fourier, zero-padded: no wrap-round), read as
+// convolutions (dist.TruncatedPowers, the one engine for k-fold sums on a
+// lattice), read as
 // P(C_m <= i·h) ≈ Σ_{j<i} q_j + ½·q_i and linearly between the points. The
 // atom a at c enters exactly:
 //
@@ -96,11 +95,17 @@ func latticeRenewals(fn string, cdf func(float64) float64, name string, atom, at
 		return r, nil
 	}
 	k := (points - 1) / 2 // the coarse lattice's steps; the fine one has twice as many
-	fine, m := newRenewalLattice(cdf, horizon, 2*k+1, 0, atom, at)
+	fine, m, err := newRenewalLattice(cdf, horizon, 2*k+1, 0, atom, at)
+	if err != nil {
+		return Renewals{}, paramErr(fn, "life", name, fmt.Sprintf("must have a finite CDF over [0, horizon]: %v", err))
+	}
 	if m > MaxLatticeRenewals {
 		return Renewals{}, paramErr(fn, "horizon", horizon, fmt.Sprintf("would count more than %d renewals of %s (P(S_%d <= horizon) > %g)", MaxLatticeRenewals, name, m, RenewalCut))
 	}
-	coarse, _ := newRenewalLattice(cdf, horizon, k+1, m, atom, at)
+	coarse, _, err := newRenewalLattice(cdf, horizon, k+1, m, atom, at)
+	if err != nil {
+		return Renewals{}, paramErr(fn, "life", name, fmt.Sprintf("must have a finite CDF over [0, horizon]: %v", err))
+	}
 	// The stated error: fine against coarse at the coarse points and
 	// halfway between them (where both interpolate). (P(S_1 <= t) is the
 	// law's own CDF on both.)
@@ -121,8 +126,9 @@ func latticeRenewals(fn string, cdf func(float64) float64, name string, atom, at
 // over [0, horizon] and forms its m-fold sums for m = 2 … mMax, or, for
 // mMax = 0, until P(S_m <= horizon) <= RenewalCut (at most
 // MaxLatticeRenewals + 1); it returns the lattice and the last m counted
-// (P(S_m <= horizon) > RenewalCut).
-func newRenewalLattice(cdf func(float64) float64, horizon float64, points, mMax int, atom, at float64) (*renewalLattice, int) {
+// (P(S_m <= horizon) > RenewalCut). It fails (dist.TruncatedPowers'
+// error) where the CDF is NaN on the lattice.
+func newRenewalLattice(cdf func(float64) float64, horizon float64, points, mMax int, atom, at float64) (*renewalLattice, int, error) {
 	rl := &renewalLattice{cdf: cdf, h: horizon / float64(points-1), atom: atom, at: at}
 	M := points
 	cont := func(x float64) float64 { // the continuous part's CDF
@@ -139,42 +145,32 @@ func newRenewalLattice(cdf func(float64) float64, horizon float64, points, mMax 
 		p[i] = math.Max(0, next-prev)
 		prev = next
 	}
-	n := 1
-	for n < 2*M-1 {
-		n *= 2
+	if mMax == 1 {
+		return rl, 1, nil
 	}
-	fft := fourier.NewFFT(n)
-	pad := make([]float64, n)
-	copy(pad, p)
-	pHat := fft.Coefficients(nil, pad)
-	qHat := make([]complex128, len(pHat))
-	q := append([]float64(nil), p...)
+	maxPowers := MaxLatticeRenewals // m up to MaxLatticeRenewals + 1
+	if mMax > 0 {
+		maxPowers = mMax - 1
+	}
 	last := 1
-	for m := 2; mMax == 0 || m <= mMax; m++ {
-		clear(pad)
-		copy(pad, q)
-		fft.Coefficients(qHat, pad)
-		for i := range qHat {
-			qHat[i] *= pHat[i]
-		}
-		fft.Sequence(pad, qHat)
+	// points <= MaxRenewalPoints < dist.MaxTruncatedPowerPoints and
+	// maxPowers <= MaxLatticeRenewals < dist.MaxTruncatedPowers; a NaN
+	// mass (a NaN CDF) is refused.
+	_, err := dist.TruncatedPowers(p, maxPowers, func(m int, q []float64) bool {
 		g := make([]float64, M)
 		below := 0.0
-		for i := range M {
-			q[i] = math.Max(0, pad[i]/float64(n))
-			g[i] = below + q[i]/2
-			below += q[i]
+		for i, qi := range q {
+			g[i] = below + qi/2
+			below += qi
 		}
 		rl.g = append(rl.g, g)
 		if mMax == 0 && rl.atLeast(m, horizon) <= RenewalCut {
-			break
+			return false
 		}
 		last = m
-		if mMax == 0 && m > MaxLatticeRenewals {
-			break
-		}
-	}
-	return rl, last
+		return true
+	})
+	return rl, last, err
 }
 
 // cont returns P(C_m <= x) of the defective m-fold sum of the continuous

@@ -291,4 +291,21 @@ func TestRenewalsBadInput(t *testing.T) {
 	_, err = energy.NewLatticeRenewals(exp, 1e4*energy.Year, energy.MinRenewalPoints)
 	require.ErrorIs(t, err, energy.ErrParam)
 	assert.Contains(t, err.Error(), "horizon")
+	// a law whose CDF turns NaN within the horizon: refused, not an empty lattice
+	_, err = energy.NewLatticeRenewals(nanAfter{exp, energy.Year / 2}, energy.Year, 0)
+	require.ErrorIs(t, err, energy.ErrParam)
+	assert.Contains(t, err.Error(), "finite CDF")
+}
+
+// nanAfter is a law whose CDF is NaN beyond at (a broken tabulation, say).
+type nanAfter struct {
+	dist.Law
+	at float64
+}
+
+func (l nanAfter) CDF(x float64) float64 {
+	if x > l.at {
+		return math.NaN()
+	}
+	return l.Law.CDF(x)
 }

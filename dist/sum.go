@@ -15,8 +15,10 @@ const MaxSumAtoms = 1 << 20
 // laws (in one unit). The result is exact where it can be and numerical,
 // with a stated error, where it cannot:
 //
-//   - finite discrete laws add exactly: the result is a Discrete, atoms
-//     merged within AtomMergeTolerance (at most MaxSumAtoms atoms);
+//   - finite discrete laws add exactly: the result is a Discrete, by
+//     SumDiscrete's dense lattice convolution where the atoms share a
+//     lattice, else atom pairs merged within AtomMergeTolerance (at most
+//     MaxSumAtoms atoms);
 //   - normals add to a normal, gammas (and exponentials) with one rate to a
 //     gamma, two uniforms to their trapezoid; one or more exponentials
 //     (distinct rates) plus one uniform, normal, truncated normal or gamma,
@@ -218,14 +220,10 @@ func sumTerms(terms []Law) (Law, error) {
 	}
 	var d Discrete
 	if len(disc) > 0 {
-		atoms := disc[0].Atoms()
-		for _, x := range disc[1:] {
-			var err error
-			if atoms, err = convolveAtoms("Sum", atoms, x.Atoms()); err != nil {
-				return nil, err
-			}
+		var err error
+		if d, err = sumDiscrete("Sum", disc); err != nil {
+			return nil, err
 		}
-		d = discreteFromAtoms(atoms)
 	}
 	if len(cont) == 0 {
 		return d, nil

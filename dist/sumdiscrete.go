@@ -32,6 +32,14 @@ func SumDiscrete(laws ...Discrete) (Discrete, error) {
 			return Discrete{}, paramErr(fn, fmt.Sprintf("laws[%d]", i), "zero Discrete", "must be built by NewDiscrete")
 		}
 	}
+	return sumDiscrete(fn, laws)
+}
+
+// sumDiscrete is the one exact sum of finite discrete laws, Sum's and
+// SumDiscrete's: the dense lattice convolution (denseSum) where the atoms
+// share a lattice, atom pairs merged otherwise; fn names the caller in
+// errors (more than MaxSumAtoms atoms).
+func sumDiscrete(fn string, laws []Discrete) (Discrete, error) {
 	if len(laws) == 1 {
 		return laws[0], nil
 	}

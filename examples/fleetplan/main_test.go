@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"sync"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -18,9 +19,46 @@ import (
 
 func runArgs(t *testing.T, args ...string) (code int, stdout, stderr string) {
 	t.Helper()
+	key := strings.Join(args, "\x00")
+	shareable := !strings.Contains(key, "-figures") && !strings.Contains(key, "-scenario")
+	if shareable {
+		demoRuns.Lock()
+		defer demoRuns.Unlock()
+		if r, ok := demoRuns.m[key]; ok {
+			return r.code, r.out, r.err
+		}
+	}
 	var out, errb bytes.Buffer
 	code = run(args, &out, &errb)
+	if shareable {
+		demoRuns.m[key] = demoRun{code, out.String(), errb.String()}
+	}
 	return code, out.String(), errb.String()
+}
+
+// demoRuns holds the runs on the built-in demo by their arguments: the
+// program's output depends on its arguments alone (the same bits on every
+// run; TestDemoOutputRepeats checks it), so tests that read the same run
+// share it instead of computing the plan again (go test ./... ≤ 90 s,
+// issue 12). Runs that touch files (-figures, -scenario) are not shared.
+var demoRuns = struct {
+	sync.Mutex
+	m map[string]demoRun
+}{m: map[string]demoRun{}}
+
+type demoRun struct {
+	code     int
+	out, err string
+}
+
+// TestDemoOutputRepeats: two runs with the same arguments print the same
+// report, so sharing one run between tests (demoRuns) hides nothing.
+func TestDemoOutputRepeats(t *testing.T) {
+	code, shared, errs := runArgs(t, "-quiet", "-json")
+	require.Equal(t, 0, code, errs)
+	var fresh, errb bytes.Buffer
+	require.Equal(t, 0, run([]string{"-quiet", "-json"}, &fresh, &errb), errb.String())
+	require.Equal(t, shared, fresh.String())
 }
 
 func TestDefaultReport(t *testing.T) {

@@ -542,7 +542,8 @@ func (n *node) part(capLeft, mean, vv, floorE, h, extra float64, grad bool) part
 	if g(zMax) < -flat {
 		return alive
 	}
-	pts := floorPieces(floorE, m-h, sd, sf)
+	var ptsBuf [16]float64
+	pts := floorPieces(ptsBuf[:0], floorE, m-h, sd, sf)
 	// Integrate the smaller side only (the other is its complement, exact
 	// to rounding): which side is smaller is read off the median floor.
 	aliveSide := g(0) > 0
@@ -578,14 +579,15 @@ func (n *node) part(capLeft, mean, vv, floorE, h, extra float64, grad bool) part
 // ±floorZMax is 2·Φ̄(9.3) < 1e-20.
 const floorZMax = 9.3
 
-// floorPieces returns the pieces of [−floorZMax, floorZMax] for the floor
-// integral ∫ φ(u)·Φ̄((L·e^{σ u} + h − m)/sd) du (mh = m − h): the
-// integrand turns from 1 to 0 around u* where L·e^{σ u*} = m − h, over a
-// width sd/((m − h)·σ); the pieces are cut at u* and 4 widths either
-// side, and split to at most floorMaxPiece.
-func floorPieces(floorE, mh, sd, sf float64) []float64 {
-	pts := make([]float64, 0, 5)
-	pts = append(pts, -floorZMax)
+// floorPieces returns (in dst's space, when it has room) the pieces of
+// [−floorZMax, floorZMax] for the floor integral
+// ∫ φ(u)·Φ̄((L·e^{σ u} + h − m)/sd) du (mh = m − h): the integrand turns
+// from 1 to 0 around u* where L·e^{σ u*} = m − h, over a width
+// sd/((m − h)·σ); the pieces are cut at u* and 4 widths either side, and
+// split to at most floorMaxPiece.
+func floorPieces(dst []float64, floorE, mh, sd, sf float64) []float64 {
+	var cuts [5]float64
+	pts := append(cuts[:0], -floorZMax)
 	if mh > 0 {
 		zs := math.Log(mh/floorE) / sf
 		w := sd / (mh * sf) // width of the turn in z
@@ -597,7 +599,7 @@ func floorPieces(floorE, mh, sd, sf float64) []float64 {
 	}
 	pts = append(pts, floorZMax)
 	// Pieces longer than floorMaxPiece are split evenly.
-	out := make([]float64, 0, 10)
+	out := dst[:0]
 	for i := 0; i+1 < len(pts); i++ {
 		k := math.Ceil((pts[i+1] - pts[i]) / floorMaxPiece)
 		for q := 0.0; q < k; q++ {
@@ -619,8 +621,8 @@ const floorMaxPiece = 4.0
 // double precision (±g below −8.5: Φ̄(8.5) = 9.5e-18).
 //
 // A piece [a, b] adds at most its normal mass times the largest Φ̄(±g) on
-// it (at an end: g increases with u); the pieces are summed from the
-// largest such bound down, and a piece is left out when its bound times
+// it (at an end: g increases with u), each bounded by Gordon's inequality
+// (below); the pieces are summed from the largest such bound down, and a piece is left out when its bound times
 // the pieces left is below 1e-17 of the sum so far. Within a piece the
 // nodes are taken from the smallest ±g up, and a node's Φ̄(±g) (an erfc) is
 // not evaluated where Gordon's inequality Φ̄(x) < φ(x)/x for x > 0 (Gordon
@@ -643,32 +645,41 @@ func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad
 	// floorPieces makes at most 4 + 18.6/floorMaxPiece pieces.
 	var boundArr [16]float64
 	var orderArr [16]int
-	var tailArr [17]float64
-	bound, order, tail := boundArr[:], orderArr[:], tailArr[:]
+	bound, order := boundArr[:], orderArr[:]
 	if np > len(bound) {
-		bound, order, tail = make([]float64, np), make([]int, np), make([]float64, np+1)
-	}
-	// Φ̄(|p|) at each cut p: a piece's normal mass is at most
-	// min(Φ̄(a), Φ̄(−b)), which is Φ̄(|b|) for b <= 0 and Φ̄(a) for a >= 0.
-	for i, p := range pts {
-		tail[i] = normSurv(math.Abs(p))
+		bound, order = make([]float64, np), make([]int, np)
 	}
 	for i := range np {
 		a, b := pts[i], pts[i+1]
-		var mass float64
-		switch {
-		case b <= 0:
-			mass = tail[i+1]
-		case a >= 0:
-			mass = tail[i]
-		default:
-			mass = math.Min(normSurv(a), normSurv(-b))
-		}
 		end := a
 		if !alive {
 			end = b
 		}
-		bound[i] = mass * normSurv(sign*(floorE*math.Exp(sf*end)+c)/sd)
+		// The piece's normal mass is at most Φ̄(x), x = a for a >= 0 and
+		// −b for b <= 0 (1 otherwise), and Φ̄(±g) at most Φ̄(y), y = ±g at
+		// the end; Φ̄(x) <= min(1/2, φ(x)/x) for x > 0 (Gordon), so the
+		// bound takes one exponential.
+		x := math.Max(a, -b)
+		y := sign * (floorE*math.Exp(sf*end) + c) / sd
+		q, e2 := 1.0, 0.0 // the bound is q·e^{−e2/2}
+		if x > 0 {
+			if x > 0.8 { // φ(x)/x < 1/2
+				q, e2 = q/(math.Sqrt(2*math.Pi)*x), x*x
+			} else {
+				q *= 0.5
+			}
+		}
+		if y > 0 {
+			if y > 0.8 {
+				q, e2 = q/(math.Sqrt(2*math.Pi)*y), e2+y*y
+			} else {
+				q *= 0.5
+			}
+		}
+		if e2 > 0 {
+			q *= math.Exp(-e2 / 2)
+		}
+		bound[i] = q
 		order[i] = i
 		for j := i; j > 0 && bound[order[j]] > bound[order[j-1]]; j-- {
 			order[j], order[j-1] = order[j-1], order[j]
@@ -770,7 +781,8 @@ func (n *node) adaptivePart(capLeft, mean, floorE, h float64) (alive, dead, errE
 		return a, d, 0
 	}
 	g := func(z float64) float64 { return (floorE*math.Exp(sf*z) + h - m) / sd }
-	pts := floorPieces(floorE, m-h, sd, sf)
+	var ptsBuf [16]float64
+	pts := floorPieces(ptsBuf[:0], floorE, m-h, sd, sf)
 	side := 1.0 // the alive side, if smaller (read off the median floor)
 	if !(g(0) > 0) {
 		side = -1

@@ -134,6 +134,10 @@ type deviceData struct {
 	tz       [][3]float64 // the same points as Student-t scores (proposalNu)
 	tlogq    []float64    // Σ log t density of each tz
 	spread   NodeSpread
+	// ridgeRef: the spreads at which the ridge stage picks the factor it
+	// solves (remain_ridge.go): the model's own, but the group's planned
+	// ones in EstimateSpread's models (the same factor at every candidate).
+	ridgeRef NodeSpread
 	voltage  float64 // V nominal cell voltage
 }
 
@@ -212,6 +216,7 @@ func NewDeviceModel(spec NodeSpec, env Environment, costs []EventCost, opt Devic
 		}
 	}
 	d.spread = spec.Spread
+	d.ridgeRef = spec.Spread
 	d.z = kroneckerScores(d.nodes)
 	d.u, _ = kroneckerMapped(d.nodes, func(u float64) float64 { return u }, nil)
 	d.tz, d.tlogq = kroneckerTScores(min(stageFactor*d.nodes, MaxPosteriorNodes))
@@ -298,7 +303,7 @@ func (m DeviceModel) WithSpread(sp NodeSpread) (DeviceModel, error) {
 		return DeviceModel{}, err
 	}
 	d := *m.d
-	d.spread = sp
+	d.spread, d.ridgeRef = sp, sp
 	d.c, d.a, d.f = make([]float64, d.nodes), make([]float64, d.nodes), make([]float64, d.nodes)
 	for k, z := range d.z {
 		d.c[k], d.a[k], d.f[k] = d.factors(z)

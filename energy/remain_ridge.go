@@ -186,12 +186,21 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 		}
 	}
 	// The solved factor: the one whose prior moves the depth most, at the
-	// median node (terms of the spent energy at the newest reading).
+	// median node (terms of the spent energy at the newest reading), at the
+	// spreads d.ridgeRef (the model's own, but the group's planned ones in
+	// EstimateSpread's models: a factor picked by each candidate spread
+	// would switch between candidates, and the two ways' estimates of the
+	// marginal likelihood differ by a few hundredths of a nat a device, a
+	// step in the pooled profile), among the factors with a spread.
 	sp := d.spread
 	n := d.n
-	termC := sp.Capacity * (nr.active + nr.fe + nr.q)
-	termA := sp.Active * nr.active
-	termF := sp.Floor * nr.fe
+	ref := d.ridgeRef
+	if (sp.Capacity > 0) != (ref.Capacity > 0) || (sp.Active > 0) != (ref.Active > 0) || (sp.Floor > 0) != (ref.Floor > 0) {
+		ref = sp
+	}
+	termC := ref.Capacity * (nr.active + nr.fe + nr.q)
+	termA := ref.Active * nr.active
+	termF := ref.Floor * nr.fe
 	solve := 0
 	best := termC
 	if termA > best {

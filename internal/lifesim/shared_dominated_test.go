@@ -49,7 +49,7 @@ func TestSharedDominated(t *testing.T) {
 			bound := testref.KSCritical(F, testref.KSLevel)
 			check := func(what string, law dist.Law, xs []float64) {
 				slices.Sort(xs)
-				d, _ := gridKS(xs, law.CDF, ksGrid)
+				d, _ := testref.KSGridBounds(xs, law.CDF, ksGrid)
 				stated := 0.0
 				if e, ok := law.(dist.Estimated); ok {
 					stated = e.Accuracy().CDFAbs

@@ -5,7 +5,6 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
-	"sort"
 	"strings"
 	"sync"
 	"testing"
@@ -76,48 +75,7 @@ func (k ksRow) String() string {
 	return fmt.Sprintf("| %s | %d | %.4f | %.4f | %s |", k.what, k.n, k.d, k.bound, moved)
 }
 
-// gridKS bounds the Kolmogorov–Smirnov distance sup_x |F_n(x) − F(x)| of
-// the samples xs to the law F = cdf from F evaluated at m+1 of the sorted
-// samples only (each evaluation of these laws is costly). With grid points
-// g_0 < … < g_m, both F_n and F are non-decreasing, so on (g_j, g_{j+1})
-// F_n lies in [F_n(g_j), F_n(g_{j+1}⁻)] and F in [F(g_j), F(g_{j+1}⁻)]:
-//
-//	sup |F_n − F| <= max_j max(F_n(g_{j+1}⁻) − F(g_j), F(g_{j+1}⁻) − F_n(g_j))
-//
-// together with the exact differences at the grid points and the ends
-// (F_n = 0 below g_0, 1 from g_m on). It returns that upper bound and the
-// exact lower bound max_j |F_n(g_j) − F(g_j)|. Atoms are kept exact: F is
-// read just below each grid point too.
-func gridKS(xs []float64, cdf func(float64) float64, m int) (upper, lower float64) {
-	n := len(xs)
-	fn := float64(n)
-	var g, at, below, fAt, fBelow []float64
-	for j := 0; j <= m; j++ {
-		x := xs[j*(n-1)/m]
-		if len(g) > 0 && x == g[len(g)-1] {
-			continue
-		}
-		i := sort.SearchFloat64s(xs, x) // samples below x
-		k := sort.Search(n, func(k int) bool { return xs[k] > x })
-		g = append(g, x)
-		below = append(below, float64(i)/fn)
-		at = append(at, float64(k)/fn)
-		fBelow = append(fBelow, cdf(math.Nextafter(x, math.Inf(-1))))
-		fAt = append(fAt, cdf(x))
-	}
-	for j := range g {
-		lower = math.Max(lower, math.Max(math.Abs(at[j]-fAt[j]), math.Abs(below[j]-fBelow[j])))
-	}
-	upper = math.Max(lower, fBelow[0])         // below the smallest sample F_n = 0
-	upper = math.Max(upper, 1-fAt[len(fAt)-1]) // from the largest on F_n = 1
-	for j := 0; j+1 < len(g); j++ {
-		upper = math.Max(upper, below[j+1]-fAt[j])
-		upper = math.Max(upper, fBelow[j+1]-at[j])
-	}
-	return upper, lower
-}
-
-// ksGrid is the number of grid intervals of gridKS: the upper bound
+// ksGrid is the number of grid intervals of testref.KSGridBounds: the upper bound
 // exceeds the true distance by at most about 1/ksGrid plus the law's rise
 // over one interval, about 0.003 here.
 const ksGrid = 400
@@ -126,8 +84,8 @@ const ksGrid = 400
 // xs to the law moved by a factor 1 ± s (read at ksGrid/4 points: a lower
 // bound needs no fine grid).
 func movedKS(xs []float64, cdf func(float64) float64, s float64) float64 {
-	_, up := gridKS(xs, func(x float64) float64 { return cdf(x / (1 + s)) }, ksGrid/4)
-	_, down := gridKS(xs, func(x float64) float64 { return cdf(x / (1 - s)) }, ksGrid/4)
+	_, up := testref.KSGridBounds(xs, func(x float64) float64 { return cdf(x / (1 + s)) }, ksGrid/4)
+	_, down := testref.KSGridBounds(xs, func(x float64) float64 { return cdf(x / (1 - s)) }, ksGrid/4)
 	return math.Min(up, down)
 }
 
@@ -142,7 +100,7 @@ func checkKS(t *testing.T, what string, samples []float64, cdf func(float64) flo
 	xs := slices.Clone(samples)
 	slices.Sort(xs)
 	bound := testref.KSCritical(len(xs), testref.KSLevel)
-	d, _ := gridKS(xs, cdf, ksGrid)
+	d, _ := testref.KSGridBounds(xs, cdf, ksGrid)
 	assert.LessOrEqual(t, d, bound, "%s: KS distance of %d samples", what, len(xs))
 	assert.Greater(t, movedKS(xs, cdf, shift), bound, "%s: the law moved by %g %% passes", what, 100*shift)
 	if !testing.Verbose() {

@@ -3,6 +3,7 @@ package testref
 import (
 	"math"
 	"math/big"
+	"math/rand/v2"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -156,4 +157,40 @@ func TestKSWithSlack(t *testing.T) {
 	assert.InDelta(t, exact, slack, 1e-8)
 	moved := KSWithSlack(samples, func(x float64) float64 { return cdf(x / 1.1) }, 1e-9)
 	assert.Greater(t, moved, 0.0)
+}
+
+// KSGridBounds brackets the exact distance (KSStatistic): lower <= exact
+// <= upper, the upper bound within 3/m of it, for continuous laws (the
+// exponential, from math.Exp) and a law with atoms (a fair die), on
+// samples drawn from the law itself and from one moved by 10 %.
+func TestKSGridBounds(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 8))
+	expCDF := func(x float64) float64 { return -math.Expm1(-math.Max(x, 0) / 4) }
+	dieCDF := func(x float64) float64 { return math.Min(1, math.Max(0, math.Floor(x)/6)) }
+	for _, c := range []struct {
+		name string
+		draw func() float64
+		cdf  func(float64) float64
+	}{
+		{"exponential", func() float64 { return 4 * r.ExpFloat64() }, expCDF},
+		{"exponential moved 10 %", func() float64 { return 4.4 * r.ExpFloat64() }, expCDF},
+		{"die", func() float64 { return float64(1 + r.IntN(6)) }, dieCDF},
+		{"die against the exponential", func() float64 { return float64(1 + r.IntN(6)) }, expCDF},
+	} {
+		xs := make([]float64, 5000)
+		for i := range xs {
+			xs[i] = c.draw()
+		}
+		exact := KSStatistic(xs, c.cdf)
+		for _, m := range []int{50, 400} {
+			up, lo := KSGridBounds(xs, c.cdf, m)
+			assert.LessOrEqual(t, lo, exact+1e-15, "%s, m=%d", c.name, m)
+			assert.GreaterOrEqual(t, up, exact-1e-15, "%s, m=%d", c.name, m)
+			assert.LessOrEqual(t, up-exact, 3/float64(m), "%s, m=%d", c.name, m)
+		}
+	}
+	up, lo := KSGridBounds(nil, expCDF, 10)
+	assert.Equal(t, [2]float64{0, 0}, [2]float64{up, lo})
+	up, _ = KSGridBounds([]float64{1, math.NaN()}, expCDF, 10)
+	assert.True(t, math.IsNaN(up))
 }

@@ -12,7 +12,7 @@ import (
 	"github.com/joulelaw/joulelaw/internal/root"
 )
 
-// kernelReach is how many kernel standard deviations from a node its
+// kernelReach is how many of its own standard deviations from a node its
 // kernel is evaluated; beyond it the kernel's mass (Φ̄(10) < 7.7e-24) is
 // counted as wholly on one side.
 const kernelReach = 10
@@ -173,7 +173,14 @@ func (p *postLaw) rawCDF(x float64) float64 {
 			}
 			continue
 		}
-		c += p.w[k] * normSurv((p.m[k]-x)/p.s[k])
+		// Each kernel within kernelReach of its own standard deviations
+		// (the window is that of the widest).
+		switch z := (p.m[k] - x) / p.s[k]; {
+		case z < -kernelReach:
+			c += p.w[k]
+		case z <= kernelReach:
+			c += p.w[k] * normSurv(z)
+		}
 	}
 	return math.Min(1, c)
 }
@@ -189,7 +196,12 @@ func (p *postLaw) rawSurv(x float64) float64 {
 			}
 			continue
 		}
-		c += p.w[k] * normSurv((x-p.m[k])/p.s[k])
+		switch z := (x - p.m[k]) / p.s[k]; {
+		case z < -kernelReach:
+			c += p.w[k]
+		case z <= kernelReach:
+			c += p.w[k] * normSurv(z)
+		}
 	}
 	return math.Min(1, c)
 }

@@ -92,10 +92,11 @@ func (m DeviceModel) Posterior(t Tally, now float64) (DevicePosterior, error) {
 	return m.posterior("DeviceModel.Posterior", t, now, false)
 }
 
-// posterior is Posterior; thorough places every importance try on the
-// whole stage set (no judging on its first M points first): the marginal
-// likelihood's estimate (EstimateSpread, PlanSharedService) then keeps a
-// stage that only the whole set finds better than the prior's nodes.
+// posterior is Posterior; thorough completes a try on the whole stage
+// set where its first M points are no better than the prior's nodes
+// (Posterior abandons such a try): the marginal likelihood's estimate
+// (EstimateSpread, PlanSharedService) then keeps a stage that only the
+// whole set finds better than the prior's nodes.
 func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (DevicePosterior, error) {
 	if err := m.checkUse(fn, t, now); err != nil {
 		return DevicePosterior{}, err
@@ -109,7 +110,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	logw := make([]float64, M)
 	like(d.c, d.a, d.f, logw)
 	cs, as, fs := d.c, d.a, d.f
-	ess := essOf(logw)
+	ess, lme := essLME(logw)
 	pd.stages = 1
 	// Adaptive importance stages: while the readings leave fewer than a
 	// quarter of the nodes effective, place a point set stageFactor times
@@ -121,8 +122,11 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	// try is judged on the stage set's first M points, as many as the
 	// prior's, before the rest are placed, and kept alone when those M
 	// are a quarter effective); after one has, a stage that does not raise
-	// the effective number ends the search. At most four tries. The ridge
-	// stage (below) comes first.
+	// the effective number ends the search, and a try's first M points
+	// are kept alone too when they are a quarter effective and more than
+	// the nodes so far (after the ridge stage, M points that are a quarter
+	// effective instead of 4M: their laws state their larger error). At
+	// most four tries. The ridge stage (below) comes first.
 	zs := d.z
 	Ms := len(d.tz)
 	widen := 1.0
@@ -135,8 +139,8 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		// of the marginal likelihood is larger by more than ridgeMargin
 		// wins (the other missed mass), else the more effective one.
 		if rz, rl, rc, ra, rf, ok := ev.ridgeStage(M); ok {
-			re := essOf(rl)
-			dl := logMeanExp(rl) - logMeanExp(logw)
+			re, rlme := essLME(rl)
+			dl := rlme - lme
 			if dl > ridgeMargin || (dl >= -ridgeMargin && re > ess) {
 				zs, logw, cs, as, fs, ess = rz, rl, rc, ra, rf, re
 				pd.stages++
@@ -173,14 +177,14 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			}
 			like(nc[from:to], na[from:to], nf[from:to], nl[from:to])
 		}
-		if pd.stages == 1 && M < Ms {
-			// While no stage has done better than the prior's nodes, a try
-			// is first placed on the stage set's first M points (a
+		if M < Ms {
+			// A try is first placed on the stage set's first M points (a
 			// Kronecker sequence itself, as many points as the prior's):
-			// if they are a quarter effective and more than the prior's
-			// nodes, they are kept alone; if they are no more effective
-			// than the prior's nodes, the try has failed without the other
-			// Ms − M points (unless thorough).
+			// if they are a quarter effective and more than the nodes so
+			// far, they are kept alone; while no stage has done better
+			// than the prior's nodes, if they are no more effective than
+			// those, the try has failed without the other Ms − M points
+			// (unless thorough).
 			place(0, M)
 			em := essOf(nl[:M])
 			if em > ess && em >= float64(M)/4 {
@@ -188,7 +192,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 				pd.stages++
 				break
 			}
-			if !(em > ess) && !thorough {
+			if pd.stages == 1 && !(em > ess) && !thorough {
 				widen *= 3
 				continue
 			}
@@ -233,7 +237,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		}
 		pd.w[k] = w
 	}
-	pd.logMarginal = best + math.Log(sAll/float64(M)) // logMeanExp(logw)
+	pd.logMarginal = best + math.Log(sAll/float64(M)) // log of the mean of exp(logw)
 	for i := range pd.w {
 		pd.w[i] /= s1
 	}
@@ -404,6 +408,7 @@ type evidence struct {
 type readTerm struct {
 	active, fe, q, sdd, drop float64
 	vs                       []float64 // the loaded voltage at the curve's depths at this drop
+	slope                    []float64 // slope[i]: vs's slope (V per unit depth) from depth i to i+1
 	tab                      *readingTable
 	tabBuf                   readingTable
 }
@@ -418,8 +423,7 @@ func (r *readTerm) voltage(ds []float64, dep float64) float64 {
 	if i >= len(ds) {
 		return r.vs[len(ds)-1]
 	}
-	x0 := ds[i-1]
-	return r.vs[i-1] + (dep-x0)/(ds[i]-x0)*(r.vs[i]-r.vs[i-1])
+	return r.vs[i-1] + (dep-ds[i-1])*r.slope[i-1]
 }
 
 // newEvidence returns the tally's evidence at τ0 (s after installation).
@@ -436,7 +440,7 @@ func (d *deviceData) newEvidence(t *Tally, tau0 float64) *evidence {
 		*rt = readTerm{active: r.active, fe: d.floorE(r.tau), q: n.quiescent * r.tau, sdd: d.selfD(r.tau), drop: drop}
 		for j := range i {
 			if o := &e.rs[j]; o.drop == drop {
-				rt.vs = o.vs
+				rt.vs, rt.slope = o.vs, o.slope
 				if o.tab.lo == r.lo && o.tab.hi == r.hi && o.tab.sigma == r.noise {
 					rt.tab = o.tab
 				}
@@ -444,11 +448,17 @@ func (d *deviceData) newEvidence(t *Tally, tau0 float64) *evidence {
 			}
 		}
 		if rt.vs == nil {
-			vs := make([]float64, len(d.curve.DepthOfDischarge))
+			ds := d.curve.DepthOfDischarge
+			np := len(ds)
+			buf := make([]float64, 2*np-1)
+			vs, sl := buf[:np:np], buf[np:]
 			for j := range vs {
 				vs[j] = d.curve.OpenCircuit[j] - drop*d.curve.Resistance[j]
 			}
-			rt.vs = vs
+			for j := range sl {
+				sl[j] = (vs[j+1] - vs[j]) / (ds[j+1] - ds[j])
+			}
+			rt.vs, rt.slope = vs, sl
 		}
 		if rt.tab == nil {
 			rt.tabBuf = newReadingTable(rt.vs, r.lo, r.hi, r.noise)
@@ -527,7 +537,7 @@ const maxReadingLattice = 4096
 // (see likelihood). It belongs to one Posterior call (not shared).
 type readingTable struct {
 	lo, hi, sigma float64
-	v0, h         float64   // lattice point j is at v0 + (j−1)·h
+	v0, h, invH   float64   // lattice point j is at v0 + (j−1)·h; invH = 1/h
 	steps         int       // intervals covering the voltages; 0: evaluate directly
 	g             []float64 // len steps+3; NaN where not yet computed
 }
@@ -546,6 +556,7 @@ func newReadingTable(vs []float64, lo, hi, sigma float64) readingTable {
 		return t
 	}
 	t.v0, t.h, t.steps = vmin, span/float64(steps), steps
+	t.invH = 1 / t.h
 	t.g = make([]float64, steps+3)
 	for j := range t.g {
 		t.g[j] = math.NaN()
@@ -558,7 +569,7 @@ func (t *readingTable) at(x float64) float64 {
 	if t.steps == 0 {
 		return logBin(x, t.lo, t.hi, t.sigma)
 	}
-	u := (x - t.v0) / t.h
+	u := (x - t.v0) * t.invH
 	j := min(max(int(u), 0), t.steps-1)
 	y := t.g[j : j+4]
 	for i, gv := range y {
@@ -592,18 +603,20 @@ func maxOf(x []float64) float64 {
 	return b
 }
 
-// logMeanExp returns log of the mean of exp(logw) (−Inf for none with
-// weight).
-func logMeanExp(logw []float64) float64 {
+// essLME returns essOf(logw) and log of the mean of exp(logw), from one pass (the
+// same bits as each).
+func essLME(logw []float64) (ess, lme float64) {
 	b := maxOf(logw)
-	if math.IsInf(b, -1) {
-		return b
+	if math.IsInf(b, -1) || math.IsNaN(b) {
+		return 0, b
 	}
-	s := 0.0
+	s1, s2 := 0.0, 0.0
 	for _, l := range logw {
-		s += math.Exp(l - b)
+		w := math.Exp(l - b)
+		s1 += w
+		s2 += w * w
 	}
-	return b + math.Log(s/float64(len(logw)))
+	return s1 * s1 / s2, b + math.Log(s1/float64(len(logw)))
 }
 
 // essOf returns the effective number (Σw)²/Σw² of the weights exp(logw).

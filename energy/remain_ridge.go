@@ -251,7 +251,7 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 			zz[2] = math.Log(f) / sp.Floor
 			dzdx = c * nom / (nr.fe * f * sp.Floor)
 		}
-		return c, a, f, math.Log(dzdx) - math.Log(-slope), true
+		return c, a, f, math.Log(dzdx / -slope), true
 	}
 	// The proposal's location and scale: the mean and standard deviation
 	// of the voltage's conditional density at the median other scores,
@@ -318,10 +318,11 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 		mass[i+1] = mass[i] + cellMass(gh[i]-hmax, gh[i+1]-hmax, step)
 	}
 	tot := mass[ridgeGrid-1]
-	// log of the Student-t density's constant (ν = proposalNu = 4):
-	// Γ(5/2)/(Γ(2)·√(4π)) = 3/8.
-	logT := math.Log(3.0/8) - math.Log(scale)
-	logEps, log1mEps := math.Log(ridgeDefensive), math.Log1p(-ridgeDefensive)
+	// The components' constants: the Student-t density's (ν = proposalNu
+	// = 4), Γ(5/2)/(Γ(2)·√(4π)) = 3/8 over the scale, and the profile's,
+	// 1/tot; each times its share.
+	tConst := ridgeDefensive * 3 / (8 * scale)
+	gConst := (1 - ridgeDefensive) / tot
 	zs = make([][3]float64, m)
 	logw, cs, as, fs = make([]float64, m), make([]float64, m), make([]float64, m), make([]float64, m)
 	logPhi := -0.5 * math.Log(2*math.Pi)
@@ -340,17 +341,20 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 			}
 			v = gv[i] + cellInverse(gh[i]-hmax, gh[i+1]-hmax, step, r-mass[i])
 		}
-		// the mixture's density at v
+		// the mixture's density at v: the t component's, (1 + t²/4)^(−5/2)
+		// times its constant, plus the profile's (0 where it underflows:
+		// the t component's is then far larger)
 		tv := (v - mu) / scale
-		lq := logEps + logT - 2.5*math.Log1p(tv*tv/4)
+		x := 1 + tv*tv/4
+		q := tConst / (x * x * math.Sqrt(x))
 		if v >= gv[0] && v < gv[ridgeGrid-1] {
 			i := min(int((v-gv[0])/step), ridgeGrid-2)
 			h0, h1 := gh[i]-hmax, gh[i+1]-hmax
 			if !math.IsInf(h0, -1) && !math.IsInf(h1, -1) {
-				lg := log1mEps + h0 + (h1-h0)*(v-gv[i])/step - math.Log(tot)
-				lq = logAddExp(lq, lg)
+				q += gConst * math.Exp(h0+(h1-h0)*(v-gv[i])/step)
 			}
 		}
+		lq := math.Log(q)
 		c, a, f, lj, ok := node(v, &zz)
 		zs[k] = zz
 		if !ok {
@@ -381,7 +385,12 @@ func cellMass(h0, h1, h float64) float64 {
 // (r at most the cell's mass).
 func cellInverse(h0, h1, h, r float64) float64 {
 	b := (h1 - h0) / h
-	y := math.Exp(math.Log(r) - h0) // r·e^(−h0), bounded by the cell's mass
+	var y float64 // r·e^(−h0), bounded by the cell's mass over e^h0
+	if h0 > -700 {
+		y = r * math.Exp(-h0)
+	} else {
+		y = math.Exp(math.Log(r) - h0) // e^(−h0) would overflow
+	}
 	var t float64
 	if math.Abs(b*h) < 1e-9 {
 		t = y
@@ -410,15 +419,4 @@ func studentT4Quantile(p float64) float64 {
 		return -t
 	}
 	return t
-}
-
-// logAddExp returns log(eˣ + eʸ).
-func logAddExp(x, y float64) float64 {
-	if x < y {
-		x, y = y, x
-	}
-	if math.IsInf(y, -1) {
-		return x
-	}
-	return x + math.Log1p(math.Exp(y-x))
 }

@@ -3,6 +3,7 @@ package energy
 import (
 	"fmt"
 	"math"
+	"strconv"
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/orderstat"
@@ -54,12 +55,13 @@ func NewFleet(groups []FleetGroup) (Fleet, error) {
 	for i, g := range groups {
 		name := g.Name
 		if name == "" {
-			name = fmt.Sprintf("group %d", i)
+			name = groupName(i)
 		}
 		l, err := NewLifetime(g.Cycle, g.Battery)
 		if err != nil {
 			return Fleet{}, causeErr(fn, fmt.Sprintf("group %q", name), name, "lifetime", err)
 		}
+		// A Lifetime is one pointer: the law and the slice share its state.
 		lg[i], lts[i] = FleetLawGroup{Name: name, Lifetime: l, Count: g.Count}, l
 	}
 	f, err := newFleet(fn, lg)
@@ -99,7 +101,7 @@ func newFleet(fn string, groups []FleetLawGroup) (Fleet, error) {
 	for i, g := range groups {
 		name := g.Name
 		if name == "" {
-			name = fmt.Sprintf("group %d", i)
+			name = groupName(i)
 		}
 		if seen[name] {
 			return Fleet{}, paramErr(fn, fmt.Sprintf("groups[%d].Name", i), name, "must be distinct")
@@ -123,6 +125,9 @@ func newFleet(fn string, groups []FleetLawGroup) (Fleet, error) {
 	return f, nil
 }
 
+// groupName is the name of an unnamed group i: "group i".
+func groupName(i int) string { return "group " + strconv.Itoa(i) }
+
 // Size returns the number of nodes.
 func (f Fleet) Size() int64 { return f.total }
 
@@ -130,7 +135,7 @@ func (f Fleet) Size() int64 { return f.total }
 // NewFleet) and its name; ok is false when i is not in [0, Groups()) or the
 // fleet was built by NewFleetOfLaws (use Law).
 func (f Fleet) Lifetime(i int) (l Lifetime, name string, ok bool) {
-	if i < 0 || i >= len(f.lifetimes) || f.lifetimes[i].energy == nil {
+	if i < 0 || i >= len(f.lifetimes) || f.lifetimes[i].lifeState == nil {
 		return Lifetime{}, "", false
 	}
 	return f.lifetimes[i], f.names[i], true

@@ -38,6 +38,14 @@ import (
 // Mean). Rand draws by inverting a uniform; Simulate walks the cycles one by
 // one from the structure.
 type Lifetime struct {
+	*lifeState // nil for the zero Lifetime
+}
+
+// lifeState is what a Lifetime holds, built once by NewLifetime in one
+// allocation and shared by the value's copies: a Lifetime is one pointer,
+// so that a fleet's slices and the dist.Law interface hold it without
+// copying some 300 bytes a group.
+type lifeState struct {
 	cycle    Cycle
 	battery  Battery
 	capacity float64  // J usable
@@ -48,7 +56,16 @@ type Lifetime struct {
 	fixed    bool     // whether the period is fixed
 	kmin     int64    // M >= kmin surely
 	kmax     int64    // M <= kmax surely (math.MaxInt64 when unbounded)
-	ev       *kfold
+	ev       *kfold   // &kf
+	kf       kfold
+}
+
+// kfolds returns the K-fold evaluator; nil for the zero Lifetime.
+func (l Lifetime) kfolds() *kfold {
+	if l.lifeState == nil {
+		return nil
+	}
+	return l.ev
 }
 
 // kfold evaluates P(S_k <= C) and P(S_k > C) for integer k through
@@ -107,7 +124,9 @@ func (f *kfold) at(k int64) [2]float64 {
 	b, a := f.point.Tails(int(k))
 	v = [2]float64{b, a}
 	f.mu.Lock()
-	if len(f.cache) > 1<<16 {
+	if f.cache == nil {
+		f.cache = make(map[int64][2]float64)
+	} else if len(f.cache) > 1<<16 {
 		clear(f.cache)
 	}
 	f.cache[k] = v
@@ -241,7 +260,7 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	if b.spec.NominalVoltage == 0 {
 		return Lifetime{}, paramErr(fn, "b", "zero Battery", "must be built by NewBattery")
 	}
-	l := Lifetime{cycle: c, battery: b, capacity: b.UsableEnergy(), leak: b.SelfDischargePower()}
+	l := Lifetime{&lifeState{cycle: c, battery: b, capacity: b.UsableEnergy(), leak: b.SelfDischargePower()}}
 	var err error
 	if l.energy, err = c.energyWithLeak(l.leak); err != nil {
 		return Lifetime{}, err
@@ -279,7 +298,8 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	if err != nil {
 		return Lifetime{}, causeErr(fn, "b", b.String(), "K-fold sums at the usable energy", err)
 	}
-	l.ev = &kfold{sums: sums, point: point, capacity: l.capacity, cache: map[int64][2]float64{}, emean: l.mu, evar: l.s2, elo: lo, ehi: hi}
+	l.kf = kfold{sums: sums, point: point, capacity: l.capacity, emean: l.mu, evar: l.s2, elo: lo, ehi: hi}
+	l.ev = &l.kf
 	if d, ok := l.energy.(dist.Discrete); ok && d.Len() > 1 {
 		l.ev.discrete = true
 	}
@@ -445,7 +465,7 @@ func searchK(pred func(int64) bool, guess, step float64, lo, hi int64) int64 {
 // powers at least k complete cycles, and not. NaN, NaN if the K-fold law
 // cannot be computed.
 func (l Lifetime) Cycles(k int64) (atLeast, fewer float64) {
-	v := l.ev.at(k)
+	v := l.kfolds().at(k)
 	return v[0], v[1]
 }
 
@@ -453,8 +473,8 @@ func (l Lifetime) Cycles(k int64) (atLeast, fewer float64) {
 // s); 0 for t < 0. NaN for NaN t or when the K-fold law fails.
 func (l Lifetime) CDF(t float64) float64 {
 	switch {
-	case math.IsNaN(t) || l.ev == nil:
-		if l.ev == nil {
+	case math.IsNaN(t) || l.kfolds() == nil:
+		if l.kfolds() == nil {
 			return math.NaN()
 		}
 		return t
@@ -474,8 +494,8 @@ func (l Lifetime) CDF(t float64) float64 {
 // computed directly (t in s); 1 for t < 0.
 func (l Lifetime) Survival(t float64) float64 {
 	switch {
-	case math.IsNaN(t) || l.ev == nil:
-		if l.ev == nil {
+	case math.IsNaN(t) || l.kfolds() == nil:
+		if l.kfolds() == nil {
 			return math.NaN()
 		}
 		return t
@@ -498,8 +518,8 @@ func (l Lifetime) Survival(t float64) float64 {
 // orderstat.TwoTails) use it instead of choosing a side at the median.
 func (l Lifetime) Tails(t float64) (cdf, survival float64) {
 	switch {
-	case math.IsNaN(t) || l.ev == nil:
-		if l.ev == nil {
+	case math.IsNaN(t) || l.kfolds() == nil:
+		if l.kfolds() == nil {
 			return math.NaN(), math.NaN()
 		}
 		return t, t
@@ -525,7 +545,7 @@ func (l Lifetime) Tails(t float64) (cdf, survival float64) {
 // arithmetic operations: order statistics over groups
 // (orderstat.TailBounded) use it to leave out groups far from the answer.
 func (l Lifetime) LowerBoundPoint(logP float64) float64 {
-	if l.ev == nil || !(logP < 0) {
+	if l.kfolds() == nil || !(logP < 0) {
 		return math.Inf(-1)
 	}
 	k0 := float64(l.kmin - 1)
@@ -542,7 +562,7 @@ func (l Lifetime) LowerBoundPoint(logP float64) float64 {
 // (Survival is 0 there). +Inf for logP >= 0 or NaN, a zero Lifetime, or
 // where no such K is found.
 func (l Lifetime) UpperBoundPoint(logP float64) float64 {
-	if l.ev == nil || !(logP < 0) {
+	if l.kfolds() == nil || !(logP < 0) {
 		return math.Inf(1)
 	}
 	k1 := math.Inf(1)
@@ -559,7 +579,7 @@ func (l Lifetime) UpperBoundPoint(logP float64) float64 {
 // searched over k on the K-fold law; NaN for p outside [0, 1].
 func (l Lifetime) Quantile(p float64) float64 {
 	switch {
-	case !(p >= 0 && p <= 1) || l.ev == nil:
+	case !(p >= 0 && p <= 1) || l.kfolds() == nil:
 		return math.NaN()
 	case p == 0:
 		lo, _ := l.Support()
@@ -577,7 +597,7 @@ func (l Lifetime) Quantile(p float64) float64 {
 // Survival(t) <= q; accurate for tiny q. NaN for q outside [0, 1].
 func (l Lifetime) UpperQuantile(q float64) float64 {
 	switch {
-	case !(q >= 0 && q <= 1) || l.ev == nil:
+	case !(q >= 0 && q <= 1) || l.kfolds() == nil:
 		return math.NaN()
 	case q == 1:
 		lo, _ := l.Support()
@@ -593,6 +613,9 @@ func (l Lifetime) UpperQuantile(q float64) float64 {
 // and most complete cycles the energy law's support allows; the upper end
 // is +Inf when a cycle can cost arbitrarily little.
 func (l Lifetime) Support() (lo, hi float64) {
+	if l.lifeState == nil {
+		return 0, 0
+	}
 	hi = math.Inf(1)
 	if l.kmax != math.MaxInt64 {
 		hi = float64(l.kmax) * l.step
@@ -644,7 +667,7 @@ const (
 // resolves. The last difference is reported (MomentError; zero but for
 // rounding for the plain sum).
 func (l Lifetime) moments() (mean, vari, errMean float64) {
-	f := l.ev
+	f := l.kfolds()
 	if f == nil {
 		return math.NaN(), math.NaN(), math.NaN()
 	}
@@ -733,12 +756,18 @@ func (l Lifetime) moments() (mean, vari, errMean float64) {
 // Mean returns E[lifetime] = T·E[M] (s), computed on first use (see
 // moments); MomentError gives its estimated error.
 func (l Lifetime) Mean() float64 {
+	if l.lifeState == nil {
+		return math.NaN()
+	}
 	m, _, _ := l.moments()
 	return m * l.step
 }
 
 // Variance returns Var[lifetime] = T²·Var[M] (s²), computed on first use.
 func (l Lifetime) Variance() float64 {
+	if l.lifeState == nil {
+		return math.NaN()
+	}
 	_, v, _ := l.moments()
 	return v * l.step * l.step
 }
@@ -748,6 +777,9 @@ func (l Lifetime) Variance() float64 {
 // the last two sums of the adaptive trapezoidal rule (see moments), which
 // stops once it is below 1e-10 renewal standard deviations.
 func (l Lifetime) MomentError() float64 {
+	if l.lifeState == nil {
+		return math.NaN()
+	}
 	_, _, e := l.moments()
 	return e * l.step
 }
@@ -768,7 +800,7 @@ func (l Lifetime) Rand(r *rand.Rand) float64 {
 // exceed the usable energy; it returns the number of complete cycles times
 // T. Its cost is proportional to the number of cycles.
 func (l Lifetime) Simulate(r *rand.Rand) float64 {
-	if l.ev == nil {
+	if l.kfolds() == nil {
 		return math.NaN()
 	}
 	s := 0.0
@@ -797,7 +829,7 @@ func (l Lifetime) Simulate(r *rand.Rand) float64 {
 // dist.PointTails) it states the largest of the values' own error
 // estimates over probes from the median outwards (see pointAccuracy).
 func (l Lifetime) Accuracy() dist.Accuracy {
-	f := l.ev
+	f := l.kfolds()
 	if f == nil {
 		return dist.Accuracy{Method: "zero Lifetime: not built by NewLifetime"}
 	}
@@ -847,7 +879,7 @@ const (
 // of BenchmarkFirstFailure60 (1.5·10^5 to 7.9·10^5 cycles) this states
 // 6.6e-13 to 1.2e-12 absolute and 4.4e-12 to 7.8e-12 relative.
 func (l Lifetime) pointAccuracy() dist.Accuracy {
-	f := l.ev
+	f := l.kfolds()
 	m, sd := l.cltK()
 	sd = math.Max(1, sd)
 	var abs, rel float64
@@ -879,17 +911,37 @@ func (l Lifetime) pointAccuracy() dist.Accuracy {
 
 // Step returns the time per cycle T (s): the fixed period, or the mean
 // period when the period is random.
-func (l Lifetime) Step() float64 { return l.step }
+func (l Lifetime) Step() float64 {
+	if l.lifeState == nil {
+		return 0
+	}
+	return l.step
+}
 
 // Capacity returns the usable energy C (J).
-func (l Lifetime) Capacity() float64 { return l.capacity }
+func (l Lifetime) Capacity() float64 {
+	if l.lifeState == nil {
+		return 0
+	}
+	return l.capacity
+}
 
 // CycleEnergy returns the law of one cycle's energy with the self-discharge
 // drain included (J).
-func (l Lifetime) CycleEnergy() dist.Law { return l.energy }
+func (l Lifetime) CycleEnergy() dist.Law {
+	if l.lifeState == nil {
+		return nil
+	}
+	return l.energy
+}
 
 // PulseWarnings returns the battery's pulse check of the cycle.
-func (l Lifetime) PulseWarnings() []PulseWarning { return l.battery.PulseCheck(l.cycle) }
+func (l Lifetime) PulseWarnings() []PulseWarning {
+	if l.lifeState == nil {
+		return nil
+	}
+	return l.battery.PulseCheck(l.cycle)
+}
 
 // InYears returns the lifetime law in Julian years.
 func (l Lifetime) InYears() dist.Law { y, _ := dist.Affine(l, 1/Year, 0); return y }
@@ -899,6 +951,9 @@ func (l Lifetime) InDays() dist.Law { d, _ := dist.Affine(l, 1/Day, 0); return d
 
 // String summarises the law in years: median and 5–95 % range.
 func (l Lifetime) String() string {
+	if l.lifeState == nil {
+		return "Lifetime(zero value: not built by NewLifetime)"
+	}
 	return fmt.Sprintf("Lifetime(median %.4g years, 5–95%% [%.4g, %.4g] years, %.6g J usable, %.4g W mean)",
 		l.Quantile(0.5)/Year, l.Quantile(0.05)/Year, l.UpperQuantile(0.05)/Year, l.capacity, l.mu/l.step)
 }
@@ -925,6 +980,9 @@ type RenewalEstimate struct {
 // RenewalEstimate returns the renewal central-limit estimate and its error
 // against the exact law.
 func (l Lifetime) RenewalEstimate() (RenewalEstimate, error) {
+	if l.lifeState == nil {
+		return RenewalEstimate{}, paramErr("Lifetime.RenewalEstimate", "l", "zero Lifetime", "must be built by NewLifetime")
+	}
 	m, sd := l.cltK()
 	n, err := dist.NewNormal(m*l.step, sd*l.step)
 	if err != nil {

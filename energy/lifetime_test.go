@@ -301,3 +301,55 @@ func sixEnergyCycle(t testing.TB) energy.Cycle {
 	require.NoError(t, err)
 	return energy.MustCycle(radio, dist.MustPointMass(600), 1.5*energy.MicroAmp*3.6)
 }
+
+// TestZeroLifetime: a Lifetime is one pointer to the state NewLifetime
+// builds; the zero Lifetime holds none, and every method returns NaN, 0,
+// nil, an error or the trivial bound (the package's rule for zero values:
+// never a panic). Fleet.Lifetime and Fleet.Law hand out the same law of
+// each group (the same bits at its 1 % point).
+func TestZeroLifetime(t *testing.T) {
+	t.Parallel()
+	var l energy.Lifetime
+	r := rand.New(rand.NewPCG(1, 2))
+	assert.NotPanics(t, func() {
+		assert.True(t, math.IsNaN(l.CDF(1)))
+		assert.True(t, math.IsNaN(l.Survival(1)))
+		c, s := l.Tails(1)
+		assert.True(t, math.IsNaN(c) && math.IsNaN(s))
+		a, f := l.Cycles(3)
+		assert.True(t, math.IsNaN(a) && math.IsNaN(f))
+		assert.True(t, math.IsNaN(l.Quantile(0.5)))
+		assert.True(t, math.IsNaN(l.UpperQuantile(0.5)))
+		assert.True(t, math.IsNaN(l.Mean()))
+		assert.True(t, math.IsNaN(l.Variance()))
+		assert.True(t, math.IsNaN(l.MomentError()))
+		assert.True(t, math.IsNaN(l.Rand(r)))
+		assert.True(t, math.IsNaN(l.Simulate(r)))
+		assert.True(t, math.IsInf(l.LowerBoundPoint(-10), -1))
+		assert.True(t, math.IsInf(l.UpperBoundPoint(-10), 1))
+		assert.Zero(t, l.Step())
+		assert.Zero(t, l.Capacity())
+		assert.Nil(t, l.CycleEnergy())
+		assert.Nil(t, l.PulseWarnings())
+		lo, hi := l.Support()
+		assert.Zero(t, lo)
+		assert.Zero(t, hi)
+		assert.NotEmpty(t, l.Accuracy().Method)
+		assert.NotEmpty(t, l.String())
+		_, err := l.RenewalEstimate()
+		assert.ErrorIs(t, err, energy.ErrParam)
+		_ = l.InYears()
+		_ = l.InDays()
+	})
+	gs := fleet60Groups(t)[:3]
+	fl, err := energy.NewFleet(gs)
+	require.NoError(t, err)
+	for i := range gs {
+		lt, _, ok := fl.Lifetime(i)
+		require.True(t, ok)
+		law, _, ok := fl.Law(i)
+		require.True(t, ok)
+		x := lt.Quantile(0.01)
+		assert.Equal(t, math.Float64bits(lt.CDF(x)), math.Float64bits(law.CDF(x)), "group %d", i)
+	}
+}

@@ -53,9 +53,10 @@ type core struct {
 	atoms   []dist.Atom
 	pure    bool // all the mass is on atoms
 	hasDens bool
-	costly  bool  // some parent is numerical (dist.Estimated): spare its quantiles
-	bounded bool  // some parent is TailBounded: extremeLog may leave groups out
-	order   []int // extremeLog's order of the groups when bounded
+	costly  bool        // some parent is numerical (dist.Estimated): spare its quantiles
+	bounded bool        // some parent is TailBounded: extremeLog may leave groups out
+	order   []int       // extremeLog's order of the groups when bounded
+	rest    *restBounds // the groups from each position of order on, when bounded
 
 	once sync.Once
 	mom  moments

@@ -120,6 +120,64 @@ func (c *core) setBounds() {
 		c.order[i] = i
 	}
 	sort.SliceStable(c.order, func(a, b int) bool { return key[c.order[a]] < key[c.order[b]] })
+	if !c.bounded {
+		return
+	}
+	c.rest = &restBounds{logN2: make([]float64, len(c.order))}
+	top := math.Inf(-1)
+	for p := len(c.order) - 1; p >= 0; p-- {
+		if g := &c.groups[c.order[p]]; g.horizon != nil {
+			top = math.Max(top, g.logN2)
+		} else {
+			top = math.Inf(1) // a group without bounds: never left out
+		}
+		c.rest.logN2[p] = top
+	}
+}
+
+// restBounds lets extremeLog leave out all the groups from a position of
+// its order on with one comparison: logN2[p] is the largest log(2·n) of
+// the groups from position p on (+Inf where one of them has no bounds),
+// and at level m+1 lim[m][p] is the smallest of their lower bound points
+// for the minimum (the largest upper one for the maximum; −Inf, +Inf where
+// a group has none there), each level's computed once, when first needed,
+// from the groups' own bound points (the same values whenever that is).
+type restBounds struct {
+	logN2 []float64
+	once  [pruneLevels]sync.Once
+	lim   [pruneLevels][]float64
+}
+
+// restLimit returns lim[m] (see restBounds).
+func (c *core) restLimit(m int) []float64 {
+	r := c.rest
+	r.once[m].Do(func() {
+		upper := c.kind == kindMax
+		lim := make([]float64, len(c.order))
+		acc := math.Inf(1)
+		if upper {
+			acc = math.Inf(-1)
+		}
+		for p := len(c.order) - 1; p >= 0; p-- {
+			h := math.NaN()
+			if g := &c.groups[c.order[p]]; g.horizon != nil {
+				h = g.horizon.at(m)
+			}
+			switch {
+			case math.IsNaN(h) && upper:
+				acc = math.Inf(1)
+			case math.IsNaN(h):
+				acc = math.Inf(-1)
+			case upper:
+				acc = math.Max(acc, h)
+			default:
+				acc = math.Min(acc, h)
+			}
+			lim[p] = acc
+		}
+		r.lim[m] = lim
+	})
+	return r.lim[m]
 }
 
 // extremeLog returns Σ n_i·log S_i(x) for the minimum or
@@ -149,8 +207,20 @@ func (c *core) extremeLog(x float64, left, upper bool) float64 {
 	}
 	share := pruneRel / float64(len(c.groups))
 	thr := math.NaN() // log(share·|l|) once l is not 0
-	for _, i := range c.order {
+	for p, i := range c.order {
 		g := &c.groups[i]
+		if !math.IsNaN(thr) {
+			// the groups from p on, all at once: the level that meets
+			// the share of the one with the most nodes meets every
+			// group's, and x at or beyond the rest's limit at that level
+			// is beyond each group's own bound point there
+			if need := (c.rest.logN2[p] - thr) / pruneStep; need <= pruneLevels {
+				lim := c.restLimit(max(1, int(math.Ceil(need))) - 1)[p]
+				if (upper && x >= lim) || (!upper && x <= lim) {
+					break
+				}
+			}
+		}
 		if g.horizon != nil && !math.IsNaN(thr) {
 			// a bound b <= exp(−pruneStep·m) <= share·|l|/(2n) gives
 			// n·(−log1p(−b)) <= 2·n·b <= share·|l|

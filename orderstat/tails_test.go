@@ -214,3 +214,70 @@ func TestTailBoundedGroups(t *testing.T) {
 		})
 	}
 }
+
+// The groups left out all at once (from a position of the order on, by
+// the smallest of their bound points at a level computed once, when first
+// needed) are a cache of the laws' bounds: the minimum and maximum of 30
+// bounded groups (as TestTailBoundedGroups, whose oracle checks the
+// values) give the same bits at 41 points from a fresh law per point,
+// from one law asked in the reverse order after other points, and from
+// one fresh law asked by eight goroutines at once, each from another
+// point on.
+func TestTailBoundedRestDeterministic(t *testing.T) {
+	t.Parallel()
+	var calls atomic.Int64
+	var gs []orderstat.Group
+	for i := range 30 {
+		n := dist.MustNormal(float64(i)*4, 1+0.02*float64(i))
+		gs = append(gs, orderstat.Group{Law: boundedNormal{Normal: n, calls: &calls}, Count: int64(20 + i)})
+	}
+	tests := []struct {
+		name   string
+		build  func([]orderstat.Group) (dist.Law, error)
+		x0, x1 float64
+	}{
+		{"MinOfGroups", orderstat.MinOfGroups, -12, 4},
+		{"MaxOfGroups", orderstat.MaxOfGroups, 108, 130},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			var xs []float64
+			for i := range 41 {
+				xs = append(xs, tc.x0+(tc.x1-tc.x0)*float64(i)/40)
+			}
+			bits := func(l dist.Law, x float64) [2]uint64 {
+				return [2]uint64{math.Float64bits(l.CDF(x)), math.Float64bits(l.Survival(x))}
+			}
+			want := make([][2]uint64, len(xs))
+			for i, x := range xs {
+				l, err := tc.build(gs)
+				require.NoError(t, err)
+				want[i] = bits(l, x)
+			}
+			after, err := tc.build(gs)
+			require.NoError(t, err)
+			for i := len(xs) - 1; i >= 0; i-- {
+				assert.Equal(t, want[i], bits(after, xs[i]), "after other points, x=%g", xs[i])
+			}
+			shared, err := tc.build(gs)
+			require.NoError(t, err)
+			got := make([][][2]uint64, 8)
+			var wg sync.WaitGroup
+			for g := range got {
+				got[g] = make([][2]uint64, len(xs))
+				wg.Add(1)
+				go func() {
+					defer wg.Done()
+					for j := range xs {
+						i := (j + 5*g) % len(xs)
+						got[g][i] = bits(shared, xs[i])
+					}
+				}()
+			}
+			wg.Wait()
+			for g := range got {
+				assert.Equal(t, want, got[g], "goroutine %d", g)
+			}
+		})
+	}
+}

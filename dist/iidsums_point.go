@@ -491,11 +491,13 @@ func (pn *tiltPanel) value(fk, yy, supTop float64) (v, rel float64, ok bool) {
 	var sum, absSum, expSum, t0 float64
 	quiet := 0
 	settled := false
+	ty, h := pn.theta*yy, pn.h
+	ir, ii, ce := pn.ir[:len(pn.c)], pn.ii[:len(pn.c)], pn.ce[:len(pn.c)]
 	for j, c := range pn.c {
-		er := fk*real(c) - pn.theta*yy - k0
-		ei := fk*imag(c) - float64(j)*pn.h*yy
+		er := fk*real(c) - ty - k0
+		ei := fk*imag(c) - float64(j)*h*yy
 		sn, cs := math.Sincos(ei)
-		term := math.Exp(er) * (cs*pn.ir[j] - sn*pn.ii[j])
+		term := math.Exp(er) * (cs*ir[j] - sn*ii[j])
 		at := math.Abs(term)
 		if j == 0 {
 			t0 = at
@@ -504,8 +506,14 @@ func (pn *tiltPanel) value(fk, yy, supTop float64) (v, rel float64, ok bool) {
 			sum += 2 * term
 		}
 		absSum += at
-		expSum += at * pn.ce[j]
-		if at*float64(j) <= 1e-13*math.Max(t0, math.Abs(sum)) {
+		expSum += at * ce[j]
+		// the larger of t0 and |sum| inline (math.Max is a call on
+		// amd64; a NaN t0 is in sum too, so the test fails as with it)
+		ref := math.Abs(sum)
+		if t0 > ref {
+			ref = t0
+		}
+		if at*float64(j) <= 1e-13*ref {
 			quiet++
 			if quiet >= 4 {
 				settled = true

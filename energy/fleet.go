@@ -61,8 +61,9 @@ func NewFleet(groups []FleetGroup) (Fleet, error) {
 		if err != nil {
 			return Fleet{}, causeErr(fn, fmt.Sprintf("group %q", name), name, "lifetime", err)
 		}
-		// A Lifetime is one pointer: the law and the slice share its state.
-		lg[i], lts[i] = FleetLawGroup{Name: name, Lifetime: l, Count: g.Count}, l
+		// A Lifetime is one pointer: the law and the slice share its
+		// state. newFleet names the unnamed groups as above.
+		lg[i], lts[i] = FleetLawGroup{Name: g.Name, Lifetime: l, Count: g.Count}, l
 	}
 	f, err := newFleet(fn, lg)
 	if err != nil {
@@ -97,16 +98,26 @@ func newFleet(fn string, groups []FleetLawGroup) (Fleet, error) {
 		names: make([]string, 0, len(groups)), laws: make([]dist.Law, 0, len(groups)),
 		counts: make([]int64, 0, len(groups)), groups: make([]orderstat.Group, 0, len(groups)),
 	}
-	seen := make(map[string]bool, len(groups))
+	// Names given as "" become "group i", distinct among themselves: only
+	// a fleet with a name given needs the map that finds repeats.
+	var seen map[string]bool
+	for _, g := range groups {
+		if g.Name != "" {
+			seen = make(map[string]bool, len(groups))
+			break
+		}
+	}
 	for i, g := range groups {
 		name := g.Name
 		if name == "" {
 			name = groupName(i)
 		}
-		if seen[name] {
-			return Fleet{}, paramErr(fn, fmt.Sprintf("groups[%d].Name", i), name, "must be distinct")
+		if seen != nil {
+			if seen[name] {
+				return Fleet{}, paramErr(fn, fmt.Sprintf("groups[%d].Name", i), name, "must be distinct")
+			}
+			seen[name] = true
 		}
-		seen[name] = true
 		if g.Count < 1 || g.Count > orderstat.MaxCount-f.total {
 			return Fleet{}, paramErr(fn, fmt.Sprintf("group %q: Count", name), g.Count, fmt.Sprintf("must be >= 1, the total at most %d", orderstat.MaxCount))
 		}

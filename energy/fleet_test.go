@@ -109,6 +109,22 @@ func TestFleetBadInput(t *testing.T) {
 	assert.Contains(t, err.Error(), `"a": Count = 0`)
 	_, err = energy.NewFleet([]energy.FleetGroup{{Name: "a", Cycle: cy, Battery: b, Count: 1}, {Name: "a", Cycle: cy, Battery: b, Count: 1}})
 	assert.True(t, errors.Is(err, energy.ErrParam))
+	// an unnamed group is "group i", which a given name may repeat
+	_, err = energy.NewFleet([]energy.FleetGroup{{Name: "group 1", Cycle: cy, Battery: b, Count: 1}, {Cycle: cy, Battery: b, Count: 1}})
+	assert.True(t, errors.Is(err, energy.ErrParam))
+	assert.Contains(t, err.Error(), "group 1")
+	for _, names := range [][]string{{"", ""}, {"a", ""}, {"", "group 0x"}} {
+		f, err := energy.NewFleet([]energy.FleetGroup{{Name: names[0], Cycle: cy, Battery: b, Count: 1}, {Name: names[1], Cycle: cy, Battery: b, Count: 1}})
+		require.NoError(t, err, "names %q", names)
+		for i, want := range names {
+			if want == "" {
+				want = fmt.Sprintf("group %d", i)
+			}
+			_, got, ok := f.Lifetime(i)
+			assert.True(t, ok)
+			assert.Equal(t, want, got, "names %q", names)
+		}
+	}
 	f, err := energy.NewFleet([]energy.FleetGroup{{Name: "a", Cycle: cy, Battery: b, Count: 3}})
 	require.NoError(t, err)
 	_, err = f.ReplacementPlan(1.5)

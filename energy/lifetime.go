@@ -79,6 +79,7 @@ type kfold struct {
 	evar            float64         // variance of the cycle law (J²)
 	discrete        bool            // the cycle law is finite discrete with two or more atoms
 	closed          bool            // the values come from a closed form: no cache
+	shared          bool            // the values come from point's shared panels: no cache
 	capacity        float64
 
 	mu      sync.Mutex
@@ -113,6 +114,14 @@ func (f *kfold) at(k int64) [2]float64 {
 	if f.closed {
 		// A closed form costs less than the cache's lock and lookup.
 		b, a := f.sums.Tails(int(k), f.capacity)
+		return [2]float64{b, a}
+	}
+	if f.shared {
+		// A value from dist.PointTails' shared panels (about a
+		// microsecond: the panels are its cache) costs little more than
+		// the cache's locks, lookup and growth, and a fleet's dates or a
+		// search seldom ask one k twice.
+		b, a := f.point.Tails(int(k))
 		return [2]float64{b, a}
 	}
 	f.mu.Lock()
@@ -304,6 +313,7 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 		l.ev.discrete = true
 	}
 	l.ev.closed = sums.ClosedForm()
+	l.ev.shared = point.Shared()
 	// One evaluation at the renewal estimate of the median checks that the
 	// K-fold law can be computed; the search for the exact median is left to
 	// the first question that needs it. Where the values come from

@@ -111,7 +111,7 @@ func countBeyond(fn string, laws []dist.Law, counts []int64, x float64, above bo
 		if counts != nil {
 			n = counts[i]
 		}
-		g, err := newGroup(fn, fmt.Sprintf("laws[%d]", i), l, n)
+		g, err := newGroup(fn, "laws", i, l, n)
 		if err != nil {
 			if counts != nil && (n < 1 || n > MaxCount) {
 				return Count{}, paramErr(fn, fmt.Sprintf("counts[%d]", i), n, fmt.Sprintf("must be in [1, %d]", MaxCount))

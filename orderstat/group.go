@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
@@ -161,41 +162,59 @@ func newGroups(fn string, in []Group) ([]group, int64, error) {
 		return nil, 0, paramErr(fn, "groups", "[]", "must not be empty")
 	}
 	out := make([]group, len(in))
+	meds := make([]lazyMedian, len(in)) // one allocation for the TwoTails laws' medians
 	var total int64
 	for i, gr := range in {
-		g, err := newGroup(fn, fmt.Sprintf("groups[%d]", i), gr.Law, gr.Count)
-		if err != nil {
+		g := &out[i]
+		if err := initGroup(g, fn, "groups", i, gr.Law, gr.Count, &meds[i]); err != nil {
 			return nil, 0, err
 		}
 		if total > MaxCount-g.n {
 			return nil, 0, paramErr(fn, "groups", fmt.Sprintf("total count > %d", MaxCount), fmt.Sprintf("the counts must sum to at most %d", MaxCount))
 		}
 		total += g.n
-		out[i] = g
 	}
 	return out, total, nil
 }
 
-// newGroup validates one law and count.
-func newGroup(fn, name string, l dist.Law, n int64) (group, error) {
-	if l == nil {
-		return group{}, paramErr(fn, name+".Law", nil, "must not be nil")
+// itemName names item i of the list (list[i]), or the list alone for i < 0.
+func itemName(list string, i int) string {
+	if i < 0 {
+		return list
 	}
-	if n < 1 || n > MaxCount {
-		return group{}, paramErr(fn, name+".Count", n, fmt.Sprintf("must be in [1, %d]", MaxCount))
+	return list + "[" + strconv.Itoa(i) + "]"
+}
+
+// newGroup validates one law and count: item i of the list (see itemName,
+// which names it only in an error).
+func newGroup(fn, list string, i int, l dist.Law, n int64) (group, error) {
+	var g group
+	err := initGroup(&g, fn, list, i, l, n, nil)
+	return g, err
+}
+
+// initGroup is newGroup in place, into the zero group g; lazy, if not nil,
+// holds the median of a TwoTails law (else one is allocated).
+func initGroup(g *group, fn, list string, i int, l dist.Law, n int64, lazy *lazyMedian) error {
+	if l == nil || n < 1 || n > MaxCount {
+		return newGroupErr(fn, itemName(list, i), l, n)
 	}
+	name := func() string { return itemName(list, i) }
 	lo, hi := l.Support()
 	if math.IsNaN(lo) || math.IsNaN(hi) || !(lo <= hi) {
-		return group{}, paramErr(fn, name+".Law", fmt.Sprintf("support [%v, %v]", lo, hi), "must have an ordered, non-NaN support")
+		return paramErr(fn, name()+".Law", fmt.Sprintf("support [%v, %v]", lo, hi), "must have an ordered, non-NaN support")
 	}
-	g := group{law: l, n: n, nf: float64(n), lo: lo, hi: hi}
+	g.law, g.n, g.nf, g.lo, g.hi = l, n, float64(n), lo, hi
 	if t, ok := l.(TwoTails); ok {
 		// Evaluations need no median; quantiles ask it on first use.
-		g.tails, g.lazy = t, &lazyMedian{}
+		if lazy == nil {
+			lazy = &lazyMedian{}
+		}
+		g.tails, g.lazy = t, lazy
 	} else {
 		med := l.Quantile(0.5)
 		if !finite(med) {
-			return group{}, paramErr(fn, name+".Law", fmt.Sprintf("median %v", med), "must have a finite median")
+			return paramErr(fn, name()+".Law", fmt.Sprintf("median %v", med), "must have a finite median")
 		}
 		g.median = med
 	}
@@ -203,7 +222,7 @@ func newGroup(fn, name string, l dist.Law, n int64) (group, error) {
 		g.atoms = a.Atoms()
 		for _, at := range g.atoms {
 			if !finite(at.Value) || !(at.Mass > 0 && at.Mass <= 1) {
-				return group{}, paramErr(fn, name+".Law", fmt.Sprintf("atom %v", at), "atoms must have finite values and masses in (0, 1]")
+				return paramErr(fn, name()+".Law", fmt.Sprintf("atom %v", at), "atoms must have finite values and masses in (0, 1]")
 			}
 			g.atomMass += at.Mass
 		}
@@ -212,7 +231,15 @@ func newGroup(fn, name string, l dist.Law, n int64) (group, error) {
 	if d, ok := l.(dist.Densitied); ok {
 		g.dens = d
 	}
-	return g, nil
+	return nil
+}
+
+// newGroupErr is newGroup's error for a nil law or a count out of range.
+func newGroupErr(fn, name string, l dist.Law, n int64) error {
+	if l == nil {
+		return paramErr(fn, name+".Law", nil, "must not be nil")
+	}
+	return paramErr(fn, name+".Count", n, fmt.Sprintf("must be in [1, %d]", MaxCount))
 }
 
 // unionAtoms lists the distinct atom values of all groups, sorted; values

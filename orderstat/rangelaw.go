@@ -38,7 +38,7 @@ func Range(l dist.Law, n int64) (dist.Law, error) {
 	if n < 1 || n > MaxCount {
 		return nil, paramErr(fn, "n", n, fmt.Sprintf("must be in [1, %d]", MaxCount))
 	}
-	g, err := newGroup(fn, "l", l, n)
+	g, err := newGroup(fn, "l", -1, l, n)
 	if err != nil {
 		return nil, err
 	}

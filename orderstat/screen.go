@@ -58,7 +58,7 @@ func Screen(values []float64, laws []dist.Law, p float64) ([]Flag, error) {
 	}
 	gs := make([]group, len(laws))
 	for i, l := range laws {
-		g, err := newGroup(fn, fmt.Sprintf("laws[%d]", i), l, 1)
+		g, err := newGroup(fn, "laws", i, l, 1)
 		if err != nil {
 			return nil, err
 		}

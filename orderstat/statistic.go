@@ -220,6 +220,16 @@ func build(fn string, in []Group, kd kind, k int64, checkK bool) (dist.Law, erro
 // ends, counted with multiplicity.
 func (c *core) support() {
 	kthEnd := func(end func(g group) float64) float64 {
+		if c.k == 1 || c.k == c.n {
+			// the smallest or the largest end: no sort
+			x := end(c.groups[0])
+			for _, g := range c.groups[1:] {
+				if e := end(g); (c.k == 1 && e < x) || (c.k == c.n && c.k != 1 && e > x) {
+					x = e
+				}
+			}
+			return x
+		}
 		idx := make([]int, len(c.groups))
 		for i := range idx {
 			idx[i] = i

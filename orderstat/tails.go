@@ -1,8 +1,9 @@
 package orderstat
 
 import (
+	"cmp"
 	"math"
-	"sort"
+	"slices"
 	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
@@ -119,7 +120,7 @@ func (c *core) setBounds() {
 	for i := range c.order {
 		c.order[i] = i
 	}
-	sort.SliceStable(c.order, func(a, b int) bool { return key[c.order[a]] < key[c.order[b]] })
+	slices.SortStableFunc(c.order, func(a, b int) int { return cmp.Compare(key[a], key[b]) })
 	if !c.bounded {
 		return
 	}

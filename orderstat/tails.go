@@ -5,6 +5,7 @@ import (
 	"math"
 	"slices"
 	"sync"
+	"sync/atomic"
 
 	"github.com/joulelaw/joulelaw/dist"
 )
@@ -52,9 +53,10 @@ const pruneRel = 1e-16
 
 // pruneStep and pruneLevels: a TailBounded group keeps its bound points at
 // the levels exp(−pruneStep·m), m = 1, …, pruneLevels (a factor e^46 ≈
-// 10^20 apart, down to e^−368 ≈ 10^−160), each computed once, when first
-// needed (the first when the law is built, for the order); at a point, the level used is the largest that meets the group's
-// share of pruneRel (none where the answer is so small that the share is
+// 10^20 apart, down to e^−368 ≈ 10^−160), each computed when first
+// needed and kept (the first when the law is built, for the order); at a
+// point, the level used is the largest that meets the group's share of
+// pruneRel (none where the answer is so small that the share is
 // below the last level: every group is evaluated there).
 const (
 	pruneStep   = 46.0
@@ -62,26 +64,32 @@ const (
 )
 
 // boundPoints holds a TailBounded law's bound points at the levels
-// exp(−pruneStep·(m+1)), each asked of the law once, when first needed
-// (the same value whenever that is).
+// exp(−pruneStep·(m+1)), each asked of the law when first needed (the
+// same value whenever that is: a law's bound point depends on the level
+// alone, so goroutines that ask it at once store the same bits; without
+// a lock, which costs more than the bound).
 type boundPoints struct {
 	law   TailBounded
 	upper bool // UpperBoundPoint (the maximum); else LowerBoundPoint
-	once  [pruneLevels]sync.Once
-	x     [pruneLevels]float64
+	set   [pruneLevels]atomic.Bool
+	x     [pruneLevels]atomic.Uint64 // the points' bits, valid once set
 }
 
 // at returns the bound point of level m+1.
 func (b *boundPoints) at(m int) float64 {
-	b.once[m].Do(func() {
-		lp := -pruneStep * float64(m+1)
-		if b.upper {
-			b.x[m] = b.law.UpperBoundPoint(lp)
-		} else {
-			b.x[m] = b.law.LowerBoundPoint(lp)
-		}
-	})
-	return b.x[m]
+	if b.set[m].Load() {
+		return math.Float64frombits(b.x[m].Load())
+	}
+	lp := -pruneStep * float64(m+1)
+	var x float64
+	if b.upper {
+		x = b.law.UpperBoundPoint(lp)
+	} else {
+		x = b.law.LowerBoundPoint(lp)
+	}
+	b.x[m].Store(math.Float64bits(x))
+	b.set[m].Store(true)
+	return x
 }
 
 // setBounds prepares the leaving out of groups for a minimum or maximum

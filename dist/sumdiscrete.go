@@ -6,11 +6,13 @@ import (
 )
 
 // SumDiscrete returns the exact law of X_1 + … + X_n for independent
-// finite discrete laws (in one unit), as Sum gives it for such terms, but
-// as a Discrete and by SumIID's dense lattice convolution wherever it
-// applies: when every law's atoms lie on one common lattice (values
-// v0_i + m·δ, integers m; counts are the usual case) and the sum spans at
-// most MaxSumAtoms lattice points, the masses are arrays indexed by the
+// finite discrete laws (in one unit), as Sum gives it for such terms (Sum
+// uses this engine), as a Discrete and by SumIID's dense lattice
+// convolution wherever it applies and costs less than merging atom pairs:
+// when every law's atoms lie on one common lattice (values v0_i + m·δ,
+// integers m; counts are the usual case), the sum spans at most
+// MaxSumAtoms lattice points and the laws fill enough of it
+// (denseCheaper), the masses are arrays indexed by the
 // lattice offset and two laws of a and b points cost a·b multiply-adds
 // (convolveDense), not a·b atom pairs to sort and merge. The values are
 // Σ v0_i + m·δ (exact for integers: when Σ v0_i is itself a multiple of δ,
@@ -58,8 +60,9 @@ func sumDiscrete(fn string, laws []Discrete) (Discrete, error) {
 
 // denseSum is SumDiscrete's lattice path: ok is false when the laws'
 // atoms are not on one common lattice (latticeOf of every law's offsets
-// from its least value, taken together) or the sum would span more than
-// MaxSumAtoms lattice points.
+// from its least value, taken together), the sum would span more than
+// MaxSumAtoms lattice points, or merging atom pairs costs less
+// (denseCheaper).
 func denseSum(laws []Discrete) (Discrete, bool) {
 	// Every law's offsets from its least value, together (sorted, distinct).
 	shift := 0.0
@@ -76,6 +79,9 @@ func denseSum(laws []Discrete) (Discrete, bool) {
 	all := discreteFromAtoms(append([]Atom{{Value: 0, Mass: 1}}, offsetAtoms(offs)...))
 	_, delta, _, ok := latticeOf(all)
 	if !ok {
+		return Discrete{}, false
+	}
+	if !denseCheaper(laws, delta) {
 		return Discrete{}, false
 	}
 	span := 0.0
@@ -115,6 +121,32 @@ func denseSum(laws []Discrete) (Discrete, bool) {
 		}
 	}
 	return discreteFromAtoms(atoms), true
+}
+
+// denseCheaper reports whether the dense convolution on the lattice of
+// step delta costs no more than merging atom pairs, by counting the work
+// of each: a dense step from a partial sum of A atoms spanning S+1 points
+// by a law spanning t+1 points costs A·(t+1) multiply-adds and S+t+1
+// cleared and scanned points; an atom-pair step costs A·n pairs (n the
+// law's atoms) and their sort, A·n·log₂(A·n); the partial sum then holds
+// at most min(A·n, S+t+1) atoms. Counts and other laws that fill their
+// lattice take the dense path; a few atoms far apart on a fine lattice
+// (energies whose values happen to share a small step, say) do not, where
+// the dense arrays would be mostly zeros.
+func denseCheaper(laws []Discrete, delta float64) bool {
+	d0 := laws[0]
+	a := float64(d0.Len())
+	span := math.Round((d0.values[len(d0.values)-1] - d0.values[0]) / delta)
+	var dense, pairs float64
+	for _, d := range laws[1:] {
+		t := math.Round((d.values[len(d.values)-1] - d.values[0]) / delta)
+		n := float64(d.Len())
+		dense += a*(t+1) + span + t + 1
+		pairs += a * n * (1 + math.Log2(a*n))
+		span += t
+		a = math.Min(a*n, span+1)
+	}
+	return dense <= pairs
 }
 
 // offsetAtoms returns the offsets as atoms of equal mass (their values are

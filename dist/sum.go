@@ -17,8 +17,9 @@ const MaxSumAtoms = 1 << 20
 //
 //   - finite discrete laws add exactly: the result is a Discrete, by
 //     SumDiscrete's dense lattice convolution where the atoms share a
-//     lattice, else atom pairs merged within AtomMergeTolerance (at most
-//     MaxSumAtoms atoms);
+//     lattice and fill enough of it to cost no more than atom pairs, else
+//     atom pairs merged within AtomMergeTolerance (at most MaxSumAtoms
+//     atoms);
 //   - normals add to a normal, gammas (and exponentials) with one rate to a
 //     gamma, two uniforms to their trapezoid; one or more exponentials
 //     (distinct rates) plus one uniform, normal, truncated normal or gamma,

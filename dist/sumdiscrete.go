@@ -39,7 +39,8 @@ func SumDiscrete(laws ...Discrete) (Discrete, error) {
 
 // sumDiscrete is the one exact sum of finite discrete laws, Sum's and
 // SumDiscrete's: the dense lattice convolution (denseSum) where the atoms
-// share a lattice, atom pairs merged otherwise; fn names the caller in
+// share a lattice and it costs no more (denseCheaper), atom pairs merged
+// otherwise; fn names the caller in
 // errors (more than MaxSumAtoms atoms).
 func sumDiscrete(fn string, laws []Discrete) (Discrete, error) {
 	if len(laws) == 1 {

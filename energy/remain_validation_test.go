@@ -554,9 +554,7 @@ func TestEstimateSpreadCoverage(t *testing.T) {
 		require.Equal(t, 400, est.Devices)
 		z := (est.Value - truth) / est.StdErr
 		t.Logf("seed %d: %.4f, 90 %% [%.3f, %.3f], ± %.4f (curvature %.4f, jackknife %.4f): z %.2f; noise %.1f", seed, est.Value, est.Lo, est.Hi, est.StdErr, est.CurvatureErr, est.JackknifeErr, z, est.Noise)
-		if !math.IsInf(est.StdErr, 1) {
-			require.Less(t, math.Abs(z), 4.9, "seed %d", seed)
-		}
+		require.Less(t, math.Abs(z), 4.9, "seed %d", seed) // an infinite StdErr gives z = 0; a NaN estimate fails here
 		if truth >= est.Lo && truth <= est.Hi {
 			in90++
 		}

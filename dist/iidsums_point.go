@@ -160,8 +160,9 @@ func (q PointTails) Tails(k int) (below, above float64) {
 }
 
 // Evaluate is Tails with an estimate of the relative error of the smaller
-// tail (for values of the tilted inversion, shared or single: rounding and
-// the truncation of the sum; zero for the other paths, whose accuracy
+// tail (for values of the tilted inversion, shared or single: the rounding
+// of the sum and of its exponent k·log M, and the truncation of the sum;
+// zero for the other paths, whose accuracy
 // IIDSums.Accuracy states) and the reason for a NaN (as
 // IIDSums.Evaluate).
 func (q PointTails) Evaluate(k int) (below, above, relErr float64, err error) {
@@ -194,47 +195,15 @@ func (q PointTails) eval(k int) (f, s, rel float64, err error) {
 		}
 	}
 	f, s, rel = p.tiltedOne(k, x)
-	rel += p.exponentRounding(k, x)
 	f, s, err = checkTails("PointTails.Evaluate", k, x, f, s)
 	return f, s, rel, err
 }
 
-// exponentRounding estimates the relative error that the rounding of
-// k·log M(θ) adds to a tilted value, which the single inversion's own
-// estimate leaves out: 4ε·k·(|log M(θ)| + θ·|μ|) at the saddlepoint θ of
-// the smaller tail (secant steps from the normal approximation
-// max(|x − kμ|/(kσ²), 2/(σ√k)), which is kept where they fail); 0 where
-// the transform is not finite there.
-func (p IIDSums) exponentRounding(k int, x float64) float64 {
-	fk := float64(k)
-	y := x - fk*p.mu
-	sg, hiDom := 1.0, p.tr.hi
-	if y <= 0 {
-		sg, hiDom = -1, -p.tr.lo
-	}
-	th := math.Max(math.Abs(y)/(fk*p.v), 2/math.Sqrt(fk*p.v))
-	if finite(hiDom) && th >= hiDom {
-		th = hiDom / 2
-	}
-	dK := func(t float64) float64 {
-		const eta = 1e-20
-		e := eta * math.Max(1, t)
-		return imag(p.tr.logm(complex(sg*t, sg*e)))/e*sg - p.mu*sg
-	}
-	if ts := saddleSecant(func(t float64) float64 { return fk*dK(t) - math.Abs(y) }, th, hiDom); ts > th {
-		th = ts
-	}
-	lm := cmplx.Abs(p.tr.logm(complex(sg*th, 0)))
-	if !finite(lm) {
-		return 0
-	}
-	return 4 * 0x1p-53 * fk * (lm + math.Abs(th*p.mu))
-}
-
 // tiltedOne is the single tilted inversion of IIDSums.Evaluate for a term
 // with a transform and no atoms: P(S_k <= x), P(S_k > x) and the smaller
-// tail's estimated relative error. The transform is normalised (see
-// massDefect).
+// tail's estimated relative error, the rounding of the exponent k·log M
+// included (iidExpRound), as every tilted value of a k-fold sum states it.
+// The transform is normalised (see massDefect).
 func (p IIDSums) tiltedOne(k int, x float64) (f, s, rel float64) {
 	fk := float64(k)
 	cmu, ck, c0 := complex(p.mu, 0), complex(fk, 0), complex(p.massDefect(), 0)
@@ -242,6 +211,7 @@ func (p IIDSums) tiltedOne(k int, x float64) (f, s, rel float64) {
 	n := &numLaw{
 		tr: transform{logm: func(s complex128) complex128 { return ck * (t.logm(s) - s*cmu - c0) }, lo: t.lo, hi: t.hi},
 		c:  fk * p.mu, variance: fk * p.v, w: 1, supLo: fk * p.lo, supHi: fk * p.hi,
+		expRound: iidExpRound(t, p.mu, fk),
 	}
 	sd := math.Sqrt(n.variance)
 	n.b = chernoffEnd(n.tr.logm, n.tr.hi, sd, bulkTail)

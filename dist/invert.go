@@ -81,6 +81,10 @@ type numLaw struct {
 	closedAbove float64
 	sample      func(r *rand.Rand) float64
 	parts       []Law // the terms of a Sum, for flattening nested sums
+	// expRound, when set, bounds the relative error that the rounding of
+	// a k-fold sum's exponent k·log M adds to a tilted tail at the real
+	// tilt θ of the centred law (iidExpRound); tiltedCap adds it
+	expRound func(theta float64) float64
 }
 
 // numSpec is what a builder hands to newNumLaw.
@@ -101,6 +105,8 @@ type numSpec struct {
 	// then computed block by block (faster than tr.logm per point), and
 	// (1/π)·Σ errOut/k is added to the CDF bound.
 	axis func(h float64, k0 int, out []complex128, errOut []float64)
+	// expRound: see numLaw.expRound
+	expRound func(theta float64) float64
 }
 
 func newNumLaw(sp numSpec) (*numLaw, error) {
@@ -111,7 +117,7 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 		return nil, fmt.Errorf("dist.%s: mean %v: %w", sp.kind, sp.mean, ErrMoment)
 	}
 	l := &numLaw{kind: sp.kind, c: sp.c, tr: sp.tr, mean: sp.mean, variance: sp.variance,
-		supLo: sp.supLo, supHi: sp.supHi, sample: sp.sample, parts: sp.parts}
+		supLo: sp.supLo, supHi: sp.supHi, sample: sp.sample, parts: sp.parts, expRound: sp.expRound}
 	if len(sp.atoms) > 0 {
 		l.atoms = discreteFromAtoms(append([]Atom(nil), sp.atoms...))
 		for _, a := range l.atoms.Atoms() {
@@ -637,7 +643,8 @@ func (l *numLaw) tilted(y float64, refl bool) float64 {
 	return v
 }
 
-// tiltedErr is tilted with an estimate of its relative error: rounding,
+// tiltedErr is tilted with an estimate of its relative error: rounding
+// (of the sum, and for a k-fold sum of its exponent k·log M: expRound),
 // and, when the sum had to be cut at maxTilted terms, the remainder bound
 // of tailBound from the ranges of the partial sums over the last octaves.
 func (l *numLaw) tiltedErr(y float64, refl bool) (float64, float64) {
@@ -759,6 +766,9 @@ func (l *numLaw) tiltedCap(y float64, refl bool, kMax int) (float64, float64) {
 	rel := 1e-14 + 4e-16*absSum/den
 	if kEnd >= kMax {
 		rel += 2 * tailBound(early.diam(), late.diam(), trend.diam(), last*float64(kEnd)) / den
+	}
+	if l.expRound != nil {
+		rel += l.expRound(sg * theta)
 	}
 	return math.Max(0, res), rel
 }

@@ -3,6 +3,7 @@ package dist
 import (
 	"fmt"
 	"math"
+	"math/cmplx"
 	"math/rand/v2"
 )
 
@@ -265,7 +266,8 @@ func iidNumeric(l Law, k int) (Law, error) {
 			e := eps / fk
 			return fk * (l.Quantile(e) - mu), fk * (l.UpperQuantile(e) - mu)
 		},
-		sample: iidSample(l, k, &self),
+		sample:   iidSample(l, k, &self),
+		expRound: iidExpRound(t, mu, fk),
 	}
 	if math.IsNaN(sp.supLo) {
 		sp.supLo = math.Inf(-1)
@@ -279,6 +281,24 @@ func iidNumeric(l Law, k int) (Law, error) {
 	}
 	self = n
 	return n, nil
+}
+
+// iidExpRound returns the bound on the relative error that the rounding
+// of the exponent adds to a tilted value of the k-fold sum of a term with
+// transform t and mean μ, at the real tilt θ of the centred sum: the
+// exponent k·(log M(θ) − θ·μ − log M(0)) rounds each per-term value to a
+// few ulps of |log M(θ)| + |θ·μ|, and k multiplies that (the centre k·μ
+// and the point's distance from it round likewise, an absolute error of
+// ε·k·|μ| times θ), so 4ε·k·(|log M(θ)| + |θ·μ|) (ε = 2^-53); 0 where the
+// transform is not finite at θ (the value's own rules fail there first).
+func iidExpRound(t transform, mu, fk float64) func(theta float64) float64 {
+	return func(theta float64) float64 {
+		lm := cmplx.Abs(t.logm(complex(theta, 0)))
+		if !finite(lm) {
+			return 0
+		}
+		return 4 * 0x1p-53 * fk * (lm + math.Abs(theta*mu))
+	}
 }
 
 // iidSample draws the k-fold sum of l: k draws of l added when k <=

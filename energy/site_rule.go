@@ -384,8 +384,13 @@ func (s *Site) condAt(kind lawKind, g int, k int64, zs []float64, probs []float6
 // the rule's nodes, Z[g·E + e] for the environments e, for the groups with
 // want[g] (every group when want is nil).
 func (s *Site) nodeZ(t float64, want []bool) []float64 {
+	return s.nodeZInto(nil, t, want)
+}
+
+// nodeZInto is nodeZ into dst's array where it is large enough.
+func (s *Site) nodeZInto(dst []float64, t float64, want []bool) []float64 {
 	E := len(s.envs)
-	Z := make([]float64, len(s.names)*E)
+	Z := grown(dst, len(s.names)*E)
 	for g := range s.names {
 		if want != nil && !want[g] {
 			continue
@@ -413,12 +418,44 @@ func interp(row []float64, y []float64, stride int) float64 {
 	return z
 }
 
+// ruleScratch holds the working arrays of the rule's error passes (mixZ,
+// interpBound, nodeZ in a root search), reused from pass to pass by one
+// caller at a time: a probe chain makes its own, so that a Site stays safe
+// for concurrent use.
+type ruleScratch struct {
+	y, zs, probs []float64 // mixZ
+	y0, y1, bnd  []float64 // interpBound
+	z            []float64 // nodeZ within probeTimes' root search
+	want         []bool
+}
+
+// grown returns b with length n, its values zeroed, reusing its array
+// where it is large enough.
+func grown(b []float64, n int) []float64 {
+	if cap(b) < n {
+		return make([]float64, n)
+	}
+	b = b[:n]
+	clear(b)
+	return b
+}
+
+// maxModes is the most modes mixZ evaluates in one pass (the reference
+// and the coarse grid in each of two factors).
+const maxModes = 3
+
 // mixZ returns the mixtures over the shared factors of kind's conditional
-// CDF, one for each of modes (each factor in the given mode), from the node
-// probits Z (nodeZ). The modes must share their points and interpolation
-// rows factor by factor (modeFine with modeCoarse, or the same mode): the
-// conditional CDF is evaluated once a point and weighted for each.
-func (s *Site) mixZ(Z []float64, kind lawKind, g int, k int64, modes ...[2]int) []float64 {
+// CDF, one for each of modes (each factor in the given mode, at most
+// maxModes), from the node probits Z (nodeZ). The modes must share their
+// points and interpolation rows factor by factor (modeFine with
+// modeCoarse, or the same mode): the conditional CDF is evaluated once a
+// point and weighted for each.
+func (s *Site) mixZ(Z []float64, kind lawKind, g int, k int64, modes ...[2]int) [maxModes]float64 {
+	return s.mixZs(new(ruleScratch), Z, kind, g, k, modes...)
+}
+
+// mixZs is mixZ with the working arrays of sc.
+func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64, modes ...[2]int) [maxModes]float64 {
 	fu, fv := &s.fac[0], &s.fac[1]
 	nv := len(fv.z)
 	E := len(s.envs)
@@ -435,19 +472,18 @@ func (s *Site) mixZ(Z []float64, kind lawKind, g int, k int64, modes ...[2]int) 
 		return len(f.fz), f.fw, f.lag
 	}
 	M := len(modes)
-	wus, wvs := make([][]float64, M), make([][]float64, M)
+	var wus, wvs [maxModes][]float64
 	var pu, pv int
 	var ru, rv [][]float64
 	for i, m := range modes {
 		pu, wus[i], ru = pick(fu, m[0])
 		pv, wvs[i], rv = pick(fv, m[1])
 	}
-	groups := []int{g}
-	if kind != kindNode && kind != kindFirst {
-		groups = groups[:0]
-		for h := range G {
-			groups = append(groups, h)
-		}
+	// The groups the conditional CDF reads: g alone, or all of them.
+	one := kind == kindNode || kind == kindFirst
+	g0, g1 := 0, G
+	if one {
+		g0, g1 = g, g+1
 	}
 	usedU := func(a int) bool {
 		for i := range M {
@@ -457,28 +493,30 @@ func (s *Site) mixZ(Z []float64, kind lawKind, g int, k int64, modes ...[2]int) 
 		}
 		return false
 	}
-	// Along u: Y[h][a][j] for the u points a and the v nodes j
+	// Along u: Y[h − g0][a][j] for the u points a and the v nodes j
 	// (environment e = iu·nv + iv).
-	Y := make([]float64, G*pu*nv)
-	for _, h := range groups {
+	sc.y = grown(sc.y, (g1-g0)*pu*nv)
+	Y := sc.y
+	for h := g0; h < g1; h++ {
 		zh := Z[h*E : (h+1)*E]
 		for a := range pu {
 			if !usedU(a) {
 				continue
 			}
+			row := Y[((h-g0)*pu+a)*nv : ((h-g0)*pu+a+1)*nv]
 			for j := range nv {
 				if ru == nil {
-					Y[(h*pu+a)*nv+j] = zh[a*nv+j]
+					row[j] = zh[a*nv+j]
 				} else {
-					Y[(h*pu+a)*nv+j] = interp(ru[a], zh[j:], nv)
+					row[j] = interp(ru[a], zh[j:], nv)
 				}
 			}
 		}
 	}
-	zs := make([]float64, G)
-	probs := make([]float64, G)
-	sums := make([]float64, M)
-	ws := make([]float64, M)
+	sc.zs = grown(sc.zs, G)
+	sc.probs = grown(sc.probs, G)
+	zs, probs := sc.zs, sc.probs
+	var sums, ws [maxModes]float64
 	for a := range pu {
 		if !usedU(a) {
 			continue
@@ -496,8 +534,8 @@ func (s *Site) mixZ(Z []float64, kind lawKind, g int, k int64, modes ...[2]int) 
 			if !any {
 				continue
 			}
-			for _, h := range groups {
-				y := Y[(h*pu+a)*nv : (h*pu+a+1)*nv]
+			for h := g0; h < g1; h++ {
+				y := Y[((h-g0)*pu+a)*nv : ((h-g0)*pu+a+1)*nv]
 				if rv == nil {
 					zs[h] = y[b]
 				} else {
@@ -505,14 +543,14 @@ func (s *Site) mixZ(Z []float64, kind lawKind, g int, k int64, modes ...[2]int) 
 				}
 			}
 			c := s.condAt(kind, g, k, zs, probs)
-			for i, w := range ws {
-				if w != 0 {
-					sums[i] += w * c
+			for i := range M {
+				if ws[i] != 0 {
+					sums[i] += ws[i] * c
 				}
 			}
 		}
 	}
-	for i := range sums {
+	for i := range M {
 		sums[i] = math.Min(1, math.Max(0, sums[i]))
 	}
 	return sums
@@ -542,6 +580,7 @@ type probeError struct {
 	own      [2]float64 // per factor: the rule's difference from the fine rule in that factor alone
 	interp   [2]float64 // per factor: the interpolation's error, or its bound while !exact
 	exact    bool
+	sc       *ruleScratch // the working arrays of the probe's chain
 }
 
 // parts returns the error parts by factor (what refining it would lower).
@@ -556,19 +595,29 @@ func (p probeError) total() float64 { return p.base + p.interp[0] + p.interp[1] 
 // interpolation terms bounded (interpBound), or computed where no bound
 // applies (counts).
 func (s *Site) probeStart(t float64, kind lawKind, g int, k int64) probeError {
+	return s.probeStartWith(new(ruleScratch), t, kind, g, k)
+}
+
+// probeStartWith is probeStart with the working arrays of sc.
+func (s *Site) probeStartWith(sc *ruleScratch, t float64, kind lawKind, g int, k int64) probeError {
 	var want []bool
 	if kind == kindNode || kind == kindFirst {
 		want = make([]bool, len(s.names))
 		want[g] = true
 	}
-	return s.probeZ(t, s.nodeZ(t, want), kind, g, k)
+	return s.probeZWith(sc, t, s.nodeZ(t, want), kind, g, k)
 }
 
 // probeZ is probeStart from the node probits Z at t (nodeZ's layout): the
 // design search and the replacement policies probe their own laws.
 func (s *Site) probeZ(t float64, Z []float64, kind lawKind, g int, k int64) probeError {
-	p := probeError{t: t, Z: Z}
-	p.rule = s.mixZ(p.Z, kind, g, k, [2]int{modeNodes, modeNodes})[0]
+	return s.probeZWith(new(ruleScratch), t, Z, kind, g, k)
+}
+
+// probeZWith is probeZ with the working arrays of sc.
+func (s *Site) probeZWith(sc *ruleScratch, t float64, Z []float64, kind lawKind, g int, k int64) probeError {
+	p := probeError{t: t, Z: Z, sc: sc}
+	p.rule = s.mixZs(sc, p.Z, kind, g, k, [2]int{modeNodes, modeNodes})[0]
 	// The reference and, from the same points, every other point of its
 	// grid in each factor with spread (the fine rule's own error).
 	modes := [][2]int{{modeFine, modeFine}}
@@ -579,7 +628,7 @@ func (s *Site) probeZ(t float64, Z []float64, kind lawKind, g int, k int64) prob
 			modes = append(modes, m)
 		}
 	}
-	fine := s.mixZ(p.Z, kind, g, k, modes...)
+	fine := s.mixZs(sc, p.Z, kind, g, k, modes...)
 	p.ref = fine[0]
 	p.base = math.Abs(p.rule - p.ref)
 	next := 1
@@ -591,8 +640,8 @@ func (s *Site) probeZ(t float64, Z []float64, kind lawKind, g int, k int64) prob
 		next++
 		m := [2]int{modeNodes, modeNodes}
 		m[d] = modeFine
-		p.own[d] = math.Abs(s.mixZ(p.Z, kind, g, k, m)[0] - p.rule)
-		p.interp[d] = s.interpBound(p.Z, kind, g, d)
+		p.own[d] = math.Abs(s.mixZs(sc, p.Z, kind, g, k, m)[0] - p.rule)
+		p.interp[d] = s.interpBoundWith(sc, p.Z, kind, g, d)
 	}
 	p.base += s.trunc
 	if kind != kindNode && kind != kindFirst && kind != kindFleet {
@@ -614,7 +663,10 @@ func (s *Site) probeFinish(p *probeError, kind lawKind, g int, k int64) {
 		}
 		m := [2]int{modeFine, modeFine}
 		m[d] = modeReduced
-		p.interp[d] = math.Abs(s.mixZ(p.Z, kind, g, k, m)[0] - p.ref)
+		if p.sc == nil {
+			p.sc = new(ruleScratch)
+		}
+		p.interp[d] = math.Abs(s.mixZs(p.sc, p.Z, kind, g, k, m)[0] - p.ref)
 	}
 	p.exact = true
 }
@@ -637,6 +689,11 @@ func (s *Site) ruleError(t float64, kind lawKind, g int, k int64) (parts [2]floa
 // fleet's first failure moves by at most a group's first failure's slope
 // in that group's probit). Only interpolations, no special functions.
 func (s *Site) interpBound(Z []float64, kind lawKind, g int, d int) float64 {
+	return s.interpBoundWith(new(ruleScratch), Z, kind, g, d)
+}
+
+// interpBoundWith is interpBound with the working arrays of sc.
+func (s *Site) interpBoundWith(sc *ruleScratch, Z []float64, kind lawKind, g int, d int) float64 {
 	fu, fv := &s.fac[0], &s.fac[1]
 	nv := len(fv.z)
 	E := len(s.envs)
@@ -645,20 +702,16 @@ func (s *Site) interpBound(Z []float64, kind lawKind, g int, d int) float64 {
 	// and without one node a piece in factor d (r = 1).
 	rows := [2][2][][]float64{{fu.lag, fv.lag}, {fu.lag, fv.lag}}
 	rows[1][d] = s.fac[d].lagr
-	groups := []int{g}
+	g0, g1 := g, g+1
 	if kind == kindFleet {
-		groups = make([]int, len(s.names))
-		for h := range groups {
-			groups[h] = h
-		}
+		g0, g1 = 0, len(s.names)
 	}
 	pu, pv := len(fu.fz), len(fv.fz)
-	var Y [2][]float64
-	for r := range 2 {
-		Y[r] = make([]float64, pu*nv)
-	}
-	bound := make([]float64, pu*pv) // Σ_h L_h·|Δz_h| at each point
-	for _, h := range groups {
+	sc.y0, sc.y1 = grown(sc.y0, pu*nv), grown(sc.y1, pu*nv)
+	Y := [2][]float64{sc.y0, sc.y1}
+	sc.bnd = grown(sc.bnd, pu*pv)
+	bound := sc.bnd // Σ_h L_h·|Δz_h| at each point
+	for h := g0; h < g1; h++ {
 		L := s.slope[h]
 		if kind == kindNode {
 			L = s.slope1
@@ -725,13 +778,19 @@ var sharedProbeLevels = [...]float64{1e-6, 1e-4, 1e-3, 0.01, 0.05, 0.15, 0.3, 0.
 // reaches sharedProbeLevels (internal/root on the probit of the rule's
 // CDF), without repeats.
 func (s *Site) probeTimes(kind lawKind, g int, k int64) []float64 {
+	return s.probeTimesWith(new(ruleScratch), kind, g, k)
+}
+
+// probeTimesWith is probeTimes with the working arrays of sc.
+func (s *Site) probeTimesWith(sc *ruleScratch, kind lawKind, g int, k int64) []float64 {
 	var want []bool
 	if kind == kindNode || kind == kindFirst {
 		want = make([]bool, len(s.names))
 		want[g] = true
 	}
 	cdf := func(t float64) float64 {
-		return s.mixZ(s.nodeZ(t, want), kind, g, k, [2]int{modeNodes, modeNodes})[0]
+		sc.z = s.nodeZInto(sc.z, t, want)
+		return s.mixZs(sc, sc.z, kind, g, k, [2]int{modeNodes, modeNodes})[0]
 	}
 	// The level's time by the library's root finder on the probit of the
 	// rule's CDF (nearly linear in t), to 1e-9 of the tables' span.
@@ -862,10 +921,11 @@ func powSurv(x float64, k int64) float64 {
 // ones cannot change them, so these maxima are those of computing every
 // probe. The error parts stay bounded where they are not computed.
 func (s *Site) lawProbes(kind lawKind, g int, k int64) []probeError {
-	ts := s.probeTimes(kind, g, k)
+	sc := new(ruleScratch)
+	ts := s.probeTimesWith(sc, kind, g, k)
 	ps := make([]probeError, len(ts))
 	for i, t := range ts {
-		ps[i] = s.probeStart(t, kind, g, k)
+		ps[i] = s.probeStartWith(sc, t, kind, g, k)
 		ps[i].table = s.tableError(t, kind, g)
 	}
 	order := make([]int, len(ps))

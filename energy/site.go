@@ -82,9 +82,10 @@ type Site struct {
 	nodeAcc, firstAcc []float64
 	fleetAcc          float64
 	// slope[g] bounds the slope of a first failure among group g's nodes
-	// against their probit (minSlope), slope1 a node law's.
-	slope  []float64
-	slope1 float64
+	// against their probit, cell by cell (slopeBound), slope1 a node
+	// law's.
+	slope  []slopeBound
+	slope1 slopeBound
 }
 
 type siteEnv struct {
@@ -128,9 +129,13 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 		}
 		s.names = append(s.names, name)
 		s.counts = append(s.counts, g.Count)
-		s.slope = append(s.slope, minSlope(g.Count))
+		if j := slices.Index(s.counts, g.Count); j < i {
+			s.slope = append(s.slope, s.slope[j]) // the same count: the same bounds
+		} else {
+			s.slope = append(s.slope, newSlopeBound(g.Count))
+		}
 	}
-	s.slope1 = minSlope(1)
+	s.slope1 = newSlopeBound(1)
 	sds := [2]float64{spec.Shared.Batch, spec.Shared.Temperature}
 	var kinks [2][]float64
 	if sds[1] > 0 {

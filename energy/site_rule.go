@@ -569,15 +569,17 @@ func (s *Site) probitAt(tb tabulated, t float64) float64 {
 }
 
 // probeError is the rule's estimated error for a law at one probe time:
-// every term but the interpolation's at once, the interpolation's (two
-// more passes over the fine grid) bounded until it is computed.
+// every term of the total but the interpolation's at once, the
+// interpolation's (two more passes over the fine grid) bounded until it
+// is computed; the parts by factor (what refining a factor would lower,
+// read only to choose the factor to refine) with it.
 type probeError struct {
 	t, table float64
 	Z        []float64  // the node probits at t (nodeZ)
 	rule     float64    // the rule's mixture
 	ref      float64    // the reference's
 	base     float64    // |rule − reference| + the fine rule's own error + the truncation
-	own      [2]float64 // per factor: the rule's difference from the fine rule in that factor alone
+	own      [2]float64 // per factor: the rule's difference from the fine rule in that factor alone (+Inf while !exact)
 	interp   [2]float64 // per factor: the interpolation's error, or its bound while !exact
 	exact    bool
 	sc       *ruleScratch // the working arrays of the probe's chain
@@ -638,9 +640,7 @@ func (s *Site) probeZWith(sc *ruleScratch, t float64, Z []float64, kind lawKind,
 		}
 		p.base += math.Abs(fine[next] - p.ref)
 		next++
-		m := [2]int{modeNodes, modeNodes}
-		m[d] = modeFine
-		p.own[d] = math.Abs(s.mixZs(sc, p.Z, kind, g, k, m)[0] - p.rule)
+		p.own[d] = math.Inf(1)
 		p.interp[d] = s.interpBoundWith(sc, p.Z, kind, g, d)
 	}
 	p.base += s.trunc
@@ -650,12 +650,16 @@ func (s *Site) probeZWith(sc *ruleScratch, t float64, Z []float64, kind lawKind,
 	return p
 }
 
-// probeFinish computes p's interpolation terms: the reference's
+// probeFinish computes p's interpolation terms, the reference's
 // difference from the reference interpolated without one node a piece in
-// each factor with spread.
+// each factor with spread, and its parts' other terms, the rule's
+// difference from the rule fine in that factor alone.
 func (s *Site) probeFinish(p *probeError, kind lawKind, g int, k int64) {
 	if p.exact {
 		return
+	}
+	if p.sc == nil {
+		p.sc = new(ruleScratch)
 	}
 	for d := range 2 {
 		if len(s.fac[d].fz) == 1 {
@@ -663,10 +667,10 @@ func (s *Site) probeFinish(p *probeError, kind lawKind, g int, k int64) {
 		}
 		m := [2]int{modeFine, modeFine}
 		m[d] = modeReduced
-		if p.sc == nil {
-			p.sc = new(ruleScratch)
-		}
 		p.interp[d] = math.Abs(s.mixZs(p.sc, p.Z, kind, g, k, m)[0] - p.ref)
+		m = [2]int{modeNodes, modeNodes}
+		m[d] = modeFine
+		p.own[d] = math.Abs(s.mixZs(p.sc, p.Z, kind, g, k, m)[0] - p.rule)
 	}
 	p.exact = true
 }
@@ -685,9 +689,11 @@ func (s *Site) ruleError(t float64, kind lawKind, g int, k int64) (parts [2]floa
 // mixtures with and without one node a piece differ by at most
 // Σ w·Σ_h L_h·|Δz_h| over the fine grid, Δz_h the two interpolants'
 // difference in group h's probit and L_h the largest slope of the
-// conditional CDF against it (minSlope: the mean value theorem; the
-// fleet's first failure moves by at most a group's first failure's slope
-// in that group's probit). Only interpolations, no special functions.
+// conditional CDF against it between the two (slopeBound's cells there:
+// the mean value theorem; the fleet's first failure moves by at most a
+// group's first failure's slope in that group's probit), plus the
+// rounding of the two sums (2·eps a point). Only interpolations and
+// table look-ups, no special functions.
 func (s *Site) interpBound(Z []float64, kind lawKind, g int, d int) float64 {
 	return s.interpBoundWith(new(ruleScratch), Z, kind, g, d)
 }
@@ -712,9 +718,9 @@ func (s *Site) interpBoundWith(sc *ruleScratch, Z []float64, kind lawKind, g int
 	sc.bnd = grown(sc.bnd, pu*pv)
 	bound := sc.bnd // Σ_h L_h·|Δz_h| at each point
 	for h := g0; h < g1; h++ {
-		L := s.slope[h]
+		L := &s.slope[h]
 		if kind == kindNode {
-			L = s.slope1
+			L = &s.slope1
 		}
 		zh := Z[h*E : (h+1)*E]
 		for r := range 2 {
@@ -729,45 +735,94 @@ func (s *Site) interpBoundWith(sc *ruleScratch, Z []float64, kind lawKind, g int
 				z0 := interp(rows[0][1][b], Y[0][a*nv:(a+1)*nv], 1)
 				z1 := interp(rows[1][1][b], Y[1][a*nv:(a+1)*nv], 1)
 				if z0 != z1 {
-					bound[a*pv+b] += L * math.Abs(z1-z0)
+					bound[a*pv+b] += L.over(z0, z1) * math.Abs(z1-z0)
 				}
 			}
 		}
 	}
-	sum := 0.0
+	sum, pts := 0.0, 0
 	for a := range pu {
 		for b := range pv {
 			if w := wu[a] * wv[b]; w >= 1e-14 {
 				sum += w * bound[a*pv+b]
+				pts++
 			}
 		}
 	}
-	return sum * (1 + 1e-12)
+	return sum*(1+1e-12) + 2*float64(pts)*0x1p-52
 }
 
 // minSlope returns an upper bound on the largest slope of the CDF of the
 // first failure among n nodes against their common probit z,
-// max_z n·Φ(−z)^(n−1)·φ(z) (1/√(2π) for n = 1): over cells of 0.01 on
-// [−12, 9], Φ(−z) is at most its value at the cell's left end and φ at
-// most its largest on the cell; beyond, n·φ at the ends bounds it. About
-// 3 % above the true maximum for n = 1000 to 10^6 (TestMinSlope).
-func minSlope(n int64) float64 {
-	const lo, hi, h = -12.0, 9.0, 0.01
+// max_z n·Φ(−z)^(n−1)·φ(z) (1/√(2π) for n = 1): the largest of
+// newSlopeBound's cells and of its bound beyond them. About 3 % above the
+// true maximum for n = 1000 to 10^6 (TestMinSlope).
+func minSlope(n int64) float64 { return newSlopeBound(n).most }
+
+// Cells of a slopeBound: width slopeH on [slopeLo, slopeHi].
+const slopeLo, slopeHi, slopeH = -12.0, 9.0, 0.01
+
+// slopeBound bounds the slope of the CDF of the first failure among n
+// nodes against their common probit z, F'(z) = n·Φ(−z)^(n−1)·φ(z), cell by
+// cell: on a cell [a, b] of width slopeH in [slopeLo, slopeHi], Φ(−z) is
+// at most Φ(−a) and φ at most its largest on the cell; below the cells
+// F' <= n·φ(z) <= n·φ(slopeLo), and from the last cell's left end c on
+// F' <= n·φ(c). The site rule's interpolation bound (interpBound) reads
+// the cells between the two probits it compares instead of the largest
+// slope anywhere.
+type slopeBound struct {
+	cells        []float64
+	outLo, outHi float64 // the bounds below the cells and from the last cell's left end on
+	most         float64 // the largest of all, times 1 + 1e-12 (minSlope)
+}
+
+func newSlopeBound(n int64) slopeBound {
 	nf := float64(n)
-	best := nf * math.Max(normPDF(lo), normPDF(hi))
-	for i := range int((hi - lo) / h) {
-		a := lo + h*float64(i)
-		b := a + h
+	m := int((slopeHi - slopeLo) / slopeH)
+	b := slopeBound{cells: make([]float64, m)}
+	best := nf * math.Max(normPDF(slopeLo), normPDF(slopeHi))
+	for i := range m {
+		a := slopeLo + slopeH*float64(i)
+		c := a + slopeH
 		phi := normPDF(0)
 		switch {
-		case b <= 0:
-			phi = normPDF(b)
+		case c <= 0:
+			phi = normPDF(c)
 		case a >= 0:
 			phi = normPDF(a)
 		}
-		best = math.Max(best, nf*math.Pow(normSurv(a), nf-1)*phi)
+		b.cells[i] = nf * math.Pow(normSurv(a), nf-1) * phi
+		best = math.Max(best, b.cells[i])
 	}
-	return best * (1 + 1e-12)
+	b.outLo = nf * normPDF(slopeLo)
+	b.outHi = nf * normPDF(slopeLo+slopeH*float64(m-1))
+	b.most = best * (1 + 1e-12)
+	return b
+}
+
+// over returns an upper bound on F' between the probits z0 and z1 (most
+// where either is not finite): the largest of the cells that meet the
+// interval, one more on either side against rounding in the cell's index,
+// and of the bounds beyond the cells where it reaches them.
+func (b *slopeBound) over(z0, z1 float64) float64 {
+	lo, hi := math.Min(z0, z1), math.Max(z0, z1)
+	if !finite(lo) || !finite(hi) {
+		return b.most
+	}
+	m := len(b.cells)
+	L := 0.0
+	if lo < slopeLo {
+		L = b.outLo
+	}
+	if hi >= slopeLo+slopeH*float64(m-1) {
+		L = math.Max(L, b.outHi)
+	}
+	i0 := max(0, int(math.Floor((lo-slopeLo)/slopeH))-1)
+	i1 := min(m-1, int(math.Floor((hi-slopeLo)/slopeH))+1)
+	for i := i0; i <= i1; i++ {
+		L = math.Max(L, b.cells[i])
+	}
+	return L * (1 + 1e-12)
 }
 
 // sharedProbeLevels are the CDF levels of a law at which its stated error
@@ -919,7 +974,7 @@ func powSurv(x float64, k int64) float64 {
 // raise the stated error or the rule's total, the largest bounded first:
 // a probe whose bounded values do not exceed the maxima of the computed
 // ones cannot change them, so these maxima are those of computing every
-// probe. The error parts stay bounded where they are not computed.
+// probe. The error parts are +Inf where they are not computed.
 func (s *Site) lawProbes(kind lawKind, g int, k int64) []probeError {
 	sc := new(ruleScratch)
 	ts := s.probeTimesWith(sc, kind, g, k)
@@ -949,8 +1004,8 @@ func (s *Site) lawProbes(kind lawKind, g int, k int64) []probeError {
 	return ps
 }
 
-// probeMaxima returns the largest error parts (bounds where a probe's
-// interpolation terms are not computed), the largest rule's total and the
+// probeMaxima returns the largest error parts (+Inf where a probe's
+// terms are not computed), the largest rule's total and the
 // stated CDF error (the largest table error plus rule's total, at most 1)
 // over the probes.
 func probeMaxima(ps []probeError) (parts [2]float64, rule, stated float64) {
@@ -978,7 +1033,8 @@ func (s *Site) lawError(kind lawKind, g int, k int64) (parts [2]float64, rule, s
 // failures and of the fleet's first failure, and returns the largest of
 // the rule's estimated totals (worst) and, where it exceeds tol (the rule
 // is then refined in the factor whose part is the larger), of its error
-// parts; otherwise the parts are bounds.
+// parts; otherwise the parts are not computed (+Inf where a factor has
+// spread).
 func (s *Site) probeRule(tol float64) (parts [2]float64, worst float64) {
 	G := len(s.names)
 	s.nodeAcc = make([]float64, G)

@@ -64,8 +64,10 @@ func TestSiteRuleErrorAgainstFinerReference(t *testing.T) {
 
 // lawProbes computes the interpolation terms only at the probes whose
 // bounds could raise the stated error or the rule's total: those must be
-// the same bits as computing every probe (lawError), the parts bounds of
-// the computed ones, and each probe's bound must hold.
+// the same bits as computing every probe (lawError), the parts at least
+// those computed (+Inf where a probe's are not), and each probe's bound
+// (interpBound's, from the slope cells between the two interpolants)
+// must hold.
 func TestSiteLawErrorPruned(t *testing.T) {
 	s, err := NewSite(TwoFactorSiteSpec(t))
 	require.NoError(t, err)

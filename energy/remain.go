@@ -112,7 +112,11 @@ type DeviceOptions struct {
 // effective number of nodes (DevicePosterior.EffectiveNodes) and the
 // stated error say so.
 //
-// A DeviceModel is an immutable value, safe for concurrent use.
+// A DeviceModel is an immutable value, safe for concurrent use. It keeps
+// the readings' likelihood tables for all its devices (one per pulse drop,
+// bin and noise, at most MaxCachedLattice points in all), filled as
+// devices need them: a cache that never changes an answer (each value is
+// a pure function of its key).
 type DeviceModel struct{ d *deviceData }
 
 type deviceData struct {
@@ -139,6 +143,9 @@ type deviceData struct {
 	// ones in EstimateSpread's models (the same factor at every candidate).
 	ridgeRef NodeSpread
 	voltage  float64 // V nominal cell voltage
+	// tables: the reading tables (remain_table.go), filled on use and
+	// shared with the models WithSpread derives; nil without a curve.
+	tables *readingCache
 }
 
 type eventCostData struct {
@@ -198,6 +205,7 @@ func NewDeviceModel(spec NodeSpec, env Environment, costs []EventCost, opt Devic
 	if spec.Voltage != nil {
 		v := *spec.Voltage
 		d.curve = &v
+		d.tables = &readingCache{}
 	}
 	ref := 20.0
 	if spec.Voltage != nil {

@@ -390,7 +390,8 @@ func (p DevicePosterior) FloorCurrent() PosteriorLaw {
 
 // evidence is a device's evidence at its newest event τ0 (alive there,
 // its kept readings), ready to be weighed at nodes (see logLik). It
-// belongs to one Posterior call (its reading tables fill lazily).
+// belongs to one Posterior call (its reading tables are the model's,
+// shared: see readingCache).
 type evidence struct {
 	d             *deviceData
 	capU, fe0, q0 float64
@@ -402,15 +403,13 @@ type evidence struct {
 
 // readTerm is one kept reading: the counted active energy (J), the floor
 // energy of the median board (J), the quiescent energy (J) and the
-// self-discharge depth by its time, the pulse drop (V/Ω) and its table.
-// Readings of one evidence with the same drop share their loaded curve,
-// and with the same bin and noise too, their table.
+// self-discharge depth by its time, the pulse drop (V/Ω) and its table
+// (with the loaded curve at that drop: vs and slope are the table's).
 type readTerm struct {
 	active, fe, q, sdd, drop float64
-	vs                       []float64 // the loaded voltage at the curve's depths at this drop
-	slope                    []float64 // slope[i]: vs's slope (V per unit depth) from depth i to i+1
-	tab                      *readingTable
-	tabBuf                   readingTable
+	vs                       []float64     // the loaded voltage at the curve's depths at this drop
+	slope                    []float64     // slope[i]: vs's slope (V per unit depth) from depth i to i+1
+	tab                      *readingTable // the model's (shared) or this call's own
 }
 
 // voltage returns the loaded voltage at depth dep in [0, 1] (loadedAt
@@ -438,32 +437,17 @@ func (d *deviceData) newEvidence(t *Tally, tau0 float64) *evidence {
 		drop := d.load * d.curve.ResistanceMultiplier(d.temp(r.tau))
 		rt := &e.rs[i]
 		*rt = readTerm{active: r.active, fe: d.floorE(r.tau), q: n.quiescent * r.tau, sdd: d.selfD(r.tau), drop: drop}
+		rt.tab = nil
 		for j := range i {
-			if o := &e.rs[j]; o.drop == drop {
-				rt.vs, rt.slope = o.vs, o.slope
-				if o.tab.lo == r.lo && o.tab.hi == r.hi && o.tab.sigma == r.noise {
-					rt.tab = o.tab
-				}
+			if o := &e.rs[j]; o.drop == drop && o.tab.lo == r.lo && o.tab.hi == r.hi && o.tab.sigma == r.noise {
+				rt.tab = o.tab
 				break
 			}
 		}
-		if rt.vs == nil {
-			ds := d.curve.DepthOfDischarge
-			np := len(ds)
-			buf := make([]float64, 2*np-1)
-			vs, sl := buf[:np:np], buf[np:]
-			for j := range vs {
-				vs[j] = d.curve.OpenCircuit[j] - drop*d.curve.Resistance[j]
-			}
-			for j := range sl {
-				sl[j] = (vs[j+1] - vs[j]) / (ds[j+1] - ds[j])
-			}
-			rt.vs, rt.slope = vs, sl
-		}
 		if rt.tab == nil {
-			rt.tabBuf = newReadingTable(rt.vs, r.lo, r.hi, r.noise)
-			rt.tab = &rt.tabBuf
+			rt.tab = d.readingTable(drop, r.lo, r.hi, r.noise)
 		}
+		rt.vs, rt.slope = rt.tab.vs, rt.tab.slope
 		if r.tau > newestTau {
 			newestTau, e.newest = r.tau, i
 		}
@@ -480,10 +464,12 @@ func (d *deviceData) newEvidence(t *Tally, tau0 float64) *evidence {
 // loaded voltage V alone. It is interpolated by the cubic through the
 // four nearest points of a lattice of step h <= readingStep·σ over the
 // loaded voltages the curve can give (depth 0 to 1 at the reading's
-// load), each lattice value computed the first time a node needs it (a
-// pure function of its index: the result does not depend on the order),
-// unless the lattice would exceed maxReadingLattice points (then g is
-// evaluated at each node). g is −V²/(2σ²) plus the cumulant generating
+// load), each lattice value computed the first time a node of any device
+// of the model needs it (the model's tables are shared: readingCache; a
+// value is a pure function of its table's key and index, so the result
+// does not depend on the order or on other devices), unless the lattice
+// would exceed maxReadingLattice points (then g is evaluated at each
+// node). g is −V²/(2σ²) plus the cumulant generating
 // function of the noise law restricted to the bin, so its fourth
 // derivative is κ₄/σ⁸ with κ₄ the fourth cumulant of N(V, σ²) truncated
 // to the bin; |κ₄| <= 0.382·σ⁴ over all bins (the worst, 0.3810·σ⁴, a
@@ -527,68 +513,6 @@ func (e *evidence) logLik(c, a, f, out []float64) {
 			out[k] += r.tab.at(r.voltage(ds, dep))
 		}
 	}
-}
-
-// maxReadingLattice caps a reading table's lattice (points).
-const maxReadingLattice = 4096
-
-// readingTable is a reading's log-likelihood term g(V) = log P(lo <=
-// V + ε < hi), ε ~ N(0, σ²), interpolated on a lazily filled lattice
-// (see likelihood). It belongs to one Posterior call (not shared).
-type readingTable struct {
-	lo, hi, sigma float64
-	v0, h, invH   float64   // lattice point j is at v0 + (j−1)·h; invH = 1/h
-	steps         int       // intervals covering the voltages; 0: evaluate directly
-	g             []float64 // len steps+3; NaN where not yet computed
-}
-
-// newReadingTable returns the table of the reading's term over the
-// voltages vs of the loaded curve (at the reading's pulse drop).
-func newReadingTable(vs []float64, lo, hi, sigma float64) readingTable {
-	t := readingTable{lo: lo, hi: hi, sigma: sigma}
-	vmin, vmax := math.Inf(1), math.Inf(-1)
-	for _, x := range vs {
-		vmin, vmax = math.Min(vmin, x), math.Max(vmax, x)
-	}
-	span := vmax - vmin
-	steps := max(int(math.Ceil(span/(readingStep*sigma))), 1)
-	if !(span > 0) || steps+3 > maxReadingLattice {
-		return t
-	}
-	t.v0, t.h, t.steps = vmin, span/float64(steps), steps
-	t.invH = 1 / t.h
-	t.g = make([]float64, steps+3)
-	for j := range t.g {
-		t.g[j] = math.NaN()
-	}
-	return t
-}
-
-// at returns g(x) for x in the curve's voltage range.
-func (t *readingTable) at(x float64) float64 {
-	if t.steps == 0 {
-		return logBin(x, t.lo, t.hi, t.sigma)
-	}
-	u := (x - t.v0) * t.invH
-	j := min(max(int(u), 0), t.steps-1)
-	y := t.g[j : j+4]
-	for i, gv := range y {
-		if math.IsNaN(gv) {
-			y[i] = logBin(t.v0+float64(j+i-1)*t.h, t.lo, t.hi, t.sigma)
-		}
-	}
-	return cubic4(y, u-float64(j))
-}
-
-// readingStep is the reading table's largest step in units of the
-// reading's noise σ (see likelihood).
-const readingStep = 0.4
-
-// cubic4 returns the cubic through (−1, y[0]), (0, y[1]), (1, y[2]),
-// (2, y[3]) at t (Lagrange's form).
-func cubic4(y []float64, t float64) float64 {
-	tm, t1, t2 := t+1, t-1, t-2
-	return (-t*t1*t2*y[0] + 3*tm*t1*t2*y[1] - 3*tm*t*t2*y[2] + tm*t*t1*y[3]) / 6
 }
 
 // maxOf returns the largest of x (−Inf for none; NaN entries are

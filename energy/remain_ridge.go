@@ -213,11 +213,12 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 		return nil, nil, nil, nil, nil, false
 	}
 	nom := n.nominal
-	// node maps the newest reading's voltage v and the other two scores
-	// (the entries of zz other than the solved one) to the node: the solved score, the factors and
-	// log|dz_s/dV|; ok false where the curve does not reach v or the
-	// solved factor is not positive.
-	node := func(v float64, zz *[3]float64) (c, a, f, logJ float64, ok bool) {
+	// node maps the newest reading's voltage v, the other two scores
+	// (the entries of zz other than the solved one) and their factors (c,
+	// a, f: the entry of the solved one is ignored) to the node: the
+	// solved score, the factors and |dz_s/dV|; ok false where the curve
+	// does not reach v or the solved factor is not positive.
+	node := func(v float64, zz *[3]float64, c, a, f float64) (float64, float64, float64, float64, bool) {
 		j := 0
 		for j < np-1 && vs[j+1] > v {
 			j++
@@ -228,7 +229,6 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 		x0, x1 := cv.DepthOfDischarge[j], cv.DepthOfDischarge[j+1]
 		slope := (vs[j+1] - vs[j]) / (x1 - x0) // < 0
 		x := x0 + (v-vs[j])/slope
-		c, a, f = 1+sp.Capacity*zz[0], 1+sp.Active*zz[1], math.Exp(sp.Floor*zz[2])
 		net := x - nr.sdd // the depth the spending pays for
 		var dzdx float64
 		switch solve {
@@ -251,7 +251,7 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 			zz[2] = math.Log(f) / sp.Floor
 			dzdx = c * nom / (nr.fe * f * sp.Floor)
 		}
-		return c, a, f, math.Log(dzdx / -slope), true
+		return c, a, f, dzdx / -slope, true
 	}
 	// The proposal's location and scale: the mean and standard deviation
 	// of the voltage's conditional density at the median other scores,
@@ -271,12 +271,12 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 		step = (hi - lo) / (ridgeGrid - 1)
 		for i := range gv {
 			gv[i] = lo + float64(i)*step
-			var zz [3]float64
-			c, a, f, lj, ok := node(gv[i], &zz)
+			var zz [3]float64 // the median other scores: factors 1
+			c, a, f, jac, ok := node(gv[i], &zz, 1, 1, 1)
 			gh[i] = math.Inf(-1)
 			if ok {
 				gc[i], ga[i], gf[i] = c, a, f
-				gh[i] = lj - 0.5*zz[solve]*zz[solve]
+				gh[i] = math.Log(jac) - 0.5*zz[solve]*zz[solve]
 			}
 		}
 		e.logLik(gc[:], ga[:], gf[:], gh[:])
@@ -312,8 +312,12 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 	scale := ridgeWiden * math.Sqrt(math.Max(m2/m0-mu*mu, 0)+step*step)
 	// The profile's own law: exp(h) log-linear between the grid points
 	// (cell i from gv[i] to gv[i+1]; a cell with an end where h = −Inf has
-	// no mass), and its cumulative masses.
-	var mass [ridgeGrid]float64 // mass[i]: cells below i; mass[ridgeGrid-1] the total
+	// no mass), its values eh = exp(h − hmax) at the points and its
+	// cumulative masses.
+	var mass, eh [ridgeGrid]float64 // mass[i]: cells below i; mass[ridgeGrid-1] the total
+	for i, h := range gh {
+		eh[i] = math.Exp(h - hmax)
+	}
 	for i := 0; i < ridgeGrid-1; i++ {
 		mass[i+1] = mass[i] + cellMass(gh[i]-hmax, gh[i+1]-hmax, step)
 	}
@@ -324,45 +328,54 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 	tConst := ridgeDefensive * 3 / (8 * scale)
 	gConst := (1 - ridgeDefensive) / tot
 	zs = make([][3]float64, m)
-	logw, cs, as, fs = make([]float64, m), make([]float64, m), make([]float64, m), make([]float64, m)
+	buf := make([]float64, 4*m)
+	logw, cs, as, fs = buf[:m:m], buf[m:2*m:2*m], buf[2*m:3*m:3*m], buf[3*m:]
 	logPhi := -0.5 * math.Log(2*math.Pi)
 	for k := range m {
 		zz := d.z[k]
 		u := d.u[k][solve]
-		var v float64
+		var v, qg float64 // the voltage and the profile's density there over exp(hmax)
 		if u < ridgeDefensive {
 			v = mu + scale*studentT4Quantile(u/ridgeDefensive)
-		} else {
-			// invert the profile's cumulative mass
-			r := (u - ridgeDefensive) / (1 - ridgeDefensive) * tot
-			i := 0
-			for i < ridgeGrid-2 && mass[i+1] <= r {
-				i++
+			if v >= gv[0] && v < gv[ridgeGrid-1] {
+				i := min(int((v-gv[0])/step), ridgeGrid-2)
+				h0, h1 := gh[i]-hmax, gh[i+1]-hmax
+				if !math.IsInf(h0, -1) && !math.IsInf(h1, -1) {
+					qg = math.Exp(h0 + (h1-h0)*(v-gv[i])/step)
+				}
 			}
-			v = gv[i] + cellInverse(gh[i]-hmax, gh[i+1]-hmax, step, r-mass[i])
+		} else {
+			// invert the profile's cumulative mass: the cell by bisection,
+			// then within it in closed form (cellPoint, which gives the
+			// profile's value there without another exponential)
+			r := (u - ridgeDefensive) / (1 - ridgeDefensive) * tot
+			i, j := 0, ridgeGrid-2 // the first cell i with mass[i+1] > r, at most the last
+			for i < j {
+				h := int(uint(i+j) >> 1)
+				if mass[h+1] <= r {
+					i = h + 1
+				} else {
+					j = h
+				}
+			}
+			var t float64
+			t, qg = cellPoint(gh[i]-hmax, gh[i+1]-hmax, eh[i], eh[i+1], step, r-mass[i], mass[i+1]-mass[i])
+			v = gv[i] + t
 		}
 		// the mixture's density at v: the t component's, (1 + t²/4)^(−5/2)
 		// times its constant, plus the profile's (0 where it underflows:
 		// the t component's is then far larger)
 		tv := (v - mu) / scale
 		x := 1 + tv*tv/4
-		q := tConst / (x * x * math.Sqrt(x))
-		if v >= gv[0] && v < gv[ridgeGrid-1] {
-			i := min(int((v-gv[0])/step), ridgeGrid-2)
-			h0, h1 := gh[i]-hmax, gh[i+1]-hmax
-			if !math.IsInf(h0, -1) && !math.IsInf(h1, -1) {
-				q += gConst * math.Exp(h0+(h1-h0)*(v-gv[i])/step)
-			}
-		}
-		lq := math.Log(q)
-		c, a, f, lj, ok := node(v, &zz)
+		q := tConst/(x*x*math.Sqrt(x)) + gConst*qg
+		c, a, f, jac, ok := node(v, &zz, d.c[k], d.a[k], d.f[k])
 		zs[k] = zz
 		if !ok {
 			logw[k] = math.Inf(-1)
 			continue
 		}
 		cs[k], as[k], fs[k] = c, a, f
-		logw[k] = logPhi - 0.5*zz[solve]*zz[solve] + lj - lq
+		logw[k] = logPhi - 0.5*zz[solve]*zz[solve] + math.Log(jac/q)
 	}
 	e.logLik(cs, as, fs, logw)
 	return zs, logw, cs, as, fs, true
@@ -381,26 +394,28 @@ func cellMass(h0, h1, h float64) float64 {
 	return h * (math.Exp(h1) - math.Exp(h0)) / b
 }
 
-// cellInverse returns t in [0, h] with ∫₀ᵗ exp(h0 + (h1 − h0)·s/h) ds = r
-// (r at most the cell's mass).
-func cellInverse(h0, h1, h, r float64) float64 {
+// cellPoint returns t in [0, h] with ∫₀ᵗ exp(h0 + (h1 − h0)·s/h) ds = r
+// for a cell of width h, h0, h1 <= 0 finite, e0 = exp(h0), e1 = exp(h1),
+// r at most the cell's mass cm (cellMass), and the density there,
+// exp(h0 + (h1 − h0)·t/h), without another exponential: with b = (h1 −
+// h0)/h, e^(b·t) = 1 + b·r/e0 and the density is e0 + b·r; from the
+// upper end where e1 > e0 (e0 may underflow), with r' = cm − r, the
+// density is e1 − b·r' and h − t = −log1p(−b·r'/e1)/b.
+func cellPoint(h0, h1, e0, e1, h, r, cm float64) (t, dens float64) {
 	b := (h1 - h0) / h
-	var y float64 // r·e^(−h0), bounded by the cell's mass over e^h0
-	if h0 > -700 {
-		y = r * math.Exp(-h0)
-	} else {
-		y = math.Exp(math.Log(r) - h0) // e^(−h0) would overflow
-	}
-	var t float64
-	if math.Abs(b*h) < 1e-9 {
-		t = y
-	} else {
-		t = math.Log1p(b*y) / b
+	switch {
+	case math.Abs(b*h) < 1e-9:
+		t, dens = r/e0, e0+b*r
+	case e0 >= e1:
+		t, dens = math.Log1p(b*r/e0)/b, e0+b*r
+	default:
+		rest := math.Max(cm-r, 0)
+		t, dens = h+math.Log1p(-b*rest/e1)/b, e1-b*rest
 	}
 	if !(t >= 0) {
-		return 0
+		t = 0
 	}
-	return math.Min(t, h)
+	return math.Min(t, h), math.Min(math.Max(dens, math.Min(e0, e1)), math.Max(e0, e1))
 }
 
 // studentT4Quantile returns the p-quantile of Student's t law with 4

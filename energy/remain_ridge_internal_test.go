@@ -23,25 +23,37 @@ func TestStudentT4Quantile(t *testing.T) {
 }
 
 // TestCellMass checks the log-linear cell's mass against adaptive
-// quadrature (internal/quad) of its density, and cellInverse as the
-// inverse of the partial mass (the closed form on [0, t]).
+// quadrature (internal/quad) of its density, and cellPoint as the
+// inverse of the partial mass (the closed form on [0, t]) with the
+// density there (the closed form).
 func TestCellMass(t *testing.T) {
 	for _, tc := range []struct{ h0, h1, h float64 }{
-		{0, 0, 0.01}, {-1, 0, 0.005}, {0, -30, 0.002}, {-700, -690, 0.01}, {-5, -5 + 1e-12, 0.3}, {-2, -1, 1},
+		{0, 0, 0.01}, {-1, 0, 0.005}, {0, -30, 0.002}, {-700, -690, 0.01}, {-5, -5 + 1e-12, 0.3}, {-2, -1, 1}, {-60, -2, 0.01}, {-760, -2, 0.01},
 	} {
-		want, err := quad.Adaptive(func(s float64) float64 {
-			return math.Exp(tc.h0 + (tc.h1-tc.h0)*s/tc.h)
-		}, 0, tc.h, quad.Options{AbsTol: 0, RelTol: 1e-13})
-		require.NoError(t, err)
 		got := cellMass(tc.h0, tc.h1, tc.h)
-		require.InDelta(t, 1, got/want.Value, 1e-10, "%+v", tc)
+		if tc.h0 > -745 {
+			want, err := quad.Adaptive(func(s float64) float64 {
+				return math.Exp(tc.h0 + (tc.h1-tc.h0)*s/tc.h)
+			}, 0, tc.h, quad.Options{AbsTol: 0, RelTol: 1e-13})
+			require.NoError(t, err)
+			require.InDelta(t, 1, got/want.Value, 1e-10, "%+v", tc)
+		} else {
+			// e^h0 underflows: the mass is e^h1·h/(h1 − h0) to double
+			// precision (closed form).
+			require.InDelta(t, 1, got/(math.Exp(tc.h1)*tc.h/(tc.h1-tc.h0)), 1e-14, "%+v", tc)
+		}
 		for _, frac := range []float64{0, 0.1, 0.5, 0.9, 1} {
 			r := frac * got
-			x := cellInverse(tc.h0, tc.h1, tc.h, r)
+			x, dens := cellPoint(tc.h0, tc.h1, math.Exp(tc.h0), math.Exp(tc.h1), tc.h, r, got)
 			require.GreaterOrEqual(t, x, 0.0)
 			require.LessOrEqual(t, x, tc.h)
-			part := cellMass(tc.h0, tc.h0+(tc.h1-tc.h0)*x/tc.h, x)
+			hx := tc.h0 + (tc.h1-tc.h0)*x/tc.h
+			part := cellMass(tc.h0, hx, x)
 			require.InDelta(t, r, part, 1e-9*got, "%+v frac %g", tc, frac)
+			// the density within 1e-9 of itself, or 1e-15 of the cell's
+			// top where it underflows (rounding of e1 − b·r')
+			top := math.Exp(math.Max(tc.h0, tc.h1))
+			require.InDelta(t, math.Exp(hx), dens, 1e-9*math.Exp(hx)+1e-15*top, "%+v frac %g", tc, frac)
 		}
 	}
 	require.Zero(t, cellMass(math.Inf(-1), 0, 1))

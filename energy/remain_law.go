@@ -12,6 +12,13 @@ import (
 	"github.com/joulelaw/joulelaw/internal/root"
 )
 
+// rootNear is the half-width, in units of the widest kernel's standard
+// deviation, of the bracket a quantile's search tries first around the
+// node where the nodes' cumulative weight reaches the level (measured on
+// the benchmark's devices: 11 to 21 % fewer evaluations than starting
+// from ±(kernelReach+2) of them).
+const rootNear = 0.5
+
 // kernelReach is how many of its own standard deviations from a node its
 // kernel is evaluated; beyond it the kernel's mass (Φ̄(10) < 7.7e-24) is
 // counted as wholly on one side.
@@ -157,9 +164,23 @@ func orderBits(x float64) uint64 {
 // window returns the nodes [i, j) whose kernels reach x.
 func (p *postLaw) window(x float64) (i, j int) {
 	r := kernelReach * p.smax
-	i = sort.SearchFloat64s(p.m, x-r)
-	j = sort.Search(len(p.m), func(k int) bool { return p.m[k] > x+r })
-	return i, j
+	return searchFloats(p.m, x-r, false), searchFloats(p.m, x+r, true)
+}
+
+// searchFloats returns the first index i of the ascending xs with xs[i] >=
+// x (xs[i] > x when strict), len(xs) for none: sort.SearchFloat64s's
+// bisection without a call per step.
+func searchFloats(xs []float64, x float64, strict bool) int {
+	i, j := 0, len(xs)
+	for i < j {
+		h := int(uint(i+j) >> 1)
+		if xs[h] < x || (strict && xs[h] == x) {
+			i = h + 1
+		} else {
+			j = h
+		}
+	}
+	return i
 }
 
 // rawCDF is P(X <= x) for the unclamped mixture.
@@ -246,9 +267,7 @@ func (l PosteriorLaw) Quantile(prob float64) float64 {
 	case prob == 1:
 		return p.sHi
 	}
-	if l.CDF(p.sLo) >= prob {
-		return p.sLo
-	}
+	// (a level the low end's atom reaches gives the low end: root)
 	k := sort.Search(len(p.m), func(k int) bool { return p.below[k+1] >= prob })
 	k = min(k, len(p.m)-1)
 	return p.root(k, func(x float64) float64 { return l.CDF(x) - prob })
@@ -266,9 +285,7 @@ func (l PosteriorLaw) UpperQuantile(q float64) float64 {
 	case q == 0:
 		return p.sHi
 	}
-	if l.Survival(p.sLo) <= q {
-		return p.sLo
-	}
+	// the low end where its atom leaves at most q above it (root); else
 	// the node where the mass above falls to q
 	k := sort.Search(len(p.m), func(k int) bool { return p.above[k+1] <= q })
 	k = min(k, len(p.m)-1)
@@ -277,26 +294,34 @@ func (l PosteriorLaw) UpperQuantile(q float64) float64 {
 
 // root finds the smallest x with g(x) >= 0 (g non-decreasing), to a
 // relative 1e-10 of the bracket's scale, starting from a bracket around
-// node k: the library's one root finder (internal/root: regula falsi
-// with the Illinois modification, Dowell and Jarratt, BIT 11 (1971)
-// 168–174, with a bisection step whenever the bracket has not halved in
-// three steps, so that a step-shaped g (point nodes) still halves the
-// bracket at least every fourth step).
+// node k (±rootNear·smax, widened to ±(kernelReach+2)·smax and then to
+// the support's end on a side whose sign is wrong): the library's one
+// root finder (internal/root: regula falsi with the Illinois
+// modification, Dowell and Jarratt, BIT 11 (1971) 168–174, with a
+// bisection step whenever the bracket has not halved in three steps, so
+// that a step-shaped g (point nodes) still halves the bracket at least
+// every fourth step). A g(x) >= 0 at the support's low end gives that end.
 func (p *postLaw) root(k int, g func(float64) float64) float64 {
 	r := (kernelReach + 2) * p.smax
-	a := math.Max(p.sLo, p.m[k]-r)
-	b := math.Min(p.sHi, p.m[k]+r)
+	a := math.Max(p.sLo, p.m[k]-rootNear*p.smax)
 	ga := g(a)
-	if ga >= 0 && a > p.sLo {
-		a = p.sLo
+	for _, lo := range [2]float64{math.Max(p.sLo, p.m[k]-r), p.sLo} {
+		if ga < 0 || a <= p.sLo {
+			break
+		}
+		a = lo
 		ga = g(a)
 	}
 	if ga >= 0 {
 		return a
 	}
+	b := math.Min(p.sHi, p.m[k]+rootNear*p.smax)
 	gb := g(b)
-	if gb < 0 {
-		b = p.sHi
+	for _, hi := range [2]float64{math.Min(p.sHi, p.m[k]+r), p.sHi} {
+		if gb >= 0 || b >= p.sHi {
+			break
+		}
+		b = hi
 		gb = g(b)
 	}
 	scale := math.Max(math.Abs(a), math.Abs(b))

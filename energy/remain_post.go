@@ -155,9 +155,13 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		if !ok {
 			break
 		}
-		nz := make([][3]float64, Ms)
-		nl := make([]float64, Ms)
-		nc, na, nf := make([]float64, Ms), make([]float64, Ms), make([]float64, Ms)
+		// The try's points: the first M only, where the stage set is
+		// larger, until the rest are placed (most tries stop there).
+		n0 := Ms
+		if M < Ms {
+			n0 = M
+		}
+		nz, nl, nc, na, nf := stagePoints(n0)
 		logDet := math.Log(l[0][0]) + math.Log(l[1][1]) + math.Log(l[2][2])
 		place := func(from, to int) {
 			for k := from; k < to; k++ {
@@ -196,6 +200,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 				widen *= 3
 				continue
 			}
+			nz, nl, nc, na, nf = growStage(nz, nl, nc, na, nf, Ms)
 			place(M, Ms)
 		} else {
 			place(0, Ms)
@@ -244,6 +249,26 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	pd.ess = ess
 	pd.unresolved = pd.stages == 1 && ess < math.Min(float64(len(d.c))/4, minResolvedNodes)
 	return DevicePosterior{p: pd}, nil
+}
+
+// stagePoints returns room for n points of a stage (scores, log weights,
+// factors c, a, f), the float slices in one allocation.
+func stagePoints(n int) (z [][3]float64, l, cs, as, fs []float64) {
+	z = make([][3]float64, n)
+	buf := make([]float64, 4*n)
+	return z, buf[:n:n], buf[n : 2*n : 2*n], buf[2*n : 3*n : 3*n], buf[3*n:]
+}
+
+// growStage returns the stage's points extended to length n, the first
+// ones kept.
+func growStage(z [][3]float64, l, cs, as, fs []float64, n int) ([][3]float64, []float64, []float64, []float64, []float64) {
+	nz, nl, nc, na, nf := stagePoints(n)
+	copy(nz, z)
+	copy(nl, l)
+	copy(nc, cs)
+	copy(na, as)
+	copy(nf, fs)
+	return nz, nl, nc, na, nf
 }
 
 // loadedAt is LoadedVoltage with the pulse drop I·M(T) given (V/Ω), for

@@ -327,9 +327,7 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 	// 1/tot; each times its share.
 	tConst := ridgeDefensive * 3 / (8 * scale)
 	gConst := (1 - ridgeDefensive) / tot
-	zs = make([][3]float64, m)
-	buf := make([]float64, 4*m)
-	logw, cs, as, fs = buf[:m:m], buf[m:2*m:2*m], buf[2*m:3*m:3*m], buf[3*m:]
+	zs, logw, cs, as, fs = stagePoints(m)
 	logPhi := -0.5 * math.Log(2*math.Pi)
 	for k := range m {
 		zz := d.z[k]

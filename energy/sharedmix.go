@@ -32,6 +32,11 @@ type sharedMixture struct {
 	// conditional laws are the earliest and the latest): the quantiles try
 	// their bracket first and check it on the mixture.
 	corners []int
+	// seed, when set, returns a time t0 (s) where a cheap approximation
+	// of the mixture's probit reaches target, with the approximation's
+	// slope there (1/s), or false: the quantiles start from it (seedSolve)
+	// before the corners, and check every step on the mixture itself.
+	seed func(target float64) (t0, slope float64, ok bool)
 }
 
 type mixLazy struct {
@@ -88,18 +93,97 @@ func (m sharedMixture) probit(t float64) float64 {
 	return std.UpperQuantile(m.Survival(t))
 }
 
+// probitAbove is probit for a search whose answer lies where the
+// survival is below 1/2: the survival first (one sum where it is below
+// 1/2, as it is near that answer), the CDF only where it is not.
+func (m sharedMixture) probitAbove(t float64) float64 {
+	std := dist.MustNormal(0, 1)
+	if s := m.Survival(t); s < 0.5 {
+		return std.UpperQuantile(s)
+	}
+	return std.Quantile(m.CDF(t))
+}
+
+// probitFor returns the probit the search for target evaluates: probit,
+// or probitAbove for a target above 0 (where each evaluation near the
+// answer then sums one side instead of two).
+func (m sharedMixture) probitFor(target float64) func(float64) float64 {
+	if target > 0 {
+		return m.probitAbove
+	}
+	return m.probit
+}
+
+// seedSolve returns the smallest t (to 1e-12 relative) whose probit
+// reaches target, starting from the seed's t0 and slope (+Inf at a jump,
+// such as a calendar limit's atom): a step along the seed's slope (at
+// least half the tolerance), then secant steps, 25 % longer, until the
+// mixture's probit changes sign (at most 8 steps), and the library's root
+// finder in that bracket. False where the seed fails or no bracket is
+// found.
+func (m sharedMixture) seedSolve(target float64) (float64, bool) {
+	if m.seed == nil {
+		return 0, false
+	}
+	t0, slope, ok := m.seed(target)
+	if !ok || !finite(t0) || !(slope > 0) {
+		return 0, false
+	}
+	pr := m.probitFor(target)
+	g := func(t float64) float64 { return pr(t) - target }
+	tol := math.Max(1e-12*math.Abs(t0), 0x1p-1022)
+	x, gx := t0, g(t0)
+	if math.IsNaN(gx) {
+		return 0, false
+	}
+	step := -gx / slope
+	if math.IsInf(gx, 0) || math.IsNaN(step) {
+		step = 0
+	}
+	if gx >= 0 {
+		step = math.Min(step, -tol/2)
+	} else {
+		step = math.Max(step, tol/2)
+	}
+	for range 8 {
+		y := x + step
+		gy := g(y)
+		if math.IsNaN(gy) {
+			return 0, false
+		}
+		if (gy >= 0) != (gx >= 0) {
+			a, ga, b, gb := x, gx, y, gy
+			if y < x {
+				a, ga, b, gb = y, gy, x, gx
+			}
+			return root.Illinois(g, a, b, ga, gb, 1e-12*math.Abs(b)), true
+		}
+		// The same side: the secant's step from y, 25 % longer, at
+		// least the last step doubled where the secant is of no use.
+		next := 2 * step
+		if d := gy - gx; d != 0 && finite(d) && finite(gy) {
+			if s := -1.25 * gy * (y - x) / d; s*step > 0 {
+				next = s
+			}
+		}
+		x, gx, step = y, gy, next
+	}
+	return 0, false
+}
+
 // solve returns the smallest t (to 1e-12 relative) in [lo, hi] whose
 // probit reaches target, the bracket being the components' answers: the
 // library's one root finder (internal/root: regula falsi with the
 // Illinois modification on the probit, which is nearly linear in t,
 // bisecting where the probit is infinite, at a calendar limit).
 func (m sharedMixture) solve(lo, hi, target float64) float64 {
-	zlo := m.probit(lo)
+	pr := m.probitFor(target)
+	zlo := pr(lo)
 	if zlo >= target {
 		return lo
 	}
-	g := func(t float64) float64 { return m.probit(t) - target }
-	return root.Illinois(g, lo, hi, zlo-target, m.probit(hi)-target, 1e-12*math.Abs(hi))
+	g := func(t float64) float64 { return pr(t) - target }
+	return root.Illinois(g, lo, hi, zlo-target, pr(hi)-target, 1e-12*math.Abs(hi))
 }
 
 // span returns the smallest and largest of the components' answers q(l).
@@ -139,11 +223,12 @@ func (m sharedMixture) cornerSolve(q func(dist.Law) float64, target float64) (fl
 		// One unit below the lowest, so that an answer at it (an atom there,
 		// such as a calendar limit that every corner reaches) is inside.
 		a := math.Nextafter(lo, math.Inf(-1))
-		za, zb := m.probit(a), m.probit(hi)
+		pr := m.probitFor(target)
+		za, zb := pr(a), pr(hi)
 		if !(za < target && zb >= target) {
 			return 0, false
 		}
-		g := func(t float64) float64 { return m.probit(t) - target }
+		g := func(t float64) float64 { return pr(t) - target }
 		return root.Illinois(g, a, hi, za-target, zb-target, 1e-12*math.Abs(hi)), true
 	}
 	n := len(m.corners)
@@ -167,6 +252,9 @@ func (m sharedMixture) Quantile(p float64) float64 {
 	}
 	target := dist.MustNormal(0, 1).Quantile(p)
 	if p > 0 && p < 1 {
+		if t, ok := m.seedSolve(target); ok {
+			return t
+		}
 		if t, ok := m.cornerSolve(func(l dist.Law) float64 { return l.Quantile(p) }, target); ok {
 			return t
 		}
@@ -189,6 +277,9 @@ func (m sharedMixture) UpperQuantile(q float64) float64 {
 	}
 	target := dist.MustNormal(0, 1).UpperQuantile(q)
 	if q > 0 && q < 1 {
+		if t, ok := m.seedSolve(target); ok {
+			return t
+		}
 		if t, ok := m.cornerSolve(func(l dist.Law) float64 { return l.UpperQuantile(q) }, target); ok {
 			return t
 		}

@@ -18,31 +18,7 @@ import (
 // at the ends (they bracket), in the middle (they do not: the fallback),
 // and none.
 func TestSharedMixtureQuantileCorners(t *testing.T) {
-	means := []float64{10, 20, 30, 40, 50}
-	w := []float64{0.0113, 0.2221, 0.5333, 0.2221, 0.0113}
-	tot := 0.0
-	for _, x := range w {
-		tot += x
-	}
-	laws := make([]dist.Law, len(means))
-	for i, m := range means {
-		w[i] /= tot
-		laws[i] = dist.MustNormal(m, 3)
-	}
-	cdf := func(x float64) float64 {
-		s := 0.0
-		for i, m := range means {
-			s += w[i] * distuv.Normal{Mu: m, Sigma: 3}.CDF(x)
-		}
-		return s
-	}
-	surv := func(x float64) float64 {
-		s := 0.0
-		for i, m := range means {
-			s += w[i] * distuv.Normal{Mu: m, Sigma: 3}.Survival(x)
-		}
-		return s
-	}
+	w, laws, cdf, surv := fiveNormals()
 	for _, c := range []struct {
 		name    string
 		corners []int
@@ -103,3 +79,76 @@ type quantileCounter struct {
 }
 
 func (q quantileCounter) Quantile(p float64) float64 { *q.n++; return q.Law.Quantile(p) }
+
+// A seed (sharedMixture.seed) starts the quantile search; every step is
+// checked on the mixture, so a seed off by much, or on the wrong side,
+// still gives the answer, and one that fails leaves the corners'. Checked
+// on the five normals of TestSharedMixtureQuantileCorners against their
+// CDF by gonum's distuv.Normal (the answer to 1e-12 relative, as there):
+// seeds from the mixture's own probit shifted by 0, ±0.01 and ±2 (in time)
+// with slopes 0.5 to 2 times the true one, and a seed that fails. A seed
+// that holds asks no component quantile (counted: Quantile's).
+func TestSharedMixtureQuantileSeeded(t *testing.T) {
+	w, laws, cdf, surv := fiveNormals()
+	n := 0
+	for i, l := range laws {
+		laws[i] = quantileCounter{l, &n}
+	}
+	base := newSharedMixture("test", w, laws)
+	base.corners = []int{0, 4}
+	for _, c := range []struct {
+		shift, slope float64 // the seed's error in time and its slope's factor
+		fail         bool
+	}{{0, 1, false}, {0.01, 0.5, false}, {-0.01, 2, false}, {2, 1, false}, {-2, 0.7, false}, {0, 1, true}} {
+		m := base
+		m.seed = func(target float64) (float64, float64, bool) {
+			if c.fail {
+				return 0, 0, false
+			}
+			x := base.solve(-100, 200, target) // the mixture's own answer (the corners' fallback)
+			h := 1e-6 * x
+			return x + c.shift, c.slope * (base.probit(x+h) - base.probit(x-h)) / (2 * h), true
+		}
+		for _, p := range []float64{1e-9, 0.01, 0.3, 0.5, 0.9, 0.999} {
+			n = 0
+			x := m.Quantile(p)
+			assert.InDelta(t, p, cdf(x), 1e-9*p+1e-15, "seed %+v: CDF at Quantile(%g)", c, p)
+			assert.Less(t, cdf(x-1e-10*math.Abs(x)), p, "seed %+v: Quantile(%g) is the smallest", c, p)
+			u := m.UpperQuantile(p)
+			assert.InDelta(t, p, surv(u), 1e-9*p+1e-15, "seed %+v: Survival at UpperQuantile(%g)", c, p)
+			assert.Greater(t, surv(u-1e-10*math.Abs(u)), p, "seed %+v: UpperQuantile(%g) is the smallest", c, p)
+			if c.fail {
+				assert.Equal(t, 2, n, "seed %+v: the corners' quantiles at %g (Quantile's, counted)", c, p)
+			} else {
+				assert.Zero(t, n, "seed %+v: component quantiles asked at %g", c, p)
+			}
+		}
+	}
+}
+
+// fiveNormals returns the mixture of TestSharedMixtureQuantileCorners:
+// normals of sd 3 at 10 to 50 with the weights of a 5-node Gauss–Hermite
+// rule, and its CDF and survival by gonum's distuv.Normal.
+func fiveNormals() (w []float64, laws []dist.Law, cdf, surv func(float64) float64) {
+	means := []float64{10, 20, 30, 40, 50}
+	w = []float64{0.0113, 0.2221, 0.5333, 0.2221, 0.0113}
+	tot := 0.0
+	for _, x := range w {
+		tot += x
+	}
+	laws = make([]dist.Law, len(means))
+	for i, m := range means {
+		w[i] /= tot
+		laws[i] = dist.MustNormal(m, 3)
+	}
+	sum := func(f func(distuv.Normal) float64) float64 {
+		s := 0.0
+		for i, m := range means {
+			s += w[i] * f(distuv.Normal{Mu: m, Sigma: 3})
+		}
+		return s
+	}
+	cdf = func(x float64) float64 { return sum(func(d distuv.Normal) float64 { return d.CDF(x) }) }
+	surv = func(x float64) float64 { return sum(func(d distuv.Normal) float64 { return d.Survival(x) }) }
+	return w, laws, cdf, surv
+}

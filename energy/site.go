@@ -307,8 +307,9 @@ func (s Site) siteMethod() string {
 	return fmt.Sprintf("mixture over the shared factors (batch %s, temperature %s; error estimated against an interpolated fine rule) of tabulated conditional laws", r(0), r(1))
 }
 
-// mixStated is mix with the mixture's stated CDF error from stated.
-func (s Site) mixStated(fn string, stated func() float64, each func(e *siteEnv) (dist.Law, error)) (dist.Law, error) {
+// mixStated is mix with the mixture's stated CDF error from stated, for
+// kind's law (group g, rank k: seedFor seeds its quantile searches).
+func (s Site) mixStated(fn string, stated func() float64, kind lawKind, g int, k int64, each func(e *siteEnv) (dist.Law, error)) (dist.Law, error) {
 	l, err := s.mix(fn, each)
 	if err != nil {
 		return nil, err
@@ -316,6 +317,7 @@ func (s Site) mixStated(fn string, stated func() float64, each func(e *siteEnv) 
 	if m, ok := l.(sharedMixture); ok {
 		sm := newStatedMixture(m.name, m.w, m.laws, s.siteMethod(), stated)
 		sm.corners = s.corners()
+		sm.seed = s.seedFor(kind, g, k)
 		return sm, nil
 	}
 	return l, nil
@@ -372,7 +374,7 @@ func (s Site) NodeLifetime(i int) (dist.Law, error) {
 	if i < 0 || i >= len(s.names) {
 		return nil, paramErr(fn, "i", i, fmt.Sprintf("must be in [0, %d)", len(s.names)))
 	}
-	return s.mixStated(fn, func() float64 { return s.nodeAcc[i] }, func(e *siteEnv) (dist.Law, error) { return e.laws[i], nil })
+	return s.mixStated(fn, func() float64 { return s.nodeAcc[i] }, kindNode, i, 0, func(e *siteEnv) (dist.Law, error) { return e.laws[i], nil })
 }
 
 // Conditional returns the lifetime law of a node of group i given the
@@ -388,7 +390,7 @@ func (s Site) Conditional(i int, c Conditions) (NodeLifetime, error) {
 // FirstFailure returns the law of the date (s) of the first flat battery in
 // the fleet: the mixture over the shared factors of Π_g S_g(t)^{n_g}.
 func (s Site) FirstFailure() (dist.Law, error) {
-	return s.mixStated("Site.FirstFailure", func() float64 { return s.fleetAcc }, func(e *siteEnv) (dist.Law, error) { return e.fleet.FirstFailure() })
+	return s.mixStated("Site.FirstFailure", func() float64 { return s.fleetAcc }, kindFleet, 0, 0, func(e *siteEnv) (dist.Law, error) { return e.fleet.FirstFailure() })
 }
 
 // GroupFirstFailure returns the law of the date (s) of the first flat
@@ -398,7 +400,7 @@ func (s Site) GroupFirstFailure(i int) (dist.Law, error) {
 	if i < 0 || i >= len(s.names) {
 		return nil, paramErr(fn, "i", i, fmt.Sprintf("must be in [0, %d)", len(s.names)))
 	}
-	return s.mixStated(fn, func() float64 { return s.firstAcc[i] }, func(e *siteEnv) (dist.Law, error) {
+	return s.mixStated(fn, func() float64 { return s.firstAcc[i] }, kindFirst, i, 0, func(e *siteEnv) (dist.Law, error) {
 		return orderstat.MinOfGroups([]orderstat.Group{{Law: e.laws[i], Count: s.spec.Groups[i].Count}})
 	})
 }
@@ -408,7 +410,7 @@ func (s Site) GroupFirstFailure(i int) (dist.Law, error) {
 func (s Site) FractionFailed(q float64) (dist.Law, error) {
 	k := max(1, int64(math.Ceil(q*float64(s.Size()))))
 	stated := func() float64 { _, _, st := s.lawError(kindKth, 0, k); return st }
-	return s.mixStated("Site.FractionFailed", stated, func(e *siteEnv) (dist.Law, error) { return e.fleet.FractionFailed(q) })
+	return s.mixStated("Site.FractionFailed", stated, kindKth, 0, k, func(e *siteEnv) (dist.Law, error) { return e.fleet.FractionFailed(q) })
 }
 
 // FailedBy returns the law of the number of flat batteries at the date t

@@ -910,6 +910,87 @@ func (s *Site) probeTimesWith(sc *ruleScratch, kind lawKind, g int, k int64) []f
 	return sortedUnique(append(ts, edgesT...))
 }
 
+// seedFor returns the seed of the quantile searches on kind's mixture
+// (sharedMixture.seed): where a cheap approximation of the mixture's
+// probit reaches the target (internal/root between the tables' earliest
+// start and latest end, to 1e-13 relative), with its slope there by a
+// central difference (+Inf at a jump). The approximation of a node law, a first failure or
+// the fleet's is the rule's own mixture of the conditional laws' tables
+// (mixZ at the nodes: the same law but for the tables' rounding); of the
+// k-th failure, the normal approximation of each shared point's
+// Poisson-binomial count (continuity-corrected). A seed only starts the
+// search: every step is checked on the mixture itself.
+func (s Site) seedFor(kind lawKind, g int, k int64) func(target float64) (t0, slope float64, ok bool) {
+	if len(s.envs) < 2 || !(s.tHi > s.tLo) {
+		return nil
+	}
+	var want []bool
+	if kind == kindNode || kind == kindFirst {
+		want = make([]bool, len(s.names))
+		want[g] = true
+	}
+	return func(target float64) (float64, float64, bool) {
+		std := dist.MustNormal(0, 1)
+		sc := new(ruleScratch)
+		probit := func(t float64) float64 {
+			if kind == kindKth {
+				cdf, sf := s.kthNormal(t, k)
+				if cdf <= 0.5 {
+					return std.Quantile(cdf)
+				}
+				return std.UpperQuantile(sf)
+			}
+			sc.z = s.nodeZInto(sc.z, t, want)
+			return std.Quantile(s.mixZs(sc, sc.z, kind, g, k, [2]int{modeNodes, modeNodes})[0])
+		}
+		f := func(t float64) float64 { return probit(t) - target }
+		lo, hi := s.tLo, s.tHi
+		flo, fhi := f(lo), f(hi)
+		if !(flo < 0 && fhi >= 0) {
+			return 0, 0, false
+		}
+		t0 := root.Illinois(f, lo, hi, flo, fhi, 1e-13*hi)
+		h := 1e-6 * t0
+		slope := (probit(t0+h) - probit(t0-h)) / (2 * h)
+		if math.IsNaN(slope) {
+			slope = math.Inf(1) // a jump (the calendar limit's atom) on both sides
+		}
+		return t0, slope, true
+	}
+}
+
+// kthNormal returns the normal approximation of the mixture over the
+// rule's nodes of P(count >= k) at t (s), the count of flat nodes being
+// each node's Poisson-binomial with mean μ = Σ n_h·p_h and variance
+// σ² = Σ n_h·p_h·(1 − p_h): Φ̄((k − 1/2 − μ)/σ), and its complement, each
+// summed directly.
+func (s *Site) kthNormal(t float64, k int64) (cdf, sf float64) {
+	for e := range s.envs {
+		env := &s.envs[e]
+		mu, v := 0.0, 0.0
+		for h := range s.names {
+			z := s.probitAt(env.laws[h], t)
+			p, q := normCDFz(z), normSurv(z)
+			n := float64(s.counts[h])
+			mu += n * p
+			v += n * p * q
+		}
+		x := float64(k) - 0.5 - mu
+		var c, d float64
+		switch {
+		case v > 0:
+			c, d = normSurv(x/math.Sqrt(v)), normCDFz(x/math.Sqrt(v))
+		case x < 0:
+			c = 1
+		default:
+			d = 1
+		}
+		cdf += env.w * c
+		sf += env.w * d
+	}
+	return math.Min(1, cdf), math.Min(1, sf)
+}
+
 // sharedMaxMidProbes caps the probes between the nodes' conditional
 // medians (probeTimes).
 const sharedMaxMidProbes = 160

@@ -146,3 +146,45 @@ func TwoFactorSiteSpec(t testing.TB) SiteSpec {
 	}
 	return SiteSpec{Climate: &clim, Shared: SharedSpread{Batch: 0.03, Temperature: 1.5}, Groups: gs}
 }
+
+// A Site's mixtures seed their quantile searches (seedFor: the rule's
+// mixture of the tables, or the counts' normal approximation for a k-th
+// failure); the seeded answers must be those of the unseeded search (the
+// corners', then all components') within the searches' tolerance, 1e-12
+// relative each, on the two-factor site, and every seed must hold there.
+func TestSiteQuantileSeeds(t *testing.T) {
+	s, err := NewSite(TwoFactorSiteSpec(t))
+	require.NoError(t, err)
+	var laws []dist.Law
+	var names []string
+	for g := range s.names {
+		node, err := s.NodeLifetime(g)
+		require.NoError(t, err)
+		first, err := s.GroupFirstFailure(g)
+		require.NoError(t, err)
+		laws, names = append(laws, node, first), append(names, "node "+s.names[g], "first failure "+s.names[g])
+	}
+	ff, err := s.FirstFailure()
+	require.NoError(t, err)
+	laws, names = append(laws, ff), append(names, "fleet's first failure")
+	for _, q := range []float64{0.01, 0.5} {
+		kth, err := s.FractionFailed(q)
+		require.NoError(t, err)
+		laws, names = append(laws, kth), append(names, fmt.Sprintf("flat fraction %g", q))
+	}
+	for i, l := range laws {
+		m, ok := l.(sharedMixture)
+		require.True(t, ok, names[i])
+		require.NotNil(t, m.seed, names[i])
+		plain := m
+		plain.seed = nil
+		for _, p := range []float64{1e-4, 0.005, 0.05, 0.5, 0.95, 0.995} {
+			target := dist.MustNormal(0, 1).Quantile(p)
+			seeded, ok := m.seedSolve(target)
+			assert.True(t, ok, "%s: the seed at %g holds", names[i], p)
+			want := plain.Quantile(p)
+			assert.InDelta(t, want, seeded, 2e-12*want, "%s: Quantile(%g)", names[i], p)
+			assert.InDelta(t, plain.UpperQuantile(p), m.UpperQuantile(p), 2e-12*want, "%s: UpperQuantile(%g)", names[i], p)
+		}
+	}
+}

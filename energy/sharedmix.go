@@ -37,6 +37,12 @@ type sharedMixture struct {
 	// slope there (1/s), or false: the quantiles start from it (seedSolve)
 	// before the corners, and check every step on the mixture itself.
 	seed func(target float64) (t0, slope float64, ok bool)
+	// quick, when set, returns for component i the pieces of its moment
+	// quadrature (componentQuad) read from a Site's tables: its survival
+	// (the component's law, to rounding, without an order statistic's
+	// general path) and its 1e-15, 1/2 and 1 − 1e-15 points (NaN where
+	// the component's own are to be asked).
+	quick func(i int) (surv func(t float64) float64, lo, med, hi float64)
 }
 
 type mixLazy struct {
@@ -308,6 +314,11 @@ const (
 
 func (m sharedMixture) moments() {
 	m.lz.once.Do(func() {
+		if m.quick != nil {
+			if m.lz.mean, m.lz.vari, m.lz.meanErr, m.lz.varErr = m.totalMomentsWith(m.quick); !math.IsNaN(m.lz.mean) {
+				return
+			}
+		}
 		if m.lz.mean, m.lz.vari, m.lz.meanErr, m.lz.varErr = m.totalMoments(); !math.IsNaN(m.lz.mean) {
 			return
 		}
@@ -328,14 +339,17 @@ func componentMoments(l dist.Law) (mean, vari, meanErr, varErr float64) {
 		meanErr, varErr = c.momentError()
 		return c.Mean(), c.Variance(), meanErr, varErr
 	case orderstat.Statistic:
-		return componentQuad(c)
+		nan := math.NaN()
+		return componentQuad(c, c.Survival, nan, nan, nan)
 	}
 	return math.NaN(), math.NaN(), math.NaN(), math.NaN()
 }
 
 // componentQuad returns a component's mean (s) and variance (s²) with
 // their estimated errors by the library's adaptive quadrature
-// (internal/quad) of its survival above its 1e-15 quantile lo,
+// (internal/quad) of its survival surv (l's, or the same law read more
+// cheaply) above its 1e-15 quantile lo (l's where lo is NaN, as med and
+// hi),
 //
 //	E[T] − lo = ∫ S,  E[(T − lo)²] = 2∫ (t − lo)·S,
 //
@@ -345,9 +359,17 @@ func componentMoments(l dist.Law) (mean, vari, meanErr, varErr float64) {
 // own narrow range, where the mixture's is a staircase of them: about 400
 // evaluations a component in the demo's first failures (splitting at the
 // tables' knots instead costs 3000 for a precision nobody reads).
-func componentQuad(l dist.Law) (mean, vari, meanErr, varErr float64) {
+func componentQuad(l dist.Law, surv func(float64) float64, lo, med, hi float64) (mean, vari, meanErr, varErr float64) {
 	nan := math.NaN()
-	lo, med, hi := l.Quantile(1e-15), l.Quantile(0.5), l.UpperQuantile(1e-15)
+	if math.IsNaN(lo) {
+		lo = l.Quantile(1e-15)
+	}
+	if math.IsNaN(med) {
+		med = l.Quantile(0.5)
+	}
+	if math.IsNaN(hi) {
+		hi = l.UpperQuantile(1e-15)
+	}
 	if !finite(lo) || !finite(hi) || !finite(med) {
 		return nan, nan, nan, nan
 	}
@@ -356,7 +378,7 @@ func componentQuad(l dist.Law) (mean, vari, meanErr, varErr float64) {
 	}
 	span := hi - lo
 	f := func(t float64, y []float64) {
-		s := l.Survival(t)
+		s := surv(t)
 		y[0], y[1] = s, 2*(t-lo)/span*s
 	}
 	pts := sortedUnique([]float64{lo, med, hi})
@@ -381,12 +403,24 @@ func componentQuad(l dist.Law) (mean, vari, meanErr, varErr float64) {
 // (δm_e + δm)²), plus rounding. NaN where a component has no moments of
 // its own or they are not finite.
 func (m sharedMixture) totalMoments() (mean, vari, meanErr, varErr float64) {
+	return m.totalMomentsWith(nil)
+}
+
+// totalMomentsWith is totalMoments with the components' moments from
+// their quick pieces (componentQuad) where quick is set and the
+// component is an order statistic.
+func (m sharedMixture) totalMomentsWith(quick func(i int) (func(float64) float64, float64, float64, float64)) (mean, vari, meanErr, varErr float64) {
 	ms := make([]float64, len(m.laws))
 	vs := make([]float64, len(m.laws))
 	ems := make([]float64, len(m.laws))
 	evs := make([]float64, len(m.laws))
 	for i, l := range m.laws {
-		ms[i], vs[i], ems[i], evs[i] = componentMoments(l)
+		if _, ok := l.(orderstat.Statistic); ok && quick != nil {
+			surv, lo, med, hi := quick(i)
+			ms[i], vs[i], ems[i], evs[i] = componentQuad(l, surv, lo, med, hi)
+		} else {
+			ms[i], vs[i], ems[i], evs[i] = componentMoments(l)
+		}
 		if !finite(ms[i]) || !finite(vs[i]) || !finite(ems[i]) || !finite(evs[i]) {
 			return math.NaN(), math.NaN(), math.NaN(), math.NaN()
 		}

@@ -318,6 +318,7 @@ func (s Site) mixStated(fn string, stated func() float64, kind lawKind, g int, k
 		sm := newStatedMixture(m.name, m.w, m.laws, s.siteMethod(), stated)
 		sm.corners = s.corners()
 		sm.seed = s.seedFor(kind, g, k)
+		sm.quick = s.quickFor(kind, g)
 		return sm, nil
 	}
 	return l, nil

@@ -959,6 +959,60 @@ func (s Site) seedFor(kind lawKind, g int, k int64) func(target float64) (t0, sl
 	}
 }
 
+// quickFor returns the quick pieces of the moment quadratures of kind's
+// mixture's components (sharedMixture.quick) for a group's first failure
+// and the fleet's: each component's survival from the conditional
+// tables, Π_h S_h(t)^(n_h) as exp(Σ_h n_h·log S_h(t)) (logSurvival), and
+// for a group's first failure among n its 1e-15, 1/2 and 1 − 1e-15 points
+// from the table's own inverse (S(t)^n = 1 − p where S(t) = (1 − p)^(1/n));
+// nil for the other kinds.
+func (s Site) quickFor(kind lawKind, g int) func(i int) (surv func(float64) float64, lo, med, hi float64) {
+	if kind != kindFirst && kind != kindFleet {
+		return nil
+	}
+	return func(i int) (func(float64) float64, float64, float64, float64) {
+		env := &s.envs[i]
+		if kind == kindFirst {
+			tb, n := &env.laws[g], float64(s.counts[g])
+			hint := 0
+			surv := func(t float64) float64 { return math.Exp(n * tb.logSurvival(t, &hint)) }
+			lo := tb.Quantile(-math.Expm1(math.Log1p(-1e-15) / n))
+			med := tb.Quantile(-math.Expm1(math.Log(0.5) / n))
+			hi := tb.UpperQuantile(math.Exp(math.Log(1e-15) / n))
+			return surv, lo, med, hi
+		}
+		hints := make([]int, len(s.names))
+		surv := func(t float64) float64 {
+			l := 0.0
+			for h := range s.names {
+				l += float64(s.counts[h]) * env.laws[h].logSurvival(t, &hints[h])
+			}
+			return math.Exp(l)
+		}
+		nan := math.NaN()
+		return surv, nan, nan, nan
+	}
+}
+
+// logSurvival returns log S(t) of a conditional table (−Inf from its
+// calendar limit on, 0 from time 0 back), from the smaller tail: log1p of
+// −F where the probit is below 0, the log of S otherwise.
+func (tb *tabulated) logSurvival(t float64, hint *int) float64 {
+	switch {
+	case math.IsNaN(t):
+		return t
+	case t >= tb.cal:
+		return math.Inf(-1)
+	case t <= 0:
+		return 0
+	}
+	z := tb.zAtNear(t, hint)
+	if z < 0 {
+		return math.Log1p(-normSurv(-z))
+	}
+	return math.Log(normSurv(z))
+}
+
 // kthNormal returns the normal approximation of the mixture over the
 // rule's nodes of P(count >= k) at t (s), the count of flat nodes being
 // each node's Poisson-binomial with mean μ = Σ n_h·p_h and variance

@@ -188,3 +188,33 @@ func TestSiteQuantileSeeds(t *testing.T) {
 		}
 	}
 }
+
+// The first failures' moments read each component's survival from the
+// tables (quickFor) instead of through the order statistic's general
+// path: the two must agree within the sum of their stated moment errors,
+// on the two-factor site, for each group and the fleet.
+func TestSiteQuickMoments(t *testing.T) {
+	s, err := NewSite(TwoFactorSiteSpec(t))
+	require.NoError(t, err)
+	var laws []dist.Law
+	for g := range s.names {
+		l, err := s.GroupFirstFailure(g)
+		require.NoError(t, err)
+		laws = append(laws, l)
+	}
+	ff, err := s.FirstFailure()
+	require.NoError(t, err)
+	laws = append(laws, ff)
+	for i, l := range laws {
+		m, ok := l.(sharedMixture)
+		require.True(t, ok)
+		require.NotNil(t, m.quick)
+		plain := newStatedMixture(m.name, m.w, m.laws, m.method, m.stated)
+		em, ev := m.MomentError()
+		pm, pv := plain.MomentError()
+		assert.InDelta(t, plain.Mean(), m.Mean(), em+pm, "law %d: mean", i)
+		assert.InDelta(t, plain.Variance(), m.Variance(), ev+pv, "law %d: variance", i)
+		assert.Less(t, em, 1e-5*math.Sqrt(m.Variance()), "law %d: the mean's stated error", i)
+		t.Logf("law %d: mean %.6g s (stated ±%.2g, moved %.2g), sd %.6g s", i, m.Mean(), em, m.Mean()-plain.Mean(), math.Sqrt(m.Variance()))
+	}
+}

@@ -2,6 +2,7 @@ package energy
 
 import (
 	"math"
+	"slices"
 	"sort"
 
 	"gonum.org/v1/gonum/integrate/quad"
@@ -848,22 +849,40 @@ func (s *Site) probeTimesWith(sc *ruleScratch, kind lawKind, g int, k int64) []f
 		return s.mixZs(sc, sc.z, kind, g, k, [2]int{modeNodes, modeNodes})[0]
 	}
 	// The level's time by the library's root finder on the probit of the
-	// rule's CDF (nearly linear in t), to 1e-9 of the tables' span.
+	// rule's CDF (nearly linear in t), to 1e-9 of the tables' span, in the
+	// narrowest bracket that the probits already computed for the lower
+	// levels give (one function whatever the level: the levels share its
+	// values).
 	std := dist.MustNormal(0, 1)
-	top := cdf(s.tHi)
+	type point struct{ t, z float64 }
+	seen := []point{{0, std.Quantile(cdf(0))}, {s.tHi, std.Quantile(cdf(s.tHi))}} // ascending in t
+	probit := func(t float64) float64 {
+		z := std.Quantile(cdf(t))
+		i := sort.Search(len(seen), func(i int) bool { return seen[i].t >= t })
+		if i == len(seen) || seen[i].t != t {
+			seen = slices.Insert(seen, i, point{t, z})
+		}
+		return z
+	}
 	var ts []float64
 	for _, p := range sharedProbeLevels {
-		if top < p {
+		if seen[len(seen)-1].z < std.Quantile(p) {
 			continue
 		}
 		target := std.Quantile(p)
-		g := func(t float64) float64 { return std.Quantile(cdf(t)) - target }
-		g0 := g(0)
-		if g0 >= 0 {
+		if seen[0].z >= target {
 			ts = append(ts, 0)
 			continue
 		}
-		ts = append(ts, root.Illinois(g, 0, s.tHi, g0, g(s.tHi), 1e-9*s.tHi))
+		// The last point below the target and the next one: the probit
+		// rises with t.
+		j := 0
+		for j+1 < len(seen) && seen[j+1].z < target {
+			j++
+		}
+		a, b := seen[j], seen[j+1]
+		g := func(t float64) float64 { return probit(t) - target }
+		ts = append(ts, root.Illinois(g, a.t, b.t, a.z-target, b.z-target, 1e-9*s.tHi))
 	}
 	// Where the rule is too coarse its CDF is a staircase with a steep
 	// rise at each node's conditional law: the error is largest at the

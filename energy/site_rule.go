@@ -73,16 +73,37 @@ type sharedFactor struct {
 	// fine grid: points, weights (trapezoid × normal density, summing to
 	// 1) and the weights of every other point.
 	fz, fw, fwc []float64
-	// interpolation rows: lag[i][j] the weight of node j at fine point i;
-	// lagr without one node of each piece.
-	lag, lagr [][]float64
+	// interpolation rows: lag's row i the weights of the nodes at fine
+	// point i; lagr's without one node of each piece.
+	lag, lagr interpRows
+}
+
+// interpRows are interpolation rows kept to their nodes' span: row i
+// weighs the nodes off[i], off[i] + 1, … by w[i][0], w[i][1], … (a
+// stencil's nodes are neighbours: a piece's nodes are).
+type interpRows struct {
+	w   [][]float64
+	off []int
+}
+
+// set keeps row (weights over all nodes) as row i, trimmed to its
+// non-zero span.
+func (r *interpRows) set(i int, row []float64) {
+	lo, hi := 0, len(row)
+	for lo < hi-1 && row[lo] == 0 {
+		lo++
+	}
+	for hi > lo+1 && row[hi-1] == 0 {
+		hi--
+	}
+	r.w[i], r.off[i] = row[lo:hi], lo
 }
 
 // newSharedFactor returns the rule of order m over a factor with spread
 // (kinks in standard units), or the single node 0 without spread.
 func newSharedFactor(spread bool, kinks []float64, m int) sharedFactor {
 	if !spread {
-		one := [][]float64{{1}}
+		one := interpRows{w: [][]float64{{1}}, off: []int{0}}
 		return sharedFactor{edges: []float64{math.Inf(-1), math.Inf(1)}, z: []float64{0}, w: []float64{1}, piece: []int{0},
 			fz: []float64{0}, fw: []float64{1}, fwc: []float64{1}, lag: one, lagr: one}
 	}
@@ -177,7 +198,8 @@ func (f *sharedFactor) setFine(step float64) {
 		f.fwc[i] /= sc
 	}
 	// Interpolation rows, piece by piece.
-	f.lag, f.lagr = make([][]float64, n), make([][]float64, n)
+	f.lag = interpRows{w: make([][]float64, n), off: make([]int, n)}
+	f.lagr = interpRows{w: make([][]float64, n), off: make([]int, n)}
 	for i, x := range f.fz {
 		p := sort.SearchFloat64s(f.edges, x) - 1
 		p = max(0, min(p, len(f.edges)-2))
@@ -188,8 +210,8 @@ func (f *sharedFactor) setFine(step float64) {
 			}
 		}
 		main, alt := stencils(f.z, idx, x)
-		f.lag[i] = lagrangeRow(f.z, main, x)
-		f.lagr[i] = lagrangeRow(f.z, alt, x)
+		f.lag.set(i, lagrangeRow(f.z, main, x))
+		f.lagr.set(i, lagrangeRow(f.z, alt, x))
 	}
 }
 
@@ -403,15 +425,16 @@ func (s *Site) nodeZInto(dst []float64, t float64, want []bool) []float64 {
 	return Z
 }
 
-// interp returns Σ_j row[j]·y[j·stride], or y's common value where the
-// values are infinite (past the calendar limit, or before time 0: the
-// same at every node of a group).
-func interp(row []float64, y []float64, stride int) float64 {
+// interp returns Σ_j w_j·y[(off + j)·stride] over row i of rows, or y's
+// common value where the values are infinite (past the calendar limit, or
+// before time 0: the same at every node of a group).
+func interp(rows *interpRows, i int, y []float64, stride int) float64 {
 	if math.IsInf(y[0], 0) {
 		return y[0]
 	}
 	z := 0.0
-	for j, l := range row {
+	y = y[rows.off[i]*stride:]
+	for j, l := range rows.w[i] {
 		if l != 0 {
 			z += l * y[j*stride]
 		}
@@ -461,21 +484,21 @@ func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64,
 	nv := len(fv.z)
 	E := len(s.envs)
 	G := len(s.names)
-	pick := func(f *sharedFactor, m int) (pts int, w []float64, rows [][]float64) {
+	pick := func(f *sharedFactor, m int) (pts int, w []float64, rows *interpRows) {
 		switch m {
 		case modeNodes:
 			return len(f.z), f.w, nil
 		case modeCoarse:
-			return len(f.fz), f.fwc, f.lag
+			return len(f.fz), f.fwc, &f.lag
 		case modeReduced:
-			return len(f.fz), f.fw, f.lagr
+			return len(f.fz), f.fw, &f.lagr
 		}
-		return len(f.fz), f.fw, f.lag
+		return len(f.fz), f.fw, &f.lag
 	}
 	M := len(modes)
 	var wus, wvs [maxModes][]float64
 	var pu, pv int
-	var ru, rv [][]float64
+	var ru, rv *interpRows
 	for i, m := range modes {
 		pu, wus[i], ru = pick(fu, m[0])
 		pv, wvs[i], rv = pick(fv, m[1])
@@ -509,7 +532,7 @@ func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64,
 				if ru == nil {
 					row[j] = zh[a*nv+j]
 				} else {
-					row[j] = interp(ru[a], zh[j:], nv)
+					row[j] = interp(ru, a, zh[j:], nv)
 				}
 			}
 		}
@@ -540,7 +563,7 @@ func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64,
 				if rv == nil {
 					zs[h] = y[b]
 				} else {
-					zs[h] = interp(rv[b], y, 1)
+					zs[h] = interp(rv, b, y, 1)
 				}
 			}
 			c := s.condAt(kind, g, k, zs, probs)
@@ -707,8 +730,8 @@ func (s *Site) interpBoundWith(sc *ruleScratch, Z []float64, kind lawKind, g int
 	wu, wv := fu.fw, fv.fw
 	// rows[r][f]: factor f's interpolation rows for the reference (r = 0)
 	// and without one node a piece in factor d (r = 1).
-	rows := [2][2][][]float64{{fu.lag, fv.lag}, {fu.lag, fv.lag}}
-	rows[1][d] = s.fac[d].lagr
+	rows := [2][2]*interpRows{{&fu.lag, &fv.lag}, {&fu.lag, &fv.lag}}
+	rows[1][d] = &s.fac[d].lagr
 	g0, g1 := g, g+1
 	if kind == kindFleet {
 		g0, g1 = 0, len(s.names)
@@ -727,14 +750,14 @@ func (s *Site) interpBoundWith(sc *ruleScratch, Z []float64, kind lawKind, g int
 		for r := range 2 {
 			for a := range pu {
 				for j := range nv {
-					Y[r][a*nv+j] = interp(rows[r][0][a], zh[j:], nv)
+					Y[r][a*nv+j] = interp(rows[r][0], a, zh[j:], nv)
 				}
 			}
 		}
 		for a := range pu {
 			for b := range pv {
-				z0 := interp(rows[0][1][b], Y[0][a*nv:(a+1)*nv], 1)
-				z1 := interp(rows[1][1][b], Y[1][a*nv:(a+1)*nv], 1)
+				z0 := interp(rows[0][1], b, Y[0][a*nv:(a+1)*nv], 1)
+				z1 := interp(rows[1][1], b, Y[1][a*nv:(a+1)*nv], 1)
 				if z0 != z1 {
 					bound[a*pv+b] += L.over(z0, z1) * math.Abs(z1-z0)
 				}

@@ -5,7 +5,7 @@ import (
 	"math"
 	"math/cmplx"
 
-	"gonum.org/v1/gonum/dsp/fourier"
+	"github.com/joulelaw/joulelaw/internal/lattice"
 )
 
 // The lattice path of SumIID for a finite discrete law whose atoms lie on a
@@ -27,12 +27,15 @@ import (
 // each side; each mass comes from the estimate with the smallest
 // error bound (rounding of its transform values and FFT, and the tilted
 // law's wrapped mass by Chernoff bounds), so survival values keep relative
-// precision far into the tail. φ(θ_j) is first taken for every j from one FFT of
-// the masses folded modulo N; where |φ|^k could exceed exp(-45) it is
-// recomputed directly as exp(k·log φ_c(θ_j)) of the law centred on its
-// mean, with φ_c - 1 evaluated directly (never a complex power), and the
-// phase of the centre taken modulo N in integers. Sizes are 2^a·3^b·5^c
-// (gonum dsp/fourier).
+// precision far into the tail. |φ(θ_j)| is first taken for every j <= N/2
+// from one FFT of the masses folded modulo N; where |φ|^k could exceed
+// exp(-45) it is recomputed directly as exp(k·log φ_c(θ_j)) of the law
+// centred on its mean, with φ_c - 1 evaluated directly (never a complex
+// power), and the phase of the centre taken modulo N in integers. The
+// inversion, its rounding bound and the FFTs are the module's one lattice
+// inversion (internal/lattice, which orderstat's counts use too: one real
+// FFT, the values at j > N/2 being the conjugates). Sizes are
+// 2^a·3^b·5^c (gonum dsp/fourier).
 
 const (
 	latticeMinAtoms = 1 << 16 // below this many lattice points the exact convolution is used
@@ -133,56 +136,36 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 	m0 := int64(mlo)
 	mc := int64(math.Round(mean))
 	frac := mean - float64(mc) // the centre's offset from the integer mc
-	fft := fourier.NewCmplxFFT(n)
-	buf := make([]complex128, n)
-	eps := 0x1p-52
+	inv := lattice.NewInverter(n)
 	K := func(al float64) float64 { return real(logm(complex(al, 0))) }
-	// tilted computes q_r = P_α(M = m0 + r), the law tilted by exp(α·(m - kμ)),
-	// into buf, and returns the bound on each q_r's error and K(α).
-	var sig []int // grid indices where |φ(θ_j)|^k >= exp(-60)
-	tilted := func(al float64) (qErr, kAl float64, direct int) {
-		kAl = K(al)
-		if al == 0 {
-			for i, nn := range ns {
-				buf[nn%int64(n)] += complex(d.probs[i], 0)
-			}
-			fft.Sequence(buf, buf) // buf[j] = φ(θ_j)
-			for j := 0; j < n; j++ {
-				if a := cmplx.Abs(buf[j]); a > 0 && fk*math.Log(a) >= -60 {
-					sig = append(sig, j)
-				}
-			}
+	// the grid indices l <= n/2 where |φ(θ_l)|^k >= exp(-60), from one FFT
+	// of the masses folded modulo n; the tilted transform is taken there
+	// only: for the small tilts used here |φ_α(θ)|^k differs from |φ(θ)|^k
+	// by a factor near 1, and the threshold is 1e-7 of the one below which
+	// a value is left out (exp(-45))
+	var sig []int
+	for l, a := range inv.Moduli(nil, ns, d.probs) {
+		if a > 0 && fk*math.Log(a) >= -60 {
+			sig = append(sig, l)
 		}
-		// the tilted transform is taken where the untilted one matters: for
-		// the small tilts used here |φ_α(θ)|^k differs from |φ(θ)|^k by a
-		// factor near 1, and the threshold is 1e-7 of the one used for the
-		// error (exp(-45))
-		clear(buf)
-		var absSum, relErr float64
-		for _, j := range sig {
-			direct++
-			jj := j
-			if j > n/2 {
-				jj = j - n
-			}
-			th := 2 * math.Pi * float64(jj) / float64(n)
-			lg := logm(complex(al, th)) - complex(kAl, 0) // k·log φ_c(θ - iα) - K(α)
-			// exp(iθ·(kμ - m0)) with the integer phase reduced modulo n
-			ph := ((int64(jj)*(mc-m0))%int64(n) + int64(n)) % int64(n)
-			phase := 2*math.Pi*float64(ph)/float64(n) + th*frac
-			c := cmplx.Exp(lg + complex(0, phase))
-			if real(lg) < -45 {
-				continue
-			}
-			buf[j] = c
-			absSum += cmplx.Abs(c)
+	}
+	direct := 0
+	// tilted computes q_r = P_α(M = m0 + r), the law tilted by exp(α·(m - kμ)),
+	// and returns the bound on each q_r's error and K(α).
+	tilted := func(al float64) (q []float64, qErr, kAl float64) {
+		kAl = K(al)
+		direct += len(sig)
+		// k·log φ_c(θ - iα) - K(α) about the integer centre mc, plus the
+		// centre's fraction: rounding 50 ulps, and k ulps more where the
+		// log is of the sum itself (|α + iθ|·vmax >= 1/2)
+		q, qErr = inv.Invert(mc-m0, lattice.Spectrum{At: sig, Cut: -45}, func(_ int, th float64) (complex128, float64) {
+			lg := logm(complex(al, th)) - complex(kAl, 0)
 			e := 50.0
-			if cmplx.Abs(complex(al, th))*vmax >= 0.5 { // log of the sum itself: k·ε absolute
+			if cmplx.Abs(complex(al, th))*vmax >= 0.5 {
 				e += fk
 			}
-			relErr = math.Max(relErr, e)
-		}
-		fft.Coefficients(buf, buf) // Σ_j c_j·exp(-2πi·j·r/N)
+			return lg + complex(0, th*frac), e
+		})
 		// wrapped mass of the tilted law (Chernoff bounds with a further
 		// tilt α, and back to 0)
 		alias := 0.0
@@ -203,16 +186,15 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 			}
 			alias += math.Exp(best)
 		}
-		// the transform values' rounding (relErr ulps each) and the FFT's
-		// (3·log2 N ulps), times 4 for safety, plus the wrapped mass
-		qErr = 4*absSum/float64(n)*(relErr+3*math.Log2(float64(n)))*eps + alias
-		return qErr, kAl, direct
+		// the transform values' and the FFT's rounding (lattice.Inverter's
+		// bound) plus the wrapped mass
+		return q, qErr + alias, kAl
 	}
 	pm := make([]float64, width)
 	pe := make([]float64, width)
-	qErr, _, direct := tilted(0)
+	q, qErr, _ := tilted(0)
 	for r := range pm {
-		pm[r], pe[r] = real(buf[r])/float64(n), qErr
+		pm[r], pe[r] = q[r], qErr
 	}
 	// tails: tilts whose saddlepoints sit where the Chernoff bound is 1e-8
 	// and 1e-15; each mass is taken from the estimate with the
@@ -234,15 +216,14 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 			if !(al != 0) || !finite(al) {
 				continue
 			}
-			qe, kAl, dn := tilted(al)
-			direct += dn
+			q, qe, kAl := tilted(al)
 			for r := range pm {
 				f := kAl - al*(float64(m0+int64(r))-mean)
 				if f > 700 {
 					continue
 				}
 				if er := qe * math.Exp(f); er < pe[r] {
-					pm[r], pe[r] = real(buf[r])/float64(n)*math.Exp(f), er
+					pm[r], pe[r] = q[r]*math.Exp(f), er
 				}
 			}
 		}
@@ -260,7 +241,7 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 	}
 	// plus the wrapped mass and the rounding of the running sums of up to
 	// width masses that the discrete law's CDF and survival are
-	cdfAbs += 2*latticeWindowTail + float64(width)*eps
+	cdfAbs += 2*latticeWindowTail + float64(width)*0x1p-52
 	// survival relative error: the errors of the masses above each point
 	// against the survival there; the floor is the largest survival at which
 	// they exceed 1e-6 of it (the window's end, beyond which S <= latticeWindowTail)

@@ -3,7 +3,7 @@ package orderstat
 import (
 	"math"
 
-	"gonum.org/v1/gonum/dsp/fourier"
+	"github.com/joulelaw/joulelaw/internal/lattice"
 )
 
 // binom is Bin(n, p) with q = 1 - p given exactly as well.
@@ -67,7 +67,7 @@ func (cm countModel) split(m float64) (le, gt float64) {
 // splitTransform is split's exact path for m in [0, size) after the shift
 // and at least two terms: the tilted transform of the window around m.
 func (cm countModel) splitTransform(m float64) (le, gt float64) {
-	w := cm.window(m + 0.5)
+	w := cm.window(m+0.5, nil)
 	if w.theta >= 0 {
 		gt = clamp01(w.sum(m+1, w.lo+float64(len(w.pmf))-1))
 		return 1 - gt, gt
@@ -160,17 +160,28 @@ func (cm countModel) tiltFor(target float64) float64 {
 	return theta
 }
 
-// maxWindow bounds the transform size of one window (2^26 points).
-const maxWindow = 1 << 26
+// maxWindow bounds the transform size of one window (2^26 points,
+// lattice.MaxN).
+const maxWindow = lattice.MaxN
+
+// windowCut is the log-magnitude below which a window's transform values
+// are left out: |φ_θ(ω)| decreases on [0, π] (each binomial factor's
+// |q + p·e^{iω}| does), so the spectrum ends at the first value below it,
+// and the values left out add at most e^-50 (2e-22) to each tilted
+// probability, below 1e-12 of the smallest one accepted (1e-2 of the
+// largest, itself at least 1/N of the window's mass) up to maxWindow.
+const windowCut = -50
 
 // countWindow holds P(C = j) for j in [lo, lo+len(pmf)), computed under the
 // tilt theta and untilted.
 type countWindow struct {
-	theta float64
-	lo    float64
-	sd    float64   // standard deviation of the tilted law
-	pmf   []float64 // P(C = lo + r), relative to the (untilted) law
-	tpmf  []float64 // the tilted probabilities, for judging accuracy
+	theta  float64
+	lo     float64
+	sd     float64   // standard deviation of the tilted law
+	pmf    []float64 // P(C = lo + r), relative to the (untilted) law
+	tpmf   []float64 // the tilted probabilities, for judging accuracy (inv's buffer: valid until its next window)
+	absErr float64   // bound on the rounding of each tilted probability (lattice.Inverter)
+	inv    *lattice.Inverter
 }
 
 // sum returns Σ_{j=a}^{b} P(C = j) over the window.
@@ -194,9 +205,12 @@ func (w countWindow) sum(a, b float64) float64 {
 //	P_θ(C = L + r) = (1/M) Σ_l φ_θ(ω_l)·e^{-iω_l(L+r)},  ω_l = 2πl/M
 //	P(C = j)       = P_θ(C = j)·exp(K(θ) − θj)
 //
-// The transform's absolute error (about 1e-16 of the largest tilted value)
-// becomes a relative error near target, where the tilted law has its mass.
-func (cm countModel) window(target float64) countWindow {
+// inverted by the module's one lattice inversion (internal/lattice), the
+// transform's values where they exceed e^windowCut only. The transform's
+// absolute error (about 1e-16 of the largest tilted value; absErr bounds
+// it) becomes a relative error near target, where the tilted law has its
+// mass. inv is reused when it has the window's size (nil: a new one).
+func (cm countModel) window(target float64, inv *lattice.Inverter) countWindow {
 	theta := cm.tiltFor(target)
 	ts, k := cm.tilted(theta)
 	_, v := momentsOf(ts)
@@ -215,23 +229,26 @@ func (cm countModel) window(target float64) countWindow {
 	if lo < 0 {
 		lo = 0
 	}
-	coeff := make([]complex128, m/2+1)
-	for l := range coeff {
-		omega := 2 * math.Pi * float64(l) / float64(m)
+	if inv == nil || inv.N() != m {
+		inv = lattice.NewInverter(m)
+	}
+	// log φ_θ(ω) = Σ n·log(q + p·e^{iω}): its modulus by log1p of
+	// −4pq·sin²(ω/2), its argument by atan2; each rounds to a few ulps of
+	// its own size, times n (the ulps returned)
+	seq, absErr := inv.Invert(-int64(lo), lattice.Spectrum{Cut: windowCut, Decreasing: true}, func(_ int, omega float64) (complex128, float64) {
 		s2 := math.Sin(omega / 2)
 		s2 *= s2
 		sin, cos := math.Sincos(omega)
-		re, ph := 0.0, -omega*lo
+		var re, ph, mag float64
 		for _, t := range ts {
-			re += t.n * 0.5 * math.Log1p(-4*t.p*t.q*s2)
-			ph += t.n * math.Atan2(t.p*sin, t.q+t.p*cos)
+			r := t.n * 0.5 * math.Log1p(-4*t.p*t.q*s2)
+			a := t.n * math.Atan2(t.p*sin, t.q+t.p*cos)
+			re, ph = re+r, ph+a
+			mag += math.Abs(r) + math.Abs(a)
 		}
-		mag := math.Exp(re) / float64(m)
-		s, c := math.Sincos(ph)
-		coeff[l] = complex(mag*c, -mag*s)
-	}
-	seq := fourier.NewFFT(m).Sequence(nil, coeff)
-	w := countWindow{theta: theta, lo: lo, sd: math.Sqrt(v), pmf: make([]float64, m), tpmf: seq}
+		return complex(re, ph), 4*mag + 8*float64(len(ts))
+	})
+	w := countWindow{theta: theta, lo: lo, sd: math.Sqrt(v), pmf: make([]float64, m), tpmf: seq, absErr: absErr, inv: inv}
 	for r, p := range seq {
 		if p <= 0 {
 			continue

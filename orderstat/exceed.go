@@ -365,8 +365,9 @@ func (cm countModel) march() (lo float64, pmf []float64) {
 		return a, b
 	}
 	mean := cm.mean - cm.shift
-	w := cm.window(mean)
+	w := cm.window(mean, nil)
 	a, b := accept(w, 0, cm.size, false, false)
+	inv := w.inv // reused by the windows of the same size
 	if a > b {
 		a, b = math.Round(mean), math.Round(mean)
 	}
@@ -375,7 +376,8 @@ func (cm countModel) march() (lo float64, pmf []float64) {
 		if v := vals[top]; v < 1e-300 {
 			break
 		}
-		wu := cm.window(math.Min(top+1+math.Max(1, sd), cm.size-0.5))
+		wu := cm.window(math.Min(top+1+math.Max(1, sd), cm.size-0.5), inv)
+		inv = wu.inv
 		_, nb := accept(wu, top+1, cm.size, true, false)
 		if !(nb > top) {
 			break
@@ -387,7 +389,8 @@ func (cm countModel) march() (lo float64, pmf []float64) {
 		if v := vals[bot]; v < 1e-300 {
 			break
 		}
-		wl := cm.window(math.Max(bot-1-math.Max(1, sd), 0.5))
+		wl := cm.window(math.Max(bot-1-math.Max(1, sd), 0.5), inv)
+		inv = wl.inv
 		na, _ := accept(wl, 0, bot-1, false, true)
 		if !(na < bot) {
 			break

@@ -199,6 +199,59 @@ func (q PointTails) eval(k int) (f, s, rel float64, err error) {
 	return f, s, rel, err
 }
 
+// Check reports whether the values at k can start, at the cost of three
+// values of the term's transform where a value at k would cost a panel of
+// some 20–60 (or an inversion): for values from shared panels (Shared),
+// the term's centred log-transform K(θ) = log M(θ) − θ·μ − log M(0) at
+// the tilt θ that the panels near k start from (the single inversion's
+// floor min(2/σ_k, half the strip), σ_k = √(k·σ²)), on both sides (±θ),
+// must be finite and a log-transform: K(θ) >= 0 (Jensen's inequality, as
+// K'(0) = 0) and, for a term with bounded support [a, b], K(θ) <=
+// θ²·(b − a)²/8 (Hoeffding's lemma), each within the rounding of the
+// exponent and of the mean, with room (64ε·(|log M(θ)| + |θ·μ|) + 4ε). A
+// transform that fails there would fail at every panel; one that fails
+// only at a panel's complex nodes still shows as NaN where a value needs
+// it (Tails), as for any k.
+// Elsewhere (not Shared) Check evaluates k, as Evaluate does. Errors wrap
+// ErrParam: a zero PointTails, k outside [1, MaxSumIIDTerms], the
+// transform's failure (naming θ and K(θ)), or Evaluate's error.
+func (q PointTails) Check(k int) error {
+	st := q.st
+	switch {
+	case st == nil:
+		return paramErr("PointTails.Check", "q", "zero PointTails", "must be built by IIDSums.AtPoint")
+	case k < 1 || k > MaxSumIIDTerms:
+		return paramErr("PointTails.Check", "k", k, fmt.Sprintf("must be in [1, %d] (MaxSumIIDTerms)", MaxSumIIDTerms))
+	case !st.shared:
+		_, _, _, err := q.eval(k)
+		return err
+	}
+	st.massDefectOnce() // one value, which every panel needs
+	p := st.p
+	const u = 0x1p-53
+	for _, sg := range []float64{1, -1} {
+		hiDom := p.tr.hi
+		if sg < 0 {
+			hiDom = -p.tr.lo
+		}
+		th := 2 / math.Sqrt(float64(k)*p.v)
+		if finite(hiDom) {
+			th = math.Min(th, hiDom/2)
+		}
+		lm := p.tr.logm(complex(sg*th, 0))
+		kv := real(lm) - sg*th*p.mu - st.lm0
+		tol := 64*u*(cmplx.Abs(lm)+math.Abs(th*p.mu)) + 4*u
+		ok := finite(kv) && kv >= -tol
+		if w := p.hi - p.lo; ok && finite(w) {
+			ok = kv <= th*th*w*w/8+tol
+		}
+		if !ok {
+			return paramErr("PointTails.Check", "the term's transform", fmt.Sprintf("K(%g) = %g", sg*th, kv), "must be finite, >= 0 and at most θ²·(b − a)²/8 on a support [a, b] (a centred log-transform)")
+		}
+	}
+	return nil
+}
+
 // tiltedOne is the single tilted inversion of IIDSums.Evaluate for a term
 // with a transform and no atoms: P(S_k <= x), P(S_k > x) and the smaller
 // tail's estimated relative error, the rounding of the exponent k·log M

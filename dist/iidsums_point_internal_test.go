@@ -168,3 +168,60 @@ func TestTiltedOneStatesExponentRounding(t *testing.T) {
 	// estimate without it (1e-14 + the sum's rounding) would not cover.
 	assert.GreaterOrEqual(t, exceeded, 12)
 }
+
+// TestPointTailsCheck: Check's three transform values tell a term whose
+// transform is a centred log-transform at the panels' starting tilt from
+// one that is not, where the values themselves fail (NaN) or would be
+// wrong. Oracles: Jensen's inequality (K(θ) >= 0 for a centred law) and
+// Hoeffding's lemma (K(θ) <= θ²·(b − a)²/8 on a support [a, b]), any
+// probability text. A uniform term passes (and its values are
+// probabilities); a transform that is NaN off 0 fails Check and its values
+// are NaN; one negative at real tilts (log M(s) = μs − s², not a
+// log-transform) and one too large for the support (a normal transform
+// claimed on [1, 2]) fail Check.
+func TestPointTailsCheck(t *testing.T) {
+	u := MustUniform(1, 2)
+	good, err := NewIIDSums(u)
+	require.NoError(t, err)
+	const x = 1000.25
+	q, err := good.AtPoint(x)
+	require.NoError(t, err)
+	require.True(t, q.Shared())
+	for _, k := range []int{1, 600, 667, 700, 5000} {
+		assert.NoError(t, q.Check(k), "k=%d", k)
+	}
+	b, a := q.Tails(667)
+	assert.True(t, isProb(b) && isProb(a))
+	for _, tc := range []struct {
+		name    string
+		logm    func(s complex128) complex128
+		nanVals bool
+	}{
+		{"NaN off 0", func(s complex128) complex128 {
+			if s == 0 {
+				return 0
+			}
+			return complex(math.NaN(), 0)
+		}, true},
+		{"negative at real tilts", func(s complex128) complex128 { return 1.5*s - s*s }, false},
+		{"beyond Hoeffding's bound", func(s complex128) complex128 { return 1.5*s + s*s }, false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			p := IIDSums{l: u, tr: transform{logm: tc.logm, lo: math.Inf(-1), hi: math.Inf(1)}, mu: 1.5, v: 1.0 / 12, ok: true, lo: 1, hi: 2}
+			q, err := p.AtPoint(x)
+			require.NoError(t, err)
+			require.True(t, q.Shared())
+			err = q.Check(667)
+			require.Error(t, err)
+			assert.ErrorIs(t, err, ErrParam)
+			if tc.nanVals {
+				b, a := q.Tails(667)
+				assert.True(t, math.IsNaN(b) && math.IsNaN(a), "the values fail too: %v %v", b, a)
+			}
+		})
+	}
+	var zero PointTails
+	assert.ErrorIs(t, zero.Check(3), ErrParam)
+	assert.ErrorIs(t, q.Check(0), ErrParam)
+	assert.ErrorIs(t, q.Check(MaxSumIIDTerms+1), ErrParam)
+}

@@ -256,11 +256,16 @@ func (f *kfold) boundTerms(L float64, above bool) (int64, bool) {
 // battery b. It is an error if the usable energy cannot power a single
 // cycle's mean energy, or if the K-fold law cannot be computed at the
 // median. For a cycle law whose values come from dist.PointTails' shared
-// panels (see Accuracy) that check is arithmetic — the term's transform is
-// exact and finite at 0 (dist.IIDSums.AtPoint) and the median's number of
-// cycles is within dist.MaxSumIIDTerms — and the panels are built when a
-// value first needs them, so that building the law costs no inversion
-// (CDF and Survival return NaN where an inversion fails, as for every k).
+// panels (see Accuracy) that check costs three transform values instead of
+// a panel's 20–60 (which a fleet's far groups never need): the term's
+// transform is exact and finite at 0 (dist.IIDSums.AtPoint), the median's
+// number of cycles is within dist.MaxSumIIDTerms, and the cycle energy's
+// centred log-transform at the tilt the median's panel starts from, on
+// both sides, is finite and a log-transform (dist.PointTails.Check:
+// Jensen's and Hoeffding's bounds). The panels are built when a value
+// first needs them, so that building the law costs no inversion; a
+// transform that fails only at a panel's complex nodes shows as NaN from
+// CDF and Survival where a value needs it, as for every k.
 func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	const fn = "NewLifetime"
 	if c.energy == nil {
@@ -319,12 +324,16 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	// the first question that needs it. Where the values come from
 	// dist.PointTails' shared panels (a term with an exact transform,
 	// finite at 0, and C within 2·MaxSumIIDTerms means: AtPoint has checked
-	// it), the check is that the median's k is within MaxSumIIDTerms: the
-	// panels are built on first use (a panel costs about 40 transform
-	// values, which a fleet's far groups never need).
+	// it), the check is that the median's k is within MaxSumIIDTerms and
+	// dist.PointTails.Check at it (three transform values): the panels are
+	// built on first use (a panel costs about 40 transform values, which a
+	// fleet's far groups never need).
 	mk, _ := l.cltK()
 	med := int64(math.Max(float64(l.kmin), math.Min(math.Round(mk), math.Min(float64(l.kmax), 1<<62))))
 	if point.Shared() && med+1 <= dist.MaxSumIIDTerms {
+		if err := point.Check(int(med + 1)); err != nil {
+			return Lifetime{}, causeErr(fn, "c", c.String(), fmt.Sprintf("K-fold law of %d cycles", med+1), err)
+		}
 		l.ev.med = med + 1
 		return l, nil
 	}

@@ -81,7 +81,17 @@ func (cm countModel) splitTransform(m float64) (le, gt float64) {
 // p_θ = p·e^θ / (q + p·e^θ), and the log moment generating function
 // K(θ) = Σ n·log(q + p·e^θ).
 func (cm countModel) tilted(theta float64) ([]binom, float64) {
-	out := make([]binom, len(cm.terms))
+	return cm.tiltedInto(nil, theta)
+}
+
+// tiltedInto is tilted writing the terms into dst (reused when it has the
+// capacity).
+func (cm countModel) tiltedInto(dst []binom, theta float64) ([]binom, float64) {
+	out := dst[:0]
+	if cap(out) < len(cm.terms) {
+		out = make([]binom, len(cm.terms))
+	}
+	out = out[:len(cm.terms)]
 	k := 0.0
 	for i, t := range cm.terms {
 		if theta <= 0 {
@@ -132,8 +142,9 @@ func (cm countModel) tiltFor(target float64) float64 {
 		theta = 0
 	}
 	lo, hi := math.Inf(-1), math.Inf(1)
+	var ts []binom // the tilted terms, reused
 	for i := 0; i < 200; i++ {
-		ts, _ := cm.tilted(theta)
+		ts, _ = cm.tiltedInto(ts, theta)
 		m, v := momentsOf(ts)
 		f := m - target
 		if math.Abs(f) <= 0.25*math.Max(1, math.Sqrt(v)) {
@@ -236,9 +247,11 @@ func (cm countModel) window(target float64, inv *lattice.Inverter) countWindow {
 	// −4pq·sin²(ω/2), its argument by atan2; each rounds to a few ulps of
 	// its own size, times n (the ulps returned)
 	seq, absErr := inv.Invert(-int64(lo), lattice.Spectrum{Cut: windowCut, Decreasing: true}, func(_ int, omega float64) (complex128, float64) {
-		s2 := math.Sin(omega / 2)
-		s2 *= s2
-		sin, cos := math.Sincos(omega)
+		// sin ω and cos ω from sin(ω/2) and cos(ω/2) (one Sincos; cos ω =
+		// 1 − 2·sin²(ω/2) to an absolute 2ε)
+		sh, ch := math.Sincos(omega / 2)
+		s2 := sh * sh
+		sin, cos := 2*sh*ch, 1-2*s2
 		var re, ph, mag float64
 		for _, t := range ts {
 			r := t.n * 0.5 * math.Log1p(-4*t.p*t.q*s2)

@@ -103,11 +103,13 @@ func convRel(g int, terms, w float64) float64 {
 // nil where a term has no probability above runCut on [0, top].
 func lowCount(ts []binom, top float64) (pmf []float64, rel float64) {
 	size := int(top) + 1
-	acc := make([]float64, size)
-	next := make([]float64, size)
+	// one allocation: the running sum, the next one, and the terms' runs
+	// (at most size values each)
+	buf := make([]float64, 3*size)
+	acc, next := buf[:size:size], buf[size:2*size:2*size]
 	acc[0] = 1
 	accTop := 0 // last index of acc that may be non-zero
-	var scratch []float64
+	scratch := buf[2*size : 2*size : 3*size]
 	for _, t := range ts {
 		b := math.Min(top, t.n)
 		lo, pmf, r := binomRun(t, 0, b, runCut, scratch)

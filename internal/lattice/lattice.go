@@ -49,6 +49,7 @@ type Inverter struct {
 	fft   *fourier.FFT
 	coeff []complex128
 	seq   []float64
+	used  bool // coeff has been written (a new Inverter's is zero)
 }
 
 // NewInverter returns an Inverter for windows of n integers, n in
@@ -108,7 +109,10 @@ type Spectrum struct {
 func (v *Inverter) Invert(d int64, sp Spectrum, logPhi func(l int, omega float64) (lg complex128, ulps float64)) (q []float64, absErr float64) {
 	n := v.n
 	half := n / 2
-	clear(v.coeff)
+	if v.used {
+		clear(v.coeff)
+	}
+	v.used = true
 	dm := d % int64(n)
 	if dm < 0 {
 		dm += int64(n)
@@ -117,7 +121,8 @@ func (v *Inverter) Invert(d int64, sp Spectrum, logPhi func(l int, omega float64
 	invN := 1 / float64(n)
 	var absSum, ulpSum float64 // Σ |c_l|, Σ |c_l|·ulps_l
 	dropped := 0
-	visit := func(l int) bool {
+	// visit takes the value at l, whose phase index l·d mod N is ld
+	visit := func(l int, ld int64) bool {
 		lg, ulps := logPhi(l, step*float64(l))
 		w := 2.0 // l and N − l
 		if l == 0 || 2*l == n {
@@ -131,25 +136,29 @@ func (v *Inverter) Invert(d int64, sp Spectrum, logPhi func(l int, omega float64
 		// integers; q_r = Σ_l c_l·e^{−2πi·lr/N} = Σ_l conj(c_l)·e^{+2πi·lr/N}:
 		// the real inverse transform of the conjugates (q is real)
 		mag := math.Exp(real(lg)) * invN
-		sin, cos := math.Sincos(imag(lg) + float64((int64(l)*dm)%int64(n))*step)
+		sin, cos := math.Sincos(imag(lg) + float64(ld)*step)
 		v.coeff[l] = complex(mag*cos, -mag*sin)
 		absSum += w * mag
 		ulpSum += w * mag * ulps
 		return true
 	}
 	if sp.At == nil {
+		ld := int64(0) // l·d mod N, stepped by additions
 		for l := 0; l <= half; l++ {
-			if !visit(l) && sp.Decreasing {
+			if !visit(l, ld) && sp.Decreasing {
 				dropped += n - 1 - 2*l // the values beyond, counted as left out
 				if 2*l == n {
 					dropped++
 				}
 				break
 			}
+			if ld += dm; ld >= int64(n) {
+				ld -= int64(n)
+			}
 		}
 	} else {
 		for i, l := range sp.At {
-			if !visit(l) && sp.Decreasing {
+			if !visit(l, (int64(l)*dm)%int64(n)) && sp.Decreasing {
 				for _, m := range sp.At[i+1:] {
 					if m == 0 || 2*m == n {
 						dropped++
@@ -175,6 +184,7 @@ func (v *Inverter) Invert(d int64, sp Spectrum, logPhi func(l int, omega float64
 // matters, before it is taken accurately.
 func (v *Inverter) Moduli(dst []float64, at []int64, p []float64) []float64 {
 	clear(v.seq)
+	v.used = true
 	for i, x := range p {
 		v.seq[at[i]%int64(v.n)] += x
 	}

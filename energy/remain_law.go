@@ -60,6 +60,7 @@ type PosteriorLaw struct{ p *postLaw }
 
 type postLaw struct {
 	m, s, w    []float64 // sorted by m
+	is         []float64 // 1/(s·√2), 0 for a point node: a kernel's CDF is erfc((x − m)·is)/2
 	half       []uint8   // parity of the node's index in the point set
 	below      []float64 // below[k] = Σ_{j<k} w_j, len M+1
 	above      []float64 // above[k] = Σ_{j>=k} w_j, summed from the top, len M+1
@@ -91,12 +92,13 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 			n++
 		}
 	}
-	// One buffer: the sorted m, s, w (3n), then below and above (2n+2).
+	// One buffer: the sorted m, s, w and 1/(s·√2) (4n), then below and
+	// above (2n+2).
 	// Until they are filled, the latter's place holds each node's centre
 	// and standard deviation by the node's index (2·nAll; hence the
 	// buffer's length 3n + max(2n+2, 2·nAll)).
-	buf := make([]float64, 3*n+max(2*n+2, 2*nAll))
-	tm, ts := buf[3*n:3*n+nAll], buf[3*n+nAll:3*n+2*nAll]
+	buf := make([]float64, 4*n+max(2*n+2, 2*nAll))
+	tm, ts := buf[4*n:4*n+nAll], buf[4*n+nAll:4*n+2*nAll]
 	// Sort 8-byte keys: the value's order-preserving bits with the low 16
 	// replaced by the node's index (at most MaxPosteriorNodes = 2^16
 	// nodes), then one insertion pass restores the exact order (value,
@@ -120,13 +122,18 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 			keys[j], keys[j-1] = keys[j-1], keys[j]
 		}
 	}
-	p := &postLaw{m: buf[:n:n], s: buf[n : 2*n : 2*n], w: buf[2*n : 3*n : 3*n], half: make([]uint8, n),
-		below: buf[3*n : 4*n+1 : 4*n+1], above: buf[4*n+1 : 5*n+2 : 5*n+2], q: q, lo: lo, hi: hi, name: name, unit: unit, scale: scale}
+	p := &postLaw{m: buf[:n:n], s: buf[n : 2*n : 2*n], w: buf[2*n : 3*n : 3*n], is: buf[3*n : 4*n : 4*n], half: make([]uint8, n),
+		below: buf[4*n : 5*n+1 : 5*n+1], above: buf[5*n+1 : 6*n+2 : 6*n+2], q: q, lo: lo, hi: hi, name: name, unit: unit, scale: scale}
 	for i, kk := range keys {
 		k := int(kk & 0xffff)
 		p.m[i], p.s[i], p.w[i], p.half[i] = tm[k], ts[k], w[k]/tot, uint8(k%2)
-		if ts[k] > p.smax {
-			p.smax = ts[k]
+		if is := 1 / (ts[k] * math.Sqrt2); ts[k] > 0 && is <= math.MaxFloat64 {
+			p.is[i] = is
+		} else {
+			p.s[i] = 0 // a kernel narrower than 1/MaxFloat64 is a point
+		}
+		if p.s[i] > p.smax {
+			p.smax = p.s[i]
 		}
 	}
 	// below and above overwrite the centres by index from here on.
@@ -195,12 +202,12 @@ func (p *postLaw) rawCDF(x float64) float64 {
 			continue
 		}
 		// Each kernel within kernelReach of its own standard deviations
-		// (the window is that of the widest).
-		switch z := (p.m[k] - x) / p.s[k]; {
-		case z < -kernelReach:
+		// (the window is that of the widest): Φ̄(z) = erfc(z/√2)/2.
+		switch u := (p.m[k] - x) * p.is[k]; {
+		case u < -kernelReach/math.Sqrt2:
 			c += p.w[k]
-		case z <= kernelReach:
-			c += p.w[k] * normSurv(z)
+		case u <= kernelReach/math.Sqrt2:
+			c += p.w[k] * 0.5 * math.Erfc(u)
 		}
 	}
 	return math.Min(1, c)
@@ -217,11 +224,11 @@ func (p *postLaw) rawSurv(x float64) float64 {
 			}
 			continue
 		}
-		switch z := (x - p.m[k]) / p.s[k]; {
-		case z < -kernelReach:
+		switch u := (x - p.m[k]) * p.is[k]; {
+		case u < -kernelReach/math.Sqrt2:
 			c += p.w[k]
-		case z <= kernelReach:
-			c += p.w[k] * normSurv(z)
+		case u <= kernelReach/math.Sqrt2:
+			c += p.w[k] * 0.5 * math.Erfc(u)
 		}
 	}
 	return math.Min(1, c)
@@ -309,8 +316,10 @@ func (p *postLaw) root(k int, g func(float64) float64) float64 {
 		if ga < 0 || a <= p.sLo {
 			break
 		}
-		a = lo
-		ga = g(a)
+		if lo < a {
+			a = lo
+			ga = g(a)
+		}
 	}
 	if ga >= 0 {
 		return a
@@ -321,8 +330,10 @@ func (p *postLaw) root(k int, g func(float64) float64) float64 {
 		if gb >= 0 || b >= p.sHi {
 			break
 		}
-		b = hi
-		gb = g(b)
+		if hi > b {
+			b = hi
+			gb = g(b)
+		}
 	}
 	scale := math.Max(math.Abs(a), math.Abs(b))
 	if math.IsInf(b, 1) {

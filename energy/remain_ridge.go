@@ -405,10 +405,11 @@ func cellPoint(h0, h1, e0, e1, h, r, cm float64) (t, dens float64) {
 	case math.Abs(b*h) < 1e-9:
 		t, dens = r/e0, e0+b*r
 	case e0 >= e1:
-		t, dens = math.Log1p(b*r/e0)/b, e0+b*r
+		// 1 + b·r/e0 >= e1/e0 >= 0 but for rounding (then the cell's top)
+		t, dens = math.Log1p(math.Max(b*r/e0, -1))/b, e0+b*r
 	default:
 		rest := math.Max(cm-r, 0)
-		t, dens = h+math.Log1p(-b*rest/e1)/b, e1-b*rest
+		t, dens = h+math.Log1p(math.Max(-b*rest/e1, -1))/b, e1-b*rest
 	}
 	if !(t >= 0) {
 		t = 0

@@ -57,6 +57,14 @@ func TestCellMass(t *testing.T) {
 		}
 	}
 	require.Zero(t, cellMass(math.Inf(-1), 0, 1))
+	// A mass asked past the cell's by rounding gives the cell's far end
+	// (closed form), never NaN.
+	for _, tc := range []struct{ h0, h1 float64 }{{0, -40}, {-40, 0}} {
+		cm := cellMass(tc.h0, tc.h1, 0.01)
+		x, dens := cellPoint(tc.h0, tc.h1, math.Exp(tc.h0), math.Exp(tc.h1), 0.01, cm*(1+1e-15), cm)
+		require.Equal(t, 0.01, x, "%+v", tc)
+		require.InDelta(t, math.Exp(tc.h1), dens, 1e-15, "%+v", tc)
+	}
 }
 
 // ridgeSpec is the validation fleet's group (remain_validation_test.go)

@@ -3,6 +3,8 @@ package dist
 import (
 	"fmt"
 	"math"
+
+	"github.com/joulelaw/joulelaw/internal/lattice"
 )
 
 // SumDiscrete returns the exact law of X_1 + … + X_n for independent
@@ -14,7 +16,7 @@ import (
 // MaxSumAtoms lattice points and the laws fill enough of it
 // (denseCheaper), the masses are arrays indexed by the
 // lattice offset and two laws of a and b points cost a·b multiply-adds
-// (convolveDense), not a·b atom pairs to sort and merge. The values are
+// (internal/lattice.Convolve, the one direct convolution), not a·b atom pairs to sort and merge. The values are
 // Σ v0_i + m·δ (exact for integers: when Σ v0_i is itself a multiple of δ,
 // each value is one product (r + m)·δ); masses that underflow to 0 are
 // dropped, as Sum drops them. Laws not on a common lattice are summed as
@@ -106,7 +108,7 @@ func denseSum(laws []Discrete) (Discrete, bool) {
 	}
 	result := bases[0]
 	for _, b := range bases[1:] {
-		result = convolveDense(result, b)
+		result = lattice.Convolve(result, b)
 	}
 	// As latticeList: a shift on the lattice gives each value as one product.
 	r := math.Round(shift / delta)

@@ -1,6 +1,10 @@
 package dist
 
-import "math"
+import (
+	"math"
+
+	"github.com/joulelaw/joulelaw/internal/lattice"
+)
 
 // latticeList returns the exact k-fold sum of a finite discrete law whose
 // atoms lie on the lattice v0 + ns[i]·δ (latticeOf) and whose k-fold sum
@@ -20,11 +24,11 @@ func latticeList(d Discrete, v0, delta float64, ns []int64, k int) Discrete {
 	result := []float64{1}
 	for k > 0 {
 		if k&1 == 1 {
-			result = convolveDense(result, base)
+			result = lattice.Convolve(result, base)
 		}
 		k >>= 1
 		if k > 0 {
-			base = convolveDense(base, base)
+			base = lattice.Convolve(base, base)
 		}
 	}
 	// When v0 is itself on the lattice (v0 = r·δ, r a positive integer:
@@ -47,19 +51,4 @@ func latticeList(d Discrete, v0, delta float64, ns []int64, k int) Discrete {
 		}
 	}
 	return discreteFromAtoms(atoms)
-}
-
-// convolveDense returns the convolution of two mass arrays.
-func convolveDense(a, b []float64) []float64 {
-	out := make([]float64, len(a)+len(b)-1)
-	for i, x := range a {
-		if x == 0 {
-			continue
-		}
-		o := out[i : i+len(b)]
-		for j, y := range b {
-			o[j] += x * y
-		}
-	}
-	return out
 }

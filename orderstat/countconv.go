@@ -2,6 +2,8 @@ package orderstat
 
 import (
 	"math"
+
+	"github.com/joulelaw/joulelaw/internal/lattice"
 )
 
 // This file holds the fast path of the Poisson-binomial count C = Σ
@@ -121,20 +123,9 @@ func lowCount(ts []binom, top float64) (pmf []float64, rel float64) {
 		l := int(lo)
 		newTop := min(accTop+l+len(pmf)-1, size-1)
 		clear(next[:newTop+1])
-		for i := 0; i <= accTop; i++ {
-			x := acc[i]
-			if x == 0 {
-				continue
-			}
-			if i+l >= size {
-				break
-			}
-			end := min(len(pmf), size-i-l)
-			row := next[i+l : i+l+end]
-			for j := range row {
-				row[j] += x * pmf[j]
-			}
-		}
+		// P(C = i + l + j) gets acc[i]·pmf[j] (products that underflow are
+		// dropped, as the doc says)
+		lattice.ConvolveAdd(next[:newTop+1], acc[:accTop+1], pmf, l)
 		acc, next = next, acc
 		accTop = newTop
 	}

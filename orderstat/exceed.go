@@ -6,6 +6,7 @@ import (
 	"sort"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/lattice"
 )
 
 // Count is the law of a number of nodes out of n: a finite discrete law on
@@ -304,13 +305,7 @@ func (cm countModel) convolve() (lo float64, pmf []float64, rel float64) {
 				break
 			}
 			a, b := ps[i], ps[i+1]
-			out := make([]float64, len(a.pmf)+len(b.pmf)-1)
-			for i, x := range a.pmf {
-				row := out[i : i+len(b.pmf)]
-				for j, y := range b.pmf {
-					row[j] += x * y
-				}
-			}
+			out := lattice.Convolve(a.pmf, b.pmf)
 			// Trim the ends.
 			s, e := 0, len(out)
 			for s < e-1 && out[s] < 1e-310 {

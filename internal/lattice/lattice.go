@@ -1,10 +1,13 @@
-// Package lattice is joulelaw's one inversion of the transform of an
-// integer-valued law on a window of consecutive integers by the discrete
-// Fourier transform. Package dist (the k-fold sums of laws on a lattice,
-// SumIID's lattice FFT) and package orderstat (the law of the number of
-// nodes, out of several groups, beyond a threshold: a Poisson-binomial
-// count) use it; each chooses its window, its tilts and its transform, and
-// this package does the inversion and states its rounding.
+// Package lattice holds joulelaw's kernels for laws on the integers: the
+// one inversion of the transform of an integer-valued law on a window of
+// consecutive integers by the discrete Fourier transform (Inverter), and
+// the one direct convolution of mass arrays (Convolve, ConvolveAdd).
+// Package dist (the k-fold sums of laws on a lattice, SumIID's lattice FFT
+// and dense sums, SumDiscrete) and package orderstat (the law of the
+// number of nodes, out of several groups, beyond a threshold: a
+// Poisson-binomial count) use them; each chooses its window, its tilts and
+// its transform, and this package does the inversion and states its
+// rounding.
 //
 // For an integer law M with transform φ(ω) = E[exp(iωM)] and a window of
 // N integers m0, m0+1, …, m0+N−1, the inverse discrete Fourier transform on

@@ -796,8 +796,9 @@ const slopeLo, slopeHi, slopeH = -12.0, 9.0, 0.01
 // slope anywhere.
 type slopeBound struct {
 	cells        []float64
-	outLo, outHi float64 // the bounds below the cells and from the last cell's left end on
-	most         float64 // the largest of all, times 1 + 1e-12 (minSlope)
+	wide         []float64 // wide[i]: the largest of cells i − 1, i and i + 1
+	outLo, outHi float64   // the bounds below the cells and from the last cell's left end on
+	most         float64   // the largest of all, times 1 + 1e-12 (minSlope)
 }
 
 func newSlopeBound(n int64) slopeBound {
@@ -821,6 +822,10 @@ func newSlopeBound(n int64) slopeBound {
 	b.outLo = nf * normPDF(slopeLo)
 	b.outHi = nf * normPDF(slopeLo+slopeH*float64(m-1))
 	b.most = best * (1 + 1e-12)
+	b.wide = make([]float64, m)
+	for i := range m {
+		b.wide[i] = max(b.cells[max(0, i-1)], b.cells[i], b.cells[min(m-1, i+1)])
+	}
 	return b
 }
 
@@ -829,11 +834,27 @@ func newSlopeBound(n int64) slopeBound {
 // interval, one more on either side against rounding in the cell's index,
 // and of the bounds beyond the cells where it reaches them.
 func (b *slopeBound) over(z0, z1 float64) float64 {
-	lo, hi := math.Min(z0, z1), math.Max(z0, z1)
+	lo, hi := z0, z1
+	if hi < lo {
+		lo, hi = hi, lo
+	}
+	m := len(b.cells)
+	if lo >= slopeLo && hi < slopeLo+slopeH*float64(m-1) {
+		// Within the cells (the usual case): the widened cells from lo's
+		// to hi's, the index by one product (the widening covers its
+		// rounding).
+		i0, i1 := int((lo-slopeLo)*(1/slopeH)), min(m-1, int((hi-slopeLo)*(1/slopeH)))
+		L := b.wide[i0]
+		for i := i0 + 1; i <= i1; i++ {
+			if b.wide[i] > L {
+				L = b.wide[i]
+			}
+		}
+		return L * (1 + 1e-12)
+	}
 	if !finite(lo) || !finite(hi) {
 		return b.most
 	}
-	m := len(b.cells)
 	L := 0.0
 	if lo < slopeLo {
 		L = b.outLo

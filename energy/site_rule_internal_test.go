@@ -3,6 +3,7 @@ package energy
 import (
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -120,6 +121,36 @@ func TestMinSlope(t *testing.T) {
 		got := minSlope(n)
 		assert.GreaterOrEqual(t, got, scan, "n = %d", n)
 		assert.LessOrEqual(t, got, 1.05*scan, "n = %d", n)
+	}
+}
+
+// slopeBound.over bounds the slope of a first failure's CDF among n nodes
+// against their probit between two probits (what the rule's interpolation
+// bound reads): checked against n·Φ(−z)^(n−1)·φ(z) by gonum's
+// distuv.UnitNormal on 201 points of each interval (its ends included),
+// for intervals of widths 1e-4 to 2 (fixed seed) from −14 to 11 (beyond
+// the cells on both sides), n = 1 to 10^6; never above the largest
+// (minSlope), and far below it away from the mode.
+func TestSlopeBoundOver(t *testing.T) {
+	r := rand.New(rand.NewPCG(12, 1))
+	for _, n := range []int64{1, 50, 625, 1e6} {
+		b := newSlopeBound(n)
+		slope := func(z float64) float64 {
+			return float64(n) * math.Pow(distuv.UnitNormal.Survival(z), float64(n-1)) * distuv.UnitNormal.Prob(z)
+		}
+		for range 2000 {
+			a := -14 + 25*r.Float64()
+			w := math.Pow(10, -4+math.Log10(2e4)*r.Float64())
+			got := b.over(a+w, a) // either order
+			scan := 0.0
+			for i := range 201 {
+				scan = math.Max(scan, slope(a+w*float64(i)/200))
+			}
+			require.GreaterOrEqual(t, got, scan, "n = %d on [%g, %g]", n, a, a+w)
+			require.LessOrEqual(t, got, b.most, "n = %d on [%g, %g]", n, a, a+w)
+		}
+		assert.Less(t, b.over(5, 5.01), 1e-3*b.most, "n = %d: far above the mode", n)
+		assert.Equal(t, b.most, b.over(math.Inf(1), 0), "n = %d: an infinite probit", n)
 	}
 }
 

@@ -982,7 +982,9 @@ func (s *Site) probeTimesWith(sc *ruleScratch, kind lawKind, g int, k int64) []f
 // (mixZ at the nodes: the same law but for the tables' rounding); of the
 // k-th failure, the normal approximation of each shared point's
 // Poisson-binomial count (continuity-corrected). A seed only starts the
-// search: every step is checked on the mixture itself.
+// search: every step is checked on the mixture itself. A node law's or a
+// group first failure's search starts between the conditional laws'
+// answers (condSpan) where they bracket it.
 func (s Site) seedFor(kind lawKind, g int, k int64) func(target float64) (t0, slope float64, ok bool) {
 	if len(s.envs) < 2 || !(s.tHi > s.tLo) {
 		return nil
@@ -1008,7 +1010,20 @@ func (s Site) seedFor(kind lawKind, g int, k int64) func(target float64) (t0, sl
 		}
 		f := func(t float64) float64 { return probit(t) - target }
 		lo, hi := s.tLo, s.tHi
-		flo, fhi := f(lo), f(hi)
+		var flo, fhi float64
+		narrow := false
+		if a, b := s.condSpan(kind, g, target); a > 0 && b >= a && finite(b) {
+			// The conditional laws' answers bracket the mixture's: a
+			// narrower start, checked (widened by 1e-9 against the
+			// tables' rounding).
+			a, b = a*(1-1e-9), b*(1+1e-9)
+			if fa, fb := f(a), f(b); fa < 0 && fb >= 0 {
+				lo, hi, flo, fhi, narrow = a, b, fa, fb, true
+			}
+		}
+		if !narrow {
+			flo, fhi = f(lo), f(hi)
+		}
 		if !(flo < 0 && fhi >= 0) {
 			return 0, 0, false
 		}
@@ -1074,6 +1089,35 @@ func (tb *tabulated) logSurvival(t float64, hint *int) float64 {
 		return math.Log1p(-normSurv(-z))
 	}
 	return math.Log(normSurv(z))
+}
+
+// condSpan returns the smallest and the largest over the rule's nodes of
+// the conditional laws' times (s) whose probit is target, for a node law
+// or a group's first failure (from the tables' inverses: the first
+// failure among n reaches CDF p where the node's survival is (1 − p)^(1/n),
+// each side from its smaller tail), or NaN for the other kinds: the
+// mixture's answer lies between them.
+func (s *Site) condSpan(kind lawKind, g int, target float64) (lo, hi float64) {
+	if kind != kindNode && kind != kindFirst {
+		return math.NaN(), math.NaN()
+	}
+	p, q := normCDFz(target), normSurv(target)
+	n := 1.0
+	if kind == kindFirst {
+		n = float64(s.counts[g])
+	}
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for e := range s.envs {
+		tb := s.envs[e].laws[g]
+		var t float64
+		if target <= 0 {
+			t = tb.Quantile(-math.Expm1(math.Log1p(-p) / n))
+		} else {
+			t = tb.UpperQuantile(math.Exp(math.Log(q) / n))
+		}
+		lo, hi = math.Min(lo, t), math.Max(hi, t)
+	}
+	return lo, hi
 }
 
 // kthNormal returns the normal approximation of the mixture over the

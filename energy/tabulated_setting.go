@@ -182,7 +182,7 @@ func settingTable(l NodeLifetime, j int, tol, tail float64) (probitTable, bool) 
 		}
 		return probitGrid(probit, lo, hi, probit(lo), probit(hi), n.kinks(lo, hi), 0, tol), true
 	}
-	pt := n.gradGrid(j, loK, hiK, tol)
+	pt := n.gradGrid(j, loK, hiK, tol, seen)
 	pt.evals += len(seen)
 	return pt, true
 }
@@ -190,7 +190,10 @@ func settingTable(l NodeLifetime, j int, tol, tail float64) (probitTable, bool) 
 // gradGrid tabulates setting j between the knots lo and hi: tabInitial
 // even knots, each interval halved until the interpolant (gradInterp) at
 // its midpoint is within tol of the model, then stored as cubics between
-// the knots and the month boundaries where the clocks' rates change.
+// the knots and the month boundaries where the clocks' rates change. A
+// knot the ends' searches evaluated already (known) within half a step of
+// an even knot's place takes that place (the nearest, in order): the same
+// model, one evaluation fewer (the demo's tables 6 % fewer).
 //
 // The midpoint alone can sit near a zero of the interval's error e(x)
 // while e is several times the tolerance elsewhere (the month boundaries'
@@ -204,13 +207,27 @@ func settingTable(l NodeLifetime, j int, tol, tail float64) (probitTable, bool) 
 // (TestSettingTablesAgainstDirect measures them against the model). Without
 // this guard one of that test's tables erred by 1.0e-3 where 2.2e-4 was
 // measured at the midpoints.
-func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64) probitTable {
+func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64, known []gradKnot) probitTable {
 	ks := []gradKnot{lo}
+	evals := 0
+	step := (hi.t - lo.t) / float64(tabSetInitial-1)
 	for i := 1; i < tabSetInitial-1; i++ {
-		ks = append(ks, n.gradKnotAt(j, lo.t+(hi.t-lo.t)*float64(i)/float64(tabSetInitial-1)))
+		x := lo.t + step*float64(i)
+		best := -1
+		for q := range known {
+			k := &known[q]
+			if d := math.Abs(k.t - x); d <= step/2 && k.t > ks[len(ks)-1].t && k.t < hi.t && (best < 0 || d < math.Abs(known[best].t-x)) {
+				best = q
+			}
+		}
+		if best >= 0 {
+			ks = append(ks, known[best])
+			continue
+		}
+		ks = append(ks, n.gradKnotAt(j, x))
+		evals++
 	}
 	ks = append(ks, hi)
-	evals := tabSetInitial - 2
 	finite := func(k *gradKnot) bool { return !math.IsInf(k.z, 0) && !math.IsNaN(k.z) }
 	ks, worst, splits := halveUntil(ks, tol, nil, func(a, b *gradKnot) bool {
 		return b.t-a.t <= 1e-9*b.t || (!finite(a) && a.z == b.z)

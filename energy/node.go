@@ -7,6 +7,7 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/mills"
 )
 
 // glNodes is the order of the fixed Gauss–Legendre rule on each piece of
@@ -746,8 +747,9 @@ func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad
 			w := n.glw[k]
 			sg := sign * g
 			wp := w * phiU[k]
+			ag := math.Abs(g)
 			gauss := 0.0 // φ(u)·φ(g), where |g| < 40 (0 where it underflows)
-			if math.Abs(g) < 40 && (grad || sg > 5) {
+			if ag < 40 && (grad || sg > 5 || (sg >= -8.5 && ag >= mills.SmallX)) {
 				gauss = phiU[k] * math.Exp(-0.5*g*g) * invSqrt2Pi
 			}
 			switch {
@@ -756,6 +758,14 @@ func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad
 			case sg > 0 && gauss > 0 && left+h*w*gauss/sg <= 1e-17*(sum[0]+h*part[0]):
 				// Left out: the term is below w·φ(u)·φ(g)/g (Gordon).
 				left += h * w * gauss / sg
+			case gauss > 0 && ag >= mills.SmallX:
+				// φ(u)·Φ̄(|g|) = φ(u)·φ(g)·R(|g|), Mills' ratio R, from
+				// the density already at hand: no erfc.
+				if sg > 0 {
+					part[0] += w * gauss * mills.Ratio(ag)
+				} else {
+					part[0] += wp - w*gauss*mills.Ratio(ag)
+				}
 			default:
 				part[0] += wp * normSurv(sg)
 			}
@@ -799,9 +809,10 @@ func (n *node) adaptivePart(capLeft, mean, floorE, h float64) (alive, dead, errE
 	return 1 - v, v, e
 }
 
-// normSurv is the standard normal survival Φ̄(z) = erfc(z/√2)/2, accurate
-// in the upper tail.
-func normSurv(z float64) float64 { return 0.5 * math.Erfc(z/math.Sqrt2) }
+// normSurv is the standard normal survival Φ̄(z), accurate in the upper
+// tail: mills.Upper (φ·Mills' ratio for 0.66 <= |z| < 9, erfc(z/√2)/2
+// elsewhere; within 8e-15 relative, erfc's own error beyond).
+func normSurv(z float64) float64 { return mills.Upper(z) }
 
 // normPDF is the standard normal density.
 func normPDF(z float64) float64 { return math.Exp(-0.5*z*z) / math.Sqrt(2*math.Pi) }

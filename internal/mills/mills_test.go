@@ -1,0 +1,156 @@
+package mills
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+)
+
+// oracleErfc is R(x) = Φ̄(x)/φ(x) from the Go standard library's erfc (the
+// fdlibm algorithm, under 1 ulp) and φ with its exponent split exactly:
+// x² = z² + (x − z)(x + z) with z = x rounded to 24 bits, so z² and z²/2
+// are exact in float64 and only the small remainder is rounded.
+func oracleErfc(x float64) float64 {
+	z := float64(float32(x))
+	phi := math.Exp(-0.5*z*z) * math.Exp(-0.5*(x-z)*(x+z)) / math.Sqrt(2*math.Pi)
+	return 0.5 * math.Erfc(x/math.Sqrt2) / phi
+}
+
+// oracleCF is Laplace's continued fraction for Mills' ratio,
+// R(x) = 1/(x + 1/(x + 2/(x + 3/(x + …)))) (Abramowitz and Stegun,
+// Handbook of Mathematical Functions, 26.2.14), summed from the bottom
+// with n terms: the error falls about as e^{−2x√n} (e^{−76} at x = 0.6
+// with 4000 terms, e^{−126} at x = 0.2 with 10^5).
+func oracleCF(x float64, n int) float64 {
+	t := x
+	for k := n; k >= 1; k-- {
+		t = x + float64(k)/t
+	}
+	return 1 / t
+}
+
+func TestRatioAgainstErfc(t *testing.T) {
+	// Where Φ̄(x) is far from float64's subnormal range the erfc oracle holds
+	// (x up to 35: Φ̄(35) is about 1e-268; near 37.5 Φ̄ turns subnormal and
+	// the oracle loses digits);
+	// beyond, the continued fraction takes over (next test).
+	worst, at := 0.0, 0.0
+	for i := 0; i <= 350000; i++ {
+		x := float64(i) * 1e-4
+		got, want := Ratio(x), oracleErfc(x)
+		// The oracle's own error: x/√2 is rounded (relative 2^-53), which
+		// moves erfc by up to 2·(x/√2)²·2^-53 = x²·2^-53 relative, and
+		// fdlibm's erfc rounds its exponent −y² − 0.5625 (about
+		// y²·2^-53 = x²/2·2^-53 more): 2·x²·2^-53 in all. The continued
+		// fraction below has no such term and is the tight check.
+		e := math.Abs(got-want) / want / (MaxRelErr + 2*x*x*0x1p-53)
+		if e > worst {
+			worst, at = e, x
+		}
+	}
+	t.Logf("largest relative difference from erfc over [0, 35]: %.3g of MaxRelErr + the oracle's rounding, at x = %g", worst, at)
+	assert.LessOrEqual(t, worst, 1.0)
+}
+
+func TestRatioAgainstContinuedFraction(t *testing.T) {
+	worst, at := 0.0, 0.0
+	for i := 0; i <= 39800; i++ {
+		x := 0.2 + float64(i)*1e-3
+		n := 4000
+		if x < 0.6 {
+			n = 100000
+		}
+		got, want := Ratio(x), oracleCF(x, n)
+		e := math.Abs(got-want) / want
+		if e > worst {
+			worst, at = e, x
+		}
+	}
+	t.Logf("largest relative difference from the continued fraction over [0.2, 40]: %.3g at x = %g", worst, at)
+	assert.LessOrEqual(t, worst, MaxRelErr)
+}
+
+func TestUpperAgainstOracles(t *testing.T) {
+	// Φ̄ from erfc (the Go standard library, under 1 ulp, plus the
+	// rounding of x/√2: x²·2^-53) and, for x >= 0.6, φ·R from the
+	// continued fraction with φ's exponent split exactly.
+	worst, at := 0.0, 0.0
+	for i := -24000; i <= 24000; i++ {
+		x := float64(i) * 5e-4
+		got := Upper(x)
+		want := 0.5 * math.Erfc(x/math.Sqrt2)
+		tol := UpperMaxRelErr + x*x*0x1p-53
+		if x >= 0.6 {
+			z := float64(float32(x))
+			want = math.Exp(-0.5*z*z) * math.Exp(-0.5*(x-z)*(x+z)) / math.Sqrt(2*math.Pi) * oracleCF(x, 4000)
+			tol = UpperMaxRelErr
+			if math.Abs(x) >= upperDirect {
+				tol += 2 * x * x * 0x1p-53 // erfc's own (see Upper)
+			}
+		}
+		if e := math.Abs(got-want) / want / tol; e > worst {
+			worst, at = e, x
+		}
+	}
+	t.Logf("Upper: largest relative difference %.3g of its tolerance, at x = %g", worst, at)
+	assert.LessOrEqual(t, worst, 1.0)
+	for _, x := range []float64{math.Inf(1), math.Inf(-1), 40} {
+		assert.Equal(t, 0.5*math.Erfc(x/math.Sqrt2), Upper(x), "x = %g", x)
+	}
+	assert.True(t, math.IsNaN(Upper(math.NaN())))
+}
+
+func TestRatioEdges(t *testing.T) {
+	tests := []struct {
+		name string
+		x    float64
+		want float64
+		tol  float64
+	}{
+		// R(0) = Φ̄(0)/φ(0) = (1/2)·√(2π) = √(π/2) (closed form).
+		{"zero", 0, math.Sqrt(math.Pi / 2), 1e-16},
+		// The turn from erfc to Cody's ratio is continuous (both sides
+		// within MaxRelErr of the oracle).
+		{"below the turn", math.Nextafter(SmallX, 0), oracleErfc(math.Nextafter(SmallX, 0)), MaxRelErr},
+		{"at the turn", SmallX, oracleErfc(SmallX), MaxRelErr},
+		// R(x)·x → 1: at x = 1e9 the next term, −1/x², is 1e-18.
+		{"huge", 1e9, 1e-9, 1e-15},
+		{"beyond Cody's cut", 2e8, 5e-9, 1e-15},
+		{"infinite", math.Inf(1), 0, 0},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			got := Ratio(tc.x)
+			if tc.want == 0 {
+				assert.Equal(t, 0.0, got)
+				return
+			}
+			assert.InDelta(t, 1, got/tc.want, tc.tol)
+		})
+	}
+	for _, x := range []float64{-1e-300, -1, math.Inf(-1), math.NaN()} {
+		require.True(t, math.IsNaN(Ratio(x)), "x = %g", x)
+	}
+}
+
+func BenchmarkRatio(b *testing.B) {
+	s := 0.0
+	for b.Loop() {
+		for x := 0.7; x < 9; x += 0.5 {
+			s += Ratio(x)
+		}
+	}
+	_ = s
+}
+
+func BenchmarkErfc(b *testing.B) {
+	s := 0.0
+	for b.Loop() {
+		for x := 0.7; x < 9; x += 0.5 {
+			s += 0.5 * math.Erfc(x/math.Sqrt2)
+		}
+	}
+	_ = s
+}

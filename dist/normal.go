@@ -5,6 +5,8 @@ import (
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
+
+	"github.com/joulelaw/joulelaw/internal/mills"
 )
 
 // Normal is the normal (Gaussian) law with mean Mu and standard deviation
@@ -95,9 +97,13 @@ func stdNormalQuantile(p float64) float64 {
 
 // stdNormalUpperZ returns z >= 0 with Q(z) = erfc(z/√2)/2 = q, for q in
 // (0, 1/2]. The start is Abramowitz & Stegun 26.2.23 (|error| < 4.5e-4);
-// Newton steps on log Q, with Q from math.Erfc, then give full precision
-// down to q near the smallest normal float64. (math.Erfcinv is not used: it
-// loses accuracy below 1e-10 and returns +Inf below about 1e-16.)
+// Newton steps on log Q then give full precision down to q near the
+// smallest float64. Where z >= mills.SmallX (0.663) a step takes log Q =
+// −z²/2 − log √(2π) + log R(z) and Q/φ = R(z) from Mills' ratio R
+// (internal/mills, within 1e-15 relative): one logarithm and a rational
+// function, no erfc or exponential, and no underflow of Q; nearer 0,
+// Q from math.Erfc. (math.Erfcinv is not used: it loses accuracy below
+// 1e-10 and returns +Inf below about 1e-16.)
 func stdNormalUpperZ(q float64) float64 {
 	if q >= 0.5 {
 		return 0
@@ -105,13 +111,21 @@ func stdNormalUpperZ(q float64) float64 {
 	t := math.Sqrt(-2 * math.Log(q))
 	z := t - (2.515517+0.802853*t+0.010328*t*t)/(1+1.432788*t+0.189269*t*t+0.001308*t*t*t)
 	lq := math.Log(q)
+	logSqrt2Pi := 0.5 * math.Log(2*math.Pi)
 	for i := 0; i < 6; i++ {
-		Q := 0.5 * math.Erfc(z/math.Sqrt2)
-		phi := math.Exp(-z*z/2) / math.Sqrt(2*math.Pi)
-		if Q <= 0 || phi <= 0 {
-			break
+		var lQ, r float64 // log Q(z) and Q(z)/φ(z)
+		if z >= mills.SmallX {
+			r = mills.Ratio(z)
+			lQ = -0.5*z*z - logSqrt2Pi + math.Log(r)
+		} else {
+			Q := 0.5 * math.Erfc(z/math.Sqrt2)
+			phi := math.Exp(-z*z/2) / math.Sqrt(2*math.Pi)
+			if Q <= 0 || phi <= 0 {
+				break
+			}
+			lQ, r = math.Log(Q), Q/phi
 		}
-		step := (math.Log(Q) - lq) * Q / phi
+		step := (lQ - lq) * r
 		z += step
 		if math.Abs(step) <= 1e-16*math.Max(1, z) {
 			break

@@ -58,6 +58,28 @@ func TestNormalQuantilesInvertTable(t *testing.T) {
 	assert.InDelta(t, 5+2*20, s.UpperQuantile(2.7536241186062337e-89), 1e-12)
 }
 
+// TestNormalQuantileRoundTrip: over q from 1e-300 to 1/2 (2000 points,
+// evenly in log q), Survival(UpperQuantile(q)) = q within the conditioning
+// tolerance testref.NormalTailTol(z) plus z·2^-52 per unit of z's rounding
+// (Survival is checked against 1600-bit values in
+// TestNormalSurvivalTable): the quantile's Newton steps, on Mills' ratio
+// beyond z = 0.663 and on erfc nearer 0, stop at the right place.
+func TestNormalQuantileRoundTrip(t *testing.T) {
+	n := dist.MustNormal(0, 1)
+	worst, at := 0.0, 0.0
+	for i := 0; i <= 2000; i++ {
+		q := math.Pow(10, -300+float64(i)*(300+math.Log10(0.5))/2000)
+		z := n.UpperQuantile(q)
+		// dQ/Q = −(φ/Q)·dz: z's last-place rounding moves Q by about z²·2^-52.
+		tol := testref.NormalTailTol(z) + 2*z*math.Max(z, 1)*0x1p-52
+		if e := testref.RelErr(n.Survival(z), q) / tol; e > worst {
+			worst, at = e, q
+		}
+	}
+	t.Logf("largest round-trip error %.3g of its tolerance, at q = %.3g", worst, at)
+	assert.LessOrEqual(t, worst, 1.0)
+}
+
 func TestNormalClosedForms(t *testing.T) {
 	n := dist.MustNormal(1, 2)
 	assert.Equal(t, 1.0, n.Mean())
@@ -91,4 +113,16 @@ func TestNewNormalBadInput(t *testing.T) {
 		assertParamError(t, err, "NewNormal", tc.param)
 		assert.Panics(t, func() { dist.MustNormal(tc.mu, tc.sigma) })
 	}
+}
+
+// BenchmarkNormalUpperQuantile: 16 upper quantiles from 0.4 down to 1e-300.
+func BenchmarkNormalUpperQuantile(b *testing.B) {
+	n := dist.MustNormal(0, 1)
+	s := 0.0
+	for b.Loop() {
+		for q := 0.4; q > 1e-300; q *= 1e-20 {
+			s += n.UpperQuantile(q)
+		}
+	}
+	_ = s
 }

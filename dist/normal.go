@@ -111,7 +111,7 @@ func stdNormalUpperZ(q float64) float64 {
 	t := math.Sqrt(-2 * math.Log(q))
 	z := t - (2.515517+0.802853*t+0.010328*t*t)/(1+1.432788*t+0.189269*t*t+0.001308*t*t*t)
 	lq := math.Log(q)
-	logSqrt2Pi := 0.5 * math.Log(2*math.Pi)
+	const logSqrt2Pi = 0.91893853320467274178 // log √(2π) (common practice)
 	for i := 0; i < 6; i++ {
 		var lQ, r float64 // log Q(z) and Q(z)/φ(z)
 		if z >= mills.SmallX {

@@ -107,21 +107,6 @@ func TestReadingTable(t *testing.T) {
 // then gets a table of its own for the call).
 func TestReadingTablesShared(t *testing.T) {
 	spec, costs := ridgeSpec(t)
-	tally := func(m DeviceModel, days int, volts []float64) Tally {
-		tl, err := m.NewTally(0)
-		require.NoError(t, err)
-		for d := 1; d <= days; d++ {
-			at := float64(d) * Day
-			tl, err = m.Observe(tl, Event{Time: at, Kind: 0, Count: 96})
-			require.NoError(t, err)
-			if k := d - (days - len(volts)); k >= 0 && k < len(volts) {
-				v := volts[k]
-				tl, err = m.Read(tl, Reading{Time: at, Low: v - 0.005, High: v + 0.005, Noise: 0.02})
-				require.NoError(t, err)
-			}
-		}
-		return tl
-	}
 	points := func(m DeviceModel, tl Tally) []uint64 {
 		p, err := m.Posterior(tl, tl.Newest())
 		require.NoError(t, err)
@@ -135,25 +120,25 @@ func TestReadingTablesShared(t *testing.T) {
 	target := []float64{3.56, 3.55, 3.55, 3.54}
 	fresh, err := NewDeviceModel(spec, Environment{}, costs, DeviceOptions{})
 	require.NoError(t, err)
-	want := points(fresh, tally(fresh, 1300, target))
+	want := points(fresh, dailyTally(t, fresh, 1300, target))
 
 	warm, err := NewDeviceModel(spec, Environment{}, costs, DeviceOptions{})
 	require.NoError(t, err)
 	for _, other := range [][]float64{{3.55, 3.55, 3.55, 3.55}, {3.60, 3.58, 3.56, 3.54}, {3.64, 3.64, 3.63, 3.63}} {
 		for _, days := range []int{600, 1100, 1400} {
-			points(warm, tally(warm, days, other))
+			points(warm, dailyTally(t, warm, days, other))
 		}
 	}
-	require.Equal(t, want, points(warm, tally(warm, 1300, target)), "tables filled by other devices first")
+	require.Equal(t, want, points(warm, dailyTally(t, warm, 1300, target)), "tables filled by other devices first")
 	derived, err := warm.WithSpread(spec.Spread)
 	require.NoError(t, err)
 	require.Same(t, warm.d.tables, derived.d.tables)
-	require.Equal(t, want, points(derived, tally(derived, 1300, target)), "WithSpread's model")
+	require.Equal(t, want, points(derived, dailyTally(t, derived, 1300, target)), "WithSpread's model")
 
 	full, err := NewDeviceModel(spec, Environment{}, costs, DeviceOptions{})
 	require.NoError(t, err)
 	full.d.tables.points.Store(MaxCachedLattice)
-	require.Equal(t, want, points(full, tally(full, 1300, target)), "a full cache")
+	require.Equal(t, want, points(full, dailyTally(t, full, 1300, target)), "a full cache")
 	n := 0
 	full.d.tables.tables.Range(func(any, any) bool { n++; return true })
 	require.Zero(t, n, "a full cache keeps no more tables")

@@ -98,6 +98,28 @@ func ridgeSpec(t *testing.T) (NodeSpec, []EventCost) {
 	return spec, costs
 }
 
+// dailyTally is a device of the ridge tests' model: 96 uplinks a day for
+// days days, with a supply reading on each of the last len(volts) days
+// (volts[k] on day days − len(volts) + 1 + k), binned to ±5 mV with a
+// noise of 0.02 V.
+func dailyTally(t *testing.T, m DeviceModel, days int, volts []float64) Tally {
+	t.Helper()
+	tl, err := m.NewTally(0)
+	require.NoError(t, err)
+	first := days - len(volts) + 1
+	for d := 1; d <= days; d++ {
+		at := float64(d) * Day
+		tl, err = m.Observe(tl, Event{Time: at, Kind: 0, Count: 96})
+		require.NoError(t, err)
+		if d >= first {
+			v := volts[d-first]
+			tl, err = m.Read(tl, Reading{Time: at, Low: v - 0.005, High: v + 0.005, Noise: 0.02})
+			require.NoError(t, err)
+		}
+	}
+	return tl
+}
+
 // TestRidgeStage: readings in the knee (3.55 and 3.50 V, four daily
 // readings at 400 to 1400 days) leave few of the prior's nodes effective;
 // the ridge stage must then resolve the posterior on the model's M nodes
@@ -119,17 +141,7 @@ func TestRidgeStage(t *testing.T) {
 			var laws [2]PosteriorLaw
 			var pds [2]*postData
 			for i, m := range ms {
-				tl, err := m.NewTally(0)
-				require.NoError(t, err)
-				for d := 1; d <= days; d++ {
-					at := float64(d) * Day
-					tl, err = m.Observe(tl, Event{Time: at, Kind: 0, Count: 96})
-					require.NoError(t, err)
-					if d > days-4 {
-						tl, err = m.Read(tl, Reading{Time: at, Low: volts - 0.005, High: volts + 0.005, Noise: 0.02})
-						require.NoError(t, err)
-					}
-				}
+				tl := dailyTally(t, m, days, []float64{volts, volts, volts, volts})
 				p, err := m.Posterior(tl, tl.Newest())
 				require.NoError(t, err)
 				pds[i], laws[i] = p.p, p.Remaining()

@@ -15,18 +15,20 @@
 // 0.46875 <= y <= 4 a ratio of degree 8 in y, beyond 4 the asymptotic form
 // (1/√π − y⁻²·P(y⁻²)/Q(y⁻²))/y with a ratio of degree 4 in y⁻². Below
 // y = 0.46875 (x < 0.66291) R is Φ̄/φ from the standard library's erfc and
-// exp, which lose nothing there (φ(x) > 0.32). TestRatioAgainstErfc
-// measures the relative error against the standard library's erfc with an
-// exactly split exponent, and TestRatioAgainstContinuedFraction against
-// Laplace's continued fraction (Abramowitz and Stegun 26.2.14): at most
-// MaxRelErr over [0, 40].
+// exp, which lose nothing there (φ(x) > 0.32). The oracles:
+// TestRatioAgainstContinuedFraction, Laplace's continued fraction
+// (Abramowitz and Stegun 26.2.14), 7.7e-16 at most over [0.2, 40];
+// TestAgainstPreciseTable, 1600-bit values of Φ̄ (internal/testref);
+// TestRatioAgainstErfc, the standard library's erfc over [0, 35], within
+// MaxRelErr plus that oracle's own rounding.
 package mills
 
 import "math"
 
 // MaxRelErr bounds the relative error of Ratio on [0, 40], as measured by
-// the tests against two oracles (about 4 units in the last place; Cody's
-// approximations are themselves accurate to about 1e-18 relative).
+// the tests against their oracles (7.7e-16 at most: a few units in the
+// last place; Cody's approximations are themselves accurate to about
+// 1e-18 relative).
 const MaxRelErr = 1e-15
 
 // SmallX is where Ratio turns from the standard library's erfc to Cody's

@@ -6,6 +6,8 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/internal/testref"
 )
 
 // oracleErfc is R(x) = Φ̄(x)/φ(x) from the Go standard library's erfc (the
@@ -100,6 +102,25 @@ func TestUpperAgainstOracles(t *testing.T) {
 		assert.Equal(t, 0.5*math.Erfc(x/math.Sqrt2), Upper(x), "x = %g", x)
 	}
 	assert.True(t, math.IsNaN(Upper(math.NaN())))
+}
+
+// TestAgainstPreciseTable: Upper and Ratio against testref.NormalUpperTail,
+// Q(z) computed at 1600-bit precision (Abramowitz and Stegun 7.1.6 with
+// math/big; each entry the float64 nearest the exact value) at z = 0 to
+// 37.5. The points are integers or halves, so z² is exact and φ(z) is
+// within one rounding of its exponential: Ratio within MaxRelErr + 2^-52
+// of Q/φ, Upper within UpperMaxRelErr inside ±9 and erfc's own error
+// (testref.NormalTailTol) beyond.
+func TestAgainstPreciseTable(t *testing.T) {
+	for _, pt := range testref.NormalUpperTail {
+		tol := UpperMaxRelErr
+		if pt.Z >= upperDirect {
+			tol = testref.NormalTailTol(pt.Z)
+		}
+		assert.LessOrEqual(t, testref.RelErr(Upper(pt.Z), pt.Q), tol, "Upper(%v)", pt.Z)
+		phi := math.Exp(-0.5*pt.Z*pt.Z) / math.Sqrt(2*math.Pi)
+		assert.LessOrEqual(t, testref.RelErr(Ratio(pt.Z), pt.Q/phi), MaxRelErr+0x1p-52, "Ratio(%v)", pt.Z)
+	}
 }
 
 func TestRatioEdges(t *testing.T) {

@@ -44,15 +44,15 @@ const kernelReach = 10
 // at the point), plus 1/M for M nodes with weight; κ = 1 on the prior's
 // low-discrepancy point set and 3 after importance stages (a proposal
 // fitted to few nodes can miss mass that neither half sees). Where the
-// stages found nothing better than the prior's nodes and those leave
-// fewer than minResolvedNodes = 64 (or a quarter) effective (readings that the group's model
-// explains only far in its tails: see DeviceModel.Outlier), the law is
-// not resolved and the stated error is 1. Checked against the same model
-// on 2^16 nodes over 54 devices (ages 300 to 1600 days, readings from
-// the plateau to the end of the knee): the stated error bounded the
-// measured one in every case that had an oracle (three of the most
-// improbable had none: 2^16 nodes do not resolve them either, and those
-// laws state 1; TestPosteriorStatedError). PosteriorLaw
+// final nodes leave fewer than minResolvedNodes = 64 (or a quarter of the
+// prior's) effective (readings that the group's model explains only far
+// in its tails: see DeviceModel.Outlier), the law is not resolved and the
+// stated error is 1. Checked against the same model on 2^16 nodes over
+// 60 devices (ages 300 to 1700 days, readings from the plateau to the end
+// of the knee): the stated error exceeded the measured one by at least
+// the oracle's own stated error in every case that had an oracle (three
+// of the most improbable had none: 2^16 nodes do not resolve them either,
+// and those laws state 1; TestPosteriorStatedError). PosteriorLaw
 // implements dist.Law, dist.Atomic and dist.Estimated; it is an immutable
 // value, safe for concurrent use. A zero PosteriorLaw is not valid: its
 // methods return NaN.

@@ -63,7 +63,14 @@ func TestPosteriorLawConformance(t *testing.T) {
 // points, for 54 devices: ages of 300 to 1600 days, counts only or four
 // daily readings from the plateau (3.66 V) to the end of the knee
 // (3.30 V), many of them improbable under the model (a knee voltage at
-// 300 days), where the laws must say that they are not resolved.
+// 300 days), where the laws must say that they are not resolved; and six
+// border devices found by a finer sweep (ages 1000 to 1700 days, readings
+// 5 mV apart), where a proposal fitted to the prior's few effective nodes
+// missed the upper tail (1600 days at 3.62 V: 95 % point 343 days against
+// the oracle's 425, measured error 0.187 against a stated 0.179) or the
+// stages left few effective without saying so (1650 days at 3.665 V:
+// measured 0.89 against a stated 0.41). The stated error must exceed the
+// measured one by the oracle's own stated error.
 func TestPosteriorStatedError(t *testing.T) {
 	f := newValFleet(t, true)
 	var models [2]energy.DeviceModel
@@ -72,9 +79,22 @@ func TestPosteriorStatedError(t *testing.T) {
 		require.NoError(t, err)
 		models[i] = m
 	}
-	cases, skipped, knee := 0, 0, 0.0
+	type device struct {
+		days  int
+		volts float64
+	}
+	var devices []device
 	for _, days := range []int{300, 800, 1200, 1400, 1500, 1600} {
 		for _, volts := range []float64{0, 3.66, 3.62, 3.58, 3.54, 3.50, 3.45, 3.40, 3.30} {
+			devices = append(devices, device{days, volts})
+		}
+	}
+	devices = append(devices, device{1600, 3.625}, device{1650, 3.635}, device{1650, 3.645},
+		device{1650, 3.665}, device{1700, 3.665}, device{1000, 3.35})
+	cases, skipped, knee := 0, 0, 0.0
+	for _, dv := range devices {
+		days, volts := dv.days, dv.volts
+		{
 			var laws [2]energy.PosteriorLaw
 			for i, m := range models {
 				tl, err := m.NewTally(0)
@@ -101,15 +121,19 @@ func TestPosteriorStatedError(t *testing.T) {
 			if oracleErr > 0.05 {
 				// Readings so improbable that 2^16 nodes do not resolve
 				// them either: no oracle.
-				t.Logf("%d days, %.2f V: no oracle (its stated error %.3g); stated %.3g", days, volts, oracleErr, stated)
+				t.Logf("%d days, %.3f V: no oracle (its stated error %.3g); stated %.3g", days, volts, oracleErr, stated)
 				skipped++
 				continue
 			}
-			require.LessOrEqual(t, worst, stated+oracleErr, "%d days, %.2f V", days, volts)
+			if days == 1600 && volts == 3.62 {
+				t.Logf("border (1600 days, 3.62 V): stated %.3g, measured %.3g; 95 %% point %.0f d against the oracle's %.0f d",
+					stated, worst, laws[0].Quantile(0.95)/energy.Day, laws[1].Quantile(0.95)/energy.Day)
+			}
+			require.LessOrEqual(t, worst+oracleErr, stated, "%d days, %.3f V", days, volts)
 			cases++
 		}
 	}
-	require.Equal(t, 54, cases+skipped)
+	require.Equal(t, 60, cases+skipped)
 	require.LessOrEqual(t, skipped, 6)
 	require.Less(t, knee, 0.2) // was 0.38 before the heavier-tailed stages
 }

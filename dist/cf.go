@@ -47,6 +47,11 @@ var glNodes, glWeights = legendreRule(16)
 // cexpm1 returns exp(z) - 1 without cancellation for small |z|.
 func cexpm1(z complex128) complex128 {
 	a, b := real(z), imag(z)
+	if b == 0 && math.Abs(a) < 1 {
+		// on the real axis: the branch below's value with sin b = b
+		// (±0) and cos b = 1, without the calls
+		return complex(math.Expm1(a), b)
+	}
 	if math.Abs(a) < 1 && math.Abs(b) < 1 {
 		sb, cb := math.Sincos(b)
 		sh := math.Sin(b / 2)
@@ -59,6 +64,10 @@ func cexpm1(z complex128) complex128 {
 // clog1p returns log(1 + z) without cancellation for small |z|.
 func clog1p(z complex128) complex128 {
 	x, y := real(z), imag(z)
+	if y == 0 && math.Abs(x) < 0.5 {
+		// on the real axis: atan2(±0, 1 + x) = ±0 for 1 + x > 0
+		return complex(0.5*math.Log1p(2*x+x*x+y*y), y)
+	}
 	if math.Abs(x) < 0.5 && math.Abs(y) < 0.5 {
 		return complex(0.5*math.Log1p(2*x+x*x+y*y), math.Atan2(y, 1+x))
 	}
@@ -69,11 +78,15 @@ func clog1p(z complex128) complex128 {
 func sinhcm1(z complex128) complex128 {
 	if cmplx.Abs(z) < 0.5 {
 		z2 := z * z
-		// Σ_{n>=1} z^{2n}/(2n+1)!, to z^16 (next term < 1e-22 relative)
-		term := z2 / 6
+		// Σ_{n>=1} z^{2n}/(2n+1)!, to z^16 (next term < 1e-22 relative).
+		// Each quotient by the real (2n)(2n+1) is taken part by part: the
+		// runtime's division by c + 0i (Smith's algorithm) gives the same
+		// nonzero parts, at the cost of a call.
+		term := complex(real(z2)/6, imag(z2)/6)
 		sum := term
 		for n := 2; n <= 8; n++ {
-			term *= z2 / complex(float64((2*n)*(2*n+1)), 0)
+			c := float64((2 * n) * (2*n + 1))
+			term *= complex(real(z2)/c, imag(z2)/c)
 			sum += term
 		}
 		return sum
@@ -144,28 +157,39 @@ func uniformTransform(lo, hi float64) transform {
 // s = 0 and as a shifted log-sum-exp elsewhere. Entire. The masses may sum
 // to less than one (the atomic part of a mixed law).
 func atomsTransform(atoms []Atom) transform {
+	values, masses := make([]float64, len(atoms)), make([]float64, len(atoms))
+	for i, a := range atoms {
+		values[i], masses[i] = a.Value, a.Mass
+	}
+	return valuesTransform(values, masses)
+}
+
+// valuesTransform is atomsTransform of the atoms (values[i], masses[i]),
+// which it keeps without a copy: the caller's slices must not change (a
+// Discrete's own, say).
+func valuesTransform(values, masses []float64) transform {
 	vmax := 0.0
 	total := 0.0
-	for _, a := range atoms {
-		vmax = math.Max(vmax, math.Abs(a.Value))
-		total += a.Mass
+	for i, v := range values {
+		vmax = math.Max(vmax, math.Abs(v))
+		total += masses[i]
 	}
 	return transform{
 		logm: func(s complex128) complex128 {
 			if cmplx.Abs(s)*vmax < 0.5 {
 				var sum complex128
-				for _, a := range atoms {
-					sum += complex(a.Mass, 0) * cexpm1(s*complex(a.Value, 0))
+				for i, v := range values {
+					sum += complex(masses[i], 0) * cexpm1(s*complex(v, 0))
 				}
 				return clog1p(complex(total-1, 0) + sum)
 			}
 			mx := math.Inf(-1)
-			for _, a := range atoms {
-				mx = math.Max(mx, real(s)*a.Value)
+			for _, v := range values {
+				mx = math.Max(mx, real(s)*v)
 			}
 			var sum complex128
-			for _, a := range atoms {
-				sum += complex(a.Mass, 0) * cmplx.Exp(s*complex(a.Value, 0)-complex(mx, 0))
+			for i, v := range values {
+				sum += complex(masses[i], 0) * cmplx.Exp(s*complex(v, 0)-complex(mx, 0))
 			}
 			if sum == 0 {
 				return complex(math.Inf(-1), 0)
@@ -188,9 +212,9 @@ func transformOf(l Law) (transform, bool) {
 	case Uniform:
 		return uniformTransform(b.lo, b.hi), true
 	case Discrete:
-		return atomsTransform(b.Atoms()), true
+		return valuesTransform(b.values, b.probs), true
 	case latticeDiscrete:
-		return atomsTransform(b.Atoms()), true
+		return valuesTransform(b.values, b.probs), true
 	case LogNormal:
 		return logNormalTransform(b.mu, b.sigma), true
 	case truncated:

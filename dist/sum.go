@@ -482,7 +482,7 @@ func (m shiftMixture) transform() (transform, bool) {
 	if !ok {
 		return transform{}, false
 	}
-	td := atomsTransform(m.d.Atoms())
+	td := valuesTransform(m.d.values, m.d.probs)
 	return transform{
 		logm: func(s complex128) complex128 { return td.logm(s) + tc.logm(s) },
 		lo:   tc.lo, hi: tc.hi, err: tc.err,

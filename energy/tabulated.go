@@ -769,14 +769,20 @@ func (tb tabulated) integrateMoments() (mean, vari, meanErr, varErr float64) {
 	// ∫_lo^hi S and ∫_lo^hi 2t·S by one vector quadrature of the table
 	// (the second scaled by the table's end, so that both are of the
 	// mean's size and the relative target 1e-12 holds for each; the
-	// quadrature's own estimate is carried as the error); the atom at the
+	// quadrature's own estimate is carried as the error), with the 3–7
+	// Gauss–Kronrod rule between the table's points: there S = Φ̄ of a
+	// cubic whose probit moves by less than one (0.73 at most on the demo's
+	// tables), so that the 3-point Gauss rule's error, the estimate, is
+	// already within the target on one pass (0.06–0.24 of it, against
+	// 1e-3 with the 7–15 rule, whose 15 evaluations an interval were
+	// twice what the target needs); the atom at the
 	// calendar limit adds its mass times the limit. Beyond the table's end
 	// the survival is below 1e-14 (or 0 from the calendar limit on, where
 	// the table ends) and left out: along the end slope d it adds
 	// ∫_hi^∞ S = (φ(z) − z·Φ̄(z))/d and ∫_hi^∞ 2(t − hi)·S <= Φ̄(z)/d² (for
 	// z = z_n > 0: Φ̄(z) <= φ(z)/z, Mills' ratio), counted as error.
 	scale := hi
-	opt := quad.Options{RelTol: 1e-12, MaxEvals: 1 << 16}
+	opt := quad.Options{RelTol: 1e-12, MaxEvals: 1 << 16, Rule: quad.GK7}
 	var v [2]float64
 	hint := 0 // the interval of the last time asked: the panels lie within the table's intervals
 	r, _ := quad.BreaksVec(v[:], func(t float64, y []float64) {

@@ -1,9 +1,10 @@
 // Package quad is joulelaw's one adaptive quadrature: a globally adaptive
 // bisection driver in the manner of QUADPACK's DQAG/DQAGP/DQAGI (Piessens,
 // de Doncker-Kapenga, Überhuber and Kahaner, "QUADPACK", Springer 1983),
-// with the Gauss–Kronrod 7–15 rule plugged in, for scalar and
-// vector-valued integrands, finite and infinite intervals, and intervals
-// with breakpoints.
+// with the Gauss–Kronrod 7–15 rule plugged in (or, by Options.Rule, the
+// 3–7 rule: seven evaluations a panel, for integrands smooth on each
+// panel's scale), for scalar and vector-valued integrands, finite and
+// infinite intervals, and intervals with breakpoints.
 //
 // The driver keeps the panels of the interval in a heap ordered by their
 // error estimate and bisects the worst one until the summed estimate
@@ -11,8 +12,9 @@
 //
 //	Error = Σ_panels max_j (|K15_j − G7_j| + R_j) <= max(AbsTol, RelTol·max_j |Value_j|)
 //
-// where K15 and G7 are the Kronrod and Gauss estimates of a panel (for a
-// vector integrand, the worst component) and R the panel's rounding:
+// where K15 and G7 are the Kronrod and Gauss estimates of a panel (K7
+// and G3 with GK7; for a vector integrand, the worst component) and R the
+// panel's rounding:
 //
 //	R = 2·ulp(max(|a|, |b|))·Σ_adjacent nodes |f_{i+1} − f_i| + 4ε·h·Σ w_i·|f_i|,
 //
@@ -24,8 +26,8 @@
 // summed R is reported with ErrResolution. Error is otherwise the plain
 // Gauss–Kronrod difference, without QUADPACK's heuristic rescaling
 // (200·|K − G|/resasc)^1.5: it is an estimate of the error of the 7-point
-// Gauss rule, so for smooth integrands it overstates the error of the
-// 15-point Kronrod value returned by orders of magnitude; the tests check
+// (GK7: 3-point) Gauss rule, so for smooth integrands it overstates the
+// error of the Kronrod value returned by orders of magnitude; the tests check
 // that it bounds the true error on closed forms, square-root and log
 // singularities and infinite intervals.
 //
@@ -37,14 +39,16 @@
 // ends, so t = 0 is never used. An integral over (−∞, ∞) is split at 0.
 //
 // Caps: Options.MaxEvals at most 1<<20 integrand evaluations (so at most
-// 69 905 panels, 15 evaluations each); at most 1<<16 breakpoints
-// (MaxBreaks; their first pass takes at most 983 025 evaluations); at most
+// 69 905 panels, 15 evaluations each; 149 796 with GK7, 7 each); at most
+// 1<<16 breakpoints (MaxBreaks; their first pass takes at most 983 025
+// evaluations); at most
 // 1<<16 components of a vector integrand (MaxDim). The workspace of one
 // call is a panel slice (40 bytes a panel, plus 8 bytes a panel and
 // component for the values, plus 120 bytes a panel for Partition's node
-// values), a heap of panel indices (4 bytes a panel) and 19 float64 a
-// component of scratch, allocated once per call (64 panels to start) and
-// grown by doubling; nothing is kept between calls, so every function is
+// values), a heap of panel indices (4 bytes a panel) and 19 float64 (11
+// with GK7) a component of scratch, allocated once per call (room for the
+// first pass's panels, an eighth more and sixteen, to start) and grown by
+// doubling; nothing is kept between calls, so every function is
 // safe for concurrent use and deterministic: the same call gives the same
 // bits whatever ran before.
 //

@@ -17,7 +17,7 @@ const (
 // panel is one piece of the interval, in its own coordinate t ∈ [a, b].
 type panel struct {
 	a, b   float64
-	err    float64 // max over components of |K15 − G7|
+	err    float64 // max over components of |K − G| plus rounding (apply)
 	anchor float64 // the finite end an infinite piece is mapped from
 	kind   int8    // mapIdentity, mapRight, mapLeft
 	final  bool    // too narrow to bisect
@@ -35,15 +35,18 @@ type driver struct {
 	kacc   []float64 // Kronrod accumulator
 	gacc   []float64 // Gauss accumulator
 	absacc []float64 // Kronrod accumulator of |f|
-	fvals  []float64 // the 15 node values, left to right, dim each
+	fvals  []float64 // the rule's node values, left to right, dim each
 	keep   bool      // keep every panel's node values (Partition; dim 1)
 	kept   []float64 // 15 node values per panel when keep
 	evals  int
 	badX   float64
 	badSet bool
-	// the rule (see gk15)
+	// the rule (gk15 or gk7): its positive half's nodes, largest first,
+	// ending with the centre (the first m), their Kronrod weights and the
+	// Gauss weights of the odd-indexed ones
 	nodes, wk [8]float64
 	wg        [4]float64
+	m         int
 }
 
 // point returns x at t on a panel with the given map (the Jacobian of the
@@ -89,13 +92,13 @@ func (d *driver) eval(kind int8, anchor, t float64) bool {
 	return ok
 }
 
-// apply evaluates the 7–15 rule on p, writing its Kronrod values into
+// apply evaluates the rule (7–15 or 3–7) on p, writing its Kronrod values into
 // val and setting p.err; it reports whether every value was finite.
 //
 // p.err is, for the worst component, the Gauss–Kronrod difference plus two
 // rounding terms that bisection cannot reduce:
 //
-//	|K15 − G7| + 2·ulp(max(|a|, |b|))·Σ_adjacent nodes |f_{i+1} − f_i| + 4ε·h·Σ w_i·|f_i|
+//	|K − G| + 2·ulp(max(|a|, |b|))·Σ_adjacent nodes |f_{i+1} − f_i| + 4ε·h·Σ w_i·|f_i|
 //
 // The second is the rounding of the abscissae (a node is computed to
 // within one unit in the last place of the panel's ends, which moves the
@@ -113,17 +116,19 @@ func (d *driver) apply(i int32, val []float64) bool {
 		d.kacc[j], d.gacc[j], d.absacc[j] = 0, 0, 0
 	}
 	ok := true
-	for i := 0; i < 8; i++ {
+	m := d.m
+	np := 2*m - 1 // nodes of the rule: 15 or 7
+	for i := 0; i < m; i++ {
 		for s := -1.0; s <= 1; s += 2 {
-			if i == 7 && s > 0 {
+			if i == m-1 && s > 0 {
 				break // the centre once
 			}
 			if !d.eval(p.kind, p.anchor, c+s*h*d.nodes[i]) {
 				ok = false
 			}
-			pos := i // the node's place from the left: 0 … 14
+			pos := i // the node's place from the left: 0 … np − 1
 			if s > 0 {
-				pos = 14 - i
+				pos = np - 1 - i
 			}
 			for j, v := range d.y {
 				d.kacc[j] += d.wk[i] * v
@@ -144,7 +149,7 @@ func (d *driver) apply(i int32, val []float64) bool {
 	for j := range val {
 		val[j] = d.kacc[j] * h
 		tv := 0.0
-		for pos := 0; pos < 14; pos++ {
+		for pos := 0; pos+1 < np; pos++ {
 			tv += math.Abs(d.fvals[(pos+1)*d.dim+j] - d.fvals[pos*d.dim+j])
 		}
 		r := 2*ulp*tv + 4*eps*h*d.absacc[j]
@@ -268,6 +273,8 @@ func (d *driver) run(fn string, dst []float64, pts []float64, opt Options) (VecR
 		return res, paramErr(fn, "len(pts)", len(pts), fmt.Sprintf("must be in [2, %d]", MaxBreaks))
 	case d.f == nil && d.fv == nil:
 		return res, paramErr(fn, "f", nil, "must not be nil")
+	case opt.Rule != GK15 && opt.Rule != GK7:
+		return res, paramErr(fn, "Rule", opt.Rule, "must be GK15 or GK7")
 	}
 	for i, p := range pts {
 		switch {
@@ -286,15 +293,20 @@ func (d *driver) run(fn string, dst []float64, pts []float64, opt Options) (VecR
 		opt.MaxEvals = DefaultMaxEvals
 	}
 	d.dim = len(dst)
-	d.nodes, d.wk, d.wg = gk15()
-	n := 64
-	if c := opt.MaxEvals/15 + len(pts); c < n {
+	d.nodes, d.wk, d.wg, d.m = ruleOf(opt.Rule)
+	np := 2*d.m - 1 // evaluations a panel
+	// Room for the first pass's panels, an eighth more and sixteen (most
+	// calls bisect a few panels, if any: the fleet demo's 1344 Adaptive
+	// calls end with two or three panels, its BreaksVec calls on ~300
+	// pieces with at most 5 % more), grown by doubling beyond.
+	n := len(pts) - 1 + (len(pts)-1)/8 + 16
+	if c := opt.MaxEvals/np + len(pts); c < n {
 		n = c
 	}
 	d.pans = make([]panel, 0, n)
 	d.vals = make([]float64, 0, n*d.dim)
 	d.heap = make([]int32, 0, n)
-	scratch := make([]float64, 19*d.dim)
+	scratch := make([]float64, (4+np)*d.dim)
 	d.y, d.kacc, d.gacc, d.absacc = scratch[:d.dim], scratch[d.dim:2*d.dim], scratch[2*d.dim:3*d.dim], scratch[3*d.dim:4*d.dim]
 	d.fvals = scratch[4*d.dim:]
 
@@ -337,7 +349,7 @@ func (d *driver) run(fn string, dst []float64, pts []float64, opt Options) (VecR
 			res.Error, res.Evals = errSum, d.evals
 			return res, fmt.Errorf("quad.%s: error %.3g above the target %.3g: %w", fn, errSum, target(opt, dst), ErrResolution)
 		}
-		if d.evals+30 > opt.MaxEvals {
+		if d.evals+2*np > opt.MaxEvals {
 			errSum = d.totals(dst)
 			res.Error, res.Evals = errSum, d.evals
 			return res, fmt.Errorf("quad.%s: %d evaluations, error %.3g above the target %.3g: %w", fn, d.evals, errSum, target(opt, dst), ErrBudget)

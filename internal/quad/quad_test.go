@@ -2,7 +2,9 @@ package quad
 
 import (
 	"errors"
+	"fmt"
 	"math"
+	"sort"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -10,37 +12,52 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 )
 
+// rulePoly applies a rule in gk15's layout (the positive half's nodes,
+// largest first, ending with the centre; Kronrod weights; the Gauss
+// weights of the odd-indexed nodes) to x^n on [−1, 1]: its Kronrod value,
+// or its Gauss value.
+func rulePoly(nodes, wk, wg []float64, n int, kronrod bool) float64 {
+	m := len(nodes)
+	s := 0.0
+	for i := 0; i < m; i++ {
+		for _, sg := range []float64{-1, 1} {
+			if i == m-1 && sg > 0 {
+				break
+			}
+			v := math.Pow(sg*nodes[i], float64(n))
+			if kronrod {
+				s += wk[i] * v
+			} else if i%2 == 1 {
+				s += wg[i/2] * v
+			}
+		}
+	}
+	return s
+}
+
+// gaussAgainstGonum checks the Gauss nodes and weights inside a rule in
+// gk15's layout against gonum's Gauss–Legendre rule of the same order
+// (quad.Legendre).
+func gaussAgainstGonum(t *testing.T, nodes, wg []float64) {
+	n := len(nodes) - 1 // the Gauss rule's order
+	x, w := make([]float64, n), make([]float64, n)
+	quad.Legendre{}.FixedLocations(x, w, -1, 1)
+	for i := range wg {
+		// Gauss node i of the rule (index 2i+1, positive, largest first)
+		// is gonum's i-th node in absolute value (gonum lists them from −1)
+		assert.InDelta(t, math.Abs(x[i]), nodes[2*i+1], 1e-15, "Gauss node %d", i)
+		assert.InDelta(t, w[i], wg[i], 1e-15, "Gauss weight %d", i)
+	}
+}
+
 // TestRuleAgainstGonum checks the 7-point Gauss nodes and weights inside
 // the 7–15 rule against gonum's Gauss–Legendre rule (quad.Legendre), and the
 // Kronrod rule's exactness: x^0 … x^22 and Gauss x^0 … x^13 integrate to
 // the closed form ∫_{−1}^{1} x^n dx = 2/(n+1) (n even), 0 (n odd).
 func TestRuleAgainstGonum(t *testing.T) {
 	nodes, wk, wg := gk15()
-	x, w := make([]float64, 7), make([]float64, 7)
-	quad.Legendre{}.FixedLocations(x, w, -1, 1)
-	for i := 0; i < 4; i++ {
-		// Gauss node i of the rule (index 2i+1, positive, largest first)
-		// is gonum's i-th node in absolute value (gonum lists them from −1)
-		assert.InDelta(t, math.Abs(x[i]), nodes[2*i+1], 1e-15, "Gauss node %d", i)
-		assert.InDelta(t, w[i], wg[i], 1e-15, "Gauss weight %d", i)
-	}
-	poly := func(n int, kronrod bool) float64 {
-		s := 0.0
-		for i := 0; i < 8; i++ {
-			for _, sg := range []float64{-1, 1} {
-				if i == 7 && sg > 0 {
-					break
-				}
-				v := math.Pow(sg*nodes[i], float64(n))
-				if kronrod {
-					s += wk[i] * v
-				} else if i%2 == 1 {
-					s += wg[i/2] * v
-				}
-			}
-		}
-		return s
-	}
+	gaussAgainstGonum(t, nodes[:], wg[:])
+	poly := func(n int, kronrod bool) float64 { return rulePoly(nodes[:], wk[:], wg[:], n, kronrod) }
 	for n := 0; n <= 24; n++ {
 		want := 0.0
 		if n%2 == 0 {
@@ -103,22 +120,102 @@ func closedCases() []closedCase {
 }
 
 // TestAdaptiveClosedForms checks values against closed forms and that the
-// stated Error bounds the true error.
+// stated Error bounds the true error, with either rule (the evaluation
+// budgets are GK15's).
 func TestAdaptiveClosedForms(t *testing.T) {
-	for _, c := range closedCases() {
-		t.Run(c.name, func(t *testing.T) {
-			r, err := Adaptive(c.f, c.a, c.b, c.opt)
-			require.NoError(t, err)
-			trueErr := math.Abs(r.Value - c.want)
-			assert.LessOrEqual(t, trueErr, r.Error+4e-16*math.Abs(c.want), "true error %g, stated %g", trueErr, r.Error)
-			tol := math.Max(c.opt.AbsTol, c.opt.RelTol*math.Abs(r.Value))
-			if c.opt.AbsTol == 0 && c.opt.RelTol == 0 {
-				tol = DefaultRelTol * math.Abs(r.Value)
-			}
-			assert.LessOrEqual(t, r.Error, tol)
-			assert.LessOrEqual(t, r.Evals, c.budget)
-		})
+	for _, rule := range []Rule{GK15, GK7} {
+		for _, c := range closedCases() {
+			t.Run(fmt.Sprintf("%s rule %d", c.name, rule), func(t *testing.T) {
+				opt := c.opt
+				opt.Rule = rule
+				if rule == GK7 {
+					opt.MaxEvals = 1 << 16
+				}
+				r, err := Adaptive(c.f, c.a, c.b, opt)
+				require.NoError(t, err)
+				trueErr := math.Abs(r.Value - c.want)
+				assert.LessOrEqual(t, trueErr, r.Error+4e-16*math.Abs(c.want), "true error %g, stated %g", trueErr, r.Error)
+				tol := math.Max(c.opt.AbsTol, c.opt.RelTol*math.Abs(r.Value))
+				if c.opt.AbsTol == 0 && c.opt.RelTol == 0 {
+					tol = DefaultRelTol * math.Abs(r.Value)
+				}
+				assert.LessOrEqual(t, r.Error, tol)
+				if rule == GK15 {
+					assert.LessOrEqual(t, r.Evals, c.budget)
+				}
+			})
+		}
 	}
+}
+
+// TestRuleGK7 checks the 3–7 rule: its Gauss nodes and weights against
+// gonum's 3-point Gauss–Legendre rule (quad.Legendre); its two added
+// nodes as the roots of the Stieltjes polynomial x⁴ − (10/9)·x² +
+// 1085/6237 (closed form, derived from its orthogonality to P₃(x)·x and
+// P₃(x)·x³); and its exactness: Kronrod x^0 … x^11 and Gauss x^0 … x^5
+// integrate to ∫_{−1}^{1} x^n dx = 2/(n+1) (n even), 0 (n odd), and one
+// degree beyond they do not.
+func TestRuleGK7(t *testing.T) {
+	nodes, wk, wg := gk7()
+	gaussAgainstGonum(t, nodes[:], wg[:])
+	for _, i := range []int{0, 2} {
+		x2 := nodes[i] * nodes[i]
+		assert.InDelta(t, 0, x2*x2-10.0/9*x2+1085.0/6237, 1e-15, "Stieltjes root %d", i)
+	}
+	poly := func(n int, kronrod bool) float64 { return rulePoly(nodes[:], wk[:], wg[:], n, kronrod) }
+	for n := 0; n <= 11; n++ {
+		want := 0.0
+		if n%2 == 0 {
+			want = 2 / float64(n+1)
+		}
+		assert.InDelta(t, want, poly(n, true), 4e-16, "Kronrod x^%d", n)
+		if n <= 5 {
+			assert.InDelta(t, want, poly(n, false), 4e-16, "Gauss x^%d", n)
+		}
+	}
+	assert.Greater(t, math.Abs(poly(12, true)-2.0/13), 1e-6)
+	assert.Greater(t, math.Abs(poly(6, false)-2.0/7), 1e-3)
+}
+
+// TestGK7Breaks: GK7 between breakpoints where the integrand is a
+// different smooth function on each piece (as a table interpolated
+// between its points): the values against the closed form, the stated
+// error bounding the true one, in one pass of 7 evaluations a piece
+// against GK15's 15. Closed form: on the i-th of 300 pieces [a, b] of
+// [−3, 3] the integrand is e^{−(x−c)²}, c = 0.01·i, and
+// ∫_a^b e^{−(x−c)²} dx = (√π/2)·(erf(b − c) − erf(a − c)),
+// ∫_a^b x·e^{−(x−c)²} dx = (e^{−(a−c)²} − e^{−(b−c)²})/2 + c·(√π/2)·(erf(b − c) − erf(a − c)).
+func TestGK7Breaks(t *testing.T) {
+	pts := make([]float64, 301)
+	for i := range pts {
+		pts[i] = -3 + 0.02*float64(i)
+	}
+	f := func(x float64, y []float64) {
+		i := sort.SearchFloat64s(pts, x) - 1
+		d := x - 0.01*float64(i)
+		y[0] = math.Exp(-d * d)
+		y[1] = x * y[0]
+	}
+	want := [2]float64{}
+	for i := 0; i+1 < len(pts); i++ {
+		c := 0.01 * float64(i)
+		a, b := pts[i]-c, pts[i+1]-c
+		want[0] += math.Sqrt(math.Pi) / 2 * (math.Erf(b) - math.Erf(a))
+		want[1] += (math.Exp(-a*a)-math.Exp(-b*b))/2 + c*math.Sqrt(math.Pi)/2*(math.Erf(b)-math.Erf(a))
+	}
+	var evals [2]int
+	for k, rule := range []Rule{GK15, GK7} {
+		dst := make([]float64, 2)
+		r, err := BreaksVec(dst, f, pts, Options{RelTol: 1e-12, Rule: rule})
+		require.NoError(t, err)
+		for j := range dst {
+			assert.InDelta(t, want[j], dst[j], r.Error+1e-15, "rule %d component %d", rule, j)
+		}
+		assert.LessOrEqual(t, r.Error, 1e-12*math.Abs(want[0]))
+		evals[k] = r.Evals
+	}
+	assert.Equal(t, 15*300, evals[0], "GK15: one pass")
+	assert.Equal(t, 7*300, evals[1], "GK7: one pass")
 }
 
 // TestAgainstGonum compares with gonum's fixed Gauss–Legendre rule at a
@@ -301,6 +398,11 @@ func TestBadInput(t *testing.T) {
 		{"one break", func() error { _, err := Breaks(one, []float64{0}, Options{}); return err }},
 		{"inner infinite break", func() error { _, err := Breaks(one, []float64{0, inf, inf}, Options{}); return err }},
 		{"too many breaks", func() error { _, err := Breaks(one, make([]float64, MaxBreaks+1), Options{}); return err }},
+		{"unknown Rule", func() error { _, err := Adaptive(one, 0, 1, Options{Rule: 2}); return err }},
+		{"Partition with GK7", func() error {
+			_, _, err := Partition(nil, one, []float64{0, 1}, Options{Rule: GK7})
+			return err
+		}},
 		{"empty dst", func() error {
 			_, err := AdaptiveVec(nil, func(float64, []float64) {}, 0, 1, Options{})
 			return err
@@ -338,12 +440,17 @@ func TestDeterministic(t *testing.T) {
 	}
 }
 
-// TestAllocations: one call allocates a fixed small workspace (panels,
-// heap, values, scratch), not per panel: four allocations below 64 panels.
+// TestAllocations: one call allocates a small workspace (panels, heap,
+// values, scratch), not one per panel: four allocations while the panels
+// fit the first capacity (17 for one piece; e^x takes one panel), and
+// three more (panels, heap, values) per doubling beyond (√x takes 41
+// panels: two doublings).
 func TestAllocations(t *testing.T) {
-	f := func(x float64) float64 { return math.Sqrt(x) }
-	n := testing.AllocsPerRun(20, func() { _, _ = Adaptive(f, 0, 1, Options{}) })
+	n := testing.AllocsPerRun(20, func() { _, _ = Adaptive(math.Exp, 0, 1, Options{}) })
 	assert.LessOrEqual(t, n, 4.0)
+	f := func(x float64) float64 { return math.Sqrt(x) }
+	n = testing.AllocsPerRun(20, func() { _, _ = Adaptive(f, 0, 1, Options{}) })
+	assert.LessOrEqual(t, n, 10.0)
 }
 
 // TestPartition: the panels tile the interval, carry f at exactly the

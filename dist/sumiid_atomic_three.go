@@ -1,6 +1,10 @@
 package dist
 
-import "math"
+import (
+	"math"
+
+	"github.com/joulelaw/joulelaw/internal/binom"
+)
 
 // Exact k-fold sums of a three-valued law (a cycle of three energies, say)
 // by conditioning.
@@ -200,34 +204,24 @@ func (c *condTails) fresh(m, j int64, q float64) {
 
 // binomialRun returns P(a <= N <= b) for N ~ Binomial(m, q) (0 for a > b),
 // summed outward from the index in [a, b] nearest the mode by the mass
-// ratios, so that masses too small to represent at one end do not hide the
-// rest; re-anchored on Loader's mass every 64 steps.
+// ratios (internal/binom's Walk), so that masses too small to represent at
+// one end do not hide the rest; re-anchored on Loader's mass every 64 steps.
 func binomialRun(m, a, b int64, q float64) float64 {
 	if a > b {
 		return 0
 	}
 	mf := float64(m)
 	i0 := min(b, max(a, int64(math.Floor((mf+1)*q))))
-	rq := q / (1 - q)
-	t0 := math.Exp(logBinom(mf, float64(i0), q))
-	s := t0
-	t := t0
-	for i := i0; i < b && t > 0; {
-		t *= (mf - float64(i)) / float64(i+1) * rq
-		i++
-		if (i-i0)%64 == 0 {
-			t = math.Exp(logBinom(mf, float64(i), q))
-		}
-		s += t
+	up := binom.NewWalk(float64(i0), mf, q, 1-q, 64)
+	down := up
+	s := up.P
+	for up.X < float64(b) && up.P > 0 {
+		up.Up()
+		s += up.P
 	}
-	t = t0
-	for i := i0; i > a && t > 0; {
-		t *= float64(i) / (mf - float64(i) + 1) / rq
-		i--
-		if (i0-i)%64 == 0 {
-			t = math.Exp(logBinom(mf, float64(i), q))
-		}
-		s += t
+	for down.X > float64(a) && down.P > 0 {
+		down.Down()
+		s += down.P
 	}
 	return s
 }
@@ -235,47 +229,35 @@ func binomialRun(m, a, b int64, q float64) float64 {
 // binomialSideTails returns P(N <= j) and P(N > j) for N ~ Binomial(n, p),
 // 0 <= j < n: the tail on j's side of the mode is summed outward from j
 // (its masses fall away from the mode) by the mass ratio recurrence from
-// Loader's (2000) mass at j, cut where the geometric bound on the rest is
-// below 1e-17 of the sum; the other tail is its complement (at least about
-// 1/2, so it keeps its relative precision).
+// Loader's (2000) mass at j (internal/binom's Walk, re-anchored every 64
+// steps), cut where the geometric bound on the rest is below 1e-17 of the
+// sum; the other tail is its complement (at least about 1/2, so it keeps
+// its relative precision).
 func binomialSideTails(n, j int64, p float64) (atMost, above float64) {
 	nf := float64(n)
 	mode := math.Floor((nf + 1) * p)
-	rp := p / (1 - p)
 	if float64(j) < mode {
-		i := j
-		t := math.Exp(logBinom(nf, float64(i), p))
-		s := t
-		for step := 1; i > 0 && t > 0; step++ {
-			r := float64(i) / float64(n-i+1) / rp // P(i−1)/P(i)
-			if r < 1 && t*r/(1-r) < 1e-17*s {
+		w := binom.NewWalk(float64(j), nf, p, 1-p, 64)
+		s := w.P
+		for w.X > 0 && w.P > 0 {
+			r := w.RatioDown() // P(i−1)/P(i)
+			if r < 1 && w.P*r/(1-r) < 1e-17*s {
 				break
 			}
-			i--
-			if step%64 == 0 {
-				t = math.Exp(logBinom(nf, float64(i), p))
-			} else {
-				t *= r
-			}
-			s += t
+			w.Down()
+			s += w.P
 		}
 		return s, 1 - s
 	}
-	i := j + 1
-	t := math.Exp(logBinom(nf, float64(i), p))
-	s := t
-	for step := 1; i < n && t > 0; step++ {
-		r := float64(n-i) / float64(i+1) * rp // P(i+1)/P(i)
-		if r < 1 && t*r/(1-r) < 1e-17*s {
+	w := binom.NewWalk(float64(j+1), nf, p, 1-p, 64)
+	s := w.P
+	for w.X < nf && w.P > 0 {
+		r := w.RatioUp() // P(i+1)/P(i)
+		if r < 1 && w.P*r/(1-r) < 1e-17*s {
 			break
 		}
-		i++
-		if step%64 == 0 {
-			t = math.Exp(logBinom(nf, float64(i), p))
-		} else {
-			t *= r
-		}
-		s += t
+		w.Up()
+		s += w.P
 	}
 	return 1 - s, s
 }

@@ -3,12 +3,13 @@ package orderstat
 import (
 	"math"
 
+	loader "github.com/joulelaw/joulelaw/internal/binom"
 	"github.com/joulelaw/joulelaw/internal/lattice"
 )
 
 // This file holds the fast path of the Poisson-binomial count C = Σ
 // Bin(n_i, p_i): each term's binomial probabilities by the ratio recurrence
-// (internal/binom's Loader form only as an anchor every few steps), and the
+// (internal/binom's Walk: Loader's form as the anchor, then the ratios), and the
 // count's probabilities by direct convolution of those positive values, so
 // that every probability, and every tail summed from its own end, keeps its
 // relative precision. The tilted transform of count.go stays the exact path
@@ -22,69 +23,44 @@ const runCut = 1e-305
 // (integers, 0 <= a <= b <= t.n; values below cut, at least runCut, left
 // out at the ends), and a bound rel on each value's relative error. The
 // largest probability on [a, b] (at the mode, clamped into [a, b]) comes
-// from Loader's saddle-point form (internal/binom); the others by the
-// recurrence
-//
-//	P(j+1)/P(j) = (n−j)/(j+1) · p/q
-//
-// outward from there. Each step rounds four times (p/q once for all, a
-// product, a quotient and the running value), so a value s steps from the
-// anchor has relative error at most the anchor's plus 4u·s (u = 2^-53,
-// to first order). The anchor's is about 1e-14 at the mode (Loader's
-// deviance by its series there) and, where [a, b] clamps it into a tail,
-// grows with the deviance's cancellation: 4u times the sizes of its
-// terms, x·|log(x/np)| + |np − x| and the same for n − x. The result is
-// empty (lo = a) where even the largest is below cut. dst is reused when
-// it has the capacity.
+// from Loader's saddle-point form, the others by the ratio recurrence
+// outward from there, both by internal/binom's Walk (never taken afresh),
+// whose bounds (binom.Rel at the anchor, binom.RelAfter for the steps)
+// give rel. The result is empty (lo = a) where even the largest is below
+// cut. dst is reused when it has the capacity.
 func binomRun(t binom, a, b, cut float64, dst []float64) (lo float64, pmf []float64, rel float64) {
-	const u = 0x1p-53
 	cut = math.Max(cut, runCut)
 	mode := math.Floor((t.n + 1) * t.p)
 	mode = math.Max(a, math.Min(mode, math.Min(b, t.n)))
-	pm := math.Exp(logBinomPMF(mode, t.n, t.p, t.q))
-	if !(pm >= cut) {
+	w := loader.NewWalk(mode, t.n, t.p, t.q, 0)
+	if !(w.P >= cut) {
 		return a, dst[:0], 0
 	}
-	rel = 1e-14
-	if x, m := mode, t.n*t.p; math.Abs(x-m) >= 0.1*(x+m) {
-		// Off the series branch of the deviance: its cancellation.
-		y, w := t.n-x, t.n*t.q
-		d := math.Abs(x-m) + math.Abs(y-w)
-		if x > 0 {
-			d += x * math.Abs(math.Log(x/m))
-		}
-		if y > 0 {
-			d += y * math.Abs(math.Log(y/w))
-		}
-		rel += 4 * u * d
-	}
-	up, down := t.p/t.q, t.q/t.p
 	// Walk down first into dst, reverse, then walk up.
-	pmf = append(dst[:0], pm)
-	v := pm
-	for j := mode; j > a; j-- {
-		v *= j / (t.n - j + 1) * down
-		if v < cut {
+	pmf = append(dst[:0], w.P)
+	down := w
+	for down.X > a {
+		down.Down()
+		if down.P < cut {
 			break
 		}
-		pmf = append(pmf, v)
+		pmf = append(pmf, down.P)
 	}
 	steps := len(pmf) - 1
 	for i, k := 0, len(pmf)-1; i < k; i, k = i+1, k-1 {
 		pmf[i], pmf[k] = pmf[k], pmf[i]
 	}
 	lo = mode - float64(steps)
-	v = pm
 	top := math.Min(b, t.n)
-	for j := mode; j < top; j++ {
-		v *= (t.n - j) / (j + 1) * up
-		if v < cut {
+	for w.X < top {
+		w.Up()
+		if w.P < cut {
 			break
 		}
-		pmf = append(pmf, v)
+		pmf = append(pmf, w.P)
 	}
 	steps = max(steps, len(pmf)-1-steps)
-	return lo, pmf, rel + 4.01*u*float64(steps)
+	return lo, pmf, loader.RelAfter(loader.Rel(mode, t.n, t.p, t.q), steps)
 }
 
 // convRel bounds the relative error of the probabilities of a convolution

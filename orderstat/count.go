@@ -192,7 +192,60 @@ type countWindow struct {
 	pmf    []float64 // P(C = lo + r), relative to the (untilted) law
 	tpmf   []float64 // the tilted probabilities, for judging accuracy (inv's buffer: valid until its next window)
 	absErr float64   // bound on the rounding of each tilted probability (lattice.Inverter)
+	k      float64   // K(θ), the tilted law's log normaliser
+	kErr   float64   // bound on the rounding of k (tiltRound)
 	inv    *lattice.Inverter
+}
+
+// rel bounds the relative error of the window's probability at lo + r, to
+// first order in u = 2^-53 (times 1.01 for the second): the inversion's
+// absolute bound over the tilted probability (the transform's and the
+// FFT's rounding, internal/lattice), the rounding of K(θ) (kErr), and that
+// of the exponent K(θ) − θ·j which untilts it (u·|θj| for the product,
+// u·|K − θj| for the difference, u for exp). +Inf where the tilted value
+// is not positive (its relative error is not bounded).
+func (w countWindow) rel(r int) float64 {
+	const u = 0x1p-53
+	v := w.tpmf[r]
+	if !(v > 0) {
+		return math.Inf(1)
+	}
+	tj := w.theta * (w.lo + float64(r))
+	return 1.01 * (w.absErr/v + w.kErr + u*(math.Abs(tj)+math.Abs(w.k-tj)+1))
+}
+
+// tiltRound bounds, to first order in u = 2^-53, the rounding of
+// K(θ) = Σ n·log(q + p·e^θ) as tiltedInto computes it. A term n·log1p(x),
+// x = p·expm1(θ) (θ <= 0) or n·(θ + log1p(x)), x = q·expm1(−θ) (θ > 0):
+// x carries 2u of itself (expm1, the product), which log1p turns into
+// 2u·|x|/(1 + x), log1p rounds by u·|log1p(x)|, the sum with θ by u of
+// itself and the product with n by u of itself; a term by log(q + p·e^θ)
+// (where x <= −0.5) carries 3u from its argument and u of itself, times n.
+// The running sum rounds by u of itself a term, at most u·|K| (the terms
+// have one sign: K's).
+func (cm countModel) tiltRound(theta, k float64) float64 {
+	const u = 0x1p-53
+	e := 0.0
+	for _, t := range cm.terms {
+		if theta <= 0 {
+			if x := t.p * math.Expm1(theta); x > -0.5 {
+				l := math.Abs(math.Log1p(x))
+				e += t.n * u * (2*math.Abs(x)/(1+x) + 2*l)
+			} else {
+				l := math.Abs(math.Log(t.q + t.p*math.Exp(theta)))
+				e += t.n * u * (3 + 2*l)
+			}
+			continue
+		}
+		if x := t.q * math.Expm1(-theta); x > -0.5 {
+			l := math.Log1p(x)
+			e += t.n * u * (2*math.Abs(x)/(1+x) + math.Abs(l) + 2*math.Abs(theta+l))
+		} else {
+			l := math.Log(t.p + t.q*math.Exp(-theta))
+			e += t.n * u * (3 + math.Abs(l) + 2*math.Abs(theta+l))
+		}
+	}
+	return e + float64(len(cm.terms))*u*math.Abs(k)
 }
 
 // sum returns Σ_{j=a}^{b} P(C = j) over the window.
@@ -261,7 +314,7 @@ func (cm countModel) window(target float64, inv *lattice.Inverter) countWindow {
 		}
 		return complex(re, ph), 4*mag + 8*float64(len(ts))
 	})
-	w := countWindow{theta: theta, lo: lo, sd: math.Sqrt(v), pmf: make([]float64, m), tpmf: seq, absErr: absErr, inv: inv}
+	w := countWindow{theta: theta, lo: lo, sd: math.Sqrt(v), pmf: make([]float64, m), tpmf: seq, absErr: absErr, k: k, kErr: cm.tiltRound(theta, k), inv: inv}
 	for r, p := range seq {
 		if p <= 0 {
 			continue

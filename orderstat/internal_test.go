@@ -14,7 +14,7 @@ import (
 func TestCountMethodsAgree(t *testing.T) {
 	terms := []binom{{n: 40, p: 0.1, q: 0.9}, {n: 25, p: 0.6, q: 0.4}, {n: 3, p: 0.97, q: 0.03}, {n: 100, p: 0.002, q: 0.998}}
 	cm := newCountModel(terms)
-	lo1, a := cm.march()
+	lo1, a, _ := cm.march()
 	lo2, b, _ := cm.convolve()
 	n := 0
 	for i, v := range b {

@@ -416,7 +416,7 @@ func (d *deviceData) life(c, a, f, a0, r, tau0 float64) (tau, slope float64) {
 			sl := cs*n.sdFactor[i] + lin + fp*n.floorRate[i]
 			x := 0.0
 			if sl > 0 {
-				x = math.Min(Month, (rem-prev)/sl)
+				x = min(Month, (rem-prev)/sl)
 			}
 			return y*Year + float64(i)*Month + x, sl
 		}

@@ -9,6 +9,7 @@ import (
 	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/mills"
 	"github.com/joulelaw/joulelaw/internal/root"
 )
 
@@ -60,7 +61,7 @@ type PosteriorLaw struct{ p *postLaw }
 
 type postLaw struct {
 	m, s, w    []float64 // sorted by m
-	is         []float64 // 1/(s·√2), 0 for a point node: a kernel's CDF is erfc((x − m)·is)/2
+	is         []float64 // 1/s, 0 for a point node: a kernel's CDF at x is Φ̄((m − x)·is)
 	half       []uint8   // parity of the node's index in the point set
 	below      []float64 // below[k] = Σ_{j<k} w_j, len M+1
 	above      []float64 // above[k] = Σ_{j>=k} w_j, summed from the top, len M+1
@@ -127,7 +128,7 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 	for i, kk := range keys {
 		k := int(kk & 0xffff)
 		p.m[i], p.s[i], p.w[i], p.half[i] = tm[k], ts[k], w[k]/tot, uint8(k%2)
-		if is := 1 / (ts[k] * math.Sqrt2); ts[k] > 0 && is <= math.MaxFloat64 {
+		if is := 1 / ts[k]; ts[k] > 0 && is <= math.MaxFloat64 {
 			p.is[i] = is
 		} else {
 			p.s[i] = 0 // a kernel narrower than 1/MaxFloat64 is a point
@@ -151,7 +152,7 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 		if p.s[i] > 0 {
 			l, h = math.Inf(-1), math.Inf(1)
 		}
-		p.sLo, p.sHi = math.Min(p.sLo, l), math.Max(p.sHi, h)
+		p.sLo, p.sHi = min(p.sLo, l), max(p.sHi, h)
 	}
 	p.sLo = math.Min(math.Max(p.sLo, lo), hi)
 	p.sHi = math.Max(math.Min(p.sHi, hi), lo)
@@ -190,10 +191,23 @@ func searchFloats(xs []float64, x float64, strict bool) int {
 	return i
 }
 
-// rawCDF is P(X <= x) for the unclamped mixture.
+// rawCDF is P(X <= x) for the unclamped mixture (cdfDens's).
 func (p *postLaw) rawCDF(x float64) float64 {
+	c, _ := p.cdfDens(x)
+	return c
+}
+
+// cdfDens returns P(X <= x) for the unclamped mixture and its density at
+// x (1/s), from one exponential a kernel. Each kernel within kernelReach
+// of its own standard deviations (the window is that of the widest) adds
+// w·Φ̄(z), z = (m − x)/s: φ(z)·R(|z|) with Mills' ratio R (internal/mills)
+// where |z| >= mills.SmallX (1 − φ(z)·R(−z) for z < 0), erfc(z/√2)/2
+// nearer 0; within mills.UpperMaxRelErr of Φ̄ (relative) at |z| < 9 and
+// 5e-15 beyond, where φ's exponent rounds (the sum's absolute error is
+// below 1e-14).
+func (p *postLaw) cdfDens(x float64) (c, dens float64) {
 	i, j := p.window(x)
-	c := p.below[i]
+	c = p.below[i]
 	for k := i; k < j; k++ {
 		if p.s[k] == 0 {
 			if p.m[k] <= x {
@@ -201,17 +215,29 @@ func (p *postLaw) rawCDF(x float64) float64 {
 			}
 			continue
 		}
-		// Each kernel within kernelReach of its own standard deviations
-		// (the window is that of the widest): Φ̄(z) = erfc(z/√2)/2.
-		switch u := (p.m[k] - x) * p.is[k]; {
-		case u < -kernelReach/math.Sqrt2:
+		switch z := (p.m[k] - x) * p.is[k]; {
+		case z < -kernelReach:
 			c += p.w[k]
-		case u <= kernelReach/math.Sqrt2:
-			c += p.w[k] * 0.5 * math.Erfc(u)
+		case z <= kernelReach:
+			phi := math.Exp(-0.5*z*z) * invSqrt2Pi
+			dens += p.w[k] * phi * p.is[k]
+			var up float64
+			switch a := math.Abs(z); {
+			case a < mills.SmallX:
+				up = 0.5 * math.Erfc(z/math.Sqrt2)
+			case z < 0:
+				up = 1 - phi*mills.Ratio(a)
+			default:
+				up = phi * mills.Ratio(a)
+			}
+			c += p.w[k] * up
 		}
 	}
-	return math.Min(1, c)
+	return min(1, c), dens
 }
+
+// invSqrt2Pi is 1/√(2π), the standard normal density at 0.
+const invSqrt2Pi = 0.3989422804014327
 
 // rawSurv is P(X > x) for the unclamped mixture, summed directly.
 func (p *postLaw) rawSurv(x float64) float64 {
@@ -224,14 +250,14 @@ func (p *postLaw) rawSurv(x float64) float64 {
 			}
 			continue
 		}
-		switch u := (x - p.m[k]) * p.is[k]; {
-		case u < -kernelReach/math.Sqrt2:
+		switch z := (x - p.m[k]) * p.is[k]; {
+		case z < -kernelReach:
 			c += p.w[k]
-		case u <= kernelReach/math.Sqrt2:
-			c += p.w[k] * 0.5 * math.Erfc(u)
+		case z <= kernelReach:
+			c += p.w[k] * normSurv(z)
 		}
 	}
-	return math.Min(1, c)
+	return min(1, c)
 }
 
 // CDF returns P(Y <= x); NaN for NaN x.
@@ -277,7 +303,81 @@ func (l PosteriorLaw) Quantile(prob float64) float64 {
 	// (a level the low end's atom reaches gives the low end: root)
 	k := sort.Search(len(p.m), func(k int) bool { return p.below[k+1] >= prob })
 	k = min(k, len(p.m)-1)
+	if x, ok := p.newtonQuantile(k, prob); ok {
+		return x
+	}
 	return p.root(k, func(x float64) float64 { return l.CDF(x) - prob })
+}
+
+// newtonQuantile returns inf{x : CDF(x) >= prob} by Newton's steps on the
+// CDF with the mixture's density (cdfDens), where the kernels near node k
+// (the node where the cumulative weight reaches prob) overlap their
+// neighbours, so that the CDF is smooth there. The first point is where
+// the nodes' mid-rank CDF (below[i] + w_i/2 at m_i, linear between the
+// centres) reaches prob; the steps stop when one is at most tol/4 (tol =
+// 1e-10 of the larger of |x| and smax/2, root's resolution), and one more
+// evaluation, tol·3/4 from the last point on the answer's other side,
+// confirms a bracket at most tol wide whose right end is returned (root's
+// contract). ok is false, and Quantile uses root, where the kernels do
+// not overlap, a step leaves the bracket the signs have set or the
+// interior of the support, the density vanishes, six steps do not
+// converge or the confirming value has the wrong sign.
+func (p *postLaw) newtonQuantile(k int, prob float64) (float64, bool) {
+	n := len(p.m)
+	if p.s[k] == 0 || n < 2 {
+		return 0, false
+	}
+	// local spacing of the centres around k against the kernel's width
+	kl, kh := max(k-1, 0), min(k+1, n-1)
+	if (p.m[kh]-p.m[kl])/float64(kh-kl) > p.s[k] {
+		return 0, false
+	}
+	lo, hi := math.Max(p.lo, p.sLo), math.Min(p.hi, p.sHi)
+	// the seed: the mid-rank CDF F̃_i = below[i] + w_i/2, linear in x
+	// between the centres around the level
+	mid := func(i int) float64 { return p.below[i] + 0.5*p.w[i] }
+	i := k
+	if prob < mid(k) && k > 0 {
+		i = k - 1
+	}
+	x := p.m[i]
+	if i+1 < n {
+		f0, f1 := mid(i), mid(i+1)
+		t := math.Min(1, math.Max(0, (prob-f0)/(f1-f0)))
+		x = p.m[i] + t*(p.m[i+1]-p.m[i])
+	}
+	a, b := lo, hi // g < 0 at a, g >= 0 at b (the ends themselves not evaluated)
+	for range 6 {
+		if !(x > a && x < b) {
+			return 0, false
+		}
+		tol := 1e-10 * math.Max(math.Abs(x), 0.5*p.smax)
+		c, dens := p.cdfDens(x)
+		g := c - prob
+		if g >= 0 {
+			b = x
+		} else {
+			a = x
+		}
+		if !(dens > 0) {
+			return 0, false
+		}
+		step := -g / dens
+		if math.Abs(step) <= tol/4 {
+			if g >= 0 {
+				if y := x - 0.75*tol; y > lo && p.rawCDF(y) < prob {
+					return x, true
+				}
+				return 0, false
+			}
+			if y := x + 0.75*tol; y < hi && p.rawCDF(y) >= prob {
+				return y, true
+			}
+			return 0, false
+		}
+		x += step
+	}
+	return 0, false
 }
 
 // UpperQuantile returns inf{x : Survival(x) <= q}, from the survival

@@ -30,3 +30,48 @@ func TestSearchFloats(t *testing.T) {
 		}
 	}
 }
+
+// TestNewtonQuantile checks Quantile's Newton steps (newtonQuantile)
+// against the library's bracketing search (internal/root's Illinois
+// regula falsi on the same CDF, the path Quantile took before): on the
+// remaining-life laws of knee devices (3.50 V and 3.45 V, 400 to 1400
+// days, where the kernels overlap and the steps are taken) at 199 levels
+// each, the two answers agree within root's resolution (1e-10 of the
+// larger of |x| and smax/2: both are right ends of brackets that narrow,
+// so they differ by at most the sum of the two widths), and the returned
+// x obeys the contract: CDF(x) >= p > CDF(x − tol). The steps must be
+// taken at most levels (else this checks nothing).
+func TestNewtonQuantile(t *testing.T) {
+	spec, costs := ridgeSpec(t)
+	m, err := NewDeviceModel(spec, Environment{}, costs, DeviceOptions{})
+	require.NoError(t, err)
+	taken, levels := 0, 0
+	for _, days := range []int{400, 900, 1400} {
+		for _, v := range []float64{3.50, 3.45} {
+			tl := dailyTally(t, m, days, []float64{v, v, v, v})
+			p, err := m.Posterior(tl, tl.Newest())
+			require.NoError(t, err)
+			l := p.Remaining()
+			pl := l.p
+			for i := 1; i < 200; i++ {
+				prob := float64(i) / 200
+				k := sort.Search(len(pl.m), func(k int) bool { return pl.below[k+1] >= prob })
+				k = min(k, len(pl.m)-1)
+				x, ok := pl.newtonQuantile(k, prob)
+				levels++
+				if !ok {
+					continue
+				}
+				taken++
+				y := pl.root(k, func(x float64) float64 { return l.CDF(x) - prob })
+				tol := 1e-10 * math.Max(math.Abs(x), 0.5*pl.smax)
+				require.InDelta(t, y, x, 2*tol+1e-10*math.Max(math.Abs(y), pl.smax), "%d days, %.2f V, p=%g", days, v, prob)
+				require.GreaterOrEqual(t, l.CDF(x), prob, "%d days, %.2f V, p=%g", days, v, prob)
+				require.Less(t, l.CDF(x-tol), prob, "%d days, %.2f V, p=%g", days, v, prob)
+				require.Equal(t, x, l.Quantile(prob))
+			}
+		}
+	}
+	t.Logf("Newton steps taken at %d of %d levels", taken, levels)
+	require.Greater(t, taken, levels*3/4)
+}

@@ -385,7 +385,7 @@ func (p DevicePosterior) Remaining() PosteriorLaw {
 		if math.IsInf(tau, 1) || tau-pd.tauNow >= hi {
 			return hi, 0
 		}
-		v := a * a * (pd.va0 + pd.vr*math.Max(0, tau-pd.tau0))
+		v := a * a * (pd.va0 + pd.vr*max(0, tau-pd.tau0))
 		s := 0.0
 		if slope > 0 {
 			s = math.Sqrt(v) / slope

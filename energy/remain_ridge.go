@@ -406,15 +406,15 @@ func cellPoint(h0, h1, e0, e1, h, r, cm float64) (t, dens float64) {
 		t, dens = r/e0, e0+b*r
 	case e0 >= e1:
 		// 1 + b·r/e0 >= e1/e0 >= 0 but for rounding (then the cell's top)
-		t, dens = math.Log1p(math.Max(b*r/e0, -1))/b, e0+b*r
+		t, dens = math.Log1p(max(b*r/e0, -1))/b, e0+b*r
 	default:
-		rest := math.Max(cm-r, 0)
-		t, dens = h+math.Log1p(math.Max(-b*rest/e1, -1))/b, e1-b*rest
+		rest := max(cm-r, 0)
+		t, dens = h+math.Log1p(max(-b*rest/e1, -1))/b, e1-b*rest
 	}
 	if !(t >= 0) {
 		t = 0
 	}
-	return math.Min(t, h), math.Min(math.Max(dens, math.Min(e0, e1)), math.Max(e0, e1))
+	return min(t, h), min(max(dens, min(e0, e1)), max(e0, e1))
 }
 
 // studentT4Quantile returns the p-quantile of Student's t law with 4
@@ -428,7 +428,7 @@ func studentT4Quantile(p float64) float64 {
 	}
 	al := 4 * p * (1 - p)
 	q := math.Cos(math.Acos(math.Sqrt(al))/3) / math.Sqrt(al)
-	t := 2 * math.Sqrt(math.Max(q-1, 0))
+	t := 2 * math.Sqrt(max(q-1, 0))
 	if p < 0.5 {
 		return -t
 	}

@@ -129,14 +129,14 @@ func (t *readingTable) at(x float64) float64 {
 	}
 	u := (x - t.v0) * t.invH
 	j := min(max(int(u), 0), t.steps-1)
+	g := t.g[j : j+4 : j+4]
 	var y [4]float64
 	for i := range y {
-		b := t.g[j+i].Load()
+		b := g[i].Load()
 		if b == unsetBits {
 			v := logBin(t.v0+float64(j+i-1)*t.h, t.lo, t.hi, t.sigma)
-			t.g[j+i].Store(math.Float64bits(v))
-			y[i] = v
-			continue
+			g[i].Store(math.Float64bits(v))
+			b = math.Float64bits(v)
 		}
 		y[i] = math.Float64frombits(b)
 	}
@@ -148,8 +148,12 @@ func (t *readingTable) at(x float64) float64 {
 const readingStep = 0.4
 
 // cubic4 returns the cubic through (−1, y[0]), (0, y[1]), (1, y[2]),
-// (2, y[3]) at t (Lagrange's form).
+// (2, y[3]) at t, in Horner's form about 0: y[1] + t·(c1 + t·(c2 + t·c3))
+// with c2 = (y[0] + y[2])/2 − y[1], c3 = (y[3] − y[0])/6 + (y[1] −
+// y[2])/2 and c1 = y[2] − y[1] − c2 − c3 (the same cubic as Lagrange's
+// form, in fewer operations and without a division).
 func cubic4(y *[4]float64, t float64) float64 {
-	tm, t1, t2 := t+1, t-1, t-2
-	return (-t*t1*t2*y[0] + 3*tm*t1*t2*y[1] - 3*tm*t*t2*y[2] + tm*t*t1*y[3]) / 6
+	c2 := 0.5*(y[0]+y[2]) - y[1]
+	c3 := (y[3]-y[0])*(1.0/6) + 0.5*(y[1]-y[2])
+	return y[1] + t*((y[2]-y[1]-c2-c3)+t*(c2+t*c3))
 }

@@ -111,10 +111,12 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	M := len(d.c)
 	ev := d.newEvidence(&t, pd.tau0)
 	like := ev.logLik
-	logw := make([]float64, M)
+	// logw and the weights exp(logw − max) in one allocation
+	wbuf := make([]float64, 2*M)
+	logw, ws := wbuf[:M:M], wbuf[M:]
 	like(d.c, d.a, d.f, logw)
 	cs, as, fs := d.c, d.a, d.f
-	ess, lme := essLME(logw)
+	ess, lme := essLME(logw, ws)
 	pd.stages = 1
 	// Adaptive importance stages: while the readings leave fewer than a
 	// quarter of the nodes effective, place a point set stageFactor times
@@ -150,11 +152,11 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		// reach). Of the two, the one whose estimate
 		// of the marginal likelihood is larger by more than ridgeMargin
 		// wins (the other missed mass), else the more effective one.
-		if rz, rl, rc, ra, rf, ok := ev.ridgeStage(M); ok {
-			re, rlme := essLME(rl)
+		if rz, rl, rw, rc, ra, rf, ok := ev.ridgeStage(M); ok {
+			re, rlme := essLME(rl, rw)
 			dl := rlme - lme
 			if dl > ridgeMargin || (dl >= -ridgeMargin && re > ess) {
-				zs, logw, cs, as, fs, ess = rz, rl, rc, ra, rf, re
+				zs, logw, ws, cs, as, fs, ess = rz, rl, rw, rc, ra, rf, re
 				pd.stages++
 			}
 		}
@@ -165,7 +167,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			break
 		}
 		refit := !(ess < float64(len(logw))/4)
-		mu, l, ok := fitProposal(zs, logw, pd.stages-1, widen)
+		mu, l, ok := fitProposal(zs, ws, pd.stages-1, widen)
 		if !ok {
 			break
 		}
@@ -176,7 +178,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		if M < Ms {
 			n0 = M
 		}
-		nz, nl, nc, na, nf := stagePoints(n0)
+		nz, nl, nw, nc, na, nf := stagePoints(n0)
 		logDet := math.Log(l[0][0]) + math.Log(l[1][1]) + math.Log(l[2][2])
 		place := func(from, to int) {
 			for k := from; k < to; k++ {
@@ -205,9 +207,9 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			// those, the try has failed without the other Ms − M points
 			// (unless thorough).
 			place(0, M)
-			em := essOf(nl[:M])
+			em := essOf(nl[:M], nw[:M])
 			if (em > ess || refit) && em >= float64(M)/4 {
-				zs, logw, cs, as, fs, ess, fitFrom = nz[:M], nl[:M], nc[:M], na[:M], nf[:M], em, from
+				zs, logw, ws, cs, as, fs, ess, fitFrom = nz[:M], nl[:M], nw[:M], nc[:M], na[:M], nf[:M], em, from
 				pd.stages++
 				continue
 			}
@@ -218,15 +220,15 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 				widen *= 3
 				continue
 			}
-			nz, nl, nc, na, nf = growStage(nz, nl, nc, na, nf, Ms)
+			nz, nl, nw, nc, na, nf = growStage(nz, nl, nc, na, nf, Ms)
 			place(M, Ms)
 		} else {
 			place(0, Ms)
 		}
-		ne := essOf(nl)
+		ne := essOf(nl, nw)
 		if refit {
 			if ne >= float64(len(nl))/4 {
-				zs, logw, cs, as, fs, ess, fitFrom = nz, nl, nc, na, nf, ne, from
+				zs, logw, ws, cs, as, fs, ess, fitFrom = nz, nl, nw, nc, na, nf, ne, from
 				pd.stages++
 			}
 			break
@@ -240,7 +242,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			widen *= 3
 			continue
 		}
-		zs, logw, cs, as, fs, ess, fitFrom = nz, nl, nc, na, nf, ne, from
+		zs, logw, ws, cs, as, fs, ess, fitFrom = nz, nl, nw, nc, na, nf, ne, from
 		pd.stages++
 		widen = 1
 	}
@@ -253,12 +255,11 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	M = len(logw)
 	pd.nodes = M
 	// The final stage's nodes are kept as they are (the prior's are the
-	// model's own, never written); the weights overwrite logw (this
-	// call's own), 0 for a node whose weight is at most 1e-300 of the
-	// largest.
-	pd.c, pd.a, pd.f, pd.w = cs, as, fs, logw
-	for k, l := range logw {
-		w := math.Exp(l - best)
+	// model's own, never written); the weights are ws, exp(logw − best)
+	// from the stage's effective number (this call's own), 0 for a node
+	// whose weight is at most 1e-300 of the largest.
+	pd.c, pd.a, pd.f, pd.w = cs, as, fs, ws
+	for k, w := range ws {
 		sAll += w
 		if w > 1e-300 {
 			s1 += w
@@ -277,23 +278,24 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 }
 
 // stagePoints returns room for n points of a stage (scores, log weights,
-// factors c, a, f), the float slices in one allocation.
-func stagePoints(n int) (z [][3]float64, l, cs, as, fs []float64) {
+// weights exp(l − max l), factors c, a, f), the float slices in one
+// allocation.
+func stagePoints(n int) (z [][3]float64, l, ws, cs, as, fs []float64) {
 	z = make([][3]float64, n)
-	buf := make([]float64, 4*n)
-	return z, buf[:n:n], buf[n : 2*n : 2*n], buf[2*n : 3*n : 3*n], buf[3*n:]
+	buf := make([]float64, 5*n)
+	return z, buf[:n:n], buf[n : 2*n : 2*n], buf[2*n : 3*n : 3*n], buf[3*n : 4*n : 4*n], buf[4*n:]
 }
 
 // growStage returns the stage's points extended to length n, the first
-// ones kept.
-func growStage(z [][3]float64, l, cs, as, fs []float64, n int) ([][3]float64, []float64, []float64, []float64, []float64) {
-	nz, nl, nc, na, nf := stagePoints(n)
+// ones kept (their weights are not: the caller computes them).
+func growStage(z [][3]float64, l, cs, as, fs []float64, n int) ([][3]float64, []float64, []float64, []float64, []float64, []float64) {
+	nz, nl, nw, nc, na, nf := stagePoints(n)
 	copy(nz, z)
 	copy(nl, l)
 	copy(nc, cs)
 	copy(na, as)
 	copy(nf, fs)
-	return nz, nl, nc, na, nf
+	return nz, nl, nw, nc, na, nf
 }
 
 // loadedAt is LoadedVoltage with the pulse drop I·M(T) given (V/Ω), for
@@ -552,6 +554,7 @@ func (e *evidence) logLik(c, a, f, out []float64) {
 			continue
 		}
 		inv := 1 / (ck * nom)
+		s := out[k]
 		for i := range e.rs {
 			r := &e.rs[i]
 			dep := (ak*r.active+fk*r.fe+r.q)*inv + r.sdd
@@ -560,8 +563,24 @@ func (e *evidence) logLik(c, a, f, out []float64) {
 			} else if dep > 1 {
 				dep = 1
 			}
-			out[k] += r.tab.at(r.voltage(ds, dep))
+			v := r.voltage(ds, dep)
+			// readingTable.at, written out for the common case (a lattice
+			// whose four values are set: the same operations, so the same
+			// bits)
+			if tb := r.tab; tb.steps > 0 {
+				u := (v - tb.v0) * tb.invH
+				j := min(max(int(u), 0), tb.steps-1)
+				g := tb.g[j : j+4 : j+4]
+				b0, b1, b2, b3 := g[0].Load(), g[1].Load(), g[2].Load(), g[3].Load()
+				if b0 != unsetBits && b1 != unsetBits && b2 != unsetBits && b3 != unsetBits {
+					y := [4]float64{math.Float64frombits(b0), math.Float64frombits(b1), math.Float64frombits(b2), math.Float64frombits(b3)}
+					s += cubic4(&y, u-float64(j))
+					continue
+				}
+			}
+			s += r.tab.at(v)
 		}
+		out[k] = s
 	}
 }
 
@@ -577,47 +596,50 @@ func maxOf(x []float64) float64 {
 	return b
 }
 
-// essLME returns essOf(logw) and log of the mean of exp(logw), from one pass (the
-// same bits as each).
-func essLME(logw []float64) (ess, lme float64) {
+// essLME returns essOf(logw, ws) and log of the mean of exp(logw), from
+// one pass (the same bits as each).
+func essLME(logw, ws []float64) (ess, lme float64) {
 	b := maxOf(logw)
 	if math.IsInf(b, -1) || math.IsNaN(b) {
 		return 0, b
 	}
 	s1, s2 := 0.0, 0.0
-	for _, l := range logw {
+	for k, l := range logw {
 		w := math.Exp(l - b)
+		ws[k] = w
 		s1 += w
 		s2 += w * w
 	}
 	return s1 * s1 / s2, b + math.Log(s1/float64(len(logw)))
 }
 
-// essOf returns the effective number (Σw)²/Σw² of the weights exp(logw).
-func essOf(logw []float64) float64 {
+// essOf returns the effective number (Σw)²/Σw² of the weights exp(logw),
+// and writes them into ws as exp(logw − max logw) (untouched where the
+// largest is −Inf or NaN: no weights).
+func essOf(logw, ws []float64) float64 {
 	b := maxOf(logw)
 	if math.IsInf(b, -1) || math.IsNaN(b) {
 		return 0
 	}
 	s1, s2 := 0.0, 0.0
-	for _, l := range logw {
+	for k, l := range logw {
 		w := math.Exp(l - b)
+		ws[k] = w
 		s1 += w
 		s2 += w * w
 	}
 	return s1 * s1 / s2
 }
 
-// fitProposal fits a location and scale to the weighted scores: the
+// fitProposal fits a location and scale to the scores weighted by ws
+// (exp(logw − max), as essOf writes them): the
 // weighted mean and covariance, widened (×2 and 0.1² on the diagonal at
 // the first stage, ×1.5 and 0.01² later, times widen, so that a proposal
 // from few nodes still covers the posterior), and its lower Cholesky
 // factor.
-func fitProposal(zs [][3]float64, logw []float64, stage int, widen float64) (mu [3]float64, l [3][3]float64, ok bool) {
-	b := maxOf(logw)
+func fitProposal(zs [][3]float64, ws []float64, stage int, widen float64) (mu [3]float64, l [3][3]float64, ok bool) {
 	tot := 0.0
-	for k, lw := range logw {
-		w := math.Exp(lw - b)
+	for k, w := range ws {
 		tot += w
 		for r := range 3 {
 			mu[r] += w * zs[k][r]
@@ -627,8 +649,8 @@ func fitProposal(zs [][3]float64, logw []float64, stage int, widen float64) (mu 
 		mu[r] /= tot
 	}
 	var cov [3][3]float64
-	for k, lw := range logw {
-		w := math.Exp(lw-b) / tot
+	for k, wk := range ws {
+		w := wk / tot
 		for r := range 3 {
 			for c := 0; c <= r; c++ {
 				cov[r][c] += w * (zs[k][r] - mu[r]) * (zs[k][c] - mu[c])

@@ -163,17 +163,18 @@ const (
 
 // ridgeStage returns the ridge stage's m points (normal scores, factors)
 // and their log weights (log prior − log proposal + log-likelihood,
-// normalised as the adaptive stages' are), or ok = false where it does not
+// normalised as the adaptive stages' are) with room ws for their weights
+// (stagePoints), or ok = false where it does not
 // apply: no reading with a closed bin, no spread of the solved factor, or a
 // loaded curve that is not strictly decreasing.
-func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float64, ok bool) {
+func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, ws, cs, as, fs []float64, ok bool) {
 	d := e.d
 	if e.newest < 0 || d.curve == nil {
-		return nil, nil, nil, nil, nil, false
+		return nil, nil, nil, nil, nil, nil, false
 	}
 	mu, s0, ok := e.readingsMean()
 	if !ok {
-		return nil, nil, nil, nil, nil, false
+		return nil, nil, nil, nil, nil, nil, false
 	}
 	// The newest reading's loaded curve, strictly decreasing.
 	nr := &e.rs[e.newest]
@@ -182,7 +183,7 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 	vs := nr.vs
 	for i := 1; i < np; i++ {
 		if !(vs[i] < vs[i-1]) {
-			return nil, nil, nil, nil, nil, false
+			return nil, nil, nil, nil, nil, nil, false
 		}
 	}
 	// The solved factor: the one whose prior moves the depth most, at the
@@ -210,7 +211,7 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 		solve, best = 2, termF
 	}
 	if !(best > 0) {
-		return nil, nil, nil, nil, nil, false
+		return nil, nil, nil, nil, nil, nil, false
 	}
 	nom := n.nominal
 	// node maps the newest reading's voltage v, the other two scores
@@ -261,7 +262,7 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 	lo := math.Max(vs[np-1], mu-ridgeReach*s0)
 	hi := math.Min(vs[0], mu+ridgeReach*s0)
 	if !(hi > lo) {
-		return nil, nil, nil, nil, nil, false
+		return nil, nil, nil, nil, nil, nil, false
 	}
 	var gv, gh [ridgeGrid]float64
 	var step, hmax float64
@@ -283,7 +284,7 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 		return maxOf(gh[:])
 	}
 	if hmax = profile(lo, hi); math.IsInf(hmax, -1) {
-		return nil, nil, nil, nil, nil, false
+		return nil, nil, nil, nil, nil, nil, false
 	}
 	// Where the profile's mass lies within a few cells (a sharp profile),
 	// grid again over the cells where h > max − ridgeDrop, one more on
@@ -297,7 +298,7 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 	i0, i1 = max(i0-1, 0), min(i1+1, ridgeGrid-1)
 	if i1-i0 < ridgeGrid/4 {
 		if hmax = profile(gv[i0], gv[i1]); math.IsInf(hmax, -1) {
-			return nil, nil, nil, nil, nil, false
+			return nil, nil, nil, nil, nil, nil, false
 		}
 	}
 	// The profile's moments locate the defensive t component.
@@ -327,7 +328,7 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 	// 1/tot; each times its share.
 	tConst := ridgeDefensive * 3 / (8 * scale)
 	gConst := (1 - ridgeDefensive) / tot
-	zs, logw, cs, as, fs = stagePoints(m)
+	zs, logw, ws, cs, as, fs = stagePoints(m)
 	logPhi := -0.5 * math.Log(2*math.Pi)
 	for k := range m {
 		zz := d.z[k]
@@ -376,7 +377,7 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, cs, as, fs []float6
 		logw[k] = logPhi - 0.5*zz[solve]*zz[solve] + math.Log(jac/q)
 	}
 	e.logLik(cs, as, fs, logw)
-	return zs, logw, cs, as, fs, true
+	return zs, logw, ws, cs, as, fs, true
 }
 
 // cellMass returns ∫₀ʰ exp(h0 + (h1 − h0)·t/h) dt for a cell of width h,

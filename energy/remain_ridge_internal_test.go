@@ -194,7 +194,7 @@ func TestRidgeStageFallback(t *testing.T) {
 			}
 		}
 		ev := m.d.newEvidence(&tl, tl.newest-tl.install)
-		_, _, _, _, _, ok := ev.ridgeStage(len(m.d.c))
+		_, _, _, _, _, _, ok := ev.ridgeStage(len(m.d.c))
 		require.False(t, ok, tc.name)
 		p, err := m.Posterior(tl, tl.Newest())
 		require.NoError(t, err, tc.name)

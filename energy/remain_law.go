@@ -104,7 +104,13 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 	// replaced by the node's index (at most MaxPosteriorNodes = 2^16
 	// nodes), then one insertion pass restores the exact order (value,
 	// then index) among values that agree in their top 48 bits.
-	keys := make([]uint64, 0, n)
+	var keyBuf [stackNodes]uint64 // the keys on the stack for the usual sizes
+	var keys []uint64
+	if n <= stackNodes {
+		keys = keyBuf[:0:n]
+	} else {
+		keys = make([]uint64, 0, n)
+	}
 	tot := 0.0
 	for k, wk := range w {
 		if wk > 0 {
@@ -158,6 +164,11 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 	p.sHi = math.Max(math.Min(p.sHi, hi), lo)
 	return PosteriorLaw{p: p}
 }
+
+// stackNodes is the largest node count whose scratch (sort keys, log
+// weights) lives on the goroutine's stack instead of the heap: the
+// default point set and its importance stages (stageFactor·256 = 1024).
+const stackNodes = 1024
 
 // orderBits returns bits of x whose unsigned order is x's order (−0 below
 // +0; x not NaN).

@@ -66,7 +66,8 @@ func TestPooledMarginalOracle(t *testing.T) {
 		oracle, v := 0.0, 0.0
 		for i := range tallies {
 			tl := tallies[i]
-			ev := d.newEvidence(&tl, tl.newest-tl.install)
+			ev := &evidence{}
+			d.initEvidence(ev, &tl, tl.newest-tl.install)
 			clear(lw)
 			ev.logLik(c, a, f, lw)
 			top := maxOf(lw)

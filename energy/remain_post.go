@@ -109,12 +109,19 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	pd := &postData{d: d, tau0: t.newest - t.install, tauNow: now - t.install, a0: t.active, va0: t.actVar}
 	pd.r, pd.vr = d.activePower(&t, now)
 	M := len(d.c)
-	ev := d.newEvidence(&t, pd.tau0)
-	like := ev.logLik
-	// logw and the weights exp(logw − max) in one allocation
-	wbuf := make([]float64, 2*M)
-	logw, ws := wbuf[:M:M], wbuf[M:]
-	like(d.c, d.a, d.f, logw)
+	var ev evidence
+	d.initEvidence(&ev, &t, pd.tau0)
+	// the prior's log weights (on the stack for the usual sizes) and
+	// their weights exp(logw − max)
+	var lbuf [stackNodes]float64
+	var logw []float64
+	if M <= stackNodes {
+		logw = lbuf[:M:M]
+	} else {
+		logw = make([]float64, M)
+	}
+	ws := make([]float64, M)
+	ev.logLik(d.c, d.a, d.f, logw)
 	cs, as, fs := d.c, d.a, d.f
 	ess, lme := essLME(logw, ws)
 	pd.stages = 1
@@ -196,7 +203,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 				pr := -0.5*(z[0]*z[0]+z[1]*z[1]+z[2]*z[2]) - 1.5*math.Log(2*math.Pi) // log prior density, normalised as q is
 				nl[k] = pr - q
 			}
-			like(nc[from:to], na[from:to], nf[from:to], nl[from:to])
+			ev.logLik(nc[from:to], na[from:to], nf[from:to], nl[from:to])
 		}
 		if M < Ms {
 			// A try is first placed on the stage set's first M points (a
@@ -448,8 +455,8 @@ type evidence struct {
 	d             *deviceData
 	capU, fe0, q0 float64
 	sd0, act      float64
-	rs            []readTerm // the kept readings (in rsBuf)
-	newest        int        // index in rs of the newest reading, -1 for none
+	nr            int // the kept readings are rsBuf[:nr]
+	newest        int // index in rsBuf of the newest reading, -1 for none
 	rsBuf         [MaxReadings]readTerm
 }
 
@@ -477,21 +484,22 @@ func (r *readTerm) voltage(ds []float64, dep float64) float64 {
 	return r.vs[i-1] + (dep-ds[i-1])*r.slope[i-1]
 }
 
-// newEvidence returns the tally's evidence at τ0 (s after installation).
-func (d *deviceData) newEvidence(t *Tally, tau0 float64) *evidence {
+// initEvidence sets e to the tally's evidence at τ0 (s after
+// installation): the caller's own (Posterior's is on its stack).
+func (d *deviceData) initEvidence(e *evidence, t *Tally, tau0 float64) {
 	n := d.n
-	e := &evidence{d: d, capU: n.batch*d.s.usable - n.nominal*d.selfD(tau0), fe0: d.floorE(tau0), q0: n.quiescent * tau0,
+	*e = evidence{d: d, capU: n.batch*d.s.usable - n.nominal*d.selfD(tau0), fe0: d.floorE(tau0), q0: n.quiescent * tau0,
 		sd0: math.Sqrt(t.actVar), act: t.active, newest: -1}
-	e.rs = e.rsBuf[:t.nRead]
+	e.nr = t.nRead
 	newestTau := math.Inf(-1)
-	for i := range e.rs {
+	for i := range e.rsBuf[:e.nr] {
 		r := t.reads[i]
 		drop := d.load * d.curve.ResistanceMultiplier(d.temp(r.tau))
-		rt := &e.rs[i]
+		rt := &e.rsBuf[i]
 		*rt = readTerm{active: r.active, fe: d.floorE(r.tau), q: n.quiescent * r.tau, sdd: d.selfD(r.tau), drop: drop}
 		rt.tab = nil
 		for j := range i {
-			if o := &e.rs[j]; o.drop == drop && o.tab.lo == r.lo && o.tab.hi == r.hi && o.tab.sigma == r.noise {
+			if o := &e.rsBuf[j]; o.drop == drop && o.tab.lo == r.lo && o.tab.hi == r.hi && o.tab.sigma == r.noise {
 				rt.tab = o.tab
 				break
 			}
@@ -504,7 +512,6 @@ func (d *deviceData) newEvidence(t *Tally, tau0 float64) *evidence {
 			newestTau, e.newest = r.tau, i
 		}
 	}
-	return e
 }
 
 // logLik adds to out[k] the log-likelihood of the evidence at the node
@@ -555,8 +562,8 @@ func (e *evidence) logLik(c, a, f, out []float64) {
 		}
 		inv := 1 / (ck * nom)
 		s := out[k]
-		for i := range e.rs {
-			r := &e.rs[i]
+		for i := range e.rsBuf[:e.nr] {
+			r := &e.rsBuf[i]
 			dep := (ak*r.active+fk*r.fe+r.q)*inv + r.sdd
 			if dep < 0 {
 				dep = 0

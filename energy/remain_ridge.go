@@ -65,8 +65,8 @@ const (
 // them.
 func (e *evidence) readingBest() float64 {
 	s := 0.0
-	for i := range e.rs {
-		tb := e.rs[i].tab
+	for i := range e.rsBuf[:e.nr] {
+		tb := e.rsBuf[i].tab
 		v := 0.5 * (tb.lo + tb.hi)
 		switch {
 		case math.IsInf(tb.lo, -1):
@@ -101,7 +101,7 @@ func (e *evidence) ridgeSharp() bool {
 	if !ok {
 		return false
 	}
-	nr := &e.rs[e.newest]
+	nr := &e.rsBuf[e.newest]
 	ds, vs := d.curve.DepthOfDischarge, nr.vs
 	slope := math.Inf(1) // outside the curve's range: let the stage decide
 	for j := 0; j+1 < len(vs); j++ {
@@ -126,8 +126,8 @@ func (e *evidence) ridgeSharp() bool {
 // without a closed bin.
 func (e *evidence) readingsMean() (mu, s0 float64, ok bool) {
 	sw, swm, swmm := 0.0, 0.0, 0.0
-	for i := range e.rs {
-		tb := e.rs[i].tab
+	for i := range e.rsBuf[:e.nr] {
+		tb := e.rsBuf[i].tab
 		if math.IsInf(tb.lo, 0) || math.IsInf(tb.hi, 0) {
 			continue
 		}
@@ -177,7 +177,7 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, ws, cs, as, fs []fl
 		return nil, nil, nil, nil, nil, nil, false
 	}
 	// The newest reading's loaded curve, strictly decreasing.
-	nr := &e.rs[e.newest]
+	nr := &e.rsBuf[e.newest]
 	cv := d.curve
 	np := len(cv.DepthOfDischarge)
 	vs := nr.vs

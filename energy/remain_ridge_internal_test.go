@@ -193,7 +193,8 @@ func TestRidgeStageFallback(t *testing.T) {
 				require.NoError(t, err)
 			}
 		}
-		ev := m.d.newEvidence(&tl, tl.newest-tl.install)
+		ev := &evidence{}
+		m.d.initEvidence(ev, &tl, tl.newest-tl.install)
 		_, _, _, _, _, _, ok := ev.ridgeStage(len(m.d.c))
 		require.False(t, ok, tc.name)
 		p, err := m.Posterior(tl, tl.Newest())

@@ -104,12 +104,12 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 	// replaced by the node's index (at most MaxPosteriorNodes = 2^16
 	// nodes), then one insertion pass restores the exact order (value,
 	// then index) among values that agree in their top 48 bits.
-	var keyBuf [stackNodes]uint64 // the keys on the stack for the usual sizes
-	var keys []uint64
+	var keyBuf, keyTmp [stackNodes]uint64 // the keys and the sort's room on the stack for the usual sizes
+	var keys, tmp []uint64
 	if n <= stackNodes {
-		keys = keyBuf[:0:n]
+		keys, tmp = keyBuf[:0:n], keyTmp[:n]
 	} else {
-		keys = make([]uint64, 0, n)
+		keys, tmp = make([]uint64, 0, n), make([]uint64, n)
 	}
 	tot := 0.0
 	for k, wk := range w {
@@ -119,7 +119,7 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 			tot += wk
 		}
 	}
-	slices.Sort(keys)
+	sortKeys(keys, tmp)
 	less := func(x, y uint64) bool {
 		mx, my := tm[x&0xffff], tm[y&0xffff]
 		return mx < my || (mx == my && x&0xffff < y&0xffff)
@@ -169,6 +169,43 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 // weights) lives on the goroutine's stack instead of the heap: the
 // default point set and its importance stages (stageFactor·256 = 1024).
 const stackNodes = 1024
+
+// sortKeys sorts the distinct keys ascending, with tmp (at least as long)
+// as room: a least-significant-digit radix sort, 8 bits a pass, that
+// skips a pass whose digit is the same for every key (the index's high
+// byte, the values' common exponent), for 64 keys or more; fewer with
+// slices.Sort. Either gives the one ascending order of distinct keys.
+func sortKeys(keys, tmp []uint64) {
+	n := len(keys)
+	if n < 64 {
+		slices.Sort(keys)
+		return
+	}
+	src, dst := keys, tmp[:n]
+	for shift := uint(0); shift < 64; shift += 8 {
+		var count [256]int
+		for _, k := range src {
+			count[(k>>shift)&0xff]++
+		}
+		if count[(src[0]>>shift)&0xff] == n {
+			continue
+		}
+		sum := 0
+		for i, c := range count {
+			count[i] = sum
+			sum += c
+		}
+		for _, k := range src {
+			d := (k >> shift) & 0xff
+			dst[count[d]] = k
+			count[d]++
+		}
+		src, dst = dst, src
+	}
+	if &src[0] != &keys[0] {
+		copy(keys, src)
+	}
+}
 
 // orderBits returns bits of x whose unsigned order is x's order (−0 below
 // +0; x not NaN).

@@ -2,6 +2,8 @@ package energy
 
 import (
 	"math"
+	"math/rand/v2"
+	"slices"
 	"sort"
 	"testing"
 
@@ -74,4 +76,31 @@ func TestNewtonQuantile(t *testing.T) {
 	}
 	t.Logf("Newton steps taken at %d of %d levels", taken, levels)
 	require.Greater(t, taken, levels*3/4)
+}
+
+// TestSortKeys checks the law's radix sort against the standard library's
+// sort (slices.Sort) on distinct keys built as newPostLaw builds them
+// (a value's order-preserving bits, the low 16 replaced by the index):
+// values spread over many decades, clustered within a few units in the
+// last place, negative and positive, at sizes around the radix sort's
+// threshold and up to MaxPosteriorNodes.
+func TestSortKeys(t *testing.T) {
+	r := rand.New(rand.NewPCG(15, 7))
+	for _, n := range []int{1, 2, 63, 64, 65, 256, 1024, 4096, MaxPosteriorNodes} {
+		for _, gen := range []func(int) float64{
+			func(int) float64 { return math.Exp(40 * (r.Float64() - 0.5)) },
+			func(int) float64 { return 3e7 + float64(r.IntN(5))*1e-8 },
+			func(int) float64 { return r.NormFloat64() * 1e5 },
+			func(k int) float64 { return float64(n - k) },
+		} {
+			keys := make([]uint64, n)
+			for k := range keys {
+				keys[k] = orderBits(gen(k))&^0xffff | uint64(k)
+			}
+			want := slices.Clone(keys)
+			slices.Sort(want)
+			sortKeys(keys, make([]uint64, n))
+			require.Equal(t, want, keys, "n=%d", n)
+		}
+	}
 }

@@ -159,7 +159,12 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		// reach). Of the two, the one whose estimate
 		// of the marginal likelihood is larger by more than ridgeMargin
 		// wins (the other missed mass), else the more effective one.
-		if rz, rl, rw, rc, ra, rf, ok := ev.ridgeStage(M); ok {
+		// the ridge's scores and log weights on the stack for the usual
+		// sizes (scratch: the final weights and factors are its ws, cs,
+		// as, fs)
+		var rzBuf [stackNodes][3]float64
+		var rlBuf [stackNodes]float64
+		if rz, rl, rw, rc, ra, rf, ok := ev.ridgeStage(M, rzBuf[:], rlBuf[:]); ok {
 			re, rlme := essLME(rl, rw)
 			dl := rlme - lme
 			if dl > ridgeMargin || (dl >= -ridgeMargin && re > ess) {

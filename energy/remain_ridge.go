@@ -163,11 +163,12 @@ const (
 
 // ridgeStage returns the ridge stage's m points (normal scores, factors)
 // and their log weights (log prior − log proposal + log-likelihood,
-// normalised as the adaptive stages' are) with room ws for their weights
-// (stagePoints), or ok = false where it does not
+// normalised as the adaptive stages' are) with room ws for their weights;
+// the scores and log weights in zBuf and lBuf where they hold m (the
+// caller's scratch), else in a new allocation; or ok = false where it does not
 // apply: no reading with a closed bin, no spread of the solved factor, or a
 // loaded curve that is not strictly decreasing.
-func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, ws, cs, as, fs []float64, ok bool) {
+func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3]float64, logw, ws, cs, as, fs []float64, ok bool) {
 	d := e.d
 	if e.newest < 0 || d.curve == nil {
 		return nil, nil, nil, nil, nil, nil, false
@@ -328,7 +329,13 @@ func (e *evidence) ridgeStage(m int) (zs [][3]float64, logw, ws, cs, as, fs []fl
 	// 1/tot; each times its share.
 	tConst := ridgeDefensive * 3 / (8 * scale)
 	gConst := (1 - ridgeDefensive) / tot
-	zs, logw, ws, cs, as, fs = stagePoints(m)
+	if len(zBuf) >= m && len(lBuf) >= m {
+		buf := make([]float64, 4*m)
+		zs, logw = zBuf[:m:m], lBuf[:m:m]
+		ws, cs, as, fs = buf[:m:m], buf[m:2*m:2*m], buf[2*m:3*m:3*m], buf[3*m:]
+	} else {
+		zs, logw, ws, cs, as, fs = stagePoints(m)
+	}
 	logPhi := -0.5 * math.Log(2*math.Pi)
 	for k := range m {
 		zz := d.z[k]

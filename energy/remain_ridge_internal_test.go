@@ -195,7 +195,7 @@ func TestRidgeStageFallback(t *testing.T) {
 		}
 		ev := &evidence{}
 		m.d.initEvidence(ev, &tl, tl.newest-tl.install)
-		_, _, _, _, _, _, ok := ev.ridgeStage(len(m.d.c))
+		_, _, _, _, _, _, ok := ev.ridgeStage(len(m.d.c), nil, nil)
 		require.False(t, ok, tc.name)
 		p, err := m.Posterior(tl, tl.Newest())
 		require.NoError(t, err, tc.name)

@@ -3,6 +3,7 @@ package energy
 import (
 	"fmt"
 	"math"
+	"reflect"
 	"slices"
 
 	"gonum.org/v1/gonum/integrate/quad"
@@ -55,7 +56,11 @@ type SiteSpec struct {
 // lifetimes by more than the width of the conditional fleet laws (a first
 // failure among many nodes is then a near step of the shared factor)
 // gets more nodes. Each conditional node law is tabulated once on an
-// adaptive grid of times.
+// adaptive grid of times; groups whose node models are the same number
+// for number (copies that differ only in their names, counts or periods'
+// spread, a period entering a lifetime through its mean) share one table
+// at each node, and groups of one count with the same tables share their
+// stated errors too.
 //
 // Every law's Accuracy states, at the worst of a ladder of its quantiles
 // and of the nodes' conditional 5–95 % points, the conditional node laws'
@@ -86,6 +91,11 @@ type Site struct {
 	// law's.
 	slope  []slopeBound
 	slope1 slopeBound
+	// twin[g] is the first group whose conditional tables are group g's
+	// at every node of the rule and whose count is g's (g itself when no
+	// earlier group's are): such groups' laws are the same law, their
+	// stated errors computed once.
+	twin []int
 }
 
 type siteEnv struct {
@@ -178,6 +188,10 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 				}
 			}
 		}
+		// The node models first (cheap), then one table for each model
+		// that no other group has at the same shared point (the costly
+		// part): groups whose models are the same number for number
+		// (sameNodeModel) share their table, a law read the same way.
 		out := make([]built, len(todo))
 		err := forEachOnTwo(len(todo), func(i int) error {
 			k := todo[i]
@@ -188,13 +202,38 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 				return causeErr(fn, fmt.Sprintf("group %q: Node", s.names[k.g]), g.Node.Name,
 					fmt.Sprintf("lifetime law at batch factor %.4g and temperature offset %+.3g °C", cond.batch(), cond.TemperatureOffset), err)
 			}
-			out[i] = built{l, tabulate(l)}
+			out[i].l = l
 			return nil
 		})
 		if err != nil {
 			return Site{}, err
 		}
+		// same[i] is the earlier job (in todo) whose model job i's is,
+		// or i: todo lists a shared point's groups in order, so the first
+		// of a kind is built and the others wait for it.
+		same := make([]int, len(todo))
 		for i, k := range todo {
+			same[i] = i
+			for j := i - 1; j >= 0 && todo[j].u == k.u && todo[j].v == k.v; j-- {
+				if same[j] == j && sameNodeModel(out[j].l.n, out[i].l.n) {
+					same[i] = j
+				}
+			}
+		}
+		var own []int
+		for i := range todo {
+			if same[i] == i {
+				own = append(own, i)
+			}
+		}
+		_ = forEachOnTwo(len(own), func(i int) error {
+			out[own[i]].tb = tabulate(out[own[i]].l)
+			return nil
+		})
+		for i, k := range todo {
+			if j := same[i]; j != i {
+				out[i].tb = out[j].tb
+			}
 			cache[k] = out[i]
 		}
 		s.tLo, s.tHi = math.Inf(1), 0
@@ -209,6 +248,7 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 				s.tHi = math.Max(s.tHi, b.tb.t[len(b.tb.t)-1])
 			}
 		}
+		s.twin = s.twins()
 		// The rule's estimated error for the node laws and the first
 		// failures; refine the factor whose part is the larger.
 		s.fitFine()
@@ -248,6 +288,34 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 		s.envs[e].fleet = f
 	}
 	return s, nil
+}
+
+// twins returns, for each group, the first group with the same count
+// whose conditional tables are the group's own at every environment (one
+// table shared: buildSite builds one table for a node model that two
+// groups have), or the group itself.
+func (s *Site) twins() []int {
+	tw := make([]int, len(s.names))
+	for g := range s.names {
+		tw[g] = g
+		for j := range g {
+			if tw[j] != j || s.counts[j] != s.counts[g] {
+				continue
+			}
+			same := true
+			for e := range s.envs {
+				if s.envs[e].laws[j].lz != s.envs[e].laws[g].lz {
+					same = false
+					break
+				}
+			}
+			if same {
+				tw[g] = j
+				break
+			}
+		}
+	}
+	return tw
 }
 
 // hermiteNodes returns the Gauss–Hermite nodes (as standard normal values)
@@ -510,4 +578,59 @@ func (s Site) Accuracy() dist.Accuracy {
 		acc.CDFAbs = math.Max(acc.CDFAbs, a)
 	}
 	return acc
+}
+
+// sameNodeModel reports whether the node models a and b hold the same
+// numbers in every field that a lifetime law reads (the name and the
+// warnings aside), bit for bit: their laws, tables and every answer are
+// then the same. Two groups of a site that differ only in what the model
+// reduces away (a name; a period's spread, the period entering through
+// its mean only) share a table this way. An exact k-fold path (a node
+// without spread) also reads the active energy's law itself: that is the
+// same only for two finite discrete laws with the same atoms, so any
+// other pair counts as different. TestSameNodeModelFields keeps the list
+// of fields read here in step with the struct.
+func sameNodeModel(a, b *node) bool {
+	if a == b {
+		return true
+	}
+	if len(a.settings) != len(b.settings) || len(a.glx) != len(b.glx) || len(a.glw) != len(b.glw) {
+		return false
+	}
+	same := func(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) }
+	sameAll := func(x, y []float64) bool {
+		for i := range x {
+			if !same(x[i], y[i]) {
+				return false
+			}
+		}
+		return true
+	}
+	if !same(a.nominal, b.nominal) || !same(a.batch, b.batch) || !same(a.quiescent, b.quiescent) ||
+		!same(a.sdRate, b.sdRate) || !same(a.storage, b.storage) || !same(a.calendar, b.calendar) ||
+		!same(a.spread.Capacity, b.spread.Capacity) || !same(a.spread.Floor, b.spread.Floor) || !same(a.spread.Active, b.spread.Active) ||
+		!sameAll(a.floorCum[:], b.floorCum[:]) || !sameAll(a.sdCum[:], b.sdCum[:]) ||
+		!sameAll(a.floorRate[:], b.floorRate[:]) || !sameAll(a.sdFactor[:], b.sdFactor[:]) ||
+		!sameAll(a.glx, b.glx) || !sameAll(a.glw, b.glw) {
+		return false
+	}
+	for i := range a.settings {
+		s, t := &a.settings[i], &b.settings[i]
+		if !sameAll([]float64{s.w, s.rate, s.floorP, s.usable, s.mu, s.k2, s.l3, s.l4, s.l5, s.scale, s.usableF},
+			[]float64{t.w, t.rate, t.floorP, t.usable, t.mu, t.k2, t.l3, t.l4, t.l5, t.scale, t.usableF}) {
+			return false
+		}
+		if (s.sums == nil) != (t.sums == nil) {
+			return false
+		}
+		if s.sums != nil {
+			// The exact path reads the law (its k-fold sums and support).
+			x, ok1 := s.excess.(dist.Discrete)
+			y, ok2 := t.excess.(dist.Discrete)
+			if !ok1 || !ok2 || !reflect.DeepEqual(x, y) {
+				return false
+			}
+		}
+	}
+	return true
 }

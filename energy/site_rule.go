@@ -1288,6 +1288,9 @@ func (s *Site) probeRule(tol float64) (parts [2]float64, worst float64) {
 	}
 	var laws []law
 	for g := range G {
+		if s.twin[g] != g {
+			continue // the same laws as its twin's, probed there
+		}
 		laws = append(laws, law{kind: kindNode, g: g}, law{kind: kindFirst, g: g})
 	}
 	laws = append(laws, law{kind: kindFleet})
@@ -1313,6 +1316,9 @@ func (s *Site) probeRule(tol float64) (parts [2]float64, worst float64) {
 		}
 		p, _, _ := probeMaxima(l.ps)
 		parts[0], parts[1] = math.Max(parts[0], p[0]), math.Max(parts[1], p[1])
+	}
+	for g := range G {
+		s.nodeAcc[g], s.firstAcc[g] = s.nodeAcc[s.twin[g]], s.firstAcc[s.twin[g]]
 	}
 	return parts, worst
 }

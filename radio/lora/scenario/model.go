@@ -242,6 +242,17 @@ func (m *Model) solveCollisions(only int) error {
 			chans[gwDR{gw, d.DR}] = m.Scenario.Region.ChannelsCarrying(m.Scenario.Gateways[gw].Channels, d.DR)
 		}
 	}
+	// One sweep computes every group's new values from the last sweep's
+	// (a Jacobi step, not Gauss–Seidel), and a group's vulnerable load is
+	// the sum over all the gateway's nodes less its own one node: each
+	// group's values then depend on the groups' values alone, not on their
+	// order, so two groups alike but for their names get the same numbers
+	// (energy.Site then builds their lifetime tables once).
+	type upd struct {
+		load, vuln, succ, frames float64
+		win                      lora.Windows
+	}
+	next := make([][]upd, len(m.Groups))
 	for iter := 0; ; iter++ {
 		change := 0.0
 		for gi := range m.Groups {
@@ -249,8 +260,9 @@ func (m *Model) solveCollisions(only int) error {
 			if only >= 0 && g.Group.Gateway != only {
 				continue
 			}
+			next[gi] = next[gi][:0]
 			for k := range g.PerDR {
-				dm := &g.PerDR[k]
+				dm := g.PerDR[k]
 				total, vuln := 0.0, 0.0
 				nch := chans[gwDR{g.Group.Gateway, dm.DR}]
 				if nch == 0 {
@@ -267,39 +279,34 @@ func (m *Model) solveCollisions(only int) error {
 					}
 					// Only the heard nodes' frames count (see Build).
 					n := float64(h.Group.Nodes) * h.Heard() * hd.Share
-					others := float64(h.Group.Nodes)
-					if hi == gi {
-						others--
-					}
-					others *= h.Heard() * hd.Share
 					all, err := lora.OfferedLoad(n, hd.Frames, hd.Airtime, h.Group.Interval, nch)
 					if err != nil {
 						return err
 					}
 					total += all
-					ob, err := lora.OfferedLoad(others, hd.Frames, hd.Airtime, h.Group.Interval, nch)
+					oa, err := lora.OfferedLoad(n, hd.Frames, dm.Airtime, h.Group.Interval, nch)
 					if err != nil {
 						return err
 					}
-					oa, err := lora.OfferedLoad(others, hd.Frames, dm.Airtime, h.Group.Interval, nch)
-					if err != nil {
-						return err
-					}
-					vuln += (oa + ob) / 2
+					vuln += (oa + all) / 2
 				}
-				dm.Load = total
-				dm.Vulnerable = vuln
+				// Less the node's own frames (they do not collide with
+				// each other): one node of the group's share.
+				one := g.Heard() * dm.Share
+				own, err := lora.OfferedLoad(one, dm.Frames, dm.Airtime, g.Group.Interval, nch)
+				if err != nil {
+					return err
+				}
+				vuln = math.Max(0, vuln-own)
 				succ, err := lora.AlohaSuccess(vuln)
 				if err != nil {
 					return err
 				}
-				dm.UplinkSuccess = succ
 				gr := g.Group
-				w, err := answerWindows(succ, gr, *dm)
+				w, err := answerWindows(succ, gr, dm)
 				if err != nil {
 					return err
 				}
-				dm.Windows = w
 				frames := 1.0
 				if gr.MaxTransmissions > 1 {
 					tg, err := lora.TruncatedGeometric(w.RX1+w.RX2, gr.MaxTransmissions)
@@ -309,7 +316,16 @@ func (m *Model) solveCollisions(only int) error {
 					frames = tg.Mean()
 				}
 				change = math.Max(change, math.Abs(frames-dm.Frames))
-				dm.Frames = frames
+				next[gi] = append(next[gi], upd{total, vuln, succ, frames, w})
+			}
+		}
+		for gi := range m.Groups {
+			if only >= 0 && m.Groups[gi].Group.Gateway != only {
+				continue
+			}
+			for k, u := range next[gi] {
+				dm := &m.Groups[gi].PerDR[k]
+				dm.Load, dm.Vulnerable, dm.UplinkSuccess, dm.Frames, dm.Windows = u.load, u.vuln, u.succ, u.frames, u.win
 			}
 		}
 		sent, err := m.gatewayBudgets(only)

@@ -1,0 +1,175 @@
+package energy
+
+import (
+	"math"
+	"reflect"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/joulelaw/joulelaw/dist"
+)
+
+// twinSiteSpec is TwoFactorSiteSpec with three copies of its first group
+// (50 nodes, 900 s period): "g0 jittered" differs only in its name and its
+// period's spread (uniform over 900 ± 90 s: the same mean, 900 s exactly,
+// which is all a lifetime law reads of a period), "g0 × 60" also in its
+// count, and "g0 wider" in its capacity spread (0.0500001 instead of 0.05).
+func twinSiteSpec(t *testing.T) SiteSpec {
+	t.Helper()
+	spec := TwoFactorSiteSpec(t)
+	g0 := spec.Groups[0]
+	jit := g0
+	jit.Name = "g0 jittered"
+	jit.Node.Settings = nil
+	for _, st := range g0.Node.Settings {
+		c := MustCycle(st.Cycle.Active(), dist.MustUniform(810, 990), st.Cycle.FloorPower())
+		jit.Node.Settings = append(jit.Node.Settings, NodeSetting{Weight: st.Weight, Cycle: c})
+	}
+	require.Equal(t, g0.Node.Settings[0].Cycle.Period().Mean(), jit.Node.Settings[0].Cycle.Period().Mean())
+	more := g0
+	more.Name, more.Count = "g0 × 60", 60
+	wider := g0
+	wider.Name = "g0 wider"
+	wider.Node.Spread.Capacity = 0.0500001
+	spec.Groups = append(spec.Groups, jit, more, wider)
+	return spec
+}
+
+// Groups whose node models are the same number for number (sameNodeModel)
+// share one conditional table at each of the rule's nodes; a group with
+// the same count as well shares its stated errors (twin). The oracle for
+// the shared table is the group's own: a table built afresh from its own
+// spec at the same shared point must give the same bits, and so must the
+// group's stated errors probed for it directly (lawError). A group whose
+// spread differs by 1e-7 (relative 2e-6) gets its own tables.
+func TestSiteTwinGroups(t *testing.T) {
+	spec := twinSiteSpec(t)
+	s, err := NewSite(spec)
+	require.NoError(t, err)
+	require.Equal(t, 5, s.Groups())
+	assert.Equal(t, []int{0, 1, 0, 3, 4}, s.twin, "twins")
+	ts := []float64{0.5 * Year, 2 * Year, 5 * Year, 8 * Year, 12 * Year, 20 * Year}
+	for e := range s.envs {
+		env := &s.envs[e]
+		assert.Same(t, env.laws[0].lz, env.laws[2].lz, "env %d: the jittered copy shares the table", e)
+		assert.Same(t, env.laws[0].lz, env.laws[3].lz, "env %d: the copy of another count shares the table", e)
+		assert.NotSame(t, env.laws[0].lz, env.laws[4].lz, "env %d: the wider spread has its own", e)
+		assert.NotSame(t, env.laws[0].lz, env.laws[1].lz, "env %d", e)
+		if e%5 != 0 {
+			continue // a fresh table for every fifth shared point
+		}
+		l, err := NewNodeLifetime(spec.Groups[2].Node, Environment{Climate: spec.Climate, Conditions: env.cond})
+		require.NoError(t, err)
+		own := tabulate(l)
+		for _, tm := range ts {
+			assert.Equal(t, own.CDF(tm), env.laws[2].CDF(tm), "env %d: CDF at %g s", e, tm)
+			assert.Equal(t, own.Survival(tm), env.laws[2].Survival(tm), "env %d: Survival at %g s", e, tm)
+		}
+		assert.Equal(t, own.Accuracy(), env.laws[2].Accuracy(), "env %d: accuracy", e)
+	}
+	for _, g := range []int{2, 3} {
+		_, _, stated := s.lawError(kindNode, g, 0)
+		assert.Equal(t, stated, s.nodeAcc[g], "group %d: the node law's stated error", g)
+		_, _, stated = s.lawError(kindFirst, g, 0)
+		assert.Equal(t, stated, s.firstAcc[g], "group %d: the first failure's stated error", g)
+	}
+	a, err := s.NodeLifetime(0)
+	require.NoError(t, err)
+	b, err := s.NodeLifetime(2)
+	require.NoError(t, err)
+	for _, p := range []float64{1e-4, 0.05, 0.5, 0.95} {
+		assert.Equal(t, a.Quantile(p), b.Quantile(p), "node law's quantile %g", p)
+	}
+	assert.Equal(t, a.(dist.Estimated).Accuracy(), b.(dist.Estimated).Accuracy())
+}
+
+// sameNodeModel compares every field of node and nodeSetting but the
+// name and the warnings; a field added to either struct must be added
+// there (or here, with the reason it does not enter a law), or two groups
+// could share a table their laws do not share.
+func TestSameNodeModelFields(t *testing.T) {
+	fields := func(v any) []string {
+		var out []string
+		rt := reflect.TypeOf(v)
+		for i := range rt.NumField() {
+			out = append(out, rt.Field(i).Name)
+		}
+		return out
+	}
+	assert.Equal(t, []string{"name", "settings", "spread", "nominal", "batch", "quiescent", "sdRate", "storage", "calendar",
+		"floorCum", "sdCum", "floorRate", "sdFactor", "warnings", "glx", "glw"}, fields(node{}),
+		"node's fields: update sameNodeModel")
+	assert.Equal(t, []string{"w", "rate", "floorP", "usable", "mu", "k2", "l3", "l4", "l5", "excess", "sums", "scale", "usableF"},
+		fields(nodeSetting{}), "nodeSetting's fields: update sameNodeModel")
+
+	// Each number compared: a node differing in any one of them, by one
+	// unit in the last place, is not the same model.
+	spec := TwoFactorSiteSpec(t)
+	l, err := NewNodeLifetime(spec.Groups[0].Node, Environment{Climate: spec.Climate})
+	require.NoError(t, err)
+	base := l.n
+	up := func(x *float64) { *x = math.Nextafter(*x, math.Inf(1)) }
+	for name, bump := range map[string]func(n *node){
+		"nominal": func(n *node) { up(&n.nominal) }, "batch": func(n *node) { up(&n.batch) },
+		"quiescent": func(n *node) { up(&n.quiescent) }, "sdRate": func(n *node) { up(&n.sdRate) },
+		"storage": func(n *node) { up(&n.storage) }, "calendar": func(n *node) { up(&n.calendar) },
+		"spread.Capacity": func(n *node) { up(&n.spread.Capacity) }, "spread.Floor": func(n *node) { up(&n.spread.Floor) },
+		"spread.Active": func(n *node) { up(&n.spread.Active) }, "floorCum": func(n *node) { up(&n.floorCum[12]) },
+		"sdCum": func(n *node) { up(&n.sdCum[3]) }, "floorRate": func(n *node) { up(&n.floorRate[11]) },
+		"sdFactor": func(n *node) { up(&n.sdFactor[0]) }, "glx": func(n *node) { up(&n.glx[1]) }, "glw": func(n *node) { up(&n.glw[2]) },
+		"settings[2].w": func(n *node) { up(&n.settings[2].w) }, "rate": func(n *node) { up(&n.settings[1].rate) },
+		"floorP": func(n *node) { up(&n.settings[0].floorP) }, "usable": func(n *node) { up(&n.settings[0].usable) },
+		"mu": func(n *node) { up(&n.settings[0].mu) }, "k2": func(n *node) { up(&n.settings[0].k2) },
+		"l3": func(n *node) { up(&n.settings[0].l3) }, "l4": func(n *node) { up(&n.settings[0].l4) },
+		"l5": func(n *node) { up(&n.settings[0].l5) }, "scale": func(n *node) { up(&n.settings[0].scale) },
+		"usableF":  func(n *node) { up(&n.settings[0].usableF) },
+		"settings": func(n *node) { n.settings = n.settings[:2] },
+	} {
+		n := *base
+		n.settings = append([]nodeSetting(nil), base.settings...)
+		n.glx, n.glw = append([]float64(nil), base.glx...), append([]float64(nil), base.glw...)
+		require.True(t, sameNodeModel(base, &n), "%s: a copy is the same", name)
+		n.name, n.warnings = "another", []string{"a warning"}
+		require.True(t, sameNodeModel(base, &n), "%s: the name and warnings do not count", name)
+		bump(&n)
+		assert.False(t, sameNodeModel(base, &n), "%s differs", name)
+	}
+}
+
+// A node without per-node spread reads its active energy's law itself
+// (the exact k-fold path): two such nodes are the same model where the
+// laws' atoms are, and not where one atom's probability differs.
+func TestSameNodeModelExactPath(t *testing.T) {
+	b := MustBattery(TypicalER14505())
+	tx := MustFixedState("tx", 40*MilliAmp, 3.6, 0.05)
+	rx := MustFixedState("rx", 10*MilliAmp, 3.6, 0.1)
+	model := func(p float64) *node {
+		c := MustCycle(MustChoice([]float64{p, 1 - p}, []Stage{tx, rx}), dist.MustPointMass(900), 5e-6*3.6)
+		l, err := NewNodeLifetime(NodeSpec{Settings: []NodeSetting{{Weight: 1, Cycle: c}}, Battery: b}, Environment{})
+		require.NoError(t, err)
+		require.NotNil(t, l.n.settings[0].sums, "the exact path")
+		return l.n
+	}
+	a := model(0.3)
+	assert.True(t, sameNodeModel(a, model(0.3)))
+	assert.False(t, sameNodeModel(a, model(math.Nextafter(0.3, 1))))
+	// The law alone (its moments left as they are): the same atoms are
+	// the same model, others are not, and a law of another type is not.
+	with := func(l dist.Law) *node {
+		n := *a
+		n.settings = append([]nodeSetting(nil), a.settings...)
+		n.settings[0].excess = l
+		return &n
+	}
+	ex := a.settings[0].excess.(dist.Discrete)
+	var vals, probs []float64
+	for _, at := range ex.Atoms() {
+		vals, probs = append(vals, at.Value), append(probs, at.Mass)
+	}
+	assert.True(t, sameNodeModel(a, with(dist.MustDiscrete(vals, probs))), "the same atoms")
+	vals[0] = math.Nextafter(vals[0], 0)
+	assert.False(t, sameNodeModel(a, with(dist.MustDiscrete(vals, probs))), "one value an ulp lower")
+	assert.False(t, sameNodeModel(a, with(dist.MustUniform(vals[0], vals[1]))), "another law")
+}

@@ -52,6 +52,47 @@ type mixLazy struct {
 	varErr     float64
 	accOnce    sync.Once
 	cdfAbs     float64
+	// qmemo, when not nil, keeps the answers of Quantile and
+	// UpperQuantile for levels in (0, 1), at most maxQuantMemo of them
+	// (a Site's laws, which keep their lazy state from call to call: the
+	// same question is answered once, with the same bits it would get
+	// afresh).
+	qmu   sync.Mutex
+	qmemo map[quantKey]float64
+}
+
+// quantKey is a memoised quantile's level and side.
+type quantKey struct {
+	p     float64
+	upper bool
+}
+
+// maxQuantMemo caps the answers a mixture's memo keeps; later levels are
+// computed every time.
+const maxQuantMemo = 64
+
+// newMemoLazy returns lazy state that also keeps quantiles.
+func newMemoLazy() *mixLazy { return &mixLazy{qmemo: map[quantKey]float64{}} }
+
+// memo returns the kept answer for k, or computes it by f and keeps it
+// (while fewer than maxQuantMemo are kept); without a memo, f's answer.
+func (lz *mixLazy) memo(k quantKey, f func() float64) float64 {
+	if lz == nil || lz.qmemo == nil || !(k.p > 0 && k.p < 1) {
+		return f()
+	}
+	lz.qmu.Lock()
+	v, ok := lz.qmemo[k]
+	lz.qmu.Unlock()
+	if ok {
+		return v
+	}
+	v = f()
+	lz.qmu.Lock()
+	if len(lz.qmemo) < maxQuantMemo {
+		lz.qmemo[k] = v
+	}
+	lz.qmu.Unlock()
+	return v
 }
 
 func newSharedMixture(name string, w []float64, laws []dist.Law) sharedMixture {
@@ -253,6 +294,10 @@ func (m sharedMixture) cornerSolve(q func(dist.Law) float64, target float64) (fl
 // the corners' quantiles where they bracket it, otherwise between the
 // smallest and the largest of the components'.
 func (m sharedMixture) Quantile(p float64) float64 {
+	return m.lz.memo(quantKey{p, false}, func() float64 { return m.quantile(p) })
+}
+
+func (m sharedMixture) quantile(p float64) float64 {
 	if !(p >= 0 && p <= 1) {
 		return math.NaN()
 	}
@@ -278,6 +323,10 @@ func (m sharedMixture) Quantile(p float64) float64 {
 // UpperQuantile returns inf{t : Survival(t) <= q} (s) from the survival,
 // as Quantile.
 func (m sharedMixture) UpperQuantile(q float64) float64 {
+	return m.lz.memo(quantKey{q, true}, func() float64 { return m.upperQuantile(q) })
+}
+
+func (m sharedMixture) upperQuantile(q float64) float64 {
 	if !(q >= 0 && q <= 1) {
 		return math.NaN()
 	}

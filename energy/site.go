@@ -96,6 +96,18 @@ type Site struct {
 	// earlier group's are): such groups' laws are the same law, their
 	// stated errors computed once.
 	twin []int
+	// lazy holds the moments, stated errors and asked quantiles of the
+	// node laws, the groups' first failures and the fleet's, computed on
+	// first use and kept for every later call (twins share theirs).
+	lazy *siteLazy
+}
+
+// siteLazy holds a Site's laws' lazily computed state: node[g] and
+// first[g] for group g's node law and first failure (the same pointer for
+// twins), fleet for the fleet's first failure.
+type siteLazy struct {
+	node, first []*mixLazy
+	fleet       *mixLazy
 }
 
 type siteEnv struct {
@@ -276,6 +288,14 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 		}
 		level[d] = next
 	}
+	s.lazy = &siteLazy{node: make([]*mixLazy, len(s.names)), first: make([]*mixLazy, len(s.names)), fleet: newMemoLazy()}
+	for g, tw := range s.twin {
+		if tw == g {
+			s.lazy.node[g], s.lazy.first[g] = newMemoLazy(), newMemoLazy()
+		} else {
+			s.lazy.node[g], s.lazy.first[g] = s.lazy.node[tw], s.lazy.first[tw]
+		}
+	}
 	for e := range s.envs {
 		groups := make([]FleetLawGroup, len(spec.Groups))
 		for g := range spec.Groups {
@@ -384,12 +404,32 @@ func (s Site) mixStated(fn string, stated func() float64, kind lawKind, g int, k
 	}
 	if m, ok := l.(sharedMixture); ok {
 		sm := newStatedMixture(m.name, m.w, m.laws, s.siteMethod(), stated)
+		if lz := s.lazyFor(kind, g); lz != nil {
+			sm.lz = lz
+		}
 		sm.corners = s.corners()
 		sm.seed = s.seedFor(kind, g, k)
 		sm.quick = s.quickFor(kind, g)
 		return sm, nil
 	}
 	return l, nil
+}
+
+// lazyFor returns the lazily computed state that kind's law of group g
+// keeps from call to call (nil for a k-th failure: each call its own).
+func (s Site) lazyFor(kind lawKind, g int) *mixLazy {
+	if s.lazy == nil {
+		return nil
+	}
+	switch kind {
+	case kindNode:
+		return s.lazy.node[g]
+	case kindFirst:
+		return s.lazy.first[g]
+	case kindFleet:
+		return s.lazy.fleet
+	}
+	return nil
 }
 
 // corners returns the environments at the corners of the rule's product

@@ -83,6 +83,23 @@ func TestSiteTwinGroups(t *testing.T) {
 		assert.Equal(t, a.Quantile(p), b.Quantile(p), "node law's quantile %g", p)
 	}
 	assert.Equal(t, a.(dist.Estimated).Accuracy(), b.(dist.Estimated).Accuracy())
+	// Twins keep one lazily computed state (the moments): the same as a
+	// mixture of the same components computed afresh.
+	for _, get := range []func(i int) (dist.Law, error){s.NodeLifetime, s.GroupFirstFailure} {
+		a, err := get(0)
+		require.NoError(t, err)
+		b, err := get(2)
+		require.NoError(t, err)
+		c, err := get(3)
+		require.NoError(t, err)
+		ma, mb, mc := a.(sharedMixture), b.(sharedMixture), c.(sharedMixture)
+		assert.Same(t, ma.lz, mb.lz, "twins")
+		assert.NotSame(t, ma.lz, mc.lz, "another count")
+		fresh := ma
+		fresh.lz = &mixLazy{}
+		assert.Equal(t, fresh.Mean(), mb.Mean())
+		assert.Equal(t, fresh.Variance(), mb.Variance())
+	}
 }
 
 // sameNodeModel compares every field of node and nodeSetting but the
@@ -172,4 +189,33 @@ func TestSameNodeModelExactPath(t *testing.T) {
 	vals[0] = math.Nextafter(vals[0], 0)
 	assert.False(t, sameNodeModel(a, with(dist.MustDiscrete(vals, probs))), "one value an ulp lower")
 	assert.False(t, sameNodeModel(a, with(dist.MustUniform(vals[0], vals[1]))), "another law")
+}
+
+// A Site's node laws, first failures and fleet's first failure keep the
+// quantiles asked of them (at most maxQuantMemo levels): a kept answer
+// must be the bits of the same question asked of the same mixture
+// afresh, before and after the memo is full.
+func TestSiteQuantileMemo(t *testing.T) {
+	s, err := NewSite(TwoFactorSiteSpec(t))
+	require.NoError(t, err)
+	l, err := s.GroupFirstFailure(1)
+	require.NoError(t, err)
+	m := l.(sharedMixture)
+	fresh := m
+	fresh.lz = &mixLazy{}
+	var ps []float64
+	for i := range maxQuantMemo + 6 {
+		ps = append(ps, (float64(i)+0.5)/float64(maxQuantMemo+6))
+	}
+	for round := range 2 {
+		for _, p := range ps {
+			assert.Equal(t, fresh.Quantile(p), m.Quantile(p), "round %d: Quantile(%g)", round, p)
+			assert.Equal(t, fresh.UpperQuantile(p), m.UpperQuantile(p), "round %d: UpperQuantile(%g)", round, p)
+		}
+		assert.Len(t, m.lz.qmemo, maxQuantMemo, "the memo's cap")
+	}
+	again, err := s.GroupFirstFailure(1)
+	require.NoError(t, err)
+	assert.Same(t, m.lz, again.(sharedMixture).lz, "a later call keeps the answers")
+	assert.Nil(t, fresh.lz.qmemo, "a mixture of its own keeps none")
 }

@@ -262,29 +262,22 @@ func (m *Model) gatewayBudgets(only int) (float64, error) {
 		}
 	}
 	change := 0.0
-	for gi := range m.Groups {
-		g := &m.Groups[gi]
-		if only >= 0 && g.Group.Gateway != only {
-			continue
-		}
-		for k := range g.PerDR {
-			dm := &g.PerDR[k]
-			for w, p := range map[int]*float64{1: &dm.RX1Sent, 2: &dm.RX2Sent} {
-				v := 1.0
-				if a := tot[streamRef{gi, dm.DR, w}]; a != nil && a.rate > 0 {
-					v = a.sent / a.rate
-				}
-				change = math.Max(change, math.Abs(v-*p))
-				*p = v
+	m.eachDR(only, func(gi int, _ *GroupModel, dm *DRModel) {
+		for w, p := range map[int]*float64{1: &dm.RX1Sent, 2: &dm.RX2Sent} {
+			v := 1.0
+			if a := tot[streamRef{gi, dm.DR, w}]; a != nil && a.rate > 0 {
+				v = a.sent / a.rate
 			}
-			v := 0.0
-			if a := tot[streamRef{gi, dm.DR, 1}]; a != nil && a.rate > 0 {
-				v = a.fell / a.rate
-			}
-			change = math.Max(change, math.Abs(v-dm.RX1Fallback))
-			dm.RX1Fallback = v
+			change = math.Max(change, math.Abs(v-*p))
+			*p = v
 		}
-	}
+		v := 0.0
+		if a := tot[streamRef{gi, dm.DR, 1}]; a != nil && a.rate > 0 {
+			v = a.fell / a.rate
+		}
+		change = math.Max(change, math.Abs(v-dm.RX1Fallback))
+		dm.RX1Fallback = v
+	})
 	return change, nil
 }
 

@@ -107,7 +107,9 @@ const UnheardFloor = 1e-9
 // over the other nodes (a node's own frames do not collide with each other),
 // and λ_h counts retransmissions through the mean number of transmissions per
 // report, found by a fixed-point iteration since retransmissions depend on
-// the success they change (to a change below 1e-13 frames per report).
+// the success they change (to a change below 1e-13 frames per report;
+// extrapolated where its rounds shrink at a steady ratio, see
+// settleHistory).
 //
 // Out-of-reach nodes (Unheard) are planned with every uplink lost, but their
 // frames are not counted in the loads that the nodes in reach meet: they
@@ -253,6 +255,7 @@ func (m *Model) solveCollisions(only int) error {
 		win                      lora.Windows
 	}
 	next := make([][]upd, len(m.Groups))
+	var hist settleHistory
 	for iter := 0; ; iter++ {
 		change := 0.0
 		for gi := range m.Groups {
@@ -338,7 +341,89 @@ func (m *Model) solveCollisions(only int) error {
 		if iter == maxIter {
 			return fmt.Errorf("scenario: the retransmission load did not settle after %d rounds (last change %.3g frames)", maxIter, change)
 		}
+		hist.next(m, only)
 	}
+}
+
+// settleHistory keeps the last rounds of the collision fixed point (each
+// included group's data rates' Frames, RX1Sent, RX2Sent and RX1Fallback)
+// and extrapolates where the rounds shrink at a steady ratio: the
+// iteration converges linearly (in the 5,000-node benchmark site each
+// round's change is 0.28 of the last, 26 rounds to 1e-13), so once two
+// successive ratios r agree within 5 % the remaining steps sum to about
+// r/(1 − r) of the last one (Aitken's Δ² process in the dominant
+// direction: Aitken, Proc. Roy. Soc. Edinburgh 46 (1926) 289–305, from
+// memory). The jump is clamped to the values' ranges and only starts the
+// next rounds: the iteration still stops on its own round's change, so
+// what it returns is a fixed point to the same tolerance, in fewer rounds.
+type settleHistory struct {
+	x    [][]float64 // the last states, oldest first (at most 3)
+	step []float64   // the last steps' largest changes
+	// ratioBefore is the ratio of the two steps before the last.
+	ratioBefore float64
+}
+
+// settleState returns the fixed point's values for the included groups.
+func settleState(m *Model, only int) []float64 {
+	var x []float64
+	m.eachDR(only, func(_ int, _ *GroupModel, d *DRModel) {
+		x = append(x, d.Frames, d.RX1Sent, d.RX2Sent, d.RX1Fallback)
+	})
+	return x
+}
+
+// eachDR calls f on every data rate of every group, in order, or with
+// only >= 0 of the groups of gateway only.
+func (m *Model) eachDR(only int, f func(gi int, g *GroupModel, d *DRModel)) {
+	for gi := range m.Groups {
+		g := &m.Groups[gi]
+		if only >= 0 && g.Group.Gateway != only {
+			continue
+		}
+		for k := range g.PerDR {
+			f(gi, g, &g.PerDR[k])
+		}
+	}
+}
+
+// next records the state after a round and extrapolates where the ratio
+// of the last two steps is steady.
+func (h *settleHistory) next(m *Model, only int) {
+	x := settleState(m, only)
+	if n := len(h.x); n > 0 {
+		d := 0.0
+		for i, v := range x {
+			d = math.Max(d, math.Abs(v-h.x[n-1][i]))
+		}
+		h.step = append(h.step, d)
+	}
+	h.x = append(h.x, x)
+	if len(h.x) > 3 {
+		h.x, h.step = h.x[1:], h.step[1:]
+	}
+	if len(h.step) < 2 {
+		return
+	}
+	r := h.step[1] / h.step[0]
+	prev := h.ratioBefore
+	h.ratioBefore = r
+	if !(r > 0 && r < 0.9) || !(prev > 0) || math.Abs(r-prev) > 0.05*r {
+		return
+	}
+	f := r / (1 - r)
+	last, before := h.x[2], h.x[1]
+	k := 0
+	jump := func(v *float64, lo, hi float64) {
+		*v = math.Min(hi, math.Max(lo, last[k]+f*(last[k]-before[k])))
+		k++
+	}
+	m.eachDR(only, func(_ int, g *GroupModel, d *DRModel) {
+		jump(&d.Frames, 1, float64(max(1, g.Group.MaxTransmissions)))
+		jump(&d.RX1Sent, 0, 1)
+		jump(&d.RX2Sent, 0, 1)
+		jump(&d.RX1Fallback, 0, 1)
+	})
+	*h = settleHistory{}
 }
 
 // answerWindows returns the downlink probabilities per attempt of a group's

@@ -96,6 +96,11 @@ type Site struct {
 	// earlier group's are): such groups' laws are the same law, their
 	// stated errors computed once.
 	twin []int
+	// same[g] is the first group whose conditional tables are group g's
+	// at every node of the rule, whatever its count (g itself when no
+	// earlier group's are): the fleet's laws read such groups' probits
+	// once.
+	same []int
 	// lazy holds the moments, stated errors and asked quantiles of the
 	// node laws, the groups' first failures and the fleet's, computed on
 	// first use and kept for every later call (twins share theirs).
@@ -260,7 +265,7 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 				s.tHi = math.Max(s.tHi, b.tb.t[len(b.tb.t)-1])
 			}
 		}
-		s.twin = s.twins()
+		s.same, s.twin = s.twins()
 		// The rule's estimated error for the node laws and the first
 		// failures; refine the factor whose part is the larger.
 		s.fitFine()
@@ -310,32 +315,39 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 	return s, nil
 }
 
-// twins returns, for each group, the first group with the same count
-// whose conditional tables are the group's own at every environment (one
-// table shared: buildSite builds one table for a node model that two
-// groups have), or the group itself.
-func (s *Site) twins() []int {
-	tw := make([]int, len(s.names))
+// twins returns, for each group, the first group whose conditional
+// tables are the group's own at every environment (one table shared:
+// buildSite builds one table for a node model that two groups have), or
+// the group itself (same), and the first such group of the same count
+// (twin).
+func (s *Site) twins() (same, twin []int) {
+	same, twin = make([]int, len(s.names)), make([]int, len(s.names))
 	for g := range s.names {
-		tw[g] = g
+		same[g], twin[g] = g, g
 		for j := range g {
-			if tw[j] != j || s.counts[j] != s.counts[g] {
+			if same[j] != j {
 				continue
 			}
-			same := true
+			shared := true
 			for e := range s.envs {
 				if s.envs[e].laws[j].lz != s.envs[e].laws[g].lz {
-					same = false
+					shared = false
 					break
 				}
 			}
-			if same {
-				tw[g] = j
+			if shared {
+				same[g] = j
+				break
+			}
+		}
+		for j := range g {
+			if twin[j] == j && same[j] == same[g] && s.counts[j] == s.counts[g] {
+				twin[g] = j
 				break
 			}
 		}
 	}
-	return tw
+	return same, twin
 }
 
 // hermiteNodes returns the Gauss–Hermite nodes (as standard normal values)

@@ -377,7 +377,11 @@ const (
 // groups' probits are zs (P(run out by t) = Φ(z)), with g the group and k
 // the count of kinds that need them; dead marks groups past their calendar
 // limit.
-func (s *Site) condAt(kind lawKind, g int, k int64, zs []float64, probs []float64) float64 {
+//
+// rep, when not nil, names for each group the first whose probit is the
+// group's (rowReps): a repeated group's function values are copied from
+// it (probs holds them), the same bits in the same order of summation.
+func (s *Site) condAt(kind lawKind, g int, k int64, zs []float64, probs []float64, rep []int) float64 {
 	switch kind {
 	case kindNode:
 		return normSurv(-zs[g])
@@ -386,12 +390,21 @@ func (s *Site) condAt(kind lawKind, g int, k int64, zs []float64, probs []float6
 	case kindFleet:
 		l := 0.0
 		for h, z := range zs {
-			l += float64(s.counts[h]) * math.Log(normSurv(z))
+			if rep != nil && rep[h] != h {
+				probs[h] = probs[rep[h]]
+			} else {
+				probs[h] = math.Log(normSurv(z))
+			}
+			l += float64(s.counts[h]) * probs[h]
 		}
 		return -math.Expm1(l)
 	}
 	for h, z := range zs {
-		probs[h] = normSurv(-z)
+		if rep != nil && rep[h] != h {
+			probs[h] = probs[rep[h]]
+		} else {
+			probs[h] = normSurv(-z)
+		}
 	}
 	c, err := orderstat.PoissonBinomial(probs, s.counts)
 	if err != nil {
@@ -418,11 +431,61 @@ func (s *Site) nodeZInto(dst []float64, t float64, want []bool) []float64 {
 		if want != nil && !want[g] {
 			continue
 		}
+		if j := s.sameAs(g); j != g && (want == nil || want[j]) {
+			copy(Z[g*E:(g+1)*E], Z[j*E:(j+1)*E]) // the same tables
+			continue
+		}
 		for e := range s.envs {
 			Z[g*E+e] = s.probitAt(s.envs[e].laws[g], t)
 		}
 	}
 	return Z
+}
+
+// sameAs returns the first group whose tables are g's (Site.same), or g.
+func (s *Site) sameAs(g int) int {
+	if g < len(s.same) {
+		return s.same[g]
+	}
+	return g
+}
+
+// rowReps returns, for each group h in [g0, g1), the first group of that
+// range whose probits in Z are h's bit for bit (the candidate is the
+// first group with h's tables, sameAs), or h itself; nil when no group
+// repeats another. Z may be a caller's own probits (a design's, a
+// policy's), so the rows themselves are compared.
+func (s *Site) rowReps(sc *ruleScratch, Z []float64, g0, g1 int) []int {
+	E := len(s.envs)
+	var rep []int
+	for h := g0; h < g1; h++ {
+		j := s.sameAs(h)
+		if j == h || j < g0 {
+			continue
+		}
+		a, b := Z[h*E:(h+1)*E], Z[j*E:(j+1)*E]
+		same := true
+		for e := range a {
+			if math.Float64bits(a[e]) != math.Float64bits(b[e]) {
+				same = false
+				break
+			}
+		}
+		if !same {
+			continue
+		}
+		if rep == nil {
+			if cap(sc.rep) < g1 {
+				sc.rep = make([]int, g1)
+			}
+			rep = sc.rep[:g1]
+			for i := range rep {
+				rep[i] = i
+			}
+		}
+		rep[h] = rep[j]
+	}
+	return rep
 }
 
 // interp returns Σ_j w_j·y[(off + j)·stride] over row i of rows, or y's
@@ -448,6 +511,7 @@ func interp(rows *interpRows, i int, y []float64, stride int) float64 {
 // for concurrent use.
 type ruleScratch struct {
 	y, zs, probs []float64 // mixZ
+	rep          []int     // rowReps
 	y0, y1, bnd  []float64 // interpBound
 	z            []float64 // nodeZ within probeTimes' root search
 	want         []bool
@@ -517,11 +581,19 @@ func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64,
 		}
 		return false
 	}
+	// Groups whose probits repeat an earlier group's are read from it.
+	var rep []int
+	if !one {
+		rep = s.rowReps(sc, Z, g0, g1)
+	}
 	// Along u: Y[h − g0][a][j] for the u points a and the v nodes j
 	// (environment e = iu·nv + iv).
 	sc.y = grown(sc.y, (g1-g0)*pu*nv)
 	Y := sc.y
 	for h := g0; h < g1; h++ {
+		if rep != nil && rep[h] != h {
+			continue
+		}
 		zh := Z[h*E : (h+1)*E]
 		for a := range pu {
 			if !usedU(a) {
@@ -559,6 +631,10 @@ func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64,
 				continue
 			}
 			for h := g0; h < g1; h++ {
+				if rep != nil && rep[h] != h {
+					zs[h] = zs[rep[h]]
+					continue
+				}
 				y := Y[((h-g0)*pu+a)*nv : ((h-g0)*pu+a+1)*nv]
 				if rv == nil {
 					zs[h] = y[b]
@@ -566,7 +642,7 @@ func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64,
 					zs[h] = interp(rv, b, y, 1)
 				}
 			}
-			c := s.condAt(kind, g, k, zs, probs)
+			c := s.condAt(kind, g, k, zs, probs, rep)
 			for i := range M {
 				if ws[i] != 0 {
 					sums[i] += ws[i] * c
@@ -741,10 +817,28 @@ func (s *Site) interpBoundWith(sc *ruleScratch, Z []float64, kind lawKind, g int
 	Y := [2][]float64{sc.y0, sc.y1}
 	sc.bnd = grown(sc.bnd, pu*pv)
 	bound := sc.bnd // Σ_h L_h·|Δz_h| at each point
+	// Groups whose probits repeat an earlier group's have its Δz: one
+	// interpolation for all of them, their slopes' bounds summed.
+	var rep []int
+	if kind == kindFleet {
+		rep = s.rowReps(sc, Z, g0, g1)
+	}
 	for h := g0; h < g1; h++ {
+		if rep != nil && rep[h] != h {
+			continue
+		}
 		L := &s.slope[h]
 		if kind == kindNode {
 			L = &s.slope1
+		}
+		over := func(z0, z1 float64) float64 {
+			l := L.over(z0, z1)
+			for m := h + 1; rep != nil && m < g1; m++ {
+				if rep[m] == h {
+					l += s.slope[m].over(z0, z1)
+				}
+			}
+			return l
 		}
 		zh := Z[h*E : (h+1)*E]
 		for r := range 2 {
@@ -759,7 +853,7 @@ func (s *Site) interpBoundWith(sc *ruleScratch, Z []float64, kind lawKind, g int
 				z0 := interp(rows[0][1], b, Y[0][a*nv:(a+1)*nv], 1)
 				z1 := interp(rows[1][1], b, Y[1][a*nv:(a+1)*nv], 1)
 				if z0 != z1 {
-					bound[a*pv+b] += L.over(z0, z1) * math.Abs(z1-z0)
+					bound[a*pv+b] += over(z0, z1) * math.Abs(z1-z0)
 				}
 			}
 		}
@@ -1178,6 +1272,10 @@ func (s *Site) tableError(t float64, kind lawKind, g int) float64 {
 		case kindFleet:
 			ds, ss := make([]float64, len(s.names)), make([]float64, len(s.names))
 			for h := range s.names {
+				if j := s.sameAs(h); j != h {
+					ds[h], ss[h] = ds[j], ss[j] // the same table
+					continue
+				}
 				ds[h] = env.laws[h].errAt(t)
 				ss[h] = math.Min(1, env.laws[h].Survival(t)+ds[h])
 			}

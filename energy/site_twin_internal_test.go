@@ -219,3 +219,48 @@ func TestSiteQuantileMemo(t *testing.T) {
 	assert.Same(t, m.lz, again.(sharedMixture).lz, "a later call keeps the answers")
 	assert.Nil(t, fresh.lz.qmemo, "a mixture of its own keeps none")
 }
+
+// The fleet's laws read groups with the same tables once (nodeZ,
+// rowReps in mixZ and interpBound, tableError): the fleet's rule error and
+// stated error must be those of reading every group (a copy of the Site
+// that knows no shared tables) to rounding, its mixture the same bits; a
+// caller's probits that differ between such groups (a design's, a
+// policy's own laws) must not be merged.
+func TestSiteFleetReadsSharedTablesOnce(t *testing.T) {
+	s, err := NewSite(twinSiteSpec(t))
+	require.NoError(t, err)
+	require.Equal(t, []int{0, 1, 0, 0, 4}, s.same)
+	every := s
+	every.same = nil
+	for i, tm := range every.probeTimes(kindFleet, 0, 0) {
+		if i%3 != 0 {
+			continue // every third probe time
+		}
+		Z := s.nodeZ(tm, nil)
+		assert.Equal(t, every.nodeZ(tm, nil), Z, "probits at %g s", tm)
+		modes := [][2]int{{modeNodes, modeNodes}, {modeFine, modeFine}, {modeFine, modeReduced}, {modeReduced, modeFine}, {modeNodes, modeFine}}
+		for _, m := range modes {
+			assert.Equal(t, every.mixZ(Z, kindFleet, 0, 0, m)[0], s.mixZ(Z, kindFleet, 0, 0, m)[0], "mixture at %g s, modes %v", tm, m)
+			assert.Equal(t, every.mixZ(Z, kindKth, 0, 40, m)[0], s.mixZ(Z, kindKth, 0, 40, m)[0], "40th failure at %g s, modes %v", tm, m)
+		}
+		for d := range 2 {
+			want := every.interpBound(Z, kindFleet, 0, d)
+			assert.InDelta(t, want, s.interpBound(Z, kindFleet, 0, d), 1e-14*want, "interpolation bound at %g s, factor %d", tm, d)
+		}
+		assert.Equal(t, every.tableError(tm, kindFleet, 0), s.tableError(tm, kindFleet, 0), "table error at %g s", tm)
+	}
+	_, rule, stated := s.lawError(kindFleet, 0, 0)
+	_, wantRule, wantStated := every.lawError(kindFleet, 0, 0)
+	assert.InDelta(t, wantRule, rule, 1e-14*wantRule)
+	assert.InDelta(t, wantStated, stated, 1e-14*wantStated)
+	// A caller's own probits: group 2's moved, so it is read on its own.
+	tm := s.probeTimes(kindFleet, 0, 0)[3]
+	Z := s.nodeZ(tm, nil)
+	E := len(s.envs)
+	for e := range E {
+		Z[2*E+e] += 0.01
+	}
+	sc := new(ruleScratch)
+	assert.Equal(t, []int{0, 1, 2, 0, 4}, s.rowReps(sc, Z, 0, 5))
+	assert.Equal(t, every.mixZ(Z, kindFleet, 0, 0, [2]int{modeFine, modeFine})[0], s.mixZ(Z, kindFleet, 0, 0, [2]int{modeFine, modeFine})[0])
+}

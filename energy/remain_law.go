@@ -170,25 +170,34 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 // default point set and its importance stages (stageFactor·256 = 1024).
 const stackNodes = 1024
 
-// sortKeys sorts the distinct keys ascending, with tmp (at least as long)
-// as room: a least-significant-digit radix sort, 8 bits a pass, that
-// skips a pass whose digit is the same for every key (the index's high
-// byte, the values' common exponent), for 64 keys or more; fewer with
-// slices.Sort. Either gives the one ascending order of distinct keys.
+// sortKeys sorts keys built as newPostLaw builds them (the value's top
+// 48 bits, the node's index in the low 16, appended in index order)
+// ascending, with tmp (at least as long) as room: a stable
+// least-significant-digit radix sort of the top 48 bits, 8 bits a pass,
+// that skips a pass whose digit is the same for every key (the values'
+// common sign and exponent bits); keys equal there keep their order, the
+// index's. Below 64 keys, slices.Sort. Either gives the keys' ascending
+// order (TestSortKeys).
 func sortKeys(keys, tmp []uint64) {
 	n := len(keys)
 	if n < 64 {
 		slices.Sort(keys)
 		return
 	}
+	or, and := uint64(0), ^uint64(0)
+	for _, k := range keys {
+		or |= k
+		and &= k
+	}
+	diff := or ^ and // the bits that differ between keys
 	src, dst := keys, tmp[:n]
-	for shift := uint(0); shift < 64; shift += 8 {
+	for shift := uint(16); shift < 64; shift += 8 {
+		if (diff>>shift)&0xff == 0 {
+			continue
+		}
 		var count [256]int
 		for _, k := range src {
 			count[(k>>shift)&0xff]++
-		}
-		if count[(src[0]>>shift)&0xff] == n {
-			continue
 		}
 		sum := 0
 		for i, c := range count {

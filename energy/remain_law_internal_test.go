@@ -80,10 +80,11 @@ func TestNewtonQuantile(t *testing.T) {
 
 // TestSortKeys checks the law's radix sort against the standard library's
 // sort (slices.Sort) on distinct keys built as newPostLaw builds them
-// (a value's order-preserving bits, the low 16 replaced by the index):
-// values spread over many decades, clustered within a few units in the
-// last place, negative and positive, at sizes around the radix sort's
-// threshold and up to MaxPosteriorNodes.
+// (a value's order-preserving bits, the low 16 replaced by the index, in
+// index order): values spread over many decades, clustered within a few
+// units in the last place (ties in the top 48 bits, which the radix sort
+// leaves in index order), negative and positive, descending, at sizes
+// around the radix sort's threshold and up to MaxPosteriorNodes.
 func TestSortKeys(t *testing.T) {
 	r := rand.New(rand.NewPCG(15, 7))
 	for _, n := range []int{1, 2, 63, 64, 65, 256, 1024, 4096, MaxPosteriorNodes} {

@@ -33,7 +33,7 @@ func TestSearchFloats(t *testing.T) {
 	}
 }
 
-// TestNewtonQuantile checks Quantile's Newton steps (newtonQuantile)
+// TestNewtonQuantile checks Quantile's Halley steps (newtonQuantile)
 // against the library's bracketing search (internal/root's Illinois
 // regula falsi on the same CDF, the path Quantile took before): on the
 // remaining-life laws of knee devices (3.50 V and 3.45 V, 400 to 1400
@@ -74,7 +74,7 @@ func TestNewtonQuantile(t *testing.T) {
 			}
 		}
 	}
-	t.Logf("Newton steps taken at %d of %d levels", taken, levels)
+	t.Logf("Halley steps taken at %d of %d levels", taken, levels)
 	require.Greater(t, taken, levels*3/4)
 }
 

@@ -74,6 +74,9 @@ type DownlinkBudget struct {
 	FallbackError float64
 	// Iterations is the number of rounds the fixed point took.
 	Iterations int
+	// fb is the fixed point's share sent of each stream's refused answers
+	// in its fallback (GatewayDownlinksFrom's start).
+	fb []float64
 }
 
 // GatewayDownlinks tells what share of the answers booked with one gateway
@@ -156,7 +159,20 @@ type DownlinkBudget struct {
 // Duty-cycle limits are for planning, not certification: check the local
 // rules that apply to gateways and defer to the regulator.
 func GatewayDownlinks(streams []DownlinkStream) (DownlinkBudget, error) {
-	const fn = "GatewayDownlinks"
+	return gatewayDownlinks("GatewayDownlinks", streams, DownlinkBudget{})
+}
+
+// GatewayDownlinksFrom is GatewayDownlinks with its fixed point started
+// from the answer prev gave for as many streams (all sent where prev has
+// another number of streams): a caller that solves a sequence of nearby
+// budgets (the site model's collision rounds) settles each in fewer rounds.
+// The answer is the same fixed point to the same tolerance; its Error
+// carries the solver's remaining error as GatewayDownlinks's does.
+func GatewayDownlinksFrom(streams []DownlinkStream, prev DownlinkBudget) (DownlinkBudget, error) {
+	return gatewayDownlinks("GatewayDownlinksFrom", streams, prev)
+}
+
+func gatewayDownlinks(fn string, streams []DownlinkStream, start DownlinkBudget) (DownlinkBudget, error) {
 	if len(streams) > MaxDownlinkStreams {
 		return DownlinkBudget{}, paramErr(fn, "streams", len(streams), fmt.Sprintf("at most MaxDownlinkStreams = %d", MaxDownlinkStreams))
 	}
@@ -224,6 +240,10 @@ func GatewayDownlinks(streams []DownlinkStream) (DownlinkBudget, error) {
 	for i := range sent {
 		sent[i], fb[i] = 1, 1
 	}
+	if len(start.Sent) == n && len(start.fb) == n {
+		copy(sent, start.Sent)
+		copy(fb, start.fb)
+	}
 	var st gatewayState
 	next, nextFB := make([]float64, n), make([]float64, n)
 	step, prev, solverErr := 1.0, math.Inf(1), 0.0
@@ -257,7 +277,8 @@ func GatewayDownlinks(streams []DownlinkStream) (DownlinkBudget, error) {
 		prev = change
 	}
 	st = gatewayRound(streams, poolOf, len(pools), conflict, sent, fb, next, nextFB)
-	out := DownlinkBudget{Sent: append([]float64(nil), sent...), Booked: st.booked, FallbackSent: make([]float64, n), Iterations: iter}
+	out := DownlinkBudget{Sent: append([]float64(nil), sent...), Booked: st.booked, FallbackSent: make([]float64, n), Iterations: iter,
+		fb: append([]float64(nil), fb...)}
 	// The fallbacks' error (half their burst correction) moves the load
 	// they put on the others: on the target pool's held share and on the
 	// conflicts w, to first order.

@@ -152,6 +152,7 @@ func (m *Model) gatewayBudgets(only int) (float64, error) {
 	s := m.Scenario
 	reg := s.Region
 	tm := reg.Timing()
+	last := m.Gateways // the last round's budgets start this round's
 	m.Gateways = make([]GatewayModel, len(s.Gateways))
 	refs := make([][]streamRef, len(s.Gateways))
 	for gw := range s.Gateways {
@@ -244,7 +245,11 @@ func (m *Model) gatewayBudgets(only int) (float64, error) {
 		if only >= 0 && gw != only {
 			continue
 		}
-		b, err := lora.GatewayDownlinks(m.Gateways[gw].Streams)
+		var prev lora.DownlinkBudget
+		if gw < len(last) {
+			prev = last[gw].Budget
+		}
+		b, err := lora.GatewayDownlinksFrom(m.Gateways[gw].Streams, prev)
 		if err != nil {
 			return 0, fmt.Errorf("gateway %q: %w", s.Gateways[gw].Name, err)
 		}

@@ -53,10 +53,11 @@ func cexpm1(z complex128) complex128 {
 		return complex(math.Expm1(a), b)
 	}
 	if math.Abs(a) < 1 && math.Abs(b) < 1 {
+		// cos b − 1 = −sin²b/(1 + cos b), without cancellation for
+		// |b| < 1 (1 + cos b > 1.5): no second sine
 		sb, cb := math.Sincos(b)
-		sh := math.Sin(b / 2)
 		em := math.Expm1(a)
-		return complex(em*cb-2*sh*sh, (em+1)*sb)
+		return complex(em*cb-sb*sb/(1+cb), (em+1)*sb)
 	}
 	return cmplx.Exp(z) - 1
 }

@@ -44,24 +44,48 @@ func newCountModel(ts []binom) countModel {
 }
 
 // split returns P(C <= m) and P(C > m) for an integer m, each accurate
-// relative to its value.
+// relative to its value (splitErr gives the bounds).
 func (cm countModel) split(m float64) (le, gt float64) {
+	le, gt, _, _ = cm.splitErr(m, false)
+	return le, gt
+}
+
+// betaSplitRel bounds the relative error of each tail of the one-term
+// count, P(Bin(n, p) >= m+1) = P(U <= p) with U ~ Beta(m+1, n−m), by the
+// Beta law's quadrature: what Kth states for the k-th of n of one law
+// (Accuracy: 1e-12 + 40·cond, cond = 1e-15·√n, for the survival; the CDF
+// is the survival of Beta(n−m, m+1) at 1 − p, so the same holds for it).
+func betaSplitRel(n float64) float64 { return 1e-12 + 40e-15*math.Sqrt(n) }
+
+// splitErr returns P(C <= m) and P(C > m) for an integer m and, where
+// withErr is set (the convolution's are always given), bounds on their
+// relative errors, each relative to its own value, from what the path
+// taken computes: 0 outside the count's range; betaSplitRel for one term;
+// the convolution's stated bound (splitConv: the binomial runs' Walk
+// bounds plus one rounding per product and addition); for the transform,
+// splitTransformErr.
+func (cm countModel) splitErr(m float64, withErr bool) (le, gt, relLE, relGT float64) {
 	m -= cm.shift
 	switch {
 	case m < 0:
-		return 0, 1
+		return 0, 1, 0, 0
 	case m >= cm.size:
-		return 1, 0
+		return 1, 0, 0, 0
 	case len(cm.terms) == 1:
 		// P(Bin(n, p) >= m+1) = P(U <= p), U ~ Beta(m+1, n-m).
 		t := cm.terms[0]
 		lower, upper := newBeta(m+1, t.n-m).split(t.p, t.q)
-		return upper, lower
+		r := betaSplitRel(t.n)
+		return upper, lower, r, r
 	}
-	if le, gt, _, ok := cm.splitConv(m); ok {
-		return le, gt
+	if le, gt, rel, ok := cm.splitConv(m); ok {
+		return le, gt, rel, rel
 	}
-	return cm.splitTransform(m)
+	if !withErr {
+		le, gt = cm.splitTransform(m)
+		return le, gt, 0, 0
+	}
+	return cm.splitTransformErr(m)
 }
 
 // splitTransform is split's exact path for m in [0, size) after the shift
@@ -74,6 +98,78 @@ func (cm countModel) splitTransform(m float64) (le, gt float64) {
 	}
 	le = clamp01(w.sum(w.lo, m))
 	return le, 1 - le
+}
+
+// splitTransformErr is splitTransform with bounds on the relative errors
+// of both tails. The tail summed over the window (the upper one for θ >= 0,
+// the lower one otherwise), S = Σ_j P_θ(j)·E_j with E_j = exp(K(θ) − θj),
+// has its absolute error bounded by
+//
+//	Σ_j 1.01·(a·E_j + P(j)·(kErr + u·(|θj| + |K − θj| + 1)))  +  2.02·A·max_j E_j  +  u·n·S
+//
+// over its n terms: countWindow.rel written absolutely (so that values
+// whose tilted probability rounded to zero or below count too), with a
+// the inversion's absolute bound (internal/lattice); A bounds the tilted
+// mass beyond the window's edges, which the sum leaves out and the
+// transform folds onto the window (hence twice), by Bernstein's
+// inequality for a sum of independent Bernoulli variables,
+// P_θ(C − μ_θ >= t) <= exp(−t²/(2(σ_θ² + t/3))) and the same below
+// (Boucheron, Lugosi & Massart, Concentration Inequalities, 2013, Cor.
+// 2.11; from memory), at each edge the count reaches past; the last term
+// is one rounding per addition. The other tail is 1 − S: that absolute
+// error and one rounding, over its value.
+func (cm countModel) splitTransformErr(m float64) (le, gt, relLE, relGT float64) {
+	const u = 0x1p-53
+	w := cm.window(m+0.5, nil)
+	top := math.Min(w.lo+float64(len(w.pmf))-1, cm.size)
+	// The tilted law's mean, for the mass outside the window.
+	ts, _ := cm.tilted(w.theta)
+	mu, v := momentsOf(ts)
+	bern := func(t float64) float64 {
+		if !(t > 0) {
+			return 1
+		}
+		return math.Exp(-t * t / (2 * (v + t/3)))
+	}
+	outside := 0.0 // nothing below 0 or above size
+	if w.lo > 0 {
+		outside += bern(mu - w.lo)
+	}
+	if end := w.lo + float64(len(w.pmf)); end <= cm.size {
+		outside += bern(end - mu)
+	}
+	a, b := m+1, top // the tail summed
+	if w.theta < 0 {
+		a, b = w.lo, m
+	}
+	var s, e, eMax float64
+	n := 0
+	for r := range w.pmf {
+		j := w.lo + float64(r)
+		if j < a || j > b {
+			continue
+		}
+		ej := math.Exp(w.k - w.theta*j)
+		eMax = math.Max(eMax, ej)
+		tj := w.theta * j
+		e += 1.01 * (w.absErr*ej + w.pmf[r]*(w.kErr+u*(math.Abs(tj)+math.Abs(w.k-tj)+1)))
+		s += w.pmf[r]
+		n++
+	}
+	e += 2.02*outside*eMax + float64(n)*u*s // left out, and folded onto the tail
+	s = clamp01(s)
+	c := 1 - s
+	relS, relC := e/s, e/c+u
+	if !(s > 0) {
+		relS = math.Inf(1)
+	}
+	if !(c > 0) {
+		relC = math.Inf(1)
+	}
+	if w.theta >= 0 {
+		return c, s, relC, relS
+	}
+	return s, c, relS, relC
 }
 
 // tilted returns the terms of the exponentially tilted law

@@ -49,7 +49,10 @@
 // and otherwise by the discrete Fourier transform of its characteristic
 // function (Hong 2013, Computational Statistics & Data Analysis 59:41–51),
 // exponentially tilted window by window so that its far tails keep their
-// relative precision.
+// relative precision. Both paths derive a bound for each value they return
+// (the binomial walks' and the convolution's rounding; the inversion's
+// bound, the tilt's rounding and the mass beyond the window); the k-th of
+// groups states the largest of them at its quantiles (Statistic.Accuracy).
 //
 // # Cost
 //

@@ -60,6 +60,9 @@ type core struct {
 
 	once sync.Once
 	mom  moments
+
+	kthOnce        sync.Once
+	kthAbs, kthRel float64 // the count kernel's stated errors (kthError)
 }
 
 // Max returns the law of the largest of n independent copies of l:
@@ -145,10 +148,14 @@ func MinOfGroups(groups []Group) (dist.Law, error) {
 // groups' binomial probabilities over the counts from the nearer end of the
 // count up to k (and, where the tail on the far side is the small one, on
 // until its log-concave remainder is below 1e-16 of it), where that is
-// cheaper than the exact path and its stated error is at most 1e-11; by the
-// discrete Fourier transform of the count's characteristic function (Hong
-// 2013), exponentially tilted so that both tails keep their relative
-// precision, otherwise (see PoissonBinomial). Each evaluation costs one
+// cheaper than the exact path and the bound it derives (the binomial
+// walks' bounds plus one rounding per product and addition) is at most
+// 1e-11; by the discrete Fourier transform of the count's characteristic
+// function (Hong 2013), exponentially tilted so that both tails keep their
+// relative precision, otherwise (see PoissonBinomial), with a bound from
+// the inversion's own, the tilt's rounding and the mass beyond its window.
+// Accuracy states the largest of these bounds at the law's quantiles (see
+// there). Each evaluation costs one
 // parent call per group and at most a transform of size about 20·sd(C) (so
 // min(k, n-k+1) is limited to 10^8; ErrRange beyond).
 // With lifetime laws, KthOfGroups(groups, k) is the time by which k
@@ -286,6 +293,13 @@ func (c *core) eval(x float64, left bool) (cdf, sf float64) {
 		}
 		return c.beta.split(p.f, p.s)
 	}
+	le, gt, _, _ := c.countModel(x, left).splitErr(float64(c.k-1), false)
+	return gt, le
+}
+
+// countModel returns the count of nodes at or below x (below x with left)
+// over the groups: C(x) = Σ_i Bin(n_i, F_i(x)).
+func (c *core) countModel(x float64, left bool) countModel {
 	terms := make([]binom, 0, len(c.groups))
 	for i := range c.groups {
 		g := &c.groups[i]
@@ -295,8 +309,50 @@ func (c *core) eval(x float64, left bool) (cdf, sf float64) {
 		}
 		terms = append(terms, binom{n: g.nf, p: p.f, q: p.s})
 	}
-	le, gt := newCountModel(terms).split(float64(c.k - 1))
-	return gt, le
+	return newCountModel(terms)
+}
+
+// kthProbeLevels are the levels at whose quantiles (of the CDF and of the
+// survival) kthError reads the count kernel's bounds, kthProbeSlack the
+// factor it carries for the points between them.
+var kthProbeLevels = [...]float64{0.5, 1e-3, 1e-10, 1e-30, 1e-100, 1e-300}
+
+const kthProbeSlack = 2
+
+// kthError returns, for the k-th of several groups, the stated errors of
+// the count kernel (countModel.splitErr): the largest absolute error of
+// either tail and the largest relative error of the survival where it is
+// at least floor, read at the law's quantiles of kthProbeLevels (those at
+// least floor) on both sides, times kthProbeSlack. The kernel's bound
+// grows with the tilt, so with the distance from the median: the probes
+// reach the ends of the range it is stated over. Computed once.
+func (c *core) kthError(floor float64) (abs, rel float64) {
+	c.kthOnce.Do(func() {
+		for _, lv := range kthProbeLevels {
+			if lv < floor {
+				continue
+			}
+			for _, x := range []float64{c.quantile(lv, 1-lv, false), c.quantile(1-lv, lv, true)} {
+				if !finite(x) {
+					continue
+				}
+				le, gt, rle, rgt := c.countModel(x, false).splitErr(float64(c.k-1), true)
+				// P(X_(k) <= x) = P(C > k-1) = gt, P(X_(k) > x) = le
+				if gt > 0 {
+					c.kthAbs = math.Max(c.kthAbs, rgt*gt)
+				}
+				if le > 0 {
+					c.kthAbs = math.Max(c.kthAbs, rle*le)
+				}
+				if le >= floor {
+					c.kthRel = math.Max(c.kthRel, rle)
+				}
+			}
+		}
+		c.kthAbs *= kthProbeSlack
+		c.kthRel *= kthProbeSlack
+	})
+	return c.kthAbs, c.kthRel
 }
 
 // findAtoms lists the atoms of the order statistic: at each atom v of a
@@ -783,8 +839,20 @@ func (s Statistic) MomentError() (mean, variance float64) {
 // r·|log P| in the logarithm of each probability, which is at most 700·r
 // where the probability exceeds 1e-300; the k-th of one law adds the
 // quadrature of the Beta law (about 1e-12, growing like √n·1e-15 for large
-// n), and the k-th of groups the Fourier inversion of the count (about
-// 1e-11). A parent's absolute CDF error a is carried as n·a.
+// n). The k-th of groups adds the count's own bounds (countModel.splitErr:
+// the convolution's, or the tilted inversion's from the lattice
+// inversion's bound, the rounding of the tilt's exponents and Bernstein's
+// bound on the mass beyond the window), read at the law's quantiles of
+// levels 0.5, 1e-3, 1e-10, 1e-30, 1e-100 and 1e-300 (those at least the
+// tail floor) on both sides and doubled for the points between (the bound
+// grows with the tilt, so towards the ends the probes reach): the largest
+// absolute error of either tail to CDFAbs, the largest relative error of
+// the survival to SurvivalRel; computed on the first call (some hundred
+// evaluations of the law). Over three uniform groups of 200 nodes it
+// states 3e-13 to 3e-12 absolute, measured 1e-16 against 256-bit
+// arithmetic; over the 10 000 lifetimes of 60 groups (energy's
+// BenchmarkFirstFailure60 fleet), 5e-13 to 4e-11 relative for k = 100,
+// 1000 and 5000. A parent's absolute CDF error a is carried as n·a.
 func (s Statistic) Accuracy() dist.Accuracy {
 	c := s.c
 	if c == nil {
@@ -815,9 +883,10 @@ func (s Statistic) Accuracy() dist.Accuracy {
 		survRel += 1e-12 + 40*cond
 		method = "Beta(k, n-k+1) of the parent's CDF, by Gauss–Legendre quadrature of Loader's binomial density"
 	case c.kind == kindKth:
-		cdfAbs += 1e-12
-		survRel += 1e-11
-		method = "count of nodes below x by tilted discrete Fourier inversion of its characteristic function (Hong 2013)"
+		a, rl := c.kthError(floor)
+		cdfAbs += a
+		survRel += rl
+		method = "count of nodes below x: direct convolution of the groups' binomial probabilities, or tilted discrete Fourier inversion of its characteristic function (Hong 2013), bounds read at the law's quantiles"
 	}
 	return dist.Accuracy{CDFAbs: math.Min(cdfAbs, 1), SurvivalRel: survRel, TailFloor: floor, Method: method}
 }

@@ -154,13 +154,19 @@ func (w PulseWarning) String() string {
 // quantile when unbounded); a state described by its power is converted at
 // the battery's NominalVoltage.
 func (b Battery) PulseCheck(c Cycle) []PulseWarning {
-	if b.spec.PulseCurrent == 0 {
+	return pulseCheck(c.active, b.spec.NominalVoltage, b.spec.PulseCurrent)
+}
+
+// pulseCheck is PulseCheck of the cycle whose active stage is active, on
+// a cell of nominal voltage volt (V) and pulse rating (A; 0 for none).
+func pulseCheck(active Stage, volt, rating float64) []PulseWarning {
+	if rating == 0 {
 		return nil
 	}
 	var out []PulseWarning
-	for _, s := range c.States() {
-		if p := s.peakCurrent(b.spec.NominalVoltage); p > b.spec.PulseCurrent {
-			out = append(out, PulseWarning{State: s.name, Peak: p, Rating: b.spec.PulseCurrent})
+	for _, s := range (Cycle{active: active}).States() {
+		if p := s.peakCurrent(volt); p > rating {
+			out = append(out, PulseWarning{State: s.name, Peak: p, Rating: rating})
 		}
 	}
 	return out

@@ -91,6 +91,13 @@ func TestPulseCheck(t *testing.T) {
 	w = er.PulseCheck(energy.MustCycle(p, dist.MustPointMass(600), 0))
 	require.Len(t, w, 1)
 	assert.InDelta(t, 0.5/3.6, w[0].Peak, 1e-15)
+	// A Lifetime keeps only the stage and the cell's two figures: its
+	// warnings are the battery's check of the cycle.
+	for _, b := range []energy.Battery{er, cr} {
+		for _, cy := range []energy.Cycle{c, ok} {
+			assert.Equal(t, b.PulseCheck(cy), energy.MustLifetime(cy, b).PulseWarnings())
+		}
+	}
 }
 
 // TestHorizonDiscrete: day and year laws of a purely discrete cycle (six

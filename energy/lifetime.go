@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"sync"
+	"sync/atomic"
 
 	"github.com/joulelaw/joulelaw/dist"
 )
@@ -44,19 +45,23 @@ type Lifetime struct {
 // lifeState is what a Lifetime holds, built once by NewLifetime in one
 // allocation and shared by the value's copies: a Lifetime is one pointer,
 // so that a fleet's slices and the dist.Law interface hold it without
-// copying some 300 bytes a group.
+// copying it. Of the cycle and the battery it keeps only what Simulate and
+// PulseWarnings read (not their 250 bytes), and the K-fold evaluator is
+// written in place, so that a fleet's construction allocates and moves
+// less per group.
 type lifeState struct {
-	cycle    Cycle
-	battery  Battery
+	active   Stage    // the cycle's active stage (Simulate, PulseWarnings)
+	period   dist.Law // s, the cycle's period law (Simulate)
+	floor    float64  // W, the cycle's floor power (Simulate)
+	volt     float64  // V, the battery's nominal voltage (PulseWarnings)
+	pulse    float64  // A, the battery's pulse rating, 0 for none (PulseWarnings)
 	capacity float64  // J usable
 	leak     float64  // W self-discharge drain
 	energy   dist.Law // J per cycle, leak included
-	mu, s2   float64  // exact mean (J) and variance (J²) per cycle
 	step     float64  // s per cycle: the fixed period or E[T]
 	fixed    bool     // whether the period is fixed
 	kmin     int64    // M >= kmin surely
 	kmax     int64    // M <= kmax surely (math.MaxInt64 when unbounded)
-	ev       *kfold   // &kf
 	kf       kfold
 }
 
@@ -65,7 +70,7 @@ func (l Lifetime) kfolds() *kfold {
 	if l.lifeState == nil {
 		return nil
 	}
-	return l.ev
+	return &l.kf
 }
 
 // kfold evaluates P(S_k <= C) and P(S_k > C) for integer k through
@@ -81,16 +86,37 @@ type kfold struct {
 	closed          bool            // the values come from a closed form: no cache
 	shared          bool            // the values come from point's shared panels: no cache
 	capacity        float64
+	med             int64 // the median number of cycles + 1
 
-	mu      sync.Mutex
-	cache   map[int64][2]float64
+	// what is computed on first use, allocated then (a fleet's first
+	// failure never needs it: no cache on the shared-panel path, no
+	// moments, no Accuracy)
+	lz atomic.Pointer[kfoldLazy]
+}
+
+// kfoldLazy is the part of a kfold computed on first use: the value cache,
+// the Accuracy and the moments.
+type kfoldLazy struct {
+	mu    sync.Mutex
+	cache map[int64][2]float64
+
 	accOnce sync.Once
 	acc     dist.Accuracy // reported by dist.IIDSums at about the median
-	med     int64         // the median number of cycles + 1
 
 	once        sync.Once
 	mean, vari  float64
 	momentError float64 // estimated absolute error of mean (cycles)
+}
+
+// lazy returns the kfold's lazily built part, allocating it on the first
+// call (one allocation wins whatever the goroutines do: every caller then
+// sees the same part).
+func (f *kfold) lazy() *kfoldLazy {
+	if z := f.lz.Load(); z != nil {
+		return z
+	}
+	f.lz.CompareAndSwap(nil, new(kfoldLazy))
+	return f.lz.Load()
 }
 
 // at returns {P(S_k <= C), P(S_k > C)}; NaN, NaN when the K-fold law cannot
@@ -124,22 +150,23 @@ func (f *kfold) at(k int64) [2]float64 {
 		b, a := f.point.Tails(int(k))
 		return [2]float64{b, a}
 	}
-	f.mu.Lock()
-	v, ok := f.cache[k]
-	f.mu.Unlock()
+	z := f.lazy()
+	z.mu.Lock()
+	v, ok := z.cache[k]
+	z.mu.Unlock()
 	if ok {
 		return v
 	}
 	b, a := f.point.Tails(int(k))
 	v = [2]float64{b, a}
-	f.mu.Lock()
-	if f.cache == nil {
-		f.cache = make(map[int64][2]float64)
-	} else if len(f.cache) > 1<<16 {
-		clear(f.cache)
+	z.mu.Lock()
+	if z.cache == nil {
+		z.cache = make(map[int64][2]float64)
+	} else if len(z.cache) > 1<<16 {
+		clear(z.cache)
 	}
-	f.cache[k] = v
-	f.mu.Unlock()
+	z.cache[k] = v
+	z.mu.Unlock()
 	return v
 }
 
@@ -274,19 +301,22 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	if b.spec.NominalVoltage == 0 {
 		return Lifetime{}, paramErr(fn, "b", "zero Battery", "must be built by NewBattery")
 	}
-	l := Lifetime{&lifeState{cycle: c, battery: b, capacity: b.UsableEnergy(), leak: b.SelfDischargePower()}}
+	l := Lifetime{&lifeState{active: c.active, period: c.period, floor: c.floor,
+		volt: b.spec.NominalVoltage, pulse: b.spec.PulseCurrent,
+		capacity: b.UsableEnergy(), leak: b.SelfDischargePower()}}
 	var err error
 	if l.energy, err = c.energyWithLeak(l.leak); err != nil {
 		return Lifetime{}, err
 	}
 	f := c.floor + l.leak
-	l.mu = f*c.period.Mean() + c.mom.meanX
-	l.s2 = f*f*c.period.Variance() + c.mom.varX
-	if !(l.mu > 0) {
+	// the exact mean (J) and variance (J²) per cycle, kept in the evaluator
+	l.kf.emean = f*c.period.Mean() + c.mom.meanX
+	l.kf.evar = f*f*c.period.Variance() + c.mom.varX
+	if !(l.kf.emean > 0) {
 		return Lifetime{}, paramErr(fn, "c", c.String(), "draws no energy: the lifetime is unbounded")
 	}
-	if l.mu > l.capacity {
-		return Lifetime{}, paramErr(fn, "b", b.String(), fmt.Sprintf("usable energy %g J is below one cycle's mean energy %g J", l.capacity, l.mu))
+	if l.kf.emean > l.capacity {
+		return Lifetime{}, paramErr(fn, "b", b.String(), fmt.Sprintf("usable energy %g J is below one cycle's mean energy %g J", l.capacity, l.kf.emean))
 	}
 	t, ok := pointValue(c.period)
 	l.fixed = ok
@@ -312,13 +342,16 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	if err != nil {
 		return Lifetime{}, causeErr(fn, "b", b.String(), "K-fold sums at the usable energy", err)
 	}
-	l.kf = kfold{sums: sums, point: point, capacity: l.capacity, emean: l.mu, evar: l.s2, elo: lo, ehi: hi}
-	l.ev = &l.kf
+	// The evaluator's fields written in place (a composite literal would be
+	// built aside and moved, some 300 bytes with write barriers).
+	kf := &l.kf
+	kf.sums, kf.point = sums, point
+	kf.capacity, kf.elo, kf.ehi = l.capacity, lo, hi
 	if d, ok := l.energy.(dist.Discrete); ok && d.Len() > 1 {
-		l.ev.discrete = true
+		kf.discrete = true
 	}
-	l.ev.closed = sums.ClosedForm()
-	l.ev.shared = point.Shared()
+	kf.closed = sums.ClosedForm()
+	kf.shared = point.Shared()
 	// One evaluation at the renewal estimate of the median checks that the
 	// K-fold law can be computed; the search for the exact median is left to
 	// the first question that needs it. Where the values come from
@@ -334,16 +367,16 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 		if err := point.Check(int(med + 1)); err != nil {
 			return Lifetime{}, causeErr(fn, "c", c.String(), fmt.Sprintf("K-fold law of %d cycles", med+1), err)
 		}
-		l.ev.med = med + 1
+		l.kf.med = med + 1
 		return l, nil
 	}
-	if v := l.ev.at(med + 1); math.IsNaN(v[0]) {
+	if v := l.kf.at(med + 1); math.IsNaN(v[0]) {
 		_, err := sums.Accuracy(int(min(med+1, dist.MaxSumIIDTerms+1)))
 		return Lifetime{}, causeErr(fn, "c", c.String(), fmt.Sprintf("K-fold law of %d cycles", med+1), err)
 	}
 	// The accuracy of the K-fold law at about the median stands for all k:
 	// the inversion window scales with √k, so its error bound hardly moves.
-	l.ev.med = med + 1
+	l.kf.med = med + 1
 	return l, nil
 }
 
@@ -359,7 +392,8 @@ func MustLifetime(c Cycle, b Battery) Lifetime {
 // cltK returns the renewal central-limit mean and standard deviation of M
 // (cycles): C/μ and sqrt(C·σ²/μ³).
 func (l Lifetime) cltK() (mean, sd float64) {
-	return l.capacity / l.mu, math.Sqrt(l.capacity * l.s2 / (l.mu * l.mu * l.mu))
+	mu, s2 := l.kf.emean, l.kf.evar
+	return l.capacity / mu, math.Sqrt(l.capacity * s2 / (mu * mu * mu))
 }
 
 // kQuantile returns the smallest k in [kmin, kmax] with P(M <= k) >= p
@@ -367,7 +401,7 @@ func (l Lifetime) cltK() (mean, sd float64) {
 // P(M <= k) = P(S_{k+1} > C) and P(M > k) = P(S_{k+1} <= C).
 func (l Lifetime) kQuantile(p float64, upper bool) int64 {
 	pred := func(k int64) bool {
-		v := l.ev.at(k + 1)
+		v := l.kf.at(k + 1)
 		if upper {
 			return v[0] <= p
 		}
@@ -399,7 +433,7 @@ func (l Lifetime) secantK(zt, g, step float64) float64 {
 	lo, hi := float64(l.kmin), float64(l.kmax)
 	clamp := func(x float64) float64 { return math.Round(math.Min(math.Max(x, lo), math.Min(hi, 1<<62))) }
 	z := func(k float64) float64 {
-		v := l.ev.at(int64(k) + 1)
+		v := l.kf.at(int64(k) + 1)
 		if v[1] <= 0.5 {
 			return std.Quantile(v[1])
 		}
@@ -506,7 +540,7 @@ func (l Lifetime) CDF(t float64) float64 {
 	if k >= float64(l.kmax) {
 		return 1
 	}
-	return l.ev.at(int64(k) + 1)[1]
+	return l.kf.at(int64(k) + 1)[1]
 }
 
 // Survival returns P(lifetime > t) = P(S_{k+1} <= C) with k = floor(t/T),
@@ -527,7 +561,7 @@ func (l Lifetime) Survival(t float64) float64 {
 	if k >= float64(l.kmax) {
 		return 0
 	}
-	return l.ev.at(int64(k) + 1)[0]
+	return l.kf.at(int64(k) + 1)[0]
 }
 
 // Tails returns CDF(t) and Survival(t) from one K-fold evaluation, each
@@ -551,7 +585,7 @@ func (l Lifetime) Tails(t float64) (cdf, survival float64) {
 	if k >= float64(l.kmax) {
 		return 1, 0
 	}
-	v := l.ev.at(int64(k) + 1)
+	v := l.kf.at(int64(k) + 1)
 	return v[1], v[0]
 }
 
@@ -568,7 +602,7 @@ func (l Lifetime) LowerBoundPoint(logP float64) float64 {
 		return math.Inf(-1)
 	}
 	k0 := float64(l.kmin - 1)
-	if k, ok := l.ev.boundTerms(-logP, true); ok {
+	if k, ok := l.kf.boundTerms(-logP, true); ok {
 		k0 = math.Max(k0, float64(k-1))
 	}
 	return k0 * l.step
@@ -588,7 +622,7 @@ func (l Lifetime) UpperBoundPoint(logP float64) float64 {
 	if l.kmax != math.MaxInt64 {
 		k1 = float64(l.kmax)
 	}
-	if k, ok := l.ev.boundTerms(-logP, false); ok {
+	if k, ok := l.kf.boundTerms(-logP, false); ok {
 		k1 = math.Min(k1, float64(k))
 	}
 	return k1 * l.step
@@ -690,7 +724,8 @@ func (l Lifetime) moments() (mean, vari, errMean float64) {
 	if f == nil {
 		return math.NaN(), math.NaN(), math.NaN()
 	}
-	f.once.Do(func() {
+	z := f.lazy()
+	z.once.Do(func() {
 		const eps = 1e-17
 		a := l.kQuantile(eps, false) + 1 // about the first k with P(S_k > C) >= eps
 		b := l.kQuantile(eps, true) + 1  // the first k with P(S_k <= C) <= eps
@@ -762,14 +797,14 @@ func (l Lifetime) moments() (mean, vari, errMean float64) {
 			}
 			s0 += t0 + (ga+ge)/2
 			s1 += t1 + (w(a)*ga+w(end)*ge)/2 + float64(h*h-1)/6*ga
-			f.momentError = d0 + 1e-16*float64(evals)*math.Max(1, math.Abs(t0))
+			z.momentError = d0 + 1e-16*float64(evals)*math.Max(1, math.Abs(t0))
 		}
 		d := float64(c - a + 1)
-		f.mean = float64(a-1) + s0
+		z.mean = float64(a-1) + s0
 		dm := s0 - d // E[M] − c
-		f.vari = d*d + s1 - dm*dm
+		z.vari = d*d + s1 - dm*dm
 	})
-	return f.mean, f.vari, f.momentError
+	return z.mean, z.vari, z.momentError
 }
 
 // Mean returns E[lifetime] = T·E[M] (s), computed on first use (see
@@ -825,9 +860,9 @@ func (l Lifetime) Simulate(r *rand.Rand) float64 {
 	s := 0.0
 	var k int64
 	for {
-		t := l.cycle.period.Rand(r)
-		e, _ := l.cycle.active.sample(r, l.cycle.floor, nil)
-		s += (l.cycle.floor+l.leak)*t + e
+		t := l.period.Rand(r)
+		e, _ := l.active.sample(r, l.floor, nil)
+		s += (l.floor+l.leak)*t + e
 		if s > l.capacity {
 			return float64(k) * l.step
 		}
@@ -852,9 +887,10 @@ func (l Lifetime) Accuracy() dist.Accuracy {
 	if f == nil {
 		return dist.Accuracy{Method: "zero Lifetime: not built by NewLifetime"}
 	}
-	f.accOnce.Do(func() {
+	z := f.lazy()
+	z.accOnce.Do(func() {
 		if f.point.Shared() {
-			f.acc = l.pointAccuracy()
+			z.acc = l.pointAccuracy()
 			return
 		}
 		k := f.med
@@ -866,9 +902,9 @@ func (l Lifetime) Accuracy() dist.Accuracy {
 		if err != nil {
 			acc = dist.Accuracy{CDFAbs: math.NaN(), Method: err.Error()}
 		}
-		f.acc = acc
+		z.acc = acc
 	})
-	a := f.acc
+	a := z.acc
 	a.Method = "renewal identity P(M >= k) = P(S_k <= C); " + a.Method
 	return a
 }
@@ -959,7 +995,7 @@ func (l Lifetime) PulseWarnings() []PulseWarning {
 	if l.lifeState == nil {
 		return nil
 	}
-	return l.battery.PulseCheck(l.cycle)
+	return pulseCheck(l.active, l.volt, l.pulse)
 }
 
 // InYears returns the lifetime law in Julian years.
@@ -974,7 +1010,7 @@ func (l Lifetime) String() string {
 		return "Lifetime(zero value: not built by NewLifetime)"
 	}
 	return fmt.Sprintf("Lifetime(median %.4g years, 5–95%% [%.4g, %.4g] years, %.6g J usable, %.4g W mean)",
-		l.Quantile(0.5)/Year, l.Quantile(0.05)/Year, l.UpperQuantile(0.05)/Year, l.capacity, l.mu/l.step)
+		l.Quantile(0.5)/Year, l.Quantile(0.05)/Year, l.UpperQuantile(0.05)/Year, l.capacity, l.kf.emean/l.step)
 }
 
 // RenewalEstimate is the renewal central-limit quick estimate of a lifetime

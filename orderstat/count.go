@@ -100,43 +100,51 @@ func (cm countModel) splitTransform(m float64) (le, gt float64) {
 	return le, 1 - le
 }
 
+// chernoff bounds the mass of the law tilted by theta (log normaliser k =
+// K(θ)) at or above a (above) or at or below a: with K_θ(s) = K(θ+s) −
+// K(θ) its cumulant generating function, P_θ(C >= a) <= exp(K_θ(s) − s·a)
+// for every s > 0 and P_θ(C <= a) <= exp(K_θ(s) − s·a) for every s < 0
+// (Chernoff's bound, common practice), at the s whose tilted mean is near
+// a (tiltFor; the optimum makes it a), rounded up by 1e-3 relative; 1 where
+// no s of the right sign is found.
+func (cm countModel) chernoff(theta, k, a float64, above bool) float64 {
+	t := cm.tiltFor(a)
+	s := t - theta
+	if (above && !(s > 0)) || (!above && !(s < 0)) {
+		return 1
+	}
+	_, kt := cm.tilted(t)
+	return math.Min(1, 1.001*math.Exp(kt-k-s*a))
+}
+
 // splitTransformErr is splitTransform with bounds on the relative errors
 // of both tails. The tail summed over the window (the upper one for θ >= 0,
 // the lower one otherwise), S = Σ_j P_θ(j)·E_j with E_j = exp(K(θ) − θj),
 // has its absolute error bounded by
 //
-//	Σ_j 1.01·(a·E_j + P(j)·(kErr + u·(|θj| + |K − θj| + 1)))  +  2.02·A·max_j E_j  +  u·n·S
+//	Σ_j 1.01·(a·E_j + P(j)·(kErr + u·(|θj| + |K − θj| + 1)))  +  1.01·A·max_j E_j  +  u·n·S
 //
 // over its n terms: countWindow.rel written absolutely (so that values
 // whose tilted probability rounded to zero or below count too), with a
 // the inversion's absolute bound (internal/lattice); A bounds the tilted
-// mass beyond the window's edges, which the sum leaves out and the
-// transform folds onto the window (hence twice), by Bernstein's
-// inequality for a sum of independent Bernoulli variables,
-// P_θ(C − μ_θ >= t) <= exp(−t²/(2(σ_θ² + t/3))) and the same below
-// (Boucheron, Lugosi & Massart, Concentration Inequalities, 2013, Cor.
-// 2.11; from memory), at each edge the count reaches past; the last term
-// is one rounding per addition. The other tail is 1 − S: that absolute
-// error and one rounding, over its value.
+// mass beyond the window's edges by Chernoff's bound with the count's own
+// cumulant generating function (chernoff) at each edge the count reaches
+// past. That mass errs in S once: beyond the edge on the side S runs to, S
+// leaves it out; beyond the other edge, the transform folds it onto the
+// end of the window where S runs (where it folds onto values S holds
+// anyway, the two weigh at most max E_j together). The last term is one
+// rounding per addition. The other tail is 1 − S: that absolute error and
+// one rounding, over its value.
 func (cm countModel) splitTransformErr(m float64) (le, gt, relLE, relGT float64) {
 	const u = 0x1p-53
 	w := cm.window(m+0.5, nil)
 	top := math.Min(w.lo+float64(len(w.pmf))-1, cm.size)
-	// The tilted law's mean, for the mass outside the window.
-	ts, _ := cm.tilted(w.theta)
-	mu, v := momentsOf(ts)
-	bern := func(t float64) float64 {
-		if !(t > 0) {
-			return 1
-		}
-		return math.Exp(-t * t / (2 * (v + t/3)))
-	}
-	outside := 0.0 // nothing below 0 or above size
+	outside := 0.0 // the tilted mass beyond the edges; nothing below 0 or above size
 	if w.lo > 0 {
-		outside += bern(mu - w.lo)
+		outside += cm.chernoff(w.theta, w.k, w.lo-1, false)
 	}
 	if end := w.lo + float64(len(w.pmf)); end <= cm.size {
-		outside += bern(end - mu)
+		outside += cm.chernoff(w.theta, w.k, end, true)
 	}
 	a, b := m+1, top // the tail summed
 	if w.theta < 0 {
@@ -156,7 +164,7 @@ func (cm countModel) splitTransformErr(m float64) (le, gt, relLE, relGT float64)
 		s += w.pmf[r]
 		n++
 	}
-	e += 2.02*outside*eMax + float64(n)*u*s // left out, and folded onto the tail
+	e += 1.01*outside*eMax + float64(n)*u*s
 	s = clamp01(s)
 	c := 1 - s
 	relS, relC := e/s, e/c+u

@@ -331,3 +331,61 @@ func TestKthOfGroupsMonteCarlo(t *testing.T) {
 		t.Logf("k=%d: stated CDF %.2g, survival %.2g relative", k, acc.CDFAbs, acc.SurvivalRel)
 	}
 }
+
+// eightExponentials is 8 groups of 50 nodes, exponential laws of rates 1
+// to 8.
+func eightExponentials() []Group {
+	var gs []Group
+	for i := range 8 {
+		gs = append(gs, Group{Law: dist.MustExponential(float64(i + 1)), Count: 50})
+	}
+	return gs
+}
+
+// The probes cover the range: at 400 points evenly spread between the
+// law's quantiles at the tail floor (or 1e-300) on both sides, the count
+// kernel's own bound (splitErr) on either tail's absolute error, and on
+// the survival's relative error where it is at least the floor, stays
+// within what kthError states from its probes — for the uniform groups of
+// TestKthOfGroupsStatedExact (convolution), the groups of
+// TestKthOfGroupsMonteCarlo (tilted transform) and eight exponential
+// groups.
+func TestKthErrorCoversRange(t *testing.T) {
+	t.Parallel()
+	u1, u2, u4 := dist.MustUniform(0, 1), dist.MustUniform(0, 2), dist.MustUniform(0, 4)
+	nrm, ex := dist.MustNormal(1, 0.5), dist.MustExponential(1)
+	for _, tc := range []struct {
+		gs []Group
+		ks []int64
+	}{
+		{[]Group{{Law: u1, Count: 40}, {Law: u2, Count: 60}, {Law: u4, Count: 100}}, []int64{5, 100, 150, 195}},
+		{[]Group{{Law: nrm, Count: 1000}, {Law: ex, Count: 1000}, {Law: u2, Count: 1000}}, []int64{300, 1500, 2900}},
+		{eightExponentials(), []int64{2, 40, 200, 390}},
+	} {
+		for _, k := range tc.ks {
+			l, err := KthOfGroups(tc.gs, k)
+			require.NoError(t, err)
+			s, _ := AsStatistic(l)
+			floor := l.(dist.Estimated).Accuracy().TailFloor
+			abs, rel := s.c.kthError(floor)
+			lo, hi := l.Quantile(floor), l.UpperQuantile(floor)
+			var worstAbs, worstRel float64
+			for i := range 400 {
+				x := lo + (hi-lo)*float64(i)/399
+				le, gt, rle, rgt := s.c.countModel(x, false).splitErr(float64(k-1), true)
+				if gt > 0 {
+					worstAbs = math.Max(worstAbs, rgt*gt)
+				}
+				if le > 0 {
+					worstAbs = math.Max(worstAbs, rle*le)
+				}
+				if le >= floor {
+					worstRel = math.Max(worstRel, rle)
+				}
+			}
+			assert.LessOrEqual(t, worstAbs, abs, "k=%d absolute", k)
+			assert.LessOrEqual(t, worstRel, rel, "k=%d relative", k)
+			t.Logf("k=%d of %d: stated %.2g absolute, %.2g relative; largest per-value bounds between %.2g, %.2g", k, s.Count(), abs, rel, worstAbs, worstRel)
+		}
+	}
+}

@@ -8,6 +8,7 @@ import (
 	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/mills"
 	"github.com/joulelaw/joulelaw/internal/quad"
 )
 
@@ -171,12 +172,28 @@ func firstGrid(lo, hi float64, kinks []float64) (ts []float64, kink []bool) {
 func halveUntil[K any](ks []K, tol float64, pass func([]K), skip func(a, b *K) bool, split func(i int, a, b *K) (K, float64)) ([]K, float64, int) {
 	worst, evals := 0.0, 0
 	done := make([]bool, len(ks)-1)
+	// A pass writes its knots into the buffer of the pass before last
+	// (spare, once halveUntil made it), sized for the intervals still to
+	// be checked: ks is read while nk is written, never the same memory.
+	var spare []K
+	var spareD []bool
+	owned := false // whether ks is a buffer of halveUntil's own
 	for range 40 {
 		if pass != nil {
 			pass(ks)
 		}
-		nk := append(make([]K, 0, 2*len(ks)), ks[0])
-		nd := make([]bool, 0, 2*len(ks))
+		open := 0
+		for _, d := range done {
+			if !d {
+				open++
+			}
+		}
+		need := len(ks) + open
+		if cap(spare) < need {
+			spare, spareD = make([]K, 0, need), make([]bool, 0, need)
+		}
+		nk := append(spare[:0], ks[0])
+		nd := spareD[:0]
 		refined := false
 		for i := 0; i+1 < len(ks); i++ {
 			a, b := &ks[i], &ks[i+1]
@@ -197,7 +214,11 @@ func halveUntil[K any](ks []K, tol float64, pass func([]K), skip func(a, b *K) b
 			nk = append(nk, m, *b)
 			nd = append(nd, ok, ok)
 		}
-		ks, done = nk, nd
+		spare, spareD = nil, nil
+		if owned {
+			spare, spareD = ks, done
+		}
+		ks, done, owned = nk, nd, true
 		if !refined {
 			break
 		}
@@ -280,6 +301,10 @@ func tabulate(l NodeLifetime) tabulated {
 		}
 		// The mixture's probit from the settings' tables, with its slopes
 		// left and right of t: dF/dt = Σ w·φ(z_j)·z_j'(t), z' = F'/φ(z).
+		// hints[i] is the interval of set i's table last read: the grids
+		// ask for times in ascending order within a pass, so most reads
+		// need no search (the same values: zAtD2Near).
+		hints := make([]int, len(sets))
 		mix := func(t float64) (z, dl, dr float64) {
 			var dead, alive, fl, fr float64
 			for i := range sets {
@@ -292,9 +317,11 @@ func tabulate(l NodeLifetime) tabulated {
 					dead += s.w
 					continue
 				}
-				zj, dlj, drj := s.pt.zAtD2(t)
+				zj, dlj, drj := s.pt.zAtD2Near(t, &hints[i])
 				// One tail from erfc, the other its complement (at least
-				// 1/2, so nothing is lost).
+				// 1/2, so nothing is lost); the density with it, from the
+				// same exponential (mills.UpperDensity: φ(−z) = φ(z)).
+				var pdf float64
 				switch {
 				case zj < -tabCut:
 					alive += s.w
@@ -303,15 +330,17 @@ func tabulate(l NodeLifetime) tabulated {
 					dead += s.w
 					continue
 				case zj <= 0:
-					d := normSurv(-zj)
+					var d float64
+					d, pdf = mills.UpperDensity(-zj)
 					dead += s.w * d
 					alive += s.w * (1 - d)
 				default:
-					a := normSurv(zj)
+					var a float64
+					a, pdf = mills.UpperDensity(zj)
 					dead += s.w * (1 - a)
 					alive += s.w * a
 				}
-				phi := s.w * normPDF(zj)
+				phi := s.w * pdf
 				fl += phi * dlj
 				fr += phi * drj
 			}
@@ -575,8 +604,19 @@ func (pt probitTable) zAtD(t float64, right bool) (z, dz float64) {
 // zAtD2 is zAtD on both sides of t, with one search: they differ only at
 // a point of the table.
 func (pt probitTable) zAtD2(t float64) (z, dl, dr float64) {
-	i := sort.SearchFloat64s(pt.t, t) // t[i-1] < t <= t[i]
+	hint := 0 // no interval: a search
+	return pt.zAtD2Near(t, &hint)
+}
+
+// zAtD2Near is zAtD2, looking first in the interval *hint as zAtNear
+// does: the same values.
+func (pt probitTable) zAtD2Near(t float64, hint *int) (z, dl, dr float64) {
 	n := len(pt.t)
+	i := *hint
+	if !(i > 0 && i < n && pt.t[i-1] < t && t <= pt.t[i]) {
+		i = sort.SearchFloat64s(pt.t, t) // t[i-1] < t <= t[i]
+		*hint = i
+	}
 	switch {
 	case i < n && t == pt.t[i]:
 		z, dl = pt.zAtD(t, false)

@@ -81,6 +81,24 @@ func Upper(x float64) float64 {
 	return t
 }
 
+// UpperDensity returns Upper(x) and the standard normal density
+// φ(x) = e^{−x²/2}/√(2π) (per unit of x), the same bits as Upper and as
+// that expression, with one exponential where Upper takes φ·R (SmallX <=
+// |x| < 9) instead of two: for callers that need both.
+func UpperDensity(x float64) (upper, density float64) {
+	a := math.Abs(x)
+	// (−0.5·a)·a is (−0.5·x)·x: negation is exact.
+	density = math.Exp(-0.5*a*a) / math.Sqrt(2*math.Pi)
+	if !(a >= SmallX && a < upperDirect) {
+		return 0.5 * math.Erfc(x/math.Sqrt2), density
+	}
+	t := density * Ratio(a)
+	if x < 0 {
+		return 1 - t, density
+	}
+	return t, density
+}
+
 // erfcx is Cody's e^{y²}·erfc(y) for y >= 0.46875, his coefficients
 // written out in Horner's form (numerator over denominator, highest power
 // first).

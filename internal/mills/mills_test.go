@@ -123,6 +123,39 @@ func TestAgainstPreciseTable(t *testing.T) {
 	}
 }
 
+// TestUpperDensity: UpperDensity gives Upper's bits and the density
+// e^{−x²/2}/√(2π) (the textbook formula, common practice) bit for bit
+// across both of Upper's branches and their edges, and so, through
+// Upper, the 1600-bit table's tail values within UpperMaxRelErr.
+func TestUpperDensity(t *testing.T) {
+	xs := []float64{0, SmallX, math.Nextafter(SmallX, 0), upperDirect, math.Nextafter(upperDirect, 0), 40, math.Inf(1)}
+	for i := -24000; i <= 24000; i += 7 {
+		xs = append(xs, float64(i)*5e-4)
+	}
+	for _, x := range append(xs, negate(xs)...) {
+		u, d := UpperDensity(x)
+		assert.Equal(t, math.Float64bits(Upper(x)), math.Float64bits(u), "upper at x = %g", x)
+		assert.Equal(t, math.Float64bits(math.Exp(-0.5*x*x)/math.Sqrt(2*math.Pi)), math.Float64bits(d), "density at x = %g", x)
+	}
+	for _, pt := range testref.NormalUpperTail {
+		if pt.Z >= upperDirect {
+			continue
+		}
+		u, _ := UpperDensity(pt.Z)
+		assert.LessOrEqual(t, testref.RelErr(u, pt.Q), UpperMaxRelErr, "UpperDensity(%v)", pt.Z)
+	}
+	u, d := UpperDensity(math.NaN())
+	assert.True(t, math.IsNaN(u) && math.IsNaN(d))
+}
+
+func negate(xs []float64) []float64 {
+	out := make([]float64, len(xs))
+	for i, x := range xs {
+		out[i] = -x
+	}
+	return out
+}
+
 func TestRatioEdges(t *testing.T) {
 	tests := []struct {
 		name string

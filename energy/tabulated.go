@@ -26,28 +26,38 @@ import (
 // therefore tabulated on its own (from the node model, between its 1e-18
 // and 1 − 1e-18 points), and the mixture's table is built from those
 // tables, each point costing a normal tail per setting instead of the
-// node model's floor integral per setting.
+// node model's floor integral per setting. Where every setting's table is
+// built in the clocks (clockGrid), so is the mixture's: its probit is
+// smooth in them as theirs are, and needs a knot per few months instead
+// of one at every month boundary and another between each two (the
+// demo's 96 mixtures: 94 evaluations each instead of 307, 239 points
+// instead of 307; 0.93 of the demo's instructions); its tolerance is a
+// quarter of tabZTol, so that the largest error it measures stays within
+// what the month-by-month grid measured (the demo's stated errors all the
+// same or lower).
 const (
-	tabZTol       = 7e-4  // probit tolerance of a mixture's table against the settings' tables
-	tabSetZTol    = 3e-4  // probit tolerance of a setting's table against the node model
-	tabMaxPoints  = 4096  // cap on a table's points
-	tabInitial    = 9     // points of the first grid
-	tabSetInitial = 5     // knots of a setting's first grid (with gradients)
-	tabSetGuard   = 3     // a setting table's interval's estimated largest error, in tolerances (gradGrid)
-	tabTail       = 1e-14 // a table spans the law from tabTail to 1 − tabTail
-	tabSetTail    = 1e-18 // a setting's table spans its law from tabSetTail to 1 − tabSetTail
-	tabEndSlack   = 0.25  // probit by which a setting table's end may lie beyond its level
-	tabCut        = 9.5   // a setting's probit beyond ±tabCut counts as 0 or 1 in the mixture (Φ̄(9.5) = 1.05e-21)
+	tabZTol       = 7e-4        // probit tolerance of a mixture's table against the settings' tables
+	tabMixTol     = tabZTol / 4 // the same for a mixture's table built in the clocks (clockGrid)
+	tabSetZTol    = 3e-4        // probit tolerance of a setting's table against the node model
+	tabMaxPoints  = 4096        // cap on a table's points
+	tabInitial    = 9           // points of the first grid
+	tabSetInitial = 5           // knots of a setting's first grid (with gradients)
+	tabSetGuard   = 3           // a setting table's interval's estimated largest error, in tolerances (gradGrid)
+	tabTail       = 1e-14       // a table spans the law from tabTail to 1 − tabTail
+	tabSetTail    = 1e-18       // a setting's table spans its law from tabSetTail to 1 − tabSetTail
+	tabEndSlack   = 0.25        // probit by which a setting table's end may lie beyond its level
+	tabCut        = 9.5         // a setting's probit beyond ±tabCut counts as 0 or 1 in the mixture (Φ̄(9.5) = 1.05e-21)
 )
 
 // probitTable is a monotone piecewise cubic in probit space: the probit z
 // at the times t (ascending) with PCHIP slopes per interval.
 type probitTable struct {
-	t, z   []float64 // grid, probit
-	d0, d1 []float64 // per interval i: the PCHIP slopes at t[i] and t[i+1]
-	kinks  int       // month boundaries seeded into the grid
-	worst  float64   // the largest probit error measured (the tolerance at most)
-	evals  int       // the law's evaluations that built the table
+	t, z   []float64  // grid, probit
+	d0, d1 []float64  // per interval i: the PCHIP slopes at t[i] and t[i+1]
+	kinks  int        // month boundaries seeded into the grid
+	gk     []gradKnot // a table built by clockGrid: its knots (nil for others)
+	worst  float64    // the largest probit error measured (the tolerance at most)
+	evals  int        // the law's evaluations that built the table
 }
 
 // tabulated is a NodeLifetime read from a table; it implements dist.Law,
@@ -304,9 +314,16 @@ func tabulate(l NodeLifetime) tabulated {
 		// hints[i] is the interval of set i's table last read: the grids
 		// ask for times in ascending order within a pass, so most reads
 		// need no search (the same values: zAtD2Near).
-		hints := make([]int, len(sets))
-		mix := func(t float64) (z, dl, dr float64) {
+		//
+		// With grad, mixAt also returns the probit's gradient against the
+		// clocks, Σ w·φ(z_j)·Ĝ_j(t)/φ(z), Ĝ_j the settings' tables' own
+		// (gradAt, the gradient with which each reads between its knots):
+		// the mixture of probits smooth in the clocks is smooth in them
+		// too, and is tabulated as they are (clockGrid).
+		hints, ghints := make([]int, len(sets)), make([]int, len(sets))
+		mixAt := func(t float64, grad bool) (z, dl, dr float64, g [3]float64) {
 			var dead, alive, fl, fr float64
+			var gs [3]float64
 			for i := range sets {
 				s := &sets[i]
 				if t < s.cutLo {
@@ -343,12 +360,33 @@ func tabulate(l NodeLifetime) tabulated {
 				phi := s.w * pdf
 				fl += phi * dlj
 				fr += phi * drj
+				if grad {
+					gj := s.pt.gradAt(t, &ghints[i])
+					for q := range gs {
+						gs[q] += phi * gj[q]
+					}
+				}
 			}
 			z = probitOf(alive, dead)
 			if phi := normPDF(z); phi > 0 && !math.IsInf(z, 0) {
 				dl, dr = fl/phi, fr/phi
+				for q := range g {
+					g[q] = gs[q] / phi
+				}
 			}
+			return z, dl, dr, g
+		}
+		mix := func(t float64) (z, dl, dr float64) {
+			z, dl, dr, _ = mixAt(t, false)
 			return z, dl, dr
+		}
+		// Every setting's table built by clockGrid (or none needed): the
+		// mixture's is too.
+		clockable := true
+		for i := range sets {
+			if sets[i].pt.t != nil && sets[i].pt.gk == nil {
+				clockable = false
+			}
 		}
 		probit = func(t float64) float64 {
 			z, _, _ := mix(t)
@@ -372,7 +410,16 @@ func tabulate(l NodeLifetime) tabulated {
 		if !(lo < hi) {
 			lo = math.Max(0, hi*(1-1e-9))
 		}
-		tb.probitTable = hermiteGrid(mix, lo, hi, n.kinks(lo, hi), minWidth, tabZTol)
+		if clockable && (hi-lo)/Month <= maxKinks {
+			at := func(t float64) gradKnot {
+				z, _, dr, g := mixAt(t, true)
+				return gradKnot{t: t, c: n.clocks(t), z: z, g: g, dr: dr}
+			}
+			tb.probitTable = n.clockGrid(at(lo), at(hi), tabMixTol, nil, at, func(k *gradKnot) float64 { return k.dr })
+			tb.evals += 2
+		} else {
+			tb.probitTable = hermiteGrid(mix, lo, hi, n.kinks(lo, hi), minWidth, tabZTol)
+		}
 	}
 	if tb.t[len(tb.t)-1] >= tb.cal {
 		tb.atom = l.survivalAtCalendar()

@@ -2,6 +2,7 @@ package energy
 
 import (
 	"math"
+	"sort"
 
 	"github.com/joulelaw/joulelaw/dist"
 )
@@ -29,10 +30,11 @@ import (
 // gradKnot is the node model at one time: the clocks, the probit and its
 // gradient against the clocks.
 type gradKnot struct {
-	t float64
-	c [3]float64
-	z float64
-	g [3]float64
+	t  float64
+	c  [3]float64
+	z  float64
+	g  [3]float64
+	dr float64 // a mixture's knot (tabulate): its probit's exact slope right of t
 }
 
 // gradKnotAt evaluates setting j of n at t.
@@ -69,6 +71,34 @@ func (n *node) gradInterp(a, b *gradKnot, x float64, right bool) (z, dz float64)
 		dz += (b.g[i]-a.g[i])/h*dev + gi*(r[i]-u[i])
 	}
 	return z, dz
+}
+
+// gradAt returns the gradient against the clocks of a table built by
+// clockGrid at t: linear between its knots (the Ĝ of gradInterp, with
+// which the table reads), the end knot's beyond its ends; hint is the
+// knot interval last read (gk[*hint−1].t < t <= gk[*hint].t), as in
+// zAtNear.
+func (pt *probitTable) gradAt(t float64, hint *int) [3]float64 {
+	ks := pt.gk
+	n := len(ks)
+	i := *hint
+	if !(i > 0 && i < n && ks[i-1].t < t && t <= ks[i].t) {
+		i = sort.Search(n, func(q int) bool { return ks[q].t >= t })
+		*hint = i
+	}
+	switch {
+	case i == 0:
+		return ks[0].g
+	case i >= n:
+		return ks[n-1].g
+	}
+	a, b := &ks[i-1], &ks[i]
+	s := (t - a.t) / (b.t - a.t)
+	var g [3]float64
+	for q := range g {
+		g[q] = a.g[q] + s*(b.g[q]-a.g[q])
+	}
+	return g
 }
 
 // hermiteD is hermite with its derivative at x.
@@ -208,6 +238,16 @@ func settingTable(l NodeLifetime, j int, tol, tail float64) (probitTable, bool) 
 // this guard one of that test's tables erred by 1.0e-3 where 2.2e-4 was
 // measured at the midpoints.
 func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64, known []gradKnot) probitTable {
+	return n.clockGrid(lo, hi, tol, known, func(t float64) gradKnot {
+		return n.gradKnotAt(j, t)
+	}, func(k *gradKnot) float64 { return n.slope(*k, true) })
+}
+
+// clockGrid is gradGrid's construction for any probit that is smooth in
+// the clocks: at returns the knot (the probit and its gradient against
+// the clocks) at a time, slope the probit's exact slope right of a knot's
+// time (the guard's). The table keeps its knots (gk).
+func (n *node) clockGrid(lo, hi gradKnot, tol float64, known []gradKnot, at func(t float64) gradKnot, slope func(k *gradKnot) float64) probitTable {
 	ks := []gradKnot{lo}
 	evals := 0
 	step := (hi.t - lo.t) / float64(tabSetInitial-1)
@@ -224,7 +264,7 @@ func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64, known []gradKnot) p
 			ks = append(ks, known[best])
 			continue
 		}
-		ks = append(ks, n.gradKnotAt(j, x))
+		ks = append(ks, at(x))
 		evals++
 	}
 	ks = append(ks, hi)
@@ -232,13 +272,13 @@ func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64, known []gradKnot) p
 	ks, worst, splits := halveUntil(ks, tol, nil, func(a, b *gradKnot) bool {
 		return b.t-a.t <= 1e-9*b.t || (!finite(a) && a.z == b.z)
 	}, func(_ int, a, b *gradKnot) (gradKnot, float64) {
-		m := n.gradKnotAt(j, a.t+(b.t-a.t)/2)
+		m := at(a.t + (b.t-a.t)/2)
 		if !finite(a) || !finite(b) || !finite(&m) {
 			return m, math.Inf(1)
 		}
 		zi, dzi := n.gradInterp(a, b, m.t, true)
 		e := math.Abs(zi - m.z)
-		if est := e + 0.2*math.Abs(dzi-n.slope(m, true))*(b.t-a.t); est > tabSetGuard*tol {
+		if est := e + 0.2*math.Abs(dzi-slope(&m))*(b.t-a.t); est > tabSetGuard*tol {
 			return m, est // the halves are checked in their turn
 		}
 		return m, e
@@ -246,7 +286,7 @@ func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64, known []gradKnot) p
 	evals += splits
 	// Store: points at the knots and the month boundaries between them.
 	kinks := n.kinks(lo.t, hi.t)
-	pt := probitTable{kinks: len(kinks), worst: worst, evals: evals}
+	pt := probitTable{kinks: len(kinks), worst: worst, evals: evals, gk: ks}
 	np := len(ks) + len(kinks)
 	pt.t, pt.z = append(make([]float64, 0, np), ks[0].t), append(make([]float64, 0, np), ks[0].z)
 	pt.d0, pt.d1 = make([]float64, 0, np), make([]float64, 0, np)

@@ -411,11 +411,13 @@ func tabulate(l NodeLifetime) tabulated {
 			lo = math.Max(0, hi*(1-1e-9))
 		}
 		if clockable && (hi-lo)/Month <= maxKinks {
-			at := func(t float64) gradKnot {
+			at := func(t float64) (gradKnot, float64) {
 				z, _, dr, g := mixAt(t, true)
-				return gradKnot{t: t, c: n.clocks(t), z: z, g: g, dr: dr}
+				return gradKnot{t: t, c: n.clocks(t), z: z, g: g}, dr
 			}
-			tb.probitTable = n.clockGrid(at(lo), at(hi), tabMixTol, nil, at, func(k *gradKnot) float64 { return k.dr })
+			loK, _ := at(lo)
+			hiK, _ := at(hi)
+			tb.probitTable = n.clockGrid(loK, hiK, tabMixTol, nil, at)
 			tb.evals += 2
 		} else {
 			tb.probitTable = hermiteGrid(mix, lo, hi, n.kinks(lo, hi), minWidth, tabZTol)

@@ -30,11 +30,10 @@ import (
 // gradKnot is the node model at one time: the clocks, the probit and its
 // gradient against the clocks.
 type gradKnot struct {
-	t  float64
-	c  [3]float64
-	z  float64
-	g  [3]float64
-	dr float64 // a mixture's knot (tabulate): its probit's exact slope right of t
+	t float64
+	c [3]float64
+	z float64
+	g [3]float64
 }
 
 // gradKnotAt evaluates setting j of n at t.
@@ -238,16 +237,17 @@ func settingTable(l NodeLifetime, j int, tol, tail float64) (probitTable, bool) 
 // this guard one of that test's tables erred by 1.0e-3 where 2.2e-4 was
 // measured at the midpoints.
 func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64, known []gradKnot) probitTable {
-	return n.clockGrid(lo, hi, tol, known, func(t float64) gradKnot {
-		return n.gradKnotAt(j, t)
-	}, func(k *gradKnot) float64 { return n.slope(*k, true) })
+	return n.clockGrid(lo, hi, tol, known, func(t float64) (gradKnot, float64) {
+		k := n.gradKnotAt(j, t)
+		return k, n.slope(k, true)
+	})
 }
 
 // clockGrid is gradGrid's construction for any probit that is smooth in
 // the clocks: at returns the knot (the probit and its gradient against
-// the clocks) at a time, slope the probit's exact slope right of a knot's
-// time (the guard's). The table keeps its knots (gk).
-func (n *node) clockGrid(lo, hi gradKnot, tol float64, known []gradKnot, at func(t float64) gradKnot, slope func(k *gradKnot) float64) probitTable {
+// the clocks) at a time and the probit's exact slope right of it (the
+// guard's). The table keeps its knots (gk).
+func (n *node) clockGrid(lo, hi gradKnot, tol float64, known []gradKnot, at func(t float64) (gradKnot, float64)) probitTable {
 	ks := []gradKnot{lo}
 	evals := 0
 	step := (hi.t - lo.t) / float64(tabSetInitial-1)
@@ -264,7 +264,8 @@ func (n *node) clockGrid(lo, hi gradKnot, tol float64, known []gradKnot, at func
 			ks = append(ks, known[best])
 			continue
 		}
-		ks = append(ks, at(x))
+		k, _ := at(x)
+		ks = append(ks, k)
 		evals++
 	}
 	ks = append(ks, hi)
@@ -272,13 +273,13 @@ func (n *node) clockGrid(lo, hi gradKnot, tol float64, known []gradKnot, at func
 	ks, worst, splits := halveUntil(ks, tol, nil, func(a, b *gradKnot) bool {
 		return b.t-a.t <= 1e-9*b.t || (!finite(a) && a.z == b.z)
 	}, func(_ int, a, b *gradKnot) (gradKnot, float64) {
-		m := at(a.t + (b.t-a.t)/2)
+		m, sm := at(a.t + (b.t-a.t)/2)
 		if !finite(a) || !finite(b) || !finite(&m) {
 			return m, math.Inf(1)
 		}
 		zi, dzi := n.gradInterp(a, b, m.t, true)
 		e := math.Abs(zi - m.z)
-		if est := e + 0.2*math.Abs(dzi-slope(&m))*(b.t-a.t); est > tabSetGuard*tol {
+		if est := e + 0.2*math.Abs(dzi-sm)*(b.t-a.t); est > tabSetGuard*tol {
 			return m, est // the halves are checked in their turn
 		}
 		return m, e

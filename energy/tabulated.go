@@ -76,6 +76,12 @@ type tabulated struct {
 	// for Mills' ratio), and the mass beyond their ends setBeyond.
 	setWorst, setZ, setBeyond float64
 	setPoints, setEvals       int // the settings' tables' points and the node model's evaluations, in all
+	// The settings left out (dropSettings): their mass before the
+	// calendar limit, in all (dropAbs), its bound relative to the law's
+	// CDF from each one's lower end on (dropRel) and relative to the
+	// survival (dropSurv).
+	dropAbs, dropRel, dropSurv float64
+	dropped                    int // how many
 	// The node law's own stated CDF error (NodeLifetime.accuracyAt)
 	// measured at the times profT (ascending): profE.
 	profT, profE []float64
@@ -258,12 +264,32 @@ func tabulate(l NodeLifetime) tabulated {
 			w            float64
 			pt           probitTable
 			cutLo, cutHi float64 // before cutLo the table reads below −tabCut, after cutHi above tabCut
+			// A setting left out (dropSettings): its probit's upper
+			// bounds, zLo before tLo and zCal from there to the calendar
+			// limit.
+			dropped        bool
+			tLo, zLo, zCal float64
 		}
-		var sets []set
+		tables := n.settingTables(l)
+		sets := make([]set, 0, len(n.settings))
 		guessLo, guessHi = math.Inf(1), 0
+		var dropSurvW float64 // the dropped settings' weight times their survival to the calendar limit
 		for j := range n.settings {
-			st, ok := settingTable(l, j, tabSetZTol, tabSetTail)
+			st, ok := tables[j].pt, tables[j].ok
 			w := n.settings[j].w
+			if d := &tables[j]; d.ends != nil {
+				// Left out: read as lasting to the calendar limit (its mass
+				// before there in the error, dropSettings).
+				tb.setEvals += d.ends.evals
+				tb.setBeyond += w * normSurv(-d.ends.lo.z)
+				tb.dropAbs += droppedMass(w, d.ends.hi.z)
+				tb.dropped++
+				tb.dropRel += d.rel
+				dropSurvW += w * normSurv(d.ends.hi.z)
+				sets = append(sets, set{w: w, cutLo: math.Inf(1), cutHi: math.Inf(1),
+					dropped: true, tLo: d.ends.lo.t, zLo: d.ends.lo.z, zCal: d.ends.hi.z})
+				continue
+			}
 			if !ok {
 				// The setting's law is below tabSetTail up to the
 				// calendar limit: it counts as alive throughout.
@@ -300,7 +326,18 @@ func tabulate(l NodeLifetime) tabulated {
 			}
 			sets = append(sets, se)
 		}
+		if tb.dropAbs > 0 {
+			tb.dropSurv = tb.dropAbs / dropSurvW
+		}
 		zOf = func(j int, t float64) float64 {
+			if s := &sets[j]; s.dropped {
+				// Upper bounds (the law is monotone): the profile's
+				// bounds from them are the larger (accuracyAtZ).
+				if t < s.tLo {
+					return s.zLo
+				}
+				return s.zCal
+			}
 			if sets[j].pt.t == nil {
 				return math.Inf(-1) // below tabSetTail up to the calendar limit
 			}
@@ -436,11 +473,14 @@ func tabulate(l NodeLifetime) tabulated {
 	// cubic on the halves, with the midpoint as a knot, is closer still
 	// (TestTabulatedAgainstDirect measures it). The settings' tables add
 	// theirs (see errAt).
-	tb.tabCDF = 0.4*(tb.worst+tb.setWorst) + tb.setBeyond
-	tb.tabRel = 7.7*tb.worst + 1.01*(1+tb.setZ)*tb.setWorst + tb.setBeyond/tabTail
+	tb.tabCDF = 0.4*(tb.worst+tb.setWorst) + tb.setBeyond + tb.dropAbs
+	tb.tabRel = 7.7*tb.worst + 1.01*(1+tb.setZ)*tb.setWorst + tb.setBeyond/tabTail + tb.dropSurv + tb.dropRel
 	how := fmt.Sprintf("tabulated on %d times (probit interpolation, %d month boundaries as knots)", len(tb.t), tb.kinks)
 	if len(n.settings) > 1 {
 		how = fmt.Sprintf("tabulated on %d times (probit interpolation of the mixture of the %d settings' own tables, %d times in all; month boundaries as knots)", len(tb.t), len(n.settings), tb.setPoints)
+		if tb.dropped > 0 {
+			how += fmt.Sprintf("; %d settings that run out before the calendar limit with a chance of at most %.0e (times their weight) counted as lasting, their mass in the error", tb.dropped, tabDropAbs)
+		}
 	}
 	tb.acc = dist.Accuracy{
 		CDFAbs:      src.CDFAbs + tb.tabCDF,
@@ -486,7 +526,9 @@ func (tb *tabulated) profile(l NodeLifetime, zOf func(j int, t float64) float64)
 // found, plus the settings' tables', at most
 // δs·(1 + |zs|)·min(F, 1 − F)·1.01 for their largest probit error δs and
 // largest end probit zs (the mixture's F read from the table, which is
-// within a per cent of the law's), and their mass beyond their ends. Far
+// within a per cent of the law's), and their mass beyond their ends; the
+// settings left out (tabDropAbs), at most their mass dropAbs and at most
+// dropRel of the CDF read (1.02 of it, as above). Far
 // in a tail all shrink with the tail: a first failure among n nodes reads
 // the node law where F is about 1/n, and the bound n·CDFAbs would be far
 // too loose there.
@@ -511,6 +553,9 @@ func (tb tabulated) errAt(t float64) float64 {
 	e := src + normPDF(z)*tb.worst
 	if tb.setWorst > 0 {
 		e += tb.setWorst * math.Min(0.4, 1.02*(1+tb.setZ)*normSurv(math.Abs(z)))
+	}
+	if tb.dropAbs > 0 {
+		e += math.Min(tb.dropAbs, 1.02*tb.dropRel*normSurv(-z))
 	}
 	return e + tb.setBeyond
 }

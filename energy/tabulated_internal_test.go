@@ -71,25 +71,7 @@ func TestTabulatedAgainstDirect(t *testing.T) {
 				require.NoError(t, err)
 				tb := tabulate(l)
 				require.Positive(t, tb.kinks, "the law crosses month boundaries")
-				lo, hi := tb.t[0], tb.t[len(tb.t)-1]
-				var ts []float64
-				for i := 0; i <= 4000; i++ {
-					ts = append(ts, lo+(hi-lo)*float64(i)/4000)
-				}
-				for m := math.Ceil(lo / Month); m*Month < hi; m++ {
-					x := m * Month
-					ts = append(ts, x*(1-1e-9), x, x*(1+1e-9), x-0.01*Month, x+0.01*Month)
-				}
-				worst, rel := 0.0, 0.0
-				for _, x := range ts {
-					worst = math.Max(worst, math.Abs(tb.CDF(x)-l.CDF(x)))
-					if s := l.Survival(x); s >= 1e-12 {
-						rel = math.Max(rel, math.Abs(tb.Survival(x)/s-1))
-					}
-					if c := l.CDF(x); c >= 1e-12 {
-						rel = math.Max(rel, math.Abs(tb.CDF(x)/c-1))
-					}
-				}
+				worst, rel := tableAgainstDirect(tb, l, tableTestTimes(tb.t[0], tb.t[len(tb.t)-1], 4000))
 				assert.LessOrEqual(t, worst, tb.tabCDF, "CDF: the table's stated part")
 				assert.LessOrEqual(t, rel, tb.tabRel, "relative tails down to 1e-12: the table's stated part")
 				assert.Positive(t, tb.tabCDF)
@@ -97,6 +79,37 @@ func TestTabulatedAgainstDirect(t *testing.T) {
 			})
 		}
 	}
+}
+
+// tableTestTimes returns n + 1 even times across [lo, hi] and, at every
+// month boundary in it, the boundary and times on both sides of it, where
+// the calendar model has kinks.
+func tableTestTimes(lo, hi float64, n int) []float64 {
+	var ts []float64
+	for i := 0; i <= n; i++ {
+		ts = append(ts, lo+(hi-lo)*float64(i)/float64(n))
+	}
+	for m := math.Ceil(lo / Month); m*Month < hi; m++ {
+		x := m * Month
+		ts = append(ts, x*(1-1e-9), x, x*(1+1e-9), x-0.01*Month, x+0.01*Month)
+	}
+	return ts
+}
+
+// tableAgainstDirect returns the largest CDF difference between the table
+// and the law evaluated directly at the times ts, and the largest
+// relative difference of either tail down to 1e-12.
+func tableAgainstDirect(tb tabulated, l NodeLifetime, ts []float64) (worst, rel float64) {
+	for _, x := range ts {
+		worst = math.Max(worst, math.Abs(tb.CDF(x)-l.CDF(x)))
+		if s := l.Survival(x); s >= 1e-12 {
+			rel = math.Max(rel, math.Abs(tb.Survival(x)/s-1))
+		}
+		if c := l.CDF(x); c >= 1e-12 {
+			rel = math.Max(rel, math.Abs(tb.CDF(x)/c-1))
+		}
+	}
+	return worst, rel
 }
 
 // A table's moments (Mean, Variance) against an independent integration

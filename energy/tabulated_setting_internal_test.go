@@ -69,14 +69,7 @@ func TestSettingTablesAgainstDirect(t *testing.T) {
 						return
 					}
 					lo, hi := st.t[0], st.t[len(st.t)-1]
-					var ts []float64
-					for i := 0; i <= 2000; i++ {
-						ts = append(ts, lo+(hi-lo)*float64(i)/2000)
-					}
-					for m := math.Ceil(lo / Month); m*Month < hi; m++ {
-						x := m * Month
-						ts = append(ts, x*(1-1e-9), x, x*(1+1e-9), x-0.01*Month, x+0.01*Month)
-					}
+					ts := tableTestTimes(lo, hi, 2000)
 					worst := 0.0
 					wx, wz := 0.0, 0.0
 					for _, x := range ts {
@@ -143,4 +136,45 @@ func TestPartGradientAgainstAdaptive(t *testing.T) {
 			assert.InDelta(t, 1, p.dz[tc.i]/fd, 5e-3, "z=%g ∂z/∂%s: %g against %g", p.z, tc.name, p.dz[tc.i], fd)
 		}
 	}
+}
+
+// A setting that almost never runs out before the calendar limit, beside
+// one that runs out well before it, is left out of the mixture
+// (settingTables, tabDropAbs); the table against direct evaluation of the
+// law (the oracle: NodeLifetime's CDF and Survival computed afresh, every
+// setting in), on 4000 times across the table and both sides of every
+// month boundary: the stated part of the error (tabCDF, tabRel, errAt at
+// each time) must bound what is measured, with the left-out setting's
+// mass (w·P(run out by the calendar limit), computed directly) within
+// dropAbs. A third setting with a chance of 6e-10 (weight 0.2) is kept:
+// its mass is above tabDropRel of the others' CDF at its lower end.
+func TestTabulatedDroppedSettingAgainstDirect(t *testing.T) {
+	spec := tabTestSpec(t)
+	node := spec.Groups[2].Node // the group with a calendar limit
+	h := Hour
+	node.Settings = []NodeSetting{
+		{Weight: 0.5, Cycle: tabTestCycle(24*h, 5*MicroAmp, 4)},
+		{Weight: 0.3, Cycle: tabTestCycle(30*h, 2*MicroAmp, 4)},
+		{Weight: 0.2, Cycle: tabTestCycle(48*h, 3*MicroAmp, 4)},
+	}
+	l, err := NewNodeLifetime(node, Environment{Climate: spec.Climate, Conditions: Conditions{BatchFactor: 1}})
+	require.NoError(t, err)
+	out := l.n.settingTables(l)
+	require.Len(t, out, 3)
+	assert.Nil(t, out[0].ends, "the short-lived setting is tabulated")
+	require.NotNil(t, out[1].ends, "the long-lived setting is left out")
+	assert.Nil(t, out[2].ends, "the setting with more mass is tabulated")
+	tb := tabulate(l)
+	_, dead, _ := l.n.settingAt(1, l.n.calendar)
+	assert.LessOrEqual(t, 0.3*dead, tb.dropAbs, "the left-out mass")
+	assert.LessOrEqual(t, tb.dropAbs, tabDropAbs)
+	ts := tableTestTimes(tb.t[0], tb.t[len(tb.t)-1], 4000)
+	worst, rel := tableAgainstDirect(tb, l, ts)
+	for _, x := range ts {
+		assert.LessOrEqual(t, math.Abs(tb.CDF(x)-l.CDF(x)), tb.errAt(x), "at %g y", x/Year)
+	}
+	assert.LessOrEqual(t, worst, tb.tabCDF, "CDF: the table's stated part")
+	assert.LessOrEqual(t, rel, tb.tabRel, "relative tails down to 1e-12: the table's stated part")
+	t.Logf("left out: mass %.2g (bound %.2g, %.2g of the CDF from its lower end on); CDF error %.2g (stated %.2g), relative tail error %.2g (stated %.2g)",
+		0.3*dead, tb.dropAbs, tb.dropRel, worst, tb.tabCDF, rel, tb.tabRel)
 }

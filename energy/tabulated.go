@@ -76,7 +76,7 @@ type tabulated struct {
 	// for Mills' ratio), and the mass beyond their ends setBeyond.
 	setWorst, setZ, setBeyond float64
 	setPoints, setEvals       int // the settings' tables' points and the node model's evaluations, in all
-	// The settings left out (dropSettings): their mass before the
+	// The settings left out (tabDropAbs): their mass before the
 	// calendar limit, in all (dropAbs), its bound relative to the law's
 	// CDF from each one's lower end on (dropRel) and relative to the
 	// survival (dropSurv).
@@ -264,7 +264,7 @@ func tabulate(l NodeLifetime) tabulated {
 			w            float64
 			pt           probitTable
 			cutLo, cutHi float64 // before cutLo the table reads below −tabCut, after cutHi above tabCut
-			// A setting left out (dropSettings): its probit's upper
+			// A setting left out (tabDropAbs): its probit's upper
 			// bounds, zLo before tLo and zCal from there to the calendar
 			// limit.
 			dropped        bool
@@ -279,7 +279,7 @@ func tabulate(l NodeLifetime) tabulated {
 			w := n.settings[j].w
 			if d := &tables[j]; d.ends != nil {
 				// Left out: read as lasting to the calendar limit (its mass
-				// before there in the error, dropSettings).
+				// before there in the error, tabDropAbs).
 				tb.setEvals += d.ends.evals
 				tb.setBeyond += w * normSurv(-d.ends.lo.z)
 				tb.dropAbs += droppedMass(w, d.ends.hi.z)
@@ -472,7 +472,8 @@ func tabulate(l NodeLifetime) tabulated {
 	// The check is made on the interval before its last halving; the
 	// cubic on the halves, with the midpoint as a knot, is closer still
 	// (TestTabulatedAgainstDirect measures it). The settings' tables add
-	// theirs (see errAt).
+	// theirs (see errAt), and the settings left out their mass, relative
+	// to the CDF and to the survival as well (tabDropAbs).
 	tb.tabCDF = 0.4*(tb.worst+tb.setWorst) + tb.setBeyond + tb.dropAbs
 	tb.tabRel = 7.7*tb.worst + 1.01*(1+tb.setZ)*tb.setWorst + tb.setBeyond/tabTail + tb.dropSurv + tb.dropRel
 	how := fmt.Sprintf("tabulated on %d times (probit interpolation, %d month boundaries as knots)", len(tb.t), tb.kinks)

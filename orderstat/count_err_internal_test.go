@@ -56,6 +56,25 @@ func exactCountMasses(ds []dyadicTerm) []*big.Float {
 	return acc
 }
 
+// exactCounts are the counts of TestSplitErrExact: two to five groups,
+// probabilities from 2^-40 to 1 − 2^-6.
+var exactCounts = [][]dyadicTerm{
+	{{30, 1, 2}, {50, 3, 3}},
+	{{200, 1, 4}, {150, 5, 4}, {100, 1, 10}},
+	{{400, 63, 6}, {100, 1, 1}},
+	{{120, 1, 40}, {80, 1, 3}, {60, 7, 3}, {40, 1, 20}, {30, 1, 6}},
+	{{600, 1, 8}, {3, 1, 1}},
+}
+
+// binomsOf returns the terms as binom values.
+func binomsOf(ds []dyadicTerm) []binom {
+	var ts []binom
+	for _, d := range ds {
+		ts = append(ts, d.binom())
+	}
+	return ts
+}
+
 // exactTails returns P(C <= m) and P(C > m) from the exact masses.
 func exactTails(mass []*big.Float, m int) (le, gt float64) {
 	l, g := newExact(), newExact()
@@ -85,19 +104,9 @@ func relTo(got, want float64) float64 {
 // at least 1e-300: every value within its stated bound.
 func TestSplitErrExact(t *testing.T) {
 	t.Parallel()
-	for _, tc := range [][]dyadicTerm{
-		{{30, 1, 2}, {50, 3, 3}},
-		{{200, 1, 4}, {150, 5, 4}, {100, 1, 10}},
-		{{400, 63, 6}, {100, 1, 1}},
-		{{120, 1, 40}, {80, 1, 3}, {60, 7, 3}, {40, 1, 20}, {30, 1, 6}},
-		{{600, 1, 8}, {3, 1, 1}},
-	} {
-		var ts []binom
-		for _, d := range tc {
-			ts = append(ts, d.binom())
-		}
+	for _, tc := range exactCounts {
 		mass := exactCountMasses(tc)
-		cm := newCountModel(ts)
+		cm := newCountModel(binomsOf(tc))
 		var worst, worstT, stated, statedT float64
 		for m := 0; m < len(mass)-1; m++ {
 			wle, wgt := exactTails(mass, m)

@@ -352,11 +352,13 @@ const kthProbeSlack = 2
 // either tail and the largest relative error of the survival where it is
 // at least floor, read at the law's quantiles of kthProbeLevels (those at
 // least floor) on both sides and at the ends of the untilted stretch
-// (untiltedEnd), times kthProbeSlack. The kernel's bound grows with the
-// tilt, so with the distance from the median (the probes reach the ends of
-// the range it is stated over), and on the untilted stretch towards its
-// ends; TestKthErrorCoversRange checks the envelope against the bounds at
-// 400 points. Computed once.
+// (untiltedEnd), times kthProbeSlack. The kernel's relative bound is
+// largest on the untilted stretch near the median, towards its ends (a
+// tail summed untilted carries the inversion's bound over half the
+// window), and beyond it grows with the tilt, so with the distance from
+// the median (the probes reach the ends of the range it is stated over);
+// TestKthErrorCoversRange checks the envelope against the bounds at 400
+// points. Computed once.
 func (c *core) kthError(floor float64) (abs, rel float64) {
 	c.kthOnce.Do(func() {
 		var xs []float64
@@ -367,11 +369,11 @@ func (c *core) kthError(floor float64) (abs, rel float64) {
 			xs = append(xs, c.quantile(lv, 1-lv, false), c.quantile(1-lv, lv, true))
 		}
 		// The ends of the stretch the transform takes untilted (where
-		// |k − ½ − E[C(x)]| <= 2·sd(C(x)), see tiltFor): there the window's
-		// edges come nearest the count's tails and the smaller tail is
-		// taken as 1 − the larger, so its bound is largest at the ends.
+		// |k − ½ − E[C(x)]| <= untiltedSD·sd(C(x)), see tiltFor): a tail
+		// summed untilted carries the inversion's bound over half the
+		// window, against a value that is smallest at the ends.
 		a, b := c.quantile(1e-10, 1-1e-10, false), c.quantile(1-1e-10, 1e-10, true)
-		for _, z := range []float64{-2, 2} {
+		for _, z := range []float64{-untiltedSD, untiltedSD} {
 			lo, hi := c.untiltedEnd(a, b, z)
 			xs = append(xs, lo, hi)
 		}
@@ -889,19 +891,19 @@ func (s Statistic) MomentError() (mean, variance float64) {
 // bound on the mass beyond the window), read at the law's quantiles of
 // levels 0.5, 1e-3, 1e-10, 1e-30, 1e-100 and 1e-300 (those at least the
 // tail floor) on both sides and at the two ends of the stretch the
-// transform takes untilted (where its bound on the smaller tail, taken
-// there as 1 − the larger, peaks), doubled for the points between: the
+// transform takes untilted (where its bound, a tail summed over half the
+// window, peaks), doubled for the points between: the
 // largest absolute error of either tail to CDFAbs, the largest relative
 // error of the survival to SurvivalRel; computed on the first call (some
 // hundreds of evaluations of the law, one parent call per group each; 70
 // to 240 ms for 60 groups of battery lifetimes). Over three uniform
 // groups of 200 nodes (convolution) it states 3e-13 to 3e-12, measured at
 // most 5e-14 relative against 256-bit arithmetic; over 3000 nodes of three
-// laws (the transform) 3e-12 to 6e-12 absolute and 6e-11 to 2.4e-10
+// laws (the transform) 3e-12 to 8e-12 absolute and 4.5e-12 to 2e-11
 // relative, the per-value bounds at 400 points between at most half of
 // that; for the 10 000 battery lifetimes of energy's
-// BenchmarkFirstFailure60 fleet, 2e-12 to 2.4e-11 absolute and 2e-12 to
-// 8.5e-10 relative for k = 100, 1000 and 5000. A parent's absolute CDF
+// BenchmarkFirstFailure60 fleet, 2e-12 to 2.3e-11 absolute and 2.2e-12 to
+// 5e-11 relative for k = 100, 1000 and 5000. A parent's absolute CDF
 // error a is carried as n·a.
 func (s Statistic) Accuracy() dist.Accuracy {
 	c := s.c

@@ -404,9 +404,10 @@ func (w countWindow) sum(a, b float64) float64 {
 // Statistics & Data Analysis 59:41–51), on a window of M points (a power of
 // two) placed around target and reaching past h = 9σ + 12 from the tilted
 // law's mean μ_θ on both sides (σ its standard deviation): half a width of
-// at least h + |target − μ_θ| + 1 (|target − μ_θ| is at most max(σ, 1)/4
-// tilted, untiltedSD·σ untilted: tiltFor). The tilted mass beyond each
-// edge (which the transform folds back into the window) is then at most
+// at least h + |target − μ_θ| + 1 (|target − μ_θ| is at most untiltedSD·σ
+// untilted, and max(σ, 1)/4 tilted once tiltFor's Newton steps settle).
+// The tilted mass beyond each edge (which the transform folds back into
+// the window) is then at most
 // Bernstein's exp(−h²/(2(σ² + h/3))) (each term moves by at most 1 from
 // its mean; common practice): below e^-18 (1.5e-8) for any count, falling
 // towards e^-40.5 (2.6e-18) as σ grows; splitTransformErr bounds it by

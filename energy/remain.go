@@ -146,6 +146,9 @@ type deviceData struct {
 	// tables: the reading tables (remain_table.go), filled on use and
 	// shared with the models WithSpread derives; nil without a curve.
 	tables *readingCache
+	// cells: where the search for a depth's segment of the curve starts
+	// (depthIndex; zero without a curve).
+	cells [depthCells + 1]uint16
 }
 
 type eventCostData struct {
@@ -206,6 +209,7 @@ func NewDeviceModel(spec NodeSpec, env Environment, costs []EventCost, opt Devic
 		v := *spec.Voltage
 		d.curve = &v
 		d.tables = &readingCache{}
+		d.cells = depthIndex(v.DepthOfDischarge)
 	}
 	ref := 20.0
 	if spec.Voltage != nil {

@@ -121,9 +121,18 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		logw = make([]float64, M)
 	}
 	ws := make([]float64, M)
-	ev.logLik(d.c, d.a, d.f, logw)
+	// Where the readings pin the depth sharply, the prior's nodes are
+	// weighed on their first half first (the Kronecker sequence's first
+	// M/2 points): the ridge stage (below) may be decided without the
+	// other half.
+	sharp := ev.ridgeSharp()
+	h := M
+	if sharp {
+		h = M / 2
+	}
+	ev.logLik(d.c[:h], d.a[:h], d.f[:h], logw[:h])
 	cs, as, fs := d.c, d.a, d.f
-	ess, lme := essLME(logw, ws)
+	ess, lme := essLME(logw[:h], ws[:h])
 	pd.stages = 1
 	// Adaptive importance stages: while the readings leave fewer than a
 	// quarter of the nodes effective, place a point set stageFactor times
@@ -151,25 +160,63 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	zs := d.z
 	Ms := len(d.tz)
 	widen := 1.0
-	if (ess < float64(M)/4 && ev.ridgeSharp()) || maxOf(logw) < ev.readingBest()-ridgeGap {
-		// The ridge stage first (remain_ridge.go): M points on the shell
-		// the readings pin, where the prior's nodes leave few effective
-		// and the readings pin the depth sharply, or none of them comes
-		// near explaining the readings (a mode the prior's nodes do not
-		// reach). Of the two, the one whose estimate
-		// of the marginal likelihood is larger by more than ridgeMargin
-		// wins (the other missed mass), else the more effective one.
-		// the ridge's scores and log weights on the stack for the usual
-		// sizes (scratch: the final weights and factors are its ws, cs,
-		// as, fs)
+	// The ridge stage (remain_ridge.go): M points on the shell the
+	// readings pin, where the prior's nodes leave few effective and the
+	// readings pin the depth sharply, or none of them comes near
+	// explaining the readings (a mode the prior's nodes do not reach). Of
+	// the two, the one whose estimate of the marginal likelihood is
+	// larger by more than ridgeMargin wins (the other missed mass), else
+	// the more effective one. Where the readings pin the depth sharply
+	// and the first half of the prior's nodes leaves fewer than M/16
+	// effective, the ridge stage is tried at once and kept against the
+	// half alone when its estimate is larger by more than ridgeMargin, or
+	// not smaller by more than ridgeMargin/2 and it is more effective than
+	// 4 times the half plus M/16 (the other half could not make the
+	// prior's nodes the more effective); otherwise the other half is
+	// weighed and the choice made on all M, as where the ridge stage was
+	// not tried early (where not sharp, all M are weighed already). The
+	// ridge's scores and log weights are on the stack for the usual sizes
+	// (scratch: the final weights and factors are its ws, cs, as, fs).
+	if sharp || maxOf(logw) < ev.readingBest()-ridgeGap {
 		var rzBuf [stackNodes][3]float64
 		var rlBuf [stackNodes]float64
-		if rz, rl, rw, rc, ra, rf, ok := ev.ridgeStage(M, rzBuf[:], rlBuf[:]); ok {
-			re, rlme := essLME(rl, rw)
-			dl := rlme - lme
-			if dl > ridgeMargin || (dl >= -ridgeMargin && re > ess) {
-				zs, logw, ws, cs, as, fs, ess = rz, rl, rw, rc, ra, rf, re
-				pd.stages++
+		var (
+			rz                 [][3]float64
+			rl, rw, rc, ra, rf []float64
+			re, rlme           float64
+			ridgeOK, tried     bool
+		)
+		tryRidge := func() {
+			tried = true
+			rz, rl, rw, rc, ra, rf, ridgeOK = ev.ridgeStage(M, rzBuf[:], rlBuf[:])
+			if ridgeOK {
+				re, rlme = essLME(rl, rw)
+			}
+		}
+		keepRidge := func() {
+			zs, logw, ws, cs, as, fs, ess = rz, rl, rw, rc, ra, rf, re
+			pd.stages++
+		}
+		early := false
+		if sharp && ess < float64(M)/16 {
+			tryRidge()
+			if dl := rlme - lme; ridgeOK && (dl > ridgeMargin || (dl >= -ridgeMargin/2 && re > 4*ess+float64(M)/16)) {
+				keepRidge()
+				early = true
+			}
+		}
+		if !early {
+			if h < M {
+				ev.logLik(d.c[h:], d.a[h:], d.f[h:], logw[h:])
+				ess, lme = essLME(logw, ws)
+			}
+			if (ess < float64(M)/4 && sharp) || maxOf(logw) < ev.readingBest()-ridgeGap {
+				if !tried {
+					tryRidge()
+				}
+				if dl := rlme - lme; ridgeOK && (dl > ridgeMargin || (dl >= -ridgeMargin && re > ess)) {
+					keepRidge()
+				}
 			}
 		}
 	}
@@ -476,19 +523,6 @@ type readTerm struct {
 	tab                      *readingTable // the model's (shared) or this call's own
 }
 
-// voltage returns the loaded voltage at depth dep in [0, 1] (loadedAt
-// with the curve's points loaded once).
-func (r *readTerm) voltage(ds []float64, dep float64) float64 {
-	i := searchAbove(ds, dep)
-	if i == 0 {
-		return r.vs[0]
-	}
-	if i >= len(ds) {
-		return r.vs[len(ds)-1]
-	}
-	return r.vs[i-1] + (dep-ds[i-1])*r.slope[i-1]
-}
-
 // initEvidence sets e to the tally's evidence at τ0 (s after
 // installation): the caller's own (Posterior's is on its stack).
 func (d *deviceData) initEvidence(e *evidence, t *Tally, tau0 float64) {
@@ -541,12 +575,98 @@ func (d *deviceData) initEvidence(e *evidence, t *Tally, tau0 float64) {
 // errs by at most (9/16)/24·h⁴·|g⁗| <= 0.0234·0.4⁴·0.382 = 2.3e-4 in a log-weight
 // (TestReadingTable checks it against g evaluated directly).
 func (e *evidence) logLik(c, a, f, out []float64) {
-	d := e.d
-	nom := d.n.nominal
-	var ds []float64 // no readings without a curve
-	if d.curve != nil {
-		ds = d.curve.DepthOfDischarge
+	for from := 0; from < len(out); from += logLikChunk {
+		to := min(from+logLikChunk, len(out))
+		e.logLikChunk(c[from:to], a[from:to], f[from:to], out[from:to])
 	}
+}
+
+// logLikChunk is logLik on at most logLikChunk nodes: the alive term and
+// 1/(c·N) node by node first, then each reading's term over the nodes
+// (each node's sum in the same order as node by node, so the same bits),
+// the depth's segment of the curve found from the model's depth cells
+// (deviceData.cells).
+func (e *evidence) logLikChunk(c, a, f, out []float64) {
+	d := e.d
+	e.aliveTerm(c, a, f, out)
+	if e.nr == 0 || d.curve == nil {
+		return
+	}
+	// 1/(c·N) by node (used where the node is still possible)
+	var invBuf [logLikChunk]float64
+	inv := invBuf[:len(out):len(out)]
+	nom := d.n.nominal
+	for k, ck := range c[:len(out)] {
+		inv[k] = 1 / (ck * nom)
+	}
+	a, f = a[:len(out):len(out)], f[:len(out):len(out)]
+	ds := d.curve.DepthOfDischarge
+	np := len(ds)
+	cells := &d.cells
+	// the nodes whose lattice values are not all set yet (or a table
+	// without lattice), and their voltages: weighed after the loop, which
+	// then makes no call
+	var pendK [logLikChunk]uint16
+	var pendV [logLikChunk]float64
+	for i := range e.rsBuf[:e.nr] {
+		r := &e.rsBuf[i]
+		act, fe, q, sdd := r.active, r.fe, r.q, r.sdd
+		vs, sl := r.vs[:np:np], r.slope[:np-1:np-1]
+		tb := r.tab
+		v0, invH, steps := tb.v0, tb.invH, tb.steps
+		lat := tb.g
+		pend := 0
+		for k, s := range out {
+			if s < -math.MaxFloat64 {
+				continue // dead or impossible (−Inf): stays so
+			}
+			dep := (a[k]*act+f[k]*fe+q)*inv[k] + sdd
+			if dep < 0 {
+				dep = 0
+			} else if !(dep <= 1) {
+				dep = 1 // (NaN too: the curve's end, as a scan from the top gives)
+			}
+			// the first curve point deeper than dep, from its cell's first
+			j := int(cells[int(dep*depthCells)])
+			for j < np && ds[j] <= dep {
+				j++
+			}
+			var v float64
+			switch {
+			case j == 0:
+				v = vs[0]
+			case j >= np:
+				v = vs[np-1]
+			default:
+				v = vs[j-1] + (dep-ds[j-1])*sl[j-1]
+			}
+			// readingTable.at, written out for the common case (a lattice
+			// whose four values are set: the same operations, so the same
+			// bits)
+			if steps > 0 {
+				u := (v - v0) * invH
+				j := min(max(int(u), 0), steps-1)
+				g := lat[j : j+4 : j+4]
+				b0, b1, b2, b3 := g[0].Load(), g[1].Load(), g[2].Load(), g[3].Load()
+				if b0 != unsetBits && b1 != unsetBits && b2 != unsetBits && b3 != unsetBits {
+					y := [4]float64{math.Float64frombits(b0), math.Float64frombits(b1), math.Float64frombits(b2), math.Float64frombits(b3)}
+					out[k] = s + cubic4(&y, u-float64(j))
+					continue
+				}
+			}
+			pendK[pend], pendV[pend] = uint16(k), v
+			pend++
+		}
+		for p, k := range pendK[:pend] {
+			out[k] += tb.at(pendV[p])
+		}
+	}
+}
+
+// aliveTerm adds to out[k] the log-likelihood of being alive at τ0 (−Inf
+// for a node with c <= 0 or a <= 0, or dead without per-event noise).
+func (e *evidence) aliveTerm(c, a, f, out []float64) {
+	c, a, f = c[:len(out):len(out)], a[:len(out):len(out)], f[:len(out):len(out)]
 	for k := range out {
 		ck, ak, fk := c[k], a[k], f[k]
 		if !(ck > 0 && ak > 0) {
@@ -565,35 +685,26 @@ func (e *evidence) logLik(c, a, f, out []float64) {
 			out[k] = math.Inf(-1)
 			continue
 		}
-		inv := 1 / (ck * nom)
-		s := out[k]
-		for i := range e.rsBuf[:e.nr] {
-			r := &e.rsBuf[i]
-			dep := (ak*r.active+fk*r.fe+r.q)*inv + r.sdd
-			if dep < 0 {
-				dep = 0
-			} else if dep > 1 {
-				dep = 1
-			}
-			v := r.voltage(ds, dep)
-			// readingTable.at, written out for the common case (a lattice
-			// whose four values are set: the same operations, so the same
-			// bits)
-			if tb := r.tab; tb.steps > 0 {
-				u := (v - tb.v0) * tb.invH
-				j := min(max(int(u), 0), tb.steps-1)
-				g := tb.g[j : j+4 : j+4]
-				b0, b1, b2, b3 := g[0].Load(), g[1].Load(), g[2].Load(), g[3].Load()
-				if b0 != unsetBits && b1 != unsetBits && b2 != unsetBits && b3 != unsetBits {
-					y := [4]float64{math.Float64frombits(b0), math.Float64frombits(b1), math.Float64frombits(b2), math.Float64frombits(b3)}
-					s += cubic4(&y, u-float64(j))
-					continue
-				}
-			}
-			s += r.tab.at(v)
-		}
-		out[k] = s
 	}
+}
+
+// logLikChunk is how many nodes logLik weighs at a time (its scratch on
+// the stack).
+const logLikChunk = 256
+
+// depthCells is the number of even cells of [0, 1] in a model's depth
+// index (deviceData.cells): cells[i] is the first curve point deeper than
+// i/depthCells, where the search for a depth in cell i starts.
+const depthCells = 64
+
+// depthIndex returns the depth cells of a curve's depths ds (ascending,
+// from 0 to 1, at most 256 points): entry i is the first index with
+// ds[index] > i/depthCells (searchAbove's).
+func depthIndex(ds []float64) (cells [depthCells + 1]uint16) {
+	for i := range cells {
+		cells[i] = uint16(searchAbove(ds, float64(i)/depthCells))
+	}
+	return cells
 }
 
 // maxOf returns the largest of x (−Inf for none; NaN entries are

@@ -2,6 +2,8 @@ package energy
 
 import (
 	"math"
+	"math/rand/v2"
+	"slices"
 	"testing"
 
 	"github.com/stretchr/testify/require"
@@ -142,4 +144,66 @@ func TestReadingTablesShared(t *testing.T) {
 	n := 0
 	full.d.tables.tables.Range(func(any, any) bool { n++; return true })
 	require.Zero(t, n, "a full cache keeps no more tables")
+}
+
+// TestLogLikChunked: the likelihood weighed reading by reading over chunks
+// of logLikChunk nodes, the depth's segment found from the model's depth
+// cells, has the same bits as the plain formula node by node (the alive
+// term, then each reading's table at the voltage interpolated on the
+// segment a linear scan finds), on 1500 nodes (six chunks) whose depths
+// at the readings run from the plateau to beyond 1 (clamped), with nodes
+// of no capacity among them, for devices on the plateau, in the knee and
+// at its end.
+func TestLogLikChunked(t *testing.T) {
+	spec, costs := ridgeSpec(t)
+	m, err := NewDeviceModel(spec, Environment{}, costs, DeviceOptions{})
+	require.NoError(t, err)
+	d := m.d
+	require.Equal(t, depthIndex(d.curve.DepthOfDischarge), d.cells)
+	r := rand.New(rand.NewPCG(15, 31))
+	const n = 1500
+	for _, tc := range []struct {
+		days  int
+		volts []float64
+	}{{900, []float64{3.64, 3.64, 3.63, 3.63}}, {1300, []float64{3.56, 3.55, 3.55, 3.54}}, {1500, []float64{3.40, 3.35, 3.32, 3.30}}} {
+		tl := dailyTally(t, m, tc.days, tc.volts)
+		var ev evidence
+		d.initEvidence(&ev, &tl, tl.newest-tl.install)
+		require.Equal(t, len(tc.volts), ev.nr)
+		c, a, f, base := make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
+		for k := range n {
+			c[k], a[k], f[k] = 0.2+1.2*r.Float64(), 0.5+r.Float64(), math.Exp(3*r.NormFloat64())
+			base[k] = r.NormFloat64()
+			if k%97 == 0 {
+				c[k] = 0
+			}
+		}
+		got := slices.Clone(base)
+		ev.logLik(c, a, f, got)
+		ds := d.curve.DepthOfDischarge
+		hi := 0
+		for k := range n {
+			one := []float64{base[k]}
+			ev.aliveTerm(c[k:k+1], a[k:k+1], f[k:k+1], one)
+			want := one[0]
+			if !math.IsInf(want, -1) {
+				for i := range ev.rsBuf[:ev.nr] {
+					rt := &ev.rsBuf[i]
+					dep := (a[k]*rt.active+f[k]*rt.fe+rt.q)*(1/(c[k]*d.n.nominal)) + rt.sdd
+					if dep > 1 {
+						dep, hi = 1, hi+1
+					}
+					j := searchAbove(ds, dep)
+					v := rt.vs[len(ds)-1]
+					if j < len(ds) {
+						v = rt.vs[j-1] + (dep-ds[j-1])*rt.slope[j-1]
+					}
+					want += rt.tab.at(v)
+				}
+			}
+			require.Equal(t, math.Float64bits(want), math.Float64bits(got[k]), "%d days, node %d", tc.days, k)
+		}
+		require.Positive(t, hi)
+		t.Logf("%d days: %d of %d reading terms clamped at depth 1", tc.days, hi, n*ev.nr)
+	}
 }

@@ -151,14 +151,11 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 	for i := n - 1; i >= 0; i-- {
 		p.above[i] = p.above[i+1] + p.w[i]
 	}
-	// Support: the clamp's ends where kernels reach them, else the nodes'.
-	p.sLo, p.sHi = math.Inf(1), math.Inf(-1)
-	for i := range n {
-		l, h := p.m[i], p.m[i]
-		if p.s[i] > 0 {
-			l, h = math.Inf(-1), math.Inf(1)
-		}
-		p.sLo, p.sHi = min(p.sLo, l), max(p.sHi, h)
+	// Support: the clamp's ends where kernels reach them, else the nodes'
+	// (the extreme centres: m is sorted).
+	p.sLo, p.sHi = p.m[0], p.m[n-1]
+	if p.smax > 0 {
+		p.sLo, p.sHi = math.Inf(-1), math.Inf(1)
 	}
 	p.sLo = math.Min(math.Max(p.sLo, lo), hi)
 	p.sHi = math.Max(math.Min(p.sHi, hi), lo)
@@ -371,41 +368,53 @@ func (l PosteriorLaw) Quantile(prob float64) float64 {
 // newtonQuantile returns inf{x : CDF(x) >= prob} by Halley's steps on the
 // CDF with the mixture's density and its slope (cdfDens: Newton's step
 // s = −g/g′ divided by 1 + s·g″/(2g′), cubic convergence; Newton's own
-// where that divisor is below 1/2), where the kernels near node k
-// (the node where the cumulative weight reaches prob) overlap their
-// neighbours, so that the CDF is smooth there. The first point is where
-// the nodes' mid-rank CDF (below[i] + w_i/2 at m_i, linear between the
-// centres) reaches prob; the steps stop when one is at most tol/4 (tol =
-// 1e-10 of the larger of |x| and smax/2, root's resolution), and one more
-// evaluation, tol·3/4 from the last point on the answer's other side,
-// confirms a bracket at most tol wide whose right end is returned (root's
-// contract). ok is false, and Quantile uses root, where the kernels do
-// not overlap, a step leaves the bracket the signs have set or the
-// interior of the support, the density vanishes, six steps do not
+// where that divisor is below 1/2), from node k (the node where the
+// cumulative weight reaches prob). Where the kernels near node k overlap
+// their neighbours, the first point is where the nodes' mid-rank CDF
+// (below[i] + w_i/2 at m_i, linear between the centres) reaches prob;
+// where they are apart (narrower than the centres' spacing: the CDF
+// climbs by w_k within node k's own kernel), it is where that kernel
+// alone takes the CDF from below[k] to prob, m_k + s_k·Φ⁻¹((prob −
+// below[k])/w_k) (dist's normal quantile). The steps stop when one is at
+// most tol/4 (tol = 1e-10 of the larger of |x| and smax/2, root's
+// resolution), and one more evaluation, tol·3/4 from the last point on
+// the answer's other side, confirms a bracket at most tol wide whose
+// right end is returned (root's contract). ok is false, and Quantile uses
+// root, where node k is a point, kernels apart cannot reach the level
+// from node k's alone, a step leaves the bracket the signs have set or
+// the interior of the support, the density vanishes, six steps do not
 // converge or the confirming value has the wrong sign.
 func (p *postLaw) newtonQuantile(k int, prob float64) (float64, bool) {
 	n := len(p.m)
 	if p.s[k] == 0 || n < 2 {
 		return 0, false
 	}
+	lo, hi := math.Max(p.lo, p.sLo), math.Min(p.hi, p.sHi)
+	var x float64
 	// local spacing of the centres around k against the kernel's width
 	kl, kh := max(k-1, 0), min(k+1, n-1)
 	if (p.m[kh]-p.m[kl])/float64(kh-kl) > p.s[k] {
-		return 0, false
-	}
-	lo, hi := math.Max(p.lo, p.sLo), math.Min(p.hi, p.sHi)
-	// the seed: the mid-rank CDF F̃_i = below[i] + w_i/2, linear in x
-	// between the centres around the level
-	mid := func(i int) float64 { return p.below[i] + 0.5*p.w[i] }
-	i := k
-	if prob < mid(k) && k > 0 {
-		i = k - 1
-	}
-	x := p.m[i]
-	if i+1 < n {
-		f0, f1 := mid(i), mid(i+1)
-		t := math.Min(1, math.Max(0, (prob-f0)/(f1-f0)))
-		x = p.m[i] + t*(p.m[i+1]-p.m[i])
+		// kernels apart: the seed is where node k's own kernel takes the
+		// CDF from below[k] to the level
+		r := (prob - p.below[k]) / p.w[k]
+		if !(r > 0 && r < 1) {
+			return 0, false
+		}
+		x = p.m[k] + p.s[k]*dist.MustNormal(0, 1).Quantile(r)
+	} else {
+		// the seed: the mid-rank CDF F̃_i = below[i] + w_i/2, linear in x
+		// between the centres around the level
+		mid := func(i int) float64 { return p.below[i] + 0.5*p.w[i] }
+		i := k
+		if prob < mid(k) && k > 0 {
+			i = k - 1
+		}
+		x = p.m[i]
+		if i+1 < n {
+			f0, f1 := mid(i), mid(i+1)
+			t := math.Min(1, math.Max(0, (prob-f0)/(f1-f0)))
+			x = p.m[i] + t*(p.m[i+1]-p.m[i])
+		}
 	}
 	a, b := lo, hi // g < 0 at a, g >= 0 at b (the ends themselves not evaluated)
 	for range 6 {

@@ -37,12 +37,15 @@ func TestSearchFloats(t *testing.T) {
 // against the library's bracketing search (internal/root's Illinois
 // regula falsi on the same CDF, the path Quantile took before): on the
 // remaining-life laws of knee devices (3.50 V and 3.45 V, 400 to 1400
-// days, where the kernels overlap and the steps are taken) at 199 levels
-// each, the two answers agree within root's resolution (1e-10 of the
-// larger of |x| and smax/2: both are right ends of brackets that narrow,
-// so they differ by at most the sum of the two widths), and the returned
-// x obeys the contract: CDF(x) >= p > CDF(x − tol). The steps must be
-// taken at most levels (else this checks nothing).
+// days: the kernels overlap at most levels, and where they are apart the
+// steps start from the node's own kernel) at 199 levels each, the two
+// answers agree within the two searches' resolutions (the steps' tol,
+// 1e-10 of the larger of |x| and smax/2, and root's 1e-10 of its
+// bracket's scale, which may reach (kernelReach+2)·smax beyond the node:
+// both are right ends of brackets that narrow, so they differ by at most
+// the sum of the two widths), and the returned x obeys the contract:
+// CDF(x) >= p > CDF(x − tol). The steps must be taken at most levels
+// (else this checks nothing).
 func TestNewtonQuantile(t *testing.T) {
 	spec, costs := ridgeSpec(t)
 	m, err := NewDeviceModel(spec, Environment{}, costs, DeviceOptions{})
@@ -67,7 +70,7 @@ func TestNewtonQuantile(t *testing.T) {
 				taken++
 				y := pl.root(k, func(x float64) float64 { return l.CDF(x) - prob })
 				tol := 1e-10 * math.Max(math.Abs(x), 0.5*pl.smax)
-				require.InDelta(t, y, x, 2*tol+1e-10*math.Max(math.Abs(y), pl.smax), "%d days, %.2f V, p=%g", days, v, prob)
+				require.InDelta(t, y, x, tol+1e-10*(math.Abs(y)+(kernelReach+2)*pl.smax), "%d days, %.2f V, p=%g", days, v, prob)
 				require.GreaterOrEqual(t, l.CDF(x), prob, "%d days, %.2f V, p=%g", days, v, prob)
 				require.Less(t, l.CDF(x-tol), prob, "%d days, %.2f V, p=%g", days, v, prob)
 				require.Equal(t, x, l.Quantile(prob))

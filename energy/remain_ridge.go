@@ -181,7 +181,7 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 	nr := &e.rsBuf[e.newest]
 	cv := d.curve
 	np := len(cv.DepthOfDischarge)
-	vs := nr.vs
+	vs, sl := nr.vs, nr.slope
 	for i := 1; i < np; i++ {
 		if !(vs[i] < vs[i-1]) {
 			return nil, nil, nil, nil, nil, nil, false
@@ -228,8 +228,8 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 		if j == np-1 || v > vs[0] {
 			return 0, 0, 0, 0, false
 		}
-		x0, x1 := cv.DepthOfDischarge[j], cv.DepthOfDischarge[j+1]
-		slope := (vs[j+1] - vs[j]) / (x1 - x0) // < 0
+		x0 := cv.DepthOfDischarge[j]
+		slope := sl[j] // (vs[j+1] − vs[j])/(x1 − x0) < 0
 		x := x0 + (v-vs[j])/slope
 		net := x - nr.sdd // the depth the spending pays for
 		var dzdx float64

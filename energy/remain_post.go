@@ -122,13 +122,13 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	}
 	ws := make([]float64, M)
 	// Where the readings pin the depth sharply, the prior's nodes are
-	// weighed on their first half first (the Kronecker sequence's first
-	// M/2 points): the ridge stage (below) may be decided without the
-	// other half.
+	// weighed on their first quarter first (the Kronecker sequence's first
+	// M/4 points, for M >= 64): the ridge stage (below) may be decided
+	// without the rest.
 	sharp := ev.ridgeSharp()
 	h := M
-	if sharp {
-		h = M / 2
+	if sharp && M >= 64 {
+		h = M / 4
 	}
 	ev.logLik(d.c[:h], d.a[:h], d.f[:h], logw[:h])
 	cs, as, fs := d.c, d.a, d.f
@@ -167,14 +167,15 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	// the two, the one whose estimate of the marginal likelihood is
 	// larger by more than ridgeMargin wins (the other missed mass), else
 	// the more effective one. Where the readings pin the depth sharply
-	// and the first half of the prior's nodes leaves fewer than M/16
-	// effective, the ridge stage is tried at once and kept against the
-	// half alone when its estimate is larger by more than ridgeMargin, or
-	// not smaller by more than ridgeMargin/2 and it is more effective than
-	// 4 times the half plus M/16 (the other half could not make the
-	// prior's nodes the more effective); otherwise the other half is
-	// weighed and the choice made on all M, as where the ridge stage was
-	// not tried early (where not sharp, all M are weighed already). The
+	// and the first quarter of the prior's nodes leaves fewer than an
+	// eighth of its points effective, the ridge stage is tried at once
+	// and kept against the quarter alone when its estimate is larger by
+	// more than ridgeMargin, or not smaller by more than ridgeMargin/2 and
+	// it is more effective than 8 times the quarter plus M/16 (the rest
+	// could not make the prior's nodes the more effective); otherwise the
+	// rest are weighed and the choice made on all M, as where the ridge
+	// stage was not tried early (where not sharp, all M are weighed
+	// already). The
 	// ridge's scores and log weights are on the stack for the usual sizes
 	// (scratch: the final weights and factors are its ws, cs, as, fs).
 	if sharp || maxOf(logw) < ev.readingBest()-ridgeGap {
@@ -198,9 +199,9 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			pd.stages++
 		}
 		early := false
-		if sharp && ess < float64(M)/16 {
+		if h < M && ess < float64(h)/8 {
 			tryRidge()
-			if dl := rlme - lme; ridgeOK && (dl > ridgeMargin || (dl >= -ridgeMargin/2 && re > 4*ess+float64(M)/16)) {
+			if dl := rlme - lme; ridgeOK && (dl > ridgeMargin || (dl >= -ridgeMargin/2 && re > 2*float64(M/h)*ess+float64(M)/16)) {
 				keepRidge()
 				early = true
 			}

@@ -51,9 +51,9 @@ const kernelReach = 10
 // stated error is 1. Checked against the same model on 2^16 nodes over
 // 60 devices (ages 300 to 1700 days, readings from the plateau to the end
 // of the knee): the stated error exceeded the measured one by at least
-// the oracle's own stated error in every case that had an oracle (three
-// of the most improbable had none: 2^16 nodes do not resolve them either,
-// and those laws state 1; TestPosteriorStatedError). PosteriorLaw
+// the oracle's own stated error in every case (all 60 have an oracle
+// since the ridge stage reaches readings beyond the cell's end; five laws,
+// on fewer than 64 effective nodes, state 1; TestPosteriorStatedError). PosteriorLaw
 // implements dist.Law, dist.Atomic and dist.Estimated; it is an immutable
 // value, safe for concurrent use. A zero PosteriorLaw is not valid: its
 // methods return NaN.

@@ -222,6 +222,23 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 		return nil, nil, nil, nil, nil, nil, false
 	}
 	nom := n.nominal
+	// Reciprocals taken once, so that a point's node costs one division:
+	// the curve's segments' slopes, and the solved factor's constants.
+	var invSl [voltageMaxPoints]float64
+	for j := range np - 1 {
+		invSl[j] = 1 / sl[j]
+	}
+	var kSolve float64 // dz_s/dV = kSolve·c/(net or f)/(−slope) (see node)
+	switch solve {
+	case 0:
+		kSolve = 1 / sp.Capacity
+	case 1:
+		kSolve = nom / (nr.active * sp.Active)
+	default:
+		kSolve = nom / (nr.fe * sp.Floor)
+	}
+	invAct, invFe := 1/nr.active, 1/nr.fe
+	invSc, invSa, invSf := 1/sp.Capacity, 1/sp.Active, 1/sp.Floor
 	// node maps the newest reading's voltage v, the other two scores
 	// (the entries of zz other than the solved one) and their factors (c,
 	// a, f: the entry of the solved one is ignored) to the node: the
@@ -236,31 +253,31 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 			return 0, 0, 0, 0, false
 		}
 		x0 := cv.DepthOfDischarge[j]
-		slope := sl[j] // (vs[j+1] − vs[j])/(x1 − x0) < 0
-		x := x0 + (v-vs[j])/slope
+		is := invSl[j] // 1/slope, slope = (vs[j+1] − vs[j])/(x1 − x0) < 0
+		x := x0 + (v-vs[j])*is
 		net := x - nr.sdd // the depth the spending pays for
-		var dzdx float64
+		var jac float64   // |dz_s/dV| = |dz_s/dx|/|slope|
 		switch solve {
 		case 0:
 			if !(net > 0) {
 				return 0, 0, 0, 0, false
 			}
 			c = (a*nr.active + f*nr.fe + nr.q) / (nom * net)
-			zz[0] = (c - 1) / sp.Capacity
-			dzdx = c / (net * sp.Capacity)
+			zz[0] = (c - 1) * invSc
+			jac = -kSolve * c * is / net // c/(net·σc)/|slope|
 		case 1:
-			a = (c*nom*net - f*nr.fe - nr.q) / nr.active
-			zz[1] = (a - 1) / sp.Active
-			dzdx = c * nom / (nr.active * sp.Active)
+			a = (c*nom*net - f*nr.fe - nr.q) * invAct
+			zz[1] = (a - 1) * invSa
+			jac = -kSolve * c * is // c·N/(A·σa)/|slope|
 		default:
-			f = (c*nom*net - a*nr.active - nr.q) / nr.fe
+			f = (c*nom*net - a*nr.active - nr.q) * invFe
 			if !(f > 0) {
 				return 0, 0, 0, 0, false
 			}
-			zz[2] = math.Log(f) / sp.Floor
-			dzdx = c * nom / (nr.fe * f * sp.Floor)
+			zz[2] = math.Log(f) * invSf
+			jac = -kSolve * c * is / f // c·N/(Φ·f·σf)/|slope|
 		}
-		return c, a, f, dzdx / -slope, true
+		return c, a, f, jac, true
 	}
 	// The proposal's location and scale: the mean and standard deviation
 	// of the voltage's conditional density at the median other scores,
@@ -349,6 +366,7 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 	// = 4), Γ(5/2)/(Γ(2)·√(4π)) = 3/8 over the scale, and the profile's,
 	// 1/tot; each times its share.
 	tConst := ridgeDefensive * 3 / (8 * scale)
+	invScale, invStep := 1/scale, 1/step
 	gConst := (1 - ridgeDefensive) / tot
 	if len(zBuf) >= m && len(lBuf) >= m {
 		buf := make([]float64, 4*m)
@@ -365,10 +383,10 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 		if u < ridgeDefensive {
 			v = mu + scale*studentT4Quantile(u/ridgeDefensive)
 			if v >= gv[0] && v < gv[ridgeGrid-1] {
-				i := min(int((v-gv[0])/step), ridgeGrid-2)
+				i := min(int((v-gv[0])*invStep), ridgeGrid-2)
 				h0, h1 := gh[i]-hmax, gh[i+1]-hmax
 				if !math.IsInf(h0, -1) && !math.IsInf(h1, -1) {
-					qg = math.Exp(h0 + (h1-h0)*(v-gv[i])/step)
+					qg = math.Exp(h0 + (h1-h0)*(v-gv[i])*invStep)
 				}
 			}
 		} else {
@@ -392,7 +410,7 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 		// the mixture's density at v: the t component's, (1 + t²/4)^(−5/2)
 		// times its constant, plus the profile's (0 where it underflows:
 		// the t component's is then far larger)
-		tv := (v - mu) / scale
+		tv := (v - mu) * invScale
 		x := 1 + tv*tv/4
 		q := tConst/(x*x*math.Sqrt(x)) + gConst*qg
 		c, a, f, jac, ok := node(v, &zz, d.c[k], d.a[k], d.f[k])

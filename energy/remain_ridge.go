@@ -340,10 +340,13 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 			return nil, nil, nil, nil, nil, nil, false
 		}
 	}
-	// The profile's moments locate the defensive t component.
+	// The profile's values eh = exp(h − hmax) at the points; their
+	// moments locate the defensive t component.
+	var mass, eh [ridgeGrid]float64 // mass[i]: cells below i; mass[ridgeGrid-1] the total
 	m0, m1, m2 := 0.0, 0.0, 0.0
 	for i, h := range gh {
 		w := math.Exp(h - hmax)
+		eh[i] = w
 		m0 += w
 		m1 += w * gv[i]
 		m2 += w * gv[i] * gv[i]
@@ -352,14 +355,9 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 	scale := ridgeWiden * math.Sqrt(math.Max(m2/m0-mu*mu, 0)+step*step)
 	// The profile's own law: exp(h) log-linear between the grid points
 	// (cell i from gv[i] to gv[i+1]; a cell with an end where h = −Inf has
-	// no mass), its values eh = exp(h − hmax) at the points and its
-	// cumulative masses.
-	var mass, eh [ridgeGrid]float64 // mass[i]: cells below i; mass[ridgeGrid-1] the total
-	for i, h := range gh {
-		eh[i] = math.Exp(h - hmax)
-	}
+	// no mass) and its cumulative masses.
 	for i := 0; i < ridgeGrid-1; i++ {
-		mass[i+1] = mass[i] + cellMass(gh[i]-hmax, gh[i+1]-hmax, step)
+		mass[i+1] = mass[i] + cellMassExp(gh[i]-hmax, gh[i+1]-hmax, eh[i], eh[i+1], step)
 	}
 	tot := mass[ridgeGrid-1]
 	// The components' constants: the Student-t density's (ν = proposalNu
@@ -429,14 +427,19 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 // cellMass returns ∫₀ʰ exp(h0 + (h1 − h0)·t/h) dt for a cell of width h,
 // h0, h1 <= 0 (0 when an end is −Inf).
 func cellMass(h0, h1, h float64) float64 {
+	return cellMassExp(h0, h1, math.Exp(h0), math.Exp(h1), h)
+}
+
+// cellMassExp is cellMass with e0 = exp(h0) and e1 = exp(h1) given.
+func cellMassExp(h0, h1, e0, e1, h float64) float64 {
 	if math.IsInf(h0, -1) || math.IsInf(h1, -1) {
 		return 0
 	}
 	b := h1 - h0
 	if math.Abs(b) < 1e-9 {
-		return h * math.Exp(h0) * (1 + b/2)
+		return h * e0 * (1 + b/2)
 	}
-	return h * (math.Exp(h1) - math.Exp(h0)) / b
+	return h * (e1 - e0) / b
 }
 
 // cellPoint returns t in [0, h] with ∫₀ᵗ exp(h0 + (h1 − h0)·s/h) ds = r

@@ -169,18 +169,39 @@ const stackNodes = 1024
 
 // sortKeys sorts keys built as newPostLaw builds them (the value's top
 // 48 bits, the node's index in the low 16, appended in index order)
-// ascending, with tmp (at least as long) as room: a stable
-// least-significant-digit radix sort of the top 48 bits, 8 bits a pass,
-// that skips a pass whose digit is the same for every key (the values'
-// common sign and exponent bits); keys equal there keep their order, the
-// index's. Below 64 keys, slices.Sort. Either gives the keys' ascending
-// order (TestSortKeys).
+// ascending, with tmp (at least as long) as room. Below 64 keys,
+// slices.Sort. Otherwise a stable least-significant-digit radix sort, 8
+// bits a pass, that skips a pass whose digit is the same for every key
+// (the values' common sign and exponent bits), first of the top 32 bits
+// only; then an insertion pass on the whole keys puts in order the keys
+// that share their top 32 bits (values within about 1e-6 of each other:
+// few, and those equal in value already in the index's order), unless it
+// would move keys more than 4n times, when the radix sort runs again on
+// all 64 bits. Either way the keys end in ascending order (TestSortKeys).
 func sortKeys(keys, tmp []uint64) {
 	n := len(keys)
 	if n < 64 {
 		slices.Sort(keys)
 		return
 	}
+	radixKeys(keys, tmp, 32)
+	budget := 4 * n
+	for i := 1; i < n && budget >= 0; i++ {
+		for j := i; j > 0 && keys[j] < keys[j-1]; j-- {
+			keys[j], keys[j-1] = keys[j-1], keys[j]
+			budget--
+		}
+	}
+	if budget < 0 {
+		radixKeys(keys, tmp, 0)
+	}
+}
+
+// radixKeys sorts keys by their bits from shift up (a multiple of 8)
+// with tmp as room: a stable least-significant-digit radix sort, 8 bits a
+// pass, skipping a pass whose digit is the same for every key.
+func radixKeys(keys, tmp []uint64, shift uint) {
+	n := len(keys)
 	or, and := uint64(0), ^uint64(0)
 	for _, k := range keys {
 		or |= k
@@ -188,7 +209,7 @@ func sortKeys(keys, tmp []uint64) {
 	}
 	diff := or ^ and // the bits that differ between keys
 	src, dst := keys, tmp[:n]
-	for shift := uint(16); shift < 64; shift += 8 {
+	for ; shift < 64; shift += 8 {
 		if (diff>>shift)&0xff == 0 {
 			continue
 		}

@@ -733,15 +733,17 @@ func (s *Site) probeZWith(sc *ruleScratch, t float64, Z []float64, kind lawKind,
 	fine := s.mixZs(sc, p.Z, kind, g, k, modes...)
 	p.ref = fine[0]
 	p.base = math.Abs(p.rule - p.ref)
+	spread := [2]bool{len(s.fac[0].fz) > 1, len(s.fac[1].fz) > 1}
+	bounds := s.interpBoundsWith(sc, p.Z, kind, g, spread)
 	next := 1
 	for d := range 2 {
-		if len(s.fac[d].fz) == 1 {
+		if !spread[d] {
 			continue
 		}
 		p.base += math.Abs(fine[next] - p.ref)
 		next++
 		p.own[d] = math.Inf(1)
-		p.interp[d] = s.interpBoundWith(sc, p.Z, kind, g, d)
+		p.interp[d] = bounds[d]
 	}
 	p.base += s.trunc
 	if kind != kindNode && kind != kindFirst && kind != kindFleet {
@@ -800,23 +802,37 @@ func (s *Site) interpBound(Z []float64, kind lawKind, g int, d int) float64 {
 
 // interpBoundWith is interpBound with the working arrays of sc.
 func (s *Site) interpBoundWith(sc *ruleScratch, Z []float64, kind lawKind, g int, d int) float64 {
+	var ds [2]bool
+	ds[d] = true
+	return s.interpBoundsWith(sc, Z, kind, g, ds)[d]
+}
+
+// interpBoundsWith returns interpBound for each factor d with ds[d] (0
+// for the others) in one pass over the groups: the reference's
+// interpolants, the same for both factors, are computed once, and the
+// interpolant without one node a piece in v starts from the reference's
+// along u (the same rows). Each bound is the same bits as alone.
+func (s *Site) interpBoundsWith(sc *ruleScratch, Z []float64, kind lawKind, g int, ds [2]bool) [2]float64 {
 	fu, fv := &s.fac[0], &s.fac[1]
 	nv := len(fv.z)
 	E := len(s.envs)
 	wu, wv := fu.fw, fv.fw
-	// rows[r][f]: factor f's interpolation rows for the reference (r = 0)
-	// and without one node a piece in factor d (r = 1).
-	rows := [2][2]*interpRows{{&fu.lag, &fv.lag}, {&fu.lag, &fv.lag}}
-	rows[1][d] = &s.fac[d].lagr
 	g0, g1 := g, g+1
 	if kind == kindFleet {
 		g0, g1 = 0, len(s.names)
 	}
 	pu, pv := len(fu.fz), len(fv.fz)
-	sc.y0, sc.y1 = grown(sc.y0, pu*nv), grown(sc.y1, pu*nv)
-	Y := [2][]float64{sc.y0, sc.y1}
-	sc.bnd = grown(sc.bnd, pu*pv)
-	bound := sc.bnd // Σ_h L_h·|Δz_h| at each point
+	// Y0 along u with the reference's rows (lag), Y1 without one node a
+	// piece in u (lagr; factor 0 only). Factor 0's second interpolant is
+	// Y1 along v by lag, factor 1's Y0 along v by lagr.
+	sc.y0 = grown(sc.y0, pu*nv)
+	if ds[0] {
+		sc.y1 = grown(sc.y1, pu*nv)
+	}
+	Y0, Y1 := sc.y0, sc.y1
+	sc.bnd = grown(sc.bnd, 2*pu*pv)
+	// Σ_h L_h·|Δz_h| at each point, for each factor.
+	bound := [2][]float64{sc.bnd[:pu*pv], sc.bnd[pu*pv:]}
 	// Groups whose probits repeat an earlier group's have its Δz: one
 	// interpolation for all of them, their slopes' bounds summed.
 	var rep []int
@@ -841,33 +857,54 @@ func (s *Site) interpBoundWith(sc *ruleScratch, Z []float64, kind lawKind, g int
 			return l
 		}
 		zh := Z[h*E : (h+1)*E]
-		for r := range 2 {
+		for a := range pu {
+			for j := range nv {
+				Y0[a*nv+j] = interp(&fu.lag, a, zh[j:], nv)
+			}
+		}
+		if ds[0] {
 			for a := range pu {
 				for j := range nv {
-					Y[r][a*nv+j] = interp(rows[r][0], a, zh[j:], nv)
+					Y1[a*nv+j] = interp(&fu.lagr, a, zh[j:], nv)
 				}
 			}
 		}
 		for a := range pu {
+			y0 := Y0[a*nv : (a+1)*nv]
 			for b := range pv {
-				z0 := interp(rows[0][1], b, Y[0][a*nv:(a+1)*nv], 1)
-				z1 := interp(rows[1][1], b, Y[1][a*nv:(a+1)*nv], 1)
-				if z0 != z1 {
-					bound[a*pv+b] += over(z0, z1) * math.Abs(z1-z0)
+				z0 := interp(&fv.lag, b, y0, 1)
+				if ds[0] {
+					z1 := interp(&fv.lag, b, Y1[a*nv:(a+1)*nv], 1)
+					if z0 != z1 {
+						bound[0][a*pv+b] += over(z0, z1) * math.Abs(z1-z0)
+					}
+				}
+				if ds[1] {
+					z1 := interp(&fv.lagr, b, y0, 1)
+					if z0 != z1 {
+						bound[1][a*pv+b] += over(z0, z1) * math.Abs(z1-z0)
+					}
 				}
 			}
 		}
 	}
-	sum, pts := 0.0, 0
-	for a := range pu {
-		for b := range pv {
-			if w := wu[a] * wv[b]; w >= 1e-14 {
-				sum += w * bound[a*pv+b]
-				pts++
+	var res [2]float64
+	for d := range 2 {
+		if !ds[d] {
+			continue
+		}
+		sum, pts := 0.0, 0
+		for a := range pu {
+			for b := range pv {
+				if w := wu[a] * wv[b]; w >= 1e-14 {
+					sum += w * bound[d][a*pv+b]
+					pts++
+				}
 			}
 		}
+		res[d] = sum*(1+1e-12) + 2*float64(pts)*0x1p-52
 	}
-	return sum*(1+1e-12) + 2*float64(pts)*0x1p-52
+	return res
 }
 
 // minSlope returns an upper bound on the largest slope of the CDF of the

@@ -68,7 +68,8 @@ func TestSiteRuleErrorAgainstFinerReference(t *testing.T) {
 // the same bits as computing every probe (lawError), the parts at least
 // those computed (+Inf where a probe's are not), and each probe's bound
 // (interpBound's, from the slope cells between the two interpolants)
-// must hold.
+// must hold, the same bits whether both factors' are computed in one
+// pass (probeStart) or each alone.
 func TestSiteLawErrorPruned(t *testing.T) {
 	s, err := NewSite(TwoFactorSiteSpec(t))
 	require.NoError(t, err)
@@ -83,6 +84,8 @@ func TestSiteLawErrorPruned(t *testing.T) {
 			bound := p.interp
 			s.probeFinish(&p, c.kind, c.g, 0)
 			for d := range 2 {
+				// Both factors' bounds in one pass: each the same bits as alone.
+				assert.Equal(t, s.interpBound(p.Z, c.kind, c.g, d), bound[d], "kind %d group %d factor %d at %g s: alone", c.kind, c.g, d, tm)
 				assert.LessOrEqual(t, p.interp[d], bound[d], "kind %d group %d factor %d at %g s", c.kind, c.g, d, tm)
 			}
 			pp := p.parts()

@@ -76,6 +76,9 @@ type sharedFactor struct {
 	// interpolation rows: lag's row i the weights of the nodes at fine
 	// point i; lagr's without one node of each piece.
 	lag, lagr interpRows
+	// same[i]: lagr's row i is lag's (the same nodes and weights), so
+	// that the two interpolants agree at fine point i bit for bit.
+	same []bool
 }
 
 // interpRows are interpolation rows kept to their nodes' span: row i
@@ -105,7 +108,7 @@ func newSharedFactor(spread bool, kinks []float64, m int) sharedFactor {
 	if !spread {
 		one := interpRows{w: [][]float64{{1}}, off: []int{0}}
 		return sharedFactor{edges: []float64{math.Inf(-1), math.Inf(1)}, z: []float64{0}, w: []float64{1}, piece: []int{0},
-			fz: []float64{0}, fw: []float64{1}, fwc: []float64{1}, lag: one, lagr: one}
+			fz: []float64{0}, fw: []float64{1}, fwc: []float64{1}, lag: one, lagr: one, same: []bool{true}}
 	}
 	// Pieces: kinks that leave each piece at least sharedMinPiece of the
 	// normal mass.
@@ -212,6 +215,10 @@ func (f *sharedFactor) setFine(step float64) {
 		main, alt := stencils(f.z, idx, x)
 		f.lag.set(i, lagrangeRow(f.z, main, x))
 		f.lagr.set(i, lagrangeRow(f.z, alt, x))
+	}
+	f.same = make([]bool, n)
+	for i := range n {
+		f.same[i] = f.lag.off[i] == f.lagr.off[i] && slices.Equal(f.lag.w[i], f.lagr.w[i])
 	}
 }
 
@@ -811,7 +818,9 @@ func (s *Site) interpBoundWith(sc *ruleScratch, Z []float64, kind lawKind, g int
 // for the others) in one pass over the groups: the reference's
 // interpolants, the same for both factors, are computed once, and the
 // interpolant without one node a piece in v starts from the reference's
-// along u (the same rows). Each bound is the same bits as alone.
+// along u (the same rows); where a factor's two rows agree (same) the
+// interpolants do too and add nothing, and are not computed. Each bound
+// is the same bits as alone.
 func (s *Site) interpBoundsWith(sc *ruleScratch, Z []float64, kind lawKind, g int, ds [2]bool) [2]float64 {
 	fu, fv := &s.fac[0], &s.fac[1]
 	nv := len(fv.z)
@@ -864,6 +873,9 @@ func (s *Site) interpBoundsWith(sc *ruleScratch, Z []float64, kind lawKind, g in
 		}
 		if ds[0] {
 			for a := range pu {
+				if fu.same[a] {
+					continue // Y1's row is Y0's: no difference in u there
+				}
 				for j := range nv {
 					Y1[a*nv+j] = interp(&fu.lagr, a, zh[j:], nv)
 				}
@@ -873,13 +885,13 @@ func (s *Site) interpBoundsWith(sc *ruleScratch, Z []float64, kind lawKind, g in
 			y0 := Y0[a*nv : (a+1)*nv]
 			for b := range pv {
 				z0 := interp(&fv.lag, b, y0, 1)
-				if ds[0] {
+				if ds[0] && !fu.same[a] {
 					z1 := interp(&fv.lag, b, Y1[a*nv:(a+1)*nv], 1)
 					if z0 != z1 {
 						bound[0][a*pv+b] += over(z0, z1) * math.Abs(z1-z0)
 					}
 				}
-				if ds[1] {
+				if ds[1] && !fv.same[b] {
 					z1 := interp(&fv.lagr, b, y0, 1)
 					if z0 != z1 {
 						bound[1][a*pv+b] += over(z0, z1) * math.Abs(z1-z0)

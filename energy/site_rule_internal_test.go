@@ -69,10 +69,18 @@ func TestSiteRuleErrorAgainstFinerReference(t *testing.T) {
 // those computed (+Inf where a probe's are not), and each probe's bound
 // (interpBound's, from the slope cells between the two interpolants)
 // must hold, the same bits whether both factors' are computed in one
-// pass (probeStart) or each alone.
+// pass (probeStart) or each alone, and whether or not the points where a
+// factor's two interpolation rows agree are skipped.
 func TestSiteLawErrorPruned(t *testing.T) {
 	s, err := NewSite(TwoFactorSiteSpec(t))
 	require.NoError(t, err)
+	// every computes both interpolants at every fine point, also where a
+	// factor's two rows agree (sharedFactor.same): those add nothing.
+	every := s
+	for d := range 2 {
+		require.Contains(t, s.fac[d].same, true, "factor %d: some rows agree", d)
+		every.fac[d].same = make([]bool, len(s.fac[d].same))
+	}
 	for _, c := range []struct {
 		kind lawKind
 		g    int
@@ -86,6 +94,7 @@ func TestSiteLawErrorPruned(t *testing.T) {
 			for d := range 2 {
 				// Both factors' bounds in one pass: each the same bits as alone.
 				assert.Equal(t, s.interpBound(p.Z, c.kind, c.g, d), bound[d], "kind %d group %d factor %d at %g s: alone", c.kind, c.g, d, tm)
+				assert.Equal(t, every.interpBound(p.Z, c.kind, c.g, d), bound[d], "kind %d group %d factor %d at %g s: every point", c.kind, c.g, d, tm)
 				assert.LessOrEqual(t, p.interp[d], bound[d], "kind %d group %d factor %d at %g s", c.kind, c.g, d, tm)
 			}
 			pp := p.parts()

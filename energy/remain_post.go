@@ -111,16 +111,25 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	M := len(d.c)
 	var ev evidence
 	d.initEvidence(&ev, &t, pd.tau0)
-	// the prior's log weights (on the stack for the usual sizes) and
-	// their weights exp(logw − max)
-	var lbuf [stackNodes]float64
-	var logw []float64
+	// the prior's log weights and their weights exp(logw − max), on the
+	// stack for the usual sizes: the weights are copied to the heap only
+	// where they are the final ones (wHeap holds the final weights where
+	// they are on the heap already: the ridge's or a stage's, or the
+	// prior's beyond stackNodes; it never points at the stack)
+	var lbuf, wbuf [stackNodes]float64
+	var logw, ws, wHeap []float64
 	if M <= stackNodes {
-		logw = lbuf[:M:M]
+		logw, ws = lbuf[:M:M], wbuf[:M:M]
 	} else {
-		logw = make([]float64, M)
+		logw, wHeap = make([]float64, M), make([]float64, M)
+		ws = wHeap
 	}
-	ws := make([]float64, M)
+	// Room on the stack for the usual sizes for the scores of the ridge
+	// stage's points or of a stage try's: scores are read only by the
+	// next try's fit, before it places its points, and a try that is not
+	// kept is followed by another only while no stage has been kept (the
+	// scores are then the prior's), so one buffer serves every try.
+	var zBuf [stackNodes][3]float64
 	// Where the readings pin the depth sharply, the prior's nodes are
 	// weighed on their first quarter first (the Kronecker sequence's first
 	// M/4 points, for M >= 64): the ridge stage (below) may be decided
@@ -179,7 +188,6 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	// ridge's scores and log weights are on the stack for the usual sizes
 	// (scratch: the final weights and factors are its ws, cs, as, fs).
 	if sharp || maxOf(logw) < ev.readingBest()-ridgeGap {
-		var rzBuf [stackNodes][3]float64
 		var rlBuf [stackNodes]float64
 		var (
 			rz                 [][3]float64
@@ -189,13 +197,14 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		)
 		tryRidge := func() {
 			tried = true
-			rz, rl, rw, rc, ra, rf, ridgeOK = ev.ridgeStage(M, rzBuf[:], rlBuf[:])
+			rz, rl, rw, rc, ra, rf, ridgeOK = ev.ridgeStage(M, zBuf[:], rlBuf[:])
 			if ridgeOK {
 				re, rlme = essLME(rl, rw)
 			}
 		}
 		keepRidge := func() {
 			zs, logw, ws, cs, as, fs, ess = rz, rl, rw, rc, ra, rf, re
+			wHeap = rw
 			pd.stages++
 		}
 		early := false
@@ -238,7 +247,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		if M < Ms {
 			n0 = M
 		}
-		nz, nl, nw, nc, na, nf := stagePoints(n0)
+		nz, nl, nw, nc, na, nf := stagePoints(n0, zBuf[:])
 		logDet := math.Log(l[0][0]) + math.Log(l[1][1]) + math.Log(l[2][2])
 		place := func(from, to int) {
 			for k := from; k < to; k++ {
@@ -270,6 +279,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			em := essOf(nl[:M], nw[:M])
 			if (em > ess || refit) && em >= float64(M)/4 {
 				zs, logw, ws, cs, as, fs, ess, fitFrom = nz[:M], nl[:M], nw[:M], nc[:M], na[:M], nf[:M], em, from
+				wHeap = nw[:M]
 				pd.stages++
 				continue
 			}
@@ -280,7 +290,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 				widen *= 3
 				continue
 			}
-			nz, nl, nw, nc, na, nf = growStage(nz, nl, nc, na, nf, Ms)
+			nz, nl, nw, nc, na, nf = growStage(nz, nl, nc, na, nf, Ms, zBuf[:])
 			place(M, Ms)
 		} else {
 			place(0, Ms)
@@ -289,6 +299,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		if refit {
 			if ne >= float64(len(nl))/4 {
 				zs, logw, ws, cs, as, fs, ess, fitFrom = nz, nl, nw, nc, na, nf, ne, from
+				wHeap = nw
 				pd.stages++
 			}
 			break
@@ -303,6 +314,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			continue
 		}
 		zs, logw, ws, cs, as, fs, ess, fitFrom = nz, nl, nw, nc, na, nf, ne, from
+		wHeap = nw
 		pd.stages++
 		widen = 1
 	}
@@ -318,8 +330,12 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	// model's own, never written); the weights are ws, exp(logw − best)
 	// from the stage's effective number (this call's own), 0 for a node
 	// whose weight is at most 1e-300 of the largest.
-	pd.c, pd.a, pd.f, pd.w = cs, as, fs, ws
-	for k, w := range ws {
+	if wHeap == nil { // the prior's weights, on the stack
+		wHeap = make([]float64, M)
+		copy(wHeap, ws)
+	}
+	pd.c, pd.a, pd.f, pd.w = cs, as, fs, wHeap
+	for k, w := range pd.w {
 		sAll += w
 		if w > 1e-300 {
 			s1 += w
@@ -338,18 +354,23 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 }
 
 // stagePoints returns room for n points of a stage (scores, log weights,
-// weights exp(l − max l), factors c, a, f), the float slices in one
-// allocation.
-func stagePoints(n int) (z [][3]float64, l, ws, cs, as, fs []float64) {
-	z = make([][3]float64, n)
+// weights exp(l − max l), factors c, a, f), the scores in zBuf where it
+// holds n (else on the heap), the float slices in one allocation.
+func stagePoints(n int, zBuf [][3]float64) (z [][3]float64, l, ws, cs, as, fs []float64) {
+	if len(zBuf) >= n {
+		z = zBuf[:n:n]
+	} else {
+		z = make([][3]float64, n)
+	}
 	buf := make([]float64, 5*n)
 	return z, buf[:n:n], buf[n : 2*n : 2*n], buf[2*n : 3*n : 3*n], buf[3*n : 4*n : 4*n], buf[4*n:]
 }
 
 // growStage returns the stage's points extended to length n, the first
-// ones kept (their weights are not: the caller computes them).
-func growStage(z [][3]float64, l, cs, as, fs []float64, n int) ([][3]float64, []float64, []float64, []float64, []float64, []float64) {
-	nz, nl, nw, nc, na, nf := stagePoints(n)
+// ones kept (their weights are not: the caller computes them), the
+// scores in zBuf where it holds n (it may be the room z is in).
+func growStage(z [][3]float64, l, cs, as, fs []float64, n int, zBuf [][3]float64) ([][3]float64, []float64, []float64, []float64, []float64, []float64) {
+	nz, nl, nw, nc, na, nf := stagePoints(n, zBuf)
 	copy(nz, z)
 	copy(nl, l)
 	copy(nc, cs)

@@ -371,7 +371,7 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 		zs, logw = zBuf[:m:m], lBuf[:m:m]
 		ws, cs, as, fs = buf[:m:m], buf[m:2*m:2*m], buf[2*m:3*m:3*m], buf[3*m:]
 	} else {
-		zs, logw, ws, cs, as, fs = stagePoints(m)
+		zs, logw, ws, cs, as, fs = stagePoints(m, nil)
 	}
 	logPhi := -0.5 * math.Log(2*math.Pi)
 	for k := range m {

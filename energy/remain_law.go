@@ -75,6 +75,13 @@ type postLaw struct {
 	acc        dist.Accuracy
 }
 
+// postLawHalf is a postLaw with room for the parities of up to
+// DefaultPosteriorNodes nodes (newPostLaw: one allocation instead of two).
+type postLawHalf struct {
+	postLaw
+	half [DefaultPosteriorNodes]uint8
+}
+
 // nodeQuality is what a law's stated error needs of its posterior.
 type nodeQuality struct {
 	ess        float64 // effective number of nodes
@@ -129,8 +136,19 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 			keys[j], keys[j-1] = keys[j-1], keys[j]
 		}
 	}
-	p := &postLaw{m: buf[:n:n], s: buf[n : 2*n : 2*n], w: buf[2*n : 3*n : 3*n], is: buf[3*n : 4*n : 4*n], half: make([]uint8, n),
-		below: buf[4*n : 5*n+1 : 5*n+1], above: buf[5*n+1 : 6*n+2 : 6*n+2], q: q, lo: lo, hi: hi, name: name, unit: unit, scale: scale}
+	// The law and its parities in one allocation for up to
+	// DefaultPosteriorNodes nodes.
+	var p *postLaw
+	if n <= DefaultPosteriorNodes {
+		ph := new(postLawHalf)
+		p = &ph.postLaw
+		p.half = ph.half[:n:n]
+	} else {
+		p = &postLaw{half: make([]uint8, n)}
+	}
+	p.m, p.s, p.w, p.is = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n], buf[3*n:4*n:4*n]
+	p.below, p.above = buf[4*n:5*n+1:5*n+1], buf[5*n+1:6*n+2:6*n+2]
+	p.q, p.lo, p.hi, p.name, p.unit, p.scale = q, lo, hi, name, unit, scale
 	for i, kk := range keys {
 		k := int(kk & 0xffff)
 		p.m[i], p.s[i], p.w[i], p.half[i] = tm[k], ts[k], w[k]/tot, uint8(k%2)

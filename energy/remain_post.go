@@ -26,6 +26,14 @@ type postData struct {
 	logMarginal    float64 // log of the evidence's marginal likelihood (importance estimate)
 }
 
+// postDataW is a postData with room for the weights of up to
+// DefaultPosteriorNodes nodes (the posterior's and its weights in one
+// allocation where the prior's nodes are the final ones).
+type postDataW struct {
+	postData
+	w [DefaultPosteriorNodes]float64
+}
+
 // minResolvedNodes is the effective number of nodes below which a
 // posterior is not resolved: its stated error is 1 (measured on the
 // prior's point set: with 36 or fewer the laws were wholly wrong, with 91
@@ -106,11 +114,11 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		return DevicePosterior{}, err
 	}
 	d := m.d
-	pd := &postData{d: d, tau0: t.newest - t.install, tauNow: now - t.install, a0: t.active, va0: t.actVar}
-	pd.r, pd.vr = d.activePower(&t, now)
+	pv := postData{d: d, tau0: t.newest - t.install, tauNow: now - t.install, a0: t.active, va0: t.actVar}
+	pv.r, pv.vr = d.activePower(&t, now)
 	M := len(d.c)
 	var ev evidence
-	d.initEvidence(&ev, &t, pd.tau0)
+	d.initEvidence(&ev, &t, pv.tau0)
 	// the prior's log weights and their weights exp(logw − max), on the
 	// stack for the usual sizes: the weights are copied to the heap only
 	// where they are the final ones (wHeap holds the final weights where
@@ -142,7 +150,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	ev.logLik(d.c[:h], d.a[:h], d.f[:h], logw[:h])
 	cs, as, fs := d.c, d.a, d.f
 	ess, lme := essLME(logw[:h], ws[:h])
-	pd.stages = 1
+	pv.stages = 1
 	// Adaptive importance stages: while the readings leave fewer than a
 	// quarter of the nodes effective, place a point set stageFactor times
 	// larger on a product of Student-t laws (proposalNu degrees of freedom)
@@ -205,7 +213,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		keepRidge := func() {
 			zs, logw, ws, cs, as, fs, ess = rz, rl, rw, rc, ra, rf, re
 			wHeap = rw
-			pd.stages++
+			pv.stages++
 		}
 		early := false
 		if h < M && ess < float64(h)/8 {
@@ -236,7 +244,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			break
 		}
 		refit := !(ess < float64(len(logw))/4)
-		mu, l, ok := fitProposal(zs, ws, pd.stages-1, widen)
+		mu, l, ok := fitProposal(zs, ws, pv.stages-1, widen)
 		if !ok {
 			break
 		}
@@ -280,13 +288,13 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			if (em > ess || refit) && em >= float64(M)/4 {
 				zs, logw, ws, cs, as, fs, ess, fitFrom = nz[:M], nl[:M], nw[:M], nc[:M], na[:M], nf[:M], em, from
 				wHeap = nw[:M]
-				pd.stages++
+				pv.stages++
 				continue
 			}
 			if refit {
 				break
 			}
-			if pd.stages == 1 && !(em > ess) && !thorough {
+			if pv.stages == 1 && !(em > ess) && !thorough {
 				widen *= 3
 				continue
 			}
@@ -300,12 +308,12 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			if ne >= float64(len(nl))/4 {
 				zs, logw, ws, cs, as, fs, ess, fitFrom = nz, nl, nw, nc, na, nf, ne, from
 				wHeap = nw
-				pd.stages++
+				pv.stages++
 			}
 			break
 		}
 		if !(ne > ess) {
-			if pd.stages > 1 {
+			if pv.stages > 1 {
 				break // a stage did better than the prior's nodes: keep it
 			}
 			// A proposal fitted to the prior's few effective nodes missed
@@ -315,24 +323,37 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		}
 		zs, logw, ws, cs, as, fs, ess, fitFrom = nz, nl, nw, nc, na, nf, ne, from
 		wHeap = nw
-		pd.stages++
+		pv.stages++
 		widen = 1
 	}
 	best := maxOf(logw)
 	if math.IsInf(best, -1) {
-		return DevicePosterior{}, paramErr(fn, "tally", fmt.Sprintf("%.6g J active energy by %.6g days", t.active, Days(pd.tau0)),
+		return DevicePosterior{}, paramErr(fn, "tally", fmt.Sprintf("%.6g J active energy by %.6g days", t.active, Days(pv.tau0)),
 			"no node of the model's prior is still alive with this much spent: the counts or the model's cell are wrong")
 	}
 	s1, sAll := 0.0, 0.0
 	M = len(logw)
-	pd.nodes = M
+	pv.nodes = M
 	// The final stage's nodes are kept as they are (the prior's are the
 	// model's own, never written); the weights are ws, exp(logw − best)
 	// from the stage's effective number (this call's own), 0 for a node
 	// whose weight is at most 1e-300 of the largest.
-	if wHeap == nil { // the prior's weights, on the stack
-		wHeap = make([]float64, M)
+	// The posterior's data (built on the stack) to the heap, with room
+	// for the prior's weights (on the stack) where they are the final ones,
+	// in one allocation for up to DefaultPosteriorNodes nodes.
+	var pd *postData
+	switch {
+	case wHeap == nil && M <= DefaultPosteriorNodes:
+		h := &postDataW{postData: pv}
+		pd, wHeap = &h.postData, h.w[:M:M]
 		copy(wHeap, ws)
+	case wHeap == nil:
+		pd, wHeap = new(postData), make([]float64, M)
+		*pd = pv
+		copy(wHeap, ws)
+	default:
+		pd = new(postData)
+		*pd = pv
 	}
 	pd.c, pd.a, pd.f, pd.w = cs, as, fs, wHeap
 	for k, w := range pd.w {

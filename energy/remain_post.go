@@ -27,8 +27,9 @@ type postData struct {
 }
 
 // postDataW is a postData with room for the weights of up to
-// DefaultPosteriorNodes nodes (the posterior's and its weights in one
-// allocation where the prior's nodes are the final ones).
+// DefaultPosteriorNodes nodes (the posterior and its prior's weights in
+// one allocation: the final weights where the prior's nodes are the
+// final ones).
 type postDataW struct {
 	postData
 	w [DefaultPosteriorNodes]float64
@@ -115,29 +116,38 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	}
 	d := m.d
 	pv := postData{d: d, tau0: t.newest - t.install, tauNow: now - t.install, a0: t.active, va0: t.actVar}
-	pv.r, pv.vr = d.activePower(&t, now)
 	M := len(d.c)
-	var ev evidence
-	d.initEvidence(&ev, &t, pv.tau0)
-	// the prior's log weights and their weights exp(logw − max), on the
-	// stack for the usual sizes: the weights are copied to the heap only
-	// where they are the final ones (wHeap holds the final weights where
-	// they are on the heap already: the ridge's or a stage's, or the
-	// prior's beyond stackNodes; it never points at the stack)
-	var lbuf, wbuf [stackNodes]float64
-	var logw, ws, wHeap []float64
-	if M <= stackNodes {
-		logw, ws = lbuf[:M:M], wbuf[:M:M]
+	// the prior's weights exp(logw − max), for up to
+	// DefaultPosteriorNodes nodes in the posterior's own allocation
+	// (postDataW)
+	var pd *postData
+	var ws []float64
+	if M <= DefaultPosteriorNodes {
+		h := &postDataW{postData: pv}
+		pd, ws = &h.postData, h.w[:M:M]
 	} else {
-		logw, wHeap = make([]float64, M), make([]float64, M)
-		ws = wHeap
+		pd, ws = new(postData), make([]float64, M)
+		*pd = pv
+	}
+	pd.r, pd.vr = d.activePower(&t, now)
+	var ev evidence
+	d.initEvidence(&ev, &t, pd.tau0)
+	// the prior's log weights (on the stack for the usual sizes)
+	var lbuf [stackNodes]float64
+	var logw []float64
+	if M <= stackNodes {
+		logw = lbuf[:M:M]
+	} else {
+		logw = make([]float64, M)
 	}
 	// Room on the stack for the usual sizes for the scores of the ridge
-	// stage's points or of a stage try's: scores are read only by the
-	// next try's fit, before it places its points, and a try that is not
-	// kept is followed by another only while no stage has been kept (the
-	// scores are then the prior's), so one buffer serves every try.
-	var zBuf [stackNodes][3]float64
+	// stage's points and then of each stage try's, where the ridge stage
+	// is tried (zRoom; nil otherwise: a try's scores are then on the
+	// heap): scores are read only by the next try's fit, before it places
+	// its points, and a try that is not kept is followed by another only
+	// while no stage has been kept (the scores are then the prior's), so
+	// one room serves every try.
+	var zRoom [][3]float64
 	// Where the readings pin the depth sharply, the prior's nodes are
 	// weighed on their first quarter first (the Kronecker sequence's first
 	// M/4 points, for M >= 64): the ridge stage (below) may be decided
@@ -150,7 +160,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	ev.logLik(d.c[:h], d.a[:h], d.f[:h], logw[:h])
 	cs, as, fs := d.c, d.a, d.f
 	ess, lme := essLME(logw[:h], ws[:h])
-	pv.stages = 1
+	pd.stages = 1
 	// Adaptive importance stages: while the readings leave fewer than a
 	// quarter of the nodes effective, place a point set stageFactor times
 	// larger on a product of Student-t laws (proposalNu degrees of freedom)
@@ -196,7 +206,9 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	// ridge's scores and log weights are on the stack for the usual sizes
 	// (scratch: the final weights and factors are its ws, cs, as, fs).
 	if sharp || maxOf(logw) < ev.readingBest()-ridgeGap {
+		var rzBuf [stackNodes][3]float64
 		var rlBuf [stackNodes]float64
+		zRoom = rzBuf[:]
 		var (
 			rz                 [][3]float64
 			rl, rw, rc, ra, rf []float64
@@ -205,15 +217,14 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		)
 		tryRidge := func() {
 			tried = true
-			rz, rl, rw, rc, ra, rf, ridgeOK = ev.ridgeStage(M, zBuf[:], rlBuf[:])
+			rz, rl, rw, rc, ra, rf, ridgeOK = ev.ridgeStage(M, zRoom, rlBuf[:])
 			if ridgeOK {
 				re, rlme = essLME(rl, rw)
 			}
 		}
 		keepRidge := func() {
 			zs, logw, ws, cs, as, fs, ess = rz, rl, rw, rc, ra, rf, re
-			wHeap = rw
-			pv.stages++
+			pd.stages++
 		}
 		early := false
 		if h < M && ess < float64(h)/8 {
@@ -244,7 +255,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			break
 		}
 		refit := !(ess < float64(len(logw))/4)
-		mu, l, ok := fitProposal(zs, ws, pv.stages-1, widen)
+		mu, l, ok := fitProposal(zs, ws, pd.stages-1, widen)
 		if !ok {
 			break
 		}
@@ -255,7 +266,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		if M < Ms {
 			n0 = M
 		}
-		nz, nl, nw, nc, na, nf := stagePoints(n0, zBuf[:])
+		nz, nl, nw, nc, na, nf := stagePoints(n0, zRoom)
 		logDet := math.Log(l[0][0]) + math.Log(l[1][1]) + math.Log(l[2][2])
 		place := func(from, to int) {
 			for k := from; k < to; k++ {
@@ -287,18 +298,17 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			em := essOf(nl[:M], nw[:M])
 			if (em > ess || refit) && em >= float64(M)/4 {
 				zs, logw, ws, cs, as, fs, ess, fitFrom = nz[:M], nl[:M], nw[:M], nc[:M], na[:M], nf[:M], em, from
-				wHeap = nw[:M]
-				pv.stages++
+				pd.stages++
 				continue
 			}
 			if refit {
 				break
 			}
-			if pv.stages == 1 && !(em > ess) && !thorough {
+			if pd.stages == 1 && !(em > ess) && !thorough {
 				widen *= 3
 				continue
 			}
-			nz, nl, nw, nc, na, nf = growStage(nz, nl, nc, na, nf, Ms, zBuf[:])
+			nz, nl, nw, nc, na, nf = growStage(nz, nl, nc, na, nf, Ms, zRoom)
 			place(M, Ms)
 		} else {
 			place(0, Ms)
@@ -307,13 +317,12 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		if refit {
 			if ne >= float64(len(nl))/4 {
 				zs, logw, ws, cs, as, fs, ess, fitFrom = nz, nl, nw, nc, na, nf, ne, from
-				wHeap = nw
-				pv.stages++
+				pd.stages++
 			}
 			break
 		}
 		if !(ne > ess) {
-			if pv.stages > 1 {
+			if pd.stages > 1 {
 				break // a stage did better than the prior's nodes: keep it
 			}
 			// A proposal fitted to the prior's few effective nodes missed
@@ -322,41 +331,23 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 			continue
 		}
 		zs, logw, ws, cs, as, fs, ess, fitFrom = nz, nl, nw, nc, na, nf, ne, from
-		wHeap = nw
-		pv.stages++
+		pd.stages++
 		widen = 1
 	}
 	best := maxOf(logw)
 	if math.IsInf(best, -1) {
-		return DevicePosterior{}, paramErr(fn, "tally", fmt.Sprintf("%.6g J active energy by %.6g days", t.active, Days(pv.tau0)),
+		return DevicePosterior{}, paramErr(fn, "tally", fmt.Sprintf("%.6g J active energy by %.6g days", t.active, Days(pd.tau0)),
 			"no node of the model's prior is still alive with this much spent: the counts or the model's cell are wrong")
 	}
 	s1, sAll := 0.0, 0.0
 	M = len(logw)
-	pv.nodes = M
+	pd.nodes = M
 	// The final stage's nodes are kept as they are (the prior's are the
 	// model's own, never written); the weights are ws, exp(logw − best)
 	// from the stage's effective number (this call's own), 0 for a node
 	// whose weight is at most 1e-300 of the largest.
-	// The posterior's data (built on the stack) to the heap, with room
-	// for the prior's weights (on the stack) where they are the final ones,
-	// in one allocation for up to DefaultPosteriorNodes nodes.
-	var pd *postData
-	switch {
-	case wHeap == nil && M <= DefaultPosteriorNodes:
-		h := &postDataW{postData: pv}
-		pd, wHeap = &h.postData, h.w[:M:M]
-		copy(wHeap, ws)
-	case wHeap == nil:
-		pd, wHeap = new(postData), make([]float64, M)
-		*pd = pv
-		copy(wHeap, ws)
-	default:
-		pd = new(postData)
-		*pd = pv
-	}
-	pd.c, pd.a, pd.f, pd.w = cs, as, fs, wHeap
-	for k, w := range pd.w {
+	pd.c, pd.a, pd.f, pd.w = cs, as, fs, ws
+	for k, w := range ws {
 		sAll += w
 		if w > 1e-300 {
 			s1 += w

@@ -111,11 +111,18 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 	// replaced by the node's index (at most MaxPosteriorNodes = 2^16
 	// nodes), then one insertion pass restores the exact order (value,
 	// then index) among values that agree in their top 48 bits.
-	var keyBuf, keyTmp [stackNodes]uint64 // the keys and the sort's room on the stack for the usual sizes
+	// The keys and the sort's room on the stack for the usual sizes, in
+	// arrays as small as n allows (an array is zeroed where it is
+	// declared, whatever n).
 	var keys, tmp []uint64
-	if n <= stackNodes {
+	switch {
+	case n <= DefaultPosteriorNodes:
+		var keyBuf, keyTmp [DefaultPosteriorNodes]uint64
 		keys, tmp = keyBuf[:0:n], keyTmp[:n]
-	} else {
+	case n <= stackNodes:
+		var keyBuf, keyTmp [stackNodes]uint64
+		keys, tmp = keyBuf[:0:n], keyTmp[:n]
+	default:
 		keys, tmp = make([]uint64, 0, n), make([]uint64, n)
 	}
 	tot := 0.0
@@ -183,6 +190,9 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 // stackNodes is the largest node count whose scratch (sort keys, log
 // weights) lives on the goroutine's stack instead of the heap: the
 // default point set and its importance stages (stageFactor·256 = 1024).
+// Go zeroes a stack array where it is declared, so each use declares one
+// of DefaultPosteriorNodes slots where that holds its size and one of
+// stackNodes only otherwise.
 const stackNodes = 1024
 
 // sortKeys sorts keys built as newPostLaw builds them (the value's top

@@ -133,11 +133,15 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	var ev evidence
 	d.initEvidence(&ev, &t, pd.tau0)
 	// the prior's log weights (on the stack for the usual sizes)
-	var lbuf [stackNodes]float64
 	var logw []float64
-	if M <= stackNodes {
+	switch {
+	case M <= DefaultPosteriorNodes:
+		var lbuf [DefaultPosteriorNodes]float64
 		logw = lbuf[:M:M]
-	} else {
+	case M <= stackNodes:
+		var lbuf [stackNodes]float64
+		logw = lbuf[:M:M]
+	default:
 		logw = make([]float64, M)
 	}
 	// Room on the stack for the usual sizes for the scores of the ridge
@@ -206,9 +210,20 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 	// ridge's scores and log weights are on the stack for the usual sizes
 	// (scratch: the final weights and factors are its ws, cs, as, fs).
 	if sharp || maxOf(logw) < ev.readingBest()-ridgeGap {
-		var rzBuf [stackNodes][3]float64
-		var rlBuf [stackNodes]float64
-		zRoom = rzBuf[:]
+		// Rooms of M slots (DefaultPosteriorNodes for the default point
+		// set: a try grown to the whole stage set then has its scores on
+		// the heap), stackNodes beyond, up to stackNodes.
+		var rlRoom []float64
+		switch {
+		case M <= DefaultPosteriorNodes:
+			var rzBuf [DefaultPosteriorNodes][3]float64
+			var rlBuf [DefaultPosteriorNodes]float64
+			zRoom, rlRoom = rzBuf[:], rlBuf[:]
+		case M <= stackNodes:
+			var rzBuf [stackNodes][3]float64
+			var rlBuf [stackNodes]float64
+			zRoom, rlRoom = rzBuf[:], rlBuf[:]
+		}
 		var (
 			rz                 [][3]float64
 			rl, rw, rc, ra, rf []float64
@@ -217,7 +232,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		)
 		tryRidge := func() {
 			tried = true
-			rz, rl, rw, rc, ra, rf, ridgeOK = ev.ridgeStage(M, zRoom, rlBuf[:])
+			rz, rl, rw, rc, ra, rf, ridgeOK = ev.ridgeStage(M, zRoom, rlRoom)
 			if ridgeOK {
 				re, rlme = essLME(rl, rw)
 			}

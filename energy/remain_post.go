@@ -283,6 +283,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		}
 		nz, nl, nw, nc, na, nf := stagePoints(n0, zRoom)
 		logDet := math.Log(l[0][0]) + math.Log(l[1][1]) + math.Log(l[2][2])
+		log2Pi := math.Log(2 * math.Pi) // taken once a try, not once a point (the compiler does not fold it); the expression below is the same
 		place := func(from, to int) {
 			for k := from; k < to; k++ {
 				zeta := d.tz[k]
@@ -296,7 +297,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 				nz[k] = z
 				nc[k], na[k], nf[k] = d.factors(z)
 				q := d.tlogq[k] - logDet
-				pr := -0.5*(z[0]*z[0]+z[1]*z[1]+z[2]*z[2]) - 1.5*math.Log(2*math.Pi) // log prior density, normalised as q is
+				pr := -0.5*(z[0]*z[0]+z[1]*z[1]+z[2]*z[2]) - 1.5*log2Pi // log prior density, normalised as q is
 				nl[k] = pr - q
 			}
 			ev.logLik(nc[from:to], na[from:to], nf[from:to], nl[from:to])

@@ -245,9 +245,17 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 	// solved score, the factors and |dz_s/dV|; ok false where the curve
 	// does not reach v or the solved factor is not positive.
 	node := func(v float64, zz *[3]float64, c, a, f float64) (float64, float64, float64, float64, bool) {
-		j := 0
-		for j < np-1 && vs[j+1] > v {
-			j++
+		// j: the count of leading segments whose lower end is above v
+		// (vs strictly decreasing: a bisection finds the first segment
+		// that is not, the same j as a scan, NaN too)
+		j, jh := 0, np-1
+		for j < jh {
+			h := int(uint(j+jh) >> 1)
+			if vs[h+1] > v {
+				j = h + 1
+			} else {
+				jh = h
+			}
 		}
 		if j == np-1 || v > vs[0] {
 			return 0, 0, 0, 0, false

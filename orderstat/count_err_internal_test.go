@@ -180,13 +180,10 @@ func TestSplitErrCatchesBroken(t *testing.T) {
 		ds     []dyadicTerm
 		broken []string
 	}{
-		{[]dyadicTerm{{30, 1, 2}, {50, 3, 3}}, []string{"upper tail as 1 - lower"}},
-		{[]dyadicTerm{{200, 1, 4}, {150, 5, 4}, {100, 1, 10}}, []string{"upper tail as 1 - lower", "log-gamma binomial masses"}},
+		{exactCounts[0], []string{"upper tail as 1 - lower"}},
+		{exactCounts[1], []string{"upper tail as 1 - lower", "log-gamma binomial masses"}},
 	} {
-		var ts []binom
-		for _, d := range tc.ds {
-			ts = append(ts, d.binom())
-		}
+		ts := binomsOf(tc.ds)
 		mass := exactCountMasses(tc.ds)
 		cm := newCountModel(ts)
 		for _, name := range tc.broken {

@@ -55,6 +55,12 @@ type nodeLazy struct {
 	momErr     float64
 	accOnce    sync.Once
 	acc        dist.Accuracy
+	// The law at the calendar limit (energyAt), computed on first use:
+	// EnergyBinds, survivalAtCalendar and the tables all read it, each
+	// reading once cost an evaluation of every setting (the demo's 96
+	// laws 1,344 evaluations of the node model more).
+	calOnce           sync.Once
+	calAlive, calDead float64
 }
 
 // NewNodeLifetime returns the lifetime law of spec's nodes in env. Errors
@@ -284,8 +290,22 @@ func (l NodeLifetime) EnergyBinds() float64 {
 	if math.IsInf(l.n.calendar, 1) {
 		return 1
 	}
-	_, d, _ := l.energyAt(l.n.calendar)
+	_, d := l.atCalendar()
 	return d
+}
+
+// atCalendar returns energyAt's P(energy left) and P(run out) at the
+// calendar limit (which must be finite), computed once a law (the same
+// bits whoever asks first).
+func (l NodeLifetime) atCalendar() (alive, dead float64) {
+	if l.lz == nil {
+		alive, dead, _ = l.energyAt(l.n.calendar)
+		return alive, dead
+	}
+	l.lz.calOnce.Do(func() {
+		l.lz.calAlive, l.lz.calDead, _ = l.energyAt(l.n.calendar)
+	})
+	return l.lz.calAlive, l.lz.calDead
 }
 
 // Warnings returns the environment's warnings (temperatures outside the
@@ -365,7 +385,7 @@ func (l NodeLifetime) UpperQuantile(q float64) float64 {
 func (l NodeLifetime) CDFBeforeCalendar() float64 { return l.EnergyBinds() }
 
 func (l NodeLifetime) survivalAtCalendar() float64 {
-	a, _, _ := l.energyAt(l.n.calendar)
+	a, _ := l.atCalendar()
 	return a
 }
 

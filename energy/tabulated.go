@@ -533,7 +533,7 @@ func (tb *tabulated) profile(l NodeLifetime, zOf func(j int, t float64) float64)
 // in a tail all shrink with the tail: a first failure among n nodes reads
 // the node law where F is about 1/n, and the bound n·CDFAbs would be far
 // too loose there.
-func (tb tabulated) errAt(t float64) float64 {
+func (tb *tabulated) errAt(t float64) float64 {
 	switch {
 	case math.IsNaN(t) || tb.t == nil:
 		return math.NaN()
@@ -648,7 +648,7 @@ func hermite(t0, t1, z0, z1, d0, d1, x float64) float64 {
 // zAt returns the interpolated probit at t; beyond the table (where the
 // law is below 1e-14 or above 1 − 1e-14) the probit goes on along the end
 // slopes, so the far tails decay like a normal's.
-func (pt probitTable) zAt(t float64) float64 {
+func (pt *probitTable) zAt(t float64) float64 {
 	hint := 0 // no interval: a search
 	return pt.zAtNear(t, &hint)
 }
@@ -656,7 +656,7 @@ func (pt probitTable) zAt(t float64) float64 {
 // zAtNear is zAt, looking first in the interval *hint (t[*hint−1] < t <=
 // t[*hint]; none for 0) and leaving there the one it found: the same
 // value, without a search when consecutive times fall in one interval.
-func (pt probitTable) zAtNear(t float64, hint *int) float64 {
+func (pt *probitTable) zAtNear(t float64, hint *int) float64 {
 	n := len(pt.t)
 	i := *hint
 	if !(i > 0 && i < n && pt.t[i-1] < t && t <= pt.t[i]) {
@@ -674,7 +674,7 @@ func (pt probitTable) zAtNear(t float64, hint *int) float64 {
 
 // zAtD is zAt with its slope right (or left) of t: at a point of the
 // table each side has its own.
-func (pt probitTable) zAtD(t float64, right bool) (z, dz float64) {
+func (pt *probitTable) zAtD(t float64, right bool) (z, dz float64) {
 	i := sort.SearchFloat64s(pt.t, t) // t[i-1] < t <= t[i]
 	n := len(pt.t)
 	switch {
@@ -698,14 +698,14 @@ func (pt probitTable) zAtD(t float64, right bool) (z, dz float64) {
 
 // zAtD2 is zAtD on both sides of t, with one search: they differ only at
 // a point of the table.
-func (pt probitTable) zAtD2(t float64) (z, dl, dr float64) {
+func (pt *probitTable) zAtD2(t float64) (z, dl, dr float64) {
 	hint := 0 // no interval: a search
 	return pt.zAtD2Near(t, &hint)
 }
 
 // zAtD2Near is zAtD2, looking first in the interval *hint as zAtNear
 // does: the same values.
-func (pt probitTable) zAtD2Near(t float64, hint *int) (z, dl, dr float64) {
+func (pt *probitTable) zAtD2Near(t float64, hint *int) (z, dl, dr float64) {
 	n := len(pt.t)
 	i := *hint
 	if !(i > 0 && i < n && pt.t[i-1] < t && t <= pt.t[i]) {
@@ -813,7 +813,7 @@ func (tb tabulated) Survival(t float64) float64 {
 }
 
 // survivalNear is Survival, reading the table by zAtNear.
-func (tb tabulated) survivalNear(t float64, hint *int) float64 {
+func (tb *tabulated) survivalNear(t float64, hint *int) float64 {
 	switch {
 	case math.IsNaN(t) || tb.t == nil:
 		return math.NaN()
@@ -827,7 +827,7 @@ func (tb tabulated) survivalNear(t float64, hint *int) float64 {
 
 // invert returns the t with interpolated probit zt (along the end slopes
 // beyond the table).
-func (tb tabulated) invert(zt float64) float64 {
+func (tb *tabulated) invert(zt float64) float64 {
 	n := len(tb.z)
 	if zt <= tb.z[0] {
 		if tb.d0[0] > 0 {

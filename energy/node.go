@@ -435,20 +435,28 @@ func (n *node) clockRates(t float64, right bool) [3]float64 {
 // alone, and is smooth in each, so its kinks at month boundaries are those
 // of the clocks. ±Inf (with a zero gradient) where the law is 0 or 1.
 func (n *node) settingProbit(j int, c [3]float64) (z float64, dz [3]float64) {
+	z, dz, _, _ = n.settingProbitAt(j, c)
+	return z, dz
+}
+
+// settingProbitAt is settingProbit with P(energy left) and P(run out) at
+// the clocks c, the same bits as settingAt's at the time c[0] (part's
+// probabilities are those of normalPart, with the gradient or without).
+func (n *node) settingProbitAt(j int, c [3]float64) (z float64, dz [3]float64, alive, dead float64) {
 	s := &n.settings[j]
 	capLeft := n.batch*s.usable - n.nominal*(n.storage+n.sdRate*c[1])
 	if !(capLeft > 0) {
-		return math.Inf(1), dz
+		return math.Inf(1), dz, 0, 1
 	}
 	k := c[0] * s.rate
 	p := n.part(capLeft, k*s.mu, k*s.k2, s.floorP*c[2], n.quiescent*c[0], 0, true)
 	if math.IsInf(p.z, 0) || math.IsNaN(p.z) {
-		return p.z, dz
+		return p.z, dz, p.alive, p.dead
 	}
 	dz[0] = p.dz[dMean]*s.rate*s.mu + p.dz[dVar]*s.rate*s.k2 + p.dz[dQuiet]*n.quiescent
 	dz[1] = -p.dz[dCap] * n.nominal * n.sdRate
 	dz[2] = p.dz[dFloor] * s.floorP
-	return p.z, dz
+	return p.z, dz, p.alive, p.dead
 }
 
 // normalPart returns P(c·C − a·v − f·L >= h) and its complement, with c
@@ -830,8 +838,12 @@ func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad
 			switch {
 			case sg < -8.5:
 				part[0] += wp
-			case sg > 0 && gauss > 0 && left+h*w*gauss/sg <= 1e-17*(sum[0]+h*part[0]):
+			case sg >= mills.SmallX && gauss > 0 && left+h*w*gauss/sg <= 1e-17*(sum[0]+h*part[0]):
 				// Left out: the term is below w·φ(u)·φ(g)/g (Gordon).
+				// Only from SmallX up, where φ(g) is computed with or
+				// without grad: the sum (the probabilities) is then the
+				// same bits either way, so that an evaluation with the
+				// gradient serves one without (settingTables).
 				left += h * w * gauss / sg
 			case gauss > 0 && ag >= mills.SmallX:
 				// φ(u)·Φ̄(|g|) = φ(u)·φ(g)·R(|g|), Mills' ratio R, from

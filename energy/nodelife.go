@@ -308,6 +308,17 @@ func (l NodeLifetime) atCalendar() (alive, dead float64) {
 	return l.lz.calAlive, l.lz.calDead
 }
 
+// seedCalendar sets atCalendar's values where they are not computed yet:
+// alive and dead must be energyAt's at the calendar limit, bit for bit
+// (settingTables sums them from its own evaluations there), so that the
+// law's values do not depend on which was first.
+func (l NodeLifetime) seedCalendar(alive, dead float64) {
+	if l.lz == nil {
+		return
+	}
+	l.lz.calOnce.Do(func() { l.lz.calAlive, l.lz.calDead = alive, dead })
+}
+
 // Warnings returns the environment's warnings (temperatures outside the
 // cell's rated range), one line each.
 func (l NodeLifetime) Warnings() []string {

@@ -503,8 +503,22 @@ func (n *node) settingTables(l NodeLifetime) []settingOut {
 	var cals []gradKnot // the model at the calendar limit, per setting
 	if !math.IsInf(n.calendar, 1) && !n.spread.IsZero() {
 		cals = make([]gradKnot, len(n.settings))
+		// The law at the calendar limit from the same evaluations, summed
+		// as energyAt sums (the same bits: settingProbitAt), for
+		// EnergyBinds and the table's atom (atCalendar).
+		var alive, dead float64
+		exact := true
+		c := n.clocks(n.calendar)
 		for j := range cals {
-			cals[j] = n.gradKnotAt(j, n.calendar)
+			z, g, a, d := n.settingProbitAt(j, c)
+			cals[j] = gradKnot{t: n.calendar, c: c, z: z, g: g}
+			w := n.settings[j].w
+			alive += w * a
+			dead += w * d
+			exact = exact && n.settings[j].sums == nil
+		}
+		if exact {
+			l.seedCalendar(alive, dead)
 		}
 		sort.SliceStable(order, func(a, b int) bool { return cals[order[a]].z > cals[order[b]].z })
 	}

@@ -178,3 +178,52 @@ func TestTabulatedDroppedSettingAgainstDirect(t *testing.T) {
 	t.Logf("left out: mass %.2g (bound %.2g, %.2g of the CDF from its lower end on); CDF error %.2g (stated %.2g), relative tail error %.2g (stated %.2g)",
 		0.3*dead, tb.dropAbs, tb.dropRel, worst, tb.tabCDF, rel, tb.tabRel)
 }
+
+// The node model's probabilities are the same bits with the gradient and
+// without (fixedPieces leaves a term out only where both compute φ(g)), for
+// every setting of the test site's groups at 400 times from deployment to
+// twice the setting's nominal life (its law from 0 to 1, both extreme
+// tails): settingTables' evaluations at the calendar limit then serve
+// energyAt's there (seedCalendar). A check of two paths of one computation
+// against each other; the values themselves are checked against gonum's
+// quadrature elsewhere (TestFloorRuleErrorAgainstGonum and others).
+func TestSettingProbabilitiesSameWithGradient(t *testing.T) {
+	spec := tabTestSpec(t)
+	for _, grp := range spec.Groups {
+		l, err := NewNodeLifetime(grp.Node, Environment{Climate: spec.Climate, Conditions: Conditions{BatchFactor: 1}})
+		require.NoError(t, err)
+		n := l.n
+		for j := range n.settings {
+			life := n.settingLife(j)
+			require.True(t, life > 0 && !math.IsInf(life, 0))
+			for i := 1; i <= 400; i++ {
+				at := life * float64(i) / 200
+				_, _, aw, dw := n.settingProbitAt(j, n.clocks(at))
+				a, d, _ := n.settingAt(j, at)
+				if aw != a || dw != d {
+					t.Errorf("group %s setting %d at %.4g y: with the gradient (%v, %v), without (%v, %v)", grp.Name, j, at/Year, aw, dw, a, d)
+				}
+			}
+		}
+	}
+}
+
+// The law at the calendar limit that settingTables leaves for atCalendar
+// is energyAt's there bit for bit (a fresh law's, computed directly), so
+// that EnergyBinds and the table's atom do not depend on which came first.
+func TestCalendarSeedSameAsEnergyAt(t *testing.T) {
+	spec := tabTestSpec(t)
+	node := spec.Groups[2].Node // the group with a calendar limit
+	env := Environment{Climate: spec.Climate, Conditions: Conditions{BatchFactor: 1}}
+	fresh, err := NewNodeLifetime(node, env)
+	require.NoError(t, err)
+	wantA, wantD, _ := fresh.energyAt(fresh.n.calendar)
+	l, err := NewNodeLifetime(node, env)
+	require.NoError(t, err)
+	_ = l.n.settingTables(l)
+	l.seedCalendar(-1, -1) // ignored: seeded already
+	a, d := l.atCalendar()
+	assert.Equal(t, wantA, a, "P(energy left) at the calendar limit")
+	assert.Equal(t, wantD, d, "P(run out) at the calendar limit")
+	assert.Equal(t, wantD, l.EnergyBinds())
+}

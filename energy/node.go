@@ -439,24 +439,27 @@ func (n *node) settingProbit(j int, c [3]float64) (z float64, dz [3]float64) {
 	return z, dz
 }
 
-// settingProbitAt is settingProbit with P(energy left) and P(run out) at
-// the clocks c, the same bits as settingAt's at the time c[0] (part's
-// probabilities are those of normalPart, with the gradient or without).
-func (n *node) settingProbitAt(j int, c [3]float64) (z float64, dz [3]float64, alive, dead float64) {
+// settingProbitAt is settingProbit with part's output at the clocks c
+// (ok false, and p that of a node run out, where the capacity is spent
+// and part is not evaluated): its probabilities are the same bits as
+// settingAt's at the time c[0] (normalPart's, with the gradient or
+// without), and p itself is what NodeLifetime.accuracyAtZ evaluates for
+// setting j at that time (the same arguments).
+func (n *node) settingProbitAt(j int, c [3]float64) (z float64, dz [3]float64, p partOut, ok bool) {
 	s := &n.settings[j]
 	capLeft := n.batch*s.usable - n.nominal*(n.storage+n.sdRate*c[1])
 	if !(capLeft > 0) {
-		return math.Inf(1), dz, 0, 1
+		return math.Inf(1), dz, partOut{dead: 1, z: math.Inf(1)}, false
 	}
 	k := c[0] * s.rate
-	p := n.part(capLeft, k*s.mu, k*s.k2, s.floorP*c[2], n.quiescent*c[0], 0, true)
+	p = n.part(capLeft, k*s.mu, k*s.k2, s.floorP*c[2], n.quiescent*c[0], 0, true)
 	if math.IsInf(p.z, 0) || math.IsNaN(p.z) {
-		return p.z, dz, p.alive, p.dead
+		return p.z, dz, p, true
 	}
 	dz[0] = p.dz[dMean]*s.rate*s.mu + p.dz[dVar]*s.rate*s.k2 + p.dz[dQuiet]*n.quiescent
 	dz[1] = -p.dz[dCap] * n.nominal * n.sdRate
 	dz[2] = p.dz[dFloor] * s.floorP
-	return p.z, dz, p.alive, p.dead
+	return p.z, dz, p, true
 }
 
 // normalPart returns P(c·C − a·v − f·L >= h) and its complement, with c

@@ -130,6 +130,21 @@ func (l NodeLifetime) accuracyAtZ(ts []float64, zOf func(j int, t float64) float
 // accuracyAtZPruned is accuracyAtZ, passing settings over only when prune
 // is set (the tests compare the two), with the number passed over.
 func (l NodeLifetime) accuracyAtZPruned(ts []float64, zOf func(j int, t float64) float64, prune bool) (dist.Accuracy, int) {
+	return l.accuracyAtZKnown(ts, zOf, prune, nil)
+}
+
+// calPart is part's output for one setting at the calendar limit, where
+// ok.
+type calPart struct {
+	p  partOut
+	ok bool
+}
+
+// accuracyAtZKnown is accuracyAtZPruned with the model at the calendar
+// limit given for the settings with cal[j].ok (cal may be nil): part's
+// output there, with the gradient, for the arguments evaluated here (the
+// same bits, read instead of evaluated again: settingTables has it).
+func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) float64, prune bool, cal []calPart) (dist.Accuracy, int) {
 	n := l.n
 	acc := dist.Accuracy{TailFloor: 1e-14, Method: "mixture over settings and per-node factors (closed form in the normal factors, a fixed Gauss–Legendre rule on pieces in the floor factor); per-cycle sum by its exact mean and variance"}
 	if n.spread.IsZero() {
@@ -213,7 +228,12 @@ func (l NodeLifetime) accuracyAtZPruned(ts []float64, zOf func(j int, t float64)
 			// even at the rule's nodes (to first order, with a margin of
 			// two), every term below is below Φ̄(accSkipZ) = 9.5e-18, and
 			// 2·Φ̄(accSkipZ) is counted instead.
-			p := n.part(capLeft, k*s.mu, kk2, floorE, h, 0, true)
+			var p partOut
+			if t == n.calendar && cal != nil && cal[it.j].ok {
+				p = cal[it.j].p
+			} else {
+				p = n.part(capLeft, k*s.mu, kk2, floorE, h, 0, true)
+			}
 			a0, e0 := p.alive, 0.0
 			if math.Abs(p.z)-2*math.Abs(p.dz[dMean])*it.shift > accSkipZ {
 				worst = math.Max(worst, s.w*2*normSurv(accSkipZ))

@@ -251,6 +251,7 @@ func tabulate(l NodeLifetime) tabulated {
 	var probit func(float64) float64
 	var zOf func(j int, t float64) float64 // a setting's probit from its table
 	var guessLo, guessHi float64
+	var calParts []calPart // the settings' model at the calendar limit (settingTables)
 	minWidth := 0.0
 	if n.spread.IsZero() {
 		// Exact k-fold laws move in steps of a period: refine no finer.
@@ -271,6 +272,14 @@ func tabulate(l NodeLifetime) tabulated {
 			tLo, zLo, zCal float64
 		}
 		tables := n.settingTables(l)
+		for j := range tables {
+			if tables[j].calOK {
+				if calParts == nil {
+					calParts = make([]calPart, len(tables))
+				}
+				calParts[j] = calPart{p: tables[j].cal, ok: true}
+			}
+		}
 		sets := make([]set, 0, len(n.settings))
 		guessLo, guessHi = math.Inf(1), 0
 		var dropSurvW float64 // the dropped settings' weight times their survival to the calendar limit
@@ -465,7 +474,7 @@ func tabulate(l NodeLifetime) tabulated {
 	}
 	// The model's own error, measured at six of the table's times (see
 	// profile).
-	src := tb.profile(l, zOf)
+	src := tb.profile(l, zOf, calParts)
 	// A probit error δ moves a probability p by about φ(z)·δ <= 0.4·δ, and
 	// the smaller tail p by about p·|z|·δ (Mills' ratio): |z| <= 7.7 down to
 	// 1e-14.
@@ -499,7 +508,11 @@ func tabulate(l NodeLifetime) tabulated {
 // returns the largest (with the largest relative survival error) as the
 // law's stated error. zOf reads the settings' probits from their tables,
 // so that settings far in a tail are not evaluated (accuracyAtZ).
-func (tb *tabulated) profile(l NodeLifetime, zOf func(j int, t float64) float64) dist.Accuracy {
+//
+// cal, when not nil, holds the model at the calendar limit where
+// settingTables evaluated it (the same arguments as accuracyAtZ's there):
+// the profile's time there reads it instead of evaluating it again.
+func (tb *tabulated) profile(l NodeLifetime, zOf func(j int, t float64) float64, cal []calPart) dist.Accuracy {
 	std := dist.MustNormal(0, 1)
 	n := len(tb.t)
 	ts := []float64{tb.t[0], tb.t[n/2], tb.t[n-1]}
@@ -512,7 +525,7 @@ func (tb *tabulated) profile(l NodeLifetime, zOf func(j int, t float64) float64)
 	tb.profE = make([]float64, len(tb.profT))
 	var acc dist.Accuracy
 	for i, t := range tb.profT {
-		a := l.accuracyAtZ([]float64{t}, zOf)
+		a, _ := l.accuracyAtZKnown([]float64{t}, zOf, true, cal)
 		tb.profE[i] = a.CDFAbs
 		acc.CDFAbs = math.Max(acc.CDFAbs, a.CDFAbs)
 		acc.SurvivalRel = math.Max(acc.SurvivalRel, a.SurvivalRel)

@@ -489,6 +489,10 @@ type settingOut struct {
 	ok   bool
 	ends *settingEnds
 	rel  float64
+	// part's output at the calendar limit (calOK where it was evaluated
+	// there), for the law's error profile (NodeLifetime.accuracyAtZ).
+	cal   partOut
+	calOK bool
 }
 
 // settingTables tabulates the settings of l's node (settingTableWith),
@@ -510,11 +514,12 @@ func (n *node) settingTables(l NodeLifetime) []settingOut {
 		exact := true
 		c := n.clocks(n.calendar)
 		for j := range cals {
-			z, g, a, d := n.settingProbitAt(j, c)
+			z, g, p, ok := n.settingProbitAt(j, c)
 			cals[j] = gradKnot{t: n.calendar, c: c, z: z, g: g}
+			out[j].cal, out[j].calOK = p, ok
 			w := n.settings[j].w
-			alive += w * a
-			dead += w * d
+			alive += w * p.alive
+			dead += w * p.dead
 			exact = exact && n.settings[j].sums == nil
 		}
 		if exact {

@@ -149,16 +149,7 @@ func TestPartGradientAgainstAdaptive(t *testing.T) {
 // dropAbs. A third setting with a chance of 6e-10 (weight 0.2) is kept:
 // its mass is above tabDropRel of the others' CDF at its lower end.
 func TestTabulatedDroppedSettingAgainstDirect(t *testing.T) {
-	spec := tabTestSpec(t)
-	node := spec.Groups[2].Node // the group with a calendar limit
-	h := Hour
-	node.Settings = []NodeSetting{
-		{Weight: 0.5, Cycle: tabTestCycle(24*h, 5*MicroAmp, 4)},
-		{Weight: 0.3, Cycle: tabTestCycle(30*h, 2*MicroAmp, 4)},
-		{Weight: 0.2, Cycle: tabTestCycle(48*h, 3*MicroAmp, 4)},
-	}
-	l, err := NewNodeLifetime(node, Environment{Climate: spec.Climate, Conditions: Conditions{BatchFactor: 1}})
-	require.NoError(t, err)
+	l := threeSettingLaw(t)
 	out := l.n.settingTables(l)
 	require.Len(t, out, 3)
 	assert.Nil(t, out[0].ends, "the short-lived setting is tabulated")
@@ -198,7 +189,8 @@ func TestSettingProbabilitiesSameWithGradient(t *testing.T) {
 			require.True(t, life > 0 && !math.IsInf(life, 0))
 			for i := 1; i <= 400; i++ {
 				at := life * float64(i) / 200
-				_, _, aw, dw := n.settingProbitAt(j, n.clocks(at))
+				_, _, p, _ := n.settingProbitAt(j, n.clocks(at))
+				aw, dw := p.alive, p.dead
 				a, d, _ := n.settingAt(j, at)
 				if aw != a || dw != d {
 					t.Errorf("group %s setting %d at %.4g y: with the gradient (%v, %v), without (%v, %v)", grp.Name, j, at/Year, aw, dw, a, d)
@@ -226,4 +218,47 @@ func TestCalendarSeedSameAsEnergyAt(t *testing.T) {
 	assert.Equal(t, wantA, a, "P(energy left) at the calendar limit")
 	assert.Equal(t, wantD, d, "P(run out) at the calendar limit")
 	assert.Equal(t, wantD, l.EnergyBinds())
+}
+
+// The error profile at the calendar limit reads settingTables' evaluations
+// there instead of evaluating again: the same stated error bit for bit as
+// evaluating afresh (and as the mixture's settings' own evaluation there:
+// every one of them is read).
+func TestProfileAtCalendarReadsSettingTables(t *testing.T) {
+	l := threeSettingLaw(t)
+	out := l.n.settingTables(l)
+	cal := make([]calPart, len(out))
+	for j := range out {
+		require.True(t, out[j].calOK, "setting %d evaluated at the calendar limit", j)
+		cal[j] = calPart{p: out[j].cal, ok: true}
+	}
+	ts := []float64{l.n.calendar}
+	want, _ := l.accuracyAtZPruned(ts, nil, true)
+	got, _ := l.accuracyAtZKnown(ts, nil, true, cal)
+	assert.Equal(t, want, got)
+	assert.Greater(t, got.CDFAbs, 0.0)
+	// And it does read them: a setting's value there moved by 1e-3 moves
+	// the stated error.
+	moved := append([]calPart(nil), cal...)
+	moved[0].p.alive -= 1e-3
+	other, _ := l.accuracyAtZKnown(ts, nil, true, moved)
+	assert.NotEqual(t, want.CDFAbs, other.CDFAbs)
+}
+
+// threeSettingLaw is the test site's group with a calendar limit with
+// three settings: a short-lived one, a long-lived one left out of its
+// table (tabDropAbs) and one kept (TestTabulatedDroppedSettingAgainstDirect).
+func threeSettingLaw(t *testing.T) NodeLifetime {
+	t.Helper()
+	spec := tabTestSpec(t)
+	node := spec.Groups[2].Node // the group with a calendar limit
+	h := Hour
+	node.Settings = []NodeSetting{
+		{Weight: 0.5, Cycle: tabTestCycle(24*h, 5*MicroAmp, 4)},
+		{Weight: 0.3, Cycle: tabTestCycle(30*h, 2*MicroAmp, 4)},
+		{Weight: 0.2, Cycle: tabTestCycle(48*h, 3*MicroAmp, 4)},
+	}
+	l, err := NewNodeLifetime(node, Environment{Climate: spec.Climate, Conditions: Conditions{BatchFactor: 1}})
+	require.NoError(t, err)
+	return l
 }

@@ -184,6 +184,7 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 		tb tabulated
 	}
 	cache := map[key]built{}
+	months := &monthCache{}
 	level := [2]int{0, 0}
 	for {
 		for d := range 2 {
@@ -214,7 +215,15 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 			k := todo[i]
 			g := spec.Groups[k.g]
 			cond := Conditions{BatchFactor: 1 + sds[0]*k.u, TemperatureOffset: sds[1] * k.v}
-			l, err := NewNodeLifetime(g.Node, Environment{Climate: spec.Climate, Conditions: cond})
+			env := Environment{Climate: spec.Climate, Conditions: cond}
+			// The month table depends on the cell's Thermal, the start
+			// month and the shifted climate alone: the batch factors and
+			// the groups with the same cell share it (the same table as
+			// built afresh; where it fails, NewNodeLifetime reports it).
+			if mt, err := months.get(fn, g.Node, env); err == nil {
+				env.months = mt
+			}
+			l, err := NewNodeLifetime(g.Node, env)
 			if err != nil {
 				return causeErr(fn, fmt.Sprintf("group %q: Node", s.names[k.g]), g.Node.Name,
 					fmt.Sprintf("lifetime law at batch factor %.4g and temperature offset %+.3g °C", cond.batch(), cond.TemperatureOffset), err)

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 
 	"github.com/joulelaw/joulelaw/dist"
 )
@@ -32,6 +33,7 @@ type Cycle struct {
 	actTime dist.Law // s
 	overrun float64
 	mom     moments
+	states  []State // the distinct states, computed once (States)
 }
 
 // NewCycle returns the cycle that runs the stage active once per period
@@ -66,6 +68,7 @@ func NewCycle(active Stage, period dist.Law, floorPower float64) (Cycle, error) 
 	}
 	c := Cycle{active: active, period: period, floor: floorPower, excess: ex, actTime: at,
 		mom: active.moments(floorPower)}
+	c.states = c.visitStates()
 	aLo, _ := at.Support()
 	_, tHi := period.Support()
 	if aLo > tHi {
@@ -191,6 +194,15 @@ func (c Cycle) OverrunProbability() float64 { return c.overrun }
 // States returns the distinct states (by name, in order of first
 // appearance) that the cycle can run.
 func (c Cycle) States() []State {
+	if c.states != nil {
+		return slices.Clone(c.states)
+	}
+	return c.visitStates()
+}
+
+// visitStates is States, from a visit of the stages (NewCycle keeps its
+// result: the node models of a site read it once a law and setting).
+func (c Cycle) visitStates() []State {
 	var out []State
 	if c.active == nil {
 		return nil

@@ -230,3 +230,23 @@ func TestOverrun(t *testing.T) {
 	c2 := energy.MustCycle(st, dist.MustPointMass(60), 1e-6)
 	assert.Equal(t, 0.0, c2.OverrunProbability())
 }
+
+// States lists the distinct states by name in order of first appearance
+// (demoCycle's structure, by hand: wake, sense, then the radio's tx,
+// rx-timeout and rx; the configurations repeat the names), and each call
+// returns its own slice: changing one leaves the cycle's (kept since
+// NewCycle) as it was.
+func TestCycleStatesByHand(t *testing.T) {
+	c := demoCycle(t, dist.MustPointMass(900))
+	names := func(ss []energy.State) []string {
+		var out []string
+		for _, s := range ss {
+			out = append(out, s.Name())
+		}
+		return out
+	}
+	first := c.States()
+	assert.Equal(t, []string{"wake", "sense", "tx", "rx-timeout", "rx"}, names(first))
+	first[0] = energy.State{}
+	assert.Equal(t, []string{"wake", "sense", "tx", "rx-timeout", "rx"}, names(c.States()))
+}

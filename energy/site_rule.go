@@ -443,7 +443,7 @@ func (s *Site) nodeZInto(dst []float64, t float64, want []bool) []float64 {
 			continue
 		}
 		for e := range s.envs {
-			Z[g*E+e] = s.probitAt(s.envs[e].laws[g], t)
+			Z[g*E+e] = s.probitAt(&s.envs[e].laws[g], t)
 		}
 	}
 	return Z
@@ -665,7 +665,7 @@ func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64,
 
 // probitAt is the probit of a conditional node law's CDF at t (+Inf from
 // its calendar limit on).
-func (s *Site) probitAt(tb tabulated, t float64) float64 {
+func (s *Site) probitAt(tb *tabulated, t float64) float64 {
 	switch {
 	case t >= tb.cal:
 		return math.Inf(1)
@@ -1273,7 +1273,7 @@ func (s *Site) kthNormal(t float64, k int64) (cdf, sf float64) {
 		env := &s.envs[e]
 		mu, v := 0.0, 0.0
 		for h := range s.names {
-			z := s.probitAt(env.laws[h], t)
+			z := s.probitAt(&env.laws[h], t)
 			p, q := normCDFz(z), normSurv(z)
 			n := float64(s.counts[h])
 			mu += n * p

@@ -666,6 +666,15 @@ func (pt *probitTable) zAt(t float64) float64 {
 	return pt.zAtNear(t, &hint)
 }
 
+// searchTimes is sort.SearchFloat64s(ts, t) (len(ts) for NaN too) by
+// searchFloats, without a call per step of the bisection.
+func searchTimes(ts []float64, t float64) int {
+	if math.IsNaN(t) {
+		return len(ts)
+	}
+	return searchFloats(ts, t, false)
+}
+
 // zAtNear is zAt, looking first in the interval *hint (t[*hint−1] < t <=
 // t[*hint]; none for 0) and leaving there the one it found: the same
 // value, without a search when consecutive times fall in one interval.
@@ -673,7 +682,7 @@ func (pt *probitTable) zAtNear(t float64, hint *int) float64 {
 	n := len(pt.t)
 	i := *hint
 	if !(i > 0 && i < n && pt.t[i-1] < t && t <= pt.t[i]) {
-		i = sort.SearchFloat64s(pt.t, t)
+		i = searchTimes(pt.t, t)
 		*hint = i
 	}
 	switch {
@@ -688,7 +697,7 @@ func (pt *probitTable) zAtNear(t float64, hint *int) float64 {
 // zAtD is zAt with its slope right (or left) of t: at a point of the
 // table each side has its own.
 func (pt *probitTable) zAtD(t float64, right bool) (z, dz float64) {
-	i := sort.SearchFloat64s(pt.t, t) // t[i-1] < t <= t[i]
+	i := searchTimes(pt.t, t) // t[i-1] < t <= t[i]
 	n := len(pt.t)
 	switch {
 	case i == 0 && !(right && t == pt.t[0]):
@@ -722,7 +731,7 @@ func (pt *probitTable) zAtD2Near(t float64, hint *int) (z, dl, dr float64) {
 	n := len(pt.t)
 	i := *hint
 	if !(i > 0 && i < n && pt.t[i-1] < t && t <= pt.t[i]) {
-		i = sort.SearchFloat64s(pt.t, t) // t[i-1] < t <= t[i]
+		i = searchTimes(pt.t, t) // t[i-1] < t <= t[i]
 		*hint = i
 	}
 	switch {

@@ -200,6 +200,14 @@ func (c Cycle) States() []State {
 	return c.visitStates()
 }
 
+// statesView is States without the copy, for reading only (newNode).
+func (c Cycle) statesView() []State {
+	if c.states != nil {
+		return c.states
+	}
+	return c.visitStates()
+}
+
 // visitStates is States, from a visit of the stages (NewCycle keeps its
 // result: the node models of a site read it once a law and setting).
 func (c Cycle) visitStates() []State {

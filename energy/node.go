@@ -220,7 +220,7 @@ func newNode(fn string, spec NodeSpec, env Environment) (*node, error) {
 				rail = v
 			}
 			peak := 0.0
-			for _, state := range c.States() {
+			for _, state := range c.statesView() {
 				peak = math.Max(peak, state.peakCurrent(rail))
 			}
 			// Cell current under the peak: the node's power at the rail,
@@ -331,10 +331,27 @@ func (n *node) kinks(lo, hi float64) []float64 {
 	if !(hi > lo) || (hi-lo)/Month > maxKinks {
 		return nil
 	}
-	var out []float64
-	for m := int(math.Floor(math.Max(lo, 0)/Month)) + 1; float64(m)*Month < hi; m++ {
+	// Counted first, then written into one allocation of that size
+	// (growing by appends cost the tables about a tenth of their
+	// allocations).
+	first := int(math.Floor(math.Max(lo, 0)/Month)) + 1
+	at := func(m int) (float64, bool) {
 		i, j := (m-1)%12, m%12
-		if x := float64(m) * Month; x > lo && (n.floorRate[i] != n.floorRate[j] || n.sdFactor[i] != n.sdFactor[j]) {
+		x := float64(m) * Month
+		return x, x > lo && (n.floorRate[i] != n.floorRate[j] || n.sdFactor[i] != n.sdFactor[j])
+	}
+	count := 0
+	for m := first; float64(m)*Month < hi; m++ {
+		if _, ok := at(m); ok {
+			count++
+		}
+	}
+	if count == 0 {
+		return nil
+	}
+	out := make([]float64, 0, count)
+	for m := first; float64(m)*Month < hi; m++ {
+		if x, ok := at(m); ok {
 			out = append(out, x)
 		}
 	}

@@ -52,6 +52,18 @@ func (n *node) slope(k gradKnot, right bool) float64 {
 // gradInterp returns the interpolant between the knots a and b at x in
 // [a.t, b.t] and its derivative right (or left) of x.
 func (n *node) gradInterp(a, b *gradKnot, x float64, right bool) (z, dz float64) {
+	z, dl, dr := n.gradInterpSides(a, b, x, !right, right)
+	if right {
+		return z, dr
+	}
+	return z, dl
+}
+
+// gradInterpSides is gradInterp with the derivative on the sides asked
+// for (left, right; 0 for a side not asked), the same bits as gradInterp
+// on each: the table's store reads both sides at a month boundary, where
+// only the clocks' rates differ.
+func (n *node) gradInterpSides(a, b *gradKnot, x float64, left, right bool) (z, dl, dr float64) {
 	h := b.t - a.t
 	s := (x - a.t) / h
 	var u [3]float64 // the chord's clock rates
@@ -60,16 +72,30 @@ func (n *node) gradInterp(a, b *gradKnot, x float64, right bool) (z, dz float64)
 	}
 	sa := a.g[0]*u[0] + a.g[1]*u[1] + a.g[2]*u[2]
 	sb := b.g[0]*u[0] + b.g[1]*u[1] + b.g[2]*u[2]
-	z, dz = hermiteD(a.t, b.t, a.z, b.z, sa, sb, x)
+	z, dz := hermiteD(a.t, b.t, a.z, b.z, sa, sb, x)
 	c := n.clocks(x)
-	r := n.clockRates(x, right)
+	var rl, rr [3]float64
+	if left {
+		rl = n.clockRates(x, false)
+	}
+	if right {
+		rr = n.clockRates(x, true)
+	}
+	dl, dr = dz, dz
 	for i := 1; i < 3; i++ {
 		dev := c[i] - a.c[i] - (x-a.t)*u[i]
 		gi := a.g[i] + s*(b.g[i]-a.g[i])
 		z += gi * dev
-		dz += (b.g[i]-a.g[i])/h*dev + gi*(r[i]-u[i])
+		dl += (b.g[i]-a.g[i])/h*dev + gi*(rl[i]-u[i])
+		dr += (b.g[i]-a.g[i])/h*dev + gi*(rr[i]-u[i])
 	}
-	return z, dz
+	if !left {
+		dl = 0
+	}
+	if !right {
+		dr = 0
+	}
+	return z, dl, dr
 }
 
 // gradAt returns the gradient against the clocks of a table built by
@@ -336,9 +362,10 @@ func (n *node) clockGrid(lo, hi gradKnot, tol float64, known []gradKnot, at func
 				x1 = kinks[0]
 				kinks = kinks[1:]
 			}
+			dRight := 0.0 // the slope right of a month boundary: the next piece's d0
 			if ok {
 				var zx float64
-				zx, d1 = n.gradInterp(a, b, x1, false)
+				zx, d1, dRight = n.gradInterpSides(a, b, x1, true, !last)
 				if !last {
 					z1 = zx
 				}
@@ -349,7 +376,7 @@ func (n *node) clockGrid(lo, hi gradKnot, tol float64, known []gradKnot, at func
 				break
 			}
 			if ok {
-				_, d0 = n.gradInterp(a, b, x1, true)
+				d0 = dRight
 			}
 		}
 	}

@@ -499,6 +499,9 @@ func (s *Site) rowReps(sc *ruleScratch, Z []float64, g0, g1 int) []int {
 // common value where the values are infinite (past the calendar limit, or
 // before time 0: the same at every node of a group).
 func interp(rows *interpRows, i int, y []float64, stride int) float64 {
+	if stride == 1 {
+		return interp1(rows, i, y)
+	}
 	if math.IsInf(y[0], 0) {
 		return y[0]
 	}
@@ -507,6 +510,23 @@ func interp(rows *interpRows, i int, y []float64, stride int) float64 {
 	for j, l := range rows.w[i] {
 		if l != 0 {
 			z += l * y[j*stride]
+		}
+	}
+	return z
+}
+
+// interp1 is interp for stride 1 (the same sum, term by term), the row's
+// values sliced once: the fine grid's inner loops read it.
+func interp1(rows *interpRows, i int, y []float64) float64 {
+	if math.IsInf(y[0], 0) {
+		return y[0]
+	}
+	w := rows.w[i]
+	ys := y[rows.off[i]:][:len(w)]
+	z := 0.0
+	for j, l := range w {
+		if l != 0 {
+			z += l * ys[j]
 		}
 	}
 	return z
@@ -646,7 +666,7 @@ func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64,
 				if rv == nil {
 					zs[h] = y[b]
 				} else {
-					zs[h] = interp(rv, b, y, 1)
+					zs[h] = interp1(rv, b, y)
 				}
 			}
 			c := s.condAt(kind, g, k, zs, probs, rep)
@@ -884,15 +904,15 @@ func (s *Site) interpBoundsWith(sc *ruleScratch, Z []float64, kind lawKind, g in
 		for a := range pu {
 			y0 := Y0[a*nv : (a+1)*nv]
 			for b := range pv {
-				z0 := interp(&fv.lag, b, y0, 1)
+				z0 := interp1(&fv.lag, b, y0)
 				if ds[0] && !fu.same[a] {
-					z1 := interp(&fv.lag, b, Y1[a*nv:(a+1)*nv], 1)
+					z1 := interp1(&fv.lag, b, Y1[a*nv:(a+1)*nv])
 					if z0 != z1 {
 						bound[0][a*pv+b] += over(z0, z1) * math.Abs(z1-z0)
 					}
 				}
 				if ds[1] && !fv.same[b] {
-					z1 := interp(&fv.lagr, b, y0, 1)
+					z1 := interp1(&fv.lagr, b, y0)
 					if z0 != z1 {
 						bound[1][a*pv+b] += over(z0, z1) * math.Abs(z1-z0)
 					}

@@ -40,6 +40,17 @@ const SmallX = 0.46875 * math.Sqrt2
 // from √(π/2) at 0 and R(x)·x → 1 as x grows. NaN for NaN or x < 0 (the
 // ratio grows as e^{x²/2} there: compute Φ̄ directly instead); 0 at +Inf.
 func Ratio(x float64) float64 {
+	// The common case first, one comparison pair (NaN fails both): the
+	// floor integral's quadrature nodes mostly lie there.
+	if x >= SmallX && x < math.MaxFloat64 {
+		return math.Sqrt(math.Pi/2) * erfcx(x/math.Sqrt2)
+	}
+	return ratioEdge(x)
+}
+
+// ratioEdge is Ratio below SmallX, at +Inf (and MaxFloat64) and for NaN
+// or x < 0.
+func ratioEdge(x float64) float64 {
 	switch {
 	case math.IsNaN(x) || x < 0:
 		return math.NaN()

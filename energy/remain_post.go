@@ -286,13 +286,13 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		log2Pi := math.Log(2 * math.Pi) // taken once a try, not once a point (the compiler does not fold it); the expression below is the same
 		place := func(from, to int) {
 			for k := from; k < to; k++ {
-				zeta := d.tz[k]
-				var z [3]float64
-				for r := range 3 {
-					z[r] = mu[r]
-					for c := 0; c <= r; c++ {
-						z[r] += l[r][c] * zeta[c]
-					}
+				zeta := &d.tz[k]
+				// mu + l·zeta, l lower triangular (the sums in column
+				// order, as a loop over the columns gives)
+				z := [3]float64{
+					mu[0] + l[0][0]*zeta[0],
+					mu[1] + l[1][0]*zeta[0] + l[1][1]*zeta[1],
+					mu[2] + l[2][0]*zeta[0] + l[2][1]*zeta[1] + l[2][2]*zeta[2],
 				}
 				nz[k] = z
 				nc[k], na[k], nf[k] = d.factors(z)
@@ -658,14 +658,15 @@ func (e *evidence) logLikChunk(c, a, f, out []float64) {
 	// then makes no call
 	var pendK [logLikChunk]uint16
 	var pendV [logLikChunk]float64
+	// the nodes' loaded voltages at one reading (first pass), read by the
+	// second pass (two short loops instead of one keep their values in
+	// registers)
+	var vBuf [logLikChunk]float64
+	vb := vBuf[:len(out):len(out)]
 	for i := range e.rsBuf[:e.nr] {
 		r := &e.rsBuf[i]
 		act, fe, q, sdd := r.active, r.fe, r.q, r.sdd
 		vs, sl := r.vs[:np:np], r.slope[:np-1:np-1]
-		tb := r.tab
-		v0, invH, steps := tb.v0, tb.invH, tb.steps
-		lat := tb.g
-		pend := 0
 		for k, s := range out {
 			if s < -math.MaxFloat64 {
 				continue // dead or impossible (−Inf): stays so
@@ -690,17 +691,30 @@ func (e *evidence) logLikChunk(c, a, f, out []float64) {
 			default:
 				v = vs[j-1] + (dep-ds[j-1])*sl[j-1]
 			}
+			vb[k] = v
+		}
+		tb := r.tab
+		v0, invH, steps := tb.v0, tb.invH, tb.steps
+		lat := tb.g
+		pend := 0
+		for k, s := range out {
+			if s < -math.MaxFloat64 {
+				continue
+			}
+			v := vb[k]
 			// readingTable.at, written out for the common case (a lattice
 			// whose four values are set: the same operations, so the same
-			// bits)
+			// bits); an unset value (unsetBits, a NaN) makes the cubic NaN,
+			// and a NaN sends the node to at, which sets the values and
+			// gives the same cubic (NaN again only where a value is)
 			if steps > 0 {
 				u := (v - v0) * invH
 				j := min(max(int(u), 0), steps-1)
 				g := lat[j : j+4 : j+4]
-				b0, b1, b2, b3 := g[0].Load(), g[1].Load(), g[2].Load(), g[3].Load()
-				if b0 != unsetBits && b1 != unsetBits && b2 != unsetBits && b3 != unsetBits {
-					y := [4]float64{math.Float64frombits(b0), math.Float64frombits(b1), math.Float64frombits(b2), math.Float64frombits(b3)}
-					out[k] = s + cubic4(&y, u-float64(j))
+				y := [4]float64{math.Float64frombits(g[0].Load()), math.Float64frombits(g[1].Load()),
+					math.Float64frombits(g[2].Load()), math.Float64frombits(g[3].Load())}
+				if c := cubic4(&y, u-float64(j)); c == c {
+					out[k] = s + c
 					continue
 				}
 			}
@@ -811,25 +825,30 @@ func essOf(logw, ws []float64) float64 {
 // from few nodes still covers the posterior), and its lower Cholesky
 // factor.
 func fitProposal(zs [][3]float64, ws []float64, stage int, widen float64) (mu [3]float64, l [3][3]float64, ok bool) {
-	tot := 0.0
+	// (the sums written out, in the loops' order: the same bits)
+	zs = zs[:len(ws):len(ws)]
+	tot, m0, m1, m2 := 0.0, 0.0, 0.0, 0.0
 	for k, w := range ws {
+		z := &zs[k]
 		tot += w
-		for r := range 3 {
-			mu[r] += w * zs[k][r]
-		}
+		m0 += w * z[0]
+		m1 += w * z[1]
+		m2 += w * z[2]
 	}
-	for r := range 3 {
-		mu[r] /= tot
-	}
-	var cov [3][3]float64
+	mu = [3]float64{m0 / tot, m1 / tot, m2 / tot}
+	var c00, c10, c11, c20, c21, c22 float64
 	for k, wk := range ws {
 		w := wk / tot
-		for r := range 3 {
-			for c := 0; c <= r; c++ {
-				cov[r][c] += w * (zs[k][r] - mu[r]) * (zs[k][c] - mu[c])
-			}
-		}
+		z := &zs[k]
+		d0, d1, d2 := z[0]-mu[0], z[1]-mu[1], z[2]-mu[2]
+		c00 += w * d0 * d0
+		c10 += w * d1 * d0
+		c11 += w * d1 * d1
+		c20 += w * d2 * d0
+		c21 += w * d2 * d1
+		c22 += w * d2 * d2
 	}
+	cov := [3][3]float64{{c00}, {c10, c11}, {c20, c21, c22}}
 	grow, floor := 2.0, 0.1
 	if stage > 0 {
 		grow, floor = 1.5, 0.01

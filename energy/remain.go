@@ -149,6 +149,10 @@ type deviceData struct {
 	// cells: where the search for a depth's segment of the curve starts
 	// (depthIndex; zero without a curve).
 	cells [depthCells + 1]uint16
+	// monthsUp: the node's monthly floor and self-discharge factors are
+	// none negative, so its cumulative tables never decrease (life's
+	// month search relies on it)
+	monthsUp bool
 }
 
 type eventCostData struct {
@@ -179,6 +183,12 @@ func NewDeviceModel(spec NodeSpec, env Environment, costs []EventCost, opt Devic
 		return DeviceModel{}, paramErr(fn, "opt.ReadingLoad", opt.ReadingLoad, "must be in [0, 10] A")
 	}
 	d := &deviceData{n: n, s: n.settings[0], nodes: opt.Nodes, memory: opt.Memory, prior: opt.PriorTime, load: opt.ReadingLoad}
+	d.monthsUp = true
+	for i := range 12 {
+		if !(n.floorRate[i] >= 0 && n.sdFactor[i] >= 0) {
+			d.monthsUp = false
+		}
+	}
 	if d.nodes == 0 {
 		d.nodes = DefaultPosteriorNodes
 	}
@@ -413,18 +423,42 @@ func (d *deviceData) life(c, a, f, a0, r, tau0 float64) (tau, slope float64) {
 	}
 	y := math.Floor(k / hy)
 	rem := k - y*hy
-	prev := 0.0
-	for i := range 12 {
-		next := cs*n.sdCum[i+1] + lin*Month*float64(i+1) + fp*n.floorCum[i+1]
-		if rem < next || i == 11 {
-			sl := cs*n.sdFactor[i] + lin + fp*n.floorRate[i]
-			x := 0.0
-			if sl > 0 {
-				x = min(Month, (rem-prev)/sl)
-			}
-			return y*Year + float64(i)*Month + x, sl
-		}
-		prev = next
+	i, prev := d.month(rem, hy, cs, lin, fp)
+	sl := cs*n.sdFactor[i] + lin + fp*n.floorRate[i]
+	x := 0.0
+	if sl > 0 {
+		x = min(Month, (rem-prev)/sl)
 	}
-	return math.Inf(1), 0 // not reached
+	return y*Year + float64(i)*Month + x, sl
+}
+
+// month returns the month of the year (from 0) in which life's remainder
+// rem falls, given H over the year hy and H's parts (self-discharge
+// cs, the linear lin and the floor fp): the first i with rem < H(end of
+// month i), the last at most, and H at the month's start (0 for the
+// first). Where H cannot decrease (its factors and the node's monthly
+// factors not negative), a guess from rem's share of the year, moved down
+// while the month before qualifies too and up while this one does not,
+// finds the same month as a scan from the first, with two or three values
+// of H instead of up to twelve.
+func (d *deviceData) month(rem, hy, cs, lin, fp float64) (i int, prev float64) {
+	n := d.n
+	next := func(i int) float64 {
+		return cs*n.sdCum[i+1] + lin*Month*float64(i+1) + fp*n.floorCum[i+1]
+	}
+	if d.monthsUp && cs >= 0 && lin >= 0 && fp >= 0 {
+		if g := rem / hy * 12; g > 0 {
+			i = min(int(g), 11)
+		}
+		for i > 0 && rem < next(i-1) {
+			i--
+		}
+	}
+	for i < 11 && !(rem < next(i)) {
+		i++
+	}
+	if i > 0 {
+		prev = next(i - 1)
+	}
+	return i, prev
 }

@@ -108,3 +108,58 @@ func TestSortKeys(t *testing.T) {
 		}
 	}
 }
+
+// TestLifeMonth checks life's month search (deviceData.month: a guess
+// from the remainder's share of the year, moved to the first month whose
+// end passes it) against a scan from the first month (the search it
+// replaced, written out here), bit for bit: on nodes with monthly floor
+// and self-discharge factors that vary (0.2 to 3; and with both negative
+// in one month, where month scans), H's parts from 0 to 2 (one negative in an
+// eighth of the cases), remainders from −0.1 to 1.1 years' worth and NaN.
+func TestLifeMonth(t *testing.T) {
+	spec, costs := ridgeSpec(t)
+	m, err := NewDeviceModel(spec, Environment{}, costs, DeviceOptions{})
+	require.NoError(t, err)
+	r := rand.New(rand.NewPCG(15, 9))
+	for _, negative := range []bool{false, true} {
+		d := *m.d
+		n := *d.n
+		d.n = &n
+		for i := range 12 {
+			n.floorRate[i], n.sdFactor[i] = 0.2+2.8*r.Float64(), 0.2+2.8*r.Float64()
+			if negative && i == 5 {
+				n.floorRate[i], n.sdFactor[i] = -3, -3 // H falls in month 5
+			}
+			n.floorCum[i+1] = n.floorCum[i] + Month*n.floorRate[i]
+			n.sdCum[i+1] = n.sdCum[i] + Month*n.sdFactor[i]
+		}
+		d.monthsUp = !negative
+		for j := range 20000 {
+			part := [3]float64{2 * r.Float64(), 2 * r.Float64() / Year, 2 * r.Float64()}
+			if j%8 == 0 {
+				part[j/8%3] = -part[j/8%3]
+			}
+			cs, lin, fp := part[0], part[1], part[2]
+			hy := cs*n.sdCum[12] + lin*Year + fp*n.floorCum[12]
+			rem := hy * (1.2*r.Float64() - 0.1)
+			if j%1000 == 0 {
+				rem = math.NaN()
+			}
+			wantI, wantPrev := 11, 0.0
+			for i := range 12 {
+				next := cs*n.sdCum[i+1] + lin*Month*float64(i+1) + fp*n.floorCum[i+1]
+				if rem < next {
+					wantI = i
+					break
+				}
+				wantPrev = next
+			}
+			if wantI == 11 {
+				wantPrev = cs*n.sdCum[11] + lin*Month*11 + fp*n.floorCum[11]
+			}
+			gotI, gotPrev := d.month(rem, hy, cs, lin, fp)
+			require.Equal(t, wantI, gotI, "rem=%g hy=%g parts %v negative=%v", rem, hy, part, negative)
+			require.Equal(t, math.Float64bits(wantPrev), math.Float64bits(gotPrev))
+		}
+	}
+}

@@ -695,26 +695,27 @@ func (e *evidence) logLikChunk(c, a, f, out []float64) {
 		}
 		tb := r.tab
 		v0, invH, steps := tb.v0, tb.invH, tb.steps
-		lat := tb.g
+		cf := tb.cf
 		pend := 0
 		for k, s := range out {
 			if s < -math.MaxFloat64 {
 				continue
 			}
 			v := vb[k]
-			// readingTable.at, written out for the common case (a lattice
-			// whose four values are set: the same operations, so the same
-			// bits); an unset value (unsetBits, a NaN) makes the cubic NaN,
-			// and a NaN sends the node to at, which sets the values and
-			// gives the same cubic (NaN again only where a value is)
+			// readingTable.at, written out for the common case (a cell
+			// whose cubic coefficients are set: the same operations, so
+			// the same bits); an unset coefficient (unsetBits, a NaN) makes
+			// the cubic NaN, and a NaN sends the node to at, which sets
+			// the values and coefficients and gives the same cubic (NaN
+			// again only where a value is)
 			if steps > 0 {
 				u := (v - v0) * invH
 				j := min(max(int(u), 0), steps-1)
-				g := lat[j : j+4 : j+4]
-				y := [4]float64{math.Float64frombits(g[0].Load()), math.Float64frombits(g[1].Load()),
+				g := cf[4*j : 4*j+4 : 4*j+4]
+				c := [4]float64{math.Float64frombits(g[0].Load()), math.Float64frombits(g[1].Load()),
 					math.Float64frombits(g[2].Load()), math.Float64frombits(g[3].Load())}
-				if c := cubic4(&y, u-float64(j)); c == c {
-					out[k] = s + c
+				if y := cubicAt(&c, u-float64(j)); y == y {
+					out[k] = s + y
 					continue
 				}
 			}

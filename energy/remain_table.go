@@ -20,8 +20,9 @@ import (
 // maxReadingLattice caps a reading table's lattice (points).
 const maxReadingLattice = 4096
 
-// MaxCachedLattice caps the lattice points (8 bytes each) of the reading
-// tables one DeviceModel keeps for all its devices (16 MiB): a reading
+// MaxCachedLattice caps the words (8 bytes each: lattice values, their
+// cells' cubic coefficients, 4 a cell, and loaded-curve points) of the
+// reading tables one DeviceModel keeps for all its devices (16 MiB): a reading
 // whose table would pass it gets a table of its own for that Posterior
 // call (the same values, so the same bits; only slower).
 const MaxCachedLattice = 1 << 21
@@ -38,7 +39,7 @@ type readingKey struct{ drop, lo, hi, sigma float64 }
 // bits).
 type readingCache struct {
 	tables sync.Map     // readingKey → *readingTable
-	points atomic.Int64 // lattice points (and loaded-curve points) held
+	points atomic.Int64 // words held (lattice values, cell coefficients, loaded-curve points)
 }
 
 // readingTable returns the table of a reading with bin [lo, hi) and noise
@@ -52,7 +53,7 @@ func (d *deviceData) readingTable(drop, lo, hi, sigma float64) *readingTable {
 		return v.(*readingTable)
 	}
 	t := newLoadedTable(d.curve, drop, lo, hi, sigma)
-	n := int64(len(t.g) + len(t.vs) + len(t.slope))
+	n := int64(len(t.g) + len(t.cf) + len(t.vs) + len(t.slope))
 	if c.points.Add(n) > MaxCachedLattice {
 		c.points.Add(-n)
 		return t
@@ -76,6 +77,12 @@ type readingTable struct {
 	// g holds the lattice values' bits, len steps+3; unsetBits where
 	// not yet computed.
 	g []atomic.Uint64
+	// cf holds each cell's cubic coefficients' bits (cubicCoef of the
+	// cell's four lattice values: cell j's at cf[4j:4j+4], len 4·steps),
+	// unsetBits where not yet computed: the likelihood loop evaluates
+	// the cubic from them (the same operations as cubic4, so the same
+	// bits) without forming it from the values again.
+	cf []atomic.Uint64
 }
 
 // unsetBits marks a lattice value not yet computed: the bits of a NaN
@@ -115,9 +122,10 @@ func newReadingTable(vs []float64, lo, hi, sigma float64) *readingTable {
 	}
 	t.v0, t.h, t.steps = vmin, span/float64(steps), steps
 	t.invH = 1 / t.h
-	t.g = make([]atomic.Uint64, steps+3)
-	for j := range t.g {
-		t.g[j].Store(unsetBits)
+	w := make([]atomic.Uint64, 5*steps+3)
+	t.g, t.cf = w[:steps+3:steps+3], w[steps+3:]
+	for j := range w {
+		w[j].Store(unsetBits)
 	}
 	return t
 }
@@ -140,7 +148,12 @@ func (t *readingTable) at(x float64) float64 {
 		}
 		y[i] = math.Float64frombits(b)
 	}
-	return cubic4(&y, u-float64(j))
+	c := cubicCoef(&y)
+	cf := t.cf[4*j : 4*j+4 : 4*j+4]
+	for i, v := range c {
+		cf[i].Store(math.Float64bits(v))
+	}
+	return cubicAt(&c, u-float64(j))
 }
 
 // readingStep is the reading table's largest step in units of the
@@ -153,7 +166,19 @@ const readingStep = 0.4
 // y[2])/2 and c1 = y[2] − y[1] − c2 − c3 (the same cubic as Lagrange's
 // form, in fewer operations and without a division).
 func cubic4(y *[4]float64, t float64) float64 {
+	c := cubicCoef(y)
+	return cubicAt(&c, t)
+}
+
+// cubicCoef returns cubic4's coefficients (y[1], c1, c2, c3).
+func cubicCoef(y *[4]float64) [4]float64 {
 	c2 := 0.5*(y[0]+y[2]) - y[1]
 	c3 := (y[3]-y[0])*(1.0/6) + 0.5*(y[1]-y[2])
-	return y[1] + t*((y[2]-y[1]-c2-c3)+t*(c2+t*c3))
+	return [4]float64{y[1], y[2] - y[1] - c2 - c3, c2, c3}
+}
+
+// cubicAt returns the cubic with coefficients c (cubicCoef's) at t, in
+// Horner's form.
+func cubicAt(c *[4]float64, t float64) float64 {
+	return c[0] + t*(c[1]+t*(c[2]+t*c[3]))
 }

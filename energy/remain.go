@@ -153,6 +153,10 @@ type deviceData struct {
 	// none negative, so its cumulative tables never decrease (life's
 	// month search relies on it)
 	monthsUp bool
+	// ridgeT: for each point and coordinate with u < ridgeDefensive, the
+	// ridge stage's Student-t quantile studentT4Quantile(u/ridgeDefensive)
+	// (0 elsewhere), taken once for the model instead of once a device
+	ridgeT [][3]float64
 }
 
 type eventCostData struct {
@@ -241,6 +245,14 @@ func NewDeviceModel(spec NodeSpec, env Environment, costs []EventCost, opt Devic
 	d.ridgeRef = spec.Spread
 	d.z = kroneckerScores(d.nodes)
 	d.u, _ = kroneckerMapped(d.nodes, func(u float64) float64 { return u }, nil)
+	d.ridgeT = make([][3]float64, d.nodes)
+	for k, u := range d.u {
+		for i, ui := range u {
+			if ui < ridgeDefensive {
+				d.ridgeT[k][i] = studentT4Quantile(ui / ridgeDefensive)
+			}
+		}
+	}
 	d.tz, d.tlogq = kroneckerTScores(min(stageFactor*d.nodes, MaxPosteriorNodes))
 	d.c, d.a, d.f = make([]float64, d.nodes), make([]float64, d.nodes), make([]float64, d.nodes)
 	for k, z := range d.z {

@@ -387,7 +387,7 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 		u := d.u[k][solve]
 		var v, qg float64 // the voltage and the profile's density there over exp(hmax)
 		if u < ridgeDefensive {
-			v = mu + scale*studentT4Quantile(u/ridgeDefensive)
+			v = mu + scale*d.ridgeT[k][solve] // studentT4Quantile(u/ridgeDefensive)
 			if v >= gv[0] && v < gv[ridgeGrid-1] {
 				i := min(int((v-gv[0])*invStep), ridgeGrid-2)
 				h0, h1 := gh[i]-hmax, gh[i+1]-hmax

@@ -382,8 +382,11 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 		zs, logw, ws, cs, as, fs = stagePoints(m, nil)
 	}
 	logPhi := -0.5 * math.Log(2*math.Pi)
+	// In two passes (the voltages and the profile's densities there, in cs
+	// and as until the second pass puts the factors in their place; then
+	// the nodes and weights), each a shorter chain of dependent steps a
+	// point, so the processor overlaps more points.
 	for k := range m {
-		zz := d.z[k]
 		u := d.u[k][solve]
 		var v, qg float64 // the voltage and the profile's density there over exp(hmax)
 		if u < ridgeDefensive {
@@ -413,15 +416,21 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 			t, qg = cellPoint(gh[i]-hmax, gh[i+1]-hmax, eh[i], eh[i+1], step, r-mass[i], mass[i+1]-mass[i])
 			v = gv[i] + t
 		}
+		cs[k], as[k] = v, qg
+	}
+	for k := range m {
+		v, qg := cs[k], as[k]
 		// the mixture's density at v: the t component's, (1 + t²/4)^(−5/2)
 		// times its constant, plus the profile's (0 where it underflows:
 		// the t component's is then far larger)
 		tv := (v - mu) * invScale
 		x := 1 + tv*tv/4
 		q := tConst/(x*x*math.Sqrt(x)) + gConst*qg
+		zz := d.z[k]
 		c, a, f, jac, ok := node(v, &zz, d.c[k], d.a[k], d.f[k])
 		zs[k] = zz
 		if !ok {
+			cs[k], as[k] = 0, 0 // (as the allocation left them)
 			logw[k] = math.Inf(-1)
 			continue
 		}

@@ -491,8 +491,25 @@ func (p DevicePosterior) Remaining() PosteriorLaw {
 	if hi < 0 {
 		hi = 0
 	}
-	return p.law(func(c, a, f float64) (float64, float64) {
-		tau, slope := d.life(c, a, f, pd.a0, pd.r, pd.tau0)
+	// Each node's time and drain rate first, in a loop of its own (the
+	// nodes' solutions overlap in the processor), on the stack for the
+	// usual sizes; then the kernels from them.
+	n := len(pd.w)
+	var taus, slopes []float64
+	if n <= DefaultPosteriorNodes {
+		var tBuf, sBuf [DefaultPosteriorNodes]float64
+		taus, slopes = tBuf[:n:n], sBuf[:n:n]
+	} else {
+		buf := make([]float64, 2*n)
+		taus, slopes = buf[:n:n], buf[n:]
+	}
+	for k, w := range pd.w {
+		if w > 0 {
+			taus[k], slopes[k] = d.life(pd.c[k], pd.a[k], pd.f[k], pd.a0, pd.r, pd.tau0)
+		}
+	}
+	return newPostLaw(pd.w, func(k int) (float64, float64) {
+		tau, slope, a := taus[k], slopes[k], pd.a[k]
 		if math.IsInf(tau, 1) || tau-pd.tauNow >= hi {
 			return hi, 0
 		}
@@ -502,7 +519,7 @@ func (p DevicePosterior) Remaining() PosteriorLaw {
 			s = math.Sqrt(v) / slope
 		}
 		return tau - pd.tauNow, s
-	}, 0, hi, "RemainingLife", "y", Year)
+	}, pd.quality(), 0, hi, "RemainingLife", "y", Year)
 }
 
 // Spent returns the law of the energy (J, at the cell) the device has

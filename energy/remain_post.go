@@ -493,13 +493,17 @@ func (p DevicePosterior) Remaining() PosteriorLaw {
 	}
 	// Each node's time and drain rate first, in a loop of its own (the
 	// nodes' solutions overlap in the processor), on the stack for the
-	// usual sizes; then the kernels from them.
+	// usual sizes (see stackNodes); then the kernels from them.
 	n := len(pd.w)
 	var taus, slopes []float64
-	if n <= DefaultPosteriorNodes {
+	switch {
+	case n <= DefaultPosteriorNodes:
 		var tBuf, sBuf [DefaultPosteriorNodes]float64
 		taus, slopes = tBuf[:n:n], sBuf[:n:n]
-	} else {
+	case n <= stackNodes:
+		var tBuf, sBuf [stackNodes]float64
+		taus, slopes = tBuf[:n:n], sBuf[:n:n]
+	default:
 		buf := make([]float64, 2*n)
 		taus, slopes = buf[:n:n], buf[n:]
 	}

@@ -320,8 +320,19 @@ func kroneckerMapped(m int, quantile, logProb func(float64) float64) ([][3]float
 // factors returns the per-node factors (c, a, f) at the standard normal
 // scores z: c = 1 + σc·z₀, a = 1 + σa·z₁, f = exp(σf·z₂).
 func (d *deviceData) factors(z [3]float64) (c, a, f float64) {
+	c, a = d.linearFactors(z)
+	return c, a, d.floorFactor(z[2])
+}
+
+// linearFactors returns factors' capacity and active factors.
+func (d *deviceData) linearFactors(z [3]float64) (c, a float64) {
 	sp := d.spread
-	return 1 + sp.Capacity*z[0], 1 + sp.Active*z[1], math.Exp(sp.Floor * z[2])
+	return 1 + sp.Capacity*z[0], 1 + sp.Active*z[1]
+}
+
+// floorFactor returns factors' floor factor from the floor's score z2.
+func (d *deviceData) floorFactor(z2 float64) float64 {
+	return math.Exp(d.spread.Floor * z2)
 }
 
 // WithSpread returns the model with the per-node spreads sp instead of

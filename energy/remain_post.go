@@ -295,10 +295,15 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 					mu[2] + l[2][0]*zeta[0] + l[2][1]*zeta[1] + l[2][2]*zeta[2],
 				}
 				nz[k] = z
-				nc[k], na[k], nf[k] = d.factors(z)
+				nc[k], na[k] = d.linearFactors(z)
 				q := d.tlogq[k] - logDet
 				pr := -0.5*(z[0]*z[0]+z[1]*z[1]+z[2]*z[2]) - 1.5*log2Pi // log prior density, normalised as q is
 				nl[k] = pr - q
+			}
+			// the floor factors (d.factors' third) in a loop of their own:
+			// the exponentials overlap in the processor
+			for k := from; k < to; k++ {
+				nf[k] = d.floorFactor(nz[k][2])
 			}
 			ev.logLik(nc[from:to], na[from:to], nf[from:to], nl[from:to])
 		}

@@ -417,7 +417,10 @@ func (n *node) settingAt(j int, t float64) (alive, dead, errEst float64) {
 				return 0, 1, 0
 			}
 		}
-		return s.sums.CDF(int(kk), x), s.sums.Survival(int(kk), x), 0
+		// Both tails from one evaluation, each computed directly (as CDF
+		// and Survival return them, each from an evaluation of its own).
+		below, above := s.sums.Tails(int(kk), x)
+		return below, above, 0
 	}
 	return n.normalPart(capLeft, mean, k*s.k2, floorE, h, 0)
 }

@@ -133,6 +133,12 @@ func NewSite(spec SiteSpec) (Site, error) {
 // buildSite is NewSite with the rule's highest level per factor (an
 // index into sharedOrders) and the target of its estimated error.
 func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
+	return buildSiteFrom(spec, [2]int{}, top, tol)
+}
+
+// buildSiteFrom is buildSite with the rule's first level per factor
+// (start, at most top; a test's reference rule).
+func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) {
 	const fn = "NewSite"
 	if len(spec.Groups) == 0 || len(spec.Groups) > MaxSiteGroups {
 		return Site{}, paramErr(fn, "spec.Groups", len(spec.Groups), fmt.Sprintf("must hold 1 to %d groups", MaxSiteGroups))
@@ -185,7 +191,7 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 	}
 	cache := map[key]built{}
 	months := &monthCache{}
-	level := [2]int{0, 0}
+	level := start
 	for {
 		for d := range 2 {
 			s.fac[d] = newSharedFactor(sds[d] > 0, kinks[d], sharedOrders[level[d]])
@@ -292,7 +298,8 @@ func buildSite(spec SiteSpec, top [2]int, tol float64) (Site, error) {
 		if sds[d] == 0 || level[d] >= top[d] {
 			break
 		}
-		// The next order that adds nodes (a piece keeps at least four).
+		// The next order that adds nodes (a piece keeps at least
+		// sharedPieceMin or sharedSmallMin).
 		next := level[d] + 1
 		for next < top[d] && len(newSharedFactor(true, kinks[d], sharedOrders[next]).z) == len(s.fac[d].z) {
 			next++

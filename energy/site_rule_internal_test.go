@@ -262,3 +262,81 @@ func TestSiteQuickMoments(t *testing.T) {
 		t.Logf("law %d: mean %.6g s (stated ±%.2g, moved %.2g), sd %.6g s", i, m.Mean(), em, m.Mean()-plain.Mean(), math.Sqrt(m.Variance()))
 	}
 }
+
+// kinkedSiteSpec is TwoFactorSiteSpec with a voltage curve
+// (TypicalBobbinCurve, brown-out 2.8 V) and a climate whose coldest day
+// (−0.75 °C: monthly means 10 ± 7.75 °C, daily swing 6 °C) lies half a
+// temperature spread (1.5 °C) below the curve's 0 °C point: the lifetime
+// has a kink against the temperature offset at +0.5 sd, as in the
+// fleetplan demo (invented figures), which splits the factor's rule into
+// pieces with about 0.69 and 0.31 of its mass.
+func kinkedSiteSpec(t testing.TB) SiteSpec {
+	t.Helper()
+	spec := TwoFactorSiteSpec(t)
+	clim, err := NewSeasonalClimate(10, 7.75, 6, 6)
+	require.NoError(t, err)
+	spec.Climate = &clim
+	vc := TypicalBobbinCurve()
+	for g := range spec.Groups {
+		spec.Groups[g].Node.Voltage = &vc
+		spec.Groups[g].Node.Brownout = 2.8
+	}
+	return spec
+}
+
+// A factor's rule split by a kink keeps at least four nodes in a piece
+// with at least 0.4 of the factor's mass and three in a smaller one. The
+// site's laws must then be within their stated errors of a reference: the
+// same site under a much finer rule (batch 7 Gauss–Hermite nodes,
+// temperature 21 nodes in the two pieces), at the node laws' 0.001 to 0.9
+// points, for each group's node law and first failure and the fleet's
+// first failure.
+func TestSiteKinkedRuleAgainstFinerRule(t *testing.T) {
+	if testing.Short() {
+		t.Skip("a reference site of about 300 conditional node laws")
+	}
+	spec := kinkedSiteSpec(t)
+	s, err := NewSite(spec)
+	require.NoError(t, err)
+	require.Len(t, s.fac[1].edges, 3, "the temperature factor has one kink")
+	assert.InDelta(t, 0.5, s.fac[1].edges[1], 1e-9, "the kink's place (sd)")
+	top := [2]int{len(sharedOrders) - 1, len(sharedOrders) - 1}
+	ref, err := buildSiteFrom(spec, [2]int{2, 5}, top, math.Inf(1))
+	require.NoError(t, err)
+	require.Greater(t, len(ref.fac[1].z), 2*len(s.fac[1].z), "the reference's temperature rule is finer")
+	require.Greater(t, len(ref.fac[0].z), len(s.fac[0].z), "the reference's batch rule is finer")
+	t.Logf("rule: batch %d, temperature %d nodes (pieces %v); reference: %d and %d", len(s.fac[0].z), len(s.fac[1].z), s.fac[1].piece, len(ref.fac[0].z), len(ref.fac[1].z))
+	type pair struct {
+		name     string
+		kind     lawKind
+		g        int
+		got, ref func() (dist.Law, error)
+	}
+	var laws []pair
+	for g := range s.names {
+		g := g
+		laws = append(laws,
+			pair{"node " + s.names[g], kindNode, g, func() (dist.Law, error) { return s.NodeLifetime(g) }, func() (dist.Law, error) { return ref.NodeLifetime(g) }},
+			pair{"first failure " + s.names[g], kindFirst, g, func() (dist.Law, error) { return s.GroupFirstFailure(g) }, func() (dist.Law, error) { return ref.GroupFirstFailure(g) }})
+	}
+	laws = append(laws, pair{"fleet's first failure", kindFleet, 0, s.FirstFailure, ref.FirstFailure})
+	node, err := s.NodeLifetime(0)
+	require.NoError(t, err)
+	worst := 0.0
+	for _, p := range laws {
+		got, err := p.got()
+		require.NoError(t, err)
+		want, err := p.ref()
+		require.NoError(t, err)
+		global := got.(dist.Estimated).Accuracy().CDFAbs + want.(dist.Estimated).Accuracy().CDFAbs
+		for _, q := range []float64{0.001, 0.01, 0.1, 0.5, 0.9} {
+			tm := node.Quantile(q)
+			d := math.Abs(got.CDF(tm) - want.CDF(tm))
+			_, local := s.ruleError(tm, p.kind, p.g, 0)
+			worst = max(worst, d/local)
+			assert.LessOrEqual(t, d, local, "%s at the node law's %g point: the rule's estimate there", p.name, q)
+			assert.LessOrEqual(t, d, global, "%s at the node law's %g point: the laws' stated errors", p.name, q)
+		}
+	}
+	t.Logf("largest difference from the reference: %.2f of the rule's estimate there", worst)
+}

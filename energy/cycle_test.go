@@ -250,3 +250,33 @@ func TestCycleStatesByHand(t *testing.T) {
 	first[0] = energy.State{}
 	assert.Equal(t, []string{"wake", "sense", "tx", "rx-timeout", "rx"}, names(c.States()))
 }
+
+// A cycle of fixed states at a fixed period has one energy: its variance
+// is exactly 0 (a constant's variance, by definition), never a rounding
+// residue below it (which gave shares of the variance of 1e-19 or 1.0008
+// where there is none to share); with a random duration it is the product formula's
+// Var X·Var Y + Var X·(E Y)² + Var Y·(E X)² (independent X, Y; the
+// textbook identity), here with a fixed power P: P²·Var T.
+func TestCycleFixedVarianceZero(t *testing.T) {
+	for _, tc := range []struct {
+		name string
+		amps float64
+		secs float64
+	}{
+		{"uplink", 40 * energy.MilliAmp, 0.37},
+		{"listen", 11 * energy.MilliAmp, 0.21},
+		{"sense", 1.5 * energy.MilliAmp, 0.1},
+	} {
+		s := energy.MustFixedState(tc.name, tc.amps, volts, tc.secs)
+		c := energy.MustCycle(energy.MustSequence(s), dist.MustPointMass(900), 5e-6*volts)
+		assert.Equal(t, 0.0, c.EnergyVariance(), tc.name)
+		for _, b := range c.Breakdown() {
+			assert.True(t, math.IsNaN(b.VarianceShare), "%s: %q: no variance to share (Share.VarianceShare)", tc.name, b.Name)
+		}
+	}
+	d := dist.MustUniform(0.05, 0.15)
+	s := energy.MustState("sense", dist.MustPointMass(1.5*energy.MilliAmp), volts, d)
+	c := energy.MustCycle(energy.MustSequence(s), dist.MustPointMass(900), 0)
+	p := 1.5 * energy.MilliAmp * volts
+	assert.InDelta(t, p*p*d.Variance(), c.EnergyVariance(), 1e-15*p*p*d.Variance())
+}

@@ -222,9 +222,12 @@ func (s State) moments(floor float64) moments {
 	mp, vp := s.power.Mean(), s.power.Variance()
 	mt, vt := s.duration.Mean(), s.duration.Variance()
 	mx := mp - floor
-	// E[(XY)²] - (E X E Y)² for independent X, Y.
-	ownVar := (vp+mp*mp)*(vt+mt*mt) - mp*mp*mt*mt
-	exVar := (vp+mx*mx)*(vt+mt*mt) - mx*mx*mt*mt
+	// Var(XY) = E[(XY)²] − (E X·E Y)² = Var X·Var Y + Var X·(E Y)² +
+	// Var Y·(E X)² for independent X, Y: the sum of non-negative terms,
+	// without the difference's cancellation (which left a fixed state's
+	// variance at −3e-20 J² rather than 0).
+	ownVar := vp*vt + vp*mt*mt + vt*mp*mp
+	exVar := vp*vt + vp*mt*mt + vt*mx*mx
 	return moments{
 		meanX: mx * mt, varX: exVar,
 		meanT: mt, varT: vt,

@@ -21,7 +21,11 @@ import (
 // Every term is exact but for rounding; the sums are cut where the masses
 // left (bounded by a geometric series, the mass ratios falling away from the
 // mode) are below 1e-17 of the smaller tail, so both tails keep their
-// relative precision. The cost is about 8·sd(N_c) conditional tails of about
+// relative precision. Each conditional tail is known to 1e-13 of itself or,
+// where its weight in the sum is small, to an absolute error: the weighted
+// errors of the tails so kept stay within 1e-13 of the sum (so far, so of
+// the final one), sparing direct computations of tails the sum barely
+// sees. The cost is about 8·sd(N_c) conditional tails of about
 // 8·sd(N_b) masses each, independent of k's size otherwise.
 //
 // Ties: an atom counts as <= x when its value as atomValue3 rounds it is;
@@ -89,6 +93,7 @@ func (a atomicSums) three(k int64, x float64) (below, above float64) {
 		nm = k
 	}
 	rp := pc / (1 - pc)
+	var usedB, usedA float64 // absolute errors of tails kept beyond their relative bound, weighted
 	// upward from the mode, then downward; each direction stops once the
 	// masses left are below 1e-17 of the smaller tail found so far (or
 	// below 1e-300).
@@ -107,7 +112,16 @@ func (a atomicSums) three(k int64, x float64) (below, above float64) {
 			} else {
 				pm *= float64(n+1) / float64(k-n) / rp
 			}
-			ct.move(k-n, float64(jOf(n))+0.5, q)
+			// A tail may keep an absolute error beyond its relative bound
+			// while all such errors together stay within 1e-13 of the sum
+			// so far (below the final one).
+			var allowB, allowA float64
+			if pm > 0 {
+				allowB, allowA = (1e-13*below-usedB)/pm, (1e-13*above-usedA)/pm
+			}
+			ub, ua := ct.moveWithin(k-n, float64(jOf(n))+0.5, q, allowB, allowA)
+			usedB += pm * ub
+			usedA += pm * ua
 			b, s := ct.lo, ct.hi
 			below += pm * b
 			above += pm * s
@@ -139,7 +153,9 @@ func (a atomicSums) three(k int64, x float64) (below, above float64) {
 // (binomialSideTails) every 32 moves, after a tail was clamped to 0 or 1,
 // and whenever the rounding the updates may have brought to a tail
 // (tracked for each) passes 1e-13 of it, as when a long run of masses is
-// taken from a tail near 1, so each tail keeps its relative precision.
+// taken from a tail near 1, so each tail keeps its relative precision;
+// moveWithin keeps a tail past that where the caller allows its absolute
+// error.
 type condTails struct {
 	m, j   int64
 	lo, hi float64
@@ -149,21 +165,30 @@ type condTails struct {
 	valid  bool
 }
 
-// move sets the tails to m and j = ⌊y⌋ (clamped to [−1, m]).
-func (c *condTails) move(m int64, y, q float64) {
+// move sets the tails to m and j = ⌊y⌋ (clamped to [−1, m]), each tail
+// to 1e-13 of itself.
+func (c *condTails) move(m int64, y, q float64) { c.moveWithin(m, y, q, 0, 0) }
+
+// moveWithin is move where a tail that is no longer known to 1e-13 of
+// itself is kept all the same when its absolute error bound is within
+// allowLo (lo) or allowHi (hi) and it is not negative: three allows what
+// its sum can take (the tail's weight in it being small) and spares the
+// direct computation. It returns the absolute error bounds of the tails
+// so kept (0 for a tail within its relative bound or computed afresh).
+func (c *condTails) moveWithin(m int64, y, q, allowLo, allowHi float64) (usedLo, usedHi float64) {
 	var j int64
 	switch {
 	case y < 0:
 		*c = condTails{m: m, j: -1, lo: 0, hi: 1}
-		return
+		return 0, 0
 	case y >= float64(m):
 		*c = condTails{m: m, j: m, lo: 1, hi: 0}
-		return
+		return 0, 0
 	}
 	j = int64(y)
 	if !c.valid || c.moves >= 32 || (c.m != m+1 && c.m != m-1) || c.j < 0 || c.j >= c.m {
 		c.fresh(m, j, q)
-		return
+		return 0, 0
 	}
 	mf := float64(m)
 	// Pascal's rule to m at the old j
@@ -189,11 +214,24 @@ func (c *condTails) move(m int64, y, q float64) {
 	upd := 1e-14 * (math.Abs(d) + s)
 	c.errLo += upd + 0x1p-52*c.lo
 	c.errHi += upd + 0x1p-52*c.hi
-	if !(c.errLo <= 1e-13*c.lo && c.errHi <= 1e-13*c.hi) {
-		// a tail is no longer known to 1e-13 of itself (or went negative,
-		// or is empty): compute afresh
-		c.fresh(m, j, q)
+	okLo, okHi := c.errLo <= 1e-13*c.lo, c.errHi <= 1e-13*c.hi
+	if okLo && okHi {
+		return 0, 0
 	}
+	if c.lo >= 0 && c.hi >= 0 && (okLo || c.errLo <= allowLo) && (okHi || c.errHi <= allowHi) {
+		// known to within what the caller allows
+		if !okLo {
+			usedLo = c.errLo
+		}
+		if !okHi {
+			usedHi = c.errHi
+		}
+		return usedLo, usedHi
+	}
+	// a tail is no longer known well enough (or went negative, or is
+	// empty): compute afresh
+	c.fresh(m, j, q)
+	return 0, 0
 }
 
 // fresh computes the tails at m, j directly.

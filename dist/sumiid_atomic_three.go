@@ -148,8 +148,10 @@ func (a atomicSums) three(k int64, x float64) (below, above float64) {
 //
 //	P(Bin(m, q) <= j) = P(Bin(m−1, q) <= j) − q·P(Bin(m−1, q) = j)
 //
-// and by adding the masses between the old and the new j (binomialRun),
-// each tail updated on its own. They are computed afresh
+// and by adding the masses between the old and the new j, each tail
+// updated on its own. The masses come from one walk that starts from the
+// mass at the old j carried from the move before (walkTo: no Loader value
+// for most moves), or from binomialRun for runs longer than 64 masses. They are computed afresh
 // (binomialSideTails) every 32 moves, after a tail was clamped to 0 or 1,
 // and whenever the rounding the updates may have brought to a tail
 // (tracked for each) passes 1e-13 of it, as when a long run of masses is
@@ -163,6 +165,10 @@ type condTails struct {
 	errLo  float64 // bounds on the rounding each tail took on since then
 	errHi  float64
 	valid  bool
+	// P(Bin(m, q) = j) carried from move to move (0: none), a bound on
+	// its relative error and its ratio steps since Loader's value
+	pj, relPj float64
+	since     int
 }
 
 // move sets the tails to m and j = ⌊y⌋ (clamped to [−1, m]), each tail
@@ -190,28 +196,34 @@ func (c *condTails) moveWithin(m int64, y, q, allowLo, allowHi float64) (usedLo,
 		c.fresh(m, j, q)
 		return 0, 0
 	}
-	mf := float64(m)
-	// Pascal's rule to m at the old j
-	var d float64
-	if m == c.m-1 {
-		d = q * math.Exp(logBinom(mf, float64(c.j), q)) // q·P(Bin(m) = j)
-	} else {
-		d = -q * math.Exp(logBinom(float64(c.m), float64(c.j), q)) // −q·P(Bin(m−1) = j)
+	d, s, sign, rel, ok := c.walkTo(m, j, q)
+	if !ok {
+		// Pascal's rule to m at the old j, the masses between from
+		// Loader's values (a run too long for one walk, or masses near
+		// the float range's end)
+		mf := float64(m)
+		if m == c.m-1 {
+			d = q * math.Exp(logBinom(mf, float64(c.j), q)) // q·P(Bin(m) = j)
+		} else {
+			d = -q * math.Exp(logBinom(float64(c.m), float64(c.j), q)) // −q·P(Bin(m−1) = j)
+		}
+		// the masses of Bin(m) between the old and the new j
+		a, b := c.j+1, j // add masses a..b
+		sign = 1.0
+		if j < c.j {
+			a, b, sign = j+1, c.j, -1
+		}
+		s = binomialRun(m, a, b, q)
+		// each mass is good to about 1e-14 of itself (Loader's terms and
+		// at most 64 ratio steps), each sum to its rounding
+		rel = 1e-14
+		c.pj = 0 // not carried
 	}
-	// the masses of Bin(m) between the old and the new j
-	a, b := c.j+1, j // add masses a..b
-	sign := 1.0
-	if j < c.j {
-		a, b, sign = j+1, c.j, -1
-	}
-	s := binomialRun(m, a, b, q)
 	c.lo += d + sign*s
 	c.hi -= d + sign*s
 	c.m, c.j = m, j
 	c.moves++
-	// each mass is good to about 1e-14 of itself (Loader's terms and at
-	// most 64 ratio steps), each sum to its rounding
-	upd := 1e-14 * (math.Abs(d) + s)
+	upd := rel * (math.Abs(d) + s)
 	c.errLo += upd + 0x1p-52*c.lo
 	c.errHi += upd + 0x1p-52*c.hi
 	okLo, okHi := c.errLo <= 1e-13*c.lo, c.errHi <= 1e-13*c.hi
@@ -234,10 +246,79 @@ func (c *condTails) moveWithin(m int64, y, q, allowLo, allowHi float64) (usedLo,
 	return 0, 0
 }
 
-// fresh computes the tails at m, j directly.
+// walkTo returns Pascal's term d (q·P(Bin(m) = j_old) for m = c.m − 1,
+// −q·P(Bin(m−1) = j_old) for m = c.m + 1), the sum s of the masses of
+// Bin(m) between the old j and the new (sign +1 where they are added, −1
+// where taken away) and a bound rel on the relative error of d and of s,
+// all from one walk (internal/binom) that starts at the old j from the
+// mass carried from the last move (WithN to the new m: no LogPMF) or, where
+// none is carried, from Loader's value, and leaves the mass at the new j
+// for the next move. ok is false (nothing changed) where the run is longer
+// than 64 masses or a mass at its ends is below 1e-280 (near the float
+// range's end, where a ratio step loses precision).
+func (c *condTails) walkTo(m, j int64, q float64) (d, s, sign, rel float64, ok bool) {
+	dj := j - c.j
+	if dj < 0 {
+		dj = -dj
+	}
+	if dj > 64 {
+		return 0, 0, 0, 0, false
+	}
+	var w binom.Walk
+	var rel0 float64
+	base := 0 // steps from the carried mass's start to the old j
+	if c.pj >= 1e-280 && c.since+int(dj)+2 <= 64 {
+		w = binom.WalkFrom(float64(c.j), float64(c.m), q, 1-q, c.pj, 0)
+		rel0, base = c.relPj, c.since
+	} else {
+		w = binom.NewWalk(float64(c.j), float64(c.m), q, 1-q, 0)
+		rel0 = binom.Rel(float64(c.j), float64(c.m), q, 1-q)
+	}
+	if m == c.m+1 {
+		d = -q * w.P
+	}
+	w = w.WithN(float64(m))
+	if m == c.m-1 {
+		d = q * w.P
+	}
+	if w.P < 1e-280 {
+		return 0, 0, 0, 0, false
+	}
+	n := 0 // masses summed
+	switch {
+	case j > c.j:
+		sign = 1
+		for w.X < float64(j) {
+			w.Up()
+			s += w.P
+			n++
+		}
+	case j < c.j:
+		sign = -1
+		s = w.P
+		n++
+		for w.X > float64(j+1) {
+			w.Down()
+			s += w.P
+			n++
+		}
+		w.Down()
+	}
+	if w.P < 1e-280 {
+		return 0, 0, 0, 0, false
+	}
+	steps := base + w.Steps()
+	c.pj, c.relPj, c.since = w.P, binom.RelAfter(rel0, steps), steps
+	// every mass is at most steps from the start; the sum rounds once a
+	// mass, d once more
+	return d, s, sign, c.relPj + 0x1p-53*float64(n+1), true
+}
+
+// fresh computes the tails at m, j directly, and the mass at j that moves
+// carry.
 func (c *condTails) fresh(m, j int64, q float64) {
-	lo, hi := binomialSideTails(m, j, q)
-	*c = condTails{m: m, j: j, lo: lo, hi: hi, valid: true}
+	lo, hi, pj, rel, steps := binomialSideTailsMass(m, j, q)
+	*c = condTails{m: m, j: j, lo: lo, hi: hi, valid: true, pj: pj, relPj: rel, since: steps}
 }
 
 // binomialRun returns P(a <= N <= b) for N ~ Binomial(m, q) (0 for a > b),
@@ -272,10 +353,19 @@ func binomialRun(m, a, b int64, q float64) float64 {
 // sum; the other tail is its complement (at least about 1/2, so it keeps
 // its relative precision).
 func binomialSideTails(n, j int64, p float64) (atMost, above float64) {
+	atMost, above, _, _, _ = binomialSideTailsMass(n, j, p)
+	return atMost, above
+}
+
+// binomialSideTailsMass is binomialSideTails with the mass P(N = j), a
+// bound on its relative error (binom.Rel, binom.RelAfter) and its ratio
+// steps from Loader's value (0 or 1).
+func binomialSideTailsMass(n, j int64, p float64) (atMost, above, pj, rel float64, steps int) {
 	nf := float64(n)
 	mode := math.Floor((nf + 1) * p)
 	if float64(j) < mode {
 		w := binom.NewWalk(float64(j), nf, p, 1-p, 64)
+		pj = w.P
 		s := w.P
 		for w.X > 0 && w.P > 0 {
 			r := w.RatioDown() // P(i−1)/P(i)
@@ -285,9 +375,10 @@ func binomialSideTails(n, j int64, p float64) (atMost, above float64) {
 			w.Down()
 			s += w.P
 		}
-		return s, 1 - s
+		return s, 1 - s, pj, binom.Rel(float64(j), nf, p, 1-p), 0
 	}
 	w := binom.NewWalk(float64(j+1), nf, p, 1-p, 64)
+	w0 := w
 	s := w.P
 	for w.X < nf && w.P > 0 {
 		r := w.RatioUp() // P(i+1)/P(i)
@@ -297,5 +388,6 @@ func binomialSideTails(n, j int64, p float64) (atMost, above float64) {
 		w.Up()
 		s += w.P
 	}
-	return 1 - s, s
+	w0.Down()
+	return 1 - s, s, w0.P, binom.RelAfter(binom.Rel(float64(j+1), nf, p, 1-p), 1), 1
 }

@@ -32,6 +32,34 @@ func NewWalk(x, n, p, q float64, every int) Walk {
 	return Walk{X: x, P: math.Exp(LogPMF(x, n, p, q)), n: n, p: p, q: q, up: p / q, down: q / p, every: every}
 }
 
+// WalkFrom is NewWalk with the value at its start given: P = P(Bin(n, p)
+// = x) as a walk (or WithN) left it, so that a caller carrying a mass
+// from one law to the next spares LogPMF. Its steps count from this start:
+// the caller adds the error P had (RelAfter of its own start and steps).
+func WalkFrom(x, n, p, q, P float64, every int) Walk {
+	return Walk{X: x, P: P, n: n, p: p, q: q, up: p / q, down: q / p, every: every}
+}
+
+// WithN returns the walk of Bin(n2, p), n2 = n ± 1, at the same X (X <=
+// min(n, n2)), its value from this one's by the ratio
+//
+//	P(Bin(n+1, p) = x)/P(Bin(n, p) = x) = (n+1)·q/(n+1−x)
+//
+// (C(n+1, x)/C(n, x) = (n+1)/(n+1−x)) or its inverse: one step, rounding
+// three times (the product, the quotient, the product with P), so the
+// walk's error bound (RelAfter) holds with the step counted. The value is
+// not taken afresh here (a following step may do it).
+func (w Walk) WithN(n2 float64) Walk {
+	if n2 > w.n {
+		w.P *= n2 * w.q / (n2 - w.X)
+	} else {
+		w.P *= (w.n - w.X) / (w.n * w.q)
+	}
+	w.n = n2
+	w.steps++
+	return w
+}
+
 // RatioUp returns P(X+1)/P(X) as Up applies it.
 func (w *Walk) RatioUp() float64 { return (w.n - w.X) / (w.X + 1) * w.up }
 

@@ -97,3 +97,56 @@ func TestWalkGonum(t *testing.T) {
 	}
 	assert.InDelta(t, 1, w.P/b.Prob(300), 1e-11, "the start")
 }
+
+// TestWalkWithN: a value carried from Bin(n, p) to Bin(n ± 1, p) (WithN),
+// up to 40 times in a row with a few steps of the count between, against
+// the exact masses (256-bit arithmetic, p = a/d exact in binary) of each
+// law, within RelAfter(Rel(start), steps); at the mode and in a tail, and
+// a walk from a given value (WalkFrom) the same as one from LogPMF.
+func TestWalkWithN(t *testing.T) {
+	t.Parallel()
+	exact := map[int64][]float64{}
+	mass := func(n, a, d, x int64) float64 {
+		if _, ok := exact[n]; !ok {
+			exact[n] = exactMasses(n, a, d)
+		}
+		return exact[n][x]
+	}
+	for _, tc := range []struct{ n, a, d, x, dn, dx int64 }{
+		{400, 1, 4, 100, -1, 1}, {400, 1, 4, 30, 1, -1}, {400, 1, 4, 100, 1, 2}, {600, 3, 8, 150, -1, -3},
+	} {
+		clear(exact)
+		p := float64(tc.a) / float64(tc.d)
+		w := NewWalk(float64(tc.x), float64(tc.n), p, 1-p, 0)
+		rel0 := Rel(float64(tc.x), float64(tc.n), p, 1-p)
+		g := WalkFrom(w.X, float64(tc.n), p, 1-p, w.P, 0)
+		g.Up()
+		w2 := w
+		w2.Up()
+		assert.Equal(t, w2.P, g.P, "WalkFrom then Up")
+		n := tc.n
+		worst := 0.0
+		for range 40 {
+			n += tc.dn
+			w = w.WithN(float64(n))
+			for range 2 {
+				if tc.dx > 0 {
+					for range tc.dx {
+						w.Up()
+					}
+				} else {
+					for range -tc.dx {
+						w.Down()
+					}
+				}
+				want := mass(n, tc.a, tc.d, int64(w.X))
+				e := math.Abs(w.P-want) / want
+				bound := RelAfter(rel0, w.Steps())
+				worst = math.Max(worst, e/bound)
+				require.LessOrEqual(t, e, bound, "Bin(%d, %g) x=%g after %d steps", n, p, w.X, w.Steps())
+				tc.dx = -tc.dx // there and back
+			}
+		}
+		t.Logf("Bin(%d, %g) from %d, n by %d: worst error %.2f of the bound", tc.n, p, tc.x, tc.dn, worst)
+	}
+}

@@ -172,7 +172,7 @@ type condTails struct {
 }
 
 // move sets the tails to m and j = ⌊y⌋ (clamped to [−1, m]), each tail
-// to 1e-13 of itself.
+// to 1e-13 of itself (or 0 where it rounds to 0).
 func (c *condTails) move(m int64, y, q float64) { c.moveWithin(m, y, q, 0, 0) }
 
 // moveWithin is move where a tail that is no longer known to 1e-13 of
@@ -192,6 +192,42 @@ func (c *condTails) moveWithin(m int64, y, q, allowLo, allowHi float64) (usedLo,
 		return 0, 0
 	}
 	j = int64(y)
+	// Far in a tail: by the Chernoff–Hoeffding bound (Hoeffding 1963, J.
+	// Amer. Statist. Assoc. 58:13–30, Thm 1; N a sum of m Bernoulli terms)
+	// P(N <= i) <= exp(−D(i)) for i <= mq and P(N >= i) <= exp(−D(i)) for
+	// i >= mq, D(i) = m·KL(i/m ‖ q), which is Loader's two deviance terms
+	// (binom.Deviance; their rounding far below the margin of 1 taken off
+	// here). Where that bound h on a tail is below half the smallest
+	// float (the tail rounds to 0) or within 1e-3 of what the caller
+	// allows, the tail is 0 (the other 1, within rounding of its value),
+	// with h its absolute error in the latter case, sparing masses that
+	// may be too small for a walk. D is evaluated only past 8 sd.
+	if j > 0 && j+1 < m {
+		mf := float64(m)
+		mq, mr := mf*q, mf*(1-q)
+		v := mq * (1 - q)
+		const zero = 746 // past this exp(1 − D) < exp(−745) < 2^-1075
+		farOff := func(i, allow float64) (used float64, ok bool) {
+			d := binom.Deviance(i, mq) + binom.Deviance(mf-i, mr)
+			if d > zero {
+				return 0, true
+			}
+			h := math.Exp(1 - d)
+			return h, h <= 1e-3*allow
+		}
+		if dl := mq - float64(j); dl > 0 && dl*dl > 64*v {
+			if h, ok := farOff(float64(j), allowLo); ok {
+				*c = condTails{m: m, j: j, lo: 0, hi: 1}
+				return h, 0
+			}
+		}
+		if dh := float64(j+1) - mq; dh > 0 && dh*dh > 64*v {
+			if h, ok := farOff(float64(j+1), allowHi); ok {
+				*c = condTails{m: m, j: j, lo: 1, hi: 0}
+				return 0, h
+			}
+		}
+	}
 	if !c.valid || c.moves >= 32 || (c.m != m+1 && c.m != m-1) || c.j < 0 || c.j >= c.m {
 		c.fresh(m, j, q)
 		return 0, 0

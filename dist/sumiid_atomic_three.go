@@ -152,7 +152,7 @@ func (a atomicSums) three(k int64, x float64) (below, above float64) {
 // updated on its own. The masses come from one walk that starts from the
 // mass at the old j carried from the move before (walkTo: no Loader value
 // for most moves), or from binomialRun for runs longer than 64 masses. They are computed afresh
-// (binomialSideTails) every 32 moves, after a tail was clamped to 0 or 1,
+// (binomialSideTails) every 256 moves, after a tail was clamped to 0 or 1,
 // and whenever the rounding the updates may have brought to a tail
 // (tracked for each) passes 1e-13 of it, as when a long run of masses is
 // taken from a tail near 1, so each tail keeps its relative precision;
@@ -228,7 +228,7 @@ func (c *condTails) moveWithin(m int64, y, q, allowLo, allowHi float64) (usedLo,
 			}
 		}
 	}
-	if !c.valid || c.moves >= 32 || (c.m != m+1 && c.m != m-1) || c.j < 0 || c.j >= c.m {
+	if !c.valid || c.moves >= 256 || (c.m != m+1 && c.m != m-1) || c.j < 0 || c.j >= c.m {
 		c.fresh(m, j, q)
 		return 0, 0
 	}

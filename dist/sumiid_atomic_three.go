@@ -192,22 +192,31 @@ func (c *condTails) moveWithin(m int64, y, q, allowLo, allowHi float64) (usedLo,
 		return 0, 0
 	}
 	j = int64(y)
-	// Far in a tail: by the Chernoff–Hoeffding bound (Hoeffding 1963, J.
-	// Amer. Statist. Assoc. 58:13–30, Thm 1; N a sum of m Bernoulli terms)
-	// P(N <= i) <= exp(−D(i)) for i <= mq and P(N >= i) <= exp(−D(i)) for
-	// i >= mq, D(i) = m·KL(i/m ‖ q), which is Loader's two deviance terms
-	// (binom.Deviance; their rounding far below the margin of 1 taken off
-	// here). Where that bound h on a tail is below half the smallest
+	// Far in a tail: by Bernstein's inequality (N a sum of m Bernoulli
+	// terms, each within 1 of its mean; Bernstein 1924, in the form of
+	// Boucheron, Lugosi & Massart 2013, Thm 2.10, from memory) and the
+	// Chernoff–Hoeffding bound (Hoeffding 1963, J. Amer. Statist. Assoc.
+	// 58:13–30, Thm 1), for δ = |i − mq| > 0 on either side,
+	// P(N <= i), P(N >= i) <= exp(−B) and exp(−D),
+	// B = δ²/(2(v + δ/3)) (v = mq(1 − q)), D = m·KL(i/m ‖ q), D the
+	// sharper (Loader's two deviance terms, binom.Deviance), B free of
+	// logarithms so tried first. Where a bound h on a tail (a margin of 1
+	// taken off the exponent for its rounding) is below half the smallest
 	// float (the tail rounds to 0) or within 1e-3 of what the caller
 	// allows, the tail is 0 (the other 1, within rounding of its value),
 	// with h its absolute error in the latter case, sparing masses that
-	// may be too small for a walk. D is evaluated only past 8 sd.
+	// may be too small for a walk. Tried only past 8 sd.
 	if j > 0 && j+1 < m {
 		mf := float64(m)
 		mq, mr := mf*q, mf*(1-q)
 		v := mq * (1 - q)
-		const zero = 746 // past this exp(1 − D) < exp(−745) < 2^-1075
-		farOff := func(i, allow float64) (used float64, ok bool) {
+		const zero = 746 // past this exp(1 − x) < exp(−745) < 2^-1075
+		farOff := func(i, delta, allow float64) (used float64, ok bool) {
+			if b := delta * delta / (2 * (v + delta/3)); b > zero {
+				return 0, true
+			} else if h := math.Exp(1 - b); h <= 1e-3*allow {
+				return h, true
+			}
 			d := binom.Deviance(i, mq) + binom.Deviance(mf-i, mr)
 			if d > zero {
 				return 0, true
@@ -216,13 +225,13 @@ func (c *condTails) moveWithin(m int64, y, q, allowLo, allowHi float64) (usedLo,
 			return h, h <= 1e-3*allow
 		}
 		if dl := mq - float64(j); dl > 0 && dl*dl > 64*v {
-			if h, ok := farOff(float64(j), allowLo); ok {
+			if h, ok := farOff(float64(j), dl, allowLo); ok {
 				*c = condTails{m: m, j: j, lo: 0, hi: 1}
 				return h, 0
 			}
 		}
 		if dh := float64(j+1) - mq; dh > 0 && dh*dh > 64*v {
-			if h, ok := farOff(float64(j+1), allowHi); ok {
+			if h, ok := farOff(float64(j+1), dh, allowHi); ok {
 				*c = condTails{m: m, j: j, lo: 1, hi: 0}
 				return 0, h
 			}

@@ -259,9 +259,16 @@ func (c *condTails) moveWithin(m int64, y, q, allowLo, allowHi float64) (usedLo,
 			a, b, sign = j+1, c.j, -1
 		}
 		s = binomialRun(m, a, b, q)
-		// each mass is good to about 1e-14 of itself (Loader's terms and
-		// at most 64 ratio steps), each sum to its rounding
-		rel = 1e-14
+		// Each mass is within binom.Rel of itself at its walk's anchor
+		// (Loader's value; the bound grows away from the mode, so the
+		// run's ends and the old j bound it), plus at most 64 ratio steps
+		// (binom.RelAfter; binomialRun re-anchors every 64), and the run's
+		// sum rounds once a mass. (A flat 1e-14 was assumed before, below
+		// the 64 steps' own 2.9e-14.)
+		ra := binom.Rel(float64(a), mf, q, 1-q)
+		rb := binom.Rel(float64(b), mf, q, 1-q)
+		rj := binom.Rel(float64(c.j), float64(max(m, c.m)), q, 1-q)
+		rel = binom.RelAfter(math.Max(math.Max(ra, rb), rj), 64) + 0x1p-53*float64(b-a+2)
 		c.pj = 0 // not carried
 	}
 	c.lo += d + sign*s

@@ -112,31 +112,54 @@ func (d *driver) eval(kind int8, anchor, t float64) bool {
 func (d *driver) apply(i int32, val []float64) bool {
 	p := &d.pans[i]
 	c, h := p.a+(p.b-p.a)/2, (p.b-p.a)/2
-	for j := range d.kacc {
-		d.kacc[j], d.gacc[j], d.absacc[j] = 0, 0, 0
+	dim := d.dim
+	kacc, gacc, absacc := d.kacc[:dim], d.gacc[:dim], d.absacc[:dim]
+	for j := range kacc {
+		kacc[j], gacc[j], absacc[j] = 0, 0, 0
 	}
 	ok := true
 	m := d.m
 	np := 2*m - 1 // nodes of the rule: 15 or 7
-	for i := 0; i < m; i++ {
-		for s := -1.0; s <= 1; s += 2 {
-			if i == m-1 && s > 0 {
-				break // the centre once
-			}
-			if !d.eval(p.kind, p.anchor, c+s*h*d.nodes[i]) {
-				ok = false
-			}
-			pos := i // the node's place from the left: 0 … np − 1
-			if s > 0 {
-				pos = np - 1 - i
-			}
-			for j, v := range d.y {
-				d.kacc[j] += d.wk[i] * v
-				d.absacc[j] += d.wk[i] * math.Abs(v)
-				if i%2 == 1 {
-					d.gacc[j] += d.wg[i/2] * v
+	y, fvals := d.y[:dim], d.fvals[:np*dim]
+	// the nodes in the order of the sums (the same order, so the same
+	// bits, whatever the path): each pair's left node then its right one,
+	// outermost first, the centre last
+	for k := 0; k < np; k++ {
+		i, s, pos := k/2, -1.0, k/2 // the node's place from the left: 0 … np − 1
+		if k%2 == 1 {
+			s, pos = 1, np-1-k/2
+		}
+		x := c + s*h*d.nodes[i]
+		if p.kind == mapIdentity && d.fv != nil {
+			// the vector integrand on a finite piece: no map, no
+			// Jacobian (eval's other cases)
+			d.evals++
+			d.fv(x, y)
+			for _, v := range y {
+				if v-v != 0 { // NaN or ±Inf
+					if ok = false; !d.badSet {
+						d.badX, d.badSet = x, true
+					}
 				}
-				d.fvals[pos*d.dim+j] = v
+			}
+		} else if !d.eval(p.kind, p.anchor, x) {
+			ok = false
+		}
+		wk := d.wk[i]
+		fv := fvals[pos*dim : (pos+1)*dim]
+		if i%2 == 1 {
+			wg := d.wg[i/2]
+			for j, v := range y {
+				kacc[j] += wk * v
+				absacc[j] += wk * math.Abs(v)
+				gacc[j] += wg * v
+				fv[j] = v
+			}
+		} else {
+			for j, v := range y {
+				kacc[j] += wk * v
+				absacc[j] += wk * math.Abs(v)
+				fv[j] = v
 			}
 		}
 	}
@@ -147,13 +170,13 @@ func (d *driver) apply(i int32, val []float64) bool {
 	ulp = math.Nextafter(ulp, math.Inf(1)) - ulp
 	e, round := 0.0, 0.0
 	for j := range val {
-		val[j] = d.kacc[j] * h
+		val[j] = kacc[j] * h
 		tv := 0.0
 		for pos := 0; pos+1 < np; pos++ {
-			tv += math.Abs(d.fvals[(pos+1)*d.dim+j] - d.fvals[pos*d.dim+j])
+			tv += math.Abs(fvals[(pos+1)*dim+j] - fvals[pos*dim+j])
 		}
-		r := 2*ulp*tv + 4*eps*h*d.absacc[j]
-		if g := math.Abs(d.kacc[j]-d.gacc[j])*h + r; g > e {
+		r := 2*ulp*tv + 4*eps*h*absacc[j]
+		if g := math.Abs(kacc[j]-gacc[j])*h + r; g > e {
 			e, round = g, r
 		}
 	}

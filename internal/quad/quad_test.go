@@ -411,6 +411,19 @@ func TestBadInput(t *testing.T) {
 			_, err := Adaptive(func(x float64) float64 { return math.Log(x - 0.5) }, 0, 1, Options{})
 			return err
 		}},
+		{"NaN component of a vector integrand", func() error {
+			_, err := BreaksVec(make([]float64, 2), func(x float64, y []float64) { y[0], y[1] = 1, math.Log(x-0.5) }, []float64{0, 1}, Options{})
+			return err
+		}},
+		{"infinite component of a vector integrand", func() error {
+			_, err := BreaksVec(make([]float64, 2), func(x float64, y []float64) {
+				y[0], y[1] = 1, 1
+				if x > 0.7 {
+					y[1] = math.Inf(1)
+				}
+			}, []float64{0, 0.5, 1}, Options{Rule: GK7})
+			return err
+		}},
 	}
 	for _, c := range cases {
 		err := c.call()
@@ -418,6 +431,27 @@ func TestBadInput(t *testing.T) {
 		assert.ErrorIs(t, err, ErrParam, c.name)
 		var pe *ParamError
 		assert.ErrorAs(t, err, &pe, c.name)
+	}
+}
+
+// TestVectorAsScalar: a vector integrand of one component gives the bits
+// of the same integrand as a scalar (the two paths of the driver do the
+// same arithmetic), with either rule, over finite and infinite pieces.
+func TestVectorAsScalar(t *testing.T) {
+	f := func(x float64) float64 { return math.Exp(-x) * (1 + math.Sin(3*x)) / (1 + x*x) }
+	fv := func(x float64, y []float64) { y[0] = f(x) }
+	for _, rule := range []Rule{GK15, GK7} {
+		for _, pts := range [][]float64{{0, 0.3, 2, 5}, {-1, 0, math.Inf(1)}} {
+			opt := Options{RelTol: 1e-13, Rule: rule}
+			want, err := Breaks(f, pts, opt)
+			require.NoError(t, err)
+			var got [1]float64
+			r, err := BreaksVec(got[:], fv, pts, opt)
+			require.NoError(t, err)
+			assert.Equal(t, math.Float64bits(want.Value), math.Float64bits(got[0]), "rule %v pts %v", rule, pts)
+			assert.Equal(t, math.Float64bits(want.Error), math.Float64bits(r.Error), "rule %v pts %v", rule, pts)
+			assert.Equal(t, want.Evals, r.Evals, "rule %v pts %v", rule, pts)
+		}
 	}
 }
 

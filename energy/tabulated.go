@@ -654,8 +654,21 @@ func hermite(t0, t1, z0, z1, d0, d1, x float64) float64 {
 		}
 		return z1
 	}
-	z, _ := hermiteD(t0, t1, z0, z1, d0, d1, x)
-	return z
+	// hermiteD's value without its slope (whose division the callers of
+	// hermite do not need), by the same expression: the same bits
+	h := t1 - t0
+	return hermiteAt(h, (x-t0)/h, z0, z1, d0, d1)
+}
+
+// hermiteAt is the cubic Hermite interpolant on an interval of width h at
+// its fraction s from the left end, from the values z0, z1 and slopes d0,
+// d1 at the ends (hermite's and hermiteD's value).
+func hermiteAt(h, s, z0, z1, d0, d1 float64) float64 {
+	h00 := (1 + 2*s) * (1 - s) * (1 - s)
+	h10 := s * (1 - s) * (1 - s)
+	h01 := s * s * (3 - 2*s)
+	h11 := s * s * (s - 1)
+	return h00*z0 + h10*h*d0 + h01*z1 + h11*h*d1
 }
 
 // zAt returns the interpolated probit at t; beyond the table (where the

@@ -15,14 +15,7 @@ import (
 // settings' lives over years, with a calendar limit (as the demo's
 // groups), in CPU time per table.
 func BenchmarkTabulate(b *testing.B) {
-	spec := tabTestSpec(b)
-	twelve := spec.Groups[0].Node
-	twelve.Settings = nil
-	for i := range 12 {
-		tx := 0.2 + 0.5*float64(i)
-		twelve.Settings = append(twelve.Settings, NodeSetting{Weight: 1.0 / 12, Cycle: tabTestCycle(12*Hour, 8*MicroAmp, tx)})
-	}
-	twelve.CalendarLife = 2.5 * Year
+	spec, twelve := benchTwelve(b)
 	for _, c := range []struct {
 		name string
 		node NodeSpec
@@ -36,4 +29,20 @@ func BenchmarkTabulate(b *testing.B) {
 			}
 		})
 	}
+}
+
+// benchTwelve returns the invented test site (tabTestSpec) and a node of
+// twelve settings whose transmissions of 0.2 to 6 s spread the settings'
+// lives over years, with a calendar limit of 2.5 years (as the demo's
+// groups).
+func benchTwelve(tb testing.TB) (SiteSpec, NodeSpec) {
+	spec := tabTestSpec(tb)
+	twelve := spec.Groups[0].Node
+	twelve.Settings = nil
+	for i := range 12 {
+		tx := 0.2 + 0.5*float64(i)
+		twelve.Settings = append(twelve.Settings, NodeSetting{Weight: 1.0 / 12, Cycle: tabTestCycle(12*Hour, 8*MicroAmp, tx)})
+	}
+	twelve.CalendarLife = 2.5 * Year
+	return spec, twelve
 }

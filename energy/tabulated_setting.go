@@ -130,11 +130,7 @@ func (pt *probitTable) gradAt(t float64, hint *int) [3]float64 {
 func hermiteD(t0, t1, z0, z1, d0, d1, x float64) (z, dz float64) {
 	h := t1 - t0
 	s := (x - t0) / h
-	h00 := (1 + 2*s) * (1 - s) * (1 - s)
-	h10 := s * (1 - s) * (1 - s)
-	h01 := s * s * (3 - 2*s)
-	h11 := s * s * (s - 1)
-	z = h00*z0 + h10*h*d0 + h01*z1 + h11*h*d1
+	z = hermiteAt(h, s, z0, z1, d0, d1)
 	// d/dx of the basis: h00' = 6s(s−1)/h, h10' = (1−4s+3s²), h01' = −h00',
 	// h11' = (3s² − 2s).
 	dz = 6*s*(s-1)/h*(z0-z1) + (1-4*s+3*s*s)*d0 + (3*s*s-2*s)*d1

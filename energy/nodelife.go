@@ -5,7 +5,6 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
-	"sort"
 	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
@@ -174,14 +173,15 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 			continue
 		}
 		items = items[:0]
+		sdClock, floorClock := n.cum(&n.sdCum, &n.sdFactor, t), n.cum(&n.floorCum, &n.floorRate, t)
 		for j := range n.settings {
 			s := &n.settings[j]
 			k := t * s.rate
-			capLeft := n.batch*s.usable - n.nominal*(n.storage+n.sdRate*n.cum(&n.sdCum, &n.sdFactor, t))
+			capLeft := n.batch*s.usable - n.nominal*(n.storage+n.sdRate*sdClock)
 			if !(capLeft > 0) {
 				continue
 			}
-			it := item{j: j, k: k, capLeft: capLeft, floorE: s.floorP * n.cum(&n.floorCum, &n.floorRate, t), h: n.quiescent * t, zTab: math.NaN(), zb: math.NaN()}
+			it := item{j: j, k: k, capLeft: capLeft, floorE: s.floorP * floorClock, h: n.quiescent * t, zTab: math.NaN(), zb: math.NaN()}
 			// Standardized cumulants of the k-cycle sum: l_r / k^{r/2−1}.
 			it.rule = newMomentRule(3, k*s.mu, k*s.k2, s.l3/math.Sqrt(k), s.l4/k, s.l5/math.Pow(k, 1.5))
 			it.shift, it.least = 0.0, k*s.mu
@@ -199,12 +199,22 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 		}
 		// The settings nearest their medians first (unknown ones before
 		// all), so that the largest differences are measured early.
-		sort.SliceStable(items, func(a, b int) bool {
-			za, zb := items[a].zb, items[b].zb
-			if math.IsNaN(za) || math.IsNaN(zb) {
-				return math.IsNaN(za) && !math.IsNaN(zb)
+		slices.SortStableFunc(items, func(a, b item) int {
+			za, zb := a.zb, b.zb
+			switch na, nb := math.IsNaN(za), math.IsNaN(zb); {
+			case na && nb:
+				return 0
+			case na || nb: // the unknown first
+				if na {
+					return -1
+				}
+				return 1
+			case za < zb:
+				return -1
+			case za > zb:
+				return 1
 			}
-			return za < zb
+			return 0
 		})
 		for i := range items {
 			it := &items[i]
@@ -228,10 +238,19 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 			// even at the rule's nodes (to first order, with a margin of
 			// two), every term below is below Φ̄(accSkipZ) = 9.5e-18, and
 			// 2·Φ̄(accSkipZ) is counted instead.
+			//
+			// The gradient is asked for only where the law is within
+			// 1e-15 of 0 or 1 (Φ̄(7.9)): the test below needs |z| > accSkipZ,
+			// a smaller side below Φ̄(8.5) = 9.5e-18, and elsewhere z and
+			// its slope are not read. part's probabilities are the same
+			// bits with the gradient or without (fixedPieces), so the
+			// evaluation without serves all that follows (the gradient
+			// takes a Gaussian density and three sums at every node of
+			// the floor rule).
 			var p partOut
 			if t == n.calendar && cal != nil && cal[it.j].ok {
 				p = cal[it.j].p
-			} else {
+			} else if p = n.part(capLeft, k*s.mu, kk2, floorE, h, 0, false); math.Min(p.alive, p.dead) < 1e-15 {
 				p = n.part(capLeft, k*s.mu, kk2, floorE, h, 0, true)
 			}
 			a0, e0 := p.alive, 0.0
@@ -241,7 +260,12 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 			}
 			a3 := 0.0
 			for i := range rule.n {
-				ai, _, ei := n.normalPart(capLeft, rule.x[i], 0, floorE, h, 0)
+				// With no per-cycle variance the rule is the one node at
+				// the mean, part's own arguments: its value is p's.
+				ai, ei := p.alive, 0.0
+				if !(kk2 == 0 && rule.x[i] == k*s.mu) {
+					ai, _, ei = n.normalPart(capLeft, rule.x[i], 0, floorE, h, 0)
+				}
 				a3 += rule.w[i] * ai
 				e0 += rule.w[i] * ei
 			}

@@ -128,10 +128,8 @@ func clampedProbit(alive, dead float64) float64 {
 // ruleErrorOf returns the Site's estimated error of its rule for kind's
 // mixture (kindNode or kindFirst of group g, or kindFleet) of the
 // conditional laws whose probits at the rule's nodes are Z (Z[h·E + e],
-// E the rule's nodes, as nodeZ): Site's probe (probeStart and
+// E the rule's nodes, as nodeZ): Site's probe (probeZ: probeStart and
 // probeFinish) on these probits instead of its own tables'.
 func (s *Site) ruleErrorOf(Z []float64, kind lawKind, g int) float64 {
-	p := s.probeZ(math.NaN(), Z, kind, g, 0)
-	s.probeFinish(&p, kind, g, 0)
-	return p.total()
+	return s.probeZ(math.NaN(), Z, kind, g, 0).total()
 }

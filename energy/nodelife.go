@@ -1,6 +1,7 @@
 package energy
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -199,23 +200,8 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 		}
 		// The settings nearest their medians first (unknown ones before
 		// all), so that the largest differences are measured early.
-		slices.SortStableFunc(items, func(a, b item) int {
-			za, zb := a.zb, b.zb
-			switch na, nb := math.IsNaN(za), math.IsNaN(zb); {
-			case na && nb:
-				return 0
-			case na || nb: // the unknown first
-				if na {
-					return -1
-				}
-				return 1
-			case za < zb:
-				return -1
-			case za > zb:
-				return 1
-			}
-			return 0
-		})
+		// (cmp.Compare puts NaN first and orders the rest ascending.)
+		slices.SortStableFunc(items, func(a, b item) int { return cmp.Compare(a.zb, b.zb) })
 		for i := range items {
 			it := &items[i]
 			s := &n.settings[it.j]

@@ -290,7 +290,11 @@ func kinkedSiteSpec(t testing.TB) SiteSpec {
 // same site under a much finer rule (batch 7 Gauss–Hermite nodes,
 // temperature 21 nodes in the two pieces), at the node laws' 0.001 to 0.9
 // points, for each group's node law and first failure and the fleet's
-// first failure.
+// first failure. The reference is this package's own rule refined (a
+// convergence check of the rule's error estimate, as
+// TestSiteRuleErrorAgainstFinerReference; the conditional laws at its
+// nodes are the node model, checked against gonum's quadrature in
+// TestFloorRuleAgainstGonum).
 func TestSiteKinkedRuleAgainstFinerRule(t *testing.T) {
 	if testing.Short() {
 		t.Skip("a reference site of about 300 conditional node laws")
@@ -314,7 +318,6 @@ func TestSiteKinkedRuleAgainstFinerRule(t *testing.T) {
 	}
 	var laws []pair
 	for g := range s.names {
-		g := g
 		laws = append(laws,
 			pair{"node " + s.names[g], kindNode, g, func() (dist.Law, error) { return s.NodeLifetime(g) }, func() (dist.Law, error) { return ref.NodeLifetime(g) }},
 			pair{"first failure " + s.names[g], kindFirst, g, func() (dist.Law, error) { return s.GroupFirstFailure(g) }, func() (dist.Law, error) { return ref.GroupFirstFailure(g) }})

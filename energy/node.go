@@ -22,6 +22,42 @@ import (
 // cut at ±floorZMax moves (2.3e-8 in all, at |z| = 8.9; see floorZMax).
 const glNodes = 16
 
+// tabGLNodes is the order of the floor rule that the settings' tables are
+// built from (settingTables; the node law's own evaluations take
+// glNodes'): the tables interpolate the model to a probit tolerance of
+// tabSetZTol, far above what either rule errs by, and the table's rule
+// costs 10/16 of the node's at every knot. Against gonum's 12000-point
+// Legendre rule over the cut interval (TestFloorRuleErrorAgainstGonum) it
+// errs on the test sites' settings, from probit −8.9 to 8.9, by at most
+// 3.5e-5 of the smaller side, 2.0e-8 absolute and 5.7e-6 in probit (the
+// node's rule: 1.7e-8 of the side, 1.3e-10 in probit); its error is
+// measured where a table's law is profiled (tabulated.profile, the rule
+// on pieces halved, as the node's) and bounded between those times by
+// tabRuleRel of the smaller side and tabRuleAbs absolute, about three and
+// five times the largest measured. 8 nodes err by up to 1.1e-3 of the
+// side (1.7e-4 in probit), 12 by 1.3e-6.
+const tabGLNodes = 10
+
+// The table rule's error between the times where it is measured, at most
+// (see tabGLNodes): a share of the smaller side and an absolute bound.
+const (
+	tabRuleRel = 1e-4
+	tabRuleAbs = 1e-7
+)
+
+// glRule returns the Gauss–Legendre rule of order m on [−1, 1], its nodes
+// in exactly symmetric pairs (fixedPieces relies on it; the computed
+// nodes differ from it by an ulp or two).
+func glRule(m int) (x, w []float64) {
+	x, w = make([]float64, m), make([]float64, m)
+	quad.Legendre{}.FixedLocations(x, w, -1, 1)
+	for k := range m / 2 {
+		v := (x[m-1-k] - x[k]) / 2
+		x[k], x[m-1-k] = -v, v
+	}
+	return x, w
+}
+
 // MaxNodeSettings caps the radio settings (cycles) of one NodeSpec.
 const MaxNodeSettings = 1024
 
@@ -98,7 +134,8 @@ type node struct {
 	floorRate [12]float64 // factor on the floor power in the i-th month after deployment
 	sdFactor  [12]float64 // factor on the self-discharge rate, same months
 	warnings  []string
-	glx, glw  []float64 // Gauss–Legendre nodes and weights on [−1, 1]
+	glx, glw  []float64 // Gauss–Legendre nodes and weights on [−1, 1] (glNodes)
+	tgx, tgw  []float64 // the settings' tables' rule (tabGLNodes)
 }
 
 // nodeSetting is one setting's share of the model.
@@ -161,14 +198,8 @@ func newNode(fn string, spec NodeSpec, env Environment) (*node, error) {
 	}
 
 	n := &node{name: spec.Name, spread: spec.Spread, batch: env.batch(), calendar: math.Inf(1)}
-	n.glx, n.glw = make([]float64, glNodes), make([]float64, glNodes)
-	quad.Legendre{}.FixedLocations(n.glx, n.glw, -1, 1)
-	// Exactly symmetric pairs (fixedPieces relies on it; the computed
-	// nodes differ from it by an ulp or two).
-	for k := range glNodes / 2 {
-		x := (n.glx[glNodes-1-k] - n.glx[k]) / 2
-		n.glx[k], n.glx[glNodes-1-k] = -x, x
-	}
+	n.glx, n.glw = glRule(glNodes)
+	n.tgx, n.tgw = glRule(tabGLNodes)
 	if spec.CalendarLife > 0 {
 		n.calendar = spec.CalendarLife - spec.StorageTime
 	}
@@ -455,7 +486,7 @@ func (n *node) clockRates(t float64, right bool) [3]float64 {
 // alone, and is smooth in each, so its kinks at month boundaries are those
 // of the clocks. ±Inf (with a zero gradient) where the law is 0 or 1.
 func (n *node) settingProbit(j int, c [3]float64) (z float64, dz [3]float64) {
-	z, dz, _, _ = n.settingProbitAt(j, c)
+	z, dz, _, _ = n.settingProbitAt(j, c, false)
 	return z, dz
 }
 
@@ -464,15 +495,16 @@ func (n *node) settingProbit(j int, c [3]float64) (z float64, dz [3]float64) {
 // and part is not evaluated): its probabilities are the same bits as
 // settingAt's at the time c[0] (normalPart's, with the gradient or
 // without), and p itself is what NodeLifetime.accuracyAtZ evaluates for
-// setting j at that time (the same arguments).
-func (n *node) settingProbitAt(j int, c [3]float64) (z float64, dz [3]float64, p partOut, ok bool) {
+// setting j at that time (the same arguments). With tab the floor
+// integral takes the tables' rule (tabGLNodes) instead of the node's.
+func (n *node) settingProbitAt(j int, c [3]float64, tab bool) (z float64, dz [3]float64, p partOut, ok bool) {
 	s := &n.settings[j]
 	capLeft := n.batch*s.usable - n.nominal*(n.storage+n.sdRate*c[1])
 	if !(capLeft > 0) {
 		return math.Inf(1), dz, partOut{dead: 1, z: math.Inf(1)}, false
 	}
 	k := c[0] * s.rate
-	p = n.part(capLeft, k*s.mu, k*s.k2, s.floorP*c[2], n.quiescent*c[0], 0, true)
+	p = n.partRule(capLeft, k*s.mu, k*s.k2, s.floorP*c[2], n.quiescent*c[0], 0, true, false, tab)
 	if math.IsInf(p.z, 0) || math.IsNaN(p.z) {
 		return p.z, dz, p, true
 	}
@@ -516,12 +548,13 @@ const (
 // ∂z/∂θ = (∂dead/∂θ)/φ(z). Without the floor's spread z = (L + h − m)/sd,
 // without the normal part z = ln(L/(m − h))/σ_f, in closed form.
 func (n *node) part(capLeft, mean, vv, floorE, h, extra float64, grad bool) partOut {
-	return n.partRule(capLeft, mean, vv, floorE, h, extra, grad, false)
+	return n.partRule(capLeft, mean, vv, floorE, h, extra, grad, false, false)
 }
 
 // partRule is part, by the fixed rule on floorPieces' pieces or, when
-// halve is set, on each of those pieces halved (floorRuleError).
-func (n *node) partRule(capLeft, mean, vv, floorE, h, extra float64, grad, halve bool) partOut {
+// halve is set, on each of those pieces halved (floorRuleError); the
+// node's rule (glNodes), or with tab the tables' (tabGLNodes).
+func (n *node) partRule(capLeft, mean, vv, floorE, h, extra float64, grad, halve, tab bool) partOut {
 	sc, sa, sf := n.spread.Capacity, n.spread.Active, n.spread.Floor
 	m := capLeft - mean
 	// Var(a·v) = σ_a²·(mean² + vv) + vv for independent a and v.
@@ -587,11 +620,11 @@ func (n *node) partRule(capLeft, mean, vv, floorE, h, extra float64, grad, halve
 	// Integrate the smaller side only (the other is its complement, exact
 	// to rounding): which side is smaller is read off the median floor.
 	aliveSide := g(0) > 0
-	fp := n.fixedPieces(pts, floorE, h-m, sd, sf, aliveSide, grad)
+	fp := n.fixedPieces(pts, floorE, h-m, sd, sf, aliveSide, grad, tab)
 	v := fp[0]
 	if v > 0.5 {
 		aliveSide = !aliveSide
-		v = n.fixedPieces(pts, floorE, h-m, sd, sf, aliveSide, false)[0]
+		v = n.fixedPieces(pts, floorE, h-m, sd, sf, aliveSide, false, tab)[0]
 	}
 	var out partOut
 	if aliveSide {
@@ -704,7 +737,9 @@ func halvePieces(pts []float64) []float64 {
 // pieces both leave out (floorSkip) add at most floorSkip of each side's
 // sum to its error and to D: 5·floorSkip of the side is added. Where the
 // floor has no spread part is in closed form and the estimate is 0.
-func (n *node) floorRuleError(capLeft, mean, vv, floorE, h float64, p partOut) float64 {
+//
+// With tab the rule is the tables' (tabGLNodes), p its output.
+func (n *node) floorRuleError(capLeft, mean, vv, floorE, h float64, p partOut, tab bool) float64 {
 	sc, sa, sf := n.spread.Capacity, n.spread.Active, n.spread.Floor
 	if sf == 0 || floorE == 0 {
 		return 0
@@ -712,7 +747,7 @@ func (n *node) floorRuleError(capLeft, mean, vv, floorE, h float64, p partOut) f
 	if varY := sc*sc*capLeft*capLeft + sa*sa*(mean*mean+vv) + vv; varY == 0 {
 		return 0
 	}
-	q := n.partRule(capLeft, mean, vv, floorE, h, 0, false, true)
+	q := n.partRule(capLeft, mean, vv, floorE, h, 0, false, true, tab)
 	small := math.Min(p.alive, p.dead)
 	if p.alive <= p.dead {
 		return 2*math.Abs(q.alive-p.alive) + (8*0x1p-52+5*floorSkip)*small
@@ -744,7 +779,9 @@ func (n *node) floorRuleError(capLeft, mean, vv, floorE, h float64, p partOut) f
 // e^{σ u} and φ(u) are products of a piece's factors (e^{σ·mid}, φ(mid),
 // e^{∓mid·h·x_k}) and factors that depend on h alone (e^{±σ h x_k},
 // e^{−h²x_k²/2}), computed once for the pieces of one length.
-func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad bool) [4]float64 {
+//
+// With tab the rule is the tables' (tabGLNodes) instead of the node's.
+func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad, tab bool) [4]float64 {
 	var sum [4]float64
 	sign := 1.0
 	if !alive {
@@ -794,9 +831,14 @@ func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad
 			order[j], order[j-1] = order[j-1], order[j]
 		}
 	}
-	// The rule's nodes: glNodes of them (a test gives a node fewer, an
-	// even number, to check that floorRuleError sees a coarse rule).
-	nn := len(n.glx)
+	// The rule's nodes: glNodes of them, or tabGLNodes with tab (a test
+	// gives fewer, an even number, to check that floorRuleError sees a
+	// coarse rule).
+	glx, glw := n.glx, n.glw
+	if tab {
+		glx, glw = n.tgx, n.tgw
+	}
+	nn := len(glx)
 	half := nn / 2
 	// Factors that depend on a piece's half-length h alone, for up to
 	// len(lens) lengths (floorPieces makes at most three: the pieces
@@ -817,7 +859,7 @@ func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad
 		nl = min(nl+1, len(lens))
 		f.h = h
 		for k := range half {
-			x := n.glx[k]
+			x := glx[k]
 			q := math.Exp(sf * h * x)
 			f.q[k], f.q[nn-1-k] = q, 1/q
 			cc := math.Exp(-0.5 * h * h * x * x)
@@ -837,7 +879,7 @@ func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad
 		em, pm := math.Exp(sf*mid), math.Exp(-0.5*mid*mid)*invSqrt2Pi
 		var eu, phiU [glNodes]float64
 		for k := range half {
-			d := math.Exp(-mid * h * n.glx[k])
+			d := math.Exp(-mid * h * glx[k])
 			kk := nn - 1 - k
 			eu[k], eu[kk] = em*f.q[k], em*f.q[kk]
 			phiU[k], phiU[kk] = pm*f.cc[k]*d, pm*f.cc[k]/d
@@ -850,7 +892,7 @@ func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad
 			}
 			e := eu[k]
 			g := (floorE*e + c) / sd
-			w := n.glw[k]
+			w := glw[k]
 			sg := sign * g
 			wp := w * phiU[k]
 			ag := math.Abs(g)

@@ -115,24 +115,30 @@ func (n *node) adaptivePart(capLeft, mean, floorE, h float64) (alive, dead, errE
 // place, whose error the estimate must catch: the test fails if the check
 // stops seeing a bad rule (measured: errors up to 0.0092 of the side, the
 // halves' difference within 25 % of each; the estimate is twice that).
+// And with the tables' 10-point rule (tabGLNodes), whose error must also
+// stay within half its margins between measured times, tabRuleRel of the
+// side and tabRuleAbs absolute (measured: 3.5e-5 of the side, 2.0e-8
+// absolute, 5.7e-6 in probit).
 func TestFloorRuleErrorAgainstGonum(t *testing.T) {
 	nodes, clim := tabTestNodes(t)
 	for _, tc := range []struct {
 		name     string
 		points   int     // the rule's nodes (glNodes, or fewer)
+		tab      bool    // the tables' rule (points is tabGLNodes)
 		worstMin float64 // the largest relative error must reach this: a bad rule must show
 	}{
-		{"the node's 16-point rule", glNodes, 0},
-		{"a coarse 6-point rule", 6, 1e-4},
+		{"the node's 16-point rule", glNodes, false, 0},
+		{"the tables' 10-point rule", tabGLNodes, true, 0},
+		{"a coarse 6-point rule", 6, false, 1e-4},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			worst := 0.0
+			worst, worstAbs := 0.0, 0.0
 			for _, cond := range tabTestConditions {
 				for gi, node := range nodes {
 					l, err := NewNodeLifetime(node, Environment{Climate: clim, Conditions: cond})
 					require.NoError(t, err)
 					n := l.n
-					if tc.points != glNodes {
+					if !tc.tab && tc.points != glNodes {
 						// A copy of the node with the coarse rule (gonum's nodes).
 						c := *n
 						c.glx, c.glw = make([]float64, tc.points), make([]float64, tc.points)
@@ -156,8 +162,8 @@ func TestFloorRuleErrorAgainstGonum(t *testing.T) {
 							capLeft := n.batch*s.usable - n.nominal*(n.storage+n.sdRate*c[1])
 							mean, floorE, h := c[0]*s.rate*s.mu, s.floorP*c[2], n.quiescent*c[0]
 							vv := c[0] * s.rate * s.k2
-							p := n.part(capLeft, mean, vv, floorE, h, 0, false)
-							est := n.floorRuleError(capLeft, mean, vv, floorE, h, p)
+							p := n.partRule(capLeft, mean, vv, floorE, h, 0, false, false, tc.tab)
+							est := n.floorRuleError(capLeft, mean, vv, floorE, h, p, tc.tab)
 							m := capLeft - mean
 							sd := math.Sqrt(sc*sc*capLeft*capLeft + sa*sa*(mean*mean+vv) + vv)
 							side, small := 1.0, p.alive // the alive side
@@ -169,14 +175,17 @@ func TestFloorRuleErrorAgainstGonum(t *testing.T) {
 								return math.Exp(-u*u/2) / math.Sqrt(2*math.Pi) * 0.5 * math.Erfc(side*g/math.Sqrt2)
 							}, -floorZMax, floorZMax, 12000, gquad.Legendre{}, 0)
 							e := math.Abs(small - want)
-							worst = math.Max(worst, e/want)
+							worst, worstAbs = math.Max(worst, e/want), math.Max(worstAbs, e)
+							if tc.tab {
+								assert.LessOrEqual(t, e, math.Min(tabRuleRel*want, tabRuleAbs)/2, "group %d setting %d %v, probit %g: the tables' rule's error against half its margin", gi, j, cond, target)
+							}
 							assert.LessOrEqual(t, e, est+2e-14*want, "group %d setting %d %v, probit %g: error %.3g of the side, estimate %.3g", gi, j, cond, target, e/want, est/want)
 						}
 					}
 				}
 			}
 			assert.GreaterOrEqual(t, worst, tc.worstMin, "the rule's largest error")
-			t.Logf("largest error against gonum's 12000-point rule: %.2g of the side", worst)
+			t.Logf("largest error against gonum's 12000-point rule: %.2g of the side, %.2g absolute", worst, worstAbs)
 		})
 	}
 }

@@ -130,7 +130,7 @@ func (l NodeLifetime) accuracyAtZ(ts []float64, zOf func(j int, t float64) float
 // accuracyAtZPruned is accuracyAtZ, passing settings over only when prune
 // is set (the tests compare the two), with the number passed over.
 func (l NodeLifetime) accuracyAtZPruned(ts []float64, zOf func(j int, t float64) float64, prune bool) (dist.Accuracy, int) {
-	return l.accuracyAtZKnown(ts, zOf, prune, nil)
+	return l.accuracyAtZKnown(ts, zOf, prune, nil, false)
 }
 
 // calPart is part's output for one setting at the calendar limit, where
@@ -144,7 +144,16 @@ type calPart struct {
 // limit given for the settings with cal[j].ok (cal may be nil): part's
 // output there, with the gradient, for the arguments evaluated here (the
 // same bits, read instead of evaluated again: settingTables has it).
-func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) float64, prune bool, cal []calPart) (dist.Accuracy, int) {
+//
+// With tab it measures the error of the model that the settings' tables
+// are built from: the floor integral by the tables' rule (tabGLNodes),
+// except at the calendar limit where cal is given (the tables' knots
+// there are the node's rule's), its error measured as the node's
+// (floorRuleError, the same rule on pieces halved), and the margin for
+// the rule's error between the times measured the tables' rule's,
+// min(tabRuleRel of the smaller side, tabRuleAbs), instead of 1e-10 of
+// the side.
+func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) float64, prune bool, cal []calPart, tab bool) (dist.Accuracy, int) {
 	n := l.n
 	acc := dist.Accuracy{TailFloor: 1e-14, Method: "mixture over settings and per-node factors (closed form in the normal factors, a fixed Gauss–Legendre rule on pieces in the floor factor); per-cycle sum by its exact mean and variance"}
 	if n.spread.IsZero() {
@@ -234,10 +243,11 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 			// takes a Gaussian density and three sums at every node of
 			// the floor rule).
 			var p partOut
+			pTab := tab // whether p is by the tables' floor rule
 			if t == n.calendar && cal != nil && cal[it.j].ok {
-				p = cal[it.j].p
-			} else if p = n.part(capLeft, k*s.mu, kk2, floorE, h, 0, false); math.Min(p.alive, p.dead) < 1e-15 {
-				p = n.part(capLeft, k*s.mu, kk2, floorE, h, 0, true)
+				p, pTab = cal[it.j].p, false
+			} else if p = n.partRule(capLeft, k*s.mu, kk2, floorE, h, 0, false, false, pTab); math.Min(p.alive, p.dead) < 1e-15 {
+				p = n.partRule(capLeft, k*s.mu, kk2, floorE, h, 0, true, false, pTab)
 			}
 			a0, e0 := p.alive, 0.0
 			if math.Abs(p.z)-2*math.Abs(p.dz[dMean])*it.shift > accSkipZ {
@@ -250,7 +260,7 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 				// the mean, part's own arguments: its value is p's.
 				ai, ei := p.alive, 0.0
 				if !(kk2 == 0 && rule.x[i] == k*s.mu) {
-					ai, _, ei = n.normalPart(capLeft, rule.x[i], 0, floorE, h, 0)
+					ai = n.partRule(capLeft, rule.x[i], 0, floorE, h, 0, false, false, pTab).alive
 				}
 				a3 += rule.w[i] * ai
 				e0 += rule.w[i] * ei
@@ -266,10 +276,18 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 			// within 1e-16 of 0 or 1 the check is skipped and 1e-16 counted
 			// instead (it would measure a difference below that unless the
 			// rule were wrong by orders of magnitude, which the checks
-			// elsewhere rule out).
+			// elsewhere rule out). The tables' rule (tab) takes its own
+			// margin (tabRuleRel, tabRuleAbs), at the calendar limit too,
+			// where p is the node's rule's: the tables' knots before it are
+			// the tables' rule's.
 			eq := 1e-16
 			if a0 > 1e-16 && p.dead > 1e-16 {
-				eq = n.floorRuleError(capLeft, k*s.mu, kk2, floorE, h, p) + 1e-10*math.Min(a0, p.dead)
+				side := math.Min(a0, p.dead)
+				margin := 1e-10 * side
+				if tab {
+					margin = math.Min(tabRuleRel*side, tabRuleAbs)
+				}
+				eq = n.floorRuleError(capLeft, k*s.mu, kk2, floorE, h, p, pTab) + margin
 			}
 			diff := math.Abs(a3-a0) + eq + e0
 			worst = math.Max(worst, s.w*diff)

@@ -662,7 +662,8 @@ func sameNodeModel(a, b *node) bool {
 	if a == b {
 		return true
 	}
-	if len(a.settings) != len(b.settings) || len(a.glx) != len(b.glx) || len(a.glw) != len(b.glw) {
+	if len(a.settings) != len(b.settings) || len(a.glx) != len(b.glx) || len(a.glw) != len(b.glw) ||
+		len(a.tgx) != len(b.tgx) || len(a.tgw) != len(b.tgw) {
 		return false
 	}
 	same := func(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) }
@@ -679,7 +680,7 @@ func sameNodeModel(a, b *node) bool {
 		!same(a.spread.Capacity, b.spread.Capacity) || !same(a.spread.Floor, b.spread.Floor) || !same(a.spread.Active, b.spread.Active) ||
 		!sameAll(a.floorCum[:], b.floorCum[:]) || !sameAll(a.sdCum[:], b.sdCum[:]) ||
 		!sameAll(a.floorRate[:], b.floorRate[:]) || !sameAll(a.sdFactor[:], b.sdFactor[:]) ||
-		!sameAll(a.glx, b.glx) || !sameAll(a.glw, b.glw) {
+		!sameAll(a.glx, b.glx) || !sameAll(a.glw, b.glw) || !sameAll(a.tgx, b.tgx) || !sameAll(a.tgw, b.tgw) {
 		return false
 	}
 	for i := range a.settings {

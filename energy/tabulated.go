@@ -487,7 +487,11 @@ func tabulate(l NodeLifetime) tabulated {
 	tb.tabRel = 7.7*tb.worst + 1.01*(1+tb.setZ)*tb.setWorst + tb.setBeyond/tabTail + tb.dropSurv + tb.dropRel
 	how := fmt.Sprintf("tabulated on %d times (probit interpolation, %d month boundaries as knots)", len(tb.t), tb.kinks)
 	if len(n.settings) > 1 {
-		how = fmt.Sprintf("tabulated on %d times (probit interpolation of the mixture of the %d settings' own tables, %d times in all; month boundaries as knots)", len(tb.t), len(n.settings), tb.setPoints)
+		rule := ""
+		if n.spread.Floor > 0 {
+			rule = fmt.Sprintf(", from the model with a %d-point floor rule", tabGLNodes)
+		}
+		how = fmt.Sprintf("tabulated on %d times (probit interpolation of the mixture of the %d settings' own tables, %d times in all%s; month boundaries as knots)", len(tb.t), len(n.settings), tb.setPoints, rule)
 		if tb.dropped > 0 {
 			how += fmt.Sprintf("; %d settings that run out before the calendar limit with a chance of at most %.0e (times their weight) counted as lasting, their mass in the error", tb.dropped, tabDropAbs)
 		}
@@ -507,7 +511,10 @@ func tabulate(l NodeLifetime) tabulated {
 // 1e-3 and 0.1, so that errAt can state the error where it is read, and
 // returns the largest (with the largest relative survival error) as the
 // law's stated error. zOf reads the settings' probits from their tables,
-// so that settings far in a tail are not evaluated (accuracyAtZ).
+// so that settings far in a tail are not evaluated (accuracyAtZ). The
+// error measured is that of the model the settings' tables are built
+// from, with the tables' floor rule (accuracyAtZKnown with tab; see
+// tabGLNodes).
 //
 // cal, when not nil, holds the model at the calendar limit where
 // settingTables evaluated it (the same arguments as accuracyAtZ's there):
@@ -525,7 +532,7 @@ func (tb *tabulated) profile(l NodeLifetime, zOf func(j int, t float64) float64,
 	tb.profE = make([]float64, len(tb.profT))
 	var acc dist.Accuracy
 	for i, t := range tb.profT {
-		a, _ := l.accuracyAtZKnown([]float64{t}, zOf, true, cal)
+		a, _ := l.accuracyAtZKnown([]float64{t}, zOf, true, cal, true)
 		tb.profE[i] = a.CDFAbs
 		acc.CDFAbs = math.Max(acc.CDFAbs, a.CDFAbs)
 		acc.SurvivalRel = math.Max(acc.SurvivalRel, a.SurvivalRel)

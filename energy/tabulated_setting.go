@@ -36,10 +36,11 @@ type gradKnot struct {
 	g [3]float64
 }
 
-// gradKnotAt evaluates setting j of n at t.
+// gradKnotAt evaluates setting j of n at t, by the tables' floor rule
+// (tabGLNodes).
 func (n *node) gradKnotAt(j int, t float64) gradKnot {
 	c := n.clocks(t)
-	z, g := n.settingProbit(j, c)
+	z, g, _, _ := n.settingProbitAt(j, c, true)
 	return gradKnot{t: t, c: c, z: z, g: g}
 }
 
@@ -531,13 +532,16 @@ func (n *node) settingTables(l NodeLifetime) []settingOut {
 	if !math.IsInf(n.calendar, 1) && !n.spread.IsZero() {
 		cals = make([]gradKnot, len(n.settings))
 		// The law at the calendar limit from the same evaluations, summed
-		// as energyAt sums (the same bits: settingProbitAt), for
-		// EnergyBinds and the table's atom (atCalendar).
+		// as energyAt sums (the same bits: settingProbitAt, by the node's
+		// own floor rule), for EnergyBinds and the table's atom
+		// (atCalendar); the tables' knots there are these (the node law's
+		// values, the tables' others the tables' rule's), and the profile
+		// reads them as such (accuracyAtZKnown).
 		var alive, dead float64
 		exact := true
 		c := n.clocks(n.calendar)
 		for j := range cals {
-			z, g, p, ok := n.settingProbitAt(j, c)
+			z, g, p, ok := n.settingProbitAt(j, c, false)
 			cals[j] = gradKnot{t: n.calendar, c: c, z: z, g: g}
 			out[j].cal, out[j].calOK = p, ok
 			w := n.settings[j].w

@@ -189,7 +189,7 @@ func TestSettingProbabilitiesSameWithGradient(t *testing.T) {
 			require.True(t, life > 0 && !math.IsInf(life, 0))
 			for i := 1; i <= 400; i++ {
 				at := life * float64(i) / 200
-				_, _, p, _ := n.settingProbitAt(j, n.clocks(at))
+				_, _, p, _ := n.settingProbitAt(j, n.clocks(at), false)
 				aw, dw := p.alive, p.dead
 				a, d, _ := n.settingAt(j, at)
 				if aw != a || dw != d {
@@ -234,14 +234,14 @@ func TestProfileAtCalendarReadsSettingTables(t *testing.T) {
 	}
 	ts := []float64{l.n.calendar}
 	want, _ := l.accuracyAtZPruned(ts, nil, true)
-	got, _ := l.accuracyAtZKnown(ts, nil, true, cal)
+	got, _ := l.accuracyAtZKnown(ts, nil, true, cal, false)
 	assert.Equal(t, want, got)
 	assert.Greater(t, got.CDFAbs, 0.0)
 	// And it does read them: a setting's value there moved by 1e-3 moves
 	// the stated error.
 	moved := append([]calPart(nil), cal...)
 	moved[0].p.alive -= 1e-3
-	other, _ := l.accuracyAtZKnown(ts, nil, true, moved)
+	other, _ := l.accuracyAtZKnown(ts, nil, true, moved, false)
 	assert.NotEqual(t, want.CDFAbs, other.CDFAbs)
 }
 

@@ -75,7 +75,14 @@ type tabulated struct {
 	// is at most setWorst·(1 + setZ)·min(F, 1 − F), Gordon's inequality
 	// for Mills' ratio), and the mass beyond their ends setBeyond.
 	setWorst, setZ, setBeyond float64
-	setPoints, setEvals       int // the settings' tables' points and the node model's evaluations, in all
+	// The settings' tables built to a looser tolerance (tabLooseMax):
+	// their probit errors (1.5 times their tolerances: the midpoint
+	// checks do not bound them by themselves there) times their factors e,
+	// summed (looseRel, relative to the mixture's smaller side, with
+	// (1 + setZ) as setWorst), and times w·φ(z) at their probit at the
+	// calendar limit, summed (looseAbs, the CDF's absolute error).
+	looseRel, looseAbs  float64
+	setPoints, setEvals int // the settings' tables' points and the node model's evaluations, in all
 	// The settings left out (tabDropAbs): their mass before the
 	// calendar limit, in all (dropAbs), its bound relative to the law's
 	// CDF from each one's lower end on (dropRel) and relative to the
@@ -270,6 +277,9 @@ func tabulate(l NodeLifetime) tabulated {
 			// limit.
 			dropped        bool
 			tLo, zLo, zCal float64
+			// slack: a loose table's (tabLooseMax) largest probit error
+			// beyond 0.01, by which zOf moves its reading toward 0.
+			slack float64
 		}
 		tables := n.settingTables(l)
 		for j := range tables {
@@ -308,7 +318,14 @@ func tabulate(l NodeLifetime) tabulated {
 			}
 			tb.setPoints += len(st.t)
 			tb.setEvals += st.evals
-			tb.setWorst = math.Max(tb.setWorst, st.worst)
+			if d := &tables[j]; d.loose {
+				// Its probit is below zCal + tabLooseShift wherever it is
+				// read, where φ increases (tabLooseZ).
+				tb.looseRel += 1.5 * d.tol * d.e
+				tb.looseAbs += w * normPDF(d.zCal+tabLooseShift) * 1.5 * d.tol
+			} else {
+				tb.setWorst = math.Max(tb.setWorst, st.worst)
+			}
 			z0, z1 := st.z[0], st.z[len(st.z)-1]
 			tb.setZ = math.Max(tb.setZ, math.Max(math.Abs(z0), math.Abs(z1)))
 			// Before its first time the setting's law is below Φ(z0)
@@ -323,6 +340,9 @@ func tabulate(l NodeLifetime) tabulated {
 			tb.setBeyond += w * (beyond + normSurv(tabCut))
 			guessLo, guessHi = math.Min(guessLo, st.t[0]), math.Max(guessHi, st.t[len(st.t)-1])
 			se := set{w: w, pt: st, cutLo: math.Inf(-1), cutHi: math.Inf(1)}
+			if d := &tables[j]; d.loose {
+				se.slack = math.Max(0, 1.5*d.tol-0.01)
+			}
 			if d := st.d0[0]; z0 <= -tabCut {
 				se.cutLo = st.t[0]
 			} else if d > 0 {
@@ -351,9 +371,12 @@ func tabulate(l NodeLifetime) tabulated {
 				return math.Inf(-1) // below tabSetTail up to the calendar limit
 			}
 			// Beyond a table's ends the law is beyond the end's probit
-			// (monotone): read the end.
+			// (monotone): read the end. accuracyAtZ takes the reading
+			// within 0.01 of the model: a loose table's (below 0 all
+			// through, tabLooseZ) is moved toward 0 by its error beyond
+			// that, so that its |z| − 0.01 stays a lower bound.
 			pt := &sets[j].pt
-			return pt.zAt(math.Min(math.Max(t, pt.t[0]), pt.t[len(pt.t)-1]))
+			return pt.zAt(math.Min(math.Max(t, pt.t[0]), pt.t[len(pt.t)-1])) + sets[j].slack
 		}
 		// The mixture's probit from the settings' tables, with its slopes
 		// left and right of t: dF/dt = Σ w·φ(z_j)·z_j'(t), z' = F'/φ(z).
@@ -463,7 +486,7 @@ func tabulate(l NodeLifetime) tabulated {
 			}
 			loK, _ := at(lo)
 			hiK, _ := at(hi)
-			tb.probitTable = n.clockGrid(loK, hiK, tabMixTol, nil, at)
+			tb.probitTable = n.clockGrid(loK, hiK, tabMixTol, tabSetInitial, nil, at)
 			tb.evals += 2
 		} else {
 			tb.probitTable = hermiteGrid(mix, lo, hi, n.kinks(lo, hi), minWidth, tabZTol)
@@ -483,8 +506,8 @@ func tabulate(l NodeLifetime) tabulated {
 	// (TestTabulatedAgainstDirect measures it). The settings' tables add
 	// theirs (see errAt), and the settings left out their mass, relative
 	// to the CDF and to the survival as well (tabDropAbs).
-	tb.tabCDF = 0.4*(tb.worst+tb.setWorst) + tb.setBeyond + tb.dropAbs
-	tb.tabRel = 7.7*tb.worst + 1.01*(1+tb.setZ)*tb.setWorst + tb.setBeyond/tabTail + tb.dropSurv + tb.dropRel
+	tb.tabCDF = 0.4*(tb.worst+tb.setWorst) + tb.looseAbs + tb.setBeyond + tb.dropAbs
+	tb.tabRel = 7.7*tb.worst + 1.01*(1+tb.setZ)*(tb.setWorst+tb.looseRel) + tb.setBeyond/tabTail + tb.dropSurv + tb.dropRel
 	how := fmt.Sprintf("tabulated on %d times (probit interpolation, %d month boundaries as knots)", len(tb.t), tb.kinks)
 	if len(n.settings) > 1 {
 		rule := ""
@@ -548,6 +571,8 @@ func (tb *tabulated) profile(l NodeLifetime, zOf func(j int, t float64) float64,
 // δs·(1 + |zs|)·min(F, 1 − F)·1.01 for their largest probit error δs and
 // largest end probit zs (the mixture's F read from the table, which is
 // within a per cent of the law's), and their mass beyond their ends; the
+// settings tabulated to a looser tolerance (tabLooseMax), at most
+// looseAbs and at most looseRel·(1 + |zs|)·min(F, 1 − F)·1.02; the
 // settings left out (tabDropAbs), at most their mass dropAbs and at most
 // dropRel of the CDF read (1.02 of it, as above). Far
 // in a tail all shrink with the tail: a first failure among n nodes reads
@@ -574,6 +599,9 @@ func (tb *tabulated) errAt(t float64) float64 {
 	e := src + normPDF(z)*tb.worst
 	if tb.setWorst > 0 {
 		e += tb.setWorst * math.Min(0.4, 1.02*(1+tb.setZ)*normSurv(math.Abs(z)))
+	}
+	if tb.looseRel > 0 {
+		e += math.Min(tb.looseAbs, 1.02*(1+tb.setZ)*tb.looseRel*normSurv(math.Abs(z)))
 	}
 	if tb.dropAbs > 0 {
 		e += math.Min(tb.dropAbs, 1.02*tb.dropRel*normSurv(-z))

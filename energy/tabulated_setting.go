@@ -158,11 +158,12 @@ type settingEnds struct {
 
 // settingTableWith is settingTable, with the model at the calendar limit
 // given (cal, when not nil: the same knot, not evaluated again) and a
-// test drop: where the setting's table would end at the calendar limit,
-// drop sees its ends before its knots are placed, and when it says so
-// no table is built (ends holds what was found; the table is empty and
-// ok true).
-func settingTableWith(l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, drop func(lo, hi gradKnot) bool) (pt probitTable, ok bool, ends *settingEnds) {
+// plan: where the setting's table would end at the calendar limit, plan
+// sees its ends before its knots are placed; when it says drop no table
+// is built (ends holds what was found; the table is empty and ok true),
+// and otherwise the table's tolerance is tol times its loose (at least
+// 1; see tabLooseMax).
+func settingTableWith(l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, plan func(lo, hi gradKnot) (drop bool, loose float64)) (pt probitTable, ok bool, ends *settingEnds) {
 	n := l.n
 	std := dist.MustNormal(0, 1)
 	zLo, zHi := std.Quantile(tail), std.UpperQuantile(tail)
@@ -259,10 +260,18 @@ func settingTableWith(l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, 
 		}
 		return probitGrid(probit, lo, hi, probit(lo), probit(hi), n.kinks(lo, hi), 0, tol), true, nil
 	}
-	if drop != nil && hiK.t == n.calendar && drop(loK, hiK) {
-		return probitTable{}, true, &settingEnds{lo: loK, hi: hiK, evals: evaluated}
+	initial := tabSetInitial
+	if plan != nil && hiK.t == n.calendar {
+		drop, loose := plan(loK, hiK)
+		if drop {
+			return probitTable{}, true, &settingEnds{lo: loK, hi: hiK, evals: evaluated}
+		}
+		if loose > 1 {
+			tol *= loose
+			initial = tabLooseInitial
+		}
 	}
-	pt = n.gradGrid(j, loK, hiK, tol, seen)
+	pt = n.gradGrid(j, loK, hiK, tol, initial, seen)
 	pt.evals += evaluated
 	return pt, true, nil
 }
@@ -287,8 +296,11 @@ func settingTableWith(l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, 
 // (TestSettingTablesAgainstDirect measures them against the model). Without
 // this guard one of that test's tables erred by 1.0e-3 where 2.2e-4 was
 // measured at the midpoints.
-func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64, known []gradKnot) probitTable {
-	return n.clockGrid(lo, hi, tol, known, func(t float64) (gradKnot, float64) {
+//
+// initial is the first grid's knots (tabSetInitial; tabLooseInitial for a
+// loose table).
+func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64, initial int, known []gradKnot) probitTable {
+	return n.clockGrid(lo, hi, tol, initial, known, func(t float64) (gradKnot, float64) {
 		k := n.gradKnotAt(j, t)
 		return k, n.slope(k, true)
 	})
@@ -298,11 +310,11 @@ func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64, known []gradKnot) p
 // the clocks: at returns the knot (the probit and its gradient against
 // the clocks) at a time and the probit's exact slope right of it (the
 // guard's). The table keeps its knots (gk).
-func (n *node) clockGrid(lo, hi gradKnot, tol float64, known []gradKnot, at func(t float64) (gradKnot, float64)) probitTable {
+func (n *node) clockGrid(lo, hi gradKnot, tol float64, initial int, known []gradKnot, at func(t float64) (gradKnot, float64)) probitTable {
 	ks := []gradKnot{lo}
 	evals := 0
-	step := (hi.t - lo.t) / float64(tabSetInitial-1)
-	for i := 1; i < tabSetInitial-1; i++ {
+	step := (hi.t - lo.t) / float64(initial-1)
+	for i := 1; i < initial-1; i++ {
 		x := lo.t + step*float64(i)
 		best := -1
 		for q := range known {
@@ -499,6 +511,36 @@ const (
 	tabDropRel = 1e-6 // and its bound relative to the mixture's CDF from its lower end on, at most
 )
 
+// A setting kept whose law before the calendar limit is small beside the
+// mixture's both ways is tabulated to a looser tolerance: its table's
+// probit error δ moves the mixture's CDF by at most
+// w·δ·(1 + |z|)·F_j·1.01 (as every setting's, tabulated.errAt), and its
+// w·F_j is at most e times the mixture's CDF and survival from its table's
+// lower end on, e = max(ρ, s): ρ = w·P(run out by the calendar limit)
+// over 0.99 of the CDF there of the settings tabulated to the full
+// tolerance before it (read at its lower end, the mixture's CDF being
+// larger later), as for the settings left out, and s = P/(1 − P), the
+// setting's own survival being part of the mixture's (with its probit at
+// the calendar limit at most tabLooseZ, so that P is its smaller side
+// throughout). Its tolerance is tabSetZTol times min(tabLooseMax,
+// tabLooseShare/(N·e)) for N settings, and its measured error times e
+// is stated beside the other settings' (tabulated.looseRel), so the
+// settings so tabulated add at most tabLooseShare·tabSetZTol to the
+// mixture's relative error; tabLooseMax keeps every table within 0.01 of
+// the model in probit (accuracyAtZ's pruning reads them), 1.5 times the
+// loosest tolerance. The demo's 84 laws tabulate about 300 of their 718
+// settings' tables this way, with about half the knots each.
+const (
+	tabLooseMax   = 100                            // a setting table's tolerance at most tabLooseMax·tabSetZTol
+	tabLooseShare = 0.25                           // the loose tables' stated errors, at most tabLooseShare of the full tolerance's in all
+	tabLooseZ     = -1.0                           // a loose table's probit at the calendar limit, at most
+	tabLooseShift = 1.5 * tabLooseMax * tabSetZTol // a loose table's probit error, at most
+	// tabLooseInitial is a loose table's first grid's knots: at its
+	// tolerance the intervals of tabSetInitial's grid pass their first
+	// check (the demo's: 9 knots each).
+	tabLooseInitial = 3
+)
+
 // droppedMass returns the bound on a left-out setting's mass before the
 // calendar limit: w·Φ(z) for its probit z there, raised by 1e-9 of
 // itself for the probit's round trip (a few units in the last place).
@@ -507,12 +549,17 @@ func droppedMass(w, z float64) float64 { return w * normSurv(-z) * (1 + 1e-9) }
 // settingOut is one setting's result in settingTables: its table (ok
 // false where its law is below tabSetTail up to the calendar limit), or,
 // where it is left out, its ends and its bound relative to the mixture's
-// CDF.
+// CDF; a table built to a looser tolerance has its factor e (see
+// tabLooseMax) and its probit at the calendar limit zCal.
 type settingOut struct {
 	pt   probitTable
 	ok   bool
 	ends *settingEnds
 	rel  float64
+	// loose: the table's tolerance is looser than tabSetZTol, its error
+	// stated as e times its measured one (tabulated.looseRel).
+	loose        bool
+	e, zCal, tol float64
 	// part's output at the calendar limit (calOK where it was evaluated
 	// there), for the law's error profile (NodeLifetime.accuracyAtZ).
 	cal   partOut
@@ -560,26 +607,44 @@ func (n *node) settingTables(l NodeLifetime) []settingOut {
 			continue
 		}
 		w := n.settings[j].w
+		o := &out[j]
 		var rel float64
-		drop := func(lo, hi gradKnot) bool {
+		plan := func(lo, hi gradKnot) (bool, float64) {
 			p := droppedMass(w, hi.z)
-			if !(p <= tabDropAbs) {
-				return false
-			}
-			f := 0.0 // the CDF at lo.t of the settings tabulated so far
+			// The CDF at lo.t of the settings tabulated so far to the
+			// full tolerance (within a per cent of the model: a lower
+			// bound on the mixture's from lo.t on).
+			f := 0.0
 			for i := range out {
 				pt := &out[i].pt
-				if pt.t == nil || lo.t < pt.t[0] {
-					continue // none yet, or read as 0 before its table
+				if pt.t == nil || out[i].loose || lo.t < pt.t[0] {
+					continue // none yet, a loose table, or read as 0 before its table
 				}
 				f += n.settings[i].w * normSurv(-pt.zAt(math.Min(lo.t, pt.t[len(pt.t)-1])))
 			}
 			rel = p / (0.99 * f)
-			return rel <= tabDropRel
+			if p <= tabDropAbs && rel <= tabDropRel {
+				return true, 1
+			}
+			if !(hi.z <= tabLooseZ) {
+				return false, 1
+			}
+			// A loose table (see tabLooseMax).
+			P := normSurv(-hi.z) * (1 + 1e-9)
+			e := math.Max(rel, P/(1-P))
+			N := float64(len(n.settings))
+			loose := math.Min(tabLooseMax, tabLooseShare/(1.5*N*e))
+			loose = math.Min(loose, tabLooseShare*0.4/(1.5*N*w*normPDF(hi.z+tabLooseShift)))
+			if loose > 1 {
+				o.loose, o.e, o.zCal, o.tol = true, e, hi.z, loose*tabSetZTol
+			}
+			return false, loose
 		}
-		o := &out[j]
-		o.pt, o.ok, o.ends = settingTableWith(l, j, tabSetZTol, tabSetTail, &cals[j], drop)
+		o.pt, o.ok, o.ends = settingTableWith(l, j, tabSetZTol, tabSetTail, &cals[j], plan)
 		o.rel = rel
+		if o.ends != nil {
+			o.loose = false
+		}
 		// The model at the calendar limit, evaluated here.
 		if o.ends != nil {
 			o.ends.evals++

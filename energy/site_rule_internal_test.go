@@ -23,8 +23,40 @@ import (
 // logic on a grid it did not use; the independent oracles are the closed
 // form (TestSiteSharedDominatedClosedForm) and internal/lifesim's sampler.
 func TestSiteRuleErrorAgainstFinerReference(t *testing.T) {
-	s, err := NewSite(TwoFactorSiteSpec(t))
+	for _, tc := range []struct {
+		name    string
+		spec    SiteSpec
+		refined bool // the fine grid refined by the laws' slope (fitFine) in a factor
+	}{
+		{"two-factor site", TwoFactorSiteSpec(t), false},
+		{"steep test site", tabTestSpec(t), true},
+		{"steep test site, 20 times the nodes", manyNodes(tabTestSpec(t), 20), true},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			siteRuleAgainstFinerReference(t, tc.spec, tc.refined)
+		})
+	}
+}
+
+// manyNodes returns spec with every group's count times k (steeper first
+// failures).
+func manyNodes(spec SiteSpec, k int64) SiteSpec {
+	spec.Groups = append([]SiteGroup(nil), spec.Groups...)
+	for i := range spec.Groups {
+		spec.Groups[i].Count *= k
+	}
+	return spec
+}
+
+// siteRuleAgainstFinerReference is TestSiteRuleErrorAgainstFinerReference
+// on one site.
+func siteRuleAgainstFinerReference(t *testing.T, spec SiteSpec, refined bool) {
+	s, err := NewSite(spec)
 	require.NoError(t, err)
+	widest := int(math.Round(2*sharedFineZ/sharedFineStep)) + 1
+	if refined {
+		assert.True(t, len(s.fac[0].fz) > widest || len(s.fac[1].fz) > widest, "a factor's fine grid refined: %d and %d points", len(s.fac[0].fz), len(s.fac[1].fz))
+	}
 	fine := s
 	for d := range 2 {
 		f := s.fac[d]
@@ -60,7 +92,7 @@ func TestSiteRuleErrorAgainstFinerReference(t *testing.T) {
 		check(kindFirst, g, "first failure "+s.names[g])
 	}
 	check(kindFleet, 0, "fleet's first failure")
-	t.Logf("largest error against the finer reference %.2g, at most %.2f of the estimate", worst, ratio)
+	t.Logf("fine grids %d × %d points; largest error against the finer reference %.2g, at most %.2f of the estimate", len(s.fac[0].fz), len(s.fac[1].fz), worst, ratio)
 }
 
 // lawProbes computes the interpolation terms only at the probes whose

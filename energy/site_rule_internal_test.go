@@ -19,7 +19,10 @@ import (
 // reference four times finer in both factors, the rule errs by no more
 // than its estimated total at every probe time of every law it states,
 // on the two-factor site of TestSiteMixtureMoments (3 × 8 nodes in 2
-// pieces, where the default step applies). A check of the estimate's
+// pieces, where the default step applies in the batch factor), on the
+// test site whose laws are steep in the temperature factor (fitFine
+// refines its grid there) and on the same site with 20 times the nodes
+// (steeper first failures). A check of the estimate's
 // logic on a grid it did not use; the independent oracles are the closed
 // form (TestSiteSharedDominatedClosedForm) and internal/lifesim's sampler.
 func TestSiteRuleErrorAgainstFinerReference(t *testing.T) {

@@ -318,14 +318,11 @@ func tabulate(l NodeLifetime) tabulated {
 			}
 			tb.setPoints += len(st.t)
 			tb.setEvals += st.evals
-			if d := &tables[j]; d.loose {
-				// Its probit is below zCal + tabLooseShift wherever it is
-				// read, where φ increases (tabLooseZ).
-				tb.looseRel += 1.5 * d.tol * d.e
-				tb.looseAbs += w * normPDF(d.zCal+tabLooseShift) * 1.5 * d.tol
-			} else {
-				tb.setWorst = math.Max(tb.setWorst, st.worst)
-			}
+			// Its loose intervals' errors apart (tabLooseMax); its worst
+			// is that of the intervals at the full tolerance.
+			tb.looseRel += tables[j].looseRel
+			tb.looseAbs += tables[j].looseAbs
+			tb.setWorst = math.Max(tb.setWorst, st.worst)
 			z0, z1 := st.z[0], st.z[len(st.z)-1]
 			tb.setZ = math.Max(tb.setZ, math.Max(math.Abs(z0), math.Abs(z1)))
 			// Before its first time the setting's law is below Φ(z0)
@@ -339,10 +336,7 @@ func tabulate(l NodeLifetime) tabulated {
 			}
 			tb.setBeyond += w * (beyond + normSurv(tabCut))
 			guessLo, guessHi = math.Min(guessLo, st.t[0]), math.Max(guessHi, st.t[len(st.t)-1])
-			se := set{w: w, pt: st, cutLo: math.Inf(-1), cutHi: math.Inf(1)}
-			if d := &tables[j]; d.loose {
-				se.slack = math.Max(0, 1.5*d.tol-0.01)
-			}
+			se := set{w: w, pt: st, cutLo: math.Inf(-1), cutHi: math.Inf(1), slack: math.Max(0, tables[j].slack)}
 			if d := st.d0[0]; z0 <= -tabCut {
 				se.cutLo = st.t[0]
 			} else if d > 0 {
@@ -372,11 +366,16 @@ func tabulate(l NodeLifetime) tabulated {
 			}
 			// Beyond a table's ends the law is beyond the end's probit
 			// (monotone): read the end. accuracyAtZ takes the reading
-			// within 0.01 of the model: a loose table's (below 0 all
-			// through, tabLooseZ) is moved toward 0 by its error beyond
-			// that, so that its |z| − 0.01 stays a lower bound.
+			// within 0.01 of the model: where a table may be loose (its
+			// probit below tabLooseZ + tabLooseShift) the reading is moved
+			// toward 0 by its loose intervals' largest error beyond that,
+			// so that its |z| − 0.01 stays a lower bound.
 			pt := &sets[j].pt
-			return pt.zAt(math.Min(math.Max(t, pt.t[0]), pt.t[len(pt.t)-1])) + sets[j].slack
+			z := pt.zAt(math.Min(math.Max(t, pt.t[0]), pt.t[len(pt.t)-1]))
+			if z <= tabLooseZ+tabLooseShift {
+				z += sets[j].slack
+			}
+			return z
 		}
 		// The mixture's probit from the settings' tables, with its slopes
 		// left and right of t: dF/dt = Σ w·φ(z_j)·z_j'(t), z' = F'/φ(z).
@@ -486,7 +485,7 @@ func tabulate(l NodeLifetime) tabulated {
 			}
 			loK, _ := at(lo)
 			hiK, _ := at(hi)
-			tb.probitTable = n.clockGrid(loK, hiK, tabMixTol, tabSetInitial, nil, at)
+			tb.probitTable = n.clockGrid(loK, hiK, tabMixTol, tabSetInitial, nil, at, nil)
 			tb.evals += 2
 		} else {
 			tb.probitTable = hermiteGrid(mix, lo, hi, n.kinks(lo, hi), minWidth, tabZTol)

@@ -59,7 +59,10 @@ func tabTestSpec(t testing.TB) SiteSpec {
 //
 // The tables are built from each setting's own table (tabulated_setting.go);
 // the seven-setting group (tabManySpec), whose settings' lives lie months
-// to years apart, puts bumps into the mixture's probit.
+// to years apart, puts bumps into the mixture's probit, and its settings'
+// tables are loose where their laws are small beside the mixture's
+// (tabLooseMax): the stated error at each time (errAt) must bound what is
+// measured there too.
 func TestTabulatedAgainstDirect(t *testing.T) {
 	spec := tabTestSpec(t)
 	many, _ := tabManySpec(t)
@@ -71,11 +74,23 @@ func TestTabulatedAgainstDirect(t *testing.T) {
 				require.NoError(t, err)
 				tb := tabulate(l)
 				require.Positive(t, tb.kinks, "the law crosses month boundaries")
-				worst, rel := tableAgainstDirect(tb, l, tableTestTimes(tb.t[0], tb.t[len(tb.t)-1], 4000))
+				ts := tableTestTimes(tb.t[0], tb.t[len(tb.t)-1], 4000)
+				worst, rel := tableAgainstDirect(tb, l, ts)
+				ratio := 0.0 // the largest error over the stated one
+				for _, x := range ts {
+					d := math.Abs(tb.CDF(x) - l.CDF(x))
+					assert.LessOrEqual(t, d, tb.errAt(x), "the stated error at %g y", x/Year)
+					if e := tb.errAt(x); e > 0 {
+						ratio = math.Max(ratio, d/e)
+					}
+				}
+				if g.Name == "seven" {
+					assert.Positive(t, tb.looseRel, "settings' tables loose where their laws are small beside the mixture's")
+				}
 				assert.LessOrEqual(t, worst, tb.tabCDF, "CDF: the table's stated part")
 				assert.LessOrEqual(t, rel, tb.tabRel, "relative tails down to 1e-12: the table's stated part")
 				assert.Positive(t, tb.tabCDF)
-				t.Logf("%d points, %d kinks: CDF error %.2g (stated %.2g), relative tail error %.2g (stated %.2g)", len(tb.t), tb.kinks, worst, tb.tabCDF, rel, tb.tabRel)
+				t.Logf("%d points, %d kinks: CDF error %.2g (stated %.2g), relative tail error %.2g (stated %.2g); at each time at most %.2g of the stated error", len(tb.t), tb.kinks, worst, tb.tabCDF, rel, tb.tabRel, ratio)
 			})
 		}
 	}

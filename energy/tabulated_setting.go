@@ -158,12 +158,13 @@ type settingEnds struct {
 
 // settingTableWith is settingTable, with the model at the calendar limit
 // given (cal, when not nil: the same knot, not evaluated again) and a
-// plan: where the setting's table would end at the calendar limit, plan
-// sees its ends before its knots are placed; when it says drop no table
-// is built (ends holds what was found; the table is empty and ok true),
-// and otherwise the table's tolerance is tol times its loose (at least
-// 1; see tabLooseMax).
-func settingTableWith(l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, plan func(lo, hi gradKnot) (drop bool, loose float64)) (pt probitTable, ok bool, ends *settingEnds) {
+// plan, which sees the table's ends before its knots are placed: where
+// the table would end at the calendar limit and it says drop, no table
+// is built (ends holds what was found; the table is empty and ok true);
+// otherwise its loose, when not nil, gives each interval's factor on the
+// tolerance (gradGrid; see tabLooseMax), and a table whose whole span
+// gets a factor above 1 starts from tabLooseInitial knots.
+func settingTableWith(l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, plan func(lo, hi gradKnot) (drop bool, loose func(a, b *gradKnot) float64)) (pt probitTable, ok bool, ends *settingEnds) {
 	n := l.n
 	std := dist.MustNormal(0, 1)
 	zLo, zHi := std.Quantile(tail), std.UpperQuantile(tail)
@@ -261,17 +262,18 @@ func settingTableWith(l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, 
 		return probitGrid(probit, lo, hi, probit(lo), probit(hi), n.kinks(lo, hi), 0, tol), true, nil
 	}
 	initial := tabSetInitial
-	if plan != nil && hiK.t == n.calendar {
-		drop, loose := plan(loK, hiK)
+	var loose func(a, b *gradKnot) float64
+	if plan != nil {
+		var drop bool
+		drop, loose = plan(loK, hiK)
 		if drop {
 			return probitTable{}, true, &settingEnds{lo: loK, hi: hiK, evals: evaluated}
 		}
-		if loose > 1 {
-			tol *= loose
+		if loose != nil && loose(&loK, &hiK) > 1 {
 			initial = tabLooseInitial
 		}
 	}
-	pt = n.gradGrid(j, loK, hiK, tol, initial, seen)
+	pt = n.gradGrid(j, loK, hiK, tol, initial, seen, loose)
 	pt.evals += evaluated
 	return pt, true, nil
 }
@@ -299,18 +301,24 @@ func settingTableWith(l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, 
 //
 // initial is the first grid's knots (tabSetInitial; tabLooseInitial for a
 // loose table).
-func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64, initial int, known []gradKnot) probitTable {
+//
+// loose, when not nil, gives an interval's factor on the tolerance (at
+// least 1; see tabLooseMax): an interval is accepted where its error is
+// within tol times it.
+func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64, initial int, known []gradKnot, loose func(a, b *gradKnot) float64) probitTable {
 	return n.clockGrid(lo, hi, tol, initial, known, func(t float64) (gradKnot, float64) {
 		k := n.gradKnotAt(j, t)
 		return k, n.slope(k, true)
-	})
+	}, loose)
 }
 
 // clockGrid is gradGrid's construction for any probit that is smooth in
 // the clocks: at returns the knot (the probit and its gradient against
 // the clocks) at a time and the probit's exact slope right of it (the
-// guard's). The table keeps its knots (gk).
-func (n *node) clockGrid(lo, hi gradKnot, tol float64, initial int, known []gradKnot, at func(t float64) (gradKnot, float64)) probitTable {
+// guard's). The table keeps its knots (gk). loose is gradGrid's (nil for
+// none); the table's worst is then the largest error measured on the
+// intervals accepted at tol itself.
+func (n *node) clockGrid(lo, hi gradKnot, tol float64, initial int, known []gradKnot, at func(t float64) (gradKnot, float64), loose func(a, b *gradKnot) float64) probitTable {
 	ks := []gradKnot{lo}
 	evals := 0
 	step := (hi.t - lo.t) / float64(initial-1)
@@ -333,6 +341,7 @@ func (n *node) clockGrid(lo, hi gradKnot, tol float64, initial int, known []grad
 	}
 	ks = append(ks, hi)
 	finite := func(k *gradKnot) bool { return !math.IsInf(k.z, 0) && !math.IsNaN(k.z) }
+	tight := 0.0 // the largest error accepted at tol itself
 	ks, worst, splits := halveUntil(ks, tol, nil, func(a, b *gradKnot) bool {
 		return b.t-a.t <= 1e-9*b.t || (!finite(a) && a.z == b.z)
 	}, func(_ int, a, b *gradKnot) (gradKnot, float64) {
@@ -340,13 +349,23 @@ func (n *node) clockGrid(lo, hi gradKnot, tol float64, initial int, known []grad
 		if !finite(a) || !finite(b) || !finite(&m) {
 			return m, math.Inf(1)
 		}
+		lam := 1.0
+		if loose != nil {
+			lam = loose(a, b)
+		}
 		zi, dzi := n.gradInterp(a, b, m.t, true)
 		e := math.Abs(zi - m.z)
-		if est := e + 0.2*math.Abs(dzi-sm)*(b.t-a.t); est > tabSetGuard*tol {
-			return m, est // the halves are checked in their turn
+		if est := e + 0.2*math.Abs(dzi-sm)*(b.t-a.t); est > tabSetGuard*tol*lam {
+			return m, est / lam // the halves are checked in their turn
 		}
-		return m, e
+		if lam == 1 && e <= tol {
+			tight = math.Max(tight, e)
+		}
+		return m, e / lam
 	})
+	if loose != nil {
+		worst = tight
+	}
 	evals += splits
 	// Store: points at the knots and the month boundaries between them.
 	kinks := n.kinks(lo.t, hi.t)
@@ -511,33 +530,39 @@ const (
 	tabDropRel = 1e-6 // and its bound relative to the mixture's CDF from its lower end on, at most
 )
 
-// A setting kept whose law before the calendar limit is small beside the
-// mixture's both ways is tabulated to a looser tolerance: its table's
-// probit error δ moves the mixture's CDF by at most
-// w·δ·(1 + |z|)·F_j·1.01 (as every setting's, tabulated.errAt), and its
-// w·F_j is at most e times the mixture's CDF and survival from its table's
-// lower end on, e = max(ρ, s): ρ = w·P(run out by the calendar limit)
-// over 0.99 of the CDF there of the settings tabulated to the full
-// tolerance before it (read at its lower end, the mixture's CDF being
-// larger later), as for the settings left out, and s = P/(1 − P), the
-// setting's own survival being part of the mixture's (with its probit at
-// the calendar limit at most tabLooseZ, so that P is its smaller side
-// throughout). Its tolerance is tabSetZTol times min(tabLooseMax,
-// tabLooseShare/(N·e)) for N settings, and its measured error times e
-// is stated beside the other settings' (tabulated.looseRel), so the
-// settings so tabulated add at most tabLooseShare·tabSetZTol to the
-// mixture's relative error; tabLooseMax keeps every table within 0.01 of
-// the model in probit (accuracyAtZ's pruning reads them), 1.5 times the
-// loosest tolerance. The demo's 84 laws tabulate about 300 of their 718
-// settings' tables this way, with about half the knots each.
+// Where a setting's law is small beside the mixture's both ways, its table
+// is built to a looser tolerance, interval by interval: on an interval
+// [a, b] of its table the probit error δ moves the mixture's CDF by at
+// most w·δ·(1 + |z|)·F_j·1.01 (as every setting's, tabulated.errAt), and
+// w·F_j is at most e times the mixture's CDF and survival there,
+// e = max(ρ, s): ρ = w·Φ(z_b) over f, the CDF at a of the settings
+// tabulated before it (each read from its table lowered by its largest
+// probit error: a lower bound on the mixture's CDF from a on), and
+// s = Φ(z_b)/(1 − Φ(z_b)), the setting's own survival being part of the
+// mixture's (with z_b at most tabLooseZ, so that F_j is its smaller side
+// on the interval). The interval's tolerance is tabSetZTol times
+// λ = min(tabLooseMax, tabLooseShare/(1.5·N·e),
+// 0.4·tabLooseShare/(1.5·N·w·φ(z_b + tabLooseShift))) for N settings,
+// and where λ > 1 its error, 1.5·λ·tabSetZTol (the midpoint checks no
+// longer bound it by themselves there: TestSettingTablesAgainstDirect),
+// is stated apart (tabulated.looseRel, looseAbs: per table the largest
+// over its loose intervals, λ·e and w·φ·λ), so the loose intervals add
+// at most tabLooseShare of the full tolerance's stated parts, relative
+// and absolute. tabLooseMax keeps every reading within 0.045 of the model
+// in probit (accuracyAtZ's pruning reads them moved toward 0 by the
+// excess over 0.01). The settings are tabulated in the order of their
+// probits at the calendar limit, highest first, so that the ones that run
+// out first are there to compare with: in the demo the lower tails of
+// most of the others are loose, and settings whose law is small all
+// through before the calendar limit (about a third) wholly so.
 const (
 	tabLooseMax   = 100                            // a setting table's tolerance at most tabLooseMax·tabSetZTol
 	tabLooseShare = 0.25                           // the loose tables' stated errors, at most tabLooseShare of the full tolerance's in all
 	tabLooseZ     = -1.0                           // a loose table's probit at the calendar limit, at most
 	tabLooseShift = 1.5 * tabLooseMax * tabSetZTol // a loose table's probit error, at most
-	// tabLooseInitial is a loose table's first grid's knots: at its
-	// tolerance the intervals of tabSetInitial's grid pass their first
-	// check (the demo's: 9 knots each).
+	// tabLooseInitial is the first grid's knots of a table loose over its
+	// whole span: at its tolerance the intervals of tabSetInitial's grid
+	// pass their first check (the demo's: 9 knots each).
 	tabLooseInitial = 3
 )
 
@@ -556,10 +581,12 @@ type settingOut struct {
 	ok   bool
 	ends *settingEnds
 	rel  float64
-	// loose: the table's tolerance is looser than tabSetZTol, its error
-	// stated as e times its measured one (tabulated.looseRel).
-	loose        bool
-	e, zCal, tol float64
+	// The table's loose intervals (tabLooseMax): the largest of their
+	// stated errors relative to the mixture's smaller side (looseRel) and
+	// absolute (looseAbs), of their probit errors beyond 0.01 (slack,
+	// at least 0) and of all its probit errors (errZ: 1.5·tabSetZTol
+	// without loose intervals).
+	looseRel, looseAbs, slack, errZ float64
 	// part's output at the calendar limit (calOK where it was evaluated
 	// there), for the law's error profile (NodeLifetime.accuracyAtZ).
 	cal   partOut
@@ -608,42 +635,57 @@ func (n *node) settingTables(l NodeLifetime) []settingOut {
 		}
 		w := n.settings[j].w
 		o := &out[j]
-		var rel float64
-		plan := func(lo, hi gradKnot) (bool, float64) {
-			p := droppedMass(w, hi.z)
-			// The CDF at lo.t of the settings tabulated so far to the
-			// full tolerance (within a per cent of the model: a lower
-			// bound on the mixture's from lo.t on).
+		o.errZ = 1.5 * tabSetZTol
+		// before is the CDF at t of the settings tabulated so far, each
+		// read from its table lowered by its largest probit error: a
+		// lower bound on the mixture's from t on.
+		before := func(t float64) float64 {
 			f := 0.0
 			for i := range out {
 				pt := &out[i].pt
-				if pt.t == nil || out[i].loose || lo.t < pt.t[0] {
-					continue // none yet, a loose table, or read as 0 before its table
+				if pt.t == nil || t < pt.t[0] {
+					continue // none yet, or read as 0 before its table
 				}
-				f += n.settings[i].w * normSurv(-pt.zAt(math.Min(lo.t, pt.t[len(pt.t)-1])))
+				f += n.settings[i].w * normSurv(-(pt.zAt(math.Min(t, pt.t[len(pt.t)-1])) - out[i].errZ))
 			}
-			rel = p / (0.99 * f)
-			if p <= tabDropAbs && rel <= tabDropRel {
-				return true, 1
+			return f
+		}
+		N := float64(len(n.settings))
+		loose := func(a, b *gradKnot) float64 {
+			if !(b.z <= tabLooseZ) {
+				return 1
 			}
-			if !(hi.z <= tabLooseZ) {
-				return false, 1
+			P := normSurv(-b.z) * (1 + 1e-9)
+			e := math.Max(w*P/before(a.t), P/(1-P))
+			phi := normPDF(b.z + tabLooseShift)
+			lam := math.Min(tabLooseMax, math.Min(tabLooseShare/(1.5*N*e), tabLooseShare*0.4/(1.5*N*w*phi)))
+			if !(lam > 1) {
+				return 1
 			}
-			// A loose table (see tabLooseMax).
-			P := normSurv(-hi.z) * (1 + 1e-9)
-			e := math.Max(rel, P/(1-P))
-			N := float64(len(n.settings))
-			loose := math.Min(tabLooseMax, tabLooseShare/(1.5*N*e))
-			loose = math.Min(loose, tabLooseShare*0.4/(1.5*N*w*normPDF(hi.z+tabLooseShift)))
-			if loose > 1 {
-				o.loose, o.e, o.zCal, o.tol = true, e, hi.z, loose*tabSetZTol
+			// Every interval offered, accepted or not: the largest are
+			// at least those of the intervals kept.
+			d := 1.5 * tabSetZTol * lam
+			o.looseRel = math.Max(o.looseRel, d*e)
+			o.looseAbs = math.Max(o.looseAbs, w*phi*d)
+			o.slack = math.Max(o.slack, d-0.01)
+			o.errZ = math.Max(o.errZ, d)
+			return lam
+		}
+		var rel float64
+		plan := func(lo, hi gradKnot) (bool, func(a, b *gradKnot) float64) {
+			if hi.t == n.calendar {
+				p := droppedMass(w, hi.z)
+				rel = p / before(lo.t)
+				if p <= tabDropAbs && rel <= tabDropRel {
+					return true, nil
+				}
 			}
 			return false, loose
 		}
 		o.pt, o.ok, o.ends = settingTableWith(l, j, tabSetZTol, tabSetTail, &cals[j], plan)
 		o.rel = rel
-		if o.ends != nil {
-			o.loose = false
+		if o.ends != nil || !o.ok {
+			o.looseRel, o.looseAbs, o.slack = 0, 0, 0
 		}
 		// The model at the calendar limit, evaluated here.
 		if o.ends != nil {

@@ -97,7 +97,7 @@ func TestSettingTablesAgainstDirect(t *testing.T) {
 					// measured worst; 1.1 of the tolerance at most, at λ = 3).
 					for _, loose := range []float64{3, 10, tabLooseMax} {
 						tol := loose * tabSetZTol
-						lt := l.n.gradGrid(j, st.gk[0], st.gk[len(st.gk)-1], tol, tabLooseInitial, nil)
+						lt := l.n.gradGrid(j, st.gk[0], st.gk[len(st.gk)-1], tol, tabLooseInitial, nil, nil)
 						lw := 0.0
 						for _, x := range tableTestTimes(lt.t[0], lt.t[len(lt.t)-1], 2000) {
 							a, d, _ := l.n.settingAt(j, x)
@@ -182,8 +182,8 @@ func TestTabulatedDroppedSettingAgainstDirect(t *testing.T) {
 	assert.Nil(t, out[0].ends, "the short-lived setting is tabulated")
 	require.NotNil(t, out[1].ends, "the long-lived setting is left out")
 	assert.Nil(t, out[2].ends, "the setting with more mass is tabulated")
-	assert.True(t, out[2].loose, "to a looser tolerance")
-	assert.False(t, out[0].loose, "the short-lived one to the full tolerance")
+	assert.Positive(t, out[2].looseRel, "to a looser tolerance")
+	assert.Zero(t, out[0].looseRel, "the short-lived one to the full tolerance")
 	tb := tabulate(l)
 	_, dead, _ := l.n.settingAt(1, l.n.calendar)
 	assert.LessOrEqual(t, 0.3*dead, tb.dropAbs, "the left-out mass")

@@ -221,8 +221,9 @@ func gatewayDownlinks(fn string, streams []DownlinkStream, start DownlinkBudget)
 	hold := func(s DownlinkStream) float64 { return s.Airtime / s.DutyCycle }
 	// conflict[x][y]: measure of the booking times of y that refuse x.
 	conflict := make([][]float64, n)
+	cells := make([]float64, n*n) // the rows' one backing array
 	for x, sx := range streams {
-		conflict[x] = make([]float64, n)
+		conflict[x] = cells[x*n : (x+1)*n : (x+1)*n]
 		for y, sy := range streams {
 			if poolOf[x] == poolOf[y] {
 				continue
@@ -244,7 +245,7 @@ func gatewayDownlinks(fn string, streams []DownlinkStream, start DownlinkBudget)
 		copy(sent, start.Sent)
 		copy(fb, start.fb)
 	}
-	var st gatewayState
+	st := newGatewayState(n, len(pools))
 	next, nextFB := make([]float64, n), make([]float64, n)
 	step, prev, solverErr := 1.0, math.Inf(1), 0.0
 	iter := 1
@@ -252,7 +253,7 @@ func gatewayDownlinks(fn string, streams []DownlinkStream, start DownlinkBudget)
 		if iter > maxDownlinkRounds {
 			return DownlinkBudget{}, fmt.Errorf("lora.%s: the fixed point did not settle after %d rounds (last change %.3g)", fn, maxDownlinkRounds, prev)
 		}
-		st = gatewayRound(streams, poolOf, len(pools), conflict, sent, fb, next, nextFB)
+		gatewayRound(streams, poolOf, conflict, sent, fb, next, nextFB, st)
 		change := 0.0
 		for x := range streams {
 			change = math.Max(change, math.Max(math.Abs(next[x]-sent[x]), math.Abs(nextFB[x]-fb[x])))
@@ -276,7 +277,7 @@ func gatewayDownlinks(fn string, streams []DownlinkStream, start DownlinkBudget)
 		}
 		prev = change
 	}
-	st = gatewayRound(streams, poolOf, len(pools), conflict, sent, fb, next, nextFB)
+	gatewayRound(streams, poolOf, conflict, sent, fb, next, nextFB, st)
 	out := DownlinkBudget{Sent: append([]float64(nil), sent...), Booked: st.booked, FallbackSent: make([]float64, n), Iterations: iter,
 		fb: append([]float64(nil), fb...)}
 	// The fallbacks' error (half their burst correction) moves the load
@@ -332,7 +333,9 @@ func gatewayDownlinks(fn string, streams []DownlinkStream, start DownlinkBudget)
 }
 
 // gatewayState is what one round of GatewayDownlinks's fixed point derives
-// from the current shares.
+// from the current shares, with the round's scratch: one is made per
+// solve and every round overwrites it (the last round's booked is the
+// budget's).
 type gatewayState struct {
 	booked   []float64 // answers booked per stream, per s (own + fallbacks)
 	sentRate []float64 // answers sent per stream, per s
@@ -340,6 +343,23 @@ type gatewayState struct {
 	double   []float64 // double-counting estimate of w, per stream
 	busy     []float64 // per pool: the share of time it is held (its carried load)
 	burst    []float64 // per fallback source: how much the burst raises the refusal
+
+	fallRate []float64   // per stream: fallback answers sent into it, per s
+	num, den []float64   // per pool: the carried load's numerator and denominator
+	base     []float64   // per pool: its load at the average refusal rates
+	closures [][]closure // per pool: its closures
+	inClos   []float64   // per fallback source z: inClosure(poolOf[z], hold(target of z)); NaN until computed in the round
+}
+
+// closure is one kind of a pool's closures: the held time it starts, and
+// the holding that starts it.
+type closure struct{ weight, h float64 }
+
+// newGatewayState makes the state of n streams in nPools pools.
+func newGatewayState(n, nPools int) *gatewayState {
+	return &gatewayState{booked: make([]float64, n), sentRate: make([]float64, n), w: make([]float64, n), double: make([]float64, n),
+		busy: make([]float64, nPools), burst: make([]float64, n), fallRate: make([]float64, n), num: make([]float64, nPools),
+		den: make([]float64, nPools), base: make([]float64, nPools), closures: make([][]closure, nPools), inClos: make([]float64, n)}
 }
 
 // gatewayRound computes one round: from sent and fb (see GatewayDownlinks)
@@ -364,12 +384,18 @@ type gatewayState struct {
 // otherwise) and at the average before; it is sent with probability
 // 1/(1 + S_c). A fallback refused for a cross conflict meets the target as
 // a primary does.
-func gatewayRound(streams []DownlinkStream, poolOf []int, nPools int, conflict [][]float64, sent, fb, next, nextFB []float64) gatewayState {
-	n := len(streams)
-	st := gatewayState{booked: make([]float64, n), sentRate: make([]float64, n), w: make([]float64, n), double: make([]float64, n),
-		busy: make([]float64, nPools), burst: make([]float64, n)}
+func gatewayRound(streams []DownlinkStream, poolOf []int, conflict [][]float64, sent, fb, next, nextFB []float64, st *gatewayState) {
+	for _, xs := range [][]float64{st.booked, st.sentRate, st.w, st.double, st.busy, st.burst, st.fallRate, st.num, st.den, st.base} {
+		clear(xs)
+	}
+	for p := range st.closures {
+		st.closures[p] = st.closures[p][:0]
+	}
+	for z := range st.inClos {
+		st.inClos[z] = math.NaN()
+	}
 	hold := func(y int) float64 { return streams[y].Airtime / streams[y].DutyCycle }
-	fallRate := make([]float64, n) // fallback answers sent into each target
+	fallRate := st.fallRate // fallback answers sent into each target
 	for y, sy := range streams {
 		st.booked[y] += sy.Rate
 		st.sentRate[y] += sy.Rate * sent[y]
@@ -397,7 +423,7 @@ func gatewayRound(streams []DownlinkStream, poolOf []int, nPools int, conflict [
 		st.w[x] = math.Min(st.w[x], 1)
 	}
 	// Carried load per pool.
-	num, den := make([]float64, nPools), make([]float64, nPools)
+	num, den := st.num, st.den
 	for y, sy := range streams {
 		p := poolOf[y]
 		num[p] += hold(y) * (sy.Rate*(1-st.w[y]) + fallRate[y])
@@ -411,8 +437,7 @@ func gatewayRound(streams []DownlinkStream, poolOf []int, nPools int, conflict [
 		nextFB[y] = 1
 	}
 	// Closures of each pool: the held time, by the holding that started it.
-	type closure struct{ weight, h float64 }
-	closures := make([][]closure, nPools)
+	closures := st.closures
 	for y := range streams {
 		if st.sentRate[y] > 0 {
 			closures[poolOf[y]] = append(closures[poolOf[y]], closure{st.sentRate[y] * hold(y), hold(y)})
@@ -427,17 +452,15 @@ func gatewayRound(streams []DownlinkStream, poolOf []int, nPools int, conflict [
 		}
 		return H / (2 * h)
 	}
-	type qh struct {
-		q int
-		h float64
-	}
-	memo := map[qh]float64{}
-	inClosure := func(q int, h float64) float64 { // the same over pool q's closures
-		if v, ok := memo[qh{q, h}]; ok {
+	// inClosure(z) is the same over the closures of z's pool for the
+	// holding of z's fallback target (computed once a round).
+	inClosure := func(z int) float64 {
+		if v := st.inClos[z]; !math.IsNaN(v) {
 			return v
 		}
+		h := hold(streams[z].Fallback - 1)
 		tw, m := 0.0, 0.0
-		for _, c := range closures[q] {
+		for _, c := range closures[poolOf[z]] {
 			tw += c.weight
 			m += c.weight * within(c.h, h)
 		}
@@ -445,11 +468,11 @@ func gatewayRound(streams []DownlinkStream, poolOf []int, nPools int, conflict [
 		if tw > 0 {
 			v = m / tw
 		}
-		memo[qh{q, h}] = v
+		st.inClos[z] = v
 		return v
 	}
 	// base[P]: the target pool's load at the average refusal rates.
-	base := make([]float64, nPools)
+	base := st.base
 	for y, sy := range streams {
 		base[poolOf[y]] += hold(y) * (1 - st.w[y]) * sy.Rate
 		if sy.Fallback != 0 {
@@ -474,7 +497,7 @@ func gatewayRound(streams []DownlinkStream, poolOf []int, nPools int, conflict [
 		for z, sz := range streams {
 			if sz.Fallback != 0 && poolOf[z] == q && poolOf[sz.Fallback-1] == p {
 				tz := sz.Fallback - 1
-				sc += hold(tz) * (1 - st.w[tz]) * sz.Rate * sent[z] * inClosure(q, hold(tz))
+				sc += hold(tz) * (1 - st.w[tz]) * sz.Rate * sent[z] * inClosure(z)
 			}
 		}
 		pu := math.Min(st.busy[q]/refused, 1)
@@ -498,7 +521,6 @@ func gatewayRound(streams []DownlinkStream, poolOf []int, nPools int, conflict [
 		st.burst[x] = dev
 		nextFB[x] = got * (1 - st.w[t])
 	}
-	return st
 }
 
 // DownlinkBand returns a band key and duty-cycle limit for a gateway's

@@ -421,7 +421,18 @@ func (cs *choiceSearch) eval(iv float64, need int) (*evaluation, error) {
 	}
 	e := &evaluation{interval: iv, p: math.NaN(), ruleE: math.NaN(), nodeE: math.NaN(), laws: tl}
 	if need == needDecide {
-		if e.meets, err = tl.decide(p.Target, p.Count); err != nil {
+		// The choice's other candidates bound this one's laws (a longer
+		// interval does not shorten a node's life).
+		for _, o := range cs.evals {
+			if o.interval > iv {
+				tl.longer = append(tl.longer, o.laws)
+			} else {
+				tl.shorter = append(tl.shorter, o.laws)
+			}
+		}
+		e.meets, err = tl.decide(p.Target, p.Count)
+		tl.longer, tl.shorter = nil, nil
+		if err != nil {
 			return nil, err
 		}
 	} else if err := cs.upgrade(e, need); err != nil {

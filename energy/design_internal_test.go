@@ -174,6 +174,82 @@ func TestDecideAsFull(t *testing.T) {
 	}
 }
 
+// decide with the laws of the same choice at longer and shorter intervals
+// as bounds (what the search passes it) gives the full p's answer (the
+// oracle: the figure with every law built) for group A of tabTestSpec at
+// intervals of 0.7 to 1.4 times its own, at dates where the middle
+// interval's p is far below the level to far above it, for a node and a
+// group target, with neighbours fully built and neighbours decided (some
+// laws built); over the dates it builds fewer laws than without them. The
+// fact it rests on is checked too: no node's CDF at the date rises with
+// the interval.
+func TestDecideWithNeighboursAsFull(t *testing.T) {
+	spec := tabTestSpec(t)
+	site, err := NewSite(spec)
+	require.NoError(t, err)
+	rule := site.SharedRule()
+	law, err := site.NodeLifetime(0)
+	require.NoError(t, err)
+	node := spec.Groups[0].Node
+	at := func(f float64) NodeSpec {
+		n := node
+		n.Settings = []NodeSetting{{Weight: 1, Cycle: tabTestCycle(24*Hour*f, 8*MicroAmp, 4)}}
+		return n
+	}
+	factors := []float64{0.7, 0.85, 1, 1.2, 1.4}
+	const mid = 2
+	built := func(tl *targetLaws) int {
+		n := 0
+		for _, l := range tl.laws {
+			if l.n != nil {
+				n++
+			}
+		}
+		return n
+	}
+	with, without := 0, 0
+	for _, q := range []float64{1e-4, 0.003, 0.009, 0.0105, 0.03, 0.3, 0.9} {
+		T := law.Quantile(q)
+		for _, target := range []Target{{Kind: NodeFlat, Date: T, Level: 0.01}, {Kind: GroupFlat, Date: T, Level: 0.3}} {
+			const count = 30
+			// The laws at every factor, each finished by fill: every law
+			// built (prob), or as decide leaves them.
+			lawsAt := func(fill func(*targetLaws) error) []*targetLaws {
+				out := make([]*targetLaws, len(factors))
+				for i, f := range factors {
+					out[i], err = newTargetLaws("test", at(f), spec.Climate, rule, nil, T)
+					require.NoError(t, err)
+					require.NoError(t, fill(out[i]))
+				}
+				return out
+			}
+			full := lawsAt(func(tl *targetLaws) error { _, err := tl.prob(target, count); return err })
+			decided := lawsAt(func(tl *targetLaws) error { _, err := tl.decide(target, count); return err })
+			for i := 1; i < len(full); i++ {
+				for e := range full[i].cdf {
+					assert.LessOrEqual(t, full[i].cdf[e], full[i-1].cdf[e], "node %d at %g against %g of the interval", e, factors[i], factors[i-1])
+				}
+			}
+			p, err := full[mid].prob(target, count)
+			require.NoError(t, err)
+			without += built(decided[mid])
+			for name, nb := range map[string][]*targetLaws{"full": full, "decided": decided} {
+				lazy, err := newTargetLaws("test", at(factors[mid]), spec.Climate, rule, nil, T)
+				require.NoError(t, err)
+				lazy.shorter, lazy.longer = nb[:mid], nb[mid+1:]
+				meets, err := lazy.decide(target, count)
+				require.NoError(t, err)
+				assert.Equal(t, p <= target.Level, meets, "neighbours %s, %v at the law's %g point: p = %g", name, target.Kind, q, p)
+				if name == "decided" {
+					with += built(lazy)
+				}
+			}
+		}
+	}
+	t.Logf("laws built to decide: %d with decided neighbours, %d without", with, without)
+	assert.Less(t, with, without)
+}
+
 // The shared rule's stated error for a candidate's figure (a rule from
 // Site.GroupRule: the Site's probe on the candidate's own probits) against
 // the rule's true error, measured from a reference integral over the

@@ -85,6 +85,11 @@ type targetLaws struct {
 	// lower and higher are, per node, the node of the same temperature
 	// offset with the next lower and next higher batch factor (−1: none).
 	lower, higher []int
+	// longer and shorter are the laws of the same choice at longer and
+	// shorter intervals, for bounds (nil: none). Their nodes' CDFs at the
+	// date bound this candidate's: a longer interval does not shorten a
+	// node's life (Builder).
+	longer, shorter []*targetLaws
 }
 
 // newTargetLaws returns the candidate spec's laws at rule's nodes for the
@@ -167,25 +172,22 @@ func nodeFigure(t Target, count int64, f float64) float64 {
 // the self-discharge alike, see Conditions; the calendar limit does not
 // depend on it), so F_e(date) lies between the CDFs of the nearest built
 // nodes of the same temperature offset with a higher and a lower batch
-// factor (0 and 1 where there are none).
+// factor (0 and 1 where there are none); and a node's life does not
+// shorten as the interval grows (Builder), so it lies between the CDFs of
+// the same nodes built for the choice's longer and shorter intervals
+// (tl.longer, tl.shorter): the tightest of these bounds is taken.
 func (tl *targetLaws) bounds(t Target, count int64) (lo, hi float64, next int) {
 	next = -1
 	widest := -1.0
 	for e, f := range tl.cdf {
 		fl, fh := f, f
 		if math.IsNaN(f) {
-			fl, fh = 0, 1
-			for g := tl.higher[e]; g >= 0; g = tl.higher[g] {
-				if !math.IsNaN(tl.cdf[g]) {
-					fl = tl.cdf[g]
-					break
-				}
+			fl, fh = tl.below(e), tl.above(e)
+			for _, o := range tl.longer {
+				fl = math.Max(fl, o.first(e, o.higher, 0))
 			}
-			for g := tl.lower[e]; g >= 0; g = tl.lower[g] {
-				if !math.IsNaN(tl.cdf[g]) {
-					fh = tl.cdf[g]
-					break
-				}
+			for _, o := range tl.shorter {
+				fh = math.Min(fh, o.first(e, o.lower, 1))
 			}
 		}
 		a, b := tl.w[e]*nodeFigure(t, count, fl), tl.w[e]*nodeFigure(t, count, fh)
@@ -196,6 +198,24 @@ func (tl *targetLaws) bounds(t Target, count int64) (lo, hi float64, next int) {
 		}
 	}
 	return lo, hi, next
+}
+
+// below returns a lower bound on node e's CDF at the date from tl's
+// built nodes of a higher batch factor (0 where none is built); above an
+// upper bound from those of a lower one (1 where none is).
+func (tl *targetLaws) below(e int) float64 { return tl.first(tl.higher[e], tl.higher, 0) }
+
+func (tl *targetLaws) above(e int) float64 { return tl.first(tl.lower[e], tl.lower, 1) }
+
+// first returns the CDF at the date of the first built node of the chain
+// e, step[e], step[step[e]], …, or none when none is built.
+func (tl *targetLaws) first(e int, step []int, none float64) float64 {
+	for ; e >= 0; e = step[e] {
+		if !math.IsNaN(tl.cdf[e]) {
+			return tl.cdf[e]
+		}
+	}
+	return none
 }
 
 // decide tells whether p <= t.Level, building laws only until the bounds

@@ -3,6 +3,7 @@ package lora
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 )
 
@@ -172,35 +173,109 @@ func GatewayDownlinksFrom(streams []DownlinkStream, prev DownlinkBudget) (Downli
 	return gatewayDownlinks("GatewayDownlinksFrom", streams, prev)
 }
 
+// DownlinkLayout is a gateway's downlink streams but for their rates:
+// checked, grouped into pools (one band and one lead) and with the
+// conflicts between them measured, once. A caller that solves the same
+// streams at many rates (the site model's collision rounds) makes it once
+// and asks BudgetFrom for each; the budgets are GatewayDownlinksFrom's to
+// the bit. An immutable value, safe for concurrent use.
+type DownlinkLayout struct {
+	streams  []DownlinkStream // as given; their rates are not read
+	poolOf   []int
+	nPools   int
+	conflict [][]float64 // conflict[x][y]: measure (s) of the booking times of y that refuse x
+}
+
+// NewDownlinkLayout returns the layout of streams (their rates are not
+// read). It fails as GatewayDownlinks does on everything but a rate,
+// wrapping ErrParam.
+func NewDownlinkLayout(streams []DownlinkStream) (DownlinkLayout, error) {
+	const fn = "NewDownlinkLayout"
+	if err := checkStreams(fn, streams, false); err != nil {
+		return DownlinkLayout{}, err
+	}
+	return newDownlinkLayout(slices.Clone(streams)), nil
+}
+
+// BudgetFrom is GatewayDownlinksFrom(streams, prev) for streams equal to
+// the layout's but for their rates. It fails, wrapping ErrParam, on a rate
+// not finite and >= 0 per s, or streams that differ from the layout's in
+// number or in anything but Rate.
+func (l DownlinkLayout) BudgetFrom(streams []DownlinkStream, prev DownlinkBudget) (DownlinkBudget, error) {
+	const fn = "DownlinkLayout.BudgetFrom"
+	if len(streams) != len(l.streams) {
+		return DownlinkBudget{}, paramErr(fn, "streams", len(streams), fmt.Sprintf("must be the layout's %d streams", len(l.streams)))
+	}
+	if err := checkRates(fn, streams); err != nil {
+		return DownlinkBudget{}, err
+	}
+	for i, s := range streams {
+		t := l.streams[i]
+		t.Rate = s.Rate
+		if s != t {
+			return DownlinkBudget{}, paramErr(fn, fmt.Sprintf("streams[%d]", i), fmt.Sprintf("%+v", s), fmt.Sprintf("must be the layout's %+v but for its Rate", l.streams[i]))
+		}
+	}
+	return l.solve(fn, streams, prev)
+}
+
 func gatewayDownlinks(fn string, streams []DownlinkStream, start DownlinkBudget) (DownlinkBudget, error) {
+	if err := checkStreams(fn, streams, true); err != nil {
+		return DownlinkBudget{}, err
+	}
+	return newDownlinkLayout(streams).solve(fn, streams, start)
+}
+
+// checkStreams checks streams as GatewayDownlinks states, their rates only
+// when rates is set.
+func checkStreams(fn string, streams []DownlinkStream, rates bool) error {
 	if len(streams) > MaxDownlinkStreams {
-		return DownlinkBudget{}, paramErr(fn, "streams", len(streams), fmt.Sprintf("at most MaxDownlinkStreams = %d", MaxDownlinkStreams))
+		return paramErr(fn, "streams", len(streams), fmt.Sprintf("at most MaxDownlinkStreams = %d", MaxDownlinkStreams))
 	}
 	duty := map[int]float64{}
 	for i, s := range streams {
 		switch {
-		case !finite(s.Rate) || s.Rate < 0:
-			return DownlinkBudget{}, paramErr(fn, fmt.Sprintf("streams[%d].Rate", i), s.Rate, "must be finite and >= 0 per s")
+		case rates && (!finite(s.Rate) || s.Rate < 0):
+			return rateErr(fn, i, s.Rate)
 		case !finite(s.Airtime) || s.Airtime <= 0:
-			return DownlinkBudget{}, paramErr(fn, fmt.Sprintf("streams[%d].Airtime", i), s.Airtime, "must be finite and > 0 s")
+			return paramErr(fn, fmt.Sprintf("streams[%d].Airtime", i), s.Airtime, "must be finite and > 0 s")
 		case !finite(s.Lead) || s.Lead < 0:
-			return DownlinkBudget{}, paramErr(fn, fmt.Sprintf("streams[%d].Lead", i), s.Lead, "must be finite and >= 0 s")
+			return paramErr(fn, fmt.Sprintf("streams[%d].Lead", i), s.Lead, "must be finite and >= 0 s")
 		case !(s.DutyCycle > 0 && s.DutyCycle <= 1):
-			return DownlinkBudget{}, paramErr(fn, fmt.Sprintf("streams[%d].DutyCycle", i), s.DutyCycle, "must be in (0, 1]")
+			return paramErr(fn, fmt.Sprintf("streams[%d].DutyCycle", i), s.DutyCycle, "must be in (0, 1]")
 		}
 		if s.Fallback != 0 {
 			switch f := s.Fallback - 1; {
 			case f < 0 || f >= len(streams) || f == i:
-				return DownlinkBudget{}, paramErr(fn, fmt.Sprintf("streams[%d].Fallback", i), s.Fallback, fmt.Sprintf("must be 0 or 1 + the index of another of the %d streams", len(streams)))
+				return paramErr(fn, fmt.Sprintf("streams[%d].Fallback", i), s.Fallback, fmt.Sprintf("must be 0 or 1 + the index of another of the %d streams", len(streams)))
 			case streams[f].Fallback != 0:
-				return DownlinkBudget{}, paramErr(fn, fmt.Sprintf("streams[%d].Fallback", i), s.Fallback, fmt.Sprintf("names stream %d, which has a Fallback of its own (no chains)", f))
+				return paramErr(fn, fmt.Sprintf("streams[%d].Fallback", i), s.Fallback, fmt.Sprintf("names stream %d, which has a Fallback of its own (no chains)", f))
 			}
 		}
 		if d, ok := duty[s.Band]; ok && d != s.DutyCycle {
-			return DownlinkBudget{}, paramErr(fn, fmt.Sprintf("streams[%d].DutyCycle", i), s.DutyCycle, fmt.Sprintf("band %d was given %g by an earlier stream", s.Band, d))
+			return paramErr(fn, fmt.Sprintf("streams[%d].DutyCycle", i), s.DutyCycle, fmt.Sprintf("band %d was given %g by an earlier stream", s.Band, d))
 		}
 		duty[s.Band] = s.DutyCycle
 	}
+	return nil
+}
+
+// checkRates checks the streams' rates alone.
+func checkRates(fn string, streams []DownlinkStream) error {
+	for i, s := range streams {
+		if !finite(s.Rate) || s.Rate < 0 {
+			return rateErr(fn, i, s.Rate)
+		}
+	}
+	return nil
+}
+
+func rateErr(fn string, i int, rate float64) error {
+	return paramErr(fn, fmt.Sprintf("streams[%d].Rate", i), rate, "must be finite and >= 0 per s")
+}
+
+// newDownlinkLayout is the layout of checked streams (kept, not copied).
+func newDownlinkLayout(streams []DownlinkStream) DownlinkLayout {
 	n := len(streams)
 	// Pools: streams of one band and one lead.
 	type poolKey struct {
@@ -235,6 +310,15 @@ func gatewayDownlinks(fn string, streams []DownlinkStream, start DownlinkBudget)
 			conflict[x][y] = math.Max(0, hy+math.Min(hx, sy.Lead-sx.Lead))
 		}
 	}
+	return DownlinkLayout{streams: streams, poolOf: poolOf, nPools: len(pools), conflict: conflict}
+}
+
+// solve is the fixed point of checked streams of the layout's shape (see
+// GatewayDownlinks), started from start.
+func (l DownlinkLayout) solve(fn string, streams []DownlinkStream, start DownlinkBudget) (DownlinkBudget, error) {
+	n := len(streams)
+	poolOf, conflict := l.poolOf, l.conflict
+	hold := func(s DownlinkStream) float64 { return s.Airtime / s.DutyCycle }
 	// The unknowns: sent[x], the share sent of stream x's own answers, and
 	// fb[x], the share sent of its refused answers in its fallback.
 	sent, fb := make([]float64, n), make([]float64, n)
@@ -245,7 +329,7 @@ func gatewayDownlinks(fn string, streams []DownlinkStream, start DownlinkBudget)
 		copy(sent, start.Sent)
 		copy(fb, start.fb)
 	}
-	st := newGatewayState(n, len(pools))
+	st := newGatewayState(n, l.nPools)
 	next, nextFB := make([]float64, n), make([]float64, n)
 	step, prev, solverErr := 1.0, math.Inf(1), 0.0
 	iter := 1
@@ -289,7 +373,7 @@ func gatewayDownlinks(fn string, streams []DownlinkStream, start DownlinkBudget)
 			fbLoad[sx.Fallback-1] += sx.Rate * (1 - sent[x]) * st.burst[x] / 2
 		}
 	}
-	poolErr := make([]float64, len(pools))
+	poolErr := make([]float64, l.nPools)
 	for y := range streams {
 		poolErr[poolOf[y]] += hold(streams[y]) * fbLoad[y]
 	}

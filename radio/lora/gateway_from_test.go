@@ -41,3 +41,43 @@ func TestGatewayDownlinksFrom(t *testing.T) {
 		})
 	}
 }
+
+// A DownlinkLayout's budgets are GatewayDownlinksFrom's to the bit (the
+// oracle: GatewayDownlinksFrom itself, checked against the booking rules
+// in TestGatewayDownlinksFallback) on the fallback cases at their rates
+// and at 90 % of them, cold and warm started, however many rate sets one
+// layout serves; streams that differ from the layout's in more than Rate,
+// or in number, or a bad rate are errors wrapping ErrParam.
+func TestDownlinkLayout(t *testing.T) {
+	for _, tc := range gatewayCases(true) {
+		t.Run(tc.name, func(t *testing.T) {
+			lay, err := lora.NewDownlinkLayout(tc.streams)
+			require.NoError(t, err)
+			near := append([]lora.DownlinkStream(nil), tc.streams...)
+			for i := range near {
+				near[i].Rate *= 0.9
+			}
+			var prevWant, prevGot lora.DownlinkBudget
+			for _, streams := range [][]lora.DownlinkStream{near, tc.streams, near} {
+				want, err := lora.GatewayDownlinksFrom(streams, prevWant)
+				require.NoError(t, err)
+				got, err := lay.BudgetFrom(streams, prevGot)
+				require.NoError(t, err)
+				assert.Equal(t, want, got)
+				prevWant, prevGot = want, got
+			}
+			bad := append([]lora.DownlinkStream(nil), tc.streams...)
+			bad[0].Airtime *= 2
+			_, err = lay.BudgetFrom(bad, lora.DownlinkBudget{})
+			assert.ErrorIs(t, err, lora.ErrParam)
+			_, err = lay.BudgetFrom(tc.streams[1:], lora.DownlinkBudget{})
+			assert.ErrorIs(t, err, lora.ErrParam)
+			bad = append([]lora.DownlinkStream(nil), tc.streams...)
+			bad[0].Rate = -1
+			_, err = lay.BudgetFrom(bad, lora.DownlinkBudget{})
+			assert.ErrorIs(t, err, lora.ErrParam)
+		})
+	}
+	_, err := lora.NewDownlinkLayout([]lora.DownlinkStream{{Rate: 1, Airtime: 0, DutyCycle: 1}})
+	assert.ErrorIs(t, err, lora.ErrParam)
+}

@@ -144,19 +144,156 @@ func (g GatewayModel) Over() bool {
 // streamRef ties a stream to the (group, data rate, window) it serves.
 type streamRef struct{ group, dr, window int }
 
+// budgetLayout is what the rounds of one collision solve share of the
+// gateways' downlink streams: everything but their rates (the groups, data
+// rates, airtimes, bands and channels do not move between rounds; the
+// rates move with the frames and uplink successes). The first round
+// builds it; a round then rewrites the rates alone.
+type budgetLayout struct {
+	built bool
+	gws   []gatewayLayout // per gateway (empty for one not solved)
+	// accOf indexes each (group, data rate, window) served in acc, the
+	// shares' sums of a round.
+	accOf map[streamRef]int
+	acc   []budgetAcc
+}
+
+// gatewayLayout is one gateway's streams: their layout, the streams
+// themselves (rates rewritten each round), the window each answers in,
+// its (group, data rate, window) in budgetLayout.acc, and its rate's part
+// of the answers of its group and data rate.
+type gatewayLayout struct {
+	lay     lora.DownlinkLayout
+	streams []lora.DownlinkStream
+	window  []int
+	acc     []int
+	rate    []rateShare
+}
+
+// rateShare is a stream's rate: the answers of group g's k-th data rate
+// times the group's RX1 share and band (RX1), or times its RX2 share.
+type rateShare struct {
+	g, k int
+	rx1  bool
+	band float64 // RX1: the share of the data rate's channels whose RX1 lies in the stream's band
+}
+
+// budgetAcc sums a (group, data rate, window)'s streams: their rates,
+// and their rates times the shares sent and sent in the fallback.
+type budgetAcc struct{ rate, sent, fell float64 }
+
+// answersOf is the rate (per s) of the answers booked for group g's
+// nodes at data rate dm.
+func answersOf(g *GroupModel, dm DRModel) float64 {
+	gr := g.Group
+	return float64(gr.Nodes) * g.Heard() * dm.Share * dm.Frames / gr.Interval * dm.UplinkSuccess * gr.AnswerShare
+}
+
 // gatewayBudgets recomputes every gateway's downlink budget (only gateway
 // only's when only >= 0) from the current frames and uplink successes,
 // stores the shares sent in the groups' DRModel, and returns the largest
-// change of a share.
-func (m *Model) gatewayBudgets(only int) (float64, error) {
+// change of a share. lay is the solve's layout (built by the first call).
+func (m *Model) gatewayBudgets(only int, lay *budgetLayout) (float64, error) {
+	s := m.Scenario
+	last := m.Gateways // the last round's budgets start this round's
+	m.Gateways = make([]GatewayModel, len(s.Gateways))
+	for gw := range s.Gateways {
+		m.Gateways[gw].Gateway = s.Gateways[gw]
+	}
+	if !lay.built {
+		if err := m.buildBudgetLayout(only, lay); err != nil {
+			return 0, err
+		}
+	}
+	// The rates of the answers booked, from this round's frames and
+	// successes.
+	for gw := range lay.gws {
+		gl := &lay.gws[gw]
+		for i, r := range gl.rate {
+			g := &m.Groups[r.g]
+			answers := answersOf(g, g.PerDR[r.k])
+			if r.rx1 {
+				gl.streams[i].Rate = answers * g.Group.RX1Share * r.band
+			} else {
+				gl.streams[i].Rate = answers * (1 - g.Group.RX1Share)
+			}
+		}
+		m.Gateways[gw].Streams, m.Gateways[gw].Window = gl.streams, gl.window
+	}
+	// The share sent of a (group, data rate, window): its streams' shares
+	// weighted by their rates (all 1 where nothing is booked).
+	clear(lay.acc)
+	for gw := range m.Gateways {
+		if only >= 0 && gw != only {
+			continue
+		}
+		var prev lora.DownlinkBudget
+		if gw < len(last) {
+			prev = last[gw].Budget
+		}
+		gl := &lay.gws[gw]
+		b, err := gl.lay.BudgetFrom(gl.streams, prev)
+		if err != nil {
+			return 0, fmt.Errorf("gateway %q: %w", s.Gateways[gw].Name, err)
+		}
+		m.Gateways[gw].Budget = b
+		for i, ai := range gl.acc {
+			a := &lay.acc[ai]
+			r := gl.streams[i].Rate
+			a.rate += r
+			a.sent += r * b.Sent[i]
+			a.fell += r * b.FallbackSent[i]
+		}
+	}
+	sums := func(gi, dr, w int) (budgetAcc, bool) {
+		i, ok := lay.accOf[streamRef{gi, dr, w}]
+		if !ok {
+			return budgetAcc{}, false
+		}
+		return lay.acc[i], true
+	}
+	change := 0.0
+	m.eachDR(only, func(gi int, _ *GroupModel, dm *DRModel) {
+		for _, x := range [...]struct {
+			w int
+			p *float64
+		}{{1, &dm.RX1Sent}, {2, &dm.RX2Sent}} {
+			v := 1.0
+			if a, ok := sums(gi, dm.DR, x.w); ok && a.rate > 0 {
+				v = a.sent / a.rate
+			}
+			change = math.Max(change, math.Abs(v-*x.p))
+			*x.p = v
+		}
+		v := 0.0
+		if a, ok := sums(gi, dm.DR, 1); ok && a.rate > 0 {
+			v = a.fell / a.rate
+		}
+		change = math.Max(change, math.Abs(v-dm.RX1Fallback))
+		dm.RX1Fallback = v
+	})
+	return change, nil
+}
+
+// buildBudgetLayout builds lay from m's groups: per gateway (only gateway
+// only's when only >= 0), per group and data rate, the RX1 streams (one
+// per downlink band of the RX1 frequencies of the channels carrying the
+// data rate, in the order first met) and then the RX2 stream they fall
+// back to.
+func (m *Model) buildBudgetLayout(only int, lay *budgetLayout) error {
 	s := m.Scenario
 	reg := s.Region
 	tm := reg.Timing()
-	last := m.Gateways // the last round's budgets start this round's
-	m.Gateways = make([]GatewayModel, len(s.Gateways))
-	refs := make([][]streamRef, len(s.Gateways))
-	for gw := range s.Gateways {
-		m.Gateways[gw].Gateway = s.Gateways[gw]
+	lay.gws = make([]gatewayLayout, len(s.Gateways))
+	lay.accOf = map[streamRef]int{}
+	ref := func(gl *gatewayLayout, r streamRef) {
+		i, ok := lay.accOf[r]
+		if !ok {
+			i = len(lay.acc)
+			lay.accOf[r] = i
+			lay.acc = append(lay.acc, budgetAcc{})
+		}
+		gl.acc = append(gl.acc, i)
 	}
 	for gi := range m.Groups {
 		g := &m.Groups[gi]
@@ -165,11 +302,12 @@ func (m *Model) gatewayBudgets(only int) (float64, error) {
 		if only >= 0 && gw != only {
 			continue
 		}
+		gl := &lay.gws[gw]
 		dlBytes := lora.EmptyFrameBytes
 		if gr.DownlinkPayload > 0 {
 			n, err := lora.PHYPayloadBytes(gr.DownlinkPayload, 0)
 			if err != nil {
-				return 0, err
+				return err
 			}
 			dlBytes = n
 		}
@@ -186,21 +324,20 @@ func (m *Model) gatewayBudgets(only int) (float64, error) {
 		}
 		a2, err := airtime(rx2dr)
 		if err != nil {
-			return 0, fmt.Errorf("group %q: RX2: %w", gr.Name, err)
+			return fmt.Errorf("group %q: RX2: %w", gr.Name, err)
 		}
 		b2, d2, err := reg.DownlinkBand(rx2f)
 		if err != nil {
-			return 0, fmt.Errorf("group %q: RX2: %w", gr.Name, err)
+			return fmt.Errorf("group %q: RX2: %w", gr.Name, err)
 		}
-		for _, dm := range g.PerDR {
-			answers := float64(gr.Nodes) * g.Heard() * dm.Share * dm.Frames / gr.Interval * dm.UplinkSuccess * gr.AnswerShare
+		for k, dm := range g.PerDR {
 			rx1dr, err := reg.RX1DataRate(dm.DR, gr.RX1DROffset)
 			if err != nil {
-				return 0, fmt.Errorf("group %q: %w", gr.Name, err)
+				return fmt.Errorf("group %q: %w", gr.Name, err)
 			}
 			a1, err := airtime(rx1dr)
 			if err != nil {
-				return 0, fmt.Errorf("group %q: RX1: %w", gr.Name, err)
+				return fmt.Errorf("group %q: RX1: %w", gr.Name, err)
 			}
 			// RX1 answers spread over the channels carrying dr, grouped by band.
 			chans := uplinkChannels(reg, s.Gateways[gw].Channels, dm.DR)
@@ -210,11 +347,11 @@ func (m *Model) gatewayBudgets(only int) (float64, error) {
 			for _, ch := range chans {
 				f, err := reg.RX1Frequency(ch)
 				if err != nil {
-					return 0, err
+					return err
 				}
 				b, d, err := reg.DownlinkBand(f)
 				if err != nil {
-					return 0, fmt.Errorf("group %q: RX1 after channel %d: %w", gr.Name, ch, err)
+					return fmt.Errorf("group %q: RX1 after channel %d: %w", gr.Name, ch, err)
 				}
 				if _, ok := perBand[b]; !ok {
 					order = append(order, b)
@@ -224,66 +361,31 @@ func (m *Model) gatewayBudgets(only int) (float64, error) {
 			}
 			// An answer refused in RX1 falls back to this (group, data
 			// rate)'s RX2 stream, appended after them.
-			rx2 := len(m.Gateways[gw].Streams) + len(order)
+			rx2 := len(gl.streams) + len(order)
 			for _, b := range order {
-				m.Gateways[gw].Streams = append(m.Gateways[gw].Streams, lora.DownlinkStream{
-					Rate: answers * gr.RX1Share * perBand[b], Airtime: a1, Lead: tm.ReceiveDelay1, Band: b, DutyCycle: duty[b], Fallback: rx2 + 1})
-				m.Gateways[gw].Window = append(m.Gateways[gw].Window, 1)
-				refs[gw] = append(refs[gw], streamRef{gi, dm.DR, 1})
+				gl.streams = append(gl.streams, lora.DownlinkStream{Airtime: a1, Lead: tm.ReceiveDelay1, Band: b, DutyCycle: duty[b], Fallback: rx2 + 1})
+				gl.window = append(gl.window, 1)
+				gl.rate = append(gl.rate, rateShare{g: gi, k: k, rx1: true, band: perBand[b]})
+				ref(gl, streamRef{gi, dm.DR, 1})
 			}
-			m.Gateways[gw].Streams = append(m.Gateways[gw].Streams, lora.DownlinkStream{
-				Rate: answers * (1 - gr.RX1Share), Airtime: a2, Lead: tm.ReceiveDelay2, Band: b2, DutyCycle: d2})
-			m.Gateways[gw].Window = append(m.Gateways[gw].Window, 2)
-			refs[gw] = append(refs[gw], streamRef{gi, dm.DR, 2})
+			gl.streams = append(gl.streams, lora.DownlinkStream{Airtime: a2, Lead: tm.ReceiveDelay2, Band: b2, DutyCycle: d2})
+			gl.window = append(gl.window, 2)
+			gl.rate = append(gl.rate, rateShare{g: gi, k: k})
+			ref(gl, streamRef{gi, dm.DR, 2})
 		}
 	}
-	// The share sent of a (group, data rate, window): its streams' shares
-	// weighted by their rates (all 1 where nothing is booked).
-	type acc struct{ rate, sent, fell float64 }
-	tot := map[streamRef]*acc{}
-	for gw := range m.Gateways {
+	for gw := range lay.gws {
 		if only >= 0 && gw != only {
 			continue
 		}
-		var prev lora.DownlinkBudget
-		if gw < len(last) {
-			prev = last[gw].Budget
-		}
-		b, err := lora.GatewayDownlinksFrom(m.Gateways[gw].Streams, prev)
+		l, err := lora.NewDownlinkLayout(lay.gws[gw].streams)
 		if err != nil {
-			return 0, fmt.Errorf("gateway %q: %w", s.Gateways[gw].Name, err)
+			return fmt.Errorf("gateway %q: %w", s.Gateways[gw].Name, err)
 		}
-		m.Gateways[gw].Budget = b
-		for i, ref := range refs[gw] {
-			a, ok := tot[ref]
-			if !ok {
-				a = &acc{}
-				tot[ref] = a
-			}
-			r := m.Gateways[gw].Streams[i].Rate
-			a.rate += r
-			a.sent += r * b.Sent[i]
-			a.fell += r * b.FallbackSent[i]
-		}
+		lay.gws[gw].lay = l
 	}
-	change := 0.0
-	m.eachDR(only, func(gi int, _ *GroupModel, dm *DRModel) {
-		for w, p := range map[int]*float64{1: &dm.RX1Sent, 2: &dm.RX2Sent} {
-			v := 1.0
-			if a := tot[streamRef{gi, dm.DR, w}]; a != nil && a.rate > 0 {
-				v = a.sent / a.rate
-			}
-			change = math.Max(change, math.Abs(v-*p))
-			*p = v
-		}
-		v := 0.0
-		if a := tot[streamRef{gi, dm.DR, 1}]; a != nil && a.rate > 0 {
-			v = a.fell / a.rate
-		}
-		change = math.Max(change, math.Abs(v-dm.RX1Fallback))
-		dm.RX1Fallback = v
-	})
-	return change, nil
+	lay.built = true
+	return nil
 }
 
 // uplinkChannels lists the channels of mask (zero: all) that carry dr.

@@ -256,6 +256,7 @@ func (m *Model) solveCollisions(only int) error {
 	}
 	next := make([][]upd, len(m.Groups))
 	var hist settleHistory
+	lay := &budgetLayout{} // the gateways' streams but for their rates, built in the first round
 	for iter := 0; ; iter++ {
 		change := 0.0
 		for gi := range m.Groups {
@@ -331,7 +332,7 @@ func (m *Model) solveCollisions(only int) error {
 				dm.Load, dm.Vulnerable, dm.UplinkSuccess, dm.Frames, dm.Windows = u.load, u.vuln, u.succ, u.frames, u.win
 			}
 		}
-		sent, err := m.gatewayBudgets(only)
+		sent, err := m.gatewayBudgets(only, lay)
 		if err != nil {
 			return err
 		}

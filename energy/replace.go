@@ -223,12 +223,11 @@ func (s Serviced) replacement(fn string, p Policy, horizon float64, c Costs, rc 
 			if n == 0 {
 				continue
 			}
-			l := e.exact[g]
 			acc := math.Max(s.errAt(ei, g, every[g]), s.errAt(ei, g, rest[g]))
 			accAt[ei*G+g] = acc
-			logS := math.Log(l.Survival(rest[g])) // a node's log P(no flat cell within its blocks)
+			logS := math.Log(s.survivalAt(ei, g, rest[g])) // a node's log P(no flat cell within its blocks)
 			if blocks[g] > 0 {
-				logS += float64(blocks[g]) * math.Log(l.Survival(every[g]))
+				logS += float64(blocks[g]) * math.Log(s.survivalAt(ei, g, every[g]))
 			}
 			Z[g*E+ei] = clampedProbit(math.Exp(logS), -math.Expm1(logS))
 			logNo += n * logS
@@ -574,12 +573,11 @@ func (s Serviced) Schedule(risk, horizon float64, perGroup bool) ([]float64, err
 		for ei, e := range s.envs {
 			logNo, errE := 0.0, 0.0
 			for _, g := range gs {
-				l := e.exact[g]
 				n := float64(s.counts[g])
 				if n == 0 {
 					continue
 				}
-				logS := float64(k) * math.Log(l.Survival(tau))
+				logS := float64(k) * math.Log(s.survivalAt(ei, g, tau))
 				logNo += n * logS
 				if withErr {
 					errE += n * float64(k) * s.errAt(ei, g, tau)

@@ -24,17 +24,20 @@ type Serviced struct {
 	counts []int64
 	names  []string
 	left   []float64 // per group, the share of nodes left out
-	errs   *errMemo
-	site   *Site // the Site served (its rule's error estimate)
+	errs   *errMemo  // the served laws' stated CDF errors
+	survs  *errMemo  // the served laws' survivals
+	site   *Site     // the Site served (its rule's error estimate)
 }
 
-// errMemo keeps the served node laws' stated CDF errors at the times
-// asked for (the block lengths of Replacement's and Schedule's policies,
-// which repeat from call to call), by shared node, group and time: at most
-// maxErrMemo entries, beyond which an error is computed without being
-// kept. An entry is a function of its key alone, so the memo never changes
-// an answer, whatever the order of calls or goroutines. Safe for
-// concurrent use.
+// errMemo keeps a figure of the served node laws at the times asked for
+// (their stated CDF errors, or their survivals, at the block lengths of
+// Replacement's and Schedule's policies, which repeat from call to call:
+// Schedule's per-group search tries the periods its whole-site search
+// tried, and the policies it finds are then evaluated at them), by shared
+// node, group and time: at most maxErrMemo entries, beyond which a figure
+// is computed without being kept. An entry is a function of its key alone,
+// so the memo never changes an answer, whatever the order of calls or
+// goroutines. Safe for concurrent use.
 type errMemo struct {
 	mu sync.Mutex
 	m  map[errKey]float64
@@ -55,22 +58,33 @@ const maxErrMemo = 1 << 16
 // errAt over the times is that error; for a law with settings left out,
 // reachLife, the error at each time bounds that time's.)
 func (s Serviced) errAt(e, g int, t float64) float64 {
-	k := errKey{e, g, t}
-	if s.errs != nil {
-		s.errs.mu.Lock()
-		v, ok := s.errs.m[k]
-		s.errs.mu.Unlock()
+	return s.errs.get(errKey{e, g, t}, func() float64 { return s.envs[e].exact[g].cdfErr([]float64{t}) })
+}
+
+// survivalAt returns the survival at t (s) of the served law of group g
+// given shared node e (the law's own, kept in s.survs).
+func (s Serviced) survivalAt(e, g int, t float64) float64 {
+	return s.survs.get(errKey{e, g, t}, func() float64 { return s.envs[e].exact[g].Survival(t) })
+}
+
+// get returns the figure of k, computing it with f when it is not kept
+// (a nil memo keeps none).
+func (m *errMemo) get(k errKey, f func() float64) float64 {
+	if m != nil {
+		m.mu.Lock()
+		v, ok := m.m[k]
+		m.mu.Unlock()
 		if ok {
 			return v
 		}
 	}
-	v := s.envs[e].exact[g].cdfErr([]float64{t})
-	if s.errs != nil {
-		s.errs.mu.Lock()
-		if len(s.errs.m) < maxErrMemo {
-			s.errs.m[k] = v
+	v := f()
+	if m != nil {
+		m.mu.Lock()
+		if len(m.m) < maxErrMemo {
+			m.m[k] = v
 		}
-		s.errs.mu.Unlock()
+		m.mu.Unlock()
 	}
 	return v
 }
@@ -154,7 +168,8 @@ func (s Site) Serviced(left [][]int) (Serviced, error) {
 		return Serviced{}, paramErr(fn, "left", len(left), fmt.Sprintf("must be nil or hold one list per group (%d)", G))
 	}
 	site := s
-	v := Serviced{counts: make([]int64, G), names: s.names, left: make([]float64, G), errs: &errMemo{m: map[errKey]float64{}}, site: &site}
+	v := Serviced{counts: make([]int64, G), names: s.names, left: make([]float64, G), errs: &errMemo{m: map[errKey]float64{}},
+		survs: &errMemo{m: map[errKey]float64{}}, site: &site}
 	outSpec := make([]*NodeSpec, G)
 	for g := range G {
 		v.counts[g] = s.spec.Groups[g].Count

@@ -102,11 +102,12 @@ func MustPointMass(v float64) Discrete {
 func discreteFromAtoms(atoms []Atom) Discrete {
 	merged := mergeAtoms(atoms)
 	n := len(merged)
+	cells := make([]float64, 4*n) // the four tables' one backing array
 	d := Discrete{
-		values: make([]float64, n),
-		probs:  make([]float64, n),
-		below:  make([]float64, n),
-		above:  make([]float64, n),
+		values: cells[:n:n],
+		probs:  cells[n : 2*n : 2*n],
+		below:  cells[2*n : 3*n : 3*n],
+		above:  cells[3*n : 4*n : 4*n],
 	}
 	var total compSum
 	for _, a := range merged {

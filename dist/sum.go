@@ -161,6 +161,15 @@ func sumTerms(terms []Law) (Law, error) {
 		}
 		gammaRate, gammaK, gammaN = append(gammaRate, rate), append(gammaK, k), append(gammaN, 1)
 	}
+	nDisc := 0
+	for _, t := range terms {
+		if _, ok := t.(Discrete); ok {
+			nDisc++
+		}
+	}
+	if nDisc > 0 {
+		disc = make([]Discrete, 0, nDisc)
+	}
 	for _, t := range terms {
 		switch b := t.(type) {
 		case Discrete:

@@ -183,6 +183,7 @@ type DownlinkLayout struct {
 	streams  []DownlinkStream // as given; their rates are not read
 	poolOf   []int
 	nPools   int
+	hold     []float64   // per stream: Airtime/DutyCycle (s), how long an answer holds its band
 	conflict [][]float64 // conflict[x][y]: measure (s) of the booking times of y that refuse x
 }
 
@@ -310,7 +311,11 @@ func newDownlinkLayout(streams []DownlinkStream) DownlinkLayout {
 			conflict[x][y] = math.Max(0, hy+math.Min(hx, sy.Lead-sx.Lead))
 		}
 	}
-	return DownlinkLayout{streams: streams, poolOf: poolOf, nPools: len(pools), conflict: conflict}
+	holds := make([]float64, n)
+	for y, sy := range streams {
+		holds[y] = hold(sy)
+	}
+	return DownlinkLayout{streams: streams, poolOf: poolOf, nPools: len(pools), hold: holds, conflict: conflict}
 }
 
 // solve is the fixed point of checked streams of the layout's shape (see
@@ -337,7 +342,7 @@ func (l DownlinkLayout) solve(fn string, streams []DownlinkStream, start Downlin
 		if iter > maxDownlinkRounds {
 			return DownlinkBudget{}, fmt.Errorf("lora.%s: the fixed point did not settle after %d rounds (last change %.3g)", fn, maxDownlinkRounds, prev)
 		}
-		gatewayRound(streams, poolOf, conflict, sent, fb, next, nextFB, st)
+		gatewayRound(streams, poolOf, l.hold, conflict, sent, fb, next, nextFB, st)
 		change := 0.0
 		for x := range streams {
 			change = math.Max(change, math.Max(math.Abs(next[x]-sent[x]), math.Abs(nextFB[x]-fb[x])))
@@ -361,7 +366,7 @@ func (l DownlinkLayout) solve(fn string, streams []DownlinkStream, start Downlin
 		}
 		prev = change
 	}
-	gatewayRound(streams, poolOf, conflict, sent, fb, next, nextFB, st)
+	gatewayRound(streams, poolOf, l.hold, conflict, sent, fb, next, nextFB, st)
 	out := DownlinkBudget{Sent: append([]float64(nil), sent...), Booked: st.booked, FallbackSent: make([]float64, n), Iterations: iter,
 		fb: append([]float64(nil), fb...)}
 	// The fallbacks' error (half their burst correction) moves the load
@@ -468,7 +473,7 @@ func newGatewayState(n, nPools int) *gatewayState {
 // otherwise) and at the average before; it is sent with probability
 // 1/(1 + S_c). A fallback refused for a cross conflict meets the target as
 // a primary does.
-func gatewayRound(streams []DownlinkStream, poolOf []int, conflict [][]float64, sent, fb, next, nextFB []float64, st *gatewayState) {
+func gatewayRound(streams []DownlinkStream, poolOf []int, holds []float64, conflict [][]float64, sent, fb, next, nextFB []float64, st *gatewayState) {
 	for _, xs := range [][]float64{st.booked, st.sentRate, st.w, st.double, st.busy, st.burst, st.fallRate, st.num, st.den, st.base} {
 		clear(xs)
 	}
@@ -478,8 +483,9 @@ func gatewayRound(streams []DownlinkStream, poolOf []int, conflict [][]float64, 
 	for z := range st.inClos {
 		st.inClos[z] = math.NaN()
 	}
-	hold := func(y int) float64 { return streams[y].Airtime / streams[y].DutyCycle }
-	fallRate := st.fallRate // fallback answers sent into each target
+	hold := func(y int) float64 { return holds[y] } // Airtime/DutyCycle
+	// fallRate: the fallback answers sent into each target.
+	fallRate := st.fallRate
 	for y, sy := range streams {
 		st.booked[y] += sy.Rate
 		st.sentRate[y] += sy.Rate * sent[y]

@@ -52,7 +52,7 @@ func Mixture(weights []float64, laws []Law) (Law, error) {
 		if w == 0 {
 			continue
 		}
-		if err := checkOutside(fn, fmt.Sprintf("laws[%d]", i), laws[i]); err != nil {
+		if err := checkOutside(fn, func() string { return fmt.Sprintf("laws[%d]", i) }, laws[i]); err != nil {
 			return nil, err
 		}
 		m.weights = append(m.weights, w)
@@ -264,7 +264,7 @@ func fromOutside(l Law) bool {
 // [0, 1] at the ends of its support, at its quantiles at
 // p = (i + 1/2)/OutsideProbes or midway between two of them; nil
 // otherwise.
-func checkOutside(fn, param string, l Law) error {
+func checkOutside(fn string, param func() string, l Law) error {
 	if !fromOutside(l) {
 		return nil
 	}
@@ -282,13 +282,13 @@ func checkOutside(fn, param string, l Law) error {
 	}
 	for _, x := range xs {
 		if math.IsNaN(x) {
-			return paramErr(fn, param, fmt.Sprintf("%v", l), "its Quantile answers NaN")
+			return paramErr(fn, param(), fmt.Sprintf("%v", l), "its Quantile answers NaN")
 		}
 		if v := l.CDF(x); !isProb(v) {
-			return paramErr(fn, param, fmt.Sprintf("%v", l), fmt.Sprintf("its CDF(%v) = %v is not a probability in [0, 1]", x, v))
+			return paramErr(fn, param(), fmt.Sprintf("%v", l), fmt.Sprintf("its CDF(%v) = %v is not a probability in [0, 1]", x, v))
 		}
 		if v := l.Survival(x); !isProb(v) {
-			return paramErr(fn, param, fmt.Sprintf("%v", l), fmt.Sprintf("its Survival(%v) = %v is not a probability in [0, 1]", x, v))
+			return paramErr(fn, param(), fmt.Sprintf("%v", l), fmt.Sprintf("its Survival(%v) = %v is not a probability in [0, 1]", x, v))
 		}
 	}
 	return nil

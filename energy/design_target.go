@@ -276,12 +276,15 @@ func (c *monthCache) get(fn string, spec NodeSpec, env Environment) (*monthTable
 	if th == nil || env.Conditions.check(fn) != nil {
 		return nil, nil
 	}
-	pre := "spec."
-	if spec.Name != "" {
-		pre = fmt.Sprintf("spec %q: ", spec.Name)
+	// pre prefixes newMonthTable's errors (written out on a miss only).
+	pre := func() string {
+		if spec.Name != "" {
+			return fmt.Sprintf("spec %q: ", spec.Name)
+		}
+		return "spec."
 	}
 	if c == nil {
-		return newMonthTable(fn, pre, spec, env)
+		return newMonthTable(fn, pre(), spec, env)
 	}
 	clim, err := shiftedClimate(fn, th, env)
 	if err != nil {
@@ -301,7 +304,7 @@ func (c *monthCache) get(fn string, spec NodeSpec, env Environment) (*monthTable
 	if mt != nil {
 		return mt, nil
 	}
-	if mt, err = newMonthTable(fn, pre, spec, env); err != nil {
+	if mt, err = newMonthTable(fn, pre(), spec, env); err != nil {
 		return nil, err
 	}
 	c.mu.Lock()

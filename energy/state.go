@@ -38,13 +38,13 @@ func NewState(name string, current dist.Law, voltage float64, duration dist.Law)
 	if err := checkName(fn, name); err != nil {
 		return State{}, err
 	}
-	if err := checkNonNegLaw(fn, fmt.Sprintf("state %q: current", name), current); err != nil {
+	if err := checkStateLaw(fn, name, "current", current); err != nil {
 		return State{}, err
 	}
 	if !finite(voltage) || voltage <= 0 {
 		return State{}, paramErr(fn, fmt.Sprintf("state %q: voltage", name), voltage, "must be finite and > 0 (V)")
 	}
-	if err := checkNonNegLaw(fn, fmt.Sprintf("state %q: duration", name), duration); err != nil {
+	if err := checkStateLaw(fn, name, "duration", duration); err != nil {
 		return State{}, err
 	}
 	p, err := dist.Affine(current, voltage, 0)
@@ -62,10 +62,10 @@ func NewPowerState(name string, power, duration dist.Law) (State, error) {
 	if err := checkName(fn, name); err != nil {
 		return State{}, err
 	}
-	if err := checkNonNegLaw(fn, fmt.Sprintf("state %q: power", name), power); err != nil {
+	if err := checkStateLaw(fn, name, "power", power); err != nil {
 		return State{}, err
 	}
-	if err := checkNonNegLaw(fn, fmt.Sprintf("state %q: duration", name), duration); err != nil {
+	if err := checkStateLaw(fn, name, "duration", duration); err != nil {
 		return State{}, err
 	}
 	return State{name: name, power: power, duration: duration}, nil
@@ -251,17 +251,30 @@ func checkName(fn, name string) error {
 // checkNonNegLaw checks that l is a law on [0, ∞) with finite mean and
 // variance.
 func checkNonNegLaw(fn, param string, l dist.Law) error {
+	return checkNonNegLawOf(fn, l, func() string { return param })
+}
+
+// checkStateLaw is checkNonNegLaw for the law what ("current", "power",
+// "duration") of the state called name; the parameter's name is written
+// out only for an error.
+func checkStateLaw(fn, name, what string, l dist.Law) error {
+	return checkNonNegLawOf(fn, l, func() string { return fmt.Sprintf("state %q: %s", name, what) })
+}
+
+// checkNonNegLawOf is checkNonNegLaw with the parameter's name from param,
+// called only for an error.
+func checkNonNegLawOf(fn string, l dist.Law, param func() string) error {
 	if l == nil {
-		return paramErr(fn, param, nil, "must not be nil")
+		return paramErr(fn, param(), nil, "must not be nil")
 	}
 	if lo, _ := l.Support(); !(lo >= 0) {
-		return paramErr(fn, param, l, fmt.Sprintf("support starts at %g: must be >= 0 (truncate the law at 0)", lo))
+		return paramErr(fn, param(), l, fmt.Sprintf("support starts at %g: must be >= 0 (truncate the law at 0)", lo))
 	}
 	if m := l.Mean(); !finite(m) {
-		return paramErr(fn, param, l, fmt.Sprintf("mean %g must be finite", m))
+		return paramErr(fn, param(), l, fmt.Sprintf("mean %g must be finite", m))
 	}
 	if v := l.Variance(); !finite(v) || v < 0 {
-		return paramErr(fn, param, l, fmt.Sprintf("variance %g must be finite", v))
+		return paramErr(fn, param(), l, fmt.Sprintf("variance %g must be finite", v))
 	}
 	return nil
 }

@@ -311,9 +311,11 @@ func (c ClassA) windows(dr int) Windows {
 	return c.Downlink
 }
 
-func checkWindows(param string, w Windows) error {
+// checkWindows checks w, the parameter's name from param (called only for
+// an error).
+func checkWindows(param func() string, w Windows) error {
 	if !(w.RX1 >= 0 && w.RX1 <= 1) || !(w.RX2 >= 0 && w.RX2 <= 1) || w.RX1+w.RX2 > 1+1e-12 {
-		return paramErr("ClassA", param, w, "needs RX1, RX2 in [0, 1] with RX1 + RX2 <= 1")
+		return paramErr("ClassA", param(), w, "needs RX1, RX2 in [0, 1] with RX1 + RX2 <= 1")
 	}
 	return nil
 }
@@ -343,11 +345,11 @@ func (c ClassA) validate() error {
 	if math.Abs(sum-1) > 1e-9 {
 		return paramErr(fn, "Settings", fmt.Sprintf("sum %.17g", sum), "probabilities must sum to 1 within 1e-9 (use Settled.Reachable)")
 	}
-	if err := checkWindows("Downlink", c.Downlink); err != nil {
+	if err := checkWindows(func() string { return "Downlink" }, c.Downlink); err != nil {
 		return err
 	}
 	for dr, w := range c.DownlinkByDR {
-		if err := checkWindows(fmt.Sprintf("DownlinkByDR[%d]", dr), w); err != nil {
+		if err := checkWindows(func() string { return fmt.Sprintf("DownlinkByDR[%d]", dr) }, w); err != nil {
 			return err
 		}
 	}

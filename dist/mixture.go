@@ -39,7 +39,7 @@ func Mixture(weights []float64, laws []Law) (Law, error) {
 	if len(weights) != len(laws) {
 		return nil, paramErr(fn, "weights", fmt.Sprintf("len %d", len(weights)), fmt.Sprintf("must have the length of laws (%d)", len(laws)))
 	}
-	m := mixture{}
+	m := mixture{weights: make([]float64, 0, len(weights)), laws: make([]Law, 0, len(laws))}
 	allDiscrete, allDensity := true, true
 	sum, err := probSum(fn, "weights", weights)
 	if err != nil {
@@ -74,10 +74,15 @@ func Mixture(weights []float64, laws []Law) (Law, error) {
 		return m.laws[0], nil
 	}
 	if allDiscrete {
-		var atoms []Atom
+		n := 0
+		for _, l := range m.laws {
+			n += l.(Discrete).Len()
+		}
+		atoms := make([]Atom, 0, n)
 		for i, l := range m.laws {
-			for _, a := range l.(Discrete).Atoms() {
-				atoms = append(atoms, Atom{Value: a.Value, Mass: a.Mass * m.weights[i]})
+			d := l.(Discrete) // its atoms, as Atoms lists them
+			for j, v := range d.values {
+				atoms = append(atoms, Atom{Value: v, Mass: d.probs[j] * m.weights[i]})
 			}
 		}
 		return discreteFromAtoms(atoms), nil

@@ -88,7 +88,7 @@ func Sum(laws ...Law) (Law, error) {
 			return nil, paramErr("Sum", fmt.Sprintf("laws[%d]", i), nil, "must not be nil")
 		}
 	}
-	var terms []Law
+	terms := make([]Law, 0, len(laws)) // more when a term is itself a sum
 	for _, l := range laws {
 		terms = appendFlat(terms, l)
 	}

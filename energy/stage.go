@@ -163,8 +163,22 @@ func (q sequence) laws(floor float64) (excess, active dist.Law, err error) {
 
 func (q sequence) moments(floor float64) moments {
 	var out moments
+	// The stages' moments first, so that the parts are sized once.
+	var buf [8]moments
+	ms := buf[:0]
+	if len(q.stages) > len(buf) {
+		ms = make([]moments, 0, len(q.stages))
+	}
+	n := 0
 	for _, s := range q.stages {
 		m := s.moments(floor)
+		ms = append(ms, m)
+		n += len(m.parts)
+	}
+	if n > 0 {
+		out.parts = make([]part, 0, n)
+	}
+	for _, m := range ms {
 		out.meanX += m.meanX
 		out.varX += m.varX
 		out.meanT += m.meanT

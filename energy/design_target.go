@@ -80,6 +80,7 @@ type targetLaws struct {
 	date     float64        // s: the date of cdf
 	laws     []NodeLifetime // laws[e].n is nil until built
 	cdf      []float64      // F_e(date); NaN until built
+	probits  [][]float64    // node e's settings' probits at the date (settingProbits; nil where not evaluated)
 	calendar float64        // s; +Inf for none
 	binds    float64        // the mixture's share of lives the energy ends (NaN until asked: quantile)
 	// lower and higher are, per node, the node of the same temperature
@@ -98,7 +99,7 @@ type targetLaws struct {
 func newTargetLaws(fn string, spec NodeSpec, clim *Climate, rule SharedRule, months *monthCache, date float64) (*targetLaws, error) {
 	n := len(rule.w)
 	tl := &targetLaws{fn: fn, spec: spec, clim: clim, months: months, conds: rule.conds, w: rule.w, rule: rule, date: date,
-		laws: make([]NodeLifetime, n), cdf: make([]float64, n), lower: make([]int, n), higher: make([]int, n), binds: math.NaN()}
+		laws: make([]NodeLifetime, n), cdf: make([]float64, n), probits: make([][]float64, n), lower: make([]int, n), higher: make([]int, n), binds: math.NaN()}
 	heavy := 0
 	for e := range n {
 		tl.cdf[e] = math.NaN()
@@ -141,7 +142,18 @@ func (tl *targetLaws) build(e int) error {
 	if err != nil {
 		return causeErr(tl.fn, "candidate node", tl.spec.Name, fmt.Sprintf("lifetime law at batch factor %.4g and temperature offset %+.3g °C", env.batch(), env.TemperatureOffset), err)
 	}
-	tl.cdf[e] = tl.laws[e].CDF(tl.date)
+	// The CDF at the date as NodeLifetime.CDF computes it (the same
+	// bits), keeping the settings' probits there for nodeError.
+	l := tl.laws[e]
+	switch d := tl.date; {
+	case math.IsNaN(d) || d <= 0 || d >= l.n.calendar:
+		tl.cdf[e] = l.CDF(d)
+	default:
+		z := make([]float64, len(l.n.settings))
+		_, dead, _ := l.energyAtProbits(d, z)
+		tl.cdf[e] = math.Min(1, math.Max(0, dead))
+		tl.probits[e] = z
+	}
 	return nil
 }
 
@@ -354,7 +366,8 @@ func (tl *targetLaws) nodeError(t Target, count int64) float64 {
 	errEst := 0.0
 	for e, l := range tl.laws {
 		f := tl.cdf[e]
-		eps := l.accuracyAtZ([]float64{T}, settingProbits(l, T)).CDFAbs
+		zOf := settingProbitsFrom(l, T, tl.date, tl.probits[e])
+		eps := l.accuracyAtZ([]float64{T}, zOf).CDFAbs
 		if t.Kind == GroupFlat {
 			errEst += tl.w[e] * n * math.Exp((n-1)*math.Log1p(-math.Min(1, math.Max(0, f-eps)))) * eps
 		} else {
@@ -362,6 +375,20 @@ func (tl *targetLaws) nodeError(t Target, count int64) float64 {
 		}
 	}
 	return errEst
+}
+
+// settingProbitsFrom is settingProbits, read from z where they were
+// evaluated at t already (date, with z not nil).
+func settingProbitsFrom(l NodeLifetime, t, date float64, z []float64) func(j int, u float64) float64 {
+	if z == nil || t != date || l.n.spread.IsZero() {
+		return settingProbits(l, t)
+	}
+	return func(j int, u float64) float64 {
+		if u != t {
+			return math.NaN()
+		}
+		return z[j]
+	}
 }
 
 // settingProbits returns, as accuracyAtZ's zOf for the time t alone, the

@@ -87,6 +87,21 @@ func (l NodeLifetime) energyAt(t float64) (alive, dead, errEst float64) {
 	return alive, dead, errEst
 }
 
+// energyAtProbits is energyAt, with each setting's probit (probitOf its
+// two probabilities) written into z (len(z) settings): the same sums in the
+// same order, so the same bits as energyAt.
+func (l NodeLifetime) energyAtProbits(t float64, z []float64) (alive, dead, errEst float64) {
+	for j := range l.n.settings {
+		a, d, e := l.n.settingAt(j, t)
+		w := l.n.settings[j].w
+		alive += w * a
+		dead += w * d
+		errEst += w * e
+		z[j] = probitOf(a, d)
+	}
+	return alive, dead, errEst
+}
+
 // accSkipZ is the probit beyond which accuracyAt counts a setting's terms
 // as negligible.
 const accSkipZ = 8.5

@@ -77,19 +77,11 @@ func NewNodeLifetime(spec NodeSpec, env Environment) (NodeLifetime, error) {
 // energyAt returns P(energy left at t), P(run out by t) and the summed
 // error estimate, without the calendar limit.
 func (l NodeLifetime) energyAt(t float64) (alive, dead, errEst float64) {
-	for j := range l.n.settings {
-		a, d, e := l.n.settingAt(j, t)
-		w := l.n.settings[j].w
-		alive += w * a
-		dead += w * d
-		errEst += w * e
-	}
-	return alive, dead, errEst
+	return l.energyAtProbits(t, nil)
 }
 
 // energyAtProbits is energyAt, with each setting's probit (probitOf its
-// two probabilities) written into z (len(z) settings): the same sums in the
-// same order, so the same bits as energyAt.
+// two probabilities) written into z where z is not nil (len(z) settings).
 func (l NodeLifetime) energyAtProbits(t float64, z []float64) (alive, dead, errEst float64) {
 	for j := range l.n.settings {
 		a, d, e := l.n.settingAt(j, t)
@@ -97,7 +89,9 @@ func (l NodeLifetime) energyAtProbits(t float64, z []float64) (alive, dead, errE
 		alive += w * a
 		dead += w * d
 		errEst += w * e
-		z[j] = probitOf(a, d)
+		if z != nil {
+			z[j] = probitOf(a, d)
+		}
 	}
 	return alive, dead, errEst
 }

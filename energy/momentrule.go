@@ -57,6 +57,46 @@ func newMomentRule(n int, mu, k2, l3, l4, l5 float64) momentRule {
 	return momentRule{n: 2, x: [3]float64{mu + s*x1, mu + s*x2}, w: [3]float64{w1, 1 - w1}}
 }
 
+// momentShiftBound returns an upper bound on the largest distance
+// |x_i − mu| of newMomentRule(3, mu, k2, l3, l4, l5)'s nodes from the mean,
+// without building the rule (no linear solve, no trigonometric roots); ok
+// is false where it gives none (the rule must then be built).
+//
+// The standardized nodes of the n-node Gaussian rule are the eigenvalues
+// of the n×n Jacobi matrix of the recurrence p_{i+1} = (x − α_i)·p_i −
+// β_i·p_{i−1} of the law's monic orthogonal polynomials (Golub and Welsch,
+// Math. Comp. 23:221–230, 1969). For mean 0 and variance 1: p1 = x, α0 =
+// 0, β1 = 1; p2 = x² − m3·x − 1, α1 = m3; β2 = E[p2²] = m4 − m3² − 1 and
+// α2 = E[x·p2²]/β2 = (m5 + m3³ − 2·m3·m4)/β2, m_r the raw moments. By
+// Gershgorin's theorem every eigenvalue lies within a row's diagonal
+// entry plus its off-diagonal sum: |x| <= max(1, |α1| + 1 + √β2,
+// |α2| + √β2). The two-node rule (the fallback) has the eigenvalues of
+// the leading 2×2 block, within max(1, |α1| + 1), so the bound covers it
+// too; without variance the rule is the one node at mu.
+//
+// The rule's nodes are computed (solve3, cubicRoots' Newton polish, mu +
+// s·r): the bound takes 1e-6 of itself and 1e-12 of |mu| more, far above
+// their rounding, and is given only where β2 > 1/2 (a normal law's β2 is
+// 2), so that the moments' Hankel matrix is well conditioned.
+func momentShiftBound(mu, k2, l3, l4, l5 float64) (bound float64, ok bool) {
+	if !(k2 > 0) {
+		return 0, true
+	}
+	m3, m4, m5 := l3, l4+3, l5+10*l3
+	b2 := m4 - m3*m3 - 1
+	if !(b2 > 0.5) {
+		return 0, false
+	}
+	sb := math.Sqrt(b2)
+	a2 := (m5 + m3*m3*m3 - 2*m3*m4) / b2
+	r := math.Max(math.Abs(m3)+1+sb, math.Abs(a2)+sb)
+	bound = math.Sqrt(k2)*r*(1+1e-6) + 1e-12*math.Abs(mu)
+	if math.IsInf(bound, 0) || math.IsNaN(bound) {
+		return 0, false
+	}
+	return bound, true
+}
+
 // solve3 solves the 3×3 system a[:, :3]·c = a[:, 3] by Gaussian elimination
 // with partial pivoting; ok is false for a singular or ill-posed matrix.
 func solve3(a [3][4]float64) (c [3]float64, ok bool) {

@@ -202,16 +202,34 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 			}
 			it := item{j: j, k: k, capLeft: capLeft, floorE: s.floorP * floorClock, h: n.quiescent * t, zTab: math.NaN(), zb: math.NaN()}
 			// Standardized cumulants of the k-cycle sum: l_r / k^{r/2−1}.
-			it.rule = newMomentRule(3, k*s.mu, k*s.k2, s.l3/math.Sqrt(k), s.l4/k, s.l5/math.Pow(k, 1.5))
-			it.shift, it.least = 0.0, k*s.mu
+			kmu, kk2, l3, l4, l5 := k*s.mu, k*s.k2, s.l3/math.Sqrt(k), s.l4/k, s.l5/math.Pow(k, 1.5)
+			sc, sa := n.spread.Capacity, n.spread.Active
+			if zOf != nil {
+				it.zTab = zOf(j, t)
+				// A setting passed over by its probit even with the rule's
+				// shift bounded from above (momentShiftBound) and its least
+				// node from below is passed over by the rule's own (zb
+				// below is at least this): the rule is not built. Its zb
+				// is this lower bound, above accSkipZ as the rule's is, so
+				// it sorts after the settings measured, as before.
+				if ub, ok := momentShiftBound(kmu, kk2, l3, l4, l5); ok {
+					least := math.Min(kmu, math.Max(kmu-ub, 0))
+					sdMin := math.Sqrt(sc*sc*capLeft*capLeft + sa*sa*least*least)
+					if zb := math.Abs(it.zTab) - 0.01 - ub/sdMin; zb > accSkipZ {
+						it.zb = zb
+						items = append(items, it)
+						continue
+					}
+				}
+			}
+			it.rule = newMomentRule(3, kmu, kk2, l3, l4, l5)
+			it.shift, it.least = 0.0, kmu
 			for i := range it.rule.n {
-				it.shift = math.Max(it.shift, math.Abs(it.rule.x[i]-k*s.mu))
+				it.shift = math.Max(it.shift, math.Abs(it.rule.x[i]-kmu))
 				it.least = math.Min(it.least, math.Max(it.rule.x[i], 0))
 			}
 			if zOf != nil {
-				sc, sa := n.spread.Capacity, n.spread.Active
 				sdMin := math.Sqrt(sc*sc*capLeft*capLeft + sa*sa*it.least*it.least)
-				it.zTab = zOf(j, t)
 				it.zb = math.Abs(it.zTab) - 0.01 - it.shift/sdMin
 			}
 			items = append(items, it)

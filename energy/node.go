@@ -555,6 +555,14 @@ func (n *node) part(capLeft, mean, vv, floorE, h, extra float64, grad bool) part
 // halve is set, on each of those pieces halved (floorRuleError); the
 // node's rule (glNodes), or with tab the tables' (tabGLNodes).
 func (n *node) partRule(capLeft, mean, vv, floorE, h, extra float64, grad, halve, tab bool) partOut {
+	return n.partRuleShared(capLeft, mean, vv, floorE, h, extra, grad, halve, tab, nil)
+}
+
+// partRuleShared is partRule, by the rule on fs's pieces when fs is not
+// nil and holds some for the rule tab, without halve (the floor integrals
+// of other arguments on the same pieces share the factors that depend on
+// the pieces alone: see floorShare).
+func (n *node) partRuleShared(capLeft, mean, vv, floorE, h, extra float64, grad, halve, tab bool, fs *floorShare) partOut {
 	sc, sa, sf := n.spread.Capacity, n.spread.Active, n.spread.Floor
 	m := capLeft - mean
 	// Var(a·v) = σ_a²·(mean² + vv) + vv for independent a and v.
@@ -613,18 +621,24 @@ func (n *node) partRule(capLeft, mean, vv, floorE, h, extra float64, grad, halve
 		return alive
 	}
 	var ptsBuf [2*floorMaxPieces + 1]float64
-	pts := floorPieces(ptsBuf[:0], floorE, m-h, sd, sf)
-	if halve {
-		pts = halvePieces(pts)
+	var pts []float64
+	if fs != nil && fs.pts != nil && fs.tab == tab && !halve {
+		pts = fs.pts
+	} else {
+		fs = nil
+		pts = floorPieces(ptsBuf[:0], floorE, m-h, sd, sf)
+		if halve {
+			pts = halvePieces(pts)
+		}
 	}
 	// Integrate the smaller side only (the other is its complement, exact
 	// to rounding): which side is smaller is read off the median floor.
 	aliveSide := g(0) > 0
-	fp := n.fixedPieces(pts, floorE, h-m, sd, sf, aliveSide, grad, tab)
+	fp := n.fixedPiecesShared(pts, floorE, h-m, sd, sf, aliveSide, grad, tab, fs)
 	v := fp[0]
 	if v > 0.5 {
 		aliveSide = !aliveSide
-		v = n.fixedPieces(pts, floorE, h-m, sd, sf, aliveSide, false, tab)[0]
+		v = n.fixedPiecesShared(pts, floorE, h-m, sd, sf, aliveSide, false, tab, fs)[0]
 	}
 	var out partOut
 	if aliveSide {
@@ -782,6 +796,44 @@ func (n *node) floorRuleError(capLeft, mean, vv, floorE, h float64, p partOut, t
 //
 // With tab the rule is the tables' (tabGLNodes) instead of the node's.
 func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad, tab bool) [4]float64 {
+	return n.fixedPiecesShared(pts, floorE, c, sd, sf, alive, grad, tab, nil)
+}
+
+// floorShare holds what fixedPieces computes from the pieces alone, for
+// floor integrals of several arguments of one node on the same pieces by
+// the same rule (accuracyAtZKnown's law and its moment rule's nodes):
+// e^{σ·pts[i]} at the pieces' ends and e^{σ u}, φ(u) at each piece's
+// nodes, each computed on first use by the same expressions as without it
+// (so an evaluation on its own pieces is the same bits with it or
+// without). It is used by one goroutine at a time.
+type floorShare struct {
+	pts       []float64 // the pieces (nil: none, each evaluation cuts its own)
+	tab       bool      // the rule: the tables' (tabGLNodes) or the node's
+	buf       [floorMaxPieces + 1]float64
+	endDone   uint32 // bit i: ends[i] is computed
+	pieceDone uint32 // bit i: eu[i], phiU[i] are computed
+	ends      [floorMaxPieces + 1]float64
+	eu, phiU  [floorMaxPieces][glNodes]float64
+}
+
+// shareFloor sets fs to the pieces part cuts for the floor integral of
+// its arguments (capLeft, mean, vv, floorE, h; without extra) and to the
+// rule tab (the evaluations by the other rule cut their own pieces),
+// forgetting what fs held: no pieces where part does not integrate over
+// pieces.
+func (n *node) shareFloor(fs *floorShare, capLeft, mean, vv, floorE, h float64, tab bool) {
+	sc, sa, sf := n.spread.Capacity, n.spread.Active, n.spread.Floor
+	fs.pts, fs.tab, fs.endDone, fs.pieceDone = nil, tab, 0, 0
+	varY := sc*sc*capLeft*capLeft + sa*sa*(mean*mean+vv) + vv
+	if sf == 0 || floorE == 0 || varY == 0 {
+		return
+	}
+	fs.pts = floorPieces(fs.buf[:0], floorE, capLeft-mean-h, math.Sqrt(varY), sf)
+}
+
+// fixedPiecesShared is fixedPieces, reading and keeping the factors that
+// depend on pts alone in fs when it is not nil (pts must then be fs.pts).
+func (n *node) fixedPiecesShared(pts []float64, floorE, c, sd, sf float64, alive, grad, tab bool, fs *floorShare) [4]float64 {
 	var sum [4]float64
 	sign := 1.0
 	if !alive {
@@ -806,7 +858,21 @@ func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad
 		// the end; Φ̄(x) <= min(1/2, φ(x)/x) for x > 0 (Gordon), so the
 		// bound takes one exponential.
 		x := math.Max(a, -b)
-		y := sign * (floorE*math.Exp(sf*end) + c) / sd
+		ie := i
+		if !alive {
+			ie = i + 1
+		}
+		var ex float64
+		switch {
+		case fs == nil:
+			ex = math.Exp(sf * end)
+		case fs.endDone&(1<<ie) != 0:
+			ex = fs.ends[ie]
+		default:
+			ex = math.Exp(sf * end)
+			fs.ends[ie], fs.endDone = ex, fs.endDone|1<<ie
+		}
+		y := sign * (floorE*ex + c) / sd
 		q, e2 := 1.0, 0.0 // the bound is q·e^{−e2/2}
 		if x > 0 {
 			if x > 0.8 { // φ(x)/x < 1/2
@@ -875,14 +941,24 @@ func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad
 		}
 		a, b := pts[i], pts[i+1]
 		h, mid := (b-a)/2, (a+b)/2
-		f := factors(h)
-		em, pm := math.Exp(sf*mid), math.Exp(-0.5*mid*mid)*invSqrt2Pi
 		var eu, phiU [glNodes]float64
-		for k := range half {
-			d := math.Exp(-mid * h * glx[k])
-			kk := nn - 1 - k
-			eu[k], eu[kk] = em*f.q[k], em*f.q[kk]
-			phiU[k], phiU[kk] = pm*f.cc[k]*d, pm*f.cc[k]/d
+		if fs != nil && fs.pieceDone&(1<<i) != 0 {
+			eu = fs.eu[i]
+			phiU = fs.phiU[i]
+		} else {
+			f := factors(h)
+			em, pm := math.Exp(sf*mid), math.Exp(-0.5*mid*mid)*invSqrt2Pi
+			for k := range half {
+				d := math.Exp(-mid * h * glx[k])
+				kk := nn - 1 - k
+				eu[k], eu[kk] = em*f.q[k], em*f.q[kk]
+				phiU[k], phiU[kk] = pm*f.cc[k]*d, pm*f.cc[k]/d
+			}
+			if fs != nil {
+				fs.eu[i] = eu
+				fs.phiU[i] = phiU
+				fs.pieceDone |= 1 << i
+			}
 		}
 		var part [4]float64
 		for q := range nn {

@@ -622,8 +622,8 @@ func (n *node) partRuleShared(capLeft, mean, vv, floorE, h, extra float64, grad,
 	}
 	var ptsBuf [2*floorMaxPieces + 1]float64
 	var pts []float64
-	if fs != nil && fs.pts != nil && fs.tab == tab && !halve {
-		pts = fs.pts
+	if fs != nil && fs.np > 0 && fs.tab == tab && !halve {
+		pts = fs.buf[:fs.np]
 	} else {
 		fs = nil
 		pts = floorPieces(ptsBuf[:0], floorE, m-h, sd, sf)
@@ -807,8 +807,8 @@ func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad
 // (so an evaluation on its own pieces is the same bits with it or
 // without). It is used by one goroutine at a time.
 type floorShare struct {
-	pts       []float64 // the pieces (nil: none, each evaluation cuts its own)
-	tab       bool      // the rule: the tables' (tabGLNodes) or the node's
+	np        int  // the pieces' points, buf[:np] (0: none, each evaluation cuts its own)
+	tab       bool // the rule: the tables' (tabGLNodes) or the node's
 	buf       [floorMaxPieces + 1]float64
 	endDone   uint32 // bit i: ends[i] is computed
 	pieceDone uint32 // bit i: eu[i], phiU[i] are computed
@@ -823,16 +823,19 @@ type floorShare struct {
 // pieces.
 func (n *node) shareFloor(fs *floorShare, capLeft, mean, vv, floorE, h float64, tab bool) {
 	sc, sa, sf := n.spread.Capacity, n.spread.Active, n.spread.Floor
-	fs.pts, fs.tab, fs.endDone, fs.pieceDone = nil, tab, 0, 0
+	fs.np, fs.tab, fs.endDone, fs.pieceDone = 0, tab, 0, 0
 	varY := sc*sc*capLeft*capLeft + sa*sa*(mean*mean+vv) + vv
 	if sf == 0 || floorE == 0 || varY == 0 {
 		return
 	}
-	fs.pts = floorPieces(fs.buf[:0], floorE, capLeft-mean-h, math.Sqrt(varY), sf)
+	// floorPieces makes at most floorMaxPieces pieces: buf holds them.
+	if pts := floorPieces(fs.buf[:0], floorE, capLeft-mean-h, math.Sqrt(varY), sf); len(pts) <= len(fs.buf) {
+		fs.np = len(pts)
+	}
 }
 
 // fixedPiecesShared is fixedPieces, reading and keeping the factors that
-// depend on pts alone in fs when it is not nil (pts must then be fs.pts).
+// depend on pts alone in fs when it is not nil (pts must then be fs's).
 func (n *node) fixedPiecesShared(pts []float64, floorE, c, sd, sf float64, alive, grad, tab bool, fs *floorShare) [4]float64 {
 	var sum [4]float64
 	sign := 1.0

@@ -985,9 +985,9 @@ func (tb tabulated) moments() {
 func (tb tabulated) integrateMoments() (mean, vari, meanErr, varErr float64) {
 	lo, hi := tb.t[0], tb.t[len(tb.t)-1]
 	scale := hi
-	// The 4-point rule on [−1, 1] (Abramowitz and Stegun, Table 25.4).
-	xs := [4]float64{-0.8611363115940526, -0.3399810435848563, 0.3399810435848563, 0.8611363115940526}
-	ws := [4]float64{0.3478548451374538, 0.6521451548625461, 0.6521451548625461, 0.3478548451374538}
+	// The 4-point rule on [−1, 1] (glRule: gonum's nodes, as the floor
+	// integral's).
+	xs, ws := glRule(4)
 	var v0, v1, b0, b1 float64 // ∫S, ∫2(t/scale)·S and their rules' error bounds
 	for i := 0; i+1 < len(tb.t); i++ {
 		t0, t1 := tb.t[i], tb.t[i+1]

@@ -74,12 +74,13 @@ type tabulated struct {
 	// is at most setWorst·(1 + setZ)·min(F, 1 − F), Gordon's inequality
 	// for Mills' ratio), and the mass beyond their ends setBeyond.
 	setWorst, setZ, setBeyond float64
-	// The settings' tables built to a looser tolerance (tabLooseMax):
-	// their probit errors (1.5 times their tolerances: the midpoint
-	// checks do not bound them by themselves there) times their factors e,
-	// summed (looseRel, relative to the mixture's smaller side, with
-	// (1 + setZ) as setWorst), and times w·φ(z) at their probit at the
-	// calendar limit, summed (looseAbs, the CDF's absolute error).
+	// The settings' tables' intervals built to a looser tolerance
+	// (tabLooseMax): their probit errors (1.5 times their tolerances: the
+	// midpoint checks do not bound them by themselves there) times their
+	// factors e, the largest of each table, summed over the tables
+	// (looseRel, relative to the mixture's smaller side, with (1 + setZ)
+	// as setWorst), and times w·φ at the interval's end nearer 0 moved by
+	// tabLooseShift, likewise (looseAbs, the CDF's absolute error).
 	looseRel, looseAbs  float64
 	setPoints, setEvals int // the settings' tables' points and the node model's evaluations, in all
 	// The settings left out (tabDropAbs): their mass before the

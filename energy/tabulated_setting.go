@@ -554,12 +554,12 @@ const (
 // probits at the calendar limit, highest first, so that the ones that run
 // out first are there to compare with: in the demo the lower tails of
 // most of the others are loose, and settings whose law is small all
-// through before the calendar limit (about a third) wholly so.
+// through before the calendar limit wholly so.
 const (
 	tabLooseMax   = 100                            // a setting table's tolerance at most tabLooseMax·tabSetZTol
 	tabLooseShare = 0.25                           // the loose tables' stated errors, at most tabLooseShare of the full tolerance's in all
-	tabLooseZ     = -1.0                           // a loose table's probit at the calendar limit, at most
-	tabLooseShift = 1.5 * tabLooseMax * tabSetZTol // a loose table's probit error, at most
+	tabLooseZ     = -1.0                           // a loose interval's probit at its upper end, at most
+	tabLooseShift = 1.5 * tabLooseMax * tabSetZTol // a loose interval's probit error, at most
 	// tabLooseInitial is the first grid's knots of a table loose over its
 	// whole span: at its tolerance the intervals of tabSetInitial's grid
 	// pass their first check (the demo's: 9 knots each).
@@ -574,8 +574,8 @@ func droppedMass(w, z float64) float64 { return w * normSurv(-z) * (1 + 1e-9) }
 // settingOut is one setting's result in settingTables: its table (ok
 // false where its law is below tabSetTail up to the calendar limit), or,
 // where it is left out, its ends and its bound relative to the mixture's
-// CDF; a table built to a looser tolerance has its factor e (see
-// tabLooseMax) and its probit at the calendar limit zCal.
+// CDF; with the largest terms of its intervals built to a looser
+// tolerance (see tabLooseMax).
 type settingOut struct {
 	pt   probitTable
 	ok   bool

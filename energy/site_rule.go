@@ -46,15 +46,18 @@ import (
 const (
 	sharedTol   = 1e-2 // target of the rule's estimated CDF error (the demo: 3 × 7 nodes)
 	sharedFineZ = 4.5  // the fine grid's range (standard deviations)
-	// sharedFineStep is the fine grid's widest step (sd): 13 points a
+	// sharedFineStep is the fine grid's widest step (sd): 21 points a
 	// factor, where the probits move by less than sharedFineMove a step
 	// (fitFine refines it where they are steeper).
 	// TestSiteRuleErrorAgainstFinerReference: the rule errs by at most 0.84
 	// of its estimate against a grid 4× finer, on a site at the widest
-	// step and on steep sites where fitFine refines it. At 0.5 (21 points,
-	// before) the demo's batch grid took 21 points where 13 give its
-	// stated errors within 3 % (lower), 0.94 of its instructions.
-	sharedFineStep = 0.75
+	// step and on steep sites where fitFine refines it. At 0.75 (13
+	// points, tried) the demo took 0.94 of the instructions, but a site of
+	// four groups of 8,000 nodes (BenchmarkSiteScaling) had its first
+	// failures' estimates pass sharedTol and its rule refined: 2.2 times
+	// the CPU of the same site with 80 nodes a group, where its cost must
+	// be flat in nodes.
+	sharedFineStep = 0.5
 	// sharedFineMove is the most the groups' probits move from one fine
 	// point to the next (fitFine). The grid's own error is estimated (every
 	// other point) and stated; at 0.125 (before) the demo's temperature

@@ -5,8 +5,6 @@ import (
 	"math"
 	"testing"
 
-	gquad "gonum.org/v1/gonum/integrate/quad"
-
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 )
@@ -25,65 +23,54 @@ import (
 // setting of the test sites, at the times where its probit is −8.5 to 8.5
 // (the range accuracyAtZKnown evaluates), under two conditions.
 func TestFloorShareAgainstGonum(t *testing.T) {
-	nodes, clim := tabTestNodes(t)
 	for _, tab := range []bool{true, false} {
 		t.Run(fmt.Sprintf("tab=%v", tab), func(t *testing.T) {
 			worst, worstOwn, checked := 0.0, 0.0, 0
-			for _, cond := range tabTestConditions {
-				for gi, node := range nodes {
-					l, err := NewNodeLifetime(node, Environment{Climate: clim, Conditions: cond})
-					require.NoError(t, err)
-					n := l.n
-					sc, sa, sf := n.spread.Capacity, n.spread.Active, n.spread.Floor
-					for j := range n.settings {
-						s := &n.settings[j]
-						for _, target := range []float64{-8.5, -6, -3, -1, 0, 1, 3, 6, 8.5} {
-							k, capLeft, floorE, h := settingArgsAtProbit(n, j, target)
-							mean, vv := k*s.mu, k*s.k2
-							rule := newMomentRule(3, mean, vv, s.l3/math.Sqrt(k), s.l4/k, s.l5/math.Pow(k, 1.5))
-							var fs floorShare
-							// The nodes first, then p with and without the
-							// gradient: p's bits do not depend on what
-							// filled the share.
-							n.shareFloor(&fs, capLeft, mean, vv, floorE, h, tab)
-							var got [3]partOut
-							for i := range rule.n {
-								got[i] = n.partRuleShared(capLeft, rule.x[i], 0, floorE, h, 0, false, false, tab, &fs)
+			forEachTestLaw(t, func(gi int, cond Conditions, l NodeLifetime) {
+				n := l.n
+				for j := range n.settings {
+					s := &n.settings[j]
+					for _, target := range []float64{-8.5, -6, -3, -1, 0, 1, 3, 6, 8.5} {
+						k, capLeft, floorE, h := settingArgsAtProbit(n, j, target)
+						mean, vv := k*s.mu, k*s.k2
+						rule := newMomentRule(3, mean, vv, s.l3/math.Sqrt(k), s.l4/k, s.l5/math.Pow(k, 1.5))
+						var fs floorShare
+						// The nodes first, then p with and without the
+						// gradient: p's bits do not depend on what
+						// filled the share.
+						n.shareFloor(&fs, capLeft, mean, vv, floorE, h, tab)
+						var got [3]partOut
+						for i := range rule.n {
+							got[i] = n.partRuleShared(capLeft, rule.x[i], 0, floorE, h, 0, false, false, tab, &fs)
+						}
+						for _, grad := range []bool{false, true} {
+							want := n.partRule(capLeft, mean, vv, floorE, h, 0, grad, false, tab)
+							p := n.partRuleShared(capLeft, mean, vv, floorE, h, 0, grad, false, tab, &fs)
+							require.Equal(t, want, p, "group %d setting %d, probit %g, grad %v", gi, j, target, grad)
+						}
+						for i := range rule.n {
+							side, small := 1.0, got[i].alive
+							if got[i].dead < got[i].alive {
+								side, small = -1, got[i].dead
 							}
-							for _, grad := range []bool{false, true} {
-								want := n.partRule(capLeft, mean, vv, floorE, h, 0, grad, false, tab)
-								p := n.partRuleShared(capLeft, mean, vv, floorE, h, 0, grad, false, tab, &fs)
-								require.Equal(t, want, p, "group %d setting %d, probit %g, grad %v", gi, j, target, grad)
+							if small < 1e-300 {
+								continue
 							}
-							for i := range rule.n {
-								m := capLeft - rule.x[i]
-								sd := math.Sqrt(sc*sc*capLeft*capLeft + sa*sa*rule.x[i]*rule.x[i])
-								side, small := 1.0, got[i].alive
-								if got[i].dead < got[i].alive {
-									side, small = -1, got[i].dead
-								}
-								if small < 1e-300 {
-									continue
-								}
-								want := gquad.Fixed(func(u float64) float64 {
-									g := (floorE*math.Exp(sf*u) + h - m) / sd
-									return math.Exp(-u*u/2) / math.Sqrt(2*math.Pi) * 0.5 * math.Erfc(side*g/math.Sqrt2)
-								}, -floorZMax, floorZMax, 12000, gquad.Legendre{}, 0)
-								e := math.Abs(small - want)
-								worst = math.Max(worst, e/want)
-								own := n.partRule(capLeft, rule.x[i], 0, floorE, h, 0, false, false, tab)
-								worstOwn = math.Max(worstOwn, math.Abs(math.Min(own.alive, own.dead)-want)/want)
-								checked++
-								if tab {
-									assert.LessOrEqual(t, e, math.Min(tabRuleRel*want, tabRuleAbs)/2, "group %d setting %d %v, probit %g, node %d", gi, j, cond, target, i)
-								} else {
-									assert.LessOrEqual(t, e, 1e-7*want, "group %d setting %d %v, probit %g, node %d", gi, j, cond, target, i)
-								}
+							want := floorOracle(n, capLeft, rule.x[i], 0, floorE, h, side, floorZMax, 12000)
+							e := math.Abs(small - want)
+							worst = math.Max(worst, e/want)
+							own := n.partRule(capLeft, rule.x[i], 0, floorE, h, 0, false, false, tab)
+							worstOwn = math.Max(worstOwn, math.Abs(math.Min(own.alive, own.dead)-want)/want)
+							checked++
+							if tab {
+								assert.LessOrEqual(t, e, math.Min(tabRuleRel*want, tabRuleAbs)/2, "group %d setting %d %v, probit %g, node %d", gi, j, cond, target, i)
+							} else {
+								assert.LessOrEqual(t, e, 1e-7*want, "group %d setting %d %v, probit %g, node %d", gi, j, cond, target, i)
 							}
 						}
 					}
 				}
-			}
+			})
 			require.Positive(t, checked)
 			t.Logf("%d nodes; largest error against gonum's 12000-point rule: %.2g of the side (on their own pieces %.2g)", checked, worst, worstOwn)
 		})

@@ -7,7 +7,6 @@ import (
 	gquad "gonum.org/v1/gonum/integrate/quad"
 
 	"github.com/stretchr/testify/assert"
-	"github.com/stretchr/testify/require"
 
 	"github.com/joulelaw/joulelaw/dist"
 )
@@ -25,53 +24,35 @@ import (
 // 2.3e-8 at most, 3.8e-10 beyond the cut's share; with the cut at ±9.3
 // before, 1.3e-10 beyond a share of 1.7e-4 at |z| = 8.5).
 func TestFloorRuleAgainstGonum(t *testing.T) {
-	nodes, clim := tabTestNodes(t)
 	std := dist.MustNormal(0, 1)
 	worst, beyond := 0.0, 0.0
-	for _, cond := range tabTestConditions {
-		for gi, node := range nodes {
-			l, err := NewNodeLifetime(node, Environment{Climate: clim, Conditions: cond})
-			require.NoError(t, err)
-			n := l.n
-			sc, sa, sf := n.spread.Capacity, n.spread.Active, n.spread.Floor
-			for j := range n.settings {
-				s := &n.settings[j]
-				for _, target := range []float64{-8.9, -8.5, -6, -3, -1, 0, 1, 3, 6, 8.5, 8.9} {
-					z := func(x float64) (float64, float64) {
-						a, d, _ := n.settingAt(j, x)
-						return probitOf(a, d), math.NaN()
-					}
-					x, _ := probitEnd(z, n.settingLife(j), target, 0.05, false)
-					c := n.clocks(x)
-					capLeft := n.batch*s.usable - n.nominal*(n.storage+n.sdRate*c[1])
-					mean, floorE, h := c[0]*s.rate*s.mu, s.floorP*c[2], n.quiescent*c[0]
-					vv := c[0] * s.rate * s.k2
-					p := n.part(capLeft, mean, vv, floorE, h, 0, false)
-					got := probitOf(p.alive, p.dead)
-					// The oracle: the same law's smaller side by gonum's rule.
-					m := capLeft - mean
-					sd := math.Sqrt(sc*sc*capLeft*capLeft + sa*sa*(mean*mean+vv) + vv)
-					side := 1.0 // the alive side
-					if got < 0 {
-						side = -1 // the dead side is the smaller
-					}
-					v := gquad.Fixed(func(u float64) float64 {
-						g := (floorE*math.Exp(sf*u) + h - m) / sd
-						return math.Exp(-u*u/2) / math.Sqrt(2*math.Pi) * 0.5 * math.Erfc(side*g/math.Sqrt2)
-					}, -12, 12, 6000, gquad.Legendre{}, 0)
-					want := std.Quantile(v)
-					if side > 0 {
-						want = std.UpperQuantile(v)
-					}
-					cut := 2 * normSurv(floorZMax) / normPDF(want)
-					e := math.Abs(got - want)
-					worst = math.Max(worst, e)
-					beyond = math.Max(beyond, e-cut)
-					assert.InDelta(t, want, got, 1e-9+cut, "group %d setting %d %v, probit %g", gi, j, cond, target)
+	forEachTestLaw(t, func(gi int, cond Conditions, l NodeLifetime) {
+		n := l.n
+		for j := range n.settings {
+			s := &n.settings[j]
+			for _, target := range []float64{-8.9, -8.5, -6, -3, -1, 0, 1, 3, 6, 8.5, 8.9} {
+				k, capLeft, floorE, h := settingArgsAtProbit(n, j, target)
+				mean, vv := k*s.mu, k*s.k2
+				p := n.part(capLeft, mean, vv, floorE, h, 0, false)
+				got := probitOf(p.alive, p.dead)
+				// The oracle: the same law's smaller side by gonum's rule.
+				side := 1.0 // the alive side
+				if got < 0 {
+					side = -1 // the dead side is the smaller
 				}
+				v := floorOracle(n, capLeft, mean, vv, floorE, h, side, 12, 6000)
+				want := std.Quantile(v)
+				if side > 0 {
+					want = std.UpperQuantile(v)
+				}
+				cut := 2 * normSurv(floorZMax) / normPDF(want)
+				e := math.Abs(got - want)
+				worst = math.Max(worst, e)
+				beyond = math.Max(beyond, e-cut)
+				assert.InDelta(t, want, got, 1e-9+cut, "group %d setting %d %v, probit %g", gi, j, cond, target)
 			}
 		}
-	}
+	})
 	t.Logf("largest probit difference against gonum's 6000-point rule: %.2g (%.2g beyond the cut's share)", worst, beyond)
 }
 
@@ -120,7 +101,6 @@ func (n *node) adaptivePart(capLeft, mean, floorE, h float64) (alive, dead, errE
 // side and tabRuleAbs absolute (measured: 3.5e-5 of the side, 2.0e-8
 // absolute, 5.7e-6 in probit).
 func TestFloorRuleErrorAgainstGonum(t *testing.T) {
-	nodes, clim := tabTestNodes(t)
 	for _, tc := range []struct {
 		name     string
 		points   int     // the rule's nodes (glNodes, or fewer)
@@ -133,59 +113,52 @@ func TestFloorRuleErrorAgainstGonum(t *testing.T) {
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			worst, worstAbs := 0.0, 0.0
-			for _, cond := range tabTestConditions {
-				for gi, node := range nodes {
-					l, err := NewNodeLifetime(node, Environment{Climate: clim, Conditions: cond})
-					require.NoError(t, err)
-					n := l.n
-					if !tc.tab && tc.points != glNodes {
-						// A copy of the node with the coarse rule (gonum's nodes).
-						c := *n
-						c.glx, c.glw = make([]float64, tc.points), make([]float64, tc.points)
-						gquad.Legendre{}.FixedLocations(c.glx, c.glw, -1, 1)
-						for k := range tc.points / 2 {
-							x := (c.glx[tc.points-1-k] - c.glx[k]) / 2
-							c.glx[k], c.glx[tc.points-1-k] = -x, x
+			forEachTestLaw(t, func(gi int, cond Conditions, l NodeLifetime) {
+				n := l.n
+				if !tc.tab && tc.points != glNodes {
+					// A copy of the node with the coarse rule (gonum's nodes).
+					c := *n
+					c.glx, c.glw = glRule(tc.points)
+					n = &c
+				}
+				for j := range n.settings {
+					s := &n.settings[j]
+					for _, target := range []float64{-8.9, -8.5, -6, -3, -1, 0, 1, 3, 6, 8.5, 8.9} {
+						// The times from the node's own rule.
+						k, capLeft, floorE, h := settingArgsAtProbit(l.n, j, target)
+						mean, vv := k*s.mu, k*s.k2
+						p := n.partRule(capLeft, mean, vv, floorE, h, 0, false, false, tc.tab)
+						est := n.floorRuleError(capLeft, mean, vv, floorE, h, p, tc.tab)
+						side, small := 1.0, p.alive // the alive side
+						if p.dead < p.alive {
+							side, small = -1, p.dead
 						}
-						n = &c
-					}
-					sc, sa, sf := n.spread.Capacity, n.spread.Active, n.spread.Floor
-					for j := range n.settings {
-						s := &n.settings[j]
-						for _, target := range []float64{-8.9, -8.5, -6, -3, -1, 0, 1, 3, 6, 8.5, 8.9} {
-							z := func(x float64) (float64, float64) {
-								a, d, _ := l.n.settingAt(j, x)
-								return probitOf(a, d), math.NaN()
-							}
-							x, _ := probitEnd(z, l.n.settingLife(j), target, 0.05, false)
-							c := n.clocks(x)
-							capLeft := n.batch*s.usable - n.nominal*(n.storage+n.sdRate*c[1])
-							mean, floorE, h := c[0]*s.rate*s.mu, s.floorP*c[2], n.quiescent*c[0]
-							vv := c[0] * s.rate * s.k2
-							p := n.partRule(capLeft, mean, vv, floorE, h, 0, false, false, tc.tab)
-							est := n.floorRuleError(capLeft, mean, vv, floorE, h, p, tc.tab)
-							m := capLeft - mean
-							sd := math.Sqrt(sc*sc*capLeft*capLeft + sa*sa*(mean*mean+vv) + vv)
-							side, small := 1.0, p.alive // the alive side
-							if p.dead < p.alive {
-								side, small = -1, p.dead
-							}
-							want := gquad.Fixed(func(u float64) float64 {
-								g := (floorE*math.Exp(sf*u) + h - m) / sd
-								return math.Exp(-u*u/2) / math.Sqrt(2*math.Pi) * 0.5 * math.Erfc(side*g/math.Sqrt2)
-							}, -floorZMax, floorZMax, 12000, gquad.Legendre{}, 0)
-							e := math.Abs(small - want)
-							worst, worstAbs = math.Max(worst, e/want), math.Max(worstAbs, e)
-							if tc.tab {
-								assert.LessOrEqual(t, e, math.Min(tabRuleRel*want, tabRuleAbs)/2, "group %d setting %d %v, probit %g: the tables' rule's error against half its margin", gi, j, cond, target)
-							}
-							assert.LessOrEqual(t, e, est+2e-14*want, "group %d setting %d %v, probit %g: error %.3g of the side, estimate %.3g", gi, j, cond, target, e/want, est/want)
+						want := floorOracle(n, capLeft, mean, vv, floorE, h, side, floorZMax, 12000)
+						e := math.Abs(small - want)
+						worst, worstAbs = math.Max(worst, e/want), math.Max(worstAbs, e)
+						if tc.tab {
+							assert.LessOrEqual(t, e, math.Min(tabRuleRel*want, tabRuleAbs)/2, "group %d setting %d %v, probit %g: the tables' rule's error against half its margin", gi, j, cond, target)
 						}
+						assert.LessOrEqual(t, e, est+2e-14*want, "group %d setting %d %v, probit %g: error %.3g of the side, estimate %.3g", gi, j, cond, target, e/want, est/want)
 					}
 				}
-			}
+			})
 			assert.GreaterOrEqual(t, worst, tc.worstMin, "the rule's largest error")
 			t.Logf("largest error against gonum's 12000-point rule: %.2g of the side, %.2g absolute", worst, worstAbs)
 		})
 	}
+}
+
+// floorOracle is the floor integral's side by gonum's fixed Gauss–Legendre
+// rule with points nodes on [−reach, reach] (the oracle of the tests here):
+// ∫ φ(u)·Φ̄(side·g(u)) du, g(u) = (L·e^{σ_f u} + h − m)/sd, m = capLeft −
+// mean, sd² = σ_c²·capLeft² + σ_a²·(mean² + vv) + vv, Φ̄ from math.Erfc.
+func floorOracle(n *node, capLeft, mean, vv, floorE, h, side, reach float64, points int) float64 {
+	sc, sa, sf := n.spread.Capacity, n.spread.Active, n.spread.Floor
+	m := capLeft - mean
+	sd := math.Sqrt(sc*sc*capLeft*capLeft + sa*sa*(mean*mean+vv) + vv)
+	return gquad.Fixed(func(u float64) float64 {
+		g := (floorE*math.Exp(sf*u) + h - m) / sd
+		return math.Exp(-u*u/2) / math.Sqrt(2*math.Pi) * 0.5 * math.Erfc(side*g/math.Sqrt2)
+	}, -reach, reach, points, gquad.Legendre{}, 0)
 }

@@ -199,15 +199,23 @@ func newSharedFactor(spread bool, kinks []float64, m int) sharedFactor {
 	return f
 }
 
+// finePoints returns the fine grid's points over ±sharedFineZ at about
+// step apart: one more than a multiple of four, so that every other point
+// (the coarse grid) is a grid of its own with both ends.
+func finePoints(step float64) int {
+	n := int(math.Round(2*sharedFineZ/step)) + 1
+	if n%4 != 1 {
+		n += 4 - (n-1)%4
+	}
+	return n
+}
+
 // setFine lays the fine grid of the reference at about step (standard
 // deviations) over ±sharedFineZ (4k + 1 points, so that every other point
 // is a grid of its own) with its interpolation rows.
 func (f *sharedFactor) setFine(step float64) {
 	// The fine grid.
-	n := int(math.Round(2*sharedFineZ/step)) + 1
-	if n%4 != 1 {
-		n += 4 - (n-1)%4
-	}
+	n := finePoints(step)
 	h := 2 * sharedFineZ / float64(n-1)
 	f.fz, f.fw, f.fwc = make([]float64, n), make([]float64, n), make([]float64, n)
 	sw, sc := 0.0, 0.0

@@ -56,7 +56,7 @@ func manyNodes(spec SiteSpec, k int64) SiteSpec {
 func siteRuleAgainstFinerReference(t *testing.T, spec SiteSpec, refined bool) {
 	s, err := NewSite(spec)
 	require.NoError(t, err)
-	widest := int(math.Round(2*sharedFineZ/sharedFineStep)) + 1
+	widest := finePoints(sharedFineStep) // the grid's points where fitFine does not refine it
 	if refined {
 		assert.True(t, len(s.fac[0].fz) > widest || len(s.fac[1].fz) > widest, "a factor's fine grid refined: %d and %d points", len(s.fac[0].fz), len(s.fac[1].fz))
 	}

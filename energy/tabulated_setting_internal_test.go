@@ -41,6 +41,20 @@ func tabTestNodes(t testing.TB) ([]NodeSpec, *Climate) {
 	return nodes, clim
 }
 
+// forEachTestLaw calls fn with each test node's law (tabTestNodes, their
+// index gi) under each of tabTestConditions.
+func forEachTestLaw(t *testing.T, fn func(gi int, cond Conditions, l NodeLifetime)) {
+	t.Helper()
+	nodes, clim := tabTestNodes(t)
+	for _, cond := range tabTestConditions {
+		for gi, node := range nodes {
+			l, err := NewNodeLifetime(node, Environment{Climate: clim, Conditions: cond})
+			require.NoError(t, err)
+			fn(gi, cond, l)
+		}
+	}
+}
+
 // tabTestConditions are the shared factors the node tables are tested
 // under: nominal, and a weak batch in a cold year.
 var tabTestConditions = []Conditions{{BatchFactor: 1}, {BatchFactor: 0.95, TemperatureOffset: -6}}
@@ -54,63 +68,58 @@ var tabTestConditions = []Conditions{{BatchFactor: 1}, {BatchFactor: 0.95, Tempe
 // halves are closer still) and within the tolerance; and at looser
 // tolerances (below).
 func TestSettingTablesAgainstDirect(t *testing.T) {
-	nodes, clim := tabTestNodes(t)
-	for _, cond := range tabTestConditions {
-		for gi, node := range nodes {
-			l, err := NewNodeLifetime(node, Environment{Climate: clim, Conditions: cond})
-			require.NoError(t, err)
-			for j := range l.n.settings {
-				t.Run(fmt.Sprintf("node %d setting %d dT=%+g", gi, j, cond.TemperatureOffset), func(t *testing.T) {
-					st, ok := settingTable(l, j, tabSetZTol, tabSetTail)
-					if !ok {
-						// Below 1e-18 up to the calendar limit: checked there.
-						a, d, _ := l.n.settingAt(j, l.n.calendar)
-						assert.Less(t, d, tabSetTail)
-						assert.Greater(t, a, 0.5)
-						return
+	forEachTestLaw(t, func(gi int, cond Conditions, l NodeLifetime) {
+		for j := range l.n.settings {
+			t.Run(fmt.Sprintf("node %d setting %d dT=%+g", gi, j, cond.TemperatureOffset), func(t *testing.T) {
+				st, ok := settingTable(l, j, tabSetZTol, tabSetTail)
+				if !ok {
+					// Below 1e-18 up to the calendar limit: checked there.
+					a, d, _ := l.n.settingAt(j, l.n.calendar)
+					assert.Less(t, d, tabSetTail)
+					assert.Greater(t, a, 0.5)
+					return
+				}
+				lo, hi := st.t[0], st.t[len(st.t)-1]
+				ts := tableTestTimes(lo, hi, 2000)
+				worst := 0.0
+				wx, wz := 0.0, 0.0
+				for _, x := range ts {
+					a, d, _ := l.n.settingAt(j, x)
+					if e := math.Abs(st.zAt(x) - probitOf(a, d)); e > worst {
+						worst, wx, wz = e, x, probitOf(a, d)
 					}
-					lo, hi := st.t[0], st.t[len(st.t)-1]
-					ts := tableTestTimes(lo, hi, 2000)
-					worst := 0.0
-					wx, wz := 0.0, 0.0
-					for _, x := range ts {
+				}
+				assert.LessOrEqual(t, st.worst, tabSetZTol)
+				assert.LessOrEqual(t, worst, 1.5*tabSetZTol, "probit error against direct evaluation")
+				assert.LessOrEqual(t, worst, math.Max(1.5*st.worst, 1e-9), "within the measured worst")
+				t.Logf("%d points (%d model evaluations, %d month boundaries): probit error %.2g (measured worst %.2g) at month %.4f, z=%.3f", len(st.t), st.evals, st.kinks, worst, st.worst, wx/Month, wz)
+				if st.gk == nil {
+					return
+				}
+				// The same setting at looser tolerances (λ times
+				// tabSetZTol, from tabLooseInitial knots: what
+				// settingTables builds for a setting whose law is small
+				// beside the mixture's), between the same ends: within
+				// 1.5 times the tolerance, what the loose tables' stated
+				// error and accuracyAtZ's reading take (tabLooseShift at
+				// the loosest). There the midpoint checks no longer bound
+				// the error by themselves (measured: up to 5 times the
+				// measured worst; 1.1 of the tolerance at most, at λ = 3).
+				for _, loose := range []float64{3, 10, tabLooseMax} {
+					tol := loose * tabSetZTol
+					lt := l.n.gradGrid(j, st.gk[0], st.gk[len(st.gk)-1], tol, tabLooseInitial, nil, nil)
+					lw := 0.0
+					for _, x := range tableTestTimes(lt.t[0], lt.t[len(lt.t)-1], 2000) {
 						a, d, _ := l.n.settingAt(j, x)
-						if e := math.Abs(st.zAt(x) - probitOf(a, d)); e > worst {
-							worst, wx, wz = e, x, probitOf(a, d)
-						}
+						lw = math.Max(lw, math.Abs(lt.zAt(x)-probitOf(a, d)))
 					}
-					assert.LessOrEqual(t, st.worst, tabSetZTol)
-					assert.LessOrEqual(t, worst, 1.5*tabSetZTol, "probit error against direct evaluation")
-					assert.LessOrEqual(t, worst, math.Max(1.5*st.worst, 1e-9), "within the measured worst")
-					t.Logf("%d points (%d model evaluations, %d month boundaries): probit error %.2g (measured worst %.2g) at month %.4f, z=%.3f", len(st.t), st.evals, st.kinks, worst, st.worst, wx/Month, wz)
-					if st.gk == nil {
-						return
-					}
-					// The same setting at looser tolerances (λ times
-					// tabSetZTol, from tabLooseInitial knots: what
-					// settingTables builds for a setting whose law is small
-					// beside the mixture's), between the same ends: within
-					// 1.5 times the tolerance, what the loose tables' stated
-					// error and accuracyAtZ's reading take (tabLooseShift at
-					// the loosest). There the midpoint checks no longer bound
-					// the error by themselves (measured: up to 5 times the
-					// measured worst; 1.1 of the tolerance at most, at λ = 3).
-					for _, loose := range []float64{3, 10, tabLooseMax} {
-						tol := loose * tabSetZTol
-						lt := l.n.gradGrid(j, st.gk[0], st.gk[len(st.gk)-1], tol, tabLooseInitial, nil, nil)
-						lw := 0.0
-						for _, x := range tableTestTimes(lt.t[0], lt.t[len(lt.t)-1], 2000) {
-							a, d, _ := l.n.settingAt(j, x)
-							lw = math.Max(lw, math.Abs(lt.zAt(x)-probitOf(a, d)))
-						}
-						assert.LessOrEqual(t, lt.worst, tol)
-						assert.LessOrEqual(t, lw, 1.5*tol, "loose %g: probit error against direct evaluation", loose)
-						t.Logf("loose %g: %d knots: probit error %.2g, %.2g of the tolerance (measured worst %.2g)", loose, len(lt.gk), lw, lw/tol, lt.worst)
-					}
-				})
-			}
+					assert.LessOrEqual(t, lt.worst, tol)
+					assert.LessOrEqual(t, lw, 1.5*tol, "loose %g: probit error against direct evaluation", loose)
+					t.Logf("loose %g: %d knots: probit error %.2g, %.2g of the tolerance (measured worst %.2g)", loose, len(lt.gk), lw, lw/tol, lt.worst)
+				}
+			})
 		}
-	}
+	})
 }
 
 // The probit's gradient against capLeft, mean, floorE and h (part, from

@@ -97,8 +97,19 @@ func stdNormalQuantile(p float64) float64 {
 
 // stdNormalUpperZ returns z >= 0 with Q(z) = erfc(z/√2)/2 = q, for q in
 // (0, 1/2]. The start is Abramowitz & Stegun 26.2.23 (|error| < 4.5e-4);
-// Newton steps on log Q then give full precision down to q near the
-// smallest float64. Where z >= mills.SmallX (0.663) a step takes log Q =
+// Halley steps on f(z) = log Q(z) − log q then give full precision down to
+// q near the smallest float64. With r = Q/φ, f′ = −1/r and
+// f″ = z/r − 1/r² (since (log Q)′ = −φ/Q and φ′ = −zφ), so Halley's step
+// −2ff′/(2f′² − ff″) is f·r/(1 + f·(1 − z·r)/2). The error after a step
+// is of the order of the cube of the one before it, so that a step below
+// 1e-6·max(1, z) leaves one near 1e-18·max(1, z) and the search stops
+// after it (two steps from A&S's start everywhere from
+// 1e-300 to 1/2, against three to six Newton steps before, which stopped
+// only at a step below 1e-16; the two agree within 2.4e-15 relative where
+// z > 0.1, the conditioning of Q there; the oracles are
+// TestNormalQuantilesInvertTable's 1600-bit values and
+// TestNormalQuantileRoundTrip).
+// Where z >= mills.SmallX (0.663) a step takes log Q =
 // −z²/2 − log √(2π) + log R(z) and Q/φ = R(z) from Mills' ratio R
 // (internal/mills, within 1e-15 relative): one logarithm and a rational
 // function, no erfc or exponential, and no underflow of Q; nearer 0,
@@ -108,9 +119,9 @@ func stdNormalUpperZ(q float64) float64 {
 	if q >= 0.5 {
 		return 0
 	}
-	t := math.Sqrt(-2 * math.Log(q))
-	z := t - (2.515517+0.802853*t+0.010328*t*t)/(1+1.432788*t+0.189269*t*t+0.001308*t*t*t)
 	lq := math.Log(q)
+	t := math.Sqrt(-2 * lq)
+	z := t - (2.515517+0.802853*t+0.010328*t*t)/(1+1.432788*t+0.189269*t*t+0.001308*t*t*t)
 	const logSqrt2Pi = 0.91893853320467274178 // log √(2π) (common practice)
 	for i := 0; i < 6; i++ {
 		var lQ, r float64 // log Q(z) and Q(z)/φ(z)
@@ -125,9 +136,10 @@ func stdNormalUpperZ(q float64) float64 {
 			}
 			lQ, r = math.Log(Q), Q/phi
 		}
-		step := (lQ - lq) * r
+		f := lQ - lq
+		step := f * r / (1 + 0.5*f*(1-z*r))
 		z += step
-		if math.Abs(step) <= 1e-16*math.Max(1, z) {
+		if math.Abs(step) <= 1e-6*math.Max(1, z) {
 			break
 		}
 	}

@@ -62,7 +62,7 @@ func TestNormalQuantilesInvertTable(t *testing.T) {
 // evenly in log q), Survival(UpperQuantile(q)) = q within the conditioning
 // tolerance testref.NormalTailTol(z) plus z·2^-52 per unit of z's rounding
 // (Survival is checked against 1600-bit values in
-// TestNormalSurvivalTable): the quantile's Newton steps, on Mills' ratio
+// TestNormalSurvivalTable): the quantile's Halley steps, on Mills' ratio
 // beyond z = 0.663 and on erfc nearer 0, stop at the right place.
 func TestNormalQuantileRoundTrip(t *testing.T) {
 	n := dist.MustNormal(0, 1)

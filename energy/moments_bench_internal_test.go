@@ -6,6 +6,7 @@ import (
 
 	"github.com/stretchr/testify/require"
 
+	"github.com/joulelaw/joulelaw/internal/fexp"
 	"github.com/joulelaw/joulelaw/internal/testref"
 )
 
@@ -32,7 +33,7 @@ func BenchmarkTableMoments(b *testing.B) {
 		defer testref.ReportCPU(b)()
 		for b.Loop() {
 			hint := 0
-			componentQuad(tb, func(t float64) float64 { return math.Exp(n * tb.logSurvival(t, &hint)) }, lo, med, hi)
+			componentQuad(tb, func(t float64) float64 { return fexp.Exp(n * tb.logSurvival(t, &hint)) }, lo, med, hi)
 		}
 	})
 }

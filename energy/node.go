@@ -7,6 +7,7 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/fexp"
 	"github.com/joulelaw/joulelaw/internal/mills"
 )
 
@@ -792,7 +793,11 @@ func (n *node) floorRuleError(capLeft, mean, vv, floorE, h float64, p partOut, t
 // The nodes of a piece [mid − h, mid + h] come in pairs mid ± h·x_k, so
 // e^{σ u} and φ(u) are products of a piece's factors (e^{σ·mid}, φ(mid),
 // e^{∓mid·h·x_k}) and factors that depend on h alone (e^{±σ h x_k},
-// e^{−h²x_k²/2}), computed once for the pieces of one length.
+// e^{−h²x_k²/2}), computed once for the pieces of one length. Every
+// exponential is fexp.Exp's (within 2^-52 relative, the bound the standard
+// library documents for math.Exp): a node's e^{σ u} and φ(u), products
+// of three factors, are within a few units of 2^-53 of their values, far
+// inside floorRuleError's allowance for rounding (8·2^-52 of the side).
 //
 // With tab the rule is the tables' (tabGLNodes) instead of the node's.
 func (n *node) fixedPieces(pts []float64, floorE, c, sd, sf float64, alive, grad, tab bool) [4]float64 {
@@ -868,11 +873,11 @@ func (n *node) fixedPiecesShared(pts []float64, floorE, c, sd, sf float64, alive
 		var ex float64
 		switch {
 		case fs == nil:
-			ex = math.Exp(sf * end)
+			ex = fexp.Exp(sf * end)
 		case fs.endDone&(1<<ie) != 0:
 			ex = fs.ends[ie]
 		default:
-			ex = math.Exp(sf * end)
+			ex = fexp.Exp(sf * end)
 			fs.ends[ie], fs.endDone = ex, fs.endDone|1<<ie
 		}
 		y := sign * (floorE*ex + c) / sd
@@ -892,7 +897,7 @@ func (n *node) fixedPiecesShared(pts []float64, floorE, c, sd, sf float64, alive
 			}
 		}
 		if e2 > 0 {
-			q *= math.Exp(-e2 / 2)
+			q *= fexp.Exp(-e2 / 2)
 		}
 		bound[i] = q
 		order[i] = i
@@ -929,9 +934,9 @@ func (n *node) fixedPiecesShared(pts []float64, floorE, c, sd, sf float64, alive
 		f.h = h
 		for k := range half {
 			x := glx[k]
-			q := math.Exp(sf * h * x)
+			q := fexp.Exp(sf * h * x)
 			f.q[k], f.q[nn-1-k] = q, 1/q
-			cc := math.Exp(-0.5 * h * h * x * x)
+			cc := fexp.Exp(-0.5 * h * h * x * x)
 			f.cc[k], f.cc[nn-1-k] = cc, cc
 		}
 		return f
@@ -950,9 +955,9 @@ func (n *node) fixedPiecesShared(pts []float64, floorE, c, sd, sf float64, alive
 			phiU = fs.phiU[i]
 		} else {
 			f := factors(h)
-			em, pm := math.Exp(sf*mid), math.Exp(-0.5*mid*mid)*invSqrt2Pi
+			em, pm := fexp.Exp(sf*mid), fexp.Exp(-0.5*mid*mid)*invSqrt2Pi
 			for k := range half {
-				d := math.Exp(-mid * h * glx[k])
+				d := fexp.Exp(-mid * h * glx[k])
 				kk := nn - 1 - k
 				eu[k], eu[kk] = em*f.q[k], em*f.q[kk]
 				phiU[k], phiU[kk] = pm*f.cc[k]*d, pm*f.cc[k]/d
@@ -977,7 +982,7 @@ func (n *node) fixedPiecesShared(pts []float64, floorE, c, sd, sf float64, alive
 			ag := math.Abs(g)
 			gauss := 0.0 // φ(u)·φ(g), where |g| < 40 (0 where it underflows)
 			if ag < 40 && (grad || sg > 5 || (sg >= -8.5 && ag >= mills.SmallX)) {
-				gauss = phiU[k] * math.Exp(-0.5*g*g) * invSqrt2Pi
+				gauss = phiU[k] * fexp.Exp(-0.5*g*g) * invSqrt2Pi
 			}
 			switch {
 			case sg < -8.5:
@@ -1019,5 +1024,6 @@ func (n *node) fixedPiecesShared(pts []float64, floorE, c, sd, sf float64, alive
 // elsewhere; within 8e-15 relative, erfc's own error beyond).
 func normSurv(z float64) float64 { return mills.Upper(z) }
 
-// normPDF is the standard normal density.
-func normPDF(z float64) float64 { return math.Exp(-0.5*z*z) / math.Sqrt(2*math.Pi) }
+// normPDF is the standard normal density, e^{−z²/2}/√(2π) with fexp.Exp
+// (within 2^-52 relative of the exponential of the rounded −z²/2).
+func normPDF(z float64) float64 { return fexp.Exp(-0.5*z*z) / math.Sqrt(2*math.Pi) }

@@ -8,6 +8,7 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/fexp"
 	"github.com/joulelaw/joulelaw/internal/root"
 	"github.com/joulelaw/joulelaw/orderstat"
 )
@@ -1254,10 +1255,12 @@ func (s Site) seedFor(kind lawKind, g int, k int64) func(target float64) (t0, sl
 // quickFor returns the quick pieces of the moment quadratures of kind's
 // mixture's components (sharedMixture.quick) for a group's first failure
 // and the fleet's: each component's survival from the conditional
-// tables, Π_h S_h(t)^(n_h) as exp(Σ_h n_h·log S_h(t)) (logSurvival), and
-// for a group's first failure among n its 1e-15, 1/2 and 1 − 1e-15 points
-// from the table's own inverse (S(t)^n = 1 − p where S(t) = (1 − p)^(1/n));
-// nil for the other kinds.
+// tables, Π_h S_h(t)^(n_h) as exp(Σ_h n_h·log S_h(t)) (logSurvival; the
+// exponential fexp.Exp's, which adds at most 2^-52 relative, the standard
+// library's bound for math.Exp, to the sum's rounding moved through it,
+// about |Σ|·2^-53), and for a group's first failure among n its 1e-15,
+// 1/2 and 1 − 1e-15 points from the table's own inverse (S(t)^n = 1 − p
+// where S(t) = (1 − p)^(1/n)); nil for the other kinds.
 func (s Site) quickFor(kind lawKind, g int) func(i int) (surv func(float64) float64, lo, med, hi float64) {
 	if kind != kindFirst && kind != kindFleet {
 		return nil
@@ -1267,7 +1270,7 @@ func (s Site) quickFor(kind lawKind, g int) func(i int) (surv func(float64) floa
 		if kind == kindFirst {
 			tb, n := &env.laws[g], float64(s.counts[g])
 			hint := 0
-			surv := func(t float64) float64 { return math.Exp(n * tb.logSurvival(t, &hint)) }
+			surv := func(t float64) float64 { return fexp.Exp(n * tb.logSurvival(t, &hint)) }
 			lo := tb.Quantile(-math.Expm1(math.Log1p(-1e-15) / n))
 			med := tb.Quantile(-math.Expm1(math.Log(0.5) / n))
 			hi := tb.UpperQuantile(math.Exp(math.Log(1e-15) / n))
@@ -1279,7 +1282,7 @@ func (s Site) quickFor(kind lawKind, g int) func(i int) (surv func(float64) floa
 			for h := range s.names {
 				l += float64(s.counts[h]) * env.laws[h].logSurvival(t, &hints[h])
 			}
-			return math.Exp(l)
+			return fexp.Exp(l)
 		}
 		nan := math.NaN()
 		return surv, nan, nan, nan

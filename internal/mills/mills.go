@@ -23,7 +23,11 @@
 // MaxRelErr plus that oracle's own rounding.
 package mills
 
-import "math"
+import (
+	"math"
+
+	"github.com/joulelaw/joulelaw/internal/fexp"
+)
 
 // MaxRelErr bounds the relative error of Ratio on [0, 40], as measured by
 // the tests against their oracles (7.7e-16 at most: a few units in the
@@ -64,7 +68,9 @@ func ratioEdge(x float64) float64 {
 
 // UpperMaxRelErr bounds the relative error of Upper (measured by
 // TestUpperAgainstOracles, with room): the rounding of x² in φ's exponent
-// adds up to x²/2 units of 2^-53 to Ratio's.
+// adds up to x²/2 units of 2^-53 to Ratio's, and the exponential
+// (internal/fexp, within fexp.MaxRelErr = 2^-52, the standard library's
+// documented bound for math.Exp) and the two roundings of φ·R a few more.
 const UpperMaxRelErr = 8e-15
 
 // upperDirect is where Upper turns back to the standard library's erfc,
@@ -76,16 +82,17 @@ const upperDirect = 9.0
 // UpperMaxRelErr relative for |x| < 9, and within erfc's error beyond
 // (about 2·x²·2^-53 relative: the rounding of x/√2 and of erfc's own
 // exponent), as the standard library's erfc(x/√2)/2 is everywhere: for
-// SmallX <= |x| < 9 as φ(|x|)·R(|x|) (one exponential and Cody's ratio,
-// about half the cost of erfc), with Φ̄(x) = 1 − φ(x)·R(−x) for x <= −SmallX
-// (at least 1/2, so the subtraction loses nothing relative); elsewhere
-// erfc(x/√2)/2. NaN for NaN.
+// SmallX <= |x| < 9 as φ(|x|)·R(|x|) (one exponential, fexp.Exp, and
+// Cody's ratio, about half the cost of erfc or less), with
+// Φ̄(x) = 1 − φ(x)·R(−x) for x <= −SmallX (at least 1/2, so the
+// subtraction loses nothing relative); elsewhere erfc(x/√2)/2. NaN for
+// NaN.
 func Upper(x float64) float64 {
 	a := math.Abs(x)
 	if !(a >= SmallX && a < upperDirect) {
 		return 0.5 * math.Erfc(x/math.Sqrt2)
 	}
-	t := math.Exp(-0.5*a*a) / math.Sqrt(2*math.Pi) * Ratio(a)
+	t := fexp.Exp(-0.5*a*a) / math.Sqrt(2*math.Pi) * Ratio(a)
 	if x < 0 {
 		return 1 - t
 	}
@@ -94,12 +101,14 @@ func Upper(x float64) float64 {
 
 // UpperDensity returns Upper(x) and the standard normal density
 // φ(x) = e^{−x²/2}/√(2π) (per unit of x), the same bits as Upper and as
-// that expression, with one exponential where Upper takes φ·R (SmallX <=
-// |x| < 9) instead of two: for callers that need both.
+// that expression with fexp.Exp (within fexp.MaxRelErr of e^{−x²/2} plus
+// the rounding of x² and of the division), with one exponential where
+// Upper takes φ·R (SmallX <= |x| < 9) instead of two: for callers that
+// need both.
 func UpperDensity(x float64) (upper, density float64) {
 	a := math.Abs(x)
 	// (−0.5·a)·a is (−0.5·x)·x: negation is exact.
-	density = math.Exp(-0.5*a*a) / math.Sqrt(2*math.Pi)
+	density = fexp.Exp(-0.5*a*a) / math.Sqrt(2*math.Pi)
 	if !(a >= SmallX && a < upperDirect) {
 		return 0.5 * math.Erfc(x/math.Sqrt2), density
 	}

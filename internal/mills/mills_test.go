@@ -7,6 +7,7 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"github.com/joulelaw/joulelaw/internal/fexp"
 	"github.com/joulelaw/joulelaw/internal/testref"
 )
 
@@ -124,9 +125,12 @@ func TestAgainstPreciseTable(t *testing.T) {
 }
 
 // TestUpperDensity: UpperDensity gives Upper's bits and the density
-// e^{−x²/2}/√(2π) (the textbook formula, common practice) bit for bit
-// across both of Upper's branches and their edges, and so, through
-// Upper, the 1600-bit table's tail values within UpperMaxRelErr.
+// e^{−x²/2}/√(2π) (the textbook formula, common practice) bit for bit as
+// fexp.Exp(−x²/2)/√(2π), across both of Upper's branches and their edges;
+// against the formula with the standard library's math.Exp (under one
+// unit in the last place, as documented) within that unit, fexp's
+// MaxRelErr and the division's rounding; and so, through Upper, the
+// 1600-bit table's tail values within UpperMaxRelErr.
 func TestUpperDensity(t *testing.T) {
 	xs := []float64{0, SmallX, math.Nextafter(SmallX, 0), upperDirect, math.Nextafter(upperDirect, 0), 40, math.Inf(1)}
 	for i := -24000; i <= 24000; i += 7 {
@@ -135,7 +139,9 @@ func TestUpperDensity(t *testing.T) {
 	for _, x := range append(xs, negate(xs)...) {
 		u, d := UpperDensity(x)
 		assert.Equal(t, math.Float64bits(Upper(x)), math.Float64bits(u), "upper at x = %g", x)
-		assert.Equal(t, math.Float64bits(math.Exp(-0.5*x*x)/math.Sqrt(2*math.Pi)), math.Float64bits(d), "density at x = %g", x)
+		assert.Equal(t, math.Float64bits(fexp.Exp(-0.5*x*x)/math.Sqrt(2*math.Pi)), math.Float64bits(d), "density at x = %g", x)
+		std := math.Exp(-0.5*x*x) / math.Sqrt(2*math.Pi)
+		assert.InDelta(t, std, d, (0x1p-52+fexp.MaxRelErr+0x1p-52)*std, "density at x = %g against math.Exp", x)
 	}
 	for _, pt := range testref.NormalUpperTail {
 		if pt.Z >= upperDirect {

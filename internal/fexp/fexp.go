@@ -15,9 +15,9 @@
 // ln2/N split in two parts (the first with 29 significant bits, so that
 // k times it is exact for |k| < 2^24 and x minus it exact by Sterbenz's
 // lemma), 2^(j/N) from a table of its nearest float64 T_j and the
-// relative remainder t_j = (2^(j/N) − T_j)/T_j, e^r − 1 from its Taylor
-// polynomial of degree 6 (the first term left out, r⁷/7!, is below 3e-20
-// relative), and 2^(k div N) added to T_j's exponent field. The result
+// relative remainder t_j = (2^(j/N) − T_j)/T_j, e^r − 1 from a
+// polynomial of degree 5 (its Taylor polynomial of degree 6 economized,
+// within 2.4e-18), and 2^(k div N) added to T_j's exponent field. The result
 // is s + s·(t_j + p) with s = 2^(k div N)·T_j and p ≈ e^r − 1: the only
 // rounding of the size of a unit in the last place is the final
 // addition's; the others fall on a term below 0.0055 of the result.
@@ -28,7 +28,7 @@
 // overflow threshold (the doubling is exact, or overflows to +Inf where
 // e^x rounds past the largest float64), and e^x = 2^-1000·(2^1000·s)·(…)
 // down to the underflow threshold, rounded twice (to 53 bits, then to the
-// subnormal grid): within 0.76 of a unit of 2^-1074 there. NaN in gives
+// subnormal grid): within 0.77 of a unit of 2^-1074 there. NaN in gives
 // NaN out, e^+Inf = +Inf, e^-Inf = 0.
 package fexp
 
@@ -39,10 +39,10 @@ import "math"
 // last place of a result in [1, 2), the bound the standard library
 // documents for math.Exp. Measured against 320-bit values of e^x
 // (TestAgainstBigOracle, about 405,000 arguments over the whole range):
-// 1.11e-16 relative at most, 0.513 units in the last place (the analysis
-// in the package comment gives 0.5 plus about 0.01). Where e^x is
-// subnormal the error is within 0.76 of a unit of 2^-1074 (measured:
-// 0.748).
+// 1.13e-16 relative at most, 0.525 units in the last place (the analysis
+// in the package comment gives 0.5 for the final rounding plus about
+// 0.03). Where e^x is subnormal the error is within 0.77 of a unit of
+// 2^-1074 (measured: 0.756).
 const MaxRelErr = 0x1p-52
 
 // The fast path's range: below fastLo a scaled table entry could round in
@@ -65,12 +65,21 @@ const (
 	ln2HiN = 0x1.62e42ffp-7
 	ln2LoN = -0x1.718432a1b0e26p-41
 
-	// The Taylor coefficients 1/n! of e^r − 1 from r² on.
-	c2 = 1.0 / 2
+	// rMax = ln2/(2N) bounds |r| (to a few units in its last place).
+	rMax = math.Ln2 / (2 * tableSize)
+	// e^r − 1 ≈ r + c2·r² + c3·r³ + c4·r⁴ + c5·r⁵: the Taylor polynomial
+	// of degree 6 with its r⁶ term economized (Chebyshev's T6 on
+	// [−rMax, rMax]: r⁶ = rMax⁶·(T6(r/rMax) + 48(r/rMax)⁴ − 18(r/rMax)² +
+	// 1)/32, the T6 and constant terms left out), within polyErr of e^r − 1
+	// on |r| <= rMax (TestPolynomial; r⁷/7! adds below 3e-20).
+	c2 = 1.0/2 - 18.0/32*rMax*rMax*rMax*rMax/720
 	c3 = 1.0 / 6
-	c4 = 1.0 / 24
+	c4 = 1.0/24 + 48.0/32*rMax*rMax/720
 	c5 = 1.0 / 120
-	c6 = 1.0 / 720
+	// polyErr bounds |p(r) − (e^r − 1)| for |r| <= rMax: twice
+	// rMax⁶/(32·720) (the two terms left out) plus rMax⁷/5040, about
+	// 2.4e-18, 0.02 units in the last place of e^x.
+	polyErr = 2.4e-18
 )
 
 // Exp returns e^x (dimensionless, as its argument) within MaxRelErr
@@ -78,10 +87,12 @@ const (
 // it is subnormal; +Inf from x = 709.7827128933841 on, 0 from
 // −745.1332191019412 down, NaN for NaN.
 func Exp(x float64) float64 {
-	// Off the fast path (NaN fails both comparisons), adj lowers or raises
-	// the exponent field of s, undone at the end.
-	var adj uint64
-	if !(x > fastLo && x < fastHi) {
+	if !(x > fastLo && x < fastHi) { // NaN fails both
+		// Off the fast path, s is built with its exponent field one lower
+		// (x > 0; s/2 < 2^1024) or 1000 higher (x < 0; 2^1000·s >=
+		// 2^-77), undone after the sum. (Here rather than in a function of
+		// its own, so that Exp calls none: no stack frame to set up.)
+		var adj uint64
 		switch {
 		case x != x:
 			return x
@@ -90,30 +101,39 @@ func Exp(x float64) float64 {
 		case x < -746: // e^x rounds to 0 from −745.1332191019412 down
 			return 0
 		case x > 0:
-			adj = 1<<64 - 1<<52 // −2^52 modulo 2^64: s/2 < 2^1024
+			adj = 1<<64 - 1<<52 // −2^52 modulo 2^64
 		default:
-			adj = 1000 << 52 // 2^1000·s >= 2^-77
+			adj = 1000 << 52
 		}
+		j, top, r := reduce(x)
+		s := math.Float64frombits(tabScale[j] + top + adj)
+		y := s + s*(math.Float64frombits(tabTail[j])+expm1Poly(r))
+		if x > 0 {
+			return 2 * y // exact, or +Inf where e^x rounds past MaxFloat64
+		}
+		return y * 0x1p-1000 // rounded a second time, onto the subnormal grid
 	}
-	// e^x = s·(1 + q), s = 2^(k div N)·T_j, q = t_j + p: s built by adding
-	// k div N (modulo 2^12, in the exponent and sign bits) and adj to
-	// T_j's exponent field.
+	// e^x = s·(1 + q), s = 2^(k div N)·T_j, q = t_j + p(r): s built by
+	// adding k div N (modulo 2^12, in the exponent and sign bits) to T_j's
+	// exponent field, which stays within the normal range here.
+	j, top, r := reduce(x)
+	s := math.Float64frombits(tabScale[j] + top)
+	return s + s*(math.Float64frombits(tabTail[j])+expm1Poly(r))
+}
+
+// reduce returns j = k mod N, (k div N)·2^52 modulo 2^64 and
+// r = x − k·ln2/N for k = round(x·N/ln2), |x| < 2^44.
+func reduce(x float64) (j, top uint64, r float64) {
 	kd := x*invLn2N + roundShift
 	ki := math.Float64bits(kd) // k in the low bits (two's complement)
 	kd -= roundShift
-	r := x - kd*ln2HiN - kd*ln2LoN
-	j := ki % tableSize
-	s := math.Float64frombits(tabScale[j] + ki>>tableBits<<52 + adj)
+	return ki % tableSize, ki >> tableBits << 52, x - kd*ln2HiN - kd*ln2LoN
+}
+
+// expm1Poly returns p(r) ≈ e^r − 1 for |r| <= rMax, within polyErr.
+func expm1Poly(r float64) float64 {
 	r2 := r * r
-	p := r + r2*(c2+r*c3) + r2*r2*(c4+r*c5+r2*c6)
-	y := s + s*(math.Float64frombits(tabTail[j])+p)
-	switch {
-	case adj == 0:
-		return y
-	case x > 0:
-		return 2 * y // exact, or +Inf where e^x rounds past MaxFloat64
-	}
-	return y * 0x1p-1000 // rounded a second time, onto the subnormal grid
+	return r + r2*(c2+r*c3) + r2*r2*(c4+r*c5)
 }
 
 // tabScale[j] holds the bits of T_j, the float64 nearest 2^(j/N);

@@ -106,8 +106,8 @@ func Exp(x float64) float64 {
 			adj = 1000 << 52
 		}
 		j, top, r := reduce(x)
-		s := math.Float64frombits(tabScale[j] + top + adj)
-		y := s + s*(math.Float64frombits(tabTail[j])+expm1Poly(r))
+		s := math.Float64frombits(tab[j][0] + top + adj)
+		y := s + s*(math.Float64frombits(tab[j][1])+expm1Poly(r))
 		if x > 0 {
 			return 2 * y // exact, or +Inf where e^x rounds past MaxFloat64
 		}
@@ -117,8 +117,8 @@ func Exp(x float64) float64 {
 	// adding k div N (modulo 2^12, in the exponent and sign bits) to T_j's
 	// exponent field, which stays within the normal range here.
 	j, top, r := reduce(x)
-	s := math.Float64frombits(tabScale[j] + top)
-	return s + s*(math.Float64frombits(tabTail[j])+expm1Poly(r))
+	s := math.Float64frombits(tab[j][0] + top)
+	return s + s*(math.Float64frombits(tab[j][1])+expm1Poly(r))
 }
 
 // reduce returns j = k mod N, (k div N)·2^52 modulo 2^64 and
@@ -136,44 +136,75 @@ func expm1Poly(r float64) float64 {
 	return r + r2*(c2+r*c3) + r2*r2*(c4+r*c5)
 }
 
-// tabScale[j] holds the bits of T_j, the float64 nearest 2^(j/N);
-// tabTail[j] those of t_j = (2^(j/N) − T_j)/T_j rounded to float64. Both
-// computed once at 320 bits with math/big (2^(1/N) by six square roots of
-// 2, its powers by multiplication); TestTables recomputes every entry and
-// checks it bit for bit. The tables are read-only.
-var tabScale = [tableSize]uint64{
-	0x3ff0000000000000, 0x3ff02c9a3e778061, 0x3ff059b0d3158574, 0x3ff0874518759bc8, // 0–3
-	0x3ff0b5586cf9890f, 0x3ff0e3ec32d3d1a2, 0x3ff11301d0125b51, 0x3ff1429aaea92de0, // 4–7
-	0x3ff172b83c7d517b, 0x3ff1a35beb6fcb75, 0x3ff1d4873168b9aa, 0x3ff2063b88628cd6, // 8–11
-	0x3ff2387a6e756238, 0x3ff26b4565e27cdd, 0x3ff29e9df51fdee1, 0x3ff2d285a6e4030b, // 12–15
-	0x3ff306fe0a31b715, 0x3ff33c08b26416ff, 0x3ff371a7373aa9cb, 0x3ff3a7db34e59ff7, // 16–19
-	0x3ff3dea64c123422, 0x3ff4160a21f72e2a, 0x3ff44e086061892d, 0x3ff486a2b5c13cd0, // 20–23
-	0x3ff4bfdad5362a27, 0x3ff4f9b2769d2ca7, 0x3ff5342b569d4f82, 0x3ff56f4736b527da, // 24–27
-	0x3ff5ab07dd485429, 0x3ff5e76f15ad2148, 0x3ff6247eb03a5585, 0x3ff6623882552225, // 28–31
-	0x3ff6a09e667f3bcd, 0x3ff6dfb23c651a2f, 0x3ff71f75e8ec5f74, 0x3ff75feb564267c9, // 32–35
-	0x3ff7a11473eb0187, 0x3ff7e2f336cf4e62, 0x3ff82589994cce13, 0x3ff868d99b4492ed, // 36–39
-	0x3ff8ace5422aa0db, 0x3ff8f1ae99157736, 0x3ff93737b0cdc5e5, 0x3ff97d829fde4e50, // 40–43
-	0x3ff9c49182a3f090, 0x3ffa0c667b5de565, 0x3ffa5503b23e255d, 0x3ffa9e6b5579fdbf, // 44–47
-	0x3ffae89f995ad3ad, 0x3ffb33a2b84f15fb, 0x3ffb7f76f2fb5e47, 0x3ffbcc1e904bc1d2, // 48–51
-	0x3ffc199bdd85529c, 0x3ffc67f12e57d14b, 0x3ffcb720dcef9069, 0x3ffd072d4a07897c, // 52–55
-	0x3ffd5818dcfba487, 0x3ffda9e603db3285, 0x3ffdfc97337b9b5f, 0x3ffe502ee78b3ff6, // 56–59
-	0x3ffea4afa2a490da, 0x3ffefa1bee615a27, 0x3fff50765b6e4540, 0x3fffa7c1819e90d8, // 60–63
-}
-var tabTail = [tableSize]uint64{
-	0x0000000000000000, 0xbc7160139cd8dc5d, 0x3c8cd2523567f613, 0x3c60f74e61e6c861, // 0–3
-	0x3c979aa65d837b6d, 0x3c3ebe3d702f9cd1, 0xbc9556522a2fbd0e, 0xbc91c923b9d5f416, // 4–7
-	0xbc801b15eaa59348, 0x3c8b898c3f1353bf, 0x3c9aecf73e3a2f60, 0x3c8a6f4144a6c38d, // 8–11
-	0x3c968efde3a8a894, 0x3c80472b981fe7f2, 0x3c82f7e16d09ab31, 0x3c8b3782720c0ab4, // 12–15
-	0x3c834d754db0abb6, 0x3c8fdd395dd3f84a, 0xbc924aedcc4b5068, 0xbc71d1e83e9436d2, // 16–19
-	0x3c859f48a72a4c6d, 0xbc58a78f4817895b, 0x3c4363ed60c2ac11, 0x3c6ecce1daa10379, // 20–23
-	0x3c7690cebb7aafb0, 0xbc8f94340071a38e, 0xbc78dec6bd0f385f, 0x3c93350518fdd78e, // 24–27
-	0x3c9063e1e21c5409, 0x3c9432e62b64c035, 0xbc8c33c53bef4da8, 0xbc93cedd78565858, // 28–31
-	0xbc93b3efbf5e2228, 0xbc6367efb86da9ee, 0xbc781f647e5a3ecf, 0xbc8619321e55e68a, // 32–35
-	0xbc7b32dcb94da51d, 0x3c65ebe1abd66c55, 0xbc9369b6f13b3734, 0xbc94d450d872576e, // 36–39
-	0x3c8db72fc1f0eab4, 0x3c7bf68359f35f44, 0xbc5da9b88b6c1e29, 0xbc92434322f4f9aa, // 40–43
-	0x3c71affc2b91ce27, 0xbc87c50422622263, 0xbc91bbd1d3bcbb15, 0x3c8469846e735ab3, // 44–47
-	0x3c8c1a7792cb3387, 0xbc55c3d956dcaeba, 0xbc68d6f438ad9334, 0x3c74ffd70a5fddcd, // 48–51
-	0x3c736eae30af0cb3, 0x3c84e08fd10959ac, 0x3c676b2c6c921968, 0xbc8fad5d3ffffa6f, // 52–55
-	0x3c74a385a63d07a7, 0x3c8e5a50d5c192ac, 0xbc82d52107b43e1f, 0x3c74b604603a88d3, // 56–59
-	0xbc8ff7128fd391f0, 0x3c8ec3bc41aa2008, 0x3c8a64a931d185ee, 0x3c77893b4d91cd9d, // 60–63
+// tab[j] holds the bits of T_j, the float64 nearest 2^(j/N), and those of
+// t_j = (2^(j/N) − T_j)/T_j rounded to float64 (side by side: one cache
+// line holds what an evaluation reads of it). Both computed once at 320
+// bits with math/big (2^(1/N) by six square roots of 2, its powers by
+// multiplication); TestTables recomputes every entry and checks it bit for
+// bit. The table is read-only.
+var tab = [tableSize][2]uint64{
+	{0x3ff0000000000000, 0x0000000000000000}, // 0
+	{0x3ff02c9a3e778061, 0xbc7160139cd8dc5d}, // 1
+	{0x3ff059b0d3158574, 0x3c8cd2523567f613}, // 2
+	{0x3ff0874518759bc8, 0x3c60f74e61e6c861}, // 3
+	{0x3ff0b5586cf9890f, 0x3c979aa65d837b6d}, // 4
+	{0x3ff0e3ec32d3d1a2, 0x3c3ebe3d702f9cd1}, // 5
+	{0x3ff11301d0125b51, 0xbc9556522a2fbd0e}, // 6
+	{0x3ff1429aaea92de0, 0xbc91c923b9d5f416}, // 7
+	{0x3ff172b83c7d517b, 0xbc801b15eaa59348}, // 8
+	{0x3ff1a35beb6fcb75, 0x3c8b898c3f1353bf}, // 9
+	{0x3ff1d4873168b9aa, 0x3c9aecf73e3a2f60}, // 10
+	{0x3ff2063b88628cd6, 0x3c8a6f4144a6c38d}, // 11
+	{0x3ff2387a6e756238, 0x3c968efde3a8a894}, // 12
+	{0x3ff26b4565e27cdd, 0x3c80472b981fe7f2}, // 13
+	{0x3ff29e9df51fdee1, 0x3c82f7e16d09ab31}, // 14
+	{0x3ff2d285a6e4030b, 0x3c8b3782720c0ab4}, // 15
+	{0x3ff306fe0a31b715, 0x3c834d754db0abb6}, // 16
+	{0x3ff33c08b26416ff, 0x3c8fdd395dd3f84a}, // 17
+	{0x3ff371a7373aa9cb, 0xbc924aedcc4b5068}, // 18
+	{0x3ff3a7db34e59ff7, 0xbc71d1e83e9436d2}, // 19
+	{0x3ff3dea64c123422, 0x3c859f48a72a4c6d}, // 20
+	{0x3ff4160a21f72e2a, 0xbc58a78f4817895b}, // 21
+	{0x3ff44e086061892d, 0x3c4363ed60c2ac11}, // 22
+	{0x3ff486a2b5c13cd0, 0x3c6ecce1daa10379}, // 23
+	{0x3ff4bfdad5362a27, 0x3c7690cebb7aafb0}, // 24
+	{0x3ff4f9b2769d2ca7, 0xbc8f94340071a38e}, // 25
+	{0x3ff5342b569d4f82, 0xbc78dec6bd0f385f}, // 26
+	{0x3ff56f4736b527da, 0x3c93350518fdd78e}, // 27
+	{0x3ff5ab07dd485429, 0x3c9063e1e21c5409}, // 28
+	{0x3ff5e76f15ad2148, 0x3c9432e62b64c035}, // 29
+	{0x3ff6247eb03a5585, 0xbc8c33c53bef4da8}, // 30
+	{0x3ff6623882552225, 0xbc93cedd78565858}, // 31
+	{0x3ff6a09e667f3bcd, 0xbc93b3efbf5e2228}, // 32
+	{0x3ff6dfb23c651a2f, 0xbc6367efb86da9ee}, // 33
+	{0x3ff71f75e8ec5f74, 0xbc781f647e5a3ecf}, // 34
+	{0x3ff75feb564267c9, 0xbc8619321e55e68a}, // 35
+	{0x3ff7a11473eb0187, 0xbc7b32dcb94da51d}, // 36
+	{0x3ff7e2f336cf4e62, 0x3c65ebe1abd66c55}, // 37
+	{0x3ff82589994cce13, 0xbc9369b6f13b3734}, // 38
+	{0x3ff868d99b4492ed, 0xbc94d450d872576e}, // 39
+	{0x3ff8ace5422aa0db, 0x3c8db72fc1f0eab4}, // 40
+	{0x3ff8f1ae99157736, 0x3c7bf68359f35f44}, // 41
+	{0x3ff93737b0cdc5e5, 0xbc5da9b88b6c1e29}, // 42
+	{0x3ff97d829fde4e50, 0xbc92434322f4f9aa}, // 43
+	{0x3ff9c49182a3f090, 0x3c71affc2b91ce27}, // 44
+	{0x3ffa0c667b5de565, 0xbc87c50422622263}, // 45
+	{0x3ffa5503b23e255d, 0xbc91bbd1d3bcbb15}, // 46
+	{0x3ffa9e6b5579fdbf, 0x3c8469846e735ab3}, // 47
+	{0x3ffae89f995ad3ad, 0x3c8c1a7792cb3387}, // 48
+	{0x3ffb33a2b84f15fb, 0xbc55c3d956dcaeba}, // 49
+	{0x3ffb7f76f2fb5e47, 0xbc68d6f438ad9334}, // 50
+	{0x3ffbcc1e904bc1d2, 0x3c74ffd70a5fddcd}, // 51
+	{0x3ffc199bdd85529c, 0x3c736eae30af0cb3}, // 52
+	{0x3ffc67f12e57d14b, 0x3c84e08fd10959ac}, // 53
+	{0x3ffcb720dcef9069, 0x3c676b2c6c921968}, // 54
+	{0x3ffd072d4a07897c, 0xbc8fad5d3ffffa6f}, // 55
+	{0x3ffd5818dcfba487, 0x3c74a385a63d07a7}, // 56
+	{0x3ffda9e603db3285, 0x3c8e5a50d5c192ac}, // 57
+	{0x3ffdfc97337b9b5f, 0xbc82d52107b43e1f}, // 58
+	{0x3ffe502ee78b3ff6, 0x3c74b604603a88d3}, // 59
+	{0x3ffea4afa2a490da, 0xbc8ff7128fd391f0}, // 60
+	{0x3ffefa1bee615a27, 0x3c8ec3bc41aa2008}, // 61
+	{0x3fff50765b6e4540, 0x3c8a64a931d185ee}, // 62
+	{0x3fffa7c1819e90d8, 0x3c77893b4d91cd9d}, // 63
 }

@@ -63,7 +63,7 @@ func relErr(got float64, want *big.Float) float64 {
 	return f
 }
 
-// TestTables recomputes tabScale and tabTail: 2^(1/N) as six square roots
+// TestTables recomputes tab: 2^(1/N) as six square roots
 // of 2 at 320 bits, 2^(j/N) as its powers (63 products, each within
 // 2^-320 relative), T_j the nearest float64 (big.Float rounds to nearest
 // even) and t_j = (2^(j/N) − T_j)/T_j rounded to float64. Every entry
@@ -78,8 +78,8 @@ func TestTables(t *testing.T) {
 		hi, _ := pow.Float64()
 		tail := newBig().Sub(pow, newBig().SetFloat64(hi))
 		tl, _ := tail.Quo(tail, newBig().SetFloat64(hi)).Float64()
-		assert.Equalf(t, math.Float64bits(hi), tabScale[j], "T_%d", j)
-		assert.Equalf(t, math.Float64bits(tl), tabTail[j], "t_%d", j)
+		assert.Equalf(t, math.Float64bits(hi), tab[j][0], "T_%d", j)
+		assert.Equalf(t, math.Float64bits(tl), tab[j][1], "t_%d", j)
 		pow.Mul(pow, root)
 	}
 	// 2^(N/N) = 2 closes the loop: the powers drifted by less than 2^-300.

@@ -3,6 +3,7 @@ package energy
 import (
 	"fmt"
 	"math"
+	"slices"
 
 	"gonum.org/v1/gonum/integrate/quad"
 
@@ -241,6 +242,7 @@ func newNode(fn string, spec NodeSpec, env Environment) (*node, error) {
 	}
 
 	usableF := b.spec.UsableFraction
+	n.settings = make([]nodeSetting, 0, len(spec.Settings))
 	for i, s := range spec.Settings {
 		c := s.Cycle
 		st := nodeSetting{w: s.Weight, rate: 1 / c.period.Mean(), floorP: scale * c.floor, scale: scale, excess: c.excess}
@@ -360,12 +362,17 @@ const maxKinks = 2048
 // the node's energy balance, and so its lifetime law, has a kink. None
 // when there would be more than maxKinks.
 func (n *node) kinks(lo, hi float64) []float64 {
+	return n.appendKinks(nil, lo, hi)
+}
+
+// appendKinks appends kinks(lo, hi) to dst and returns the extended
+// slice: a caller's buffer, reused from table to table (tableScratch).
+func (n *node) appendKinks(dst []float64, lo, hi float64) []float64 {
 	if !(hi > lo) || (hi-lo)/Month > maxKinks {
-		return nil
+		return dst
 	}
-	// Counted first, then written into one allocation of that size
-	// (growing by appends cost the tables about a tenth of their
-	// allocations).
+	// Counted first, then written into room for that many (growing by
+	// appends cost the tables about a tenth of their allocations).
 	first := int(math.Floor(math.Max(lo, 0)/Month)) + 1
 	at := func(m int) (float64, bool) {
 		i, j := (m-1)%12, m%12
@@ -379,15 +386,15 @@ func (n *node) kinks(lo, hi float64) []float64 {
 		}
 	}
 	if count == 0 {
-		return nil
+		return dst
 	}
-	out := make([]float64, 0, count)
+	dst = slices.Grow(dst, count)
 	for m := first; float64(m)*Month < hi; m++ {
 		if x, ok := at(m); ok {
-			out = append(out, x)
+			dst = append(dst, x)
 		}
 	}
-	return out
+	return dst
 }
 
 // settingLife returns the lifetime of setting j's mean node from the mean

@@ -145,7 +145,7 @@ func probitGrid(probit func(float64) float64, lo, hi, zl, zh float64, kinks []fl
 		return ts, zs, kink
 	}
 	var d0, d1 []float64
-	ks, worst, evals := halveUntil(ks, tol, func(ks []knot) {
+	ks, worst, evals := halveUntil(ks, &halveBufs[knot]{}, tol, func(ks []knot) {
 		d0, d1 = pchipIntervals(unpack(ks))
 	}, func(a, b *knot) bool {
 		return b.t-a.t <= minWidth || (math.IsInf(a.z, 0) && a.z == b.z)
@@ -191,16 +191,19 @@ func firstGrid(lo, hi float64, kinks []float64) (ts []float64, kink []bool) {
 // interval is left alone where skip says so or when the knots would pass
 // tabMaxPoints; at most 40 passes. pass, if not nil, sees the knots at the
 // start of each pass. It returns the knots, the largest error within tol
-// measured and the number of splits.
-func halveUntil[K any](ks []K, tol float64, pass func([]K), skip func(a, b *K) bool, split func(i int, a, b *K) (K, float64)) ([]K, float64, int) {
+// measured and the number of splits. The passes write into buf (ks is
+// only read, and must not be one of its buffers); the knots returned are
+// buf's, until it is lent again.
+func halveUntil[K any](ks []K, buf *halveBufs[K], tol float64, pass func([]K), skip func(a, b *K) bool, split func(i int, a, b *K) (K, float64)) ([]K, float64, int) {
 	worst, evals := 0.0, 0
-	done := make([]bool, len(ks)-1)
-	// A pass writes its knots into the buffer of the pass before last
-	// (spare, once halveUntil made it), sized for the intervals still to
-	// be checked: ks is read while nk is written, never the same memory.
-	var spare []K
-	var spareD []bool
-	owned := false // whether ks is a buffer of halveUntil's own
+	// The first pass's marks in buf.done[1], which it does not write: a
+	// pass writes its knots and marks into the buffers the pass before
+	// last wrote (w), sized for the intervals still to be checked, and
+	// reads the others, never the same memory.
+	done := growBuf(buf.done[1], len(ks)-1)[:len(ks)-1]
+	clear(done)
+	buf.done[1] = done
+	w := 0
 	for range 40 {
 		if pass != nil {
 			pass(ks)
@@ -212,11 +215,9 @@ func halveUntil[K any](ks []K, tol float64, pass func([]K), skip func(a, b *K) b
 			}
 		}
 		need := len(ks) + open
-		if cap(spare) < need {
-			spare, spareD = make([]K, 0, need), make([]bool, 0, need)
-		}
-		nk := append(spare[:0], ks[0])
-		nd := spareD[:0]
+		buf.ks[w], buf.done[w] = growBuf(buf.ks[w], need), growBuf(buf.done[w], need)
+		nk := append(buf.ks[w][:0], ks[0])
+		nd := buf.done[w][:0]
 		refined := false
 		for i := 0; i+1 < len(ks); i++ {
 			a, b := &ks[i], &ks[i+1]
@@ -237,16 +238,31 @@ func halveUntil[K any](ks []K, tol float64, pass func([]K), skip func(a, b *K) b
 			nk = append(nk, m, *b)
 			nd = append(nd, ok, ok)
 		}
-		spare, spareD = nil, nil
-		if owned {
-			spare, spareD = ks, done
-		}
-		ks, done, owned = nk, nd, true
+		ks, done = nk, nd
+		w = 1 - w
 		if !refined {
 			break
 		}
 	}
 	return ks, worst, evals
+}
+
+// halveBufs is halveUntil's working memory: the two buffers of knots its
+// passes write by turns, and their intervals' marks (whether each is
+// checked). One owner (a table's build, or the call that builds tables in
+// turn: tableScratch) lends it to one halveUntil at a time.
+type halveBufs[K any] struct {
+	ks   [2][]K
+	done [2][]bool
+}
+
+// growBuf returns s emptied, with room for at least n elements: s's own
+// memory where it has the room, else new memory for exactly n.
+func growBuf[E any](s []E, n int) []E {
+	if cap(s) < n {
+		return make([]E, 0, n)
+	}
+	return s[:0]
 }
 
 // tabulate builds the table of l.
@@ -281,7 +297,10 @@ func tabulate(l NodeLifetime) tabulated {
 			// beyond 0.01, by which zOf moves its reading toward 0.
 			slack float64
 		}
-		tables := n.settingTables(l)
+		// The working memory of the settings' tables and the mixture's,
+		// built in turn.
+		sc := &tableScratch{}
+		tables := n.settingTables(sc, l)
 		for j := range tables {
 			if tables[j].calOK {
 				if calParts == nil {
@@ -485,7 +504,7 @@ func tabulate(l NodeLifetime) tabulated {
 			}
 			loK, _ := at(lo)
 			hiK, _ := at(hi)
-			tb.probitTable = n.clockGrid(loK, hiK, tabMixTol, tabSetInitial, nil, at, nil)
+			tb.probitTable = n.clockGrid(sc, loK, hiK, tabMixTol, tabSetInitial, nil, at, nil, false)
 			tb.evals += 2
 		} else {
 			tb.probitTable = hermiteGrid(mix, lo, hi, n.kinks(lo, hi), minWidth, tabZTol)
@@ -817,7 +836,7 @@ func hermiteGrid(f func(float64) (z, dl, dr float64), lo, hi float64, kinks []fl
 	slopes := func(a, b *knot) (d0, d1 float64) {
 		return monoSlopes(b.t-a.t, a.z, b.z, a.dr, b.dl)
 	}
-	ks, worst, evals := halveUntil(ks, tol, nil, func(a, b *knot) bool {
+	ks, worst, evals := halveUntil(ks, &halveBufs[knot]{}, tol, nil, func(a, b *knot) bool {
 		return b.t-a.t <= minWidth || (math.IsInf(a.z, 0) && a.z == b.z)
 	}, func(_ int, a, b *knot) (knot, float64) {
 		m := knot{t: a.t + (b.t-a.t)/2}

@@ -143,7 +143,7 @@ func hermiteD(t0, t1, z0, z1, d0, d1, x float64) (z, dz float64) {
 // and false when the law is below tail up to the calendar limit (no table
 // needed).
 func settingTable(l NodeLifetime, j int, tol, tail float64) (probitTable, bool) {
-	pt, ok, _ := settingTableWith(l, j, tol, tail, nil, nil)
+	pt, ok, _ := settingTableWith(&tableScratch{}, l, j, tol, tail, nil, nil)
 	return pt, ok
 }
 
@@ -163,8 +163,9 @@ type settingEnds struct {
 // is built (ends holds what was found; the table is empty and ok true);
 // otherwise its loose, when not nil, gives each interval's factor on the
 // tolerance (gradGrid; see tabLooseMax), and a table whose whole span
-// gets a factor above 1 starts from tabLooseInitial knots.
-func settingTableWith(l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, plan func(lo, hi gradKnot) (drop bool, loose func(a, b *gradKnot) float64)) (pt probitTable, ok bool, ends *settingEnds) {
+// gets a factor above 1 starts from tabLooseInitial knots. sc is the
+// build's working memory.
+func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, plan func(lo, hi gradKnot) (drop bool, loose func(a, b *gradKnot) float64)) (pt probitTable, ok bool, ends *settingEnds) {
 	n := l.n
 	std := dist.MustNormal(0, 1)
 	zLo, zHi := std.Quantile(tail), std.UpperQuantile(tail)
@@ -210,19 +211,19 @@ func settingTableWith(l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, 
 	// clocks' yearly mean rates (the gradient times (1, D(Year)/Year,
 	// Φ(Year)/Year)) rather than the month's: a step spans months to
 	// years, over which the seasons' rates average out.
-	var seen []gradKnot
+	sc.seen = sc.seen[:0]
 	if cal0 != nil {
-		seen = append(seen, *cal0)
+		sc.seen = append(sc.seen, *cal0)
 	}
 	evaluated := 0 // the knots seen that were evaluated here
 	at := func(t float64) gradKnot {
-		for _, k := range seen {
+		for _, k := range sc.seen {
 			if k.t == t {
 				return k
 			}
 		}
 		k := n.gradKnotAt(j, t)
-		seen = append(seen, k)
+		sc.seen = append(sc.seen, k)
 		evaluated++
 		return k
 	}
@@ -273,7 +274,7 @@ func settingTableWith(l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, 
 			initial = tabLooseInitial
 		}
 	}
-	pt = n.gradGrid(j, loK, hiK, tol, initial, seen, loose)
+	pt = n.gradGrid(sc, j, loK, hiK, tol, initial, sc.seen, loose)
 	pt.evals += evaluated
 	return pt, true, nil
 }
@@ -305,21 +306,38 @@ func settingTableWith(l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, 
 // loose, when not nil, gives an interval's factor on the tolerance (at
 // least 1; see tabLooseMax): an interval is accepted where its error is
 // within tol times it.
-func (n *node) gradGrid(j int, lo, hi gradKnot, tol float64, initial int, known []gradKnot, loose func(a, b *gradKnot) float64) probitTable {
-	return n.clockGrid(lo, hi, tol, initial, known, func(t float64) (gradKnot, float64) {
+//
+// sc is the build's working memory (known may be its seen).
+func (n *node) gradGrid(sc *tableScratch, j int, lo, hi gradKnot, tol float64, initial int, known []gradKnot, loose func(a, b *gradKnot) float64) probitTable {
+	return n.clockGrid(sc, lo, hi, tol, initial, known, func(t float64) (gradKnot, float64) {
 		k := n.gradKnotAt(j, t)
 		return k, n.slope(k, true)
-	}, loose)
+	}, loose, true)
+}
+
+// tableScratch is the working memory of the tables one call builds in
+// turn (tabulate: a law's settings' tables, then its mixture's): the
+// refinement's buffers (halveUntil), the first grid's knots, the knots
+// the ends' searches evaluated (settingTableWith) and the month
+// boundaries (appendKinks). It is owned by that call and lent to one
+// table's build at a time: never shared between goroutines, never kept
+// by a table, so that every table holds memory of its own.
+type tableScratch struct {
+	halve halveBufs[gradKnot]
+	first []gradKnot
+	seen  []gradKnot
+	kinks []float64
 }
 
 // clockGrid is gradGrid's construction for any probit that is smooth in
 // the clocks: at returns the knot (the probit and its gradient against
 // the clocks) at a time and the probit's exact slope right of it (the
-// guard's). The table keeps its knots (gk). loose is gradGrid's (nil for
-// none); the table's worst is then the largest error measured on the
-// intervals accepted at tol itself.
-func (n *node) clockGrid(lo, hi gradKnot, tol float64, initial int, known []gradKnot, at func(t float64) (gradKnot, float64), loose func(a, b *gradKnot) float64) probitTable {
-	ks := []gradKnot{lo}
+// guard's). The table keeps its knots (gk) where keep says so (gradAt
+// reads them). loose is gradGrid's (nil for none); the table's worst is
+// then the largest error measured on the intervals accepted at tol
+// itself. sc is the build's working memory (known may be its seen).
+func (n *node) clockGrid(sc *tableScratch, lo, hi gradKnot, tol float64, initial int, known []gradKnot, at func(t float64) (gradKnot, float64), loose func(a, b *gradKnot) float64, keep bool) probitTable {
+	ks := append(growBuf(sc.first, initial), lo)
 	evals := 0
 	step := (hi.t - lo.t) / float64(initial-1)
 	for i := 1; i < initial-1; i++ {
@@ -340,9 +358,10 @@ func (n *node) clockGrid(lo, hi gradKnot, tol float64, initial int, known []grad
 		evals++
 	}
 	ks = append(ks, hi)
+	sc.first = ks
 	finite := func(k *gradKnot) bool { return !math.IsInf(k.z, 0) && !math.IsNaN(k.z) }
 	tight := 0.0 // the largest error accepted at tol itself
-	ks, worst, splits := halveUntil(ks, tol, nil, func(a, b *gradKnot) bool {
+	ks, worst, splits := halveUntil(ks, &sc.halve, tol, nil, func(a, b *gradKnot) bool {
 		return b.t-a.t <= 1e-9*b.t || (!finite(a) && a.z == b.z)
 	}, func(_ int, a, b *gradKnot) (gradKnot, float64) {
 		m, sm := at(a.t + (b.t-a.t)/2)
@@ -367,12 +386,21 @@ func (n *node) clockGrid(lo, hi gradKnot, tol float64, initial int, known []grad
 		worst = tight
 	}
 	evals += splits
-	// Store: points at the knots and the month boundaries between them.
-	kinks := n.kinks(lo.t, hi.t)
-	pt := probitTable{kinks: len(kinks), worst: worst, evals: evals, gk: ks}
+	// Store: points at the knots and the month boundaries between them,
+	// the four slices in one allocation (at most np points, np − 1
+	// pieces); the knots, where kept, copied out of sc.
+	sc.kinks = n.appendKinks(sc.kinks[:0], lo.t, hi.t)
+	kinks := sc.kinks
+	pt := probitTable{kinks: len(kinks), worst: worst, evals: evals}
+	if keep {
+		pt.gk = make([]gradKnot, len(ks))
+		copy(pt.gk, ks)
+	}
 	np := len(ks) + len(kinks)
-	pt.t, pt.z = append(make([]float64, 0, np), ks[0].t), append(make([]float64, 0, np), ks[0].z)
-	pt.d0, pt.d1 = make([]float64, 0, np), make([]float64, 0, np)
+	cells := make([]float64, 4*np)
+	pt.t = append(cells[:0:np], ks[0].t)
+	pt.z = append(cells[np:np:2*np], ks[0].z)
+	pt.d0, pt.d1 = cells[2*np:2*np:3*np], cells[3*np:3*np:4*np]
 	for i := 0; i+1 < len(ks); i++ {
 		a, b := &ks[i], &ks[i+1]
 		ok := finite(a) && finite(b)
@@ -596,7 +624,9 @@ type settingOut struct {
 // settingTables tabulates the settings of l's node (settingTableWith),
 // leaving out those that cannot matter (see tabDropAbs) where the node
 // has a calendar limit and a per-node spread.
-func (n *node) settingTables(l NodeLifetime) []settingOut {
+//
+// sc is the call's working memory, lent to each table's build in turn.
+func (n *node) settingTables(sc *tableScratch, l NodeLifetime) []settingOut {
 	out := make([]settingOut, len(n.settings))
 	order := make([]int, len(n.settings))
 	for j := range order {
@@ -630,7 +660,7 @@ func (n *node) settingTables(l NodeLifetime) []settingOut {
 	}
 	for _, j := range order {
 		if cals == nil {
-			out[j].pt, out[j].ok = settingTable(l, j, tabSetZTol, tabSetTail)
+			out[j].pt, out[j].ok, _ = settingTableWith(sc, l, j, tabSetZTol, tabSetTail, nil, nil)
 			continue
 		}
 		w := n.settings[j].w
@@ -682,7 +712,7 @@ func (n *node) settingTables(l NodeLifetime) []settingOut {
 			}
 			return false, loose
 		}
-		o.pt, o.ok, o.ends = settingTableWith(l, j, tabSetZTol, tabSetTail, &cals[j], plan)
+		o.pt, o.ok, o.ends = settingTableWith(sc, l, j, tabSetZTol, tabSetTail, &cals[j], plan)
 		o.rel = rel
 		if o.ends != nil || !o.ok {
 			o.looseRel, o.looseAbs, o.slack = 0, 0, 0

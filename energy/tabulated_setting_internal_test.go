@@ -107,7 +107,7 @@ func TestSettingTablesAgainstDirect(t *testing.T) {
 				// measured worst; 1.1 of the tolerance at most, at λ = 3).
 				for _, loose := range []float64{3, 10, tabLooseMax} {
 					tol := loose * tabSetZTol
-					lt := l.n.gradGrid(j, st.gk[0], st.gk[len(st.gk)-1], tol, tabLooseInitial, nil, nil)
+					lt := l.n.gradGrid(&tableScratch{}, j, st.gk[0], st.gk[len(st.gk)-1], tol, tabLooseInitial, nil, nil)
 					lw := 0.0
 					for _, x := range tableTestTimes(lt.t[0], lt.t[len(lt.t)-1], 2000) {
 						a, d, _ := l.n.settingAt(j, x)
@@ -186,7 +186,7 @@ func TestPartGradientAgainstAdaptive(t *testing.T) {
 // (looseRel, looseAbs) within errAt.
 func TestTabulatedDroppedSettingAgainstDirect(t *testing.T) {
 	l := threeSettingLaw(t)
-	out := l.n.settingTables(l)
+	out := l.n.settingTables(&tableScratch{}, l)
 	require.Len(t, out, 3)
 	assert.Nil(t, out[0].ends, "the short-lived setting is tabulated")
 	require.NotNil(t, out[1].ends, "the long-lived setting is left out")
@@ -250,7 +250,7 @@ func TestCalendarSeedSameAsEnergyAt(t *testing.T) {
 	wantA, wantD, _ := fresh.energyAt(fresh.n.calendar)
 	l, err := NewNodeLifetime(node, env)
 	require.NoError(t, err)
-	_ = l.n.settingTables(l)
+	_ = l.n.settingTables(&tableScratch{}, l)
 	l.seedCalendar(-1, -1) // ignored: seeded already
 	a, d := l.atCalendar()
 	assert.Equal(t, wantA, a, "P(energy left) at the calendar limit")
@@ -264,7 +264,7 @@ func TestCalendarSeedSameAsEnergyAt(t *testing.T) {
 // every one of them is read).
 func TestProfileAtCalendarReadsSettingTables(t *testing.T) {
 	l := threeSettingLaw(t)
-	out := l.n.settingTables(l)
+	out := l.n.settingTables(&tableScratch{}, l)
 	cal := make([]calPart, len(out))
 	for j := range out {
 		require.True(t, out[j].calOK, "setting %d evaluated at the calendar limit", j)

@@ -100,6 +100,11 @@ func (l NodeLifetime) energyAtProbits(t float64, z []float64) (alive, dead, errE
 // as negligible.
 const accSkipZ = 8.5
 
+// accStackItems is how many settings accuracyAtZKnown keeps its per-time
+// work for on the stack (the demo's nodes have 14; more take one
+// allocation a call).
+const accStackItems = 16
+
 // accuracyAt probes the law at the times ts and compares, setting by
 // setting, the normal stand-in for the per-cycle sum with a three-node
 // Gaussian rule built from its first five cumulants; the largest
@@ -185,7 +190,13 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 		rule                   momentRule
 		shift, least, zTab, zb float64
 	}
-	items := make([]item, 0, len(n.settings))
+	// Room on the stack for accStackItems settings, an allocation of
+	// their count beyond.
+	var room [accStackItems]item
+	items := room[:0]
+	if len(n.settings) > len(room) {
+		items = make([]item, 0, len(n.settings))
+	}
 	var fs floorShare // the law's floor pieces, shared with its moment rule's nodes
 	worst, rel, passed := 0.0, 0.0, 0
 	for _, t := range ts {

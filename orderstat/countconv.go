@@ -78,12 +78,17 @@ func convRel(g int, terms, w float64) float64 {
 // only on the terms' probabilities at counts up to j, so nothing is lost by
 // cutting the terms at top. Products that underflow are dropped, an
 // absolute error below (top+1)·len(ts)·runCut in each value. It returns
-// nil where a term has no probability above runCut on [0, top].
-func lowCount(ts []binom, top float64) (pmf []float64, rel float64) {
+// nil where a term has no probability above runCut on [0, top]. dst is
+// its working memory where it has the room (the result is then in it),
+// else one allocation.
+func lowCount(ts []binom, top float64, dst []float64) (pmf []float64, rel float64) {
 	size := int(top) + 1
-	// one allocation: the running sum, the next one, and the terms' runs
-	// (at most size values each)
-	buf := make([]float64, 3*size)
+	// one buffer: the running sum, the next one, and the terms' runs (at
+	// most size values each)
+	buf := dst[:cap(dst)]
+	if len(buf) < 3*size {
+		buf = make([]float64, 3*size)
+	}
 	acc, next := buf[:size:size], buf[size:2*size:2*size]
 	acc[0] = 1
 	accTop := 0 // last index of acc that may be non-zero
@@ -143,6 +148,9 @@ func (cm countModel) splitConv(m float64) (le, gt, rel float64, ok bool) {
 	}
 	var pmf []float64
 	var termRel, below, above float64
+	// lowCount's working memory for counts up to 127 on the stack: pmf is
+	// read here only, before the next pass writes it again.
+	var room [3 * 128]float64
 	for pass := 0; pass < 2; pass++ {
 		// Cost in multiply-adds against the transform's (see pmfAll).
 		convCost := 0.0
@@ -152,7 +160,7 @@ func (cm countModel) splitConv(m float64) (le, gt, rel float64, ok bool) {
 		if convCost > 150*float64(len(ts))*(fft/2+1) {
 			return 0, 0, 0, false
 		}
-		pmf, termRel = lowCount(ts, top)
+		pmf, termRel = lowCount(ts, top, room[:])
 		if pmf == nil {
 			return 0, 0, 0, false
 		}

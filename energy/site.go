@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/internal/workers"
 	"github.com/joulelaw/joulelaw/orderstat"
 )
 
@@ -258,10 +259,12 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 				own = append(own, i)
 			}
 		}
-		_ = forEachOnTwo(len(own), func(i int) error {
-			out[own[i]].tb = tabulate(out[own[i]].l)
+		// Each worker's tables' working memory serves every law it
+		// builds in turn (tabulateWith).
+		_ = workers.RunEach(len(own), 2, func() *tableScratch { return &tableScratch{} }, func(sc *tableScratch, i int) error {
+			out[own[i]].tb = tabulateWith(sc, out[own[i]].l)
 			return nil
-		})
+		}, nil)
 		for i, k := range todo {
 			if j := same[i]; j != i {
 				out[i].tb = out[j].tb

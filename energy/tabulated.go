@@ -265,8 +265,29 @@ func growBuf[E any](s []E, n int) []E {
 	return s[:0]
 }
 
+// mixSet is one setting as a law's mixture reads it (tabulateWith).
+type mixSet struct {
+	w            float64
+	pt           probitTable
+	cutLo, cutHi float64 // before cutLo the table reads below −tabCut, after cutHi above tabCut
+	// A setting left out (tabDropAbs): its probit's upper
+	// bounds, zLo before tLo and zCal from there to the calendar
+	// limit.
+	dropped        bool
+	tLo, zLo, zCal float64
+	// slack: a loose table's (tabLooseMax) largest probit error
+	// beyond 0.01, by which zOf moves its reading toward 0.
+	slack float64
+}
+
 // tabulate builds the table of l.
-func tabulate(l NodeLifetime) tabulated {
+func tabulate(l NodeLifetime) tabulated { return tabulateWith(&tableScratch{}, l) }
+
+// tabulateWith is tabulate with sc as the working memory of the tables it
+// builds: reset first, so that a caller may lend the same to one law
+// after another (never two at once); nothing in the result refers to it.
+func tabulateWith(sc *tableScratch, l NodeLifetime) tabulated {
+	sc.reset()
 	n := l.n
 	tb := tabulated{src: l, cal: n.calendar}
 	std := dist.MustNormal(0, 1)
@@ -284,22 +305,6 @@ func tabulate(l NodeLifetime) tabulated {
 	}
 	{
 		// Each setting's own table, then the mixture's from them.
-		type set struct {
-			w            float64
-			pt           probitTable
-			cutLo, cutHi float64 // before cutLo the table reads below −tabCut, after cutHi above tabCut
-			// A setting left out (tabDropAbs): its probit's upper
-			// bounds, zLo before tLo and zCal from there to the calendar
-			// limit.
-			dropped        bool
-			tLo, zLo, zCal float64
-			// slack: a loose table's (tabLooseMax) largest probit error
-			// beyond 0.01, by which zOf moves its reading toward 0.
-			slack float64
-		}
-		// The working memory of the settings' tables and the mixture's,
-		// built in turn.
-		sc := &tableScratch{}
 		tables := n.settingTables(sc, l)
 		for j := range tables {
 			if tables[j].calOK {
@@ -309,7 +314,8 @@ func tabulate(l NodeLifetime) tabulated {
 				calParts[j] = calPart{p: tables[j].cal, ok: true}
 			}
 		}
-		sets := make([]set, 0, len(n.settings))
+		sets := growBuf(sc.sets, len(n.settings))
+		sc.sets = sets
 		guessLo, guessHi = math.Inf(1), 0
 		var dropSurvW float64 // the dropped settings' weight times their survival to the calendar limit
 		for j := range n.settings {
@@ -324,7 +330,7 @@ func tabulate(l NodeLifetime) tabulated {
 				tb.dropped++
 				tb.dropRel += d.rel
 				dropSurvW += w * normSurv(d.ends.hi.z)
-				sets = append(sets, set{w: w, cutLo: math.Inf(1), cutHi: math.Inf(1),
+				sets = append(sets, mixSet{w: w, cutLo: math.Inf(1), cutHi: math.Inf(1),
 					dropped: true, tLo: d.ends.lo.t, zLo: d.ends.lo.z, zCal: d.ends.hi.z})
 				continue
 			}
@@ -332,7 +338,7 @@ func tabulate(l NodeLifetime) tabulated {
 				// The setting's law is below tabSetTail up to the
 				// calendar limit: it counts as alive throughout.
 				tb.setBeyond += w * tabSetTail
-				sets = append(sets, set{w: w, cutLo: math.Inf(1), cutHi: math.Inf(1)})
+				sets = append(sets, mixSet{w: w, cutLo: math.Inf(1), cutHi: math.Inf(1)})
 				continue
 			}
 			tb.setPoints += len(st.t)
@@ -355,7 +361,7 @@ func tabulate(l NodeLifetime) tabulated {
 			}
 			tb.setBeyond += w * (beyond + normSurv(tabCut))
 			guessLo, guessHi = math.Min(guessLo, st.t[0]), math.Max(guessHi, st.t[len(st.t)-1])
-			se := set{w: w, pt: st, cutLo: math.Inf(-1), cutHi: math.Inf(1), slack: math.Max(0, tables[j].slack)}
+			se := mixSet{w: w, pt: st, cutLo: math.Inf(-1), cutHi: math.Inf(1), slack: math.Max(0, tables[j].slack)}
 			if d := st.d0[0]; z0 <= -tabCut {
 				se.cutLo = st.t[0]
 			} else if d > 0 {
@@ -407,7 +413,9 @@ func tabulate(l NodeLifetime) tabulated {
 		// (gradAt, the gradient with which each reads between its knots):
 		// the mixture of probits smooth in the clocks is smooth in them
 		// too, and is tabulated as they are (clockGrid).
-		hints, ghints := make([]int, len(sets)), make([]int, len(sets))
+		sc.hints = growBuf(sc.hints, 2*len(sets))[:2*len(sets)]
+		clear(sc.hints)
+		hints, ghints := sc.hints[:len(sets)], sc.hints[len(sets):]
 		mixAt := func(t float64, grad bool) (z, dl, dr float64, g [3]float64) {
 			var dead, alive, fl, fr float64
 			var gs [3]float64
@@ -504,7 +512,7 @@ func tabulate(l NodeLifetime) tabulated {
 			}
 			loK, _ := at(lo)
 			hiK, _ := at(hi)
-			tb.probitTable = n.clockGrid(sc, loK, hiK, tabMixTol, tabSetInitial, nil, at, nil, false)
+			tb.probitTable = n.clockGrid(sc, loK, hiK, tabMixTol, tabSetInitial, nil, at, nil, true)
 			tb.evals += 2
 		} else {
 			tb.probitTable = hermiteGrid(mix, lo, hi, n.kinks(lo, hi), minWidth, tabZTol)

@@ -312,31 +312,78 @@ func (n *node) gradGrid(sc *tableScratch, j int, lo, hi gradKnot, tol float64, i
 	return n.clockGrid(sc, lo, hi, tol, initial, known, func(t float64) (gradKnot, float64) {
 		k := n.gradKnotAt(j, t)
 		return k, n.slope(k, true)
-	}, loose, true)
+	}, loose, false)
 }
 
-// tableScratch is the working memory of the tables one call builds in
-// turn (tabulate: a law's settings' tables, then its mixture's): the
+// tableScratch is the working memory of the tables a law's build makes
+// in turn (tabulateWith: its settings' tables, then its mixture's): the
 // refinement's buffers (halveUntil), the first grid's knots, the knots
-// the ends' searches evaluated (settingTableWith) and the month
-// boundaries (appendKinks). It is owned by that call and lent to one
-// table's build at a time: never shared between goroutines, never kept
-// by a table, so that every table holds memory of its own.
+// the ends' searches evaluated (settingTableWith), the month boundaries
+// (appendKinks), the memory of the settings' tables built by clockGrid
+// (cells, knots) and of their results, which live only while the law is
+// built. One owner (a worker, a call) lends it to one build at a time,
+// never to two goroutines at once; reset frees it all for the next
+// build, and no result refers to it.
 type tableScratch struct {
 	halve halveBufs[gradKnot]
 	first []gradKnot
 	seen  []gradKnot
 	kinks []float64
+	cells slab[float64]
+	knots slab[gradKnot]
+
+	// The settings' results (settingTables), as the mixture reads them
+	// (tabulateWith), and the interval each last read (its hints).
+	outs  []settingOut
+	sets  []mixSet
+	hints []int
 }
+
+// reset frees everything sc handed out, for the next build.
+func (sc *tableScratch) reset() {
+	sc.cells.reset()
+	sc.knots.reset()
+}
+
+// slab hands out memory from chunks that it keeps: reset makes them all
+// free again, so that the memory taken before is handed out anew.
+type slab[E any] struct {
+	chunks [][]E
+	i, off int // the chunk being handed out and its first free element
+}
+
+// take returns n elements (their values left from before; length and
+// capacity n), from the free chunks in turn, a new chunk (twice the last,
+// at least n and 256 elements) where none has the room.
+func (s *slab[E]) take(n int) []E {
+	for ; s.i < len(s.chunks); s.i, s.off = s.i+1, 0 {
+		if c := s.chunks[s.i]; s.off+n <= len(c) {
+			s.off += n
+			return c[s.off-n : s.off : s.off]
+		}
+	}
+	size := max(n, 256)
+	if k := len(s.chunks); k > 0 {
+		size = max(size, 2*len(s.chunks[k-1]))
+	}
+	s.chunks = append(s.chunks, make([]E, size))
+	s.off = n
+	return s.chunks[s.i][:n:n]
+}
+
+// reset makes every chunk free.
+func (s *slab[E]) reset() { s.i, s.off = 0, 0 }
 
 // clockGrid is gradGrid's construction for any probit that is smooth in
 // the clocks: at returns the knot (the probit and its gradient against
 // the clocks) at a time and the probit's exact slope right of it (the
-// guard's). The table keeps its knots (gk) where keep says so (gradAt
-// reads them). loose is gradGrid's (nil for none); the table's worst is
-// then the largest error measured on the intervals accepted at tol
-// itself. sc is the build's working memory (known may be its seen).
-func (n *node) clockGrid(sc *tableScratch, lo, hi gradKnot, tol float64, initial int, known []gradKnot, at func(t float64) (gradKnot, float64), loose func(a, b *gradKnot) float64, keep bool) probitTable {
+// guard's). loose is gradGrid's (nil for none); the table's worst is then
+// the largest error measured on the intervals accepted at tol itself. sc
+// is the build's working memory (known may be its seen). A setting's
+// table (own false) lives in sc's memory, until its reset, and keeps its
+// knots (gk: gradAt reads them); a mixture's (own) has memory of its own
+// and no knots (they are not read).
+func (n *node) clockGrid(sc *tableScratch, lo, hi gradKnot, tol float64, initial int, known []gradKnot, at func(t float64) (gradKnot, float64), loose func(a, b *gradKnot) float64, own bool) probitTable {
 	ks := append(growBuf(sc.first, initial), lo)
 	evals := 0
 	step := (hi.t - lo.t) / float64(initial-1)
@@ -387,17 +434,20 @@ func (n *node) clockGrid(sc *tableScratch, lo, hi gradKnot, tol float64, initial
 	}
 	evals += splits
 	// Store: points at the knots and the month boundaries between them,
-	// the four slices in one allocation (at most np points, np − 1
-	// pieces); the knots, where kept, copied out of sc.
+	// the four slices in one piece of memory (at most np points, np − 1
+	// pieces); a setting's knots copied out of the refinement's buffers.
 	sc.kinks = n.appendKinks(sc.kinks[:0], lo.t, hi.t)
 	kinks := sc.kinks
 	pt := probitTable{kinks: len(kinks), worst: worst, evals: evals}
-	if keep {
-		pt.gk = make([]gradKnot, len(ks))
+	np := len(ks) + len(kinks)
+	var cells []float64
+	if own {
+		cells = make([]float64, 4*np)
+	} else {
+		cells = sc.cells.take(4 * np)
+		pt.gk = sc.knots.take(len(ks))
 		copy(pt.gk, ks)
 	}
-	np := len(ks) + len(kinks)
-	cells := make([]float64, 4*np)
 	pt.t = append(cells[:0:np], ks[0].t)
 	pt.z = append(cells[np:np:2*np], ks[0].z)
 	pt.d0, pt.d1 = cells[2*np:2*np:3*np], cells[3*np:3*np:4*np]
@@ -627,7 +677,9 @@ type settingOut struct {
 //
 // sc is the call's working memory, lent to each table's build in turn.
 func (n *node) settingTables(sc *tableScratch, l NodeLifetime) []settingOut {
-	out := make([]settingOut, len(n.settings))
+	out := growBuf(sc.outs, len(n.settings))[:len(n.settings)]
+	clear(out)
+	sc.outs = out
 	order := make([]int, len(n.settings))
 	for j := range order {
 		order[j] = j

@@ -18,6 +18,16 @@ import (
 // should write only its own slot, so that the outcome does not depend on
 // the schedule.
 func Run(n, workers int, work func(i int) error, after func(i, finished int)) error {
+	return RunEach(n, workers, func() struct{} { return struct{}{} }, func(_ struct{}, i int) error { return work(i) }, after)
+}
+
+// RunEach is Run with a value of each worker's own: fresh makes one per
+// worker goroutine, and work(v, i) gets the value of the worker that runs
+// item i, which no other item has at the same time: working memory that
+// one item leaves to the next. Which worker runs which item depends on
+// the schedule, so the outcome must not depend on what v holds when work
+// starts.
+func RunEach[V any](n, workers int, fresh func() V, work func(v V, i int) error, after func(i, finished int)) error {
 	if workers < 1 {
 		workers = 1
 	}
@@ -30,8 +40,9 @@ func Run(n, workers int, work func(i int) error, after func(i, finished int)) er
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
+			v := fresh()
 			for i := range next {
-				errs[i] = work(i)
+				errs[i] = work(v, i)
 				mu.Lock()
 				finished++
 				if after != nil {

@@ -3,6 +3,7 @@ package workers
 import (
 	"errors"
 	"math"
+	"sync/atomic"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -43,5 +44,32 @@ func TestRunJoinsErrors(t *testing.T) {
 	assert.Equal(t, "three\nseven", err.Error(), "in index order")
 	for i, s := range seen {
 		assert.True(t, s, "item %d", i)
+	}
+}
+
+// RunEach gives each worker a value of its own (fresh once per worker, at
+// most min(workers, n) of them), never to two items at once, and runs
+// every item once (the contract of a worker's own working memory: common
+// practice).
+func TestRunEachOwnValues(t *testing.T) {
+	type own struct{ busy atomic.Bool }
+	for _, tc := range []struct{ n, workers int }{{0, 2}, {1, 2}, {10, 1}, {10, 2}, {50, 3}, {5, 100}} {
+		var made atomic.Int32
+		seen := make([]int, tc.n)
+		clash := make([]bool, tc.n)
+		err := RunEach(tc.n, tc.workers, func() *own { made.Add(1); return &own{} }, func(v *own, i int) error {
+			if !v.busy.CompareAndSwap(false, true) {
+				clash[i] = true
+			}
+			seen[i]++
+			v.busy.Store(false)
+			return nil
+		}, nil)
+		require.NoError(t, err, "n %d, workers %d", tc.n, tc.workers)
+		assert.LessOrEqual(t, int(made.Load()), max(1, min(tc.workers, tc.n)), "n %d, workers %d: values made", tc.n, tc.workers)
+		for i := range seen {
+			assert.Equal(t, 1, seen[i], "n %d, workers %d, item %d", tc.n, tc.workers, i)
+			assert.False(t, clash[i], "n %d, workers %d, item %d: value in use", tc.n, tc.workers, i)
+		}
 	}
 }

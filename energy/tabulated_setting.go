@@ -270,8 +270,13 @@ func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64
 		if drop {
 			return probitTable{}, true, &settingEnds{lo: loK, hi: hiK, evals: evaluated}
 		}
-		if loose != nil && loose(&loK, &hiK) > 1 {
-			initial = tabLooseInitial
+		if loose != nil {
+			// The ends lent to loose from sc: pointers to loK and hiK
+			// would move them to the heap.
+			sc.ends = [2]gradKnot{loK, hiK}
+			if loose(&sc.ends[0], &sc.ends[1]) > 1 {
+				initial = tabLooseInitial
+			}
 		}
 	}
 	pt = n.gradGrid(sc, j, loK, hiK, tol, initial, sc.seen, loose)
@@ -328,12 +333,16 @@ type tableScratch struct {
 	halve halveBufs[gradKnot]
 	first []gradKnot
 	seen  []gradKnot
+	ends  [2]gradKnot // a table's ends, lent to its loose
 	kinks []float64
 	cells slab[float64]
 	knots slab[gradKnot]
 
-	// The settings' results (settingTables), as the mixture reads them
+	// The settings' order and their model at the calendar limit
+	// (settingTables), their results, as the mixture reads them
 	// (tabulateWith), and the interval each last read (its hints).
+	order []int
+	cals  []gradKnot
 	outs  []settingOut
 	sets  []mixSet
 	hints []int
@@ -680,13 +689,15 @@ func (n *node) settingTables(sc *tableScratch, l NodeLifetime) []settingOut {
 	out := growBuf(sc.outs, len(n.settings))[:len(n.settings)]
 	clear(out)
 	sc.outs = out
-	order := make([]int, len(n.settings))
+	order := growBuf(sc.order, len(n.settings))[:len(n.settings)]
+	sc.order = order
 	for j := range order {
 		order[j] = j
 	}
 	var cals []gradKnot // the model at the calendar limit, per setting
 	if !math.IsInf(n.calendar, 1) && !n.spread.IsZero() {
-		cals = make([]gradKnot, len(n.settings))
+		cals = growBuf(sc.cals, len(n.settings))[:len(n.settings)]
+		sc.cals = cals
 		// The law at the calendar limit from the same evaluations, summed
 		// as energyAt sums (the same bits: settingProbitAt, by the node's
 		// own floor rule), for EnergyBinds and the table's atom
@@ -710,60 +721,66 @@ func (n *node) settingTables(sc *tableScratch, l NodeLifetime) []settingOut {
 		}
 		sort.SliceStable(order, func(a, b int) bool { return cals[order[a]].z > cals[order[b]].z })
 	}
+	// The setting being tabulated, for the closures below (made once):
+	// its weight w, its result o and its bound relative to the mixture
+	// where it is left out (rel).
+	var (
+		w   float64
+		o   *settingOut
+		rel float64
+	)
+	// before is the CDF at t of the settings tabulated so far, each read
+	// from its table lowered by its largest probit error: a lower bound on
+	// the mixture's from t on.
+	before := func(t float64) float64 {
+		f := 0.0
+		for i := range out {
+			pt := &out[i].pt
+			if pt.t == nil || t < pt.t[0] {
+				continue // none yet, or read as 0 before its table
+			}
+			f += n.settings[i].w * normSurv(-(pt.zAt(math.Min(t, pt.t[len(pt.t)-1])) - out[i].errZ))
+		}
+		return f
+	}
+	N := float64(len(n.settings))
+	loose := func(a, b *gradKnot) float64 {
+		if !(b.z <= tabLooseZ) {
+			return 1
+		}
+		P := normSurv(-b.z) * (1 + 1e-9)
+		e := math.Max(w*P/before(a.t), P/(1-P))
+		phi := normPDF(b.z + tabLooseShift)
+		lam := math.Min(tabLooseMax, math.Min(tabLooseShare/(1.5*N*e), tabLooseShare*0.4/(1.5*N*w*phi)))
+		if !(lam > 1) {
+			return 1
+		}
+		// Every interval offered, accepted or not: the largest are at
+		// least those of the intervals kept.
+		d := 1.5 * tabSetZTol * lam
+		o.looseRel = math.Max(o.looseRel, d*e)
+		o.looseAbs = math.Max(o.looseAbs, w*phi*d)
+		o.slack = math.Max(o.slack, d-0.01)
+		o.errZ = math.Max(o.errZ, d)
+		return lam
+	}
+	plan := func(lo, hi gradKnot) (bool, func(a, b *gradKnot) float64) {
+		if hi.t == n.calendar {
+			p := droppedMass(w, hi.z)
+			rel = p / before(lo.t)
+			if p <= tabDropAbs && rel <= tabDropRel {
+				return true, nil
+			}
+		}
+		return false, loose
+	}
 	for _, j := range order {
 		if cals == nil {
 			out[j].pt, out[j].ok, _ = settingTableWith(sc, l, j, tabSetZTol, tabSetTail, nil, nil)
 			continue
 		}
-		w := n.settings[j].w
-		o := &out[j]
+		w, o, rel = n.settings[j].w, &out[j], 0
 		o.errZ = 1.5 * tabSetZTol
-		// before is the CDF at t of the settings tabulated so far, each
-		// read from its table lowered by its largest probit error: a
-		// lower bound on the mixture's from t on.
-		before := func(t float64) float64 {
-			f := 0.0
-			for i := range out {
-				pt := &out[i].pt
-				if pt.t == nil || t < pt.t[0] {
-					continue // none yet, or read as 0 before its table
-				}
-				f += n.settings[i].w * normSurv(-(pt.zAt(math.Min(t, pt.t[len(pt.t)-1])) - out[i].errZ))
-			}
-			return f
-		}
-		N := float64(len(n.settings))
-		loose := func(a, b *gradKnot) float64 {
-			if !(b.z <= tabLooseZ) {
-				return 1
-			}
-			P := normSurv(-b.z) * (1 + 1e-9)
-			e := math.Max(w*P/before(a.t), P/(1-P))
-			phi := normPDF(b.z + tabLooseShift)
-			lam := math.Min(tabLooseMax, math.Min(tabLooseShare/(1.5*N*e), tabLooseShare*0.4/(1.5*N*w*phi)))
-			if !(lam > 1) {
-				return 1
-			}
-			// Every interval offered, accepted or not: the largest are
-			// at least those of the intervals kept.
-			d := 1.5 * tabSetZTol * lam
-			o.looseRel = math.Max(o.looseRel, d*e)
-			o.looseAbs = math.Max(o.looseAbs, w*phi*d)
-			o.slack = math.Max(o.slack, d-0.01)
-			o.errZ = math.Max(o.errZ, d)
-			return lam
-		}
-		var rel float64
-		plan := func(lo, hi gradKnot) (bool, func(a, b *gradKnot) float64) {
-			if hi.t == n.calendar {
-				p := droppedMass(w, hi.z)
-				rel = p / before(lo.t)
-				if p <= tabDropAbs && rel <= tabDropRel {
-					return true, nil
-				}
-			}
-			return false, loose
-		}
 		o.pt, o.ok, o.ends = settingTableWith(sc, l, j, tabSetZTol, tabSetTail, &cals[j], plan)
 		o.rel = rel
 		if o.ends != nil || !o.ok {

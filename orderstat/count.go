@@ -25,6 +25,9 @@ type countModel struct {
 // the law is below n·1e-290.
 const tinyProb = 1e-290
 
+// newCountModel returns the count over the terms ts: those with 0 < p < 1
+// kept (in memory of their own, sized once for all of ts), the others in
+// shift or left out.
 func newCountModel(ts []binom) countModel {
 	cm := countModel{}
 	for _, t := range ts {
@@ -34,6 +37,9 @@ func newCountModel(ts []binom) countModel {
 			cm.shift += t.n
 			cm.mean += t.n
 		default:
+			if cm.terms == nil {
+				cm.terms = make([]binom, 0, len(ts))
+			}
 			cm.terms = append(cm.terms, t)
 			cm.size += t.n
 			cm.mean += t.n * t.p

@@ -148,9 +148,9 @@ func (cm countModel) splitConv(m float64) (le, gt, rel float64, ok bool) {
 	}
 	var pmf []float64
 	var termRel, below, above float64
-	// lowCount's working memory for counts up to 127 on the stack: pmf is
+	// lowCount's working memory for counts up to 255 on the stack: pmf is
 	// read here only, before the next pass writes it again.
-	var room [3 * 128]float64
+	var room [3 * 256]float64
 	for pass := 0; pass < 2; pass++ {
 		// Cost in multiply-adds against the transform's (see pmfAll).
 		convCost := 0.0

@@ -2,6 +2,7 @@ package orderstat
 
 import (
 	"math"
+	"slices"
 
 	"github.com/joulelaw/joulelaw/internal/lattice"
 )
@@ -25,11 +26,16 @@ type countModel struct {
 // the law is below n·1e-290.
 const tinyProb = 1e-290
 
-// newCountModel returns the count over the terms ts: those with 0 < p < 1
-// kept (in memory of their own, sized once for all of ts), the others in
-// shift or left out.
-func newCountModel(ts []binom) countModel {
+// newCountModel returns the count over the terms ts (left as they are):
+// those with 0 < p < 1 kept, in memory of their own, the others in shift
+// or left out.
+func newCountModel(ts []binom) countModel { return takeCountModel(slices.Clone(ts)) }
+
+// takeCountModel is newCountModel taking ts over: the terms kept are
+// filtered into its memory, which the count then holds (nil where none).
+func takeCountModel(ts []binom) countModel {
 	cm := countModel{}
+	kept := ts[:0]
 	for _, t := range ts {
 		switch {
 		case t.n == 0 || t.p <= tinyProb:
@@ -37,14 +43,14 @@ func newCountModel(ts []binom) countModel {
 			cm.shift += t.n
 			cm.mean += t.n
 		default:
-			if cm.terms == nil {
-				cm.terms = make([]binom, 0, len(ts))
-			}
-			cm.terms = append(cm.terms, t)
+			kept = append(kept, t)
 			cm.size += t.n
 			cm.mean += t.n * t.p
 			cm.variance += t.n * t.p * t.q
 		}
+	}
+	if len(kept) > 0 {
+		cm.terms = kept
 	}
 	return cm
 }

@@ -155,7 +155,7 @@ func mergeTerms(ts []binom) []binom {
 }
 
 func newCount(fn string, terms []binom, total int64) (Count, error) {
-	cm := newCountModel(mergeTerms(terms))
+	cm := takeCountModel(mergeTerms(terms))
 	lo, pmf, method, rel, err := cm.pmfAll()
 	if err != nil {
 		return Count{}, rangeErr(fn, err.Error())

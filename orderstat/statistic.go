@@ -309,7 +309,7 @@ func (c *core) countModel(x float64, left bool) countModel {
 		}
 		terms = append(terms, binom{n: g.nf, p: p.f, q: p.s})
 	}
-	return newCountModel(terms)
+	return takeCountModel(terms)
 }
 
 // untiltedEnd returns a bracket [lo, hi] (within [a, b], a and b finite,

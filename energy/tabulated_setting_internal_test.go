@@ -300,3 +300,48 @@ func threeSettingLaw(t *testing.T) NodeLifetime {
 	require.NoError(t, err)
 	return l
 }
+
+// A law's table is the same bits whether its working memory is fresh or
+// was lent before to other laws' builds, in either order (as a site's
+// workers lend theirs: tabulateWith): the rule that a result does not
+// depend on what ran before (common practice for deterministic
+// numerics); the oracle is tabulate with memory of its own.
+func TestTabulateScratchReuse(t *testing.T) {
+	var laws []NodeLifetime
+	forEachTestLaw(t, func(_ int, _ Conditions, l NodeLifetime) { laws = append(laws, l) })
+	require.NotEmpty(t, laws)
+	fresh := make([]tabulated, len(laws))
+	for i, l := range laws {
+		fresh[i] = tabulate(l)
+	}
+	bits := func(xs []float64) []uint64 {
+		out := make([]uint64, len(xs))
+		for i, x := range xs {
+			out[i] = math.Float64bits(x)
+		}
+		return out
+	}
+	for _, tc := range []struct {
+		name    string
+		reverse bool
+	}{{"in order", false}, {"reversed", true}} {
+		sc := &tableScratch{}
+		for k := range laws {
+			i := k
+			if tc.reverse {
+				i = len(laws) - 1 - k
+			}
+			got, want := tabulateWith(sc, laws[i]), fresh[i]
+			msg := fmt.Sprintf("%s, law %d", tc.name, i)
+			require.NotEmpty(t, want.t, msg)
+			assert.Equal(t, bits(want.t), bits(got.t), msg)
+			assert.Equal(t, bits(want.z), bits(got.z), msg)
+			assert.Equal(t, bits(want.d0), bits(got.d0), msg)
+			assert.Equal(t, bits(want.d1), bits(got.d1), msg)
+			assert.Equal(t, bits(want.profE), bits(got.profE), msg)
+			assert.Equal(t, bits([]float64{want.worst, want.atom, want.acc.CDFAbs, want.acc.SurvivalRel}), bits([]float64{got.worst, got.atom, got.acc.CDFAbs, got.acc.SurvivalRel}), msg)
+			assert.Equal(t, want.acc.Method, got.acc.Method, msg)
+			assert.Equal(t, want.evals, got.evals, msg)
+		}
+	}
+}

@@ -9,6 +9,7 @@ import (
 
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/internal/fexp"
+	"github.com/joulelaw/joulelaw/internal/mills"
 	"github.com/joulelaw/joulelaw/internal/root"
 	"github.com/joulelaw/joulelaw/orderstat"
 )
@@ -428,6 +429,10 @@ const (
 // the count of kinds that need them; dead marks groups past their calendar
 // limit.
 //
+// The first failures' survivals are taken in the log domain directly
+// (mills.LogUpper: log1p(−Φ(z)) for the probits below −0.66 that dominate,
+// never the log of 1 − Φ(z) rounded; within 1e-14 relative for z > −9).
+//
 // rep, when not nil, names for each group the first whose probit is the
 // group's (rowReps): a repeated group's function values are copied from
 // it (probs holds them), the same bits in the same order of summation.
@@ -436,14 +441,14 @@ func (s *Site) condAt(kind lawKind, g int, k int64, zs []float64, probs []float6
 	case kindNode:
 		return normSurv(-zs[g])
 	case kindFirst:
-		return -math.Expm1(float64(s.counts[g]) * math.Log(normSurv(zs[g])))
+		return -math.Expm1(float64(s.counts[g]) * mills.LogUpper(zs[g]))
 	case kindFleet:
 		l := 0.0
 		for h, z := range zs {
 			if rep != nil && rep[h] != h {
 				probs[h] = probs[rep[h]]
 			} else {
-				probs[h] = math.Log(normSurv(z))
+				probs[h] = mills.LogUpper(z)
 			}
 			l += float64(s.counts[h]) * probs[h]
 		}

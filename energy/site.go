@@ -92,6 +92,9 @@ type Site struct {
 	// law's.
 	slope  []slopeBound
 	slope1 slopeBound
+	// sure[g] is the probit from which a first failure among group g's
+	// nodes is certain to double precision (firstSure).
+	sure []float64
 	// twin[g] is the first group whose conditional tables are group g's
 	// at every node of the rule and whose count is g's (g itself when no
 	// earlier group's are): such groups' laws are the same law, their
@@ -165,8 +168,10 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 		s.counts = append(s.counts, g.Count)
 		if j := slices.Index(s.counts, g.Count); j < i {
 			s.slope = append(s.slope, s.slope[j]) // the same count: the same bounds
+			s.sure = append(s.sure, s.sure[j])
 		} else {
 			s.slope = append(s.slope, newSlopeBound(g.Count))
+			s.sure = append(s.sure, firstSure(g.Count))
 		}
 	}
 	s.slope1 = newSlopeBound(1)

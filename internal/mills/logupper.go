@@ -27,9 +27,9 @@ const logSqrt2Pi = 0.91893853320467274178
 //
 // Within LogUpperMaxRelErr relative for x > −9; below −9, where
 // |log Φ̄(x)| < 1.2e-19, within Upper's error there (erfc's, about
-// 2·x²·2^-53 relative), and −0 where Φ(x) underflows (x < −38.5, the true
-// value below 1e-323 in magnitude). NaN for NaN. A pure function: safe
-// for concurrent use.
+// 2·x²·2^-53 relative), and −0 where Φ(x) underflows (x below about
+// −38.4754, the true value under 5e-324 in magnitude). NaN for NaN. A pure
+// function: safe for concurrent use.
 func LogUpper(x float64) float64 {
 	switch {
 	case x >= SmallX:

@@ -507,11 +507,14 @@ func firstSure(n int64) float64 {
 // the rule's nodes, Z[g·E + e] for the environments e, for the groups with
 // want[g] (every group when want is nil).
 func (s *Site) nodeZ(t float64, want []bool) []float64 {
-	return s.nodeZInto(nil, t, want)
+	return s.nodeZInto(nil, nil, t, want)
 }
 
-// nodeZInto is nodeZ into dst's array where it is large enough.
-func (s *Site) nodeZInto(dst []float64, t float64, want []bool) []float64 {
+// nodeZInto is nodeZ into dst's array where it is large enough, each
+// table looked up from its interval in hint (hint[g·E + e], kept for the
+// next call: a root search's times close in on one point) where hint is
+// not nil; the same values either way.
+func (s *Site) nodeZInto(dst []float64, hint []int, t float64, want []bool) []float64 {
 	E := len(s.envs)
 	Z := grown(dst, len(s.names)*E)
 	for g := range s.names {
@@ -523,7 +526,11 @@ func (s *Site) nodeZInto(dst []float64, t float64, want []bool) []float64 {
 			continue
 		}
 		for e := range s.envs {
-			Z[g*E+e] = s.probitAt(&s.envs[e].laws[g], t)
+			if hint != nil {
+				Z[g*E+e] = s.probitNear(&s.envs[e].laws[g], t, &hint[g*E+e])
+			} else {
+				Z[g*E+e] = s.probitAt(&s.envs[e].laws[g], t)
+			}
 		}
 	}
 	return Z
@@ -621,7 +628,17 @@ type ruleScratch struct {
 	rep          []int     // rowReps
 	y0, y1, bnd  []float64 // interpBound
 	z            []float64 // nodeZ within probeTimes' root search
+	hint         []int     // and its tables' intervals (nodeZInto)
 	want         []bool
+}
+
+// hints returns sc.hint with length n, made (no interval yet: 0) on the
+// first call and kept from call to call.
+func (sc *ruleScratch) hints(n int) []int {
+	if len(sc.hint) != n {
+		sc.hint = make([]int, n)
+	}
+	return sc.hint
 }
 
 // grown returns b with length n, its values zeroed, reusing its array
@@ -766,13 +783,20 @@ func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64,
 // probitAt is the probit of a conditional node law's CDF at t (+Inf from
 // its calendar limit on).
 func (s *Site) probitAt(tb *tabulated, t float64) float64 {
+	hint := 0 // no interval: a search
+	return s.probitNear(tb, t, &hint)
+}
+
+// probitNear is probitAt, the table looked up from the interval *hint
+// first (probitTable.zAtNear): the same value.
+func (s *Site) probitNear(tb *tabulated, t float64, hint *int) float64 {
 	switch {
 	case t >= tb.cal:
 		return math.Inf(1)
 	case t <= 0:
 		return math.Inf(-1)
 	}
-	return tb.zAt(t)
+	return tb.zAtNear(t, hint)
 }
 
 // probeError is the rule's estimated error for a law at one probe time:
@@ -1141,7 +1165,7 @@ func (s *Site) probeTimesWith(sc *ruleScratch, kind lawKind, g int, k int64) []f
 		want[g] = true
 	}
 	cdf := func(t float64) float64 {
-		sc.z = s.nodeZInto(sc.z, t, want)
+		sc.z = s.nodeZInto(sc.z, sc.hints(len(s.names)*len(s.envs)), t, want)
 		return s.mixZs(sc, sc.z, kind, g, k, [2]int{modeNodes, modeNodes})[0]
 	}
 	// The level's time by the library's root finder on the probit of the
@@ -1257,7 +1281,7 @@ func (s Site) seedFor(kind lawKind, g int, k int64) func(target float64) (t0, sl
 				}
 				return std.UpperQuantile(sf)
 			}
-			sc.z = s.nodeZInto(sc.z, t, want)
+			sc.z = s.nodeZInto(sc.z, sc.hints(len(s.names)*len(s.envs)), t, want)
 			return std.Quantile(s.mixZs(sc, sc.z, kind, g, k, [2]int{modeNodes, modeNodes})[0])
 		}
 		f := func(t float64) float64 { return probit(t) - target }

@@ -3,6 +3,8 @@ package energy
 import (
 	"fmt"
 	"math"
+
+	"github.com/joulelaw/joulelaw/internal/mills"
 )
 
 // DevicePosterior is one device's posterior at a time "now": the model's
@@ -49,14 +51,10 @@ const minResolvedNodes = 64
 // precision: Φ̄(8.3) < 5.2e-17.
 const aliveSure = 8.3
 
-// logNormSurv returns log Φ̄(z), with the asymptotic series where Φ̄
-// underflows (z > 37).
-func logNormSurv(z float64) float64 {
-	if z < 37 {
-		return math.Log(normSurv(z))
-	}
-	return -0.5*z*z - math.Log(z*math.Sqrt(2*math.Pi)) + math.Log1p(-1/(z*z))
-}
+// logNormSurv returns log Φ̄(z), computed directly (mills.LogUpper: no
+// underflow above, no log of 1 − Φ rounded below; within 1e-14 relative
+// for z > −9).
+func logNormSurv(z float64) float64 { return mills.LogUpper(z) }
 
 // logBin returns log P(lo <= V + ε < hi) for ε ~ N(0, σ²).
 func logBin(v, lo, hi, sigma float64) float64 {

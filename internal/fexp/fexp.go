@@ -38,8 +38,9 @@ import "math"
 // e^x a normal float64 (x in [−708.39, 709.78]): 2^-52, one unit in the
 // last place of a result in [1, 2), the bound the standard library
 // documents for math.Exp. Measured against 320-bit values of e^x
-// (TestAgainstBigOracle, about 405,000 arguments over the whole range):
-// 1.13e-16 relative at most, 0.525 units in the last place (the analysis
+// (TestAgainstBigOracle, about 135,000 arguments over the whole range;
+// 405,000 when the bound was measured): 1.13e-16 relative at most, 0.525
+// units in the last place (the analysis
 // in the package comment gives 0.5 for the final rounding plus about
 // 0.03). Where e^x is subnormal the error is within 0.77 of a unit of
 // 2^-1074 (measured: 0.756).

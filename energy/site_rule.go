@@ -643,9 +643,9 @@ func (sc *ruleScratch) hints(n int) []int {
 
 // grown returns b with length n, its values zeroed, reusing its array
 // where it is large enough.
-func grown(b []float64, n int) []float64 {
+func grown[E any](b []E, n int) []E {
 	if cap(b) < n {
-		return make([]float64, n)
+		return make([]E, n)
 	}
 	b = b[:n]
 	clear(b)

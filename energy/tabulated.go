@@ -200,8 +200,7 @@ func halveUntil[K any](ks []K, buf *halveBufs[K], tol float64, pass func([]K), s
 	// pass writes its knots and marks into the buffers the pass before
 	// last wrote (w), sized for the intervals still to be checked, and
 	// reads the others, never the same memory.
-	done := growBuf(buf.done[1], len(ks)-1)[:len(ks)-1]
-	clear(done)
+	done := grown(buf.done[1], len(ks)-1)
 	buf.done[1] = done
 	w := 0
 	for range 40 {
@@ -413,8 +412,7 @@ func tabulateWith(sc *tableScratch, l NodeLifetime) tabulated {
 		// (gradAt, the gradient with which each reads between its knots):
 		// the mixture of probits smooth in the clocks is smooth in them
 		// too, and is tabulated as they are (clockGrid).
-		sc.hints = growBuf(sc.hints, 2*len(sets))[:2*len(sets)]
-		clear(sc.hints)
+		sc.hints = grown(sc.hints, 2*len(sets))
 		hints, ghints := sc.hints[:len(sets)], sc.hints[len(sets):]
 		mixAt := func(t float64, grad bool) (z, dl, dr float64, g [3]float64) {
 			var dead, alive, fl, fr float64

@@ -686,17 +686,16 @@ type settingOut struct {
 //
 // sc is the call's working memory, lent to each table's build in turn.
 func (n *node) settingTables(sc *tableScratch, l NodeLifetime) []settingOut {
-	out := growBuf(sc.outs, len(n.settings))[:len(n.settings)]
-	clear(out)
+	out := grown(sc.outs, len(n.settings))
 	sc.outs = out
-	order := growBuf(sc.order, len(n.settings))[:len(n.settings)]
+	order := grown(sc.order, len(n.settings))
 	sc.order = order
 	for j := range order {
 		order[j] = j
 	}
 	var cals []gradKnot // the model at the calendar limit, per setting
 	if !math.IsInf(n.calendar, 1) && !n.spread.IsZero() {
-		cals = growBuf(sc.cals, len(n.settings))[:len(n.settings)]
+		cals = grown(sc.cals, len(n.settings))
 		sc.cals = cals
 		// The law at the calendar limit from the same evaluations, summed
 		// as energyAt sums (the same bits: settingProbitAt, by the node's

@@ -345,3 +345,65 @@ func TestTabulateScratchReuse(t *testing.T) {
 		}
 	}
 }
+
+// probitEndFrom's prediction moves the search's path alone: wherever the
+// first step is put (none, on the wrong side, far off, or on the level),
+// the end is within the slack of the level, on the side asked. The probit
+// is that of a lognormal lifetime, (ln t − m)/σ (its definition: common
+// practice), which is concave in t, as a setting's is over most of its
+// range. An endMemo that learned the search of one law predicts, for the
+// same law scaled in time, a first step within the slack: one evaluation
+// after the start instead of several.
+func TestProbitEndFromPrediction(t *testing.T) {
+	const sigma, slack = 0.3, 0.25
+	law := func(scale float64, evals *int) func(float64) (float64, float64) {
+		return func(x float64) (float64, float64) {
+			*evals++
+			return math.Log(x/scale) / sigma, 1 / (sigma * x)
+		}
+	}
+	for _, tc := range []struct {
+		name          string
+		target, first float64
+		upper         bool
+	}{
+		{"lower, none", -8.76, math.NaN(), false},
+		{"lower, wrong side", -8.76, 3, false},
+		{"lower, far off", -8.76, 1e-3, false},
+		{"lower, on the level", -8.76, math.Exp(-8.76 * sigma), false},
+		{"upper, none", 8.76, math.NaN(), true},
+		{"upper, wrong side", 8.76, 0.5, true},
+		{"upper, far off", 8.76, 60, true},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			evals := 0
+			x, z := probitEndFrom(law(1, &evals), 1, tc.first, tc.target, slack, tc.upper)
+			assert.InDelta(t, math.Log(x)/sigma, z, 1e-12)
+			if tc.upper {
+				assert.True(t, z >= tc.target && z <= tc.target+slack, "z %g", z)
+			} else {
+				assert.True(t, z <= tc.target && z >= tc.target-slack, "z %g", z)
+			}
+			assert.LessOrEqual(t, evals, 100)
+		})
+	}
+	t.Run("memo", func(t *testing.T) {
+		var m endMemo
+		assert.True(t, math.IsNaN(m.first(0, 0, 1, 0, -8.88)))
+		evals := 0
+		f := law(1, &evals)
+		zg, _ := f(2)
+		x, z := probitEndFrom(f, 2, m.first(0, 0, 2, zg, -8.88), -8.76, slack, false)
+		m.learn(0, 0, 2, zg, x, z)
+		// The same law three times slower, from a guess three times later.
+		g := law(3, &evals)
+		zg, _ = g(6)
+		evals = 0
+		x3, z3 := probitEndFrom(g, 6, m.first(0, 0, 6, zg, -8.88), -8.76, slack, false)
+		assert.Equal(t, 2, evals, "the start (again) and the predicted step")
+		assert.True(t, z3 <= -8.76 && z3 >= -8.76-slack, "z %g at %g", z3, x3)
+		var none *endMemo
+		none.learn(0, 0, 2, zg, x, z) // a nil memo remembers nothing
+		assert.True(t, math.IsNaN(none.first(0, 0, 6, zg, -8.88)))
+	})
+}

@@ -24,6 +24,7 @@
 package main
 
 import (
+	"bufio"
 	"encoding/json"
 	"errors"
 	"flag"
@@ -112,13 +113,22 @@ func run(args []string, stdout, stderr io.Writer) int {
 		return 1
 	}
 	// The report (or JSON) first: a figure that fails never discards it.
+	// Through a buffer: the report is a few hundred lines, one write each
+	// otherwise; the flush's error is the write's.
 	status := emit(stderr, func() error {
+		bw := bufio.NewWriterSize(stdout, 64<<10)
+		var err error
 		if *asJSON {
-			enc := json.NewEncoder(stdout)
+			enc := json.NewEncoder(bw)
 			enc.SetIndent("", "  ")
-			return enc.Encode(p)
+			err = enc.Encode(p)
+		} else {
+			err = writeReport(bw, p)
 		}
-		return writeReport(stdout, p)
+		if ferr := bw.Flush(); err == nil {
+			err = ferr
+		}
+		return err
 	})
 	if *figures != "" {
 		say("writing figures to %s", scenario.Quote(*figures))

@@ -167,8 +167,12 @@ func sumTerms(terms []Law) (Law, error) {
 			nDisc++
 		}
 	}
-	if nDisc > 0 {
+	// A few discrete terms (the usual case) fit in a buffer on the stack.
+	var discBuf [4]Discrete
+	if nDisc > len(discBuf) {
 		disc = make([]Discrete, 0, nDisc)
+	} else if nDisc > 0 {
+		disc = discBuf[:0]
 	}
 	for _, t := range terms {
 		switch b := t.(type) {

@@ -211,16 +211,19 @@ func (c Cycle) statesView() []State {
 // visitStates is States, from a visit of the stages (NewCycle keeps its
 // result: the node models of a site read it once a law and setting).
 func (c Cycle) visitStates() []State {
-	var out []State
 	if c.active == nil {
 		return nil
 	}
-	seen := map[string]bool{}
+	// A cycle has tens of states: a scan of those kept finds a repeat
+	// with less work and memory than a map of their names.
+	out := make([]State, 0, 8)
 	c.active.visit(func(s State) {
-		if !seen[s.name] {
-			seen[s.name] = true
-			out = append(out, s)
+		for i := range out {
+			if out[i].name == s.name {
+				return
+			}
 		}
+		out = append(out, s)
 	})
 	return out
 }

@@ -939,11 +939,15 @@ func (n *node) fixedPiecesShared(pts []float64, floorE, c, sd, sf float64, alive
 		f := &lens[nl%len(lens)]
 		nl = min(nl+1, len(lens))
 		f.h = h
+		var ex [glNodes]float64 // e^{σ h x_k}, then e^{−h² x_k²/2}
 		for k := range half {
 			x := glx[k]
-			q := fexp.Exp(sf * h * x)
+			ex[k], ex[half+k] = sf*h*x, -0.5*h*h*x*x
+		}
+		fexp.Exps(ex[:2*half])
+		for k := range half {
+			q, cc := ex[k], ex[half+k]
 			f.q[k], f.q[nn-1-k] = q, 1/q
-			cc := fexp.Exp(-0.5 * h * h * x * x)
 			f.cc[k], f.cc[nn-1-k] = cc, cc
 		}
 		return f
@@ -962,9 +966,16 @@ func (n *node) fixedPiecesShared(pts []float64, floorE, c, sd, sf float64, alive
 			phiU = fs.phiU[i]
 		} else {
 			f := factors(h)
-			em, pm := fexp.Exp(sf*mid), fexp.Exp(-0.5*mid*mid)*invSqrt2Pi
+			// e^{σ·mid}, e^{−mid²/2} and e^{−mid·h·x_k}, in one batch.
+			var ex [2 + glNodes/2]float64
+			ex[0], ex[1] = sf*mid, -0.5*mid*mid
 			for k := range half {
-				d := fexp.Exp(-mid * h * glx[k])
+				ex[2+k] = -mid * h * glx[k]
+			}
+			fexp.Exps(ex[:2+half])
+			em, pm := ex[0], ex[1]*invSqrt2Pi
+			for k := range half {
+				d := ex[2+k]
 				kk := nn - 1 - k
 				eu[k], eu[kk] = em*f.q[k], em*f.q[kk]
 				phiU[k], phiU[kk] = pm*f.cc[k]*d, pm*f.cc[k]/d
@@ -975,47 +986,65 @@ func (n *node) fixedPiecesShared(pts []float64, floorE, c, sd, sf float64, alive
 				fs.pieceDone |= 1 << i
 			}
 		}
+		// g and φ(u)·φ(g) at every node first, free of the branches
+		// below (so that the nodes' exponentials overlap), then the terms.
+		// gauss[k] is φ(u)·φ(g), where |g| < 40 (0 where it underflows),
+		// where a term below reads it (0 elsewhere).
+		var gs, gauss [glNodes]float64
+		var need [glNodes]bool
+		for k := range nn {
+			g := (floorE*eu[k] + c) / sd
+			gs[k] = g
+			sg, ag := sign*g, math.Abs(g)
+			need[k] = ag < 40 && (grad || sg > 5 || (sg >= -8.5 && ag >= mills.SmallX))
+			if need[k] {
+				gauss[k] = -0.5 * g * g
+			}
+		}
+		fexp.Exps(gauss[:nn])
+		for k := range nn {
+			if need[k] {
+				gauss[k] = phiU[k] * gauss[k] * invSqrt2Pi
+			} else {
+				gauss[k] = 0
+			}
+		}
 		var part [4]float64
 		for q := range nn {
 			k := q // from the smallest ±g up: g increases with u
 			if !alive {
 				k = nn - 1 - q
 			}
-			e := eu[k]
-			g := (floorE*e + c) / sd
+			g, gk := gs[k], gauss[k]
 			w := glw[k]
 			sg := sign * g
 			wp := w * phiU[k]
 			ag := math.Abs(g)
-			gauss := 0.0 // φ(u)·φ(g), where |g| < 40 (0 where it underflows)
-			if ag < 40 && (grad || sg > 5 || (sg >= -8.5 && ag >= mills.SmallX)) {
-				gauss = phiU[k] * fexp.Exp(-0.5*g*g) * invSqrt2Pi
-			}
 			switch {
 			case sg < -8.5:
 				part[0] += wp
-			case sg >= mills.SmallX && gauss > 0 && left+h*w*gauss/sg <= 1e-17*(sum[0]+h*part[0]):
+			case sg >= mills.SmallX && gk > 0 && left+h*w*gk/sg <= 1e-17*(sum[0]+h*part[0]):
 				// Left out: the term is below w·φ(u)·φ(g)/g (Gordon).
 				// Only from SmallX up, where φ(g) is computed with or
 				// without grad: the sum (the probabilities) is then the
 				// same bits either way, so that an evaluation with the
 				// gradient serves one without (settingTables).
-				left += h * w * gauss / sg
-			case gauss > 0 && ag >= mills.SmallX:
+				left += h * w * gk / sg
+			case gk > 0 && ag >= mills.SmallX:
 				// φ(u)·Φ̄(|g|) = φ(u)·φ(g)·R(|g|), Mills' ratio R, from
 				// the density already at hand: no erfc.
 				if sg > 0 {
-					part[0] += w * gauss * mills.Ratio(ag)
+					part[0] += w * gk * mills.Ratio(ag)
 				} else {
-					part[0] += wp - w*gauss*mills.Ratio(ag)
+					part[0] += wp - w*gk*mills.Ratio(ag)
 				}
 			default:
 				part[0] += wp * normSurv(sg)
 			}
-			if grad && gauss > 0 {
-				pp := w * gauss
+			if grad && gk > 0 {
+				pp := w * gk
 				part[1] += pp
-				part[2] += pp * e
+				part[2] += pp * eu[k]
 				part[3] += pp * g
 			}
 		}

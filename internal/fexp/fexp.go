@@ -122,6 +122,23 @@ func Exp(x float64) float64 {
 	return s + s*(math.Float64frombits(tab[j][1])+expm1Poly(r))
 }
 
+// Exps sets each x[i] to Exp(x[i]), the same bits, in place: for the
+// hot loops that take several exponentials of arguments known at once (the
+// floor integral's quadrature nodes), without a call per element, so that
+// the elements' evaluations overlap. Safe for concurrent use on distinct
+// slices.
+func Exps(x []float64) {
+	for i, v := range x {
+		if !(v > fastLo && v < fastHi) { // NaN fails both
+			x[i] = Exp(v)
+			continue
+		}
+		j, top, r := reduce(v)
+		s := math.Float64frombits(tab[j][0] + top)
+		x[i] = s + s*(math.Float64frombits(tab[j][1])+expm1Poly(r))
+	}
+}
+
 // reduce returns j = k mod N, (k div N)·2^52 modulo 2^64 and
 // r = x − k·ln2/N for k = round(x·N/ln2), |x| < 2^44.
 func reduce(x float64) (j, top uint64, r float64) {

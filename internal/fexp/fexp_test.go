@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/big"
 	"math/rand/v2"
+	"slices"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -289,6 +290,28 @@ func TestAgainstStdlib(t *testing.T) {
 		}
 	}
 	t.Logf("same bits as math.Exp for %d of %d arguments", same, n)
+}
+
+// TestExps: Exps gives Exp's bits, element by element, on the big
+// oracle's argument sets (the whole range, the thresholds, NaN and the
+// infinities), in slices of several lengths, so that it holds Exp's
+// bounds (TestAgainstBigOracle) wherever Exp does.
+func TestExps(t *testing.T) {
+	var xs []float64
+	for _, set := range oracleArgs() {
+		xs = append(xs, set.xs...)
+	}
+	xs = append(xs, math.NaN(), math.Inf(1), math.Inf(-1), 0, -0.0, fastLo, fastHi, 709.7827128933841, -745.1332191019412)
+	for _, n := range []int{1, 5, 8, 16, len(xs)} {
+		for lo := 0; lo < len(xs); lo += n {
+			got := slices.Clone(xs[lo:min(lo+n, len(xs))])
+			Exps(got)
+			for i, y := range got {
+				x := xs[lo+i]
+				require.Equalf(t, math.Float64bits(Exp(x)), math.Float64bits(y), "Exps at x = %v", x)
+			}
+		}
+	}
 }
 
 // oracleFloat is bigExpOracle(x) rounded to the nearest float64.

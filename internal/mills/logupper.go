@@ -19,7 +19,7 @@ const logSqrt2Pi = 0.91893853320467274178
 // number:
 //
 //   - x >= SmallX: −x²/2 − log √(2π) + log R(x), R Mills' ratio (Ratio):
-//     one logarithm and Cody's rational function, no exponential, and no
+//     one logarithm and Ratio's polynomial, no exponential, and no
 //     underflow (−Inf only at x = +Inf or where x² overflows);
 //   - x <= −SmallX: log1p(−Φ̄(−x)), Φ̄(−x) = Φ(x) from Upper (at most
 //     1 − Φ̄(SmallX) < 0.26, so no cancellation);

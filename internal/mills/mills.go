@@ -7,17 +7,25 @@
 // density for its gradient anyway. A pure function: safe for concurrent
 // use.
 //
-// R(x) = √(π/2)·erfcx(x/√2), with erfcx(y) = e^{y²}·erfc(y) the scaled
-// complementary error function, from W. J. Cody's rational Chebyshev
-// approximations (W. J. Cody, "Rational Chebyshev approximations for the
-// error function", Math. Comp. 23 (1969) 631–637; the coefficients as in
-// his SPECFUN package, ACM TOMS 19 (1993) 22–32, Algorithm 715): for
-// 0.46875 <= y <= 4 a ratio of degree 8 in y, beyond 4 the asymptotic form
-// (1/√π − y⁻²·P(y⁻²)/Q(y⁻²))/y with a ratio of degree 4 in y⁻². Below
-// y = 0.46875 (x < 0.66291) R is Φ̄/φ from the standard library's erfc and
-// exp, which lose nothing there (φ(x) > 0.32). The oracles:
-// TestRatioAgainstContinuedFraction, Laplace's continued fraction
-// (Abramowitz and Stegun 26.2.14), 7.7e-16 at most over [0.2, 40];
+// For SmallX <= x < 64 R is a polynomial of degree 9 on each of the
+// pieces of that range, sixteen of equal length to an octave (ratioPoly:
+// Chebyshev interpolants computed with mpmath at 50 digits, within
+// ratioPolyErr as evaluated): an index from x's leading bits and Horner's
+// steps, no division. From 64 on R = √(π/2)·erfcx(x/√2), with
+// erfcx(y) = e^{y²}·erfc(y) the scaled complementary error function, from
+// W. J. Cody's rational Chebyshev approximations (W. J. Cody, "Rational
+// Chebyshev approximations for the error function", Math. Comp. 23 (1969)
+// 631–637; the coefficients as in his SPECFUN package, ACM TOMS 19 (1993)
+// 22–32, Algorithm 715), his asymptotic form for y > 4,
+// (1/√π − y⁻²·P(y⁻²)/Q(y⁻²))/y with a ratio of degree 4 in y⁻² (his ratio
+// of degree 8 for 0.46875 <= y <= 4 served SmallX <= x < 5.66 before the
+// pieces, at about twice their cost). Below y = 0.46875
+// (x < 0.66291) R is Φ̄/φ from the standard library's erfc and exp, which
+// lose nothing there (φ(x) > 0.32). The oracles:
+// TestRatioPolyAgainstBigCF, Laplace's continued fraction (Abramowitz and
+// Stegun 26.2.14) at 256 bits on every piece, 2.0e-16 at most;
+// TestRatioAgainstContinuedFraction, the same fraction in float64, 4.7e-16
+// at most over [0.2, 40] (7.7e-16 with Cody's ratios throughout, before);
 // TestAgainstPreciseTable, 1600-bit values of Φ̄ (internal/testref);
 // TestRatioAgainstErfc, the standard library's erfc over [0, 35], within
 // MaxRelErr plus that oracle's own rounding.
@@ -30,13 +38,20 @@ import (
 )
 
 // MaxRelErr bounds the relative error of Ratio on [0, 40], as measured by
-// the tests against their oracles (7.7e-16 at most: a few units in the
-// last place; Cody's approximations are themselves accurate to about
-// 1e-18 relative).
+// the tests against their oracles (4.7e-16 at most, below SmallX; on the
+// pieces' polynomials 2.0e-16, ratioPolyErr; Cody's approximations, from
+// 64 on, are themselves accurate to about 1e-18 relative).
 const MaxRelErr = 1e-15
 
-// SmallX is where Ratio turns from the standard library's erfc to Cody's
-// ratios: x = 0.46875·√2.
+// ratioPolyErr bounds the relative error of Ratio on [0.65625, 64), the
+// pieces' polynomials (ratioPoly) as evaluated, against a 256-bit oracle
+// (TestRatioPolyAgainstBigCF; measured: 1.97e-16, about one unit in the
+// last place: their own error is below 1.3e-18, the rest is the
+// rounding of the coefficients and of Horner's steps).
+const ratioPolyErr = 3e-16
+
+// SmallX is where Ratio turns from the standard library's erfc to the
+// pieces' polynomials: x = 0.46875·√2.
 const SmallX = 0.46875 * math.Sqrt2
 
 // Ratio returns Mills' ratio R(x) = Φ̄(x)/φ(x) of the standard normal law
@@ -45,15 +60,26 @@ const SmallX = 0.46875 * math.Sqrt2
 // ratio grows as e^{x²/2} there: compute Φ̄ directly instead); 0 at +Inf.
 func Ratio(x float64) float64 {
 	// The common case first, one comparison pair (NaN fails both): the
-	// floor integral's quadrature nodes mostly lie there.
-	if x >= SmallX && x < math.MaxFloat64 {
-		return math.Sqrt(math.Pi/2) * erfcx(x/math.Sqrt2)
+	// floor integral's quadrature nodes mostly lie there. Horner's form
+	// in t = x − c, exact (x and c are within a factor 2 of each other).
+	if x >= SmallX && x < ratioHi {
+		p := &ratioPoly[math.Float64bits(x)>>48-ratioKeyLo]
+		t := x - p[0]
+		return ((((((((p[1]*t+p[2])*t+p[3])*t+p[4])*t+p[5])*t+p[6])*t+p[7])*t+p[8])*t+p[9])*t + p[10]
 	}
 	return ratioEdge(x)
 }
 
-// ratioEdge is Ratio below SmallX, at +Inf (and MaxFloat64) and for NaN
-// or x < 0.
+// The pieces of ratioPoly: x in [0.65625, ratioHi) has
+// math.Float64bits(x) >> 48 in [ratioKeyLo, ratioKeyHi).
+const (
+	ratioHi    = 64.0
+	ratioKeyLo = 0x3fe5 // 0.65625 = 2^-1·(1 + 5/16)
+	ratioKeyHi = 0x4050 // 64 = 2^6
+)
+
+// ratioEdge is Ratio below SmallX, from ratioHi on (Cody's asymptotic
+// form, +Inf and MaxFloat64 included) and for NaN or x < 0.
 func ratioEdge(x float64) float64 {
 	switch {
 	case math.IsNaN(x) || x < 0:
@@ -83,7 +109,7 @@ const upperDirect = 9.0
 // (about 2·x²·2^-53 relative: the rounding of x/√2 and of erfc's own
 // exponent), as the standard library's erfc(x/√2)/2 is everywhere: for
 // SmallX <= |x| < 9 as φ(|x|)·R(|x|) (one exponential, fexp.Exp, and
-// Cody's ratio, about half the cost of erfc or less), with
+// Ratio's polynomial, about half the cost of erfc or less), with
 // Φ̄(x) = 1 − φ(x)·R(−x) for x <= −SmallX (at least 1/2, so the
 // subtraction loses nothing relative); elsewhere erfc(x/√2)/2. NaN for
 // NaN.
@@ -119,22 +145,11 @@ func UpperDensity(x float64) (upper, density float64) {
 	return t, density
 }
 
-// erfcx is Cody's e^{y²}·erfc(y) for y >= 0.46875, his coefficients
-// written out in Horner's form (numerator over denominator, highest power
-// first).
+// erfcx is Cody's e^{y²}·erfc(y) for y >= 4, his asymptotic form with
+// his coefficients written out in Horner's form (numerator over
+// denominator, highest power first). Ratio takes it from x = 64
+// (y = 45.3) on.
 func erfcx(y float64) float64 {
-	if y <= 4 {
-		num := ((((((((2.15311535474403846e-8*y+5.64188496988670089e-1)*y+
-			8.88314979438837594)*y+6.61191906371416295e1)*y+
-			2.98635138197400131e2)*y+8.81952221241769090e2)*y+
-			1.71204761263407058e3)*y+2.05107837782607147e3)*y +
-			1.23033935479799725e3)
-		den := (((((((y+1.57449261107098347e1)*y+1.17693950891312499e2)*y+
-			5.37181101862009858e2)*y+1.62138957456669019e3)*y+
-			3.29079923573345963e3)*y+4.36261909014324716e3)*y+
-			3.43936767414372164e3)*y + 1.23033935480374942e3
-		return num / den
-	}
 	const invSqrtPi = 0.56418958354775628695 // 1/√π
 	if y >= 6.71e7 {
 		// y⁻²·P/Q is below 1e-17 of 1/√π: the asymptotic form's first term.

@@ -2,6 +2,7 @@ package mills
 
 import (
 	"math"
+	"math/big"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -213,4 +214,74 @@ func BenchmarkErfc(b *testing.B) {
 		}
 	}
 	_ = s
+}
+
+// bigCF is Laplace's continued fraction for Mills' ratio (Abramowitz and
+// Stegun 26.2.14, as oracleCF) at 256 bits, summed from the bottom with n
+// terms.
+func bigCF(x float64, n int) *big.Float {
+	const prec = 256
+	bx := new(big.Float).SetPrec(prec).SetFloat64(x)
+	t := new(big.Float).SetPrec(prec).Set(bx)
+	k := new(big.Float).SetPrec(prec)
+	for i := n; i >= 1; i-- {
+		k.SetInt64(int64(i))
+		t.Quo(k, t)
+		t.Add(t, bx)
+	}
+	return t.Quo(new(big.Float).SetPrec(prec).SetInt64(1), t)
+}
+
+// TestRatioPolyAgainstBigCF checks Ratio on every piece of ratioPoly (its
+// two ends, the float64 just below its end and 24 points between) against
+// Laplace's continued fraction at 256 bits (bigCF) with 1600/x² + 60
+// terms, whose truncation error falls about as e^{−2x√n} (under e^{−80}
+// here; checked on every eighth point against twice the terms, to
+// 1e-30): within ratioPolyErr relative, a bound kept with room over the
+// largest measured (see the log).
+func TestRatioPolyAgainstBigCF(t *testing.T) {
+	worst, at := 0.0, 0.0
+	for i := range ratioPoly {
+		a := math.Float64frombits(uint64(ratioKeyLo+i) << 48)
+		b := math.Float64frombits(uint64(ratioKeyLo+i+1) << 48)
+		xs := []float64{a, math.Nextafter(b, 0)}
+		for j := 1; j < 25; j++ {
+			xs = append(xs, a+(b-a)*float64(j)/25)
+		}
+		for j, x := range xs {
+			if x < SmallX {
+				continue
+			}
+			n := int(1600/(x*x)) + 60
+			want := bigCF(x, n)
+			if j%8 == 0 {
+				twice := bigCF(x, 2*n)
+				d, _ := new(big.Float).Quo(new(big.Float).Sub(want, twice), want).Float64()
+				require.LessOrEqualf(t, math.Abs(d), 1e-30, "the oracle at x = %v", x)
+			}
+			w, _ := want.Float64()
+			d, _ := new(big.Float).Quo(new(big.Float).Sub(new(big.Float).SetFloat64(Ratio(x)), want), want).Float64()
+			if math.Abs(d) > worst {
+				worst, at = math.Abs(d), x
+			}
+			require.LessOrEqualf(t, math.Abs(d), ratioPolyErr, "Ratio(%v) = %v, want %v", x, Ratio(x), w)
+		}
+	}
+	t.Logf("largest relative error of the pieces' polynomials against the continued fraction: %.3g at x = %v", worst, at)
+}
+
+// TestRatioTailAgainstBigCF: from 64 on, where Ratio takes Cody's
+// asymptotic form, against the continued fraction at 256 bits (bigCF, 100
+// terms: its truncation error below e^{−1280}) on 2000 points spread
+// logarithmically over [64, 1e9]: within MaxRelErr relative.
+func TestRatioTailAgainstBigCF(t *testing.T) {
+	worst := 0.0
+	for i := range 2001 {
+		x := 64 * math.Pow(1e9/64, float64(i)/2000)
+		want := bigCF(x, 100)
+		d, _ := new(big.Float).Quo(new(big.Float).Sub(new(big.Float).SetFloat64(Ratio(x)), want), want).Float64()
+		worst = math.Max(worst, math.Abs(d))
+		require.LessOrEqualf(t, math.Abs(d), MaxRelErr, "Ratio(%v)", x)
+	}
+	t.Logf("largest relative error from 64 on: %.3g", worst)
 }

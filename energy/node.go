@@ -820,8 +820,10 @@ func (n *node) floorRuleError(capLeft, mean, vv, floorE, h float64, p partOut, t
 // e^{σ u} and φ(u) are products of a piece's factors (e^{σ·mid}, φ(mid),
 // e^{∓mid·h·x_k}) and factors that depend on h alone (e^{±σ h x_k},
 // e^{−h²x_k²/2}), computed once for the pieces of one length. Every
-// exponential is fexp.Exp's (within 2^-52 relative, the bound the standard
-// library documents for math.Exp): a node's e^{σ u} and φ(u), products
+// exponential is fexp.Exp's, or fexp.Exps' (the same bits) by batches of
+// a piece's factors, a length's and the nodes' φ(g) (within 2^-52
+// relative, the bound the standard library documents for math.Exp): a
+// node's e^{σ u} and φ(u), products
 // of three factors, are within a few units of 2^-53 of their values, far
 // inside floorRuleError's allowance for rounding (8·2^-52 of the side).
 //

@@ -296,7 +296,7 @@ func writeReport(out io.Writer, p *Plan) error {
 		}
 		l := g.Lifetime
 		note := ""
-		if l.In90[0] == l.In90[1] && g.CalendarLimit > 0 && l.In90[0] == g.CalendarLimit {
+		if sameTime(l.In90[0], l.In90[1]) && g.CalendarLimit > 0 && sameTime(l.In90[0], g.CalendarLimit) {
 			note = " (the calendar limit)"
 		}
 		row("battery lifetime", "median %s; 90 %% of nodes in %s%s", years(l.Median), yearPair(l.In90), note)
@@ -454,6 +454,14 @@ func wrap(w io.Writer, prefix, text string) {
 	fmt.Fprintln(w, line)
 }
 
+// sameTime reports whether two of a law's times (quantiles, a support's
+// end, a calendar limit, in one unit) are the same within the quantiles'
+// stated 1e-12 relative accuracy: the report's notes on an atom then do not
+// turn on or off with a quantile's last bits.
+func sameTime(a, b float64) bool {
+	return a == b || math.Abs(a-b) <= 1e-12*math.Max(math.Abs(a), math.Abs(b))
+}
+
 // lawLine is a law's one-line summary: mean, sd, 90 % interval and support
 // in one unit, then how it was computed and its stated CDF error.
 func lawLine(s Summary, unit func(float64) string) string {
@@ -465,7 +473,7 @@ func lawLine(s Summary, unit func(float64) string) string {
 		how += fmt.Sprintf("; CDF error ≤ %.1g", s.CDFError)
 	}
 	atom := ""
-	if s.In90[0] == s.In90[1] && s.In90[1] == s.Support[1] && s.Support[0] < s.Support[1] && !math.IsInf(s.Support[1], 0) {
+	if sameTime(s.In90[0], s.In90[1]) && sameTime(s.In90[1], s.Support[1]) && s.Support[0] < s.Support[1] && !math.IsInf(s.Support[1], 0) {
 		// A lifetime law whose 90 % sits at the top of its support: an
 		// atom at the calendar limit, which no input of the model spreads.
 		atom = " (an atom at the end of the support: the calendar limit, which nothing in the model spreads)"

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"math"
 	"regexp"
 	"strings"
 	"testing"
@@ -66,6 +67,31 @@ func TestLawLine(t *testing.T) {
 	// calendar limit) says that it is an atom there.
 	atom := lawLine(Summary{Mean: 14.5, In90: [2]float64{14.5, 14.5}, Support: [2]float64{0, 14.5}, Method: "m"}, yearsText)
 	assert.Contains(t, atom, "90 % in [14.5 years, 14.5 years] (an atom at the end of the support: the calendar limit")
+	// The same within the quantiles' stated 1e-12 relative (the demo's
+	// pump alarms read 14.500000000000876 at one build and 14.5 at the
+	// next): the note does not turn on or off with the last bits.
+	near := lawLine(Summary{Mean: 14.5, In90: [2]float64{14.500000000000876, 14.5}, Support: [2]float64{0, 14.5}, Method: "m"}, yearsText)
+	assert.Contains(t, near, "(an atom at the end of the support")
+	apart := lawLine(Summary{Mean: 14.5, In90: [2]float64{14.4999, 14.5}, Support: [2]float64{0, 14.5}, Method: "m"}, yearsText)
+	assert.NotContains(t, apart, "an atom", "an interval of its own is no atom")
+}
+
+// sameTime is equality within the quantiles' stated 1e-12 relative.
+func TestSameTime(t *testing.T) {
+	for _, c := range []struct {
+		a, b float64
+		want bool
+	}{
+		{14.5, 14.5, true},
+		{14.5, 14.500000000000876, true},  // 6e-14 relative
+		{14.5, 14.5 * (1 + 2e-12), false}, // beyond the stated accuracy
+		{0, 0, true},
+		{0, 1e-300, false},
+		{math.Inf(1), math.Inf(1), true},
+	} {
+		assert.Equal(t, c.want, sameTime(c.a, c.b), "%v %v", c.a, c.b)
+		assert.Equal(t, c.want, sameTime(c.b, c.a), "%v %v", c.b, c.a)
+	}
 }
 
 // The report's Laws section gives every group's and the fleet's laws, one

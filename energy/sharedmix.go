@@ -353,13 +353,20 @@ func (m sharedMixture) upperQuantile(q float64) float64 {
 // moment quadrature (componentQuad: ∫S over its range, about 8 standard
 // deviations, so the mean's error is below 1e-5 of a standard deviation);
 // the moments are printed to three or four digits and their stated errors
-// (MomentError) carry the quadrature's estimate. mixMomentTol is the
-// fallback's over a mixture's survival (mixtures of other laws, as
+// (MomentError) carry the quadrature's estimate. In a mixture read through
+// quick pieces (totalMomentsWith) it is the mixture's target, shared out
+// among the components by weight (componentTolShares). mixMomentTol is
+// the fallback's over a mixture's survival (mixtures of other laws, as
 // before).
 const (
 	componentMomentTol = 1e-6
 	mixMomentTol       = 1e-8
 )
+
+// maxTolShare caps a component's share of the mixture's moment tolerance
+// (componentTolShares): a component of weight near 0 is still integrated
+// to componentMomentTol·maxTolShare relative.
+const maxTolShare = 1e4
 
 func (m sharedMixture) moments() {
 	m.lz.once.Do(func() {
@@ -389,27 +396,16 @@ func componentMoments(l dist.Law) (mean, vari, meanErr, varErr float64) {
 		return c.Mean(), c.Variance(), meanErr, varErr
 	case orderstat.Statistic:
 		nan := math.NaN()
-		return componentQuad(c, c.Survival, nan, nan, nan)
+		lo, med, hi := componentRange(c, nan, nan, nan)
+		r := componentQuad(c.Survival, lo, med, hi, componentMomentTol)
+		return r.mean, r.vari, r.meanErr, r.varErr
 	}
 	return math.NaN(), math.NaN(), math.NaN(), math.NaN()
 }
 
-// componentQuad returns a component's mean (s) and variance (s²) with
-// their estimated errors by the library's adaptive quadrature
-// (internal/quad) of its survival surv (l's, or the same law read more
-// cheaply) above its 1e-15 quantile lo (l's where lo is NaN, as med and
-// hi),
-//
-//	E[T] − lo = ∫ S,  E[(T − lo)²] = 2∫ (t − lo)·S,
-//
-// up to its 1e-15 upper quantile, split at its median, to a relative
-// componentMomentTol; the tails beyond add at most 1e-15 of the range each
-// (bounded by the range itself). One component's survival rises over its
-// own narrow range, where the mixture's is a staircase of them: about 400
-// evaluations a component in the demo's first failures (splitting at the
-// tables' knots instead costs 3000 for a precision nobody reads).
-func componentQuad(l dist.Law, surv func(float64) float64, lo, med, hi float64) (mean, vari, meanErr, varErr float64) {
-	nan := math.NaN()
+// componentRange returns lo, med and hi, each replaced by l's 1e-15
+// quantile, median and 1e-15 upper quantile (s) where it is NaN.
+func componentRange(l dist.Law, lo, med, hi float64) (float64, float64, float64) {
 	if math.IsNaN(lo) {
 		lo = l.Quantile(1e-15)
 	}
@@ -419,27 +415,111 @@ func componentQuad(l dist.Law, surv func(float64) float64, lo, med, hi float64) 
 	if math.IsNaN(hi) {
 		hi = l.UpperQuantile(1e-15)
 	}
+	return lo, med, hi
+}
+
+// quadMomentsResult is a component's moments by componentQuad: the mean
+// (s) and variance (s²) with their stated errors, and what those errors
+// are made of (errorsAt): the quadrature's estimated error quad and its
+// scale (the larger of the two integrals, whose componentMomentTol
+// relative was the target before the mixture shared it out), the range's
+// width span (s) and the mean above lo, m1 (s).
+type quadMomentsResult struct {
+	mean, vari, meanErr, varErr float64
+	quad, scale, span, m1       float64
+}
+
+// errorsAt returns the stated errors of the mean (s) and variance (s²)
+// that a quadrature error e (of the integrals over [lo, hi], ∫S in s and
+// 2∫(t − lo)/span·S in s) gives: the tails beyond the 1e-15 points add at
+// most 1e-15 of the range each (bounded by the range itself).
+func (r quadMomentsResult) errorsAt(e float64) (meanErr, varErr float64) {
+	e1, e2 := e+2e-15*r.span, e*r.span+4e-15*r.span*r.span
+	return e1, e2 + 2*r.m1*e1
+}
+
+// componentQuad returns a component's mean (s) and variance (s²) with
+// their estimated errors by the library's adaptive quadrature
+// (internal/quad) of its survival surv (the component's law, or the same
+// law read more cheaply) above its 1e-15 quantile lo,
+//
+//	E[T] − lo = ∫ S,  E[(T − lo)²] = 2∫ (t − lo)·S,
+//
+// up to its 1e-15 upper quantile hi, split at its median med, to relTol
+// relative (of the larger integral); the tails beyond add at most 1e-15 of
+// the range each (bounded by the range itself). One component's survival
+// rises over its own narrow range, where the mixture's is a staircase of
+// them: about 400 evaluations a component in the demo's first failures at
+// relative 1e-6 (splitting at the tables' knots instead costs 3000 for a
+// precision nobody reads). NaN where lo, med or hi is not finite or the
+// quadrature fails.
+func componentQuad(surv func(float64) float64, lo, med, hi, relTol float64) quadMomentsResult {
+	nan := math.NaN()
 	if !finite(lo) || !finite(hi) || !finite(med) {
-		return nan, nan, nan, nan
+		return quadMomentsResult{mean: nan, vari: nan, meanErr: nan, varErr: nan}
 	}
 	if !(hi > lo) {
-		return lo, 0, 0, 0
+		return quadMomentsResult{mean: lo}
 	}
 	span := hi - lo
 	f := func(t float64, y []float64) {
 		s := surv(t)
 		y[0], y[1] = s, 2*(t-lo)/span*s
 	}
-	pts := sortedUnique([]float64{lo, med, hi})
+	var pts [3]float64
+	pts[0], pts[1], pts[2] = lo, med, hi
 	var v [2]float64
-	r, err := quad.BreaksVec(v[:], f, pts, quad.Options{RelTol: componentMomentTol, MaxEvals: 1 << 15})
+	r, err := quad.BreaksVec(v[:], f, sortedUnique(pts[:]), quad.Options{RelTol: relTol, MaxEvals: 1 << 15})
 	if err != nil && r.Evals == 0 {
-		return nan, nan, nan, nan
+		return quadMomentsResult{mean: nan, vari: nan, meanErr: nan, varErr: nan}
 	}
 	m1, m2 := v[0], v[1]*span
-	e1, e2 := r.Error+2e-15*span, r.Error*span+4e-15*span*span
-	vari = math.Max(0, m2-m1*m1)
-	return lo + m1, vari, e1, e2 + 2*m1*e1
+	res := quadMomentsResult{mean: lo + m1, vari: math.Max(0, m2-m1*m1), quad: r.Error,
+		scale: math.Max(math.Abs(v[0]), math.Abs(v[1])), span: span, m1: m1}
+	res.meanErr, res.varErr = res.errorsAt(r.Error)
+	return res
+}
+
+// componentTolShares returns the factors by which the components of
+// weights w (summing to 1 or less) may exceed componentMomentTol, the
+// mixture's target, so that the mixture's moments, Σ w_e·m_e and the law
+// of total variance, are asked no more than that target: component e's
+// error enters them times w_e, so the evaluations (about 1/√tolerance for
+// the kinked survival a table gives) are fewest, for the same weighted
+// sum of tolerances, with tolerances proportional to w_e^(−2/3). p[e]
+// (the component's median less its lo, s: at most twice ∫S, so a proxy of
+// the scale its relative target is taken of) and k[e] (what its
+// quadrature error is multiplied by in the variance's: its span, twice
+// p[e] and twice its distance from the weighted mean of the medians, s)
+// weight the sums: the factors c_e = λ·w_e^(−2/3) take the largest λ with
+// Σ w_e·c_e·p_e <= Σ w_e·p_e and Σ w_e·k_e·c_e·p_e <= Σ w_e·k_e·p_e,
+// each at most maxTolShare (equal weights get 1). The caller checks the
+// stated errors against those of every factor 1 (totalMomentsWith).
+func componentTolShares(dst, w, p, k []float64) []float64 {
+	var a, b, c, d float64
+	for e := range w {
+		r := math.Cbrt(w[e])
+		a += w[e] * p[e]
+		b += r * p[e]
+		c += w[e] * k[e] * p[e]
+		d += r * k[e] * p[e]
+	}
+	lam := 0.0
+	if b > 0 && d > 0 {
+		lam = math.Min(a/b, c/d)
+	}
+	dst = dst[:0]
+	for e := range w {
+		f := maxTolShare
+		if r := math.Cbrt(w[e]); r > 0 && lam > 0 {
+			f = math.Min(f, lam/(r*r))
+		}
+		if !(f > 0) {
+			f = 1
+		}
+		dst = append(dst, f)
+	}
+	return dst
 }
 
 // totalMoments returns the mixture's mean (s) and variance (s²) from its
@@ -457,34 +537,120 @@ func (m sharedMixture) totalMoments() (mean, vari, meanErr, varErr float64) {
 
 // totalMomentsWith is totalMoments with the components' moments from
 // their quick pieces (componentQuad) where quick is set and the
-// component is an order statistic.
+// component is an order statistic. Those components share the mixture's
+// target componentMomentTol by weight (componentTolShares); where the
+// stated errors that gives exceed those of every such component at
+// componentMomentTol itself (its quadrature error at its target), the
+// components given more than componentMomentTol are integrated again at
+// it, so the mixture never states more than it did with one tolerance
+// for all.
 func (m sharedMixture) totalMomentsWith(quick func(i int) (func(float64) float64, float64, float64, float64)) (mean, vari, meanErr, varErr float64) {
-	ms := make([]float64, len(m.laws))
-	vs := make([]float64, len(m.laws))
-	ems := make([]float64, len(m.laws))
-	evs := make([]float64, len(m.laws))
+	n := len(m.laws)
+	buf := make([]float64, 4*n)
+	ms, vs, ems, evs := buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:]
+	nan := math.NaN()
+	// The order statistics read through quick: their pieces first, for
+	// the tolerance each gets.
+	type piece struct {
+		surv         func(float64) float64
+		lo, med, hi  float64
+		res          quadMomentsResult
+		share, quick bool
+	}
+	ps := make([]piece, n)
+	var qw, qp, qk []float64
 	for i, l := range m.laws {
 		if _, ok := l.(orderstat.Statistic); ok && quick != nil {
 			surv, lo, med, hi := quick(i)
-			ms[i], vs[i], ems[i], evs[i] = componentQuad(l, surv, lo, med, hi)
+			lo, med, hi = componentRange(l, lo, med, hi)
+			if !finite(lo) || !finite(med) || !finite(hi) {
+				return nan, nan, nan, nan
+			}
+			ps[i] = piece{surv: surv, lo: lo, med: med, hi: hi, quick: true}
+			qw = append(qw, m.w[i])
+		}
+	}
+	var shares []float64
+	if len(qw) > 0 {
+		sw, smed := 0.0, 0.0
+		for i := range ps {
+			if ps[i].quick {
+				sw += m.w[i]
+				smed += m.w[i] * ps[i].med
+			}
+		}
+		if sw > 0 {
+			smed /= sw
+		}
+		for i := range ps {
+			if p := &ps[i]; p.quick {
+				d := math.Max(0, p.med-p.lo)
+				qp = append(qp, d)
+				qk = append(qk, (p.hi-p.lo)+2*d+2*math.Abs(p.med-smed))
+			}
+		}
+		shares = componentTolShares(make([]float64, 0, len(qw)), qw, qp, qk)
+	}
+	j := 0
+	for i, l := range m.laws {
+		if p := &ps[i]; p.quick {
+			p.share = shares[j] > 1
+			j++
+			p.res = componentQuad(p.surv, p.lo, p.med, p.hi, componentMomentTol*shares[j-1])
+			ms[i], vs[i], ems[i], evs[i] = p.res.mean, p.res.vari, p.res.meanErr, p.res.varErr
 		} else {
 			ms[i], vs[i], ems[i], evs[i] = componentMoments(l)
 		}
 		if !finite(ms[i]) || !finite(vs[i]) || !finite(ems[i]) || !finite(evs[i]) {
-			return math.NaN(), math.NaN(), math.NaN(), math.NaN()
+			return nan, nan, nan, nan
 		}
+	}
+	mean, vari, meanErr, varErr = m.combineMoments(ms, vs, ems, evs)
+	if len(qw) == 0 {
+		return mean, vari, meanErr, varErr
+	}
+	// The errors every component would state at componentMomentTol.
+	aems, aevs := make([]float64, n), make([]float64, n)
+	copy(aems, ems)
+	copy(aevs, evs)
+	for i := range ps {
+		if p := &ps[i]; p.quick {
+			aems[i], aevs[i] = p.res.errorsAt(componentMomentTol * p.res.scale)
+		}
+	}
+	_, _, am, av := m.combineMoments(ms, vs, aems, aevs)
+	if meanErr <= am && varErr <= av {
+		return mean, vari, meanErr, varErr
+	}
+	for i := range ps {
+		if p := &ps[i]; p.quick && p.share {
+			p.res = componentQuad(p.surv, p.lo, p.med, p.hi, componentMomentTol)
+			ms[i], vs[i], ems[i], evs[i] = p.res.mean, p.res.vari, p.res.meanErr, p.res.varErr
+			if !finite(ms[i]) || !finite(vs[i]) || !finite(ems[i]) || !finite(evs[i]) {
+				return nan, nan, nan, nan
+			}
+		}
+	}
+	return m.combineMoments(ms, vs, ems, evs)
+}
+
+// combineMoments returns the mixture's mean (s) and variance (s²) and
+// their stated errors from the components' means ms, variances vs and
+// their errors ems, evs (totalMoments' sums).
+func (m sharedMixture) combineMoments(ms, vs, ems, evs []float64) (mean, vari, meanErr, varErr float64) {
+	for i := range ms {
 		mean += m.w[i] * ms[i]
 		meanErr += m.w[i] * ems[i]
 	}
 	scale := 0.0
-	for i := range m.laws {
+	for i := range ms {
 		d := ms[i] - mean
 		vari += m.w[i] * (vs[i] + d*d)
 		e := ems[i] + meanErr
 		varErr += m.w[i] * (evs[i] + 2*math.Abs(d)*e + e*e)
 		scale = math.Max(scale, math.Abs(ms[i]))
 	}
-	n := float64(len(m.laws))
+	n := float64(len(ms))
 	return mean, vari, meanErr + 2*n*0x1p-52*scale, varErr + 4*n*0x1p-52*(vari+scale*scale)
 }
 

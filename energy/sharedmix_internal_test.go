@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"github.com/joulelaw/joulelaw/dist"
@@ -151,4 +152,119 @@ func fiveNormals() (w []float64, laws []dist.Law, cdf, surv func(float64) float6
 	cdf = func(x float64) float64 { return sum(func(d distuv.Normal) float64 { return d.CDF(x) }) }
 	surv = func(x float64) float64 { return sum(func(d distuv.Normal) float64 { return d.Survival(x) }) }
 	return w, laws, cdf, surv
+}
+
+// componentTolShares shares the mixture's moment tolerance out by weight:
+// factors proportional to w^(−2/3) (a light component gets a looser
+// target, a heavy one a tighter), the weighted sums of the components'
+// targets (Σ w·c·p, and Σ w·k·c·p) no larger than with every factor 1,
+// the tighter of the two equal to it, every factor at most maxTolShare, 1
+// for equal weights. Checked on the weights of a 7-node Gauss–Hermite rule
+// (gonum's, through hermiteNodes), times 1/6, 2/3, 1/6 (a 3-node rule's),
+// as a Site's product rule has them, and on cases made up for the edges.
+func TestComponentTolShares(t *testing.T) {
+	_, w7 := hermiteNodes(1, 7)
+	var prod []float64
+	for _, a := range []float64{1.0 / 6, 2.0 / 3, 1.0 / 6} {
+		for _, b := range w7 {
+			prod = append(prod, a*b)
+		}
+	}
+	ones := func(n int, v float64) []float64 {
+		x := make([]float64, n)
+		for i := range x {
+			x[i] = v
+		}
+		return x
+	}
+	ramp := func(n int, a, b float64) []float64 {
+		x := make([]float64, n)
+		for i := range x {
+			x[i] = a + (b-a)*float64(i)/float64(n-1)
+		}
+		return x
+	}
+	for _, tc := range []struct {
+		name    string
+		w, p, k []float64
+	}{
+		{"equal weights", ones(4, 0.25), ones(4, 1e8), ones(4, 4e8)},
+		{"product rule, equal scales", prod, ones(len(prod), 1e8), ones(len(prod), 4e8)},
+		{"product rule, rising scales", prod, ramp(len(prod), 0.8e8, 1.2e8), ramp(len(prod), 5e8, 3e8)},
+		{"a zero weight", []float64{0.5, 0.5, 0}, ones(3, 1), ones(3, 1)},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			c := componentTolShares(nil, tc.w, tc.p, tc.k)
+			assert.Len(t, c, len(tc.w))
+			var a, a1, b, b1 float64
+			for e := range tc.w {
+				assert.LessOrEqual(t, c[e], maxTolShare)
+				assert.Greater(t, c[e], 0.0)
+				a += tc.w[e] * c[e] * tc.p[e]
+				a1 += tc.w[e] * tc.p[e]
+				b += tc.w[e] * tc.k[e] * c[e] * tc.p[e]
+				b1 += tc.w[e] * tc.k[e] * tc.p[e]
+				if tc.w[e] == 0 {
+					assert.Equal(t, maxTolShare, c[e], "a zero weight")
+					continue
+				}
+				// proportional to w^(−2/3), capped
+				if c[e] < maxTolShare {
+					assert.InEpsilon(t, c[0]*math.Pow(tc.w[0]/tc.w[e], 2.0/3), c[e], 1e-12, "component %d", e)
+				}
+			}
+			assert.LessOrEqual(t, a, a1*(1+1e-12), "Σ w·c·p")
+			assert.LessOrEqual(t, b, b1*(1+1e-12), "Σ w·k·c·p")
+			assert.True(t, math.Abs(a-a1) <= 1e-12*a1 || math.Abs(b-b1) <= 1e-12*b1, "the tighter sum is met")
+			if tc.name == "equal weights" {
+				for e := range c {
+					assert.InDelta(t, 1, c[e], 1e-12)
+				}
+			}
+		})
+	}
+}
+
+// A Site's first failures take their components' moments at tolerances
+// shared out by weight (componentTolShares); they must agree with every
+// component at componentMomentTol within the two stated errors, and state
+// no more than every component at that target would (its quadrature
+// error at componentMomentTol of its scale, carried through the law of
+// total variance: what the one tolerance allowed). Checked on the kinked
+// two-factor site (a seasonal climate and a voltage curve: tables with
+// kinks, a temperature rule in two pieces, weights from 4e-4 to 0.24),
+// for each group's first failure and the fleet's; the moments themselves
+// are checked against gonum's quadrature in TestSiteMixtureMoments.
+func TestSiteSharedMomentTolerance(t *testing.T) {
+	s, err := NewSite(kinkedSiteSpec(t))
+	require.NoError(t, err)
+	// Each group's first failure, then the fleet's (i = len(s.names)).
+	for i := 0; i <= len(s.names); i++ {
+		l, err := s.FirstFailure()
+		if i < len(s.names) {
+			l, err = s.GroupFirstFailure(i)
+		}
+		require.NoError(t, err)
+		m := l.(sharedMixture)
+		require.NotNil(t, m.quick)
+		n := len(m.laws)
+		ms, vs, ems, evs := make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
+		aems, aevs := make([]float64, n), make([]float64, n)
+		for e := range m.laws {
+			surv, lo, med, hi := m.quick(e)
+			lo, med, hi = componentRange(m.laws[e], lo, med, hi)
+			r := componentQuad(surv, lo, med, hi, componentMomentTol)
+			ms[e], vs[e], ems[e], evs[e] = r.mean, r.vari, r.meanErr, r.varErr
+			aems[e], aevs[e] = r.errorsAt(componentMomentTol * r.scale)
+		}
+		one, oneVar, oneErr, oneVarErr := m.combineMoments(ms, vs, ems, evs)
+		_, _, allowed, allowedVar := m.combineMoments(ms, vs, aems, aevs)
+		em, ev := m.MomentError()
+		assert.InDelta(t, one, m.Mean(), em+oneErr, "law %d: mean", i)
+		assert.InDelta(t, oneVar, m.Variance(), ev+oneVarErr, "law %d: variance", i)
+		assert.LessOrEqual(t, em, allowed*(1+1e-9), "law %d: the mean's stated error", i)
+		assert.LessOrEqual(t, ev, allowedVar*(1+1e-9), "law %d: the variance's stated error", i)
+		t.Logf("law %d: mean moved %.2g s (stated ±%.2g, one tolerance ±%.2g, allowed %.2g), variance's stated %.2g (one tolerance %.2g, allowed %.2g)",
+			i, m.Mean()-one, em, oneErr, allowed, ev, oneVarErr, allowedVar)
+	}
 }

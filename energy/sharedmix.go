@@ -37,6 +37,13 @@ type sharedMixture struct {
 	// slope there (1/s), or false: the quantiles start from it (seedSolve)
 	// before the corners, and check every step on the mixture itself.
 	seed func(target float64) (t0, slope float64, ok bool)
+	// cornersFirst, when set, has the quantiles try the corners' bracket
+	// before the seed: for a mixture cheap to evaluate (a Site's node
+	// laws and groups' first failures: tables, and the minimum of one
+	// group's in closed form), whose search between the corners' answers
+	// (about eight evaluations of the mixture and the corners' quantiles)
+	// costs less than the seed's own search of its approximation.
+	cornersFirst bool
 	// quick, when set, returns for component i the pieces of its moment
 	// quadrature (componentQuad) read from a Site's tables: its survival
 	// (the component's law, to rounding, without an order statistic's
@@ -290,9 +297,28 @@ func (m sharedMixture) cornerSolve(q func(dist.Law) float64, target float64) (fl
 	return try()
 }
 
-// Quantile returns inf{t : CDF(t) >= p} (s) to 1e-12 relative: between
-// the corners' quantiles where they bracket it, otherwise between the
-// smallest and the largest of the components'.
+// seededOrCorners returns the answer whose probit reaches target from
+// the seed (seedSolve) or the corners' answers q(l) (cornerSolve), the
+// corners first where cornersFirst is set, and false where neither holds.
+func (m sharedMixture) seededOrCorners(q func(dist.Law) float64, target float64) (float64, bool) {
+	if m.cornersFirst {
+		if t, ok := m.cornerSolve(q, target); ok {
+			return t, true
+		}
+	}
+	if t, ok := m.seedSolve(target); ok {
+		return t, true
+	}
+	if !m.cornersFirst {
+		return m.cornerSolve(q, target)
+	}
+	return 0, false
+}
+
+// Quantile returns inf{t : CDF(t) >= p} (s) to 1e-12 relative: from the
+// seed or between the corners' quantiles where they bracket it
+// (seededOrCorners), otherwise between the smallest and the largest of
+// the components'.
 func (m sharedMixture) Quantile(p float64) float64 {
 	return m.lz.memo(quantKey{p, false}, func() float64 { return m.quantile(p) })
 }
@@ -303,10 +329,7 @@ func (m sharedMixture) quantile(p float64) float64 {
 	}
 	target := dist.MustNormal(0, 1).Quantile(p)
 	if p > 0 && p < 1 {
-		if t, ok := m.seedSolve(target); ok {
-			return t
-		}
-		if t, ok := m.cornerSolve(func(l dist.Law) float64 { return l.Quantile(p) }, target); ok {
+		if t, ok := m.seededOrCorners(func(l dist.Law) float64 { return l.Quantile(p) }, target); ok {
 			return t
 		}
 	}
@@ -332,10 +355,7 @@ func (m sharedMixture) upperQuantile(q float64) float64 {
 	}
 	target := dist.MustNormal(0, 1).UpperQuantile(q)
 	if q > 0 && q < 1 {
-		if t, ok := m.seedSolve(target); ok {
-			return t
-		}
-		if t, ok := m.cornerSolve(func(l dist.Law) float64 { return l.UpperQuantile(q) }, target); ok {
+		if t, ok := m.seededOrCorners(func(l dist.Law) float64 { return l.UpperQuantile(q) }, target); ok {
 			return t
 		}
 	}

@@ -127,6 +127,65 @@ func TestSharedMixtureQuantileSeeded(t *testing.T) {
 	}
 }
 
+// With cornersFirst a mixture tries the corners' bracket before its seed,
+// and the seed where the corners do not bracket. Checked on the five
+// normals of TestSharedMixtureQuantileCorners against their CDF by gonum's
+// distuv.Normal (the answer to 1e-12 relative, as there), with a seed
+// that counts its calls: corners at the ends (they bracket: no seed
+// asked) and in the middle (means 30 and 40: at the 0.01 point, below
+// both of their quantiles, and the 0.999 point, above, they do not: the
+// seed is asked, and holds), and a seed that fails there (the answer from
+// all five components).
+func TestSharedMixtureQuantileCornersFirst(t *testing.T) {
+	w, laws, cdf, surv := fiveNormals()
+	for _, c := range []struct {
+		name    string
+		corners []int
+		fail    bool
+	}{
+		{"corners at the ends", []int{0, 4}, false},
+		{"corners in the middle", []int{2, 3}, false},
+		{"corners in the middle, the seed fails", []int{2, 3}, true},
+	} {
+		m := newSharedMixture("test", w, laws)
+		m.corners, m.cornersFirst = c.corners, true
+		seeds := 0
+		m.seed = func(target float64) (float64, float64, bool) {
+			seeds++
+			if c.fail {
+				return 0, 0, false
+			}
+			x := m.solve(-100, 200, target)
+			h := 1e-6 * x
+			return x, (m.probit(x+h) - m.probit(x-h)) / (2 * h), true
+		}
+		for _, p := range []float64{0.01, 0.3, 0.5, 0.9, 0.999} {
+			// Whether the corners bracket, from gonum's quantiles and CDF.
+			zp := distuv.UnitNormal.Quantile(p)
+			lo := 10 + 10*float64(c.corners[0]) + 3*zp
+			hi := 10 + 10*float64(c.corners[1]) + 3*zp
+			want := 0
+			if !(cdf(lo-1e-9) < p && cdf(hi) >= p) { // just below the lowest, as cornerSolve
+				want++
+			}
+			if !(surv(lo-6*zp-1e-9) > p && surv(hi-6*zp) <= p) { // the upper quantiles, mean − 3·zp
+				want++
+			}
+			if c.corners[0] == 2 && (p == 0.01 || p == 0.999) {
+				assert.Equal(t, 2, want, "%s: the corners do not bracket at %g", c.name, p)
+			}
+			seeds = 0
+			x := m.Quantile(p)
+			assert.InDelta(t, p, cdf(x), 1e-9*p+1e-15, "%s: CDF at Quantile(%g)", c.name, p)
+			assert.Less(t, cdf(x-1e-10*math.Abs(x)), p, "%s: Quantile(%g) is the smallest", c.name, p)
+			u := m.UpperQuantile(p)
+			assert.InDelta(t, p, surv(u), 1e-9*p+1e-15, "%s: Survival at UpperQuantile(%g)", c.name, p)
+			assert.Greater(t, surv(u-1e-10*math.Abs(u)), p, "%s: UpperQuantile(%g) is the smallest", c.name, p)
+			assert.Equal(t, want, seeds, "%s: seeds asked at %g", c.name, p)
+		}
+	}
+}
+
 // fiveNormals returns the mixture of TestSharedMixtureQuantileCorners:
 // normals of sd 3 at 10 to 50 with the weights of a 5-node Gauss–Hermite
 // rule, and its CDF and survival by gonum's distuv.Normal.

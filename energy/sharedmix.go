@@ -47,8 +47,10 @@ type sharedMixture struct {
 	// quick, when set, returns for component i the pieces of its moment
 	// quadrature (componentQuad) read from a Site's tables: its survival
 	// (the component's law, to rounding, without an order statistic's
-	// general path) and its 1e-15, 1/2 and 1 − 1e-15 points (NaN where
-	// the component's own are to be asked).
+	// general path) and its 1e-15, 1/2 and 1 − 1e-15 points, or for the
+	// ends points beyond them (its CDF at lo and its survival at hi at
+	// most 1e-15: Site.fleetRange), NaN where the component's own are to
+	// be asked.
 	quick func(i int) (surv func(t float64) float64, lo, med, hi float64)
 }
 
@@ -466,14 +468,15 @@ func (r quadMomentsResult) errorsAt(e float64) (meanErr, varErr float64) {
 // componentQuad returns a component's mean (s) and variance (s²) with
 // their estimated errors by the library's adaptive quadrature
 // (internal/quad) of its survival surv (the component's law, or the same
-// law read more cheaply) above its 1e-15 quantile lo,
+// law read more cheaply) above its 1e-15 quantile lo (or a point below
+// it),
 //
 //	E[T] − lo = ∫ S,  E[(T − lo)²] = 2∫ (t − lo)·S,
 //
-// up to its 1e-15 upper quantile hi, split at med (its median, or the
-// midpoint: componentRange), to relTol
-// relative (of the larger integral); the tails beyond add at most 1e-15 of
-// the range each (bounded by the range itself). One component's survival
+// up to its 1e-15 upper quantile hi (or a point above it), split at med
+// (its median, or the midpoint: componentRange), to relTol relative (of
+// the larger integral); the tails beyond add at most 1e-15 of the range
+// each (bounded by the range itself). One component's survival
 // rises over its own narrow range, where the mixture's is a staircase of
 // them: about 400 evaluations a component in the demo's first failures at
 // relative 1e-6 (splitting at the tables' knots instead costs 3000 for a

@@ -291,8 +291,8 @@ func TestComponentTolShares(t *testing.T) {
 // error at componentMomentTol of its scale, carried through the law of
 // total variance: what the one tolerance allowed). Checked on the kinked
 // two-factor site (a seasonal climate and a voltage curve: tables with
-// kinks, a temperature rule in two pieces, weights from 4e-4 to 0.24),
-// for each group's first failure and the fleet's; the moments themselves
+// kinks, and a temperature rule in two pieces, so weights far apart), for
+// each group's first failure and the fleet's; the moments themselves
 // are checked against gonum's quadrature in TestSiteMixtureMoments.
 func TestSiteSharedMomentTolerance(t *testing.T) {
 	s, err := NewSite(kinkedSiteSpec(t))
@@ -325,5 +325,34 @@ func TestSiteSharedMomentTolerance(t *testing.T) {
 		assert.LessOrEqual(t, ev, allowedVar*(1+1e-9), "law %d: the variance's stated error", i)
 		t.Logf("law %d: mean moved %.2g s (stated ±%.2g, one tolerance ±%.2g, allowed %.2g), variance's stated %.2g (one tolerance %.2g, allowed %.2g)",
 			i, m.Mean()-one, em, oneErr, allowed, ev, oneVarErr, allowedVar)
+	}
+}
+
+// The fleet's first failure integrates its moments between points read
+// from the groups' tables (fleetRange) instead of its own 1e-15 quantiles:
+// its CDF at lo and its survival at hi must be at most 1e-15 (by the
+// order statistic's own CDF and Survival, orderstat's log-space path),
+// so lo is at or below its 1e-15 quantile and hi at or above its 1e-15
+// upper quantile (orderstat's searches, to their 1e-12 relative), and
+// the range no more than twice as wide. Checked at every shared point of
+// the kinked two-factor site (two groups, of 50 and 500 nodes).
+func TestSiteFleetRange(t *testing.T) {
+	s, err := NewSite(kinkedSiteSpec(t))
+	require.NoError(t, err)
+	ff, err := s.FirstFailure()
+	require.NoError(t, err)
+	m := ff.(sharedMixture)
+	for e := range s.envs {
+		l := m.laws[e]
+		lo, hi := s.fleetRange(e)
+		qlo, qhi := l.Quantile(1e-15), l.UpperQuantile(1e-15)
+		assert.LessOrEqual(t, l.CDF(lo), 1e-15, "env %d: CDF at lo", e)
+		assert.LessOrEqual(t, l.Survival(hi), 1e-15, "env %d: survival at hi", e)
+		assert.LessOrEqual(t, lo, qlo*(1+1e-12), "env %d: lo", e)
+		assert.GreaterOrEqual(t, hi, qhi*(1-1e-12), "env %d: hi", e)
+		assert.Less(t, hi-lo, 2*(qhi-qlo), "env %d: the range's width", e)
+		_, qmlo, _, qmhi := m.quick(e)
+		assert.Equal(t, lo, qmlo, "env %d: the quick pieces' lo", e)
+		assert.Equal(t, hi, qmhi, "env %d: the quick pieces' hi", e)
 	}
 }

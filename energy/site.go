@@ -457,9 +457,41 @@ func (s Site) mixStated(fn string, stated func() float64, kind lawKind, g int, k
 		// interval at the limit), so that change waits for its own.
 		sm.cornersFirst = kind == kindFirst
 		sm.quick = s.quickFor(kind, g)
+		if q := sm.quick; q != nil && kind == kindFleet {
+			sm.quick = func(i int) (func(float64) float64, float64, float64, float64) {
+				surv, lo, med, hi := q(i)
+				if math.IsNaN(lo) || math.IsNaN(hi) {
+					lo, hi = s.fleetRange(i)
+				}
+				return surv, lo, med, hi
+			}
+		}
 		return sm, nil
 	}
 	return l, nil
+}
+
+// fleetRange returns, for the fleet's first failure at environment e, a
+// time lo (s) where its CDF is at most 1e-15 and a time hi (s) where its
+// survival is, from the groups' tables alone (the moment quadrature's
+// range, componentQuad, in place of the order statistic's own 1e-15
+// quantiles: two table inversions a group instead of two searches of the
+// fleet's law). With G groups, each group's first failure among its n_g
+// nodes reaches 1e-15/G at its node law's 1 − (1 − 1e-15/G)^(1/n_g) point:
+// the earliest of those is lo, the fleet's CDF there at most the sum of
+// the groups' (the union bound), 1e-15; the fleet's survival is at most
+// any group's first failure's, so the earliest of their 1e-15 upper
+// points, each the node law's (1e-15)^(1/n_g) upper point, is hi.
+func (s Site) fleetRange(e int) (lo, hi float64) {
+	env := &s.envs[e]
+	lo, hi = math.Inf(1), math.Inf(1)
+	share := 1e-15 / float64(len(s.names))
+	for g := range s.names {
+		tb, n := &env.laws[g], float64(s.counts[g])
+		lo = math.Min(lo, tb.Quantile(-math.Expm1(math.Log1p(-share)/n)))
+		hi = math.Min(hi, tb.UpperQuantile(math.Exp(math.Log(1e-15)/n)))
+	}
+	return lo, hi
 }
 
 // lazyFor returns the lazily computed state that kind's law of group g

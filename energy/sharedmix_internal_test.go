@@ -1,6 +1,7 @@
 package energy
 
 import (
+	"fmt"
 	"math"
 	"testing"
 
@@ -28,12 +29,7 @@ func TestSharedMixtureQuantileCorners(t *testing.T) {
 		m := newSharedMixture("test", w, laws)
 		m.corners = c.corners
 		for _, p := range []float64{1e-9, 0.01, 0.3, 0.5, 0.9, 0.999} {
-			x := m.Quantile(p)
-			assert.InDelta(t, p, cdf(x), 1e-9*p+1e-15, "%s: CDF at Quantile(%g)", c.name, p)
-			assert.Less(t, cdf(x-1e-10*math.Abs(x)), p, "%s: Quantile(%g) is the smallest", c.name, p)
-			u := m.UpperQuantile(p)
-			assert.InDelta(t, p, surv(u), 1e-9*p+1e-15, "%s: Survival at UpperQuantile(%g)", c.name, p)
-			assert.Greater(t, surv(u-1e-10*math.Abs(u)), p, "%s: UpperQuantile(%g) is the smallest", c.name, p)
+			checkMixtureQuantiles(t, m, cdf, surv, p, c.name)
 		}
 	}
 	// An answer at an atom that every corner reaches (a calendar limit):
@@ -71,6 +67,21 @@ func TestSharedMixtureQuantileCorners(t *testing.T) {
 		assert.Equal(t, c.want, n, "component quantiles asked for the %g point", c.p)
 		assert.InDelta(t, c.p, cdf(x), 1e-9*c.p, "CDF at Quantile(%g)", c.p)
 	}
+}
+
+// checkMixtureQuantiles checks m's Quantile(p) and UpperQuantile(p)
+// against the mixture's CDF and survival by an oracle (cdf, surv): the
+// answer's CDF (survival) is p to 1e-9 relative and, 1e-10 relative
+// below it, less than p (more than p): the smallest such point, to the
+// searches' 1e-12 relative.
+func checkMixtureQuantiles(t *testing.T, m sharedMixture, cdf, surv func(float64) float64, p float64, name string) {
+	t.Helper()
+	x := m.Quantile(p)
+	assert.InDelta(t, p, cdf(x), 1e-9*p+1e-15, "%s: CDF at Quantile(%g)", name, p)
+	assert.Less(t, cdf(x-1e-10*math.Abs(x)), p, "%s: Quantile(%g) is the smallest", name, p)
+	u := m.UpperQuantile(p)
+	assert.InDelta(t, p, surv(u), 1e-9*p+1e-15, "%s: Survival at UpperQuantile(%g)", name, p)
+	assert.Greater(t, surv(u-1e-10*math.Abs(u)), p, "%s: UpperQuantile(%g) is the smallest", name, p)
 }
 
 // quantileCounter counts the calls of Quantile.
@@ -112,12 +123,7 @@ func TestSharedMixtureQuantileSeeded(t *testing.T) {
 		}
 		for _, p := range []float64{1e-9, 0.01, 0.3, 0.5, 0.9, 0.999} {
 			n = 0
-			x := m.Quantile(p)
-			assert.InDelta(t, p, cdf(x), 1e-9*p+1e-15, "seed %+v: CDF at Quantile(%g)", c, p)
-			assert.Less(t, cdf(x-1e-10*math.Abs(x)), p, "seed %+v: Quantile(%g) is the smallest", c, p)
-			u := m.UpperQuantile(p)
-			assert.InDelta(t, p, surv(u), 1e-9*p+1e-15, "seed %+v: Survival at UpperQuantile(%g)", c, p)
-			assert.Greater(t, surv(u-1e-10*math.Abs(u)), p, "seed %+v: UpperQuantile(%g) is the smallest", c, p)
+			checkMixtureQuantiles(t, m, cdf, surv, p, fmt.Sprintf("seed %+v", c))
 			if c.fail {
 				assert.Equal(t, 2, n, "seed %+v: the corners' quantiles at %g (Quantile's, counted)", c, p)
 			} else {
@@ -175,12 +181,7 @@ func TestSharedMixtureQuantileCornersFirst(t *testing.T) {
 				assert.Equal(t, 2, want, "%s: the corners do not bracket at %g", c.name, p)
 			}
 			seeds = 0
-			x := m.Quantile(p)
-			assert.InDelta(t, p, cdf(x), 1e-9*p+1e-15, "%s: CDF at Quantile(%g)", c.name, p)
-			assert.Less(t, cdf(x-1e-10*math.Abs(x)), p, "%s: Quantile(%g) is the smallest", c.name, p)
-			u := m.UpperQuantile(p)
-			assert.InDelta(t, p, surv(u), 1e-9*p+1e-15, "%s: Survival at UpperQuantile(%g)", c.name, p)
-			assert.Greater(t, surv(u-1e-10*math.Abs(u)), p, "%s: UpperQuantile(%g) is the smallest", c.name, p)
+			checkMixtureQuantiles(t, m, cdf, surv, p, c.name)
 			assert.Equal(t, want, seeds, "%s: seeds asked at %g", c.name, p)
 		}
 	}

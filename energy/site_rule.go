@@ -806,13 +806,14 @@ func (s *Site) probitNear(tb *tabulated, t float64, hint *int) float64 {
 // read only to choose the factor to refine) with it.
 type probeError struct {
 	t, table float64
-	Z        []float64  // the node probits at t (nodeZ)
-	rule     float64    // the rule's mixture
-	ref      float64    // the reference's
-	base     float64    // |rule − reference| + the fine rule's own error + the truncation
-	own      [2]float64 // per factor: the rule's difference from the fine rule in that factor alone (+Inf while !exact)
-	interp   [2]float64 // per factor: the interpolation's error, or its bound while !exact
-	exact    bool
+	Z        []float64    // the node probits at t (nodeZ)
+	rule     float64      // the rule's mixture
+	ref      float64      // the reference's
+	base     float64      // |rule − reference| + the fine rule's own error + the truncation
+	own      [2]float64   // per factor: the rule's difference from the fine rule in that factor alone (+Inf while !owned)
+	interp   [2]float64   // per factor: the interpolation's error, or its bound while !exact
+	exact    bool         // interp computed: total is the estimate
+	owned    bool         // own computed too: parts are
 	sc       *ruleScratch // the working arrays of the probe's chain
 }
 
@@ -892,11 +893,31 @@ func (s *Site) probeZWith(sc *ruleScratch, t float64, Z []float64, kind lawKind,
 	return p
 }
 
-// probeFinish computes p's interpolation terms, the reference's
-// difference from the reference interpolated without one node a piece in
-// each factor with spread, and its parts' other terms, the rule's
-// difference from the rule fine in that factor alone.
+// probeFinish computes p's interpolation terms (probeExact) and its
+// parts' other terms, the rule's difference from the rule fine in each
+// factor with spread alone.
 func (s *Site) probeFinish(p *probeError, kind lawKind, g int, k int64) {
+	s.probeExact(p, kind, g, k)
+	if p.owned {
+		return
+	}
+	for d := range 2 {
+		if len(s.fac[d].fz) == 1 {
+			continue
+		}
+		m := [2]int{modeNodes, modeNodes}
+		m[d] = modeFine
+		p.own[d] = math.Abs(s.mixZs(p.sc, p.Z, kind, g, k, m)[0] - p.rule)
+	}
+	p.owned = true
+}
+
+// probeExact computes p's interpolation terms, the reference's difference
+// from the reference interpolated without one node a piece in each factor
+// with spread: its total is then the estimate, its parts still +Inf (the
+// parts' other terms are read only to choose a factor to refine:
+// probeFinish).
+func (s *Site) probeExact(p *probeError, kind lawKind, g int, k int64) {
 	if p.exact {
 		return
 	}
@@ -910,9 +931,6 @@ func (s *Site) probeFinish(p *probeError, kind lawKind, g int, k int64) {
 		m := [2]int{modeFine, modeFine}
 		m[d] = modeReduced
 		p.interp[d] = math.Abs(s.mixZs(p.sc, p.Z, kind, g, k, m)[0] - p.ref)
-		m = [2]int{modeNodes, modeNodes}
-		m[d] = modeFine
-		p.own[d] = math.Abs(s.mixZs(p.sc, p.Z, kind, g, k, m)[0] - p.rule)
 	}
 	p.exact = true
 }
@@ -1440,26 +1458,65 @@ const sharedMaxMidProbes = 160
 // the sum over groups of such terms times the other groups' survivals
 // (plus their errors), a count or a k-th failure by Σ n_g·δ_g.
 func (s *Site) tableError(t float64, kind lawKind, g int) float64 {
+	var want []bool
+	if kind == kindNode || kind == kindFirst {
+		want = make([]bool, len(s.names))
+		want[g] = true
+	}
+	return s.tableErrorZ(t, s.nodeZ(t, want), kind, g)
+}
+
+// tableErrorZ is tableError from the node probits Z at t (nodeZ's layout,
+// the groups kind reads filled): each table's error, CDF and survival
+// from its probit there, the same values as from the table at t.
+func (s *Site) tableErrorZ(t float64, Z []float64, kind lawKind, g int) float64 {
+	E := len(s.envs)
+	// The table's values at t from its probit z there (0 < t < cal: what
+	// the table reads; elsewhere its own ends).
+	inside := func(tb *tabulated) bool { return tb.t != nil && t > 0 && t < tb.cal }
+	errAt := func(tb *tabulated, z float64) float64 {
+		if !inside(tb) {
+			return tb.errAt(t)
+		}
+		return tb.errAtZ(t, z)
+	}
+	cdf := func(tb *tabulated, z float64) float64 {
+		if !inside(tb) {
+			return tb.CDF(t)
+		}
+		return normSurv(-z)
+	}
+	surv := func(tb *tabulated, z float64) float64 {
+		if !inside(tb) {
+			return tb.Survival(t)
+		}
+		return normSurv(z)
+	}
+	var ds, ss []float64
+	if kind == kindFleet {
+		ds, ss = make([]float64, len(s.names)), make([]float64, len(s.names))
+	}
 	sum := 0.0
 	for e := range s.envs {
 		env := &s.envs[e]
 		var err float64
 		switch kind {
 		case kindNode:
-			err = env.laws[g].errAt(t)
+			err = errAt(&env.laws[g], Z[g*E+e])
 		case kindFirst:
-			d := env.laws[g].errAt(t)
-			f := math.Max(0, env.laws[g].CDF(t)-d)
+			tb, z := &env.laws[g], Z[g*E+e]
+			d := errAt(tb, z)
+			f := math.Max(0, cdf(tb, z)-d)
 			err = float64(s.counts[g]) * powSurv(1-math.Min(f, 1), s.counts[g]-1) * d
 		case kindFleet:
-			ds, ss := make([]float64, len(s.names)), make([]float64, len(s.names))
 			for h := range s.names {
 				if j := s.sameAs(h); j != h {
 					ds[h], ss[h] = ds[j], ss[j] // the same table
 					continue
 				}
-				ds[h] = env.laws[h].errAt(t)
-				ss[h] = math.Min(1, env.laws[h].Survival(t)+ds[h])
+				tb, z := &env.laws[h], Z[h*E+e]
+				ds[h] = errAt(tb, z)
+				ss[h] = math.Min(1, surv(tb, z)+ds[h])
 			}
 			for h := range s.names {
 				if ds[h] == 0 {
@@ -1475,7 +1532,7 @@ func (s *Site) tableError(t float64, kind lawKind, g int) float64 {
 			}
 		default:
 			for h := range s.names {
-				err += float64(s.counts[h]) * env.laws[h].errAt(t)
+				err += float64(s.counts[h]) * errAt(&env.laws[h], Z[h*E+e])
 			}
 		}
 		sum += env.w * math.Min(1, err)
@@ -1503,7 +1560,7 @@ func (s *Site) lawProbes(kind lawKind, g int, k int64) []probeError {
 	ps := make([]probeError, len(ts))
 	for i, t := range ts {
 		ps[i] = s.probeStartWith(sc, t, kind, g, k)
-		ps[i].table = s.tableError(t, kind, g)
+		ps[i].table = s.tableErrorZ(t, ps[i].Z, kind, g)
 	}
 	order := make([]int, len(ps))
 	for i := range order {
@@ -1516,7 +1573,7 @@ func (s *Site) lawProbes(kind lawKind, g int, k int64) []probeError {
 	for _, i := range order {
 		p := &ps[i]
 		if !p.exact && (p.total()+p.table > stated || p.total() > rule) {
-			s.probeFinish(p, kind, g, k)
+			s.probeExact(p, kind, g, k)
 		}
 		if p.exact {
 			rule = math.Max(rule, p.total())

@@ -609,6 +609,12 @@ func (tb *tabulated) errAt(t float64) float64 {
 	case t >= tb.cal || t <= 0:
 		return 0
 	}
+	return tb.errAtZ(t, tb.zAt(t))
+}
+
+// errAtZ is errAt at t within (0, cal) whose probit z = zAt(t) is known
+// (the site rule's probes have it): the same value.
+func (tb *tabulated) errAtZ(t, z float64) float64 {
 	i := sort.SearchFloat64s(tb.profT, t)
 	var src float64
 	switch {
@@ -619,7 +625,6 @@ func (tb *tabulated) errAt(t float64) float64 {
 	default:
 		src = math.Max(tb.profE[i-1], tb.profE[i])
 	}
-	z := tb.zAt(t)
 	e := src + normPDF(z)*tb.worst
 	if tb.setWorst > 0 {
 		e += tb.setWorst * math.Min(0.4, 1.02*(1+tb.setZ)*normSurv(math.Abs(z)))

@@ -608,12 +608,17 @@ func interp1(rows *interpRows, i int, y []float64) float64 {
 	if math.IsInf(y[0], 0) {
 		return y[0]
 	}
-	w := rows.w[i]
-	ys := y[rows.off[i]:][:len(w)]
+	return rowDot(rows.w[i], y[rows.off[i]:])
+}
+
+// rowDot returns Σ_j w_j·y_j over w's terms that are not 0, in order
+// (interp1's sum, small enough to be inlined in the fine grid's loops).
+func rowDot(w, y []float64) float64 {
+	y = y[:len(w)]
 	z := 0.0
 	for j, l := range w {
 		if l != 0 {
-			z += l * ys[j]
+			z += l * y[j]
 		}
 	}
 	return z
@@ -630,6 +635,11 @@ type ruleScratch struct {
 	z            []float64 // nodeZ within probeTimes' root search
 	hint         []int     // and its tables' intervals (nodeZInto)
 	want         []bool
+	// fineBounds' weights at the fine points (pointWeights), for the
+	// factors whose fine weights start at pwU and pwV.
+	pwU, pwV *float64
+	pwDs     [2]bool
+	pw       [][maxModes]float64
 }
 
 // hints returns sc.hint with length n, made (no interval yet: 0) on the
@@ -639,6 +649,42 @@ func (sc *ruleScratch) hints(n int) []int {
 		sc.hint = make([]int, n)
 	}
 	return sc.hint
+}
+
+// pointWeights returns the weights of fineBounds' modes at each fine
+// point a·pv + b (the fine grid's, then every other point's in u and in v
+// for the factors with ds; 0 below 1e-14, and for the modes left out),
+// made on the first call for these factors and kept.
+func (sc *ruleScratch) pointWeights(fu, fv *sharedFactor, ds [2]bool) [][maxModes]float64 {
+	if sc.pwU == &fu.fw[0] && sc.pwV == &fv.fw[0] && sc.pwDs == ds {
+		return sc.pw
+	}
+	wus := [maxModes][]float64{fu.fw}
+	wvs := [maxModes][]float64{fv.fw}
+	M := 1
+	if ds[0] {
+		wus[M], wvs[M] = fu.fwc, fv.fw
+		M++
+	}
+	if ds[1] {
+		wus[M], wvs[M] = fu.fw, fv.fwc
+		M++
+	}
+	pu, pv := len(fu.fz), len(fv.fz)
+	pw := make([][maxModes]float64, pu*pv)
+	for a := range pu {
+		for b := range pv {
+			for i := range M {
+				if wus[i][a] != 0 {
+					if w := wus[i][a] * wvs[i][b]; w >= 1e-14 {
+						pw[a*pv+b][i] = w
+					}
+				}
+			}
+		}
+	}
+	sc.pwU, sc.pwV, sc.pwDs, sc.pw = &fu.fw[0], &fv.fw[0], ds, pw
+	return pw
 }
 
 // grown returns b with length n, its values zeroed, reusing its array
@@ -853,7 +899,8 @@ func (s *Site) probeZ(t float64, Z []float64, kind lawKind, g int, k int64) prob
 // probeFinish with finish (or a kind without a bound): the interpolation
 // bounds are computed only for a probe left bounded (probeFinish replaces
 // them: the same bits without them; 0.7 % of BenchmarkWhatItTakes's CPU
-// in a profile).
+// in a profile), in the reference's own walk over the fine grid
+// (fineBounds).
 func (s *Site) probeZWith(sc *ruleScratch, t float64, Z []float64, kind lawKind, g int, k int64, finish bool) probeError {
 	p := probeError{t: t, Z: Z, sc: sc}
 	p.rule = s.mixZs(sc, p.Z, kind, g, k, [2]int{modeNodes, modeNodes})[0]
@@ -867,15 +914,17 @@ func (s *Site) probeZWith(sc *ruleScratch, t float64, Z []float64, kind lawKind,
 			modes = append(modes, m)
 		}
 	}
-	fine := s.mixZs(sc, p.Z, kind, g, k, modes...)
-	p.ref = fine[0]
-	p.base = math.Abs(p.rule - p.ref)
 	spread := [2]bool{len(s.fac[0].fz) > 1, len(s.fac[1].fz) > 1}
 	finish = finish || (kind != kindNode && kind != kindFirst && kind != kindFleet)
+	var fine [maxModes]float64
 	var bounds [2]float64
-	if !finish {
-		bounds = s.interpBoundsWith(sc, p.Z, kind, g, spread)
+	if finish {
+		fine = s.mixZs(sc, p.Z, kind, g, k, modes...)
+	} else {
+		fine, bounds = s.fineBounds(sc, p.Z, kind, g, k, spread)
 	}
+	p.ref = fine[0]
+	p.base = math.Abs(p.rule - p.ref)
 	next := 1
 	for d := range 2 {
 		if !spread[d] {
@@ -1070,6 +1119,269 @@ func (s *Site) interpBoundsWith(sc *ruleScratch, Z []float64, kind lawKind, g in
 	return res
 }
 
+// fineBounds is the reference's pass of probeZWith (mixZs at the fine
+// points in both factors, and every other point in each factor with
+// spread) together with interpBoundsWith(ds) for a node law, a group's
+// first failure or the fleet's, in one walk over the fine grid: the
+// reference's interpolants are the bounds' first ones (the same rows,
+// the same bits), interpolated once. Each value is the same bits as
+// from mixZs and interpBoundsWith.
+func (s *Site) fineBounds(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64, ds [2]bool) (sums [maxModes]float64, res [2]float64) {
+	fu, fv := &s.fac[0], &s.fac[1]
+	nv := len(fv.z)
+	E := len(s.envs)
+	G := len(s.names)
+	pu, pv := len(fu.fz), len(fv.fz)
+	// The modes as probeZWith lists them: the fine grid, then every other
+	// point in u, then in v (each where the factor has spread).
+	M := 1
+	for d := range 2 {
+		if ds[d] {
+			M++
+		}
+	}
+	g0, g1 := g, g+1
+	if kind == kindFleet {
+		g0, g1 = 0, G
+	}
+	var rep []int
+	if kind == kindFleet {
+		rep = s.rowReps(sc, Z, g0, g1)
+	}
+	// Y0 along u by the reference's rows (lag), Y1 by lagr where they
+	// differ (factor 0's bound), for each group: Y0[((h − g0)·pu + a)·nv + j].
+	sc.y0 = grown(sc.y0, (g1-g0)*pu*nv)
+	Y0 := sc.y0
+	if ds[0] {
+		sc.y1 = grown(sc.y1, (g1-g0)*pu*nv)
+	}
+	Y1 := sc.y1
+	for h := g0; h < g1; h++ {
+		if rep != nil && rep[h] != h {
+			continue
+		}
+		zh := Z[h*E : (h+1)*E]
+		o := (h - g0) * pu * nv
+		for a := range pu {
+			for j := range nv {
+				Y0[o+a*nv+j] = interp(&fu.lag, a, zh[j:], nv)
+			}
+			if ds[0] && !fu.same[a] {
+				for j := range nv {
+					Y1[o+a*nv+j] = interp(&fu.lagr, a, zh[j:], nv)
+				}
+			}
+		}
+	}
+	if kind != kindFleet {
+		return s.fineBoundsOne(sc, Y0, Y1, kind, g, M, ds)
+	}
+	// over is interpBoundsWith's slope bound between z0 and z1 for group h
+	// (L its own cells), with those of the groups that repeat it, in the
+	// same order: the same bits.
+	over := func(L *slopeBound, h int, z0, z1 float64) float64 {
+		lo, hi := z0, z1
+		if hi < lo {
+			lo, hi = hi, lo
+		}
+		l, ok := L.inCells(lo, hi)
+		if !ok {
+			l = L.beyond(lo, hi)
+		}
+		for m := h + 1; rep != nil && m < g1; m++ {
+			if rep[m] == h {
+				l += s.slope[m].over(z0, z1)
+			}
+		}
+		return l
+	}
+	pw := sc.pointWeights(fu, fv, ds)
+	sc.zs = grown(sc.zs, G)
+	sc.probs = grown(sc.probs, G)
+	zs, probs := sc.zs, sc.probs
+	lagW, lagOff := fv.lag.w, fv.lag.off
+	lagrW, lagrOff := fv.lagr.w, fv.lagr.off
+	bounds := ds[0] || ds[1]
+	var bsum [2]float64
+	var pts int
+	for a := range pu {
+		for b := range pv {
+			ws := &pw[a*pv+b]
+			if ws[0] == 0 && ws[1] == 0 && ws[2] == 0 {
+				continue // every weight below 1e-14
+			}
+			for h := g0; h < g1; h++ {
+				if rep != nil && rep[h] != h {
+					zs[h] = zs[rep[h]]
+					continue
+				}
+				o := ((h-g0)*pu + a) * nv
+				y0 := Y0[o : o+nv]
+				if math.IsInf(y0[0], 0) {
+					zs[h] = y0[0] // interp1
+				} else {
+					zs[h] = rowDot(lagW[b], y0[lagOff[b]:])
+				}
+			}
+			c := s.condAt(kind, g, k, zs, probs, rep)
+			for i := range M {
+				if ws[i] != 0 {
+					sums[i] += ws[i] * c
+				}
+			}
+			// The bounds: Σ_h L_h·|Δz_h| at the point, summed with the
+			// fine weights (where at least 1e-14).
+			if ws[0] == 0 || !bounds {
+				continue
+			}
+			var bnd [2]float64
+			for h := g0; h < g1; h++ {
+				if rep != nil && rep[h] != h {
+					continue
+				}
+				z0 := zs[h]
+				o := ((h-g0)*pu + a) * nv
+				L := &s.slope1
+				if kind != kindNode {
+					L = &s.slope[h]
+				}
+				if ds[0] && !fu.same[a] {
+					z1 := Y1[o]
+					if y1 := Y1[o : o+nv]; !math.IsInf(y1[0], 0) {
+						z1 = rowDot(lagW[b], y1[lagOff[b]:])
+					}
+					if z0 != z1 {
+						bnd[0] += over(L, h, z0, z1) * math.Abs(z1-z0)
+					}
+				}
+				if ds[1] && !fv.same[b] {
+					z1 := Y0[o]
+					if y0 := Y0[o : o+nv]; !math.IsInf(y0[0], 0) {
+						z1 = rowDot(lagrW[b], y0[lagrOff[b]:])
+					}
+					if z0 != z1 {
+						bnd[1] += over(L, h, z0, z1) * math.Abs(z1-z0)
+					}
+				}
+			}
+			bsum[0] += ws[0] * bnd[0]
+			bsum[1] += ws[0] * bnd[1]
+			pts++
+		}
+	}
+	for i := range M {
+		sums[i] = math.Min(1, math.Max(0, sums[i]))
+	}
+	for d := range 2 {
+		if ds[d] {
+			res[d] = bsum[d]*(1+1e-12) + 2*float64(pts)*0x1p-52
+		}
+	}
+	return sums, res
+}
+
+// fineBoundsOne is fineBounds' walk for a law that reads one group g (a
+// node law or its first failure) from its interpolants along u, Y0 (and
+// Y1 for factor 0's bound): condAt's value and interpBoundsWith's terms
+// at each point by the same operations in the same order.
+func (s *Site) fineBoundsOne(sc *ruleScratch, Y0, Y1 []float64, kind lawKind, g, M int, ds [2]bool) (sums [maxModes]float64, res [2]float64) {
+	fu, fv := &s.fac[0], &s.fac[1]
+	nv := len(fv.z)
+	pu, pv := len(fu.fz), len(fv.fz)
+	pw := sc.pointWeights(fu, fv, ds)[:pu*pv]
+	L := &s.slope1
+	if kind != kindNode {
+		L = &s.slope[g]
+	}
+	over := func(z0, z1 float64) float64 {
+		lo, hi := z0, z1
+		if hi < lo {
+			lo, hi = hi, lo
+		}
+		if l, ok := L.inCells(lo, hi); ok {
+			return l
+		}
+		return L.beyond(lo, hi)
+	}
+	n, sure := float64(s.counts[g]), s.sure[g]
+	lagW, lagOff := fv.lag.w[:pv], fv.lag.off[:pv]
+	lagrW, lagrOff := fv.lagr.w[:pv], fv.lagr.off[:pv]
+	vsame := fv.same[:pv]
+	var bsum [2]float64
+	var pts int
+	for a := range pu {
+		y0 := Y0[a*nv : (a+1)*nv]
+		inf0 := math.IsInf(y0[0], 0)
+		bu := ds[0] && !fu.same[a]
+		var y1 []float64
+		inf1 := false
+		if bu {
+			y1 = Y1[a*nv : (a+1)*nv]
+			inf1 = math.IsInf(y1[0], 0)
+		}
+		ws := pw[a*pv : (a+1)*pv]
+		for b := range pv {
+			w := &ws[b]
+			if w[0] == 0 && w[1] == 0 && w[2] == 0 {
+				continue // every weight below 1e-14
+			}
+			z0 := y0[0] // interp1
+			if !inf0 {
+				z0 = rowDot(lagW[b], y0[lagOff[b]:])
+			}
+			// condAt
+			var c float64
+			switch {
+			case kind == kindNode:
+				c = normSurv(-z0)
+			case z0 >= sure:
+				c = 1
+			default:
+				c = -math.Expm1(n * mills.LogUpper(z0))
+			}
+			for i := range M {
+				if w[i] != 0 {
+					sums[i] += w[i] * c
+				}
+			}
+			if w[0] == 0 || !(ds[0] || ds[1]) {
+				continue
+			}
+			var bnd [2]float64
+			if bu {
+				z1 := y1[0]
+				if !inf1 {
+					z1 = rowDot(lagW[b], y1[lagOff[b]:])
+				}
+				if z0 != z1 {
+					bnd[0] += over(z0, z1) * math.Abs(z1-z0)
+				}
+			}
+			if ds[1] && !vsame[b] {
+				z1 := y0[0]
+				if !inf0 {
+					z1 = rowDot(lagrW[b], y0[lagrOff[b]:])
+				}
+				if z0 != z1 {
+					bnd[1] += over(z0, z1) * math.Abs(z1-z0)
+				}
+			}
+			bsum[0] += w[0] * bnd[0]
+			bsum[1] += w[0] * bnd[1]
+			pts++
+		}
+	}
+	for i := range M {
+		sums[i] = math.Min(1, math.Max(0, sums[i]))
+	}
+	for d := range 2 {
+		if ds[d] {
+			res[d] = bsum[d]*(1+1e-12) + 2*float64(pts)*0x1p-52
+		}
+	}
+	return sums, res
+}
+
 // minSlope returns an upper bound on the largest slope of the CDF of the
 // first failure among n nodes against their common probit z,
 // max_z n·Φ(−z)^(n−1)·φ(z) (1/√(2π) for n = 1): the largest of
@@ -1092,6 +1404,7 @@ type slopeBound struct {
 	cells        []float64
 	wide         []float64 // wide[i]: the largest of cells i − 1, i and i + 1
 	outLo, outHi float64   // the bounds below the cells and from the last cell's left end on
+	top          float64   // the last cell's left end, slopeLo + slopeH·(len(cells) − 1)
 	most         float64   // the largest of all, times 1 + 1e-12 (minSlope)
 }
 
@@ -1115,6 +1428,7 @@ func newSlopeBound(n int64) slopeBound {
 	}
 	b.outLo = nf * normPDF(slopeLo)
 	b.outHi = nf * normPDF(slopeLo+slopeH*float64(m-1))
+	b.top = slopeLo + slopeH*float64(m-1)
 	b.most = best * (1 + 1e-12)
 	b.wide = make([]float64, m)
 	for i := range m {
@@ -1132,20 +1446,34 @@ func (b *slopeBound) over(z0, z1 float64) float64 {
 	if hi < lo {
 		lo, hi = hi, lo
 	}
-	m := len(b.cells)
-	if lo >= slopeLo && hi < slopeLo+slopeH*float64(m-1) {
-		// Within the cells (the usual case): the widened cells from lo's
-		// to hi's, the index by one product (the widening covers its
-		// rounding).
-		i0, i1 := int((lo-slopeLo)*(1/slopeH)), min(m-1, int((hi-slopeLo)*(1/slopeH)))
-		L := b.wide[i0]
-		for i := i0 + 1; i <= i1; i++ {
-			if b.wide[i] > L {
-				L = b.wide[i]
-			}
-		}
-		return L * (1 + 1e-12)
+	if L, ok := b.inCells(lo, hi); ok {
+		return L
 	}
+	return b.beyond(lo, hi)
+}
+
+// inCells is over on [lo, hi] (lo <= hi) where both ends are within the
+// cells (the usual case: ok; small enough to be inlined in the fine
+// grid's loop): the largest of the widened cells from lo's to hi's, the
+// index by one product (the widening covers its rounding).
+func (b *slopeBound) inCells(lo, hi float64) (float64, bool) {
+	if !(lo >= slopeLo && hi < b.top) {
+		return 0, false
+	}
+	i0, i1 := int((lo-slopeLo)*(1/slopeH)), min(len(b.wide)-1, int((hi-slopeLo)*(1/slopeH)))
+	w := b.wide[i0 : i1+1]
+	L := w[0]
+	for _, x := range w[1:] {
+		if x > L {
+			L = x
+		}
+	}
+	return L * (1 + 1e-12), true
+}
+
+// beyond is over on [lo, hi] (lo <= hi) reaching beyond the cells.
+func (b *slopeBound) beyond(lo, hi float64) float64 {
+	m := len(b.cells)
 	if !finite(lo) || !finite(hi) {
 		return b.most
 	}
@@ -1153,7 +1481,7 @@ func (b *slopeBound) over(z0, z1 float64) float64 {
 	if lo < slopeLo {
 		L = b.outLo
 	}
-	if hi >= slopeLo+slopeH*float64(m-1) {
+	if hi >= b.top {
 		L = math.Max(L, b.outHi)
 	}
 	i0 := max(0, int(math.Floor((lo-slopeLo)/slopeH))-1)

@@ -378,3 +378,54 @@ func TestSiteKinkedRuleAgainstFinerRule(t *testing.T) {
 	}
 	t.Logf("largest difference from the reference: %.2f of the rule's estimate there", worst)
 }
+
+// The probes' fused pass (fineBounds: the reference and its coarse grids
+// with both interpolation bounds in one walk, one group's law or the
+// fleet's) must give the same bits as the passes it replaces, mixZs over
+// the fine modes and interpBoundsWith, at every probe time of every law:
+// on the two-factor site, and on the site with twin groups, whose fleet
+// reads repeated groups' probits from the first (rowReps).
+func TestSiteFineBoundsSameBits(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		spec SiteSpec
+	}{{"two-factor site", TwoFactorSiteSpec(t)}, {"twin groups", twinSiteSpec(t)}} {
+		s, err := NewSite(c.spec)
+		require.NoError(t, err, c.name)
+		spread := [2]bool{len(s.fac[0].fz) > 1, len(s.fac[1].fz) > 1}
+		modes := [][2]int{{modeFine, modeFine}}
+		for d := range 2 {
+			if spread[d] {
+				m := [2]int{modeFine, modeFine}
+				m[d] = modeCoarse
+				modes = append(modes, m)
+			}
+		}
+		type law struct {
+			kind lawKind
+			g    int
+		}
+		laws := []law{{kindFleet, 0}}
+		for g := range s.names {
+			laws = append(laws, law{kindNode, g}, law{kindFirst, g})
+		}
+		sc := new(ruleScratch)
+		probes := 0
+		for _, l := range laws {
+			for _, tm := range s.probeTimes(l.kind, l.g, 0) {
+				probes++
+				Z := s.nodeZ(tm, nil)
+				sums, bounds := s.fineBounds(sc, Z, l.kind, l.g, 0, spread)
+				want := s.mixZs(new(ruleScratch), Z, l.kind, l.g, 0, modes...)
+				wantB := s.interpBoundsWith(new(ruleScratch), Z, l.kind, l.g, spread)
+				for i := range modes {
+					require.Equal(t, math.Float64bits(want[i]), math.Float64bits(sums[i]), "%s: kind %d group %d at %g s: mode %v", c.name, l.kind, l.g, tm, modes[i])
+				}
+				for d := range 2 {
+					require.Equal(t, math.Float64bits(wantB[d]), math.Float64bits(bounds[d]), "%s: kind %d group %d at %g s: bound %d", c.name, l.kind, l.g, tm, d)
+				}
+			}
+		}
+		t.Logf("%s: %d laws, %d probes", c.name, len(laws), probes)
+	}
+}

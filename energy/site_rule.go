@@ -633,6 +633,7 @@ type ruleScratch struct {
 	rep          []int     // rowReps
 	y0, y1, bnd  []float64 // interpBound
 	z            []float64 // nodeZ within probeTimes' root search
+	z0           []float64 // fineBounds' probits at the fine points
 	hint         []int     // and its tables' intervals (nodeZInto)
 	want         []bool
 	// fineBounds' weights at the fine points (pointWeights), for the
@@ -737,6 +738,11 @@ func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64,
 		pu, wus[i], ru = pick(fu, m[0])
 		pv, wvs[i], rv = pick(fv, m[1])
 	}
+	if M == 1 && (kind == kindNode || kind == kindFirst) {
+		var sums [maxModes]float64
+		sums[0] = s.mixOne(sc, Z, kind, g, pu, pv, wus[0], wvs[0], ru, rv)
+		return sums
+	}
 	// The groups the conditional CDF reads: g alone, or all of them.
 	one := kind == kindNode || kind == kindFirst
 	g0, g1 := 0, G
@@ -824,6 +830,69 @@ func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64,
 		sums[i] = math.Min(1, math.Max(0, sums[i]))
 	}
 	return sums
+}
+
+// mixOne is mixZs in one mode (pu × pv points, weights wu and wv,
+// interpolation rows ru and rv, nil at the nodes) for a law that reads one
+// group g (a node law or its first failure): the same operations in the
+// same order, without the groups' and the modes' loops.
+func (s *Site) mixOne(sc *ruleScratch, Z []float64, kind lawKind, g, pu, pv int, wu, wv []float64, ru, rv *interpRows) float64 {
+	nv := len(s.fac[1].z)
+	E := len(s.envs)
+	zh := Z[g*E : (g+1)*E]
+	sc.y = grown(sc.y, pu*nv)
+	Y := sc.y
+	for a := range pu {
+		if wu[a] == 0 {
+			continue
+		}
+		row := Y[a*nv : (a+1)*nv]
+		for j := range nv {
+			if ru == nil {
+				row[j] = zh[a*nv+j]
+			} else {
+				row[j] = interp(ru, a, zh[j:], nv)
+			}
+		}
+	}
+	wv = wv[:pv]
+	sum := 0.0
+	for a := range pu {
+		if wu[a] == 0 {
+			continue
+		}
+		y := Y[a*nv : (a+1)*nv]
+		inf := math.IsInf(y[0], 0)
+		for b := range pv {
+			w := wu[a] * wv[b]
+			if !(w >= 1e-14) {
+				continue
+			}
+			var z float64
+			switch {
+			case rv == nil:
+				z = y[b]
+			case inf:
+				z = y[0] // interp1
+			default:
+				z = rowDot(rv.w[b], y[rv.off[b]:])
+			}
+			sum += w * s.condOne(kind, g, z)
+		}
+	}
+	return math.Min(1, math.Max(0, sum))
+}
+
+// condOne is condAt for a node law or a group's first failure, from the
+// group's probit z alone.
+func (s *Site) condOne(kind lawKind, g int, z float64) float64 {
+	switch {
+	case kind == kindNode:
+		return normSurv(-z)
+	case z >= s.sure[g]:
+		return 1 // what the formula gives there (firstSure)
+	}
+	return -math.Expm1(float64(s.counts[g]) * mills.LogUpper(z))
 }
 
 // probitAt is the probit of a conditional node law's CDF at t (+Inf from
@@ -1176,37 +1245,23 @@ func (s *Site) fineBounds(sc *ruleScratch, Z []float64, kind lawKind, g int, k i
 	if kind != kindFleet {
 		return s.fineBoundsOne(sc, Y0, Y1, kind, g, M, ds)
 	}
-	// over is interpBoundsWith's slope bound between z0 and z1 for group h
-	// (L its own cells), with those of the groups that repeat it, in the
-	// same order: the same bits.
-	over := func(L *slopeBound, h int, z0, z1 float64) float64 {
-		lo, hi := z0, z1
-		if hi < lo {
-			lo, hi = hi, lo
-		}
-		l, ok := L.inCells(lo, hi)
-		if !ok {
-			l = L.beyond(lo, hi)
-		}
-		for m := h + 1; rep != nil && m < g1; m++ {
-			if rep[m] == h {
-				l += s.slope[m].over(z0, z1)
-			}
-		}
-		return l
-	}
-	pw := sc.pointWeights(fu, fv, ds)
+	// The fleet's: the points first (each group's probit kept, Z0[(h −
+	// g0)·P + point]), then each group's bound terms point by point (the
+	// groups in order at each point, as interpBoundsWith adds them), then
+	// their sum with the fine weights.
+	P := pu * pv
+	pw := sc.pointWeights(fu, fv, ds)[:P]
 	sc.zs = grown(sc.zs, G)
 	sc.probs = grown(sc.probs, G)
 	zs, probs := sc.zs, sc.probs
-	lagW, lagOff := fv.lag.w, fv.lag.off
-	lagrW, lagrOff := fv.lagr.w, fv.lagr.off
-	bounds := ds[0] || ds[1]
-	var bsum [2]float64
-	var pts int
+	sc.z0 = grown(sc.z0, (g1-g0)*P)
+	Z0 := sc.z0
+	lagW, lagOff := fv.lag.w[:pv], fv.lag.off[:pv]
+	lagrW, lagrOff := fv.lagr.w[:pv], fv.lagr.off[:pv]
 	for a := range pu {
 		for b := range pv {
-			ws := &pw[a*pv+b]
+			pt := a*pv + b
+			ws := &pw[pt]
 			if ws[0] == 0 && ws[1] == 0 && ws[2] == 0 {
 				continue // every weight below 1e-14
 			}
@@ -1222,6 +1277,7 @@ func (s *Site) fineBounds(sc *ruleScratch, Z []float64, kind lawKind, g int, k i
 				} else {
 					zs[h] = rowDot(lagW[b], y0[lagOff[b]:])
 				}
+				Z0[(h-g0)*P+pt] = zs[h]
 			}
 			c := s.condAt(kind, g, k, zs, probs, rep)
 			for i := range M {
@@ -1229,48 +1285,89 @@ func (s *Site) fineBounds(sc *ruleScratch, Z []float64, kind lawKind, g int, k i
 					sums[i] += ws[i] * c
 				}
 			}
-			// The bounds: Σ_h L_h·|Δz_h| at the point, summed with the
-			// fine weights (where at least 1e-14).
-			if ws[0] == 0 || !bounds {
-				continue
-			}
-			var bnd [2]float64
-			for h := g0; h < g1; h++ {
-				if rep != nil && rep[h] != h {
-					continue
-				}
-				z0 := zs[h]
-				o := ((h-g0)*pu + a) * nv
-				L := &s.slope1
-				if kind != kindNode {
-					L = &s.slope[h]
-				}
-				if ds[0] && !fu.same[a] {
-					z1 := Y1[o]
-					if y1 := Y1[o : o+nv]; !math.IsInf(y1[0], 0) {
-						z1 = rowDot(lagW[b], y1[lagOff[b]:])
-					}
-					if z0 != z1 {
-						bnd[0] += over(L, h, z0, z1) * math.Abs(z1-z0)
-					}
-				}
-				if ds[1] && !fv.same[b] {
-					z1 := Y0[o]
-					if y0 := Y0[o : o+nv]; !math.IsInf(y0[0], 0) {
-						z1 = rowDot(lagrW[b], y0[lagrOff[b]:])
-					}
-					if z0 != z1 {
-						bnd[1] += over(L, h, z0, z1) * math.Abs(z1-z0)
-					}
-				}
-			}
-			bsum[0] += ws[0] * bnd[0]
-			bsum[1] += ws[0] * bnd[1]
-			pts++
 		}
 	}
 	for i := range M {
 		sums[i] = math.Min(1, math.Max(0, sums[i]))
+	}
+	if !(ds[0] || ds[1]) {
+		return sums, res
+	}
+	// The bounds: Σ_h L_h·|Δz_h| at each point where the fine weight is
+	// at least 1e-14.
+	sc.bnd = grown(sc.bnd, 2*P)
+	bound := [2][]float64{sc.bnd[:P], sc.bnd[P:]}
+	vsame := fv.same[:pv]
+	for h := g0; h < g1; h++ {
+		if rep != nil && rep[h] != h {
+			continue
+		}
+		L := &s.slope[h]
+		// over is interpBoundsWith's slope bound between z0 and z1, with
+		// those of the groups that repeat h, in the same order.
+		over := func(z0, z1 float64) float64 {
+			lo, hi := z0, z1
+			if hi < lo {
+				lo, hi = hi, lo
+			}
+			l, ok := L.inCells(lo, hi)
+			if !ok {
+				l = L.beyond(lo, hi)
+			}
+			for m := h + 1; rep != nil && m < g1; m++ {
+				if rep[m] == h {
+					l += s.slope[m].over(z0, z1)
+				}
+			}
+			return l
+		}
+		z0h := Z0[(h-g0)*P : (h-g0+1)*P]
+		for a := range pu {
+			o := ((h-g0)*pu + a) * nv
+			y0 := Y0[o : o+nv]
+			inf0 := math.IsInf(y0[0], 0)
+			bu := ds[0] && !fu.same[a]
+			var y1 []float64
+			inf1 := false
+			if bu {
+				y1 = Y1[o : o+nv]
+				inf1 = math.IsInf(y1[0], 0)
+			}
+			for b := range pv {
+				pt := a*pv + b
+				if pw[pt][0] == 0 {
+					continue
+				}
+				z0 := z0h[pt]
+				if bu {
+					z1 := y1[0]
+					if !inf1 {
+						z1 = rowDot(lagW[b], y1[lagOff[b]:])
+					}
+					if z0 != z1 {
+						bound[0][pt] += over(z0, z1) * math.Abs(z1-z0)
+					}
+				}
+				if ds[1] && !vsame[b] {
+					z1 := y0[0]
+					if !inf0 {
+						z1 = rowDot(lagrW[b], y0[lagrOff[b]:])
+					}
+					if z0 != z1 {
+						bound[1][pt] += over(z0, z1) * math.Abs(z1-z0)
+					}
+				}
+			}
+		}
+	}
+	var bsum [2]float64
+	pts := 0
+	for pt := range P {
+		if w := pw[pt][0]; w != 0 {
+			bsum[0] += w * bound[0][pt]
+			bsum[1] += w * bound[1][pt]
+			pts++
+		}
 	}
 	for d := range 2 {
 		if ds[d] {
@@ -1329,8 +1426,7 @@ func (s *Site) fineBoundsOne(sc *ruleScratch, Y0, Y1 []float64, kind lawKind, g,
 			if !inf0 {
 				z0 = rowDot(lagW[b], y0[lagOff[b]:])
 			}
-			// condAt
-			var c float64
+			var c float64 // condOne, inlined
 			switch {
 			case kind == kindNode:
 				c = normSurv(-z0)

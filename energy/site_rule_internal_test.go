@@ -382,9 +382,10 @@ func TestSiteKinkedRuleAgainstFinerRule(t *testing.T) {
 // The probes' fused pass (fineBounds: the reference and its coarse grids
 // with both interpolation bounds in one walk, one group's law or the
 // fleet's) must give the same bits as the passes it replaces, mixZs over
-// the fine modes and interpBoundsWith, at every probe time of every law:
-// on the two-factor site, and on the site with twin groups, whose fleet
-// reads repeated groups' probits from the first (rowReps).
+// the fine modes and interpBoundsWith, at every probe time of every law,
+// and mixZs in one mode for one group (mixOne) those of its loop over the
+// modes: on the two-factor site, and on the site with twin groups, whose
+// fleet reads repeated groups' probits from the first (rowReps).
 func TestSiteFineBoundsSameBits(t *testing.T) {
 	for _, c := range []struct {
 		name string
@@ -423,6 +424,13 @@ func TestSiteFineBoundsSameBits(t *testing.T) {
 				}
 				for d := range 2 {
 					require.Equal(t, math.Float64bits(wantB[d]), math.Float64bits(bounds[d]), "%s: kind %d group %d at %g s: bound %d", c.name, l.kind, l.g, tm, d)
+				}
+				// One mode of a one-group law (mixOne) against the
+				// modes' loop (the same mode twice).
+				for _, m := range [][2]int{{modeNodes, modeNodes}, {modeFine, modeNodes}, {modeNodes, modeFine}, {modeReduced, modeFine}, {modeFine, modeReduced}} {
+					one := s.mixZs(sc, Z, l.kind, l.g, 0, m)[0]
+					two := s.mixZs(sc, Z, l.kind, l.g, 0, m, m)
+					require.Equal(t, math.Float64bits(two[0]), math.Float64bits(one), "%s: kind %d group %d at %g s: mode %v", c.name, l.kind, l.g, tm, m)
 				}
 			}
 		}

@@ -602,6 +602,26 @@ func interp(rows *interpRows, i int, y []float64, stride int) float64 {
 	return z
 }
 
+// interpRow fills dst[j] with interp(rows, i, y[j:], stride) for each j
+// in [0, len(dst)): one row of rows along a strided factor for each of
+// the other factor's len(dst) nodes (the same sums, term by term).
+func interpRow(dst []float64, rows *interpRows, i int, y []float64, stride int) {
+	w, off := rows.w[i], rows.off[i]
+	for j := range dst {
+		if math.IsInf(y[j], 0) {
+			dst[j] = y[j]
+			continue
+		}
+		z := 0.0
+		for k, l := range w {
+			if l != 0 {
+				z += l * y[(off+k)*stride+j]
+			}
+		}
+		dst[j] = z
+	}
+}
+
 // interp1 is interp for stride 1 (the same sum, term by term), the row's
 // values sliced once: the fine grid's inner loops read it.
 func interp1(rows *interpRows, i int, y []float64) float64 {
@@ -776,12 +796,10 @@ func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64,
 				continue
 			}
 			row := Y[((h-g0)*pu+a)*nv : ((h-g0)*pu+a+1)*nv]
-			for j := range nv {
-				if ru == nil {
-					row[j] = zh[a*nv+j]
-				} else {
-					row[j] = interp(ru, a, zh[j:], nv)
-				}
+			if ru == nil {
+				copy(row, zh[a*nv:(a+1)*nv])
+			} else {
+				interpRow(row, ru, a, zh, nv)
 			}
 		}
 	}
@@ -847,12 +865,10 @@ func (s *Site) mixOne(sc *ruleScratch, Z []float64, kind lawKind, g, pu, pv int,
 			continue
 		}
 		row := Y[a*nv : (a+1)*nv]
-		for j := range nv {
-			if ru == nil {
-				row[j] = zh[a*nv+j]
-			} else {
-				row[j] = interp(ru, a, zh[j:], nv)
-			}
+		if ru == nil {
+			copy(row, zh[a*nv:(a+1)*nv])
+		} else {
+			interpRow(row, ru, a, zh, nv)
 		}
 	}
 	wv = wv[:pv]
@@ -1232,13 +1248,9 @@ func (s *Site) fineBounds(sc *ruleScratch, Z []float64, kind lawKind, g int, k i
 		zh := Z[h*E : (h+1)*E]
 		o := (h - g0) * pu * nv
 		for a := range pu {
-			for j := range nv {
-				Y0[o+a*nv+j] = interp(&fu.lag, a, zh[j:], nv)
-			}
+			interpRow(Y0[o+a*nv:o+(a+1)*nv], &fu.lag, a, zh, nv)
 			if ds[0] && !fu.same[a] {
-				for j := range nv {
-					Y1[o+a*nv+j] = interp(&fu.lagr, a, zh[j:], nv)
-				}
+				interpRow(Y1[o+a*nv:o+(a+1)*nv], &fu.lagr, a, zh, nv)
 			}
 		}
 	}
@@ -1916,9 +1928,9 @@ func (s *Site) tableErrorZ(t float64, Z []float64, kind lawKind, g int) float64 
 		}
 		return normSurv(z)
 	}
-	var ds, ss []float64
+	var ds, ss, pows []float64
 	if kind == kindFleet {
-		ds, ss = make([]float64, len(s.names)), make([]float64, len(s.names))
+		ds, ss, pows = make([]float64, len(s.names)), make([]float64, len(s.names)), make([]float64, len(s.names))
 	}
 	sum := 0.0
 	for e := range s.envs {
@@ -1942,6 +1954,13 @@ func (s *Site) tableErrorZ(t float64, Z []float64, kind lawKind, g int) float64 
 				ds[h] = errAt(tb, z)
 				ss[h] = math.Min(1, surv(tb, z)+ds[h])
 			}
+			// Each group's survival to its count, once (the same value
+			// in every term that reads it), where a term is read.
+			if slices.ContainsFunc(ds, func(d float64) bool { return d != 0 }) {
+				for k := range s.names {
+					pows[k] = powSurv(ss[k], s.counts[k])
+				}
+			}
 			for h := range s.names {
 				if ds[h] == 0 {
 					continue
@@ -1949,7 +1968,7 @@ func (s *Site) tableErrorZ(t float64, Z []float64, kind lawKind, g int) float64 
 				term := float64(s.counts[h]) * ds[h] * powSurv(ss[h], s.counts[h]-1)
 				for k := range s.names {
 					if k != h {
-						term *= powSurv(ss[k], s.counts[k])
+						term *= pows[k]
 					}
 				}
 				err += term

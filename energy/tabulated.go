@@ -615,7 +615,7 @@ func (tb *tabulated) errAt(t float64) float64 {
 // errAtZ is errAt at t within (0, cal) whose probit z = zAt(t) is known
 // (the site rule's probes have it): the same value.
 func (tb *tabulated) errAtZ(t, z float64) float64 {
-	i := sort.SearchFloat64s(tb.profT, t)
+	i := searchTimes(tb.profT, t) // sort.SearchFloat64s's index
 	var src float64
 	switch {
 	case i == 0:

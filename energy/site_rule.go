@@ -836,18 +836,10 @@ func (s *Site) mixZs(sc *ruleScratch, Z []float64, kind lawKind, g int, k int64,
 					zs[h] = interp1(rv, b, y)
 				}
 			}
-			c := s.condAt(kind, g, k, zs, probs, rep)
-			for i := range M {
-				if ws[i] != 0 {
-					sums[i] += ws[i] * c
-				}
-			}
+			addWeighted(&sums, &ws, M, s.condAt(kind, g, k, zs, probs, rep))
 		}
 	}
-	for i := range M {
-		sums[i] = math.Min(1, math.Max(0, sums[i]))
-	}
-	return sums
+	return clampSums(sums, M)
 }
 
 // mixOne is mixZs in one mode (pu × pv points, weights wu and wv,
@@ -1035,15 +1027,22 @@ func (s *Site) probeFinish(p *probeError, kind lawKind, g int, k int64) {
 	if p.owned {
 		return
 	}
+	s.byFactor(p, kind, g, k, modeNodes, modeFine, p.rule, &p.own)
+	p.owned = true
+}
+
+// byFactor sets dst[d], for each factor d with spread, to the difference
+// from from of p's mixture with factor d in mode mine and the other in
+// mode other.
+func (s *Site) byFactor(p *probeError, kind lawKind, g int, k int64, other, mine int, from float64, dst *[2]float64) {
 	for d := range 2 {
 		if len(s.fac[d].fz) == 1 {
 			continue
 		}
-		m := [2]int{modeNodes, modeNodes}
-		m[d] = modeFine
-		p.own[d] = math.Abs(s.mixZs(p.sc, p.Z, kind, g, k, m)[0] - p.rule)
+		m := [2]int{other, other}
+		m[d] = mine
+		dst[d] = math.Abs(s.mixZs(p.sc, p.Z, kind, g, k, m)[0] - from)
 	}
-	p.owned = true
 }
 
 // probeExact computes p's interpolation terms, the reference's difference
@@ -1058,14 +1057,7 @@ func (s *Site) probeExact(p *probeError, kind lawKind, g int, k int64) {
 	if p.sc == nil {
 		p.sc = new(ruleScratch)
 	}
-	for d := range 2 {
-		if len(s.fac[d].fz) == 1 {
-			continue
-		}
-		m := [2]int{modeFine, modeFine}
-		m[d] = modeReduced
-		p.interp[d] = math.Abs(s.mixZs(p.sc, p.Z, kind, g, k, m)[0] - p.ref)
-	}
+	s.byFactor(p, kind, g, k, modeFine, modeReduced, p.ref, &p.interp)
 	p.exact = true
 }
 
@@ -1291,17 +1283,10 @@ func (s *Site) fineBounds(sc *ruleScratch, Z []float64, kind lawKind, g int, k i
 				}
 				Z0[(h-g0)*P+pt] = zs[h]
 			}
-			c := s.condAt(kind, g, k, zs, probs, rep)
-			for i := range M {
-				if ws[i] != 0 {
-					sums[i] += ws[i] * c
-				}
-			}
+			addWeighted(&sums, ws, M, s.condAt(kind, g, k, zs, probs, rep))
 		}
 	}
-	for i := range M {
-		sums[i] = math.Min(1, math.Max(0, sums[i]))
-	}
+	sums = clampSums(sums, M)
 	if !(ds[0] || ds[1]) {
 		return sums, res
 	}
@@ -1447,11 +1432,7 @@ func (s *Site) fineBoundsOne(sc *ruleScratch, Y0, Y1 []float64, kind lawKind, g,
 			default:
 				c = -math.Expm1(n * mills.LogUpper(z0))
 			}
-			for i := range M {
-				if w[i] != 0 {
-					sums[i] += w[i] * c
-				}
-			}
+			addWeighted(&sums, w, M, c)
 			if w[0] == 0 || !(ds[0] || ds[1]) {
 				continue
 			}
@@ -1479,15 +1460,30 @@ func (s *Site) fineBoundsOne(sc *ruleScratch, Y0, Y1 []float64, kind lawKind, g,
 			pts++
 		}
 	}
-	for i := range M {
-		sums[i] = math.Min(1, math.Max(0, sums[i]))
-	}
 	for d := range 2 {
 		if ds[d] {
 			res[d] = bsum[d]*(1+1e-12) + 2*float64(pts)*0x1p-52
 		}
 	}
-	return sums, res
+	return clampSums(sums, M), res
+}
+
+// addWeighted adds ws[i]·c to sums[i] for each of the first M modes with
+// a weight (mixZs' sums).
+func addWeighted(sums, ws *[maxModes]float64, M int, c float64) {
+	for i := range M {
+		if ws[i] != 0 {
+			sums[i] += ws[i] * c
+		}
+	}
+}
+
+// clampSums returns sums with each of the first M within [0, 1].
+func clampSums(sums [maxModes]float64, M int) [maxModes]float64 {
+	for i := range M {
+		sums[i] = math.Min(1, math.Max(0, sums[i]))
+	}
+	return sums
 }
 
 // minSlope returns an upper bound on the largest slope of the CDF of the

@@ -708,6 +708,18 @@ func (sc *ruleScratch) pointWeights(fu, fv *sharedFactor, ds [2]bool) [][maxMode
 	return pw
 }
 
+// wants returns the groups kind reads for nodeZ: g alone (sc.want, kept
+// from call to call) for a node law or a group's first failure, all (nil)
+// otherwise.
+func (sc *ruleScratch) wants(kind lawKind, g, groups int) []bool {
+	if kind != kindNode && kind != kindFirst {
+		return nil
+	}
+	sc.want = grown(sc.want, groups)
+	sc.want[g] = true
+	return sc.want
+}
+
 // grown returns b with length n, its values zeroed, reusing its array
 // where it is large enough.
 func grown[E any](b []E, n int) []E {
@@ -957,12 +969,7 @@ func (s *Site) probeStart(t float64, kind lawKind, g int, k int64) probeError {
 
 // probeStartWith is probeStart with the working arrays of sc.
 func (s *Site) probeStartWith(sc *ruleScratch, t float64, kind lawKind, g int, k int64) probeError {
-	var want []bool
-	if kind == kindNode || kind == kindFirst {
-		want = make([]bool, len(s.names))
-		want[g] = true
-	}
-	return s.probeZWith(sc, t, s.nodeZ(t, want), kind, g, k, false)
+	return s.probeZWith(sc, t, s.nodeZ(t, sc.wants(kind, g, len(s.names))), kind, g, k, false)
 }
 
 // probeZ is probeStart and probeFinish from the node probits Z at t
@@ -983,12 +990,13 @@ func (s *Site) probeZWith(sc *ruleScratch, t float64, Z []float64, kind lawKind,
 	p.rule = s.mixZs(sc, p.Z, kind, g, k, [2]int{modeNodes, modeNodes})[0]
 	// The reference and, from the same points, every other point of its
 	// grid in each factor with spread (the fine rule's own error).
-	modes := [][2]int{{modeFine, modeFine}}
+	modes := [maxModes][2]int{{modeFine, modeFine}}
+	M := 1
 	for d := range 2 {
 		if len(s.fac[d].fz) > 1 {
-			m := [2]int{modeFine, modeFine}
-			m[d] = modeCoarse
-			modes = append(modes, m)
+			modes[M] = [2]int{modeFine, modeFine}
+			modes[M][d] = modeCoarse
+			M++
 		}
 	}
 	spread := [2]bool{len(s.fac[0].fz) > 1, len(s.fac[1].fz) > 1}
@@ -996,7 +1004,7 @@ func (s *Site) probeZWith(sc *ruleScratch, t float64, Z []float64, kind lawKind,
 	var fine [maxModes]float64
 	var bounds [2]float64
 	if finish {
-		fine = s.mixZs(sc, p.Z, kind, g, k, modes...)
+		fine = s.mixZs(sc, p.Z, kind, g, k, modes[:M]...)
 	} else {
 		fine, bounds = s.fineBounds(sc, p.Z, kind, g, k, spread)
 	}

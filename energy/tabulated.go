@@ -42,6 +42,7 @@ const (
 	tabInitial    = 9           // points of the first grid
 	tabSetInitial = 5           // knots of a setting's first grid (with gradients)
 	tabSetGuard   = 3           // a setting table's interval's estimated largest error, in tolerances (gradGrid)
+	tabSetSeason  = 1           // a setting table's halves' estimated seasonal error, in tolerances (gradGrid)
 	tabTail       = 1e-14       // a table spans the law from tabTail to 1 − tabTail
 	tabSetTail    = 1e-18       // a setting's table spans its law from tabSetTail to 1 − tabSetTail
 	tabEndSlack   = 0.25        // probit by which a setting table's end may lie beyond its level

@@ -150,13 +150,14 @@ func probitGrid(probit func(float64) float64, lo, hi, zl, zh float64, kinks []fl
 		d0, d1 = pchipIntervals(unpack(ks))
 	}, func(a, b *knot) bool {
 		return b.t-a.t <= minWidth || (math.IsInf(a.z, 0) && a.z == b.z)
-	}, func(i int, a, b *knot) (knot, float64) {
+	}, func(i int, a, b *knot) (knot, float64, float64) {
 		m := knot{t: a.t + (b.t-a.t)/2}
 		m.z = probit(m.t)
 		if math.IsInf(m.z, 0) || math.IsInf(a.z, 0) || math.IsInf(b.z, 0) {
-			return m, math.Inf(1)
+			return m, math.Inf(1), math.Inf(1)
 		}
-		return m, math.Abs(hermite(a.t, b.t, a.z, b.z, d0[i], d1[i], m.t) - m.z)
+		e := math.Abs(hermite(a.t, b.t, a.z, b.z, d0[i], d1[i], m.t) - m.z)
+		return m, e, e
 	})
 	pt := probitTable{kinks: len(kinks), worst: worst, evals: evals + len(ts) - 2}
 	pt.t, pt.z, kink = unpack(ks)
@@ -186,16 +187,18 @@ func firstGrid(lo, hi float64, kinks []float64) (ts []float64, kink []bool) {
 
 // halveUntil is the tables' one refinement: pass by pass, the interval
 // between consecutive knots a and b is split at its midpoint by split,
-// which returns the midpoint's knot and the interpolant's error there; the
-// midpoint joins the knots either way, and an interval whose error is
-// within tol is not checked again (its halves are closer still). An
+// which returns the midpoint's knot and the interpolant's error there,
+// for each half (the same for both but where a half may be judged on its
+// own: gradGrid's seasonal guard); the midpoint joins the knots either
+// way, and a half whose error is within tol is not checked again (it is
+// closer still). An
 // interval is left alone where skip says so or when the knots would pass
 // tabMaxPoints; at most 40 passes. pass, if not nil, sees the knots at the
 // start of each pass. It returns the knots, the largest error within tol
 // measured and the number of splits. The passes write into buf (ks is
 // only read, and must not be one of its buffers); the knots returned are
 // buf's, until it is lent again.
-func halveUntil[K any](ks []K, buf *halveBufs[K], tol float64, pass func([]K), skip func(a, b *K) bool, split func(i int, a, b *K) (K, float64)) ([]K, float64, int) {
+func halveUntil[K any](ks []K, buf *halveBufs[K], tol float64, pass func([]K), skip func(a, b *K) bool, split func(i int, a, b *K) (K, float64, float64)) ([]K, float64, int) {
 	worst, evals := 0.0, 0
 	// The first pass's marks in buf.done[1], which it does not write: a
 	// pass writes its knots and marks into the buffers the pass before
@@ -227,16 +230,18 @@ func halveUntil[K any](ks []K, buf *halveBufs[K], tol float64, pass func([]K), s
 				nd = append(nd, true)
 				continue
 			}
-			m, e := split(i, a, b)
+			m, e0, e1 := split(i, a, b)
 			evals++
-			ok := e <= tol
-			if ok {
-				worst = math.Max(worst, e)
-			} else {
-				refined = true
+			ok0, ok1 := e0 <= tol, e1 <= tol
+			if ok0 {
+				worst = math.Max(worst, e0)
 			}
+			if ok1 {
+				worst = math.Max(worst, e1)
+			}
+			refined = refined || !ok0 || !ok1
 			nk = append(nk, m, *b)
-			nd = append(nd, ok, ok)
+			nd = append(nd, ok0, ok1)
 		}
 		ks, done = nk, nd
 		w = 1 - w
@@ -850,14 +855,15 @@ func hermiteGrid(f func(float64) (z, dl, dr float64), lo, hi float64, kinks []fl
 	}
 	ks, worst, evals := halveUntil(ks, &halveBufs[knot]{}, tol, nil, func(a, b *knot) bool {
 		return b.t-a.t <= minWidth || (math.IsInf(a.z, 0) && a.z == b.z)
-	}, func(_ int, a, b *knot) (knot, float64) {
+	}, func(_ int, a, b *knot) (knot, float64, float64) {
 		m := knot{t: a.t + (b.t-a.t)/2}
 		m.z, m.dl, m.dr = f(m.t)
 		if math.IsInf(m.z, 0) || math.IsInf(a.z, 0) || math.IsInf(b.z, 0) {
-			return m, math.Inf(1)
+			return m, math.Inf(1), math.Inf(1)
 		}
 		d0, d1 := slopes(a, b)
-		return m, math.Abs(hermite(a.t, b.t, a.z, b.z, d0, d1, m.t) - m.z)
+		e := math.Abs(hermite(a.t, b.t, a.z, b.z, d0, d1, m.t) - m.z)
+		return m, e, e
 	})
 	pt := probitTable{kinks: len(kinks), worst: worst, evals: evals + len(ts)}
 	pt.t, pt.z = make([]float64, len(ks)), make([]float64, len(ks))

@@ -322,21 +322,24 @@ func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64
 // TestSettingTablesSeasons' settings up to 3.0·tol). The seasonal
 // guard (seasonal) estimates that part on each half from the three knots'
 // gradients and the clocks at the month boundaries, without evaluating the
-// model, and an interval is accepted only where the estimate is within
-// tabSetSeason times tol (times its loose factor) too. A half's error is
-// then its smooth part, about est/16 <= 0.19·tol at most (the guard's
-// cubic over half the interval), and its seasonal part, which the estimate
-// tracks: the halves' error, both parts, measured at most 1.28 times the
-// estimate where that is above tol/2 (on the demo's 3,847 intervals
-// accepted at their midpoints; at most 0.99 on 470 of 36 one-setting
-// laws like the test's), so within 1.28·tol + 0.19·tol where the guard
-// accepts. Every interval is then within 1.5·tol, the error the tables
-// state (settingOut.errZ; 1.5·λ·tol where loose): the demo's worst after
-// the guard 0.90·tol (in probit, against the node model at 39 times in
-// each interval: a loose interval in the far tail, which the guard does
-// not change), the test's 0.81·tol. It costs the demo's tables 454 model
-// evaluations (10,054 instead of 9,600), the splits of the intervals it
-// turns down.
+// model, and of an interval that passes the checks above, a half is
+// accepted only where its estimate is within tabSetSeason times tol (times
+// the interval's loose factor) too; the other is checked in its turn. An
+// accepted half's error is then its smooth part, about est/16 <= 0.19·tol
+// at most (the guard's cubic over half the interval), and its seasonal
+// part, which the estimate tracks. Measured against the model at 39 times
+// in each half, on the 3,847 intervals of the demo's tables that pass the
+// midpoint checks (and the 470 of 36 one-setting laws like the test's):
+// where the larger of the halves' estimates is above tol/2, the larger of
+// their errors is at most 1.28 times it (0.99); where it is at most tol,
+// their errors are at most 0.90·tol (0.89). So a half the guard accepts
+// errs by about 1.28·tol at most: within 1.5·tol, the error the tables
+// state (settingOut.errZ; 1.5·λ·tol where loose). With the guard, the
+// demo's tables' worst interval is 0.90·tol (a loose one in the far
+// tail, which the guard does not change; those at tol itself 0.53·tol),
+// the test's 0.81·tol. It costs the demo's tables 282 model evaluations
+// (9,882 instead of 9,600), the checks of the halves it turns down (454
+// where both halves of such an interval were checked).
 //
 // initial is the first grid's knots (tabSetInitial; tabLooseInitial for a
 // loose table).
@@ -456,10 +459,10 @@ func (n *node) clockGrid(sc *tableScratch, lo, hi gradKnot, tol float64, initial
 	}
 	ks, worst, splits := halveUntil(ks, &sc.halve, tol, nil, func(a, b *gradKnot) bool {
 		return b.t-a.t <= 1e-9*b.t || (!finite(a) && a.z == b.z)
-	}, func(_ int, a, b *gradKnot) (gradKnot, float64) {
+	}, func(_ int, a, b *gradKnot) (gradKnot, float64, float64) {
 		m, sm := at(a.t + (b.t-a.t)/2)
 		if !finite(a) || !finite(b) || !finite(&m) {
-			return m, math.Inf(1)
+			return m, math.Inf(1), math.Inf(1)
 		}
 		lam := 1.0
 		if loose != nil {
@@ -468,17 +471,25 @@ func (n *node) clockGrid(sc *tableScratch, lo, hi gradKnot, tol float64, initial
 		zi, dzi := n.gradInterp(a, b, m.t, true)
 		e := math.Abs(zi - m.z)
 		if est := e + 0.2*math.Abs(dzi-sm)*(b.t-a.t); est > tabSetGuard*tol*lam {
-			return m, est / lam // the halves are checked in their turn
+			return m, est / lam, est / lam // the halves are checked in their turn
 		}
-		if !own {
-			if s := n.seasonal(a, &m, b, &sr, tabSetSeason*tol*lam); s > tabSetSeason*tol*lam {
-				return m, s / (tabSetSeason * lam) // above tol: the halves are checked in their turn
+		e0, e1 := e/lam, e/lam
+		if limit := tabSetSeason * tol * lam; !own && e <= tol*lam {
+			// A half whose seasonal estimate is above the limit is
+			// checked in its turn (its error here above tol), the other
+			// accepted.
+			s := n.seasonal(a, &m, b, &sr, limit)
+			if s[0] > limit {
+				e0 = s[0] / (tabSetSeason * lam)
+			}
+			if s[1] > limit {
+				e1 = s[1] / (tabSetSeason * lam)
 			}
 		}
-		if lam == 1 && e <= tol {
+		if lam == 1 && e <= tol && (e0 <= tol || e1 <= tol) {
 			tight = math.Max(tight, e)
 		}
-		return m, e / lam
+		return m, e0, e1
 	})
 	if loose != nil {
 		worst = tight
@@ -919,9 +930,9 @@ func (n *node) seasonRates() seasonRates {
 	return sr
 }
 
-// seasonal returns the estimate of the seasonal part of the error that
+// seasonal returns the estimates of the seasonal part of the error that
 // the halves [a, m] and [m, b] of an interval checked at its midpoint m
-// keep (gradGrid's seasonal guard), the larger of the two: on a half
+// keep (gradGrid's seasonal guard), each half's: on a half
 // [p, q], Σ_i (|g_i(q) − g_i(p)|·ρ/2 + |g_i(a) − 2·g_i(m) + g_i(b)|/8)·δ_i
 // over the clocks D and Φ, with δ_i the clock's largest departure from
 // its chord on the half (at a month boundary, where its rate changes)
@@ -933,8 +944,8 @@ func (n *node) seasonRates() seasonRates {
 // along the chord, where the gradient's change shows it (∇²z·Δc = Δg),
 // scaled by ρ. Where the bounds of sr (δ_i at most a half's length times
 // the spread over four, ρ at most sr.rho) put the estimate within limit,
-// that bound is returned and no month boundary is visited.
-func (n *node) seasonal(a, m, b *gradKnot, sr *seasonRates, limit float64) float64 {
+// that bound is returned for both and no month boundary is visited.
+func (n *node) seasonal(a, m, b *gradKnot, sr *seasonRates, limit float64) [2]float64 {
 	var d1, d2 [3]float64 // per clock: the gradient's largest change over a half, its second difference over 8
 	rho := 0.0
 	for i := 1; i < 3; i++ {
@@ -948,10 +959,10 @@ func (n *node) seasonal(a, m, b *gradKnot, sr *seasonRates, limit float64) float
 		crude += (d1[i]*rho/2 + d2[i]) * h * sr.spread[i] / 4
 	}
 	if crude <= limit {
-		return crude
+		return [2]float64{crude, crude}
 	}
-	worst := 0.0
-	for _, half := range [2][2]*gradKnot{{a, m}, {m, b}} {
+	var est [2]float64
+	for hi, half := range [2][2]*gradKnot{{a, m}, {m, b}} {
 		p, q := half[0], half[1]
 		w := q.t - p.t
 		var dev [3]float64
@@ -972,7 +983,7 @@ func (n *node) seasonal(a, m, b *gradKnot, sr *seasonRates, limit float64) float
 		for i := 1; i < 3; i++ {
 			e += (math.Abs(q.g[i]-p.g[i])*r/2 + d2[i]) * dev[i]
 		}
-		worst = math.Max(worst, e)
+		est[hi] = e
 	}
-	return worst
+	return est
 }

@@ -106,7 +106,7 @@ func (a affine) near(x float64) (y, v, m float64, atOrAbove, ok bool) {
 			continue
 		}
 		v = a.baseAtoms[j].Value
-		if math.Abs(v-y) <= AtomMergeTolerance*math.Max(math.Abs(v), math.Abs(y)) {
+		if math.Abs(v-y) <= AtomMergeTolerance*max(math.Abs(v), math.Abs(y)) {
 			return y, v, a.baseAtoms[j].Mass, x >= a.scale*v+a.shift, true
 		}
 	}
@@ -121,7 +121,7 @@ func atomMass(l Law, y float64) float64 {
 		return 0
 	}
 	for _, at := range al.Atoms() {
-		if math.Abs(at.Value-y) <= AtomMergeTolerance*math.Max(math.Abs(at.Value), math.Abs(y)) {
+		if math.Abs(at.Value-y) <= AtomMergeTolerance*max(math.Abs(at.Value), math.Abs(y)) {
 			return at.Mass
 		}
 	}
@@ -142,9 +142,9 @@ func (a affine) CDF(x float64) float64 {
 	case ok && a.scale > 0 && in: // P(X <= v)
 		return a.base.CDF(v)
 	case ok && a.scale > 0: // P(X < v)
-		return math.Max(0, a.base.CDF(v)-m)
+		return max(0, a.base.CDF(v)-m)
 	case ok && in: // P(X >= v)
-		return math.Min(1, a.base.Survival(v)+m)
+		return min(1, a.base.Survival(v)+m)
 	case ok: // P(X > v)
 		return a.base.Survival(v)
 	case a.scale > 0:
@@ -165,9 +165,9 @@ func (a affine) Survival(x float64) float64 {
 	case ok && a.scale > 0 && in: // P(X > v)
 		return a.base.Survival(v)
 	case ok && a.scale > 0: // P(X >= v)
-		return math.Min(1, a.base.Survival(v)+m)
+		return min(1, a.base.Survival(v)+m)
 	case ok && in: // P(X < v)
-		return math.Max(0, a.base.CDF(v)-m)
+		return max(0, a.base.CDF(v)-m)
 	case ok: // P(X <= v)
 		return a.base.CDF(v)
 	case a.scale > 0:

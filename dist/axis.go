@@ -38,7 +38,7 @@ func discreteAxis(d Discrete) (axisAdder, float64) {
 	vs, ps := d.values, d.probs
 	var vmax float64
 	for _, v := range vs {
-		vmax = math.Max(vmax, math.Abs(v))
+		vmax = max(vmax, math.Abs(v))
 	}
 	return func(h float64, k0 int, out []complex128) {
 		var mr, mi [axisBlock]float64

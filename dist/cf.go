@@ -172,7 +172,7 @@ func valuesTransform(values, masses []float64) transform {
 	vmax := 0.0
 	total := 0.0
 	for i, v := range values {
-		vmax = math.Max(vmax, math.Abs(v))
+		vmax = max(vmax, math.Abs(v))
 		total += masses[i]
 	}
 	return transform{
@@ -186,7 +186,7 @@ func valuesTransform(values, masses []float64) transform {
 			}
 			mx := math.Inf(-1)
 			for _, v := range values {
-				mx = math.Max(mx, real(s)*v)
+				mx = max(mx, real(s)*v)
 			}
 			var sum complex128
 			for i, v := range values {
@@ -291,8 +291,8 @@ func mixtureTransform(m mixture) (transform, bool) {
 			return transform{}, false
 		}
 		parts[i] = t
-		out.lo, out.hi = math.Max(out.lo, t.lo), math.Min(out.hi, t.hi)
-		out.err = math.Max(out.err, t.err)
+		out.lo, out.hi = max(out.lo, t.lo), min(out.hi, t.hi)
+		out.err = max(out.err, t.err)
 	}
 	w := append([]float64(nil), m.weights...)
 	out.logm = func(s complex128) complex128 {
@@ -313,7 +313,7 @@ func mixtureTransform(m mixture) (transform, bool) {
 		}
 		mx := math.Inf(-1)
 		for i := range parts {
-			mx = math.Max(mx, real(ls[i]))
+			mx = max(mx, real(ls[i]))
 		}
 		for i := range parts {
 			sum += complex(w[i], 0) * cmplx.Exp(ls[i]-complex(mx, 0))
@@ -361,7 +361,7 @@ func logNormalM(mu, sigma float64, s complex128) complex128 {
 		if real(s)*math.Exp(mu+sigma*z) < -50 || (rate > 1 && phiz/rate < 1e-18) {
 			break
 		}
-		z1 := math.Min(z+dz, zmax)
+		z1 := min(z+dz, zmax)
 		hw, c := (z1-z)/2, (z1+z)/2
 		for i, t := range glNodes {
 			zz := c + hw*t
@@ -425,7 +425,7 @@ func truncatedTransform(t truncated) (transform, bool) {
 	case Gamma:
 		return truncGammaTransform(t, b.shape, b.rate), true
 	case Densitied:
-		lo, hi := math.Max(t.lo, b.Quantile(quadTail)), math.Min(t.hi, b.UpperQuantile(quadTail))
+		lo, hi := max(t.lo, b.Quantile(quadTail)), min(t.hi, b.UpperQuantile(quadTail))
 		sd := math.Sqrt(t.variance)
 		if !(lo < hi) || !finite(sd) || sd <= 0 {
 			return transform{}, false
@@ -496,12 +496,12 @@ func truncGammaTransform(t truncated, shape, rate float64) transform {
 			th := real(s)
 			r := rate - th // tilted rate > 0 on the strip
 			g := Gamma{shape: shape, rate: r}
-			lo, hi := math.Max(t.lo, g.Quantile(quadTail)), math.Min(t.hi, g.UpperQuantile(quadTail))
+			lo, hi := max(t.lo, g.Quantile(quadTail)), min(t.hi, g.UpperQuantile(quadTail))
 			if !(lo < hi) {
 				if t.lo >= g.UpperQuantile(quadTail) {
-					lo, hi = t.lo, math.Min(t.hi, t.lo+40/r)
+					lo, hi = t.lo, min(t.hi, t.lo+40/r)
 				} else {
-					lo, hi = math.Max(t.lo, t.hi-40/r), t.hi
+					lo, hi = max(t.lo, t.hi-40/r), t.hi
 				}
 			}
 			// log of the constant: λ^k/Γ(k) · Γ(k)/r^k = (λ/r)^k, over the mass
@@ -509,9 +509,9 @@ func truncGammaTransform(t truncated, shape, rate float64) transform {
 			lg, _ := math.Lgamma(shape)
 			sd := math.Sqrt(shape) / r
 			ref := math.Inf(-1)
-			for _, x := range []float64{lo, hi, math.Min(hi, math.Max(lo, (shape-1)/r))} {
+			for _, x := range []float64{lo, hi, min(hi, max(lo, (shape-1)/r))} {
 				if x > 0 {
-					ref = math.Max(ref, (shape-1)*math.Log(x)-r*x)
+					ref = max(ref, (shape-1)*math.Log(x)-r*x)
 				}
 			}
 			if math.IsInf(ref, -1) {
@@ -565,13 +565,13 @@ func oscQuadMap(a, b, t, maxW float64, x func(v float64) float64, g func(v float
 		w := maxW
 		// phase speed |t·dx/dv| estimated over the candidate panel
 		for k := 0; k < 60; k++ {
-			v2 := math.Min(b, v+w)
+			v2 := min(b, v+w)
 			if math.Abs(t*(x(v2)-x(v))) <= 6 {
 				break
 			}
 			w /= 2
 		}
-		v2 := math.Min(b, v+w)
+		v2 := min(b, v+w)
 		hw, c := (v2-v)/2, (v2+v)/2
 		for i, z := range glNodes {
 			vv := c + hw*z

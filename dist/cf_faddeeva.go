@@ -115,7 +115,7 @@ func truncNormalLogM(s complex128, mu, sigma, lo, hi, logZ float64) complex128 {
 	}
 	r := math.Inf(-1)
 	for _, t := range ts[:n] {
-		r = math.Max(r, real(t.lg))
+		r = max(r, real(t.lg))
 	}
 	var sum complex128
 	for _, t := range ts[:n] {

@@ -71,7 +71,7 @@ func newQuadTransform(l Law, tMax float64, breaks []float64) (*quadTransform, er
 	}
 	q := &quadTransform{l: l, c: l.Quantile(0.5), tMax: tMax}
 	slo, shi := l.Support()
-	lo, hi := math.Max(slo, l.Quantile(quadCut)), math.Min(shi, l.UpperQuantile(quadCut))
+	lo, hi := max(slo, l.Quantile(quadCut)), min(shi, l.UpperQuantile(quadCut))
 	if !finite(lo) || !finite(hi) || !(hi > lo) || !finite(q.c) {
 		return nil, fmt.Errorf("dist.SumIID: quadrature transform: range [%v, %v] at the %v quantiles: %w", lo, hi, quadCut, ErrParam)
 	}
@@ -90,7 +90,7 @@ func newQuadTransform(l Law, tMax float64, breaks []float64) (*quadTransform, er
 	sort.Float64s(ends)
 	maxW := sd / 2
 	if tMax > 0 {
-		maxW = math.Min(maxW, 3/tMax)
+		maxW = min(maxW, 3/tMax)
 	}
 	var pts []float64
 	for i := 0; i+1 < len(ends); i++ {

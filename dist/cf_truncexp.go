@@ -20,7 +20,7 @@ import (
 // truncated exponential mixed with an atom (a cell's life cut at its
 // calendar limit). Stated error 1e-14 relative (rounding).
 func truncExpTransform(t truncated, rate float64) transform {
-	a := math.Max(t.lo, 0)
+	a := max(t.lo, 0)
 	w := t.hi - a
 	logC := math.Log(rate) - math.Log(t.mass)
 	return transform{

@@ -120,7 +120,7 @@ func discreteFromAtoms(atoms []Atom) Discrete {
 	var s compSum
 	for i := 0; i < n; i++ {
 		s.add(d.probs[i])
-		d.below[i] = math.Min(s.value(), 1)
+		d.below[i] = min(s.value(), 1)
 	}
 	d.total = s.value()
 	if n > 0 {
@@ -128,7 +128,7 @@ func discreteFromAtoms(atoms []Atom) Discrete {
 	}
 	s = compSum{}
 	for i := n - 1; i >= 0; i-- {
-		d.above[i] = math.Min(s.value(), 1)
+		d.above[i] = min(s.value(), 1)
 		s.add(d.probs[i])
 	}
 	return d
@@ -148,7 +148,7 @@ func (d Discrete) weighted(g func(v float64) float64) float64 {
 	for i, v := range d.values {
 		s.add(d.probs[i] * g(v))
 	}
-	return math.Min(1, s.value()/d.total)
+	return min(1, s.value()/d.total)
 }
 
 // Len returns the number of atoms.
@@ -292,7 +292,7 @@ func (d Discrete) CGF(s float64) float64 {
 	}
 	mx := math.Inf(-1)
 	for _, v := range d.values {
-		mx = math.Max(mx, s*v)
+		mx = max(mx, s*v)
 	}
 	sum := 0.0
 	for i, v := range d.values {

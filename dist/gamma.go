@@ -120,7 +120,7 @@ func lowerGammaSeries(a, y float64) float64 {
 			break
 		}
 	}
-	return math.Min(1, math.Exp(logD)*sum)
+	return min(1, math.Exp(logD)*sum)
 }
 
 // log1pmx returns log(1+t) - t for t > -1, by its Taylor series for
@@ -279,7 +279,7 @@ func (g Gamma) solve(target float64, upper bool) float64 {
 				break
 			}
 			du := (lt - math.Log(v)) * v / (x * d) // Newton on log P(k, x) in log x
-			du = math.Max(-5, math.Min(5, du))
+			du = max(-5, min(5, du))
 			nx := x * math.Exp(du)
 			x, step = nx, nx-x
 		}

@@ -236,7 +236,7 @@ func (q PointTails) Check(k int) error {
 		}
 		th := 2 / math.Sqrt(float64(k)*p.v)
 		if finite(hiDom) {
-			th = math.Min(th, hiDom/2)
+			th = min(th, hiDom/2)
 		}
 		lm := p.tr.logm(complex(sg*th, 0))
 		kv := real(lm) - sg*th*p.mu - st.lm0
@@ -269,14 +269,14 @@ func (p IIDSums) tiltedOne(k int, x float64) (f, s, rel float64) {
 	sd := math.Sqrt(n.variance)
 	n.b = chernoffEnd(n.tr.logm, n.tr.hi, sd, bulkTail)
 	n.a = -chernoffEnd(func(s complex128) complex128 { return n.tr.logm(-s) }, -n.tr.lo, sd, bulkTail)
-	n.a, n.b = math.Max(n.a, n.supLo-n.c), math.Min(n.b, n.supHi-n.c)
+	n.a, n.b = max(n.a, n.supLo-n.c), min(n.b, n.supHi-n.c)
 	y := x - n.c
 	if y <= 0 {
 		f, rel = n.tiltedErr(y, true)
-		return f, math.Max(0, 1-f), rel
+		return f, max(0, 1-f), rel
 	}
 	s, rel = n.tiltedErr(y, false)
-	return math.Max(0, 1-s), s, rel
+	return max(0, 1-s), s, rel
 }
 
 // shared1 evaluates k from its block's panel; ok is false where the value
@@ -327,9 +327,9 @@ func (st *pointState) shared1(k int) (f, s, rel float64, ok bool) {
 		rel *= v / (1 - v)
 	}
 	if sg > 0 {
-		return math.Max(0, 1-v), v, rel, true
+		return max(0, 1-v), v, rel, true
 	}
-	return v, math.Max(0, 1-v), rel, true
+	return v, max(0, 1-v), rel, true
 }
 
 // mid returns the middle k of block b.
@@ -382,10 +382,10 @@ func (st *pointState) newPanel(b int64, sg float64) *tiltPanel {
 	K := func(th float64) float64 { return real(st.cent(complex(th, 0), sg)) }
 	dK := func(th float64) float64 {
 		const eta = 1e-20
-		e := eta * math.Max(1, th)
+		e := eta * max(1, th)
 		d := imag(st.cent(complex(th, e), sg)) / e
 		if !finite(d) {
-			h := 1e-6 * math.Max(th, 1e-3/math.Sqrt(kc*p.v))
+			h := 1e-6 * max(th, 1e-3/math.Sqrt(kc*p.v))
 			d = (K(th+h) - K(th-h)) / (2 * h)
 		}
 		return d
@@ -398,7 +398,7 @@ func (st *pointState) newPanel(b int64, sg float64) *tiltPanel {
 	// single inversion's floor
 	floor := 2 / sdc
 	if finite(hiDom) {
-		floor = math.Min(floor, hiDom/2)
+		floor = min(floor, hiDom/2)
 	}
 	theta := floor
 	if yc > 0 && yc/(kc*p.v) > floor/2 {
@@ -408,7 +408,7 @@ func (st *pointState) newPanel(b int64, sg float64) *tiltPanel {
 		if !(th > 0) {
 			th = saddle(func(t float64) float64 { return kc * dK(t) }, yc, hiDom, sdc)
 		}
-		theta = math.Max(th, floor)
+		theta = max(th, floor)
 	}
 	if !(theta > 0 && theta < hiDom) {
 		return pn
@@ -432,7 +432,7 @@ func (st *pointState) newPanel(b int64, sg float64) *tiltPanel {
 	}
 	L := 0.0
 	for _, fk := range []float64{kLo, kc, kHi} {
-		L = math.Max(L, pn.period(fk, sg*(st.x-fk*p.mu), st.supTop(fk, sg)))
+		L = max(L, pn.period(fk, sg*(st.x-fk*p.mu), st.supTop(fk, sg)))
 	}
 	if !finite(L) || !finite(pn.k1) {
 		return pn
@@ -479,12 +479,12 @@ func (st *pointState) newPanel(b int64, sg float64) *tiltPanel {
 func (pn *tiltPanel) period(fk, yy, supTop float64) float64 {
 	k0 := fk*pn.k1 - pn.theta*yy
 	sdT := math.Sqrt(fk * pn.kpp)
-	L := math.Max((40-k0)/pn.theta, 8*sdT)
+	L := max((40-k0)/pn.theta, 8*sdT)
 	L2 := math.Inf(1)
 	for i, u := range pn.us {
 		if !math.IsNaN(pn.du[i]) {
 			if lu := (fk*pn.du[i] - u*yy + 40) / u; lu > 0 {
-				L2 = math.Min(L2, lu)
+				L2 = min(L2, lu)
 			}
 		}
 	}
@@ -494,7 +494,7 @@ func (pn *tiltPanel) period(fk, yy, supTop float64) float64 {
 	if supTop-yy < L2 {
 		L2 = supTop - yy
 	}
-	return math.Max(L, L2)
+	return max(L, L2)
 }
 
 // value returns the smaller tail of S_k (k = fk) at the centred
@@ -549,7 +549,7 @@ func (pn *tiltPanel) value(fk, yy, supTop float64) (v, rel float64, ok bool) {
 	if !settled {
 		return 0, 0, false
 	}
-	den := math.Max(math.Abs(sum), 1e-300)
+	den := max(math.Abs(sum), 1e-300)
 	// rounding: of the sum, and of the exponents k·c_j (k times the
 	// rounding of each c_j, which exp turns into a relative error)
 	rs := 1e-14 + 4e-16*absSum/den
@@ -558,7 +558,7 @@ func (pn *tiltPanel) value(fk, yy, supTop float64) (v, rel float64, ok bool) {
 	}
 	rel = rs + 2*fk*expSum/den
 	res := math.Exp(k0)*sum/pn.L - math.Exp(-pn.theta*pn.L)/(-math.Expm1(-pn.theta*pn.L))
-	return math.Max(0, res), rel, true
+	return max(0, res), rel, true
 }
 
 // saddleSecant solves g(θ) = 0 (g increasing) for θ in (0, hi) by secant

@@ -68,8 +68,8 @@ func HighestDensity(l Law, level float64) (lo, hi float64, err error) {
 			best, bestW = p, w
 		}
 	}
-	a := math.Max(0, best-rest/grid)
-	b := math.Min(rest, best+rest/grid)
+	a := max(0, best-rest/grid)
+	b := min(rest, best+rest/grid)
 	const g = 0.6180339887498949
 	c, d := b-g*(b-a), a+g*(b-a)
 	wc, wd := width(c), width(d)

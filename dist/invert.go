@@ -137,7 +137,7 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	l.mc += (l.mean - l.c)
 	sd := math.Sqrt(l.variance)
 	if sd == 0 {
-		sd = math.Max(1e-300, math.Abs(l.c)*1e-16)
+		sd = max(1e-300, math.Abs(l.c)*1e-16)
 	}
 	// bulk window
 	var fa, fb float64
@@ -154,8 +154,8 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	} else {
 		l.a = fa
 	}
-	l.a = math.Max(l.a, l.supLo-l.c)
-	l.b = math.Min(l.b, l.supHi-l.c)
+	l.a = max(l.a, l.supLo-l.c)
+	l.b = min(l.b, l.supHi-l.c)
 	if !(l.b > l.a) || !finite(l.b-l.a) {
 		return nil, fmt.Errorf("dist.%s: window [%v, %v] around the mean %v: %w (cannot size the inversion window)", sp.kind, l.a+l.c, l.b+l.c, l.c, ErrMoment)
 	}
@@ -176,7 +176,7 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	// too, and the cut terms are bounded by max(|C|, quietTol)/π instead
 	// (|Mc| <= |C|, and C decays at least as 1/t from there).
 	carried := l.tr.err*(math.Log(1000)+1) + 1e-14*(1+math.Abs(l.c)/sd) + sp.extraErr
-	quietTol := math.Min(1e-12, math.Max(1e-13, quietShare*math.Pi*carried))
+	quietTol := min(1e-12, max(1e-13, quietShare*math.Pi*carried))
 	env := envelopeOf(sp.parts)
 	var trunc, absSum float64
 	quiet, stopped := 0, false
@@ -221,7 +221,7 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 					quiet = 0 // small only through a discrete factor
 					continue
 				}
-				trunc = math.Max(trunc, c)
+				trunc = max(trunc, c)
 			}
 			stopped = true
 			break
@@ -230,7 +230,7 @@ func newNumLaw(sp numSpec) (*numLaw, error) {
 	if !stopped {
 		// cut at maxTerms: the last term's |Mc| may sit near a zero of an
 		// oscillating factor, so the envelope bounds the terms cut
-		trunc = math.Max(trunc, capEnvelope(l.pr, l.pi))
+		trunc = max(trunc, capEnvelope(l.pr, l.pi))
 	}
 	// trailing terms whose magnitudes sum below dropTol are left out of
 	// the values (the stopping rule needed them, the sums do not); their
@@ -267,7 +267,7 @@ func capEnvelope(pr, pi []float64) float64 {
 	top := func(m int) float64 {
 		var e float64
 		for k := max(1, m-w+1); k <= m; k++ {
-			e = math.Max(e, float64(k)*math.Hypot(pr[k-1], pi[k-1]))
+			e = max(e, float64(k)*math.Hypot(pr[k-1], pi[k-1]))
 		}
 		return e
 	}
@@ -277,7 +277,7 @@ func capEnvelope(pr, pi []float64) float64 {
 	}
 	p := 1.0
 	if half > 0 {
-		p = math.Min(1, math.Max(0.25, math.Log2(half/end)))
+		p = min(1, max(0.25, math.Log2(half/end)))
 	}
 	return end / p
 }
@@ -318,7 +318,7 @@ func (e sumEnvelope) largest(h float64, k, quiet int) float64 {
 		for _, tr := range e {
 			lg += real(tr.logm(complex(0, t)))
 		}
-		top = math.Max(top, math.Exp(lg))
+		top = max(top, math.Exp(lg))
 	}
 	return top
 }
@@ -337,7 +337,7 @@ func (l *numLaw) accuracy() Accuracy {
 	}
 	if l.tr.lo < 0 {
 		a, _ := l.tailProbe(true)
-		tiltAbs = math.Max(tiltAbs, a)
+		tiltAbs = max(tiltAbs, a)
 	}
 	cdfAbs += tiltAbs
 	if l.gridOnce != nil {
@@ -351,11 +351,11 @@ func (l *numLaw) accuracy() Accuracy {
 		method += fmt.Sprintf(" (bulk interpolated on a %d-point grid)", l.grid.size())
 	}
 	floor := cdfAbs / 1e-6
-	rel := math.Max(1e-6, cdfAbs/tiltSwitch)
+	rel := max(1e-6, cdfAbs/tiltSwitch)
 	if l.tr.hi > 0 {
 		method += ", tilted upper tail"
 		floor = 1e-30
-		rel = math.Max(math.Max(tiltTol, 10*probe), cdfAbs/tiltSwitch)
+		rel = max(max(tiltTol, 10*probe), cdfAbs/tiltSwitch)
 	}
 	if l.tr.lo < 0 {
 		method += ", tilted lower tail"
@@ -407,13 +407,13 @@ func (l *numLaw) tailProbe(refl bool) (abs, rel float64) {
 	// probe's relative error is below 1, twice its value
 	sBound := func(p pt) float64 {
 		if p.rel < 1 {
-			return math.Min(tiltSwitch, 2*p.s)
+			return min(tiltSwitch, 2*p.s)
 		}
 		return tiltSwitch
 	}
 	probe := func(y float64) pt {
 		v, e := l.tiltedErr(sg*y, refl)
-		rel = math.Max(rel, e)
+		rel = max(rel, e)
 		return pt{y, v, e}
 	}
 	pts := []pt{probe(end + width), probe(end)} // descending in y until reversed
@@ -434,7 +434,7 @@ func (l *numLaw) tailProbe(refl bool) (abs, rel float64) {
 		if lo.y >= top || hi.s >= 1.01*tiltSwitch {
 			return 0
 		}
-		return math.Min(1, math.Max(lo.rel, hi.rel)) * sBound(lo)
+		return min(1, max(lo.rel, hi.rel)) * sBound(lo)
 	}
 	for n := 0; ; n++ {
 		worst, jw := 0.0, 0
@@ -453,10 +453,10 @@ func (l *numLaw) tailProbe(refl bool) (abs, rel float64) {
 	if pts[0].s < tiltSwitch {
 		// the switch lies below the lowest probe: the region below it is
 		// covered by that probe's error at tiltSwitch
-		abs = math.Max(abs, math.Min(1, pts[0].rel)*tiltSwitch)
+		abs = max(abs, min(1, pts[0].rel)*tiltSwitch)
 	}
 	if far := pts[len(pts)-1]; far.y < top {
-		abs = math.Max(abs, math.Min(1, 10*far.rel)*sBound(far))
+		abs = max(abs, min(1, 10*far.rel)*sBound(far))
 	}
 	return abs, rel
 }
@@ -497,7 +497,7 @@ func chernoffEnd(logm func(complex128) complex128, hi, sd, eps float64) float64 
 	}
 	top := 1e4 / sd
 	if finite(hi) {
-		top = math.Min(top, hi*(1-1e-9))
+		top = min(top, hi*(1-1e-9))
 	}
 	x0, x1 := math.Log(1e-6/sd), math.Log(top)
 	if x0 >= x1 {
@@ -617,21 +617,21 @@ func (l *numLaw) cont(y float64) (f, s float64) {
 		if up {
 			s = l.tilted(y, false)
 		}
-		return math.Max(0, l.w-s), s
+		return max(0, l.w-s), s
 	case y <= l.a:
 		if down {
 			f = l.tilted(y, true)
 		}
-		return f, math.Max(0, l.w-f)
+		return f, max(0, l.w-f)
 	}
-	f = math.Min(l.w, math.Max(0, l.bulk(y)))
+	f = min(l.w, max(0, l.bulk(y)))
 	s = l.w - f
 	if f < tiltSwitch && down {
 		f = l.tilted(y, true)
-		s = math.Max(0, l.w-f)
+		s = max(0, l.w-f)
 	} else if s < tiltSwitch && up {
 		s = l.tilted(y, false)
-		f = math.Max(0, l.w-s)
+		f = max(0, l.w-s)
 	}
 	return f, s
 }
@@ -667,9 +667,9 @@ func (l *numLaw) tiltedCap(y float64, refl bool, kMax int) (float64, float64) {
 	K := func(th float64) float64 { return real(lm(complex(th, 0))) }
 	dK := func(th float64) float64 {
 		const eta = 1e-20
-		d := imag(lm(complex(th, eta*math.Max(1, th)))) / (eta * math.Max(1, th))
+		d := imag(lm(complex(th, eta*max(1, th)))) / (eta * max(1, th))
 		if math.IsNaN(d) || math.IsInf(d, 0) {
-			e := 1e-6 * math.Max(th, 1e-3/math.Sqrt(l.variance))
+			e := 1e-6 * max(th, 1e-3/math.Sqrt(l.variance))
 			d = (K(th+e) - K(th-e)) / (2 * e)
 		}
 		return d
@@ -687,14 +687,14 @@ func (l *numLaw) tiltedCap(y float64, refl bool, kMax int) (float64, float64) {
 	theta := saddle(dK, yy, hiDom, sd)
 	floor := 30 / (l.b - l.a)
 	if finite(hiDom) {
-		floor = math.Min(floor, hiDom/2)
+		floor = min(floor, hiDom/2)
 	}
-	theta = math.Max(theta, floor)
+	theta = max(theta, floor)
 	k0 := K(theta) - theta*yy
 	e := 1e-4 * theta
 	var sdT float64
 	if theta+e < hiDom {
-		sdT = math.Sqrt(math.Max(0, (dK(theta+e)-dK(theta-e))/(2*e)))
+		sdT = math.Sqrt(max(0, (dK(theta+e)-dK(theta-e))/(2*e)))
 	}
 	if !(sdT > 0) || !finite(sdT) {
 		sdT = sd
@@ -704,12 +704,12 @@ func (l *numLaw) tiltedCap(y float64, refl bool, kMax int) (float64, float64) {
 	// lower alias: exp(-θjL)·S(y-jL) is removed as w·exp(-θjL) in closed form;
 	// what is left is at most exp(-θL), so θL >= 40 - k0 suffices
 	_ = lowEnd
-	L := math.Max((40-k0)/theta, 8*sdT)
+	L := max((40-k0)/theta, 8*sdT)
 	L2 := math.Inf(1)
 	for _, u := range []float64{theta, 1 / sdT, 4 / sdT, 16 / sdT} {
 		if theta+u < hiDom {
 			if lu := (K(theta+u) - K(theta) - u*yy + 40) / u; lu > 0 {
-				L2 = math.Min(L2, lu)
+				L2 = min(L2, lu)
 			}
 		}
 	}
@@ -719,7 +719,7 @@ func (l *numLaw) tiltedCap(y float64, refl bool, kMax int) (float64, float64) {
 	if supTop-yy < L2 {
 		L2 = supTop - yy
 	}
-	L = math.Max(L, L2)
+	L = max(L, L2)
 	h := 2 * math.Pi / L
 	var sum, absSum, t0, last float64
 	var z, u complex128            // Σ_{k>=1} v_k/s_k, and with weights (k/kMax)²
@@ -734,7 +734,7 @@ func (l *numLaw) tiltedCap(y float64, refl bool, kMax int) (float64, float64) {
 		}
 		vs := v / s
 		term := real(vs)
-		last = math.Max(math.Abs(term), last*0.5)
+		last = max(math.Abs(term), last*0.5)
 		if k == 0 {
 			t0 = math.Abs(term)
 			sum += term
@@ -752,7 +752,7 @@ func (l *numLaw) tiltedCap(y float64, refl bool, kMax int) (float64, float64) {
 			}
 		}
 		absSum += math.Abs(term)
-		if math.Abs(term)*float64(k) <= 1e-13*math.Max(t0, math.Abs(sum)) {
+		if math.Abs(term)*float64(k) <= 1e-13*max(t0, math.Abs(sum)) {
 			quiet++
 			if quiet >= 4 {
 				break
@@ -762,7 +762,7 @@ func (l *numLaw) tiltedCap(y float64, refl bool, kMax int) (float64, float64) {
 		}
 	}
 	res := math.Exp(k0)*sum/L - l.w*math.Exp(-theta*L)/(-math.Expm1(-theta*L))
-	den := math.Max(math.Abs(sum), 1e-300)
+	den := max(math.Abs(sum), 1e-300)
 	rel := 1e-14 + 4e-16*absSum/den
 	if kEnd >= kMax {
 		rel += 2 * tailBound(early.diam(), late.diam(), trend.diam(), last*float64(kEnd)) / den
@@ -770,7 +770,7 @@ func (l *numLaw) tiltedCap(y float64, refl bool, kMax int) (float64, float64) {
 	if l.expRound != nil {
 		rel += l.expRound(sg * theta)
 	}
-	return math.Max(0, res), rel
+	return max(0, res), rel
 }
 
 // psumBox is the bounding box of a run of complex partial sums.
@@ -783,8 +783,8 @@ func (b *psumBox) add(z complex128) {
 	if b.n == 0 {
 		b.reLo, b.reHi, b.imLo, b.imHi = real(z), real(z), imag(z), imag(z)
 	} else {
-		b.reLo, b.reHi = math.Min(b.reLo, real(z)), math.Max(b.reHi, real(z))
-		b.imLo, b.imHi = math.Min(b.imLo, imag(z)), math.Max(b.imHi, imag(z))
+		b.reLo, b.reHi = min(b.reLo, real(z)), max(b.reHi, real(z))
+		b.imLo, b.imHi = min(b.imLo, imag(z)), max(b.imHi, imag(z))
 	}
 	b.n++
 }
@@ -815,11 +815,11 @@ func (b *psumBox) diam() float64 { return math.Hypot(b.reHi-b.reLo, b.imHi-b.imL
 func tailBound(dEarly, dLate, dTrend, crude float64) float64 {
 	q := dLate / dEarly
 	if !(dEarly > 0) || !(q <= 0.6) {
-		q = math.Min(q, 0.9)
+		q = min(q, 0.9)
 		if !(q > 0) {
 			q = 0.9
 		}
-		return math.Max(crude*math.Max(1, q/(1-q)), 4*dTrend)
+		return max(crude*max(1, q/(1-q)), 4*dTrend)
 	}
 	return 4 * dTrend
 }
@@ -869,7 +869,7 @@ func (l *numLaw) CDF(x float64) float64 {
 	if l.atomMass > 0 {
 		f += l.atomMass * l.atoms.CDF(x)
 	}
-	return math.Min(1, f)
+	return min(1, f)
 }
 
 // Survival returns P(X > x), computed directly (tilted in the upper tail).
@@ -881,7 +881,7 @@ func (l *numLaw) Survival(x float64) float64 {
 	if l.atomMass > 0 {
 		s += l.atomMass * l.atoms.Survival(x)
 	}
-	return math.Min(1, s)
+	return min(1, s)
 }
 
 // Quantile inverts CDF (or Survival above the median) by bisection.

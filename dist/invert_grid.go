@@ -124,7 +124,7 @@ func (l *numLaw) buildGrid() *cdfGrid {
 		}
 		p, q := x1[r], x1[r+1]
 		got := 0.5*(real(p)+real(q)) + 5.0/32*(imag(p)-imag(q)) + (real(x2[r])+real(x2[r+1]))/64
-		gr.err = math.Max(gr.err, math.Abs(got-imag(x2[r])))
+		gr.err = max(gr.err, math.Abs(got-imag(x2[r])))
 	}
 	gr.round = float64(bits.Len(uint(N))) * 1e-16 * absSum / math.Pi
 	if !(gr.err <= gridMaxErr) {

@@ -266,7 +266,7 @@ func latticeLevel(fn string, terms []latTerm, step float64, sc *latScratch) (*la
 		}
 		var noise float64
 		for m := total; m < N; m++ {
-			noise = math.Max(noise, cmplx.Abs(prod[m])/float64(N))
+			noise = max(noise, cmplx.Abs(prod[m])/float64(N))
 		}
 		return noise
 	}
@@ -310,7 +310,7 @@ func latticeLevel(fn string, terms []latTerm, step float64, sc *latScratch) (*la
 	}
 	prev := 0.0
 	for _, lv := range [][2]float64{{1e-5, 1e-9}, {1e-9, 1e-13}} {
-		th := math.Min(rate(lv[0], lv[1]), 650/span)
+		th := min(rate(lv[0], lv[1]), 650/span)
 		if !(th > 1.2*prev) {
 			continue
 		}
@@ -338,7 +338,7 @@ func latticeLevel(fn string, terms []latTerm, step float64, sc *latScratch) (*la
 	for m := range q {
 		acc += q[m]
 		e2 += errs[m] * errs[m]
-		out.fc[m] = math.Max(0, acc)
+		out.fc[m] = max(0, acc)
 	}
 	// the sums' rounding: a random walk of the masses' bounds (times ten)
 	// and 1e-16 per unit per √(cells) of the running sum
@@ -346,7 +346,7 @@ func latticeLevel(fn string, terms []latTerm, step float64, sc *latScratch) (*la
 	acc, e2 = 0, 0
 	for m := total - 1; m >= 0; m-- {
 		em := errs[m] // errs is out.sErr: read before it is overwritten
-		out.sc[m] = math.Max(0, acc)
+		out.sc[m] = max(0, acc)
 		out.sErr[m] = 10*math.Sqrt(e2) + 1e-16*acc*math.Sqrt(float64(total-m))
 		acc += q[m]
 		e2 += em * em
@@ -422,8 +422,8 @@ func newLatGrid(fn string, terms []latTerm, delta, supLo, supHi float64) (*latGr
 		n: fine.n, delta: delta}
 	var rnd, cut float64
 	for _, l := range lv {
-		rnd = math.Max(rnd, l.fErr)
-		cut = math.Max(cut, l.cut)
+		rnd = max(rnd, l.fErr)
+		cut = max(cut, l.cut)
 	}
 	rnd *= 2 // the extrapolation's weights, 4/3 + 1/3
 	srnd := make([]float64, n)
@@ -444,18 +444,18 @@ func newLatGrid(fn string, terms []latTerm, delta, supLo, supHi float64) (*latGr
 	g.floor = 1e7 * 2 * cut
 	for j := n - 1; j >= 0; j-- {
 		if 1e7*srnd[j] > g.s[j] {
-			g.floor = math.Max(g.floor, g.s[j])
+			g.floor = max(g.floor, g.s[j])
 		}
 	}
-	g.floor = math.Max(g.floor, 1e-300)
+	g.floor = max(g.floor, 1e-300)
 	for j := range g.f {
 		P := p0 + 2*j
 		if P%4 == 0 {
 			cf, cs, _ := coarse.at(P - na)
 			qf, qs, _ := quad.at(P/2 - na)
 			f2, s2 := (4*cf-qf)/3, (4*cs-qs)/3
-			rich = math.Max(rich, math.Abs(g.f[j]-f2))
-			rich = math.Max(rich, math.Abs(g.s[j]-s2))
+			rich = max(rich, math.Abs(g.f[j]-f2))
+			rich = max(rich, math.Abs(g.s[j]-s2))
 			if g.s[j] > g.floor {
 				rel = append(rel, relPt{g.s[j], 2 * math.Abs(s2/g.s[j]-1)})
 			}
@@ -480,7 +480,7 @@ func newLatGrid(fn string, terms []latTerm, delta, supLo, supHi float64) (*latGr
 		for _, v := range [][]float64{g.f, g.s} {
 			c := g.interp(v, p, latInterp)
 			for _, o := range []float64{g.interp(v, p, latInterp+2), g.interpAt(v, p, j-latInterp/2), g.interpAt(v, p, j-latInterp/2+2)} {
-				ip = math.Max(ip, math.Abs(c-o))
+				ip = max(ip, math.Abs(c-o))
 				if &v[0] == &g.s[0] && o > g.floor {
 					rel = append(rel, relPt{o, 4 * math.Abs(c/o-1)})
 				}
@@ -493,13 +493,13 @@ func newLatGrid(fn string, terms []latTerm, delta, supLo, supHi float64) (*latGr
 	// 1e-3) whose estimate exceeds 1e-4
 	for _, r := range rel {
 		if r.e > 1e-4 && r.s < 1e-3 {
-			g.floor = math.Max(g.floor, r.s)
+			g.floor = max(g.floor, r.s)
 		}
 	}
 	var worst float64
 	for _, r := range rel {
 		if r.s > g.floor {
-			worst = math.Max(worst, r.e)
+			worst = max(worst, r.e)
 		}
 	}
 	g.survRel = worst + 1e-7
@@ -551,7 +551,7 @@ func (g *latGrid) value(x float64, upper bool) float64 {
 	case p > float64(g.jmax):
 		return b2f(!upper)
 	}
-	return math.Min(1, math.Max(0, g.interp(v, p, latInterp)))
+	return min(1, max(0, g.interp(v, p, latInterp)))
 }
 
 // b2f returns 1 for true, 0 for false.
@@ -835,8 +835,8 @@ func newLatticeLaw(comps []latComp, terms []Law, k int) *latticeLaw {
 		switch {
 		case c.grid != nil:
 			cdfAbs += c.w * c.grid.cdfErr
-			rel = math.Max(rel, c.grid.survRel)
-			floor = math.Max(floor, c.grid.floor)
+			rel = max(rel, c.grid.survRel)
+			floor = max(floor, c.grid.floor)
 		case c.cont == nil:
 			for i, v := range c.vals {
 				l.atoms = append(l.atoms, Atom{Value: v, Mass: c.w * c.probs[i]})
@@ -882,7 +882,7 @@ func (l *latticeLaw) value(x float64, upper bool) float64 {
 	for _, c := range l.comps {
 		s += c.w * c.value(x, upper)
 	}
-	return math.Min(1, math.Max(0, s))
+	return min(1, max(0, s))
 }
 
 // Quantile inverts CDF (or Survival above the median) by bisection.
@@ -980,7 +980,7 @@ func (a atomFree) CDF(x float64) float64 {
 		return x
 	}
 	b, _ := a.atomsAt(x)
-	return math.Min(1, math.Max(0, (a.l.CDF(x)-b)/a.w))
+	return min(1, max(0, (a.l.CDF(x)-b)/a.w))
 }
 
 func (a atomFree) Survival(x float64) float64 {
@@ -988,13 +988,13 @@ func (a atomFree) Survival(x float64) float64 {
 		return x
 	}
 	_, up := a.atomsAt(x)
-	return math.Min(1, math.Max(0, (a.l.Survival(x)-up)/a.w))
+	return min(1, max(0, (a.l.Survival(x)-up)/a.w))
 }
 
 func (a atomFree) Quantile(p float64) float64      { return quantileByInversion(a, p) }
 func (a atomFree) UpperQuantile(q float64) float64 { return upperQuantileByInversion(a, q) }
 func (a atomFree) Mean() float64                   { return a.mu }
-func (a atomFree) Variance() float64               { return math.Max(0, a.v2) }
+func (a atomFree) Variance() float64               { return max(0, a.v2) }
 func (a atomFree) Support() (lo, hi float64)       { return a.l.Support() }
 
 // Rand draws from l until the draw is not one of its atoms (1/w draws on

@@ -119,15 +119,15 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 		cat[i] = Atom{Value: c, Mass: d.probs[i]}
 	}
 	tr := atomsTransform(cat)
-	vmax := math.Max(mu, float64(top)-mu)
+	vmax := max(mu, float64(top)-mu)
 	ck := complex(fk, 0)
 	logm := func(s complex128) complex128 { return ck * tr.logm(s) }
 	sd := math.Sqrt(fk * v)
 	hiEnd := chernoffEnd(logm, math.Inf(1), sd, latticeWindowTail)
 	loEnd := loEndAt(logm, sd, latticeWindowTail)
 	mean := fk * mu
-	mlo := math.Max(0, math.Floor(mean-loEnd))
-	mhi := math.Min(fk*float64(top), math.Ceil(mean+hiEnd))
+	mlo := max(0, math.Floor(mean-loEnd))
+	mhi := min(fk*float64(top), math.Ceil(mean+hiEnd))
 	width := int(mhi-mlo) + 1
 	n := fftSize(width)
 	if n > latticeMaxN {
@@ -181,7 +181,7 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 			best := math.Inf(1)
 			for _, u := range []float64{math.Abs(al) / 4, math.Abs(al) / 2, math.Abs(al), 2 * math.Abs(al), 1 / sd, 2 / sd, 4 / sd, 8 / sd, 16 / sd} {
 				if u > 0 {
-					best = math.Min(best, K(al+side*u)-kAl-side*u*(end-mean))
+					best = min(best, K(al+side*u)-kAl-side*u*(end-mean))
 				}
 			}
 			alias += math.Exp(best)
@@ -201,7 +201,7 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 	// smallest error bound, so the far masses keep relative precision
 	dK := func(al float64) float64 {
 		const eta = 1e-20
-		h := eta * math.Max(1, math.Abs(al))
+		h := eta * max(1, math.Abs(al))
 		return imag(logm(complex(al, h))) / h
 	}
 	for _, side := range []float64{1, -1} {
@@ -249,9 +249,9 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 	var sAbove, eAbove float64
 	for r := width - 1; r >= 0; r-- {
 		if sAbove > 0 && eAbove > 1e-6*sAbove {
-			floor = math.Max(floor, sAbove)
+			floor = max(floor, sAbove)
 		}
-		sAbove += math.Max(pm[r], 0)
+		sAbove += max(pm[r], 0)
 		eAbove += pe[r]
 	}
 	dd := discreteFromAtoms(atoms)

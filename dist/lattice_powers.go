@@ -70,7 +70,7 @@ func TruncatedPowers(p []float64, maxPowers int, more func(m int, q []float64) b
 		}
 		fft.Sequence(pad, qHat)
 		for i := range q {
-			q[i] = math.Max(0, pad[i]/float64(n))
+			q[i] = max(0, pad[i]/float64(n))
 		}
 		m++
 		if !more(m, q) {

@@ -90,7 +90,7 @@ func Mixture(weights []float64, laws []Law) (Law, error) {
 	m.lo, m.hi = math.Inf(1), math.Inf(-1)
 	for _, l := range m.laws {
 		lo, hi := l.Support()
-		m.lo, m.hi = math.Min(m.lo, lo), math.Max(m.hi, hi)
+		m.lo, m.hi = min(m.lo, lo), max(m.hi, hi)
 	}
 	m.cum = make([]float64, len(m.weights))
 	var c compSum
@@ -131,7 +131,7 @@ func (m mixture) CDF(x float64) float64 {
 	for i, l := range m.laws {
 		s.add(m.weights[i] * l.CDF(x))
 	}
-	return math.Min(s.value()/m.total, 1)
+	return min(s.value()/m.total, 1)
 }
 
 // Survival returns Σ w_i·S_i(x), each tail from its own components, like
@@ -144,7 +144,7 @@ func (m mixture) Survival(x float64) float64 {
 	for i, l := range m.laws {
 		s.add(m.weights[i] * l.Survival(x))
 	}
-	return math.Min(s.value()/m.total, 1)
+	return min(s.value()/m.total, 1)
 }
 
 func (m mixture) Quantile(p float64) float64      { return quantileByInversion(m, p) }
@@ -231,7 +231,7 @@ func mergeAtoms(atoms []Atom) []Atom {
 	out := atoms[:1]
 	for _, a := range atoms[1:] {
 		last := &out[len(out)-1]
-		if math.Abs(a.Value-last.Value) <= AtomMergeTolerance*math.Max(math.Abs(a.Value), math.Abs(last.Value)) {
+		if math.Abs(a.Value-last.Value) <= AtomMergeTolerance*max(math.Abs(a.Value), math.Abs(last.Value)) {
 			m := last.Mass + a.Mass
 			last.Value += (a.Value - last.Value) * (a.Mass / m) // stable for tiny masses
 			last.Mass = m

@@ -139,11 +139,11 @@ func stdNormalUpperZ(q float64) float64 {
 		f := lQ - lq
 		step := f * r / (1 + 0.5*f*(1-z*r))
 		z += step
-		if math.Abs(step) <= 1e-6*math.Max(1, z) {
+		if math.Abs(step) <= 1e-6*max(1, z) {
 			break
 		}
 	}
-	return math.Max(z, 0)
+	return max(z, 0)
 }
 
 // Mean returns μ.

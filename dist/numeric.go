@@ -104,7 +104,7 @@ func bracketStart(l Law) (x0, step float64) {
 	}
 	step = math.Sqrt(v)
 	if !finite(step) || step <= 0 {
-		step = math.Max(1, math.Abs(x0))
+		step = max(1, math.Abs(x0))
 	}
 	return x0, step
 }
@@ -115,7 +115,7 @@ func bracketStart(l Law) (x0, step float64) {
 func invert(l Law, g func(x float64) bool) float64 {
 	lo, hi := l.Support()
 	x0, step := bracketStart(l)
-	x0 = math.Min(math.Max(x0, lo), hi)
+	x0 = min(max(x0, lo), hi)
 	var a, b float64 // g(a) false, g(b) true
 	if g(x0) {
 		b = x0
@@ -150,7 +150,7 @@ func invert(l Law, g func(x float64) bool) float64 {
 		}
 	}
 	if math.IsInf(a, -1) || math.IsInf(b, 1) {
-		return math.Max(math.Min(b, math.MaxFloat64), -math.MaxFloat64)
+		return max(min(b, math.MaxFloat64), -math.MaxFloat64)
 	}
 	for i := 0; i < 2100; i++ {
 		m := a + (b-a)/2
@@ -241,7 +241,7 @@ func momentBreaks(l Law) []float64 {
 			// an end beyond ±1e300 (a support up to MaxFloat64) is cut
 			// there, so that the quadrature's panel arithmetic cannot
 			// overflow; it lies far beyond the 1e-16 quantiles
-			out = append(out, math.Max(-1e300, math.Min(1e300, x)))
+			out = append(out, max(-1e300, min(1e300, x)))
 		}
 	}
 	sortFloats(out)
@@ -305,7 +305,7 @@ func numericMoments(l Law) (mean, variance float64) {
 		return math.NaN(), math.NaN()
 	}
 	mean = c + m[0]
-	variance = math.Max(0, m[1]-m[0]*m[0])
+	variance = max(0, m[1]-m[0]*m[0])
 	return mean, variance
 }
 

@@ -159,9 +159,9 @@ func newProductLaw(x, y Law) productLaw {
 			if !finite(z) {
 				continue
 			}
-			dAbs = math.Max(dAbs, math.Abs(p.CDF(z)-c.CDF(z)))
+			dAbs = max(dAbs, math.Abs(p.CDF(z)-c.CDF(z)))
 			if s := p.Survival(z); s > 1e-12 {
-				dRel = math.Max(dRel, math.Abs(s-c.Survival(z))/s)
+				dRel = max(dRel, math.Abs(s-c.Survival(z))/s)
 			}
 		}
 	}
@@ -189,7 +189,7 @@ func (p productLaw) CDF(z float64) float64 {
 			s += p.ws[i] // X·0 = 0 <= z
 		}
 	}
-	return math.Min(1, math.Max(0, s))
+	return min(1, max(0, s))
 }
 
 // Survival returns P(XY > z), summed directly.
@@ -204,7 +204,7 @@ func (p productLaw) Survival(z float64) float64 {
 			s += p.ws[i] * p.x.Survival(z/y)
 		}
 	}
-	return math.Min(1, math.Max(0, s))
+	return min(1, max(0, s))
 }
 
 func (p productLaw) Quantile(q float64) float64      { return quantileByInversion(p, q) }
@@ -278,7 +278,7 @@ func (p productLaw) cfError(tp, tc transform) float64 {
 	for ts := 0.125; ts <= 64; ts *= 2 {
 		s := complex(0, ts/sd)
 		a, b := cexpm1(tp.logm(s)), cexpm1(tc.logm(s))
-		d = math.Max(d, cmplx.Abs(a-b))
+		d = max(d, cmplx.Abs(a-b))
 	}
 	return 10*d + 4*productTail + 1e-14
 }

@@ -207,7 +207,7 @@ func peelRandomSum(ns []int, ps []float64, tail, mean, variance float64, term La
 		if e, ok := l.(Estimated); ok {
 			a := e.Accuracy()
 			cdfAbs += weights[i] * a.CDFAbs
-			rel, floor = math.Max(rel, a.SurvivalRel), math.Max(floor, a.TailFloor)
+			rel, floor = max(rel, a.SurvivalRel), max(floor, a.TailFloor)
 		}
 	}
 	method := fmt.Sprintf("mixture of the n-fold sums for n = 0…%d", ns[k-1])
@@ -230,8 +230,8 @@ func peelRandomSum(ns []int, ps []float64, tail, mean, variance float64, term La
 	if tail > 0 {
 		// the support of the uncut count
 		tlo, thi := term.Support()
-		sm.mixture.lo = math.Min(sm.mixture.lo, prodInf(math.Inf(1), tlo))
-		sm.mixture.hi = math.Max(sm.mixture.hi, prodInf(math.Inf(1), thi))
+		sm.mixture.lo = min(sm.mixture.lo, prodInf(math.Inf(1), tlo))
+		sm.mixture.hi = max(sm.mixture.hi, prodInf(math.Inf(1), thi))
 	}
 	if _, ok := m.(mixtureDensity); ok {
 		return statedMixtureDensity{sm}, nil
@@ -293,7 +293,7 @@ func randomSumNumeric(ns []int, ps []float64, tail, mean, variance float64, term
 			}
 			m := math.Inf(-1)
 			for i, n := range fns {
-				m = math.Max(m, math.Log(ps[i])+n*real(u))
+				m = max(m, math.Log(ps[i])+n*real(u))
 			}
 			var sum complex128
 			for i, n := range fns {
@@ -308,16 +308,16 @@ func randomSumNumeric(ns []int, ps []float64, tail, mean, variance float64, term
 	if tail > 0 {
 		nTop = math.Inf(1)
 	}
-	supLo := math.Min(prodInf(nmin, tlo), prodInf(nTop, tlo))
-	supHi := math.Max(prodInf(nmin, thi), prodInf(nTop, thi))
+	supLo := min(prodInf(nmin, tlo), prodInf(nTop, tlo))
+	supHi := max(prodInf(nmin, thi), prodInf(nTop, thi))
 	sp := numSpec{
 		kind: "RandomSum", tr: tr, c: c, mean: c, variance: variance, atoms: atoms,
 		supLo: supLo, supHi: supHi, extraErr: tail,
 		fallback: func(eps float64) (a, b float64) {
 			e := eps / float64(nmax)
 			ql, qh := term.Quantile(e), term.UpperQuantile(e)
-			a = math.Min(0, float64(nmax)*ql) - c
-			b = math.Max(0, float64(nmax)*qh) - c
+			a = min(0, float64(nmax)*ql) - c
+			b = max(0, float64(nmax)*qh) - c
 			return a, b
 		},
 		sample: func(r *rand.Rand) float64 {
@@ -346,7 +346,7 @@ func countMasses(count Law) (ns []int, ps []float64, tail float64, err error) {
 	const fn = "RandomSum"
 	isInt := func(v float64) (int, bool) {
 		r := math.Round(v)
-		return int(r), v >= -0.0 && math.Abs(v-r) <= 1e-9*math.Max(1, math.Abs(v)) && r <= maxCount
+		return int(r), v >= -0.0 && math.Abs(v-r) <= 1e-9*max(1, math.Abs(v)) && r <= maxCount
 	}
 	if al, ok := count.(Atomic); ok {
 		atoms := al.Atoms()

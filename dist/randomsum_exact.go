@@ -122,7 +122,7 @@ func closedRandomSum(ns []int, ps []float64, tail, mean, variance float64, term 
 		if e, ok := laws[i].(Estimated); ok {
 			a := e.Accuracy()
 			cdfAbs += ps[i] * a.CDFAbs
-			rel, floor = math.Max(rel, a.SurvivalRel), math.Max(floor, a.TailFloor)
+			rel, floor = max(rel, a.SurvivalRel), max(floor, a.TailFloor)
 		}
 	}
 	m, err := Mixture(ps, laws)

@@ -309,7 +309,7 @@ func numericSum(terms, parts []Law) (Law, error) {
 			return latticeSum(terms)
 		}
 		trs[i] = t
-		lo, hi = math.Max(lo, t.lo), math.Min(hi, t.hi)
+		lo, hi = max(lo, t.lo), min(hi, t.hi)
 		errSum += t.err
 	}
 	var mean, variance, supLo, supHi float64

@@ -97,7 +97,7 @@ func expandMixtures(terms []Law) (l Law, ok bool, err error) {
 			if e, est := s.(Estimated); est {
 				a := e.Accuracy()
 				cdfAbs += w * a.CDFAbs
-				rel, floor = math.Max(rel, a.SurvivalRel), math.Max(floor, a.TailFloor)
+				rel, floor = max(rel, a.SurvivalRel), max(floor, a.TailFloor)
 			}
 			weights, laws = append(weights, w), append(laws, s)
 		}
@@ -164,7 +164,7 @@ func expandMixtureIID(l Law, k int) (Law, bool, error) {
 	lgk, _ := math.Lgamma(float64(k + 1))
 	maxLog := 0.0
 	for _, w := range ws {
-		maxLog = math.Max(maxLog, math.Abs(math.Log(w)))
+		maxLog = max(maxLog, math.Abs(math.Log(w)))
 	}
 	wErr := 4 * 0x1p-52 * (lgk + float64(k)*maxLog + 1)
 	cdfAbs, rel, floor := 1e-14+wErr, 1e-12+wErr, 0.0
@@ -207,7 +207,7 @@ func expandMixtureIID(l Law, k int) (Law, bool, error) {
 			if e, est := s.(Estimated); est {
 				a := e.Accuracy()
 				cdfAbs += w * a.CDFAbs
-				rel, floor = math.Max(rel, a.SurvivalRel), math.Max(floor, a.TailFloor)
+				rel, floor = max(rel, a.SurvivalRel), max(floor, a.TailFloor)
 			}
 			weights, laws = append(weights, w), append(laws, s)
 			return nil

@@ -87,7 +87,7 @@ func tiltSmoother(c Law, rates []float64) (func(lambda, y float64) float64, bool
 			if y <= a {
 				return 0
 			}
-			m := math.Min(y, b.hi)
+			m := min(y, b.hi)
 			return math.Exp(-lambda*(y-m)) * -math.Expm1(-lambda*(m-a)) / (lambda * w)
 		}, true
 	case Normal:
@@ -155,7 +155,7 @@ func truncNormalSmoother(t truncated) (func(lambda, y float64) float64, bool) {
 		if y <= lo {
 			return 0
 		}
-		m := math.Min(y, hi)
+		m := min(y, hi)
 		mt := mu + lambda*s*s
 		ld := logDiffPhi((lo-mt)/s, (m-mt)/s)
 		return math.Exp(-lambda*(y-mu) + lambda*lambda*s*s/2 + ld - lz)
@@ -220,7 +220,7 @@ func (l expSmoothed) CDF(x float64) float64 {
 	return l.d.weighted(func(v float64) float64 {
 		y := x - v
 		s, _ := l.smooth(y)
-		return math.Max(0, l.c.CDF(y)-s)
+		return max(0, l.c.CDF(y)-s)
 	})
 }
 
@@ -233,7 +233,7 @@ func (l expSmoothed) Survival(x float64) float64 {
 	return l.d.weighted(func(v float64) float64 {
 		y := x - v
 		s, _ := l.smooth(y)
-		return math.Max(0, l.c.Survival(y)+s)
+		return max(0, l.c.Survival(y)+s)
 	})
 }
 
@@ -300,7 +300,7 @@ func (l expSmoothed) transform() (transform, bool) {
 			return transform{}, false
 		}
 		trs = append(trs, tr)
-		lo, hi, e = math.Max(lo, tr.lo), math.Min(hi, tr.hi), e+tr.err
+		lo, hi, e = max(lo, tr.lo), min(hi, tr.hi), e+tr.err
 	}
 	return transform{
 		logm: func(s complex128) complex128 {
@@ -338,5 +338,5 @@ func (l expSmoothedDensity) Density(x float64) float64 {
 			f += l.d.probs[i] * l.coef[j] * r * l.g(r, y)
 		}
 	}
-	return math.Max(0, f)
+	return max(0, f)
 }

@@ -114,7 +114,7 @@ func (e *expTailLaw) closedTail(x float64) (s, abs float64) {
 func (e *expTailLaw) Survival(x float64) float64 {
 	if x >= e.x0 {
 		s, _ := e.closedTail(x)
-		return math.Min(1, math.Max(0, s))
+		return min(1, max(0, s))
 	}
 	return e.numLaw.Survival(x)
 }
@@ -125,7 +125,7 @@ func (e *expTailLaw) Survival(x float64) float64 {
 func (e *expTailLaw) CDF(x float64) float64 {
 	if x >= e.x0 {
 		s, _ := e.closedTail(x)
-		return math.Min(1, math.Max(0, 1-s))
+		return min(1, max(0, 1-s))
 	}
 	return e.numLaw.CDF(x)
 }
@@ -142,7 +142,7 @@ func (e *expTailLaw) UpperQuantile(q float64) float64 { return upperQuantileByIn
 func (e *expTailLaw) Accuracy() Accuracy {
 	e.acc.once.Do(func() {
 		base := e.numLaw.Accuracy()
-		rel := math.Max(e.rel, math.Min(base.SurvivalRel, base.CDFAbs/e.s0))
+		rel := max(e.rel, min(base.SurvivalRel, base.CDFAbs/e.s0))
 		e.acc.acc = Accuracy{CDFAbs: base.CDFAbs, SurvivalRel: rel, TailFloor: 0,
 			Method: base.Method + fmt.Sprintf("; upper tail beyond %.6g in closed form (exponential part over a bounded rest)", e.x0)}
 	})

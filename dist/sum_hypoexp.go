@@ -82,7 +82,7 @@ func (h hypoExp) lowerSeries(x float64) float64 {
 func (h hypoExp) maxRate() float64 {
 	m := 0.0
 	for _, l := range h.rates {
-		m = math.Max(m, l)
+		m = max(m, l)
 	}
 	return m
 }
@@ -98,7 +98,7 @@ func (h hypoExp) CDF(x float64) float64 {
 		return 1
 	}
 	if h.maxRate()*x <= 1 {
-		return math.Max(0, h.lowerSeries(x))
+		return max(0, h.lowerSeries(x))
 	}
 	s := 0.0
 	for i, l := range h.rates {
@@ -109,7 +109,7 @@ func (h hypoExp) CDF(x float64) float64 {
 		// Σ C_i short of 1 (CDF(1e300) = 1 - 4 ulp; issue 13)
 		return 1 - h.Survival(x)
 	}
-	return math.Min(1, math.Max(0, s))
+	return min(1, max(0, s))
 }
 
 // Survival returns P(X > x), summed directly (accurate in the upper tail).
@@ -121,13 +121,13 @@ func (h hypoExp) Survival(x float64) float64 {
 		return 1
 	}
 	if h.maxRate()*x <= 1 {
-		return math.Min(1, 1-h.lowerSeries(x))
+		return min(1, 1-h.lowerSeries(x))
 	}
 	s := 0.0
 	for i, l := range h.rates {
 		s += h.coef[i] * math.Exp(-l*x)
 	}
-	return math.Min(1, math.Max(0, s))
+	return min(1, max(0, s))
 }
 
 // Density returns Σ C_i·λ_i·exp(-λ_i·x) for x >= 0 (0 below).
@@ -142,7 +142,7 @@ func (h hypoExp) Density(x float64) float64 {
 	for i, l := range h.rates {
 		s += h.coef[i] * l * math.Exp(-l*x)
 	}
-	return math.Max(0, s)
+	return max(0, s)
 }
 
 func (h hypoExp) Quantile(p float64) float64      { return quantileByInversion(h, p) }
@@ -189,7 +189,7 @@ func (h hypoExp) transform() transform {
 	rates := h.rates
 	hi := math.Inf(1)
 	for _, l := range rates {
-		hi = math.Min(hi, l)
+		hi = min(hi, l)
 	}
 	return transform{
 		logm: func(s complex128) complex128 {

@@ -99,7 +99,7 @@ func denseSum(laws []Discrete) (Discrete, bool) {
 		for j, v := range d.values {
 			q := (v - d.values[0]) / delta
 			m := math.Round(q)
-			if math.Abs(q-m)*delta > latticeTol*math.Max(delta, v-d.values[0]) {
+			if math.Abs(q-m)*delta > latticeTol*max(delta, v-d.values[0]) {
 				return Discrete{}, false // (latticeOf checked the offsets against its own step)
 			}
 			b[int(m)] += d.probs[j]
@@ -112,7 +112,7 @@ func denseSum(laws []Discrete) (Discrete, bool) {
 	}
 	// As latticeList: a shift on the lattice gives each value as one product.
 	r := math.Round(shift / delta)
-	onGrid := math.Abs(shift/delta-r) <= latticeTol*math.Max(1, math.Abs(r))
+	onGrid := math.Abs(shift/delta-r) <= latticeTol*max(1, math.Abs(r))
 	atoms := make([]Atom, 0, len(result))
 	for m, p := range result {
 		if p > 0 {
@@ -147,7 +147,7 @@ func denseCheaper(laws []Discrete, delta float64) bool {
 		dense += a*(t+1) + span + t + 1
 		pairs += a * n * (1 + math.Log2(a*n))
 		span += t
-		a = math.Min(a*n, span+1)
+		a = min(a*n, span+1)
 	}
 	return dense <= pairs
 }

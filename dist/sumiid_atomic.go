@@ -85,7 +85,7 @@ func (a atomicSums) randSum(k int64, r *rand.Rand) float64 {
 			if left == 0 {
 				break
 			}
-			q := math.Min(1, a.p[i]/rest)
+			q := min(1, a.p[i]/rest)
 			n := int64(distuv.Binomial{N: float64(left), P: q, Src: r}.Rand())
 			counts[i] = n
 			left -= n
@@ -129,7 +129,7 @@ func (a atomicSums) eval(k int64, x float64) (below, above float64, exact bool) 
 	case len(a.v) == 2:
 		// S_k = k·v0 + N·(v1 − v0), N ~ Binomial(k, p1); j the largest count
 		// whose atom (atomValue2) is <= x.
-		j := int64(math.Max(-1, math.Min(n, math.Floor((x-n*a.v[0])/(a.v[1]-a.v[0])))))
+		j := int64(max(-1, min(n, math.Floor((x-n*a.v[0])/(a.v[1]-a.v[0])))))
 		for j < k && a.atomValue2(k, j+1) <= x {
 			j++
 		}
@@ -167,7 +167,7 @@ func (a atomicSums) saddle(n, x float64) (below, above float64) {
 	}
 	below, above = a.edgeworth(n, z)
 	// a few very skewed cycles can put the expansion outside [0, 1]
-	return math.Min(1, math.Max(0, below)), math.Min(1, math.Max(0, above))
+	return min(1, max(0, below)), min(1, max(0, above))
 }
 
 // edgeworth returns the second-order Edgeworth P(Z <= z) and P(Z > z) of
@@ -207,7 +207,7 @@ func (a atomicSums) upperTerms(n, xb float64, sign float64) (q, corr float64) {
 	cum := func(s float64) (k0, k1, k2, k3, k4 float64) {
 		m := math.Inf(-1)
 		for _, v := range a.v {
-			m = math.Max(m, s*sign*v)
+			m = max(m, s*sign*v)
 		}
 		var w0, w1 float64
 		for i, v := range a.v {
@@ -251,7 +251,7 @@ func (a atomicSums) upperTerms(n, xb float64, sign float64) (q, corr float64) {
 		s = next
 	}
 	k0, _, k2, k3, k4 := cum(s)
-	w := math.Sqrt(math.Max(0, 2*n*(s*xb-k0)))
+	w := math.Sqrt(max(0, 2*n*(s*xb-k0)))
 	u := s * math.Sqrt(n*k2)
 	l3 := k3 / (math.Pow(k2, 1.5) * math.Sqrt(n))
 	l4 := k4 / (k2 * k2 * n)
@@ -265,7 +265,7 @@ func (a atomicSums) upperTerms(n, xb float64, sign float64) (q, corr float64) {
 		corr = 0
 	}
 	q = 0.5*math.Erfc(w/math.Sqrt2) + first + corr
-	return math.Min(1, math.Max(0, q)), corr
+	return min(1, max(0, q)), corr
 }
 
 // accuracy returns the error bounds of eval's values for the k-fold sums.

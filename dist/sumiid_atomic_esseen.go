@@ -108,7 +108,7 @@ type esseenParts struct {
 func (a atomicSums) edgeworthBound(k int64) float64 {
 	p := a.esseen(k)
 	// 1.1·gs for the grid's step; 1e-30 for |γ| beyond τ = 12
-	return math.Min(1, p.central+p.far+p.smooth+1.1*p.gs+p.tails+1e-30)
+	return min(1, p.central+p.far+p.smooth+1.1*p.gs+p.tails+1e-30)
 }
 
 // esseen returns the terms of edgeworthBound.
@@ -151,7 +151,7 @@ func (a atomicSums) esseen(k int64) (p esseenParts) {
 		he4 := z2*z2 - 6*z2 + 3
 		he6 := ((z2-15)*z2+45)*z2 - 15
 		g := math.Exp(-z2/2) / math.Sqrt(2*math.Pi) * (1 + l3/6*he3 + l4/24*he4 + l3*l3/72*he6)
-		m = math.Max(m, math.Abs(g))
+		m = max(m, math.Abs(g))
 	}
 	m = m*1.001 + 1e-9 // the grid's step against G's slope
 
@@ -169,7 +169,7 @@ func (a atomicSums) esseen(k int64) (p esseenParts) {
 				return 0, false
 			}
 			f, u := a.cfBound(mid, (c.b-c.a)/2)
-			u = math.Min(1, u)
+			u = min(1, u)
 			lg := math.Log(c.b / c.a)
 			up := math.Exp(n*math.Log(u)) * lg
 			est := math.Exp(n*math.Log(f)) * lg
@@ -212,7 +212,7 @@ func (a atomicSums) esseen(k int64) (p esseenParts) {
 			continue // eval is exact outside the support
 		}
 		b, _ := a.saddle(n, x)
-		gs = math.Max(gs, math.Abs(g-b))
+		gs = max(gs, math.Abs(g-b))
 	}
 	p.gs = gs
 	// beyond |z| = 12 both F and the saddlepoint lie in [0, their value at
@@ -225,9 +225,9 @@ func (a atomicSums) esseen(k int64) (p esseenParts) {
 		gb, ga := a.edgeworth(n, z)
 		sb, sa := a.saddle(n, x)
 		if z < 0 {
-			p.tails = math.Max(p.tails, math.Max(math.Abs(gb), sb))
+			p.tails = max(p.tails, max(math.Abs(gb), sb))
 		} else {
-			p.tails = math.Max(p.tails, math.Max(math.Abs(ga), sa))
+			p.tails = max(p.tails, max(math.Abs(ga), sa))
 		}
 	}
 	return p

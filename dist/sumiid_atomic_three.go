@@ -71,7 +71,7 @@ func (a atomicSums) atomValue3(k, n, j int64, c, ia, ib int) float64 {
 func (a atomicSums) atomJ(k, n int64, x float64, c, ia, ib int) int64 {
 	m := k - n
 	y := (x - float64(n)*a.v[c] - float64(m)*a.v[ia]) / (a.v[ib] - a.v[ia])
-	j := int64(math.Max(-1, math.Min(float64(m), math.Floor(y))))
+	j := int64(max(-1, min(float64(m), math.Floor(y))))
 	for j < m && a.atomValue3(k, n, j+1, c, ia, ib) <= x {
 		j++
 	}
@@ -134,13 +134,13 @@ func (a atomicSums) three(k int64, x float64) (below, above float64) {
 			}
 			if r < 1 {
 				rest := pm * r / (1 - r)
-				if rest < 1e-300 || rest < 1e-17*math.Min(below, above) {
+				if rest < 1e-300 || rest < 1e-17*min(below, above) {
 					break
 				}
 			}
 		}
 	}
-	return math.Min(1, below), math.Min(1, above) // sums of masses may round past 1
+	return min(1, below), min(1, above) // sums of masses may round past 1
 }
 
 // condTails holds P(N <= j) (lo) and P(N > j) (hi) for N ~ Binomial(m, q)
@@ -268,7 +268,7 @@ func (c *condTails) moveWithin(m int64, y, q, allowLo, allowHi float64) (usedLo,
 		ra := binom.Rel(float64(a), mf, q, 1-q)
 		rb := binom.Rel(float64(b), mf, q, 1-q)
 		rj := binom.Rel(float64(c.j), float64(max(m, c.m)), q, 1-q)
-		rel = binom.RelAfter(math.Max(math.Max(ra, rb), rj), 64) + 0x1p-53*float64(b-a+2)
+		rel = binom.RelAfter(max(max(ra, rb), rj), 64) + 0x1p-53*float64(b-a+2)
 		c.pj = 0 // not carried
 	}
 	c.lo += d + sign*s

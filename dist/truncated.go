@@ -53,12 +53,12 @@ func NewTruncated(l Law, lo, hi float64) (Law, error) {
 		}
 		return discreteFromAtoms(atoms), nil
 	case Uniform:
-		return NewUniform(math.Max(lo, b.lo), math.Min(hi, b.hi))
+		return NewUniform(max(lo, b.lo), min(hi, b.hi))
 	}
-	t := truncated{base: l, lo: math.Max(lo, slo), hi: math.Min(hi, shi)}
+	t := truncated{base: l, lo: max(lo, slo), hi: min(hi, shi)}
 	am := atomMass(l, t.lo)
-	t.fLo = math.Max(0, l.CDF(t.lo)-am)
-	t.sLo = math.Min(1, l.Survival(t.lo)+am)
+	t.fLo = max(0, l.CDF(t.lo)-am)
+	t.sLo = min(1, l.Survival(t.lo)+am)
 	t.fHi, t.sHi = l.CDF(t.hi), l.Survival(t.hi)
 	switch {
 	case t.sLo <= 0.5:
@@ -145,7 +145,7 @@ func (t truncated) split(x float64) (below, above float64) {
 			above = t.piece(x, t.hi, false)
 		}
 	}
-	return math.Max(0, below), math.Max(0, above)
+	return max(0, below), max(0, above)
 }
 
 // piece returns the parent's probability of [a, b] (closedLo) or (a, b] by
@@ -180,9 +180,9 @@ func (t truncated) CDF(x float64) float64 {
 	if a < b {
 		// 1 - S in the upper half: b and the mass, each rounded, left
 		// CDF(1e300) at 1 - 2 ulp (issue 13)
-		return 1 - math.Min(1, a/t.mass)
+		return 1 - min(1, a/t.mass)
 	}
-	return math.Min(1, b/t.mass)
+	return min(1, b/t.mass)
 }
 
 func (t truncated) Survival(x float64) float64 {
@@ -196,12 +196,12 @@ func (t truncated) Survival(x float64) float64 {
 	}
 	b, a := t.split(x)
 	if b < a {
-		return 1 - math.Min(1, b/t.mass) // as CDF, in the lower half
+		return 1 - min(1, b/t.mass) // as CDF, in the lower half
 	}
-	return math.Min(1, a/t.mass)
+	return min(1, a/t.mass)
 }
 
-func (t truncated) clamp(x float64) float64 { return math.Min(t.hi, math.Max(t.lo, x)) }
+func (t truncated) clamp(x float64) float64 { return min(t.hi, max(t.lo, x)) }
 
 func (t truncated) Quantile(p float64) float64 {
 	switch {

@@ -85,7 +85,7 @@ func (p uniformPair) Density(x float64) float64 {
 		return x
 	}
 	lo, hi, w1, w2 := p.ends()
-	d := math.Min(x-lo, hi-x)
+	d := min(x-lo, hi-x)
 	switch {
 	case d < 0:
 		return 0
@@ -111,9 +111,9 @@ func (p uniformPair) Quantile(q float64) float64 {
 	case !(q >= 0 && q <= 1):
 		return math.NaN()
 	case q <= 0.5:
-		return math.Min(hi, lo+p.offset(q))
+		return min(hi, lo+p.offset(q))
 	}
-	return math.Max(lo, hi-p.offset(1-q))
+	return max(lo, hi-p.offset(1-q))
 }
 
 // UpperQuantile returns inf{x : Survival(x) <= q}, from the upper end for
@@ -124,9 +124,9 @@ func (p uniformPair) UpperQuantile(q float64) float64 {
 	case !(q >= 0 && q <= 1):
 		return math.NaN()
 	case q <= 0.5:
-		return math.Max(lo, hi-p.offset(q))
+		return max(lo, hi-p.offset(q))
 	}
-	return math.Min(hi, lo+p.offset(1-q))
+	return min(hi, lo+p.offset(1-q))
 }
 
 // Mean returns the sum of the two means.

@@ -165,7 +165,7 @@ func (c Climate) Mean() float64 {
 func (c Climate) Min() float64 {
 	lo := c.months[0]
 	for _, t := range c.months[1:] {
-		lo = math.Min(lo, t)
+		lo = min(lo, t)
 	}
 	return lo - c.swing/2
 }
@@ -175,7 +175,7 @@ func (c Climate) Min() float64 {
 func (c Climate) Max() float64 {
 	hi := c.months[0]
 	for _, t := range c.months[1:] {
-		hi = math.Max(hi, t)
+		hi = max(hi, t)
 	}
 	return hi + c.swing/2
 }

@@ -503,7 +503,7 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule
 	if err != nil {
 		return DesignResult{}, err
 	}
-	lo := math.Max(s.MinInterval, cs.minDuty)
+	lo := max(s.MinInterval, cs.minDuty)
 	infeasible := func(bind Binding) (DesignResult, error) {
 		e, err := cs.eval(s.MaxInterval, needErr)
 		if err != nil {
@@ -563,7 +563,7 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule
 		// not even the longest does), then bisect back.
 		a, step := b, math.Log1p(tol)
 		for {
-			m, err := cs.eval(math.Min(s.MaxInterval, a.interval*math.Exp(step)), needP)
+			m, err := cs.eval(min(s.MaxInterval, a.interval*math.Exp(step)), needP)
 			if err != nil {
 				return DesignResult{}, err
 			}
@@ -593,7 +593,7 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule
 	lowMeets := b.interval
 	for _, e := range cs.evals {
 		if e.meets {
-			lowMeets = math.Min(lowMeets, e.interval)
+			lowMeets = min(lowMeets, e.interval)
 		} else {
 			failing = append(failing, e)
 		}
@@ -609,7 +609,7 @@ func (p DesignProblem) searchChoice(fn string, c DesignChoice, tol float64, rule
 			low = e.interval
 			break
 		}
-		lowMeets = math.Min(lowMeets, e.interval)
+		lowMeets = min(lowMeets, e.interval)
 	}
 	res, err := p.result(c, b, true, BindEnergy)
 	res.IntervalLow, res.lowMeets = low, lowMeets

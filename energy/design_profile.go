@@ -158,7 +158,7 @@ func (tl *targetLaws) quantile(q float64) float64 {
 			return m.Quantile(q)
 		}
 		lo, zlo = hi, zhi
-		hi = math.Min(hi*f, tl.calendar)
+		hi = min(hi*f, tl.calendar)
 		zhi = m.probit(hi)
 	}
 	return root.Illinois(func(t float64) float64 { return m.probit(t) - target }, lo, hi, zlo-target, zhi-target, profileQuantileTol*hi)

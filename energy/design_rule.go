@@ -122,7 +122,7 @@ const probitClamp = 38
 
 // clampedProbit is probitOf(alive, dead) within ±probitClamp.
 func clampedProbit(alive, dead float64) float64 {
-	return math.Max(-probitClamp, math.Min(probitClamp, probitOf(alive, dead)))
+	return max(-probitClamp, min(probitClamp, probitOf(alive, dead)))
 }
 
 // ruleErrorOf returns the Site's estimated error of its rule for kind's

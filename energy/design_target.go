@@ -151,7 +151,7 @@ func (tl *targetLaws) build(e int) error {
 	default:
 		z := make([]float64, len(l.n.settings))
 		_, dead, _ := l.energyAtProbits(d, z)
-		tl.cdf[e] = math.Min(1, math.Max(0, dead))
+		tl.cdf[e] = min(1, max(0, dead))
 		tl.probits[e] = z
 	}
 	return nil
@@ -196,10 +196,10 @@ func (tl *targetLaws) bounds(t Target, count int64) (lo, hi float64, next int) {
 		if math.IsNaN(f) {
 			fl, fh = tl.below(e), tl.above(e)
 			for _, o := range tl.longer {
-				fl = math.Max(fl, o.first(e, o.higher, 0))
+				fl = max(fl, o.first(e, o.higher, 0))
 			}
 			for _, o := range tl.shorter {
-				fh = math.Min(fh, o.first(e, o.lower, 1))
+				fh = min(fh, o.first(e, o.lower, 1))
 			}
 		}
 		a, b := tl.w[e]*nodeFigure(t, count, fl), tl.w[e]*nodeFigure(t, count, fh)
@@ -244,7 +244,7 @@ func (tl *targetLaws) decide(t Target, count int64) (bool, error) {
 		lo, hi, next := tl.bounds(t, count)
 		switch {
 		case next < 0:
-			return math.Min(1, math.Max(0, hi)) <= t.Level, nil
+			return min(1, max(0, hi)) <= t.Level, nil
 		case hi <= t.Level-margin:
 			return true, nil
 		case lo > t.Level+margin:
@@ -344,7 +344,7 @@ func (tl *targetLaws) prob(t Target, count int64) (float64, error) {
 	for e, f := range tl.cdf {
 		p += tl.w[e] * nodeFigure(t, count, f)
 	}
-	return math.Min(1, math.Max(0, p)), nil
+	return min(1, max(0, p)), nil
 }
 
 // nodeError returns the node laws' part of p's stated error: each
@@ -369,7 +369,7 @@ func (tl *targetLaws) nodeError(t Target, count int64) float64 {
 		zOf := settingProbitsFrom(l, T, tl.date, tl.probits[e])
 		eps := l.accuracyAtZ([]float64{T}, zOf).CDFAbs
 		if t.Kind == GroupFlat {
-			errEst += tl.w[e] * n * math.Exp((n-1)*math.Log1p(-math.Min(1, math.Max(0, f-eps)))) * eps
+			errEst += tl.w[e] * n * math.Exp((n-1)*math.Log1p(-min(1, max(0, f-eps)))) * eps
 		} else {
 			errEst += tl.w[e] * eps
 		}

@@ -48,7 +48,7 @@ func (c Cycle) Over(d float64) (Horizon, error) {
 	if c.period == nil {
 		return Horizon{}, paramErr("Cycle.Over", "c", "zero Cycle", "must be built by NewCycle")
 	}
-	n := math.Max(1, math.Round(d/c.period.Mean()))
+	n := max(1, math.Round(d/c.period.Mean()))
 	if !(n <= 1<<62) {
 		return Horizon{}, paramErr("Cycle.Over", "d", d, fmt.Sprintf("must be at most 2^62 mean periods (%g s), so that the cycle count fits an int64", c.period.Mean()))
 	}

@@ -205,7 +205,7 @@ func (f *kfold) logTailBound(k int64, d float64) float64 {
 	}
 	ad := math.Abs(d)
 	bern := ad * ad / (2 * (kf*f.evar + b*ad/3))
-	return -math.Max(hoeff, bern)
+	return -max(hoeff, bern)
 }
 
 // boundTerms returns, for above, the largest number of terms K >= 1 with
@@ -244,7 +244,7 @@ func (f *kfold) boundTerms(L float64, above bool) (int64, bool) {
 		// Hoeffding: 2d² − B·d − B·C = 0
 		dH = (B + math.Sqrt(B*B+8*B*c)) / 4
 	}
-	d := math.Min(dB, dH)
+	d := min(dB, dH)
 	holds := func(k int64) bool {
 		return f.logTailBound(k, c-float64(k)*mu) <= -L*(1+1e-12)
 	}
@@ -362,7 +362,7 @@ func NewLifetime(c Cycle, b Battery) (Lifetime, error) {
 	// built on first use (a panel costs about 40 transform values, which a
 	// fleet's far groups never need).
 	mk, _ := l.cltK()
-	med := int64(math.Max(float64(l.kmin), math.Min(math.Round(mk), math.Min(float64(l.kmax), 1<<62))))
+	med := int64(max(float64(l.kmin), min(math.Round(mk), min(float64(l.kmax), 1<<62))))
 	if point.Shared() && med+1 <= dist.MaxSumIIDTerms {
 		if err := point.Check(int(med + 1)); err != nil {
 			return Lifetime{}, causeErr(fn, "c", c.String(), fmt.Sprintf("K-fold law of %d cycles", med+1), err)
@@ -415,10 +415,10 @@ func (l Lifetime) kQuantile(p float64, upper bool) int64 {
 	} else {
 		zt = std.Quantile(p)
 	}
-	guess := l.secantK(zt, m+sd*zt, math.Max(1, sd))
+	guess := l.secantK(zt, m+sd*zt, max(1, sd))
 	step := 2.0
 	if math.IsNaN(guess) {
-		guess, step = m+sd*zt, math.Max(1, sd)
+		guess, step = m+sd*zt, max(1, sd)
 	}
 	return searchK(pred, guess, step, l.kmin, l.kmax)
 }
@@ -431,7 +431,7 @@ func (l Lifetime) kQuantile(p float64, upper bool) int64 {
 func (l Lifetime) secantK(zt, g, step float64) float64 {
 	std := dist.MustNormal(0, 1)
 	lo, hi := float64(l.kmin), float64(l.kmax)
-	clamp := func(x float64) float64 { return math.Round(math.Min(math.Max(x, lo), math.Min(hi, 1<<62))) }
+	clamp := func(x float64) float64 { return math.Round(min(max(x, lo), min(hi, 1<<62))) }
 	z := func(k float64) float64 {
 		v := l.kf.at(int64(k) + 1)
 		if v[1] <= 0.5 {
@@ -603,7 +603,7 @@ func (l Lifetime) LowerBoundPoint(logP float64) float64 {
 	}
 	k0 := float64(l.kmin - 1)
 	if k, ok := l.kf.boundTerms(-logP, true); ok {
-		k0 = math.Max(k0, float64(k-1))
+		k0 = max(k0, float64(k-1))
 	}
 	return k0 * l.step
 }
@@ -623,7 +623,7 @@ func (l Lifetime) UpperBoundPoint(logP float64) float64 {
 		k1 = float64(l.kmax)
 	}
 	if k, ok := l.kf.boundTerms(-logP, false); ok {
-		k1 = math.Min(k1, float64(k))
+		k1 = min(k1, float64(k))
 	}
 	return k1 * l.step
 }
@@ -749,7 +749,7 @@ func (l Lifetime) moments() (mean, vari, errMean float64) {
 			}
 		} else {
 			_, sd := l.cltK()
-			sd = math.Max(1, sd)
+			sd = max(1, sd)
 			h := int64(1)
 			for h*2*momentMinStride <= b-a {
 				h *= 2
@@ -797,7 +797,7 @@ func (l Lifetime) moments() (mean, vari, errMean float64) {
 			}
 			s0 += t0 + (ga+ge)/2
 			s1 += t1 + (w(a)*ga+w(end)*ge)/2 + float64(h*h-1)/6*ga
-			z.momentError = d0 + 1e-16*float64(evals)*math.Max(1, math.Abs(t0))
+			z.momentError = d0 + 1e-16*float64(evals)*max(1, math.Abs(t0))
 		}
 		d := float64(c - a + 1)
 		z.mean = float64(a-1) + s0
@@ -936,7 +936,7 @@ const (
 func (l Lifetime) pointAccuracy() dist.Accuracy {
 	f := l.kfolds()
 	m, sd := l.cltK()
-	sd = math.Max(1, sd)
+	sd = max(1, sd)
 	var abs, rel float64
 	for _, dir := range []float64{-1, 1} {
 		for j := 0; float64(j)*pointProbeStep <= 40; j++ {
@@ -948,9 +948,9 @@ func (l Lifetime) pointAccuracy() dist.Accuracy {
 			if err != nil {
 				return dist.Accuracy{CDFAbs: math.NaN(), SurvivalRel: math.NaN(), Method: err.Error()}
 			}
-			small := math.Min(b, a)
-			abs = math.Max(abs, r*small)
-			rel = math.Max(rel, r)
+			small := min(b, a)
+			abs = max(abs, r*small)
+			rel = max(rel, r)
 			if small < pointProbeFloor {
 				break
 			}
@@ -1047,7 +1047,7 @@ func (l Lifetime) RenewalEstimate() (RenewalEstimate, error) {
 	for _, p := range []float64{0.001, 0.01, 0.05, 0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99, 0.999} {
 		t := l.Quantile(p)
 		for _, x := range []float64{t, t - l.step/2} {
-			out.MaxCDFError = math.Max(out.MaxCDFError, math.Abs(l.CDF(x)-n.CDF(x)))
+			out.MaxCDFError = max(out.MaxCDFError, math.Abs(l.CDF(x)-n.CDF(x)))
 		}
 	}
 	med := l.Quantile(0.5)

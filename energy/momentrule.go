@@ -89,7 +89,7 @@ func momentShiftBound(mu, k2, l3, l4, l5 float64) (bound float64, ok bool) {
 	}
 	sb := math.Sqrt(b2)
 	a2 := (m5 + m3*m3*m3 - 2*m3*m4) / b2
-	r := math.Max(math.Abs(m3)+1+sb, math.Abs(a2)+sb)
+	r := max(math.Abs(m3)+1+sb, math.Abs(a2)+sb)
 	bound = math.Sqrt(k2)*r*(1+1e-6) + 1e-12*math.Abs(mu)
 	if math.IsInf(bound, 0) || math.IsNaN(bound) {
 		return 0, false

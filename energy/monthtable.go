@@ -38,7 +38,7 @@ func newMonthTable(fn, pre string, spec NodeSpec, env Environment) (*monthTable,
 			return nil, causeErr(fn, pre+"Thermal.Derating", t, fmt.Sprintf("derating at the month %d's temperature", (spec.StartMonth+i)%12), err)
 		}
 		sum += d
-		mt.coldest = math.Min(mt.coldest, t-sw/2)
+		mt.coldest = min(mt.coldest, t-sw/2)
 	}
 	mt.derate = sum / 12
 	return mt, nil

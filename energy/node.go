@@ -255,7 +255,7 @@ func newNode(fn string, spec NodeSpec, env Environment) (*node, error) {
 			}
 			peak := 0.0
 			for _, state := range c.statesView() {
-				peak = math.Max(peak, state.peakCurrent(rail))
+				peak = max(peak, state.peakCurrent(rail))
 			}
 			// Cell current under the peak: the node's power at the rail,
 			// scaled through the supply, plus its own draw, at the cell's
@@ -373,7 +373,7 @@ func (n *node) appendKinks(dst []float64, lo, hi float64) []float64 {
 	}
 	// Counted first, then written into room for that many (growing by
 	// appends cost the tables about a tenth of their allocations).
-	first := int(math.Floor(math.Max(lo, 0)/Month)) + 1
+	first := int(math.Floor(max(lo, 0)/Month)) + 1
 	at := func(m int) (float64, bool) {
 		i, j := (m-1)%12, m%12
 		x := float64(m) * Month
@@ -784,7 +784,7 @@ func (n *node) floorRuleError(capLeft, mean, vv, floorE, h float64, p partOut, t
 		return 0
 	}
 	q := n.partRule(capLeft, mean, vv, floorE, h, 0, false, true, tab)
-	small := math.Min(p.alive, p.dead)
+	small := min(p.alive, p.dead)
 	skip := floorSkip
 	if tab {
 		skip = 2 * tabFloorSkip
@@ -893,7 +893,7 @@ func (n *node) fixedPiecesShared(pts []float64, floorE, c, sd, sf float64, alive
 		// −b for b <= 0 (1 otherwise), and Φ̄(±g) at most Φ̄(y), y = ±g at
 		// the end; Φ̄(x) <= min(1/2, φ(x)/x) for x > 0 (Gordon), so the
 		// bound takes one exponential.
-		x := math.Max(a, -b)
+		x := max(a, -b)
 		ie := i
 		if !alive {
 			ie = i + 1

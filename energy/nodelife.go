@@ -175,7 +175,7 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 		for j := range n.settings {
 			if law, err := n.settings[j].sums.Law(2); err == nil {
 				if e, ok := law.(dist.Estimated); ok {
-					acc.CDFAbs = math.Max(acc.CDFAbs, e.Accuracy().CDFAbs)
+					acc.CDFAbs = max(acc.CDFAbs, e.Accuracy().CDFAbs)
 				}
 			}
 		}
@@ -225,7 +225,7 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 				// is this lower bound, above accSkipZ as the rule's is, so
 				// it sorts after the settings measured, as before.
 				if ub, ok := momentShiftBound(kmu, kk2, l3, l4, l5); ok {
-					least := math.Min(kmu, math.Max(kmu-ub, 0))
+					least := min(kmu, max(kmu-ub, 0))
 					sdMin := math.Sqrt(sc*sc*capLeft*capLeft + sa*sa*least*least)
 					if zb := math.Abs(it.zTab) - 0.01 - ub/sdMin; zb > accSkipZ {
 						it.zb = zb
@@ -237,8 +237,8 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 			it.rule = newMomentRule(3, kmu, kk2, l3, l4, l5)
 			it.shift, it.least = 0.0, kmu
 			for i := range it.rule.n {
-				it.shift = math.Max(it.shift, math.Abs(it.rule.x[i]-kmu))
-				it.least = math.Min(it.least, math.Max(it.rule.x[i], 0))
+				it.shift = max(it.shift, math.Abs(it.rule.x[i]-kmu))
+				it.least = min(it.least, max(it.rule.x[i], 0))
 			}
 			if zOf != nil {
 				sdMin := math.Sqrt(sc*sc*capLeft*capLeft + sa*sa*it.least*it.least)
@@ -255,7 +255,7 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 			s := &n.settings[it.j]
 			if zb := it.zb; !math.IsNaN(zb) {
 				if zb > accSkipZ {
-					worst = math.Max(worst, s.w*2*normSurv(accSkipZ))
+					worst = max(worst, s.w*2*normSurv(accSkipZ))
 					continue
 				}
 				b := 3.001*normSurv(zb) + 1e-16
@@ -290,12 +290,12 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 			n.shareFloor(&fs, capLeft, k*s.mu, kk2, floorE, h, pTab)
 			if calKnown {
 				p = cal[it.j].p
-			} else if p = n.partRuleShared(capLeft, k*s.mu, kk2, floorE, h, 0, false, false, pTab, &fs); math.Min(p.alive, p.dead) < 1e-15 {
+			} else if p = n.partRuleShared(capLeft, k*s.mu, kk2, floorE, h, 0, false, false, pTab, &fs); min(p.alive, p.dead) < 1e-15 {
 				p = n.partRuleShared(capLeft, k*s.mu, kk2, floorE, h, 0, true, false, pTab, &fs)
 			}
 			a0, e0 := p.alive, 0.0
 			if math.Abs(p.z)-2*math.Abs(p.dz[dMean])*it.shift > accSkipZ {
-				worst = math.Max(worst, s.w*2*normSurv(accSkipZ))
+				worst = max(worst, s.w*2*normSurv(accSkipZ))
 				continue
 			}
 			// The rule's nodes are integrated on p's floor pieces (fs),
@@ -334,17 +334,17 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 			// the tables' rule's.
 			eq := 1e-16
 			if a0 > 1e-16 && p.dead > 1e-16 {
-				side := math.Min(a0, p.dead)
+				side := min(a0, p.dead)
 				margin := 1e-10 * side
 				if tab {
-					margin = math.Min(tabRuleRel*side, tabRuleAbs)
+					margin = min(tabRuleRel*side, tabRuleAbs)
 				}
 				eq = n.floorRuleError(capLeft, k*s.mu, kk2, floorE, h, p, pTab) + margin
 			}
 			diff := math.Abs(a3-a0) + eq + e0
-			worst = math.Max(worst, s.w*diff)
+			worst = max(worst, s.w*diff)
 			if a0 >= acc.TailFloor {
-				rel = math.Max(rel, diff/a0)
+				rel = max(rel, diff/a0)
 			}
 		}
 	}
@@ -440,7 +440,7 @@ func (l NodeLifetime) CDF(t float64) float64 {
 		return 1
 	}
 	_, d, _ := l.energyAt(t)
-	return math.Min(1, math.Max(0, d))
+	return min(1, max(0, d))
 }
 
 // Survival returns P(lifetime > t), computed directly; 1 for t <= 0, 0 from
@@ -455,7 +455,7 @@ func (l NodeLifetime) Survival(t float64) float64 {
 		return 0
 	}
 	a, _, _ := l.energyAt(t)
-	return math.Min(1, math.Max(0, a))
+	return min(1, max(0, a))
 }
 
 // Quantile returns inf{t : CDF(t) >= p}; the calendar limit when p is
@@ -519,9 +519,9 @@ func (l NodeLifetime) energyQuantileTol(p float64, upper bool, tol float64) floa
 	z := func(t float64) float64 {
 		a, d, _ := l.energyAt(t)
 		if d <= 0.5 {
-			return std.Quantile(math.Max(0, d))
+			return std.Quantile(max(0, d))
 		}
-		return std.UpperQuantile(math.Max(0, a))
+		return std.UpperQuantile(max(0, a))
 	}
 	guess := l.nominalLife()
 	if !(guess > 0) || math.IsInf(guess, 0) {
@@ -622,8 +622,8 @@ func (l NodeLifetime) moments() {
 		s2, es := integratePiecesTol(func(t float64) float64 { return 2 * t * l.Survival(t) }, lo, hi, brk, 1e-11)
 		s2 += lo * lo
 		l.lz.mean = m
-		l.lz.vari = math.Max(0, s2-m*m)
-		l.lz.momErr = em + es/(2*math.Max(m, 1))
+		l.lz.vari = max(0, s2-m*m)
+		l.lz.momErr = em + es/(2*max(m, 1))
 	})
 }
 

@@ -135,7 +135,7 @@ func (t Tally) checkTime(fn string, time float64) (float64, error) {
 	case time < t.newest-MaxLateness:
 		return 0, paramErr(fn, "Time", time, fmt.Sprintf("goes backwards by %.6g s, more than MaxLateness (%g s) before the newest event at %.17g s", t.newest-time, float64(MaxLateness), t.newest))
 	}
-	return math.Max(time, t.newest), nil
+	return max(time, t.newest), nil
 }
 
 // Observe returns t with the event e counted: its kind's count, the active
@@ -247,8 +247,8 @@ func (d *deviceData) activePower(t *Tally, now float64) (p, v float64) {
 	// its end (records that arrive in batches, a day's counts at its end,
 	// are then weighted as they came), and the time since the newest
 	// event at now.
-	w := math.Exp(-math.Max(0, now-t.ewAt) / d.memory)
-	expo := t.ewX*w + math.Max(0, now-t.ewAt)
+	w := math.Exp(-max(0, now-t.ewAt) / d.memory)
+	expo := t.ewX*w + max(0, now-t.ewAt)
 	p = (t.ewE*w + d.planP*d.prior) / (expo + d.prior)
 	v = (t.ewV*w + d.planV*d.prior) / (expo + d.prior)
 	return p, v

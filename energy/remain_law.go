@@ -183,8 +183,8 @@ func newPostLaw(w []float64, node func(k int) (m, s float64), q nodeQuality, lo,
 	if p.smax > 0 {
 		p.sLo, p.sHi = math.Inf(-1), math.Inf(1)
 	}
-	p.sLo = math.Min(math.Max(p.sLo, lo), hi)
-	p.sHi = math.Max(math.Min(p.sHi, hi), lo)
+	p.sLo = min(max(p.sLo, lo), hi)
+	p.sHi = max(min(p.sHi, hi), lo)
 	return PosteriorLaw{p: p}
 }
 
@@ -449,7 +449,7 @@ func (p *postLaw) newtonQuantile(k int, prob float64) (float64, bool) {
 	if p.s[k] == 0 || n < 2 {
 		return 0, false
 	}
-	lo, hi := math.Max(p.lo, p.sLo), math.Min(p.hi, p.sHi)
+	lo, hi := max(p.lo, p.sLo), min(p.hi, p.sHi)
 	var x float64
 	// local spacing of the centres around k against the kernel's width
 	kl, kh := max(k-1, 0), min(k+1, n-1)
@@ -472,7 +472,7 @@ func (p *postLaw) newtonQuantile(k int, prob float64) (float64, bool) {
 		x = p.m[i]
 		if i+1 < n {
 			f0, f1 := mid(i), mid(i+1)
-			t := math.Min(1, math.Max(0, (prob-f0)/(f1-f0)))
+			t := min(1, max(0, (prob-f0)/(f1-f0)))
 			x = p.m[i] + t*(p.m[i+1]-p.m[i])
 		}
 	}
@@ -481,7 +481,7 @@ func (p *postLaw) newtonQuantile(k int, prob float64) (float64, bool) {
 		if !(x > a && x < b) {
 			return 0, false
 		}
-		tol := 1e-10 * math.Max(math.Abs(x), 0.5*p.smax)
+		tol := 1e-10 * max(math.Abs(x), 0.5*p.smax)
 		c, dens, slope := p.cdfDens(x)
 		g := c - prob
 		if g >= 0 {
@@ -543,9 +543,9 @@ func (l PosteriorLaw) UpperQuantile(q float64) float64 {
 // every fourth step). A g(x) >= 0 at the support's low end gives that end.
 func (p *postLaw) root(k int, g func(float64) float64) float64 {
 	r := (kernelReach + 2) * p.smax
-	a := math.Max(p.sLo, p.m[k]-rootNear*p.smax)
+	a := max(p.sLo, p.m[k]-rootNear*p.smax)
 	ga := g(a)
-	for _, lo := range [2]float64{math.Max(p.sLo, p.m[k]-r), p.sLo} {
+	for _, lo := range [2]float64{max(p.sLo, p.m[k]-r), p.sLo} {
 		if ga < 0 || a <= p.sLo {
 			break
 		}
@@ -557,9 +557,9 @@ func (p *postLaw) root(k int, g func(float64) float64) float64 {
 	if ga >= 0 {
 		return a
 	}
-	b := math.Min(p.sHi, p.m[k]+rootNear*p.smax)
+	b := min(p.sHi, p.m[k]+rootNear*p.smax)
 	gb := g(b)
-	for _, hi := range [2]float64{math.Min(p.sHi, p.m[k]+r), p.sHi} {
+	for _, hi := range [2]float64{min(p.sHi, p.m[k]+r), p.sHi} {
 		if gb >= 0 || b >= p.sHi {
 			break
 		}
@@ -568,7 +568,7 @@ func (p *postLaw) root(k int, g func(float64) float64) float64 {
 			gb = g(b)
 		}
 	}
-	scale := math.Max(math.Abs(a), math.Abs(b))
+	scale := max(math.Abs(a), math.Abs(b))
 	if math.IsInf(b, 1) {
 		b = p.m[len(p.m)-1] + r + 1
 		for i := 0; i < 2100; i++ {
@@ -585,7 +585,7 @@ func (p *postLaw) root(k int, g func(float64) float64) float64 {
 // posPart returns E[(X − c)⁺] for X ~ N(m, s²).
 func posPart(m, s, c float64) float64 {
 	if s == 0 {
-		return math.Max(m-c, 0)
+		return max(m-c, 0)
 	}
 	z := (m - c) / s
 	return (m-c)*normSurv(-z) + s*normPDF(z)
@@ -657,7 +657,7 @@ func (p *postLaw) moments() (mean, variance float64) {
 		e1 += p.w[k] * y
 		e2 += p.w[k] * q
 	}
-	return c0 + e1, math.Max(0, e2-e1*e1)
+	return c0 + e1, max(0, e2-e1*e1)
 }
 
 // Mean returns E[Y] in closed form over the kernels.
@@ -743,7 +743,7 @@ func (l PosteriorLaw) Rand(r *rand.Rand) float64 {
 	if p.s[k] > 0 {
 		x += p.s[k] * r.NormFloat64()
 	}
-	return math.Min(p.hi, math.Max(p.lo, x))
+	return min(p.hi, max(p.lo, x))
 }
 
 // Nodes returns the number of nodes with weight.
@@ -783,7 +783,7 @@ func (l PosteriorLaw) Accuracy() dist.Accuracy {
 				c[h] += p.w[k] * v
 			}
 			if w[0] > 0 && w[1] > 0 {
-				worst = math.Max(worst, math.Abs(c[0]/w[0]-c[1]/w[1]))
+				worst = max(worst, math.Abs(c[0]/w[0]-c[1]/w[1]))
 			} else {
 				worst = 1 // one half carries no weight: the nodes cannot tell
 			}
@@ -795,9 +795,9 @@ func (l PosteriorLaw) Accuracy() dist.Accuracy {
 				d := wk * (hs[k] - f)
 				v += d * d
 			}
-			se = math.Max(se, math.Sqrt(v))
+			se = max(se, math.Sqrt(v))
 		}
-		e := math.Min(1, math.Max(1.5*worst, p.q.kappa*se)+1/float64(len(p.m))+1e-23)
+		e := min(1, max(1.5*worst, p.q.kappa*se)+1/float64(len(p.m))+1e-23)
 		if p.q.unresolved {
 			e = 1
 		}

@@ -75,7 +75,7 @@ func (m DeviceModel) Outlier(t Tally, now float64) (OutlierTest, error) {
 		}
 		o.Reading = p
 	}
-	o.P = math.Min(1, 2*math.Min(o.Activity, o.Reading))
+	o.P = min(1, 2*min(o.Activity, o.Reading))
 	if t.nRead == 0 {
 		o.P = o.Activity
 	}
@@ -141,7 +141,7 @@ func (m DeviceModel) readingP(t Tally, now float64) (float64, error) {
 			continue // a node without weight (its factors may not be valid)
 		}
 		dep := (pd.a[k]*r.active+pd.f[k]*fe+q)/(pd.c[k]*n.nominal) + sdd
-		dep = math.Min(1, math.Max(0, dep))
+		dep = min(1, max(0, dep))
 		v := d.curve.loadedAt(dep, drop)
 		if !math.IsInf(r.hi, 1) {
 			below += w * normSurv((v-r.hi)/r.noise)
@@ -154,5 +154,5 @@ func (m DeviceModel) readingP(t Tally, now float64) (float64, error) {
 			above += w
 		}
 	}
-	return math.Min(1, 2*math.Min(below, above)), nil
+	return min(1, 2*min(below, above)), nil
 }

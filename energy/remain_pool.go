@@ -223,7 +223,7 @@ func EstimateSpread(factor SpreadFactor, spec NodeSpec, env Environment, costs [
 			p, err := m.posterior(fn, t, now, true)
 			switch {
 			case err == nil:
-				ll, nv = p.p.logMarginal, math.Max(0, 1/p.p.ess-1/float64(p.p.nodes))
+				ll, nv = p.p.logMarginal, max(0, 1/p.p.ess-1/float64(p.p.nodes))
 			case !errors.Is(err, ErrParam) || !t.ok || now < t.newest:
 				return SpreadEstimate{}, err
 			}
@@ -260,7 +260,7 @@ func EstimateSpread(factor SpreadFactor, spec NodeSpec, env Environment, costs [
 		}
 		est.JackknifeErr = math.Sqrt(float64(groups-1) / float64(groups) * ss)
 	}
-	est.StdErr = math.Max(math.Max(est.CurvatureErr, est.JackknifeErr), (est.Hi-est.Lo)/(2*1.645))
+	est.StdErr = max(max(est.CurvatureErr, est.JackknifeErr), (est.Hi-est.Lo)/(2*1.645))
 	if best := argMax(est.LogLik); best == 0 || best == len(candidates)-1 {
 		est.StdErr = math.Inf(1)
 	}
@@ -315,7 +315,7 @@ func parabolaPeak(x, y []float64) (peak, stdErr float64) {
 		a := (d12 - d01) / (x2 - x0)
 		if a < 0 {
 			b := d01 - a*(x0+x1)
-			peak = math.Min(x2, math.Max(x0, -b/(2*a)))
+			peak = min(x2, max(x0, -b/(2*a)))
 			stdErr = 1 / math.Sqrt(-2*a)
 		}
 	}

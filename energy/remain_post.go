@@ -380,7 +380,7 @@ func (m DeviceModel) posterior(fn string, t Tally, now float64, thorough bool) (
 		pd.w[i] /= s1
 	}
 	pd.ess = ess
-	pd.unresolved = ess < math.Min(float64(len(d.c))/4, minResolvedNodes)
+	pd.unresolved = ess < min(float64(len(d.c))/4, minResolvedNodes)
 	return DevicePosterior{p: pd}, nil
 }
 

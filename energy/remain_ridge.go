@@ -148,7 +148,7 @@ func (e *evidence) readingsMean() (mu, s0 float64, ok bool) {
 		return 0, 0, false
 	}
 	mu = swm / sw
-	spread := math.Max(swmm-swm*mu, 0)
+	spread := max(swmm-swm*mu, 0)
 	return mu, math.Sqrt(1/sw + spread/sw), true
 }
 
@@ -292,8 +292,8 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 	// exp(h(V)), h = log φ(z_s) + log|dz_s/dV| + log-likelihood, on an even
 	// grid of ridgeGrid points over mid ± ridgeReach·s₀ (s₀ the bins'
 	// scale) within the curve's range.
-	lo := math.Max(vs[np-1], mu-ridgeReach*s0)
-	hi := math.Min(vs[0], mu+ridgeReach*s0)
+	lo := max(vs[np-1], mu-ridgeReach*s0)
+	hi := min(vs[0], mu+ridgeReach*s0)
 	// Readings deeper than the end of the cell: the median node alive at
 	// the newest event is at most at the depth xEnd at the newest reading
 	// (its spent energy there, c·capU less what it spent after the
@@ -305,7 +305,7 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 	if xEnd > 0 && xEnd < 1 {
 		j := searchAbove(cv.DepthOfDischarge, xEnd) - 1
 		if vEnd := vs[j] + (xEnd-cv.DepthOfDischarge[j])*sl[j]; vEnd > hi {
-			hi = math.Min(vs[0], vEnd+ridgeReach*s0)
+			hi = min(vs[0], vEnd+ridgeReach*s0)
 		}
 	}
 	if !(hi > lo) {
@@ -360,7 +360,7 @@ func (e *evidence) ridgeStage(m int, zBuf [][3]float64, lBuf []float64) (zs [][3
 		m2 += w * gv[i] * gv[i]
 	}
 	mu = m1 / m0
-	scale := ridgeWiden * math.Sqrt(math.Max(m2/m0-mu*mu, 0)+step*step)
+	scale := ridgeWiden * math.Sqrt(max(m2/m0-mu*mu, 0)+step*step)
 	// The profile's own law: exp(h) log-linear between the grid points
 	// (cell i from gv[i] to gv[i+1]; a cell with an end where h = −Inf has
 	// no mass) and its cumulative masses.

@@ -113,7 +113,7 @@ func newReadingTable(vs []float64, lo, hi, sigma float64) *readingTable {
 	t := &readingTable{lo: lo, hi: hi, sigma: sigma, vs: vs}
 	vmin, vmax := math.Inf(1), math.Inf(-1)
 	for _, x := range vs {
-		vmin, vmax = math.Min(vmin, x), math.Max(vmax, x)
+		vmin, vmax = min(vmin, x), max(vmax, x)
 	}
 	span := vmax - vmin
 	steps := max(int(math.Ceil(span/(readingStep*sigma))), 1)

@@ -223,7 +223,7 @@ func (s Serviced) replacement(fn string, p Policy, horizon float64, c Costs, rc 
 			if n == 0 {
 				continue
 			}
-			acc := math.Max(s.errAt(ei, g, every[g]), s.errAt(ei, g, rest[g]))
+			acc := max(s.errAt(ei, g, every[g]), s.errAt(ei, g, rest[g]))
 			accAt[ei*G+g] = acc
 			logS := math.Log(s.survivalAt(ei, g, rest[g])) // a node's log P(no flat cell within its blocks)
 			if blocks[g] > 0 {
@@ -234,9 +234,9 @@ func (s Serviced) replacement(fn string, p Policy, horizon float64, c Costs, rc 
 			errE += n * float64(blocks[g]+1) * acc
 		}
 		out.AnyFlat += e.w * -math.Expm1(logNo)
-		out.AnyFlatError += e.w * math.Min(1, errE)
+		out.AnyFlatError += e.w * min(1, errE)
 	}
-	out.AnyFlat = math.Min(1, math.Max(0, out.AnyFlat))
+	out.AnyFlat = min(1, max(0, out.AnyFlat))
 	out.RuleError = s.ruleError(Z, kindFleet, 0)
 	out.AnyFlatError += out.RuleError
 
@@ -261,7 +261,7 @@ func (s Serviced) replacement(fn string, p Policy, horizon float64, c Costs, rc 
 		}
 		w[e], laws[e] = s.envs[e].w, tot
 		for g := range G {
-			out.CountError = math.Max(out.CountError, accEG[e*G+g])
+			out.CountError = max(out.CountError, accEG[e*G+g])
 		}
 	}
 	if out.Failures, err = dist.Mixture(w, laws); err != nil {
@@ -346,7 +346,7 @@ func (s Serviced) groupFailures(fn string, e, g int, onFailure bool, horizon, ta
 			return causeErr(fn, name, k, "the nodes' failure counts", err)
 		}
 		if es, ok := sum.(dist.Estimated); ok {
-			acc = math.Max(acc, es.Accuracy().CDFAbs)
+			acc = max(acc, es.Accuracy().CDFAbs)
 		}
 		parts = append(parts, sum)
 		return nil
@@ -359,7 +359,7 @@ func (s Serviced) groupFailures(fn string, e, g int, onFailure bool, horizon, ta
 		}
 		// The node law's own CDF error moves P(S_n <= t) by at most n
 		// times as much (Kolmogorov distance of a convolution).
-		acc = math.Max(acc, r.Accuracy().CDFAbs+float64(r.Max())*env.tab[g].cdfAbs)
+		acc = max(acc, r.Accuracy().CDFAbs+float64(r.Max())*env.tab[g].cdfAbs)
 		for _, b := range blockCounts(tau, rest, n, blocks) {
 			c, err := r.Count(b.t)
 			if err != nil {
@@ -371,7 +371,7 @@ func (s Serviced) groupFailures(fn string, e, g int, onFailure bool, horizon, ta
 		}
 	} else {
 		l := env.exact[g]
-		acc = math.Max(acc, lifeAcc)
+		acc = max(acc, lifeAcc)
 		for _, b := range blockCounts(tau, rest, n, blocks) {
 			if err := add(bernoulli(l.CDF(b.t)), b.k); err != nil {
 				return nil, 0, err
@@ -585,7 +585,7 @@ func (s Serviced) Schedule(risk, horizon float64, perGroup bool) ([]float64, err
 				}
 			}
 			p += e.w * -math.Expm1(logNo)
-			perr += e.w * math.Min(1, errE)
+			perr += e.w * min(1, errE)
 		}
 		if withErr {
 			if len(gs) == 1 {

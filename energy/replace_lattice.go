@@ -113,7 +113,7 @@ func latticeRenewals(fn string, cdf func(float64) float64, name string, atom, at
 	for n := 2; n <= m; n++ {
 		for i := 0; i <= 2*k; i++ {
 			t := float64(i) * fine.h
-			worst = math.Max(worst, math.Abs(fine.atLeast(n, t)-coarse.atLeast(n, t)))
+			worst = max(worst, math.Abs(fine.atLeast(n, t)-coarse.atLeast(n, t)))
 		}
 	}
 	r.lat = fine
@@ -136,13 +136,13 @@ func newRenewalLattice(cdf func(float64) float64, horizon float64, points, mMax 
 		if atom > 0 && x >= at {
 			f -= atom
 		}
-		return math.Max(0, f)
+		return max(0, f)
 	}
 	p := make([]float64, M)
 	prev := 0.0
 	for i := range p {
 		next := cont((float64(i) + 0.5) * rl.h)
-		p[i] = math.Max(0, next-prev)
+		p[i] = max(0, next-prev)
 		prev = next
 	}
 	if mMax == 1 {
@@ -186,7 +186,7 @@ func (rl *renewalLattice) cont(m int, x float64) float64 {
 		if rl.atom > 0 && x >= rl.at {
 			f -= rl.atom
 		}
-		return math.Max(0, f)
+		return max(0, f)
 	}
 	g := rl.g[m-2]
 	u := x / rl.h
@@ -201,7 +201,7 @@ func (rl *renewalLattice) cont(m int, x float64) float64 {
 // atLeast returns P(S_n <= t), the atom expanded binomially.
 func (rl *renewalLattice) atLeast(n int, t float64) float64 {
 	if rl.atom == 0 {
-		return math.Min(1, rl.cont(n, t))
+		return min(1, rl.cont(n, t))
 	}
 	s, c := 0.0, 1.0 // c = C(n, j)·a^j
 	for j := 0; j <= n; j++ {
@@ -212,5 +212,5 @@ func (rl *renewalLattice) atLeast(n int, t float64) float64 {
 		s += c * rl.cont(n-j, x)
 		c *= float64(n-j) / float64(j+1) * rl.atom
 	}
-	return math.Min(1, s)
+	return min(1, s)
 }

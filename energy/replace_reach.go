@@ -117,11 +117,11 @@ type reachLife struct {
 }
 
 func (l reachLife) CDF(t float64) float64 {
-	return math.Min(1, math.Max(0, (l.all.CDF(t)-l.u*l.out.CDF(t))/(1-l.u)))
+	return min(1, max(0, (l.all.CDF(t)-l.u*l.out.CDF(t))/(1-l.u)))
 }
 
 func (l reachLife) Survival(t float64) float64 {
-	return math.Min(1, math.Max(0, (l.all.Survival(t)-l.u*l.out.Survival(t))/(1-l.u)))
+	return min(1, max(0, (l.all.Survival(t)-l.u*l.out.Survival(t))/(1-l.u)))
 }
 
 func (l reachLife) cdfErr(ts []float64) float64 {
@@ -237,9 +237,9 @@ func (s Site) Serviced(left [][]int) (Serviced, error) {
 				}
 				tcdf := tb.CDF
 				r.cdf = func(t float64) float64 {
-					return math.Min(1, math.Max(0, (tcdf(t)-u*outCDF(t))/(1-u)))
+					return min(1, max(0, (tcdf(t)-u*outCDF(t))/(1-u)))
 				}
-				r.atom = math.Max(0, (atom-u*outAtom)/(1-u))
+				r.atom = max(0, (atom-u*outAtom)/(1-u))
 				r.cdfAbs = (r.cdfAbs + u*(ol.Accuracy().CDFAbs+1e-15)) / (1 - u)
 			}
 			se.tab[g] = r

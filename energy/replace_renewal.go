@@ -63,7 +63,7 @@ func NewRenewals(life dist.Law, horizon float64) (Renewals, error) {
 	for n := 1; ; n++ {
 		if n > 1 {
 			sh = life.Survival(horizon / float64(n))
-			bound := math.Min(math.Pow(fh, float64(n)), -math.Expm1(float64(n)*math.Log(sh)))
+			bound := min(math.Pow(fh, float64(n)), -math.Expm1(float64(n)*math.Log(sh)))
 			if bound <= RenewalCut {
 				break
 			}
@@ -83,7 +83,7 @@ func NewRenewals(life dist.Law, horizon float64) (Renewals, error) {
 		r.sums = append(r.sums, s)
 		if e, ok := s.(dist.Estimated); ok {
 			a := e.Accuracy()
-			r.acc.CDFAbs = math.Max(r.acc.CDFAbs, a.CDFAbs)
+			r.acc.CDFAbs = max(r.acc.CDFAbs, a.CDFAbs)
 		}
 		if s.CDF(horizon) <= RenewalCut {
 			break
@@ -147,7 +147,7 @@ func (r Renewals) AtLeast(n int, t float64) float64 {
 	// P(S_n <= t) does not grow with n; keep the computed values so.
 	p := 1.0
 	for k := 1; k <= n; k++ {
-		p = math.Min(p, math.Max(0, r.sumCDF(k, t)))
+		p = min(p, max(0, r.sumCDF(k, t)))
 	}
 	return p
 }
@@ -167,7 +167,7 @@ func (r Renewals) Count(t float64) (dist.Discrete, error) {
 	at := make([]float64, m+2) // at[n] = P(N >= n)
 	at[0] = 1
 	for n := 1; n <= m; n++ {
-		at[n] = math.Min(at[n-1], math.Max(0, r.sumCDF(n, t)))
+		at[n] = min(at[n-1], max(0, r.sumCDF(n, t)))
 	}
 	vals := make([]float64, 0, m+1)
 	probs := make([]float64, 0, m+1)

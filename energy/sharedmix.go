@@ -124,7 +124,7 @@ func (m sharedMixture) CDF(t float64) float64 {
 	for i, l := range m.laws {
 		s += m.w[i] * l.CDF(t)
 	}
-	return math.Min(1, s)
+	return min(1, s)
 }
 
 func (m sharedMixture) Survival(t float64) float64 {
@@ -135,7 +135,7 @@ func (m sharedMixture) Survival(t float64) float64 {
 	for i, l := range m.laws {
 		s += m.w[i] * l.Survival(t)
 	}
-	return math.Min(1, s)
+	return min(1, s)
 }
 
 // probit returns the probit of the mixture's CDF at t, from the smaller
@@ -187,7 +187,7 @@ func (m sharedMixture) seedSolve(target float64) (float64, bool) {
 	}
 	pr := m.probitFor(target)
 	g := func(t float64) float64 { return pr(t) - target }
-	tol := math.Max(1e-12*math.Abs(t0), 0x1p-1022)
+	tol := max(1e-12*math.Abs(t0), 0x1p-1022)
 	x, gx := t0, g(t0)
 	if math.IsNaN(gx) {
 		return 0, false
@@ -197,9 +197,9 @@ func (m sharedMixture) seedSolve(target float64) (float64, bool) {
 		step = 0
 	}
 	if gx >= 0 {
-		step = math.Min(step, -tol/2)
+		step = min(step, -tol/2)
 	} else {
-		step = math.Max(step, tol/2)
+		step = max(step, tol/2)
 	}
 	for range 8 {
 		y := x + step
@@ -247,7 +247,7 @@ func (m sharedMixture) span(q func(dist.Law) float64) (lo, hi float64) {
 	lo, hi = math.Inf(1), math.Inf(-1)
 	for _, l := range m.laws {
 		x := q(l)
-		lo, hi = math.Min(lo, x), math.Max(hi, x)
+		lo, hi = min(lo, x), max(hi, x)
 	}
 	return lo, hi
 }
@@ -270,7 +270,7 @@ func (m sharedMixture) cornerSolve(q func(dist.Law) float64, target float64) (fl
 	lo, hi := math.Inf(1), math.Inf(-1)
 	add := func(c int) {
 		x := q(m.laws[c])
-		lo, hi = math.Min(lo, x), math.Max(hi, x)
+		lo, hi = min(lo, x), max(hi, x)
 	}
 	try := func() (float64, bool) {
 		if !finite(lo) || !finite(hi) {
@@ -503,8 +503,8 @@ func componentQuad(surv func(float64) float64, lo, med, hi, relTol float64) quad
 		return quadMomentsResult{mean: nan, vari: nan, meanErr: nan, varErr: nan}
 	}
 	m1, m2 := v[0], v[1]*span
-	res := quadMomentsResult{mean: lo + m1, vari: math.Max(0, m2-m1*m1), quad: r.Error,
-		scale: math.Max(math.Abs(v[0]), math.Abs(v[1])), span: span, m1: m1}
+	res := quadMomentsResult{mean: lo + m1, vari: max(0, m2-m1*m1), quad: r.Error,
+		scale: max(math.Abs(v[0]), math.Abs(v[1])), span: span, m1: m1}
 	res.meanErr, res.varErr = res.errorsAt(r.Error)
 	return res
 }
@@ -537,13 +537,13 @@ func componentTolShares(dst, w, p, k []float64) []float64 {
 	}
 	lam := 0.0
 	if b > 0 && d > 0 {
-		lam = math.Min(a/b, c/d)
+		lam = min(a/b, c/d)
 	}
 	dst = dst[:0]
 	for e := range w {
 		f := maxTolShare
 		if r := math.Cbrt(w[e]); r > 0 && lam > 0 {
-			f = math.Min(f, lam/(r*r))
+			f = min(f, lam/(r*r))
 		}
 		if !(f > 0) {
 			f = 1
@@ -615,7 +615,7 @@ func (m sharedMixture) totalMomentsWith(quick func(i int) (func(float64) float64
 		}
 		for i := range ps {
 			if p := &ps[i]; p.quick {
-				d := math.Max(0, p.med-p.lo)
+				d := max(0, p.med-p.lo)
 				qp = append(qp, d)
 				qk = append(qk, (p.hi-p.lo)+2*d+2*math.Abs(p.med-smed))
 			}
@@ -679,7 +679,7 @@ func (m sharedMixture) combineMoments(ms, vs, ems, evs []float64) (mean, vari, m
 		vari += m.w[i] * (vs[i] + d*d)
 		e := ems[i] + meanErr
 		varErr += m.w[i] * (evs[i] + 2*math.Abs(d)*e + e*e)
-		scale = math.Max(scale, math.Abs(ms[i]))
+		scale = max(scale, math.Abs(ms[i]))
 	}
 	n := float64(len(ms))
 	return mean, vari, meanErr + 2*n*0x1p-52*scale, varErr + 4*n*0x1p-52*(vari+scale*scale)
@@ -706,7 +706,7 @@ func (m sharedMixture) quadMoments() (mean, vari, meanErr, varErr float64) {
 	// The tails beyond the 1e-15 quantiles: at most 1e-15 times the
 	// support's reach there, bounded by the span hi − lo.
 	tail := 2e-15 * (hi - lo)
-	return mean, math.Max(0, lo*lo+b-mean*mean), ea + tail, eb + 2*math.Abs(mean)*(ea+tail) + 2*tail*math.Abs(hi)
+	return mean, max(0, lo*lo+b-mean*mean), ea + tail, eb + 2*math.Abs(mean)*(ea+tail) + 2*tail*math.Abs(hi)
 }
 
 // Mean returns the mixture's mean (s), computed on first use: Σ w_e·m_e
@@ -731,7 +731,7 @@ func (m sharedMixture) Support() (lo, hi float64) {
 	lo, hi = math.Inf(1), math.Inf(-1)
 	for _, l := range m.laws {
 		a, b := l.Support()
-		lo, hi = math.Min(lo, a), math.Max(hi, b)
+		lo, hi = min(lo, a), max(hi, b)
 	}
 	return lo, hi
 }
@@ -756,9 +756,9 @@ func (m sharedMixture) Accuracy() dist.Accuracy {
 	for _, l := range m.laws {
 		if e, ok := l.(dist.Estimated); ok {
 			a := e.Accuracy()
-			acc.CDFAbs = math.Max(acc.CDFAbs, a.CDFAbs)
-			acc.SurvivalRel = math.Max(acc.SurvivalRel, a.SurvivalRel)
-			acc.TailFloor = math.Max(acc.TailFloor, a.TailFloor)
+			acc.CDFAbs = max(acc.CDFAbs, a.CDFAbs)
+			acc.SurvivalRel = max(acc.SurvivalRel, a.SurvivalRel)
+			acc.TailFloor = max(acc.TailFloor, a.TailFloor)
 		}
 	}
 	if m.stated != nil {

@@ -284,8 +284,8 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 				b := cache[key{g, u, v}]
 				env.laws = append(env.laws, b.tb)
 				env.exact = append(env.exact, b.l)
-				s.tLo = math.Min(s.tLo, b.tb.t[0])
-				s.tHi = math.Max(s.tHi, b.tb.t[len(b.tb.t)-1])
+				s.tLo = min(s.tLo, b.tb.t[0])
+				s.tHi = max(s.tHi, b.tb.t[len(b.tb.t)-1])
 			}
 		}
 		s.same, s.twin = s.twins()
@@ -488,8 +488,8 @@ func (s Site) fleetRange(e int) (lo, hi float64) {
 	share := 1e-15 / float64(len(s.names))
 	for g := range s.names {
 		tb, n := &env.laws[g], float64(s.counts[g])
-		lo = math.Min(lo, tb.Quantile(-math.Expm1(math.Log1p(-share)/n)))
-		hi = math.Min(hi, tb.UpperQuantile(math.Exp(math.Log(1e-15)/n)))
+		lo = min(lo, tb.Quantile(-math.Expm1(math.Log1p(-share)/n)))
+		hi = min(hi, tb.UpperQuantile(math.Exp(math.Log(1e-15)/n)))
 	}
 	return lo, hi
 }
@@ -614,7 +614,7 @@ func (s Site) NoFailureBefore(t float64) float64 {
 	for _, e := range s.envs {
 		p += e.w * e.fleet.NoFailureBefore(t)
 	}
-	return math.Min(1, math.Max(0, p)) // the weights sum to 1 within rounding
+	return min(1, max(0, p)) // the weights sum to 1 within rounding
 }
 
 // EnergyBinds returns the share of group i's nodes whose life ends by their
@@ -627,7 +627,7 @@ func (s Site) EnergyBinds(i int) float64 {
 	for _, e := range s.envs {
 		p += e.w * e.exact[i].EnergyBinds()
 	}
-	return math.Min(1, math.Max(0, p)) // the weights sum to 1 within rounding
+	return min(1, max(0, p)) // the weights sum to 1 within rounding
 }
 
 // Warnings returns the environments' warnings for group i, without repeats.
@@ -689,12 +689,12 @@ func (s Site) Accuracy() dist.Accuracy {
 	for _, e := range s.envs {
 		for _, l := range e.laws {
 			a := l.Accuracy()
-			acc.SurvivalRel = math.Max(acc.SurvivalRel, a.SurvivalRel)
-			acc.TailFloor = math.Max(acc.TailFloor, a.TailFloor)
+			acc.SurvivalRel = max(acc.SurvivalRel, a.SurvivalRel)
+			acc.TailFloor = max(acc.TailFloor, a.TailFloor)
 		}
 	}
 	for _, a := range s.nodeAcc {
-		acc.CDFAbs = math.Max(acc.CDFAbs, a)
+		acc.CDFAbs = max(acc.CDFAbs, a)
 	}
 	return acc
 }

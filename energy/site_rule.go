@@ -391,7 +391,7 @@ func (s *Site) fitFine() {
 				}
 				for i := 0; i+1 < len(f.z); i++ {
 					dz := math.Abs(env(i + 1).laws[g].zAt(t) - env(i).laws[g].zAt(t))
-					slope = math.Max(slope, dz/(f.z[i+1]-f.z[i]))
+					slope = max(slope, dz/(f.z[i+1]-f.z[i]))
 				}
 			}
 		}
@@ -399,7 +399,7 @@ func (s *Site) fitFine() {
 		if len(o.z) > 1 {
 			least = 1.0 / 32
 		}
-		if step := math.Max(least, sharedFineMove/slope); step < sharedFineStep {
+		if step := max(least, sharedFineMove/slope); step < sharedFineStep {
 			f.setFine(step)
 		}
 	}
@@ -900,7 +900,7 @@ func (s *Site) mixOne(sc *ruleScratch, Z []float64, kind lawKind, g, pu, pv int,
 			sum += w * s.condOne(kind, g, z)
 		}
 	}
-	return math.Min(1, math.Max(0, sum))
+	return min(1, max(0, sum))
 }
 
 // condOne is condAt for a node law or a group's first failure, from the
@@ -1489,7 +1489,7 @@ func addWeighted(sums, ws *[maxModes]float64, M int, c float64) {
 // clampSums returns sums with each of the first M within [0, 1].
 func clampSums(sums [maxModes]float64, M int) [maxModes]float64 {
 	for i := range M {
-		sums[i] = math.Min(1, math.Max(0, sums[i]))
+		sums[i] = min(1, max(0, sums[i]))
 	}
 	return sums
 }
@@ -1524,7 +1524,7 @@ func newSlopeBound(n int64) slopeBound {
 	nf := float64(n)
 	m := int((slopeHi - slopeLo) / slopeH)
 	b := slopeBound{cells: make([]float64, m)}
-	best := nf * math.Max(normPDF(slopeLo), normPDF(slopeHi))
+	best := nf * max(normPDF(slopeLo), normPDF(slopeHi))
 	for i := range m {
 		a := slopeLo + slopeH*float64(i)
 		c := a + slopeH
@@ -1536,7 +1536,7 @@ func newSlopeBound(n int64) slopeBound {
 			phi = normPDF(a)
 		}
 		b.cells[i] = nf * math.Pow(normSurv(a), nf-1) * phi
-		best = math.Max(best, b.cells[i])
+		best = max(best, b.cells[i])
 	}
 	b.outLo = nf * normPDF(slopeLo)
 	b.outHi = nf * normPDF(slopeLo+slopeH*float64(m-1))
@@ -1594,12 +1594,12 @@ func (b *slopeBound) beyond(lo, hi float64) float64 {
 		L = b.outLo
 	}
 	if hi >= b.top {
-		L = math.Max(L, b.outHi)
+		L = max(L, b.outHi)
 	}
 	i0 := max(0, int(math.Floor((lo-slopeLo)/slopeH))-1)
 	i1 := min(m-1, int(math.Floor((hi-slopeLo)/slopeH))+1)
 	for i := i0; i <= i1; i++ {
-		L = math.Max(L, b.cells[i])
+		L = max(L, b.cells[i])
 	}
 	return L * (1 + 1e-12)
 }
@@ -1686,7 +1686,7 @@ func (s *Site) probeTimesWith(sc *ruleScratch, kind lawKind, g int, k int64) []f
 			case kindFleet:
 				m := math.Inf(1)
 				for h := range s.names {
-					m = math.Min(m, at(env, h, p))
+					m = min(m, at(env, h, p))
 				}
 				edgesT = append(edgesT, m)
 			}
@@ -1849,7 +1849,7 @@ func (s *Site) condSpan(kind lawKind, g int, target float64) (lo, hi float64) {
 		} else {
 			t = tb.UpperQuantile(math.Exp(math.Log(q) / n))
 		}
-		lo, hi = math.Min(lo, t), math.Max(hi, t)
+		lo, hi = min(lo, t), max(hi, t)
 	}
 	return lo, hi
 }
@@ -1883,7 +1883,7 @@ func (s *Site) kthNormal(t float64, k int64) (cdf, sf float64) {
 		cdf += env.w * c
 		sf += env.w * d
 	}
-	return math.Min(1, cdf), math.Min(1, sf)
+	return min(1, cdf), min(1, sf)
 }
 
 // sharedMaxMidProbes caps the probes between the nodes' conditional
@@ -1946,8 +1946,8 @@ func (s *Site) tableErrorZ(t float64, Z []float64, kind lawKind, g int) float64 
 		case kindFirst:
 			tb, z := &env.laws[g], Z[g*E+e]
 			d := errAt(tb, z)
-			f := math.Max(0, cdf(tb, z)-d)
-			err = float64(s.counts[g]) * powSurv(1-math.Min(f, 1), s.counts[g]-1) * d
+			f := max(0, cdf(tb, z)-d)
+			err = float64(s.counts[g]) * powSurv(1-min(f, 1), s.counts[g]-1) * d
 		case kindFleet:
 			for h := range s.names {
 				if j := s.sameAs(h); j != h {
@@ -1956,7 +1956,7 @@ func (s *Site) tableErrorZ(t float64, Z []float64, kind lawKind, g int) float64 
 				}
 				tb, z := &env.laws[h], Z[h*E+e]
 				ds[h] = errAt(tb, z)
-				ss[h] = math.Min(1, surv(tb, z)+ds[h])
+				ss[h] = min(1, surv(tb, z)+ds[h])
 			}
 			// Each group's survival to its count, once (the same value
 			// in every term that reads it), where a term is read.
@@ -1982,9 +1982,9 @@ func (s *Site) tableErrorZ(t float64, Z []float64, kind lawKind, g int) float64 
 				err += float64(s.counts[h]) * errAt(&env.laws[h], Z[h*E+e])
 			}
 		}
-		sum += env.w * math.Min(1, err)
+		sum += env.w * min(1, err)
 	}
-	return math.Min(1, sum)
+	return min(1, sum)
 }
 
 // powSurv returns x^k for x in [0, 1] and k >= 0 (1 for k = 0).
@@ -2023,8 +2023,8 @@ func (s *Site) lawProbes(kind lawKind, g int, k int64) []probeError {
 			s.probeExact(p, kind, g, k)
 		}
 		if p.exact {
-			rule = math.Max(rule, p.total())
-			stated = math.Max(stated, p.total()+p.table)
+			rule = max(rule, p.total())
+			stated = max(stated, p.total()+p.table)
 		}
 	}
 	return ps
@@ -2037,11 +2037,11 @@ func (s *Site) lawProbes(kind lawKind, g int, k int64) []probeError {
 func probeMaxima(ps []probeError) (parts [2]float64, rule, stated float64) {
 	for _, p := range ps {
 		pp := p.parts()
-		parts[0], parts[1] = math.Max(parts[0], pp[0]), math.Max(parts[1], pp[1])
-		rule = math.Max(rule, p.total())
-		stated = math.Max(stated, p.total()+p.table)
+		parts[0], parts[1] = max(parts[0], pp[0]), max(parts[1], pp[1])
+		rule = max(rule, p.total())
+		stated = max(stated, p.total()+p.table)
 	}
-	return parts, rule, math.Min(1, stated)
+	return parts, rule, min(1, stated)
 }
 
 // lawError returns the rule's estimated error parts (the largest at the
@@ -2082,7 +2082,7 @@ func (s *Site) probeRule(tol float64) (parts [2]float64, worst float64) {
 		l := &laws[i]
 		l.ps = s.lawProbes(l.kind, l.g, 0)
 		_, rule, st := probeMaxima(l.ps)
-		worst = math.Max(worst, rule)
+		worst = max(worst, rule)
 		switch l.kind {
 		case kindNode:
 			s.nodeAcc[l.g] = st
@@ -2099,7 +2099,7 @@ func (s *Site) probeRule(tol float64) (parts [2]float64, worst float64) {
 			}
 		}
 		p, _, _ := probeMaxima(l.ps)
-		parts[0], parts[1] = math.Max(parts[0], p[0]), math.Max(parts[1], p[1])
+		parts[0], parts[1] = max(parts[0], p[0]), max(parts[1], p[1])
 	}
 	for g := range G {
 		s.nodeAcc[g], s.firstAcc[g] = s.nodeAcc[s.twin[g]], s.firstAcc[s.twin[g]]

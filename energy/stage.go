@@ -186,7 +186,7 @@ func (q sequence) moments(floor float64) moments {
 		for _, p := range m.parts {
 			if i := out.find(p.name); i >= 0 {
 				o := &out.parts[i]
-				o.ownVar = math.Max(o.ownVar, p.ownVar)
+				o.ownVar = max(o.ownVar, p.ownVar)
 				o.count += p.count
 				o.own += p.own
 				o.excess += p.excess
@@ -345,8 +345,8 @@ func mixMoments(probs []float64, stages []Stage, floor float64) moments {
 			}
 		}
 	}
-	out.varX = math.Max(0, x2-out.meanX*out.meanX)
-	out.varT = math.Max(0, t2-out.meanT*out.meanT)
+	out.varX = max(0, x2-out.meanX*out.meanX)
+	out.varT = max(0, t2-out.meanT*out.meanT)
 	for i := range out.parts {
 		o := &out.parts[i]
 		cx := 0.0 // E[C X]
@@ -360,7 +360,7 @@ func mixMoments(probs []float64, stages []Stage, floor float64) moments {
 			o.count += p * q.count
 			o.own += p * q.own
 			o.excess += p * q.excess
-			o.ownVar = math.Max(o.ownVar, q.ownVar)
+			o.ownVar = max(o.ownVar, q.ownVar)
 			cx += p * (q.cov + q.excess*m.meanX)
 		}
 		o.cov = cx - o.excess*out.meanX

@@ -110,9 +110,9 @@ type tabLazy struct {
 func probitOf(alive, dead float64) float64 {
 	std := dist.MustNormal(0, 1)
 	if dead <= 0.5 {
-		return std.Quantile(math.Max(dead, 0))
+		return std.Quantile(max(dead, 0))
 	}
-	return std.UpperQuantile(math.Max(alive, 0))
+	return std.UpperQuantile(max(alive, 0))
 }
 
 // probitGrid tabulates probit on [lo, hi] (zl, zh its values at the ends):
@@ -234,10 +234,10 @@ func halveUntil[K any](ks []K, buf *halveBufs[K], tol float64, pass func([]K), s
 			evals++
 			ok0, ok1 := e0 <= tol, e1 <= tol
 			if ok0 {
-				worst = math.Max(worst, e0)
+				worst = max(worst, e0)
 			}
 			if ok1 {
-				worst = math.Max(worst, e1)
+				worst = max(worst, e1)
 			}
 			refined = refined || !ok0 || !ok1
 			nk = append(nk, m, *b)
@@ -305,7 +305,7 @@ func tabulateWith(sc *tableScratch, l NodeLifetime) tabulated {
 	if n.spread.IsZero() {
 		// Exact k-fold laws move in steps of a period: refine no finer.
 		for _, s := range n.settings {
-			minWidth = math.Max(minWidth, 2/s.rate)
+			minWidth = max(minWidth, 2/s.rate)
 		}
 	}
 	{
@@ -352,9 +352,9 @@ func tabulateWith(sc *tableScratch, l NodeLifetime) tabulated {
 			// is that of the intervals at the full tolerance.
 			tb.looseRel += tables[j].looseRel
 			tb.looseAbs += tables[j].looseAbs
-			tb.setWorst = math.Max(tb.setWorst, st.worst)
+			tb.setWorst = max(tb.setWorst, st.worst)
 			z0, z1 := st.z[0], st.z[len(st.z)-1]
-			tb.setZ = math.Max(tb.setZ, math.Max(math.Abs(z0), math.Abs(z1)))
+			tb.setZ = max(tb.setZ, max(math.Abs(z0), math.Abs(z1)))
 			// Before its first time the setting's law is below Φ(z0)
 			// (monotone), as is its table's continuation; after its last
 			// (unless that is the calendar limit, beyond which nothing is
@@ -362,11 +362,11 @@ func tabulateWith(sc *tableScratch, l NodeLifetime) tabulated {
 			// or 1.
 			beyond := normSurv(-z0)
 			if st.t[len(st.t)-1] < n.calendar {
-				beyond = math.Max(beyond, normSurv(z1))
+				beyond = max(beyond, normSurv(z1))
 			}
 			tb.setBeyond += w * (beyond + normSurv(tabCut))
-			guessLo, guessHi = math.Min(guessLo, st.t[0]), math.Max(guessHi, st.t[len(st.t)-1])
-			se := mixSet{w: w, pt: st, cutLo: math.Inf(-1), cutHi: math.Inf(1), slack: math.Max(0, tables[j].slack)}
+			guessLo, guessHi = min(guessLo, st.t[0]), max(guessHi, st.t[len(st.t)-1])
+			se := mixSet{w: w, pt: st, cutLo: math.Inf(-1), cutHi: math.Inf(1), slack: max(0, tables[j].slack)}
 			if d := st.d0[0]; z0 <= -tabCut {
 				se.cutLo = st.t[0]
 			} else if d > 0 {
@@ -401,7 +401,7 @@ func tabulateWith(sc *tableScratch, l NodeLifetime) tabulated {
 			// toward 0 by its loose intervals' largest error beyond that,
 			// so that its |z| − 0.01 stays a lower bound.
 			pt := &sets[j].pt
-			z := pt.zAt(math.Min(math.Max(t, pt.t[0]), pt.t[len(pt.t)-1]))
+			z := pt.zAt(min(max(t, pt.t[0]), pt.t[len(pt.t)-1]))
 			if z <= tabLooseZ+tabLooseShift {
 				z += sets[j].slack
 			}
@@ -504,10 +504,10 @@ func tabulateWith(sc *tableScratch, l NodeLifetime) tabulated {
 			}
 		}
 		if hi == 0 {
-			hi, _ = probitEnd(f, math.Max(guessHi, lo), zHi, 0.05, true)
+			hi, _ = probitEnd(f, max(guessHi, lo), zHi, 0.05, true)
 		}
 		if !(lo < hi) {
-			lo = math.Max(0, hi*(1-1e-9))
+			lo = max(0, hi*(1-1e-9))
 		}
 		if clockable && (hi-lo)/Month <= maxKinks {
 			at := func(t float64) (gradKnot, float64) {
@@ -552,7 +552,7 @@ func tabulateWith(sc *tableScratch, l NodeLifetime) tabulated {
 	tb.acc = dist.Accuracy{
 		CDFAbs:      src.CDFAbs + tb.tabCDF,
 		SurvivalRel: src.SurvivalRel + tb.tabRel,
-		TailFloor:   math.Max(src.TailFloor, tabTail),
+		TailFloor:   max(src.TailFloor, tabTail),
 		Method:      src.Method + "; " + how,
 	}
 	tb.lz = &tabLazy{}
@@ -587,8 +587,8 @@ func (tb *tabulated) profile(l NodeLifetime, zOf func(j int, t float64) float64,
 	for i, t := range tb.profT {
 		a, _ := l.accuracyAtZKnown([]float64{t}, zOf, true, cal, true)
 		tb.profE[i] = a.CDFAbs
-		acc.CDFAbs = math.Max(acc.CDFAbs, a.CDFAbs)
-		acc.SurvivalRel = math.Max(acc.SurvivalRel, a.SurvivalRel)
+		acc.CDFAbs = max(acc.CDFAbs, a.CDFAbs)
+		acc.SurvivalRel = max(acc.SurvivalRel, a.SurvivalRel)
 		acc.TailFloor, acc.Method = a.TailFloor, a.Method
 	}
 	return acc
@@ -629,17 +629,17 @@ func (tb *tabulated) errAtZ(t, z float64) float64 {
 	case i == len(tb.profT):
 		src = tb.profE[i-1]
 	default:
-		src = math.Max(tb.profE[i-1], tb.profE[i])
+		src = max(tb.profE[i-1], tb.profE[i])
 	}
 	e := src + normPDF(z)*tb.worst
 	if tb.setWorst > 0 {
-		e += tb.setWorst * math.Min(0.4, 1.02*(1+tb.setZ)*normSurv(math.Abs(z)))
+		e += tb.setWorst * min(0.4, 1.02*(1+tb.setZ)*normSurv(math.Abs(z)))
 	}
 	if tb.looseRel > 0 {
-		e += math.Min(tb.looseAbs, 1.02*(1+tb.setZ)*tb.looseRel*normSurv(math.Abs(z)))
+		e += min(tb.looseAbs, 1.02*(1+tb.setZ)*tb.looseRel*normSurv(math.Abs(z)))
 	}
 	if tb.dropAbs > 0 {
-		e += math.Min(tb.dropAbs, 1.02*tb.dropRel*normSurv(-z))
+		e += min(tb.dropAbs, 1.02*tb.dropRel*normSurv(-z))
 	}
 	return e + tb.setBeyond
 }
@@ -770,9 +770,9 @@ func (pt *probitTable) zAtNear(t float64, hint *int) float64 {
 	}
 	switch {
 	case i == 0:
-		return pt.z[0] - math.Max(pt.d0[0], 0)*(pt.t[0]-t)
+		return pt.z[0] - max(pt.d0[0], 0)*(pt.t[0]-t)
 	case i >= n:
-		return pt.z[n-1] + math.Max(pt.d1[len(pt.d1)-1], 0)*(t-pt.t[n-1])
+		return pt.z[n-1] + max(pt.d1[len(pt.d1)-1], 0)*(t-pt.t[n-1])
 	}
 	return hermite(pt.t[i-1], pt.t[i], pt.z[i-1], pt.z[i], pt.d0[i-1], pt.d1[i-1], t)
 }
@@ -784,15 +784,15 @@ func (pt *probitTable) zAtD(t float64, right bool) (z, dz float64) {
 	n := len(pt.t)
 	switch {
 	case i == 0 && !(right && t == pt.t[0]):
-		d := math.Max(pt.d0[0], 0)
+		d := max(pt.d0[0], 0)
 		return pt.z[0] - d*(pt.t[0]-t), d
 	case i >= n:
-		d := math.Max(pt.d1[len(pt.d1)-1], 0)
+		d := max(pt.d1[len(pt.d1)-1], 0)
 		return pt.z[n-1] + d*(t-pt.t[n-1]), d
 	case t == pt.t[i] && (right || i == 0) && i < n-1:
 		i++ // at a point, its right side: the interval beginning there
 	case t == pt.t[i] && i == n-1 && right:
-		d := math.Max(pt.d1[len(pt.d1)-1], 0)
+		d := max(pt.d1[len(pt.d1)-1], 0)
 		return pt.z[n-1], d
 	}
 	if math.IsInf(pt.z[i-1], 0) || math.IsInf(pt.z[i], 0) {
@@ -823,10 +823,10 @@ func (pt *probitTable) zAtD2Near(t float64, hint *int) (z, dl, dr float64) {
 		_, dr = pt.zAtD(t, true)
 		return z, dl, dr
 	case i == 0:
-		d := math.Max(pt.d0[0], 0)
+		d := max(pt.d0[0], 0)
 		return pt.z[0] - d*(pt.t[0]-t), d, d
 	case i >= n:
-		d := math.Max(pt.d1[len(pt.d1)-1], 0)
+		d := max(pt.d1[len(pt.d1)-1], 0)
 		return pt.z[n-1] + d*(t-pt.t[n-1]), d, d
 	}
 	if math.IsInf(pt.z[i-1], 0) || math.IsInf(pt.z[i], 0) {
@@ -937,13 +937,13 @@ func (tb *tabulated) invert(zt float64) float64 {
 	n := len(tb.z)
 	if zt <= tb.z[0] {
 		if tb.d0[0] > 0 {
-			return math.Max(0, tb.t[0]-(tb.z[0]-zt)/tb.d0[0])
+			return max(0, tb.t[0]-(tb.z[0]-zt)/tb.d0[0])
 		}
 		return tb.t[0]
 	}
 	if zt >= tb.z[n-1] {
 		if d := tb.d1[len(tb.d1)-1]; d > 0 && !math.IsInf(zt, 1) {
-			return math.Min(tb.cal, tb.t[n-1]+(zt-tb.z[n-1])/d)
+			return min(tb.cal, tb.t[n-1]+(zt-tb.z[n-1])/d)
 		}
 		return tb.t[n-1]
 	}
@@ -1073,7 +1073,7 @@ func (tb tabulated) integrateMoments() (mean, vari, meanErr, varErr float64) {
 	// survival's own error (mills.UpperMaxRelErr) over the span.
 	e1 += 4*0x1p-52*math.Abs(mean) + 1e-14*(hi-lo)
 	e2 += 4*0x1p-52*math.Abs(second) + 2e-14*hi*(hi-lo)
-	vari = math.Max(0, second-mean*mean)
+	vari = max(0, second-mean*mean)
 	return mean, vari, e1, e2 + 2*math.Abs(mean)*e1 + e1*e1
 }
 
@@ -1113,13 +1113,13 @@ func momentRuleBound(h, z0, z1, d0, d1 float64) (f7, f8 float64) {
 	c2 := (3*del - 2*d0 - d1) / h
 	c3 := (d0 + d1 - 2*del) / (h * h)
 	dz := func(s float64) float64 { return d0 + 2*c2*s + 3*c3*s*s }
-	D1 := math.Max(math.Abs(d0), math.Abs(dz(h)))
+	D1 := max(math.Abs(d0), math.Abs(dz(h)))
 	if c3 != 0 {
 		if s := -c2 / (3 * c3); s > 0 && s < h {
-			D1 = math.Max(D1, math.Abs(dz(s)))
+			D1 = max(D1, math.Abs(dz(s)))
 		}
 	}
-	D2 := math.Max(math.Abs(2*c2), math.Abs(2*c2+6*c3*h))
+	D2 := max(math.Abs(2*c2), math.Abs(2*c2+6*c3*h))
 	D3 := math.Abs(6 * c3)
 	return bellBound(7, D1, D2, D3), bellBound(8, D1, D2, D3)
 }

@@ -175,7 +175,7 @@ func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64
 	}
 	cal := !math.IsInf(n.calendar, 1)
 	if cal {
-		guess = math.Min(guess, n.calendar)
+		guess = min(guess, n.calendar)
 	}
 	if n.settings[j].sums != nil {
 		// No per-node spread: the exact k-fold law, which moves in steps of
@@ -196,10 +196,10 @@ func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64
 		}
 		lo, zl := probitEnd(f, guess, zLo, tabEndSlack, false)
 		if hi == 0 {
-			hi, zh = probitEnd(f, math.Max(guess, lo), zHi, tabEndSlack, true)
+			hi, zh = probitEnd(f, max(guess, lo), zHi, tabEndSlack, true)
 		}
 		if !(lo < hi) {
-			lo = math.Max(0, hi*(1-1e-9))
+			lo = max(0, hi*(1-1e-9))
 			zl = probit(lo)
 		}
 		return probitGrid(probit, lo, hi, zl, zh, n.kinks(lo, hi), 2/n.settings[j].rate, tol), true, nil
@@ -251,7 +251,7 @@ func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64
 	memo.learn(0, from, guess, zg, lo, zl)
 	loK := at(lo)
 	if hiK.t == 0 {
-		start := math.Max(guess, lo)
+		start := max(guess, lo)
 		zs, _ := f(start)
 		hi, zh := probitEndFrom(f, start, memo.first(1, 0, start, zs, zHi+tabEndSlack/2), zHi, tabEndSlack, true)
 		memo.learn(1, 0, start, zs, hi, zh)
@@ -265,7 +265,7 @@ func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64
 		}
 		lo, hi := loK.t, hiK.t
 		if !(lo < hi) {
-			lo = math.Max(0, hi*(1-1e-9))
+			lo = max(0, hi*(1-1e-9))
 		}
 		return probitGrid(probit, lo, hi, probit(lo), probit(hi), n.kinks(lo, hi), 0, tol), true, nil
 	}
@@ -487,7 +487,7 @@ func (n *node) clockGrid(sc *tableScratch, lo, hi gradKnot, tol float64, initial
 			}
 		}
 		if lam == 1 && e <= tol && (e0 <= tol || e1 <= tol) {
-			tight = math.Max(tight, e)
+			tight = max(tight, e)
 		}
 		return m, e0, e1
 	})
@@ -669,13 +669,13 @@ func probitEndFrom(f func(float64) (float64, float64), guess, first, target, sla
 				nt = t * (1 + step)
 				step *= 2
 			}
-			nt = math.Min(nt, 2*t)
+			nt = min(nt, 2*t)
 		default:
 			if !(nt < t) {
 				nt = t / (1 + step)
 				step *= 2
 			}
-			nt = math.Max(nt, t/2)
+			nt = max(nt, t/2)
 		}
 		if !math.IsNaN(first) {
 			if (upper && first > t && first < 64*t) || (!upper && first < t && first > t/64) {
@@ -843,7 +843,7 @@ func (n *node) settingTables(sc *tableScratch, l NodeLifetime) []settingOut {
 			if pt.t == nil || t < pt.t[0] {
 				continue // none yet, or read as 0 before its table
 			}
-			f += n.settings[i].w * normSurv(-(pt.zAt(math.Min(t, pt.t[len(pt.t)-1])) - out[i].errZ))
+			f += n.settings[i].w * normSurv(-(pt.zAt(min(t, pt.t[len(pt.t)-1])) - out[i].errZ))
 		}
 		return f
 	}
@@ -853,19 +853,19 @@ func (n *node) settingTables(sc *tableScratch, l NodeLifetime) []settingOut {
 			return 1
 		}
 		P := normSurv(-b.z) * (1 + 1e-9)
-		e := math.Max(w*P/before(a.t), P/(1-P))
+		e := max(w*P/before(a.t), P/(1-P))
 		phi := normPDF(b.z + tabLooseShift)
-		lam := math.Min(tabLooseMax, math.Min(tabLooseShare/(1.5*N*e), tabLooseShare*0.4/(1.5*N*w*phi)))
+		lam := min(tabLooseMax, min(tabLooseShare/(1.5*N*e), tabLooseShare*0.4/(1.5*N*w*phi)))
 		if !(lam > 1) {
 			return 1
 		}
 		// Every interval offered, accepted or not: the largest are at
 		// least those of the intervals kept.
 		d := 1.5 * tabSetZTol * lam
-		o.looseRel = math.Max(o.looseRel, d*e)
-		o.looseAbs = math.Max(o.looseAbs, w*phi*d)
-		o.slack = math.Max(o.slack, d-0.01)
-		o.errZ = math.Max(o.errZ, d)
+		o.looseRel = max(o.looseRel, d*e)
+		o.looseAbs = max(o.looseAbs, w*phi*d)
+		o.slack = max(o.slack, d-0.01)
+		o.errZ = max(o.errZ, d)
 		return lam
 	}
 	plan := func(lo, hi gradKnot) (bool, func(a, b *gradKnot) float64) {
@@ -919,7 +919,7 @@ func (n *node) seasonRates() seasonRates {
 		}
 		lo, hi := rates[0], rates[0]
 		for _, r := range rates[1:] {
-			lo, hi = math.Min(lo, r), math.Max(hi, r)
+			lo, hi = min(lo, r), max(hi, r)
 		}
 		sr.spread[i] = hi - lo
 		sr.rho[i] = sr.spread[i] / (4 * lo)
@@ -949,11 +949,11 @@ func (n *node) seasonal(a, m, b *gradKnot, sr *seasonRates, limit float64) [2]fl
 	var d1, d2 [3]float64 // per clock: the gradient's largest change over a half, its second difference over 8
 	rho := 0.0
 	for i := 1; i < 3; i++ {
-		d1[i] = math.Max(math.Abs(m.g[i]-a.g[i]), math.Abs(b.g[i]-m.g[i]))
+		d1[i] = max(math.Abs(m.g[i]-a.g[i]), math.Abs(b.g[i]-m.g[i]))
 		d2[i] = math.Abs(a.g[i]-2*m.g[i]+b.g[i]) / 8
-		rho = math.Max(rho, sr.rho[i])
+		rho = max(rho, sr.rho[i])
 	}
-	h := math.Max(m.t-a.t, b.t-m.t)
+	h := max(m.t-a.t, b.t-m.t)
 	crude := 0.0
 	for i := 1; i < 3; i++ {
 		crude += (d1[i]*rho/2 + d2[i]) * h * sr.spread[i] / 4
@@ -970,13 +970,13 @@ func (n *node) seasonal(a, m, b *gradKnot, sr *seasonRates, limit float64) [2]fl
 			x := k * Month
 			c := n.clocks(x)
 			for i := 1; i < 3; i++ {
-				dev[i] = math.Max(dev[i], math.Abs(c[i]-p.c[i]-(x-p.t)*(q.c[i]-p.c[i])/w))
+				dev[i] = max(dev[i], math.Abs(c[i]-p.c[i]-(x-p.t)*(q.c[i]-p.c[i])/w))
 			}
 		}
 		r := 0.0
 		for k := 1; k < 3; k++ {
 			if dc := math.Abs(q.c[k] - p.c[k]); dc > 0 {
-				r = math.Max(r, dev[k]/dc)
+				r = max(r, dev[k]/dc)
 			}
 		}
 		e := 0.0

@@ -119,7 +119,7 @@ func (n *node) nominalRoot(j int) float64 {
 	for n.margin(j, hi) > 0 {
 		lo, hi = hi, 2*hi
 		if hi > 1e4*Year {
-			return math.Min(hi, n.calendar)
+			return min(hi, n.calendar)
 		}
 	}
 	for range 200 {
@@ -133,7 +133,7 @@ func (n *node) nominalRoot(j int) float64 {
 			hi = m
 		}
 	}
-	return math.Min(hi, n.calendar)
+	return min(hi, n.calendar)
 }
 
 // UsableFraction returns the smallest and largest usable share of group
@@ -152,7 +152,7 @@ func (s Site) UsableFraction(i int) (lo, hi float64, err error) {
 	}
 	lo, hi = math.Inf(1), math.Inf(-1)
 	for _, st := range n.settings {
-		lo, hi = math.Min(lo, st.usableF), math.Max(hi, st.usableF)
+		lo, hi = min(lo, st.usableF), max(hi, st.usableF)
 	}
 	return lo, hi, nil
 }

@@ -130,12 +130,12 @@ func (bl betaLaw) mass(u1, w1, u2, w2 float64) float64 {
 	total := 0.0
 	// Part in [0, 1/2], in the coordinate u.
 	if u1 < 0.5 {
-		hi := math.Min(u2, 0.5)
+		hi := min(u2, 0.5)
 		total += bl.piece(&r, false, u1, hi)
 	}
 	// Part in [1/2, 1], in the coordinate w = 1 - u (so that w is exact).
 	if u2 > 0.5 {
-		lo := math.Min(w1, 0.5)
+		lo := min(w1, 0.5)
 		total += bl.piece(&r, true, w2, lo)
 	}
 	return total
@@ -186,7 +186,7 @@ func (bl betaLaw) piece(r *glRule, inW bool, t1, t2 float64) float64 {
 			if !(h < rem) {
 				next = to
 			}
-			lo, hi := math.Min(pos, next), math.Max(pos, next)
+			lo, hi := min(pos, next), max(pos, next)
 			c, half := (lo+hi)/2, (hi-lo)/2
 			part := 0.0
 			for i := 0; i < glOrder; i++ {
@@ -255,17 +255,17 @@ func (bl betaLaw) quantile(p, q float64) (u, w float64) {
 	if inW {
 		mean = bl.b / (bl.a + bl.b)
 	}
-	a, b := math.Max(0, mean-12*bl.sd), math.Min(0.5, mean+12*bl.sd)
+	a, b := max(0, mean-12*bl.sd), min(0.5, mean+12*bl.sd)
 	ha, hb := h(a), h(b)
 	for i := 0; ha >= 0 && a > 0 && i < 60; i++ {
-		a = math.Max(0, mean-(mean-a)*4)
+		a = max(0, mean-(mean-a)*4)
 		if a < 1e-300 {
 			a = 0
 		}
 		ha = h(a)
 	}
 	for i := 0; hb < 0 && b < 0.5 && i < 60; i++ {
-		b = math.Min(0.5, b+(b-mean+bl.sd)*4)
+		b = min(0.5, b+(b-mean+bl.sd)*4)
 		hb = h(b)
 	}
 	var t float64

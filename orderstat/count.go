@@ -134,7 +134,7 @@ func (cm countModel) chernoff(theta, k, a float64, above bool) float64 {
 		return 1
 	}
 	_, kt := cm.tilted(t)
-	return math.Min(1, 1.001*math.Exp(kt-k-s*a))
+	return min(1, 1.001*math.Exp(kt-k-s*a))
 }
 
 // splitTransformErr is splitTransform with bounds on the relative errors
@@ -157,7 +157,7 @@ func (cm countModel) chernoff(theta, k, a float64, above bool) float64 {
 // error and one rounding, over its value.
 func (cm countModel) splitTransformErr(m float64) (le, gt, relLE, relGT float64) {
 	w := cm.window(m+0.5, nil)
-	top := math.Min(w.lo+float64(len(w.pmf))-1, cm.size)
+	top := min(w.lo+float64(len(w.pmf))-1, cm.size)
 	outside := 0.0 // the tilted mass beyond the edges; nothing below 0 or above size
 	if w.lo > 0 {
 		outside += cm.chernoff(w.theta, w.k, w.lo-1, false)
@@ -197,7 +197,7 @@ func (w countWindow) sumErr(a, b, outside float64) (s, e float64) {
 			continue
 		}
 		ej := math.Exp(w.k - w.theta*j)
-		eMax = math.Max(eMax, ej)
+		eMax = max(eMax, ej)
 		tj := w.theta * j
 		e += 1.01 * (w.absErr*ej + w.pmf[r]*(w.kErr+u*(math.Abs(tj)+math.Abs(w.k-tj)+1)))
 		s += w.pmf[r]
@@ -298,7 +298,7 @@ func (cm countModel) tiltFor(target float64) float64 {
 		ts, _ = cm.tiltedInto(ts, theta)
 		m, v := momentsOf(ts)
 		f := m - target
-		if math.Abs(f) <= 0.25*math.Max(1, math.Sqrt(v)) {
+		if math.Abs(f) <= 0.25*max(1, math.Sqrt(v)) {
 			return theta
 		}
 		if f > 0 {
@@ -317,7 +317,7 @@ func (cm countModel) tiltFor(target float64) float64 {
 				next = hi - 2
 			}
 		}
-		theta = math.Max(-1400, math.Min(1400, next))
+		theta = max(-1400, min(1400, next))
 	}
 	return theta
 }

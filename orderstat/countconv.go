@@ -29,9 +29,9 @@ const runCut = 1e-305
 // give rel. The result is empty (lo = a) where even the largest is below
 // cut. dst is reused when it has the capacity.
 func binomRun(t binom, a, b, cut float64, dst []float64) (lo float64, pmf []float64, rel float64) {
-	cut = math.Max(cut, runCut)
+	cut = max(cut, runCut)
 	mode := math.Floor((t.n + 1) * t.p)
-	mode = math.Max(a, math.Min(mode, math.Min(b, t.n)))
+	mode = max(a, min(mode, min(b, t.n)))
 	w := loader.NewWalk(mode, t.n, t.p, t.q, 0)
 	if !(w.P >= cut) {
 		return a, dst[:0], 0
@@ -51,7 +51,7 @@ func binomRun(t binom, a, b, cut float64, dst []float64) (lo float64, pmf []floa
 		pmf[i], pmf[k] = pmf[k], pmf[i]
 	}
 	lo = mode - float64(steps)
-	top := math.Min(b, t.n)
+	top := min(b, t.n)
 	for w.X < top {
 		w.Up()
 		if w.P < cut {
@@ -94,7 +94,7 @@ func lowCount(ts []binom, top float64, dst []float64) (pmf []float64, rel float6
 	accTop := 0 // last index of acc that may be non-zero
 	scratch := buf[2*size : 2*size : 3*size]
 	for _, t := range ts {
-		b := math.Min(top, t.n)
+		b := min(top, t.n)
 		lo, pmf, r := binomRun(t, 0, b, runCut, scratch)
 		scratch = pmf
 		if len(pmf) == 0 {
@@ -144,7 +144,7 @@ func (cm countModel) splitConv(m float64) (le, gt, rel float64, ok bool) {
 	top := mm
 	if mean < mm {
 		// P(C' <= mm) about 1/2 or more: the second pass at once.
-		top = math.Min(math.Ceil(math.Max(mm, mean)+10*sd+20), cm.size)
+		top = min(math.Ceil(max(mm, mean)+10*sd+20), cm.size)
 	}
 	var pmf []float64
 	var termRel, below, above float64
@@ -155,7 +155,7 @@ func (cm countModel) splitConv(m float64) (le, gt, rel float64, ok bool) {
 		// Cost in multiply-adds against the transform's (see pmfAll).
 		convCost := 0.0
 		for _, t := range ts {
-			convCost += (top + 1) * math.Min(top+1, termWidth(t))
+			convCost += (top + 1) * min(top+1, termWidth(t))
 		}
 		if convCost > 150*float64(len(ts))*(fft/2+1) {
 			return 0, 0, 0, false
@@ -175,7 +175,7 @@ func (cm countModel) splitConv(m float64) (le, gt, rel float64, ok bool) {
 		if below <= 0.5 || top > mm {
 			break
 		}
-		top = math.Min(math.Ceil(math.Max(mm, mean)+10*sd+20), cm.size)
+		top = min(math.Ceil(max(mm, mean)+10*sd+20), cm.size)
 	}
 	rel = convRel(len(ts), termRel, float64(len(ts))*(top+1)) + 2*0x1p-53
 	if rel > 1e-11 {

@@ -131,15 +131,15 @@ func measure(a ExtremeApprox, exact dist.Law) ApproxError {
 	var e ApproxError
 	for _, p := range []float64{1e-6, 1e-4, 1e-3, 0.01, 0.05, 0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99, 0.999, 0.9999, 1 - 1e-6} {
 		x := exact.Quantile(p)
-		e.CDFAbs = math.Max(e.CDFAbs, math.Abs(a.CDF(x)-exact.CDF(x)))
+		e.CDFAbs = max(e.CDFAbs, math.Abs(a.CDF(x)-exact.CDF(x)))
 	}
 	for _, q := range []float64{1e-4, 1e-6, 1e-9} {
 		if a.max {
 			x := exact.UpperQuantile(q)
-			e.TailRel = math.Max(e.TailRel, math.Abs(a.Survival(x)/exact.Survival(x)-1))
+			e.TailRel = max(e.TailRel, math.Abs(a.Survival(x)/exact.Survival(x)-1))
 		} else {
 			x := exact.Quantile(q)
-			e.TailRel = math.Max(e.TailRel, math.Abs(a.CDF(x)/exact.CDF(x)-1))
+			e.TailRel = max(e.TailRel, math.Abs(a.CDF(x)/exact.CDF(x)-1))
 		}
 	}
 	if m := exact.Mean(); finite(m) && m != 0 {

@@ -261,7 +261,7 @@ func (cm countModel) pmfAll() (lo float64, pmf []float64, method string, rel flo
 				break
 			}
 			convCost += ws[i] * ws[i+1]
-			next = append(next, math.Min(ws[i]+ws[i+1], width))
+			next = append(next, min(ws[i]+ws[i+1], width))
 		}
 		ws = next
 	}
@@ -275,7 +275,7 @@ func (cm countModel) pmfAll() (lo float64, pmf []float64, method string, rel flo
 
 // termWidth is about the number of probabilities of Bin(n, p) that do not
 // underflow.
-func termWidth(t binom) float64 { return math.Min(t.n+1, 80*math.Sqrt(t.n*t.p*t.q)+40) }
+func termWidth(t binom) float64 { return min(t.n+1, 80*math.Sqrt(t.n*t.p*t.q)+40) }
 
 // binomPMF returns the probabilities of Bin(n, p) that are at least
 // runCut (normal float64 numbers), from lo on, and their relative error
@@ -343,13 +343,13 @@ func (cm countModel) march() (lo float64, pmf []float64, rel float64) {
 	accept := func(w countWindow, from, to float64, fillUp, fillDown bool) (a, b float64) {
 		mx := 0.0
 		for _, v := range w.tpmf {
-			mx = math.Max(mx, v)
+			mx = max(mx, v)
 		}
 		a, b = math.Inf(1), math.Inf(-1)
 		for r, v := range w.tpmf {
 			j := w.lo + float64(r)
 			if v >= 1e-2*mx && j >= from && j <= to && j <= cm.size {
-				a, b = math.Min(a, j), math.Max(b, j)
+				a, b = min(a, j), max(b, j)
 			}
 		}
 		if a > b {
@@ -365,7 +365,7 @@ func (cm countModel) march() (lo float64, pmf []float64, rel float64) {
 			if j := w.lo + float64(r); j >= a && j <= b {
 				vals[j] = w.pmf[r]
 				if w.pmf[r] > 0 {
-					worst = math.Max(worst, w.rel(r))
+					worst = max(worst, w.rel(r))
 				}
 			}
 		}
@@ -383,7 +383,7 @@ func (cm countModel) march() (lo float64, pmf []float64, rel float64) {
 		if v := vals[top]; v < 1e-300 {
 			break
 		}
-		wu := cm.window(math.Min(top+1+math.Max(1, sd), cm.size-0.5), inv)
+		wu := cm.window(min(top+1+max(1, sd), cm.size-0.5), inv)
 		inv = wu.inv
 		_, nb := accept(wu, top+1, cm.size, true, false)
 		if !(nb > top) {
@@ -396,7 +396,7 @@ func (cm countModel) march() (lo float64, pmf []float64, rel float64) {
 		if v := vals[bot]; v < 1e-300 {
 			break
 		}
-		wl := cm.window(math.Max(bot-1-math.Max(1, sd), 0.5), inv)
+		wl := cm.window(max(bot-1-max(1, sd), 0.5), inv)
 		inv = wl.inv
 		na, _ := accept(wl, 0, bot-1, false, true)
 		if !(na < bot) {

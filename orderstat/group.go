@@ -124,7 +124,7 @@ func (g *group) atomAt(x float64) float64 {
 	i := sort.Search(len(g.atoms), func(i int) bool { return g.atoms[i].Value >= x*(1-dist.AtomMergeTolerance) || g.atoms[i].Value >= x })
 	for ; i < len(g.atoms); i++ {
 		v := g.atoms[i].Value
-		if math.Abs(v-x) <= dist.AtomMergeTolerance*math.Max(math.Abs(v), math.Abs(x)) {
+		if math.Abs(v-x) <= dist.AtomMergeTolerance*max(math.Abs(v), math.Abs(x)) {
 			return g.atoms[i].Mass
 		}
 		if v > x {
@@ -254,7 +254,7 @@ func unionAtoms(gs []group) []float64 {
 	sort.Float64s(vs)
 	out := vs[:0]
 	for _, v := range vs {
-		if n := len(out); n > 0 && math.Abs(v-out[n-1]) <= dist.AtomMergeTolerance*math.Max(math.Abs(v), math.Abs(out[n-1])) {
+		if n := len(out); n > 0 && math.Abs(v-out[n-1]) <= dist.AtomMergeTolerance*max(math.Abs(v), math.Abs(out[n-1])) {
 			continue
 		}
 		out = append(out, v)

@@ -103,7 +103,7 @@ func discreteRange(fn string, atoms []dist.Atom, n float64) (dist.Law, error) {
 	for _, i := range idx {
 		v, p := vals[i], probs[i]
 		total += p
-		if k := len(mv); k > 0 && math.Abs(v-mv[k-1]) <= dist.AtomMergeTolerance*math.Max(math.Abs(v), math.Abs(mv[k-1])) {
+		if k := len(mv); k > 0 && math.Abs(v-mv[k-1]) <= dist.AtomMergeTolerance*max(math.Abs(v), math.Abs(mv[k-1])) {
 			mp[k-1] += p
 			continue
 		}
@@ -361,7 +361,7 @@ func (rl *rangeLaw) Rand(r *rand.Rand) float64 {
 	lw := math.Log(openUniform(r)) / (rl.n - 1)
 	lsn := ls1 + math.Log(-math.Expm1(lw)) // log(1 − U_n)
 	xn := g.levelQuantile(-math.Expm1(lsn), math.Exp(lsn))
-	return math.Max(0, xn-x1)
+	return max(0, xn-x1)
 }
 
 // Atoms returns none: the range of a continuous law is continuous.

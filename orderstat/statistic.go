@@ -382,16 +382,16 @@ func (c *core) kthError(floor float64) (abs, rel float64) {
 				le, gt, rle, rgt := c.countModel(x, false).splitErr(float64(c.k-1), true)
 				// P(X_(k) <= x) = P(C > k-1) = gt, P(X_(k) > x) = le
 				if gt > 0 {
-					c.kthAbs = math.Max(c.kthAbs, rgt*gt)
+					c.kthAbs = max(c.kthAbs, rgt*gt)
 				}
 				if le > 0 {
-					c.kthAbs = math.Max(c.kthAbs, rle*le)
+					c.kthAbs = max(c.kthAbs, rle*le)
 				}
 				if le > 0 {
 					// the outermost probes lie just beyond the floor
 					// (S <= floor there), where the bound is at least
 					// what it is inside
-					c.kthRel = math.Max(c.kthRel, rle)
+					c.kthRel = max(c.kthRel, rle)
 				}
 			}
 		}
@@ -436,7 +436,7 @@ func (c *core) findAtoms() {
 			}
 		}
 		if m > 0 && !math.IsNaN(m) {
-			c.atoms = append(c.atoms, dist.Atom{Value: v, Mass: math.Min(m, 1)})
+			c.atoms = append(c.atoms, dist.Atom{Value: v, Mass: min(m, 1)})
 			total += m
 		}
 	}
@@ -653,7 +653,7 @@ func (c *core) bracket(p, q float64) (a, b float64) {
 			if nn == 0 {
 				l = lp / g.nf
 			}
-			x = math.Max(x, g.levelQuantile(math.Exp(l), -math.Expm1(l)))
+			x = max(x, g.levelQuantile(math.Exp(l), -math.Expm1(l)))
 		}
 		return x
 	}
@@ -665,7 +665,7 @@ func (c *core) bracket(p, q float64) (a, b float64) {
 			if nn == 0 {
 				l = lq / g.nf
 			}
-			x = math.Min(x, g.levelQuantile(-math.Expm1(l), math.Exp(l)))
+			x = min(x, g.levelQuantile(-math.Expm1(l), math.Exp(l)))
 		}
 		return x
 	}
@@ -702,7 +702,7 @@ func (c *core) cheapBracket(p, q float64) (a, b float64) {
 		l := log1mp(p, q) / g.nf
 		x = g.levelQuantile(-math.Expm1(l), math.Exp(l))
 	}
-	step := math.Max(math.Abs(x-g.medianValue()), 1e-6*math.Abs(x)+1e-300)
+	step := max(math.Abs(x-g.medianValue()), 1e-6*math.Abs(x)+1e-300)
 	if !finite(x) {
 		return x, x
 	}
@@ -722,13 +722,13 @@ func widen(h func(float64) float64, a, b float64) (float64, float64, float64, fl
 		a, b = -1, 1
 	}
 	if !finite(a) {
-		a = b - math.Max(1, math.Abs(b))
+		a = b - max(1, math.Abs(b))
 	}
 	if !finite(b) {
-		b = a + math.Max(1, math.Abs(a))
+		b = a + max(1, math.Abs(a))
 	}
 	ha, hb := h(a), h(b)
-	step := math.Max(b-a, 1e-300+math.Abs(a)*1e-8)
+	step := max(b-a, 1e-300+math.Abs(a)*1e-8)
 	for i := 0; ha >= 0 && i < 2100; i++ {
 		b, hb = a, ha
 		a -= step
@@ -738,7 +738,7 @@ func widen(h func(float64) float64, a, b float64) (float64, float64, float64, fl
 			break
 		}
 	}
-	step = math.Max(b-a, 1e-300+math.Abs(b)*1e-8)
+	step = max(b-a, 1e-300+math.Abs(b)*1e-8)
 	for i := 0; hb < 0 && i < 2100; i++ {
 		a, ha = b, hb
 		b += step
@@ -768,7 +768,7 @@ func (s Statistic) Rand(r *rand.Rand) float64 {
 		for i := range c.groups {
 			g := &c.groups[i]
 			l := math.Log(openUniform(r)) / g.nf
-			x = math.Max(x, g.levelQuantile(math.Exp(l), -math.Expm1(l)))
+			x = max(x, g.levelQuantile(math.Exp(l), -math.Expm1(l)))
 		}
 		return x
 	case kindMin:
@@ -776,7 +776,7 @@ func (s Statistic) Rand(r *rand.Rand) float64 {
 		for i := range c.groups {
 			g := &c.groups[i]
 			l := math.Log(openUniform(r)) / g.nf
-			x = math.Min(x, g.levelQuantile(-math.Expm1(l), math.Exp(l)))
+			x = min(x, g.levelQuantile(-math.Expm1(l), math.Exp(l)))
 		}
 		return x
 	}
@@ -914,9 +914,9 @@ func (s Statistic) Accuracy() dist.Accuracy {
 	for _, g := range c.groups {
 		if e, ok := g.law.(dist.Estimated); ok {
 			acc := e.Accuracy()
-			r = math.Max(r, acc.SurvivalRel)
-			abs += math.Min(1, g.nf*acc.CDFAbs)
-			floor = math.Max(floor, acc.TailFloor)
+			r = max(r, acc.SurvivalRel)
+			abs += min(1, g.nf*acc.CDFAbs)
+			floor = max(floor, acc.TailFloor)
 		}
 	}
 	cdfAbs := abs + r
@@ -940,7 +940,7 @@ func (s Statistic) Accuracy() dist.Accuracy {
 		survRel += rl
 		method = "count of nodes below x: direct convolution of the groups' binomial probabilities, or tilted discrete Fourier inversion of its characteristic function (Hong 2013), bounds read at the law's quantiles"
 	}
-	return dist.Accuracy{CDFAbs: math.Min(cdfAbs, 1), SurvivalRel: survRel, TailFloor: floor, Method: method}
+	return dist.Accuracy{CDFAbs: min(cdfAbs, 1), SurvivalRel: survRel, TailFloor: floor, Method: method}
 }
 
 // String prints the law compactly, e.g.

@@ -136,7 +136,7 @@ func (c *core) setBounds() {
 	top := math.Inf(-1)
 	for p := len(c.order) - 1; p >= 0; p-- {
 		if g := &c.groups[c.order[p]]; g.horizon != nil {
-			top = math.Max(top, g.logN2)
+			top = max(top, g.logN2)
 		} else {
 			top = math.Inf(1) // a group without bounds: never left out
 		}
@@ -178,9 +178,9 @@ func (c *core) restLimit(m int) []float64 {
 			case math.IsNaN(h):
 				acc = math.Inf(-1)
 			case upper:
-				acc = math.Max(acc, h)
+				acc = max(acc, h)
 			default:
-				acc = math.Min(acc, h)
+				acc = min(acc, h)
 			}
 			lim[p] = acc
 		}

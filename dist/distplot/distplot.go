@@ -202,12 +202,12 @@ func resolve(fn string, curves []Curve, o Options) (resolved, error) {
 			return r, argErr(fn, fmt.Sprintf("curves[%d].Law", i), c.Law,
 				fmt.Sprintf("its %g quantiles are not finite (%g, %g): give Options.Min and Options.Max", tail, a, b))
 		}
-		lo, hi = math.Min(lo, a), math.Max(hi, b)
+		lo, hi = min(lo, a), max(hi, b)
 	}
 	span := hi - lo
-	if !(span > 1e-9*math.Max(math.Abs(lo), math.Abs(hi))) {
+	if !(span > 1e-9*max(math.Abs(lo), math.Abs(hi))) {
 		// A (nearly) constant law: show 10 % around it, or ±1 about 0.
-		span = 0.1 * math.Max(math.Abs(lo), math.Abs(hi))
+		span = 0.1 * max(math.Abs(lo), math.Abs(hi))
 		if span == 0 {
 			span = 1
 		}
@@ -267,7 +267,7 @@ func Values(kindName string, l dist.Law, xs []float64) ([]float64, error) {
 	if len(xs) > 1 {
 		lo, hi := xs[0], xs[0]
 		for _, x := range xs {
-			lo, hi = math.Min(lo, x), math.Max(hi, x)
+			lo, hi = min(lo, x), max(hi, x)
 		}
 		h = 1e-4 * (hi - lo)
 	}
@@ -294,7 +294,7 @@ func values(k kind, l dist.Law, xs []float64, h float64) ([]float64, error) {
 				break
 			}
 			if !(h > 0) {
-				h = 1e-6 * math.Max(1, math.Abs(x))
+				h = 1e-6 * max(1, math.Abs(x))
 			}
 			a, b := x-h, x+h
 			m := l.CDF(b) - l.CDF(a)
@@ -303,7 +303,7 @@ func values(k kind, l dist.Law, xs []float64, h float64) ([]float64, error) {
 					m -= at.Mass
 				}
 			}
-			y = math.Max(0, m/(b-a))
+			y = max(0, m/(b-a))
 		}
 		if math.IsNaN(y) {
 			return nil, fmt.Errorf("distplot: the law %v answers NaN at x = %g (%s): %w", l, x, k.fn(), ErrParam)
@@ -371,7 +371,7 @@ func lines(k kind, curves []Curve, o Options, ylabel string) (*plot.Plot, error)
 		for j := range xs {
 			y := ys[j]
 			if o.LogY {
-				y = math.Max(y, r.floor)
+				y = max(y, r.floor)
 			}
 			pts[j] = plotter.XY{X: xs[j] * r.scale, Y: y}
 		}

@@ -68,7 +68,7 @@ func roundStep(x float64) float64 {
 // roundTo rounds x to a multiple of step's decimal digits, so that
 // 0.30000000000000004 prints as 0.3.
 func roundTo(x, step float64) float64 {
-	d := math.Max(0, -math.Floor(math.Log10(step))+1)
+	d := max(0, -math.Floor(math.Log10(step))+1)
 	f := math.Pow(10, d)
 	return math.Round(x*f) / f
 }

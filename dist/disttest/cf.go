@@ -145,7 +145,7 @@ func (c *checker) transform(ts []float64, n int) ([]complex128, float64) {
 		p, _ := c.massBetween(a, b)
 		p -= c.atomsIn(a, b)
 		if p < 1e-11 {
-			slack += math.Max(p, 0) + 1e-13
+			slack += max(p, 0) + 1e-13
 			continue
 		}
 		val, e, ok := in.integrate(2*len(ts), f, a, b, c.integrationRel(c.cfg.densityRel), 1e-15)

@@ -77,10 +77,10 @@ func Check(l dist.Law, opts ...Option) error {
 				c.fail(CheckSupport, "Accuracy()", "finite bounds >= 0", fmt.Sprintf("%+v", a))
 				return
 			}
-			c.cfg.cdfAbs = math.Max(c.cfg.cdfAbs, math.Min(a.CDFAbs, 0.01))
+			c.cfg.cdfAbs = max(c.cfg.cdfAbs, min(a.CDFAbs, 0.01))
 			if a.SurvivalRel > c.cfg.survivalRel {
-				c.cfg.survivalRel = math.Min(a.SurvivalRel, 0.5)
-				c.cfg.tailFloor = math.Max(c.cfg.tailFloor, a.TailFloor)
+				c.cfg.survivalRel = min(a.SurvivalRel, 0.5)
+				c.cfg.tailFloor = max(c.cfg.tailFloor, a.TailFloor)
 			}
 		})
 	}
@@ -232,7 +232,7 @@ func (c *checker) positiveScale() float64 {
 		return s
 	}
 	if finite(c.median) {
-		return math.Max(math.Abs(c.median), 1)
+		return max(math.Abs(c.median), 1)
 	}
 	return 1
 }
@@ -346,7 +346,7 @@ func (c *checker) probSlack(p float64) float64 { return c.cfg.cdfAbs + 4*eps*p }
 func (c *checker) survSlack(q float64) float64 {
 	s := c.cfg.cdfAbs + 4*eps*q
 	if c.cfg.survivalRel > 0 && q >= c.cfg.tailFloor {
-		s = math.Max(s, c.cfg.survivalRel*q+4*eps*q)
+		s = max(s, c.cfg.survivalRel*q+4*eps*q)
 	}
 	return s
 }
@@ -358,10 +358,10 @@ func (c *checker) massBetween(a, b float64) (p, mag float64) {
 	l := c.law
 	if b <= c.median {
 		fa, fb := l.CDF(a), l.CDF(b)
-		return fb - fa, math.Max(math.Abs(fa), math.Abs(fb))
+		return fb - fa, max(math.Abs(fa), math.Abs(fb))
 	}
 	sa, sb := l.Survival(a), l.Survival(b)
-	return sa - sb, math.Max(math.Abs(sa), math.Abs(sb))
+	return sa - sb, max(math.Abs(sa), math.Abs(sb))
 }
 
 // atomsIn returns the total mass of the atoms in (a, b].

@@ -26,7 +26,7 @@ func (c *checker) breakpoints(extend bool) []float64 {
 	}
 	floor := 1e-12
 	if extend {
-		floor = math.Max(1e-30, c.cfg.tailFloor)
+		floor = max(1e-30, c.cfg.tailFloor)
 	}
 	for _, p := range tailLevels {
 		if p < floor {
@@ -65,7 +65,7 @@ func (c *checker) continuousOutside(a, b float64) float64 {
 			m -= at.Mass
 		}
 	}
-	return math.Max(m, 0)
+	return max(m, 0)
 }
 
 // pieceTolerance is the tolerance of a comparison of P(a < X <= b) (value
@@ -157,7 +157,7 @@ func (c *checker) checkDensity() {
 		if !(x > c.lo && x < c.hi) {
 			continue
 		}
-		h := 1e-4 * math.Min(c.spread, math.Min(x-c.lo, c.hi-x))
+		h := 1e-4 * min(c.spread, min(x-c.lo, c.hi-x))
 		if !(h > 0) || c.nearAtom(x, 2*h) {
 			continue
 		}
@@ -172,11 +172,11 @@ func (c *checker) checkDensity() {
 		trunc := math.Abs(d1 - d2)
 		pl, _ := c.massBetween(x-h, x)
 		pr, _ := c.massBetween(x, x+h)
-		if !(trunc <= 0.01*math.Max(f, math.Abs(d2))) || !(math.Abs(pl-pr) <= 0.01*math.Max(pl, pr)) {
+		if !(trunc <= 0.01*max(f, math.Abs(d2))) || !(math.Abs(pl-pr) <= 0.01*max(pl, pr)) {
 			continue // not smooth at this scale (a kink or a jump at or near x)
 		}
 		est := (4*d2 - d1) / 3
-		tol := math.Max(1e-6, c.cfg.densityRel)*f + trunc +
+		tol := max(1e-6, c.cfg.densityRel)*f + trunc +
 			(1e3*eps*mag+2*c.cfg.cdfAbs+2*c.cfg.survivalRel*mag)/h
 		if !(math.Abs(est-f) <= tol) {
 			c.fail(CheckDensity, fmt.Sprintf("x = %s (step %s)", g(x), g(h)),
@@ -254,11 +254,11 @@ func (c *checker) momentIntegrals(br []float64, c0 float64) (e1, e2, err1, err2 
 			f = func(x float64, out []float64) { S := l.Survival(x); out[0], out[1] = S, (x-c0)*S }
 		}
 		// The integrand is known to cdfAbs at best: no finer target.
-		val, e, _ := in.integrate(2, f, a, b, rel, math.Max(c.cfg.cdfAbs*(b-a), 1e-300))
+		val, e, _ := in.integrate(2, f, a, b, rel, max(c.cfg.cdfAbs*(b-a), 1e-300))
 		e1 += sign * val[0]
 		e2 += 2 * val[1]
 		err1 += e
-		err2 += 2 * e * math.Max(math.Abs(a-c0), math.Abs(b-c0))
+		err2 += 2 * e * max(math.Abs(a-c0), math.Abs(b-c0))
 	}
 	return e1, e2, err1, err2
 }

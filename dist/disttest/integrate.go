@@ -86,7 +86,7 @@ const integrationBudget = 4000
 // integrationRel returns the relative accuracy to aim at for quadrature
 // whose result is compared at relative tolerance tol: a hundredth of it,
 // but no finer than 1e-13.
-func (c *checker) integrationRel(tol float64) float64 { return math.Max(tol/100, 1e-13) }
+func (c *checker) integrationRel(tol float64) float64 { return max(tol/100, 1e-13) }
 
 // refine returns the sorted breakpoints br with every piece cut into n
 // equal parts (br itself for n = 1).

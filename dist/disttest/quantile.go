@@ -140,7 +140,7 @@ func (c *checker) checkAtoms() {
 			p := c.atoms[i-1].Value
 			if !(a.Value > p) {
 				c.fail(CheckAtoms, at, fmt.Sprintf("a value above the previous atom's %s", g(p)), g(a.Value))
-			} else if a.Value-p <= 1e-12*math.Max(math.Abs(a.Value), math.Abs(p)) {
+			} else if a.Value-p <= 1e-12*max(math.Abs(a.Value), math.Abs(p)) {
 				c.fail(CheckAtoms, at, fmt.Sprintf("atoms farther apart than AtomMergeTolerance (previous %s)", g(p)), g(a.Value))
 			}
 		}

@@ -97,9 +97,9 @@ func (c *checker) checkBins(xs []float64) {
 			b = edges[i]
 		}
 		p, _ := c.massBetween(a, b)
-		p = math.Min(math.Max(p, 0), 1)
-		s := 2 * c.probSlack(math.Max(p, 0))
-		pLo, pHi := math.Max(p-s, 0), math.Min(p+s, 1)
+		p = min(max(p, 0), 1)
+		s := 2 * c.probSlack(max(p, 0))
+		pLo, pHi := max(p-s, 0), min(p+s, 1)
 		atMost, _ := testref.BinomialTails(n, k, pLo)
 		_, atLeast := testref.BinomialTails(n, k, pHi)
 		if atMost < alpha/2 || atLeast < alpha/2 {
@@ -213,23 +213,23 @@ func (c *checker) ksDistance(xs []float64, crit float64) float64 {
 			if _, _, isAtom := c.neighbourAtoms(v); isAtom || j-i > 1 {
 				below = cdf(down(v))
 			}
-			d = math.Max(d, math.Max(math.Abs(float64(i)/fn-below), math.Abs(float64(j)/fn-at)))
+			d = max(d, max(math.Abs(float64(i)/fn-below), math.Abs(float64(j)/fn-at)))
 			i = j
 		}
 		return d
 	}
-	d := math.Max(F[0], 1-F[len(F)-1]) // below the first and from the last sample on
+	d := max(F[0], 1-F[len(F)-1]) // below the first and from the last sample on
 	if d > crit {
-		d = math.Max(exact(0, 1), exact(n-1, n))
+		d = max(exact(0, 1), exact(n-1, n))
 	}
 	for j := 0; j+1 < len(idx); j++ {
 		a, b := idx[j], idx[j+1]
 		// On [x_a, x_b): F in [F(x_a), F(x_b)], F_n in [a/n, b/n].
-		bound := math.Max(float64(b)/fn-F[j], F[j+1]-float64(a)/fn)
+		bound := max(float64(b)/fn-F[j], F[j+1]-float64(a)/fn)
 		if bound > crit {
 			bound = exact(a, b+1)
 		}
-		d = math.Max(d, bound)
+		d = max(d, bound)
 	}
 	return d
 }

@@ -131,7 +131,7 @@ func (c *checker) checkMonotone() {
 
 // checkComplement: |CDF(x) + Survival(x) - 1| <= max(1e-12, 2·tolerance).
 func (c *checker) checkComplement() {
-	tol := math.Max(1e-12, 2*c.cfg.cdfAbs)
+	tol := max(1e-12, 2*c.cfg.cdfAbs)
 	for i, x := range c.grid {
 		F, S := c.gridF[i], c.gridS[i]
 		if d := F + S - 1; !(math.Abs(d) <= tol) {

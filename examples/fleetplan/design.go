@@ -306,7 +306,7 @@ func groupBuilder(s scenario.Scenario, base scenario.Model, gi int) energy.Build
 			if duty.SubBand == "" && !row.Feasible {
 				r.minI = math.Inf(1) // a dwell time broken at any interval
 			}
-			r.minI = math.Max(r.minI, row.MinIntervalS)
+			r.minI = max(r.minI, row.MinIntervalS)
 		}
 		r.gm, r.cycles = gm, cycles
 	}

@@ -2,7 +2,6 @@ package main
 
 import (
 	"fmt"
-	"math"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -28,7 +27,7 @@ func designFigure(p *Plan) (*plot.Plot, error) {
 		pts := make(plotter.XYs, len(g.Quantiles))
 		for i, q := range g.Quantiles {
 			pts[i] = plotter.XY{X: q.IntervalS, Y: q.Years[0]}
-			top = math.Max(top, q.Years[0])
+			top = max(top, q.Years[0])
 		}
 		line, err := plotter.NewLine(pts)
 		if err != nil {

@@ -3,7 +3,6 @@ package main
 import (
 	"fmt"
 	"image/color"
-	"math"
 	"os"
 	"path/filepath"
 
@@ -71,12 +70,12 @@ func energyFigure(p *Plan) (*plot.Plot, error) {
 	l := p.laws
 	lo, _ := l.FleetMin.Support()
 	hi := l.FleetMax.UpperQuantile(1e-6)
-	lo = math.Min(lo, l.FleetEnergy.Quantile(1e-6))
+	lo = min(lo, l.FleetEnergy.Quantile(1e-6))
 	span := hi - lo
 	if !(span > 1e-6*hi) { // a (nearly) constant energy: show 10 % around it
 		span = 0.1 * hi
 	}
-	lo, hi = math.Max(0, lo-0.03*span), hi+0.03*span
+	lo, hi = max(0, lo-0.03*span), hi+0.03*span
 	// The exceedance P(E > x) from each law's survival (never 1 − CDF), on
 	// a log scale: atoms show as steps rather than as spikes of a density.
 	pl, err := distplot.Survival([]distplot.Curve{
@@ -103,10 +102,10 @@ func energyFigure(p *Plan) (*plot.Plot, error) {
 func horizon(p *Plan) float64 {
 	end := 0.0
 	for _, l := range p.laws.groupLife {
-		end = math.Max(end, l.Quantile(0.999)/energy.Year)
+		end = max(end, l.Quantile(0.999)/energy.Year)
 	}
-	end = math.Max(end, p.laws.replaceAfter/energy.Year)
-	return math.Min(40, 1.05*end)
+	end = max(end, p.laws.replaceAfter/energy.Year)
+	return min(40, 1.05*end)
 }
 
 func survivalFigure(p *Plan) (*plot.Plot, error) {

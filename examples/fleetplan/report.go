@@ -203,7 +203,7 @@ func writeReport(out io.Writer, p *Plan) error {
 		row("average current", "%s over the group; 90 %% of nodes between %s and %s", amps(g.Current.Mean), amps(g.Current.In90[0]), amps(g.Current.In90[1]))
 		top := 0.0
 		for _, s := range g.Breakdown {
-			top = math.Max(top, s.MeanEnergyJ)
+			top = max(top, s.MeanEnergyJ)
 		}
 		bu := unitFor(top)
 		row("where it goes", "%-26s %14s %12s %9s %12s", "state", "runs per cycle", "mean ("+bu.name+")", "of mean", "of variance")
@@ -459,7 +459,7 @@ func wrap(w io.Writer, prefix, text string) {
 // stated 1e-12 relative accuracy: the report's notes on an atom then do not
 // turn on or off with a quantile's last bits.
 func sameTime(a, b float64) bool {
-	return a == b || math.Abs(a-b) <= 1e-12*math.Max(math.Abs(a), math.Abs(b))
+	return a == b || math.Abs(a-b) <= 1e-12*max(math.Abs(a), math.Abs(b))
 }
 
 // lawLine is a law's one-line summary: mean, sd, 90 % interval and support

@@ -261,7 +261,7 @@ func demoLog(groups []groupConfig, seed uint64, emit func(Record) error) error {
 				d.nextStatus += 7 * energy.Day
 				bat := 0
 				if !d.external {
-					v := g.spec.Voltage.LoadedVoltage(math.Min(1, depth), 0, 20) + 0.02*r.NormFloat64()
+					v := g.spec.Voltage.LoadedVoltage(min(1, depth), 0, 20) + 0.02*r.NormFloat64()
 					q := (g.level.Full - g.level.Empty) / 253
 					bat = int(math.Round((v-g.level.Empty)/q)) + 1
 					bat = min(254, max(1, bat))

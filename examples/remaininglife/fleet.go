@@ -114,7 +114,7 @@ func (f *fleet) apply(line int, r Record) error {
 		dv.d = d
 	}
 	f.records++
-	f.newest = math.Max(f.newest, t)
+	f.newest = max(f.newest, t)
 	return nil
 }
 

@@ -118,7 +118,7 @@ func poisson(r *rand.Rand, lam float64) int64 {
 		return 0
 	}
 	if lam >= 50 {
-		return int64(math.Max(0, math.Round(lam+math.Sqrt(lam)*r.NormFloat64())))
+		return int64(max(0, math.Round(lam+math.Sqrt(lam)*r.NormFloat64())))
 	}
 	l := math.Exp(-lam)
 	k := int64(0)
@@ -164,11 +164,11 @@ func (s Spec) Play(r *rand.Rand, dev Device, until float64, emit func(Record)) (
 		if t1 <= until && emit != nil {
 			rec := Record{Day: day, Time: t1, Counts: counts, Reading: math.NaN()}
 			if s.ReadEvery > 0 && (day+1)%s.ReadEvery == 0 {
-				v := s.Curve.LoadedVoltage(math.Min(1, d1), s.ReadLoad, s.Temperature) + s.Noise*r.NormFloat64()
+				v := s.Curve.LoadedVoltage(min(1, d1), s.ReadLoad, s.Temperature) + s.Noise*r.NormFloat64()
 				if s.Quantum > 0 {
 					v = s.Quantum * math.Round(v/s.Quantum)
 				}
-				rec.Reading = math.Min(s.High, math.Max(s.Low, v))
+				rec.Reading = min(s.High, max(s.Low, v))
 			}
 			emit(rec)
 		}

@@ -61,7 +61,7 @@ type Fleet struct {
 func (f Fleet) FirstFailure() float64 {
 	first := math.Inf(1)
 	for _, n := range f.Nodes {
-		first = math.Min(first, n.Lifetime)
+		first = min(first, n.Lifetime)
 	}
 	return first
 }
@@ -284,7 +284,7 @@ func monthly(rate *[12]float64, t0, t1 float64) float64 {
 	s := 0.0
 	m := int(t0 / energy.Month)
 	for t0 < t1 {
-		end := math.Min(t1, float64(m+1)*energy.Month)
+		end := min(t1, float64(m+1)*energy.Month)
 		if end > t0 {
 			s += (end - t0) * rate[m%12]
 			t0 = end

@@ -367,7 +367,7 @@ func Play(s scenario.Scenario, opt Options, r *rand.Rand) (Outcome, error) {
 func playedCycles(s scenario.Scenario, start float64) float64 {
 	longest := 0.0
 	for _, g := range s.Groups {
-		longest = math.Max(longest, g.Interval+g.Jitter)
+		longest = max(longest, g.Interval+g.Jitter)
 	}
 	horizon := start + longest + 90
 	n := 0.0
@@ -479,7 +479,7 @@ func (pl *play) run() {
 	s := pl.s
 	longest := 0.0
 	for _, g := range s.Groups {
-		longest = math.Max(longest, g.Interval+g.Jitter)
+		longest = max(longest, g.Interval+g.Jitter)
 	}
 	// Every node's recorded cycle starts by start + longest; its attempts end
 	// well within the next 90 s, and cycles are played up to the horizon so
@@ -598,7 +598,7 @@ func (pl *play) book(f *frame, window int) bool {
 	keep := pl.sent[gw][:0]
 	free := true
 	for _, y := range pl.sent[gw] {
-		if math.Max(y.end, y.closed) <= f.end { // over: can meet no later answer
+		if max(y.end, y.closed) <= f.end { // over: can meet no later answer
 			continue
 		}
 		keep = append(keep, y)
@@ -700,7 +700,7 @@ func (pl *play) frameEnd(f *frame) {
 	if g.Confirmed {
 		next += p.ackLo + (p.ackHi-p.ackLo)*pl.r.Float64()
 	}
-	next = math.Max(next, f.start+(f.end-f.start)/p.duty[n.Group][n.DR])
+	next = max(next, f.start+(f.end-f.start)/p.duty[n.Group][n.DR])
 	gap := next - closeRX2
 	c.charge += node.Wait * gap
 	c.active += gap

@@ -166,7 +166,7 @@ func (d *driver) apply(i int32, val []float64) bool {
 	if d.keep {
 		copy(d.kept[int(i)*15:int(i+1)*15], d.fvals) // dim is 1 when keeping
 	}
-	ulp := math.Max(math.Abs(p.a), math.Abs(p.b))
+	ulp := max(math.Abs(p.a), math.Abs(p.b))
 	ulp = math.Nextafter(ulp, math.Inf(1)) - ulp
 	e, round := 0.0, 0.0
 	for j := range val {
@@ -275,9 +275,9 @@ func (d *driver) totals(dst []float64) float64 {
 func target(opt Options, dst []float64) float64 {
 	m := 0.0
 	for _, v := range dst {
-		m = math.Max(m, math.Abs(v))
+		m = max(m, math.Abs(v))
 	}
-	return math.Max(opt.AbsTol, opt.RelTol*m)
+	return max(opt.AbsTol, opt.RelTol*m)
 }
 
 // run integrates over the pieces between pts into dst (len(dst) = dim).

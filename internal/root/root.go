@@ -41,7 +41,7 @@ func Illinois(g func(float64) float64, a, b, ga, gb, tol float64) float64 {
 	width := b - a
 	stale := 0
 	for range MaxSteps {
-		w := math.Max(tol, 4*epsilon*math.Max(math.Abs(a), math.Abs(b)))
+		w := max(tol, 4*epsilon*max(math.Abs(a), math.Abs(b)))
 		if b-a <= w || b-a <= 4*math.SmallestNonzeroFloat64 {
 			break
 		}
@@ -53,7 +53,7 @@ func Illinois(g func(float64) float64, a, b, ga, gb, tol float64) float64 {
 			// answer is followed by one that closes the bracket instead
 			// of many that creep towards it.
 			if h := w / 2; b-a > 2*h {
-				x = math.Max(a+h, math.Min(b-h, s))
+				x = max(a+h, min(b-h, s))
 			} else if s > a && s < b {
 				x = s
 			}

@@ -35,8 +35,8 @@ func KSStatistic(samples []float64, cdf func(float64) float64) float64 {
 		v := xs[i]
 		below := cdf(math.Nextafter(v, math.Inf(-1)))
 		at := cdf(v)
-		d = math.Max(d, math.Abs(float64(i)/fn-below))
-		d = math.Max(d, math.Abs(float64(j)/fn-at))
+		d = max(d, math.Abs(float64(i)/fn-below))
+		d = max(d, math.Abs(float64(j)/fn-at))
 		i = j
 	}
 	return d
@@ -92,13 +92,13 @@ func KSGridBounds(samples []float64, cdf func(float64) float64, m int) (upper, l
 		fAt = append(fAt, cdf(x))
 	}
 	for j := range g {
-		lower = math.Max(lower, math.Max(math.Abs(at[j]-fAt[j]), math.Abs(below[j]-fBelow[j])))
+		lower = max(lower, max(math.Abs(at[j]-fAt[j]), math.Abs(below[j]-fBelow[j])))
 	}
-	upper = math.Max(lower, fBelow[0])         // below the smallest sample F_n = 0
-	upper = math.Max(upper, 1-fAt[len(fAt)-1]) // from the largest on F_n = 1
+	upper = max(lower, fBelow[0])         // below the smallest sample F_n = 0
+	upper = max(upper, 1-fAt[len(fAt)-1]) // from the largest on F_n = 1
 	for j := 0; j+1 < len(g); j++ {
-		upper = math.Max(upper, below[j+1]-fAt[j])
-		upper = math.Max(upper, fBelow[j+1]-at[j])
+		upper = max(upper, below[j+1]-fAt[j])
+		upper = max(upper, fBelow[j+1]-at[j])
 	}
 	return upper, lower
 }
@@ -179,8 +179,8 @@ func KSWithSlack(samples []float64, cdf func(float64) float64, rel float64) floa
 			j++
 		}
 		v := xs[i]
-		d = math.Max(d, float64(j)/n-cdf(v*(1+rel)))
-		d = math.Max(d, cdf(v*(1-rel))-float64(i)/n)
+		d = max(d, float64(j)/n-cdf(v*(1+rel)))
+		d = max(d, cdf(v*(1-rel))-float64(i)/n)
 		i = j
 	}
 	return d

@@ -29,7 +29,7 @@ func TwoBinomialCDF(k int, base, da, pa, db, pb, x float64) float64 {
 		if y < 0 {
 			continue
 		}
-		sum += binomialMass(k, j, pa) * bt.atMost(int(math.Min(math.Floor(y), float64(k))))
+		sum += binomialMass(k, j, pa) * bt.atMost(int(min(math.Floor(y), float64(k))))
 	}
 	return sum
 }

@@ -193,7 +193,7 @@ func discover(fn string, adv Advertiser, scan Scanner, success, horizon, tol flo
 				return Discovery{}, paramErr(fn, "tol", tol, fmt.Sprintf("cannot be met: the finest grid allowed (%.4g µs cells) states a CDF error of %.2g", h*1e6, stated))
 			}
 			fine.acc.CDFAbs = stated
-			fine.acc.TailFloor = math.Min(100*stated, 1)
+			fine.acc.TailFloor = min(100*stated, 1)
 			fine.acc.SurvivalRel = 0.01
 			return fine, nil
 		}
@@ -219,7 +219,7 @@ func gridDiff(fine, coarse Discovery) float64 {
 		}
 		fc, cc := fine.cdfAt(xs), coarse.cdfAt(xs)
 		for i := range xs {
-			diff = math.Max(diff, math.Abs(fc[i]-cc[i]))
+			diff = max(diff, math.Abs(fc[i]-cc[i]))
 		}
 	}
 	return diff
@@ -264,7 +264,7 @@ func (m model) sample(r *rand.Rand) float64 {
 		for j, c := range m.ch {
 			s := t + float64(j)*m.d
 			if m.fits(s, c) && (m.success == 1 || r.Float64() < m.success) {
-				return math.Min(s+m.pdu, m.horizon)
+				return min(s+m.pdu, m.horizon)
 			}
 		}
 	}
@@ -498,12 +498,12 @@ func (d *Discovery) finish() {
 		}
 		for i, v := range ms {
 			if v > 0 {
-				d.lo = math.Min(d.lo, float64(i)*d.h+d.off[j])
+				d.lo = min(d.lo, float64(i)*d.h+d.off[j])
 				break
 			}
 		}
 	}
-	d.lo = math.Min(d.lo, d.horizon)
+	d.lo = min(d.lo, d.horizon)
 }
 
 // cdfAt returns CDF(x) for the ascending points xs below the horizon,
@@ -587,7 +587,7 @@ func (d Discovery) CDF(x float64) float64 {
 			s += d.below(j, x)
 		}
 	}
-	return math.Min(s, 1)
+	return min(s, 1)
 }
 
 // Survival returns P(min(T, H) > x), summed directly: the receptions after
@@ -607,7 +607,7 @@ func (d Discovery) Survival(x float64) float64 {
 			s += d.above(j, x)
 		}
 	}
-	return math.Min(s, 1)
+	return min(s, 1)
 }
 
 // Undiscovered returns the probability that the scanner has not heard the
@@ -687,7 +687,7 @@ func (d Discovery) Mean() float64 {
 // Variance returns Var[min(T, H)], s².
 func (d Discovery) Variance() float64 {
 	m1, m2 := d.moments()
-	return math.Max(m2-m1*m1, 0)
+	return max(m2-m1*m1, 0)
 }
 
 func (d Discovery) moments() (m1, m2 float64) {

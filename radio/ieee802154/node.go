@@ -221,7 +221,7 @@ func (n Node) Timeline() (Timeline, error) {
 	attempt := run + tl.Turnaround + tl.Frame
 	tl.MaxFrameTime = attempt
 	if n.AckRequest {
-		tl.MaxFrameTime = float64(n.CSMA.MaxFrameRetries+1) * (attempt + math.Max(tl.AckWait, tl.AckReceive))
+		tl.MaxFrameTime = float64(n.CSMA.MaxFrameRetries+1) * (attempt + max(tl.AckWait, tl.AckReceive))
 	}
 	return tl, nil
 }

@@ -188,7 +188,7 @@ func (r Region) strictestDutyCycle(mask ChannelMask, dr int, anyDR bool) (float6
 		if err != nil {
 			return 0, err
 		}
-		d = math.Min(d, sb.DutyCycle)
+		d = min(d, sb.DutyCycle)
 	}
 	if math.IsInf(d, 1) {
 		return 1, nil

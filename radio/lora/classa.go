@@ -465,8 +465,8 @@ func (c ClassA) timeline(s Setting) (Timeline, error) {
 	}
 	// The off-time rule: the next start no earlier than Uplink/d after this
 	// one; RX2 closes Uplink + RECEIVE_DELAY2 − margin + RX2 listen after it.
-	tl.OffTimeGap = math.Max(0, tl.Uplink/tl.DutyCycle-(tl.Uplink+tm.ReceiveDelay2-c.ClockMargin+tl.RX2Listen))
-	if tl.Attempts, err = TruncatedGeometric(math.Min(tl.Windows.RX1+tl.Windows.RX2, 1), c.nbTrans()); err != nil {
+	tl.OffTimeGap = max(0, tl.Uplink/tl.DutyCycle-(tl.Uplink+tm.ReceiveDelay2-c.ClockMargin+tl.RX2Listen))
+	if tl.Attempts, err = TruncatedGeometric(min(tl.Windows.RX1+tl.Windows.RX2, 1), c.nbTrans()); err != nil {
 		return Timeline{}, err
 	}
 	return tl, nil
@@ -615,7 +615,7 @@ func (c ClassA) windowParts(tl Timeline, gap dist.Law) (windowParts, error) {
 	w.r2Tail = b.seq(wait1, l1, wait2, r2)
 	m := c.nbTrans()
 	w.p1, w.p2 = tl.Windows.RX1, tl.Windows.RX2
-	q := math.Min(w.p1+w.p2, 1)
+	q := min(w.p1+w.p2, 1)
 	switch {
 	case m == 1 || q == 1:
 		w.single = true
@@ -654,7 +654,7 @@ func (c ClassA) attemptsStage(tl Timeline, w windowParts) (energy.Stage, error) 
 	fail := b.seq(tx, w.fail)
 	if w.single {
 		// One transmission: its windows decide.
-		st := b.choice([]float64{w.p1, w.p2, math.Max(1-w.p1-w.p2, 0)}, b.seq(tx, w.r1Tail), b.seq(tx, w.r2Tail), fail)
+		st := b.choice([]float64{w.p1, w.p2, max(1-w.p1-w.p2, 0)}, b.seq(tx, w.r1Tail), b.seq(tx, w.r2Tail), fail)
 		return st, b.err
 	}
 	failGap := b.seq(fail, w.retry)

@@ -97,7 +97,7 @@ func (a Annulus) Quantile(p float64) float64 {
 	if !(p >= 0 && p <= 1) {
 		return math.NaN()
 	}
-	return math.Min(math.Max(math.Sqrt(a.inner*a.inner+p*a.span()), a.inner), a.outer)
+	return min(max(math.Sqrt(a.inner*a.inner+p*a.span()), a.inner), a.outer)
 }
 
 // UpperQuantile returns √(R² − q(R² − a²)), accurate for tiny q; NaN for q
@@ -106,7 +106,7 @@ func (a Annulus) UpperQuantile(q float64) float64 {
 	if !(q >= 0 && q <= 1) {
 		return math.NaN()
 	}
-	return math.Min(math.Max(math.Sqrt(a.outer*a.outer-q*a.span()), a.inner), a.outer)
+	return min(max(math.Sqrt(a.outer*a.outer-q*a.span()), a.inner), a.outer)
 }
 
 // Mean returns (2/3)(R³ − a³)/(R² − a²) = (2/3)(R² + Ra + a²)/(R + a).
@@ -118,7 +118,7 @@ func (a Annulus) Mean() float64 {
 // Variance returns E[r²] − E[r]², with E[r²] = (R² + a²)/2.
 func (a Annulus) Variance() float64 {
 	m := a.Mean()
-	return math.Max((a.outer*a.outer+a.inner*a.inner)/2-m*m, 0)
+	return max((a.outer*a.outer+a.inner*a.inner)/2-m*m, 0)
 }
 
 // Support returns [a, R].

@@ -308,7 +308,7 @@ func newDownlinkLayout(streams []DownlinkStream) DownlinkLayout {
 			if sx.Band == sy.Band {
 				hx, hy = hold(sx), hold(sy)
 			}
-			conflict[x][y] = math.Max(0, hy+math.Min(hx, sy.Lead-sx.Lead))
+			conflict[x][y] = max(0, hy+min(hx, sy.Lead-sx.Lead))
 		}
 	}
 	holds := make([]float64, n)
@@ -345,7 +345,7 @@ func (l DownlinkLayout) solve(fn string, streams []DownlinkStream, start Downlin
 		gatewayRound(streams, poolOf, l.hold, conflict, sent, fb, next, nextFB, st)
 		change := 0.0
 		for x := range streams {
-			change = math.Max(change, math.Max(math.Abs(next[x]-sent[x]), math.Abs(nextFB[x]-fb[x])))
+			change = max(change, max(math.Abs(next[x]-sent[x]), math.Abs(nextFB[x]-fb[x])))
 		}
 		if change > prev && step > 1.0/64 {
 			step /= 2 // the antitone map overshoots: damp it
@@ -359,7 +359,7 @@ func (l DownlinkLayout) solve(fn string, streams []DownlinkStream, start Downlin
 			// with k the last ratio of changes (taken as 0.99 at worst).
 			k := 0.99
 			if prev < math.Inf(1) && change < prev {
-				k = math.Min(change/prev, 0.99)
+				k = min(change/prev, 0.99)
 			}
 			solverErr = change / (1 - k)
 			break
@@ -391,14 +391,14 @@ func (l DownlinkLayout) solve(fn string, streams []DownlinkStream, start Downlin
 		// Second order: the coupling of the two refusals, w·min(b, w), and
 		// the double counting in w, D (gatewayRound); then what the
 		// fallbacks' error moves.
-		e := st.w[x]*math.Min(st.busy[poolOf[x]], st.w[x]) + st.double[x] + poolErr[poolOf[x]]
+		e := st.w[x]*min(st.busy[poolOf[x]], st.w[x]) + st.double[x] + poolErr[poolOf[x]]
 		for y := range streams {
 			e += conflict[x][y] * fbLoad[y]
 		}
-		approx = math.Max(approx, e)
+		approx = max(approx, e)
 		if sx.Fallback != 0 {
 			out.FallbackSent[x] = (1 - sent[x]) * fb[x]
-			fbErr = math.Max(fbErr, (1-sent[x])*st.burst[x]/2)
+			fbErr = max(fbErr, (1-sent[x])*st.burst[x]/2)
 		}
 	}
 	uses := map[int]*BandUse{}
@@ -510,7 +510,7 @@ func gatewayRound(streams []DownlinkStream, poolOf []int, holds []float64, confl
 		}
 		// Pairs from different pools: (w² − Σ c²)/2.
 		st.double[x] = (st.w[x]*st.w[x]-sq)/2 + sum
-		st.w[x] = math.Min(st.w[x], 1)
+		st.w[x] = min(st.w[x], 1)
 	}
 	// Carried load per pool.
 	num, den := st.num, st.den
@@ -520,7 +520,7 @@ func gatewayRound(streams []DownlinkStream, poolOf []int, holds []float64, confl
 		den[p] += hold(y) * sy.Rate * (1 - st.w[y])
 	}
 	for p := range st.busy {
-		st.busy[p] = math.Min(num[p]/(1+den[p]), 1)
+		st.busy[p] = min(num[p]/(1+den[p]), 1)
 	}
 	for y := range streams {
 		next[y] = (1 - st.busy[poolOf[y]]) * (1 - st.w[y])
@@ -590,7 +590,7 @@ func gatewayRound(streams []DownlinkStream, poolOf []int, holds []float64, confl
 				sc += hold(tz) * (1 - st.w[tz]) * sz.Rate * sent[z] * inClosure(z)
 			}
 		}
-		pu := math.Min(st.busy[q]/refused, 1)
+		pu := min(st.busy[q]/refused, 1)
 		got := pu / (1 + sc)
 		dev := pu * math.Abs(plain-1/(1+sc))
 		// Refused for a cross conflict with y: x falls back at its full
@@ -601,7 +601,7 @@ func gatewayRound(streams []DownlinkStream, poolOf []int, holds []float64, confl
 			if l <= 0 || st.sentRate[y] == 0 {
 				continue
 			}
-			py := math.Min((1-st.busy[q])*st.sentRate[y]*l/refused, rest)
+			py := min((1-st.busy[q])*st.sentRate[y]*l/refused, rest)
 			rest -= py
 			sy := base[p] + hold(t)*(1-st.w[t])*sx.Rate*sent[x]*within(l, hold(t))
 			got += py / (1 + sy)

@@ -390,9 +390,9 @@ func lawBetween(l dist.Law, a, b float64) float64 {
 		return 0
 	}
 	if l.CDF(a) > 0.5 {
-		return math.Max(l.Survival(a)-l.Survival(b), 0)
+		return max(l.Survival(a)-l.Survival(b), 0)
 	}
-	return math.Max(l.CDF(b)-l.CDF(a), 0)
+	return max(l.CDF(b)-l.CDF(a), 0)
 }
 
 // normalAbove returns P(Z > z) for a standard normal Z, by erfc.
@@ -405,11 +405,11 @@ func normalBetween(a, b float64) float64 {
 	case b <= a:
 		return 0
 	case a >= 0:
-		return math.Max(normalAbove(a)-normalAbove(b), 0)
+		return max(normalAbove(a)-normalAbove(b), 0)
 	case b <= 0:
-		return math.Max(normalAbove(-b)-normalAbove(-a), 0)
+		return max(normalAbove(-b)-normalAbove(-a), 0)
 	}
-	return math.Max(1-normalAbove(b)-normalAbove(-a), 0)
+	return max(1-normalAbove(b)-normalAbove(-a), 0)
 }
 
-func clamp01(p float64) float64 { return math.Min(math.Max(p, 0), 1) }
+func clamp01(p float64) float64 { return min(max(p, 0), 1) }

@@ -104,12 +104,12 @@ func checkCellCovers(c *checker, s Scenario) {
 		airtime := math.Inf(1)
 		for _, dr := range s.Region.ADRDataRates() {
 			if a, err := s.Region.UplinkAirtime(dr, g.Payload, 0); err == nil {
-				airtime = math.Min(airtime, a)
+				airtime = min(airtime, a)
 			}
 		}
 		tx := math.Inf(1)
 		for _, t := range node.Transmit {
-			tx = math.Min(tx, t.Current)
+			tx = min(tx, t.Current)
 		}
 		if !math.IsInf(airtime, 1) {
 			least += tx * node.Voltage * airtime

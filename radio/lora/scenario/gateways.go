@@ -122,7 +122,7 @@ func (m Model) GatewayBudgets() []BandBudget {
 		for _, k := range keys {
 			r := rows[k]
 			if booked[k] > 0 {
-				r.Lost = math.Max(0, lost[k]/booked[k])
+				r.Lost = max(0, lost[k]/booked[k])
 			}
 			out = append(out, *r)
 		}
@@ -262,14 +262,14 @@ func (m *Model) gatewayBudgets(only int, lay *budgetLayout) (float64, error) {
 			if a, ok := sums(gi, dm.DR, x.w); ok && a.rate > 0 {
 				v = a.sent / a.rate
 			}
-			change = math.Max(change, math.Abs(v-*x.p))
+			change = max(change, math.Abs(v-*x.p))
 			*x.p = v
 		}
 		v := 0.0
 		if a, ok := sums(gi, dm.DR, 1); ok && a.rate > 0 {
 			v = a.fell / a.rate
 		}
-		change = math.Max(change, math.Abs(v-dm.RX1Fallback))
+		change = max(change, math.Abs(v-dm.RX1Fallback))
 		dm.RX1Fallback = v
 	})
 	return change, nil

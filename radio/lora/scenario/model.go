@@ -301,7 +301,7 @@ func (m *Model) solveCollisions(only int) error {
 				if err != nil {
 					return err
 				}
-				vuln = math.Max(0, vuln-own)
+				vuln = max(0, vuln-own)
 				succ, err := lora.AlohaSuccess(vuln)
 				if err != nil {
 					return err
@@ -319,7 +319,7 @@ func (m *Model) solveCollisions(only int) error {
 					}
 					frames = tg.Mean()
 				}
-				change = math.Max(change, math.Abs(frames-dm.Frames))
+				change = max(change, math.Abs(frames-dm.Frames))
 				next[gi] = append(next[gi], upd{total, vuln, succ, frames, w})
 			}
 		}
@@ -394,7 +394,7 @@ func (h *settleHistory) next(m *Model, only int) {
 	if n := len(h.x); n > 0 {
 		d := 0.0
 		for i, v := range x {
-			d = math.Max(d, math.Abs(v-h.x[n-1][i]))
+			d = max(d, math.Abs(v-h.x[n-1][i]))
 		}
 		h.step = append(h.step, d)
 	}
@@ -415,7 +415,7 @@ func (h *settleHistory) next(m *Model, only int) {
 	last, before := h.x[2], h.x[1]
 	k := 0
 	jump := func(v *float64, lo, hi float64) {
-		*v = math.Min(hi, math.Max(lo, last[k]+f*(last[k]-before[k])))
+		*v = min(hi, max(lo, last[k]+f*(last[k]-before[k])))
 		k++
 	}
 	m.eachDR(only, func(_ int, g *GroupModel, d *DRModel) {

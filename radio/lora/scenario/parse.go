@@ -463,7 +463,7 @@ func checkOverlap(c *checker, s Scenario) {
 	reach := make([]float64, len(s.Gateways))
 	for _, g := range s.Groups {
 		if g.Gateway >= 0 && g.Gateway < len(reach) {
-			reach[g.Gateway] = math.Max(reach[g.Gateway], g.OuterRadius)
+			reach[g.Gateway] = max(reach[g.Gateway], g.OuterRadius)
 		}
 	}
 	for i := range s.Gateways {

@@ -1121,18 +1121,12 @@ func momentRuleBound(h, z0, z1, d0, d1 float64) (f7, f8 float64) {
 	}
 	D2 := max(math.Abs(2*c2), math.Abs(2*c2+6*c3*h))
 	D3 := math.Abs(6 * c3)
-	return bellBound(7, D1, D2, D3), bellBound(8, D1, D2, D3)
+	return bellBounds78(D1, D2, D3)
 }
 
-// bellBound returns Σ_k momentMaxHe(k−1)·B_{n,k}(D1, D2, D3, 0, …) for
-// n <= 8: the sum over j1 + 2·j2 + 3·j3 = n of
-// n!/(j1!·j2!·j3!·2^j2·6^j3)·D1^j1·D2^j2·D3^j3 times
-// momentMaxHe(j1 + j2 + j3 − 1).
-func bellBound(n int, D1, D2, D3 float64) float64 {
-	fact := [9]float64{1, 1, 2, 6, 24, 120, 720, 5040, 40320}
-	var p1 [9]float64 // D1^j
-	var p2 [5]float64 // (D2/2)^j
-	var p3 [3]float64 // (D3/6)^j
+// bellPowers returns the powers bellBound's terms take: D1^j (j <= 8),
+// (D2/2)^j (j <= 4) and (D3/6)^j (j <= 2).
+func bellPowers(D1, D2, D3 float64) (p1 [9]float64, p2 [5]float64, p3 [3]float64) {
 	p1[0], p2[0], p3[0] = 1, 1, 1
 	for j := 1; j < len(p1); j++ {
 		p1[j] = p1[j-1] * D1
@@ -1143,6 +1137,56 @@ func bellBound(n int, D1, D2, D3 float64) float64 {
 	for j := 1; j < len(p3); j++ {
 		p3[j] = p3[j-1] * D3 / 6
 	}
+	return p1, p2, p3
+}
+
+// bellTerm is one term of bellBound's sum: D1^j1·(D2/2)^j2·(D3/6)^j3
+// times k, the integer n!/(j1!·j2!·j3!) times momentMaxHe(j1 + j2 + j3 − 1)
+// (one rounding, as bellBound forms it).
+type bellTerm struct {
+	j1, j2, j3 int
+	k          float64
+}
+
+// bellTerms lists bellBound's terms for n = 7 and n = 8, in its order:
+// computed once, never written after.
+var bellTerms = [2][]bellTerm{makeBellTerms(7), makeBellTerms(8)}
+
+// makeBellTerms returns bellBound's terms for n in its order of summation.
+func makeBellTerms(n int) []bellTerm {
+	fact := [9]float64{1, 1, 2, 6, 24, 120, 720, 5040, 40320}
+	var out []bellTerm
+	for j3 := 0; 3*j3 <= n; j3++ {
+		for j2 := 0; 3*j3+2*j2 <= n; j2++ {
+			j1 := n - 3*j3 - 2*j2
+			c := fact[n] / (fact[j1] * fact[j2] * fact[j3])
+			out = append(out, bellTerm{j1: j1, j2: j2, j3: j3, k: c * momentMaxHe(j1+j2+j3-1)})
+		}
+	}
+	return out
+}
+
+// bellBounds78 is bellBound(7, …) and bellBound(8, …), the same bits, from
+// one set of powers and the terms' coefficients formed once (bellTerms):
+// the tables' moment rule asks for both on every interval.
+func bellBounds78(D1, D2, D3 float64) (f7, f8 float64) {
+	p1, p2, p3 := bellPowers(D1, D2, D3)
+	var sum [2]float64
+	for i, terms := range bellTerms {
+		for _, t := range terms {
+			sum[i] += t.k * p1[t.j1] * p2[t.j2] * p3[t.j3]
+		}
+	}
+	return sum[0], sum[1]
+}
+
+// bellBound returns Σ_k momentMaxHe(k−1)·B_{n,k}(D1, D2, D3, 0, …) for
+// n <= 8: the sum over j1 + 2·j2 + 3·j3 = n of
+// n!/(j1!·j2!·j3!·2^j2·6^j3)·D1^j1·D2^j2·D3^j3 times
+// momentMaxHe(j1 + j2 + j3 − 1).
+func bellBound(n int, D1, D2, D3 float64) float64 {
+	fact := [9]float64{1, 1, 2, 6, 24, 120, 720, 5040, 40320}
+	p1, p2, p3 := bellPowers(D1, D2, D3)
 	sum := 0.0
 	for j3 := 0; 3*j3 <= n; j3++ {
 		for j2 := 0; 3*j3+2*j2 <= n; j2++ {

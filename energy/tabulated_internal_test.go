@@ -3,6 +3,7 @@ package energy
 import (
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	gquad "gonum.org/v1/gonum/integrate/quad"
@@ -228,4 +229,23 @@ func TestMomentMaxHe(t *testing.T) {
 		assert.GreaterOrEqual(t, momentMaxHe(k), most, "k = %d", k)
 		assert.InEpsilon(t, most, momentMaxHe(k), 1e-3, "k = %d", k)
 	}
+}
+
+// bellBounds78 is bellBound(7, …) and bellBound(8, …) bit for bit, from one
+// set of powers; with only D1 (z linear) each is its single term,
+// momentMaxHe(n − 1)·D1^n (Faà di Bruno: B_{n,n}(z′) = z′^n).
+func TestBellBounds78(t *testing.T) {
+	r := rand.New(rand.NewPCG(7, 8))
+	cases := [][3]float64{{0, 0, 0}, {1, 0, 0}, {0, 1, 0}, {0, 0, 1}, {1e-300, 1e300, 1}, {3.5, 0.25, 17}}
+	for range 200 {
+		cases = append(cases, [3]float64{math.Exp(r.NormFloat64() * 5), math.Exp(r.NormFloat64() * 5), math.Exp(r.NormFloat64() * 5)})
+	}
+	for _, c := range cases {
+		f7, f8 := bellBounds78(c[0], c[1], c[2])
+		assert.Equal(t, math.Float64bits(bellBound(7, c[0], c[1], c[2])), math.Float64bits(f7), "%v", c)
+		assert.Equal(t, math.Float64bits(bellBound(8, c[0], c[1], c[2])), math.Float64bits(f8), "%v", c)
+	}
+	f7, f8 := bellBounds78(2, 0, 0)
+	assert.Equal(t, momentMaxHe(6)*128, f7)
+	assert.Equal(t, momentMaxHe(7)*256, f8)
 }

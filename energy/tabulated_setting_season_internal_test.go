@@ -18,6 +18,18 @@ import (
 // seasons (0.5 to 1.4 years).
 func tabSeasonLaw(t *testing.T) NodeLifetime {
 	t.Helper()
+	return tabSeasonNode(t, []NodeSetting{
+		{Weight: 0.4, Cycle: tabTestCycle(1*Hour, 4*MicroAmp, 0.5)},
+		{Weight: 0.3, Cycle: tabTestCycle(2*Hour, 2*MicroAmp, 1)},
+		{Weight: 0.2, Cycle: tabTestCycle(2*Hour, 4*MicroAmp, 1)},
+		{Weight: 0.1, Cycle: tabTestCycle(2*Hour, 4*MicroAmp, 0.5)},
+	}, 15*Year)
+}
+
+// tabSeasonNode is tabSeasonLaw's node (its cell, climate, thermal model
+// and spreads) with the settings given and a calendar limit of cal (s).
+func tabSeasonNode(t *testing.T, settings []NodeSetting, cal float64) NodeLifetime {
+	t.Helper()
 	clim, err := NewSeasonalClimate(10, 8, 6, 7)
 	require.NoError(t, err)
 	th, err := NewThermal(TypicalThermal())
@@ -25,13 +37,8 @@ func tabSeasonLaw(t *testing.T) NodeLifetime {
 	b, err := NewBattery(BatterySpec{Charge: 2400 * MilliAmpHour, NominalVoltage: 3.6, UsableFraction: 0.85, SelfDischargePerYear: 0.01})
 	require.NoError(t, err)
 	node := NodeSpec{
-		Settings: []NodeSetting{
-			{Weight: 0.4, Cycle: tabTestCycle(1*Hour, 4*MicroAmp, 0.5)},
-			{Weight: 0.3, Cycle: tabTestCycle(2*Hour, 2*MicroAmp, 1)},
-			{Weight: 0.2, Cycle: tabTestCycle(2*Hour, 4*MicroAmp, 1)},
-			{Weight: 0.1, Cycle: tabTestCycle(2*Hour, 4*MicroAmp, 0.5)},
-		},
-		Battery: b, Thermal: &th, CalendarLife: 15 * Year,
+		Settings: settings,
+		Battery:  b, Thermal: &th, CalendarLife: cal,
 		Spread: NodeSpread{Capacity: 0.04, Floor: 0.35, Active: 0.04},
 	}
 	l, err := NewNodeLifetime(node, Environment{Climate: &clim, Conditions: Conditions{BatchFactor: 1}})

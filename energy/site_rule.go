@@ -1185,14 +1185,7 @@ func (s *Site) fineBounds(sc *ruleScratch, Z []float64, kind lawKind, g int, k i
 		// over is interpBoundsWith's slope bound between z0 and z1, with
 		// those of the groups that repeat h, in the same order.
 		over := func(z0, z1 float64) float64 {
-			lo, hi := z0, z1
-			if hi < lo {
-				lo, hi = hi, lo
-			}
-			l, ok := L.inCells(lo, hi)
-			if !ok {
-				l = L.beyond(lo, hi)
-			}
+			l := L.over(z0, z1)
 			for m := h + 1; rep != nil && m < g1; m++ {
 				if rep[m] == h {
 					l += s.slope[m].over(z0, z1)
@@ -1269,16 +1262,7 @@ func (s *Site) fineBoundsOne(sc *ruleScratch, Y0, Y1 []float64, kind lawKind, g,
 	if kind != kindNode {
 		L = &s.slope[g]
 	}
-	over := func(z0, z1 float64) float64 {
-		lo, hi := z0, z1
-		if hi < lo {
-			lo, hi = hi, lo
-		}
-		if l, ok := L.inCells(lo, hi); ok {
-			return l
-		}
-		return L.beyond(lo, hi)
-	}
+	over := L.over
 	n, sure := float64(s.counts[g]), s.sure[g]
 	lagW, lagOff := fv.lag.w[:pv], fv.lag.off[:pv]
 	lagrW, lagrOff := fv.lagr.w[:pv], fv.lagr.off[:pv]

@@ -5,6 +5,7 @@ import (
 	"path/filepath"
 	"testing"
 
+	"github.com/joulelaw/joulelaw/examples/fleetplan/internal/fleet"
 	"github.com/joulelaw/joulelaw/internal/testref"
 	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
@@ -37,7 +38,7 @@ func BenchmarkDemoFormat1(b *testing.B) {
 func benchPlan(b *testing.B, s scenario.Scenario) {
 	b.ReportAllocs()
 	for b.Loop() {
-		if _, err := buildPlan(s, "bench", func(string, ...any) {}); err != nil {
+		if _, err := fleet.Build(s, "bench", func(string, ...any) {}); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -3,6 +3,7 @@ package main
 import (
 	"testing"
 
+	"github.com/joulelaw/joulelaw/examples/fleetplan/internal/fleet"
 	"github.com/joulelaw/joulelaw/internal/testref"
 
 	"github.com/joulelaw/joulelaw/radio/lora/scenario"
@@ -22,7 +23,7 @@ func BenchmarkWhatItTakes(b *testing.B) {
 	b.ReportAllocs()
 	defer testref.ReportCPU(b)()
 	for b.Loop() {
-		if _, err := buildDesign(s, laws, func(string, ...any) {}); err != nil {
+		if _, err := fleet.BuildDesign(s, laws, func(string, ...any) {}); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -54,39 +54,6 @@ func TestFullDiskExitsNonZero(t *testing.T) {
 	}
 }
 
-// Issue 13: a bad figures directory is found before the computation (no
-// progress past loading), and nothing is printed.
-func TestBadFiguresDirBeforeComputing(t *testing.T) {
-	dir := t.TempDir()
-	blocker := filepath.Join(dir, "a-file")
-	require.NoError(t, os.WriteFile(blocker, []byte("x"), 0o600))
-	code, out, errs := runArgs(t, "-figures", filepath.Join(blocker, "figs"))
-	assert.Equal(t, 1, code)
-	assert.Empty(t, out)
-	assert.Contains(t, errs, "figures")
-	assert.NotContains(t, errs, "assembling the model", "refused before computing")
-}
-
-// Issue 13: a figure that cannot be written does not discard the report:
-// the report is printed whole, the status is 1, and the good figures are
-// in place. (A directory in the way of one figure's name makes its rename
-// fail even for root, unlike permissions.)
-func TestFigureFailureKeepsTheReport(t *testing.T) {
-	dir := t.TempDir()
-	require.NoError(t, os.Mkdir(filepath.Join(dir, "failed-nodes.svg"), 0o755))
-	code, out, errs := runArgs(t, "-quiet", "-figures", dir)
-	assert.Equal(t, 1, code, errs)
-	assert.Contains(t, out, "Fleet energy plan: ")
-	assert.Contains(t, out, "Cautions\n--------")
-	assert.Contains(t, errs, "failed-nodes.svg")
-	assert.Contains(t, errs, "the report was written")
-	for _, name := range []string{"energy-per-cycle.png", "energy-per-cycle.svg", "lifetime-survival.png", "failed-nodes.png"} {
-		fi, err := os.Stat(filepath.Join(dir, name))
-		require.NoError(t, err, name)
-		assert.Positive(t, fi.Size(), name)
-	}
-}
-
 // Issue 13: names from the file are escaped in the report: escape
 // sequences and "\r\n" in a site, group or work-step name cannot forge
 // report lines or reach the terminal.

@@ -3,10 +3,10 @@ package main
 import (
 	"bytes"
 	"encoding/json"
-	"image/png"
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"sync"
 	"testing"
@@ -14,13 +14,14 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"github.com/joulelaw/joulelaw/examples/fleetplan/internal/fleet"
 	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
 func runArgs(t *testing.T, args ...string) (code int, stdout, stderr string) {
 	t.Helper()
 	key := strings.Join(args, "\x00")
-	shareable := !strings.Contains(key, "-figures") && !strings.Contains(key, "-scenario")
+	shareable := !strings.Contains(key, "-scenario")
 	if shareable {
 		demoRuns.Lock()
 		defer demoRuns.Unlock()
@@ -40,7 +41,7 @@ func runArgs(t *testing.T, args ...string) (code int, stdout, stderr string) {
 // program's output depends on its arguments alone (the same bits on every
 // run; TestDemoOutputRepeats checks it), so tests that read the same run
 // share it instead of computing the plan again (go test ./... ≤ 90 s,
-// issue 12). Runs that touch files (-figures, -scenario) are not shared.
+// issue 12). Runs that read files (-scenario) are not shared.
 var demoRuns = struct {
 	sync.Mutex
 	m map[string]demoRun
@@ -98,7 +99,7 @@ func TestJSON(t *testing.T) {
 	code, out, errs := runArgs(t, "-json", "-quiet")
 	require.Equal(t, 0, code, errs)
 	assert.Empty(t, errs)
-	var p Plan
+	var p fleet.Plan
 	require.NoError(t, json.Unmarshal([]byte(out), &p))
 	assert.Equal(t, 304, p.Nodes)
 	require.Len(t, p.Groups, 4)
@@ -192,26 +193,14 @@ func TestOwnScenarioFile(t *testing.T) {
 	assert.Contains(t, out, "scenario             "+path)
 }
 
-func TestFigures(t *testing.T) {
-	dir := filepath.Join(t.TempDir(), "figs")
-	code, _, errs := runArgs(t, "-figures", dir, "-quiet")
-	require.Equal(t, 0, code, errs)
-	for _, name := range []string{"energy-per-cycle", "lifetime-survival", "failed-nodes"} {
-		f, err := os.Open(filepath.Join(dir, name+".png"))
-		require.NoError(t, err)
-		img, err := png.Decode(f)
-		require.NoError(t, f.Close())
-		require.NoError(t, err, name)
-		assert.Greater(t, img.Bounds().Dx(), 400)
-		svg, err := os.ReadFile(filepath.Join(dir, name+".svg"))
-		require.NoError(t, err)
-		assert.Contains(t, string(svg), "<svg")
-	}
-	svg, err := os.ReadFile(filepath.Join(dir, "lifetime-survival.svg"))
-	require.NoError(t, err)
-	for _, label := range []string{"time since deployment (years)", "share of nodes still running", "planned replacement"} {
-		assert.Contains(t, string(svg), label)
-	}
+// TestFiguresFlagRefused: -figures is refused before anything is computed,
+// with the command of the figures program, which draws them now.
+func TestFiguresFlagRefused(t *testing.T) {
+	code, out, errs := runArgs(t, "-figures", "out")
+	assert.Equal(t, 2, code)
+	assert.Empty(t, out)
+	assert.Contains(t, errs, "go run ./examples/fleetplan/figures")
+	assert.NotContains(t, errs, "assembling the model", "refused before computing")
 }
 
 // firstGroupFile writes the demo reduced to its first group and gateway,
@@ -241,13 +230,13 @@ func TestConstantEnergyScenario(t *testing.T) {
 		g["inner_radius_m"], g["outer_radius_m"] = 10, 11
 		g["answer_share"] = 0
 	})
-	code, out, errs := runArgs(t, "-scenario", path, "-quiet", "-figures", filepath.Join(t.TempDir(), "figs"))
+	code, out, errs := runArgs(t, "-scenario", path, "-quiet")
 	require.Equal(t, 0, code, errs)
 	assert.NotContains(t, out, "NaN")
 	assert.Contains(t, out, "largest of 1")
 	code, js, errs := runArgs(t, "-scenario", path, "-quiet", "-json")
 	require.Equal(t, 0, code, errs)
-	var p Plan
+	var p fleet.Plan
 	require.NoError(t, json.Unmarshal([]byte(js), &p))
 	require.Len(t, p.Groups, 1)
 	assert.Zero(t, p.Groups[0].EnergyPerCycle.SD)
@@ -270,7 +259,7 @@ func TestGroupWhollyOutOfReachPlanned(t *testing.T) {
 
 	code, js, errs := runArgs(t, "-scenario", path, "-quiet", "-json")
 	require.Equal(t, 0, code, errs)
-	var p Plan
+	var p fleet.Plan
 	require.NoError(t, json.Unmarshal([]byte(js), &p))
 	gp := p.Groups[0]
 	assert.Equal(t, 1.0, gp.OutOfReachPlanned)
@@ -288,7 +277,7 @@ func TestGroupWhollyOutOfReachPlanned(t *testing.T) {
 func TestDemoPlansOutOfReachNodes(t *testing.T) {
 	code, js, errs := runArgs(t, "-quiet", "-json")
 	require.Equal(t, 0, code, errs)
-	var p Plan
+	var p fleet.Plan
 	require.NoError(t, json.Unmarshal([]byte(js), &p))
 	for _, g := range p.Groups {
 		sum := 0.0
@@ -330,7 +319,7 @@ func TestUS902928Plan(t *testing.T) {
 
 	code, js, errs := runArgs(t, "-scenario", path, "-quiet", "-json")
 	require.Equal(t, 0, code, errs)
-	var p Plan
+	var p fleet.Plan
 	require.NoError(t, json.Unmarshal([]byte(js), &p))
 	assert.Equal(t, "US902-928", p.Region)
 	for _, g := range p.Groups {
@@ -368,7 +357,7 @@ func TestUS902928Plan(t *testing.T) {
 func TestGatewayBudgetSection(t *testing.T) {
 	code, js, errs := runArgs(t, "-quiet", "-json")
 	require.Equal(t, 0, code, errs)
-	var p Plan
+	var p fleet.Plan
 	require.NoError(t, json.Unmarshal([]byte(js), &p))
 	require.Len(t, p.GatewayBudgets, 4)
 	for _, b := range p.GatewayBudgets {
@@ -390,10 +379,10 @@ func TestGatewayBudgetSection(t *testing.T) {
 // nodes; the closed form, evaluated here from the group's law) is at most
 // 1 % at the threshold and above 1 % just below it.
 func TestGroupOutlierThresholds(t *testing.T) {
-	p, err := buildPlan(scenario.Demo(), "demo", func(string, ...any) {})
+	p, err := fleet.Build(scenario.Demo(), "demo", func(string, ...any) {})
 	require.NoError(t, err)
 	// The program decides no warning itself: they are the model's.
-	ws, err := p.laws.Warnings()
+	ws, err := p.Laws.Warnings()
 	require.NoError(t, err)
 	var texts []string
 	for _, w := range ws {
@@ -401,12 +390,31 @@ func TestGroupOutlierThresholds(t *testing.T) {
 	}
 	assert.Equal(t, texts, p.Warnings)
 	for i, g := range p.Groups {
-		l := p.laws.GroupEnergy[i]
+		l := p.Laws.GroupEnergy[i]
 		n := float64(g.Nodes)
 		over := func(x float64) float64 { return -math.Expm1(n * math.Log1p(-l.Survival(x))) }
 		x := g.OutlierJ
-		assert.LessOrEqual(t, over(x), outlierLevel*(1+1e-9), g.Name)
-		assert.Greater(t, over(x*(1-1e-6)), outlierLevel, g.Name)
+		assert.LessOrEqual(t, over(x), fleet.OutlierLevel*(1+1e-9), g.Name)
+		assert.Greater(t, over(x*(1-1e-6)), fleet.OutlierLevel, g.Name)
 		assert.LessOrEqual(t, x, p.Fleet.OutlierJ*(1+1e-9), "no group's threshold above the fleet's")
 	}
+}
+
+// The report's Laws section gives every group's and the fleet's laws, one
+// line each (wrapped), with support, method and stated error.
+func TestReportLawsSection(t *testing.T) {
+	code, out, errs := runArgs(t, "-quiet")
+	require.Equal(t, 0, code, errs)
+	assert.Contains(t, out, "run with -scenario FILE for your own, -print-demo for its file)", "text printed bare is escaped, not cut short")
+	i := strings.Index(out, "Laws\n----")
+	require.Positive(t, i)
+	laws := out[i:strings.Index(out, "Warnings\n--------")]
+	for _, g := range []string{"dyke piezometers", "field soil probes", "pump alarms", "weather masts"} {
+		assert.Contains(t, laws, g+", energy per cycle: mean")
+		assert.Contains(t, laws, g+", lifetime: mean")
+	}
+	assert.Contains(t, laws, "exact: finite discrete")
+	assert.Contains(t, laws, "CDF error ≤")
+	assert.Equal(t, 4*3+4, strings.Count(laws, "  - "), "one entry per law")
+	assert.Len(t, regexp.MustCompile(`support\s+\[`).FindAllString(laws, -1), 4*3+4)
 }

@@ -9,16 +9,17 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"github.com/joulelaw/joulelaw/dist/distplot"
+	"github.com/joulelaw/joulelaw/examples/fleetplan/internal/fleet"
 )
 
 // designFigure draws, for each group at its best choice, the lifetime
 // point the target speaks of (years) against the reading interval (log
 // scale), with the target date marked and each group's interval found as
 // a dot. (For a GroupFlat target the 1 % point is drawn.)
-func designFigure(p *Plan) (*plot.Plot, error) {
+func designFigure(p *fleet.Plan) (*plot.Plot, error) {
 	d := p.Design
 	pl := plot.New()
-	style(pl, fmt.Sprintf("What it takes: the %s point of a node's lifetime against the reading interval", pct(d.QuantileQ[0])),
+	style(pl, fmt.Sprintf("What it takes: the %s point of a node's lifetime against the reading interval", fleet.Percent(d.QuantileQ[0])),
 		"reading interval (s, log scale)", "years")
 	pl.X.Scale = plot.LogScale{}
 	pl.X.Tick.Marker = plot.LogTicks{Prec: -1}
@@ -63,7 +64,7 @@ func designFigure(p *Plan) (*plot.Plot, error) {
 	target.Color = distplot.Colour(6)
 	target.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
 	pl.Add(target)
-	pl.Legend.Add(fmt.Sprintf("target: %s", years(d.TargetYears)), target)
+	pl.Legend.Add(fmt.Sprintf("target: %s", fleet.Years(d.TargetYears)), target)
 	pl.Y.Min, pl.Y.Max = 0, 1.05*top
 	pl.Legend.Left = false
 	pl.Legend.Top = false

@@ -1,4 +1,4 @@
-package main
+package fleet
 
 import (
 	"fmt"
@@ -16,15 +16,14 @@ import (
 // reading interval, and the replacement policies compared. Nil when the
 // scenario has no design section.
 type DesignPlan struct {
-	Target      string          `json:"target"` // in words
-	TargetKind  string          `json:"target_kind"`
-	TargetYears float64         `json:"target_years"`
-	TargetLevel float64         `json:"target_level"`
-	Groups      []GroupDesign   `json:"groups"`
-	Policies    PolicyPlan      `json:"replacement_policies"`
-	QuantileQ   [2]float64      `json:"quantile_levels"` // the levels of QuantileRow's columns
-	Notes       []string        `json:"notes"`
-	laws        []designFigData // for the figure; not in the JSON
+	Target      string        `json:"target"` // in words
+	TargetKind  string        `json:"target_kind"`
+	TargetYears float64       `json:"target_years"`
+	TargetLevel float64       `json:"target_level"`
+	Groups      []GroupDesign `json:"groups"`
+	Policies    PolicyPlan    `json:"replacement_policies"`
+	QuantileQ   [2]float64    `json:"quantile_levels"` // the levels of QuantileRow's columns
+	Notes       []string      `json:"notes"`
 }
 
 // GroupDesign is one group's answer.
@@ -114,35 +113,31 @@ type PolicyRow struct {
 	Cost            energy.Band `json:"cost"`
 }
 
-type designFigData struct {
-	rows []QuantileRow
-}
-
 var targetKindNames = map[energy.TargetKind]string{
 	energy.NodeFlat: "node_flat_by", energy.NodeQuantile: "lifetime_quantile", energy.GroupFlat: "any_in_group_flat_by",
 }
 
-// designTolerance is the relative width to which the search brackets each
+// DesignTolerance is the relative width to which the search brackets each
 // interval.
-const designTolerance = 0.01
+const DesignTolerance = 0.01
 
 // designQuantileRows is how many intervals the quantile table shows.
 const designQuantileRows = 7
 
-// whatItTakesSection is buildDesign on the plan's site, or an error when
+// WhatItTakes is BuildDesign on the plan's site, or an error when
 // the scenario has no design section.
-func whatItTakesSection(s scenario.Scenario, p *Plan, say progress) (*DesignPlan, error) {
+func WhatItTakes(s scenario.Scenario, p *Plan, say Progress) (*DesignPlan, error) {
 	if s.Design == nil {
 		return nil, fmt.Errorf("-what-it-takes: the scenario has no design section (see radio/lora/scenario/FORMAT.md, \"What it takes\")")
 	}
 	say("what it takes: the design search per group and the replacement policies")
-	return buildDesign(s, p.laws.Laws, say)
+	return BuildDesign(s, p.Laws.Laws, say)
 }
 
-// buildDesign computes the "what it takes" section of a scenario with a
+// BuildDesign computes the "what it takes" section of a scenario with a
 // design section (nil otherwise): SearchDesign per group and the policy
 // comparison on the planned site.
-func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*DesignPlan, error) {
+func BuildDesign(s scenario.Scenario, laws scenario.Laws, say Progress) (*DesignPlan, error) {
 	d := s.Design
 	if d == nil {
 		return nil, nil
@@ -150,16 +145,16 @@ func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*Design
 	dp := &DesignPlan{TargetKind: targetKindNames[d.Target.Kind], TargetYears: d.Target.Date / energy.Year, TargetLevel: d.Target.Level}
 	switch d.Target.Kind {
 	case energy.NodeFlat:
-		dp.Target = fmt.Sprintf("at most %s of a group's nodes flat before %s", pct(d.Target.Level), years(dp.TargetYears))
+		dp.Target = fmt.Sprintf("at most %s of a group's nodes flat before %s", Percent(d.Target.Level), Years(dp.TargetYears))
 		dp.QuantileQ = [2]float64{d.Target.Level, 0.5}
 	case energy.NodeQuantile:
-		dp.Target = fmt.Sprintf("the %s point of a node's lifetime at least %s", pct(d.Target.Level), years(dp.TargetYears))
+		dp.Target = fmt.Sprintf("the %s point of a node's lifetime at least %s", Percent(d.Target.Level), Years(dp.TargetYears))
 		dp.QuantileQ = [2]float64{d.Target.Level, 0.5}
 	case energy.GroupFlat:
-		dp.Target = fmt.Sprintf("no node of a group flat before %s, with probability at least %s", years(dp.TargetYears), pct(1-d.Target.Level))
+		dp.Target = fmt.Sprintf("no node of a group flat before %s, with probability at least %s", Years(dp.TargetYears), Percent(1-d.Target.Level))
 		dp.QuantileQ = [2]float64{0.01, 0.5}
 	}
-	space := energy.DesignSpace{MinInterval: d.MinInterval, MaxInterval: d.MaxInterval, Links: d.Links, Batches: d.Batches, Tolerance: designTolerance}
+	space := energy.DesignSpace{MinInterval: d.MinInterval, MaxInterval: d.MaxInterval, Links: d.Links, Batches: d.Batches, Tolerance: DesignTolerance}
 	for _, c := range d.Cells {
 		space.Cells = append(space.Cells, s.Cells[c].Spec.Name)
 	}
@@ -169,9 +164,8 @@ func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*Design
 	// The groups' searches (each over its choices on two goroutines) and
 	// the policies, on two goroutines of the library's one pool: each job
 	// writes its own slot, so the outcome does not depend on the schedule.
-	say("  what it takes: the design search of %d groups, and the replacement policies over %s", len(s.Groups), years(d.Horizon/energy.Year))
+	say("  what it takes: the design search of %d groups, and the replacement policies over %s", len(s.Groups), Years(d.Horizon/energy.Year))
 	dp.Groups = make([]GroupDesign, len(s.Groups))
-	dp.laws = make([]designFigData, len(s.Groups))
 	var pp PolicyPlan
 	err := workers.Run(len(s.Groups)+1, 2, func(i int) error {
 		if i == 0 {
@@ -195,11 +189,11 @@ func buildDesign(s scenario.Scenario, laws scenario.Laws, say progress) (*Design
 		if err != nil {
 			return fmt.Errorf("group %q: %w", g.Name, err)
 		}
-		gd, rows, err := groupDesign(s, gi, prob, res, dp.QuantileQ)
+		gd, err := groupDesign(s, gi, prob, res, dp.QuantileQ)
 		if err != nil {
 			return fmt.Errorf("group %q: %w", g.Name, err)
 		}
-		dp.Groups[gi], dp.laws[gi] = gd, designFigData{rows: rows}
+		dp.Groups[gi] = gd
 		return nil
 	}, func(i, _ int) {
 		if i == 0 {
@@ -348,7 +342,7 @@ func choiceText(space energy.DesignSpace, c energy.DesignChoice) string {
 
 // groupDesign summarises a group's search and tabulates the best choice's
 // lifetime quantiles against the reading interval.
-func groupDesign(s scenario.Scenario, gi int, prob energy.DesignProblem, res energy.Design, qs [2]float64) (GroupDesign, []QuantileRow, error) {
+func groupDesign(s scenario.Scenario, gi int, prob energy.DesignProblem, res energy.Design, qs [2]float64) (GroupDesign, error) {
 	space := prob.Space
 	b := res.Results[res.Best]
 	c := b.Choice
@@ -377,7 +371,7 @@ func groupDesign(s scenario.Scenario, gi int, prob energy.DesignProblem, res ene
 	// the search does, on two goroutines).
 	prof, err := prob.Profile(c, ivs, qs[:])
 	if err != nil {
-		return gd, nil, err
+		return gd, err
 	}
 	rows := make([]QuantileRow, len(prof))
 	for i, r := range prof {
@@ -387,7 +381,7 @@ func groupDesign(s scenario.Scenario, gi int, prob energy.DesignProblem, res ene
 		}
 	}
 	gd.Quantiles = rows
-	return gd, rows, nil
+	return gd, nil
 }
 
 // comparePolicies compares, over the design horizon at the plan's
@@ -435,9 +429,9 @@ func comparePolicies(s scenario.Scenario, laws scenario.Laws) (PolicyPlan, error
 		return pp, err
 	}
 	plan := energy.ReplaceAll(s.Plan.ReplaceAfter)
-	plan.Name = fmt.Sprintf("the scenario's plan: replace all every %s", years(s.Plan.ReplaceAfter/energy.Year))
+	plan.Name = fmt.Sprintf("the scenario's plan: replace all every %s", Years(s.Plan.ReplaceAfter/energy.Year))
 	common := energy.ReplaceAll(all[0])
-	common.Name = fmt.Sprintf("replace all every %s", years(all[0]/energy.Year))
+	common.Name = fmt.Sprintf("replace all every %s", Years(all[0]/energy.Year))
 	ps := []energy.Policy{plan, common, energy.ReplaceGroups(per), energy.ReplaceGroupsAndFailures(per), energy.ReplaceOnFailure()}
 	pc, err := site.ComparePolicies(ps, d.Horizon, risk, d.Costs)
 	if err != nil {

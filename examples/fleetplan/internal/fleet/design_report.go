@@ -1,4 +1,4 @@
-package main
+package fleet
 
 import (
 	"fmt"
@@ -43,9 +43,9 @@ func writeDesign(w io.Writer, p *Plan) {
 			kind = fmt.Sprintf("confirmed, up to %d transmissions", g.MaxTransmissions)
 		}
 		row(esc(g.Name), "%s; %s; %d reading(s) per uplink; receive window %s", esc(g.Cell), kind, g.ReadingsPerUplink, scenario.Quote(g.Window))
-		figure := fmt.Sprintf("P(flat before %s) = %s (± %s), margin %s", years(d.TargetYears), pct(g.Probability), errPct(g.ProbError), pct(g.Margin))
+		figure := fmt.Sprintf("P(flat before %s) = %s (± %s), margin %s", Years(d.TargetYears), Percent(g.Probability), errPct(g.ProbError), Percent(g.Margin))
 		if d.TargetKind == "lifetime_quantile" {
-			figure = fmt.Sprintf("%s point of the lifetime %s, margin %s", pct(d.TargetLevel), years(g.Achieved), years(g.Margin))
+			figure = fmt.Sprintf("%s point of the lifetime %s, margin %s", Percent(d.TargetLevel), Years(g.Achieved), Years(g.Margin))
 		}
 		if !g.Feasible {
 			more("CANNOT MEET THE TARGET: best achievable at a reading every %s: %s; what binds: %s", interval(g.ReadingIntervalS), figure, g.Binds)
@@ -59,7 +59,7 @@ func writeDesign(w io.Writer, p *Plan) {
 		}
 	}
 	fmt.Fprintln(w)
-	fmt.Fprintf(w, "  lifetime of a node at the best choice against the reading interval (years; %s and %s points)\n", pct(d.QuantileQ[0]), pct(d.QuantileQ[1]))
+	fmt.Fprintf(w, "  lifetime of a node at the best choice against the reading interval (years; %s and %s points)\n", Percent(d.QuantileQ[0]), Percent(d.QuantileQ[1]))
 	fmt.Fprintf(w, "  %-20s", "reading interval")
 	for _, g := range d.Groups {
 		fmt.Fprintf(w, " %22s", trimTo(esc(g.Name), 22))
@@ -88,11 +88,11 @@ func writeDesign(w io.Writer, p *Plan) {
 
 	pp := d.Policies
 	fmt.Fprintf(w, "  replacement policies for the site as planned, over %s at an accepted risk of %s of any flat node; %.2f per visit, %.2f per cell\n",
-		years(pp.HorizonYears), pct(pp.Risk), pp.CostVisit, pp.CostCell)
+		Years(pp.HorizonYears), Percent(pp.Risk), pp.CostVisit, pp.CostCell)
 	if len(pp.OutOfReach) > 0 {
 		var rows []string
 		for _, o := range pp.OutOfReach {
-			rows = append(rows, fmt.Sprintf("%s %s (%.2g of %d nodes)", esc(o.Group), pct(o.Share), o.ExpectedNodes, o.Nodes))
+			rows = append(rows, fmt.Sprintf("%s %s (%.2g of %d nodes)", esc(o.Group), Percent(o.Share), o.ExpectedNodes, o.Nodes))
 		}
 		more("for the nodes in reach; expected out of reach, to be found and fixed at commissioning: %s", strings.Join(rows, "; "))
 	}
@@ -107,13 +107,13 @@ func writeDesign(w io.Writer, p *Plan) {
 			if t == 0 {
 				per = append(per, fmt.Sprintf("%s: none", esc(d.Groups[gi].Name)))
 			} else {
-				per = append(per, fmt.Sprintf("%s: %s", esc(d.Groups[gi].Name), years(t)))
+				per = append(per, fmt.Sprintf("%s: %s", esc(d.Groups[gi].Name), Years(t)))
 			}
 		}
 		more("  every  %s", strings.Join(per, "; "))
 		more("  visits per year %s (90 %%: %s–%s); cells per year %s (90 %%: %s–%s)", sig3(r.VisitsPerYear.Mean), sig3(r.VisitsPerYear.Low), sig3(r.VisitsPerYear.High),
 			sig3(r.CellsPerYear.Mean), sig3(r.CellsPerYear.Low), sig3(r.CellsPerYear.High))
-		more("  P(any node flat within the horizon) %s (± %s); cost %.0f (90 %%: %.0f–%.0f)", pct(r.AnyFlat), errPct(r.AnyFlatError), r.Cost.Mean, r.Cost.Low, r.Cost.High)
+		more("  P(any node flat within the horizon) %s (± %s); cost %.0f (90 %%: %.0f–%.0f)", Percent(r.AnyFlat), errPct(r.AnyFlatError), r.Cost.Mean, r.Cost.Low, r.Cost.High)
 	}
 	if pp.Feasible {
 		more("> the cheapest policy that meets the accepted risk")
@@ -141,5 +141,5 @@ func errPct(x float64) string {
 	if x > 0 && x < 5e-7 {
 		return fmt.Sprintf("%.2g %%", 100*x)
 	}
-	return pct(x)
+	return Percent(x)
 }

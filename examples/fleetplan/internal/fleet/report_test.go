@@ -1,9 +1,7 @@
-package main
+package fleet
 
 import (
 	"math"
-	"regexp"
-	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -92,23 +90,4 @@ func TestSameTime(t *testing.T) {
 		assert.Equal(t, c.want, sameTime(c.a, c.b), "%v %v", c.a, c.b)
 		assert.Equal(t, c.want, sameTime(c.b, c.a), "%v %v", c.b, c.a)
 	}
-}
-
-// The report's Laws section gives every group's and the fleet's laws, one
-// line each (wrapped), with support, method and stated error.
-func TestReportLawsSection(t *testing.T) {
-	code, out, errs := runArgs(t, "-quiet")
-	require.Equal(t, 0, code, errs)
-	assert.Contains(t, out, "run with -scenario FILE for your own, -print-demo for its file)", "text printed bare is escaped, not cut short")
-	i := strings.Index(out, "Laws\n----")
-	require.Positive(t, i)
-	laws := out[i:strings.Index(out, "Warnings\n--------")]
-	for _, g := range []string{"dyke piezometers", "field soil probes", "pump alarms", "weather masts"} {
-		assert.Contains(t, laws, g+", energy per cycle: mean")
-		assert.Contains(t, laws, g+", lifetime: mean")
-	}
-	assert.Contains(t, laws, "exact: finite discrete")
-	assert.Contains(t, laws, "CDF error ≤")
-	assert.Equal(t, 4*3+4, strings.Count(laws, "  - "), "one entry per law")
-	assert.Len(t, regexp.MustCompile(`support\s+\[`).FindAllString(laws, -1), 4*3+4)
 }

@@ -13,19 +13,20 @@ import (
 	"github.com/joulelaw/joulelaw/dist"
 	"github.com/joulelaw/joulelaw/dist/distplot"
 	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/examples/fleetplan/internal/fleet"
 )
 
 var bandFill = color.NRGBA{R: 120, G: 175, B: 190, A: 140}
 
 // writeFigures writes the three figures as PNG and SVG into dir and returns
 // the files written.
-func writeFigures(p *Plan, dir string) ([]string, error) {
+func writeFigures(p *fleet.Plan, dir string) ([]string, error) {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, err
 	}
 	figs := []struct {
 		name string
-		make func(*Plan) (*plot.Plot, error)
+		make func(*fleet.Plan) (*plot.Plot, error)
 	}{
 		{"energy-per-cycle", energyFigure},
 		{"lifetime-survival", survivalFigure},
@@ -34,7 +35,7 @@ func writeFigures(p *Plan, dir string) ([]string, error) {
 	if p.Design != nil {
 		figs = append(figs, struct {
 			name string
-			make func(*Plan) (*plot.Plot, error)
+			make func(*fleet.Plan) (*plot.Plot, error)
 		}{"what-it-takes", designFigure}) // design_figures.go
 	}
 	var written []string
@@ -66,8 +67,8 @@ func style(pl *plot.Plot, title, x, y string) {
 	pl.Y.Tick.Marker = distplot.RoundTicks{}
 }
 
-func energyFigure(p *Plan) (*plot.Plot, error) {
-	l := p.laws
+func energyFigure(p *fleet.Plan) (*plot.Plot, error) {
+	l := p.Laws
 	lo, _ := l.FleetMin.Support()
 	hi := l.FleetMax.UpperQuantile(1e-6)
 	lo = min(lo, l.FleetEnergy.Quantile(1e-6))
@@ -99,21 +100,21 @@ func energyFigure(p *Plan) (*plot.Plot, error) {
 // horizon returns the end (years) of the time axis of the lifetime figures:
 // just past the date by which 99.9 % of every group's nodes are flat, at
 // most 40 years.
-func horizon(p *Plan) float64 {
+func horizon(p *fleet.Plan) float64 {
 	end := 0.0
-	for _, l := range p.laws.groupLife {
+	for _, l := range p.Laws.GroupLife {
 		end = max(end, l.Quantile(0.999)/energy.Year)
 	}
-	end = max(end, p.laws.replaceAfter/energy.Year)
+	end = max(end, p.Laws.ReplaceAfter/energy.Year)
 	return min(40, 1.05*end)
 }
 
-func survivalFigure(p *Plan) (*plot.Plot, error) {
+func survivalFigure(p *fleet.Plan) (*plot.Plot, error) {
 	pl := plot.New()
 	style(pl, "Battery lifetime: share of each group's nodes still running", "time since deployment (years)", "share of nodes still running")
 	end := horizon(p)
 	const n = 300
-	for gi, l := range p.laws.groupLife {
+	for gi, l := range p.Laws.GroupLife {
 		pts := make(plotter.XYs, n+1)
 		for i := range pts {
 			t := end * float64(i) / n
@@ -132,13 +133,13 @@ func survivalFigure(p *Plan) (*plot.Plot, error) {
 	pl.X.Min, pl.X.Max = 0, end
 	pl.Legend.Left = true
 	pl.Legend.Top = false
-	if err := distplot.MarkX(pl, p.laws.replaceAfter/energy.Year, 6, "planned replacement"); err != nil {
+	if err := distplot.MarkX(pl, p.Laws.ReplaceAfter/energy.Year, 6, "planned replacement"); err != nil {
 		return nil, err
 	}
 	return pl, nil
 }
 
-func failedFigure(p *Plan) (*plot.Plot, error) {
+func failedFigure(p *fleet.Plan) (*plot.Plot, error) {
 	pl := plot.New()
 	style(pl, fmt.Sprintf("Nodes at the end of their life (flat cell or calendar limit) in the fleet of %d, with the 90 %% band", p.Nodes),
 		"time since deployment (years)", "nodes at the end of their life")
@@ -147,7 +148,7 @@ func failedFigure(p *Plan) (*plot.Plot, error) {
 	var mean, lower, upper plotter.XYs
 	for i := 0; i <= n; i++ {
 		t := end * float64(i) / n
-		c, err := p.laws.Site.FailedBy(t * energy.Year)
+		c, err := p.Laws.Site.FailedBy(t * energy.Year)
 		if err != nil {
 			return nil, err
 		}
@@ -182,7 +183,7 @@ func failedFigure(p *Plan) (*plot.Plot, error) {
 	pl.X.Min, pl.X.Max = 0, end
 	pl.Y.Min, pl.Y.Max = 0, float64(p.Nodes)*1.02
 	pl.Legend.Left = true
-	if err := distplot.MarkX(pl, p.laws.replaceAfter/energy.Year, 6, "planned replacement"); err != nil {
+	if err := distplot.MarkX(pl, p.Laws.ReplaceAfter/energy.Year, 6, "planned replacement"); err != nil {
 		return nil, err
 	}
 	pl.Legend.ThumbnailWidth = vg.Points(18)

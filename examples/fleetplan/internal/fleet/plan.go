@@ -1,4 +1,11 @@
-package main
+// Package fleet computes the plan that the fleetplan program prints and its
+// figures program draws: the site model's laws (package radio/lora/scenario)
+// summarised per group and across the fleet, the optional "what it takes"
+// design section, and the plain-text report. It is internal to those two
+// programs, which share it so that the figures come from the very plan the
+// report prints; the figures live in their own program so that the main
+// job's binary carries no plotting code.
+package fleet
 
 import (
 	"fmt"
@@ -33,7 +40,8 @@ type Plan struct {
 	Cautions       []string     `json:"cautions"`
 	Design         *DesignPlan  `json:"what_it_takes,omitempty"` // the scenario's design section, with -what-it-takes (design.go)
 
-	laws planLaws // for the figures; not in the JSON
+	// Laws are the laws the figures draw (not in the JSON).
+	Laws PlanLaws `json:"-"`
 }
 
 // CellPlan summarises a cell the groups carry.
@@ -241,15 +249,18 @@ type Replacement struct {
 	In90Fraction     [2]float64 `json:"failed_fraction_90"`
 }
 
-// planLaws keeps the laws the figures draw.
-type planLaws struct {
+// PlanLaws keeps the laws the figures draw: the site model's, each group's
+// node lifetime and the planned replacement.
+type PlanLaws struct {
 	scenario.Laws
-	groupLife    []dist.Law // lifetime of a node of each group, s
-	replaceAfter float64    // s
+	// GroupLife is the lifetime law of a node of each group, s.
+	GroupLife []dist.Law
+	// ReplaceAfter is the planned replacement, s after deployment.
+	ReplaceAfter float64
 }
 
-// progress reports slow steps on stderr.
-type progress func(format string, args ...any)
+// Progress reports slow steps on stderr.
+type Progress func(format string, args ...any)
 
 func summarise(l dist.Law, scale float64) (Summary, error) {
 	s := Summary{Mean: l.Mean() / scale, SD: math.Sqrt(l.Variance()) / scale, Median: l.Quantile(0.5) / scale}
@@ -291,9 +302,9 @@ func method(l dist.Law) (string, float64) {
 	return "closed form", 0
 }
 
-// buildPlan computes the plan of a checked scenario: the site model's laws
+// Build computes the plan of a checked scenario: the site model's laws
 // (scenario.Compute), summarised for the report, the JSON and the figures.
-func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) {
+func Build(s scenario.Scenario, source string, say Progress) (*Plan, error) {
 	say("assembling the model: ADR settlement, collisions, retransmissions")
 	m, err := scenario.Build(s, nil)
 	if err != nil {
@@ -322,8 +333,8 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 			SelfDischargeW: b.SelfDischargePower(), PulseCurrentA: c.Spec.PulseCurrent, NominalVoltageV: c.Spec.NominalVoltage,
 			CapacitySD: c.CapacitySD, CalendarLifeYears: c.CalendarLife / energy.Year, VoltageCurve: c.Voltage != nil})
 	}
-	p.laws.Laws = laws
-	p.laws.replaceAfter = s.Plan.ReplaceAfter
+	p.Laws.Laws = laws
+	p.Laws.ReplaceAfter = s.Plan.ReplaceAfter
 
 	say("summarising the groups")
 	lifeAcc := st.Accuracy().CDFAbs
@@ -334,7 +345,7 @@ func buildPlan(s scenario.Scenario, source string, say progress) (*Plan, error) 
 			return nil, fmt.Errorf("group %q: %w", g.Group.Name, err)
 		}
 		p.Groups = append(p.Groups, gp)
-		p.laws.groupLife = append(p.laws.groupLife, lLaw)
+		p.Laws.GroupLife = append(p.Laws.GroupLife, lLaw)
 	}
 	// The site model decides the warnings (scenario.Laws.Warnings).
 	ws, err := laws.Warnings()
@@ -396,7 +407,7 @@ func groupPlan(s scenario.Scenario, g scenario.GroupModel, cycles []energy.Cycle
 		return gp, nil, err
 	}
 	gp.EnergyPerDay = eLaw.Mean() / g.Period.Mean() * energy.Day
-	gp.OutlierJ = laws.GroupMax[gi].UpperQuantile(outlierLevel)
+	gp.OutlierJ = laws.GroupMax[gi].UpperQuantile(OutlierLevel)
 
 	cur, err := dist.NewDiscrete(currents, w)
 	if err != nil {
@@ -501,9 +512,9 @@ func dutyPlan(s scenario.Scenario, g scenario.GroupModel) (DutyPlan, error) {
 	return dp, nil
 }
 
-// outlierLevel is the probability that the fleet's largest per-cycle energy
+// OutlierLevel is the probability that the fleet's largest per-cycle energy
 // exceeds the outlier threshold in a cycle.
-const outlierLevel = 0.01
+const OutlierLevel = 0.01
 
 func fleetEnergy(p *Plan, laws scenario.Laws) error {
 	var err error
@@ -516,13 +527,13 @@ func fleetEnergy(p *Plan, laws scenario.Laws) error {
 	if p.Fleet.MinPerCycle, err = summarise(laws.FleetMin, 1); err != nil {
 		return err
 	}
-	p.Fleet.OutlierLevel = outlierLevel
-	p.Fleet.OutlierJ = laws.FleetMax.UpperQuantile(outlierLevel)
+	p.Fleet.OutlierLevel = OutlierLevel
+	p.Fleet.OutlierJ = laws.FleetMax.UpperQuantile(OutlierLevel)
 	return nil
 }
 
 func fleetLife(p *Plan, s scenario.Scenario) error {
-	st := p.laws.Site
+	st := p.Laws.Site
 	first, err := st.FirstFailure()
 	if err != nil {
 		return err
@@ -549,7 +560,7 @@ func fleetLife(p *Plan, s scenario.Scenario) error {
 	t := s.Plan.ReplaceAfter
 	r := Replacement{AfterYears: t / energy.Year, NoFailure: st.NoFailureBefore(t)}
 	for i, g := range s.Groups {
-		e := float64(g.Nodes) * p.laws.groupLife[i].CDF(t)
+		e := float64(g.Nodes) * p.Laws.GroupLife[i].CDF(t)
 		r.PerGroupExpected = append(r.PerGroupExpected, e)
 		r.ExpectedFailures += e
 	}

@@ -1,4 +1,4 @@
-package main
+package fleet
 
 import (
 	"fmt"
@@ -85,8 +85,9 @@ func amps(x float64) string {
 	return fmt.Sprintf("%.3g µA", x*1e6)
 }
 
-// years formats a duration in years (or days when under a year).
-func years(y float64) string {
+// Years formats a duration given in years: "never" for +Inf, whole days
+// under a year, otherwise years to two decimals.
+func Years(y float64) string {
 	if math.IsInf(y, 1) {
 		return "never"
 	}
@@ -103,7 +104,9 @@ func yearPair(v [2]float64) string {
 	return fmt.Sprintf("[%.2f, %.2f] years", v[0], v[1])
 }
 
-func pct(x float64) string {
+// Percent formats a share in [0, 1] as a percentage: one decimal, two
+// significant digits under 0.1 %, "0.0 %" under 5e-7 and "–" for NaN.
+func Percent(x float64) string {
 	switch {
 	case math.IsNaN(x):
 		return "–"
@@ -145,9 +148,9 @@ func (e *errWriter) Write(b []byte) (int, error) {
 	return n, err
 }
 
-// writeReport prints the plan in the program's plain layout and returns the
+// WriteReport prints the plan in the program's plain layout and returns the
 // first write error (a full disk, a closed pipe), if any.
-func writeReport(out io.Writer, p *Plan) error {
+func WriteReport(out io.Writer, p *Plan) error {
 	ew := &errWriter{w: out}
 	w := io.Writer(ew)
 	title := "Fleet energy plan: " + esc(p.Site)
@@ -167,16 +170,16 @@ func writeReport(out io.Writer, p *Plan) error {
 		more("%s; %s nominal, %s at the rated usable fraction; self-discharge %s at the reference temperature", esc(c.Chemistry), joules(c.NominalEnergyJ), joules(c.UsableEnergyJ), watts(c.SelfDischargeW))
 		cal := "no calendar life given"
 		if c.CalendarLifeYears > 0 {
-			cal = fmt.Sprintf("calendar life %s", years(c.CalendarLifeYears))
+			cal = fmt.Sprintf("calendar life %s", Years(c.CalendarLifeYears))
 		}
 		end := "end of life at the rated usable fraction"
 		if c.VoltageCurve {
 			end = "end of life by voltage under the largest pulse"
 		}
-		more("capacity spread %s (sd, cell to cell); %s; %s", pct(c.CapacitySD), cal, end)
+		more("capacity spread %s (sd, cell to cell); %s; %s", Percent(c.CapacitySD), cal, end)
 	}
 	row("climate", "%s", p.Climate)
-	row("shared", "cell batch capacity sd %s; site temperature offset sd %.1f °C (one draw for the fleet)", pct(p.Shared.BatchCapacitySD), p.Shared.TemperatureOffsetSDC)
+	row("shared", "cell batch capacity sd %s; site temperature offset sd %.1f °C (one draw for the fleet)", Percent(p.Shared.BatchCapacitySD), p.Shared.TemperatureOffsetSDC)
 	fmt.Fprintln(w)
 
 	for i, g := range p.Groups {
@@ -199,7 +202,7 @@ func writeReport(out io.Writer, p *Plan) error {
 		row("energy per cycle", "mean %s, sd %s", eu.with(e.Mean), eu.with(e.SD))
 		more("90 %% of cycles in %s, 99 %% in %s", eu.pair(e.In90), eu.pair(e.In99))
 		row("energy per day", "%s on average", joules(g.EnergyPerDay))
-		row("outlier threshold", "%s: the group's largest cycle exceeds it in %s of cycles", eu.with(g.OutlierJ), pct(p.Fleet.OutlierLevel))
+		row("outlier threshold", "%s: the group's largest cycle exceeds it in %s of cycles", eu.with(g.OutlierJ), Percent(p.Fleet.OutlierLevel))
 		row("average current", "%s over the group; 90 %% of nodes between %s and %s", amps(g.Current.Mean), amps(g.Current.In90[0]), amps(g.Current.In90[1]))
 		top := 0.0
 		for _, s := range g.Breakdown {
@@ -212,7 +215,7 @@ func writeReport(out io.Writer, p *Plan) error {
 			if s.ShareVariance != nil {
 				vs = *s.ShareVariance
 			}
-			more("%-26s %14s %12s %9s %12s", esc(s.State), sig3(s.RunsPerCycle), bu.num(s.MeanEnergyJ), pct(s.ShareMean), pct(vs))
+			more("%-26s %14s %12s %9s %12s", esc(s.State), sig3(s.RunsPerCycle), bu.num(s.MeanEnergyJ), Percent(s.ShareMean), Percent(vs))
 		}
 		if i == 0 {
 			more("(runs per cycle: times the state runs in a cycle, on average, below 1 when it runs in some cycles")
@@ -222,10 +225,10 @@ func writeReport(out io.Writer, p *Plan) error {
 		row("data rates", "%-18s %8s %9s %8s %9s %8s %8s %8s", "", "of nodes", "airtime", "load", "uplink ok", "tx/rep", "dl RX1", "dl RX2")
 		for _, d := range g.DataRates {
 			if d.OutOfReach {
-				more("%-18s %8s %9s %8s %9s %8.3f %8s %8s", "out of reach", pct(d.Share), seconds(d.AirtimeS), "–", "lost", d.Frames, "none", "none")
+				more("%-18s %8s %9s %8s %9s %8.3f %8s %8s", "out of reach", Percent(d.Share), seconds(d.AirtimeS), "–", "lost", d.Frames, "none", "none")
 				continue
 			}
-			more("%-18s %8s %9s %8.4f %9s %8.3f %8s %8s", d.Name, pct(d.Share), seconds(d.AirtimeS), d.Load, pct(d.UplinkSuccess), d.Frames, pct(d.DownlinkRX1), pct(d.DownlinkRX2))
+			more("%-18s %8s %9s %8.4f %9s %8.3f %8s %8s", d.Name, Percent(d.Share), seconds(d.AirtimeS), d.Load, Percent(d.UplinkSuccess), d.Frames, Percent(d.DownlinkRX1), Percent(d.DownlinkRX2))
 		}
 		switch {
 		case g.OutOfReachPlanned >= 1:
@@ -236,10 +239,10 @@ func writeReport(out io.Writer, p *Plan) error {
 			if g.OutOfReachHeaviest {
 				drain = ", as much as the heaviest setting: they drain first"
 			}
-			more("out of reach at the installation margin: %s of placements, planned at the ADR back-off", pct(g.OutOfReach))
+			more("out of reach at the installation margin: %s of placements, planned at the ADR back-off", Percent(g.OutOfReach))
 			more("(slowest data rate, full power, every uplink lost); they draw %s%s", amps(g.OutOfReachCurrentA), drain)
 		default:
-			more("out of reach at the installation margin: %s of placements", pct(g.OutOfReach))
+			more("out of reach at the installation margin: %s of placements", Percent(g.OutOfReach))
 		}
 		dc := g.DutyCycle
 		verdict := "keeps the limit at every data rate its nodes use"
@@ -290,26 +293,26 @@ func writeReport(out io.Writer, p *Plan) error {
 			}
 		}
 		if g.UsableFraction[0] == g.UsableFraction[1] {
-			row("usable capacity", "%s of the rated capacity", pct(g.UsableFraction[0]))
+			row("usable capacity", "%s of the rated capacity", Percent(g.UsableFraction[0]))
 		} else {
-			row("usable capacity", "%s to %s of the rated capacity, by setting", pct(g.UsableFraction[0]), pct(g.UsableFraction[1]))
+			row("usable capacity", "%s to %s of the rated capacity, by setting", Percent(g.UsableFraction[0]), Percent(g.UsableFraction[1]))
 		}
 		l := g.Lifetime
 		note := ""
 		if sameTime(l.In90[0], l.In90[1]) && g.CalendarLimit > 0 && sameTime(l.In90[0], g.CalendarLimit) {
 			note = " (the calendar limit)"
 		}
-		row("battery lifetime", "median %s; 90 %% of nodes in %s%s", years(l.Median), yearPair(l.In90), note)
-		more("1 %% of this group's nodes are at the end of their life by %s", years(g.Lifetime1))
+		row("battery lifetime", "median %s; 90 %% of nodes in %s%s", Years(l.Median), yearPair(l.In90), note)
+		more("1 %% of this group's nodes are at the end of their life by %s", Years(g.Lifetime1))
 		if g.CalendarLimit > 0 {
 			binds := "the energy ends every node's life before it"
 			switch {
 			case g.EnergyBinds < 1e-9:
 				binds = "it ends every node's life: the energy outlasts it"
 			case g.EnergyBinds < 1-1e-9:
-				binds = fmt.Sprintf("the energy ends %s of the lives, the calendar the rest", pct(g.EnergyBinds))
+				binds = fmt.Sprintf("the energy ends %s of the lives, the calendar the rest", Percent(g.EnergyBinds))
 			}
-			more("calendar limit %s after deployment: %s", years(g.CalendarLimit), binds)
+			more("calendar limit %s after deployment: %s", Years(g.CalendarLimit), binds)
 		}
 		sp := g.Spread
 		var parts []string
@@ -319,14 +322,14 @@ func writeReport(out io.Writer, p *Plan) error {
 		}{{"radio setting", sp.Setting}, {"cell capacity", sp.Capacity}, {"sleep current", sp.Floor}, {"active energy", sp.Active},
 			{"cell batch", sp.Batch}, {"site temperature", sp.Temperature}, {"per cycle", sp.PerCycle}} {
 			if x.share >= 0.0005 {
-				parts = append(parts, fmt.Sprintf("%s %s", x.name, pct(x.share)))
+				parts = append(parts, fmt.Sprintf("%s %s", x.name, Percent(x.share)))
 			}
 		}
 		if len(parts) > 0 {
 			more("spread of the lifetime (shares of its variance): %s", strings.Join(parts, ", "))
 		}
 		f := g.FirstFailure
-		row("first failure", "in this group: median %s, 90 %% in %s", years(f.Median), yearPair(f.In90))
+		row("first failure", "in this group: median %s, 90 %% in %s", Years(f.Median), yearPair(f.In90))
 		fmt.Fprintln(w)
 	}
 
@@ -339,7 +342,7 @@ func writeReport(out io.Writer, p *Plan) error {
 	row("a node's cycle", "mean %s, 90 %% in %s", fu.with(fl.EnergyPerCycle.Mean), fu.pair(fl.EnergyPerCycle.In90))
 	row(fmt.Sprintf("largest of %d", p.Nodes), "mean %s, 90 %% in %s", fu.with(fl.MaxPerCycle.Mean), fu.pair(fl.MaxPerCycle.In90))
 	row(fmt.Sprintf("smallest of %d", p.Nodes), "mean %s, 90 %% in %s", fu.with(fl.MinPerCycle.Mean), fu.pair(fl.MinPerCycle.In90))
-	row("outlier threshold", "%s: the fleet's largest cycle exceeds it in %s of cycles", fu.with(fl.OutlierJ), pct(fl.OutlierLevel))
+	row("outlier threshold", "%s: the fleet's largest cycle exceeds it in %s of cycles", fu.with(fl.OutlierJ), Percent(fl.OutlierLevel))
 	more("a node above its group's threshold in more cycles than that, and not at the slowest data rates")
 	more("(whose nodes keep them and exceed it routinely), is worth a look (stuck retransmissions, a")
 	more("failing sensor); the fleet's threshold is set by its heaviest group")
@@ -347,17 +350,17 @@ func writeReport(out io.Writer, p *Plan) error {
 
 	fmt.Fprintln(w, "Fleet: batteries and replacement")
 	fmt.Fprintln(w, "--------------------------------")
-	row("first failure", "median %s, 90 %% in %s", years(fl.FirstFailure.Median), yearPair(fl.FirstFailure.In90))
+	row("first failure", "median %s, 90 %% in %s", Years(fl.FirstFailure.Median), yearPair(fl.FirstFailure.In90))
 	more("(a node's life ends when its cell is flat or at the cell's calendar limit, whichever comes first)")
 	for _, f := range fl.FlatBy {
 		note := ""
 		if f.In90[0] == f.In90[1] {
 			note = " (the cells' calendar limit)"
 		}
-		row(fmt.Sprintf("%.0f %% at end (%d)", 100*f.Fraction, f.Count), "median %s, 90 %% in %s%s", years(f.Median), yearPair(f.In90), note)
+		row(fmt.Sprintf("%.0f %% at end (%d)", 100*f.Fraction, f.Count), "median %s, 90 %% in %s%s", Years(f.Median), yearPair(f.In90), note)
 	}
 	r := fl.Replacement
-	row("planned replacement", "after %s:", years(r.AfterYears))
+	row("planned replacement", "after %s:", Years(r.AfterYears))
 	more("expected failures before it: %.1f of %d (90 %%: %d to %d nodes)", r.ExpectedFailures, p.Nodes, r.Failures90[0], r.Failures90[1])
 	more("probability that no battery is flat before it: %s", probability(r.NoFailure))
 	var per []string
@@ -365,9 +368,9 @@ func writeReport(out io.Writer, p *Plan) error {
 		per = append(per, fmt.Sprintf("%s %.1f", esc(g.Name), r.PerGroupExpected[i]))
 	}
 	more("expected by group: %s", strings.Join(per, "; "))
-	row("replace by", "%s keeps the risk of any flat battery at %s", years(fl.ReplaceByRisk), pct(fl.Risk))
+	row("replace by", "%s keeps the risk of any flat battery at %s", Years(fl.ReplaceByRisk), Percent(fl.Risk))
 	for _, g := range p.Groups {
-		more("%s alone: %s", esc(g.Name), years(g.ReplaceByRisk))
+		more("%s alone: %s", esc(g.Name), Years(g.ReplaceByRisk))
 	}
 	more("(lifetime laws computed to a CDF error bound of %.1g)", fl.LifetimeAccuracy)
 	fmt.Fprintln(w)
@@ -524,8 +527,8 @@ func writeBudgets(w io.Writer, p *Plan) {
 		if b.Over {
 			flag = "  OVER"
 		}
-		fmt.Fprintf(w, "  %-24s %-26s %7s %10s %10s %10s %10s %10s %7s%s\n", esc(b.Gateway), b.SubBand, pct(b.Limit), pct(b.OfferedRX1), pct(b.UsedRX1),
-			pct(b.OfferedRX2), pct(b.UsedRX2), pct(b.FallbackUsed), pct(b.LostShare), flag)
+		fmt.Fprintf(w, "  %-24s %-26s %7s %10s %10s %10s %10s %10s %7s%s\n", esc(b.Gateway), b.SubBand, Percent(b.Limit), Percent(b.OfferedRX1), Percent(b.UsedRX1),
+			Percent(b.OfferedRX2), Percent(b.UsedRX2), Percent(b.FallbackUsed), Percent(b.LostShare), flag)
 	}
 	fmt.Fprintln(w, "  (limits for planning, not certification: check the local rules for gateways and defer to the regulator)")
 	fmt.Fprintln(w)

@@ -12,6 +12,7 @@ import (
 
 	"github.com/joulelaw/joulelaw/dist/distplot"
 	"github.com/joulelaw/joulelaw/energy"
+	"github.com/joulelaw/joulelaw/examples/fleetplan/internal/fleet"
 	"github.com/joulelaw/joulelaw/radio/lora/scenario"
 )
 
@@ -28,10 +29,10 @@ func TestWhatItTakes(t *testing.T) {
 		t.Skip("the demo plan and its design search: seconds")
 	}
 	s := scenario.Demo()
-	p, err := buildPlan(s, "demo", func(string, ...any) {})
+	p, err := fleet.Build(s, "demo", func(string, ...any) {})
 	require.NoError(t, err)
 	require.Nil(t, p.Design, "only with -what-it-takes")
-	p.Design, err = whatItTakesSection(s, p, func(string, ...any) {})
+	p.Design, err = fleet.WhatItTakes(s, p, func(string, ...any) {})
 	require.NoError(t, err)
 	d := p.Design
 	require.NotNil(t, d)
@@ -59,7 +60,7 @@ func TestWhatItTakes(t *testing.T) {
 		assert.True(t, found, "%s: the interval found is a row of the table", g.Name)
 		for _, c := range g.Choices {
 			if c.Feasible {
-				assert.GreaterOrEqual(t, c.ReadingIntervalS, g.ReadingIntervalS*(1-designTolerance), "%s: %s", g.Name, c.Choice)
+				assert.GreaterOrEqual(t, c.ReadingIntervalS, g.ReadingIntervalS*(1-fleet.DesignTolerance), "%s: %s", g.Name, c.Choice)
 			}
 		}
 	}
@@ -94,7 +95,7 @@ func TestWhatItTakes(t *testing.T) {
 	// demo's groups each have some (scenario.GroupModel.OutOfReach).
 	require.Len(t, pp.OutOfReach, len(s.Groups))
 	for gi, o := range pp.OutOfReach {
-		assert.Equal(t, p.laws.Model.Groups[gi].OutOfReach, o.Share, o.Group)
+		assert.Equal(t, p.Laws.Model.Groups[gi].OutOfReach, o.Share, o.Group)
 		assert.InDelta(t, o.Share*float64(o.Nodes), o.ExpectedNodes, 1e-12, o.Group)
 	}
 	// The figure: one curve per group and the target, drawn as PNG.
@@ -105,7 +106,7 @@ func TestWhatItTakes(t *testing.T) {
 	assert.True(t, bytes.HasPrefix(png, []byte("\x89PNG")), "PNG signature")
 	assert.GreaterOrEqual(t, pl.Y.Max, d.TargetYears, "the target line is within the plot")
 	var buf bytes.Buffer
-	require.NoError(t, writeReport(&buf, p))
+	require.NoError(t, fleet.WriteReport(&buf, p))
 	assert.Contains(t, buf.String(), "What it takes\n-------------")
 	assert.Contains(t, buf.String(), "the cheapest policy that meets the accepted risk")
 }
@@ -115,7 +116,7 @@ func TestWhatItTakes(t *testing.T) {
 func TestWhatItTakesNeedsSection(t *testing.T) {
 	s := scenario.Demo()
 	s.Design = nil
-	_, err := whatItTakesSection(s, &Plan{}, func(string, ...any) {})
+	_, err := fleet.WhatItTakes(s, &fleet.Plan{}, func(string, ...any) {})
 	require.Error(t, err)
 	assert.Contains(t, err.Error(), "FORMAT.md")
 }

@@ -44,6 +44,13 @@ type sharedMixture struct {
 	// (about eight evaluations of the mixture and the corners' quantiles)
 	// costs less than the seed's own search of its approximation.
 	cornersFirst bool
+	// bothTails, when set, has the searches' probit (probit, probitAbove)
+	// read both tails of each component from one evaluation where every
+	// component gives them (orderstat.TwoTails): for a mixture whose
+	// components cost far more to evaluate than either tail (a Site's
+	// k-th failures: a count's convolution), so that a point whose first
+	// sum is above 1/2 costs one evaluation of each, not two.
+	bothTails bool
 	// quick, when set, returns for component i the pieces of its moment
 	// quadrature (componentQuad) read from a Site's tables: its survival
 	// (the component's law, to rounding, without an order statistic's
@@ -138,10 +145,40 @@ func (m sharedMixture) Survival(t float64) float64 {
 	return min(1, s)
 }
 
+// tails returns the mixture's CDF and survival at t, each the same bits
+// as CDF and Survival, from one evaluation of each component, and true;
+// false where a component does not give both (orderstat.TwoTails) or
+// bothTails is not set.
+func (m sharedMixture) tails(t float64) (cdf, sf float64, ok bool) {
+	if !m.bothTails {
+		return 0, 0, false
+	}
+	if math.IsNaN(t) {
+		return t, t, true
+	}
+	for _, l := range m.laws {
+		if _, ok := l.(orderstat.TwoTails); !ok {
+			return 0, 0, false
+		}
+	}
+	for i, l := range m.laws {
+		f, s := l.(orderstat.TwoTails).Tails(t)
+		cdf += m.w[i] * f
+		sf += m.w[i] * s
+	}
+	return min(1, cdf), min(1, sf), true
+}
+
 // probit returns the probit of the mixture's CDF at t, from the smaller
 // tail (each side summed directly).
 func (m sharedMixture) probit(t float64) float64 {
 	std := dist.MustNormal(0, 1)
+	if c, s, ok := m.tails(t); ok {
+		if c <= 0.5 {
+			return std.Quantile(c)
+		}
+		return std.UpperQuantile(s)
+	}
 	c := m.CDF(t)
 	if c <= 0.5 {
 		return std.Quantile(c)
@@ -154,6 +191,12 @@ func (m sharedMixture) probit(t float64) float64 {
 // 1/2, as it is near that answer), the CDF only where it is not.
 func (m sharedMixture) probitAbove(t float64) float64 {
 	std := dist.MustNormal(0, 1)
+	if c, s, ok := m.tails(t); ok {
+		if s < 0.5 {
+			return std.UpperQuantile(s)
+		}
+		return std.Quantile(c)
+	}
 	if s := m.Survival(t); s < 0.5 {
 		return std.UpperQuantile(s)
 	}

@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"github.com/joulelaw/joulelaw/dist"
+	"github.com/joulelaw/joulelaw/orderstat"
 )
 
 // The mixtures' quantiles try the corners' bracket first and fall back to
@@ -356,4 +357,54 @@ func TestSiteFleetRange(t *testing.T) {
 		assert.Equal(t, lo, qmlo, "env %d: the quick pieces' lo", e)
 		assert.Equal(t, hi, qmhi, "env %d: the quick pieces' hi", e)
 	}
+}
+
+// With bothTails the searches' probit reads each component's two tails
+// from one evaluation: on a mixture of the 3rd smallest of 10 normals of
+// sd 1 at 0, 1 and 3 (a Site's k-th failures are such counts), the
+// mixture's two sums are the same bits as CDF and Survival, its probit
+// (both sides) and its quantiles the same bits as without, and its CDF
+// within 1e-10 of Σ w·P(Bin(10, Φ(t − μ)) >= 3), the order statistic's
+// law by the binomial count (common practice), from gonum's
+// distuv.Binomial and distuv.UnitNormal. A mixture with a component
+// without Tails (a normal) falls back to the sums one by one.
+func TestSharedMixtureBothTails(t *testing.T) {
+	means, w := []float64{0, 1, 3}, []float64{0.25, 0.5, 0.25}
+	laws := make([]dist.Law, len(means))
+	for i, mu := range means {
+		l, err := orderstat.Kth(dist.MustNormal(mu, 1), 3, 10)
+		require.NoError(t, err)
+		laws[i] = l
+	}
+	plain := newSharedMixture("test", w, laws)
+	both := plain
+	both.bothTails = true
+	for i := -40; i <= 80; i++ {
+		x := float64(i) / 10
+		cdf, sf, ok := both.tails(x)
+		require.True(t, ok)
+		assert.Equal(t, math.Float64bits(plain.CDF(x)), math.Float64bits(cdf), "CDF(%v)", x)
+		assert.Equal(t, math.Float64bits(plain.Survival(x)), math.Float64bits(sf), "Survival(%v)", x)
+		assert.Equal(t, math.Float64bits(plain.probit(x)), math.Float64bits(both.probit(x)), "probit(%v)", x)
+		assert.Equal(t, math.Float64bits(plain.probitAbove(x)), math.Float64bits(both.probitAbove(x)), "probitAbove(%v)", x)
+		want := 0.0
+		for j, mu := range means {
+			b := distuv.Binomial{N: 10, P: distuv.UnitNormal.CDF(x - mu)}
+			want += w[j] * (1 - b.CDF(2))
+		}
+		assert.InDelta(t, want, cdf, 1e-10, "CDF(%v) against the binomial count", x)
+	}
+	for _, p := range []float64{0.01, 0.3, 0.5, 0.9, 0.999} {
+		assert.Equal(t, math.Float64bits(plain.quantile(p)), math.Float64bits(both.quantile(p)), "Quantile(%v)", p)
+		assert.Equal(t, math.Float64bits(plain.upperQuantile(p)), math.Float64bits(both.upperQuantile(p)), "UpperQuantile(%v)", p)
+	}
+	mixed := both
+	mixed.laws = []dist.Law{laws[0], dist.MustNormal(1, 1), laws[2]}
+	_, _, ok := mixed.tails(1)
+	assert.False(t, ok, "a component without Tails")
+	unmixed := mixed
+	unmixed.bothTails = false
+	assert.Equal(t, math.Float64bits(unmixed.probit(1)), math.Float64bits(mixed.probit(1)))
+	_, _, ok = plain.tails(1)
+	assert.False(t, ok, "bothTails not set")
 }

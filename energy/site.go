@@ -454,6 +454,9 @@ func (s Site) mixStated(fn string, stated func() float64, kind lawKind, g int, k
 		// calendar limit's atom exactly where the seeded one ended up to
 		// 1e-13 above it: both within the searches' 1e-12.
 		sm.cornersFirst = kind == kindFirst || kind == kindNode
+		// A k-th failure's components are counts' convolutions, each
+		// giving both tails at once: its searches read both.
+		sm.bothTails = kind == kindKth
 		sm.quick = s.quickFor(kind, g)
 		if q := sm.quick; q != nil && kind == kindFleet {
 			sm.quick = func(i int) (func(float64) float64, float64, float64, float64) {

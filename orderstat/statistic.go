@@ -467,6 +467,17 @@ func (s Statistic) Survival(x float64) float64 {
 	return sf
 }
 
+// Tails returns P(X <= x) and P(X > x) from one evaluation, the same bits
+// as CDF and Survival, which take one each (a count's convolution or
+// transform, or the extreme's sum of logarithms, gives both sides): a
+// Statistic is a TwoTails law.
+func (s Statistic) Tails(x float64) (cdf, survival float64) {
+	if s.c == nil {
+		return math.NaN(), math.NaN()
+	}
+	return s.c.eval(x, false)
+}
+
 // Quantile returns inf{x : CDF(x) >= p}; NaN for p outside [0, 1].
 func (s Statistic) Quantile(p float64) float64 {
 	switch {

@@ -281,3 +281,34 @@ func TestTailBoundedRestDeterministic(t *testing.T) {
 		})
 	}
 }
+
+// A Statistic gives both tails from one evaluation (Tails, TwoTails): the
+// same bits as CDF and Survival at every point of the conformance cases'
+// laws (NaN, NaN for NaN), and for the minimum of n Exp(λ), which is
+// Exp(n·λ) (common practice), both tails within 1e-12 relative of
+// −expm1(−nλx) and e^{−nλx}.
+func TestStatisticTails(t *testing.T) {
+	for _, tc := range conformanceCases() {
+		l, err := tc.build()
+		require.NoError(t, err, tc.name)
+		st, ok := l.(orderstat.TwoTails)
+		require.True(t, ok, "%s: a Statistic is a TwoTails law", tc.name)
+		lo, hi := l.Quantile(1e-9), l.UpperQuantile(1e-9)
+		for i := -2; i <= 42; i++ {
+			x := lo + (hi-lo)*float64(i)/40
+			cdf, sf := st.Tails(x)
+			assert.Equal(t, math.Float64bits(l.CDF(x)), math.Float64bits(cdf), "%s: CDF(%v)", tc.name, x)
+			assert.Equal(t, math.Float64bits(l.Survival(x)), math.Float64bits(sf), "%s: Survival(%v)", tc.name, x)
+		}
+		cdf, sf := st.Tails(math.NaN())
+		assert.True(t, math.IsNaN(cdf) && math.IsNaN(sf), "%s: NaN in, NaN out", tc.name)
+	}
+	const n, lambda = 1e6, 2.0
+	mn, err := orderstat.Min(dist.MustExponential(lambda), n)
+	require.NoError(t, err)
+	for _, x := range []float64{1e-9, 1e-7, 1e-6, 1e-5} {
+		cdf, sf := mn.(orderstat.TwoTails).Tails(x)
+		assert.InDelta(t, 0, testref.RelErr(cdf, -math.Expm1(-n*lambda*x)), 1e-12, "CDF(%v)", x)
+		assert.InDelta(t, 0, testref.RelErr(sf, math.Exp(-n*lambda*x)), 1e-12, "Survival(%v)", x)
+	}
+}

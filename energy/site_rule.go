@@ -444,7 +444,7 @@ func (s *Site) condAt(kind lawKind, g int, k int64, zs []float64, probs []float6
 		if zs[g] >= s.sure[g] {
 			return 1 // what the formula gives there (firstSure)
 		}
-		return -math.Expm1(float64(s.counts[g]) * mills.LogUpper(zs[g]))
+		return fexp.OneMinusExp(float64(s.counts[g]) * mills.LogUpper(zs[g]))
 	case kindFleet:
 		// One group's certain first failure makes the fleet's certain: its
 		// term alone takes l below −56·ln 2 (every term is <= 0).
@@ -462,7 +462,7 @@ func (s *Site) condAt(kind lawKind, g int, k int64, zs []float64, probs []float6
 			}
 			l += float64(s.counts[h]) * probs[h]
 		}
-		return -math.Expm1(l)
+		return fexp.OneMinusExp(l)
 	}
 	for h, z := range zs {
 		if rep != nil && rep[h] != h {
@@ -482,18 +482,18 @@ func (s *Site) condAt(kind lawKind, g int, k int64, zs []float64, probs []float6
 }
 
 // sureLog is the log survival below which a first failure is certain to
-// double precision: −expm1(l) is 1 for l <= −56·ln 2 ≈ −38.8 (e^l is then
-// below half a unit in the last place of 1, 2^-54; the standard library's
-// expm1 returns −1 exactly there), with 3 % to spare.
+// double precision: 1 − e^l is 1 for l <= −56·ln 2 ≈ −38.8 (e^l is then
+// below half a unit in the last place of 1, 2^-54: fexp.OneMinusExp
+// returns 1 exactly there, as −expm1(l) does), with 3 % to spare.
 const sureLog = -40.0
 
 // firstSure returns the probit z from which the first failure among n
 // nodes whose probits are z is certain to double precision: n·log Φ̄(z)
 // <= sureLog, z = Φ̄⁻¹(e^{sureLog/n}) (8.6 for one node, −1.6 for 1,000).
-// From it on condAt's formula, −expm1(n·log Φ̄(z)), gives 1 exactly (the
-// quantile's and LogUpper's errors, under 1e-13 relative, against the
-// 3 % of sureLog to spare), and condAt returns 1 without it: the same
-// bits, TestFirstSure.
+// From it on condAt's formula, 1 − e^{n·log Φ̄(z)} (fexp.OneMinusExp),
+// gives 1 exactly (the quantile's and LogUpper's errors, under 1e-13
+// relative, against the 3 % of sureLog to spare), and condAt returns 1
+// without it: the same bits, TestFirstSure.
 func firstSure(n int64) float64 {
 	std := dist.MustNormal(0, 1)
 	// From the smaller tail: Φ(z) = 1 − e^{sureLog/n} for large n.
@@ -912,7 +912,7 @@ func (s *Site) condOne(kind lawKind, g int, z float64) float64 {
 	case z >= s.sure[g]:
 		return 1 // what the formula gives there (firstSure)
 	}
-	return -math.Expm1(float64(s.counts[g]) * mills.LogUpper(z))
+	return fexp.OneMinusExp(float64(s.counts[g]) * mills.LogUpper(z))
 }
 
 // probitAt is the probit of a conditional node law's CDF at t (+Inf from
@@ -1296,7 +1296,7 @@ func (s *Site) fineBoundsOne(sc *ruleScratch, Y0, Y1 []float64, kind lawKind, g,
 			case z0 >= sure:
 				c = 1
 			default:
-				c = -math.Expm1(n * mills.LogUpper(z0))
+				c = fexp.OneMinusExp(n * mills.LogUpper(z0))
 			}
 			addWeighted(&sums, w, M, c)
 			if w[0] == 0 || !(ds[0] || ds[1]) {

@@ -8,19 +8,21 @@ import (
 	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"github.com/joulelaw/joulelaw/internal/fexp"
 	"github.com/joulelaw/joulelaw/internal/mills"
 	"github.com/joulelaw/joulelaw/orderstat"
 )
 
 // TestFirstSure: firstSure(n) is where n·log Φ̄(z) = sureLog, with Φ̄ =
 // erfc(z/√2)/2 from the standard library's erfc (or log1p of −Φ(z) for
-// z < 0), to 1e-9 relative; from it on (a sweep of 2 sd above it, and the next
-// float64) condAt's formula for a first failure, −expm1(n·log Φ̄(z)),
-// is 1 exactly, so that condAt's shortcut returns its bits; and the
-// shortcut is not far from where the formula first gives 1 (at
-// n·log Φ̄ = −35, below the threshold, it is still below 1).
+// z < 0), to 1e-9 relative; from it on (a sweep of 2 sd above it, and the
+// next float64) condAt's formula for a first failure,
+// 1 − e^{n·log Φ̄(z)} (fexp.OneMinusExp), is 1 exactly, so that condAt's
+// shortcut returns its bits; and the shortcut is not far from where the
+// formula first gives 1 (at n·log Φ̄ = −35, below the threshold, it is
+// still below 1).
 func TestFirstSure(t *testing.T) {
-	formula := func(n int64, z float64) float64 { return -math.Expm1(float64(n) * mills.LogUpper(z)) }
+	formula := func(n int64, z float64) float64 { return fexp.OneMinusExp(float64(n) * mills.LogUpper(z)) }
 	for _, n := range []int64{1, 2, 7, 80, 1000, 8000, 100000, orderstat.MaxCount} {
 		z0 := firstSure(n)
 		require.False(t, math.IsNaN(z0) || math.IsInf(z0, 0), "n = %d", n)
@@ -49,8 +51,9 @@ func TestFirstSure(t *testing.T) {
 
 // TestCondAtSure: condAt of a group's first failure and of the fleet's
 // first failure on the invented two-factor site gives the bits of its
-// formula, −expm1(Σ n_h·log Φ̄(z_h)), on a grid of probits across the
-// certain-failure thresholds (firstSure), shortcut or not.
+// formula, 1 − e^{Σ n_h·log Φ̄(z_h)} (fexp.OneMinusExp), on a grid of
+// probits across the certain-failure thresholds (firstSure), shortcut or
+// not.
 func TestCondAtSure(t *testing.T) {
 	s, err := NewSite(TwoFactorSiteSpec(t))
 	require.NoError(t, err)
@@ -65,9 +68,9 @@ func TestCondAtSure(t *testing.T) {
 		for h, z := range zs {
 			l += float64(s.counts[h]) * mills.LogUpper(z)
 		}
-		assert.Equal(t, math.Float64bits(-math.Expm1(l)), math.Float64bits(s.condAt(kindFleet, 0, 0, zs, probs, nil)), "fleet at %v", zs)
+		assert.Equal(t, math.Float64bits(fexp.OneMinusExp(l)), math.Float64bits(s.condAt(kindFleet, 0, 0, zs, probs, nil)), "fleet at %v", zs)
 		for g := range G {
-			want := -math.Expm1(float64(s.counts[g]) * mills.LogUpper(zs[g]))
+			want := fexp.OneMinusExp(float64(s.counts[g]) * mills.LogUpper(zs[g]))
 			assert.Equal(t, math.Float64bits(want), math.Float64bits(s.condAt(kindFirst, g, 0, zs, probs, nil)), "group %d at %v", g, zs[g])
 		}
 	}

@@ -139,6 +139,27 @@ func Exps(x []float64) {
 	}
 }
 
+// OneMinusExpMaxRelErr bounds the relative error of OneMinusExp: where it
+// takes Exp, Exp's error (at most MaxRelErr·e^x, e^x <= 1/2) is at most
+// MaxRelErr of the result 1 − e^x >= 1/2, and the subtraction rounds by
+// 2^-53 more; elsewhere math.Expm1's, within a unit in the last place.
+// TestOneMinusExpAgainstBigOracle measures it.
+const OneMinusExpMaxRelErr = 1.5 * MaxRelErr
+
+// OneMinusExp returns 1 − e^x (dimensionless) for x <= 0: a probability
+// from the logarithm of its complement (a first failure's −expm1(n·log S)
+// over a site's rule), within OneMinusExpMaxRelErr relative. From x <= −ln 2
+// on, where 1 − e^x >= 1/2 and the subtraction loses nothing, as 1 − Exp(x)
+// (Exp's table instead of math.Expm1's division); above, −math.Expm1(x),
+// which keeps the digits of a small result. 1 at −Inf, 1 exactly where
+// e^x is below 2^-54 (x below about −37.4), NaN for NaN.
+func OneMinusExp(x float64) float64 {
+	if x <= -math.Ln2 {
+		return 1 - Exp(x)
+	}
+	return -math.Expm1(x)
+}
+
 // reduce returns j = k mod N, (k div N)·2^52 modulo 2^64 and
 // r = x − k·ln2/N for k = round(x·N/ln2), |x| < 2^44.
 func reduce(x float64) (j, top uint64, r float64) {

@@ -65,15 +65,41 @@ func (n *node) gradInterp(a, b *gradKnot, x float64, right bool) (z, dz float64)
 // on each: the table's store reads both sides at a month boundary, where
 // only the clocks' rates differ.
 func (n *node) gradInterpSides(a, b *gradKnot, x float64, left, right bool) (z, dl, dr float64) {
-	h := b.t - a.t
-	s := (x - a.t) / h
-	var u [3]float64 // the chord's clock rates
-	for i := range u {
-		u[i] = (b.c[i] - a.c[i]) / h
+	sp := newGradSpan(a, b)
+	return n.spanSides(&sp, x, left, right)
+}
+
+// gradSpan is what the interpolant between the knots a and b reads of
+// them apart from the time x (gradInterpSides): computed once for the
+// table's store, which reads the interval at each month boundary in it.
+type gradSpan struct {
+	a, b   *gradKnot
+	h      float64    // b.t − a.t
+	u      [3]float64 // the chord's clock rates
+	sa, sb float64    // the end slopes along the chord
+	dg, rg [3]float64 // the gradient's change b.g − a.g, and over h
+}
+
+// newGradSpan returns the interval between a and b's gradSpan.
+func newGradSpan(a, b *gradKnot) gradSpan {
+	sp := gradSpan{a: a, b: b, h: b.t - a.t}
+	for i := range sp.u {
+		sp.u[i] = (b.c[i] - a.c[i]) / sp.h
 	}
-	sa := a.g[0]*u[0] + a.g[1]*u[1] + a.g[2]*u[2]
-	sb := b.g[0]*u[0] + b.g[1]*u[1] + b.g[2]*u[2]
-	z, dz := hermiteD(a.t, b.t, a.z, b.z, sa, sb, x)
+	sp.sa = a.g[0]*sp.u[0] + a.g[1]*sp.u[1] + a.g[2]*sp.u[2]
+	sp.sb = b.g[0]*sp.u[0] + b.g[1]*sp.u[1] + b.g[2]*sp.u[2]
+	for i := 1; i < 3; i++ {
+		sp.dg[i] = b.g[i] - a.g[i]
+		sp.rg[i] = sp.dg[i] / sp.h
+	}
+	return sp
+}
+
+// spanSides is gradInterpSides on sp's interval, the same bits.
+func (n *node) spanSides(sp *gradSpan, x float64, left, right bool) (z, dl, dr float64) {
+	a, b := sp.a, sp.b
+	s := (x - a.t) / sp.h
+	z, dz := hermiteD(a.t, b.t, a.z, b.z, sp.sa, sp.sb, x)
 	c := n.clocks(x)
 	var rl, rr [3]float64
 	if left {
@@ -84,11 +110,11 @@ func (n *node) gradInterpSides(a, b *gradKnot, x float64, left, right bool) (z, 
 	}
 	dl, dr = dz, dz
 	for i := 1; i < 3; i++ {
-		dev := c[i] - a.c[i] - (x-a.t)*u[i]
-		gi := a.g[i] + s*(b.g[i]-a.g[i])
+		dev := c[i] - a.c[i] - (x-a.t)*sp.u[i]
+		gi := a.g[i] + s*sp.dg[i]
 		z += gi * dev
-		dl += (b.g[i]-a.g[i])/h*dev + gi*(rl[i]-u[i])
-		dr += (b.g[i]-a.g[i])/h*dev + gi*(rr[i]-u[i])
+		dl += sp.rg[i]*dev + gi*(rl[i]-sp.u[i])
+		dr += sp.rg[i]*dev + gi*(rr[i]-sp.u[i])
 	}
 	if !left {
 		dl = 0
@@ -517,8 +543,10 @@ func (n *node) clockGrid(sc *tableScratch, lo, hi gradKnot, tol float64, initial
 		a, b := &ks[i], &ks[i+1]
 		ok := finite(a) && finite(b)
 		d0 := 0.0
+		var sp gradSpan // the interval's, read at each month boundary in it
 		if ok {
-			_, d0 = n.gradInterp(a, b, a.t, true)
+			sp = newGradSpan(a, b)
+			_, _, d0 = n.spanSides(&sp, a.t, false, true)
 		}
 		for len(kinks) > 0 && kinks[0] <= a.t {
 			kinks = kinks[1:]
@@ -533,7 +561,7 @@ func (n *node) clockGrid(sc *tableScratch, lo, hi gradKnot, tol float64, initial
 			dRight := 0.0 // the slope right of a month boundary: the next piece's d0
 			if ok {
 				var zx float64
-				zx, d1, dRight = n.gradInterpSides(a, b, x1, true, !last)
+				zx, d1, dRight = n.spanSides(&sp, x1, true, !last)
 				if !last {
 					z1 = zx
 				}

@@ -371,13 +371,24 @@ func (n *node) appendKinks(dst []float64, lo, hi float64) []float64 {
 	if !(hi > lo) || (hi-lo)/Month > maxKinks {
 		return dst
 	}
+	// Whether the boundary m·Month is a kink depends on m mod 12 alone:
+	// the months' factors compared once, not at each boundary.
+	var kink [12]bool
+	some := false
+	for j := range kink {
+		i := (j + 11) % 12
+		kink[j] = n.floorRate[i] != n.floorRate[j] || n.sdFactor[i] != n.sdFactor[j]
+		some = some || kink[j]
+	}
+	if !some {
+		return dst
+	}
 	// Counted first, then written into room for that many (growing by
 	// appends cost the tables about a tenth of their allocations).
 	first := int(math.Floor(max(lo, 0)/Month)) + 1
 	at := func(m int) (float64, bool) {
-		i, j := (m-1)%12, m%12
 		x := float64(m) * Month
-		return x, x > lo && (n.floorRate[i] != n.floorRate[j] || n.sdFactor[i] != n.sdFactor[j])
+		return x, x > lo && kink[m%12]
 	}
 	count := 0
 	for m := first; float64(m)*Month < hi; m++ {

@@ -91,3 +91,39 @@ func TestSettingTablesSeasons(t *testing.T) {
 	}
 	assert.Greater(t, longest, 0.75*Year, "the test's tables have intervals that span seasons")
 }
+
+// kinks lists the month boundaries m·Month in (lo, hi) where a monthly
+// factor changes (the floor's or the self-discharge's from month m − 1 to
+// month m, the months counted from deployment, twelve to a year): checked
+// against that definition, each boundary tested on its own, on the
+// seasonal node of tabSeasonLaw, whose climate changes every month, and on
+// one whose months' factors are made equal but for two months' (its kinks
+// only where those months begin and end: four a year), over spans from
+// before deployment to decades, with ends on and off the boundaries.
+func TestKinksAgainstDefinition(t *testing.T) {
+	l := tabSeasonLaw(t)
+	flat := *l.n
+	for i := range flat.floorRate {
+		flat.floorRate[i], flat.sdFactor[i] = 1, 1
+	}
+	flat.floorRate[4], flat.sdFactor[9] = 2, 3
+	spans := [][2]float64{{0, Year}, {-Year, 2 * Year}, {3 * Month, 3 * Month}, {3 * Month, 4 * Month},
+		{math.Nextafter(3*Month, 0), math.Nextafter(4*Month, 5*Month)}, {0.37 * Year, 23.9 * Year}, {Month / 2, 150 * Year}}
+	for name, n := range map[string]*node{"seasonal": l.n, "two changes a year": &flat} {
+		for _, sp := range spans {
+			lo, hi := sp[0], sp[1]
+			var want []float64
+			if hi > lo && (hi-lo)/Month <= maxKinks {
+				for m := 1; float64(m)*Month < hi; m++ {
+					x := float64(m) * Month
+					i, j := (m-1)%12, m%12
+					if x > lo && (n.floorRate[i] != n.floorRate[j] || n.sdFactor[i] != n.sdFactor[j]) {
+						want = append(want, x)
+					}
+				}
+			}
+			assert.Equal(t, want, n.kinks(lo, hi), "%s: kinks in (%g, %g) y", name, lo/Year, hi/Year)
+		}
+	}
+	assert.Len(t, flat.kinks(0, 10*Year), 40, "four a year for ten years")
+}

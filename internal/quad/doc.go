@@ -43,12 +43,13 @@
 // 1<<16 breakpoints (MaxBreaks; their first pass takes at most 983 025
 // evaluations); at most
 // 1<<16 components of a vector integrand (MaxDim). The workspace of one
-// call is a panel slice (40 bytes a panel, plus 8 bytes a panel and
-// component for the values, plus 120 bytes a panel for Partition's node
-// values), a heap of panel indices (4 bytes a panel) and 19 float64 (11
-// with GK7) a component of scratch, allocated once per call (room for the
-// first pass's panels, an eighth more and sixteen, to start) and grown by
-// doubling; nothing is kept between calls, so every function is
+// call is a panel slice (40 bytes a panel, the heap of panel indices in
+// its padding, plus 8 bytes a panel and component for the values, plus
+// 120 bytes a panel for Partition's node values) and 19 float64 (11 with
+// GK7) a component of scratch, allocated once per call (room for the
+// first pass's panels, an eighth more and four, to start; the values
+// share the scratch's allocation) and grown by doubling; nothing is kept
+// between calls, so every function is
 // safe for concurrent use and deterministic: the same call gives the same
 // bits whatever ran before.
 //

@@ -19,8 +19,14 @@ type panel struct {
 	a, b   float64
 	err    float64 // max over components of |K − G| plus rounding (apply)
 	anchor float64 // the finite end an infinite piece is mapped from
-	kind   int8    // mapIdentity, mapRight, mapLeft
-	final  bool    // too narrow to bisect
+	// heap is slot k of the driver's heap when this is pans[k] (k <
+	// nheap): the index of a bisectable panel, not this one's. It lives
+	// in the padding after kind and final, so the heap takes no memory
+	// of its own (the heap never holds more entries than there are
+	// panels); it moves with the slot, never with the panel.
+	heap  int32
+	kind  int8 // mapIdentity, mapRight, mapLeft
+	final bool // too narrow to bisect
 }
 
 // driver is the workspace of one integration; it lives for one call.
@@ -30,7 +36,7 @@ type driver struct {
 	dim    int
 	pans   []panel
 	vals   []float64 // dim values per panel
-	heap   []int32   // indices of bisectable panels, largest err first
+	nheap  int       // entries in the heap (pans[:nheap].heap): indices of bisectable panels, largest err first
 	y      []float64 // integrand output (vector)
 	kacc   []float64 // Kronrod accumulator
 	gacc   []float64 // Gauss accumulator
@@ -191,8 +197,8 @@ func (d *driver) apply(i int32, val []float64) bool {
 // eps is the unit roundoff of float64, 2^−52.
 const eps = 0x1p-52
 
-// heap operations on d.heap (max-heap on pans[i].err; ties by index, so
-// the order, and so the result, is deterministic).
+// heap operations on pans[:nheap].heap (max-heap on pans[i].err; ties by
+// index, so the order, and so the result, is deterministic).
 func (d *driver) less(i, j int32) bool {
 	ei, ej := d.pans[i].err, d.pans[j].err
 	if ei != ej {
@@ -201,37 +207,41 @@ func (d *driver) less(i, j int32) bool {
 	return i < j
 }
 
+// push files panel i (nheap < len(pans): there is a slot for it).
 func (d *driver) push(i int32) {
-	d.heap = append(d.heap, i)
-	k := len(d.heap) - 1
+	h := d.pans
+	k := d.nheap
+	d.nheap++
+	h[k].heap = i
 	for k > 0 {
 		p := (k - 1) / 2
-		if !d.less(d.heap[k], d.heap[p]) {
+		if !d.less(h[k].heap, h[p].heap) {
 			break
 		}
-		d.heap[k], d.heap[p] = d.heap[p], d.heap[k]
+		h[k].heap, h[p].heap = h[p].heap, h[k].heap
 		k = p
 	}
 }
 
 func (d *driver) pop() int32 {
-	top := d.heap[0]
-	n := len(d.heap) - 1
-	d.heap[0] = d.heap[n]
-	d.heap = d.heap[:n]
+	h := d.pans
+	top := h[0].heap
+	n := d.nheap - 1
+	h[0].heap = h[n].heap
+	d.nheap = n
 	k := 0
 	for {
 		l, r, m := 2*k+1, 2*k+2, k
-		if l < n && d.less(d.heap[l], d.heap[m]) {
+		if l < n && d.less(h[l].heap, h[m].heap) {
 			m = l
 		}
-		if r < n && d.less(d.heap[r], d.heap[m]) {
+		if r < n && d.less(h[r].heap, h[m].heap) {
 			m = r
 		}
 		if m == k {
 			break
 		}
-		d.heap[k], d.heap[m] = d.heap[m], d.heap[k]
+		h[k].heap, h[m].heap = h[m].heap, h[k].heap
 		k = m
 	}
 	return top
@@ -318,18 +328,21 @@ func (d *driver) run(fn string, dst []float64, pts []float64, opt Options) (VecR
 	d.dim = len(dst)
 	d.nodes, d.wk, d.wg, d.m = ruleOf(opt.Rule)
 	np := 2*d.m - 1 // evaluations a panel
-	// Room for the first pass's panels, an eighth more and sixteen (most
-	// calls bisect a few panels, if any: the fleet demo's 1344 Adaptive
-	// calls end with two or three panels, its BreaksVec calls on ~300
-	// pieces with at most 5 % more), grown by doubling beyond.
-	n := len(pts) - 1 + (len(pts)-1)/8 + 16
+	// Room for the first pass's panels, an eighth more and four (most
+	// calls bisect a few panels, if any: the fleet demo's 276 Adaptive
+	// calls end with two or three panels, its BreaksVec calls on one or
+	// two pieces with 4 to 74), grown by doubling beyond. The scratch and
+	// the panels' values share one allocation (the values move out of it
+	// when they outgrow it).
+	n := len(pts) - 1 + (len(pts)-1)/8 + 4
 	if c := opt.MaxEvals/np + len(pts); c < n {
 		n = c
 	}
 	d.pans = make([]panel, 0, n)
-	d.vals = make([]float64, 0, n*d.dim)
-	d.heap = make([]int32, 0, n)
-	scratch := make([]float64, (4+np)*d.dim)
+	ns := (4 + np) * d.dim
+	floats := make([]float64, ns, ns+n*d.dim)
+	scratch := floats[:ns:ns]
+	d.vals = floats[ns:ns]
 	d.y, d.kacc, d.gacc, d.absacc = scratch[:d.dim], scratch[d.dim:2*d.dim], scratch[2*d.dim:3*d.dim], scratch[3*d.dim:4*d.dim]
 	d.fvals = scratch[4*d.dim:]
 
@@ -367,7 +380,7 @@ func (d *driver) run(fn string, dst []float64, pts []float64, opt Options) (VecR
 				break
 			}
 		}
-		if len(d.heap) == 0 {
+		if d.nheap == 0 {
 			errSum = d.totals(dst)
 			res.Error, res.Evals = errSum, d.evals
 			return res, fmt.Errorf("quad.%s: error %.3g above the target %.3g: %w", fn, errSum, target(opt, dst), ErrResolution)
@@ -385,8 +398,9 @@ func (d *driver) run(fn string, dst []float64, pts []float64, opt Options) (VecR
 			dst[j] -= old[j]
 		}
 		errSum -= p.err
-		// the left half replaces the panel in place, the right is appended
-		left := panel{a: p.a, b: m, anchor: p.anchor, kind: p.kind}
+		// the left half replaces the panel in place (keeping the heap
+		// slot the place holds), the right is appended
+		left := panel{a: p.a, b: m, anchor: p.anchor, kind: p.kind, heap: p.heap}
 		d.pans[i] = left
 		if !d.apply(i, old) {
 			finite = false

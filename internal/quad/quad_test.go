@@ -474,17 +474,17 @@ func TestDeterministic(t *testing.T) {
 	}
 }
 
-// TestAllocations: one call allocates a small workspace (panels, heap,
-// values, scratch), not one per panel: four allocations while the panels
-// fit the first capacity (17 for one piece; e^x takes one panel), and
-// three more (panels, heap, values) per doubling beyond (√x takes 41
-// panels: two doublings).
+// TestAllocations: one call allocates a small workspace (the panels, with
+// the heap in them; the scratch with the values), not one per panel: two
+// allocations while the panels fit the first capacity (5 for one piece;
+// e^x takes one panel), and two more (panels, values) per growth beyond
+// (√x takes 41 panels: append grows them three times here, 7 in all).
 func TestAllocations(t *testing.T) {
 	n := testing.AllocsPerRun(20, func() { _, _ = Adaptive(math.Exp, 0, 1, Options{}) })
-	assert.LessOrEqual(t, n, 4.0)
+	assert.LessOrEqual(t, n, 2.0)
 	f := func(x float64) float64 { return math.Sqrt(x) }
 	n = testing.AllocsPerRun(20, func() { _, _ = Adaptive(f, 0, 1, Options{}) })
-	assert.LessOrEqual(t, n, 10.0)
+	assert.LessOrEqual(t, n, 8.0)
 }
 
 // TestPartition: the panels tile the interval, carry f at exactly the

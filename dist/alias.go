@@ -17,11 +17,11 @@ type AliasSampler struct {
 
 // NewAliasSampler prepares constant-time sampling from d.
 func NewAliasSampler(d Discrete) AliasSampler {
-	n := len(d.values)
-	s := AliasSampler{values: append([]float64(nil), d.values...), prob: make([]float64, n), alias: make([]int, n)}
+	n := d.Len()
+	s := AliasSampler{values: append([]float64(nil), d.values()...), prob: make([]float64, n), alias: make([]int, n)}
 	scaled := make([]float64, n)
 	var small, large []int
-	for i, p := range d.probs {
+	for i, p := range d.probs() {
 		scaled[i] = p * float64(n)
 		if scaled[i] < 1 {
 			small = append(small, i)

@@ -35,7 +35,7 @@ type axisAdder func(h float64, k0 int, out []complex128)
 // discreteAxis returns the axis adder of a finite discrete law and the
 // largest |value| of its atoms.
 func discreteAxis(d Discrete) (axisAdder, float64) {
-	vs, ps := d.values, d.probs
+	vs, ps := d.values(), d.probs()
 	var vmax float64
 	for _, v := range vs {
 		vmax = max(vmax, math.Abs(v))

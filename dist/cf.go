@@ -213,9 +213,9 @@ func transformOf(l Law) (transform, bool) {
 	case Uniform:
 		return uniformTransform(b.lo, b.hi), true
 	case Discrete:
-		return valuesTransform(b.values, b.probs), true
+		return valuesTransform(b.values(), b.probs()), true
 	case latticeDiscrete:
-		return valuesTransform(b.values, b.probs), true
+		return valuesTransform(b.values(), b.probs()), true
 	case LogNormal:
 		return logNormalTransform(b.mu, b.sigma), true
 	case truncated:

@@ -25,11 +25,37 @@ const ProbSumTolerance = 1e-12
 // no atoms, its numerical methods (Support included) return NaN and CF
 // NaN + NaN·i; none panics.
 type Discrete struct {
-	values []float64 // sorted, distinct beyond AtomMergeTolerance
-	probs  []float64 // > 0
-	below  []float64 // below[i] = Σ_{j<=i} p_j
-	above  []float64 // above[i] = Σ_{j>i} p_j
-	total  float64   // the compensated Σ p_i (1 to rounding): weighted divides by it
+	// cells holds the four tables of n entries each, one after the
+	// other (read through values, probs, below and above): one slice
+	// header, not four, so that a Discrete held in a Law interface
+	// takes 32 bytes, not 112.
+	cells []float64
+	total float64 // the compensated Σ p_i (1 to rounding): weighted divides by it
+}
+
+// values returns the atoms' values: sorted, distinct beyond
+// AtomMergeTolerance.
+func (d Discrete) values() []float64 {
+	n := len(d.cells) / 4
+	return d.cells[:n:n]
+}
+
+// probs returns the atoms' probabilities (> 0).
+func (d Discrete) probs() []float64 {
+	n := len(d.cells) / 4
+	return d.cells[n : 2*n : 2*n]
+}
+
+// below returns the partial sums below[i] = Σ_{j<=i} p_j.
+func (d Discrete) below() []float64 {
+	n := len(d.cells) / 4
+	return d.cells[2*n : 3*n : 3*n]
+}
+
+// above returns the partial sums above[i] = Σ_{j>i} p_j.
+func (d Discrete) above() []float64 {
+	n := len(d.cells) / 4
+	return d.cells[3*n : 4*n : 4*n]
 }
 
 // MaxDiscreteAtoms is the largest number of values NewDiscrete takes
@@ -102,34 +128,29 @@ func MustPointMass(v float64) Discrete {
 func discreteFromAtoms(atoms []Atom) Discrete {
 	merged := mergeAtoms(atoms)
 	n := len(merged)
-	cells := make([]float64, 4*n) // the four tables' one backing array
-	d := Discrete{
-		values: cells[:n:n],
-		probs:  cells[n : 2*n : 2*n],
-		below:  cells[2*n : 3*n : 3*n],
-		above:  cells[3*n : 4*n : 4*n],
-	}
+	d := Discrete{cells: make([]float64, 4*n)} // the four tables' one backing array
+	values, probs, below, above := d.values(), d.probs(), d.below(), d.above()
 	var total compSum
 	for _, a := range merged {
 		total.add(a.Mass)
 	}
 	for i, a := range merged {
-		d.values[i] = a.Value
-		d.probs[i] = a.Mass / total.value()
+		values[i] = a.Value
+		probs[i] = a.Mass / total.value()
 	}
 	var s compSum
 	for i := 0; i < n; i++ {
-		s.add(d.probs[i])
-		d.below[i] = min(s.value(), 1)
+		s.add(probs[i])
+		below[i] = min(s.value(), 1)
 	}
 	d.total = s.value()
 	if n > 0 {
-		d.below[n-1] = 1 // the masses are normalised: no rounding short of 1 at the top
+		below[n-1] = 1 // the masses are normalised: no rounding short of 1 at the top
 	}
 	s = compSum{}
 	for i := n - 1; i >= 0; i-- {
-		d.above[i] = min(s.value(), 1)
-		s.add(d.probs[i])
+		above[i] = min(s.value(), 1)
+		s.add(probs[i])
 	}
 	return d
 }
@@ -141,162 +162,174 @@ func discreteFromAtoms(atoms []Atom) Discrete {
 // rounded, add to 1 - 2 ulp (ten atoms of 0.1, say; issue 13). The zero
 // Discrete gives NaN.
 func (d Discrete) weighted(g func(v float64) float64) float64 {
-	if len(d.values) == 0 {
+	vs, ps := d.values(), d.probs()
+	if len(vs) == 0 {
 		return math.NaN()
 	}
 	var s compSum
-	for i, v := range d.values {
-		s.add(d.probs[i] * g(v))
+	for i, v := range vs {
+		s.add(ps[i] * g(v))
 	}
 	return min(1, s.value()/d.total)
 }
 
 // Len returns the number of atoms.
-func (d Discrete) Len() int { return len(d.values) }
+func (d Discrete) Len() int { return len(d.cells) / 4 }
 
 // Atoms lists the atoms, sorted by value.
 func (d Discrete) Atoms() []Atom {
-	out := make([]Atom, len(d.values))
-	for i := range d.values {
-		out[i] = Atom{Value: d.values[i], Mass: d.probs[i]}
+	vs, ps := d.values(), d.probs()
+	out := make([]Atom, len(vs))
+	for i, v := range vs {
+		out[i] = Atom{Value: v, Mass: ps[i]}
 	}
 	return out
 }
 
-// index returns the number of values <= x.
-func (d Discrete) index(x float64) int {
-	return sort.Search(len(d.values), func(i int) bool { return d.values[i] > x })
+// atomIndex returns the number of the sorted values vs that are <= x.
+func atomIndex(vs []float64, x float64) int {
+	return sort.Search(len(vs), func(i int) bool { return vs[i] > x })
 }
 
 // CDF returns Σ_{v_i <= x} p_i.
 func (d Discrete) CDF(x float64) float64 {
-	if math.IsNaN(x) || len(d.values) == 0 {
+	vs := d.values()
+	if math.IsNaN(x) || len(vs) == 0 {
 		return math.NaN()
 	}
-	i := d.index(x)
+	i := atomIndex(vs, x)
 	if i == 0 {
 		return 0
 	}
-	return d.below[i-1]
+	return d.below()[i-1]
 }
 
 // Survival returns Σ_{v_i > x} p_i, summed from the top.
 func (d Discrete) Survival(x float64) float64 {
-	if math.IsNaN(x) || len(d.values) == 0 {
+	vs := d.values()
+	if math.IsNaN(x) || len(vs) == 0 {
 		return math.NaN()
 	}
-	i := d.index(x)
+	i := atomIndex(vs, x)
 	if i == 0 {
 		return 1
 	}
-	return d.above[i-1]
+	return d.above()[i-1]
 }
 
 // Quantile returns the smallest v_i with CDF(v_i) >= p, and the largest
 // value for p = 1 (even when atoms too light to move the partial sums
 // off 1 lie above the first sum that rounds to 1).
 func (d Discrete) Quantile(p float64) float64 {
-	if !isProb(p) || len(d.values) == 0 {
+	vs, below := d.values(), d.below()
+	if !isProb(p) || len(vs) == 0 {
 		return math.NaN()
 	}
 	if p == 1 {
-		return d.values[len(d.values)-1]
+		return vs[len(vs)-1]
 	}
-	i := sort.Search(len(d.values), func(i int) bool { return d.below[i] >= p })
-	if i == len(d.values) {
+	i := sort.Search(len(vs), func(i int) bool { return below[i] >= p })
+	if i == len(vs) {
 		i--
 	}
-	return d.values[i]
+	return vs[i]
 }
 
 // UpperQuantile returns the smallest v_i with Survival(v_i) <= q.
 func (d Discrete) UpperQuantile(q float64) float64 {
-	if !isProb(q) || len(d.values) == 0 {
+	vs, above := d.values(), d.above()
+	if !isProb(q) || len(vs) == 0 {
 		return math.NaN()
 	}
-	i := sort.Search(len(d.values), func(i int) bool { return d.above[i] <= q })
-	if i == len(d.values) {
+	i := sort.Search(len(vs), func(i int) bool { return above[i] <= q })
+	if i == len(vs) {
 		i--
 	}
-	return d.values[i]
+	return vs[i]
 }
 
 // Mean returns Σ p_i v_i.
 func (d Discrete) Mean() float64 {
-	if len(d.values) == 0 {
+	vs, ps := d.values(), d.probs()
+	if len(vs) == 0 {
 		return math.NaN()
 	}
 	m := 0.0
-	for i, v := range d.values {
-		m += d.probs[i] * v
+	for i, v := range vs {
+		m += ps[i] * v
 	}
 	return m
 }
 
 // Variance returns Σ p_i (v_i - mean)².
 func (d Discrete) Variance() float64 {
-	if len(d.values) == 0 {
+	vs, ps := d.values(), d.probs()
+	if len(vs) == 0 {
 		return math.NaN()
 	}
 	m := d.Mean()
 	s := 0.0
-	for i, v := range d.values {
-		s += d.probs[i] * (v - m) * (v - m)
+	for i, v := range vs {
+		s += ps[i] * (v - m) * (v - m)
 	}
 	return s
 }
 
 // Support returns [min v_i, max v_i].
 func (d Discrete) Support() (lo, hi float64) {
-	if len(d.values) == 0 {
+	vs := d.values()
+	if len(vs) == 0 {
 		return math.NaN(), math.NaN()
 	}
-	return d.values[0], d.values[len(d.values)-1]
+	return vs[0], vs[len(vs)-1]
 }
 
 // Rand draws a value using r by binary search on the cumulative sums
 // (O(log n)); for many draws from a large law prepare an AliasSampler.
 func (d Discrete) Rand(r *rand.Rand) float64 {
-	switch len(d.values) {
+	vs, below := d.values(), d.below()
+	switch len(vs) {
 	case 0:
 		return math.NaN()
 	case 1:
-		return d.values[0]
+		return vs[0]
 	}
 	u := r.Float64()
-	i := sort.Search(len(d.values), func(i int) bool { return d.below[i] > u })
-	if i == len(d.values) {
+	i := sort.Search(len(vs), func(i int) bool { return below[i] > u })
+	if i == len(vs) {
 		i--
 	}
-	return d.values[i]
+	return vs[i]
 }
 
 // CF returns Σ p_k exp(i·t·v_k).
 func (d Discrete) CF(t float64) complex128 {
-	if len(d.values) == 0 {
+	vs, ps := d.values(), d.probs()
+	if len(vs) == 0 {
 		return complex(math.NaN(), math.NaN())
 	}
 	var re, im float64
-	for i, v := range d.values {
+	for i, v := range vs {
 		s, c := math.Sincos(t * v)
-		re += d.probs[i] * c
-		im += d.probs[i] * s
+		re += ps[i] * c
+		im += ps[i] * s
 	}
 	return complex(re, im)
 }
 
 // CGF returns log Σ p_k exp(s·v_k), computed stably.
 func (d Discrete) CGF(s float64) float64 {
-	if len(d.values) == 0 {
+	vs, ps := d.values(), d.probs()
+	if len(vs) == 0 {
 		return math.NaN()
 	}
 	mx := math.Inf(-1)
-	for _, v := range d.values {
+	for _, v := range vs {
 		mx = max(mx, s*v)
 	}
 	sum := 0.0
-	for i, v := range d.values {
-		sum += d.probs[i] * math.Exp(s*v-mx)
+	for i, v := range vs {
+		sum += ps[i] * math.Exp(s*v-mx)
 	}
 	return mx + math.Log(sum)
 }
@@ -304,15 +337,16 @@ func (d Discrete) CGF(s float64) float64 {
 // String prints the law compactly: "PointMass(v)" for one atom, the atoms for
 // up to four, and the mean, standard deviation and 5–95 % range beyond that.
 func (d Discrete) String() string {
-	switch n := len(d.values); {
+	vs, ps := d.values(), d.probs()
+	switch n := len(vs); {
 	case n == 0:
 		return "zero Discrete"
 	case n == 1:
-		return fmt.Sprintf("PointMass(%.6g)", d.values[0])
+		return fmt.Sprintf("PointMass(%.6g)", vs[0])
 	case n <= 4:
 		parts := make([]string, n)
-		for i := range d.values {
-			parts[i] = fmt.Sprintf("%.6g:%.4g", d.values[i], d.probs[i])
+		for i, v := range vs {
+			parts[i] = fmt.Sprintf("%.6g:%.4g", v, ps[i])
 		}
 		return "Discrete{" + strings.Join(parts, ", ") + "}"
 	default:

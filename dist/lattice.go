@@ -50,7 +50,7 @@ const (
 // they lie on a common lattice (within latticeTol of the span), with
 // gcd(n_i) = 1.
 func latticeOf(d Discrete) (v0, delta float64, ns []int64, ok bool) {
-	vs := d.values
+	vs := d.values()
 	if len(vs) < 2 {
 		return 0, 0, nil, false
 	}
@@ -107,16 +107,17 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 		return nil, false, nil // the exact convolution has few atoms
 	}
 	// integer law: atoms at n_i - μ (centred), masses p_i
+	ps := d.probs()
 	var mu float64
 	for i, n := range ns {
-		mu += d.probs[i] * float64(n)
+		mu += ps[i] * float64(n)
 	}
 	var v float64
 	cat := make([]Atom, len(ns))
 	for i, n := range ns {
 		c := float64(n) - mu
-		v += d.probs[i] * c * c
-		cat[i] = Atom{Value: c, Mass: d.probs[i]}
+		v += ps[i] * c * c
+		cat[i] = Atom{Value: c, Mass: ps[i]}
 	}
 	tr := atomsTransform(cat)
 	vmax := max(mu, float64(top)-mu)
@@ -144,7 +145,7 @@ func latticeSumIID(d Discrete, k int, minPoints float64) (Law, bool, error) {
 	// by a factor near 1, and the threshold is 1e-7 of the one below which
 	// a value is left out (exp(-45))
 	var sig []int
-	for l, a := range inv.Moduli(nil, ns, d.probs) {
+	for l, a := range inv.Moduli(nil, ns, ps) {
 		if a > 0 && fk*math.Log(a) >= -60 {
 			sig = append(sig, l)
 		}

@@ -81,8 +81,9 @@ func Mixture(weights []float64, laws []Law) (Law, error) {
 		atoms := make([]Atom, 0, n)
 		for i, l := range m.laws {
 			d := l.(Discrete) // its atoms, as Atoms lists them
-			for j, v := range d.values {
-				atoms = append(atoms, Atom{Value: v, Mass: d.probs[j] * m.weights[i]})
+			ps := d.probs()
+			for j, v := range d.values() {
+				atoms = append(atoms, Atom{Value: v, Mass: ps[j] * m.weights[i]})
 			}
 		}
 		return discreteFromAtoms(atoms), nil

@@ -257,7 +257,7 @@ func sumTerms(terms []Law) (Law, error) {
 		case len(disc) == 0:
 			return cont[0], nil
 		case d.Len() == 1:
-			return Affine(cont[0], 1, d.values[0])
+			return Affine(cont[0], 1, d.values()[0])
 		}
 		return newShiftMixture(d, cont[0]), nil
 	}
@@ -495,7 +495,7 @@ func (m shiftMixture) transform() (transform, bool) {
 	if !ok {
 		return transform{}, false
 	}
-	td := valuesTransform(m.d.values, m.d.probs)
+	td := valuesTransform(m.d.values(), m.d.probs())
 	return transform{
 		logm: func(s complex128) complex128 { return td.logm(s) + tc.logm(s) },
 		lo:   tc.lo, hi: tc.hi, err: tc.err,
@@ -516,8 +516,9 @@ func (m shiftMixtureDensity) Density(x float64) float64 {
 	}
 	f := m.c.(Densitied)
 	s := 0.0
-	for i, v := range m.d.values {
-		s += m.d.probs[i] * f.Density(x-v)
+	ps := m.d.probs()
+	for i, v := range m.d.values() {
+		s += ps[i] * f.Density(x-v)
 	}
 	return s
 }

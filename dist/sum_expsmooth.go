@@ -332,10 +332,11 @@ func (l expSmoothedDensity) Density(x float64) float64 {
 		return 0
 	}
 	f := 0.0
-	for i, v := range l.d.values {
+	ps := l.d.probs()
+	for i, v := range l.d.values() {
 		y := x - v
 		for j, r := range l.rates {
-			f += l.d.probs[i] * l.coef[j] * r * l.g(r, y)
+			f += ps[i] * l.coef[j] * r * l.g(r, y)
 		}
 	}
 	return max(0, f)

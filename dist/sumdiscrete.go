@@ -71,9 +71,10 @@ func denseSum(laws []Discrete) (Discrete, bool) {
 	shift := 0.0
 	var offs []float64
 	for _, d := range laws {
-		shift += d.values[0]
-		for _, v := range d.values[1:] {
-			offs = append(offs, v-d.values[0])
+		vs := d.values()
+		shift += vs[0]
+		for _, v := range vs[1:] {
+			offs = append(offs, v-vs[0])
 		}
 	}
 	if len(offs) == 0 { // every law a point mass
@@ -90,19 +91,20 @@ func denseSum(laws []Discrete) (Discrete, bool) {
 	span := 0.0
 	bases := make([][]float64, len(laws))
 	for i, d := range laws {
-		top := math.Round((d.values[len(d.values)-1] - d.values[0]) / delta)
+		vs, ps := d.values(), d.probs()
+		top := math.Round((vs[len(vs)-1] - vs[0]) / delta)
 		span += top
 		if span+1 > MaxSumAtoms {
 			return Discrete{}, false
 		}
 		b := make([]float64, int(top)+1)
-		for j, v := range d.values {
-			q := (v - d.values[0]) / delta
+		for j, v := range vs {
+			q := (v - vs[0]) / delta
 			m := math.Round(q)
-			if math.Abs(q-m)*delta > latticeTol*max(delta, v-d.values[0]) {
+			if math.Abs(q-m)*delta > latticeTol*max(delta, v-vs[0]) {
 				return Discrete{}, false // (latticeOf checked the offsets against its own step)
 			}
-			b[int(m)] += d.probs[j]
+			b[int(m)] += ps[j]
 		}
 		bases[i] = b
 	}
@@ -139,10 +141,12 @@ func denseSum(laws []Discrete) (Discrete, bool) {
 func denseCheaper(laws []Discrete, delta float64) bool {
 	d0 := laws[0]
 	a := float64(d0.Len())
-	span := math.Round((d0.values[len(d0.values)-1] - d0.values[0]) / delta)
+	v0 := d0.values()
+	span := math.Round((v0[len(v0)-1] - v0[0]) / delta)
 	var dense, pairs float64
 	for _, d := range laws[1:] {
-		t := math.Round((d.values[len(d.values)-1] - d.values[0]) / delta)
+		vs := d.values()
+		t := math.Round((vs[len(vs)-1] - vs[0]) / delta)
 		n := float64(d.Len())
 		dense += a*(t+1) + span + t + 1
 		pairs += a * n * (1 + math.Log2(a*n))

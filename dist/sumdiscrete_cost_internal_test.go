@@ -47,8 +47,9 @@ func TestDenseCheaperChoice(t *testing.T) {
 func offsetsOf(laws []Discrete) []float64 {
 	var offs []float64
 	for _, d := range laws {
-		for _, v := range d.values[1:] {
-			offs = append(offs, v-d.values[0])
+		vs := d.values()
+		for _, v := range vs[1:] {
+			offs = append(offs, v-vs[0])
 		}
 	}
 	return offs

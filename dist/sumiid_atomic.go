@@ -43,7 +43,7 @@ type atomicSums struct {
 }
 
 func newAtomicSums(d Discrete) atomicSums {
-	a := atomicSums{d: d, v: d.values, p: d.probs, mu: d.Mean(), sd: math.Sqrt(d.Variance())}
+	a := atomicSums{d: d, v: d.values(), p: d.probs(), mu: d.Mean(), sd: math.Sqrt(d.Variance())}
 	return a
 }
 

@@ -16,8 +16,9 @@ import (
 // masses that underflow to 0 are dropped, as mergeAtoms drops them.
 func latticeList(d Discrete, v0, delta float64, ns []int64, k int) Discrete {
 	base := make([]float64, ns[len(ns)-1]+1)
+	ps := d.probs()
 	for i, n := range ns {
-		base[n] += d.probs[i]
+		base[n] += ps[i]
 	}
 	kf := float64(k)
 	shift := kf * v0

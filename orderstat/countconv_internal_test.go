@@ -178,3 +178,56 @@ func TestSplitConvMatchesTransform(t *testing.T) {
 	t.Logf("%d of %d splits by the fast path", fast, cases)
 	assert.Greater(t, fast, 50)
 }
+
+// convolve (the whole count law by direct convolution, its memory two
+// arrays used in turn) against the exact convolution of the terms'
+// binomial masses in rational arithmetic (exactBinomMass, closed form):
+// every mass above 1e-290 within the stated relative error, for three
+// terms (the odd one carried through a round, into the array the next
+// round writes) and five, and with a term, Bin(100, 1/500), whose run
+// (all 101 values, down to 1e-270) outgrows its estimated width
+// (termWidth, 76), so that the arrays are allocated anew.
+func TestConvolveExact(t *testing.T) {
+	type term struct{ n, a, d int64 }
+	long := term{100, 1, 500}
+	p := float64(long.a) / float64(long.d)
+	require.Greater(t, long.n+1, int64(math.Ceil(termWidth(binom{n: float64(long.n), p: p, q: 1 - p}))), "the run outgrows its estimate")
+	for _, ts := range [][]term{
+		{{30, 1, 4}, {40, 1, 10}, {12, 5, 8}},
+		{{30, 1, 4}, long, {12, 5, 8}},
+		{{7, 1, 2}, {40, 1, 10}, long, {25, 3, 5}, {9, 7, 8}},
+	} {
+		var terms []binom
+		mass := []*big.Float{newExact().SetInt64(1)}
+		for _, tm := range ts {
+			q := float64(tm.a) / float64(tm.d)
+			terms = append(terms, binom{n: float64(tm.n), p: q, q: 1 - q})
+			next := make([]*big.Float, len(mass)+int(tm.n))
+			for j := range next {
+				next[j] = newExact()
+			}
+			for k := int64(0); k <= tm.n; k++ {
+				b := exactBinomMass(tm.n, k, tm.a, tm.d)
+				for i, m := range mass {
+					next[i+int(k)].Add(next[i+int(k)], newExact().Mul(m, b))
+				}
+			}
+			mass = next
+		}
+		cm := newCountModel(terms)
+		require.Len(t, cm.terms, len(ts))
+		lo, pmf, rel := cm.convolve()
+		checked := 0
+		for j, m := range mass {
+			want := ratFloat(m)
+			if want < 1e-290 {
+				continue
+			}
+			i := j - int(lo)
+			require.True(t, i >= 0 && i < len(pmf), "%d terms: P(C = %d) = %g missing", len(ts), j, want)
+			assert.LessOrEqual(t, testref.RelErr(pmf[i], want), rel, "%d terms: P(C = %d)", len(ts), j)
+			checked++
+		}
+		assert.Greater(t, checked, 80, "%d terms", len(ts))
+	}
+}

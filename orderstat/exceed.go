@@ -160,8 +160,9 @@ func newCount(fn string, terms []binom, total int64) (Count, error) {
 	if err != nil {
 		return Count{}, rangeErr(fn, err.Error())
 	}
+	// pmf is this call's own: the positive probabilities move down in it
 	vals := make([]float64, 0, len(pmf))
-	probs := make([]float64, 0, len(pmf))
+	probs := pmf[:0]
 	sum := 0.0
 	for i, p := range pmf {
 		if p > 0 {
@@ -218,7 +219,8 @@ func (c Count) String() string {
 }
 
 // pmfAll returns P(C - shift = lo + i) for the i where it does not
-// underflow, the method used and its relative error.
+// underflow (in memory of its own, the caller's to write), the method
+// used and its relative error.
 func (cm countModel) pmfAll() (lo float64, pmf []float64, method string, rel float64, err error) {
 	if w := 80*math.Sqrt(cm.variance) + 200; w > maxCountSupport {
 		return 0, nil, "", 0, fmt.Errorf("about %.3g probabilities exceed %d", w, maxCountSupport)
@@ -290,38 +292,68 @@ func binomPMF(t binom) (lo float64, pmf []float64, rel float64) {
 // not the number of terms times the whole width), dropping probabilities
 // below 1e-310 at the ends, and the relative error of every probability
 // kept (convRel).
+//
+// Its memory is two arrays of the terms' total width (termWidth, about
+// the number of values each run keeps), used in turn: the terms' runs
+// fill the first, each round's products (and the piece left over when
+// their number is odd, copied) the array the round's input is not in. A
+// product has one value fewer than its two pieces together, so a round's
+// output fits in the room its input took; an array is allocated anew only
+// where a run outgrew its estimate.
 func (cm countModel) convolve() (lo float64, pmf []float64, rel float64) {
 	type piece struct {
 		lo  float64
 		pmf []float64
 	}
 	ps := make([]piece, 0, len(cm.terms))
-	terms, w := 0.0, 0.0
+	width := 0
 	for _, t := range cm.terms {
-		l, b, r := binomPMF(t)
+		width += int(math.Ceil(termWidth(t)))
+	}
+	buf := make([]float64, 2*width)
+	in, out := buf[:width:width], buf[width:]
+	terms, w, off := 0.0, 0.0, 0
+	for _, t := range cm.terms {
+		wt := int(math.Ceil(termWidth(t)))
+		l, b, r := binomRun(t, 0, t.n, runCut, in[off:off:off+wt])
+		off += wt
 		terms += r
 		w += float64(len(b))
 		ps = append(ps, piece{l, b})
 	}
 	for len(ps) > 1 {
+		total := 0
+		for _, p := range ps {
+			total += len(p.pmf)
+		}
+		if total > len(out) {
+			out = make([]float64, total)
+		}
+		room := out
 		next := ps[:0] // written at i/2 while read at i and i+1
 		for i := 0; i < len(ps); i += 2 {
 			if i+1 == len(ps) {
-				next = append(next, ps[i])
+				c := room[:len(ps[i].pmf)]
+				copy(c, ps[i].pmf)
+				next = append(next, piece{ps[i].lo, c})
 				break
 			}
 			a, b := ps[i], ps[i+1]
-			out := lattice.Convolve(a.pmf, b.pmf)
+			c := room[:len(a.pmf)+len(b.pmf)-1]
+			room = room[len(c):]
+			clear(c)
+			lattice.ConvolveAdd(c, a.pmf, b.pmf, 0)
 			// Trim the ends.
-			s, e := 0, len(out)
-			for s < e-1 && out[s] < 1e-310 {
+			s, e := 0, len(c)
+			for s < e-1 && c[s] < 1e-310 {
 				s++
 			}
-			for e > s+1 && out[e-1] < 1e-310 {
+			for e > s+1 && c[e-1] < 1e-310 {
 				e--
 			}
-			next = append(next, piece{a.lo + b.lo + float64(s), out[s:e]})
+			next = append(next, piece{a.lo + b.lo + float64(s), c[s:e]})
 		}
+		in, out = out, in // the round's input is read: its array takes the next output
 		ps = next
 	}
 	return ps[0].lo, ps[0].pmf, convRel(len(cm.terms), terms, w)

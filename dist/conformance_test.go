@@ -146,8 +146,14 @@ func exponentialTailReference(rate float64) disttest.Option {
 // binomialLaw returns the Binomial(n, p) law as a Discrete, with the
 // probabilities from log-gamma functions.
 func binomialLaw(n int, p float64) dist.Discrete {
-	values := make([]float64, n+1)
-	probs := make([]float64, n+1)
+	return dist.MustDiscrete(binomialMasses(n, p))
+}
+
+// binomialMasses returns the values 0, …, n and the masses binomialLaw
+// builds its law from.
+func binomialMasses(n int, p float64) (values, probs []float64) {
+	values = make([]float64, n+1)
+	probs = make([]float64, n+1)
 	lgN, _ := math.Lgamma(float64(n + 1))
 	for k := 0; k <= n; k++ {
 		lgK, _ := math.Lgamma(float64(k + 1))
@@ -155,7 +161,7 @@ func binomialLaw(n int, p float64) dist.Discrete {
 		values[k] = float64(k)
 		probs[k] = math.Exp(lgN - lgK - lgNK + float64(k)*math.Log(p) + float64(n-k)*math.Log1p(-p))
 	}
-	return dist.MustDiscrete(values, probs)
+	return values, probs
 }
 
 // assertParamError checks that err reports a bad parameter: it wraps

@@ -80,7 +80,6 @@ func NewDiscrete(values, probs []float64) (Discrete, error) {
 	if len(probs) != len(values) {
 		return Discrete{}, paramErr(fn, "probs", fmt.Sprintf("len %d", len(probs)), fmt.Sprintf("must have the length of values (%d)", len(values)))
 	}
-	atoms := make([]Atom, 0, len(values))
 	for i, v := range values {
 		if !finite(v) {
 			return Discrete{}, paramErr(fn, fmt.Sprintf("values[%d]", i), v, "must be finite")
@@ -89,12 +88,44 @@ func NewDiscrete(values, probs []float64) (Discrete, error) {
 	if _, err := probSum(fn, "probs", probs); err != nil {
 		return Discrete{}, err
 	}
+	if n, ok := apart(values, probs); ok {
+		// already sorted and apart: the tables straight from the inputs
+		d := Discrete{cells: make([]float64, 4*n)}
+		vs, ps := d.values(), d.probs()
+		k := 0
+		for i, v := range values {
+			if p := probs[i]; p > 0 {
+				vs[k], ps[k] = v, p
+				k++
+			}
+		}
+		return d.normalise(), nil
+	}
+	atoms := make([]Atom, 0, len(values))
 	for i, v := range values {
 		if p := probs[i]; p > 0 {
 			atoms = append(atoms, Atom{Value: v, Mass: p})
 		}
 	}
 	return discreteFromAtoms(atoms), nil
+}
+
+// apart reports whether the values with positive probability increase
+// strictly, each pair of neighbours beyond AtomMergeTolerance (so that
+// mergeAtoms would neither move nor merge them), and counts them.
+func apart(values, probs []float64) (n int, ok bool) {
+	prev := 0.0
+	for i, v := range values {
+		if !(probs[i] > 0) {
+			continue
+		}
+		if n > 0 && !(v > prev && v-prev > AtomMergeTolerance*max(math.Abs(v), math.Abs(prev))) {
+			return 0, false
+		}
+		prev = v
+		n++
+	}
+	return n, true
 }
 
 // MustDiscrete is NewDiscrete that panics on bad input; for examples and tests.
@@ -111,7 +142,9 @@ func NewPointMass(v float64) (Discrete, error) {
 	if !finite(v) {
 		return Discrete{}, paramErr("NewPointMass", "v", v, "must be finite")
 	}
-	return discreteFromAtoms([]Atom{{Value: v, Mass: 1}}), nil
+	d := Discrete{cells: make([]float64, 4)}
+	d.values()[0], d.probs()[0] = v, 1
+	return d.normalise(), nil
 }
 
 // MustPointMass is NewPointMass that panics on bad input; for examples and tests.
@@ -127,16 +160,26 @@ func MustPointMass(v float64) Discrete {
 // atoms with positive, finite masses and finite values. It owns atoms.
 func discreteFromAtoms(atoms []Atom) Discrete {
 	merged := mergeAtoms(atoms)
-	n := len(merged)
-	d := Discrete{cells: make([]float64, 4*n)} // the four tables' one backing array
-	values, probs, below, above := d.values(), d.probs(), d.below(), d.above()
-	var total compSum
-	for _, a := range merged {
-		total.add(a.Mass)
-	}
+	d := Discrete{cells: make([]float64, 4*len(merged))} // the four tables' one backing array
+	values, probs := d.values(), d.probs()
 	for i, a := range merged {
-		values[i] = a.Value
-		probs[i] = a.Mass / total.value()
+		values[i], probs[i] = a.Value, a.Mass
+	}
+	return d.normalise()
+}
+
+// normalise divides the masses in d's probs table by their compensated
+// sum and fills its below and above tables; d's values table is set,
+// sorted and apart, and its masses are positive and finite.
+func (d Discrete) normalise() Discrete {
+	n := d.Len()
+	probs, below, above := d.probs(), d.below(), d.above()
+	var total compSum
+	for _, m := range probs {
+		total.add(m)
+	}
+	for i, m := range probs {
+		probs[i] = m / total.value()
 	}
 	var s compSum
 	for i := 0; i < n; i++ {

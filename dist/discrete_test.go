@@ -74,6 +74,38 @@ func TestDiscreteBinomialAgainstBeta(t *testing.T) {
 	assert.InDelta(t, n*p*(1-p), d.Variance(), 1e-11)
 }
 
+// TestDiscreteInputOrder: NewDiscrete takes sorted values with distinct
+// neighbours straight into its tables and sorts and merges any others;
+// Binomial(60, 0.3)'s masses given in order, reversed and with a zero
+// mass between every two give the same atoms bit for bit, and each law's
+// tails match testref.BinomialTails (Loader 2000 masses, checked there
+// against exact big-integer sums) as in TestDiscreteBinomialAgainstBeta.
+func TestDiscreteInputOrder(t *testing.T) {
+	const n, p = 60, 0.3
+	vs, ps := binomialMasses(n, p)
+	sorted := dist.MustDiscrete(vs, ps).Atoms()
+	var rvs, rps, zvs, zps []float64
+	for i, v := range vs {
+		j := len(vs) - 1 - i
+		rvs, rps = append(rvs, vs[j]), append(rps, ps[j])
+		zvs, zps = append(zvs, v, v+0.5), append(zps, ps[i], 0)
+	}
+	for _, tc := range []struct {
+		name          string
+		values, probs []float64
+	}{{"sorted", vs, ps}, {"reversed", rvs, rps}, {"zero masses between", zvs, zps}} {
+		d, err := dist.NewDiscrete(tc.values, tc.probs)
+		require.NoError(t, err, tc.name)
+		assert.Equal(t, sorted, d.Atoms(), tc.name)
+		for _, k := range []int{0, 18, 45, 59} {
+			atMost, _ := testref.BinomialTails(n, k, p)
+			_, above := testref.BinomialTails(n, k+1, p)
+			assert.LessOrEqual(t, testref.RelErr(d.CDF(float64(k)), atMost), 1e-12, "%s: CDF(%d)", tc.name, k)
+			assert.LessOrEqual(t, testref.RelErr(d.Survival(float64(k)), above), 1e-11, "%s: Survival(%d)", tc.name, k)
+		}
+	}
+}
+
 // TestDiscreteMerging: values within dist.AtomMergeTolerance (relative)
 // merge into one atom at their mass-weighted mean; farther ones do not;
 // zero-probability values are dropped.

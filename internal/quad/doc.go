@@ -43,7 +43,7 @@
 // 1<<16 breakpoints (MaxBreaks; their first pass takes at most 983 025
 // evaluations); at most
 // 1<<16 components of a vector integrand (MaxDim). The workspace of one
-// call is a panel slice (40 bytes a panel, the heap of panel indices in
+// call is a panel slice (32 bytes a panel, the heap of panel indices in
 // its padding, plus 8 bytes a panel and component for the values, plus
 // 120 bytes a panel for Partition's node values) and 19 float64 (11 with
 // GK7) a component of scratch, allocated once per call (room for the

@@ -14,39 +14,43 @@ const (
 	mapLeft
 )
 
-// panel is one piece of the interval, in its own coordinate t ∈ [a, b].
+// panel is one piece of the interval, in its own coordinate t ∈ [a, b];
+// 32 bytes.
 type panel struct {
-	a, b   float64
-	err    float64 // max over components of |K − G| plus rounding (apply)
-	anchor float64 // the finite end an infinite piece is mapped from
+	a, b float64
+	err  float64 // max over components of |K − G| plus rounding (apply)
 	// heap is slot k of the driver's heap when this is pans[k] (k <
 	// nheap): the index of a bisectable panel, not this one's. It lives
 	// in the padding after kind and final, so the heap takes no memory
 	// of its own (the heap never holds more entries than there are
 	// panels); it moves with the slot, never with the panel.
 	heap  int32
-	kind  int8 // mapIdentity, mapRight, mapLeft
+	kind  int8 // mapIdentity, mapRight, mapLeft (its anchor is the driver's)
 	final bool // too narrow to bisect
 }
 
 // driver is the workspace of one integration; it lives for one call.
 type driver struct {
-	f      func(float64) float64
-	fv     func(float64, []float64)
-	dim    int
-	pans   []panel
-	vals   []float64 // dim values per panel
-	nheap  int       // entries in the heap (pans[:nheap].heap): indices of bisectable panels, largest err first
-	y      []float64 // integrand output (vector)
-	kacc   []float64 // Kronrod accumulator
-	gacc   []float64 // Gauss accumulator
-	absacc []float64 // Kronrod accumulator of |f|
-	fvals  []float64 // the rule's node values, left to right, dim each
-	keep   bool      // keep every panel's node values (Partition; dim 1)
-	kept   []float64 // 15 node values per panel when keep
-	evals  int
-	badX   float64
-	badSet bool
+	f     func(float64) float64
+	fv    func(float64, []float64)
+	dim   int
+	pans  []panel
+	vals  []float64 // dim values per panel
+	nheap int       // entries in the heap (pans[:nheap].heap): indices of bisectable panels, largest err first
+	// the finite ends the infinite pieces are mapped from: the first
+	// piece's right end (mapLeft) and the last piece's left end
+	// (mapRight); only the first piece may reach −Inf, the last +Inf
+	leftAnchor, rightAnchor float64
+	y                       []float64 // integrand output (vector)
+	kacc                    []float64 // Kronrod accumulator
+	gacc                    []float64 // Gauss accumulator
+	absacc                  []float64 // Kronrod accumulator of |f|
+	fvals                   []float64 // the rule's node values, left to right, dim each
+	keep                    bool      // keep every panel's node values (Partition; dim 1)
+	kept                    []float64 // 15 node values per panel when keep
+	evals                   int
+	badX                    float64
+	badSet                  bool
 	// the rule (gk15 or gk7): its positive half's nodes, largest first,
 	// ending with the centre (the first m), their Kronrod weights and the
 	// Gauss weights of the odd-indexed ones
@@ -57,20 +61,20 @@ type driver struct {
 
 // point returns x at t on a panel with the given map (the Jacobian of the
 // infinite maps, 1/t², is applied by eval).
-func point(kind int8, anchor, t float64) float64 {
+func (d *driver) point(kind int8, t float64) float64 {
 	switch kind {
 	case mapRight:
-		return anchor + (1-t)/t
+		return d.rightAnchor + (1-t)/t
 	case mapLeft:
-		return anchor - (1-t)/t
+		return d.leftAnchor - (1-t)/t
 	}
 	return t
 }
 
 // eval fills d.y with f at t (times the Jacobian) and reports whether all
 // values are finite.
-func (d *driver) eval(kind int8, anchor, t float64) bool {
-	x := point(kind, anchor, t)
+func (d *driver) eval(kind int8, t float64) bool {
+	x := d.point(kind, t)
 	d.evals++
 	ok := true
 	if d.f != nil {
@@ -148,7 +152,7 @@ func (d *driver) apply(i int32, val []float64) bool {
 					}
 				}
 			}
-		} else if !d.eval(p.kind, p.anchor, x) {
+		} else if !d.eval(p.kind, x) {
 			ok = false
 		}
 		wk := d.wk[i]
@@ -361,9 +365,11 @@ func (d *driver) run(fn string, dst []float64, pts []float64, opt Options) (VecR
 			}
 			continue
 		case math.IsInf(a, -1):
-			p = panel{a: 0, b: 1, anchor: b, kind: mapLeft}
+			d.leftAnchor = b
+			p = panel{a: 0, b: 1, kind: mapLeft}
 		case math.IsInf(b, 1):
-			p = panel{a: 0, b: 1, anchor: a, kind: mapRight}
+			d.rightAnchor = a
+			p = panel{a: 0, b: 1, kind: mapRight}
 		default:
 			p = panel{a: a, b: b}
 		}
@@ -400,7 +406,7 @@ func (d *driver) run(fn string, dst []float64, pts []float64, opt Options) (VecR
 		errSum -= p.err
 		// the left half replaces the panel in place (keeping the heap
 		// slot the place holds), the right is appended
-		left := panel{a: p.a, b: m, anchor: p.anchor, kind: p.kind, heap: p.heap}
+		left := panel{a: p.a, b: m, kind: p.kind, heap: p.heap}
 		d.pans[i] = left
 		if !d.apply(i, old) {
 			finite = false
@@ -408,7 +414,7 @@ func (d *driver) run(fn string, dst []float64, pts []float64, opt Options) (VecR
 		if !d.pans[i].final {
 			d.push(i)
 		}
-		if !d.add(panel{a: m, b: p.b, anchor: p.anchor, kind: p.kind}) {
+		if !d.add(panel{a: m, b: p.b, kind: p.kind}) {
 			finite = false
 		}
 		k := len(d.pans) - 1

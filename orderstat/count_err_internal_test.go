@@ -318,7 +318,7 @@ func TestKthOfGroupsMonteCarlo(t *testing.T) {
 		l, err := KthOfGroups(gs, k)
 		require.NoError(t, err)
 		s, _ := AsStatistic(l)
-		cm := s.c.countModel(l.Quantile(0.5), false)
+		cm := s.c.countModel(nil, l.Quantile(0.5), false)
 		_, _, _, conv := cm.splitConv(float64(k - 1))
 		assert.False(t, conv, "k=%d: the median by the transform", k)
 		acc := l.(dist.Estimated).Accuracy()
@@ -378,7 +378,7 @@ func TestKthErrorCoversRange(t *testing.T) {
 			var worstAbs, worstRel float64
 			for i := range 400 {
 				x := lo + (hi-lo)*float64(i)/399
-				le, gt, rle, rgt := s.c.countModel(x, false).splitErr(float64(k-1), true)
+				le, gt, rle, rgt := s.c.countModel(nil, x, false).splitErr(float64(k-1), true)
 				if gt > 0 {
 					worstAbs = math.Max(worstAbs, rgt*gt)
 				}

@@ -293,14 +293,21 @@ func (c *core) eval(x float64, left bool) (cdf, sf float64) {
 		}
 		return c.beta.split(p.f, p.s)
 	}
-	le, gt, _, _ := c.countModel(x, left).splitErr(float64(c.k-1), false)
+	var buf [stackTerms]binom
+	le, gt, _, _ := c.countModel(buf[:0], x, left).splitErr(float64(c.k-1), false)
 	return gt, le
 }
 
+// stackTerms is the number of groups whose count's terms the callers of
+// countModel keep in an array of their own (on the stack, where it does
+// not escape): one allocation fewer a call for up to that many groups.
+const stackTerms = 8
+
 // countModel returns the count of nodes at or below x (below x with left)
-// over the groups: C(x) = Σ_i Bin(n_i, F_i(x)).
-func (c *core) countModel(x float64, left bool) countModel {
-	terms := make([]binom, 0, len(c.groups))
+// over the groups: C(x) = Σ_i Bin(n_i, F_i(x)), its terms appended to
+// dst[:0] (the count holds them).
+func (c *core) countModel(dst []binom, x float64, left bool) countModel {
+	terms := dst[:0]
 	for i := range c.groups {
 		g := &c.groups[i]
 		p := g.eval(x)
@@ -319,8 +326,9 @@ func (c *core) untiltedEnd(a, b, z float64) (lo, hi float64) {
 	if !finite(a) || !finite(b) || !(a < b) {
 		return math.NaN(), math.NaN()
 	}
+	var buf [stackTerms]binom
 	d := func(x float64) float64 {
-		cm := c.countModel(x, false)
+		cm := c.countModel(buf[:0], x, false)
 		return (cm.mean - (float64(c.k) - 0.5)) - z*math.Sqrt(cm.variance)
 	}
 	if !(d(a) < 0 && d(b) >= 0) {
@@ -379,7 +387,8 @@ func (c *core) kthError(floor float64) (abs, rel float64) {
 		}
 		for _, x := range xs {
 			if finite(x) {
-				le, gt, rle, rgt := c.countModel(x, false).splitErr(float64(c.k-1), true)
+				var buf [stackTerms]binom
+				le, gt, rle, rgt := c.countModel(buf[:0], x, false).splitErr(float64(c.k-1), true)
 				// P(X_(k) <= x) = P(C > k-1) = gt, P(X_(k) > x) = le
 				if gt > 0 {
 					c.kthAbs = max(c.kthAbs, rgt*gt)

@@ -245,7 +245,14 @@ func newGroupErr(fn, name string, l dist.Law, n int64) error {
 // unionAtoms lists the distinct atom values of all groups, sorted; values
 // within dist.AtomMergeTolerance (relative) count as one.
 func unionAtoms(gs []group) []float64 {
-	var vs []float64
+	n := 0
+	for _, g := range gs {
+		n += len(g.atoms)
+	}
+	if n == 0 {
+		return nil
+	}
+	vs := make([]float64, 0, n)
 	for _, g := range gs {
 		for _, a := range g.atoms {
 			vs = append(vs, a.Value)

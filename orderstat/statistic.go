@@ -414,6 +414,9 @@ func (c *core) kthError(floor float64) (abs, rel float64) {
 // parent, the mass P(X <= v) - P(X < v), computed without cancellation.
 func (c *core) findAtoms() {
 	vals := unionAtoms(c.groups)
+	if len(vals) > 0 {
+		c.atoms = make([]dist.Atom, 0, len(vals)) // room for every one: most are kept
+	}
 	total := 0.0
 	for _, v := range vals {
 		if v < c.lo || v > c.hi {

@@ -47,10 +47,15 @@ const (
 )
 
 // latticeOf returns v0, δ and the integer offsets of the atoms' values when
-// they lie on a common lattice (within latticeTol of the span), with
-// gcd(n_i) = 1.
+// they lie on a common lattice (latticeOfValues).
 func latticeOf(d Discrete) (v0, delta float64, ns []int64, ok bool) {
-	vs := d.values()
+	return latticeOfValues(d.values())
+}
+
+// latticeOfValues returns v0, δ and the integer offsets of the sorted,
+// distinct values vs when they lie on a common lattice (within latticeTol
+// of the span), with gcd(n_i) = 1.
+func latticeOfValues(vs []float64) (v0, delta float64, ns []int64, ok bool) {
 	if len(vs) < 2 {
 		return 0, 0, nil, false
 	}

@@ -67,21 +67,15 @@ func sumDiscrete(fn string, laws []Discrete) (Discrete, error) {
 // MaxSumAtoms lattice points, or merging atom pairs costs less
 // (denseCheaper).
 func denseSum(laws []Discrete) (Discrete, bool) {
-	// Every law's offsets from its least value, together (sorted, distinct).
-	shift := 0.0
-	var offs []float64
+	shift, points := 0.0, true
 	for _, d := range laws {
-		vs := d.values()
-		shift += vs[0]
-		for _, v := range vs[1:] {
-			offs = append(offs, v-vs[0])
-		}
+		shift += d.values()[0]
+		points = points && d.Len() == 1
 	}
-	if len(offs) == 0 { // every law a point mass
+	if points { // every law a point mass
 		return discreteFromAtoms([]Atom{{Value: shift, Mass: 1}}), true
 	}
-	all := discreteFromAtoms(append([]Atom{{Value: 0, Mass: 1}}, offsetAtoms(offs)...))
-	_, delta, _, ok := latticeOf(all)
+	delta, ok := commonStep(laws)
 	if !ok {
 		return Discrete{}, false
 	}
@@ -156,12 +150,28 @@ func denseCheaper(laws []Discrete, delta float64) bool {
 	return dense <= pairs
 }
 
-// offsetAtoms returns the offsets as atoms of equal mass (their values are
-// what latticeOf reads).
-func offsetAtoms(offs []float64) []Atom {
-	out := make([]Atom, len(offs))
-	for i, o := range offs {
-		out[i] = Atom{Value: o, Mass: 1}
+// commonStep returns the step δ of the lattice (latticeOfValues) that 0
+// and every law's offsets from its least value lie on, taken together
+// (sorted and merged as atoms of equal mass are); ok is false when they
+// lie on none.
+func commonStep(laws []Discrete) (delta float64, ok bool) {
+	n := 1
+	for _, d := range laws {
+		n += d.Len() - 1
 	}
-	return out
+	offs := make([]Atom, 1, n)
+	offs[0] = Atom{Value: 0, Mass: 1}
+	for _, d := range laws {
+		vs := d.values()
+		for _, v := range vs[1:] {
+			offs = append(offs, Atom{Value: v - vs[0], Mass: 1})
+		}
+	}
+	merged := mergeAtoms(offs)
+	vs := make([]float64, len(merged))
+	for i, a := range merged {
+		vs[i] = a.Value
+	}
+	_, delta, _, ok = latticeOfValues(vs)
+	return delta, ok
 }

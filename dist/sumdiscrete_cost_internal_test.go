@@ -22,7 +22,7 @@ func TestDenseCheaperChoice(t *testing.T) {
 		{"five counts", []Discrete{counts, counts, counts, counts, counts}, true},
 		{"three sparse energies on a step of 1 (spans of 5002)", []Discrete{sparse, sparse, sparse}, false},
 	} {
-		_, delta, _, ok := latticeOf(discreteFromAtoms(append([]Atom{{Value: 0, Mass: 1}}, offsetAtoms(offsetsOf(c.laws))...)))
+		delta, ok := commonStep(c.laws)
 		require.True(t, ok, c.name)
 		assert.Equal(t, c.dense, denseCheaper(c.laws, delta), "%s (step %g)", c.name, delta)
 		got, err := sumDiscrete("test", c.laws)
@@ -40,17 +40,4 @@ func TestDenseCheaperChoice(t *testing.T) {
 			assert.InDelta(t, a.Mass, g.Mass, 1e-15, c.name)
 		}
 	}
-}
-
-// offsetsOf lists every law's offsets from its least value, as denseSum
-// reads them.
-func offsetsOf(laws []Discrete) []float64 {
-	var offs []float64
-	for _, d := range laws {
-		vs := d.values()
-		for _, v := range vs[1:] {
-			offs = append(offs, v-vs[0])
-		}
-	}
-	return offs
 }

@@ -39,12 +39,12 @@ func Mixture(weights []float64, laws []Law) (Law, error) {
 	if len(weights) != len(laws) {
 		return nil, paramErr(fn, "weights", fmt.Sprintf("len %d", len(weights)), fmt.Sprintf("must have the length of laws (%d)", len(laws)))
 	}
-	m := mixture{weights: make([]float64, 0, len(weights)), laws: make([]Law, 0, len(laws))}
 	allDiscrete, allDensity := true, true
 	sum, err := probSum(fn, "weights", weights)
 	if err != nil {
 		return nil, err
 	}
+	kept, last := 0, 0 // the components with positive weight; the last of them
 	for i, w := range weights {
 		if laws[i] == nil {
 			return nil, paramErr(fn, fmt.Sprintf("laws[%d]", i), nil, "must not be nil")
@@ -55,8 +55,7 @@ func Mixture(weights []float64, laws []Law) (Law, error) {
 		if err := checkOutside(fn, func() string { return fmt.Sprintf("laws[%d]", i) }, laws[i]); err != nil {
 			return nil, err
 		}
-		m.weights = append(m.weights, w)
-		m.laws = append(m.laws, laws[i])
+		kept, last = kept+1, i
 		if _, ok := laws[i].(Discrete); !ok {
 			allDiscrete = false
 			if _, ok := laws[i].(Densitied); !ok {
@@ -64,30 +63,42 @@ func Mixture(weights []float64, laws []Law) (Law, error) {
 			}
 		}
 	}
-	var total compSum
-	for i := range m.weights {
-		m.weights[i] /= sum
-		total.add(m.weights[i])
-	}
-	m.total = total.value()
-	if len(m.laws) == 1 {
-		return m.laws[0], nil
+	if kept == 1 {
+		return laws[last], nil
 	}
 	if allDiscrete {
 		n := 0
-		for _, l := range m.laws {
-			n += l.(Discrete).Len()
+		for i, l := range laws {
+			if weights[i] != 0 {
+				n += l.(Discrete).Len()
+			}
 		}
 		atoms := make([]Atom, 0, n)
-		for i, l := range m.laws {
+		for i, l := range laws {
+			if weights[i] == 0 {
+				continue
+			}
+			w := weights[i] / sum
 			d := l.(Discrete) // its atoms, as Atoms lists them
 			ps := d.probs()
 			for j, v := range d.values() {
-				atoms = append(atoms, Atom{Value: v, Mass: ps[j] * m.weights[i]})
+				atoms = append(atoms, Atom{Value: v, Mass: ps[j] * w})
 			}
 		}
 		return discreteFromAtoms(atoms), nil
 	}
+	m := mixture{weights: make([]float64, 0, kept), laws: make([]Law, 0, kept)}
+	for i, w := range weights {
+		if w != 0 {
+			m.weights = append(m.weights, w/sum)
+			m.laws = append(m.laws, laws[i])
+		}
+	}
+	var total compSum
+	for _, w := range m.weights {
+		total.add(w)
+	}
+	m.total = total.value()
 	m.lo, m.hi = math.Inf(1), math.Inf(-1)
 	for _, l := range m.laws {
 		lo, hi := l.Support()

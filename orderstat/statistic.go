@@ -1,9 +1,11 @@
 package orderstat
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"sort"
 	"strings"
 	"sync"
@@ -237,11 +239,12 @@ func (c *core) support() {
 			}
 			return x
 		}
-		idx := make([]int, len(c.groups))
-		for i := range idx {
-			idx[i] = i
+		var buf [stackTerms]int // (the ends are not NaN: initGroup)
+		idx := buf[:0]
+		for i := range c.groups {
+			idx = append(idx, i)
 		}
-		sort.Slice(idx, func(a, b int) bool { return end(c.groups[idx[a]]) < end(c.groups[idx[b]]) })
+		slices.SortFunc(idx, func(a, b int) int { return cmp.Compare(end(c.groups[a]), end(c.groups[b])) })
 		var acc int64
 		for _, i := range idx {
 			acc += c.groups[i].n

@@ -47,7 +47,7 @@
 // its padding, plus 8 bytes a panel and component for the values, plus
 // 120 bytes a panel for Partition's node values) and 19 float64 (11 with
 // GK7) a component of scratch, allocated once per call (room for the
-// first pass's panels, an eighth more and four, to start; the values
+// first pass's panels, an eighth more and two, to start; the values
 // share the scratch's allocation) and grown by doubling; nothing is kept
 // between calls, so every function is
 // safe for concurrent use and deterministic: the same call gives the same

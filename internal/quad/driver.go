@@ -332,13 +332,13 @@ func (d *driver) run(fn string, dst []float64, pts []float64, opt Options) (VecR
 	d.dim = len(dst)
 	d.nodes, d.wk, d.wg, d.m = ruleOf(opt.Rule)
 	np := 2*d.m - 1 // evaluations a panel
-	// Room for the first pass's panels, an eighth more and four (most
+	// Room for the first pass's panels, an eighth more and two (most
 	// calls bisect a few panels, if any: the fleet demo's 276 Adaptive
 	// calls end with two or three panels, its BreaksVec calls on one or
 	// two pieces with 4 to 74), grown by doubling beyond. The scratch and
 	// the panels' values share one allocation (the values move out of it
 	// when they outgrow it).
-	n := len(pts) - 1 + (len(pts)-1)/8 + 4
+	n := len(pts) - 1 + (len(pts)-1)/8 + 2
 	if c := opt.MaxEvals/np + len(pts); c < n {
 		n = c
 	}

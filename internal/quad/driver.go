@@ -20,10 +20,11 @@ type panel struct {
 	a, b float64
 	err  float64 // max over components of |K − G| plus rounding (apply)
 	// heap is slot k of the driver's heap when this is pans[k] (k <
-	// nheap): the index of a bisectable panel, not this one's. It lives
-	// in the padding after kind and final, so the heap takes no memory
-	// of its own (the heap never holds more entries than there are
-	// panels); it moves with the slot, never with the panel.
+	// nheap): the index of a bisectable panel, not this one's. It fills
+	// what would be padding (a panel is 32 bytes with it or without), so
+	// the heap takes no memory of its own (it never holds more entries
+	// than there are panels); it moves with the slot, never with the
+	// panel.
 	heap  int32
 	kind  int8 // mapIdentity, mapRight, mapLeft (its anchor is the driver's)
 	final bool // too narrow to bisect

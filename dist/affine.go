@@ -49,14 +49,7 @@ func Affine(l Law, scale, shift float64) (Law, error) {
 			return u, nil
 		}
 	case Discrete:
-		atoms := b.Atoms()
-		for i := range atoms {
-			atoms[i].Value = scale*atoms[i].Value + shift
-			if !finite(atoms[i].Value) {
-				return nil, paramErr(fn, "scale", scale, "maps an atom outside the finite numbers")
-			}
-		}
-		return discreteFromAtoms(atoms), nil
+		return affineDiscrete(b, scale, shift)
 	case Exponential:
 		if scale > 0 && shift == 0 {
 			return NewExponential(b.rate / scale)
@@ -74,6 +67,35 @@ func Affine(l Law, scale, shift float64) (Law, error) {
 		return affineDensity{a}, nil
 	}
 	return a, nil
+}
+
+// affineDiscrete is Affine of a Discrete (scale != 0): the mapped values
+// go straight into the new tables, in increasing order (reversed for a
+// negative scale), when they stay apart (apart); else the atoms are sorted
+// and merged (discreteFromAtoms). The same law either way, bit for bit.
+func affineDiscrete(b Discrete, scale, shift float64) (Law, error) {
+	vs, ps := b.values(), b.probs()
+	n := len(vs)
+	d := Discrete{cells: make([]float64, 4*n)}
+	nv, np := d.values(), d.probs()
+	for i, v := range vs {
+		j := i
+		if scale < 0 {
+			j = n - 1 - i
+		}
+		nv[j], np[j] = scale*v+shift, ps[i]
+		if !finite(nv[j]) {
+			return nil, paramErr("Affine", "scale", scale, "maps an atom outside the finite numbers")
+		}
+	}
+	if k, ok := apart(nv, np); ok && k == n {
+		return d.normalise(), nil
+	}
+	atoms := make([]Atom, n) // in b's order, as sorting and merging them expects
+	for i, v := range vs {
+		atoms[i] = Atom{Value: scale*v + shift, Mass: ps[i]}
+	}
+	return discreteFromAtoms(atoms), nil
 }
 
 // affine is scale·base + shift with scale != 0. Fields are read by the

@@ -106,6 +106,36 @@ func TestDiscreteInputOrder(t *testing.T) {
 	}
 }
 
+// TestAffineDiscrete: an affine map of a Discrete is the Discrete of the
+// mapped atoms, by hand: a negative scale reverses their order (−2·X + 1
+// of {1: 0.2, 2: 0.3, 3: 0.5} is {−5: 0.5, −3: 0.3, −1: 0.2}), and atoms
+// the map brings within dist.AtomMergeTolerance merge (X + 10^6 of
+// {1: 0.5, 1 + 10^-11: 0.5}: the two sums round to the same float64).
+func TestAffineDiscrete(t *testing.T) {
+	for _, tc := range []struct {
+		name          string
+		values, probs []float64
+		scale, shift  float64
+		want          []dist.Atom
+	}{
+		{"negative scale", []float64{1, 2, 3}, []float64{0.2, 0.3, 0.5}, -2, 1,
+			[]dist.Atom{{Value: -5, Mass: 0.5}, {Value: -3, Mass: 0.3}, {Value: -1, Mass: 0.2}}},
+		{"merged by the shift", []float64{1, 1 + 1e-11}, []float64{0.5, 0.5}, 1, 1e6,
+			[]dist.Atom{{Value: 1e6 + 1, Mass: 1}}},
+	} {
+		l, err := dist.Affine(dist.MustDiscrete(tc.values, tc.probs), tc.scale, tc.shift)
+		require.NoError(t, err, tc.name)
+		d, ok := l.(dist.Discrete)
+		require.True(t, ok, tc.name)
+		got := d.Atoms()
+		require.Len(t, got, len(tc.want), tc.name)
+		for i, a := range got {
+			assert.Equal(t, tc.want[i].Value, a.Value, tc.name)
+			assert.InDelta(t, tc.want[i].Mass, a.Mass, 1e-16, tc.name)
+		}
+	}
+}
+
 // TestDiscreteMerging: values within dist.AtomMergeTolerance (relative)
 // merge into one atom at their mass-weighted mean; farther ones do not;
 // zero-probability values are dropped.

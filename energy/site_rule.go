@@ -1365,45 +1365,59 @@ const slopeLo, slopeHi, slopeH = -12.0, 9.0, 0.01
 // slopeBound bounds the slope of the CDF of the first failure among n
 // nodes against their common probit z, F'(z) = n·Φ(−z)^(n−1)·φ(z), cell by
 // cell: on a cell [a, b] of width slopeH in [slopeLo, slopeHi], Φ(−z) is
-// at most Φ(−a) and φ at most its largest on the cell; below the cells
-// F' <= n·φ(z) <= n·φ(slopeLo), and from the last cell's left end c on
-// F' <= n·φ(c). The site rule's interpolation bound (interpBound) reads
-// the cells between the two probits it compares instead of the largest
-// slope anywhere.
+// at most Φ(−a) and φ at most its largest on the cell (slopeCell); below
+// the cells F' <= n·φ(z) <= n·φ(slopeLo), and from the last cell's left
+// end c on F' <= n·φ(c). The site rule's interpolation bound (interpBound)
+// reads the cells between the two probits it compares instead of the
+// largest slope anywhere. Only the widened cells are kept: beyond, the
+// rare reading that reaches past the cells, computes its cells again
+// (the same bits).
 type slopeBound struct {
-	cells        []float64
 	wide         []float64 // wide[i]: the largest of cells i − 1, i and i + 1
+	n            float64   // the count
 	outLo, outHi float64   // the bounds below the cells and from the last cell's left end on
-	top          float64   // the last cell's left end, slopeLo + slopeH·(len(cells) − 1)
+	top          float64   // the last cell's left end, slopeLo + slopeH·(len(wide) − 1)
 	most         float64   // the largest of all, times 1 + 1e-12 (minSlope)
+}
+
+// slopeCell returns slopeBound's bound on its cell i among nf nodes,
+// nf·Φ(−a)^(nf−1)·max φ on [a, a + slopeH], a = slopeLo + slopeH·i.
+func slopeCell(nf float64, i int) float64 {
+	a := slopeLo + slopeH*float64(i)
+	c := a + slopeH
+	phi := normPDF(0)
+	switch {
+	case c <= 0:
+		phi = normPDF(c)
+	case a >= 0:
+		phi = normPDF(a)
+	}
+	return nf * math.Pow(normSurv(a), nf-1) * phi
 }
 
 func newSlopeBound(n int64) slopeBound {
 	nf := float64(n)
 	m := int((slopeHi - slopeLo) / slopeH)
-	b := slopeBound{cells: make([]float64, m)}
+	b := slopeBound{wide: make([]float64, m), n: nf}
 	best := nf * max(normPDF(slopeLo), normPDF(slopeHi))
+	// The cells in turn, three at a time: cell i − 1 (i itself at the
+	// first), i and i + 1 (i itself at the last).
+	cur := slopeCell(nf, 0)
+	best = max(best, cur)
+	prev := cur
 	for i := range m {
-		a := slopeLo + slopeH*float64(i)
-		c := a + slopeH
-		phi := normPDF(0)
-		switch {
-		case c <= 0:
-			phi = normPDF(c)
-		case a >= 0:
-			phi = normPDF(a)
+		next := cur
+		if i+1 < m {
+			next = slopeCell(nf, i+1)
+			best = max(best, next)
 		}
-		b.cells[i] = nf * math.Pow(normSurv(a), nf-1) * phi
-		best = max(best, b.cells[i])
+		b.wide[i] = max(prev, cur, next)
+		prev, cur = cur, next
 	}
 	b.outLo = nf * normPDF(slopeLo)
 	b.outHi = nf * normPDF(slopeLo+slopeH*float64(m-1))
 	b.top = slopeLo + slopeH*float64(m-1)
 	b.most = best * (1 + 1e-12)
-	b.wide = make([]float64, m)
-	for i := range m {
-		b.wide[i] = max(b.cells[max(0, i-1)], b.cells[i], b.cells[min(m-1, i+1)])
-	}
 	return b
 }
 
@@ -1443,7 +1457,7 @@ func (b *slopeBound) inCells(lo, hi float64) (float64, bool) {
 
 // beyond is over on [lo, hi] (lo <= hi) reaching beyond the cells.
 func (b *slopeBound) beyond(lo, hi float64) float64 {
-	m := len(b.cells)
+	m := len(b.wide)
 	if !finite(lo) || !finite(hi) {
 		return b.most
 	}
@@ -1457,7 +1471,7 @@ func (b *slopeBound) beyond(lo, hi float64) float64 {
 	i0 := max(0, int(math.Floor((lo-slopeLo)/slopeH))-1)
 	i1 := min(m-1, int(math.Floor((hi-slopeLo)/slopeH))+1)
 	for i := i0; i <= i1; i++ {
-		L = max(L, b.cells[i])
+		L = max(L, slopeCell(b.n, i))
 	}
 	return L * (1 + 1e-12)
 }

@@ -1874,7 +1874,14 @@ func powSurv(x float64, k int64) float64 {
 // ones cannot change them, so these maxima are those of computing every
 // probe. The error parts are +Inf where they are not computed.
 func (s *Site) lawProbes(kind lawKind, g int, k int64) []probeError {
-	sc := new(ruleScratch)
+	return s.lawProbesWith(new(ruleScratch), kind, g, k)
+}
+
+// lawProbesWith is lawProbes with the working arrays of sc, which the
+// probes keep (probeError.sc) for their later terms: one caller's chain
+// of probes, one law after another (probeRule), reuses them; what they
+// hold never changes a value (the same bits as with fresh arrays).
+func (s *Site) lawProbesWith(sc *ruleScratch, kind lawKind, g int, k int64) []probeError {
 	ts := s.probeTimesWith(sc, kind, g, k)
 	ps := make([]probeError, len(ts))
 	for i, t := range ts {
@@ -1950,9 +1957,13 @@ func (s *Site) probeRule(tol float64) (parts [2]float64, worst float64) {
 		laws = append(laws, law{kind: kindNode, g: g}, law{kind: kindFirst, g: g})
 	}
 	laws = append(laws, law{kind: kindFleet})
+	// One chain of working arrays for every law in turn (the factors and
+	// tables do not change within the call: the fine points' weights and
+	// the tables' interval hints serve them all).
+	sc := new(ruleScratch)
 	for i := range laws {
 		l := &laws[i]
-		l.ps = s.lawProbes(l.kind, l.g, 0)
+		l.ps = s.lawProbesWith(sc, l.kind, l.g, 0)
 		_, rule, st := probeMaxima(l.ps)
 		worst = max(worst, rule)
 		switch l.kind {

@@ -326,7 +326,7 @@ func tabulateWith(sc *tableScratch, l NodeLifetime) tabulated {
 		for j := range n.settings {
 			st, ok := tables[j].pt, tables[j].ok
 			w := n.settings[j].w
-			if d := &tables[j]; d.ends != nil {
+			if d := &tables[j]; d.ends.left {
 				// Left out: read as lasting to the calendar limit (its mass
 				// before there in the error, tabDropAbs).
 				tb.setEvals += d.ends.evals

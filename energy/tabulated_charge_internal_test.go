@@ -69,7 +69,7 @@ func TestSettingTablesWithinLawCharge(t *testing.T) {
 			outs := n.settingTables(&tableScratch{}, l)
 			sw := 0.0
 			for j := range outs {
-				if outs[j].ends == nil && outs[j].ok {
+				if !outs[j].ends.left && outs[j].ok {
 					sw = math.Max(sw, outs[j].pt.worst)
 				}
 			}
@@ -94,7 +94,7 @@ func TestSettingTablesWithinLawCharge(t *testing.T) {
 				var dead, alive, deadM, aliveM float64
 				for j := range outs {
 					o := &outs[j]
-					if o.ends != nil || !o.ok {
+					if o.ends.left || !o.ok {
 						continue
 					}
 					w := n.settings[j].w

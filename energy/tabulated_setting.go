@@ -174,12 +174,14 @@ func settingTable(l NodeLifetime, j int, tol, tail float64) (probitTable, bool) 
 }
 
 // settingEnds is what settingTableWith found of a setting it did not
-// tabulate because drop said so: the knots at its ends (the lower where
-// its law is about tail, the upper at the calendar limit) and the model's
-// evaluations that found them.
+// tabulate because drop said so (left; the zero value for a setting
+// tabulated): the knots at its ends (the lower where its law is about
+// tail, the upper at the calendar limit) and the model's evaluations that
+// found them.
 type settingEnds struct {
 	lo, hi gradKnot
 	evals  int
+	left   bool
 }
 
 // settingTableWith is settingTable, with the model at the calendar limit
@@ -191,7 +193,7 @@ type settingEnds struct {
 // tolerance (gradGrid; see tabLooseMax), and a table whose whole span
 // gets a factor above 1 starts from tabLooseInitial knots. sc is the
 // build's working memory.
-func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, memo *endMemo, plan func(lo, hi gradKnot) (drop bool, loose func(a, b *gradKnot) float64)) (pt probitTable, ok bool, ends *settingEnds) {
+func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64, cal0 *gradKnot, memo *endMemo, plan func(lo, hi gradKnot) (drop bool, loose func(a, b *gradKnot) float64)) (pt probitTable, ok bool, ends settingEnds) {
 	n := l.n
 	std := dist.MustNormal(0, 1)
 	zLo, zHi := std.Quantile(tail), std.UpperQuantile(tail)
@@ -215,7 +217,7 @@ func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64
 		var hi, zh float64
 		if cal {
 			if zc := probit(n.calendar); zc <= zLo {
-				return probitTable{}, false, nil
+				return probitTable{}, false, settingEnds{}
 			} else if zc <= zHi {
 				hi, zh = n.calendar, zc
 			}
@@ -228,7 +230,7 @@ func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64
 			lo = max(0, hi*(1-1e-9))
 			zl = probit(lo)
 		}
-		return probitGrid(probit, lo, hi, zl, zh, n.kinks(lo, hi), 2/n.settings[j].rate, tol), true, nil
+		return probitGrid(probit, lo, hi, zl, zh, n.kinks(lo, hi), 2/n.settings[j].rate, tol), true, settingEnds{}
 	}
 	// The ends' searches remember every knot they evaluate: a time asked
 	// again (the calendar limit, where the lower search may start; the
@@ -263,7 +265,7 @@ func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64
 	if cal {
 		k := at(n.calendar)
 		if k.z <= zLo {
-			return probitTable{}, false, nil
+			return probitTable{}, false, settingEnds{}
 		} else if k.z <= zHi {
 			// The table ends at the calendar limit: the lower search
 			// starts there, where the law is known already.
@@ -293,7 +295,7 @@ func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64
 		if !(lo < hi) {
 			lo = max(0, hi*(1-1e-9))
 		}
-		return probitGrid(probit, lo, hi, probit(lo), probit(hi), n.kinks(lo, hi), 0, tol), true, nil
+		return probitGrid(probit, lo, hi, probit(lo), probit(hi), n.kinks(lo, hi), 0, tol), true, settingEnds{}
 	}
 	initial := tabSetInitial
 	var loose func(a, b *gradKnot) float64
@@ -301,7 +303,7 @@ func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64
 		var drop bool
 		drop, loose = plan(loK, hiK)
 		if drop {
-			return probitTable{}, true, &settingEnds{lo: loK, hi: hiK, evals: evaluated}
+			return probitTable{}, true, settingEnds{lo: loK, hi: hiK, evals: evaluated, left: true}
 		}
 		if loose != nil {
 			// The ends lent to loose from sc: pointers to loK and hiK
@@ -314,7 +316,7 @@ func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64
 	}
 	pt = n.gradGrid(sc, j, loK, hiK, tol, initial, sc.seen, loose)
 	pt.evals += evaluated
-	return pt, true, nil
+	return pt, true, settingEnds{}
 }
 
 // gradGrid tabulates setting j between the knots lo and hi: tabInitial
@@ -800,7 +802,7 @@ func droppedMass(w, z float64) float64 { return w * normSurv(-z) * (1 + 1e-9) }
 type settingOut struct {
 	pt   probitTable
 	ok   bool
-	ends *settingEnds
+	ends settingEnds
 	rel  float64
 	// The table's loose intervals (tabLooseMax): the largest of their
 	// stated errors relative to the mixture's smaller side (looseRel) and
@@ -917,11 +919,11 @@ func (n *node) settingTables(sc *tableScratch, l NodeLifetime) []settingOut {
 		o.errZ = 1.5 * tabSetZTol
 		o.pt, o.ok, o.ends = settingTableWith(sc, l, j, tabSetZTol, tabSetTail, &cals[j], &memo, plan)
 		o.rel = rel
-		if o.ends != nil || !o.ok {
+		if o.ends.left || !o.ok {
 			o.looseRel, o.looseAbs, o.slack = 0, 0, 0
 		}
 		// The model at the calendar limit, evaluated here.
-		if o.ends != nil {
+		if o.ends.left {
 			o.ends.evals++
 		} else if o.ok {
 			o.pt.evals++

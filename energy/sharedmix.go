@@ -456,6 +456,9 @@ func (m sharedMixture) moments() {
 // over its own range (componentQuad).
 func componentMoments(l dist.Law) (mean, vari, meanErr, varErr float64) {
 	switch c := l.(type) {
+	case *tabulated: // a Site's conditional law, read in place
+		meanErr, varErr = c.momentError()
+		return c.Mean(), c.Variance(), meanErr, varErr
 	case tabulated:
 		meanErr, varErr = c.momentError()
 		return c.Mean(), c.Variance(), meanErr, varErr

@@ -195,7 +195,7 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 		l  NodeLifetime
 		tb tabulated
 	}
-	cache := map[key]built{}
+	cache := map[key]*built{} // into the levels' out, which the map keeps
 	months := &monthCache{}
 	level := start
 	for {
@@ -274,12 +274,14 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 			if j := same[i]; j != i {
 				out[i].tb = out[j].tb
 			}
-			cache[k] = out[i]
+			cache[k] = &out[i]
 		}
 		s.tLo, s.tHi = math.Inf(1), 0
 		for e := range s.envs {
 			env := &s.envs[e]
 			u, v := s.fac[0].z[env.iu], s.fac[1].z[env.iv]
+			env.laws = make([]tabulated, 0, len(spec.Groups))
+			env.exact = make([]NodeLifetime, 0, len(spec.Groups))
 			for g := range spec.Groups {
 				b := cache[key{g, u, v}]
 				env.laws = append(env.laws, b.tb)
@@ -328,7 +330,7 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 	for e := range s.envs {
 		groups := make([]FleetLawGroup, len(spec.Groups))
 		for g := range spec.Groups {
-			groups[g] = FleetLawGroup{Name: s.names[g], Lifetime: s.envs[e].laws[g], Count: spec.Groups[g].Count}
+			groups[g] = FleetLawGroup{Name: s.names[g], Lifetime: &s.envs[e].laws[g], Count: spec.Groups[g].Count}
 		}
 		f, err := NewFleetOfLaws(groups)
 		if err != nil {
@@ -563,7 +565,7 @@ func (s Site) NodeLifetime(i int) (dist.Law, error) {
 	if i < 0 || i >= len(s.names) {
 		return nil, paramErr(fn, "i", i, fmt.Sprintf("must be in [0, %d)", len(s.names)))
 	}
-	return s.mixStated(fn, func() float64 { return s.nodeAcc[i] }, kindNode, i, 0, func(e *siteEnv) (dist.Law, error) { return e.laws[i], nil })
+	return s.mixStated(fn, func() float64 { return s.nodeAcc[i] }, kindNode, i, 0, func(e *siteEnv) (dist.Law, error) { return &e.laws[i], nil })
 }
 
 // Conditional returns the lifetime law of a node of group i given the
@@ -590,7 +592,7 @@ func (s Site) GroupFirstFailure(i int) (dist.Law, error) {
 		return nil, paramErr(fn, "i", i, fmt.Sprintf("must be in [0, %d)", len(s.names)))
 	}
 	return s.mixStated(fn, func() float64 { return s.firstAcc[i] }, kindFirst, i, 0, func(e *siteEnv) (dist.Law, error) {
-		return orderstat.MinOfGroups([]orderstat.Group{{Law: e.laws[i], Count: s.spec.Groups[i].Count}})
+		return orderstat.MinOfGroups([]orderstat.Group{{Law: &e.laws[i], Count: s.spec.Groups[i].Count}})
 	})
 }
 

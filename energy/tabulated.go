@@ -314,7 +314,8 @@ func tabulateWith(sc *tableScratch, l NodeLifetime) tabulated {
 		for j := range tables {
 			if tables[j].calOK {
 				if calParts == nil {
-					calParts = make([]calPart, len(tables))
+					calParts = grown(sc.calParts, len(tables))
+					sc.calParts = calParts
 				}
 				calParts[j] = calPart{p: tables[j].cal, ok: true}
 			}

@@ -404,12 +404,15 @@ type tableScratch struct {
 
 	// The settings' order and their model at the calendar limit
 	// (settingTables), their results, as the mixture reads them
-	// (tabulateWith), and the interval each last read (its hints).
-	order []int
-	cals  []gradKnot
-	outs  []settingOut
-	sets  []mixSet
-	hints []int
+	// (tabulateWith), and the interval each last read (its hints); the
+	// model at the calendar limit as the law's profile reads it
+	// (tabulateWith).
+	order    []int
+	cals     []gradKnot
+	outs     []settingOut
+	sets     []mixSet
+	hints    []int
+	calParts []calPart
 }
 
 // reset frees everything sc handed out, for the next build.

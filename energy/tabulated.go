@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"sort"
+	"strconv"
 	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
@@ -539,25 +540,47 @@ func tabulateWith(sc *tableScratch, l NodeLifetime) tabulated {
 	// to the CDF and to the survival as well (tabDropAbs).
 	tb.tabCDF = 0.4*(tb.worst+tb.setWorst) + tb.looseAbs + tb.setBeyond + tb.dropAbs
 	tb.tabRel = 7.7*tb.worst + 1.01*(1+tb.setZ)*(tb.setWorst+tb.looseRel) + tb.setBeyond/tabTail + tb.dropSurv + tb.dropRel
-	how := fmt.Sprintf("tabulated on %d times (probit interpolation, %d month boundaries as knots)", len(tb.t), tb.kinks)
-	if len(n.settings) > 1 {
-		rule := ""
-		if n.spread.Floor > 0 {
-			rule = fmt.Sprintf(", from the model with a %d-point floor rule", tabGLNodes)
-		}
-		how = fmt.Sprintf("tabulated on %d times (probit interpolation of the mixture of the %d settings' own tables, %d times in all%s; month boundaries as knots)", len(tb.t), len(n.settings), tb.setPoints, rule)
-		if tb.dropped > 0 {
-			how += fmt.Sprintf("; %d settings that run out before the calendar limit with a chance of at most %.0e (times their weight) counted as lasting, their mass in the error", tb.dropped, tabDropAbs)
-		}
-	}
 	tb.acc = dist.Accuracy{
 		CDFAbs:      src.CDFAbs + tb.tabCDF,
 		SurvivalRel: src.SurvivalRel + tb.tabRel,
 		TailFloor:   max(src.TailFloor, tabTail),
-		Method:      src.Method + "; " + how,
+		Method:      tb.method(src.Method, len(n.settings), n.spread.Floor > 0),
 	}
 	tb.lz = &tabLazy{}
 	return tb
+}
+
+// method returns the table's method text after the node law's (src),
+// for a node of settings settings, floor whether it has a floor spread:
+// composed on the stack and allocated once, at its length.
+func (tb *tabulated) method(src string, settings int, floor bool) string {
+	var stack [768]byte
+	m := append(stack[:0], src...)
+	m = append(m, "; tabulated on "...)
+	m = strconv.AppendInt(m, int64(len(tb.t)), 10)
+	if settings <= 1 {
+		m = append(m, " times (probit interpolation, "...)
+		m = strconv.AppendInt(m, int64(tb.kinks), 10)
+		m = append(m, " month boundaries as knots)"...)
+		return string(m)
+	}
+	m = append(m, " times (probit interpolation of the mixture of the "...)
+	m = strconv.AppendInt(m, int64(settings), 10)
+	m = append(m, " settings' own tables, "...)
+	m = strconv.AppendInt(m, int64(tb.setPoints), 10)
+	m = append(m, " times in all"...)
+	if floor {
+		m = append(m, ", from the model with a "...)
+		m = strconv.AppendInt(m, tabGLNodes, 10)
+		m = append(m, "-point floor rule"...)
+	}
+	m = append(m, "; month boundaries as knots)"...)
+	if tb.dropped > 0 {
+		m = append(m, "; "...)
+		m = strconv.AppendInt(m, int64(tb.dropped), 10)
+		m = fmt.Appendf(m, " settings that run out before the calendar limit with a chance of at most %.0e (times their weight) counted as lasting, their mass in the error", tabDropAbs)
+	}
+	return string(m)
 }
 
 // profile measures the node law's stated error (NodeLifetime.accuracyAt)

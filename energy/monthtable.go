@@ -21,6 +21,13 @@ type monthTable struct {
 // newMonthTable returns the month table of spec (whose Thermal is not nil)
 // in env; fn and pre prefix its errors as newNode's.
 func newMonthTable(fn, pre string, spec NodeSpec, env Environment) (*monthTable, error) {
+	return newMonthTableFor(fn, pre, spec, env, true)
+}
+
+// newMonthTableFor is newMonthTable, with the self-discharge factors (a
+// quadrature each) only with sd, else left 1 (for a reader of the others
+// alone: they raise no error).
+func newMonthTableFor(fn, pre string, spec NodeSpec, env Environment, sd bool) (*monthTable, error) {
 	th := spec.Thermal
 	shifted, err := shiftedClimate(fn, th, env)
 	if err != nil {
@@ -32,7 +39,10 @@ func newMonthTable(fn, pre string, spec NodeSpec, env Environment) (*monthTable,
 	for i := range 12 {
 		t := shifted.Month((spec.StartMonth + i) % 12)
 		mt.floorRate[i] = th.FloorFactor(t, sw)
-		mt.sdFactor[i] = th.SelfDischargeFactor(t, sw)
+		mt.sdFactor[i] = 1
+		if sd {
+			mt.sdFactor[i] = th.SelfDischargeFactor(t, sw)
+		}
 		d, err := th.CapacityFactor(t)
 		if err != nil {
 			return nil, causeErr(fn, pre+"Thermal.Derating", t, fmt.Sprintf("derating at the month %d's temperature", (spec.StartMonth+i)%12), err)

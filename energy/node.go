@@ -157,6 +157,24 @@ type nodeSetting struct {
 
 // newNode precomputes the model of spec in env.
 func newNode(fn string, spec NodeSpec, env Environment) (*node, error) {
+	return newNodeFor(fn, spec, env, nodeParts{})
+}
+
+// nodeParts says which of a node's precomputed parts newNodeFor leaves
+// out (the zero value: none), for a caller that reads only the others
+// (Site.VarianceShares, Site.UsableFraction). The rules, the k-fold sums
+// and the moments depend on the spec alone, not on the environment: left
+// out for a spec whose node was built in full before (a Site's group),
+// the errors they could raise cannot arise.
+type nodeParts struct {
+	noRules         bool // glx, glw, tgx and tgw left nil
+	noSums          bool // the settings' exact k-fold sums left nil
+	noMoments       bool // the settings' mu, k2, l3, l4 and l5 left 0
+	noSelfDischarge bool // the months' self-discharge factors left 1 (sdFactor, sdCum)
+}
+
+// newNodeFor is newNode with the parts that skip says left out.
+func newNodeFor(fn string, spec NodeSpec, env Environment, skip nodeParts) (*node, error) {
 	pre := "spec."
 	if spec.Name != "" {
 		pre = fmt.Sprintf("spec %q: ", spec.Name)
@@ -200,8 +218,10 @@ func newNode(fn string, spec NodeSpec, env Environment) (*node, error) {
 	}
 
 	n := &node{name: spec.Name, spread: spec.Spread, batch: env.batch(), calendar: math.Inf(1)}
-	n.glx, n.glw = glRule(glNodes)
-	n.tgx, n.tgw = glRule(tabGLNodes)
+	if !skip.noRules {
+		n.glx, n.glw = glRule(glNodes)
+		n.tgx, n.tgw = glRule(tabGLNodes)
+	}
 	if spec.CalendarLife > 0 {
 		n.calendar = spec.CalendarLife - spec.StorageTime
 	}
@@ -228,7 +248,7 @@ func newNode(fn string, spec NodeSpec, env Environment) (*node, error) {
 		mt := env.months
 		if mt == nil {
 			var err error
-			if mt, err = newMonthTable(fn, pre, spec, env); err != nil {
+			if mt, err = newMonthTableFor(fn, pre, spec, env, !skip.noSelfDischarge); err != nil {
 				return nil, err
 			}
 		}
@@ -276,6 +296,10 @@ func newNode(fn string, spec NodeSpec, env Environment) (*node, error) {
 		}
 		st.usableF = uf
 		st.usable = b.NominalEnergy() * uf * derate
+		if skip.noMoments {
+			n.settings = append(n.settings, st)
+			continue
+		}
 		mom, err := centralMoments(c.excess)
 		if err != nil {
 			return nil, causeErr(fn, fmt.Sprintf("%sSettings[%d].Cycle", pre, i), c.String(), "moments of the active energy", err)
@@ -291,7 +315,7 @@ func newNode(fn string, spec NodeSpec, env Environment) (*node, error) {
 			st.l4 = k4 / (k2 * k2)
 			st.l5 = k5 / math.Pow(k2, 2.5)
 		}
-		if spec.Spread.Capacity == 0 && spec.Spread.Active == 0 && spec.Spread.Floor == 0 {
+		if !skip.noSums && spec.Spread.Capacity == 0 && spec.Spread.Active == 0 && spec.Spread.Floor == 0 {
 			sums, err := dist.NewIIDSums(c.excess)
 			if err != nil {
 				return nil, causeErr(fn, fmt.Sprintf("%sSettings[%d].Cycle", pre, i), c.String(), "k-fold sums of the active energy", err)

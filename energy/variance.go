@@ -43,18 +43,20 @@ func (s Site) VarianceShares(i int) (VarianceShares, error) {
 	}
 	spec := s.spec.Groups[i].Node
 	env := Environment{Climate: s.spec.Climate}
-	n, err := newNode(fn, spec, env)
+	// The rules and the k-fold sums are not read (nodeParts).
+	skip := nodeParts{noRules: true, noSums: true}
+	n, err := newNodeFor(fn, spec, env, skip)
 	if err != nil {
 		return VarianceShares{}, err
 	}
 	var warm, cold *node
 	if spec.Thermal != nil && s.spec.Shared.Temperature > 0 {
 		env.TemperatureOffset = 1
-		if warm, err = newNode(fn, spec, env); err != nil {
+		if warm, err = newNodeFor(fn, spec, env, skip); err != nil {
 			return VarianceShares{}, err
 		}
 		env.TemperatureOffset = -1
-		if cold, err = newNode(fn, spec, env); err != nil {
+		if cold, err = newNodeFor(fn, spec, env, skip); err != nil {
 			return VarianceShares{}, err
 		}
 	}
@@ -146,7 +148,9 @@ func (s Site) UsableFraction(i int) (lo, hi float64, err error) {
 	if i < 0 || i >= len(s.names) {
 		return 0, 0, paramErr(fn, "i", i, fmt.Sprintf("must be in [0, %d)", len(s.names)))
 	}
-	n, err := newNode(fn, s.spec.Groups[i].Node, Environment{Climate: s.spec.Climate})
+	// The usable fractions alone are read (nodeParts).
+	skip := nodeParts{noRules: true, noSums: true, noMoments: true, noSelfDischarge: true}
+	n, err := newNodeFor(fn, s.spec.Groups[i].Node, Environment{Climate: s.spec.Climate}, skip)
 	if err != nil {
 		return 0, 0, err
 	}

@@ -118,6 +118,23 @@ type Environment struct {
 	// Thermal and StartMonth in this climate and offset, computed once
 	// for many specs that share them (the design search's candidates).
 	months *monthTable
+	// rules, when not nil, are the Gauss–Legendre rules of the nodes of
+	// one call, made once and only read (a Site's conditional laws).
+	rules *glRules
+}
+
+// glRules are a node's Gauss–Legendre rules on [−1, 1]: glNodes points
+// (glx, glw) and the settings' tables' tabGLNodes (tgx, tgw).
+type glRules struct {
+	glx, glw, tgx, tgw []float64
+}
+
+// newGLRules returns the rules (glRule).
+func newGLRules() *glRules {
+	var r glRules
+	r.glx, r.glw = glRule(glNodes)
+	r.tgx, r.tgw = glRule(tabGLNodes)
+	return &r
 }
 
 // node is the precomputed model of one group's nodes in one environment.
@@ -218,7 +235,10 @@ func newNodeFor(fn string, spec NodeSpec, env Environment, skip nodeParts) (*nod
 	}
 
 	n := &node{name: spec.Name, spread: spec.Spread, batch: env.batch(), calendar: math.Inf(1)}
-	if !skip.noRules {
+	switch {
+	case env.rules != nil:
+		n.glx, n.glw, n.tgx, n.tgw = env.rules.glx, env.rules.glw, env.rules.tgx, env.rules.tgw
+	case !skip.noRules:
 		n.glx, n.glw = glRule(glNodes)
 		n.tgx, n.tgw = glRule(tabGLNodes)
 	}

@@ -197,6 +197,7 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 	}
 	cache := map[key]*built{} // into the levels' out, which the map keeps
 	months := &monthCache{}
+	rules := newGLRules() // read by every node built here
 	level := start
 	for {
 		for d := range 2 {
@@ -227,7 +228,7 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 			k := todo[i]
 			g := spec.Groups[k.g]
 			cond := Conditions{BatchFactor: 1 + sds[0]*k.u, TemperatureOffset: sds[1] * k.v}
-			env := Environment{Climate: spec.Climate, Conditions: cond}
+			env := Environment{Climate: spec.Climate, Conditions: cond, rules: rules}
 			// The month table depends on the cell's Thermal, the start
 			// month and the shifted climate alone: the batch factors and
 			// the groups with the same cell share it (the same table as

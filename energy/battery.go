@@ -154,17 +154,20 @@ func (w PulseWarning) String() string {
 // quantile when unbounded); a state described by its power is converted at
 // the battery's NominalVoltage.
 func (b Battery) PulseCheck(c Cycle) []PulseWarning {
-	return pulseCheck(c.active, b.spec.NominalVoltage, b.spec.PulseCurrent)
+	if b.spec.PulseCurrent == 0 {
+		return nil
+	}
+	return pulseCheck(c.statesView(), b.spec.NominalVoltage, b.spec.PulseCurrent)
 }
 
-// pulseCheck is PulseCheck of the cycle whose active stage is active, on
-// a cell of nominal voltage volt (V) and pulse rating (A; 0 for none).
-func pulseCheck(active Stage, volt, rating float64) []PulseWarning {
+// pulseCheck is PulseCheck of a cycle's distinct states (only read), on a
+// cell of nominal voltage volt (V) and pulse rating (A; 0 for none).
+func pulseCheck(states []State, volt, rating float64) []PulseWarning {
 	if rating == 0 {
 		return nil
 	}
 	var out []PulseWarning
-	for _, s := range (Cycle{active: active}).States() {
+	for _, s := range states {
 		if p := s.peakCurrent(volt); p > rating {
 			out = append(out, PulseWarning{State: s.name, Peak: p, Rating: rating})
 		}

@@ -995,7 +995,10 @@ func (l Lifetime) PulseWarnings() []PulseWarning {
 	if l.lifeState == nil {
 		return nil
 	}
-	return pulseCheck(l.active, l.volt, l.pulse)
+	if l.pulse == 0 {
+		return nil
+	}
+	return pulseCheck((Cycle{active: l.active}).visitStates(), l.volt, l.pulse)
 }
 
 // InYears returns the lifetime law in Julian years.

@@ -68,14 +68,43 @@ type part struct {
 	cov    float64 // Cov(C, X) (J²)
 }
 
-func (m moments) find(name string) int {
-	for i := range m.parts {
-		if m.parts[i].name == name {
+func (m moments) find(name string) int { return findPart(m.parts, name) }
+
+// findPart returns the index of the part called name in ps, or -1.
+func findPart(ps []part, name string) int {
+	for i := range ps {
+		if ps[i].name == name {
 			return i
 		}
 	}
 	return -1
 }
+
+// stageMoments returns s.moments(floor), but for a state (one) its one
+// part in *one instead of in a list of its own: the moments of a
+// sequence's or an alternative's stages are read once, their parts
+// copied into the whole's (partsOf).
+func stageMoments(s Stage, floor float64, one *part) (m moments, state bool) {
+	if st, ok := s.(State); ok {
+		m, *one = st.momentsPart(floor)
+		return m, true
+	}
+	return s.moments(floor), false
+}
+
+// partsOf returns the parts of stage i of a sequence or an alternative,
+// whose moments are ms[i]: ones[i] alone for a state (stageMoments).
+func partsOf(ms []moments, ones []part, states []bool, i int) []part {
+	if states[i] {
+		return ones[i : i+1]
+	}
+	return ms[i].parts
+}
+
+// stageBuf is the number of stages, and mergeBuf of parts, whose moments
+// a sequence or an alternative combines in its own stack memory; the
+// parts combined are then copied once into a list of their length.
+const stageBuf, mergeBuf = 8, 32
 
 // nothing is the empty stage.
 type nothing struct{}
@@ -164,39 +193,53 @@ func (q sequence) laws(floor float64) (excess, active dist.Law, err error) {
 func (q sequence) moments(floor float64) moments {
 	var out moments
 	// The stages' moments first, so that the parts are sized once.
-	var buf [8]moments
-	ms := buf[:0]
-	if len(q.stages) > len(buf) {
-		ms = make([]moments, 0, len(q.stages))
+	var buf [stageBuf]moments
+	var ones [stageBuf]part
+	var sts [stageBuf]bool
+	ms, one, state := buf[:], ones[:], sts[:]
+	if k := len(q.stages); k > len(buf) {
+		ms, one, state = make([]moments, k), make([]part, k), make([]bool, k)
 	}
 	n := 0
-	for _, s := range q.stages {
-		m := s.moments(floor)
-		ms = append(ms, m)
-		n += len(m.parts)
+	for i, s := range q.stages {
+		ms[i], state[i] = stageMoments(s, floor, &one[i])
+		n += len(partsOf(ms, one, state, i))
 	}
-	if n > 0 {
-		out.parts = make([]part, 0, n)
+	var mbuf [mergeBuf]part
+	parts := mbuf[:0]
+	if n > len(mbuf) {
+		parts = make([]part, 0, n)
 	}
-	for _, m := range ms {
+	for i := range q.stages {
+		m := &ms[i]
 		out.meanX += m.meanX
 		out.varX += m.varX
 		out.meanT += m.meanT
 		out.varT += m.varT
-		for _, p := range m.parts {
-			if i := out.find(p.name); i >= 0 {
-				o := &out.parts[i]
+		for _, p := range partsOf(ms, one, state, i) {
+			if i := findPart(parts, p.name); i >= 0 {
+				o := &parts[i]
 				o.ownVar = max(o.ownVar, p.ownVar)
 				o.count += p.count
 				o.own += p.own
 				o.excess += p.excess
 				o.cov += p.cov // stages are independent: Cov(C_j, X_k) = 0 for j != k
 			} else {
-				out.parts = append(out.parts, p)
+				parts = append(parts, p)
 			}
 		}
 	}
+	out.parts = ownParts(parts)
 	return out
+}
+
+// ownParts returns a list of their own of the parts combined in ps (the
+// caller's memory), of their length; nil for none.
+func ownParts(ps []part) []part {
+	if len(ps) == 0 {
+		return nil
+	}
+	return append([]part(nil), ps...)
 }
 
 func (q sequence) visit(f func(State)) {
@@ -329,33 +372,50 @@ func (c choice) moments(floor float64) moments {
 // probs: E[Y] = Σ p_j E[Y_j], E[Y Z] = Σ p_j E[Y_j Z_j].
 func mixMoments(probs []float64, stages []Stage, floor float64) moments {
 	var out moments
-	ms := make([]moments, len(stages))
+	var buf [stageBuf]moments
+	var ones [stageBuf]part
+	var sts [stageBuf]bool
+	ms, one, state := buf[:], ones[:], sts[:]
+	if k := len(stages); k > len(buf) {
+		ms, one, state = make([]moments, k), make([]part, k), make([]bool, k)
+	}
+	n := 0
 	var x2, t2 float64
 	for j, s := range stages {
-		m := s.moments(floor)
-		ms[j] = m
+		ms[j], state[j] = stageMoments(s, floor, &one[j])
+		m := &ms[j]
+		n += len(partsOf(ms, one, state, j))
 		p := probs[j]
 		out.meanX += p * m.meanX
 		out.meanT += p * m.meanT
 		x2 += p * (m.varX + m.meanX*m.meanX)
 		t2 += p * (m.varT + m.meanT*m.meanT)
-		for _, q := range m.parts {
-			if out.find(q.name) < 0 {
-				out.parts = append(out.parts, part{name: q.name})
+	}
+	var mbuf [mergeBuf]part
+	parts := mbuf[:0]
+	if n > len(mbuf) {
+		parts = make([]part, 0, n)
+	}
+	for j := range stages {
+		for _, q := range partsOf(ms, one, state, j) {
+			if findPart(parts, q.name) < 0 {
+				parts = append(parts, part{name: q.name})
 			}
 		}
 	}
 	out.varX = max(0, x2-out.meanX*out.meanX)
 	out.varT = max(0, t2-out.meanT*out.meanT)
-	for i := range out.parts {
-		o := &out.parts[i]
+	for i := range parts {
+		o := &parts[i]
 		cx := 0.0 // E[C X]
-		for j, m := range ms {
-			k := m.find(o.name)
+		for j := range stages {
+			m := &ms[j]
+			qs := partsOf(ms, one, state, j)
+			k := findPart(qs, o.name)
 			if k < 0 {
 				continue
 			}
-			q := m.parts[k]
+			q := qs[k]
 			p := probs[j]
 			o.count += p * q.count
 			o.own += p * q.own
@@ -365,6 +425,7 @@ func mixMoments(probs []float64, stages []Stage, floor float64) moments {
 		}
 		o.cov = cx - o.excess*out.meanX
 	}
+	out.parts = ownParts(parts)
 	return out
 }
 
@@ -461,12 +522,15 @@ func (p repeat) moments(floor float64) moments {
 		meanX: n1 * m.meanX, varX: n1*m.varX + nv*m.meanX*m.meanX,
 		meanT: n1 * m.meanT, varT: n1*m.varT + nv*m.meanT*m.meanT,
 	}
-	for _, q := range m.parts {
-		out.parts = append(out.parts, part{
+	// The stage's parts are its own (every stage's moments returns a new
+	// list): scaled in place.
+	for i, q := range m.parts {
+		m.parts[i] = part{
 			name: q.name, count: n1 * q.count, own: n1 * q.own, ownVar: q.ownVar,
 			excess: n1 * q.excess, cov: n1*q.cov + nv*q.excess*m.meanX,
-		})
+		}
 	}
+	out.parts = m.parts
 	return out
 }
 

@@ -219,6 +219,13 @@ func (s State) laws(floor float64) (excess, active dist.Law, err error) {
 }
 
 func (s State) moments(floor float64) moments {
+	m, p := s.momentsPart(floor)
+	m.parts = []part{p}
+	return m
+}
+
+// momentsPart is moments without the list of parts, and its one part.
+func (s State) momentsPart(floor float64) (moments, part) {
 	mp, vp := s.power.Mean(), s.power.Variance()
 	mt, vt := s.duration.Mean(), s.duration.Variance()
 	mx := mp - floor
@@ -228,11 +235,11 @@ func (s State) moments(floor float64) moments {
 	// variance at −3e-20 J² rather than 0).
 	ownVar := vp*vt + vp*mt*mt + vt*mp*mp
 	exVar := vp*vt + vp*mt*mt + vt*mx*mx
-	return moments{
+	m := moments{
 		meanX: mx * mt, varX: exVar,
 		meanT: mt, varT: vt,
-		parts: []part{{name: s.name, count: 1, own: mp * mt, ownVar: ownVar, excess: mx * mt, cov: exVar}},
 	}
+	return m, part{name: s.name, count: 1, own: mp * mt, ownVar: ownVar, excess: mx * mt, cov: exVar}
 }
 
 func (s State) visit(f func(State)) { f(s) }

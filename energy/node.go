@@ -121,6 +121,11 @@ type Environment struct {
 	// rules, when not nil, are the Gauss–Legendre rules of the nodes of
 	// one call, made once and only read (a Site's conditional laws).
 	rules *glRules
+	// settings, when not nil, are the settings of a node built from the
+	// same spec, climate and temperature offset (its batch factor may
+	// differ: the settings do not read it), only read: a Site's nodes at
+	// one temperature offset share them.
+	settings []nodeSetting
 }
 
 // glRules are a node's Gauss–Legendre rules on [−1, 1]: glNodes points
@@ -281,6 +286,10 @@ func newNodeFor(fn string, spec NodeSpec, env Environment, skip nodeParts) (*nod
 		n.sdCum[i+1] = n.sdCum[i] + Month*n.sdFactor[i]
 	}
 
+	if env.settings != nil {
+		n.settings = env.settings
+		return n, nil
+	}
 	usableF := b.spec.UsableFraction
 	n.settings = make([]nodeSetting, 0, len(spec.Settings))
 	for i, s := range spec.Settings {

@@ -196,6 +196,13 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 		tb tabulated
 	}
 	cache := map[key]*built{} // into the levels' out, which the map keeps
+	// leaders holds, per group and temperature offset, the first node
+	// built there (nil where it failed): its settings serve the others.
+	type groupOffset struct {
+		g int
+		v float64
+	}
+	leaders := map[groupOffset]*node{}
 	months := &monthCache{}
 	rules := newGLRules() // read by every node built here
 	level := start
@@ -223,12 +230,19 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 		// that no other group has at the same shared point (the costly
 		// part): groups whose models are the same number for number
 		// (sameNodeModel) share their table, a law read the same way.
+		//
+		// A group's settings do not depend on the batch factor: the first
+		// job of each group and temperature offset (its leader) is built
+		// first, and the others read its settings (Environment.settings),
+		// built again only where it failed. Each job's error is its own,
+		// the lowest job's returned, as in one pass.
 		out := make([]built, len(todo))
-		err := forEachOnTwo(len(todo), func(i int) error {
+		errs := make([]error, len(todo))
+		build := func(i int, settings []nodeSetting) {
 			k := todo[i]
 			g := spec.Groups[k.g]
 			cond := Conditions{BatchFactor: 1 + sds[0]*k.u, TemperatureOffset: sds[1] * k.v}
-			env := Environment{Climate: spec.Climate, Conditions: cond, rules: rules}
+			env := Environment{Climate: spec.Climate, Conditions: cond, rules: rules, settings: settings}
 			// The month table depends on the cell's Thermal, the start
 			// month and the shifted climate alone: the batch factors and
 			// the groups with the same cell share it (the same table as
@@ -238,14 +252,40 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 			}
 			l, err := NewNodeLifetime(g.Node, env)
 			if err != nil {
-				return causeErr(fn, fmt.Sprintf("group %q: Node", s.names[k.g]), g.Node.Name,
+				errs[i] = causeErr(fn, fmt.Sprintf("group %q: Node", s.names[k.g]), g.Node.Name,
 					fmt.Sprintf("lifetime law at batch factor %.4g and temperature offset %+.3g °C", cond.batch(), cond.TemperatureOffset), err)
+				return
 			}
 			out[i].l = l
+		}
+		var first, rest []int
+		for i, k := range todo {
+			if _, ok := leaders[groupOffset{k.g, k.v}]; ok {
+				rest = append(rest, i)
+				continue
+			}
+			leaders[groupOffset{k.g, k.v}] = nil // this level's job i leads
+			first = append(first, i)
+		}
+		_ = forEachOnTwo(len(first), func(j int) error { build(first[j], nil); return nil })
+		for _, i := range first {
+			if k := todo[i]; errs[i] == nil {
+				leaders[groupOffset{k.g, k.v}] = out[i].l.n
+			}
+		}
+		_ = forEachOnTwo(len(rest), func(j int) error {
+			var settings []nodeSetting
+			k := todo[rest[j]]
+			if n := leaders[groupOffset{k.g, k.v}]; n != nil {
+				settings = n.settings
+			}
+			build(rest[j], settings)
 			return nil
 		})
-		if err != nil {
-			return Site{}, err
+		for _, err := range errs {
+			if err != nil {
+				return Site{}, err
+			}
 		}
 		// same[i] is the earlier job (in todo) whose model job i's is,
 		// or i: todo lists a shared point's groups in order, so the first

@@ -266,3 +266,33 @@ func TestSiteFleetReadsSharedTablesOnce(t *testing.T) {
 	assert.Equal(t, []int{0, 1, 2, 0, 4}, s.rowReps(sc, Z, 0, 5))
 	assert.Equal(t, every.mixZ(Z, kindFleet, 0, 0, [2]int{modeFine, modeFine})[0], s.mixZ(Z, kindFleet, 0, 0, [2]int{modeFine, modeFine})[0])
 }
+
+// A Site's nodes at one temperature offset share their settings (the
+// settings do not read the batch factor: Environment.settings). The
+// oracle is the node built afresh from its group's spec at its shared
+// point: each of the Site's must be the same number for number
+// (sameNodeModel, and every setting's fields), and the nodes at one
+// offset must hold one list.
+func TestSiteSharedSettings(t *testing.T) {
+	spec := TwoFactorSiteSpec(t)
+	s, err := NewSite(spec)
+	require.NoError(t, err)
+	shared := 0
+	for e := range s.envs {
+		env := &s.envs[e]
+		for g := range spec.Groups {
+			fresh, err := newNode("test", spec.Groups[g].Node, Environment{Climate: spec.Climate, Conditions: env.cond})
+			require.NoError(t, err)
+			got := env.exact[g].n
+			require.True(t, sameNodeModel(fresh, got), "env %d, group %d: the node built afresh", e, g)
+			require.Equal(t, fresh.settings, got.settings, "env %d, group %d", e, g)
+			for f := range e {
+				if s.envs[f].cond.TemperatureOffset == env.cond.TemperatureOffset {
+					assert.Same(t, &s.envs[f].exact[g].n.settings[0], &got.settings[0], "envs %d and %d, group %d: one list", f, e, g)
+					shared++
+				}
+			}
+		}
+	}
+	assert.Positive(t, shared, "batch factors at one offset")
+}

@@ -202,7 +202,9 @@ func (th Thermal) SelfDischargeFactor(t, swing float64) float64 {
 	if swing == 0 {
 		return th.arrhenius(t)
 	}
-	f := func(phi float64) float64 { return th.arrhenius(t + swing/2*math.Sin(phi)) }
+	// The closure holds the two numbers it reads, not the Thermal.
+	ea, ref := th.SelfDischargeActivation, th.ReferenceTemperature
+	f := func(phi float64) float64 { return arrheniusAt(ea, ref, t+swing/2*math.Sin(phi)) }
 	res, err := quad.Adaptive(f, -math.Pi/2, math.Pi/2, quad.Options{RelTol: selfDischargeTol})
 	if err != nil {
 		return math.NaN()
@@ -218,8 +220,14 @@ const selfDischargeTol = 1e-13
 // difference of reciprocals written (Tref − T)/(T·Tref) to avoid
 // cancellation.
 func (th Thermal) arrhenius(t float64) float64 {
-	tk, rk := t+zeroCelsius, th.ReferenceTemperature+zeroCelsius
-	return math.Exp(-th.SelfDischargeActivation / gasConstant * (th.ReferenceTemperature - t) / (tk * rk))
+	return arrheniusAt(th.SelfDischargeActivation, th.ReferenceTemperature, t)
+}
+
+// arrheniusAt is Thermal.arrhenius for the activation energy ea (J/mol)
+// and the reference temperature ref (°C).
+func arrheniusAt(ea, ref, t float64) float64 {
+	tk, rk := t+zeroCelsius, ref+zeroCelsius
+	return math.Exp(-ea / gasConstant * (ref - t) / (tk * rk))
 }
 
 // CapacityFactor returns the derating fraction of the rated capacity at t

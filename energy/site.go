@@ -193,7 +193,7 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 	}
 	type built struct {
 		l  NodeLifetime
-		tb tabulated
+		tb *tabulated // in the environment's laws where it was built
 	}
 	cache := map[key]*built{} // into the levels' out, which the map keeps
 	// leaders holds, per group and temperature offset, the first node
@@ -213,15 +213,21 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 		// The conditional laws at the rule's nodes not built before (in
 		// parallel; each result lands in its own slot, so the outcome does
 		// not depend on the schedule).
-		s.envs = s.envs[:0]
+		// Each job's table is built in its environment's laws (todoEnv:
+		// the environment's index).
+		G := len(spec.Groups)
+		s.envs = make([]siteEnv, 0, len(s.fac[0].z)*len(s.fac[1].z))
 		var todo []key
+		var todoEnv []int
 		for iu, u := range s.fac[0].z {
 			for iv, v := range s.fac[1].z {
 				cond := Conditions{BatchFactor: 1 + sds[0]*u, TemperatureOffset: sds[1] * v}
-				s.envs = append(s.envs, siteEnv{w: s.fac[0].w[iu] * s.fac[1].w[iv], cond: cond, iu: iu, iv: iv})
+				s.envs = append(s.envs, siteEnv{w: s.fac[0].w[iu] * s.fac[1].w[iv], cond: cond, iu: iu, iv: iv,
+					laws: make([]tabulated, G), exact: make([]NodeLifetime, G)})
 				for g := range spec.Groups {
 					if _, ok := cache[key{g, u, v}]; !ok {
 						todo = append(todo, key{g, u, v})
+						todoEnv = append(todoEnv, len(s.envs)-1)
 					}
 				}
 			}
@@ -308,7 +314,10 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 		// Each worker's tables' working memory serves every law it
 		// builds in turn (tabulateWith).
 		_ = workers.RunEach(len(own), 2, func() *tableScratch { return &tableScratch{} }, func(sc *tableScratch, i int) error {
-			out[own[i]].tb = tabulateWith(sc, out[own[i]].l)
+			j := own[i]
+			dst := &s.envs[todoEnv[j]].laws[todo[j].g]
+			*dst = tabulateWith(sc, out[j].l)
+			out[j].tb = dst
 			return nil
 		}, nil)
 		for i, k := range todo {
@@ -321,14 +330,14 @@ func buildSiteFrom(spec SiteSpec, start, top [2]int, tol float64) (Site, error) 
 		for e := range s.envs {
 			env := &s.envs[e]
 			u, v := s.fac[0].z[env.iu], s.fac[1].z[env.iv]
-			env.laws = make([]tabulated, 0, len(spec.Groups))
-			env.exact = make([]NodeLifetime, 0, len(spec.Groups))
 			for g := range spec.Groups {
 				b := cache[key{g, u, v}]
-				env.laws = append(env.laws, b.tb)
-				env.exact = append(env.exact, b.l)
-				s.tLo = min(s.tLo, b.tb.t[0])
-				s.tHi = max(s.tHi, b.tb.t[len(b.tb.t)-1])
+				if b.tb != &env.laws[g] {
+					env.laws[g] = *b.tb // another group's, or an earlier level's
+				}
+				env.exact[g] = b.l
+				s.tLo = min(s.tLo, env.laws[g].t[0])
+				s.tHi = max(s.tHi, env.laws[g].t[len(env.laws[g].t)-1])
 			}
 		}
 		s.same, s.twin = s.twins()

@@ -3,7 +3,6 @@ package energy
 import (
 	"fmt"
 	"math"
-	"reflect"
 	"sync"
 
 	"github.com/joulelaw/joulelaw/dist"
@@ -304,7 +303,7 @@ func (c *monthCache) get(fn string, spec NodeSpec, env Environment) (*monthTable
 	}
 	find := func() *monthTable {
 		for _, e := range c.entries {
-			if e.start == spec.StartMonth && e.clim == clim && reflect.DeepEqual(e.th, *th) {
+			if e.start == spec.StartMonth && e.clim == clim && sameThermal(&e.th, th) {
 				return e.mt
 			}
 		}

@@ -1505,7 +1505,10 @@ func (s *Site) probeTimesWith(sc *ruleScratch, kind lawKind, g int, k int64) []f
 	// values).
 	std := dist.MustNormal(0, 1)
 	type point struct{ t, z float64 }
-	seen := []point{{0, std.Quantile(cdf(0))}, {s.tHi, std.Quantile(cdf(s.tHi))}} // ascending in t
+	// Ascending in t; room for the ends and about ten evaluations a
+	// level (grown beyond).
+	seen := make([]point, 2, 2+10*len(sharedProbeLevels))
+	seen[0], seen[1] = point{0, std.Quantile(cdf(0))}, point{s.tHi, std.Quantile(cdf(s.tHi))}
 	probit := func(t float64) float64 {
 		z := std.Quantile(cdf(t))
 		i := sort.Search(len(seen), func(i int) bool { return seen[i].t >= t })
@@ -1539,7 +1542,7 @@ func (s *Site) probeTimesWith(sc *ruleScratch, kind lawKind, g int, k int64) []f
 	// rise's edges, so the nodes' conditional 5, 25, 50, 75 and 95 %
 	// points are probed too (at most sharedMaxMidProbes of them, a twelfth
 	// with both factors spread, evenly chosen).
-	var edgesT []float64
+	edgesT := make([]float64, 0, 5*len(s.envs))
 	at := func(env *siteEnv, h int, p float64) float64 {
 		if kind == kindNode {
 			return env.laws[h].Quantile(p)

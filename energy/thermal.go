@@ -3,6 +3,7 @@ package energy
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 
 	"github.com/joulelaw/joulelaw/internal/quad"
@@ -228,6 +229,15 @@ func (th Thermal) arrhenius(t float64) float64 {
 func arrheniusAt(ea, ref, t float64) float64 {
 	tk, rk := t+zeroCelsius, ref+zeroCelsius
 	return math.Exp(-ea / gasConstant * (ref - t) / (tk * rk))
+}
+
+// sameThermal reports whether a and b are the same Thermal field for
+// field: reflect.DeepEqual's answer (TestSameThermal), without boxing
+// either in an interface.
+func sameThermal(a, b *Thermal) bool {
+	return a.ReferenceTemperature == b.ReferenceTemperature && a.SelfDischargeActivation == b.SelfDischargeActivation &&
+		a.FloorDoublingInterval == b.FloorDoublingInterval && a.MinTemperature == b.MinTemperature &&
+		a.MaxTemperature == b.MaxTemperature && (a.Derating == nil) == (b.Derating == nil) && slices.Equal(a.Derating, b.Derating)
 }
 
 // CapacityFactor returns the derating fraction of the rated capacity at t

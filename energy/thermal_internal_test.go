@@ -2,9 +2,11 @@ package energy
 
 import (
 	"math"
+	"reflect"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/integrate/quad"
 )
 
@@ -54,4 +56,38 @@ func TestInterpolate(t *testing.T) {
 	assert.Equal(t, 0.3, interpolate(4, at, -50))
 	assert.Equal(t, 1.1, interpolate(4, at, 50))
 	assert.Equal(t, 2.0, interpolate(1, func(int) (float64, float64) { return 1, 2 }, -3))
+}
+
+// sameThermal must give reflect.DeepEqual's answer (the standard
+// library's comparison is the oracle): equal for a copy and for a copy
+// with its own derating table, unequal when any one field differs (each
+// field of the type visited by reflection, so that a field added later
+// fails here until sameThermal reads it), and a nil table unequal to an
+// empty one.
+func TestSameThermal(t *testing.T) {
+	a := TypicalThermal()
+	b := a
+	b.Derating = append([]DeratingPoint(nil), a.Derating...)
+	require.True(t, reflect.DeepEqual(a, b))
+	assert.True(t, sameThermal(&a, &b), "a copy with its own table")
+	v := reflect.ValueOf(&b).Elem()
+	for i := range v.NumField() {
+		c := a
+		c.Derating = append([]DeratingPoint(nil), a.Derating...)
+		f := reflect.ValueOf(&c).Elem().Field(i)
+		switch f.Kind() {
+		case reflect.Float64:
+			f.SetFloat(f.Float() + 1)
+		case reflect.Slice:
+			c.Derating[0].Fraction /= 2
+		default:
+			t.Fatalf("field %s of kind %s: teach sameThermal and this test", v.Type().Field(i).Name, f.Kind())
+		}
+		require.False(t, reflect.DeepEqual(a, c), v.Type().Field(i).Name)
+		assert.False(t, sameThermal(&a, &c), v.Type().Field(i).Name)
+	}
+	c, d := a, a
+	c.Derating, d.Derating = nil, []DeratingPoint{}
+	require.False(t, reflect.DeepEqual(c, d))
+	assert.False(t, sameThermal(&c, &d), "nil and empty tables")
 }

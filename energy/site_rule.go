@@ -505,7 +505,8 @@ func firstSure(n int64) float64 {
 
 // nodeZ returns the probits at t of the groups' conditional node laws at
 // the rule's nodes, Z[g·E + e] for the environments e, for the groups with
-// want[g] (every group when want is nil).
+// want[g] (every group when want is nil); the list ends with the last
+// group wanted (the others are not read).
 func (s *Site) nodeZ(t float64, want []bool) []float64 {
 	return s.nodeZInto(nil, nil, t, want)
 }
@@ -516,8 +517,17 @@ func (s *Site) nodeZ(t float64, want []bool) []float64 {
 // not nil; the same values either way.
 func (s *Site) nodeZInto(dst []float64, hint []int, t float64, want []bool) []float64 {
 	E := len(s.envs)
-	Z := grown(dst, len(s.names)*E)
-	for g := range s.names {
+	G := len(s.names)
+	if want != nil {
+		G = 0
+		for g, w := range want {
+			if w {
+				G = g + 1
+			}
+		}
+	}
+	Z := grown(dst, G*E)
+	for g := range G {
 		if want != nil && !want[g] {
 			continue
 		}

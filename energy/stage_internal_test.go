@@ -102,3 +102,34 @@ func seVar(xs []float64) float64 {
 	m4 /= float64(len(xs))
 	return math.Sqrt((m4 - v*v) / float64(len(xs)))
 }
+
+// A fixed state's excess energy is built without the intermediate laws
+// (fixedExcess); the oracle is package dist's general path, the power
+// shifted by the floor (dist.Affine) times the duration (dist.Product):
+// the same law, field for field, for every case of that path (no floor,
+// an excess of exactly 1 and exactly 0 J/s, and ordinary values).
+func TestFixedExcessSameAsDist(t *testing.T) {
+	cases := []struct{ p, t, floor float64 }{
+		{0.132, 0.05, 0}, {0.132, 0.05, 5e-6 * 3.6}, {0.0033, 1.25, 1e-5}, {1.5, 0.2, 0.5},
+		{2e-5, 0.7, 2e-5}, {0.04 * 3.6, 0, 1e-5}, {7.25, 3.5e-3, 0.25},
+	}
+	for _, c := range cases {
+		power, duration := dist.MustPointMass(c.p), dist.MustPointMass(c.t)
+		got, ok := fixedExcess(power, duration, c.floor)
+		require.True(t, ok, "%+v", c)
+		var p dist.Law = power
+		if c.floor != 0 {
+			var err error
+			p, err = dist.Affine(power, 1, -c.floor)
+			require.NoError(t, err)
+		}
+		want, err := dist.Product(p, duration)
+		require.NoError(t, err)
+		assert.Equal(t, want, got, "%+v", c)
+	}
+	// Not a fixed state: the general path.
+	_, ok := fixedExcess(dist.MustDiscrete([]float64{0.1, 0.2}, []float64{0.5, 0.5}), dist.MustPointMass(1), 0)
+	assert.False(t, ok)
+	_, ok = fixedExcess(dist.MustPointMass(0.1), dist.MustUniform(1, 2), 0)
+	assert.False(t, ok)
+}

@@ -158,6 +158,9 @@ func (s State) excess(floor float64) (dist.Law, error) {
 	if lo, _ := s.power.Support(); lo < floor*(1-1e-12) {
 		return nil, paramErr(fn, fmt.Sprintf("state %q: power", s.name), lo, fmt.Sprintf("lower end of the power's support must be >= the floor power %g W", floor))
 	}
+	if e, ok := fixedExcess(s.power, s.duration, floor); ok {
+		return e, nil
+	}
 	p := s.power
 	if floor != 0 {
 		var err error
@@ -170,6 +173,53 @@ func (s State) excess(floor float64) (dist.Law, error) {
 		return nil, causeErr(fn, fmt.Sprintf("state %q", s.name), s.String(), "energy law", err)
 	}
 	return l, nil
+}
+
+// fixedExcess returns the excess energy law of a state whose power and
+// duration are both one atom of mass 1 (a fixed state): the point mass
+// (P − floor)·t, each step the arithmetic of the general path (the power
+// shifted by dist.Affine(power, 1, −floor), then scaled by the duration as
+// dist.Product does: dist.Affine(duration, P − floor, 0)), so the same
+// law, without building the intermediate laws. ok is false for any other
+// state (and where the product leaves the finite numbers: the general
+// path reports it).
+func fixedExcess(power, duration dist.Law, floor float64) (dist.Law, bool) {
+	p, ok := pointOne(power)
+	if !ok {
+		return nil, false
+	}
+	t, ok := pointOne(duration)
+	if !ok {
+		return nil, false
+	}
+	if floor != 0 {
+		p = 1*p + -floor
+	}
+	switch p {
+	case 0:
+		return dist.MustPointMass(0), true
+	case 1:
+		return duration, true
+	}
+	e := p*t + 0
+	if !finite(p) || !finite(e) {
+		return nil, false
+	}
+	return dist.MustPointMass(e), true
+}
+
+// pointOne returns the value of l when l is a dist.Discrete of one atom
+// of mass 1.
+func pointOne(l dist.Law) (float64, bool) {
+	d, ok := l.(dist.Discrete)
+	if !ok || d.Len() != 1 {
+		return 0, false
+	}
+	lo, _ := d.Support()
+	if d.Survival(lo) != 0 || d.CDF(lo) != 1 {
+		return 0, false
+	}
+	return lo, true
 }
 
 // peakCurrent returns the largest current (A) the state draws at the

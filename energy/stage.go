@@ -229,15 +229,23 @@ func (q sequence) moments(floor float64) moments {
 			}
 		}
 	}
-	out.parts = ownParts(parts)
+	out.parts = ownParts(parts, ms[:len(q.stages)], state)
 	return out
 }
 
 // ownParts returns a list of their own of the parts combined in ps (the
-// caller's memory), of their length; nil for none.
-func ownParts(ps []part) []part {
+// caller's memory): the memory of one of the stages' lists in ms (not a
+// state's: states) with the room, since those lists are their stages' own
+// (every stage's moments returns a new list) and read no more, or else a
+// new list of their length; nil for none.
+func ownParts(ps []part, ms []moments, states []bool) []part {
 	if len(ps) == 0 {
 		return nil
+	}
+	for j := range ms {
+		if !states[j] && cap(ms[j].parts) >= len(ps) {
+			return append(ms[j].parts[:0], ps...)
+		}
 	}
 	return append([]part(nil), ps...)
 }
@@ -425,7 +433,7 @@ func mixMoments(probs []float64, stages []Stage, floor float64) moments {
 		}
 		o.cov = cx - o.excess*out.meanX
 	}
-	out.parts = ownParts(parts)
+	out.parts = ownParts(parts, ms[:len(stages)], state)
 	return out
 }
 

@@ -80,31 +80,97 @@ func findPart(ps []part, name string) int {
 	return -1
 }
 
-// stageMoments returns s.moments(floor), but for a state (one) its one
-// part in *one instead of in a list of its own: the moments of a
-// sequence's or an alternative's stages are read once, their parts
-// copied into the whole's (partsOf).
-func stageMoments(s Stage, floor float64, one *part) (m moments, state bool) {
-	if st, ok := s.(State); ok {
-		m, *one = st.momentsPart(floor)
-		return m, true
+// stageMoments returns s.moments(floor), but for a state its one part,
+// and for a sequence of states its parts, in room (the caller's memory,
+// used its first elements; inRoom) instead of in a list of their own:
+// the moments of a sequence's or an alternative's stages are read once,
+// their parts copied into the whole's (partsOf). A sequence of states
+// with more parts than room holds, and any other stage, keeps its own
+// list.
+func stageMoments(s Stage, floor float64, room []part) (m moments, used int, inRoom bool) {
+	switch st := s.(type) {
+	case State:
+		if len(room) > 0 {
+			m, room[0] = st.momentsPart(floor)
+			return m, 1, true
+		}
+	case sequence:
+		if len(st.stages) <= len(room) && st.allStates() {
+			m, used = st.statesMoments(floor, room)
+			return m, used, true
+		}
 	}
-	return s.moments(floor), false
+	return s.moments(floor), 0, false
 }
 
-// partsOf returns the parts of stage i of a sequence or an alternative,
-// whose moments are ms[i]: ones[i] alone for a state (stageMoments).
-func partsOf(ms []moments, ones []part, states []bool, i int) []part {
-	if states[i] {
-		return ones[i : i+1]
+// allStates reports whether every stage of q is a state.
+func (q sequence) allStates() bool {
+	for _, s := range q.stages {
+		if _, ok := s.(State); !ok {
+			return false
+		}
+	}
+	return true
+}
+
+// statesMoments is moments for a sequence of states (allStates), its
+// parts combined in dst (room for every stage's) instead of in a list of
+// their own: the same sums in the same order. It returns how many.
+func (q sequence) statesMoments(floor float64, dst []part) (moments, int) {
+	var out moments
+	k := 0
+	for _, s := range q.stages {
+		m, p := s.(State).momentsPart(floor)
+		out.meanX += m.meanX
+		out.varX += m.varX
+		out.meanT += m.meanT
+		out.varT += m.varT
+		if i := findPart(dst[:k], p.name); i >= 0 {
+			o := &dst[i]
+			o.ownVar = max(o.ownVar, p.ownVar)
+			o.count += p.count
+			o.own += p.own
+			o.excess += p.excess
+			o.cov += p.cov
+		} else {
+			dst[k] = p
+			k++
+		}
+	}
+	return out, k
+}
+
+// stageSet is where the parts of a sequence's or an alternative's stages
+// are (stageMoments): stage i's in room[span[i][0]:span[i][1]] where
+// inRoom[i], else in its moments' own list.
+type stageSet struct {
+	room   []part
+	used   int
+	span   [][2]int
+	inRoom []bool
+}
+
+// add records stage i's moments (stageMoments) into ms[i].
+func (ss *stageSet) add(ms []moments, i int, s Stage, floor float64) {
+	m, used, in := stageMoments(s, floor, ss.room[ss.used:])
+	ms[i], ss.inRoom[i] = m, in
+	ss.span[i] = [2]int{ss.used, ss.used + used}
+	ss.used += used
+}
+
+// partsOf returns the parts of stage i, whose moments are ms[i].
+func (ss *stageSet) partsOf(ms []moments, i int) []part {
+	if ss.inRoom[i] {
+		return ss.room[ss.span[i][0]:ss.span[i][1]]
 	}
 	return ms[i].parts
 }
 
-// stageBuf is the number of stages, and mergeBuf of parts, whose moments
-// a sequence or an alternative combines in its own stack memory; the
-// parts combined are then copied once into a list of their length.
-const stageBuf, mergeBuf = 8, 32
+// stageBuf is the number of stages, roomBuf of their parts held for them
+// (stageSet), and mergeBuf of the parts combined, whose moments a
+// sequence or an alternative combines in its own stack memory; the parts
+// combined are then copied once into a list of their own (ownParts).
+const stageBuf, roomBuf, mergeBuf = 8, 32, 32
 
 // nothing is the empty stage.
 type nothing struct{}
@@ -194,16 +260,17 @@ func (q sequence) moments(floor float64) moments {
 	var out moments
 	// The stages' moments first, so that the parts are sized once.
 	var buf [stageBuf]moments
-	var ones [stageBuf]part
-	var sts [stageBuf]bool
-	ms, one, state := buf[:], ones[:], sts[:]
+	var room [roomBuf]part
+	var span [stageBuf][2]int
+	var in [stageBuf]bool
+	ms, ss := buf[:], stageSet{room: room[:], span: span[:], inRoom: in[:]}
 	if k := len(q.stages); k > len(buf) {
-		ms, one, state = make([]moments, k), make([]part, k), make([]bool, k)
+		ms, ss = make([]moments, k), stageSet{room: make([]part, k), span: make([][2]int, k), inRoom: make([]bool, k)}
 	}
 	n := 0
 	for i, s := range q.stages {
-		ms[i], state[i] = stageMoments(s, floor, &one[i])
-		n += len(partsOf(ms, one, state, i))
+		ss.add(ms, i, s, floor)
+		n += len(ss.partsOf(ms, i))
 	}
 	var mbuf [mergeBuf]part
 	parts := mbuf[:0]
@@ -216,7 +283,7 @@ func (q sequence) moments(floor float64) moments {
 		out.varX += m.varX
 		out.meanT += m.meanT
 		out.varT += m.varT
-		for _, p := range partsOf(ms, one, state, i) {
+		for _, p := range ss.partsOf(ms, i) {
 			if i := findPart(parts, p.name); i >= 0 {
 				o := &parts[i]
 				o.ownVar = max(o.ownVar, p.ownVar)
@@ -229,21 +296,21 @@ func (q sequence) moments(floor float64) moments {
 			}
 		}
 	}
-	out.parts = ownParts(parts, ms[:len(q.stages)], state)
+	out.parts = ownParts(parts, ms[:len(q.stages)], ss.inRoom)
 	return out
 }
 
 // ownParts returns a list of their own of the parts combined in ps (the
-// caller's memory): the memory of one of the stages' lists in ms (not a
-// state's: states) with the room, since those lists are their stages' own
-// (every stage's moments returns a new list) and read no more, or else a
-// new list of their length; nil for none.
-func ownParts(ps []part, ms []moments, states []bool) []part {
+// caller's memory): the memory of one of the stages' own lists in ms (not
+// of those in a stageSet's room: inRoom) with the room, since those lists
+// are their stages' own (every stage's moments returns a new list) and
+// read no more, or else a new list of their length; nil for none.
+func ownParts(ps []part, ms []moments, inRoom []bool) []part {
 	if len(ps) == 0 {
 		return nil
 	}
 	for j := range ms {
-		if !states[j] && cap(ms[j].parts) >= len(ps) {
+		if !inRoom[j] && cap(ms[j].parts) >= len(ps) {
 			return append(ms[j].parts[:0], ps...)
 		}
 	}
@@ -381,18 +448,19 @@ func (c choice) moments(floor float64) moments {
 func mixMoments(probs []float64, stages []Stage, floor float64) moments {
 	var out moments
 	var buf [stageBuf]moments
-	var ones [stageBuf]part
-	var sts [stageBuf]bool
-	ms, one, state := buf[:], ones[:], sts[:]
+	var room [roomBuf]part
+	var span [stageBuf][2]int
+	var in [stageBuf]bool
+	ms, ss := buf[:], stageSet{room: room[:], span: span[:], inRoom: in[:]}
 	if k := len(stages); k > len(buf) {
-		ms, one, state = make([]moments, k), make([]part, k), make([]bool, k)
+		ms, ss = make([]moments, k), stageSet{room: make([]part, k), span: make([][2]int, k), inRoom: make([]bool, k)}
 	}
 	n := 0
 	var x2, t2 float64
 	for j, s := range stages {
-		ms[j], state[j] = stageMoments(s, floor, &one[j])
+		ss.add(ms, j, s, floor)
 		m := &ms[j]
-		n += len(partsOf(ms, one, state, j))
+		n += len(ss.partsOf(ms, j))
 		p := probs[j]
 		out.meanX += p * m.meanX
 		out.meanT += p * m.meanT
@@ -405,7 +473,7 @@ func mixMoments(probs []float64, stages []Stage, floor float64) moments {
 		parts = make([]part, 0, n)
 	}
 	for j := range stages {
-		for _, q := range partsOf(ms, one, state, j) {
+		for _, q := range ss.partsOf(ms, j) {
 			if findPart(parts, q.name) < 0 {
 				parts = append(parts, part{name: q.name})
 			}
@@ -418,7 +486,7 @@ func mixMoments(probs []float64, stages []Stage, floor float64) moments {
 		cx := 0.0 // E[C X]
 		for j := range stages {
 			m := &ms[j]
-			qs := partsOf(ms, one, state, j)
+			qs := ss.partsOf(ms, j)
 			k := findPart(qs, o.name)
 			if k < 0 {
 				continue
@@ -433,7 +501,7 @@ func mixMoments(probs []float64, stages []Stage, floor float64) moments {
 		}
 		o.cov = cx - o.excess*out.meanX
 	}
-	out.parts = ownParts(parts, ms[:len(stages)], state)
+	out.parts = ownParts(parts, ms[:len(stages)], ss.inRoom)
 	return out
 }
 

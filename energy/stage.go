@@ -345,7 +345,7 @@ func Choice(probs []float64, stages []Stage) (Stage, error) {
 	if err != nil {
 		return nil, err
 	}
-	c := choice{}
+	c := choice{probs: make([]float64, 0, len(stages)), stages: make([]Stage, 0, len(stages))}
 	for i, s := range stages {
 		if s == nil {
 			return nil, paramErr(fn, fmt.Sprintf("stages[%d]", i), nil, "must not be nil")
@@ -635,8 +635,9 @@ func Configured(config dist.Discrete, build func(value float64) (Stage, error)) 
 	if build == nil {
 		return nil, paramErr(fn, "build", nil, "must not be nil")
 	}
-	c := configured{config: config}
-	for _, a := range config.Atoms() {
+	atoms := config.Atoms()
+	c := configured{config: config, values: make([]float64, 0, len(atoms)), probs: make([]float64, 0, len(atoms)), stages: make([]Stage, 0, len(atoms))}
+	for _, a := range atoms {
 		s, err := build(a.Value)
 		if err != nil {
 			return nil, causeErr(fn, "build", a.Value, "failed for this configuration value", err)

@@ -13,9 +13,18 @@ import (
 // of a NodeSpec, so specs that share a Thermal, a StartMonth and a climate
 // share it (the design search's candidates: many intervals, one cell).
 type monthTable struct {
-	floorRate, sdFactor [12]float64
+	floorRate, sdFactor [12]float64 // factors on the floor power and the self-discharge rate in the i-th month after deployment
+	floorCum, sdCum     [13]float64 // their integrals (s) to the start of the i-th month (accumulate)
 	derate, coldest     float64
 	warnings            []string
+}
+
+// accumulate sets floorCum and sdCum from the factors.
+func (mt *monthTable) accumulate() {
+	for i := range 12 {
+		mt.floorCum[i+1] = mt.floorCum[i] + Month*mt.floorRate[i]
+		mt.sdCum[i+1] = mt.sdCum[i] + Month*mt.sdFactor[i]
+	}
 }
 
 // newMonthTable returns the month table of spec (whose Thermal is not nil)
@@ -51,6 +60,7 @@ func newMonthTableFor(fn, pre string, spec NodeSpec, env Environment, sd bool) (
 		mt.coldest = min(mt.coldest, t-sw/2)
 	}
 	mt.derate = sum / 12
+	mt.accumulate()
 	return mt, nil
 }
 

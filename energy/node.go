@@ -153,13 +153,15 @@ type node struct {
 	sdRate    float64 // fraction of the nominal capacity per s at the reference temperature
 	storage   float64 // fraction of the nominal capacity lost in storage
 	calendar  float64 // s after deployment; +Inf for none
-	floorCum  [13]float64
-	sdCum     [13]float64
-	floorRate [12]float64 // factor on the floor power in the i-th month after deployment
-	sdFactor  [12]float64 // factor on the self-discharge rate, same months
-	warnings  []string
-	glx, glw  []float64 // Gauss–Legendre nodes and weights on [−1, 1] (glNodes)
-	tgx, tgw  []float64 // the settings' tables' rule (tabGLNodes)
+	// months holds, per month after deployment, the factors on the floor
+	// power and the self-discharge rate and their integrals (floorCum,
+	// sdCum): the month table of the node's Thermal, start month and
+	// climate (shared by the nodes that have it; only read), or one of
+	// factors 1.
+	months   *monthTable
+	warnings []string
+	glx, glw []float64 // Gauss–Legendre nodes and weights on [−1, 1] (glNodes)
+	tgx, tgw []float64 // the settings' tables' rule (tabGLNodes)
 }
 
 // nodeSetting is one setting's share of the model.
@@ -266,9 +268,6 @@ func newNodeFor(fn string, spec NodeSpec, env Environment, skip nodeParts) (*nod
 	// its table replaces it.
 	derate := b.spec.TemperatureDerating
 	coldest := math.Inf(1)
-	for i := range 12 {
-		n.floorRate[i], n.sdFactor[i] = 1, 1
-	}
 	if spec.Thermal != nil {
 		mt := env.months
 		if mt == nil {
@@ -278,12 +277,14 @@ func newNodeFor(fn string, spec NodeSpec, env Environment, skip nodeParts) (*nod
 			}
 		}
 		n.warnings = append(n.warnings, mt.warnings...)
-		n.floorRate, n.sdFactor = mt.floorRate, mt.sdFactor
+		n.months = mt
 		derate, coldest = mt.derate, mt.coldest
-	}
-	for i := range 12 {
-		n.floorCum[i+1] = n.floorCum[i] + Month*n.floorRate[i]
-		n.sdCum[i+1] = n.sdCum[i] + Month*n.sdFactor[i]
+	} else {
+		n.months = &monthTable{}
+		for i := range 12 {
+			n.months.floorRate[i], n.months.sdFactor[i] = 1, 1
+		}
+		n.months.accumulate()
 	}
 
 	if env.settings != nil {
@@ -430,7 +431,7 @@ func (n *node) appendKinks(dst []float64, lo, hi float64) []float64 {
 	some := false
 	for j := range kink {
 		i := (j + 11) % 12
-		kink[j] = n.floorRate[i] != n.floorRate[j] || n.sdFactor[i] != n.sdFactor[j]
+		kink[j] = n.months.floorRate[i] != n.months.floorRate[j] || n.months.sdFactor[i] != n.months.sdFactor[j]
 		some = some || kink[j]
 	}
 	if !some {
@@ -489,12 +490,12 @@ func (n *node) settingLife(j int) float64 {
 // Gauss–Legendre rule on pieces (part).
 func (n *node) settingAt(j int, t float64) (alive, dead, errEst float64) {
 	s := &n.settings[j]
-	capLeft := n.batch*s.usable - n.nominal*(n.storage+n.sdRate*n.cum(&n.sdCum, &n.sdFactor, t))
+	capLeft := n.batch*s.usable - n.nominal*(n.storage+n.sdRate*n.cum(&n.months.sdCum, &n.months.sdFactor, t))
 	if !(capLeft > 0) {
 		return 0, 1, 0
 	}
 	k := t * s.rate
-	floorE := s.floorP * n.cum(&n.floorCum, &n.floorRate, t)
+	floorE := s.floorP * n.cum(&n.months.floorCum, &n.months.floorRate, t)
 	h := n.quiescent * t
 	mean := k * s.mu
 	if s.sums != nil {
@@ -533,7 +534,7 @@ func (n *node) settingAt(j int, t float64) (alive, dead, errEst float64) {
 // Φ(t), the integrals over [0, t] of the monthly self-discharge and floor
 // factors (s).
 func (n *node) clocks(t float64) [3]float64 {
-	return [3]float64{t, n.cum(&n.sdCum, &n.sdFactor, t), n.cum(&n.floorCum, &n.floorRate, t)}
+	return [3]float64{t, n.cum(&n.months.sdCum, &n.months.sdFactor, t), n.cum(&n.months.floorCum, &n.months.floorRate, t)}
 }
 
 // clockRates returns the three clocks' rates (s per s) in the month of
@@ -548,7 +549,7 @@ func (n *node) clockRates(t float64, right bool) [3]float64 {
 	}
 	r := t - math.Floor(t/Year)*Year
 	i := min(max(int(r/Month), 0), 11)
-	return [3]float64{1, n.sdFactor[i], n.floorRate[i]}
+	return [3]float64{1, n.months.sdFactor[i], n.months.floorRate[i]}
 }
 
 // settingProbit returns, for setting j of a node with a per-node spread,

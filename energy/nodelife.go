@@ -204,7 +204,7 @@ func (l NodeLifetime) accuracyAtZKnown(ts []float64, zOf func(j int, t float64) 
 			continue
 		}
 		items = items[:0]
-		sdClock, floorClock := n.cum(&n.sdCum, &n.sdFactor, t), n.cum(&n.floorCum, &n.floorRate, t)
+		sdClock, floorClock := n.cum(&n.months.sdCum, &n.months.sdFactor, t), n.cum(&n.months.floorCum, &n.months.floorRate, t)
 		for j := range n.settings {
 			s := &n.settings[j]
 			k := t * s.rate

@@ -189,7 +189,7 @@ func NewDeviceModel(spec NodeSpec, env Environment, costs []EventCost, opt Devic
 	d := &deviceData{n: n, s: n.settings[0], nodes: opt.Nodes, memory: opt.Memory, prior: opt.PriorTime, load: opt.ReadingLoad}
 	d.monthsUp = true
 	for i := range 12 {
-		if !(n.floorRate[i] >= 0 && n.sdFactor[i] >= 0) {
+		if !(n.months.floorRate[i] >= 0 && n.months.sdFactor[i] >= 0) {
 			d.monthsUp = false
 		}
 	}
@@ -398,13 +398,13 @@ func (m DeviceModel) EndDepth() float64 {
 
 // floorE returns the floor energy (J) of the median board over [0, τ].
 func (d *deviceData) floorE(tau float64) float64 {
-	return d.s.floorP * d.n.cum(&d.n.floorCum, &d.n.floorRate, tau)
+	return d.s.floorP * d.n.cum(&d.n.months.floorCum, &d.n.months.floorRate, tau)
 }
 
 // selfD returns the fraction of the rated energy lost to self-discharge
 // by τ, storage included.
 func (d *deviceData) selfD(tau float64) float64 {
-	return d.n.storage + d.n.sdRate*d.n.cum(&d.n.sdCum, &d.n.sdFactor, tau)
+	return d.n.storage + d.n.sdRate*d.n.cum(&d.n.months.sdCum, &d.n.months.sdFactor, tau)
 }
 
 // temp returns the month's temperature (°C) at τ after installation.
@@ -437,7 +437,7 @@ func (d *deviceData) life(c, a, f, a0, r, tau0 float64) (tau, slope float64) {
 	cs := c * nom * n.sdRate
 	lin := a*r + n.quiescent
 	fp := f * d.s.floorP
-	hy := cs*n.sdCum[12] + lin*Year + fp*n.floorCum[12]
+	hy := cs*n.months.sdCum[12] + lin*Year + fp*n.months.floorCum[12]
 	if !(hy > 0) {
 		return math.Inf(1), 0
 	}
@@ -447,7 +447,7 @@ func (d *deviceData) life(c, a, f, a0, r, tau0 float64) (tau, slope float64) {
 	y := math.Floor(k / hy)
 	rem := k - y*hy
 	i, prev := d.month(rem, hy, cs, lin, fp)
-	sl := cs*n.sdFactor[i] + lin + fp*n.floorRate[i]
+	sl := cs*n.months.sdFactor[i] + lin + fp*n.months.floorRate[i]
 	x := 0.0
 	if sl > 0 {
 		x = min(Month, (rem-prev)/sl)
@@ -467,7 +467,7 @@ func (d *deviceData) life(c, a, f, a0, r, tau0 float64) (tau, slope float64) {
 func (d *deviceData) month(rem, hy, cs, lin, fp float64) (i int, prev float64) {
 	n := d.n
 	next := func(i int) float64 {
-		return cs*n.sdCum[i+1] + lin*Month*float64(i+1) + fp*n.floorCum[i+1]
+		return cs*n.months.sdCum[i+1] + lin*Month*float64(i+1) + fp*n.months.floorCum[i+1]
 	}
 	if d.monthsUp && cs >= 0 && lin >= 0 && fp >= 0 {
 		if g := rem / hy * 12; g > 0 {

@@ -124,14 +124,16 @@ func TestLifeMonth(t *testing.T) {
 	for _, negative := range []bool{false, true} {
 		d := *m.d
 		n := *d.n
+		months := *n.months
+		n.months = &months
 		d.n = &n
 		for i := range 12 {
-			n.floorRate[i], n.sdFactor[i] = 0.2+2.8*r.Float64(), 0.2+2.8*r.Float64()
+			n.months.floorRate[i], n.months.sdFactor[i] = 0.2+2.8*r.Float64(), 0.2+2.8*r.Float64()
 			if negative && i == 5 {
-				n.floorRate[i], n.sdFactor[i] = -3, -3 // H falls in month 5
+				n.months.floorRate[i], n.months.sdFactor[i] = -3, -3 // H falls in month 5
 			}
-			n.floorCum[i+1] = n.floorCum[i] + Month*n.floorRate[i]
-			n.sdCum[i+1] = n.sdCum[i] + Month*n.sdFactor[i]
+			n.months.floorCum[i+1] = n.months.floorCum[i] + Month*n.months.floorRate[i]
+			n.months.sdCum[i+1] = n.months.sdCum[i] + Month*n.months.sdFactor[i]
 		}
 		d.monthsUp = !negative
 		for j := range 20000 {
@@ -140,14 +142,14 @@ func TestLifeMonth(t *testing.T) {
 				part[j/8%3] = -part[j/8%3]
 			}
 			cs, lin, fp := part[0], part[1], part[2]
-			hy := cs*n.sdCum[12] + lin*Year + fp*n.floorCum[12]
+			hy := cs*n.months.sdCum[12] + lin*Year + fp*n.months.floorCum[12]
 			rem := hy * (1.2*r.Float64() - 0.1)
 			if j%1000 == 0 {
 				rem = math.NaN()
 			}
 			wantI, wantPrev := 11, 0.0
 			for i := range 12 {
-				next := cs*n.sdCum[i+1] + lin*Month*float64(i+1) + fp*n.floorCum[i+1]
+				next := cs*n.months.sdCum[i+1] + lin*Month*float64(i+1) + fp*n.months.floorCum[i+1]
 				if rem < next {
 					wantI = i
 					break
@@ -155,7 +157,7 @@ func TestLifeMonth(t *testing.T) {
 				wantPrev = next
 			}
 			if wantI == 11 {
-				wantPrev = cs*n.sdCum[11] + lin*Month*11 + fp*n.floorCum[11]
+				wantPrev = cs*n.months.sdCum[11] + lin*Month*11 + fp*n.months.floorCum[11]
 			}
 			gotI, gotPrev := d.month(rem, hy, cs, lin, fp)
 			require.Equal(t, wantI, gotI, "rem=%g hy=%g parts %v negative=%v", rem, hy, part, negative)

@@ -782,8 +782,8 @@ func sameNodeModel(a, b *node) bool {
 	if !same(a.nominal, b.nominal) || !same(a.batch, b.batch) || !same(a.quiescent, b.quiescent) ||
 		!same(a.sdRate, b.sdRate) || !same(a.storage, b.storage) || !same(a.calendar, b.calendar) ||
 		!same(a.spread.Capacity, b.spread.Capacity) || !same(a.spread.Floor, b.spread.Floor) || !same(a.spread.Active, b.spread.Active) ||
-		!sameAll(a.floorCum[:], b.floorCum[:]) || !sameAll(a.sdCum[:], b.sdCum[:]) ||
-		!sameAll(a.floorRate[:], b.floorRate[:]) || !sameAll(a.sdFactor[:], b.sdFactor[:]) ||
+		!sameAll(a.months.floorCum[:], b.months.floorCum[:]) || !sameAll(a.months.sdCum[:], b.months.sdCum[:]) ||
+		!sameAll(a.months.floorRate[:], b.months.floorRate[:]) || !sameAll(a.months.sdFactor[:], b.months.sdFactor[:]) ||
 		!sameAll(a.glx, b.glx) || !sameAll(a.glw, b.glw) || !sameAll(a.tgx, b.tgx) || !sameAll(a.tgw, b.tgw) {
 		return false
 	}

@@ -116,7 +116,7 @@ func TestSameNodeModelFields(t *testing.T) {
 		return out
 	}
 	assert.Equal(t, []string{"name", "settings", "spread", "nominal", "batch", "quiescent", "sdRate", "storage", "calendar",
-		"floorCum", "sdCum", "floorRate", "sdFactor", "warnings", "glx", "glw", "tgx", "tgw"}, fields(node{}),
+		"months", "warnings", "glx", "glw", "tgx", "tgw"}, fields(node{}),
 		"node's fields: update sameNodeModel")
 	assert.Equal(t, []string{"w", "rate", "floorP", "usable", "mu", "k2", "l3", "l4", "l5", "excess", "sums", "scale", "usableF"},
 		fields(nodeSetting{}), "nodeSetting's fields: update sameNodeModel")
@@ -133,9 +133,9 @@ func TestSameNodeModelFields(t *testing.T) {
 		"quiescent": func(n *node) { up(&n.quiescent) }, "sdRate": func(n *node) { up(&n.sdRate) },
 		"storage": func(n *node) { up(&n.storage) }, "calendar": func(n *node) { up(&n.calendar) },
 		"spread.Capacity": func(n *node) { up(&n.spread.Capacity) }, "spread.Floor": func(n *node) { up(&n.spread.Floor) },
-		"spread.Active": func(n *node) { up(&n.spread.Active) }, "floorCum": func(n *node) { up(&n.floorCum[12]) },
-		"sdCum": func(n *node) { up(&n.sdCum[3]) }, "floorRate": func(n *node) { up(&n.floorRate[11]) },
-		"sdFactor": func(n *node) { up(&n.sdFactor[0]) }, "glx": func(n *node) { up(&n.glx[1]) }, "glw": func(n *node) { up(&n.glw[2]) },
+		"spread.Active": func(n *node) { up(&n.spread.Active) }, "floorCum": func(n *node) { up(&n.months.floorCum[12]) },
+		"sdCum": func(n *node) { up(&n.months.sdCum[3]) }, "floorRate": func(n *node) { up(&n.months.floorRate[11]) },
+		"sdFactor": func(n *node) { up(&n.months.sdFactor[0]) }, "glx": func(n *node) { up(&n.glx[1]) }, "glw": func(n *node) { up(&n.glw[2]) },
 		"tgx": func(n *node) { up(&n.tgx[1]) }, "tgw": func(n *node) { up(&n.tgw[2]) },
 		"settings[2].w": func(n *node) { up(&n.settings[2].w) }, "rate": func(n *node) { up(&n.settings[1].rate) },
 		"floorP": func(n *node) { up(&n.settings[0].floorP) }, "usable": func(n *node) { up(&n.settings[0].usable) },
@@ -146,6 +146,8 @@ func TestSameNodeModelFields(t *testing.T) {
 		"settings": func(n *node) { n.settings = n.settings[:2] },
 	} {
 		n := *base
+		months := *base.months
+		n.months = &months
 		n.settings = append([]nodeSetting(nil), base.settings...)
 		n.glx, n.glw = append([]float64(nil), base.glx...), append([]float64(nil), base.glw...)
 		n.tgx, n.tgw = append([]float64(nil), base.tgx...), append([]float64(nil), base.tgw...)

@@ -255,7 +255,7 @@ func settingTableWith(sc *tableScratch, l NodeLifetime, j int, tol, tail float64
 		evaluated++
 		return k
 	}
-	mean := [3]float64{1, n.sdCum[12] / Year, n.floorCum[12] / Year}
+	mean := [3]float64{1, n.months.sdCum[12] / Year, n.months.floorCum[12] / Year}
 	f := func(t float64) (float64, float64) {
 		k := at(t)
 		return k.z, k.g[0]*mean[0] + k.g[1]*mean[1] + k.g[2]*mean[2]
@@ -948,7 +948,7 @@ type seasonRates struct {
 // seasonRates returns n's (see the type).
 func (n *node) seasonRates() seasonRates {
 	var sr seasonRates
-	for i, rates := range [3]*[12]float64{nil, &n.sdFactor, &n.floorRate} {
+	for i, rates := range [3]*[12]float64{nil, &n.months.sdFactor, &n.months.floorRate} {
 		if rates == nil {
 			continue
 		}

@@ -103,10 +103,12 @@ func TestSettingTablesSeasons(t *testing.T) {
 func TestKinksAgainstDefinition(t *testing.T) {
 	l := tabSeasonLaw(t)
 	flat := *l.n
-	for i := range flat.floorRate {
-		flat.floorRate[i], flat.sdFactor[i] = 1, 1
+	months := *flat.months // the nodes share their month table: changed on a copy
+	flat.months = &months
+	for i := range months.floorRate {
+		months.floorRate[i], months.sdFactor[i] = 1, 1
 	}
-	flat.floorRate[4], flat.sdFactor[9] = 2, 3
+	months.floorRate[4], months.sdFactor[9] = 2, 3
 	spans := [][2]float64{{0, Year}, {-Year, 2 * Year}, {3 * Month, 3 * Month}, {3 * Month, 4 * Month},
 		{math.Nextafter(3*Month, 0), math.Nextafter(4*Month, 5*Month)}, {0.37 * Year, 23.9 * Year}, {Month / 2, 150 * Year}}
 	for name, n := range map[string]*node{"seasonal": l.n, "two changes a year": &flat} {
@@ -117,7 +119,7 @@ func TestKinksAgainstDefinition(t *testing.T) {
 				for m := 1; float64(m)*Month < hi; m++ {
 					x := float64(m) * Month
 					i, j := (m-1)%12, m%12
-					if x > lo && (n.floorRate[i] != n.floorRate[j] || n.sdFactor[i] != n.sdFactor[j]) {
+					if x > lo && (n.months.floorRate[i] != n.months.floorRate[j] || n.months.sdFactor[i] != n.months.sdFactor[j]) {
 						want = append(want, x)
 					}
 				}

@@ -77,9 +77,9 @@ func (s Site) VarianceShares(i int) (VarianceShares, error) {
 		if !(slope < 0) {
 			continue
 		}
-		capLeft := n.batch*st.usable - n.nominal*(n.storage+n.sdRate*n.cum(&n.sdCum, &n.sdFactor, L))
+		capLeft := n.batch*st.usable - n.nominal*(n.storage+n.sdRate*n.cum(&n.months.sdCum, &n.months.sdFactor, L))
 		k := L * st.rate
-		floorE := st.floorP * n.cum(&n.floorCum, &n.floorRate, L)
+		floorE := st.floorP * n.cum(&n.months.floorCum, &n.months.floorRate, L)
 		add := func(idx int, dG float64) { v[idx] += st.w * dG * dG / (slope * slope) }
 		add(0, math.Sqrt(k*st.k2))
 		add(2, sp.Capacity*capLeft)
@@ -110,8 +110,8 @@ func (s Site) VarianceShares(i int) (VarianceShares, error) {
 // left at t with every per-node factor at 1.
 func (n *node) margin(j int, t float64) float64 {
 	st := &n.settings[j]
-	capLeft := n.batch*st.usable - n.nominal*(n.storage+n.sdRate*n.cum(&n.sdCum, &n.sdFactor, t))
-	return capLeft - t*st.rate*st.mu - st.floorP*n.cum(&n.floorCum, &n.floorRate, t) - n.quiescent*t
+	capLeft := n.batch*st.usable - n.nominal*(n.storage+n.sdRate*n.cum(&n.months.sdCum, &n.months.sdFactor, t))
+	return capLeft - t*st.rate*st.mu - st.floorP*n.cum(&n.months.floorCum, &n.months.floorRate, t) - n.quiescent*t
 }
 
 // nominalRoot returns the nominal node's lifetime (s) at setting j, capped

@@ -215,17 +215,46 @@ func (c Cycle) visitStates() []State {
 		return nil
 	}
 	// A cycle has tens of states: a scan of those kept finds a repeat
-	// with less work and memory than a map of their names.
-	out := make([]State, 0, 8)
-	c.active.visit(func(s State) {
-		for i := range out {
-			if out[i].name == s.name {
-				return
+	// with less work and memory than a map of their names. They are
+	// gathered on the stack, then kept in a list of their number.
+	var buf [16]State
+	found := appendStates(buf[:0], c.active)
+	if len(found) == 0 {
+		return []State{}
+	}
+	out := make([]State, len(found))
+	copy(out, found)
+	return out
+}
+
+// appendStates appends to dst the states of s (in the order of s.visit:
+// TestAppendStatesVisitOrder) whose names dst does not hold yet.
+func appendStates(dst []State, s Stage) []State {
+	switch st := s.(type) {
+	case State:
+		for i := range dst {
+			if dst[i].name == st.name {
+				return dst
 			}
 		}
-		out = append(out, s)
-	})
-	return out
+		return append(dst, st)
+	case sequence:
+		for _, x := range st.stages {
+			dst = appendStates(dst, x)
+		}
+	case choice:
+		for _, x := range st.stages {
+			dst = appendStates(dst, x)
+		}
+	case configured:
+		for _, x := range st.stages {
+			dst = appendStates(dst, x)
+		}
+	case repeat:
+		dst = appendStates(dst, st.stage)
+	}
+	// nothing has no states; Stage's unexported methods leave no other kind.
+	return dst
 }
 
 // Rand draws one cycle's energy (J) from the structure, not from the

@@ -133,3 +133,34 @@ func TestFixedExcessSameAsDist(t *testing.T) {
 	_, ok = fixedExcess(dist.MustPointMass(0.1), dist.MustUniform(1, 2), 0)
 	assert.False(t, ok)
 }
+
+// appendStates walks a stage's kinds itself (Cycle.visitStates); the
+// oracle is the stage's own visit: the same states, by name, in the order
+// of first appearance, for the demo stage and for each kind alone and
+// nested (a repeat in a choice in a sequence, with nothing and a repeated
+// state).
+func TestAppendStatesVisitOrder(t *testing.T) {
+	a := MustFixedState("a", 0.01, 3.3, 0.1)
+	b := MustFixedState("b", 0.02, 3.3, 0.2)
+	c := MustFixedState("c", 0.03, 3.3, 0.3)
+	rep := MustRepeat(dist.MustDiscrete([]float64{0, 1, 2}, []float64{0.2, 0.5, 0.3}), MustSequence(c, a))
+	stages := []Stage{demoStage(t), a, Nothing(), MustSequence(a, b, a),
+		MustChoice([]float64{0.5, 0.5}, []Stage{b, MustSequence(Nothing(), rep)}),
+		MustSequence(b, MustChoice([]float64{0.3, 0.7}, []Stage{rep, a}), c)}
+	for i, s := range stages {
+		var want []State
+		s.visit(func(x State) {
+			for _, y := range want {
+				if y.name == x.name {
+					return
+				}
+			}
+			want = append(want, x)
+		})
+		got := appendStates(nil, s)
+		require.Equal(t, len(want), len(got), "stage %d", i)
+		for j := range want {
+			assert.Equal(t, want[j].name, got[j].name, "stage %d, state %d", i, j)
+		}
+	}
+}

@@ -1974,14 +1974,16 @@ func (s *Site) probeRule(tol float64) (parts [2]float64, worst float64) {
 		g    int
 		ps   []probeError
 	}
-	var laws []law
+	// The fleet's first: it reads every group, so the working arrays
+	// made for it serve the groups' laws after it.
+	laws := make([]law, 1, 1+2*G)
+	laws[0] = law{kind: kindFleet}
 	for g := range G {
 		if s.twin[g] != g {
 			continue // the same laws as its twin's, probed there
 		}
 		laws = append(laws, law{kind: kindNode, g: g}, law{kind: kindFirst, g: g})
 	}
-	laws = append(laws, law{kind: kindFleet})
 	// One chain of working arrays for every law in turn (the factors and
 	// tables do not change within the call: the fine points' weights and
 	// the tables' interval hints serve them all).

@@ -1408,23 +1408,14 @@ func slopeCell(nf float64, i int) float64 {
 func newSlopeBound(n int64) slopeBound {
 	nf := float64(n)
 	m := int((slopeHi - slopeLo) / slopeH)
-	// The cells that are 0 at the top (Φ(−z)^(n−1) below the smallest
-	// number, for a large n) are not kept, nor their widened cells: a
-	// reading there finds 0, the largest of the cells it meets (inCells;
-	// beyond computes the cells themselves).
-	last := m - 1
-	for last >= 0 && slopeCell(nf, last) == 0 {
-		last--
-	}
-	k := min(m, last+2)
-	b := slopeBound{wide: make([]float64, k), n: nf}
+	b := slopeBound{wide: make([]float64, m), n: nf}
 	best := nf * max(normPDF(slopeLo), normPDF(slopeHi))
 	// The cells in turn, three at a time: cell i − 1 (i itself at the
 	// first), i and i + 1 (i itself at the last).
 	cur := slopeCell(nf, 0)
 	best = max(best, cur)
 	prev := cur
-	for i := range k {
+	for i := range m {
 		next := cur
 		if i+1 < m {
 			next = slopeCell(nf, i+1)
@@ -1464,9 +1455,6 @@ func (b *slopeBound) inCells(lo, hi float64) (float64, bool) {
 		return 0, false
 	}
 	i0, i1 := int((lo-slopeLo)*(1/slopeH)), min(len(b.wide)-1, int((hi-slopeLo)*(1/slopeH)))
-	if i0 > i1 {
-		return 0, true // above the cells kept: every cell met is 0
-	}
 	w := b.wide[i0 : i1+1]
 	L := w[0]
 	for _, x := range w[1:] {
